@@ -1,0 +1,10 @@
+/**
+ * Every run kind the service offers. Adding an analysis = one file in `api/kinds/` plus one
+ * line here; routes, OpenAPI, replay, bundles and workers pick it up from this list.
+ *
+ * @module
+ */
+import type { RunKind } from "../runs/kind.ts";
+
+export const RUN_KINDS: RunKind[] = [
+];

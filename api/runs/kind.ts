@@ -1,0 +1,93 @@
+/**
+ * The contract every analysis ("run kind") implements. The generic machinery in
+ * `api/runs/` validates the request with `request`, stores inline series and replaces them by
+ * their ids, loads every referenced series and run, calls `compute`, and records the run
+ * (parameters with defaults, input ids, versions, seed, result, result digest). Replay,
+ * bundles, async execution in workers and charts all work from this contract, so `compute`
+ * must be a pure function of (params, loaded inputs): no clock, no store, no global state.
+ *
+ * @module
+ */
+import type { z } from "@hono/zod-openapi";
+import type { RunRecord, StoredSeries } from "../store/types.ts";
+
+/** A series-like part of a result; fetchable as JSON/CSV and savable as a stored series. */
+export interface OutputSeries {
+  name: string;
+  quantity: string;
+  units: string;
+  /** Decimal years (proleptic Gregorian). */
+  time: number[];
+  /** null where the value is undefined (e.g. the ends of a 13-month smoothing). */
+  value: (number | null)[];
+  uncertainty?: (number | null)[];
+  /** Lower/upper bounds of a stated interval (e.g. 95 % prediction interval). */
+  lower?: (number | null)[];
+  upper?: (number | null)[];
+  /** Human description of the interval, e.g. "95 % prediction interval". */
+  interval?: string;
+  description?: string;
+}
+
+/** What `compute` returns. Everything must be JSON (no NaN/Infinity: use null). */
+export interface RunResult {
+  [key: string]: unknown;
+  /** Series-like outputs by name. */
+  outputs?: Record<string, OutputSeries>;
+  /** Plausibility or data warnings, never silent. */
+  warnings?: string[];
+  /** Scientific cautions shown beside the numbers. */
+  cautions?: string[];
+}
+
+export interface RunContext {
+  /** A loaded input series by id (every series id found in params is preloaded). */
+  series(id: string): StoredSeries;
+  /** A loaded input run by id (those listed by `RunKind.runRefs`). */
+  run(id: string): RunRecord;
+  /** Report progress in [0, 1]. Cheap; call it as often as you like. */
+  progress(fraction: number): void;
+  /** True once the run was cancelled; long loops should check and throw `new CancelledError()`. */
+  cancelled(): boolean;
+}
+
+export class CancelledError extends Error {
+  constructor() {
+    super("run cancelled");
+    this.name = "CancelledError";
+  }
+}
+
+/**
+ * A domain input problem found while computing (a 422 for the user, naming the field).
+ * `pointer` is a JSON Pointer into the request body, e.g. "/window".
+ */
+export class InputProblem extends Error {
+  constructor(readonly pointer: string, message: string, readonly extra?: Record<string, unknown>) {
+    super(message);
+    this.name = "InputProblem";
+  }
+}
+
+// deno-lint-ignore no-explicit-any
+export interface RunKind<S extends z.ZodType = any> {
+  /** Stable machine name, e.g. "smoothing". */
+  kind: string;
+  /** POST path that creates the run, e.g. "/v1/smoothing". */
+  path: string;
+  /** Bump when numbers may change for the same inputs. */
+  algorithmVersion: string;
+  /** OpenAPI tag, e.g. "Solar cycles". */
+  tag: string;
+  summary: string;
+  description: string;
+  /** Request body schema; defaults filled by parsing. Series references use `seriesRef()`. */
+  request: S;
+  /** Ids of runs the params refer to (loaded into the context), default none. */
+  runRefs?(params: z.output<S>): string[];
+  /** Rough work estimate in seconds, used to decide asynchronous execution. */
+  estimateSeconds?(params: z.output<S>): number;
+  /** Names of outputs saved automatically as new series with lineage. */
+  autoSave?: string[];
+  compute(params: z.output<S>, ctx: RunContext): Promise<RunResult> | RunResult;
+}

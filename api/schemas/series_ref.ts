@@ -1,0 +1,50 @@
+/**
+ * Zod schemas for referring to series in analysis requests: either a stored series id or a
+ * series carried inline (stored first, then referenced by its id in the recorded run).
+ *
+ * @module
+ */
+import { z } from "@hono/zod-openapi";
+import { QUANTITIES } from "../../core/series/quantities.ts";
+
+export const SERIES_ID_PATTERN = /^sha256:[0-9a-f]{64}$/;
+
+export const SeriesId = z.string().regex(SERIES_ID_PATTERN, "must be a series id: sha256:<64 hex>")
+  .openapi({
+    description: "Content id of a stored series",
+    example: "sha256:3f1c...",
+  });
+
+/** Time values: ISO 8601 strings (YYYY, YYYY-MM, YYYY-MM-DD, date-times) or decimal years. */
+export const TimeValue = z.union([z.string(), z.number()]);
+
+export const InlineSeries = z.object({
+  name: z.string().min(1).max(200),
+  quantity: z.enum(QUANTITIES),
+  units: z.string().max(60),
+  description: z.string().max(4000).optional(),
+  source: z.string().max(2000).optional(),
+  version: z.string().max(40).optional().openapi({
+    description: 'Version of the index, e.g. "1" or "2" for the sunspot number',
+  }),
+  time: z.array(TimeValue).min(2).max(5_000_000),
+  value: z.array(z.number().nullable()),
+  uncertainty: z.array(z.number().nullable()).optional(),
+}).openapi("InlineSeries");
+
+export type InlineSeries = z.infer<typeof InlineSeries>;
+
+/** A reference to a series: a stored id, or the series itself inline. */
+export const SeriesRef = z.union([SeriesId, InlineSeries]).openapi("SeriesRef", {
+  description: "A stored series id, or a series inline (stored on use and recorded by id)",
+});
+
+export type SeriesRef = z.infer<typeof SeriesRef>;
+
+/** The id of a reference after the run machinery has stored inline series. */
+export function refId(ref: SeriesRef): string {
+  if (typeof ref !== "string") {
+    throw new Error("refId: inline series must be stored before compute (internal error)");
+  }
+  return ref;
+}

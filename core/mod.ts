@@ -1,0 +1,7 @@
+/**
+ * sunlag's science library: pure functions over typed arrays, no I/O.
+ *
+ * @module
+ */
+export * from "./random/mod.ts";
+export * from "./series/quantities.ts";

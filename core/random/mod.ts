@@ -1,0 +1,6 @@
+/**
+ * Seeded random streams.
+ *
+ * @module
+ */
+export * from "./random_stream.ts";
