@@ -49,6 +49,13 @@ export interface RunContext {
   progress(fraction: number): void;
   /** True once the run was cancelled; long loops should check and throw `new CancelledError()`. */
   cancelled(): boolean;
+  /**
+   * Map a registered worker task (see `api/workers/tasks.ts`) over chunks of work, on the
+   * service's pool of Web Workers when there is one, else in this thread. Results come back in
+   * input order, so the answer never depends on the number of workers. Typed arrays inside
+   * inputs are transferred, not copied, when `transfer` is true.
+   */
+  parallel<I, O>(task: string, inputs: I[], options?: { transfer?: boolean }): Promise<O[]>;
 }
 
 export class CancelledError extends Error {
