@@ -5,3 +5,4 @@
  */
 export * from "./random/mod.ts";
 export * from "./series/quantities.ts";
+export * from "./cycles/mod.ts";
