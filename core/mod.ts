@@ -6,3 +6,4 @@
 export * from "./random/mod.ts";
 export * from "./series/quantities.ts";
 export * from "./cycles/mod.ts";
+export * from "./stats/mod.ts";

@@ -1,0 +1,13 @@
+/**
+ * Regression and distribution primitives shared by the analyses: ordinary least squares,
+ * regression with AR(1) errors (Prais–Winsten), Newey–West HAC covariance, condition numbers
+ * and Student-t / normal / chi-square distribution functions.
+ *
+ * @module
+ */
+export * from "./distributions.ts";
+export * from "./least_squares_qr.ts";
+export * from "./condition_number.ts";
+export * from "./ordinary_least_squares.ts";
+export * from "./prais_winsten.ts";
+export * from "./newey_west.ts";
