@@ -4,6 +4,7 @@
  * @module
  */
 export * from "./random/mod.ts";
+export * from "./time/mod.ts";
 export * from "./series/quantities.ts";
 export * from "./cycles/mod.ts";
 export * from "./stats/mod.ts";

@@ -1,0 +1,150 @@
+/**
+ * Parse ISO 8601 times into decimal years, with the middle-of-period rule for reduced
+ * precision (shared/SCIENCE.md §11; ISO 8601-1:2019 §5.2 "reduced precision").
+ *
+ * @module
+ */
+import { daysBeforeMonth, daysFromCivil, daysInMonth, daysInYear } from "./calendar.ts";
+import { decimalYearFromEpochDays } from "./decimal_year.ts";
+
+/** How precise an ISO time is: a whole year, a month, a day, or an instant (date-time). */
+export type IsoPrecision = "year" | "month" | "day" | "instant";
+
+/** A parsed ISO 8601 time. */
+export interface ParsedIsoTime {
+  /** The decimal year sunlag uses for the time: the middle of the period it names. */
+  decimalYear: number;
+  precision: IsoPrecision;
+  /** Start of the period named, decimal years (equal to `decimalYear` for an instant). */
+  start: number;
+  /** End of the period named (exclusive), decimal years (equal to `decimalYear` for an instant). */
+  end: number;
+}
+
+const YEAR = String.raw`([+-]\d{4,6}|\d{4})`;
+const RE_YEAR = new RegExp(`^${YEAR}$`);
+const RE_MONTH = new RegExp(`^${YEAR}-(\\d{2})$`);
+const RE_DAY = new RegExp(`^${YEAR}-(\\d{2})-(\\d{2})$`);
+const RE_ORDINAL = new RegExp(`^${YEAR}-(\\d{3})$`);
+const RE_INSTANT = new RegExp(
+  `^${YEAR}-(\\d{2})-(\\d{2})[T ](\\d{2}):(\\d{2})(?::(\\d{2})(?:[.,](\\d+))?)?` +
+    String.raw`(Z|z|[+-]\d{2}(?::?\d{2})?)?$`,
+);
+
+/**
+ * Parse an ISO 8601 calendar time into a decimal year.
+ *
+ * Accepted forms (extended format; 4-digit years, or signed 4–6 digit expanded years):
+ * - `YYYY`: the middle of the year, year + 0.5 (e.g. `1996` → 1996.5);
+ * - `YYYY-MM`: the middle of the month (`1996-08` → 1996 + (213 + 15.5) / 366);
+ * - `YYYY-MM-DD` and ordinal `YYYY-DDD`: noon UTC of that day;
+ * - date-times `YYYY-MM-DDThh:mm[:ss[.s…]]` with optional `Z` or `±hh[:mm]` offset (a space
+ *   may replace `T`; `24:00` means the end of the day): that instant, converted to UTC.
+ *   A date-time without offset is read as UTC.
+ *
+ * Basic format (`19960815`) and week dates are not accepted, because a bare number is read as
+ * a decimal year elsewhere in sunlag.
+ *
+ * @param text the time string (surrounding whitespace ignored)
+ * @returns the decimal year, the precision and the bounds of the period named
+ * @throws {RangeError} naming what is wrong when the text is not such a time or the date does
+ *   not exist (e.g. `2023-02-29`)
+ * @example
+ * ```ts
+ * import { parseIsoTime } from "./parse_iso_time.ts";
+ * import assert from "node:assert/strict";
+ * assert.equal(parseIsoTime("1996").decimalYear, 1996.5);
+ * // 2023-03-01 noon: day of year 60 (31 + 28 + 1); (60 − 1 + 0.5) / 365
+ * assert.equal(parseIsoTime("2023-03-01").decimalYear, 2023 + 59.5 / 365);
+ * assert.equal(parseIsoTime("2024-01-01T00:00:00Z").decimalYear, 2024);
+ * assert.equal(parseIsoTime("2024-01-01T02:00+02:00").decimalYear, 2024);
+ * ```
+ */
+export function parseIsoTime(text: string): ParsedIsoTime {
+  const s = text.trim();
+  let m: RegExpExecArray | null;
+  if ((m = RE_YEAR.exec(s))) {
+    const y = Number(m[1]);
+    return { decimalYear: y + 0.5, precision: "year", start: y, end: y + 1 };
+  }
+  if ((m = RE_MONTH.exec(s))) {
+    const y = Number(m[1]), mo = Number(m[2]);
+    if (mo < 1 || mo > 12) throw bad(text, `month must be 01..12, got ${m[2]}`);
+    const diy = daysInYear(y);
+    const a = daysBeforeMonth(y, mo), len = daysInMonth(y, mo);
+    return {
+      decimalYear: y + (a + len / 2) / diy,
+      precision: "month",
+      start: y + a / diy,
+      end: mo === 12 ? y + 1 : y + (a + len) / diy,
+    };
+  }
+  if ((m = RE_DAY.exec(s))) {
+    const y = Number(m[1]), mo = Number(m[2]), d = Number(m[3]);
+    return dayPeriod(y, dayIndex(text, y, mo, d));
+  }
+  if ((m = RE_ORDINAL.exec(s))) {
+    const y = Number(m[1]), doy = Number(m[2]);
+    const diy = daysInYear(y);
+    if (doy < 1 || doy > diy) throw bad(text, `ordinal day must be 001..${diy}, got ${m[2]}`);
+    return dayPeriod(y, doy - 1);
+  }
+  if ((m = RE_INSTANT.exec(s))) {
+    const y = Number(m[1]), mo = Number(m[2]), d = Number(m[3]);
+    dayIndex(text, y, mo, d);
+    const hh = Number(m[4]), mm = Number(m[5]), ss = m[6] === undefined ? 0 : Number(m[6]);
+    const frac = m[7] === undefined ? 0 : Number(`0.${m[7]}`);
+    if (hh > 24 || (hh === 24 && (mm !== 0 || ss !== 0 || frac !== 0))) {
+      throw bad(text, `hour must be 00..23 (or 24:00 for the end of the day), got ${m[4]}`);
+    }
+    if (mm > 59) throw bad(text, `minute must be 00..59, got ${m[5]}`);
+    if (ss > 59) throw bad(text, `second must be 00..59, got ${m[6]}`);
+    let offsetMinutes = 0;
+    const z = m[8];
+    if (z !== undefined && z !== "Z" && z !== "z") {
+      const sign = z[0] === "-" ? -1 : 1;
+      const oh = Number(z.slice(1, 3));
+      const om = z.length > 3 ? Number(z.slice(-2)) : 0;
+      if (oh > 23 || om > 59) throw bad(text, `offset must be within ±23:59, got ${z}`);
+      offsetMinutes = sign * (oh * 60 + om);
+    }
+    const seconds = hh * 3600 + mm * 60 + ss + frac - offsetMinutes * 60;
+    const t = decimalYearFromEpochDays(daysFromCivil(y, mo, d) + seconds / 86400);
+    return { decimalYear: t, precision: "instant", start: t, end: t };
+  }
+  throw bad(
+    text,
+    "expected ISO 8601 YYYY, YYYY-MM, YYYY-MM-DD, YYYY-DDD or YYYY-MM-DDThh:mm[:ss][Z|±hh:mm]",
+  );
+}
+
+function dayIndex(text: string, y: number, mo: number, d: number): number {
+  if (mo < 1 || mo > 12) throw bad(text, `month must be 01..12, got ${mo}`);
+  const dim = daysInMonth(y, mo);
+  if (d < 1 || d > dim) {
+    throw bad(
+      text,
+      `day must be 01..${dim} in ${String(y).padStart(4, "0")}-${pad2(mo)}, got ${d}`,
+    );
+  }
+  return daysBeforeMonth(y, mo) + d - 1;
+}
+
+function dayPeriod(y: number, index: number): ParsedIsoTime {
+  const diy = daysInYear(y);
+  return {
+    decimalYear: y + (index + 0.5) / diy,
+    precision: "day",
+    start: y + index / diy,
+    end: index + 1 === diy ? y + 1 : y + (index + 1) / diy,
+  };
+}
+
+function pad2(n: number): string {
+  return String(n).padStart(2, "0");
+}
+
+function bad(text: string, why: string): RangeError {
+  const shown = text.length > 40 ? `${text.slice(0, 40)}…` : text;
+  return new RangeError(`Cannot parse time "${shown}": ${why}`);
+}
