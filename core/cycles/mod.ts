@@ -4,3 +4,11 @@
  * @module
  */
 export * from "./hathaway_shape.ts";
+export * from "./regular_grid.ts";
+export * from "./weighted_moving_average.ts";
+export * from "./smoothed_13_month.ts";
+export * from "./running_mean.ts";
+export * from "./gaussian_smoother.ts";
+export * from "./cycle_extrema.ts";
+export * from "./cycle_table.ts";
+export * from "./cycle_phase.ts";

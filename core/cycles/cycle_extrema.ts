@@ -1,0 +1,180 @@
+/**
+ * Minima and maxima of a smoothed activity series, the turning points from which solar cycles
+ * are defined (each cycle runs from one smoothed minimum to the next; Hathaway 2010, Living
+ * Rev. Sol. Phys. 7, 1, §4).
+ *
+ * @module
+ */
+
+/** One turning point of the smoothed series. */
+export interface Extremum {
+  kind: "minimum" | "maximum";
+  /** Index into the input arrays. */
+  index: number;
+  /** Decimal year. */
+  time: number;
+  /** Smoothed value, input units. */
+  value: number;
+  /**
+   * Topographic prominence, input units: for a minimum, how far the series must rise before a
+   * lower point is reached on either side (the smaller of the two climbs); for a maximum,
+   * how far it falls from the maximum to the lowest point after it (or before it, for a
+   * maximum preceding the first minimum).
+   */
+  prominence: number;
+  /**
+   * True for a maximum not yet confirmed: the latest, or earliest, maximum that the series has
+   * not yet fallen from by at least the prominence threshold (e.g. a cycle still rising).
+   */
+  provisional: boolean;
+}
+
+/** Options of {@link findCycleExtrema}. */
+export interface CycleExtremaOptions {
+  /**
+   * Shortest time between two minima, years; of two candidates closer than this, the lower
+   * one is kept.
+   * @default 7 (solar cycles last 9.0–13.6 years: shared/SCIENCE.md §5)
+   */
+  minSeparation?: number;
+  /**
+   * Smallest prominence of a minimum (and fall after a maximum), input units.
+   * @default 0.1 × (max − min of the smoothed series)
+   */
+  prominence?: number;
+}
+
+/**
+ * Find cycle minima and maxima of a smoothed series.
+ *
+ * Method (common practice, the peak-finding rules of e.g. scipy.signal.find_peaks applied to
+ * the negated series): every local minimum (the middle of a flat bottom) is a candidate; its
+ * prominence is min(highest point to the left before a lower point, same to the right) −
+ * value; candidates below the prominence threshold are dropped; then, lowest first, any
+ * candidate within `minSeparation` of a kept minimum is dropped. Between two consecutive
+ * minima the maximum is the highest smoothed value (the first, if tied). Before the first and
+ * after the last minimum a maximum is reported only if it is an interior local maximum; it is
+ * provisional unless the series has fallen from it by the prominence threshold.
+ *
+ * Edge cases: NaN values (undefined ends of a smoothing, gaps) are skipped; a minimum at the
+ * first or last defined point is never reported (the series may continue to fall). Fewer than
+ * 3 defined points give no extrema. Cost O(N·K) for K candidates.
+ *
+ * @param time decimal years, increasing, same length as value
+ * @param value smoothed values (NaN = undefined)
+ * @param options separation and prominence rules
+ * @returns extrema in time order (minima and maxima alternate)
+ * @throws {RangeError} when lengths differ or an option is not a positive finite number
+ * @example
+ * ```ts
+ * import { findCycleExtrema } from "./cycle_extrema.ts";
+ * import assert from "node:assert/strict";
+ * // an 11-year cosine sampled yearly with minima at years 5 and 16
+ * const t = Array.from({ length: 25 }, (_, i) => i);
+ * const v = t.map((x) => 50 - 50 * Math.cos(2 * Math.PI * (x - 5) / 11));
+ * const ex = findCycleExtrema(t, v, { minSeparation: 7 });
+ * const minima = ex.filter((e) => e.kind === "minimum").map((e) => e.time);
+ * assert.deepEqual(minima, [5, 16]);
+ * ```
+ */
+export function findCycleExtrema(
+  time: ArrayLike<number>,
+  value: ArrayLike<number>,
+  options: CycleExtremaOptions = {},
+): Extremum[] {
+  if (time.length !== value.length) {
+    throw new RangeError(
+      `Cannot find cycle extrema: time has ${time.length} points but value has ${value.length}`,
+    );
+  }
+  const sep = options.minSeparation ?? 7;
+  if (!(Number.isFinite(sep) && sep > 0)) {
+    throw new RangeError(
+      `Cannot find cycle extrema: minSeparation must be a positive number of years, current value is ${sep}`,
+    );
+  }
+  // defined points only
+  const idx: number[] = [];
+  for (let i = 0; i < value.length; i++) if (Number.isFinite(value[i])) idx.push(i);
+  const n = idx.length;
+  if (n < 3) return [];
+  const v = idx.map((i) => value[i]);
+  let lo = Infinity, hi = -Infinity;
+  for (const x of v) {
+    if (x < lo) lo = x;
+    if (x > hi) hi = x;
+  }
+  const prom = options.prominence ?? 0.1 * (hi - lo);
+  if (options.prominence !== undefined && !(Number.isFinite(prom) && prom > 0)) {
+    throw new RangeError(
+      `Cannot find cycle extrema: prominence must be a positive finite number, current value is ${prom}`,
+    );
+  }
+  if (!(hi > lo)) return [];
+
+  // local minima candidates (plateaus: the middle sample)
+  const cands: { k: number; prom: number }[] = [];
+  for (let k = 1; k < n - 1;) {
+    if (v[k] < v[k - 1]) {
+      let e = k;
+      while (e + 1 < n && v[e + 1] === v[k]) e++;
+      if (e + 1 < n && v[e + 1] > v[k]) {
+        const mid = (k + e) >> 1;
+        // prominence: climb until a strictly lower point on each side
+        let left = v[k], right = v[k];
+        for (let j = k - 1; j >= 0 && v[j] >= v[k]; j--) if (v[j] > left) left = v[j];
+        for (let j = e + 1; j < n && v[j] >= v[k]; j++) if (v[j] > right) right = v[j];
+        cands.push({ k: mid, prom: Math.min(left, right) - v[k] });
+      }
+      k = e + 1;
+    } else k++;
+  }
+  const strong = cands.filter((c) => c.prom >= prom);
+  strong.sort((a, b) => v[a.k] - v[b.k] || a.k - b.k);
+  const kept: { k: number; prom: number }[] = [];
+  for (const c of strong) {
+    const tc = time[idx[c.k]];
+    if (kept.every((q) => Math.abs(time[idx[q.k]] - tc) >= sep)) kept.push(c);
+  }
+  kept.sort((a, b) => a.k - b.k);
+
+  const out: Extremum[] = [];
+  const at = (k: number) => ({ index: idx[k], time: time[idx[k]], value: v[k] });
+  const argmax = (from: number, to: number) => { // inclusive range of defined positions
+    let best = from;
+    for (let j = from + 1; j <= to; j++) if (v[j] > v[best]) best = j;
+    return best;
+  };
+  const minOf = (from: number, to: number) => {
+    let m = Infinity;
+    for (let j = from; j <= to; j++) if (v[j] < m) m = v[j];
+    return m;
+  };
+  if (kept.length === 0) return out;
+  // maximum before the first minimum
+  const first = kept[0].k;
+  if (first >= 2) {
+    const m = argmax(0, first - 1);
+    if (m > 0) {
+      const fall = v[m] - minOf(0, m);
+      out.push({ kind: "maximum", ...at(m), prominence: fall, provisional: fall < prom });
+    }
+  }
+  for (let q = 0; q < kept.length; q++) {
+    out.push({ kind: "minimum", ...at(kept[q].k), prominence: kept[q].prom, provisional: false });
+    if (q + 1 < kept.length) {
+      const m = argmax(kept[q].k + 1, kept[q + 1].k - 1);
+      const fall = v[m] - v[kept[q + 1].k];
+      out.push({ kind: "maximum", ...at(m), prominence: fall, provisional: false });
+    }
+  }
+  const last = kept[kept.length - 1].k;
+  if (last <= n - 3) {
+    const m = argmax(last + 1, n - 1);
+    if (m < n - 1) {
+      const fall = v[m] - minOf(m, n - 1);
+      out.push({ kind: "maximum", ...at(m), prominence: fall, provisional: fall < prom });
+    }
+  }
+  return out;
+}
