@@ -8,3 +8,4 @@ export * from "./time/mod.ts";
 export * from "./series/quantities.ts";
 export * from "./cycles/mod.ts";
 export * from "./stats/mod.ts";
+export * from "./climate/mod.ts";

@@ -1,0 +1,13 @@
+/**
+ * Solar–climate linkage: lagged correlation with effective sample size and surrogate
+ * significance, attribution regression, composites and energy-balance response.
+ *
+ * @module
+ */
+export * from "./preprocess_series.ts";
+export * from "./lag1_autocorrelation.ts";
+export * from "./effective_sample_size.ts";
+export * from "./correlation_tests.ts";
+export * from "./lagged_correlation.ts";
+export * from "./surrogates.ts";
+export * from "./surrogate_lag_test.ts";

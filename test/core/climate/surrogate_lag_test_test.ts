@@ -1,0 +1,116 @@
+import assert from "node:assert/strict";
+import { randomStream } from "../../../core/random/random_stream.ts";
+import { laggedCorrelation } from "../../../core/climate/lagged_correlation.ts";
+import {
+  type PreprocessOptions,
+  preprocessSeries,
+} from "../../../core/climate/preprocess_series.ts";
+import {
+  ar1Surrogate,
+  dftAmplitudes,
+  ebisuzakiSurrogate,
+} from "../../../core/climate/surrogates.ts";
+import {
+  combineSurrogateChunks,
+  planSurrogateLagTest,
+  surrogateLagChunk,
+} from "../../../core/climate/surrogate_lag_test.ts";
+import { lag1Autocorrelation } from "../../../core/climate/lag1_autocorrelation.ts";
+
+function ar1(n: number, phi: number, seed: number, index: number): Float64Array {
+  return ar1Surrogate(n, phi, 1, randomStream(seed, index));
+}
+
+Deno.test("ebisuzakiSurrogate() keeps the amplitude spectrum (odd N) and zero mean", () => {
+  for (const n of [9, 31, 64, 100]) {
+    const x = ar1(n, 0.6, 5, n);
+    const s = ebisuzakiSurrogate(x, randomStream(11, 3));
+    const ax = dftAmplitudes(x), as = dftAmplitudes(s);
+    const top = n % 2 === 0 ? ax.length - 1 : ax.length;
+    for (let f = 1; f < top; f++) assert.ok(Math.abs(ax[f] - as[f]) < 1e-9 * (1 + ax[f]));
+    assert.ok(Math.abs(as[0]) < 1e-9, "zero mean");
+    if (n % 2 === 0) {
+      // Nyquist term real and at most √2 times the original
+      assert.ok(as[ax.length - 1] <= Math.SQRT2 * ax[ax.length - 1] + 1e-9);
+    }
+  }
+});
+
+/** Brute force: surrogate in the time domain, preprocess, correlate lag by lag. */
+function bruteForce(
+  x: Float64Array,
+  y: Float64Array,
+  pre: PreprocessOptions,
+  method: "phase" | "ar1",
+  seed: number,
+  index: number,
+  minLag: number,
+  maxLag: number,
+  full: boolean,
+): Float64Array {
+  let s: Float64Array;
+  if (method === "phase") s = ebisuzakiSurrogate(x, randomStream(seed, index));
+  else {
+    const m = x.reduce((a, b) => a + b) / x.length;
+    const sd = Math.sqrt(x.reduce((a, b) => a + (b - m) ** 2, 0) / x.length);
+    s = ar1Surrogate(x.length, lag1Autocorrelation(x), sd, randomStream(seed, index));
+  }
+  const ps = preprocessSeries(s, pre);
+  const c = laggedCorrelation(ps, y, { minLag, maxLag });
+  return full ? c.rFull : c.r;
+}
+
+Deno.test("surrogateLagChunk() equals the brute-force surrogate correlation at every lag", async (t) => {
+  const cases: { n: number; pre: PreprocessOptions; method: "phase" | "ar1"; full: boolean }[] = [
+    { n: 256, pre: { method: "mean" }, method: "phase", full: false },
+    { n: 256, pre: { method: "linear" }, method: "phase", full: false },
+    { n: 256, pre: { method: "quadratic" }, method: "phase", full: true },
+    { n: 255, pre: { method: "linear" }, method: "phase", full: false },
+    { n: 200, pre: { method: "mean" }, method: "phase", full: true },
+    { n: 256, pre: { method: "high_pass", cutoffSamples: 40 }, method: "phase", full: false },
+    { n: 150, pre: { method: "linear" }, method: "ar1", full: false },
+  ];
+  for (const cs of cases) {
+    await t.step(`${cs.method} n=${cs.n} ${cs.pre.method} ${cs.full ? "full" : "overlap"}`, () => {
+      const x = preprocessSeries(ar1(cs.n, 0.8, 1, 0), cs.pre);
+      const y = preprocessSeries(ar1(cs.n, 0.5, 2, 0), cs.pre);
+      const plan = planSurrogateLagTest(x, y, {
+        minLag: -12,
+        maxLag: 15,
+        seed: 99,
+        method: cs.method,
+        preprocess: cs.pre,
+        normalisation: cs.full ? "full" : "overlap",
+      });
+      for (const idx of [0, 1, 17]) {
+        const one = surrogateLagChunk({ plan, start: idx, end: idx + 1 });
+        const ref = bruteForce(x, y, cs.pre, cs.method, 99, idx, -12, 15, cs.full);
+        let mx = 0;
+        for (let j = 0; j < ref.length; j++) {
+          assert.ok(
+            Math.abs(one.sum[j] - ref[j]) < 1e-10,
+            `lag ${j - 12}: ${one.sum[j]} vs ${ref[j]}`,
+          );
+          mx = Math.max(mx, Math.abs(ref[j]));
+        }
+        assert.ok(Math.abs(one.maxAbs[0] - mx) < 1e-10);
+      }
+    });
+  }
+});
+
+Deno.test("combineSurrogateChunks() gives the same answer for any split", () => {
+  const x = preprocessSeries(ar1(128, 0.8, 3, 0), { method: "mean" });
+  const y = preprocessSeries(ar1(128, 0.8, 4, 0), { method: "mean" });
+  const plan = planSurrogateLagTest(x, y, { minLag: -10, maxLag: 10, seed: 5 });
+  const whole = combineSurrogateChunks(plan, [surrogateLagChunk({ plan, start: 0, end: 300 })]);
+  const parts = [[200, 300], [0, 37], [37, 200]].map(([start, end]) =>
+    surrogateLagChunk({ plan, start, end })
+  );
+  const split = combineSurrogateChunks(plan, parts);
+  assert.deepEqual(split.pPerLag, whole.pPerLag);
+  assert.equal(split.pFamilyWise, whole.pFamilyWise);
+  assert.equal(split.maxAbs95, whole.maxAbs95);
+  assert.ok(whole.pFamilyWise >= Math.min(...whole.pPerLag), "family-wise pays for the search");
+  assert.throws(() => combineSurrogateChunks(plan, []), RangeError);
+});
