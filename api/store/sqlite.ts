@@ -1,0 +1,787 @@
+/**
+ * The embedded store: one SQLite file (or `:memory:`) through `node:sqlite`'s DatabaseSync.
+ *
+ * - WAL journal, `busy_timeout`, `synchronous = FULL` (an acknowledged write survives a crash
+ *   of the process and of the machine), foreign keys on.
+ * - Every write is one `BEGIN IMMEDIATE` transaction: the write lock is taken up front, so a
+ *   second writer waits for it (up to the busy timeout) instead of failing with SQLITE_BUSY
+ *   on a read-to-write upgrade. Reads that touch several tables run in one read transaction.
+ * - The schema is built by numbered migrations, applied once and in order, each recorded in
+ *   `schema_migrations`; a file written by a newer schema is refused.
+ * - Series points are three blobs of little-endian doubles (time, value, uncertainty) in
+ *   `series_points`, apart from the metadata so listings never read them.
+ * - A run's input series and input runs live in link tables indexed by the input id, so
+ *   `runsUsingSeries` and the in-use check of `deleteSeries` are index look-ups.
+ *
+ * The methods are async to honour the `Store` interface, but each one runs synchronously to
+ * completion: no transaction is ever held open across an `await`.
+ *
+ * @module
+ */
+import { DatabaseSync, type SQLInputValue, type StatementSync } from "node:sqlite";
+import { dirname } from "node:path";
+import type {
+  Page,
+  Resolution,
+  RunRecord,
+  RunStatus,
+  RunSummary,
+  SeriesMeta,
+  Store,
+  StoredSeries,
+} from "./types.ts";
+import { bytesLEToFloat64, float64ToBytesLE } from "./float64_blob.ts";
+import {
+  DuplicateRunError,
+  MissingInputError,
+  RunNotFoundError,
+  SchemaMismatchError,
+} from "./errors.ts";
+
+/** One schema step. Versions are consecutive from 1; never edit a released step, add one. */
+export interface Migration {
+  version: number;
+  name: string;
+  sql: string;
+}
+
+/** The schema history of the SQLite store, oldest first. */
+export const SQLITE_MIGRATIONS: readonly Migration[] = [
+  {
+    version: 1,
+    name: "series, points, runs and run inputs",
+    sql: `
+      CREATE TABLE series (
+        seq INTEGER PRIMARY KEY AUTOINCREMENT,
+        id TEXT NOT NULL UNIQUE,
+        name TEXT NOT NULL,
+        quantity TEXT NOT NULL,
+        units TEXT NOT NULL,
+        description TEXT,
+        source TEXT,
+        version TEXT,
+        resolution TEXT NOT NULL
+          CHECK (resolution IN ('daily', 'monthly', 'annual', 'irregular')),
+        n INTEGER NOT NULL CHECK (n >= 0),
+        start_time REAL NOT NULL,
+        end_time REAL NOT NULL,
+        derived_from TEXT,
+        created_at TEXT NOT NULL
+      );
+      CREATE INDEX series_newest ON series (created_at DESC, seq DESC);
+      CREATE INDEX series_by_quantity ON series (quantity, created_at DESC, seq DESC);
+      CREATE INDEX series_by_origin ON series (derived_from);
+
+      CREATE TABLE series_points (
+        series_id TEXT PRIMARY KEY REFERENCES series (id) ON DELETE CASCADE,
+        time BLOB NOT NULL,
+        value BLOB NOT NULL,
+        uncertainty BLOB
+      );
+
+      CREATE TABLE runs (
+        seq INTEGER PRIMARY KEY AUTOINCREMENT,
+        id TEXT NOT NULL UNIQUE,
+        kind TEXT NOT NULL,
+        created_at TEXT NOT NULL,
+        updated_at TEXT NOT NULL,
+        status TEXT NOT NULL
+          CHECK (status IN ('queued', 'running', 'succeeded', 'failed', 'cancelled')),
+        progress REAL NOT NULL,
+        params TEXT NOT NULL,
+        service_version TEXT NOT NULL,
+        algorithm_version TEXT NOT NULL,
+        seed INTEGER,
+        result TEXT,
+        result_digest TEXT,
+        error TEXT,
+        eta_seconds REAL
+      );
+      CREATE INDEX runs_newest ON runs (created_at DESC, seq DESC);
+      CREATE INDEX runs_by_kind ON runs (kind, created_at DESC, seq DESC);
+      CREATE INDEX runs_by_status ON runs (status, created_at DESC, seq DESC);
+
+      CREATE TABLE run_input_series (
+        run_id TEXT NOT NULL REFERENCES runs (id) ON DELETE CASCADE,
+        position INTEGER NOT NULL,
+        series_id TEXT NOT NULL REFERENCES series (id),
+        PRIMARY KEY (run_id, position)
+      ) WITHOUT ROWID;
+      CREATE INDEX run_input_series_by_series ON run_input_series (series_id);
+
+      CREATE TABLE run_input_runs (
+        run_id TEXT NOT NULL REFERENCES runs (id) ON DELETE CASCADE,
+        position INTEGER NOT NULL,
+        input_run_id TEXT NOT NULL REFERENCES runs (id),
+        PRIMARY KEY (run_id, position)
+      ) WITHOUT ROWID;
+      CREATE INDEX run_input_runs_by_input ON run_input_runs (input_run_id);
+    `,
+  },
+];
+
+/** Options of {@link openSqliteStore}. */
+export interface SqliteStoreOptions {
+  /** A file path (parent directories are created) or ":memory:". */
+  path: string;
+  /**
+   * How long a writer waits for another connection's write lock before failing, ms.
+   * @default 10000
+   */
+  busyTimeoutMs?: number;
+  /** Schema steps to apply; tests use this to simulate other versions. @default SQLITE_MIGRATIONS */
+  migrations?: readonly Migration[];
+}
+
+const SERIES_META_COLUMNS =
+  "id, name, quantity, units, description, source, version, resolution, n, start_time, " +
+  "end_time, derived_from, created_at";
+
+const RUN_SUMMARY_COLUMNS =
+  "id, kind, created_at, updated_at, status, progress, service_version, algorithm_version, " +
+  "seed, result_digest, eta_seconds";
+
+const RUN_COLUMNS = RUN_SUMMARY_COLUMNS + ", params, result, error";
+
+type Row = Record<string, SQLInputValue>;
+
+function text(v: SQLInputValue): string {
+  return String(v);
+}
+
+function textOrNull(v: SQLInputValue): string | null {
+  return v === null || v === undefined ? null : String(v);
+}
+
+function numberOrNull(v: SQLInputValue): number | null {
+  return v === null || v === undefined ? null : Number(v);
+}
+
+function jsonOrNull(v: SQLInputValue): Record<string, unknown> | null {
+  return v === null || v === undefined ? null : JSON.parse(String(v));
+}
+
+/** Rows from node:sqlite have a null prototype: build plain objects field by field. */
+function toSeriesMeta(r: Row): SeriesMeta {
+  return {
+    id: text(r.id),
+    name: text(r.name),
+    quantity: text(r.quantity),
+    units: text(r.units),
+    description: textOrNull(r.description),
+    source: textOrNull(r.source),
+    version: textOrNull(r.version),
+    resolution: text(r.resolution) as Resolution,
+    n: Number(r.n),
+    start: Number(r.start_time),
+    end: Number(r.end_time),
+    derived_from: textOrNull(r.derived_from),
+    created_at: text(r.created_at),
+  };
+}
+
+function metaOf(s: SeriesMeta): SeriesMeta {
+  return {
+    id: s.id,
+    name: s.name,
+    quantity: s.quantity,
+    units: s.units,
+    description: s.description,
+    source: s.source,
+    version: s.version,
+    resolution: s.resolution,
+    n: s.n,
+    start: s.start,
+    end: s.end,
+    derived_from: s.derived_from,
+    created_at: s.created_at,
+  };
+}
+
+function toRunSummary(r: Row, inputSeries: string[], inputRuns: string[]): RunSummary {
+  return {
+    id: text(r.id),
+    kind: text(r.kind),
+    created_at: text(r.created_at),
+    updated_at: text(r.updated_at),
+    status: text(r.status) as RunStatus,
+    progress: Number(r.progress),
+    input_series: inputSeries,
+    input_runs: inputRuns,
+    service_version: text(r.service_version),
+    algorithm_version: text(r.algorithm_version),
+    seed: numberOrNull(r.seed),
+    result_digest: textOrNull(r.result_digest),
+    eta_seconds: numberOrNull(r.eta_seconds),
+  };
+}
+
+function checkPaging(where: string, limit: number, offset: number): void {
+  if (!Number.isInteger(limit) || limit < 0) {
+    throw new RangeError(`Cannot ${where}: limit must be a non-negative integer, got ${limit}`);
+  }
+  if (!Number.isInteger(offset) || offset < 0) {
+    throw new RangeError(`Cannot ${where}: offset must be a non-negative integer, got ${offset}`);
+  }
+}
+
+function checkSeries(s: StoredSeries): void {
+  const n = s.time.length;
+  const bad = (what: string) => {
+    throw new RangeError(`Cannot store series ${s.id}: ${what}`);
+  };
+  if (!(s.time instanceof Float64Array) || !(s.value instanceof Float64Array)) {
+    bad("time and value must be Float64Arrays");
+  }
+  if (s.value.length !== n) bad(`value has ${s.value.length} points, time has ${n}`);
+  if (s.uncertainty !== null && !(s.uncertainty instanceof Float64Array)) {
+    bad("uncertainty must be a Float64Array or null");
+  }
+  if (s.uncertainty !== null && s.uncertainty.length !== n) {
+    bad(`uncertainty has ${s.uncertainty.length} points, time has ${n}`);
+  }
+  if (s.n !== n) bad(`n is ${s.n} but the arrays hold ${n} points`);
+  if (!Number.isFinite(s.start) || !Number.isFinite(s.end)) bad("start and end must be finite");
+}
+
+/** Columns `updateRun` may change, with how each value is written. */
+const RUN_PATCH_COLUMNS: Record<string, (v: unknown) => SQLInputValue> = {
+  updated_at: (v) => String(v),
+  status: (v) => String(v),
+  progress: (v) => Number(v),
+  params: (v) => JSON.stringify(v),
+  service_version: (v) => String(v),
+  algorithm_version: (v) => String(v),
+  seed: (v) => (v === null ? null : Number(v)),
+  result: (v) => (v === null ? null : JSON.stringify(v)),
+  result_digest: (v) => (v === null ? null : String(v)),
+  error: (v) => (v === null ? null : JSON.stringify(v)),
+  eta_seconds: (v) => (v === null ? null : Number(v)),
+};
+
+/**
+ * The RFC 9457 body recorded on a run that a restart interrupted: the service's "internal"
+ * problem type (same URI and title as in `api/problems.ts`), with the reason as detail.
+ */
+export function interruptedProblem(reason: string): {
+  type: string;
+  title: string;
+  status: 500;
+  detail: string;
+} {
+  return {
+    type: "https://sunlag.invalid/problems/internal",
+    title: "Internal error",
+    status: 500,
+    detail: reason,
+  };
+}
+
+/** Run synchronous work as a promise: a throw becomes a rejection, as callers of async expect. */
+function settle<T>(fn: () => T): Promise<T> {
+  try {
+    return Promise.resolve(fn());
+  } catch (e) {
+    return Promise.reject(e);
+  }
+}
+
+/** A `Store` on one SQLite database. Create it with {@link openSqliteStore}. */
+export class SqliteStore implements Store {
+  readonly kind = "sqlite";
+  #db: DatabaseSync;
+  #stmts = new Map<string, StatementSync>();
+
+  /** Use {@link openSqliteStore}; the constructor expects a database already migrated. */
+  constructor(db: DatabaseSync, readonly path: string) {
+    this.#db = db;
+  }
+
+  #stmt(sql: string): StatementSync {
+    let s = this.#stmts.get(sql);
+    if (!s) {
+      s = this.#db.prepare(sql);
+      this.#stmts.set(sql, s);
+    }
+    return s;
+  }
+
+  /** Run `fn` in one write transaction taken with BEGIN IMMEDIATE. */
+  #write<T>(fn: () => T): T {
+    this.#db.exec("BEGIN IMMEDIATE");
+    try {
+      const out = fn();
+      this.#db.exec("COMMIT");
+      return out;
+    } catch (e) {
+      if (this.#db.isTransaction) this.#db.exec("ROLLBACK");
+      throw e;
+    }
+  }
+
+  /** Run `fn` in one read transaction (a consistent snapshot across statements). */
+  #read<T>(fn: () => T): T {
+    this.#db.exec("BEGIN");
+    try {
+      const out = fn();
+      this.#db.exec("COMMIT");
+      return out;
+    } catch (e) {
+      if (this.#db.isTransaction) this.#db.exec("ROLLBACK");
+      throw e;
+    }
+  }
+
+  ping(): Promise<boolean> {
+    return settle(() => {
+      try {
+        const row = this.#stmt("SELECT 1 AS one").get() as Row | undefined;
+        return row?.one === 1;
+      } catch {
+        return false;
+      }
+    });
+  }
+
+  /** Result of `PRAGMA integrity_check`: "ok" for a sound file, else SQLite's findings. */
+  integrityCheck(): string {
+    const rows = this.#db.prepare("PRAGMA integrity_check").all() as Row[];
+    return rows.map((r) => String(r.integrity_check)).join("\n");
+  }
+
+  /** The connection's durability and locking settings, as SQLite reports them. */
+  settings(): {
+    journal_mode: string;
+    busy_timeout: number;
+    synchronous: number;
+    foreign_keys: number;
+  } {
+    const one = (pragma: string) => {
+      const row = this.#db.prepare(`PRAGMA ${pragma}`).get() as Row;
+      return Object.values(row)[0];
+    };
+    return {
+      journal_mode: String(one("journal_mode")),
+      busy_timeout: Number(one("busy_timeout")),
+      synchronous: Number(one("synchronous")),
+      foreign_keys: Number(one("foreign_keys")),
+    };
+  }
+
+  /** Applied schema steps, oldest first. */
+  schemaVersions(): { version: number; name: string; applied_at: string }[] {
+    const rows = this.#db.prepare(
+      "SELECT version, name, applied_at FROM schema_migrations ORDER BY version",
+    ).all() as Row[];
+    return rows.map((r) => ({
+      version: Number(r.version),
+      name: text(r.name),
+      applied_at: text(r.applied_at),
+    }));
+  }
+
+  putSeries(s: StoredSeries): Promise<{ created: boolean; series: SeriesMeta }> {
+    return settle(() => {
+      checkSeries(s);
+      const out = this.#write(() => {
+        const existing = this.#stmt(`SELECT ${SERIES_META_COLUMNS} FROM series WHERE id = ?`)
+          .get(s.id) as Row | undefined;
+        if (existing) return { created: false, series: toSeriesMeta(existing) };
+        this.#stmt(
+          `INSERT INTO series (${SERIES_META_COLUMNS}) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)`,
+        ).run(
+          s.id,
+          s.name,
+          s.quantity,
+          s.units,
+          s.description,
+          s.source,
+          s.version,
+          s.resolution,
+          s.n,
+          s.start,
+          s.end,
+          s.derived_from,
+          s.created_at,
+        );
+        this.#stmt(
+          "INSERT INTO series_points (series_id, time, value, uncertainty) VALUES (?, ?, ?, ?)",
+        ).run(
+          s.id,
+          float64ToBytesLE(s.time),
+          float64ToBytesLE(s.value),
+          s.uncertainty === null ? null : float64ToBytesLE(s.uncertainty),
+        );
+        return { created: true, series: metaOf(s) };
+      });
+      return out;
+    });
+  }
+
+  getSeries(id: string): Promise<StoredSeries | null> {
+    return settle(() => {
+      const row = this.#stmt(
+        `SELECT ${
+          SERIES_META_COLUMNS.split(", ").map((c) => "s." + c).join(", ")
+        }, p.time AS p_time, p.value AS p_value, p.uncertainty AS p_uncertainty
+         FROM series s JOIN series_points p ON p.series_id = s.id WHERE s.id = ?`,
+      ).get(id) as Row | undefined;
+      if (!row) return null;
+      const meta = toSeriesMeta(row);
+      return ({
+        ...meta,
+        time: bytesLEToFloat64(row.p_time as Uint8Array, meta.n),
+        value: bytesLEToFloat64(row.p_value as Uint8Array, meta.n),
+        uncertainty: row.p_uncertainty === null
+          ? null
+          : bytesLEToFloat64(row.p_uncertainty as Uint8Array, meta.n),
+      });
+    });
+  }
+
+  getSeriesMeta(id: string): Promise<SeriesMeta | null> {
+    return settle(() => {
+      const row = this.#stmt(`SELECT ${SERIES_META_COLUMNS} FROM series WHERE id = ?`).get(id) as
+        | Row
+        | undefined;
+      return row ? toSeriesMeta(row) : null;
+    });
+  }
+
+  listSeries(q: { quantity?: string; limit: number; offset: number }): Promise<Page<SeriesMeta>> {
+    return settle(() => {
+      checkPaging("list series", q.limit, q.offset);
+      const page = this.#read(() => {
+        const where = q.quantity === undefined ? "" : "WHERE quantity = ?";
+        const args: SQLInputValue[] = q.quantity === undefined ? [] : [q.quantity];
+        const total = Number(
+          (this.#stmt(`SELECT count(*) AS n FROM series ${where}`).get(...args) as Row).n,
+        );
+        const rows = this.#stmt(
+          `SELECT ${SERIES_META_COLUMNS} FROM series ${where}
+           ORDER BY created_at DESC, seq DESC LIMIT ? OFFSET ?`,
+        ).all(...args, q.limit, q.offset) as Row[];
+        return { items: rows.map(toSeriesMeta), total };
+      });
+      return page;
+    });
+  }
+
+  deleteSeries(id: string): Promise<"deleted" | "not_found" | "in_use"> {
+    return settle(() => {
+      const out = this.#write((): "deleted" | "not_found" | "in_use" => {
+        if (!this.#stmt("SELECT 1 AS one FROM series WHERE id = ?").get(id)) return "not_found";
+        if (
+          this.#stmt("SELECT 1 AS one FROM run_input_series WHERE series_id = ? LIMIT 1").get(id)
+        ) {
+          return "in_use";
+        }
+        this.#stmt("DELETE FROM series_points WHERE series_id = ?").run(id);
+        this.#stmt("DELETE FROM series WHERE id = ?").run(id);
+        return "deleted";
+      });
+      return out;
+    });
+  }
+
+  #writeLinks(runId: string, inputSeries: readonly string[], inputRuns: readonly string[]): void {
+    const ins = this.#stmt(
+      "INSERT INTO run_input_series (run_id, position, series_id) VALUES (?, ?, ?)",
+    );
+    inputSeries.forEach((sid, i) => ins.run(runId, i, sid));
+    const inr = this.#stmt(
+      "INSERT INTO run_input_runs (run_id, position, input_run_id) VALUES (?, ?, ?)",
+    );
+    inputRuns.forEach((rid, i) => inr.run(runId, i, rid));
+  }
+
+  #checkInputs(runId: string, inputSeries: readonly string[], inputRuns: readonly string[]) {
+    const hasSeries = this.#stmt("SELECT 1 AS one FROM series WHERE id = ?");
+    for (const id of inputSeries) {
+      if (!hasSeries.get(id)) throw new MissingInputError(runId, "series", id);
+    }
+    const hasRun = this.#stmt("SELECT 1 AS one FROM runs WHERE id = ?");
+    for (const id of inputRuns) {
+      if (!hasRun.get(id)) throw new MissingInputError(runId, "run", id);
+    }
+  }
+
+  /**
+   * Insert a new run, atomically with its input links.
+   * @throws {DuplicateRunError} when the id is taken.
+   * @throws {MissingInputError} when an input series or input run is not stored.
+   */
+  putRun(r: RunRecord): Promise<void> {
+    return settle(() => {
+      this.#write(() => {
+        if (this.#stmt("SELECT 1 AS one FROM runs WHERE id = ?").get(r.id)) {
+          throw new DuplicateRunError(r.id);
+        }
+        this.#checkInputs(r.id, r.input_series, r.input_runs);
+        this.#stmt(
+          `INSERT INTO runs (${RUN_COLUMNS}) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)`,
+        ).run(
+          r.id,
+          r.kind,
+          r.created_at,
+          r.updated_at,
+          r.status,
+          r.progress,
+          r.service_version,
+          r.algorithm_version,
+          r.seed,
+          r.result_digest,
+          r.eta_seconds,
+          JSON.stringify(r.params),
+          r.result === null ? null : JSON.stringify(r.result),
+          r.error === null ? null : JSON.stringify(r.error),
+        );
+        this.#writeLinks(r.id, r.input_series, r.input_runs);
+      });
+      return undefined;
+    });
+  }
+
+  /**
+   * Change the given fields of a run. `updated_at` is set to now unless the patch carries it.
+   * Input lists in the patch replace the stored ones.
+   * @throws {RunNotFoundError} when no run has this id.
+   * @throws {MissingInputError} when a new input series or input run is not stored.
+   */
+  updateRun(
+    id: string,
+    patch: Partial<Omit<RunRecord, "id" | "kind" | "created_at">>,
+  ): Promise<void> {
+    return settle(() => {
+      const sets: string[] = [];
+      const args: SQLInputValue[] = [];
+      const p: Record<string, unknown> = {
+        ...patch,
+        updated_at: patch.updated_at ?? new Date().toISOString(),
+      };
+      for (const [key, value] of Object.entries(p)) {
+        if (value === undefined || key === "input_series" || key === "input_runs") continue;
+        const enc = RUN_PATCH_COLUMNS[key];
+        if (!enc) throw new RangeError(`Cannot update run ${id}: unknown field "${key}"`);
+        sets.push(`${key} = ?`);
+        args.push(enc(value));
+      }
+      this.#write(() => {
+        const res = this.#db.prepare(`UPDATE runs SET ${sets.join(", ")} WHERE id = ?`).run(
+          ...args,
+          id,
+        );
+        if (Number(res.changes) === 0) throw new RunNotFoundError(id);
+        if (patch.input_series !== undefined || patch.input_runs !== undefined) {
+          this.#checkInputs(id, patch.input_series ?? [], patch.input_runs ?? []);
+          if (patch.input_series !== undefined) {
+            this.#stmt("DELETE FROM run_input_series WHERE run_id = ?").run(id);
+          }
+          if (patch.input_runs !== undefined) {
+            this.#stmt("DELETE FROM run_input_runs WHERE run_id = ?").run(id);
+          }
+          this.#writeLinks(id, patch.input_series ?? [], patch.input_runs ?? []);
+        }
+      });
+      return undefined;
+    });
+  }
+
+  #links(runIds: string[]): Map<string, { series: string[]; runs: string[] }> {
+    const out = new Map<string, { series: string[]; runs: string[] }>();
+    for (const id of runIds) out.set(id, { series: [], runs: [] });
+    if (runIds.length === 0) return out;
+    const ids = JSON.stringify(runIds);
+    const srows = this.#stmt(
+      `SELECT run_id, series_id FROM run_input_series
+       WHERE run_id IN (SELECT value FROM json_each(?)) ORDER BY run_id, position`,
+    ).all(ids) as Row[];
+    for (const r of srows) out.get(text(r.run_id))!.series.push(text(r.series_id));
+    const rrows = this.#stmt(
+      `SELECT run_id, input_run_id FROM run_input_runs
+       WHERE run_id IN (SELECT value FROM json_each(?)) ORDER BY run_id, position`,
+    ).all(ids) as Row[];
+    for (const r of rrows) out.get(text(r.run_id))!.runs.push(text(r.input_run_id));
+    return out;
+  }
+
+  getRun(id: string): Promise<RunRecord | null> {
+    return settle(() => {
+      const run = this.#read(() => {
+        const row = this.#stmt(`SELECT ${RUN_COLUMNS} FROM runs WHERE id = ?`).get(id) as
+          | Row
+          | undefined;
+        if (!row) return null;
+        const links = this.#links([id]).get(id)!;
+        const record: RunRecord = {
+          ...toRunSummary(row, links.series, links.runs),
+          params: JSON.parse(text(row.params)),
+          result: jsonOrNull(row.result),
+          error: jsonOrNull(row.error),
+        };
+        return record;
+      });
+      return run;
+    });
+  }
+
+  listRuns(
+    q: { kind?: string; status?: RunStatus; limit: number; offset: number },
+  ): Promise<Page<RunSummary>> {
+    return settle(() => {
+      checkPaging("list runs", q.limit, q.offset);
+      const page = this.#read(() => {
+        const conds: string[] = [];
+        const args: SQLInputValue[] = [];
+        if (q.kind !== undefined) {
+          conds.push("kind = ?");
+          args.push(q.kind);
+        }
+        if (q.status !== undefined) {
+          conds.push("status = ?");
+          args.push(q.status);
+        }
+        const where = conds.length ? "WHERE " + conds.join(" AND ") : "";
+        const total = Number(
+          (this.#stmt(`SELECT count(*) AS n FROM runs ${where}`).get(...args) as Row).n,
+        );
+        const rows = this.#stmt(
+          `SELECT ${RUN_SUMMARY_COLUMNS} FROM runs ${where}
+           ORDER BY created_at DESC, seq DESC LIMIT ? OFFSET ?`,
+        ).all(...args, q.limit, q.offset) as Row[];
+        const links = this.#links(rows.map((r) => text(r.id)));
+        const items = rows.map((r) => {
+          const l = links.get(text(r.id))!;
+          return toRunSummary(r, l.series, l.runs);
+        });
+        return { items, total };
+      });
+      return page;
+    });
+  }
+
+  runsUsingSeries(id: string): Promise<string[]> {
+    return settle(() => {
+      const rows = this.#stmt(
+        `SELECT DISTINCT r.id AS id, r.created_at AS created_at, r.seq AS seq
+         FROM run_input_series l JOIN runs r ON r.id = l.run_id
+         WHERE l.series_id = ? ORDER BY r.created_at DESC, r.seq DESC`,
+      ).all(id) as Row[];
+      return rows.map((r) => text(r.id));
+    });
+  }
+
+  /**
+   * Mark every queued or running run failed, as after a restart that lost them. The error is
+   * an RFC 9457 problem body `{ type, title, status: 500, detail: reason }`.
+   */
+  failInterrupted(reason: string): Promise<number> {
+    return settle(() => {
+      const error = JSON.stringify(interruptedProblem(reason));
+      const n = this.#write(() =>
+        Number(
+          this.#stmt(
+            `UPDATE runs SET status = 'failed', error = ?, eta_seconds = NULL, updated_at = ?
+             WHERE status IN ('queued', 'running')`,
+          ).run(error, new Date().toISOString()).changes,
+        )
+      );
+      return n;
+    });
+  }
+
+  close(): Promise<void> {
+    return settle(() => {
+      if (this.#db.isOpen) {
+        this.#stmts.clear();
+        this.#db.close();
+      }
+      return undefined;
+    });
+  }
+}
+
+/** Apply the missing schema steps in one BEGIN IMMEDIATE transaction (safe when racing). */
+function migrate(db: DatabaseSync, migrations: readonly Migration[]): void {
+  migrations.forEach((m, i) => {
+    if (m.version !== i + 1) {
+      throw new SchemaMismatchError(
+        `Cannot migrate store: migration versions must be 1, 2, 3...; position ${i} has ${m.version}`,
+      );
+    }
+  });
+  db.exec("BEGIN IMMEDIATE");
+  try {
+    db.exec(`CREATE TABLE IF NOT EXISTS schema_migrations (
+      version INTEGER PRIMARY KEY,
+      name TEXT NOT NULL,
+      applied_at TEXT NOT NULL
+    )`);
+    const applied = (db.prepare("SELECT version, name FROM schema_migrations ORDER BY version")
+      .all() as Row[]).map((r) => ({ version: Number(r.version), name: text(r.name) }));
+    const newest = applied.length ? applied[applied.length - 1].version : 0;
+    if (newest > migrations.length) {
+      throw new SchemaMismatchError(
+        `Cannot open store: its schema version ${newest} is newer than this service knows ` +
+          `(${migrations.length}); upgrade the service`,
+      );
+    }
+    applied.forEach((a, i) => {
+      const m = migrations[i];
+      if (a.version !== m.version || a.name !== m.name) {
+        throw new SchemaMismatchError(
+          `Cannot open store: applied schema step ${a.version} "${a.name}" differs from this ` +
+            `service's step ${m.version} "${m.name}"`,
+        );
+      }
+    });
+    const record = db.prepare(
+      "INSERT INTO schema_migrations (version, name, applied_at) VALUES (?, ?, ?)",
+    );
+    for (const m of migrations.slice(applied.length)) {
+      db.exec(m.sql);
+      record.run(m.version, m.name, new Date().toISOString());
+    }
+    db.exec("COMMIT");
+  } catch (e) {
+    if (db.isTransaction) db.exec("ROLLBACK");
+    throw e;
+  }
+}
+
+/**
+ * Open (creating when needed) the SQLite store at `path`, a file path or ":memory:", and bring
+ * its schema up to date.
+ *
+ * @throws {SchemaMismatchError} when the file was written by a newer or different schema.
+ *
+ * @example
+ * ```ts
+ * import assert from "node:assert/strict";
+ * import { openSqliteStore } from "./sqlite.ts";
+ * const store = await openSqliteStore({ path: ":memory:" });
+ * assert.equal(await store.ping(), true);
+ * assert.equal((await store.listSeries({ limit: 10, offset: 0 })).total, 0);
+ * await store.close();
+ * ```
+ */
+export async function openSqliteStore(options: SqliteStoreOptions): Promise<SqliteStore> {
+  const path = options.path;
+  if (path === "") throw new RangeError("Cannot open SQLite store: path must not be empty");
+  if (path !== ":memory:") await Deno.mkdir(dirname(path), { recursive: true });
+  const db = new DatabaseSync(path);
+  try {
+    db.exec(`PRAGMA busy_timeout = ${Math.max(0, Math.round(options.busyTimeoutMs ?? 10_000))}`);
+    const mode = (db.prepare("PRAGMA journal_mode = WAL").get() as Row).journal_mode;
+    if (path !== ":memory:" && mode !== "wal") {
+      throw new Error(`Cannot open SQLite store ${path}: WAL journal refused (mode is ${mode})`);
+    }
+    db.exec("PRAGMA synchronous = FULL");
+    db.exec("PRAGMA foreign_keys = ON");
+    migrate(db, options.migrations ?? SQLITE_MIGRATIONS);
+  } catch (e) {
+    db.close();
+    throw e;
+  }
+  return new SqliteStore(db, path);
+}
