@@ -11,3 +11,4 @@ export * from "./correlation_tests.ts";
 export * from "./lagged_correlation.ts";
 export * from "./surrogates.ts";
 export * from "./surrogate_lag_test.ts";
+export * from "./energy_balance.ts";
