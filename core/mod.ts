@@ -7,5 +7,6 @@ export * from "./random/mod.ts";
 export * from "./time/mod.ts";
 export * from "./series/quantities.ts";
 export * from "./cycles/mod.ts";
+export * from "./spectral/mod.ts";
 export * from "./stats/mod.ts";
 export * from "./climate/mod.ts";

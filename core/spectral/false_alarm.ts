@@ -1,0 +1,200 @@
+/**
+ * False-alarm probabilities of periodogram peaks: the analytic formula with the
+ * Horne & Baliunas (1986) number of independent frequencies, and a seeded Monte Carlo
+ * alternative.
+ *
+ * @module
+ */
+import { randomStream } from "../random/random_stream.ts";
+import { lombScargle, type LombScargleNormalization } from "./lomb_scargle.ts";
+
+/**
+ * Number of independent frequencies of a Lomb–Scargle periodogram searched up to the Nyquist
+ * frequency, from N points: M ≈ −6.362 + 1.193 N + 0.00098 N² (Horne & Baliunas 1986, ApJ 302,
+ * 757, eq. 13; from memory per shared/SCIENCE.md §7, M). Their simulations used nearly even
+ * sampling; for a grid covering only part of the band it overstates M (conservative FAP).
+ *
+ * @param n number of data points, integer ≥ 6 (below that the fit gives M < 1)
+ * @returns M
+ * @throws {RangeError} when n is not an integer ≥ 6
+ * @example
+ * ```ts
+ * import { hornBaliunasFrequencies } from "./false_alarm.ts";
+ * import assert from "node:assert/strict";
+ * // SCIENCE.md §7 (D): N = 100 → M = 122.74
+ * assert.ok(Math.abs(hornBaliunasFrequencies(100) - 122.738) < 1e-9); // 122.74 rounded
+ * ```
+ */
+export function hornBaliunasFrequencies(n: number): number {
+  if (!Number.isInteger(n) || n < 6) {
+    throw new RangeError(
+      `Cannot compute Horne-Baliunas frequency count: n must be an integer >= 6, current value is ${n}`,
+    );
+  }
+  return -6.362 + 1.193 * n + 0.00098 * n * n;
+}
+
+/**
+ * False-alarm probability of a peak of normalised power z among M independent frequencies,
+ * FAP(z) = 1 − (1 − e^−z)^M (Scargle 1982, ApJ 263, 835, eq. 14; Horne & Baliunas 1986,
+ * eq. 22), for power normalised by the variance ("horne_baliunas"). Computed as
+ * −expm1(M · log1p(−e^−z)) so that small probabilities keep their precision.
+ *
+ * @param z normalised peak power, ≥ 0
+ * @param m number of independent frequencies, > 0
+ * @returns probability in [0, 1]
+ * @throws {RangeError} when z is negative or not finite, or m is not positive
+ * @example
+ * ```ts
+ * import { falseAlarmProbability } from "./false_alarm.ts";
+ * import assert from "node:assert/strict";
+ * // SCIENCE.md §7 (D): M = 122.74, z = 9.410 → FAP 0.01
+ * assert.ok(Math.abs(falseAlarmProbability(9.410, 122.74) - 0.01) < 1e-4);
+ * ```
+ */
+export function falseAlarmProbability(z: number, m: number): number {
+  if (!(Number.isFinite(z) && z >= 0)) {
+    throw new RangeError(
+      `Cannot compute false-alarm probability: power must be finite and >= 0, current value is ${z}`,
+    );
+  }
+  if (!(Number.isFinite(m) && m > 0)) {
+    throw new RangeError(
+      `Cannot compute false-alarm probability: M must be > 0, current value is ${m}`,
+    );
+  }
+  const p = -Math.expm1(m * Math.log1p(-Math.exp(-z)));
+  return Math.min(1, Math.max(0, p));
+}
+
+/**
+ * Power level whose false-alarm probability is `fap`: z = −ln(1 − (1 − FAP)^(1/M)) (inverse
+ * of {@link falseAlarmProbability}; Horne & Baliunas 1986, eq. 18).
+ *
+ * @param fap false-alarm probability in (0, 1)
+ * @param m number of independent frequencies, > 0
+ * @returns normalised power z
+ * @throws {RangeError} when fap is outside (0, 1) or m is not positive
+ * @example
+ * ```ts
+ * import { powerAtFalseAlarm } from "./false_alarm.ts";
+ * import assert from "node:assert/strict";
+ * // SCIENCE.md §7 (D): N = 100 (M = 122.74) → z(0.01) = 9.410, z(0.05) = 7.780
+ * assert.ok(Math.abs(powerAtFalseAlarm(0.01, 122.74) - 9.410) < 5e-4);
+ * assert.ok(Math.abs(powerAtFalseAlarm(0.05, 122.74) - 7.780) < 5e-4);
+ * ```
+ */
+export function powerAtFalseAlarm(fap: number, m: number): number {
+  if (!(fap > 0 && fap < 1)) {
+    throw new RangeError(
+      `Cannot compute power level: false-alarm probability must be in (0, 1), current value is ${fap}`,
+    );
+  }
+  if (!(Number.isFinite(m) && m > 0)) {
+    throw new RangeError(`Cannot compute power level: M must be > 0, current value is ${m}`);
+  }
+  // 1 − (1 − fap)^(1/M) = −expm1(log1p(−fap)/M)
+  return -Math.log(-Math.expm1(Math.log1p(-fap) / m));
+}
+
+/** Options of {@link monteCarloPeakMaxima}. */
+export interface MonteCarloFapOptions {
+  /** Seed of the random streams (replicate r uses stream (seed, r)). */
+  seed: number;
+  /** Number of replicates, integer ≥ 1. */
+  replicates: number;
+  /**
+   * First replicate index, so that chunks computed apart join into one result.
+   * @default 0
+   */
+  firstReplicate?: number;
+  /** @default "horne_baliunas" */
+  normalization?: LombScargleNormalization;
+}
+
+/**
+ * The null distribution of the largest periodogram peak by Monte Carlo: each replicate
+ * permutes the values over the fixed sample times (Fisher–Yates shuffle, Durstenfeld 1964),
+ * which keeps the data's distribution and sampling pattern but destroys any periodicity
+ * (a white-noise null), and records the highest Lomb–Scargle power over the same grid.
+ * Replicate r draws from `randomStream(seed, firstReplicate + r)`, so the result does not
+ * depend on how replicates are split over workers.
+ *
+ * Caution: a white-noise null overstates the significance of peaks in red (autocorrelated)
+ * series.
+ *
+ * @param time sample times
+ * @param value sample values
+ * @param frequency the grid searched
+ * @param options seed, replicate count, normalisation
+ * @returns the maximum power of each replicate, in replicate order
+ * @throws {RangeError} as {@link lombScargle}, or when replicates is not an integer ≥ 1
+ * @example
+ * ```ts
+ * import { monteCarloPeakMaxima } from "./false_alarm.ts";
+ * import assert from "node:assert/strict";
+ * const t = Array.from({ length: 50 }, (_, i) => i);
+ * const y = t.map((x) => Math.sin(x / 3) + (x % 7) / 7);
+ * const f = Array.from({ length: 20 }, (_, k) => 0.02 + k * 0.02);
+ * const a = monteCarloPeakMaxima(t, y, f, { seed: 1, replicates: 4 });
+ * const b = monteCarloPeakMaxima(t, y, f, { seed: 1, replicates: 2, firstReplicate: 2 });
+ * assert.deepEqual([...a.slice(2)], [...b]);
+ * ```
+ */
+export function monteCarloPeakMaxima(
+  time: ArrayLike<number>,
+  value: ArrayLike<number>,
+  frequency: ArrayLike<number>,
+  options: MonteCarloFapOptions,
+): Float64Array {
+  const { seed, replicates } = options;
+  const first = options.firstReplicate ?? 0;
+  if (!Number.isInteger(replicates) || replicates < 1) {
+    throw new RangeError(
+      `Cannot run Monte Carlo false-alarm test: replicates must be an integer >= 1, current value is ${replicates}`,
+    );
+  }
+  const n = value.length;
+  const y = new Float64Array(n);
+  const out = new Float64Array(replicates);
+  for (let r = 0; r < replicates; r++) {
+    const rng = randomStream(seed, first + r);
+    for (let i = 0; i < n; i++) y[i] = value[i];
+    for (let i = n - 1; i > 0; i--) {
+      const j = rng.int(0, i);
+      const tmp = y[i];
+      y[i] = y[j];
+      y[j] = tmp;
+    }
+    const p = lombScargle(time, y, frequency, { normalization: options.normalization });
+    let m = 0;
+    for (let k = 0; k < p.length; k++) if (p[k] > m) m = p[k];
+    out[r] = m;
+  }
+  return out;
+}
+
+/**
+ * Monte Carlo false-alarm probability of an observed peak power: (1 + #{maxima ≥ z}) / (1 + R)
+ * over R replicate maxima (Davison & Hinkley 1997, "Bootstrap Methods and their Application",
+ * eq. 4.11: the observed value counts as one of the R + 1 samples, so the estimate is never 0).
+ *
+ * @param z observed peak power (same normalisation as the maxima)
+ * @param maxima replicate maxima from {@link monteCarloPeakMaxima}
+ * @returns probability in (0, 1]
+ * @throws {RangeError} when maxima is empty
+ * @example
+ * ```ts
+ * import { monteCarloFalseAlarm } from "./false_alarm.ts";
+ * import assert from "node:assert/strict";
+ * assert.equal(monteCarloFalseAlarm(5, [1, 2, 6, 7]), 3 / 5);
+ * ```
+ */
+export function monteCarloFalseAlarm(z: number, maxima: ArrayLike<number>): number {
+  if (maxima.length === 0) {
+    throw new RangeError("Cannot compute Monte Carlo false-alarm probability: no replicates");
+  }
+  let c = 0;
+  for (let r = 0; r < maxima.length; r++) if (maxima[r] >= z) c++;
+  return (1 + c) / (1 + maxima.length);
+}

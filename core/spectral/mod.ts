@@ -1,0 +1,11 @@
+/**
+ * Spectral analysis: Fourier transforms, periodograms, false-alarm probabilities and peaks.
+ *
+ * @module
+ */
+export * from "./fft.ts";
+export * from "./period_grid.ts";
+export * from "./lomb_scargle.ts";
+export * from "./false_alarm.ts";
+export * from "./fft_periodogram.ts";
+export * from "./spectral_peaks.ts";
