@@ -12,3 +12,4 @@ export * from "./lagged_correlation.ts";
 export * from "./surrogates.ts";
 export * from "./surrogate_lag_test.ts";
 export * from "./energy_balance.ts";
+export * from "./superposed_epoch.ts";
