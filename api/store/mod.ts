@@ -21,8 +21,9 @@ import { openSqliteStore } from "./sqlite.ts";
 
 export type * from "./types.ts";
 export * from "./errors.ts";
-export { interruptedProblem, openSqliteStore, SQLITE_MIGRATIONS, SqliteStore } from "./sqlite.ts";
-export type { Migration, SqliteStoreOptions } from "./sqlite.ts";
+export { openSqliteStore, SQLITE_MIGRATIONS, SqliteStore } from "./sqlite.ts";
+export { interruptedProblem, type Migration } from "./common.ts";
+export type { SqliteStoreOptions } from "./sqlite.ts";
 
 /** The store location used when `SUNLAG_STORE` is unset. */
 export const DEFAULT_STORE_SPEC = "sqlite:./data/sunlag.db";

@@ -22,7 +22,6 @@ import { DatabaseSync, type SQLInputValue, type StatementSync } from "node:sqlit
 import { dirname } from "node:path";
 import type {
   Page,
-  Resolution,
   RunRecord,
   RunStatus,
   RunSummary,
@@ -32,18 +31,28 @@ import type {
 } from "./types.ts";
 import { bytesLEToFloat64, float64ToBytesLE } from "./float64_blob.ts";
 import {
+  checkPaging,
+  checkSeries,
+  encodeRunPatch,
+  interruptedProblem,
+  jsonOrNull,
+  metaOf,
+  type Migration,
+  RUN_COLUMNS,
+  RUN_SUMMARY_COLUMNS,
+  runValues,
+  SERIES_META_COLUMNS,
+  seriesMetaValues,
+  text,
+  toRunSummary,
+  toSeriesMeta,
+} from "./common.ts";
+import {
   DuplicateRunError,
   MissingInputError,
   RunNotFoundError,
   SchemaMismatchError,
 } from "./errors.ts";
-
-/** One schema step. Versions are consecutive from 1; never edit a released step, add one. */
-export interface Migration {
-  version: number;
-  name: string;
-  sql: string;
-}
 
 /** The schema history of the SQLite store, oldest first. */
 export const SQLITE_MIGRATIONS: readonly Migration[] = [
@@ -133,149 +142,12 @@ export interface SqliteStoreOptions {
   migrations?: readonly Migration[];
 }
 
-const SERIES_META_COLUMNS =
-  "id, name, quantity, units, description, source, version, resolution, n, start_time, " +
-  "end_time, derived_from, created_at";
-
-const RUN_SUMMARY_COLUMNS =
-  "id, kind, created_at, updated_at, status, progress, service_version, algorithm_version, " +
-  "seed, result_digest, eta_seconds";
-
-const RUN_COLUMNS = RUN_SUMMARY_COLUMNS + ", params, result, error";
+const SERIES_META = SERIES_META_COLUMNS.join(", ");
+const RUN_SUMMARY = RUN_SUMMARY_COLUMNS.join(", ");
+const RUN_ALL = RUN_COLUMNS.join(", ");
+const marks = (n: number) => Array(n).fill("?").join(", ");
 
 type Row = Record<string, SQLInputValue>;
-
-function text(v: SQLInputValue): string {
-  return String(v);
-}
-
-function textOrNull(v: SQLInputValue): string | null {
-  return v === null || v === undefined ? null : String(v);
-}
-
-function numberOrNull(v: SQLInputValue): number | null {
-  return v === null || v === undefined ? null : Number(v);
-}
-
-function jsonOrNull(v: SQLInputValue): Record<string, unknown> | null {
-  return v === null || v === undefined ? null : JSON.parse(String(v));
-}
-
-/** Rows from node:sqlite have a null prototype: build plain objects field by field. */
-function toSeriesMeta(r: Row): SeriesMeta {
-  return {
-    id: text(r.id),
-    name: text(r.name),
-    quantity: text(r.quantity),
-    units: text(r.units),
-    description: textOrNull(r.description),
-    source: textOrNull(r.source),
-    version: textOrNull(r.version),
-    resolution: text(r.resolution) as Resolution,
-    n: Number(r.n),
-    start: Number(r.start_time),
-    end: Number(r.end_time),
-    derived_from: textOrNull(r.derived_from),
-    created_at: text(r.created_at),
-  };
-}
-
-function metaOf(s: SeriesMeta): SeriesMeta {
-  return {
-    id: s.id,
-    name: s.name,
-    quantity: s.quantity,
-    units: s.units,
-    description: s.description,
-    source: s.source,
-    version: s.version,
-    resolution: s.resolution,
-    n: s.n,
-    start: s.start,
-    end: s.end,
-    derived_from: s.derived_from,
-    created_at: s.created_at,
-  };
-}
-
-function toRunSummary(r: Row, inputSeries: string[], inputRuns: string[]): RunSummary {
-  return {
-    id: text(r.id),
-    kind: text(r.kind),
-    created_at: text(r.created_at),
-    updated_at: text(r.updated_at),
-    status: text(r.status) as RunStatus,
-    progress: Number(r.progress),
-    input_series: inputSeries,
-    input_runs: inputRuns,
-    service_version: text(r.service_version),
-    algorithm_version: text(r.algorithm_version),
-    seed: numberOrNull(r.seed),
-    result_digest: textOrNull(r.result_digest),
-    eta_seconds: numberOrNull(r.eta_seconds),
-  };
-}
-
-function checkPaging(where: string, limit: number, offset: number): void {
-  if (!Number.isInteger(limit) || limit < 0) {
-    throw new RangeError(`Cannot ${where}: limit must be a non-negative integer, got ${limit}`);
-  }
-  if (!Number.isInteger(offset) || offset < 0) {
-    throw new RangeError(`Cannot ${where}: offset must be a non-negative integer, got ${offset}`);
-  }
-}
-
-function checkSeries(s: StoredSeries): void {
-  const n = s.time.length;
-  const bad = (what: string) => {
-    throw new RangeError(`Cannot store series ${s.id}: ${what}`);
-  };
-  if (!(s.time instanceof Float64Array) || !(s.value instanceof Float64Array)) {
-    bad("time and value must be Float64Arrays");
-  }
-  if (s.value.length !== n) bad(`value has ${s.value.length} points, time has ${n}`);
-  if (s.uncertainty !== null && !(s.uncertainty instanceof Float64Array)) {
-    bad("uncertainty must be a Float64Array or null");
-  }
-  if (s.uncertainty !== null && s.uncertainty.length !== n) {
-    bad(`uncertainty has ${s.uncertainty.length} points, time has ${n}`);
-  }
-  if (s.n !== n) bad(`n is ${s.n} but the arrays hold ${n} points`);
-  if (!Number.isFinite(s.start) || !Number.isFinite(s.end)) bad("start and end must be finite");
-}
-
-/** Columns `updateRun` may change, with how each value is written. */
-const RUN_PATCH_COLUMNS: Record<string, (v: unknown) => SQLInputValue> = {
-  updated_at: (v) => String(v),
-  status: (v) => String(v),
-  progress: (v) => Number(v),
-  params: (v) => JSON.stringify(v),
-  service_version: (v) => String(v),
-  algorithm_version: (v) => String(v),
-  seed: (v) => (v === null ? null : Number(v)),
-  result: (v) => (v === null ? null : JSON.stringify(v)),
-  result_digest: (v) => (v === null ? null : String(v)),
-  error: (v) => (v === null ? null : JSON.stringify(v)),
-  eta_seconds: (v) => (v === null ? null : Number(v)),
-};
-
-/**
- * The RFC 9457 body recorded on a run that a restart interrupted: the service's "internal"
- * problem type (same URI and title as in `api/problems.ts`), with the reason as detail.
- */
-export function interruptedProblem(reason: string): {
-  type: string;
-  title: string;
-  status: 500;
-  detail: string;
-} {
-  return {
-    type: "https://sunlag.invalid/problems/internal",
-    title: "Internal error",
-    status: 500,
-    detail: reason,
-  };
-}
 
 /** Run synchronous work as a promise: a throw becomes a rejection, as callers of async expect. */
 function settle<T>(fn: () => T): Promise<T> {
@@ -384,26 +256,12 @@ export class SqliteStore implements Store {
     return settle(() => {
       checkSeries(s);
       const out = this.#write(() => {
-        const existing = this.#stmt(`SELECT ${SERIES_META_COLUMNS} FROM series WHERE id = ?`)
+        const existing = this.#stmt(`SELECT ${SERIES_META} FROM series WHERE id = ?`)
           .get(s.id) as Row | undefined;
         if (existing) return { created: false, series: toSeriesMeta(existing) };
         this.#stmt(
-          `INSERT INTO series (${SERIES_META_COLUMNS}) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)`,
-        ).run(
-          s.id,
-          s.name,
-          s.quantity,
-          s.units,
-          s.description,
-          s.source,
-          s.version,
-          s.resolution,
-          s.n,
-          s.start,
-          s.end,
-          s.derived_from,
-          s.created_at,
-        );
+          `INSERT INTO series (${SERIES_META}) VALUES (${marks(SERIES_META_COLUMNS.length)})`,
+        ).run(...seriesMetaValues(s));
         this.#stmt(
           "INSERT INTO series_points (series_id, time, value, uncertainty) VALUES (?, ?, ?, ?)",
         ).run(
@@ -422,7 +280,7 @@ export class SqliteStore implements Store {
     return settle(() => {
       const row = this.#stmt(
         `SELECT ${
-          SERIES_META_COLUMNS.split(", ").map((c) => "s." + c).join(", ")
+          SERIES_META_COLUMNS.map((c) => "s." + c).join(", ")
         }, p.time AS p_time, p.value AS p_value, p.uncertainty AS p_uncertainty
          FROM series s JOIN series_points p ON p.series_id = s.id WHERE s.id = ?`,
       ).get(id) as Row | undefined;
@@ -441,7 +299,7 @@ export class SqliteStore implements Store {
 
   getSeriesMeta(id: string): Promise<SeriesMeta | null> {
     return settle(() => {
-      const row = this.#stmt(`SELECT ${SERIES_META_COLUMNS} FROM series WHERE id = ?`).get(id) as
+      const row = this.#stmt(`SELECT ${SERIES_META} FROM series WHERE id = ?`).get(id) as
         | Row
         | undefined;
       return row ? toSeriesMeta(row) : null;
@@ -458,7 +316,7 @@ export class SqliteStore implements Store {
           (this.#stmt(`SELECT count(*) AS n FROM series ${where}`).get(...args) as Row).n,
         );
         const rows = this.#stmt(
-          `SELECT ${SERIES_META_COLUMNS} FROM series ${where}
+          `SELECT ${SERIES_META} FROM series ${where}
            ORDER BY created_at DESC, seq DESC LIMIT ? OFFSET ?`,
         ).all(...args, q.limit, q.offset) as Row[];
         return { items: rows.map(toSeriesMeta), total };
@@ -519,23 +377,8 @@ export class SqliteStore implements Store {
         }
         this.#checkInputs(r.id, r.input_series, r.input_runs);
         this.#stmt(
-          `INSERT INTO runs (${RUN_COLUMNS}) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)`,
-        ).run(
-          r.id,
-          r.kind,
-          r.created_at,
-          r.updated_at,
-          r.status,
-          r.progress,
-          r.service_version,
-          r.algorithm_version,
-          r.seed,
-          r.result_digest,
-          r.eta_seconds,
-          JSON.stringify(r.params),
-          r.result === null ? null : JSON.stringify(r.result),
-          r.error === null ? null : JSON.stringify(r.error),
-        );
+          `INSERT INTO runs (${RUN_ALL}) VALUES (${marks(RUN_COLUMNS.length)})`,
+        ).run(...runValues(r));
         this.#writeLinks(r.id, r.input_series, r.input_runs);
       });
       return undefined;
@@ -553,19 +396,9 @@ export class SqliteStore implements Store {
     patch: Partial<Omit<RunRecord, "id" | "kind" | "created_at">>,
   ): Promise<void> {
     return settle(() => {
-      const sets: string[] = [];
-      const args: SQLInputValue[] = [];
-      const p: Record<string, unknown> = {
-        ...patch,
-        updated_at: patch.updated_at ?? new Date().toISOString(),
-      };
-      for (const [key, value] of Object.entries(p)) {
-        if (value === undefined || key === "input_series" || key === "input_runs") continue;
-        const enc = RUN_PATCH_COLUMNS[key];
-        if (!enc) throw new RangeError(`Cannot update run ${id}: unknown field "${key}"`);
-        sets.push(`${key} = ?`);
-        args.push(enc(value));
-      }
+      const cols = encodeRunPatch(id, patch, new Date().toISOString());
+      const sets = cols.map(([c]) => `${c} = ?`);
+      const args = cols.map(([, v]) => v);
       this.#write(() => {
         const res = this.#db.prepare(`UPDATE runs SET ${sets.join(", ")} WHERE id = ?`).run(
           ...args,
@@ -608,7 +441,7 @@ export class SqliteStore implements Store {
   getRun(id: string): Promise<RunRecord | null> {
     return settle(() => {
       const run = this.#read(() => {
-        const row = this.#stmt(`SELECT ${RUN_COLUMNS} FROM runs WHERE id = ?`).get(id) as
+        const row = this.#stmt(`SELECT ${RUN_ALL} FROM runs WHERE id = ?`).get(id) as
           | Row
           | undefined;
         if (!row) return null;
@@ -646,7 +479,7 @@ export class SqliteStore implements Store {
           (this.#stmt(`SELECT count(*) AS n FROM runs ${where}`).get(...args) as Row).n,
         );
         const rows = this.#stmt(
-          `SELECT ${RUN_SUMMARY_COLUMNS} FROM runs ${where}
+          `SELECT ${RUN_SUMMARY} FROM runs ${where}
            ORDER BY created_at DESC, seq DESC LIMIT ? OFFSET ?`,
         ).all(...args, q.limit, q.offset) as Row[];
         const links = this.#links(rows.map((r) => text(r.id)));
