@@ -10,3 +10,4 @@ export * from "./cycles/mod.ts";
 export * from "./spectral/mod.ts";
 export * from "./stats/mod.ts";
 export * from "./climate/mod.ts";
+export * from "./irradiance/mod.ts";

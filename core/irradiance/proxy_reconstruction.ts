@@ -1,0 +1,164 @@
+/**
+ * TSI reconstruction from a calibrated proxy model, with prediction intervals.
+ *
+ * @module
+ */
+import { ar1MeanVarianceFactor } from "./ar1_mean_variance.ts";
+import type { ProxyRole } from "./proxy_model.ts";
+
+/** The parts of a calibrated model a reconstruction needs. */
+export interface ReconstructionModel {
+  coefficients: number[];
+  covariance: number[][];
+  terms: { role: ProxyRole; quietLevel: number }[];
+  psiReference: number;
+  /** Marginal SD and lag-1 autocorrelation of the model residuals, and their spacing (days). */
+  residualSd: number;
+  rho: number;
+  stepDays: number;
+  /**
+   * Residual process of the sunspot-number-only model (TSI minus the model fed with mapped
+   * proxies), estimated in the overlap era at the sunspot series' spacing; null when no
+   * mapping was fitted.
+   */
+  backExtension: { residualSd: number; rho: number; stepDays: number } | null;
+}
+
+/** Proxy values per target cell. */
+export interface ReconstructionCells {
+  /** Length of each cell in days. */
+  days: Float64Array;
+  /** Direct proxy values per term (cell means), NaN where the proxy has no value. */
+  direct: Float64Array[];
+  /** Values mapped from sunspot number per term, with parameter variance; null = no mapping. */
+  mapped: ({ value: Float64Array; paramVariance: Float64Array } | null)[];
+}
+
+/** Source of a reconstructed value. */
+export const SOURCE_NONE = 0, SOURCE_DIRECT = 1, SOURCE_BACK_EXTENDED = 2;
+
+/** Result of {@link reconstructFromProxies}. */
+export interface Reconstruction {
+  value: Float64Array;
+  /** One-sigma predictive SD, W m-2. */
+  sd: Float64Array;
+  lower: Float64Array;
+  upper: Float64Array;
+  /** 0 = no value, 1 = all proxies direct, 2 = some proxy mapped from sunspot number. */
+  source: Uint8Array;
+}
+
+/**
+ * Reconstruct TSI per cell: ŷ = xᵀβ with x the cell's regressors (intercept, F_k − F_k,Q,
+ * −S_ref·PSI), and the predictive variance
+ *
+ *   Var = xᵀΣ_β x + Σ_k (β_k² + Σ_β,kk)·s_k²·v_k + σ_e²·f(m, ρ)/m
+ *
+ * where v_k is the parameter variance of a mapped proxy (0 for direct values), s_k its
+ * regressor scale (1, or S_ref for PSI), σ_e and ρ the residual SD and lag-1 autocorrelation
+ * (of the direct model, or of the sunspot-only model where any proxy is mapped), m the number
+ * of residual time steps in the cell and f the AR(1) variance factor of a mean of m values
+ * (see {@link ar1MeanVarianceFactor}). The interval is ŷ ± z·√Var with z the two-sided
+ * quantile given (e.g. t(0.975, df)). Mapped and direct parameter uncertainties are treated as
+ * independent; the residual terms are estimated directly, so they carry the correlation
+ * between the proxies' mapping errors.
+ *
+ * @param model {@link ReconstructionModel}
+ * @param cells {@link ReconstructionCells}
+ * @param z quantile for the interval (1.96 for 95 % normal)
+ * @returns {@link Reconstruction}; cells without proxies get NaN
+ * @throws {RangeError} when the cells do not match the model's terms
+ * @example
+ * ```ts
+ * import { reconstructFromProxies } from "./proxy_reconstruction.ts";
+ * import assert from "node:assert/strict";
+ * const r = reconstructFromProxies({
+ *   coefficients: [1360.8, 135], covariance: [[1e-4, 0], [0, 1]],
+ *   terms: [{ role: "facular", quietLevel: 0.15 }], psiReference: 1360.8,
+ *   residualSd: 0.15, rho: 0.7, stepDays: 1, backExtension: null,
+ * }, { days: Float64Array.of(1, 31), direct: [Float64Array.of(0.16, 0.16)], mapped: [null] }, 1.96);
+ * assert.ok(Math.abs(r.value[0] - (1360.8 + 1.35)) < 1e-9);
+ * assert.ok(r.sd[1] < r.sd[0]); // a monthly mean is less uncertain than a day
+ * ```
+ */
+export function reconstructFromProxies(
+  model: ReconstructionModel,
+  cells: ReconstructionCells,
+  z: number,
+): Reconstruction {
+  const K = model.terms.length;
+  if (cells.direct.length !== K || cells.mapped.length !== K) {
+    throw new RangeError(
+      `Cannot reconstruct: model has ${K} terms, cells have ${cells.direct.length}`,
+    );
+  }
+  if (model.coefficients.length !== K + 1) {
+    throw new RangeError("Cannot reconstruct: coefficients do not match the terms");
+  }
+  const n = cells.days.length;
+  const beta = model.coefficients, S = model.covariance;
+  const scale = model.terms.map((t) => t.role === "sunspot_darkening" ? -model.psiReference : 1);
+  const offset = model.terms.map((t) => t.role === "sunspot_darkening" ? 0 : t.quietLevel);
+  const value = new Float64Array(n), sd = new Float64Array(n);
+  const lower = new Float64Array(n), upper = new Float64Array(n);
+  const source = new Uint8Array(n);
+  const x = new Float64Array(K + 1);
+  const stepDays = model.stepDays, be = model.backExtension;
+  // the AR(1) factor per distinct cell length (daily/monthly/annual cells have few lengths)
+  const caches = [new Map<number, number>(), new Map<number, number>()];
+  const residVar = (which: 0 | 1, days: number, sdr: number, rho: number, step: number) => {
+    let f = caches[which].get(days);
+    if (f === undefined) {
+      const m = Math.max(1, days / step);
+      f = ar1MeanVarianceFactor(m, rho) / m;
+      caches[which].set(days, f);
+    }
+    return sdr * sdr * f;
+  };
+  for (let i = 0; i < n; i++) {
+    x[0] = 1;
+    let mappedVar = 0, anyMapped = false, ok = true;
+    for (let k = 0; k < K; k++) {
+      let v = cells.direct[k][i];
+      if (!Number.isFinite(v)) {
+        const m = cells.mapped[k];
+        if (!m || !Number.isFinite(m.value[i])) {
+          ok = false;
+          break;
+        }
+        v = m.value[i];
+        anyMapped = true;
+        const s = scale[k];
+        mappedVar += (beta[k + 1] * beta[k + 1] + S[k + 1][k + 1]) * s * s * m.paramVariance[i];
+      }
+      x[k + 1] = scale[k] * (v - offset[k]);
+    }
+    if (!ok || (anyMapped && !be)) {
+      value[i] =
+        sd[i] =
+        lower[i] =
+        upper[i] =
+          NaN;
+      source[i] = SOURCE_NONE;
+      continue;
+    }
+    let y = 0, q = 0;
+    for (let a = 0; a <= K; a++) {
+      y += beta[a] * x[a];
+      const Sa = S[a];
+      let r = 0;
+      for (let b = 0; b <= K; b++) r += Sa[b] * x[b];
+      q += x[a] * r;
+    }
+    const rv = anyMapped
+      ? residVar(1, cells.days[i], be!.residualSd, be!.rho, be!.stepDays)
+      : residVar(0, cells.days[i], model.residualSd, model.rho, stepDays);
+    const s = Math.sqrt(Math.max(0, q) + mappedVar + rv);
+    value[i] = y;
+    sd[i] = s;
+    lower[i] = y - z * s;
+    upper[i] = y + z * s;
+    source[i] = anyMapped ? SOURCE_BACK_EXTENDED : SOURCE_DIRECT;
+  }
+  return { value, sd, lower, upper, source };
+}
