@@ -1,0 +1,246 @@
+/**
+ * The Hono application: middleware (request id, JSON log line, CORS, body limit, media types),
+ * RFC 9457 problems for every failure, the OpenAPI 3.1 document generated from the zod schemas
+ * that validate requests, and the routes.
+ *
+ * @module
+ */
+import { OpenAPIHono } from "@hono/zod-openapi";
+import type { Context } from "hono";
+import { HTTPException } from "hono/http-exception";
+import { bodyLimit } from "hono/body-limit";
+import { cors } from "hono/cors";
+import { uuidv7 } from "uuidv7";
+import type { Config } from "./config.ts";
+import type { Store } from "./store/types.ts";
+import { type Problem, ProblemError, problemResponse, toPointer } from "./problems.ts";
+import type { ComputeExecutor } from "./runs/service.ts";
+import { RunService } from "./runs/service.ts";
+import { RUN_KINDS } from "./kinds/registry.ts";
+import type { RunKind } from "./runs/kind.ts";
+import { registerMetaRoutes } from "./routes/meta.ts";
+import { registerRunRoutes } from "./routes/runs.ts";
+import { registerChartRoutes } from "./routes/charts.ts";
+import { registerKindRoutes } from "./routes/kinds.ts";
+import { registerSeriesRoutes } from "./routes/series.ts";
+import { registerBundleRoutes } from "./routes/bundles.ts";
+import { seriesCodec } from "./series_codec.ts";
+import { SERVICE_VERSION } from "./version.ts";
+
+export type AppEnv = { Variables: { requestId: string } };
+export type App = OpenAPIHono<AppEnv>;
+
+export interface AppDeps {
+  store: Store;
+  config: Config;
+  executor: ComputeExecutor;
+  kinds?: RunKind[];
+}
+
+export interface Service {
+  app: App;
+  runs: RunService;
+  store: Store;
+  config: Config;
+}
+
+/** Map zod issues to field errors with JSON Pointers. */
+export function zodErrors(
+  issues: readonly { path: readonly PropertyKey[]; message: string }[],
+  where: "body" | "query" | "path" | "header",
+) {
+  // A union reports one issue per branch at the same place: merge them into one entry.
+  const byPointer = new Map<string, string[]>();
+  for (const i of issues) {
+    const p = toPointer(i.path);
+    const list = byPointer.get(p) ?? [];
+    if (!list.includes(i.message)) list.push(i.message);
+    byPointer.set(p, list);
+  }
+  return [...byPointer].map(([pointer, messages]) => ({
+    pointer,
+    message: messages.join("; or "),
+    ...(where === "body" ? {} : { in: where }),
+  }));
+}
+
+const TARGET_NAMES: Record<string, "body" | "query" | "path" | "header"> = {
+  json: "body",
+  query: "query",
+  param: "path",
+  header: "header",
+};
+
+/** Build the service: the app and the run machinery over a store. */
+export function createService(deps: AppDeps): Service {
+  const { store, config } = deps;
+  const kinds = deps.kinds ?? RUN_KINDS;
+  const runs = new RunService(store, kinds, seriesCodec, deps.executor, {
+    asyncSeconds: config.asyncSeconds,
+  });
+
+  const app: App = new OpenAPIHono<AppEnv>({
+    defaultHook: (result, c) => {
+      if (!result.success) {
+        const where = TARGET_NAMES[result.target] ?? "body";
+        const errors = zodErrors(result.error.issues, where);
+        return problemResponse(c, {
+          type: "https://sunlag.invalid/problems/validation",
+          title: "Invalid input",
+          status: 422,
+          detail: `The request ${where} failed validation: ` +
+            errors.map((e) => `${e.pointer || "/"}: ${e.message}`).join("; "),
+          errors,
+        });
+      }
+    },
+  });
+
+  // Request id and one JSON log line per request.
+  app.use("*", async (c, next) => {
+    const incoming = c.req.header("x-request-id");
+    const id = incoming && /^[\w.-]{1,100}$/.test(incoming) ? incoming : uuidv7();
+    c.set("requestId", id);
+    const t0 = performance.now();
+    await next();
+    c.res.headers.set("X-Request-Id", id);
+    if (config.log) {
+      console.log(JSON.stringify({
+        time: new Date().toISOString(),
+        request_id: id,
+        method: c.req.method,
+        path: c.req.path,
+        status: c.res.status,
+        ms: Math.round((performance.now() - t0) * 100) / 100,
+      }));
+    }
+  });
+
+  if (config.corsOrigins.length) {
+    app.use(
+      "*",
+      cors({
+        origin: config.corsOrigins.includes("*") ? "*" : config.corsOrigins,
+        allowMethods: ["GET", "POST", "DELETE", "OPTIONS"],
+        allowHeaders: ["Content-Type", "Accept", "Prefer", "If-None-Match", "X-Request-Id"],
+        exposeHeaders: ["X-Request-Id", "ETag", "Location", "Preference-Applied"],
+        maxAge: 600,
+      }),
+    );
+  }
+
+  app.use(
+    "*",
+    bodyLimit({
+      maxSize: config.bodyLimitBytes,
+      onError: (c) =>
+        problemResponse(
+          c,
+          new ProblemError(
+            "payload-too-large",
+            `The request body is over the configured limit of ${config.bodyLimitBytes} bytes (SUNLAG_BODY_LIMIT_MB)`,
+          ).problem,
+        ),
+    }),
+  );
+
+  registerMetaRoutes(app, { store, config, kinds });
+  registerSeriesRoutes(app, { store, config });
+  registerRunRoutes(app, { store, runs });
+  registerChartRoutes(app, { store });
+  registerBundleRoutes(app, { store, runs });
+  registerKindRoutes(app, { runs, kinds });
+
+  app.onError((err, c) => {
+    if (err instanceof ProblemError) return problemResponse(c, err.problem, err.headers);
+    if (err instanceof HTTPException) {
+      const status = err.status;
+      if (status === 400 && /JSON/i.test(err.message)) {
+        return problemResponse(
+          c,
+          new ProblemError("malformed-json", `The request body is not valid JSON: ${err.message}`)
+            .problem,
+        );
+      }
+      if (status === 415) {
+        const ct = c.req.header("content-type") || "(no Content-Type)";
+        return problemResponse(
+          c,
+          new ProblemError(
+            "unsupported-media-type",
+            `This endpoint does not take "${ct}"; see /v1/docs for the accepted media types`,
+          ).problem,
+        );
+      }
+      if (status === 413) {
+        return problemResponse(c, new ProblemError("payload-too-large", err.message).problem);
+      }
+      return problemResponse(c, {
+        type: "about:blank",
+        title: err.message || "HTTP error",
+        status,
+        detail: err.message || `HTTP ${status}`,
+      });
+    }
+    console.error(JSON.stringify({
+      level: "error",
+      request_id: c.get("requestId"),
+      error: String((err as Error)?.stack ?? err),
+    }));
+    return problemResponse(
+      c,
+      new ProblemError(
+        "internal",
+        "An unexpected error occurred; it was logged with this request id.",
+      ).problem,
+    );
+  });
+
+  const routeTable = () =>
+    app.routes
+      .filter((r) => r.method !== "ALL")
+      .map((r) => ({
+        method: r.method,
+        re: new RegExp("^" + r.path.replace(/:[^/]+/g, "[^/]+").replace(/\*/g, ".*") + "$"),
+      }));
+  let table: ReturnType<typeof routeTable> | null = null;
+
+  app.notFound((c: Context) => {
+    table ??= routeTable();
+    const allowed = [
+      ...new Set(table.filter((r) => r.re.test(c.req.path)).map((r) => r.method)),
+    ];
+    if (allowed.length) {
+      if (allowed.includes("GET")) allowed.push("HEAD");
+      return problemResponse(
+        c,
+        new ProblemError(
+          "method-not-allowed",
+          `${c.req.method} is not allowed on ${c.req.path}; allowed: ${allowed.join(", ")}`,
+        ).problem,
+        { Allow: allowed.join(", ") },
+      );
+    }
+    return problemResponse(c, {
+      ...new ProblemError("not-found", `No route matches ${c.req.method} ${c.req.path}`).problem,
+    } as Problem);
+  });
+
+  return { app, runs, store, config };
+}
+
+/** The OpenAPI 3.1 document of the app. */
+export function openApiDocument(app: App) {
+  return app.getOpenAPI31Document({
+    openapi: "3.1.0",
+    info: {
+      title: "sunlag",
+      version: SERVICE_VERSION,
+      description:
+        "Solar activity records turned into climate-ready numbers: stored series, recorded and replayable runs. " +
+        "Correlation is not attribution; reconstructions before the satellite era are model-dependent; " +
+        "results do not replace peer-reviewed assessment.",
+    },
+    servers: [{ url: "/" }],
+  });
+}

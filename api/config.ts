@@ -1,0 +1,72 @@
+/**
+ * Service configuration from environment variables (all optional; the defaults are the
+ * embedded ones `deno task start` uses). Documented in the README's Configuration section.
+ *
+ * | variable | default | meaning |
+ * |---|---|---|
+ * | `HOST` | `127.0.0.1` | bind address |
+ * | `PORT` | `8080` | TCP port |
+ * | `SUNLAG_STORE` | `sqlite:./data/sunlag.db` | store location (`sqlite:<file>` or `sqlite::memory:`) |
+ * | `SUNLAG_DEMO` | `1` | load the demo data into an empty store at start (`0` to skip) |
+ * | `SUNLAG_BODY_LIMIT_MB` | `25` | largest accepted request body, MB |
+ * | `SUNLAG_WORKERS` | number of cores | Web Workers for heavy computation (`0` = in-thread) |
+ * | `SUNLAG_ASYNC_SECONDS` | `2` | runs estimated to take longer are asynchronous by default |
+ * | `SUNLAG_CORS_ORIGINS` | (empty: CORS off) | comma-separated list of allowed origins, or `*` |
+ * | `SUNLAG_LOG` | `1` | one JSON line per request on stdout (`0` to silence) |
+ *
+ * @module
+ */
+
+export interface Config {
+  host: string;
+  port: number;
+  store: string;
+  demo: boolean;
+  bodyLimitBytes: number;
+  workers: number;
+  asyncSeconds: number;
+  corsOrigins: string[];
+  log: boolean;
+}
+
+function num(env: Record<string, string | undefined>, name: string, dflt: number, min = 0): number {
+  const raw = env[name];
+  if (raw === undefined || raw === "") return dflt;
+  const v = Number(raw);
+  if (!Number.isFinite(v) || v < min) {
+    throw new RangeError(
+      `Cannot read configuration: ${name} must be a number >= ${min}, got "${raw}"`,
+    );
+  }
+  return v;
+}
+
+/** Read the configuration; throws RangeError naming the variable when one is malformed. */
+export function readConfig(env: Record<string, string | undefined>): Config {
+  const cores = typeof navigator !== "undefined" && navigator.hardwareConcurrency
+    ? navigator.hardwareConcurrency
+    : 2;
+  return {
+    host: env.HOST || "127.0.0.1",
+    port: num(env, "PORT", 8080, 0),
+    store: env.SUNLAG_STORE || "sqlite:./data/sunlag.db",
+    demo: env.SUNLAG_DEMO !== "0",
+    bodyLimitBytes: Math.round(num(env, "SUNLAG_BODY_LIMIT_MB", 25, 0.001) * 1024 * 1024),
+    workers: Math.floor(num(env, "SUNLAG_WORKERS", cores, 0)),
+    asyncSeconds: num(env, "SUNLAG_ASYNC_SECONDS", 2, 0),
+    corsOrigins: (env.SUNLAG_CORS_ORIGINS ?? "").split(",").map((s) => s.trim()).filter(Boolean),
+    log: env.SUNLAG_LOG !== "0",
+  };
+}
+
+/** Defaults for tests: in-memory store, no demo, no workers, no log. */
+export function testConfig(overrides: Partial<Config> = {}): Config {
+  return {
+    ...readConfig({}),
+    store: "sqlite::memory:",
+    demo: false,
+    workers: 0,
+    log: false,
+    ...overrides,
+  };
+}

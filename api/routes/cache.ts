@@ -1,0 +1,27 @@
+/**
+ * HTTP caching for immutable resources (content-addressed series, finished runs, their
+ * charts): strong ETags, `Cache-Control: public, max-age=31536000, immutable` and 304 on
+ * `If-None-Match` (RFC 9110 §13.1.2, RFC 8246).
+ *
+ * @module
+ */
+import type { Context } from "hono";
+
+/** Headers for an immutable representation. */
+export function immutableHeaders(etag: string): Record<string, string> {
+  return { ETag: etag, "Cache-Control": "public, max-age=31536000, immutable" };
+}
+
+/** A 304 response when `If-None-Match` matches `etag`, else null. */
+export function notModified(c: Context, etag: string): Response | null {
+  const inm = c.req.header("if-none-match");
+  if (!inm) return null;
+  const tags = inm.split(",").map((t) => t.trim());
+  if (tags.includes("*") || tags.includes(etag)) {
+    return new Response(null, {
+      status: 304,
+      headers: { ...immutableHeaders(etag), "X-Request-Id": c.get("requestId" as never) ?? "" },
+    });
+  }
+  return null;
+}

@@ -1,0 +1,196 @@
+/**
+ * Chart routes: server-rendered SVG of a stored series and of a finished run, with width,
+ * height, theme and time range in the query. Both are immutable (content-addressed series,
+ * finished runs), so they carry a strong ETag that includes the query, a one-year immutable
+ * Cache-Control and answer 304 on If-None-Match.
+ *
+ * @module
+ */
+import { createRoute, z } from "@hono/zod-openapi";
+import type { Context } from "hono";
+import type { App } from "../app.ts";
+import type { Store } from "../store/types.ts";
+import { ProblemError } from "../problems.ts";
+import { problems } from "../schemas/common.ts";
+import { immutableHeaders, notModified } from "./cache.ts";
+import { parseIsoTime } from "../../core/time/mod.ts";
+import { renderChart, type RenderOptions } from "../charts/chart.ts";
+import { shortHash } from "../charts/svg.ts";
+import { seriesChartSpec } from "../charts/series_chart.ts";
+import { runChartSpec } from "../charts/run_charts.ts";
+import { SERVICE_VERSION } from "../version.ts";
+
+/** Bump when the drawing of a chart changes for the same data and query. */
+export const CHART_VERSION = "1";
+
+const DECIMAL_YEAR = /^[+-]?\d+(\.\d+)?$/;
+
+/** A decimal year ("1996.5") or an ISO 8601 date ("1996", "1996-08", "1996-08-15", date-time). */
+function readTime(text: string, edge: "start" | "end"): number | null {
+  const s = text.trim();
+  if (DECIMAL_YEAR.test(s) && !/^\d{4}$/.test(s)) {
+    const v = Number(s);
+    return Number.isFinite(v) && Math.abs(v) <= 1e6 ? v : null;
+  }
+  try {
+    const p = parseIsoTime(s);
+    return edge === "start" ? p.start : p.end;
+  } catch {
+    return null;
+  }
+}
+
+const TIME_MESSAGE =
+  "must be a decimal year with a fraction (e.g. 1996.5) or an ISO 8601 date (1996, 1996-08, 1996-08-15)";
+
+const timeParam = (edge: "start" | "end", what: string) =>
+  z.string().refine((s) => readTime(s, edge) !== null, TIME_MESSAGE).optional().openapi({
+    description: `${what} of the time range: a decimal year or an ISO 8601 date (a whole year or ` +
+      `month counts from its ${edge === "start" ? "start" : "end"})`,
+    example: edge === "start" ? "1996" : "2008-12",
+  });
+
+export const ChartQuery = z.object({
+  width: z.coerce.number().int().min(240).max(4000).default(800).openapi({
+    description: "Width in px (240–4000)",
+  }),
+  height: z.coerce.number().int().min(160).max(3000).default(400).openapi({
+    description: "Height in px (160–3000)",
+  }),
+  theme: z.enum(["light", "dark"]).default("light"),
+  from: timeParam("start", "Start"),
+  to: timeParam("end", "End"),
+});
+
+type ChartQueryOut = z.output<typeof ChartQuery>;
+
+/** Parsed render options; 422 naming `to` when the range is empty. */
+function renderOptions(q: ChartQueryOut): RenderOptions {
+  const from = q.from !== undefined ? readTime(q.from, "start") ?? undefined : undefined;
+  const to = q.to !== undefined ? readTime(q.to, "end") ?? undefined : undefined;
+  if (from !== undefined && to !== undefined && !(to > from)) {
+    throw new ProblemError(
+      "validation",
+      `The time range is empty: to (${q.to}) must be after from (${q.from})`,
+      {
+        errors: [{ pointer: "/to", in: "query", message: `must be after from (${q.from})` }],
+      },
+    );
+  }
+  return { width: q.width, height: q.height, theme: q.theme, from, to };
+}
+
+function etagFor(resource: string, o: RenderOptions): string {
+  const q = `${o.width}x${o.height}-${o.theme}-${o.from ?? ""}-${o.to ?? ""}`;
+  return `"chart-${resource}-${shortHash(q)}${
+    shortHash(q + "|" + resource)
+  }-s${SERVICE_VERSION}-c${CHART_VERSION}"`;
+}
+
+function svgResponse(c: Context, svg: string, etag: string): Response {
+  return new Response(svg, {
+    status: 200,
+    headers: {
+      "Content-Type": "image/svg+xml; charset=utf-8",
+      "X-Content-Type-Options": "nosniff",
+      // The SVG runs no script and loads nothing; say so to browsers that open it directly.
+      "Content-Security-Policy": "default-src 'none'; style-src 'unsafe-inline'; sandbox",
+      "X-Request-Id": c.get("requestId" as never) ?? "",
+      ...immutableHeaders(etag),
+    },
+  });
+}
+
+const svgContent = { "image/svg+xml": { schema: z.string().openapi({ format: "binary" }) } };
+
+export function registerChartRoutes(app: App, deps: { store: Store }): void {
+  const { store } = deps;
+
+  app.openapi(
+    createRoute({
+      method: "get",
+      path: "/v1/series/{id}/chart.svg",
+      tags: ["Charts"],
+      summary: "A stored series as a standalone SVG chart (immutable, cacheable)",
+      description:
+        "Server-rendered SVG (no script, no external font): the series over decimal years with its " +
+        "±1σ band when it has uncertainties, axes labelled with quantity and units, light or dark theme. " +
+        "Long series are drawn with the minimum and maximum per pixel column, so no spike is lost.",
+      request: {
+        params: z.object({
+          id: z.string().openapi({ param: { name: "id", in: "path" }, example: "sha256:..." }),
+        }),
+        query: ChartQuery,
+      },
+      responses: {
+        200: { description: "The chart", content: svgContent },
+        304: { description: "Not modified" },
+        ...problems(404, 422),
+      },
+    }),
+    // deno-lint-ignore no-explicit-any
+    (async (c: any) => {
+      const id: string = c.req.valid("param").id;
+      const opts = renderOptions(c.req.valid("query"));
+      const etag = etagFor(`series-${id.replace(/^sha256:/, "")}`, opts);
+      const nm = notModified(c, etag);
+      if (nm) {
+        if (!(await store.getSeriesMeta(id))) {
+          throw new ProblemError("not-found", `No series has id ${id}`);
+        }
+        return nm;
+      }
+      const s = await store.getSeries(id);
+      if (!s) throw new ProblemError("not-found", `No series has id ${id}`);
+      const svg = renderChart(seriesChartSpec(s), { ...opts, idPrefix: "s" + shortHash(etag) });
+      return svgResponse(c, svg, etag);
+    }) as never,
+  );
+
+  app.openapi(
+    createRoute({
+      method: "get",
+      path: "/v1/runs/{id}/chart.svg",
+      tags: ["Charts"],
+      summary: "A finished run as a standalone SVG chart fit for its kind (immutable, cacheable)",
+      description:
+        "Reconstructions with their uncertainty band, lag correlations with the significance envelope, " +
+        "cycle tables over the smoothed series, periodograms with false-alarm levels, attributions " +
+        "with their contributions; other kinds draw their series-like outputs as lines with bands. " +
+        "The run's cautions are printed under the plot. Only succeeded runs have charts (409 otherwise).",
+      request: {
+        params: z.object({
+          id: z.string().regex(/^[0-9a-f-]{36}$/, "must be a run id (UUIDv7)").openapi({
+            param: { name: "id", in: "path" },
+          }),
+        }),
+        query: ChartQuery,
+      },
+      responses: {
+        200: { description: "The chart", content: svgContent },
+        304: { description: "Not modified" },
+        ...problems(404, 409, 422),
+      },
+    }),
+    // deno-lint-ignore no-explicit-any
+    (async (c: any) => {
+      const id: string = c.req.valid("param").id;
+      const opts = renderOptions(c.req.valid("query"));
+      const run = await store.getRun(id);
+      if (!run) throw new ProblemError("not-found", `No run has id ${id}`);
+      if (run.status !== "succeeded" || !run.result) {
+        throw new ProblemError(
+          "conflict",
+          `Run ${id} has status ${run.status}; a chart exists once it has succeeded`,
+          {},
+          { "Cache-Control": "no-store" },
+        );
+      }
+      const etag = etagFor(`run-${run.id}-${run.result_digest}`, opts);
+      const nm = notModified(c, etag);
+      if (nm) return nm;
+      const svg = renderChart(runChartSpec(run), { ...opts, idPrefix: "r" + shortHash(etag) });
+      return svgResponse(c, svg, etag);
+    }) as never,
+  );
+}

@@ -1,0 +1,14 @@
+/**
+ * Content negotiation between JSON and CSV: `?format=` wins over `Accept`.
+ *
+ * @module
+ */
+import type { Context } from "hono";
+
+/** True when the client asked for CSV. */
+export function wantsCsv(c: Context): boolean {
+  const f = c.req.query("format");
+  if (f) return f.toLowerCase() === "csv";
+  const accept = (c.req.header("accept") ?? "").toLowerCase();
+  return accept.includes("text/csv") && !accept.includes("application/json");
+}

@@ -1,0 +1,62 @@
+/**
+ * One POST route per run kind, generated from `RUN_KINDS`: validate with the kind's zod
+ * schema (defaults filled), then hand over to the run machinery.
+ *
+ * @module
+ */
+import { createRoute, z } from "@hono/zod-openapi";
+import type { App } from "../app.ts";
+import type { RunKind } from "../runs/kind.ts";
+import type { RunService } from "../runs/service.ts";
+import { problems, RunSchema } from "../schemas/common.ts";
+import { requireJson } from "./media.ts";
+import { runView } from "./runs.ts";
+
+const PreferHeader = z.object({
+  prefer: z.string().optional().openapi({
+    description: "`respond-async` asks for a 202 and background execution",
+    example: "respond-async",
+  }),
+});
+
+export function registerKindRoutes(app: App, deps: { runs: RunService; kinds: RunKind[] }): void {
+  for (const kind of deps.kinds) {
+    const route = createRoute({
+      method: "post",
+      path: kind.path,
+      tags: [kind.tag],
+      summary: kind.summary,
+      description: kind.description,
+      middleware: [requireJson()] as const,
+      request: {
+        headers: PreferHeader,
+        body: { required: true, content: { "application/json": { schema: kind.request } } },
+      },
+      responses: {
+        201: {
+          description: "Run recorded (synchronous)",
+          content: { "application/json": { schema: RunSchema } },
+        },
+        202: {
+          description: "Run accepted; poll `Location` or its `/events`",
+          content: { "application/json": { schema: RunSchema } },
+        },
+        ...problems(400, 413, 415, 422, 500),
+      },
+    });
+    // deno-lint-ignore no-explicit-any
+    app.openapi(route, async (c: any) => {
+      const params = c.req.valid("json") as Record<string, unknown>;
+      const prefer = (c.req.header("prefer") ?? "").toLowerCase();
+      const outcome = await deps.runs.submit(kind, params, {
+        preferAsync: /\brespond-async\b/.test(prefer),
+      });
+      c.header("Location", `/v1/runs/${outcome.run.id}`);
+      if (outcome.status === 202) c.header("Preference-Applied", "respond-async");
+      return c.json(
+        { ...runView(outcome.run), saved_series: outcome.saved_series },
+        outcome.status,
+      );
+    });
+  }
+}

@@ -1,0 +1,130 @@
+/**
+ * Service routes: health, version, the OpenAPI document and the offline API reference page.
+ *
+ * @module
+ */
+import { createRoute, z } from "@hono/zod-openapi";
+import swaggerJs from "swagger-ui-dist/swagger-ui-bundle.js" with { type: "text" };
+import swaggerCss from "swagger-ui-dist/swagger-ui.css" with { type: "text" };
+import type { App } from "../app.ts";
+import { openApiDocument } from "../app.ts";
+import type { Config } from "../config.ts";
+import type { Store } from "../store/types.ts";
+import type { RunKind } from "../runs/kind.ts";
+import { SERVICE_VERSION } from "../version.ts";
+
+const Health = z.object({
+  status: z.enum(["ok", "degraded"]),
+  store: z.object({ kind: z.string(), reachable: z.boolean() }),
+}).openapi("Health");
+
+const Version = z.object({
+  service: z.string(),
+  api: z.string(),
+  deno: z.string(),
+  v8: z.string(),
+  typescript: z.string(),
+  store: z.string(),
+  algorithms: z.record(z.string(), z.string()).openapi({
+    description: "Algorithm version of each run kind",
+  }),
+}).openapi("Version");
+
+const DOCS_HTML = `<!doctype html>
+<html lang="en">
+<head>
+<meta charset="utf-8">
+<meta name="viewport" content="width=device-width, initial-scale=1">
+<title>sunlag API reference</title>
+<link rel="stylesheet" href="/v1/docs/swagger-ui.css">
+<style>body{margin:0} .topbar{display:none}</style>
+</head>
+<body>
+<div id="ui"></div>
+<script src="/v1/docs/swagger-ui-bundle.js"></script>
+<script>
+window.ui = SwaggerUIBundle({
+  url: "/v1/openapi.json",
+  dom_id: "#ui",
+  validatorUrl: null,
+  deepLinking: true,
+  tryItOutEnabled: true,
+});
+</script>
+</body>
+</html>`;
+
+export function registerMetaRoutes(
+  app: App,
+  deps: { store: Store; config: Config; kinds: RunKind[] },
+): void {
+  app.openapi(
+    createRoute({
+      method: "get",
+      path: "/v1/health",
+      tags: ["Service"],
+      summary: "Liveness and store reachability",
+      responses: {
+        200: {
+          description: "Service up, store reachable",
+          content: { "application/json": { schema: Health } },
+        },
+        503: {
+          description: "Store unreachable",
+          content: { "application/json": { schema: Health } },
+        },
+      },
+    }),
+    async (c) => {
+      let reachable = false;
+      try {
+        reachable = await deps.store.ping();
+      } catch {
+        reachable = false;
+      }
+      return c.json(
+        {
+          status: reachable ? "ok" as const : "degraded" as const,
+          store: { kind: deps.store.kind, reachable },
+        },
+        reachable ? 200 : 503,
+      );
+    },
+  );
+
+  app.openapi(
+    createRoute({
+      method: "get",
+      path: "/v1/version",
+      tags: ["Service"],
+      summary: "Service, algorithm, runtime and store versions",
+      responses: {
+        200: { description: "Versions", content: { "application/json": { schema: Version } } },
+      },
+    }),
+    (c) =>
+      c.json({
+        service: SERVICE_VERSION,
+        api: "v1",
+        deno: Deno.version.deno,
+        v8: Deno.version.v8,
+        typescript: Deno.version.typescript,
+        store: deps.store.kind,
+        algorithms: Object.fromEntries(deps.kinds.map((k) => [k.kind, k.algorithmVersion])),
+      }, 200),
+  );
+
+  app.get("/v1/openapi.json", (c) => c.json(openApiDocument(app)));
+
+  app.get("/v1/docs", (c) => c.html(DOCS_HTML));
+  app.get("/v1/docs/swagger-ui-bundle.js", (c) => {
+    c.header("Content-Type", "text/javascript; charset=utf-8");
+    c.header("Cache-Control", "public, max-age=86400");
+    return c.body(swaggerJs);
+  });
+  app.get("/v1/docs/swagger-ui.css", (c) => {
+    c.header("Content-Type", "text/css; charset=utf-8");
+    c.header("Cache-Control", "public, max-age=86400");
+    return c.body(swaggerCss);
+  });
+}

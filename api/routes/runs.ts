@@ -1,0 +1,318 @@
+/**
+ * Run routes: list, fetch, replay, cancel, progress events (SSE), outputs as JSON or CSV, and
+ * saving an output as a stored series with lineage.
+ *
+ * @module
+ */
+import { createRoute, z } from "@hono/zod-openapi";
+import { streamSSE } from "hono/streaming";
+import type { App } from "../app.ts";
+import type { RunRecord, Store } from "../store/types.ts";
+import type { RunService } from "../runs/service.ts";
+import type { OutputSeries } from "../runs/kind.ts";
+import { ProblemError } from "../problems.ts";
+import {
+  PageQuery,
+  problems,
+  RunSchema,
+  RunStatusSchema,
+  RunSummarySchema,
+} from "../schemas/common.ts";
+import { outputToCsv } from "../export/csv.ts";
+import { wantsCsv } from "./format.ts";
+import { immutableHeaders, notModified } from "./cache.ts";
+
+const FINAL = new Set(["succeeded", "failed", "cancelled"]);
+
+/** The public view of a run record. */
+export function runView(r: RunRecord) {
+  return r;
+}
+
+const RunId = z.object({
+  id: z.string().regex(/^[0-9a-f-]{36}$/, "must be a run id (UUIDv7)").openapi({
+    param: { name: "id", in: "path" },
+  }),
+});
+
+async function mustGetRun(store: Store, id: string): Promise<RunRecord> {
+  const r = await store.getRun(id);
+  if (!r) throw new ProblemError("not-found", `No run has id ${id}`);
+  return r;
+}
+
+export function registerRunRoutes(app: App, deps: { store: Store; runs: RunService }): void {
+  const { store, runs } = deps;
+
+  app.openapi(
+    createRoute({
+      method: "get",
+      path: "/v1/runs",
+      tags: ["Runs"],
+      summary: "List runs, newest first",
+      request: {
+        query: PageQuery.extend({
+          kind: z.string().optional(),
+          status: RunStatusSchema.optional(),
+        }),
+      },
+      responses: {
+        200: {
+          description: "A page of runs",
+          content: {
+            "application/json": {
+              schema: z.object({
+                items: z.array(RunSummarySchema),
+                total: z.number().int(),
+                limit: z.number().int(),
+                offset: z.number().int(),
+              }),
+            },
+          },
+        },
+        ...problems(422),
+      },
+    }),
+    async (c) => {
+      const q = c.req.valid("query");
+      const page = await store.listRuns(q);
+      return c.json({ ...page, limit: q.limit, offset: q.offset }, 200);
+    },
+  );
+
+  app.openapi(
+    createRoute({
+      method: "get",
+      path: "/v1/runs/{id}",
+      tags: ["Runs"],
+      summary: "One run: parameters, inputs, versions, seed, status, result and its digest",
+      request: { params: RunId },
+      responses: {
+        200: { description: "The run", content: { "application/json": { schema: RunSchema } } },
+        304: { description: "Not modified (finished runs are immutable)" },
+        ...problems(404, 422),
+      },
+    }),
+    async (c) => {
+      const run = await mustGetRun(store, c.req.valid("param").id);
+      if (FINAL.has(run.status)) {
+        const etag = `"run-${run.id}-${run.status}-${run.result_digest ?? "none"}"`;
+        const nm = notModified(c, etag);
+        if (nm) return nm;
+        for (const [k, v] of Object.entries(immutableHeaders(etag))) c.header(k, v);
+      } else {
+        c.header("Cache-Control", "no-store");
+      }
+      return c.json(runView(run), 200);
+    },
+  );
+
+  app.openapi(
+    createRoute({
+      method: "post",
+      path: "/v1/runs/{id}/replay",
+      tags: ["Runs"],
+      summary: "Recompute a run from its stored inputs and compare result digests",
+      request: { params: RunId },
+      responses: {
+        200: {
+          description: "Comparison of the stored and recomputed digests",
+          content: {
+            "application/json": {
+              schema: z.object({
+                run_id: z.string(),
+                kind: z.string(),
+                identical: z.boolean(),
+                stored_digest: z.string(),
+                replay_digest: z.string().nullable(),
+                algorithm_version: z.object({ recorded: z.string(), current: z.string() }),
+                algorithm_version_changed: z.boolean(),
+                service_version: z.object({ recorded: z.string(), current: z.string() }),
+                note: z.string(),
+              }).openapi("Replay"),
+            },
+          },
+        },
+        ...problems(404, 409, 422),
+      },
+    }),
+    async (c) => {
+      const run = await mustGetRun(store, c.req.valid("param").id);
+      const { result: _r, ...rep } = await runs.replay(run);
+      return c.json(rep as never, 200);
+    },
+  );
+
+  app.openapi(
+    createRoute({
+      method: "post",
+      path: "/v1/runs/{id}/cancel",
+      tags: ["Runs"],
+      summary: "Stop a queued or running run",
+      request: { params: RunId },
+      responses: {
+        200: {
+          description: "The cancelled run",
+          content: { "application/json": { schema: RunSchema } },
+        },
+        ...problems(404, 409),
+      },
+    }),
+    async (c) => {
+      const r = await runs.cancel(c.req.valid("param").id);
+      if (!r) throw new ProblemError("not-found", `No run has id ${c.req.valid("param").id}`);
+      return c.json(runView(r), 200);
+    },
+  );
+
+  app.openapi(
+    createRoute({
+      method: "get",
+      path: "/v1/runs/{id}/events",
+      tags: ["Runs"],
+      summary: "Server-Sent Events: progress (0–1, estimated seconds left) and the final status",
+      request: { params: RunId },
+      responses: {
+        200: {
+          description: "text/event-stream of `progress` and `status` events",
+          content: { "text/event-stream": { schema: z.string() } },
+        },
+        ...problems(404),
+      },
+    }),
+    // deno-lint-ignore no-explicit-any
+    (async (c: any) => {
+      const id = c.req.valid("param").id;
+      const first = await mustGetRun(store, id);
+      return streamSSE(c, async (stream) => {
+        const send = (event: string, data: unknown) =>
+          stream.writeSSE({ event, data: JSON.stringify(data) });
+        await send("status", { id, status: first.status, progress: first.progress });
+        if (FINAL.has(first.status)) return;
+        await new Promise<void>((resolve) => {
+          let closed = false;
+          const finish = () => {
+            if (closed) return;
+            closed = true;
+            unsubscribe?.();
+            clearInterval(timer);
+            resolve();
+          };
+          const unsubscribe = runs.subscribe(id, (e) => {
+            send(e.type, e).then(() => {
+              if (e.type === "status" && FINAL.has(e.status)) finish();
+            }, finish);
+          });
+          // Poll as a fallback (e.g. the run finished between the read and the subscription).
+          const timer = setInterval(async () => {
+            const r = await store.getRun(id);
+            if (!r || FINAL.has(r.status)) {
+              if (r) await send("status", { id, status: r.status, progress: r.progress });
+              finish();
+            }
+          }, 500);
+          stream.onAbort(finish);
+          if (!unsubscribe) {
+            store.getRun(id).then(async (r) => {
+              if (r && FINAL.has(r.status)) {
+                await send("status", { id, status: r.status, progress: r.progress });
+                finish();
+              }
+            });
+          }
+        });
+      });
+    }) as never,
+  );
+
+  const OutputParams = RunId.extend({
+    name: z.string().openapi({ param: { name: "name", in: "path" } }),
+  });
+
+  app.openapi(
+    createRoute({
+      method: "get",
+      path: "/v1/runs/{id}/outputs/{name}",
+      tags: ["Runs"],
+      summary:
+        "One series-like output of a run, as JSON or CSV (`Accept: text/csv` or `?format=csv`)",
+      request: {
+        params: OutputParams,
+        query: z.object({ format: z.enum(["json", "csv"]).optional() }),
+      },
+      responses: {
+        200: {
+          description: "The output series",
+          content: {
+            "application/json": { schema: z.record(z.string(), z.unknown()) },
+            "text/csv": { schema: z.string() },
+          },
+        },
+        304: { description: "Not modified" },
+        ...problems(404),
+      },
+    }),
+    // deno-lint-ignore no-explicit-any
+    (async (c: any) => {
+      const { id, name } = c.req.valid("param");
+      const run = await mustGetRun(store, id);
+      const o = (run.result?.outputs as Record<string, OutputSeries> | undefined)?.[name];
+      if (!o) {
+        const names = Object.keys((run.result?.outputs ?? {}) as object);
+        throw new ProblemError(
+          "not-found",
+          `Run ${id} has no output named "${name}"` +
+            (names.length ? `; outputs: ${names.join(", ")}` : "; it has no series outputs"),
+        );
+      }
+      const csv = wantsCsv(c);
+      const etag = `"run-${run.id}-${run.result_digest}-${name}-${csv ? "csv" : "json"}"`;
+      const nm = notModified(c, etag);
+      if (nm) return nm;
+      for (const [k, v] of Object.entries(immutableHeaders(etag))) c.header(k, v);
+      c.header("Vary", "Accept");
+      if (csv) {
+        c.header("Content-Type", "text/csv; charset=utf-8");
+        return c.body(outputToCsv(run, name, o));
+      }
+      return c.json({
+        run_id: run.id,
+        result_digest: run.result_digest,
+        cautions: run.result?.cautions ?? [],
+        ...o,
+      });
+    }) as never,
+  );
+
+  app.openapi(
+    createRoute({
+      method: "post",
+      path: "/v1/runs/{id}/outputs/{name}/series",
+      tags: ["Runs"],
+      summary: "Save an output of a run as a stored series with lineage (`derived_from`)",
+      request: { params: OutputParams },
+      responses: {
+        201: {
+          description: "Stored",
+          content: {
+            "application/json": { schema: z.object({ id: z.string(), derived_from: z.string() }) },
+          },
+        },
+        ...problems(404, 409),
+      },
+    }),
+    async (c) => {
+      const { id, name } = c.req.valid("param");
+      const run = await mustGetRun(store, id);
+      if (run.status !== "succeeded") {
+        throw new ProblemError(
+          "conflict",
+          `Run ${id} has status ${run.status}; it has no outputs yet`,
+        );
+      }
+      const sid = await runs.saveOutput(run, name);
+      c.header("Location", `/v1/series/${sid}`);
+      return c.json({ id: sid, derived_from: run.id }, 201);
+    },
+  );
+}

@@ -1,0 +1,170 @@
+/**
+ * A pool of Deno Web Workers that runs run-kind computations and named tasks off the request
+ * thread, so the HTTP server stays responsive during heavy Monte Carlo runs. A run executing
+ * in one worker can map a task over chunks (`ctx.parallel`); the chunks go to whichever
+ * workers are least loaded, including the one that asked (it is idle while it waits). Results
+ * come back in input order, so the numbers never depend on the pool size.
+ *
+ * @module
+ */
+import type { RunRecord, StoredSeries } from "../store/types.ts";
+import type { RunKind, RunResult } from "../runs/kind.ts";
+import { CancelledError, InputProblem } from "../runs/kind.ts";
+import type { ComputeExecutor } from "../runs/service.ts";
+import { type SerialisedError, transferablesOf } from "./messages.ts";
+
+interface Slot {
+  worker: Worker;
+  load: number;
+}
+
+interface Job {
+  slot: Slot;
+  resolve(v: unknown): void;
+  reject(e: unknown): void;
+  onProgress?(f: number): void;
+  onStart?(): void;
+  isRun: boolean;
+}
+
+function revive(e: SerialisedError): Error {
+  if (e.name === "InputProblem") return new InputProblem(e.pointer ?? "", e.message, e.extra);
+  if (e.name === "RangeError") return new RangeError(e.message);
+  if (e.name === "CancelledError") return new CancelledError();
+  return Object.assign(new Error(e.message), { name: e.name });
+}
+
+export class WorkerPool implements ComputeExecutor {
+  private readonly slots: Slot[] = [];
+  private readonly jobs = new Map<number, Job>();
+  private nextJob = 1;
+
+  constructor(readonly size: number) {
+    if (!Number.isInteger(size) || size < 1) {
+      throw new RangeError(
+        `Cannot create worker pool: size must be a positive integer, current value is ${size}`,
+      );
+    }
+    for (let i = 0; i < size; i++) {
+      const worker = new Worker(new URL("./worker.ts", import.meta.url).href, { type: "module" });
+      const slot: Slot = { worker, load: 0 };
+      worker.onmessage = (e) => this.onMessage(slot, e.data);
+      worker.onerror = (e) => {
+        e.preventDefault();
+        console.error(JSON.stringify({ level: "error", worker: i, error: e.message }));
+      };
+      this.slots.push(slot);
+    }
+  }
+
+  private pick(): Slot {
+    let best = this.slots[0];
+    for (const s of this.slots) if (s.load < best.load) best = s;
+    return best;
+  }
+
+  private onMessage(slot: Slot, m: Record<string, unknown>) {
+    const job = this.jobs.get(m.job as number);
+    if (!job) return;
+    switch (m.type) {
+      case "started":
+        job.onStart?.();
+        return;
+      case "progress":
+        job.onProgress?.(m.fraction as number);
+        return;
+      case "parallel": {
+        // The asking worker is idle while it waits for its chunks.
+        slot.load -= 1;
+        this.parallel(m.task as string, m.chunks as unknown[]).then(
+          (results) => {
+            slot.load += 1;
+            slot.worker.postMessage(
+              { type: "parallel-result", req: m.req, results },
+              transferablesOf(results),
+            );
+          },
+          (err) => {
+            slot.load += 1;
+            slot.worker.postMessage({
+              type: "parallel-result",
+              req: m.req,
+              error: {
+                name: err?.name ?? "Error",
+                message: err?.message ?? String(err),
+                pointer: err?.pointer,
+              },
+            });
+          },
+        );
+        return;
+      }
+      case "done":
+        this.jobs.delete(m.job as number);
+        slot.load -= 1;
+        job.resolve(m.result);
+        return;
+      case "error":
+        this.jobs.delete(m.job as number);
+        slot.load -= 1;
+        job.reject(revive(m.error as SerialisedError));
+        return;
+    }
+  }
+
+  compute(
+    kind: RunKind,
+    params: Record<string, unknown>,
+    inputs: { series: Record<string, StoredSeries>; runs: Record<string, RunRecord> },
+    hooks: { progress(f: number): void; isCancelled(): boolean; onStart(): void },
+  ): Promise<RunResult> {
+    const id = this.nextJob++;
+    const slot = this.pick();
+    slot.load += 1;
+    return new Promise<RunResult>((resolve, reject) => {
+      const timer = setInterval(() => {
+        if (hooks.isCancelled()) {
+          slot.worker.postMessage({ type: "cancel", job: id });
+          clearInterval(timer);
+        }
+      }, 100);
+      this.jobs.set(id, {
+        slot,
+        isRun: true,
+        resolve: (v) => {
+          clearInterval(timer);
+          resolve(v as RunResult);
+        },
+        reject: (e) => {
+          clearInterval(timer);
+          reject(e);
+        },
+        onProgress: hooks.progress,
+        onStart: hooks.onStart,
+      });
+      slot.worker.postMessage({ type: "run", job: id, kind: kind.kind, params, inputs });
+    });
+  }
+
+  parallel<I, O>(task: string, inputs: I[], options: { transfer?: boolean } = {}): Promise<O[]> {
+    return Promise.all(inputs.map((input) =>
+      new Promise<O>((resolve, reject) => {
+        const id = this.nextJob++;
+        const slot = this.pick();
+        slot.load += 1;
+        this.jobs.set(id, { slot, isRun: false, resolve: resolve as (v: unknown) => void, reject });
+        slot.worker.postMessage(
+          { type: "task", job: id, task, input },
+          options.transfer ? transferablesOf(input) : [],
+        );
+      })
+    ));
+  }
+
+  /** Stop every worker; pending jobs are rejected. */
+  terminate(): void {
+    for (const s of this.slots) s.worker.terminate();
+    for (const j of this.jobs.values()) j.reject(new Error("worker pool terminated"));
+    this.jobs.clear();
+  }
+}

@@ -1,0 +1,76 @@
+/**
+ * A compute worker: runs whole run-kind computations and named tasks off the request thread.
+ * Messages (structured clone; typed-array buffers in task results are transferred):
+ *
+ * - in  `{ type: "run", job, kind, params, inputs }` → out `started`, `progress`, `parallel`
+ *   (a request to map a task over chunks on the pool), then `done` or `error`
+ * - in  `{ type: "task", job, task, input }` → out `done` or `error`
+ * - in  `{ type: "cancel", job }`; in `{ type: "parallel-result", job, req, results | error }`
+ *
+ * @module
+ */
+/// <reference lib="deno.worker" />
+import { RUN_KINDS } from "../kinds/registry.ts";
+import { TASKS } from "./tasks.ts";
+import { makeContext } from "../runs/service.ts";
+import { serialiseError, transferablesOf } from "./messages.ts";
+
+const cancelled = new Set<number>();
+const waiting = new Map<number, { resolve(v: unknown[]): void; reject(e: unknown): void }>();
+let nextReq = 1;
+
+self.onmessage = async (e: MessageEvent) => {
+  const m = e.data;
+  if (m.type === "cancel") {
+    cancelled.add(m.job);
+    return;
+  }
+  if (m.type === "parallel-result") {
+    const w = waiting.get(m.req);
+    waiting.delete(m.req);
+    if (m.error) w?.reject(Object.assign(new Error(m.error.message), m.error));
+    else w?.resolve(m.results);
+    return;
+  }
+  if (m.type === "task") {
+    try {
+      const fn = TASKS[m.task];
+      if (!fn) throw new Error(`unknown worker task "${m.task}"`);
+      const result = fn(m.input);
+      self.postMessage({ type: "done", job: m.job, result }, transferablesOf(result));
+    } catch (err) {
+      self.postMessage({ type: "error", job: m.job, error: serialiseError(err) });
+    }
+    return;
+  }
+  if (m.type === "run") {
+    const job = m.job as number;
+    self.postMessage({ type: "started", job });
+    try {
+      const kind = RUN_KINDS.find((k) => k.kind === m.kind);
+      if (!kind) throw new Error(`unknown run kind "${m.kind}"`);
+      let last = 0;
+      const ctx = makeContext(m.inputs, {
+        progress: (f) => {
+          const t = performance.now();
+          if (t - last > 50 || f >= 1) {
+            last = t;
+            self.postMessage({ type: "progress", job, fraction: f });
+          }
+        },
+        isCancelled: () => cancelled.has(job),
+      }, (task, chunks) =>
+        new Promise((resolve, reject) => {
+          const req = nextReq++;
+          waiting.set(req, { resolve: resolve as (v: unknown[]) => void, reject });
+          self.postMessage({ type: "parallel", job, req, task, chunks });
+        }));
+      const result = await kind.compute(m.params, ctx);
+      self.postMessage({ type: "done", job, result });
+    } catch (err) {
+      self.postMessage({ type: "error", job, error: serialiseError(err) });
+    } finally {
+      cancelled.delete(job);
+    }
+  }
+};

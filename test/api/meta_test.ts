@@ -1,0 +1,59 @@
+import assert from "node:assert/strict";
+import { Validator } from "@seriousme/openapi-schema-validator";
+import { makeTestApp } from "./helpers.ts";
+import { renderOpenApi } from "../../api/openapi_write.ts";
+
+Deno.test("GET /v1/health reports the store as reachable", async () => {
+  const svc = await makeTestApp();
+  const res = await svc.get("/v1/health");
+  assert.equal(res.status, 200);
+  assert.deepEqual(await res.json(), { status: "ok", store: { kind: "sqlite", reachable: true } });
+  await svc.close();
+});
+
+Deno.test("GET /v1/version lists service, Deno, store and per-kind algorithm versions", async () => {
+  const svc = await makeTestApp();
+  const body = await (await svc.get("/v1/version")).json();
+  assert.equal(body.deno, Deno.version.deno);
+  assert.equal(body.store, "sqlite");
+  assert.equal(typeof body.service, "string");
+  for (const k of svc.runs.kinds) assert.equal(body.algorithms[k.kind], k.algorithmVersion);
+  await svc.close();
+});
+
+Deno.test("openapi: the committed openapi/openapi.json equals the generated document", async () => {
+  const committed = await Deno.readTextFile(new URL("../../openapi/openapi.json", import.meta.url));
+  const generated = await renderOpenApi();
+  assert.equal(
+    committed,
+    generated,
+    "openapi/openapi.json drifted from the zod schemas: run `deno task openapi`",
+  );
+});
+
+Deno.test("openapi: the served document is valid OpenAPI 3.1", async () => {
+  const svc = await makeTestApp();
+  const doc = await (await svc.get("/v1/openapi.json")).json();
+  assert.equal(doc.openapi, "3.1.0");
+  const validator = new Validator();
+  const result = await validator.validate(doc);
+  assert.ok(result.valid, JSON.stringify(result.errors, null, 2));
+  assert.equal(validator.version, "3.1");
+  await svc.close();
+});
+
+Deno.test("GET /v1/docs serves the API reference with no outside requests", async () => {
+  const svc = await makeTestApp();
+  const html = await (await svc.get("/v1/docs")).text();
+  assert.match(html, /swagger-ui-bundle\.js/);
+  const urls = [...html.matchAll(/(?:src|href)="([^"]+)"/g)].map((m) => m[1]);
+  for (const u of urls) assert.ok(u.startsWith("/v1/"), `asset ${u} served by the service`);
+  assert.ok(!/https?:\/\//.test(html.replace(/<!doctype html>/i, "")), "no absolute URLs");
+  const js = await svc.get("/v1/docs/swagger-ui-bundle.js");
+  assert.equal(js.status, 200);
+  assert.ok((await js.text()).length > 100_000);
+  const css = await svc.get("/v1/docs/swagger-ui.css");
+  assert.equal(css.status, 200);
+  await css.body?.cancel();
+  await svc.close();
+});
