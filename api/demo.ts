@@ -1,0 +1,136 @@
+/**
+ * Loading the SYNTHETIC demo scenario (fixtures/demo/, made by `deno task demo`) into a store.
+ * `deno task start` calls {@link loadDemo} on an empty store so every README example has data.
+ *
+ * Each CSV named in fixtures/demo/manifest.json goes through the same text ingester as an
+ * upload (`ingestText` with the manifest's column names and metadata), so a demo series has
+ * exactly the id the same file would get from `POST /v1/series`.
+ *
+ * @module
+ */
+import { contentId, ingestText } from "./ingest/mod.ts";
+import type { TextIngestOptions } from "./ingest/mod.ts";
+import type { Store, StoredSeries } from "./store/types.ts";
+
+/** The ingestion functions the loader uses (replaceable in tests). */
+export interface DemoIngest {
+  ingestText: typeof ingestText;
+  contentId: typeof contentId;
+}
+
+/** One CSV entry of the demo manifest. */
+export interface DemoFileEntry {
+  file: string;
+  format: "csv";
+  delimiter: string;
+  time_column: string;
+  value_column: string;
+  uncertainty_column?: string;
+  upload: {
+    name: string;
+    quantity: string;
+    units: string;
+    version: string | null;
+    description: string;
+    source: string;
+  };
+}
+
+/** Where the demo files live. */
+export const DEMO_DIR: URL = new URL("../fixtures/demo/", import.meta.url);
+
+const DELIMITERS: Record<string, TextIngestOptions["delimiter"]> = {
+  ",": "comma",
+  ";": "semicolon",
+  "\t": "tab",
+};
+
+/** The manifest's CSV entries, in manifest order. */
+export async function demoFileEntries(dir: URL = DEMO_DIR): Promise<DemoFileEntry[]> {
+  const manifest = JSON.parse(await Deno.readTextFile(new URL("manifest.json", dir)));
+  return (manifest.files as { format: string }[])
+    .filter((f): f is DemoFileEntry => f.format === "csv");
+}
+
+/** The ingest options the loader passes for one manifest entry. */
+export function demoIngestOptions(entry: DemoFileEntry): TextIngestOptions {
+  return {
+    name: entry.upload.name,
+    quantity: entry.upload.quantity,
+    units: entry.upload.units,
+    description: entry.upload.description,
+    source: entry.upload.source,
+    version: entry.upload.version,
+    time: entry.time_column,
+    value: entry.value_column,
+    uncertainty: entry.uncertainty_column,
+    delimiter: DELIMITERS[entry.delimiter] ?? "auto",
+    time_format: "iso",
+  };
+}
+
+/**
+ * Read and ingest every demo series (nothing is stored).
+ *
+ * @throws {Error} when a demo file does not ingest (a broken checkout), naming the file and
+ *   the first problems
+ */
+export async function readDemoSeries(
+  ingest: DemoIngest = { ingestText, contentId },
+  dir: URL = DEMO_DIR,
+): Promise<{ file: string; series: StoredSeries }[]> {
+  const out: { file: string; series: StoredSeries }[] = [];
+  for (const entry of await demoFileEntries(dir)) {
+    const text = await Deno.readTextFile(new URL(entry.file, dir));
+    const r = ingest.ingestText(text, demoIngestOptions(entry));
+    if (!r.ok) {
+      const first = r.errors.slice(0, 3).map((e) =>
+        `${e.row ? `line ${e.row}: ` : ""}${e.message}`
+      );
+      throw new Error(`Cannot load demo file ${entry.file}: ${first.join("; ")}`);
+    }
+    const n = r.series;
+    out.push({
+      file: entry.file,
+      series: {
+        id: await ingest.contentId(n),
+        name: n.name,
+        quantity: n.quantity,
+        units: n.units,
+        description: n.description,
+        source: n.source,
+        version: n.version,
+        resolution: n.resolution,
+        n: n.time.length,
+        start: n.time[0],
+        end: n.time[n.time.length - 1],
+        derived_from: null,
+        created_at: new Date().toISOString(),
+        time: n.time,
+        value: n.value,
+        uncertainty: n.uncertainty,
+      },
+    });
+  }
+  return out;
+}
+
+/**
+ * Store every demo series and return their ids in manifest order. Idempotent: series already
+ * present (same content, same id) are left as they are.
+ *
+ * @param store the store to fill (normally an empty one)
+ * @param ingest the ingester and content-id functions (default: api/ingest)
+ * @returns the stored ids
+ */
+export async function loadDemo(
+  store: Store,
+  ingest: DemoIngest = { ingestText, contentId },
+): Promise<string[]> {
+  const ids: string[] = [];
+  for (const { series } of await readDemoSeries(ingest)) {
+    await store.putSeries(series);
+    ids.push(series.id);
+  }
+  return ids;
+}

@@ -1,0 +1,78 @@
+import assert from "node:assert/strict";
+import { demoFileEntries, loadDemo, readDemoSeries } from "../../api/demo.ts";
+import { openStoreFromSpec } from "../../api/store/mod.ts";
+import { contentId, ingestText } from "../../api/ingest/mod.ts";
+
+Deno.test("loadDemo() stores every demo series of the manifest and returns their ids", async (t) => {
+  const store = await openStoreFromSpec("sqlite::memory:");
+  try {
+    const entries = await demoFileEntries();
+    const ids = await loadDemo(store);
+    assert.equal(ids.length, entries.length);
+    assert.equal(new Set(ids).size, ids.length);
+    const page = await store.listSeries({ limit: 100, offset: 0 });
+    assert.equal(page.total, ids.length);
+
+    await t.step("series carry the manifest's metadata and every row of their file", async () => {
+      for (const [i, entry] of entries.entries()) {
+        const s = (await store.getSeries(ids[i]))!;
+        assert.equal(s.name, entry.upload.name);
+        assert.equal(s.quantity, entry.upload.quantity);
+        assert.equal(s.version, entry.upload.version);
+        assert.match(s.name, /SYNTHETIC/);
+        const text = await Deno.readTextFile(
+          new URL(`../../fixtures/demo/${entry.file}`, import.meta.url),
+        );
+        const rows = text.split("\n").filter((l) => l !== "" && !l.startsWith("#")).slice(1);
+        assert.equal(s.n, rows.length, entry.file);
+        // the file's own decimal_year column (6 decimals) agrees with the ingested time axis
+        const header = text.split("\n").find((l) => !l.startsWith("#"))!.split(",");
+        const iv = header.indexOf(entry.value_column), it = header.indexOf("decimal_year");
+        for (const k of [0, Math.floor(rows.length / 2), rows.length - 1]) {
+          const cells = rows[k].split(",");
+          assert.equal(s.value[k], Number(cells[iv]));
+          assert.ok(Math.abs(s.time[k] - Number(cells[it])) < 5e-7);
+        }
+      }
+    });
+
+    await t.step(
+      "sunspot numbers are version 2 with uncertainties; TSI daily has gaps",
+      async () => {
+        const ss = (await store.getSeries(ids[0]))!;
+        assert.equal(ss.quantity, "sunspot_number");
+        assert.equal(ss.version, "2");
+        assert.equal(ss.resolution, "monthly");
+        assert.ok(ss.uncertainty && ss.uncertainty.length === ss.n);
+        const tsiIndex = entries.findIndex((e) => e.file === "tsi_daily.csv");
+        const tsi = (await store.getSeries(ids[tsiIndex]))!;
+        assert.equal(tsi.resolution, "daily");
+        assert.ok(tsi.n < 17532 && tsi.n > 16000);
+      },
+    );
+
+    await t.step("loading again changes nothing (content ids)", async () => {
+      const again = await loadDemo(store);
+      assert.deepEqual(again, ids);
+      assert.equal((await store.listSeries({ limit: 100, offset: 0 })).total, ids.length);
+    });
+  } finally {
+    await store.close();
+  }
+});
+
+Deno.test("readDemoSeries() names the file when a demo file does not ingest", async () => {
+  const broken = {
+    ingestText: (_: Uint8Array | string) => ({
+      ok: false as const,
+      errors: [{ pointer: "", message: "not a number", row: 7 }],
+    }),
+    contentId,
+  };
+  await assert.rejects(
+    () => readDemoSeries(broken),
+    /sunspot_number_monthly\.csv: line 7: not a number/,
+  );
+  // the real ingester accepts every file
+  assert.equal((await readDemoSeries({ ingestText, contentId })).length, 8);
+});
