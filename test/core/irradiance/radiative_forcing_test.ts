@@ -1,0 +1,35 @@
+import assert from "node:assert/strict";
+import { forcingSeries, radiativeForcing } from "../../../core/irradiance/mod.ts";
+
+Deno.test("radiativeForcing() reproduces shared/SCIENCE.md §8", () => {
+  // IPCC AR6 WG1 §7.3.4.4 (C): ΔF = ΔTSI (1 − α)/4, α = 0.29; D: 1 W m-2 → 0.1775
+  assert.ok(Math.abs(radiativeForcing(1) - 0.1775) < 1e-12);
+  // arithmetic without any model: −4.5 W m-2 dip (Chapman et al. 2004 size) → −0.79875
+  assert.ok(Math.abs(radiativeForcing(-4.5) + 0.79875) < 1e-12);
+  assert.ok(Math.abs(radiativeForcing(1, 0.3) - 0.175) < 1e-12);
+  // a solar-cycle amplitude of ~1.1 W m-2 gives ~0.2 W m-2 (IPCC AR4 §6.6.3.1, C)
+  assert.ok(Math.abs(radiativeForcing(1.1) - 0.2) < 0.01);
+});
+
+Deno.test("radiativeForcing() rejects NaN and bad albedo", () => {
+  assert.throws(() => radiativeForcing(NaN), RangeError);
+  assert.throws(() => radiativeForcing(1, 1), /albedo must be in \[0, 1\)/);
+  assert.throws(() => radiativeForcing(1, -0.1), RangeError);
+});
+
+Deno.test("forcingSeries() references the period mean and carries uncertainty", () => {
+  const t = [2000.5, 2001.5, 2002.5, 2003.5];
+  const tsi = [1361, 1361.2, 1362, NaN];
+  const sd = [0.1, 0.3, 0.2, 0.2];
+  const f = forcingSeries(t, tsi, sd, { start: 2000, end: 2002 });
+  assert.ok(Math.abs(f.referenceTsi - 1361.1) < 1e-12);
+  assert.equal(f.referencePoints, 2);
+  assert.ok(Math.abs(f.value[2] - 0.9 * 0.1775) < 1e-12);
+  assert.ok(Number.isNaN(f.value[3]));
+  // σ_F = 0.1775 √(σ² + σ_ref²), σ_ref = mean σ in the reference = 0.2
+  assert.ok(Math.abs(f.sd![2] - 0.1775 * Math.sqrt(0.04 + 0.04)) < 1e-12);
+  assert.throws(
+    () => forcingSeries(t, tsi, null, { start: 1900, end: 1910 }),
+    /reference period \[1900, 1910\) holds no TSI value/,
+  );
+});
