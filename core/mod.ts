@@ -5,7 +5,7 @@
  */
 export * from "./random/mod.ts";
 export * from "./time/mod.ts";
-export * from "./series/quantities.ts";
+export * from "./series/mod.ts";
 export * from "./cycles/mod.ts";
 export * from "./spectral/mod.ts";
 export * from "./stats/mod.ts";

@@ -1,0 +1,252 @@
+/**
+ * Calendar-period means with a minimum-coverage rule: daily → monthly → annual.
+ *
+ * @module
+ */
+import { type CalendarResolution, inferResolution, type TimeResolution } from "../time/mod.ts";
+import { periodKey, periodOfKey } from "./period_key.ts";
+
+/** Coverage thresholds of {@link resampleMeans}. */
+export interface ResampleOptions {
+  /** Resolution of the input. @default inferred with inferResolution */
+  from?: TimeResolution;
+  /** One-sigma uncertainty per input point (same length as value), or null. @default null */
+  uncertainty?: ArrayLike<number> | null;
+  /** Daily values needed for a monthly mean, 1..31. @default 20 */
+  minDaysPerMonth?: number;
+  /** Monthly means needed for an annual mean, 1..12. @default 10 */
+  minMonthsPerYear?: number;
+  /** Points needed per period when the input is irregular. @default 1 */
+  minPointsPerPeriod?: number;
+}
+
+/** Means per calendar period, every period from the first to the last holding data. */
+export interface PeriodMeans {
+  resolution: CalendarResolution;
+  /** Period middles, decimal years. */
+  time: Float64Array;
+  /** Period bounds, decimal years (end exclusive). */
+  start: Float64Array;
+  end: Float64Array;
+  /** Mean per period; NaN marks a gap: a period that failed coverage (`covered[i] === 0`). */
+  value: Float64Array;
+  /** Uncertainty of each mean, √(Σσ²)/n (independent errors), NaN in gaps; null without input σ. */
+  uncertainty: Float64Array | null;
+  /** Units averaged in the last stage: days (daily→monthly), months (→annual), or points. */
+  count: Int32Array;
+  /** The count a period needs to be covered. */
+  required: number;
+  /** 1 where `count >= required`, else 0. */
+  covered: Uint8Array;
+  /** Input points inside each period. */
+  points: Int32Array;
+  /** How the means were formed, in words. */
+  rule: string;
+}
+
+const RANK: Record<CalendarResolution, number> = { daily: 0, monthly: 1, annual: 2 };
+
+/**
+ * Resample a series to calendar-period means with a minimum-coverage rule.
+ *
+ * Method (common practice for station records, e.g. "at least 20 days for a monthly mean,
+ * at least 10 months for an annual mean"):
+ * - daily → monthly: the mean of the daily values in each calendar month, kept when the month
+ *   has at least `minDaysPerMonth` of them;
+ * - monthly → annual: the mean of the monthly values in each year, kept when the year has at
+ *   least `minMonthsPerYear` of them;
+ * - daily → annual: in two stages (monthly means with the day rule, then annual means of the
+ *   covered months with the month rule), so an unevenly sampled year is not biased towards
+ *   its best-sampled months;
+ * - same resolution, or irregular input: the mean of the points in each period, kept with at
+ *   least 1 point (same resolution) or `minPointsPerPeriod` points (irregular).
+ * A period failing its rule is a gap (NaN, `covered` 0), never a mean of too few values. The
+ * uncertainty of a mean assumes independent errors and excludes sampling error.
+ *
+ * @param series `{ time, value }`: decimal years strictly increasing, finite values, ≥ 2 points
+ * @param to target resolution: `daily`, `monthly` or `annual`, not finer than the input
+ * @param options input resolution, uncertainty and coverage thresholds
+ * @returns means, bounds, counts and coverage per period
+ * @throws {RangeError} for a target finer than the input, thresholds out of range, or bad input
+ * @example
+ * ```ts
+ * import { resampleMeans } from "./resample_means.ts";
+ * import { decimalYear } from "../time/mod.ts";
+ * import assert from "node:assert/strict";
+ * // 25 days of January 2001 (covered) and 10 days of February (a gap)
+ * const days = [...Array(25).keys()].map((d) => decimalYear(2001, 1, d + 1, 0.5))
+ *   .concat([...Array(10).keys()].map((d) => decimalYear(2001, 2, d + 1, 0.5)));
+ * const m = resampleMeans({ time: days, value: days.map((_, i) => i) }, "monthly");
+ * assert.deepEqual(Array.from(m.count), [25, 10]);
+ * assert.deepEqual(Array.from(m.covered), [1, 0]);
+ * assert.equal(m.value[0], 12);
+ * assert.ok(Number.isNaN(m.value[1]));
+ * ```
+ */
+export function resampleMeans(
+  series: { time: ArrayLike<number>; value: ArrayLike<number> },
+  to: CalendarResolution,
+  options: ResampleOptions = {},
+): PeriodMeans {
+  const { time, value } = series;
+  const n = time.length;
+  if (!(to in RANK)) {
+    throw new RangeError(`Cannot resample: target must be daily, monthly or annual, got ${to}`);
+  }
+  if (value.length !== n) {
+    throw new RangeError(
+      `Cannot resample: value has ${value.length} entries but time has ${n}`,
+    );
+  }
+  const unc = options.uncertainty ?? null;
+  if (unc && unc.length !== n) {
+    throw new RangeError(
+      `Cannot resample: uncertainty has ${unc.length} entries but time has ${n}`,
+    );
+  }
+  for (let i = 0; i < n; i++) {
+    if (!Number.isFinite(value[i])) {
+      throw new RangeError(`Cannot resample: value[${i}] is not finite (${value[i]})`);
+    }
+  }
+  if (n < 2) throw new RangeError(`Cannot resample: needs at least 2 points, got ${n}`);
+  const from = options.from ?? inferResolution(time);
+  const minDays = checkInt(options.minDaysPerMonth ?? 20, "minDaysPerMonth", 1, 31);
+  const minMonths = checkInt(options.minMonthsPerYear ?? 10, "minMonthsPerYear", 1, 12);
+  const minPoints = checkInt(options.minPointsPerPeriod ?? 1, "minPointsPerPeriod", 1, 1_000_000);
+  if (from !== "irregular" && RANK[from] > RANK[to]) {
+    throw new RangeError(
+      `Cannot resample ${from} data to ${to}: resampling only averages into longer periods`,
+    );
+  }
+
+  if (from === "daily" && to === "annual") {
+    const rule = `annual means of monthly means; a month needs ${minDays} daily values, ` +
+      `a year ${minMonths} covered months`;
+    const monthly = bin(time, value, unc, "monthly", minDays);
+    const keep = [...monthly.covered.keys()].filter((i) => monthly.covered[i] === 1);
+    const annual = keep.length === 0 ? null : bin(
+      keep.map((i) => monthly.time[i]),
+      keep.map((i) => monthly.value[i]),
+      monthly.uncertainty ? keep.map((i) => monthly.uncertainty![i]) : null,
+      "annual",
+      minMonths,
+    );
+    // the periods span every year holding input points, not only years with covered months
+    return merge(bin(time, value, unc, "annual", 1), annual, minMonths, rule);
+  }
+  const required = from === "irregular"
+    ? minPoints
+    : from === to
+    ? 1
+    : from === "daily"
+    ? minDays
+    : minMonths;
+  const unit = from === "irregular" || from === to
+    ? "points"
+    : from === "daily"
+    ? "daily values"
+    : "monthly values";
+  const out = bin(time, value, unc, to, required);
+  out.rule = `${to} means of ${from} data; a period needs at least ${required} ${unit}`;
+  return out;
+}
+
+function bin(
+  time: ArrayLike<number>,
+  value: ArrayLike<number>,
+  unc: ArrayLike<number> | null,
+  to: CalendarResolution,
+  required: number,
+): PeriodMeans {
+  const n = time.length;
+  const keys = new Float64Array(n);
+  for (let i = 0; i < n; i++) {
+    if (!Number.isFinite(time[i])) {
+      throw new RangeError(`Cannot resample: time[${i}] is not finite (${time[i]})`);
+    }
+    keys[i] = periodKey(time[i], to);
+  }
+  let k0 = Infinity, k1 = -Infinity;
+  for (let i = 0; i < n; i++) {
+    if (keys[i] < k0) k0 = keys[i];
+    if (keys[i] > k1) k1 = keys[i];
+  }
+  const m = n === 0 ? 0 : k1 - k0 + 1;
+  if (m > 50_000_000) throw new RangeError(`Cannot resample: ${m} periods is too many`);
+  const sum = new Float64Array(m), sq = unc ? new Float64Array(m) : null;
+  const count = new Int32Array(m);
+  for (let i = 0; i < n; i++) {
+    const j = keys[i] - k0;
+    sum[j] += value[i];
+    if (sq && unc) sq[j] += unc[i] * unc[i];
+    count[j]++;
+  }
+  const out: PeriodMeans = {
+    resolution: to,
+    time: new Float64Array(m),
+    start: new Float64Array(m),
+    end: new Float64Array(m),
+    value: new Float64Array(m),
+    uncertainty: sq ? new Float64Array(m) : null,
+    count,
+    required,
+    covered: new Uint8Array(m),
+    points: Int32Array.from(count),
+    rule: "",
+  };
+  for (let j = 0; j < m; j++) {
+    const p = periodOfKey(k0 + j, to);
+    out.time[j] = p.middle;
+    out.start[j] = p.start;
+    out.end[j] = p.end;
+    const ok = count[j] >= required;
+    out.covered[j] = ok ? 1 : 0;
+    out.value[j] = ok ? sum[j] / count[j] : NaN;
+    if (out.uncertainty && sq) out.uncertainty[j] = ok ? Math.sqrt(sq[j]) / count[j] : NaN;
+  }
+  return out;
+}
+
+/** Annual periods of `all` (every year with input) carrying the two-stage means of `annual`. */
+function merge(
+  all: PeriodMeans,
+  annual: PeriodMeans | null,
+  required: number,
+  rule: string,
+): PeriodMeans {
+  const at = new Map<number, number>();
+  annual?.time.forEach((t, j) => at.set(t, j));
+  const m = all.time.length;
+  const out: PeriodMeans = {
+    ...all,
+    value: new Float64Array(m),
+    uncertainty: all.uncertainty ? new Float64Array(m) : null,
+    count: new Int32Array(m),
+    covered: new Uint8Array(m),
+    required,
+    rule,
+  };
+  for (let j = 0; j < m; j++) {
+    const k = at.get(all.time[j]);
+    if (k === undefined || annual === null) {
+      out.value[j] = NaN;
+      if (out.uncertainty) out.uncertainty[j] = NaN;
+      continue;
+    }
+    out.count[j] = annual.count[k];
+    out.covered[j] = annual.covered[k];
+    out.value[j] = annual.value[k];
+    if (out.uncertainty) out.uncertainty[j] = annual.uncertainty ? annual.uncertainty[k] : NaN;
+  }
+  return out;
+}
+
+function checkInt(v: number, name: string, lo: number, hi: number): number {
+  if (!Number.isInteger(v) || v < lo || v > hi) {
+    throw new RangeError(
+      `Cannot resample: ${name} must be an integer in ${lo}..${hi}, current value is ${v}`,
+    );
+  }
+  return v;
+}
