@@ -1,0 +1,118 @@
+/**
+ * SVG text primitives: XML escaping, element strings, number formatting for coordinates and
+ * a rough text-width estimate for layout. No DOM: charts are built as strings.
+ *
+ * @module
+ */
+
+/** Characters XML 1.0 forbids (C0 controls but tab/newline/return, U+FFFE, U+FFFF). */
+// deno-lint-ignore no-control-regex
+const INVALID_XML = /[\u0000-\u0008\u000B\u000C\u000E-\u001F\uFFFE\uFFFF]/g;
+/** Unpaired UTF-16 surrogates, which are not characters and break XML parsers. */
+const LONE_SURROGATE = /[\uD800-\uDBFF](?![\uDC00-\uDFFF])|(?<![\uD800-\uDBFF])[\uDC00-\uDFFF]/g;
+
+/**
+ * Escape text for XML character data or a double-quoted attribute value (XML 1.0 §2.4):
+ * `& < > " '` become entities and characters XML forbids are replaced by U+FFFD.
+ *
+ * @example
+ * ```ts
+ * import { escapeXml } from "./svg.ts";
+ * import assert from "node:assert/strict";
+ * assert.equal(escapeXml(`a < b & "c"`), "a &lt; b &amp; &quot;c&quot;");
+ * assert.equal(escapeXml("bell\u0007"), "bell\uFFFD");
+ * ```
+ */
+export function escapeXml(text: string): string {
+  return text
+    .replace(INVALID_XML, "\uFFFD")
+    .replace(LONE_SURROGATE, "\uFFFD")
+    .replace(/&/g, "&amp;")
+    .replace(/</g, "&lt;")
+    .replace(/>/g, "&gt;")
+    .replace(/"/g, "&quot;")
+    .replace(/'/g, "&apos;");
+}
+
+/** Attribute values: strings are escaped, numbers rounded for compact output. */
+export type Attrs = Record<string, string | number | undefined | null | false>;
+
+/** A coordinate or length rounded to 2 decimals, without trailing zeros. */
+export function num(v: number): string {
+  const r = Math.round(v * 100) / 100;
+  return Object.is(r, -0) ? "0" : String(r);
+}
+
+function attrs(a: Attrs): string {
+  let out = "";
+  for (const [k, v] of Object.entries(a)) {
+    if (v === undefined || v === null || v === false) continue;
+    out += ` ${k}="${typeof v === "number" ? num(v) : escapeXml(v)}"`;
+  }
+  return out;
+}
+
+/**
+ * One SVG element. `children` is raw markup (already escaped) or omitted for an empty element.
+ *
+ * @example
+ * ```ts
+ * import { el } from "./svg.ts";
+ * import assert from "node:assert/strict";
+ * assert.equal(el("rect", { x: 1.234, width: 5 }), `<rect x="1.23" width="5"/>`);
+ * assert.equal(el("g", { class: "a" }, "<p/>"), `<g class="a"><p/></g>`);
+ * ```
+ */
+export function el(name: string, a: Attrs, children?: string): string {
+  return children === undefined || children === ""
+    ? `<${name}${attrs(a)}/>`
+    : `<${name}${attrs(a)}>${children}</${name}>`;
+}
+
+/** A `<text>` element whose content is escaped. */
+export function text(a: Attrs, content: string): string {
+  return `<text${attrs(a)}>${escapeXml(content)}</text>`;
+}
+
+/**
+ * Estimated rendered width of a text in px for a sans-serif system font: 0.56 em per
+ * character on average, a little less for digits and narrow letters. Only used for layout
+ * (margins, legend wrapping), so an estimate is enough.
+ */
+export function textWidth(s: string, fontSize: number): number {
+  let w = 0;
+  for (const ch of s) {
+    if ("il.,:;|!'ⁱ ".includes(ch)) w += 0.3;
+    else if ("mwMW".includes(ch)) w += 0.85;
+    else if (/[0-9]/.test(ch)) w += 0.56;
+    else if (/[A-Z]/.test(ch)) w += 0.66;
+    else w += 0.54;
+  }
+  return w * fontSize;
+}
+
+/** Break a text into lines no wider than `maxWidth` px (word wrap; long words are kept). */
+export function wrapText(s: string, fontSize: number, maxWidth: number): string[] {
+  const words = s.split(/\s+/).filter(Boolean);
+  const lines: string[] = [];
+  let cur = "";
+  for (const w of words) {
+    const next = cur ? `${cur} ${w}` : w;
+    if (cur && textWidth(next, fontSize) > maxWidth) {
+      lines.push(cur);
+      cur = w;
+    } else cur = next;
+  }
+  if (cur) lines.push(cur);
+  return lines;
+}
+
+/** Short deterministic hash (FNV-1a, 32 bit) as base-36, for element ids. */
+export function shortHash(s: string): string {
+  let h = 0x811c9dc5;
+  for (let i = 0; i < s.length; i++) {
+    h ^= s.charCodeAt(i);
+    h = Math.imul(h, 0x01000193);
+  }
+  return (h >>> 0).toString(36);
+}
