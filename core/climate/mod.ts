@@ -13,3 +13,4 @@ export * from "./surrogates.ts";
 export * from "./surrogate_lag_test.ts";
 export * from "./energy_balance.ts";
 export * from "./superposed_epoch.ts";
+export * from "./attribution_regression.ts";
