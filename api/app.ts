@@ -24,6 +24,7 @@ import { registerChartRoutes } from "./routes/charts.ts";
 import { registerKindRoutes } from "./routes/kinds.ts";
 import { registerSeriesRoutes } from "./routes/series.ts";
 import { registerBundleRoutes } from "./routes/bundles.ts";
+import { registerUiRoutes } from "./ui/routes.ts";
 import { seriesCodec } from "./series_codec.ts";
 import { SERVICE_VERSION } from "./version.ts";
 
@@ -145,6 +146,7 @@ export function createService(deps: AppDeps): Service {
   );
 
   registerMetaRoutes(app, { store, config, kinds });
+  registerUiRoutes(app);
   registerSeriesRoutes(app, { store, config });
   registerRunRoutes(app, { store, runs });
   registerChartRoutes(app, { store });

@@ -1,0 +1,2059 @@
+// @ts-check
+/// <reference lib="dom" />
+/**
+ * The built-in page: a small client of the public API, served as a plain ES module (no build
+ * step, no framework). Every view is drawn from the same requests a script would make, and
+ * shows them as `curl` and Python `requests` snippets. Text from the service is always set as
+ * text, never parsed as HTML; charts (SVG from the service) are parsed as XML and stripped of
+ * scripts and event handlers before they are shown.
+ *
+ * Views (in the URL fragment): #/series, #/series/{id}, #/runs, #/runs/{id}, #/upload,
+ * #/analyse.
+ *
+ * @module
+ */
+import { curlScript, pythonSnippet, requestUrl } from "./snippets.js";
+
+/** @typedef {import("./snippets.js").RequestSpec} RequestSpec */
+/** @typedef {Node | string | number | null | undefined | false} Child */
+
+const PAGE_SIZE = 20;
+const FIRST_ROWS = 12;
+const FINAL = new Set(["succeeded", "failed", "cancelled"]);
+/** Analyses offered first, by POST path. */
+const MAIN_ANALYSES = ["/v1/lag-correlations", "/v1/irradiance/reconstructions", "/v1/cycles"];
+const BASE = location.origin;
+
+// ---------------------------------------------------------------------------------------------
+// DOM helpers
+
+/**
+ * Create an element; strings become text nodes (never HTML).
+ * @param {string} tag
+ * @param {Record<string, unknown> | null} [props]
+ * @param {...(Child | Child[])} children
+ * @returns {HTMLElement}
+ */
+function h(tag, props, ...children) {
+  const el = document.createElement(tag);
+  for (const [k, v] of Object.entries(props ?? {})) {
+    if (v === undefined || v === null || v === false) continue;
+    if (k.startsWith("on") && typeof v === "function") {
+      el.addEventListener(k.slice(2), /** @type {EventListener} */ (v));
+    } else if (k === "class") el.className = String(v);
+    else if (k === "value" || k === "checked" || k === "selected" || k === "disabled") {
+      /** @type {any} */ (el)[k] = v;
+    } else el.setAttribute(k, v === true ? "" : String(v));
+  }
+  append(el, children);
+  return el;
+}
+
+/**
+ * @param {HTMLElement} el
+ * @param {(Child | Child[])[]} children
+ */
+function append(el, children) {
+  for (const c of children.flat()) {
+    if (c === null || c === undefined || c === false) continue;
+    el.append(typeof c === "number" ? String(c) : c);
+  }
+}
+
+/** @param {unknown} v */
+function isObject(v) {
+  return typeof v === "object" && v !== null && !Array.isArray(v);
+}
+
+/** @param {unknown} v */
+function isScalar(v) {
+  return v === null || ["number", "string", "boolean"].includes(typeof v);
+}
+
+/**
+ * A number for people: integers as they are, others to 6 significant digits.
+ * @param {unknown} v
+ * @returns {string}
+ */
+function fmt(v) {
+  if (v === null || v === undefined) return "—";
+  if (typeof v === "number") {
+    if (Number.isInteger(v)) return String(v);
+    const a = Math.abs(v);
+    if (a !== 0 && (a < 1e-4 || a >= 1e7)) return v.toExponential(4);
+    return String(Number(v.toPrecision(6)));
+  }
+  if (typeof v === "boolean") return v ? "yes" : "no";
+  if (typeof v === "string") return v;
+  return JSON.stringify(v);
+}
+
+/** @param {string} iso */
+function when(iso) {
+  if (!iso) return "—";
+  return iso.replace("T", " ").replace(/\.\d+Z$/, "Z").replace(/Z$/, " UTC");
+}
+
+/** @param {string} s */
+function pretty(s) {
+  const t = s.replace(/[_-]+/g, " ").trim();
+  return t.charAt(0).toUpperCase() + t.slice(1);
+}
+
+/** @param {string} status */
+function badge(status) {
+  return h("span", { class: `badge ${status}`, "data-status": status }, status);
+}
+
+/**
+ * A scrolling table.
+ * @param {string[]} head
+ * @param {Child[][]} rows
+ * @param {{ caption?: string, numeric?: boolean[] }} [opts]
+ */
+function table(head, rows, opts = {}) {
+  return h(
+    "div",
+    { class: "scroll" },
+    h(
+      "table",
+      null,
+      opts.caption ? h("caption", { class: "muted" }, opts.caption) : null,
+      h("thead", null, h("tr", null, head.map((c) => h("th", { scope: "col" }, c)))),
+      h(
+        "tbody",
+        null,
+        rows.map((r) =>
+          h("tr", null, r.map((c, i) => h("td", opts.numeric?.[i] ? { class: "num" } : null, c)))
+        ),
+      ),
+    ),
+  );
+}
+
+/**
+ * Definition list of label/value pairs (values already nodes or text); empty values left out.
+ * @param {[string, Child | Child[]][]} pairs
+ */
+function metaList(pairs) {
+  return h(
+    "dl",
+    { class: "meta" },
+    pairs.filter(([, v]) => v !== null && v !== undefined && v !== "").flatMap((
+      [k, v],
+    ) => [h("dt", null, k), h("dd", null, ...(Array.isArray(v) ? v : [v]))]),
+  );
+}
+
+/** @param {string} kind @param {string} title @param {(Child | Child[])[]} body */
+function callout(kind, title, ...body) {
+  return h("div", { class: `callout ${kind}`, role: kind === "bad" ? "alert" : null }, [
+    h("strong", null, title),
+    ...body.flat(),
+  ]);
+}
+
+// ---------------------------------------------------------------------------------------------
+// Talking to the service
+
+/**
+ * Make a request as described by `req`.
+ * @param {RequestSpec} req
+ * @param {{ text?: string }} [extra] A text body (with `req.contentType`).
+ * @returns {Promise<{ status: number, ok: boolean, data: any }>}
+ */
+async function call(req, extra = {}) {
+  /** @type {Record<string, string>} */
+  const headers = { Accept: "application/json", ...(req.headers ?? {}) };
+  /** @type {string | undefined} */
+  let body;
+  if (req.json !== undefined) {
+    headers["Content-Type"] = "application/json";
+    body = JSON.stringify(req.json);
+  } else if (extra.text !== undefined) {
+    headers["Content-Type"] = req.contentType ?? "text/csv";
+    body = extra.text;
+  }
+  let res;
+  try {
+    res = await fetch(requestUrl("", req), { method: req.method, headers, body });
+  } catch (e) {
+    return {
+      status: 0,
+      ok: false,
+      data: { title: "Network error", detail: `The service did not answer: ${e}` },
+    };
+  }
+  const ct = res.headers.get("content-type") ?? "";
+  const data = ct.includes("json") ? await res.json().catch(() => null) : await res.text();
+  return { status: res.status, ok: res.ok, data };
+}
+
+/** @type {Promise<any> | null} */
+let openApiDoc = null;
+/** The OpenAPI document (once per page load): forms are built from its schemas. */
+function openApi() {
+  openApiDoc ??= fetch("/v1/openapi.json").then((r) => r.json()).catch(() => ({ paths: {} }));
+  return openApiDoc;
+}
+
+/**
+ * Follow `$ref`s into `components`.
+ * @param {any} doc
+ * @param {any} s
+ * @returns {any}
+ */
+function deref(doc, s) {
+  let guard = 0;
+  while (s && typeof s.$ref === "string" && guard++ < 20) {
+    const path = s.$ref.replace(/^#\//, "").split("/");
+    /** @type {any} */
+    let t = doc;
+    for (const p of path) t = t?.[p];
+    s = t;
+  }
+  return s ?? {};
+}
+
+/** The quantity vocabulary, from the OpenAPI document. @returns {Promise<string[]>} */
+async function quantities() {
+  const doc = await openApi();
+  const s = deref(doc, doc?.components?.schemas?.InlineSeries);
+  const q = deref(doc, s?.properties?.quantity);
+  return Array.isArray(q?.enum) ? q.enum : [];
+}
+
+/**
+ * An RFC 9457 problem response, shown clearly with its field errors.
+ * @param {any} p
+ * @param {string} [heading]
+ */
+function problemBox(p, heading) {
+  const errors = Array.isArray(p?.errors) ? p.errors : [];
+  const withPlace = errors.some((/** @type {any} */ e) =>
+    e.row !== undefined || e.column !== undefined
+  );
+  return callout(
+    "bad",
+    heading ?? p?.title ?? "The request failed",
+    h("p", { class: "problem-detail" }, p?.detail ?? String(p ?? "")),
+    errors.length
+      ? table(
+        withPlace ? ["Row", "Column", "Field", "Problem"] : ["Field", "Problem"],
+        errors.map((/** @type {any} */ e) => {
+          const field = (e.in && e.in !== "body" ? `${e.in} ` : "") + (e.pointer || "(whole body)");
+          const row = [h("code", null, field), e.message];
+          return withPlace ? [fmt(e.row ?? null), fmt(e.column ?? null), ...row] : row;
+        }),
+        { numeric: withPlace ? [true, false, false, false] : [] },
+      )
+      : null,
+    p?.request_id ? h("p", { class: "muted" }, `Request id: ${p.request_id}`) : null,
+  );
+}
+
+// ---------------------------------------------------------------------------------------------
+// Snippets panel
+
+/**
+ * "From a script": the view's requests as curl and Python.
+ * @param {RequestSpec[]} reqs
+ */
+function snippets(reqs) {
+  const curl = h("pre", { id: "snippet-curl", role: "tabpanel", "aria-label": "curl" });
+  const py = h("pre", {
+    id: "snippet-python",
+    role: "tabpanel",
+    "aria-label": "Python",
+    hidden: true,
+  });
+  /** @param {"curl" | "python"} which */
+  const select = (which) => {
+    curl.hidden = which !== "curl";
+    py.hidden = which !== "python";
+    tabCurl.setAttribute("aria-selected", String(which === "curl"));
+    tabPy.setAttribute("aria-selected", String(which === "python"));
+  };
+  const tabCurl = h("button", {
+    type: "button",
+    role: "tab",
+    "aria-selected": "true",
+    "aria-controls": "snippet-curl",
+    onclick: () => select("curl"),
+  }, "curl");
+  const tabPy = h("button", {
+    type: "button",
+    role: "tab",
+    "aria-selected": "false",
+    "aria-controls": "snippet-python",
+    onclick: () => select("python"),
+  }, "Python requests");
+  const copy = h("button", {
+    type: "button",
+    class: "ghost",
+    onclick: async () => {
+      const text = (curl.hidden ? py : curl).textContent ?? "";
+      try {
+        await navigator.clipboard.writeText(text);
+        copy.textContent = "Copied";
+      } catch {
+        copy.textContent = "Select the text to copy";
+      }
+      setTimeout(() => (copy.textContent = "Copy"), 1500);
+    },
+  }, "Copy");
+  const section = h(
+    "section",
+    { class: "snippets", "aria-labelledby": "snippets-title" },
+    h("h2", { id: "snippets-title" }, "From a script"),
+    h("p", { class: "lede" }, "The same requests this view makes, to run from a shell or Python."),
+    h(
+      "div",
+      { class: "tabs", role: "tablist", "aria-label": "Snippet language" },
+      tabCurl,
+      tabPy,
+      copy,
+    ),
+    curl,
+    py,
+  );
+  /** @param {RequestSpec[]} r */
+  const update = (r) => {
+    curl.textContent = curlScript(BASE, r);
+    py.textContent = pythonSnippet(BASE, r);
+  };
+  update(reqs);
+  return { el: section, update };
+}
+
+// ---------------------------------------------------------------------------------------------
+// Charts
+
+/** "light" or "dark", as the page is drawn now. */
+function effectiveTheme() {
+  const t = document.documentElement.dataset.theme;
+  if (t === "light" || t === "dark") return t;
+  return matchMedia("(prefers-color-scheme: dark)").matches ? "dark" : "light";
+}
+
+/**
+ * Remove anything executable from an SVG document before showing it inline.
+ * @param {Element} root
+ */
+function sanitizeSvg(root) {
+  for (const bad of root.querySelectorAll("script, foreignObject, iframe, object, embed")) {
+    bad.remove();
+  }
+  for (const el of [root, ...root.querySelectorAll("*")]) {
+    for (const a of [...el.attributes]) {
+      const v = a.value.trim().toLowerCase();
+      if (
+        /^on/i.test(a.name) ||
+        ((a.name === "href" || a.name.endsWith(":href")) && v.startsWith("javascript:"))
+      ) {
+        el.removeAttribute(a.name);
+      }
+    }
+  }
+}
+
+/**
+ * Draw the service's chart at `path` into `box` (width fitted to the box, page theme).
+ * @param {HTMLElement} box
+ */
+async function drawChart(box) {
+  const path = box.dataset.src ?? "";
+  const width = Math.max(320, Math.min(1000, Math.round((box.clientWidth || 800) - 18)));
+  const height = Math.max(240, Math.round(width * (width < 500 ? 0.75 : 0.5)));
+  const url = `${path}?width=${width}&height=${height}&theme=${effectiveTheme()}`;
+  let res;
+  try {
+    res = await fetch(url);
+  } catch (e) {
+    box.replaceChildren(h("p", { class: "muted" }, `Chart unavailable: ${e}`));
+    return;
+  }
+  if (!res.ok) {
+    const p = await res.json().catch(() => null);
+    box.replaceChildren(
+      h("p", { class: "muted" }, `Chart unavailable: ${p?.detail ?? res.status}`),
+    );
+    return;
+  }
+  const doc = new DOMParser().parseFromString(await res.text(), "image/svg+xml");
+  const svg = doc.documentElement;
+  if (svg.localName !== "svg" || doc.querySelector("parsererror")) {
+    box.replaceChildren(h("p", { class: "muted" }, "Chart unavailable: the service sent no SVG"));
+    return;
+  }
+  sanitizeSvg(svg);
+  box.replaceChildren(document.importNode(svg, true));
+  box.dataset.drawn = "true";
+}
+
+/**
+ * A chart box for a service chart path; drawn once attached.
+ * @param {string} path
+ * @param {string} label
+ */
+function chart(path, label) {
+  const box = h(
+    "figure",
+    { class: "chart", "data-src": path, "aria-label": label },
+    h("p", { class: "muted" }, "Drawing the chart…"),
+  );
+  requestAnimationFrame(() => drawChart(box));
+  return box;
+}
+
+function redrawCharts() {
+  for (const el of document.querySelectorAll("figure.chart[data-src]")) {
+    drawChart(/** @type {HTMLElement} */ (el));
+  }
+}
+
+// ---------------------------------------------------------------------------------------------
+// Router
+
+/** Functions to run when the view changes (close event streams, stop timers). */
+let cleanups = /** @type {(() => void)[]} */ ([]);
+let generation = 0;
+const view = /** @type {HTMLElement} */ (document.getElementById("view"));
+
+function parseHash() {
+  const raw = location.hash.replace(/^#/, "") || "/series";
+  const q = raw.indexOf("?");
+  const path = q < 0 ? raw : raw.slice(0, q);
+  const parts = path.split("/").filter(Boolean).map(decodeURIComponent);
+  return { parts, query: new URLSearchParams(q < 0 ? "" : raw.slice(q + 1)) };
+}
+
+/**
+ * Replace the view's content (only if no newer navigation happened).
+ * @param {number} gen
+ * @param {string} title
+ * @param {(Child | Child[])[]} content
+ */
+function show(gen, title, ...content) {
+  if (gen !== generation) return false;
+  document.title = `${title} · sunlag`;
+  view.replaceChildren();
+  append(view, content);
+  return true;
+}
+
+let firstRender = true;
+async function render() {
+  for (const f of cleanups) f();
+  cleanups = [];
+  const gen = ++generation;
+  const { parts, query } = parseHash();
+  const section = parts[0] ?? "series";
+  for (const a of document.querySelectorAll("[data-nav]")) {
+    if (a.getAttribute("data-nav") === section) a.setAttribute("aria-current", "page");
+    else a.removeAttribute("aria-current");
+  }
+  try {
+    if (section === "series" && parts[1]) await seriesView(gen, parts[1]);
+    else if (section === "series") await seriesList(gen, query);
+    else if (section === "runs" && parts[1]) await runView(gen, parts[1]);
+    else if (section === "runs") await runList(gen, query);
+    else if (section === "upload") await uploadView(gen);
+    else if (section === "analyse") await analyseView(gen, query);
+    else {show(
+        gen,
+        "Not found",
+        h("h1", null, "No such view"),
+        h("p", null, h("a", { href: "#/series" }, "Go to the series")),
+      );}
+  } catch (e) {
+    show(gen, "Error", callout("bad", "The page hit an error", h("p", null, String(e))));
+  }
+  if (!firstRender && gen === generation) view.focus({ preventScroll: false });
+  firstRender = false;
+}
+
+/**
+ * Paging links for a list.
+ * @param {string} base Hash path, e.g. "#/series".
+ * @param {URLSearchParams} query
+ * @param {number} offset
+ * @param {number} total
+ * @param {number} shown
+ */
+function pager(base, query, offset, total, shown) {
+  /** @param {number} o */
+  const link = (o) => {
+    const q = new URLSearchParams(query);
+    if (o > 0) q.set("offset", String(o));
+    else q.delete("offset");
+    const s = q.toString();
+    return base + (s ? "?" + s : "");
+  };
+  const from = total ? offset + 1 : 0;
+  return h(
+    "nav",
+    { class: "pager", "aria-label": "Pages" },
+    offset > 0
+      ? h(
+        "a",
+        { class: "button ghost", href: link(Math.max(0, offset - PAGE_SIZE)), rel: "prev" },
+        "← Newer",
+      )
+      : null,
+    h("span", { class: "muted" }, `${from}–${offset + shown} of ${total}`),
+    offset + shown < total
+      ? h("a", { class: "button ghost", href: link(offset + PAGE_SIZE), rel: "next" }, "Older →")
+      : null,
+  );
+}
+
+/**
+ * A select that navigates with a query parameter.
+ * @param {string} label
+ * @param {string} name
+ * @param {string[]} options
+ * @param {string} current
+ * @param {string} base
+ * @param {URLSearchParams} query
+ */
+function filterSelect(label, name, options, current, base, query) {
+  const id = `filter-${name}`;
+  const sel = h(
+    "select",
+    {
+      id,
+      onchange: (/** @type {Event} */ e) => {
+        const q = new URLSearchParams(query);
+        const v = /** @type {HTMLSelectElement} */ (e.target).value;
+        if (v) q.set(name, v);
+        else q.delete(name);
+        q.delete("offset");
+        const s = q.toString();
+        location.hash = base + (s ? "?" + s : "");
+      },
+    },
+    h("option", { value: "" }, "any"),
+    options.map((o) => h("option", { value: o, selected: o === current }, o)),
+  );
+  return h("div", null, h("label", { for: id }, label), sel);
+}
+
+// ---------------------------------------------------------------------------------------------
+// Series
+
+/** @param {number} gen @param {URLSearchParams} query */
+async function seriesList(gen, query) {
+  const offset = Math.max(0, Number(query.get("offset")) || 0);
+  const quantity = query.get("quantity") ?? "";
+  /** @type {RequestSpec} */
+  const req = {
+    method: "GET",
+    path: "/v1/series",
+    query: { limit: PAGE_SIZE, offset, quantity: quantity || undefined },
+    note: "List stored series, newest first",
+  };
+  const [r, qs] = await Promise.all([call(req), quantities()]);
+  if (!r.ok) return show(gen, "Series", h("h1", null, "Stored series"), problemBox(r.data));
+  const items = /** @type {any[]} */ (r.data.items);
+  const rows = items.map((s) => [
+    h("a", { href: `#/series/${encodeURIComponent(s.id)}` }, s.name),
+    s.quantity,
+    h("code", null, s.units),
+    `${s.start_date} – ${s.end_date}`,
+    s.resolution,
+    s.n,
+    when(s.created_at),
+  ]);
+  show(
+    gen,
+    "Series",
+    h("h1", null, "Stored series"),
+    h(
+      "p",
+      { class: "lede" },
+      "Every series the service holds, newest first. Open one to see its chart and points.",
+    ),
+    h(
+      "div",
+      { class: "filters" },
+      filterSelect("Quantity", "quantity", qs, quantity, "#/series", query),
+      h("a", { class: "button", href: "#/upload" }, "Upload a series"),
+    ),
+    items.length
+      ? table(["Name", "Quantity", "Units", "Time span", "Resolution", "Points", "Stored"], rows, {
+        numeric: [false, false, false, false, false, true, false],
+      })
+      : h(
+        "p",
+        { class: "muted", id: "empty" },
+        "No series stored yet. ",
+        h("a", { href: "#/upload" }, "Upload one"),
+        ".",
+      ),
+    pager("#/series", query, offset, r.data.total, items.length),
+    snippets([req]).el,
+  );
+}
+
+/** @param {number} gen @param {string} id */
+async function seriesView(gen, id) {
+  const path = `/v1/series/${encodeURIComponent(id)}`;
+  /** @type {RequestSpec} */
+  const req = { method: "GET", path, note: "The series with its points (JSON)" };
+  const r = await call(req);
+  if (!r.ok) return show(gen, "Series", h("h1", null, "Series"), problemBox(r.data));
+  const s = r.data;
+  const csvReq = {
+    method: "GET",
+    path,
+    query: { format: "csv" },
+    save: "series.csv",
+    note: "The same as CSV (metadata in # comment lines)",
+  };
+  const chartReq = {
+    method: "GET",
+    path: `${path}/chart.svg`,
+    query: { width: 800, height: 400, theme: "light" },
+    save: "series.svg",
+    note: "Its chart as SVG",
+  };
+  const n = s.n ?? s.value?.length ?? 0;
+  const hasU = Array.isArray(s.uncertainty);
+  const firstRows = Array.from({ length: Math.min(FIRST_ROWS, n) }, (_, i) => [
+    s.date?.[i] ?? fmt(s.time[i]),
+    fmt(s.time[i]),
+    fmt(s.value[i]),
+    ...(hasU ? [fmt(s.uncertainty[i])] : []),
+  ]);
+  /** @type {HTMLElement | null} */
+  let lineage = null;
+  if (s.derived_from) {
+    const run = await call({
+      method: "GET",
+      path: `/v1/runs/${encodeURIComponent(s.derived_from)}`,
+    });
+    const cautions = run.ok ? (run.data.result?.cautions ?? []) : [];
+    const warnings = run.ok ? (run.data.result?.warnings ?? []) : [];
+    lineage = h(
+      "div",
+      null,
+      warnings.length
+        ? callout(
+          "warn",
+          "Warnings of the run that produced it",
+          h("ul", null, warnings.map((/** @type {string} */ w) => h("li", null, w))),
+        )
+        : null,
+      cautions.length
+        ? callout(
+          "",
+          "Cautions of the run that produced it",
+          h("ul", null, cautions.map((/** @type {string} */ c) => h("li", null, c))),
+        )
+        : null,
+    );
+  }
+  show(
+    gen,
+    s.name,
+    h("p", { class: "muted" }, h("a", { href: "#/series" }, "← All series")),
+    h("h1", null, s.name),
+    h(
+      "p",
+      { class: "lede" },
+      `${s.quantity} in ${s.units} · ${s.resolution} · ${n} points · ${s.start_date} – ${s.end_date}`,
+    ),
+    lineage,
+    chart(`${path}/chart.svg`, `Chart of ${s.name}`),
+    h(
+      "div",
+      { class: "actions" },
+      h(
+        "a",
+        { class: "button", href: `#/analyse?series=${encodeURIComponent(s.id)}` },
+        "Analyse this series",
+      ),
+      h(
+        "a",
+        { class: "button ghost", href: `${path}?format=csv`, download: "series.csv" },
+        "Download CSV",
+      ),
+      h("a", { class: "button ghost", href: path }, "JSON"),
+    ),
+    h("h2", null, "About this series"),
+    metaList([
+      ["Id", h("code", null, s.id)],
+      ["Quantity", s.quantity],
+      ["Units", h("code", null, s.units)],
+      ["Index version", s.version],
+      ["Resolution", s.resolution],
+      ["Points", String(n)],
+      [
+        "Time span",
+        `${s.start_date} – ${s.end_date} (decimal years ${fmt(s.start)} – ${fmt(s.end)})`,
+      ],
+      ["Description", s.description],
+      ["Source", s.source],
+      [
+        "Derived from run",
+        s.derived_from ? h("a", { href: `#/runs/${s.derived_from}` }, s.derived_from) : null,
+      ],
+      ["Stored", when(s.created_at)],
+    ]),
+    h("h2", null, `First ${firstRows.length} of ${n} points`),
+    table(["Date", "Decimal year", "Value", ...(hasU ? ["Uncertainty (1σ)"] : [])], firstRows, {
+      numeric: [false, true, true, true],
+    }),
+    h(
+      "p",
+      null,
+      h("a", { href: `${path}?format=csv`, download: "series.csv" }, "All points as CSV"),
+    ),
+    snippets([req, csvReq, chartReq]).el,
+  );
+}
+
+// ---------------------------------------------------------------------------------------------
+// Runs
+
+/** @param {number} gen @param {URLSearchParams} query */
+async function runList(gen, query) {
+  const offset = Math.max(0, Number(query.get("offset")) || 0);
+  const kind = query.get("kind") ?? "";
+  const status = query.get("status") ?? "";
+  /** @type {RequestSpec} */
+  const req = {
+    method: "GET",
+    path: "/v1/runs",
+    query: { limit: PAGE_SIZE, offset, kind: kind || undefined, status: status || undefined },
+    note: "List runs, newest first",
+  };
+  const [r, version] = await Promise.all([call(req), call({ method: "GET", path: "/v1/version" })]);
+  if (!r.ok) return show(gen, "Runs", h("h1", null, "Runs"), problemBox(r.data));
+  const kinds = Object.keys(version.data?.algorithms ?? {}).sort();
+  const items = /** @type {any[]} */ (r.data.items);
+  const rows = items.map((run) => [
+    h("a", { href: `#/runs/${run.id}` }, pretty(run.kind)),
+    badge(run.status),
+    run.status === "running" ? `${Math.round(run.progress * 100)} %` : "",
+    when(run.created_at),
+    run.result_digest
+      ? h("code", { title: run.result_digest }, run.result_digest.slice(0, 12) + "…")
+      : "—",
+  ]);
+  show(
+    gen,
+    "Runs",
+    h("h1", null, "Runs"),
+    h(
+      "p",
+      { class: "lede" },
+      "Every recorded analysis, newest first. A finished run can be replayed and verified.",
+    ),
+    h(
+      "div",
+      { class: "filters" },
+      filterSelect("Kind", "kind", kinds, kind, "#/runs", query),
+      filterSelect(
+        "Status",
+        "status",
+        ["queued", "running", "succeeded", "failed", "cancelled"],
+        status,
+        "#/runs",
+        query,
+      ),
+      h("a", { class: "button", href: "#/analyse" }, "Start an analysis"),
+    ),
+    items.length ? table(["Kind", "Status", "Progress", "Created", "Result digest"], rows) : h(
+      "p",
+      { class: "muted", id: "empty" },
+      "No runs yet. ",
+      h("a", { href: "#/analyse" }, "Start an analysis"),
+      ".",
+    ),
+    pager("#/runs", query, offset, r.data.total, items.length),
+    snippets([req]).el,
+  );
+  // Keep the list fresh while runs on it are still going.
+  if (items.some((run) => !FINAL.has(run.status))) {
+    const t = setTimeout(() => gen === generation && render(), 2000);
+    cleanups.push(() => clearTimeout(t));
+  }
+}
+
+/**
+ * The result's scalar fields and tables (arrays of records), outputs excluded.
+ * @param {Record<string, unknown>} result
+ */
+function resultParts(result) {
+  /** @type {[string, unknown][]} */
+  const scalars = [];
+  /** @type {[string, Record<string, unknown>[]][]} */
+  const tables = [];
+  /**
+   * @param {string} key
+   * @param {unknown} v
+   * @param {number} depth
+   */
+  const visit = (key, v, depth) => {
+    if (isScalar(v)) scalars.push([key, v]);
+    else if (Array.isArray(v)) {
+      if (v.length && v.every(isObject)) tables.push([key, /** @type {any} */ (v)]);
+      else if (v.every(isScalar)) {
+        scalars.push([
+          key,
+          v.length <= 6
+            ? v.map(fmt).join(", ")
+            : `${v.length} values: ${v.slice(0, 4).map(fmt).join(", ")}, …`,
+        ]);
+      } else scalars.push([key, `${v.length} items (see the run JSON)`]);
+    } else if (isObject(v)) {
+      if (depth >= 2) scalars.push([key, JSON.stringify(v).slice(0, 120)]);
+      else {for (const [k, x] of Object.entries(/** @type {any} */ (v))) {
+          visit(`${key}.${k}`, x, depth + 1);
+        }}
+    }
+  };
+  for (const [k, v] of Object.entries(result)) {
+    if (k === "outputs" || k === "warnings" || k === "cautions") continue;
+    visit(k, v, 0);
+  }
+  return { scalars, tables };
+}
+
+/**
+ * First rows of an array of records.
+ * @param {string} name
+ * @param {Record<string, unknown>[]} rows
+ */
+function recordTable(name, rows) {
+  const cols = [...new Set(rows.slice(0, 50).flatMap((r) => Object.keys(r)))].slice(0, 10);
+  const first = rows.slice(0, FIRST_ROWS);
+  return h(
+    "div",
+    { class: "result-table" },
+    h("h3", null, pretty(name)),
+    table(
+      cols,
+      first.map((r) => cols.map((c) => fmt(isScalar(r[c]) ? r[c] : JSON.stringify(r[c])))),
+      {
+        numeric: cols.map((c) => typeof first[0]?.[c] === "number"),
+      },
+    ),
+    rows.length > first.length
+      ? h(
+        "p",
+        { class: "muted" },
+        `${first.length} of ${rows.length} rows shown; all are in the run's JSON.`,
+      )
+      : null,
+  );
+}
+
+/**
+ * First rows of one series-like output, with its CSV link.
+ * @param {string} runId
+ * @param {string} name
+ * @param {any} o
+ */
+function outputTable(runId, name, o) {
+  const cols = ["value", "uncertainty", "lower", "upper"].filter((c) => Array.isArray(o[c]));
+  const n = o.time?.length ?? 0;
+  const rows = Array.from(
+    { length: Math.min(FIRST_ROWS, n) },
+    (_, i) => [fmt(o.time[i]), ...cols.map((c) => fmt(o[c][i]))],
+  );
+  const href = `/v1/runs/${runId}/outputs/${encodeURIComponent(name)}?format=csv`;
+  return h(
+    "div",
+    { class: "output" },
+    h("h3", null, `${pretty(name)} `, h("span", { class: "muted" }, `(${o.quantity}, ${o.units})`)),
+    o.description ? h("p", { class: "muted" }, o.description) : null,
+    o.interval ? h("p", { class: "muted" }, `Interval: ${o.interval}`) : null,
+    table(["Decimal year", ...cols], rows, { numeric: [true, true, true, true, true] }),
+    h("p", null, h("a", { href, download: `${name}.csv` }, `All ${n} rows as CSV`)),
+  );
+}
+
+/** @param {number} gen @param {string} id */
+async function runView(gen, id) {
+  const path = `/v1/runs/${encodeURIComponent(id)}`;
+  /** @type {RequestSpec} */
+  const req = {
+    method: "GET",
+    path,
+    note: "The run: parameters, inputs, versions, status, result and digest",
+  };
+  const r = await call(req);
+  if (!r.ok) return show(gen, "Run", h("h1", null, "Run"), problemBox(r.data));
+  const run = r.data;
+  const reqs = [req];
+  const final = FINAL.has(run.status);
+  const statusLine = h(
+    "p",
+    { class: "lede" },
+    badge(run.status),
+    ` · created ${when(run.created_at)}`,
+  );
+
+  /** @type {HTMLElement | null} */
+  let live = null;
+  if (!final) {
+    reqs.push({
+      method: "GET",
+      path: `${path}/events`,
+      stream: true,
+      note: "Follow its progress (Server-Sent Events)",
+    });
+    reqs.push({ method: "POST", path: `${path}/cancel`, note: "Cancel it" });
+    live = liveProgress(gen, run);
+  }
+
+  const result = isObject(run.result) ? run.result : {};
+  const warnings = Array.isArray(result.warnings) ? result.warnings : [];
+  const cautions = Array.isArray(result.cautions) ? result.cautions : [];
+  const outputs = isObject(result.outputs) ? Object.entries(result.outputs) : [];
+  const { scalars, tables } = resultParts(result);
+  if (run.status === "succeeded") {
+    reqs.push({
+      method: "POST",
+      path: `${path}/replay`,
+      note: "Recompute it from the stored inputs and compare digests",
+    });
+    for (const [name] of outputs) {
+      reqs.push({
+        method: "GET",
+        path: `${path}/outputs/${encodeURIComponent(name)}`,
+        query: { format: "csv" },
+        save: `${name}.csv`,
+        note: `Output "${name}" as CSV`,
+      });
+    }
+  }
+
+  const inputs = [
+    ...(run.input_series ?? []).map((/** @type {string} */ s) =>
+      h("a", { href: `#/series/${encodeURIComponent(s)}` }, h("code", null, s))
+    ),
+    ...(run.input_runs ?? []).map((/** @type {string} */ s) =>
+      h("a", { href: `#/runs/${s}` }, h("code", null, `run ${s}`))
+    ),
+  ];
+
+  show(
+    gen,
+    `${pretty(run.kind)} run`,
+    h("p", { class: "muted" }, h("a", { href: "#/runs" }, "← All runs")),
+    h("h1", null, `${pretty(run.kind)} run`),
+    statusLine,
+    live,
+    run.status === "failed" && run.error ? problemBox(run.error, "The run failed") : null,
+    run.status === "cancelled"
+      ? callout("warn", "The run was cancelled", h("p", null, "It has no result."))
+      : null,
+    warnings.length
+      ? callout(
+        "warn",
+        "Warnings",
+        h("ul", null, warnings.map((/** @type {string} */ w) => h("li", null, w))),
+      )
+      : null,
+    cautions.length
+      ? callout(
+        "",
+        "Cautions",
+        h("ul", { class: "cautions" }, cautions.map((/** @type {string} */ c) => h("li", null, c))),
+      )
+      : null,
+    run.status === "succeeded"
+      ? chart(`${path}/chart.svg`, `Chart of the ${pretty(run.kind)} run`)
+      : null,
+    run.status === "succeeded" ? replayPanel(path) : null,
+    scalars.length
+      ? [
+        h("h2", null, "Result"),
+        table(["Quantity", "Value"], scalars.map(([k, v]) => [h("code", null, k), fmt(v)]), {
+          numeric: [false, true],
+        }),
+      ]
+      : null,
+    tables.map(([k, rows]) => recordTable(k, rows)),
+    outputs.length ? h("h2", null, "Series outputs") : null,
+    outputs.map(([name, o]) => outputTable(run.id, name, o)),
+    h("h2", null, "Record"),
+    metaList([
+      ["Run id", h("code", null, run.id)],
+      ["Kind", run.kind],
+      ["Status", run.status],
+      ["Created", when(run.created_at)],
+      ["Updated", when(run.updated_at)],
+      ["Inputs", inputs.length ? inputs.flatMap((a, i) => (i ? [h("br"), a] : [a])) : "none"],
+      ["Algorithm version", run.algorithm_version],
+      ["Service version", run.service_version],
+      ["Seed", run.seed === null ? "none (not random)" : String(run.seed)],
+      [
+        "Result digest",
+        run.result_digest ? h("code", { class: "digest" }, run.result_digest) : "not yet",
+      ],
+    ]),
+    h(
+      "details",
+      null,
+      h("summary", null, "Parameters (every default filled in)"),
+      h("pre", null, JSON.stringify(run.params, null, 2)),
+    ),
+    snippets(reqs).el,
+  );
+}
+
+/**
+ * Progress bar fed by the run's event stream, with cancel.
+ * @param {number} gen
+ * @param {any} run
+ */
+function liveProgress(gen, run) {
+  const bar = /** @type {HTMLProgressElement} */ (h("progress", {
+    id: "run-progress",
+    max: "1",
+    value: String(run.progress ?? 0),
+    "aria-label": "Run progress",
+  }));
+  const text = h(
+    "span",
+    { id: "run-progress-text", class: "muted" },
+    `${run.status} · ${Math.round((run.progress ?? 0) * 100)} %`,
+  );
+  const cancel = h("button", {
+    type: "button",
+    class: "ghost",
+    id: "cancel",
+    onclick: async () => {
+      cancel.setAttribute("disabled", "");
+      const res = await call({ method: "POST", path: `/v1/runs/${run.id}/cancel` });
+      if (!res.ok) box.append(problemBox(res.data, "Could not cancel"));
+    },
+  }, "Cancel run");
+  const box = h("div", { class: "panel" }, h("div", { class: "progress" }, bar, text, cancel));
+  let done = false;
+  const finish = () => {
+    if (done) return;
+    done = true;
+    if (gen === generation) render();
+  };
+  /** @param {MessageEvent} e */
+  const onEvent = (e) => {
+    let d;
+    try {
+      d = JSON.parse(e.data);
+    } catch {
+      return;
+    }
+    if (typeof d.progress === "number") {
+      bar.value = d.progress;
+      const eta = typeof d.eta_seconds === "number"
+        ? ` · about ${Math.max(0, Math.round(d.eta_seconds))} s left`
+        : "";
+      text.textContent = `${d.status ?? "running"} · ${Math.round(d.progress * 100)} %${eta}`;
+    }
+    if (FINAL.has(d.status)) {
+      es.close();
+      finish();
+    }
+  };
+  const es = new EventSource(`/v1/runs/${run.id}/events`);
+  es.addEventListener("progress", onEvent);
+  es.addEventListener("status", onEvent);
+  // If the stream drops, fall back to polling the run until it finishes.
+  es.onerror = () => {
+    if (done) return;
+    es.close();
+    const poll = setInterval(async () => {
+      const r = await call({ method: "GET", path: `/v1/runs/${run.id}` });
+      if (r.ok) onEvent(new MessageEvent("status", { data: JSON.stringify(r.data) }));
+      if (!r.ok || FINAL.has(r.data.status)) {
+        clearInterval(poll);
+        finish();
+      }
+    }, 1000);
+    cleanups.push(() => clearInterval(poll));
+  };
+  cleanups.push(() => {
+    done = true;
+    es.close();
+  });
+  return box;
+}
+
+/** @param {string} path */
+function replayPanel(path) {
+  const out = h("div", { id: "replay-result", "aria-live": "polite" });
+  const button = h("button", {
+    type: "button",
+    id: "replay",
+    onclick: async () => {
+      button.setAttribute("disabled", "");
+      out.replaceChildren(h("p", { class: "muted" }, "Recomputing from the stored inputs…"));
+      const r = await call({ method: "POST", path: `${path}/replay` });
+      button.removeAttribute("disabled");
+      if (!r.ok) return out.replaceChildren(problemBox(r.data, "Replay failed"));
+      const d = r.data;
+      const digests = metaList([
+        ["Stored digest", h("code", null, d.stored_digest)],
+        ["Replay digest", h("code", null, d.replay_digest ?? "none")],
+        [
+          "Algorithm version",
+          d.algorithm_version
+            ? `${d.algorithm_version.recorded} recorded, ${d.algorithm_version.current} now`
+            : null,
+        ],
+      ]);
+      out.replaceChildren(
+        d.identical
+          ? callout(
+            "ok",
+            "Verified: the replay reproduced the stored result byte for byte",
+            h("p", { class: "verified", "data-verified": "true" }, "verified"),
+            digests,
+            d.note ? h("p", null, d.note) : null,
+          )
+          : callout(
+            "bad",
+            "Not verified: the replay gave a different result",
+            h("p", { class: "verified", "data-verified": "false" }, "not verified"),
+            digests,
+            d.note ? h("p", null, d.note) : null,
+          ),
+      );
+    },
+  }, "Replay and verify");
+  return h(
+    "div",
+    { class: "panel" },
+    h(
+      "div",
+      { class: "actions" },
+      button,
+      h(
+        "span",
+        { class: "muted" },
+        "Recompute from the stored inputs and compare the result digests.",
+      ),
+    ),
+    out,
+  );
+}
+
+// ---------------------------------------------------------------------------------------------
+// Forms generated from the OpenAPI schemas
+
+/**
+ * @typedef {object} Field
+ * @property {string} pointer JSON Pointer of the value in the body, e.g. "/climate".
+ * @property {string} label
+ * @property {() => unknown} read Value to send, or undefined to leave it out.
+ * @property {HTMLElement} input
+ * @property {HTMLElement} wrap
+ * @property {HTMLElement} error
+ * @property {boolean} main Shown before "More options".
+ */
+
+/**
+ * Is this schema a reference to a series (stored id or inline)?
+ * @param {any} doc
+ * @param {any} s
+ * @returns {boolean}
+ */
+function isSeriesRef(doc, s) {
+  if (!s) return false;
+  if (typeof s.$ref === "string" && /\/(SeriesRef|SeriesId)$/.test(s.$ref)) return true;
+  const d = deref(doc, s);
+  if (d.type === "string" && typeof d.pattern === "string" && d.pattern.includes("sha256")) {
+    return true;
+  }
+  const alts = d.anyOf ?? d.oneOf;
+  return Array.isArray(alts) && alts.some((a) => isSeriesRef(doc, a)) &&
+    alts.some((a) => /InlineSeries/.test(a.$ref ?? ""));
+}
+
+/** Drop `null` alternatives: returns the non-null schema and whether null is allowed. @param {any} doc @param {any} s */
+function nonNull(doc, s) {
+  const d = deref(doc, s);
+  const alts = d.anyOf ?? d.oneOf;
+  if (Array.isArray(alts)) {
+    const rest = alts.filter((a) => deref(doc, a).type !== "null");
+    if (rest.length === 1 && rest.length < alts.length) {
+      return { schema: rest[0], nullable: true, outer: d };
+    }
+  }
+  return { schema: s, nullable: false, outer: d };
+}
+
+/**
+ * Series options for a select, preferring quantities that fit the field name.
+ * @param {any[]} series
+ * @param {string} name
+ */
+function seriesOptions(series, name) {
+  const n = name.toLowerCase();
+  /** @type {string[]} */
+  let prefer = [];
+  if (/temp|climate|response|target/.test(n)) prefer = ["temperature_anomaly", "temperature"];
+  else if (/tsi|irradiance|measured/.test(n)) prefer = ["tsi"];
+  else if (/facul|mg/.test(n)) prefer = ["facular_index"];
+  else if (/area/.test(n)) prefer = ["sunspot_area"];
+  else if (/sunspot|solar|driver|proxy|activity|series/.test(n)) prefer = ["sunspot_number", "tsi"];
+  const rank = (/** @type {any} */ s) => {
+    const i = prefer.indexOf(s.quantity);
+    return i < 0 ? prefer.length : i;
+  };
+  return [...series].sort((a, b) => rank(a) - rank(b));
+}
+
+/**
+ * Build form fields for the properties of an object schema.
+ * @param {any} doc
+ * @param {any} schema
+ * @param {string} prefix JSON Pointer prefix.
+ * @param {{ series: any[], runs: any[], preselect?: string }} ctx
+ * @returns {Field[]}
+ */
+function buildFields(doc, schema, prefix, ctx) {
+  const s = deref(doc, schema);
+  const props = s.properties ?? {};
+  const required = new Set(s.required ?? []);
+  /** @type {Field[]} */
+  const fields = [];
+  for (const [name, raw] of Object.entries(props)) {
+    const pointer = `${prefix}/${name}`;
+    const id = "f" + pointer.replace(/[^\w]/g, "_");
+    const { schema: inner, nullable, outer } = nonNull(doc, raw);
+    const p = deref(doc, inner);
+    const dflt = outer.default ?? p.default;
+    const isRequired = required.has(name) && dflt === undefined && !nullable;
+    const description = outer.description ?? p.description ?? "";
+    const label = pretty(name);
+    const error = h("span", { class: "field-error", id: `${id}-err` });
+    /** @type {HTMLElement} */
+    let input;
+    /** @type {() => unknown} */
+    let read;
+    let wide = false;
+    if (isSeriesRef(doc, inner)) {
+      const opts = seriesOptions(ctx.series, name);
+      let chosen = opts[0]?.id;
+      if (
+        ctx.preselect && ctx.series.some((x) => x.id === ctx.preselect) &&
+        !fields.some((f) => f.input.dataset.series)
+      ) chosen = ctx.preselect;
+      input = h(
+        "select",
+        { id, "data-series": "true" },
+        isRequired ? null : h("option", { value: "" }, "(none)"),
+        opts.map((x) =>
+          h(
+            "option",
+            { value: x.id, selected: x.id === chosen && isRequired },
+            `${x.name} — ${x.quantity}, ${x.start_date}–${x.end_date}`,
+          )
+        ),
+      );
+      read = () => /** @type {HTMLSelectElement} */ (input).value || undefined;
+      wide = true;
+    } else if (p.type === "array" && isSeriesRef(doc, p.items)) {
+      input = h(
+        "select",
+        { id, multiple: true, size: String(Math.min(6, Math.max(3, ctx.series.length))) },
+        seriesOptions(ctx.series, name).map((x) =>
+          h("option", { value: x.id }, `${x.name} — ${x.quantity}`)
+        ),
+      );
+      read = () => {
+        const v = [.../** @type {HTMLSelectElement} */ (input).selectedOptions].map((o) => o.value);
+        return v.length ? v : undefined;
+      };
+      wide = true;
+    } else if (Array.isArray(p.enum)) {
+      input = h(
+        "select",
+        { id },
+        dflt === undefined ? h("option", { value: "" }, isRequired ? "choose…" : "(none)") : null,
+        p.enum.map((/** @type {unknown} */ v) =>
+          h("option", { value: String(v), selected: v === dflt }, String(v))
+        ),
+      );
+      read = () => {
+        const v = /** @type {HTMLSelectElement} */ (input).value;
+        if (v === "") return undefined;
+        const match = p.enum.find((/** @type {unknown} */ e) => String(e) === v);
+        return match === dflt && !isRequired ? undefined : match;
+      };
+    } else if (p.type === "boolean") {
+      input = h("input", { id, type: "checkbox", checked: dflt === true });
+      read = () => {
+        const v = /** @type {HTMLInputElement} */ (input).checked;
+        return dflt !== undefined && v === dflt ? undefined : v;
+      };
+    } else if (p.type === "number" || p.type === "integer") {
+      input = h("input", {
+        id,
+        type: "number",
+        step: p.type === "integer" ? "1" : "any",
+        min: p.minimum ?? p.exclusiveMinimum,
+        max: p.maximum ?? p.exclusiveMaximum,
+        placeholder: dflt !== undefined ? String(dflt) : "",
+        inputmode: "decimal",
+      });
+      read = () => {
+        const t = /** @type {HTMLInputElement} */ (input).value.trim();
+        return t === "" ? undefined : Number(t);
+      };
+    } else if (p.type === "string") {
+      const runLike = /run|model/i.test(name) ||
+        (typeof p.pattern === "string" && p.pattern.includes("0-9a-f-"));
+      const listId = `${id}-runs`;
+      input = h("input", {
+        id,
+        type: "text",
+        placeholder: dflt !== undefined ? String(dflt) : "",
+        list: runLike ? listId : null,
+        autocomplete: "off",
+      });
+      if (runLike) {
+        const want = name.toLowerCase().includes("model")
+          ? (/** @type {any} */ r) => /model/.test(r.kind)
+          : () => true;
+        const list = h(
+          "datalist",
+          { id: listId },
+          ctx.runs.filter(want).map((r) =>
+            h("option", { value: r.id }, `${pretty(r.kind)} · ${when(r.created_at)}`)
+          ),
+        );
+        input = h("span", null, input, list);
+        const first = ctx.runs.find(want);
+        if (first && isRequired) {
+          /** @type {HTMLInputElement} */ (input.firstChild).value = first.id;
+        }
+      }
+      const el = /** @type {HTMLInputElement} */ (runLike ? input.firstChild : input);
+      read = () => (el.value.trim() === "" ? undefined : el.value.trim());
+    } else if (p.type === "object" && p.properties && !prefix.includes("/", 1)) {
+      const sub = buildFields(doc, p, pointer, ctx);
+      fields.push(...sub.map((f) => ({ ...f, main: f.main && isRequired })));
+      continue;
+    } else if (
+      p.type === "array" && ["number", "integer", "string"].includes(deref(doc, p.items)?.type)
+    ) {
+      const it = deref(doc, p.items).type;
+      input = h("input", {
+        id,
+        type: "text",
+        placeholder: Array.isArray(dflt) ? dflt.join(", ") : "comma-separated",
+      });
+      read = () => {
+        const t = /** @type {HTMLInputElement} */ (input).value.trim();
+        if (t === "") return undefined;
+        const parts = t.split(/[,\s]+/).filter(Boolean);
+        return it === "string" ? parts : parts.map(Number);
+      };
+    } else {
+      input = h("textarea", {
+        id,
+        rows: "3",
+        placeholder: dflt !== undefined ? JSON.stringify(dflt) : "JSON",
+      });
+      read = () => {
+        const t = /** @type {HTMLTextAreaElement} */ (input).value.trim();
+        if (t === "") return undefined;
+        try {
+          return JSON.parse(t);
+        } catch {
+          return t;
+        }
+      };
+      wide = true;
+    }
+    const control = input.querySelector?.("input, select, textarea") ?? input;
+    control.setAttribute("aria-describedby", `${id}-hint ${id}-err`);
+    if (isRequired) control.setAttribute("aria-required", "true");
+    const wrap = h(
+      "div",
+      { class: wide ? "field wide" : "field", "data-pointer": pointer },
+      p.type === "boolean"
+        ? h("label", { for: id }, input, " ", label)
+        : [h("label", { for: id }, label, isRequired ? " *" : ""), input],
+      h(
+        "span",
+        { class: "hint", id: `${id}-hint` },
+        description +
+          (dflt !== undefined && p.type !== "boolean" ? ` (default ${JSON.stringify(dflt)})` : ""),
+      ),
+      error,
+    );
+    fields.push({
+      pointer,
+      label,
+      read,
+      input: /** @type {HTMLElement} */ (control),
+      wrap,
+      error,
+      main: isRequired,
+    });
+  }
+  return fields;
+}
+
+/**
+ * Collect a body object from fields (JSON Pointers to nested keys).
+ * @param {Field[]} fields
+ */
+function collect(fields) {
+  /** @type {Record<string, any>} */
+  const body = {};
+  for (const f of fields) {
+    const v = f.read();
+    if (v === undefined) continue;
+    const keys = f.pointer.split("/").slice(1);
+    let t = body;
+    for (const k of keys.slice(0, -1)) t = t[k] ??= {};
+    t[keys[keys.length - 1]] = v;
+  }
+  return body;
+}
+
+/**
+ * Mark the fields named by a problem's errors; returns the errors no field matched.
+ * @param {Field[]} fields
+ * @param {any} problem
+ */
+function markFields(fields, problem) {
+  for (const f of fields) {
+    f.error.textContent = "";
+    f.input.removeAttribute("aria-invalid");
+  }
+  const unmatched = [];
+  for (const e of problem?.errors ?? []) {
+    const ptr = String(e.pointer ?? "");
+    const f = fields.find((x) => ptr === x.pointer || ptr.startsWith(x.pointer + "/"));
+    if (f && (e.in === undefined || e.in === "body")) {
+      f.error.textContent = e.message;
+      f.input.setAttribute("aria-invalid", "true");
+    } else unmatched.push(e);
+  }
+  return unmatched;
+}
+
+// ---------------------------------------------------------------------------------------------
+// Analyse
+
+/** @param {number} gen @param {URLSearchParams} query */
+async function analyseView(gen, query) {
+  const [doc, seriesRes, runsRes] = await Promise.all([
+    openApi(),
+    call({ method: "GET", path: "/v1/series", query: { limit: 500 } }),
+    call({ method: "GET", path: "/v1/runs", query: { limit: 200, status: "succeeded" } }),
+  ]);
+  const series = seriesRes.ok ? seriesRes.data.items : [];
+  const runs = runsRes.ok ? runsRes.data.items : [];
+  /** @type {{ path: string, summary: string, description: string, schema: any }[]} */
+  const kinds = [];
+  for (const [path, ops] of Object.entries(doc.paths ?? {})) {
+    const op = /** @type {any} */ (ops).post;
+    const schema = op?.requestBody?.content?.["application/json"]?.schema;
+    if (
+      !schema || path.startsWith("/v1/series") || path.startsWith("/v1/runs") ||
+      path.startsWith("/v1/bundles")
+    ) continue;
+    kinds.push({ path, summary: op.summary ?? path, description: op.description ?? "", schema });
+  }
+  const main = MAIN_ANALYSES.map((p) => kinds.find((k) => k.path === p)).filter((k) =>
+    k !== undefined
+  );
+  const more = kinds.filter((k) => !MAIN_ANALYSES.includes(k.path)).sort((a, b) =>
+    a.path.localeCompare(b.path)
+  );
+  const chosenPath = query.get("kind") ?? main[0]?.path ?? more[0]?.path ?? "";
+  const kind = kinds.find((k) => k.path === chosenPath);
+  if (!kinds.length) {
+    return show(
+      gen,
+      "Analyse",
+      h("h1", null, "Start an analysis"),
+      h("p", { class: "muted" }, "This service offers no analyses yet."),
+    );
+  }
+  /** @param {Event} e */
+  const pick = (e) => {
+    const q = new URLSearchParams(query);
+    q.set("kind", /** @type {HTMLSelectElement} */ (e.target).value);
+    location.hash = "#/analyse?" + q.toString();
+  };
+  const picker = h(
+    "div",
+    { class: "field" },
+    h("label", { for: "analysis" }, "Analysis"),
+    h(
+      "select",
+      { id: "analysis", onchange: pick },
+      main.length
+        ? h(
+          "optgroup",
+          { label: "Main analyses" },
+          main.map((k) =>
+            h("option", { value: k.path, selected: k.path === chosenPath }, k.summary)
+          ),
+        )
+        : null,
+      more.length
+        ? h(
+          "optgroup",
+          { label: "More" },
+          more.map((k) =>
+            h("option", { value: k.path, selected: k.path === chosenPath }, k.summary)
+          ),
+        )
+        : null,
+    ),
+  );
+  if (!kind) {
+    return show(
+      gen,
+      "Analyse",
+      h("h1", null, "Start an analysis"),
+      picker,
+      h("p", null, `No analysis at ${chosenPath}.`),
+    );
+  }
+
+  const fields = buildFields(doc, kind.schema, "", {
+    series,
+    runs,
+    preselect: query.get("series") ?? undefined,
+  });
+  const mainFields = fields.filter((f) => f.main);
+  const moreFields = fields.filter((f) => !f.main);
+  const status = h("div", { id: "submit-status", "aria-live": "polite" });
+  const snip = snippets([]);
+  const spec = () => /** @type {RequestSpec} */ ({
+    method: "POST",
+    path: kind.path,
+    headers: { Prefer: "respond-async" },
+    json: collect(fields),
+    note: "Start the run; the answer's Location names it. Then follow GET /v1/runs/{id}/events",
+  });
+  const refresh = () => snip.update([spec()]);
+  const form = h(
+    "form",
+    {
+      id: "analysis-form",
+      novalidate: true,
+      oninput: refresh,
+      onchange: refresh,
+      onsubmit: async (/** @type {Event} */ e) => {
+        e.preventDefault();
+        const submit = /** @type {HTMLButtonElement} */ (form.querySelector("button[type=submit]"));
+        submit.disabled = true;
+        status.replaceChildren(h("p", { class: "muted" }, "Starting…"));
+        const r = await call(spec());
+        submit.disabled = false;
+        if (r.ok && r.data?.id) {
+          location.hash = `#/runs/${r.data.id}`;
+          return;
+        }
+        const rest = markFields(fields, r.data);
+        status.replaceChildren(
+          problemBox(
+            rest.length || !r.data?.errors ? r.data : { ...r.data, errors: [] },
+            "The run was not started",
+          ),
+        );
+      },
+    },
+    h("div", { class: "grid" }, mainFields.map((f) => f.wrap)),
+    moreFields.length
+      ? h(
+        "details",
+        null,
+        h("summary", null, `More options (${moreFields.length}, defaults shown)`),
+        h("div", { class: "grid" }, moreFields.map((f) => f.wrap)),
+      )
+      : null,
+    h(
+      "div",
+      { class: "actions" },
+      h("button", { type: "submit" }, "Start run"),
+      h("span", { class: "muted" }, "Long runs report progress here as they go."),
+    ),
+    status,
+  );
+  show(
+    gen,
+    "Analyse",
+    h("h1", null, "Start an analysis"),
+    h(
+      "p",
+      { class: "lede" },
+      "Pick an analysis and its series. Every run is recorded with its inputs and versions, so it can be replayed later.",
+    ),
+    h("div", { class: "grid" }, picker),
+    h("h2", null, kind.summary),
+    kind.description ? h("p", { class: "muted" }, kind.description) : null,
+    series.length ? null : callout(
+      "warn",
+      "No series stored yet",
+      h("p", null, h("a", { href: "#/upload" }, "Upload a series"), " first."),
+    ),
+    form,
+    snip.el,
+  );
+  refresh();
+}
+
+// ---------------------------------------------------------------------------------------------
+// Upload
+
+/** Query parameters of a text upload that are series metadata (sent in the body for JSON). */
+const META = ["name", "quantity", "units", "version", "description", "source"];
+
+/**
+ * A few lines of the uploaded text around a problem row, the row highlighted and the cell
+ * marked.
+ * @param {string} text
+ * @param {number} row 1-based line number.
+ * @param {string | number | undefined} column Header name or 0-based index.
+ * @param {string} delimiter "comma", "semicolon", "tab", "whitespace" or "" (guess).
+ */
+function excerpt(text, row, column, delimiter) {
+  const lines = text.split(/\r\n|\n|\r/);
+  const header = lines.find((l) => l.trim() !== "" && !l.trimStart().startsWith("#")) ?? "";
+  const guess = delimiter ||
+    (header.includes("\t")
+      ? "tab"
+      : header.includes(";")
+      ? "semicolon"
+      : header.includes(",")
+      ? "comma"
+      : "whitespace");
+  const sep = { comma: ",", semicolon: ";", tab: "\t" }[guess];
+  /** @param {string} l */
+  const split = (l) => (sep ? l.split(sep) : l.trim().split(/\s+/));
+  let col = -1;
+  if (typeof column === "number") col = column;
+  else if (typeof column === "string") {
+    col = split(header).map((c) => c.trim().replace(/^"|"$/g, "")).indexOf(column);
+  }
+  const from = Math.max(1, row - 3);
+  const to = Math.min(lines.length, row + 2);
+  const pre = h("pre", { class: "excerpt", "aria-label": `Lines ${from} to ${to} of the file` });
+  for (let i = from; i <= to; i++) {
+    const l = lines[i - 1] ?? "";
+    const num = String(i).padStart(String(to).length, " ") + " │ ";
+    const line = h("span", { class: i === row ? "line bad" : "line" }, num);
+    if (i === row && col >= 0 && sep) {
+      const cells = l.split(sep);
+      cells.forEach((c, j) => {
+        if (j) line.append(sep);
+        line.append(j === col ? h("mark", null, c === "" ? "␣" : c) : c);
+      });
+    } else line.append(l);
+    pre.append(line);
+  }
+  return pre;
+}
+
+/** @param {number} gen */
+async function uploadView(gen) {
+  const doc = await openApi();
+  const qs = await quantities();
+  const op = doc.paths?.["/v1/series"]?.post ?? {};
+  const params =
+    /** @type {any[]} */ ((op.parameters ?? []).map((/** @type {any} */ p) => deref(doc, p)).filter(
+      (/** @type {any} */ p) => p.in === "query",
+    ));
+  const uploadSchema = deref(doc, op.requestBody?.content?.["application/json"]?.schema);
+  const status = h("div", { id: "upload-status", "aria-live": "polite" });
+  const snip = snippets([]);
+
+  const file = /** @type {HTMLInputElement} */ (h("input", {
+    id: "up-file",
+    type: "file",
+    accept: ".csv,.txt,.tsv,.dat,.json,text/csv,application/json,text/plain",
+  }));
+  const paste = /** @type {HTMLTextAreaElement} */ (h("textarea", {
+    id: "up-text",
+    rows: "6",
+    spellcheck: "false",
+    placeholder: "date,value\n2001-01,80.2\n2001-02,85.1",
+  }));
+  const fmtText = /** @type {HTMLInputElement} */ (h("input", {
+    type: "radio",
+    name: "format",
+    id: "fmt-text",
+    value: "text",
+    checked: true,
+  }));
+  const fmtJson = /** @type {HTMLInputElement} */ (h("input", {
+    type: "radio",
+    name: "format",
+    id: "fmt-json",
+    value: "json",
+  }));
+
+  /**
+   * One input for a query parameter (or body field) of the upload.
+   * @param {string} name
+   * @param {any} schema
+   * @param {string} description
+   * @param {boolean} required
+   */
+  const paramField = (name, schema, description, required) => {
+    const s = deref(doc, nonNull(doc, schema).schema);
+    const id = `up-${name}`;
+    /** @type {HTMLInputElement | HTMLSelectElement} */
+    let input;
+    if (name === "quantity" && qs.length) {
+      input = /** @type {HTMLSelectElement} */ (h(
+        "select",
+        { id, name },
+        h("option", { value: "" }, "choose…"),
+        qs.map((q) => h("option", { value: q }, q)),
+      ));
+    } else if (Array.isArray(s.enum)) {
+      input = /** @type {HTMLSelectElement} */ (h(
+        "select",
+        { id, name },
+        h(
+          "option",
+          { value: "" },
+          s.default !== undefined ? `default (${s.default})` : "automatic",
+        ),
+        s.enum.map((/** @type {string} */ v) => h("option", { value: v }, v)),
+      ));
+    } else {
+      input = /** @type {HTMLInputElement} */ (h("input", {
+        id,
+        name,
+        type: "text",
+        autocomplete: "off",
+        placeholder: s.example !== undefined ? String(s.example) : "",
+      }));
+    }
+    const error = h("span", { class: "field-error", id: `${id}-err` });
+    input.setAttribute("aria-describedby", `${id}-hint ${id}-err`);
+    const wrap = h(
+      "div",
+      { class: "field", "data-param": name },
+      h("label", { for: id }, pretty(name), required ? " *" : ""),
+      input,
+      h("span", { class: "hint", id: `${id}-hint` }, description),
+      error,
+    );
+    return { name, input, wrap, error };
+  };
+
+  const byName = new Map(params.map((p) => [p.name, p]));
+  const metaFields = META.map((n) => {
+    const p = byName.get(n);
+    const bodyProp = uploadSchema?.properties?.[n] ??
+      deref(doc, doc?.components?.schemas?.InlineSeries)?.properties?.[n];
+    return paramField(
+      n,
+      p?.schema ?? bodyProp ?? { type: "string" },
+      p?.description ?? bodyProp?.description ?? "",
+      ["name", "quantity", "units"].includes(n),
+    );
+  });
+  const textFields = params.filter((p) => !META.includes(p.name)).map((p) =>
+    paramField(p.name, p.schema, p.description ?? p.schema?.description ?? "", false)
+  );
+  const jsonOptionNames = Object.keys(uploadSchema?.properties ?? {}).filter((n) =>
+    !META.includes(n) && !["time", "value", "uncertainty"].includes(n)
+  );
+  const jsonFields = jsonOptionNames.map((n) =>
+    paramField(
+      `json-${n}`,
+      uploadSchema.properties[n],
+      deref(doc, uploadSchema.properties[n]).description ?? "",
+      false,
+    )
+  );
+  const all = [...metaFields, ...textFields, ...jsonFields];
+
+  const textBox = h(
+    "fieldset",
+    { id: "text-options" },
+    h("legend", null, "Columns and reading rules (delimited text)"),
+    h("div", { class: "grid" }, textFields.map((f) => f.wrap)),
+  );
+  const jsonBox = h(
+    "fieldset",
+    { id: "json-options", hidden: true },
+    h("legend", null, "Reading rules (JSON)"),
+    h(
+      "p",
+      { class: "hint" },
+      "The JSON holds name, quantity, units, time, value and optional uncertainty; fields filled in above are added where the file has none.",
+    ),
+    h("div", { class: "grid" }, jsonFields.map((f) => f.wrap)),
+  );
+
+  const isJson = () => fmtJson.checked;
+  /** @returns {Record<string, string>} */
+  const values = () =>
+    Object.fromEntries(all.map((f) => [f.name, f.input.value.trim()]).filter(([, v]) => v !== ""));
+  const fileName = () => file.files?.[0]?.name ?? (isJson() ? "series.json" : "series.csv");
+
+  /** @returns {Promise<{ spec: RequestSpec, text?: string, local?: string }>} */
+  const buildRequest = async () => {
+    const v = values();
+    const text = file.files?.[0] ? await file.files[0].text() : paste.value;
+    if (!isJson()) {
+      /** @type {Record<string, string>} */
+      const query = {};
+      for (const f of [...metaFields, ...textFields]) {
+        if (v[f.name] !== undefined) query[f.name] = v[f.name];
+      }
+      return {
+        spec: {
+          method: "POST",
+          path: "/v1/series",
+          query,
+          file: fileName(),
+          contentType: "text/csv",
+          note: "Upload delimited text; the query names the columns",
+        },
+        text,
+      };
+    }
+    /** @type {any} */
+    let body;
+    try {
+      body = text.trim() ? JSON.parse(text) : {};
+    } catch (e) {
+      return {
+        spec: { method: "POST", path: "/v1/series" },
+        local: `The file is not valid JSON: ${/** @type {Error} */ (e).message}`,
+      };
+    }
+    if (!isObject(body)) {
+      return {
+        spec: { method: "POST", path: "/v1/series" },
+        local: "The JSON must be an object with name, quantity, units, time and value",
+      };
+    }
+    for (const f of metaFields) {
+      if (v[f.name] !== undefined && body[f.name] === undefined) body[f.name] = v[f.name];
+    }
+    for (const f of jsonFields) {
+      const key = f.name.replace(/^json-/, "");
+      const raw = v[f.name];
+      if (raw === undefined) continue;
+      const s = deref(doc, uploadSchema.properties[key]);
+      body[key] = s.type === "array"
+        ? raw.split(",").map((x) => x.trim()).map((
+          x,
+        ) => (x !== "" && Number.isFinite(Number(x)) ? Number(x) : x))
+        : raw;
+    }
+    const small = JSON.stringify(body).length <= 3000;
+    return {
+      spec: small
+        ? { method: "POST", path: "/v1/series", json: body, note: "Upload a JSON series" }
+        : {
+          method: "POST",
+          path: "/v1/series",
+          file: fileName(),
+          contentType: "application/json",
+          note: "Upload a JSON series (the file, with the form's fields added)",
+        },
+      text: small ? undefined : JSON.stringify(body),
+    };
+  };
+  const refresh = async () => {
+    textBox.hidden = isJson();
+    jsonBox.hidden = !isJson();
+    const { spec } = await buildRequest();
+    snip.update([spec]);
+  };
+
+  const form = h(
+    "form",
+    {
+      id: "upload-form",
+      novalidate: true,
+      onchange: refresh,
+      oninput: refresh,
+      onsubmit: async (/** @type {Event} */ e) => {
+        e.preventDefault();
+        for (const f of all) {
+          f.error.textContent = "";
+          f.input.removeAttribute("aria-invalid");
+        }
+        const built = await buildRequest();
+        if (built.local) {
+          return status.replaceChildren(callout("bad", "Not sent", h("p", null, built.local)));
+        }
+        if (!built.text && built.spec.json === undefined) {
+          return status.replaceChildren(
+            callout("bad", "Nothing to upload", h("p", null, "Choose a file or paste the data.")),
+          );
+        }
+        status.replaceChildren(h("p", { class: "muted" }, "Uploading…"));
+        const r = await call(built.spec, built.spec.json === undefined ? { text: built.text } : {});
+        if (r.ok) {
+          const s = r.data.series;
+          const rep = r.data.report ?? {};
+          status.replaceChildren(callout(
+            "ok",
+            r.data.created
+              ? "Stored as a new series"
+              : "Already stored: the same content was uploaded before",
+            h(
+              "p",
+              null,
+              h("a", { href: `#/series/${encodeURIComponent(s.id)}`, id: "uploaded-link" }, s.name),
+              ` · ${s.quantity} in ${s.units} · ${s.n} points · ${s.start_date} – ${s.end_date}`,
+            ),
+            h(
+              "p",
+              { class: "muted" },
+              `Read ${rep.read ?? "?"}, kept ${rep.kept ?? "?"}, missing ${
+                rep.missing ?? 0
+              }, merged duplicates ${rep.aggregated ?? 0}.`,
+            ),
+            h("p", null, h("a", { href: "#/series" }, "See all series")),
+          ));
+          return;
+        }
+        // Point at the form field for query/body metadata problems, and at the row and column
+        // of the file for data problems.
+        const p = r.data ?? {};
+        for (const err of p.errors ?? []) {
+          const key = String(err.pointer ?? "").split("/")[1];
+          const f = all.find((x) => x.name === key || x.name === `json-${key}`);
+          if (f && err.row === undefined) {
+            f.error.textContent = err.message;
+            f.input.setAttribute("aria-invalid", "true");
+          }
+        }
+        const placed = (p.errors ?? []).find((/** @type {any} */ e) => typeof e.row === "number");
+        status.replaceChildren(
+          problemBox(p, "The series was not stored"),
+          placed
+            ? h(
+              "div",
+              { class: "panel", id: "problem-place" },
+              h(
+                "p",
+                null,
+                `First problem at row ${placed.row}`,
+                placed.column !== undefined ? `, column ${placed.column}` : "",
+                `: ${placed.message}`,
+              ),
+              built.text
+                ? excerpt(built.text, placed.row, placed.column, values().delimiter ?? "")
+                : "",
+            )
+            : "",
+        );
+        status.scrollIntoView({ block: "nearest" });
+      },
+    },
+    h(
+      "fieldset",
+      null,
+      h("legend", null, "Data"),
+      h(
+        "div",
+        { class: "choice", role: "radiogroup", "aria-label": "Format" },
+        h("label", { for: "fmt-text" }, fmtText, "Delimited text (CSV, TSV, …)"),
+        h("label", { for: "fmt-json" }, fmtJson, "JSON"),
+      ),
+      h(
+        "div",
+        { class: "grid" },
+        h(
+          "div",
+          { class: "field" },
+          h("label", { for: "up-file" }, "File"),
+          file,
+          h("span", { class: "hint" }, "Or paste the data below."),
+        ),
+        h("div", { class: "field wide" }, h("label", { for: "up-text" }, "Pasted data"), paste),
+      ),
+    ),
+    h(
+      "fieldset",
+      null,
+      h("legend", null, "About the series"),
+      h("div", { class: "grid" }, metaFields.map((f) => f.wrap)),
+    ),
+    textBox,
+    jsonBox,
+    h(
+      "div",
+      { class: "actions" },
+      h("button", { type: "submit" }, "Upload"),
+      h("span", { class: "muted" }, "Nothing is stored unless every row reads cleanly."),
+    ),
+    status,
+  );
+  file.addEventListener("change", () => {
+    const n = file.files?.[0]?.name ?? "";
+    if (/\.json$/i.test(n)) fmtJson.checked = true;
+    else if (n) fmtText.checked = true;
+    refresh();
+  });
+  show(
+    gen,
+    "Upload",
+    h("h1", null, "Upload a series"),
+    h(
+      "p",
+      { class: "lede" },
+      "Delimited text with a header row (comma, semicolon, tab or spaces; # comments), or a JSON series. The options are those of POST /v1/series.",
+    ),
+    form,
+    snip.el,
+  );
+  refresh();
+}
+
+// ---------------------------------------------------------------------------------------------
+// Theme and start
+
+const THEMES = ["auto", "light", "dark"];
+const themeButton = /** @type {HTMLButtonElement} */ (document.getElementById("theme"));
+
+/** @param {string} t */
+function applyTheme(t) {
+  if (t === "light" || t === "dark") document.documentElement.dataset.theme = t;
+  else delete document.documentElement.dataset.theme;
+  themeButton.textContent = `Theme: ${t}`;
+}
+
+let theme = "auto";
+try {
+  theme = localStorage.getItem("sunlag-theme") ?? "auto";
+} catch {
+  theme = "auto";
+}
+applyTheme(theme);
+themeButton.addEventListener("click", () => {
+  theme = THEMES[(THEMES.indexOf(theme) + 1) % THEMES.length];
+  try {
+    localStorage.setItem("sunlag-theme", theme);
+  } catch {
+    // storage unavailable (private mode): the choice lasts for this page only
+  }
+  applyTheme(theme);
+  redrawCharts();
+});
+matchMedia("(prefers-color-scheme: dark)").addEventListener(
+  "change",
+  () => theme === "auto" && redrawCharts(),
+);
+
+addEventListener("hashchange", render);
+render();

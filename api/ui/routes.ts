@@ -1,0 +1,77 @@
+/**
+ * The built-in page: `GET /` serves a static HTML shell, and `/ui/*` its stylesheet and two
+ * small ES modules (plain JavaScript with JSDoc types, checked by `deno check`; no build step).
+ * The page is a client of the public API: it works with no outside network, loads nothing
+ * from elsewhere, and shows every request it makes as `curl` and Python `requests`.
+ *
+ * @module
+ */
+import type { App } from "../app.ts";
+import html from "./page.html" with { type: "text" };
+import css from "./page.css" with { type: "text" };
+import pageJs from "./page.js" with { type: "text" };
+import snippetsJs from "./snippets.js" with { type: "text" };
+import icon from "./icon.svg" with { type: "text" };
+
+/** Content Security Policy of the page: only this origin; inline styles for chart SVGs. */
+export const UI_CSP = [
+  "default-src 'self'",
+  "script-src 'self'",
+  "style-src 'self' 'unsafe-inline'",
+  "img-src 'self' data:",
+  "connect-src 'self'",
+  "object-src 'none'",
+  "base-uri 'none'",
+  "form-action 'self'",
+  "frame-ancestors 'none'",
+].join("; ");
+
+interface Asset {
+  path: string;
+  type: string;
+  body: string;
+}
+
+/** Every asset of the page, by path. */
+export const UI_ASSETS: readonly Asset[] = [
+  { path: "/", type: "text/html; charset=utf-8", body: html },
+  { path: "/ui/page.css", type: "text/css; charset=utf-8", body: css },
+  { path: "/ui/page.js", type: "text/javascript; charset=utf-8", body: pageJs },
+  { path: "/ui/snippets.js", type: "text/javascript; charset=utf-8", body: snippetsJs },
+  { path: "/ui/icon.svg", type: "image/svg+xml", body: icon },
+];
+
+async function etagOf(body: string): Promise<string> {
+  const digest = await crypto.subtle.digest("SHA-256", new TextEncoder().encode(body));
+  const hex = Array.from(
+    new Uint8Array(digest).slice(0, 12),
+    (b) => b.toString(16).padStart(2, "0"),
+  )
+    .join("");
+  return `"ui-${hex}"`;
+}
+
+/** Serve `/` and `/ui/*`; revalidated by ETag so a new version of the service shows at once. */
+export function registerUiRoutes(app: App): void {
+  for (const asset of UI_ASSETS) {
+    const etag = etagOf(asset.body);
+    app.get(asset.path, async (c) => {
+      const tag = await etag;
+      const headers: Record<string, string> = {
+        "Content-Type": asset.type,
+        "Cache-Control": "no-cache",
+        ETag: tag,
+        "X-Content-Type-Options": "nosniff",
+      };
+      if (asset.path === "/") {
+        headers["Content-Security-Policy"] = UI_CSP;
+        headers["Referrer-Policy"] = "no-referrer";
+      }
+      const inm = c.req.header("if-none-match");
+      if (inm && inm.split(",").map((t) => t.trim()).includes(tag)) {
+        return new Response(null, { status: 304, headers });
+      }
+      return c.body(asset.body, 200, headers);
+    });
+  }
+}

@@ -1,0 +1,171 @@
+/**
+ * The built-in page's routes and its script snippets (the browser behaviour is tested in
+ * test/browser/ui_test.ts).
+ *
+ * @module
+ */
+import assert from "node:assert/strict";
+import { makeTestApp } from "./helpers.ts";
+import { UI_ASSETS } from "../../api/ui/routes.ts";
+import {
+  curlCommand,
+  pythonLiteral,
+  pythonSnippet,
+  queryString,
+  shellQuote,
+} from "../../api/ui/snippets.js";
+
+Deno.test("registerUiRoutes() serves the page and its assets with types, CSP and ETags", async () => {
+  const svc = await makeTestApp();
+  try {
+    const res = await svc.get("/");
+    assert.equal(res.status, 200);
+    assert.match(res.headers.get("content-type") ?? "", /^text\/html/);
+    const csp = res.headers.get("content-security-policy") ?? "";
+    assert.match(csp, /default-src 'self'/);
+    assert.match(csp, /script-src 'self'(;|$)/);
+    const html = await res.text();
+    for (const asset of ["/ui/page.css", "/ui/page.js"]) assert.ok(html.includes(asset), asset);
+    for (const a of UI_ASSETS) {
+      const r = await svc.get(a.path);
+      assert.equal(r.status, 200, a.path);
+      assert.equal(r.headers.get("content-type"), a.type);
+      const etag = r.headers.get("etag") ?? "";
+      assert.match(etag, /^"ui-[0-9a-f]{24}"$/);
+      assert.equal(await r.text(), a.body);
+      const again = await svc.get(a.path, { "if-none-match": etag });
+      assert.equal(again.status, 304, a.path);
+      await again.body?.cancel();
+    }
+  } finally {
+    await svc.close();
+  }
+});
+
+Deno.test("the page loads nothing from another origin (no CDN, no external fonts)", () => {
+  for (const a of UI_ASSETS) {
+    // Every absolute URL in the assets would be a request elsewhere; the only ones allowed
+    // are XML namespace names, which are identifiers, not fetched.
+    const urls = a.body.match(/\b(?:https?:)?\/\/[\w.-]+\.[a-z]{2,}[^\s"'`)]*/gi) ?? [];
+    const fetched = urls.filter((u) => !u.startsWith("http://www.w3.org/"));
+    assert.deepEqual(fetched, [], a.path);
+    assert.doesNotMatch(a.body, /@import|@font-face/, a.path);
+  }
+});
+
+Deno.test("page.js sets text from the service as text, never as HTML", () => {
+  const js = UI_ASSETS.find((a) => a.path === "/ui/page.js")!.body;
+  assert.doesNotMatch(js, /\binnerHTML\b|\bouterHTML\b|insertAdjacentHTML|document\.write/);
+});
+
+Deno.test("shellQuote() survives a real POSIX shell for awkward strings", async (t) => {
+  const cases = [
+    "plain",
+    "it's",
+    "a b",
+    "$HOME `x` \\n",
+    "semi;colon&amp",
+    "new\nline",
+    "ünïcødé ☀",
+  ];
+  for (const s of cases) {
+    await t.step(JSON.stringify(s), async () => {
+      // Reference: /bin/sh itself (common practice: the shell is the authority on its quoting).
+      const out = await new Deno.Command("/bin/sh", {
+        args: ["-c", `printf '%s' ${shellQuote(s)}`],
+        stdout: "piped",
+      }).output();
+      assert.equal(new TextDecoder().decode(out.stdout), s);
+    });
+  }
+});
+
+Deno.test("curlCommand() builds the request the page makes", () => {
+  assert.equal(
+    curlCommand("http://h:1/", { method: "GET", path: "/v1/series", query: { limit: 20, q: "" } }),
+    "curl -sS 'http://h:1/v1/series?limit=20'",
+  );
+  const up = curlCommand("http://h", {
+    method: "POST",
+    path: "/v1/series",
+    query: { name: "Spot count (test)", time: "date" },
+    file: "my data.csv",
+  });
+  assert.equal(
+    up,
+    "curl -sS -X POST -H 'Content-Type: text/csv' \\\n  --data-binary '@my data.csv' " +
+      "'http://h/v1/series?name=Spot%20count%20(test)&time=date'",
+  );
+  const sse = curlCommand("http://h", { method: "GET", path: "/v1/runs/x/events", stream: true });
+  assert.equal(sse, "curl -sS -N http://h/v1/runs/x/events");
+  assert.equal(queryString({ a: "x y", b: undefined, c: 0, d: false }), "a=x%20y&c=0&d=false");
+});
+
+const python = "/usr/bin/python3";
+const hasPython = (() => {
+  try {
+    return Deno.statSync(python).isFile;
+  } catch {
+    return false;
+  }
+})();
+
+Deno.test({
+  name: "pythonLiteral() is read back by Python's ast.literal_eval as the same JSON value",
+  ignore: !hasPython,
+  fn: async () => {
+    const value = {
+      solar: "sha256:" + "ab".repeat(32),
+      lags: [-24, 0, 24],
+      flag: true,
+      off: false,
+      none: null,
+      x: 1.5e-7,
+      text: 'quote " and \\ and ünï ☀',
+      nested: { deep: [{ a: 1 }, { b: [true, null] }], long: "y".repeat(80) },
+    };
+    const code = "import ast, json, sys\nprint(json.dumps(ast.literal_eval(sys.stdin.read())))";
+    const child = new Deno.Command(python, {
+      args: ["-c", code],
+      stdin: "piped",
+      stdout: "piped",
+      stderr: "piped",
+    }).spawn();
+    const w = child.stdin.getWriter();
+    await w.write(new TextEncoder().encode(pythonLiteral(value)));
+    await w.close();
+    const out = await child.output();
+    assert.equal(out.code, 0, new TextDecoder().decode(out.stderr));
+    assert.deepEqual(JSON.parse(new TextDecoder().decode(out.stdout)), value);
+  },
+});
+
+Deno.test({
+  name: "pythonSnippet() is valid Python (compiled by /usr/bin/python3)",
+  ignore: !hasPython,
+  fn: async () => {
+    const py = pythonSnippet("http://127.0.0.1:8080", [
+      { method: "GET", path: "/v1/series", query: { limit: 20 }, note: "list" },
+      { method: "POST", path: "/v1/series", query: { name: "x" }, file: "a.csv" },
+      {
+        method: "POST",
+        path: "/v1/cycles",
+        headers: { Prefer: "respond-async" },
+        json: { a: [1, 2] },
+      },
+      { method: "GET", path: "/v1/runs/r/events", stream: true },
+      { method: "GET", path: "/v1/runs/r/outputs/o", query: { format: "csv" }, save: "o.csv" },
+    ]);
+    const out = await new Deno.Command(python, {
+      args: ["-c", "import sys; compile(sys.argv[1], 'snippet', 'exec')", py],
+      stderr: "piped",
+    }).output();
+    assert.equal(out.code, 0, new TextDecoder().decode(out.stderr) + "\n" + py);
+    assert.match(py, /^import json\nimport requests\n\nBASE = "http:\/\/127\.0\.0\.1:8080"/);
+  },
+});
+
+Deno.test("shellQuote() leaves safe words bare", () => {
+  assert.equal(shellQuote("http://h/v1/series"), "http://h/v1/series");
+  assert.equal(shellQuote(""), "''");
+});
