@@ -147,3 +147,24 @@ Deno.test("preprocessSeries() removes polynomials and slow variations", async (t
     );
   });
 });
+
+Deno.test("laggedCorrelation() matches R's ccf and cor on R's sunspot.year and nhtemp", async () => {
+  // R 4.2.2 stats::ccf (full normalisation) and cor() over the overlap (Pearson), on R's
+  // datasets package data; script and exact commands: fixtures/reference/ccf_r.R
+  const ref = JSON.parse(
+    await Deno.readTextFile(new URL("../../../fixtures/reference/ccf_r.json", import.meta.url)),
+  );
+  assert.match(ref.r_version, /^R version 4\./);
+  for (const cs of ref.cases) {
+    const x = Float64Array.from(cs.x as number[]), y = Float64Array.from(cs.y as number[]);
+    const lags = cs.sunlag_lag as number[];
+    const minLag = Math.min(...lags), maxLag = Math.max(...lags);
+    const c = laggedCorrelation(x, y, { minLag, maxLag });
+    lags.forEach((k, i) => {
+      const j = k - minLag;
+      close(c.rFull[j], cs.full[i], 1e-12, `${cs.name} full lag ${k}`);
+      close(c.r[j], cs.overlap[i], 1e-12, `${cs.name} overlap lag ${k}`);
+      assert.equal(c.n[j], x.length - Math.abs(k));
+    });
+  }
+});
