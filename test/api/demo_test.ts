@@ -2,6 +2,7 @@ import assert from "node:assert/strict";
 import { demoFileEntries, loadDemo, readDemoSeries } from "../../api/demo.ts";
 import { openStoreFromSpec } from "../../api/store/mod.ts";
 import { contentId, ingestText } from "../../api/ingest/mod.ts";
+import { makeTestApp } from "./helpers.ts";
 
 Deno.test("loadDemo() stores every demo series of the manifest and returns their ids", async (t) => {
   const store = await openStoreFromSpec("sqlite::memory:");
@@ -75,4 +76,43 @@ Deno.test("readDemoSeries() names the file when a demo file does not ingest", as
   );
   // the real ingester accepts every file
   assert.equal((await readDemoSeries({ ingestText, contentId })).length, 8);
+});
+
+Deno.test("demo series get the same ids as the same files uploaded through POST /v1/series", async () => {
+  const svc = await makeTestApp();
+  try {
+    const ids = await loadDemo(svc.store);
+    const entries = await demoFileEntries();
+    for (const [i, e] of entries.entries()) {
+      const q = new URLSearchParams({
+        name: e.upload.name,
+        quantity: e.upload.quantity,
+        units: e.upload.units,
+        description: e.upload.description,
+        source: e.upload.source,
+        time: e.time_column,
+        value: e.value_column,
+        delimiter: "comma",
+        time_format: "iso",
+      });
+      if (e.upload.version !== null) q.set("version", e.upload.version);
+      if (e.uncertainty_column) q.set("uncertainty", e.uncertainty_column);
+      const body = await Deno.readTextFile(
+        new URL(`../../fixtures/demo/${e.file}`, import.meta.url),
+      );
+      const res = await svc.app.request(`/v1/series?${q}`, {
+        method: "POST",
+        headers: { "content-type": "text/csv" },
+        body,
+      });
+      const answer = await res.json();
+      assert.equal(res.status, 200, `${e.file}: ${JSON.stringify(answer)}`);
+      assert.equal(answer.created, false);
+      assert.equal(answer.series.id, ids[i], e.file);
+    }
+    const list = await (await svc.get("/v1/series?limit=100")).json();
+    assert.equal(list.total, ids.length);
+  } finally {
+    await svc.close();
+  }
 });
