@@ -87,7 +87,9 @@ export function registerSeriesRoutes(app: App, deps: { store: Store; config: Con
       request: {
         query: TextUploadQuery.partial(),
         body: {
-          required: true,
+          // Not `required` here: the JSON schema then applies only to JSON bodies, and text
+          // bodies are parsed by the handler.
+          required: false,
           content: {
             "application/json": { schema: SeriesUpload },
             "text/csv": {
