@@ -40,11 +40,16 @@ export function float64ToBytesLE(values: Float64Array): Uint8Array {
  * @example
  * ```ts
  * import assert from "node:assert/strict";
+ * import { Buffer } from "node:buffer";
  * import { bytesLEToFloat64, float64ToBytesLE } from "./float64_blob.ts";
  * const x = new Float64Array([-0, 5e-324, 1.7976931348623157e308]);
  * const y = bytesLEToFloat64(float64ToBytesLE(x), 3);
  * assert.ok(Object.is(y[0], -0));
  * assert.deepEqual(y, x);
+ * // A driver's Buffer that views part of a larger pool decodes to exactly its own bytes.
+ * const pool = float64ToBytesLE(new Float64Array([7, 2.5, 9]));
+ * const view = Buffer.from(pool.buffer, 8, 8);
+ * assert.deepEqual(bytesLEToFloat64(view), new Float64Array([2.5]));
  * ```
  */
 export function bytesLEToFloat64(bytes: Uint8Array, expectedLength?: number): Float64Array {
@@ -59,7 +64,9 @@ export function bytesLEToFloat64(bytes: Uint8Array, expectedLength?: number): Fl
       `Cannot decode point blob: expected ${expectedLength} points, got ${n}`,
     );
   }
-  if (LITTLE_ENDIAN) return new Float64Array(bytes.slice().buffer);
+  // Copy through the Uint8Array constructor: a Node Buffer's slice() is a view into a shared
+  // pool, so `.buffer` would be the whole pool.
+  if (LITTLE_ENDIAN) return new Float64Array(new Uint8Array(bytes).buffer);
   const out = new Float64Array(n);
   const view = new DataView(bytes.buffer, bytes.byteOffset, bytes.byteLength);
   for (let i = 0; i < n; i++) out[i] = view.getFloat64(i * 8, true);

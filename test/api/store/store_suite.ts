@@ -137,22 +137,36 @@ function isPlain(o: unknown): boolean {
   return typeof o === "object" && o !== null && Object.getPrototypeOf(o) === Object.prototype;
 }
 
+/** How the suite's tests are registered for one adapter. */
+export interface StoreSuiteOptions {
+  /** Register the tests as ignored (e.g. no server on this machine); say why in `name`. */
+  ignore?: boolean;
+}
+
 /** Register the whole contract as Deno tests named "<name>: ...". */
-export function storeSuite(name: string, makeBacking: () => Promise<StoreBacking>): void {
+export function storeSuite(
+  name: string,
+  makeBacking: () => Promise<StoreBacking>,
+  options: StoreSuiteOptions = {},
+): void {
   /** Run `body` on a fresh backing and store, closing and disposing afterwards. */
   function withStore(
     title: string,
     body: (store: Store, backing: StoreBacking, t: Deno.TestContext) => Promise<void>,
   ): void {
-    Deno.test(`${name}: ${title}`, async (t) => {
-      const backing = await makeBacking();
-      const store = await backing.open();
-      try {
-        await body(store, backing, t);
-      } finally {
-        await store.close();
-        await backing.dispose();
-      }
+    Deno.test({
+      name: `${name}: ${title}`,
+      ignore: options.ignore ?? false,
+      async fn(t) {
+        const backing = await makeBacking();
+        const store = await backing.open();
+        try {
+          await body(store, backing, t);
+        } finally {
+          await store.close();
+          await backing.dispose();
+        }
+      },
     });
   }
 

@@ -1,0 +1,487 @@
+/**
+ * The PostgreSQL store, for a service shared by a group or run beside other databases. Same
+ * contract and suite as the SQLite store; uses the `postgres` driver (connection pool,
+ * transactions through `sql.begin`).
+ *
+ * - Every write is one transaction. Rows whose existence a write depends on are locked:
+ *   `deleteSeries` takes the series row `FOR UPDATE` before checking its users, and `putRun`
+ *   takes each input series `FOR KEY SHARE`, so a delete and a run that uses the series
+ *   serialise and the in-use rule holds under concurrency (foreign keys back it up).
+ * - Listings run in one REPEATABLE READ, READ ONLY transaction so count and page agree.
+ * - Schema steps are recorded in `schema_migrations` and applied under a transaction-scoped
+ *   advisory lock, so several service instances starting at once apply each step once.
+ * - Points are `bytea` columns of little-endian doubles stored out of line without
+ *   compression (`STORAGE EXTERNAL`: random doubles do not compress, trying costs time).
+ * - Times and JSON are kept as text, exactly as written, like the SQLite store.
+ *
+ * @module
+ */
+import postgres from "postgres";
+import type {
+  Page,
+  RunRecord,
+  RunStatus,
+  RunSummary,
+  SeriesMeta,
+  Store,
+  StoredSeries,
+} from "./types.ts";
+import { bytesLEToFloat64, float64ToBytesLE } from "./float64_blob.ts";
+import {
+  checkPaging,
+  checkSeries,
+  type DbRow,
+  encodeRunPatch,
+  interruptedProblem,
+  jsonOrNull,
+  metaOf,
+  type Migration,
+  RUN_COLUMNS,
+  RUN_SUMMARY_COLUMNS,
+  runValues,
+  SERIES_META_COLUMNS,
+  seriesMetaValues,
+  text,
+  toRunSummary,
+  toSeriesMeta,
+} from "./common.ts";
+import {
+  DuplicateRunError,
+  MissingInputError,
+  RunNotFoundError,
+  SchemaMismatchError,
+} from "./errors.ts";
+
+/** The schema history of the PostgreSQL store, oldest first. */
+export const POSTGRES_MIGRATIONS: readonly Migration[] = [
+  {
+    version: 1,
+    name: "series, points, runs and run inputs",
+    sql: `
+      CREATE TABLE series (
+        seq BIGSERIAL PRIMARY KEY,
+        id TEXT NOT NULL UNIQUE,
+        name TEXT NOT NULL,
+        quantity TEXT NOT NULL,
+        units TEXT NOT NULL,
+        description TEXT,
+        source TEXT,
+        version TEXT,
+        resolution TEXT NOT NULL
+          CHECK (resolution IN ('daily', 'monthly', 'annual', 'irregular')),
+        n INTEGER NOT NULL CHECK (n >= 0),
+        start_time DOUBLE PRECISION NOT NULL,
+        end_time DOUBLE PRECISION NOT NULL,
+        derived_from TEXT,
+        created_at TEXT NOT NULL
+      );
+      CREATE INDEX series_newest ON series (created_at DESC, seq DESC);
+      CREATE INDEX series_by_quantity ON series (quantity, created_at DESC, seq DESC);
+      CREATE INDEX series_by_origin ON series (derived_from);
+
+      CREATE TABLE series_points (
+        series_id TEXT PRIMARY KEY REFERENCES series (id) ON DELETE CASCADE,
+        time BYTEA NOT NULL,
+        value BYTEA NOT NULL,
+        uncertainty BYTEA
+      );
+      ALTER TABLE series_points ALTER COLUMN time SET STORAGE EXTERNAL,
+        ALTER COLUMN value SET STORAGE EXTERNAL,
+        ALTER COLUMN uncertainty SET STORAGE EXTERNAL;
+
+      CREATE TABLE runs (
+        seq BIGSERIAL PRIMARY KEY,
+        id TEXT NOT NULL UNIQUE,
+        kind TEXT NOT NULL,
+        created_at TEXT NOT NULL,
+        updated_at TEXT NOT NULL,
+        status TEXT NOT NULL
+          CHECK (status IN ('queued', 'running', 'succeeded', 'failed', 'cancelled')),
+        progress DOUBLE PRECISION NOT NULL,
+        params TEXT NOT NULL,
+        service_version TEXT NOT NULL,
+        algorithm_version TEXT NOT NULL,
+        seed BIGINT,
+        result TEXT,
+        result_digest TEXT,
+        error TEXT,
+        eta_seconds DOUBLE PRECISION
+      );
+      CREATE INDEX runs_newest ON runs (created_at DESC, seq DESC);
+      CREATE INDEX runs_by_kind ON runs (kind, created_at DESC, seq DESC);
+      CREATE INDEX runs_by_status ON runs (status, created_at DESC, seq DESC);
+
+      CREATE TABLE run_input_series (
+        run_id TEXT NOT NULL REFERENCES runs (id) ON DELETE CASCADE,
+        position INTEGER NOT NULL,
+        series_id TEXT NOT NULL REFERENCES series (id),
+        PRIMARY KEY (run_id, position)
+      );
+      CREATE INDEX run_input_series_by_series ON run_input_series (series_id);
+
+      CREATE TABLE run_input_runs (
+        run_id TEXT NOT NULL REFERENCES runs (id) ON DELETE CASCADE,
+        position INTEGER NOT NULL,
+        input_run_id TEXT NOT NULL REFERENCES runs (id),
+        PRIMARY KEY (run_id, position)
+      );
+      CREATE INDEX run_input_runs_by_input ON run_input_runs (input_run_id);
+    `,
+  },
+];
+
+/** Options of {@link openPostgresStore}. */
+export interface PostgresStoreOptions {
+  /** Connection URL, e.g. `postgres://sunlag@127.0.0.1:5432/sunlag`. */
+  url: string;
+  /** Largest number of pooled connections. @default 10 */
+  max?: number;
+  /** Seconds to wait for a connection before failing. @default 10 */
+  connectTimeoutSeconds?: number;
+  /** Schema steps to apply; tests use this to simulate other versions. @default POSTGRES_MIGRATIONS */
+  migrations?: readonly Migration[];
+}
+
+type Sql = postgres.Sql;
+type Tx = postgres.TransactionSql;
+
+/** Arbitrary fixed key of the advisory lock that serialises schema migrations. */
+const MIGRATION_LOCK_KEY = 0x5_1a6_0001;
+
+function seriesRow(s: SeriesMeta): Record<string, string | number | null> {
+  const values = seriesMetaValues(s);
+  return Object.fromEntries(SERIES_META_COLUMNS.map((c, i) => [c, values[i]]));
+}
+
+function runRow(r: RunRecord): Record<string, string | number | null> {
+  const values = runValues(r);
+  return Object.fromEntries(RUN_COLUMNS.map((c, i) => [c, values[i]]));
+}
+
+/** A `Store` on a PostgreSQL database. Create it with {@link openPostgresStore}. */
+export class PostgresStore implements Store {
+  readonly kind = "postgres";
+  #sql: Sql;
+
+  /** Use {@link openPostgresStore}; the constructor expects a migrated database. */
+  constructor(sql: Sql) {
+    this.#sql = sql;
+  }
+
+  async ping(): Promise<boolean> {
+    try {
+      const rows = await this.#sql`SELECT 1 AS one`;
+      return rows[0]?.one === 1;
+    } catch {
+      return false;
+    }
+  }
+
+  async putSeries(s: StoredSeries): Promise<{ created: boolean; series: SeriesMeta }> {
+    checkSeries(s);
+    return await this.#sql.begin(async (tx: Tx) => {
+      const inserted = await tx`
+        INSERT INTO series ${tx(seriesRow(s))} ON CONFLICT (id) DO NOTHING RETURNING id`;
+      if (inserted.length === 0) {
+        const [row] = await tx`
+          SELECT ${tx([...SERIES_META_COLUMNS])} FROM series WHERE id = ${s.id}`;
+        return { created: false, series: toSeriesMeta(row) };
+      }
+      await tx`
+        INSERT INTO series_points (series_id, time, value, uncertainty) VALUES (
+          ${s.id}, ${float64ToBytesLE(s.time)}, ${float64ToBytesLE(s.value)},
+          ${s.uncertainty === null ? null : float64ToBytesLE(s.uncertainty)})`;
+      return { created: true, series: metaOf(s) };
+    });
+  }
+
+  async getSeries(id: string): Promise<StoredSeries | null> {
+    const rows = await this.#sql`
+      SELECT ${this.#sql(SERIES_META_COLUMNS.map((c) => "s." + c))},
+        p.time AS p_time, p.value AS p_value, p.uncertainty AS p_uncertainty
+      FROM series s JOIN series_points p ON p.series_id = s.id WHERE s.id = ${id}`;
+    if (rows.length === 0) return null;
+    const row = rows[0];
+    const meta = toSeriesMeta(row);
+    return {
+      ...meta,
+      time: bytesLEToFloat64(row.p_time, meta.n),
+      value: bytesLEToFloat64(row.p_value, meta.n),
+      uncertainty: row.p_uncertainty === null ? null : bytesLEToFloat64(row.p_uncertainty, meta.n),
+    };
+  }
+
+  async getSeriesMeta(id: string): Promise<SeriesMeta | null> {
+    const rows = await this.#sql`
+      SELECT ${this.#sql([...SERIES_META_COLUMNS])} FROM series WHERE id = ${id}`;
+    return rows.length ? toSeriesMeta(rows[0]) : null;
+  }
+
+  async listSeries(
+    q: { quantity?: string; limit: number; offset: number },
+  ): Promise<Page<SeriesMeta>> {
+    checkPaging("list series", q.limit, q.offset);
+    return await this.#sql.begin("ISOLATION LEVEL REPEATABLE READ READ ONLY", async (tx: Tx) => {
+      const where = q.quantity === undefined ? tx`` : tx`WHERE quantity = ${q.quantity}`;
+      const [{ n }] = await tx`SELECT count(*) AS n FROM series ${where}`;
+      const rows = await tx`
+        SELECT ${tx([...SERIES_META_COLUMNS])} FROM series ${where}
+        ORDER BY created_at DESC, seq DESC LIMIT ${q.limit} OFFSET ${q.offset}`;
+      return { items: rows.map((r) => toSeriesMeta(r)), total: Number(n) };
+    });
+  }
+
+  async deleteSeries(id: string): Promise<"deleted" | "not_found" | "in_use"> {
+    return await this.#sql.begin(async (tx: Tx) => {
+      const found = await tx`SELECT id FROM series WHERE id = ${id} FOR UPDATE`;
+      if (found.length === 0) return "not_found" as const;
+      const users = await tx`SELECT 1 FROM run_input_series WHERE series_id = ${id} LIMIT 1`;
+      if (users.length) return "in_use" as const;
+      await tx`DELETE FROM series_points WHERE series_id = ${id}`;
+      await tx`DELETE FROM series WHERE id = ${id}`;
+      return "deleted" as const;
+    });
+  }
+
+  /** Lock and check the inputs of a run; throws MissingInputError for the first absent one. */
+  async #checkInputs(
+    tx: Tx,
+    runId: string,
+    inputSeries: readonly string[],
+    inputRuns: readonly string[],
+  ): Promise<void> {
+    if (inputSeries.length) {
+      const rows = await tx`
+        SELECT id FROM series WHERE id IN ${tx([...inputSeries])} FOR KEY SHARE`;
+      const have = new Set(rows.map((r) => text(r.id)));
+      const missing = inputSeries.find((s) => !have.has(s));
+      if (missing !== undefined) throw new MissingInputError(runId, "series", missing);
+    }
+    if (inputRuns.length) {
+      const rows = await tx`SELECT id FROM runs WHERE id IN ${tx([...inputRuns])} FOR KEY SHARE`;
+      const have = new Set(rows.map((r) => text(r.id)));
+      const missing = inputRuns.find((r) => !have.has(r));
+      if (missing !== undefined) throw new MissingInputError(runId, "run", missing);
+    }
+  }
+
+  async #writeLinks(
+    tx: Tx,
+    runId: string,
+    inputSeries: readonly string[],
+    inputRuns: readonly string[],
+  ): Promise<void> {
+    if (inputSeries.length) {
+      const rows = inputSeries.map((series_id, position) => ({
+        run_id: runId,
+        position,
+        series_id,
+      }));
+      await tx`INSERT INTO run_input_series ${tx(rows)}`;
+    }
+    if (inputRuns.length) {
+      const rows = inputRuns.map((input_run_id, position) => ({
+        run_id: runId,
+        position,
+        input_run_id,
+      }));
+      await tx`INSERT INTO run_input_runs ${tx(rows)}`;
+    }
+  }
+
+  /**
+   * Insert a new run, atomically with its input links.
+   * @throws {DuplicateRunError} when the id is taken.
+   * @throws {MissingInputError} when an input series or input run is not stored.
+   */
+  async putRun(r: RunRecord): Promise<void> {
+    await this.#sql.begin(async (tx: Tx) => {
+      await this.#checkInputs(tx, r.id, r.input_series, r.input_runs);
+      const inserted = await tx`
+        INSERT INTO runs ${tx(runRow(r))} ON CONFLICT (id) DO NOTHING RETURNING id`;
+      if (inserted.length === 0) throw new DuplicateRunError(r.id);
+      await this.#writeLinks(tx, r.id, r.input_series, r.input_runs);
+    });
+  }
+
+  /**
+   * Change the given fields of a run. `updated_at` is set to now unless the patch carries it.
+   * Input lists in the patch replace the stored ones.
+   * @throws {RunNotFoundError} when no run has this id.
+   * @throws {MissingInputError} when a new input series or input run is not stored.
+   */
+  async updateRun(
+    id: string,
+    patch: Partial<Omit<RunRecord, "id" | "kind" | "created_at">>,
+  ): Promise<void> {
+    const cols = Object.fromEntries(encodeRunPatch(id, patch, new Date().toISOString()));
+    await this.#sql.begin(async (tx: Tx) => {
+      const updated = await tx`UPDATE runs SET ${tx(cols)} WHERE id = ${id} RETURNING id`;
+      if (updated.length === 0) throw new RunNotFoundError(id);
+      if (patch.input_series !== undefined || patch.input_runs !== undefined) {
+        await this.#checkInputs(tx, id, patch.input_series ?? [], patch.input_runs ?? []);
+        if (patch.input_series !== undefined) {
+          await tx`DELETE FROM run_input_series WHERE run_id = ${id}`;
+        }
+        if (patch.input_runs !== undefined) {
+          await tx`DELETE FROM run_input_runs WHERE run_id = ${id}`;
+        }
+        await this.#writeLinks(tx, id, patch.input_series ?? [], patch.input_runs ?? []);
+      }
+    });
+  }
+
+  async #links(
+    tx: Tx,
+    runIds: string[],
+  ): Promise<Map<string, { series: string[]; runs: string[] }>> {
+    const out = new Map<string, { series: string[]; runs: string[] }>();
+    for (const id of runIds) out.set(id, { series: [], runs: [] });
+    if (runIds.length === 0) return out;
+    const srows = await tx`
+      SELECT run_id, series_id FROM run_input_series WHERE run_id IN ${tx(runIds)}
+      ORDER BY run_id, position`;
+    for (const r of srows) out.get(text(r.run_id))!.series.push(text(r.series_id));
+    const rrows = await tx`
+      SELECT run_id, input_run_id FROM run_input_runs WHERE run_id IN ${tx(runIds)}
+      ORDER BY run_id, position`;
+    for (const r of rrows) out.get(text(r.run_id))!.runs.push(text(r.input_run_id));
+    return out;
+  }
+
+  async getRun(id: string): Promise<RunRecord | null> {
+    return await this.#sql.begin("ISOLATION LEVEL REPEATABLE READ READ ONLY", async (tx: Tx) => {
+      const rows = await tx`SELECT ${tx([...RUN_COLUMNS])} FROM runs WHERE id = ${id}`;
+      if (rows.length === 0) return null;
+      const row: DbRow = rows[0];
+      const links = (await this.#links(tx, [id])).get(id)!;
+      const record: RunRecord = {
+        ...toRunSummary(row, links.series, links.runs),
+        params: JSON.parse(text(row.params)),
+        result: jsonOrNull(row.result),
+        error: jsonOrNull(row.error),
+      };
+      return record;
+    });
+  }
+
+  async listRuns(
+    q: { kind?: string; status?: RunStatus; limit: number; offset: number },
+  ): Promise<Page<RunSummary>> {
+    checkPaging("list runs", q.limit, q.offset);
+    return await this.#sql.begin("ISOLATION LEVEL REPEATABLE READ READ ONLY", async (tx: Tx) => {
+      const kind = q.kind === undefined ? tx`` : tx`AND kind = ${q.kind}`;
+      const status = q.status === undefined ? tx`` : tx`AND status = ${q.status}`;
+      const [{ n }] = await tx`SELECT count(*) AS n FROM runs WHERE TRUE ${kind} ${status}`;
+      const rows = await tx`
+        SELECT ${tx([...RUN_SUMMARY_COLUMNS])} FROM runs WHERE TRUE ${kind} ${status}
+        ORDER BY created_at DESC, seq DESC LIMIT ${q.limit} OFFSET ${q.offset}`;
+      const links = await this.#links(tx, rows.map((r) => text(r.id)));
+      const items = rows.map((r) => {
+        const l = links.get(text(r.id))!;
+        return toRunSummary(r, l.series, l.runs);
+      });
+      return { items, total: Number(n) };
+    });
+  }
+
+  async runsUsingSeries(id: string): Promise<string[]> {
+    const rows = await this.#sql`
+      SELECT DISTINCT r.id, r.created_at, r.seq
+      FROM run_input_series l JOIN runs r ON r.id = l.run_id
+      WHERE l.series_id = ${id} ORDER BY r.created_at DESC, r.seq DESC`;
+    return rows.map((r) => text(r.id));
+  }
+
+  /**
+   * Mark every queued or running run failed, as after a restart that lost them. The error is
+   * an RFC 9457 problem body `{ type, title, status: 500, detail: reason }`.
+   */
+  async failInterrupted(reason: string): Promise<number> {
+    const error = JSON.stringify(interruptedProblem(reason));
+    const res = await this.#sql`
+      UPDATE runs SET status = 'failed', error = ${error}, eta_seconds = NULL,
+        updated_at = ${new Date().toISOString()}
+      WHERE status IN ('queued', 'running')`;
+    return res.count;
+  }
+
+  /** Applied schema steps, oldest first. */
+  async schemaVersions(): Promise<{ version: number; name: string; applied_at: string }[]> {
+    const rows = await this.#sql`
+      SELECT version, name, applied_at FROM schema_migrations ORDER BY version`;
+    return rows.map((r) => ({
+      version: Number(r.version),
+      name: text(r.name),
+      applied_at: text(r.applied_at),
+    }));
+  }
+
+  /** Close every pooled connection (waiting up to 5 s for queries in flight). Idempotent. */
+  async close(): Promise<void> {
+    await this.#sql.end({ timeout: 5 });
+  }
+}
+
+/** Apply the missing schema steps in one transaction under an advisory lock. */
+async function migrate(sql: Sql, migrations: readonly Migration[]): Promise<void> {
+  migrations.forEach((m, i) => {
+    if (m.version !== i + 1) {
+      throw new SchemaMismatchError(
+        `Cannot migrate store: migration versions must be 1, 2, 3...; position ${i} has ${m.version}`,
+      );
+    }
+  });
+  await sql.begin(async (tx: Tx) => {
+    await tx`SELECT pg_advisory_xact_lock(${MIGRATION_LOCK_KEY})`;
+    await tx`CREATE TABLE IF NOT EXISTS schema_migrations (
+      version INTEGER PRIMARY KEY,
+      name TEXT NOT NULL,
+      applied_at TEXT NOT NULL
+    )`;
+    const applied = (await tx`SELECT version, name FROM schema_migrations ORDER BY version`)
+      .map((r) => ({ version: Number(r.version), name: text(r.name) }));
+    const newest = applied.length ? applied[applied.length - 1].version : 0;
+    if (newest > migrations.length) {
+      throw new SchemaMismatchError(
+        `Cannot open store: its schema version ${newest} is newer than this service knows ` +
+          `(${migrations.length}); upgrade the service`,
+      );
+    }
+    applied.forEach((a, i) => {
+      const m = migrations[i];
+      if (a.version !== m.version || a.name !== m.name) {
+        throw new SchemaMismatchError(
+          `Cannot open store: applied schema step ${a.version} "${a.name}" differs from this ` +
+            `service's step ${m.version} "${m.name}"`,
+        );
+      }
+    });
+    for (const m of migrations.slice(applied.length)) {
+      await tx.unsafe(m.sql);
+      await tx`INSERT INTO schema_migrations (version, name, applied_at)
+        VALUES (${m.version}, ${m.name}, ${new Date().toISOString()})`;
+    }
+  });
+}
+
+/**
+ * Connect to the PostgreSQL database at `url` and bring its schema up to date.
+ *
+ * @throws {SchemaMismatchError} when the database holds a newer or different schema.
+ * @throws {Error} from the driver when the server cannot be reached.
+ */
+export async function openPostgresStore(options: PostgresStoreOptions): Promise<PostgresStore> {
+  const sql = postgres(options.url, {
+    max: options.max ?? 10,
+    connect_timeout: options.connectTimeoutSeconds ?? 10,
+    onnotice: () => {},
+  });
+  try {
+    await migrate(sql, options.migrations ?? POSTGRES_MIGRATIONS);
+  } catch (e) {
+    await sql.end({ timeout: 1 });
+    throw e;
+  }
+  return new PostgresStore(sql);
+}

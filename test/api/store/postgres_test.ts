@@ -1,0 +1,162 @@
+import assert from "node:assert/strict";
+import postgres from "postgres";
+import { openPostgresStore, POSTGRES_MIGRATIONS } from "../../../api/store/postgres.ts";
+import { SchemaMismatchError } from "../../../api/store/errors.ts";
+import { openStoreFromSpec } from "../../../api/store/mod.ts";
+import { makeRun, makeSeries, type StoreBacking, storeSuite } from "./store_suite.ts";
+import { type PgServer, pgUnavailableReason, startPgServer } from "./pg_cluster.ts";
+
+const server = await startPgServer();
+const ignore = server === null;
+const suffix = ignore ? ` (skipped: ${pgUnavailableReason})` : "";
+
+let dbCounter = 0;
+
+/** A fresh database on the test server, dropped on dispose. */
+async function freshDatabase(srv: PgServer): Promise<{ url: string; drop(): Promise<void> }> {
+  const name = `sunlag_test_${Deno.pid}_${dbCounter++}`;
+  const admin = postgres(srv.adminUrl, { max: 1, onnotice: () => {} });
+  try {
+    await admin.unsafe(`CREATE DATABASE ${name}`);
+  } finally {
+    await admin.end();
+  }
+  return {
+    url: srv.urlFor(name),
+    async drop() {
+      const a = postgres(srv.adminUrl, { max: 1, onnotice: () => {} });
+      try {
+        await a.unsafe(`DROP DATABASE IF EXISTS ${name} WITH (FORCE)`);
+      } finally {
+        await a.end();
+      }
+    },
+  };
+}
+
+storeSuite("PostgresStore" + suffix, async (): Promise<StoreBacking> => {
+  const db = await freshDatabase(server!);
+  return {
+    shared: true,
+    open: () => openPostgresStore({ url: db.url, max: 4 }),
+    dispose: () => db.drop(),
+  };
+}, { ignore });
+
+async function withDatabase(body: (url: string) => Promise<void>): Promise<void> {
+  const db = await freshDatabase(server!);
+  try {
+    await body(db.url);
+  } finally {
+    await db.drop();
+  }
+}
+
+Deno.test({
+  name: "openPostgresStore() records each migration once and refuses a newer schema" + suffix,
+  ignore,
+  async fn() {
+    await withDatabase(async (url) => {
+      // Several instances starting at once apply each step exactly once.
+      const stores = await Promise.all([1, 2, 3].map(() => openPostgresStore({ url, max: 1 })));
+      for (const s of stores) {
+        assert.deepEqual(
+          (await s.schemaVersions()).map((v) => [v.version, v.name]),
+          POSTGRES_MIGRATIONS.map((m) => [m.version, m.name]),
+        );
+        await s.close();
+      }
+      const step2 = {
+        version: POSTGRES_MIGRATIONS.length + 1,
+        name: "test: add a notes table",
+        sql: "CREATE TABLE notes (id INTEGER PRIMARY KEY)",
+      };
+      const newer = await openPostgresStore({ url, migrations: [...POSTGRES_MIGRATIONS, step2] });
+      assert.equal((await newer.schemaVersions()).length, POSTGRES_MIGRATIONS.length + 1);
+      await newer.close();
+      await assert.rejects(() => openPostgresStore({ url }), SchemaMismatchError);
+    });
+  },
+});
+
+Deno.test({
+  name: "openPostgresStore() rolls back a failing migration completely" + suffix,
+  ignore,
+  async fn() {
+    await withDatabase(async (url) => {
+      const broken = [...POSTGRES_MIGRATIONS, {
+        version: POSTGRES_MIGRATIONS.length + 1,
+        name: "test: broken step",
+        sql: "CREATE TABLE half (x INTEGER); THIS IS NOT SQL;",
+      }];
+      await assert.rejects(() => openPostgresStore({ url, migrations: broken }));
+      const sql = postgres(url, { max: 1, onnotice: () => {} });
+      try {
+        const tables = (await sql`SELECT tablename FROM pg_tables WHERE schemaname = 'public'`)
+          .map((r) => r.tablename);
+        assert.deepEqual(tables, [], "partial migration left behind");
+      } finally {
+        await sql.end();
+      }
+    });
+  },
+});
+
+Deno.test({
+  name: "PostgresStore: a delete racing runs that use the series never orphans a run" + suffix,
+  ignore,
+  async fn() {
+    // Either the delete wins (the runs are refused as missing input) or a run wins (the delete
+    // answers in_use); never both, whatever the interleaving.
+    await withDatabase(async (url) => {
+      const a = await openPostgresStore({ url, max: 4 });
+      const b = await openPostgresStore({ url, max: 4 });
+      try {
+        for (let round = 0; round < 15; round++) {
+          const s = makeSeries(`race-${round}`);
+          await a.putSeries(s);
+          const runs = [0, 1, 2].map((k) => makeRun(`race-${round}-${k}`, { inputSeries: [s.id] }));
+          const [del, ...puts] = await Promise.allSettled([
+            a.deleteSeries(s.id),
+            ...runs.map((r) => b.putRun(r)),
+          ]);
+          assert.equal(del.status, "fulfilled");
+          const stored = puts.filter((p) => p.status === "fulfilled").length;
+          const outcome = (del as PromiseFulfilledResult<string>).value;
+          if (outcome === "deleted") {
+            assert.equal(stored, 0, `round ${round}: a run was stored for a deleted series`);
+            assert.equal(await a.getSeriesMeta(s.id), null);
+          } else {
+            assert.equal(outcome, "in_use");
+            assert.ok(stored > 0, `round ${round}: in_use without a stored run`);
+            assert.ok(await a.getSeriesMeta(s.id));
+          }
+          for (const p of puts) {
+            if (p.status === "rejected") {
+              assert.equal((p.reason as Error).name, "MissingInputError", String(p.reason));
+            }
+          }
+        }
+      } finally {
+        await a.close();
+        await b.close();
+      }
+    });
+  },
+});
+
+Deno.test({
+  name: "openStoreFromSpec() opens a PostgreSQL store from a postgres:// URL" + suffix,
+  ignore,
+  async fn() {
+    await withDatabase(async (url) => {
+      const store = await openStoreFromSpec(url);
+      try {
+        assert.equal(store.kind, "postgres");
+        assert.equal(await store.ping(), true);
+      } finally {
+        await store.close();
+      }
+    });
+  },
+});
