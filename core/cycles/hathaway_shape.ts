@@ -83,8 +83,7 @@ export function hathawayWidth(a: number): number {
  * monotone function needs no library). For c = 0.71, x* = 1.081 and g(x*) = 0.5038 (derived,
  * SCIENCE.md §6).
  *
- * @param c asymmetry parameter in [0, 1)
- * @default c 0.71
+ * @param c asymmetry parameter in [0, 1) (default 0.71)
  * @returns `{ x, g }`: location x* (in units of b) and height g(x*) of the peak
  * @throws {RangeError} when c is outside [0, 1)
  * @example
