@@ -60,6 +60,15 @@ function append(el, children) {
   }
 }
 
+/**
+ * One path segment, percent-encoded, keeping ":" (allowed in a segment, RFC 3986 §3.3) so ids
+ * like "sha256:…" stay readable.
+ * @param {string} s
+ */
+function seg(s) {
+  return encodeURIComponent(s).replace(/%3A/gi, ":");
+}
+
 /** @param {unknown} v */
 function isObject(v) {
   return typeof v === "object" && v !== null && !Array.isArray(v);
@@ -557,7 +566,7 @@ async function seriesList(gen, query) {
   if (!r.ok) return show(gen, "Series", h("h1", null, "Stored series"), problemBox(r.data));
   const items = /** @type {any[]} */ (r.data.items);
   const rows = items.map((s) => [
-    h("a", { href: `#/series/${encodeURIComponent(s.id)}` }, s.name),
+    h("a", { href: `#/series/${seg(s.id)}` }, s.name),
     s.quantity,
     h("code", null, s.units),
     `${s.start_date} – ${s.end_date}`,
@@ -598,7 +607,7 @@ async function seriesList(gen, query) {
 
 /** @param {number} gen @param {string} id */
 async function seriesView(gen, id) {
-  const path = `/v1/series/${encodeURIComponent(id)}`;
+  const path = `/v1/series/${seg(id)}`;
   /** @type {RequestSpec} */
   const req = { method: "GET", path, note: "The series with its points (JSON)" };
   const r = await call(req);
@@ -631,7 +640,7 @@ async function seriesView(gen, id) {
   if (s.derived_from) {
     const run = await call({
       method: "GET",
-      path: `/v1/runs/${encodeURIComponent(s.derived_from)}`,
+      path: `/v1/runs/${seg(s.derived_from)}`,
     });
     const cautions = run.ok ? (run.data.result?.cautions ?? []) : [];
     const warnings = run.ok ? (run.data.result?.warnings ?? []) : [];
@@ -864,7 +873,7 @@ function outputTable(runId, name, o) {
     { length: Math.min(FIRST_ROWS, n) },
     (_, i) => [fmt(o.time[i]), ...cols.map((c) => fmt(o[c][i]))],
   );
-  const href = `/v1/runs/${runId}/outputs/${encodeURIComponent(name)}?format=csv`;
+  const href = `/v1/runs/${runId}/outputs/${seg(name)}?format=csv`;
   return h(
     "div",
     { class: "output" },
@@ -878,7 +887,7 @@ function outputTable(runId, name, o) {
 
 /** @param {number} gen @param {string} id */
 async function runView(gen, id) {
-  const path = `/v1/runs/${encodeURIComponent(id)}`;
+  const path = `/v1/runs/${seg(id)}`;
   /** @type {RequestSpec} */
   const req = {
     method: "GET",
@@ -924,7 +933,7 @@ async function runView(gen, id) {
     for (const [name] of outputs) {
       reqs.push({
         method: "GET",
-        path: `${path}/outputs/${encodeURIComponent(name)}`,
+        path: `${path}/outputs/${seg(name)}`,
         query: { format: "csv" },
         save: `${name}.csv`,
         note: `Output "${name}" as CSV`,
@@ -934,7 +943,7 @@ async function runView(gen, id) {
 
   const inputs = [
     ...(run.input_series ?? []).map((/** @type {string} */ s) =>
-      h("a", { href: `#/series/${encodeURIComponent(s)}` }, h("code", null, s))
+      h("a", { href: `#/series/${seg(s)}` }, h("code", null, s))
     ),
     ...(run.input_runs ?? []).map((/** @type {string} */ s) =>
       h("a", { href: `#/runs/${s}` }, h("code", null, `run ${s}`))
@@ -1626,6 +1635,7 @@ const META = ["name", "quantity", "units", "version", "description", "source"];
  */
 function excerpt(text, row, column, delimiter) {
   const lines = text.split(/\r\n|\n|\r/);
+  if (lines.length > 1 && lines[lines.length - 1] === "") lines.pop();
   const header = lines.find((l) => l.trim() !== "" && !l.trimStart().startsWith("#")) ?? "";
   const guess = delimiter ||
     (header.includes("\t")
@@ -1912,7 +1922,7 @@ async function uploadView(gen) {
             h(
               "p",
               null,
-              h("a", { href: `#/series/${encodeURIComponent(s.id)}`, id: "uploaded-link" }, s.name),
+              h("a", { href: `#/series/${seg(s.id)}`, id: "uploaded-link" }, s.name),
               ` · ${s.quantity} in ${s.units} · ${s.n} points · ${s.start_date} – ${s.end_date}`,
             ),
             h(
