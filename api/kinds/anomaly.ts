@@ -1,0 +1,146 @@
+/**
+ * Run kind "anomalies": differences from a stated base period, as one base mean or a
+ * calendar-month climatology (core/series/anomalies_from_base_period.ts).
+ *
+ * @module
+ */
+import { z } from "@hono/zod-openapi";
+import { InputProblem, type RunKind } from "../runs/kind.ts";
+import { refId, SeriesRef, TimeValue } from "../schemas/series_ref.ts";
+import { anomaliesFromBasePeriod } from "../../core/series/mod.ts";
+import { formatIsoTime, parseIsoTime } from "../../core/time/mod.ts";
+import { asInputProblem, definedCount } from "./series_output.ts";
+
+const BaseBound = TimeValue.openapi({
+  description: "ISO 8601 period (`1961`, `1961-01`, `1961-01-01`) or decimal year",
+  example: "1961",
+});
+
+export const AnomalyRequest = z.object({
+  series: SeriesRef,
+  base: z.object({
+    start: BaseBound,
+    end: BaseBound,
+  }).openapi({
+    description: "Base period, both ends included when given as ISO periods (`1961`..`1990` " +
+      "is 1961-01-01 to 1990-12-31); decimal years are taken as [start, end)",
+    example: { start: "1961", end: "1990" },
+  }),
+  climatology: z.enum(["auto", "mean", "monthly"]).default("auto").openapi({
+    description: "`mean`: subtract one base-period mean; `monthly`: subtract the base-period " +
+      "mean of each calendar month; `auto`: monthly for daily and monthly series, else mean",
+    example: "auto",
+  }),
+}).openapi("AnomalyRequest");
+
+/** Under half a day in any year: steps back from an exclusive end into its last day. */
+const HALF_DAY = 0.5 / 366;
+
+const MONTHS = ["Jan", "Feb", "Mar", "Apr", "May", "Jun", "Jul", "Aug", "Sep", "Oct", "Nov", "Dec"];
+
+function bound(v: string | number, which: "start" | "end"): number {
+  if (typeof v === "number") {
+    if (!Number.isFinite(v)) {
+      throw new InputProblem(`/base/${which}`, "must be a finite decimal year");
+    }
+    return v;
+  }
+  try {
+    const p = parseIsoTime(v);
+    return which === "start" ? p.start : p.end;
+  } catch (e) {
+    throw new InputProblem(`/base/${which}`, (e as Error).message);
+  }
+}
+
+export const anomalyKind: RunKind<typeof AnomalyRequest> = {
+  kind: "anomalies",
+  path: "/v1/anomalies",
+  algorithmVersion: "1",
+  tag: "Series operations",
+  summary: "Anomalies relative to a stated base period",
+  description: "Subtracts the base-period mean (or, for daily and monthly data, the " +
+    "base-period mean of each calendar month) from every point. The base period must hold " +
+    "data (every calendar month of it, for a monthly climatology). The result states the base " +
+    "means and how many points each rests on; the `anomalies` output is saved as a new series. " +
+    "Temperatures become temperature anomalies (K); other quantities keep their quantity.",
+  request: AnomalyRequest,
+  autoSave: ["anomalies"],
+  estimateSeconds: () => 0.1,
+  compute(params, ctx) {
+    const s = ctx.series(refId(params.series));
+    const start = bound(params.base.start, "start"), end = bound(params.base.end, "end");
+    if (!(start < end)) {
+      throw new InputProblem(
+        "/base/end",
+        `the base period must end after it starts (${start}..${end})`,
+      );
+    }
+    const mode = params.climatology === "auto"
+      ? (s.resolution === "monthly" || s.resolution === "daily" ? "monthly" : "mean")
+      : params.climatology;
+    const a = asInputProblem(
+      "/base",
+      () => anomaliesFromBasePeriod(s, { start, end }, { climatology: mode }),
+    );
+    const warnings: string[] = [];
+    if (start < s.start || end > s.end) {
+      warnings.push(
+        `the base period ${start}..${end} reaches beyond the series (${s.start}..${s.end}); ` +
+          "the base means rest on the part that has data",
+      );
+    }
+    if (mode === "monthly") {
+      const most = Math.max(...a.baseCounts);
+      const thin = [...a.baseCounts.keys()].filter((g) => a.baseCounts[g] < 0.8 * most);
+      if (thin.length) {
+        warnings.push(
+          `calendar months with under 80 % of the base-period coverage of the best month: ${
+            thin.map((g) => `${MONTHS[g]} (${a.baseCounts[g]})`).join(", ")
+          }`,
+        );
+      }
+    }
+    const value = Array.from(a.value);
+    if (definedCount(value) < 2) throw new InputProblem("/series", "needs at least 2 points");
+    const quantity = s.quantity === "temperature" ? "temperature_anomaly" : s.quantity;
+    const label = `${formatIsoTime(start, "daily")} to ${formatIsoTime(end - HALF_DAY, "daily")}`;
+    return {
+      input: { id: s.id, name: s.name, resolution: s.resolution, n: s.n },
+      base: {
+        start,
+        end,
+        start_date: formatIsoTime(start, "daily"),
+        last_date: formatIsoTime(end - HALF_DAY, "daily"),
+        climatology: mode,
+        means: Array.from(a.baseMeans, (mean, g) => ({
+          ...(mode === "monthly" ? { month: g + 1 } : {}),
+          mean,
+          count: a.baseCounts[g],
+        })),
+      },
+      outputs: {
+        anomalies: {
+          name: `${s.name} (anomaly, base ${label})`,
+          quantity,
+          units: s.units,
+          time: Array.from(s.time),
+          value,
+          ...(s.uncertainty ? { uncertainty: Array.from(s.uncertainty) } : {}),
+          description: `Anomalies of series ${s.id} relative to the ${
+            mode === "monthly" ? "calendar-month climatology" : "mean"
+          } of the base period ${label}.`,
+        },
+        baseline: {
+          name: `${s.name} (base-period ${mode === "monthly" ? "climatology" : "mean"})`,
+          quantity: s.quantity,
+          units: s.units,
+          time: Array.from(s.time),
+          value: Array.from(a.baseline),
+          description: `The value subtracted at each point (base period ${label}).`,
+        },
+      },
+      warnings,
+    };
+  },
+};
