@@ -79,8 +79,9 @@ interface Line {
  * - The delimiter is detected (tab, semicolon, comma, then runs of whitespace; the one that
  *   splits the first 100 rows most consistently into 2+ cells) or stated. Comma, semicolon and
  *   tab fields may be quoted with `"` (`""` inside quotes is a quote).
- * - The first row is a header when one of its cells is neither a number nor an ISO time, or
- *   when a column is named by header name. Every row must have as many cells as the first.
+ * - The first row is a header when none of its non-empty cells is a number, an ISO time or a
+ *   missing-value word (so a data row with one bad cell is reported, not taken for a header),
+ *   or when a column is named by header name. Every row must have as many cells as the first.
  * - Columns are named by header name (exact, then case-insensitive) or by 0-based index.
  *   Defaults: time = `decimal_year`, `time`, `date`, `year` (the first present), else column
  *   0; value = `value`, else the only column left; uncertainty = `uncertainty` if present.
@@ -220,7 +221,9 @@ export function ingestText(
     options.uncertainty,
   ];
   const namedRef = refs.some((r) => r !== undefined && !/^\d+$/.test(r.trim()));
-  const header = isExport || namedRef || cells[0].some((c) => !looksLikeData(c));
+  const labels = cells[0].filter((c) => c.trim() !== "");
+  const header = isExport || namedRef ||
+    (labels.length > 0 && labels.every((c) => !looksLikeData(c)));
   const names = header ? cells[0].map((c) => c.trim()) : null;
   const first = header ? 1 : 0;
   const colLabel = (j: number): string | number => (names ? names[j] || j : j);
