@@ -5,11 +5,13 @@
  * @module
  */
 import type { RunKind } from "../runs/kind.ts";
+import { lagCorrelationKind } from "./lag_correlations.ts";
 import { resampleKind } from "./resample.ts";
 import { anomalyKind } from "./anomaly.ts";
 import { alignKind } from "./align.ts";
 
 export const RUN_KINDS: RunKind[] = [
+  lagCorrelationKind,
   resampleKind,
   anomalyKind,
   alignKind,

@@ -7,8 +7,11 @@
  * @module
  */
 
+import { surrogateLagChunk } from "../../core/climate/surrogate_lag_test.ts";
+
 // deno-lint-ignore no-explicit-any
 export type Task = (input: any) => any;
 
 export const TASKS: Record<string, Task> = {
+  "climate.surrogate_lag_chunk": surrogateLagChunk,
 };
