@@ -9,10 +9,18 @@ import { lagCorrelationKind } from "./lag_correlations.ts";
 import { resampleKind } from "./resample.ts";
 import { anomalyKind } from "./anomaly.ts";
 import { alignKind } from "./align.ts";
+import { irradianceDarkening } from "./irradiance_darkening.ts";
+import { irradianceModels } from "./irradiance_models.ts";
+import { irradianceReconstructions } from "./irradiance_reconstructions.ts";
+import { forcing } from "./forcing.ts";
 
 export const RUN_KINDS: RunKind[] = [
   lagCorrelationKind,
   resampleKind,
   anomalyKind,
   alignKind,
+  irradianceDarkening,
+  irradianceModels,
+  irradianceReconstructions,
+  forcing,
 ];

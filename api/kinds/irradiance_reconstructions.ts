@@ -1,0 +1,380 @@
+/**
+ * `POST /v1/irradiance/reconstructions`: apply a calibrated model (cited by run id) to proxy
+ * series over a period, at daily, monthly or annual resolution, with 95 % prediction
+ * intervals; back-extension through the model's sunspot → proxy mappings; optional secular
+ * background scenario.
+ *
+ * @module
+ */
+import { z } from "@hono/zod-openapi";
+import { InputProblem, type RunKind } from "../runs/kind.ts";
+import { refId, SeriesRef } from "../schemas/series_ref.ts";
+import {
+  cellBounds,
+  cellKey,
+  cellMeans,
+  evaluateSunspotMapping,
+  reconstructFromProxies,
+  type ReconstructionCells,
+  secularBackground,
+  SOURCE_BACK_EXTENDED,
+  SOURCE_DIRECT,
+  tsiCycleAmplitude,
+  valuesAtKeys,
+} from "../../core/irradiance/mod.ts";
+import { normalQuantile, tQuantile } from "../../core/stats/distributions.ts";
+import type { StoredMappings, StoredModel } from "./irradiance_models.ts";
+import {
+  cycleAmplitudeWarning,
+  IRRADIANCE_CAUTIONS,
+  nullable,
+  parsePeriod,
+  PeriodInput,
+  requireSunspotVersion,
+} from "./irradiance_common.ts";
+
+const RUN_ID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/;
+
+const Background = z.discriminatedUnion("kind", [
+  z.object({ kind: z.literal("none") }),
+  z.object({
+    kind: z.literal("sunspot_running_mean"),
+    windowYears: z.number().min(1).max(100).default(11),
+    referenceMinimum: PeriodInput.openapi({
+      description: "Period of the reference minimum (e.g. a grand minimum)",
+    }),
+    laterPeriod: PeriodInput.openapi({
+      description: "Later period whose background exceeds the reference by deltaTsi",
+    }),
+    deltaTsi: z.number().min(-10).max(10).openapi({
+      description: "Background change from the reference minimum to the later period, W m-2",
+    }),
+  }).openapi({
+    description: "A scenario, not a measurement: B(t) ∝ the running mean of sunspot number, " +
+      "scaled so that its change from referenceMinimum to laterPeriod is deltaTsi, and zero " +
+      "on average over the calibration period",
+  }),
+]).openapi("SecularBackground");
+
+const Request = z.object({
+  model: z.string().regex(RUN_ID, "must be a run id (UUIDv7)").openapi({
+    description: "Id of a succeeded /v1/irradiance/models run",
+  }),
+  proxies: z.array(z.object({
+    term: z.string().min(1).max(40).openapi({ description: "A term name of the model" }),
+    series: SeriesRef,
+  })).max(6).default([]).openapi({
+    description: "Direct proxy series per model term; where a term has no value the " +
+      "reconstruction back-extends from sunspotNumber",
+  }),
+  sunspotNumber: SeriesRef.optional().openapi({
+    description: "Sunspot-number series for back-extension; its version must match the model's",
+  }),
+  sunspotConversion: z.object({
+    factor: z.number().positive().max(10).openapi({
+      description: "Multiply the sunspot series by this to put it on the model's version",
+    }),
+    note: z.string().max(400).optional(),
+  }).optional(),
+  period: PeriodInput,
+  resolution: z.enum(["daily", "monthly", "annual"]).default("monthly"),
+  level: z.number().min(0.5).max(0.999).default(0.95).openapi({
+    description: "Level of the prediction intervals",
+  }),
+  background: Background.default({ kind: "none" }),
+}).superRefine((v, ctx) => {
+  const seen = new Set<string>();
+  v.proxies.forEach((p, i) => {
+    if (seen.has(p.term)) {
+      ctx.addIssue({ code: "custom", path: ["proxies", i, "term"], message: "duplicate term" });
+    }
+    seen.add(p.term);
+  });
+}).openapi("ReconstructionRequest");
+
+type Params = z.output<typeof Request>;
+
+function outsideCount(x: Float64Array, lo: number, hi: number): number {
+  const pad = 0.25 * (hi - lo);
+  let c = 0;
+  for (const v of x) if (Number.isFinite(v) && (v < lo - pad || v > hi + pad)) c++;
+  return c;
+}
+
+export const irradianceReconstructions: RunKind<typeof Request> = {
+  kind: "irradiance_reconstruction",
+  path: "/v1/irradiance/reconstructions",
+  algorithmVersion: "1",
+  tag: "Irradiance",
+  summary: "Reconstruct TSI from a calibrated model, with prediction intervals",
+  description: "Applies a model run to proxy series averaged into daily, monthly or annual " +
+    "cells over a period. Prediction intervals combine the coefficient covariance with the " +
+    "residual variance, reduced for cell means by the AR(1) variance factor of the residuals " +
+    "(so intervals of monthly and annual means are not too narrow). Where a proxy has no value, " +
+    "its value is mapped from sunspot number with the model's fitted mapping; the band then " +
+    "uses the residual process of the sunspot-only model and the mappings' parameter " +
+    "uncertainty, so it widens where proxies are weaker. The sunspot series version must match " +
+    "the model's unless a conversion factor is given. An optional secular background scenario " +
+    "is added and labelled; the default is none.",
+  request: Request,
+  runRefs: (p) => [p.model],
+  estimateSeconds: (p) => (p.resolution === "daily" ? 0.5 : 0.1),
+  compute(params: Params, ctx) {
+    const run = ctx.run(params.model);
+    if (run.kind !== "irradiance_model") {
+      throw new InputProblem(
+        "/model",
+        `run ${run.id} is a ${run.kind} run; a /v1/irradiance/models run is needed`,
+      );
+    }
+    const model = (run.result as { model: StoredModel }).model;
+    const mappings = (run.result as { mappings: StoredMappings | null }).mappings;
+    const period = parsePeriod(params.period, "/period");
+    const res = params.resolution;
+    // target cells
+    const k0 = cellKey(period.start + 1e-9, res);
+    const k1 = cellKey(period.end - 1e-9, res);
+    const n = k1 - k0 + 1;
+    if (n > 400_000) {
+      throw new InputProblem("/period", `the period has ${n} ${res} cells; at most 400000`);
+    }
+    const keys = new Int32Array(n);
+    const time = new Array<number>(n);
+    const days = new Float64Array(n);
+    for (let i = 0; i < n; i++) {
+      keys[i] = k0 + i;
+      const b = cellBounds(k0 + i, res);
+      time[i] = b.middle;
+      days[i] = b.days;
+    }
+    const termNames = model.terms.map((t) => t.name);
+    params.proxies.forEach((p, i) => {
+      if (!termNames.includes(p.term)) {
+        throw new InputProblem(
+          `/proxies/${i}/term`,
+          `the model has no term "${p.term}"; its terms are ${termNames.join(", ")}`,
+        );
+      }
+    });
+    const direct = model.terms.map((t) => {
+      const p = params.proxies.find((q) => q.term === t.name);
+      if (!p) return new Float64Array(n).fill(NaN);
+      const s = ctx.series(refId(p.series));
+      return valuesAtKeys(cellMeans(s.time, s.value, res), keys);
+    });
+    // sunspot number: version check, optional conversion, mapping
+    let sunspot: Float64Array | null = null;
+    let sunspotSeries = null as null | { time: Float64Array; value: Float64Array };
+    let conversion: string | null = null;
+    const warnings: string[] = [];
+    if (params.sunspotNumber !== undefined) {
+      const ss = ctx.series(refId(params.sunspotNumber));
+      const version = requireSunspotVersion(ss, "/sunspotNumber");
+      if (!mappings) {
+        throw new InputProblem(
+          "/sunspotNumber",
+          `model run ${run.id} was calibrated without a sunspot series, so it has no sunspot → proxy mappings; calibrate with sunspotNumber to back-extend`,
+        );
+      }
+      let values = ss.value;
+      if (version !== mappings.sunspotVersion) {
+        if (!params.sunspotConversion) {
+          throw new InputProblem(
+            "/sunspotNumber",
+            `the sunspot series is version "${version}" but the model was calibrated with version "${mappings.sunspotVersion}"; supply the matching version or a sunspotConversion factor (e.g. version 1 → 2 before 1947 is about 1/0.6)`,
+          );
+        }
+        const f = params.sunspotConversion.factor;
+        values = ss.value.map((v) => v * f);
+        conversion = `sunspot version ${version} × ${f} → version ${mappings.sunspotVersion}` +
+          (params.sunspotConversion.note ? ` (${params.sunspotConversion.note})` : "");
+      } else if (params.sunspotConversion) {
+        warnings.push(
+          `sunspotConversion was ignored: the series is already version ${version}, as the model.`,
+        );
+      }
+      sunspotSeries = { time: ss.time, value: values };
+      sunspot = valuesAtKeys(cellMeans(ss.time, values, res), keys);
+    }
+    const mapped: ReconstructionCells["mapped"] = model.terms.map((t) => {
+      if (!sunspot || !mappings) return null;
+      const m = mappings.terms[t.name].chosen;
+      const v = new Float64Array(n), pv = new Float64Array(n);
+      evaluateSunspotMapping(m, sunspot, v, pv);
+      return { value: v, paramVariance: pv };
+    });
+    const hasAny = direct.some((d) => d.some(Number.isFinite)) ||
+      (sunspot !== null && sunspot.some(Number.isFinite));
+    if (!hasAny) {
+      throw new InputProblem(
+        "/period",
+        `the period [${period.start.toFixed(3)}, ${
+          period.end.toFixed(3)
+        }) is outside the coverage of every proxy and of the sunspot series`,
+      );
+    }
+    const z = params.level === 0.95
+      ? model.tQuantile975
+      : tQuantile(1 - (1 - params.level) / 2, model.dfResidual);
+    const rec = reconstructFromProxies(
+      {
+        coefficients: model.coefficients,
+        covariance: model.covariance,
+        terms: model.terms,
+        psiReference: model.psiReference,
+        residualSd: model.residualSd,
+        rho: model.rho,
+        stepDays: model.stepDays,
+        backExtension: mappings ? mappings.backExtension : null,
+      },
+      { days, direct, mapped },
+      z,
+    );
+    // secular background
+    let scenario: Record<string, unknown> = {
+      kind: "none",
+      label:
+        "No secular background: the reconstruction contains only the proxy-driven variability.",
+    };
+    if (params.background.kind === "sunspot_running_mean") {
+      const bg = params.background;
+      if (!sunspotSeries) {
+        throw new InputProblem(
+          "/background",
+          "the sunspot_running_mean background needs a sunspotNumber series",
+        );
+      }
+      let b;
+      try {
+        b = secularBackground(sunspotSeries.time, sunspotSeries.value, {
+          windowYears: bg.windowYears,
+          referenceMinimum: parsePeriod(bg.referenceMinimum, "/background/referenceMinimum"),
+          laterPeriod: parsePeriod(bg.laterPeriod, "/background/laterPeriod"),
+          deltaTsi: bg.deltaTsi,
+          calibrationPeriod: model.calibrationPeriod,
+        });
+      } catch (e) {
+        if (e instanceof InputProblem) throw e;
+        throw new InputProblem("/background", (e as Error).message);
+      }
+      const bAt = valuesAtKeys(cellMeans(sunspotSeries.time, b.value, res), keys);
+      for (let i = 0; i < n; i++) {
+        if (!Number.isFinite(rec.value[i])) continue;
+        const add = Number.isFinite(bAt[i]) ? bAt[i] : NaN;
+        rec.value[i] += add;
+        rec.lower[i] += add;
+        rec.upper[i] += add;
+      }
+      scenario = {
+        kind: "sunspot_running_mean",
+        label:
+          `SCENARIO: secular background proportional to the ${bg.windowYears}-year running mean of sunspot number, ΔTSI = ${bg.deltaTsi} W m-2 from the reference minimum to the later period; the band does not include the (large) uncertainty of this choice`,
+        scale: b.scale,
+        referenceMean: b.referenceMean,
+        laterMean: b.laterMean,
+        calibrationMean: b.calibrationMean,
+      };
+    }
+    // coverage and plausibility
+    let nDirect = 0, nBack = 0, nNone = 0;
+    let firstBack = Infinity, lastBack = -Infinity, firstDirect = Infinity, lastDirect = -Infinity;
+    for (let i = 0; i < n; i++) {
+      if (!Number.isFinite(rec.value[i])) {
+        nNone++;
+        rec.source[i] = 0;
+      } else if (rec.source[i] === SOURCE_DIRECT) {
+        nDirect++;
+        firstDirect = Math.min(firstDirect, time[i]);
+        lastDirect = Math.max(lastDirect, time[i]);
+      } else if (rec.source[i] === SOURCE_BACK_EXTENDED) {
+        nBack++;
+        firstBack = Math.min(firstBack, time[i]);
+        lastBack = Math.max(lastBack, time[i]);
+      }
+    }
+    if (nDirect + nBack === 0) {
+      throw new InputProblem(
+        "/period",
+        "no cell of the period has every model proxy (directly or mapped from sunspot number)",
+      );
+    }
+    if (nNone > 0) {
+      warnings.push(
+        `${nNone} of ${n} ${res} cells have no value (a proxy and the sunspot series are both missing there).`,
+      );
+    }
+    model.terms.forEach((t, k) => {
+      const c = outsideCount(direct[k], t.min, t.max);
+      if (c > 0) {
+        warnings.push(
+          `Term ${t.name}: ${c} cells lie far outside the calibration range [${t.min}, ${t.max}] (by more than a quarter of the range); the linear model is extrapolated there.`,
+        );
+      }
+    });
+    if (sunspot && mappings) {
+      const m = Object.values(mappings.terms)[0].chosen;
+      let c = 0;
+      for (let i = 0; i < n; i++) {
+        if (rec.source[i] === SOURCE_BACK_EXTENDED && sunspot[i] > 1.25 * m.sunspotMax) c++;
+      }
+      if (c > 0) {
+        warnings.push(
+          `${c} back-extended cells have sunspot numbers above 1.25 × the largest in the mapping fit (${
+            m.sunspotMax.toFixed(1)
+          }); the mappings are extrapolated there.`,
+        );
+      }
+    }
+    const amp = tsiCycleAmplitude(time, rec.value);
+    warnings.push(...cycleAmplitudeWarning(amp.median));
+    const zNote = params.level === 0.95 ? "95 %" : `${(params.level * 100).toFixed(1)} %`;
+    const sdOut = nullable(rec.sd);
+    const valOut = nullable(rec.value);
+    return {
+      model: run.id,
+      resolution: res,
+      period,
+      level: params.level,
+      intervalQuantile: z,
+      normalQuantile: normalQuantile(1 - (1 - params.level) / 2),
+      scenario,
+      sunspotConversion: conversion,
+      coverage: {
+        cells: n,
+        direct: {
+          cells: nDirect,
+          start: nDirect ? firstDirect : null,
+          end: nDirect ? lastDirect : null,
+        },
+        backExtended: {
+          cells: nBack,
+          start: nBack ? firstBack : null,
+          end: nBack ? lastBack : null,
+        },
+        missing: nNone,
+      },
+      source: Array.from(rec.source),
+      sourceCodes: { "0": "no value", "1": "all proxies direct", "2": "back-extended" },
+      cycleAmplitude: amp,
+      outputs: {
+        tsi: {
+          name: "Reconstructed TSI",
+          quantity: "tsi",
+          units: "W m-2",
+          time,
+          value: valOut,
+          uncertainty: sdOut,
+          lower: nullable(rec.lower),
+          upper: nullable(rec.upper),
+          interval: `${zNote} prediction interval`,
+          description: `Model run ${run.id}, ${res} means; ${scenario.label as string}`,
+        },
+      },
+      warnings,
+      cautions: [
+        ...IRRADIANCE_CAUTIONS,
+        `Background scenario: ${scenario.label as string}`,
+      ],
+    };
+  },
+};
