@@ -11,12 +11,14 @@
  * - Schema steps are recorded in `schema_migrations` and applied under a transaction-scoped
  *   advisory lock, so several service instances starting at once apply each step once.
  * - Points are `bytea` columns of little-endian doubles stored out of line without
- *   compression (`STORAGE EXTERNAL`: random doubles do not compress, trying costs time).
+ *   compression (`STORAGE EXTERNAL`: random doubles do not compress, trying costs time),
+ *   sent and read as base64 text.
  * - Times and JSON are kept as text, exactly as written, like the SQLite store.
  *
  * @module
  */
 import postgres from "postgres";
+import { Buffer } from "node:buffer";
 import type {
   Page,
   RunRecord,
@@ -158,6 +160,21 @@ function runRow(r: RunRecord): Record<string, string | number | null> {
   return Object.fromEntries(RUN_COLUMNS.map((c, i) => [c, values[i]]));
 }
 
+/**
+ * Points travel as base64 text, decoded and encoded by the server: the driver's own bytea
+ * format is hex, 2 characters per byte against base64's 4 per 3, and the transfer time is
+ * proportional to the text (test/bench/store_medians.ts on this machine: gets about 2x and
+ * puts about 3x faster than with hex).
+ */
+function toBase64(values: Float64Array): string {
+  return Buffer.from(float64ToBytesLE(values).buffer).toString("base64");
+}
+
+/** Decode the server's base64 (which breaks lines every 76 characters; Buffer skips them). */
+function fromBase64(b64: string, n: number): Float64Array {
+  return bytesLEToFloat64(Buffer.from(b64, "base64"), n);
+}
+
 /** A `Store` on a PostgreSQL database. Create it with {@link openPostgresStore}. */
 export class PostgresStore implements Store {
   readonly kind = "postgres";
@@ -189,8 +206,8 @@ export class PostgresStore implements Store {
       }
       await tx`
         INSERT INTO series_points (series_id, time, value, uncertainty) VALUES (
-          ${s.id}, ${float64ToBytesLE(s.time)}, ${float64ToBytesLE(s.value)},
-          ${s.uncertainty === null ? null : float64ToBytesLE(s.uncertainty)})`;
+          ${s.id}, decode(${toBase64(s.time)}, 'base64'), decode(${toBase64(s.value)}, 'base64'),
+          decode(${s.uncertainty === null ? null : toBase64(s.uncertainty)}, 'base64'))`;
       return { created: true, series: metaOf(s) };
     });
   }
@@ -198,16 +215,17 @@ export class PostgresStore implements Store {
   async getSeries(id: string): Promise<StoredSeries | null> {
     const rows = await this.#sql`
       SELECT ${this.#sql(SERIES_META_COLUMNS.map((c) => "s." + c))},
-        p.time AS p_time, p.value AS p_value, p.uncertainty AS p_uncertainty
+        encode(p.time, 'base64') AS p_time, encode(p.value, 'base64') AS p_value,
+        encode(p.uncertainty, 'base64') AS p_uncertainty
       FROM series s JOIN series_points p ON p.series_id = s.id WHERE s.id = ${id}`;
     if (rows.length === 0) return null;
     const row = rows[0];
     const meta = toSeriesMeta(row);
     return {
       ...meta,
-      time: bytesLEToFloat64(row.p_time, meta.n),
-      value: bytesLEToFloat64(row.p_value, meta.n),
-      uncertainty: row.p_uncertainty === null ? null : bytesLEToFloat64(row.p_uncertainty, meta.n),
+      time: fromBase64(row.p_time, meta.n),
+      value: fromBase64(row.p_value, meta.n),
+      uncertainty: row.p_uncertainty === null ? null : fromBase64(row.p_uncertainty, meta.n),
     };
   }
 

@@ -1,13 +1,18 @@
 /**
  * Medians (deno bench prints means) for the store: put/get of one 150,000-point series with
- * uncertainty, SQLite file (WAL, synchronous FULL) and memory, beside two references of the
+ * uncertainty, SQLite file (WAL, synchronous FULL) and memory, and PostgreSQL on an ephemeral
+ * local cluster (fsync off, so a lower bound) when the server binaries exist, beside two references of the
  * same data: encoding the three arrays as JSON text and decoding it (the cost a row-of-JSON
  * design would add to every get), and the bytes each takes.
  *
  *   deno run -A test/bench/store_medians.ts
  */
 import { join } from "node:path";
+import postgres from "postgres";
 import { openSqliteStore } from "../../api/store/sqlite.ts";
+import { openPostgresStore } from "../../api/store/postgres.ts";
+import type { Store } from "../../api/store/types.ts";
+import { startPgServer } from "../api/store/pg_cluster.ts";
 import { makeSeries, seriesId } from "../api/store/store_suite.ts";
 
 const N = 150_000;
@@ -32,10 +37,19 @@ const dir = await Deno.makeTempDir({ prefix: "sunlag-bench-" });
 try {
   const template = makeSeries("bench", { n: N, uncertainty: true });
   const rows: [string, number][] = [];
-  for (const where of ["file", "memory"]) {
-    const store = await openSqliteStore({
-      path: where === "file" ? join(dir, "b.db") : ":memory:",
-    });
+  const pg = await startPgServer();
+  const openers: [string, () => Promise<Store>][] = [
+    ["sqlite file", () => openSqliteStore({ path: join(dir, "b.db") })],
+    ["sqlite memory", () => openSqliteStore({ path: ":memory:" })],
+  ];
+  if (pg) {
+    const admin = postgres(pg.adminUrl, { max: 1, onnotice: () => {} });
+    await admin.unsafe("CREATE DATABASE sunlag_bench");
+    await admin.end();
+    openers.push(["postgres, local", () => openPostgresStore({ url: pg.urlFor("sunlag_bench") })]);
+  }
+  for (const [where, open] of openers) {
+    const store = await open();
     await store.putSeries(template);
     const ids: string[] = [];
     rows.push([
