@@ -12,3 +12,8 @@ export * from "./gaussian_smoother.ts";
 export * from "./cycle_extrema.ts";
 export * from "./cycle_table.ts";
 export * from "./cycle_phase.ts";
+export * from "./cycle_shape_fit.ts";
+export * from "./cycle_forecast.ts";
+export * from "./cycle_hindcast.ts";
+export * from "./cycle_sequence_fit.ts";
+export * from "./waldmeier_relation.ts";
