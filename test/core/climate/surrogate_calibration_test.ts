@@ -1,0 +1,64 @@
+/**
+ * Calibration of the phase-randomisation test (Ebisuzaki 1997, J. Climate 10, 2147, §3 makes
+ * the same check): on pairs of independent series the test must reject a true null at about
+ * its nominal rate, where the naive t test without N_eff rejects far more.
+ */
+import assert from "node:assert/strict";
+import { randomStream } from "../../../core/random/random_stream.ts";
+import { ar1Surrogate } from "../../../core/climate/surrogates.ts";
+import { preprocessSeries } from "../../../core/climate/preprocess_series.ts";
+import {
+  combineSurrogateChunks,
+  planSurrogateLagTest,
+  surrogateLagChunk,
+} from "../../../core/climate/surrogate_lag_test.ts";
+import { laggedCorrelationTable } from "../../../core/climate/lagged_correlation.ts";
+
+const PAIRS = 300, N = 256, M = 199, ALPHA = 0.05;
+// binomial Monte Carlo margin of a rejection rate over 300 pairs: 3σ = 3√(0.05·0.95/300)
+const MARGIN = 3 * Math.sqrt((ALPHA * (1 - ALPHA)) / PAIRS);
+
+function trial(phi: number, k: number) {
+  const x = preprocessSeries(ar1Surrogate(N, phi, 1, randomStream(1000, 2 * k)), {
+    method: "mean",
+  });
+  const y = preprocessSeries(ar1Surrogate(N, phi, 1, randomStream(1000, 2 * k + 1)), {
+    method: "mean",
+  });
+  const window = { minLag: -12, maxLag: 12 };
+  const plan = planSurrogateLagTest(x, y, { ...window, seed: k });
+  const mc = combineSurrogateChunks(plan, [surrogateLagChunk({ plan, start: 0, end: M })]);
+  const row = laggedCorrelationTable(x, y, window)[12]; // lag 0
+  return {
+    pLag0: mc.pPerLag[12],
+    pFamily: mc.pFamilyWise,
+    naive: row.p_naive!,
+    neff: row.p_analytic!,
+  };
+}
+
+Deno.test("phase-randomisation test rejects about 5 % of independent AR(1) 0.9 pairs", () => {
+  let mcRej = 0, famRej = 0, naiveRej = 0;
+  for (let k = 0; k < PAIRS; k++) {
+    const t = trial(0.9, k);
+    if (t.pLag0 <= ALPHA) mcRej++;
+    if (t.pFamily <= ALPHA) famRej++;
+    if (t.naive <= ALPHA) naiveRej++;
+  }
+  const rate = mcRej / PAIRS, fam = famRej / PAIRS, naive = naiveRej / PAIRS;
+  assert.ok(Math.abs(rate - ALPHA) <= MARGIN, `lag-0 rejection ${rate} (±${MARGIN.toFixed(3)})`);
+  assert.ok(Math.abs(fam - ALPHA) <= MARGIN, `family-wise rejection ${fam}`);
+  // naive t test with n − 2 df: N_eff/N ≈ (1 − 0.81)/(1 + 0.81) ≈ 0.1, so it rejects far more
+  assert.ok(naive > 0.3, `naive rejection ${naive}`);
+});
+
+Deno.test("phase-randomisation p-values are near uniform on white noise", () => {
+  const p: number[] = [];
+  for (let k = 0; k < PAIRS; k++) p.push(trial(0, PAIRS + k).pLag0);
+  p.sort((a, b) => a - b);
+  // Kolmogorov–Smirnov distance to U(0, 1); 1.63/√n is the 1 % critical value (Massey 1951),
+  // plus 1/(M + 1) for the granularity of Monte Carlo p-values
+  let d = 0;
+  p.forEach((v, i) => (d = Math.max(d, Math.abs(v - (i + 1) / PAIRS), Math.abs(v - i / PAIRS))));
+  assert.ok(d < 1.63 / Math.sqrt(PAIRS) + 1 / (M + 1), `KS distance ${d}`);
+});
