@@ -7,62 +7,13 @@
  * @module
  */
 import type { RunRecord } from "../store/types.ts";
-import type { OutputSeries } from "../runs/kind.ts";
 import type { ChartSpec, Layer } from "./chart.ts";
 import { axisLabel, quantityLabel } from "./labels.ts";
-import { outputsOf, strings } from "./read.ts";
+import { outputsOf } from "./read.ts";
 import { KIND_CHARTS } from "./kinds/mod.ts";
+import { kindTitle, outputLayers, runDescription, runNotes } from "./run_common.ts";
 
-/** A specialised chart builder: null when the result does not fit it. */
-export type KindChart = (run: RunRecord) => ChartSpec | null;
-
-/** "lag_correlation" → "Lag correlation". */
-export function kindTitle(kind: string): string {
-  const s = kind.replace(/[_-]+/g, " ").trim();
-  return s ? s[0].toUpperCase() + s.slice(1) : "Run";
-}
-
-/** The notes every run chart carries: its cautions, then its warnings. */
-export function runNotes(run: RunRecord): string[] {
-  const r = run.result ?? {};
-  return [
-    ...strings(r.cautions),
-    ...strings(r.warnings).map((w) => `Warning: ${w}`),
-  ];
-}
-
-/** The opening of a run chart's description. */
-export function runDescription(run: RunRecord, what: string): string {
-  return `${what} Run ${run.id} of kind ${run.kind} (algorithm ${run.algorithm_version}), ` +
-    `result digest sha256:${run.result_digest ?? "none"}.`;
-}
-
-/** Band then line layers of one output (band from lower/upper, else ±1σ uncertainty). */
-export function outputLayers(o: OutputSeries, color?: number, label?: string): Layer[] {
-  const layers: Layer[] = [];
-  if (o.lower && o.upper) {
-    layers.push({
-      type: "band",
-      label: o.interval ?? `${label ?? o.name}: interval`,
-      x: o.time,
-      lower: o.lower,
-      upper: o.upper,
-      color,
-    });
-  } else if (o.uncertainty) {
-    const u = o.uncertainty;
-    layers.push({
-      type: "band",
-      label: `${label ?? o.name}: ±1σ`,
-      x: o.time,
-      lower: o.value.map((v, i) => (v === null || u[i] === null ? null : v - (u[i] as number))),
-      upper: o.value.map((v, i) => (v === null || u[i] === null ? null : v + (u[i] as number))),
-      color,
-    });
-  }
-  layers.push({ type: "line", label: label ?? o.name, x: o.time, y: o.value, color });
-  return layers;
-}
+export type { KindChart } from "./run_common.ts";
 
 /**
  * The generic chart of a run: its outputs that share the units of the first one, as lines

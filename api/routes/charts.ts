@@ -7,12 +7,15 @@
  * @module
  */
 import { createRoute, z } from "@hono/zod-openapi";
-import type { Context } from "hono";
 import type { App } from "../app.ts";
 import type { Store } from "../store/types.ts";
 import { ProblemError } from "../problems.ts";
 import { problems } from "../schemas/common.ts";
-import { immutableHeaders, notModified } from "./cache.ts";
+import {
+  type CachedRepresentation,
+  ImmutableCache,
+  serveRepresentation,
+} from "./immutable_cache.ts";
 import { parseIsoTime } from "../../core/time/mod.ts";
 import { renderChart, type RenderOptions } from "../charts/chart.ts";
 import { shortHash } from "../charts/svg.ts";
@@ -80,31 +83,43 @@ function renderOptions(q: ChartQueryOut): RenderOptions {
   return { width: q.width, height: q.height, theme: q.theme, from, to };
 }
 
+function optionsKey(o: RenderOptions): string {
+  return `${o.width}x${o.height}-${o.theme}-${o.from ?? ""}-${o.to ?? ""}`;
+}
+
 function etagFor(resource: string, o: RenderOptions): string {
-  const q = `${o.width}x${o.height}-${o.theme}-${o.from ?? ""}-${o.to ?? ""}`;
+  const q = optionsKey(o);
   return `"chart-${resource}-${shortHash(q)}${
     shortHash(q + "|" + resource)
   }-s${SERVICE_VERSION}-c${CHART_VERSION}"`;
 }
 
-function svgResponse(c: Context, svg: string, etag: string): Response {
-  return new Response(svg, {
-    status: 200,
-    headers: {
-      "Content-Type": "image/svg+xml; charset=utf-8",
-      "X-Content-Type-Options": "nosniff",
-      // The SVG runs no script and loads nothing; say so to browsers that open it directly.
-      "Content-Security-Policy": "default-src 'none'; style-src 'unsafe-inline'; sandbox",
-      "X-Request-Id": c.get("requestId" as never) ?? "",
-      ...immutableHeaders(etag),
-    },
-  });
+const SVG_HEADERS = {
+  "Content-Type": "image/svg+xml; charset=utf-8",
+  "X-Content-Type-Options": "nosniff",
+  // The SVG runs no script and loads nothing; say so to browsers that open it directly.
+  "Content-Security-Policy": "default-src 'none'; style-src 'unsafe-inline'; sandbox",
+};
+
+const encoder = new TextEncoder();
+
+function svgRepresentation(svg: string, etag: string): CachedRepresentation {
+  return { etag, body: encoder.encode(svg), headers: SVG_HEADERS };
 }
 
 const svgContent = { "image/svg+xml": { schema: z.string().openapi({ format: "binary" }) } };
 
-export function registerChartRoutes(app: App, deps: { store: Store }): void {
+/**
+ * Register the chart routes. Rendered charts of succeeded runs and of stored series are kept
+ * in `cache` (they never change); a stored series is still looked up on every request, so a
+ * deleted one answers 404.
+ */
+export function registerChartRoutes(
+  app: App,
+  deps: { store: Store; cache?: ImmutableCache },
+): void {
   const { store } = deps;
+  const cache = deps.cache ?? new ImmutableCache();
 
   app.openapi(
     createRoute({
@@ -133,17 +148,18 @@ export function registerChartRoutes(app: App, deps: { store: Store }): void {
       const id: string = c.req.valid("param").id;
       const opts = renderOptions(c.req.valid("query"));
       const etag = etagFor(`series-${id.replace(/^sha256:/, "")}`, opts);
-      const nm = notModified(c, etag);
-      if (nm) {
-        if (!(await store.getSeriesMeta(id))) {
-          throw new ProblemError("not-found", `No series has id ${id}`);
-        }
-        return nm;
+      if (!(await store.getSeriesMeta(id))) {
+        throw new ProblemError("not-found", `No series has id ${id}`);
       }
-      const s = await store.getSeries(id);
-      if (!s) throw new ProblemError("not-found", `No series has id ${id}`);
-      const svg = renderChart(seriesChartSpec(s), { ...opts, idPrefix: "s" + shortHash(etag) });
-      return svgResponse(c, svg, etag);
+      let rep = cache.get(etag);
+      if (!rep) {
+        const s = await store.getSeries(id);
+        if (!s) throw new ProblemError("not-found", `No series has id ${id}`);
+        const svg = renderChart(seriesChartSpec(s), { ...opts, idPrefix: "s" + shortHash(etag) });
+        rep = svgRepresentation(svg, etag);
+        cache.set(etag, rep);
+      }
+      return serveRepresentation(c, rep);
     }) as never,
   );
 
@@ -176,21 +192,26 @@ export function registerChartRoutes(app: App, deps: { store: Store }): void {
     (async (c: any) => {
       const id: string = c.req.valid("param").id;
       const opts = renderOptions(c.req.valid("query"));
-      const run = await store.getRun(id);
-      if (!run) throw new ProblemError("not-found", `No run has id ${id}`);
-      if (run.status !== "succeeded" || !run.result) {
-        throw new ProblemError(
-          "conflict",
-          `Run ${id} has status ${run.status}; a chart exists once it has succeeded`,
-          {},
-          { "Cache-Control": "no-store" },
-        );
+      // A succeeded run never changes: its chart is found by run id and query alone.
+      const key = `run-${id}-${optionsKey(opts)}`;
+      let rep = cache.get(key);
+      if (!rep) {
+        const run = await store.getRun(id);
+        if (!run) throw new ProblemError("not-found", `No run has id ${id}`);
+        if (run.status !== "succeeded" || !run.result) {
+          throw new ProblemError(
+            "conflict",
+            `Run ${id} has status ${run.status}; a chart exists once it has succeeded`,
+            {},
+            { "Cache-Control": "no-store" },
+          );
+        }
+        const etag = etagFor(`run-${run.id}-${run.result_digest}`, opts);
+        const svg = renderChart(runChartSpec(run), { ...opts, idPrefix: "r" + shortHash(etag) });
+        rep = svgRepresentation(svg, etag);
+        cache.set(key, rep);
       }
-      const etag = etagFor(`run-${run.id}-${run.result_digest}`, opts);
-      const nm = notModified(c, etag);
-      if (nm) return nm;
-      const svg = renderChart(runChartSpec(run), { ...opts, idPrefix: "r" + shortHash(etag) });
-      return svgResponse(c, svg, etag);
+      return serveRepresentation(c, rep);
     }) as never,
   );
 }

@@ -230,3 +230,92 @@ Deno.test("GET /v1/runs/{id}/chart.svg: 404 unknown, 409 unfinished, 422 bad id"
     await svc.close();
   }
 });
+
+/** A sunspot-like monthly series and a temperature that follows it by 18 months, with noise. */
+function solarAndClimate() {
+  const n = 600;
+  let z = 0.3;
+  const noise = (i: number) => {
+    // deterministic pseudo-noise (sine hash), enough to keep r < 1
+    z = (Math.sin(i * 12.9898 + z * 78.233) * 43758.5453) % 1;
+    return z;
+  };
+  const spots = monthlySeries(
+    "Spots",
+    "sunspot_number",
+    "1",
+    1950,
+    n,
+    (i) => 80 + 70 * Math.sin((2 * Math.PI * i) / 132),
+    { version: "2" },
+  );
+  const temp = monthlySeries(
+    "Station temperature anomaly",
+    "temperature_anomaly",
+    "K",
+    1950,
+    n,
+    (i) => 0.1 * Math.sin((2 * Math.PI * (i - 18)) / 132) + 0.15 * noise(i),
+  );
+  return { spots, temp };
+}
+
+Deno.test("GET /v1/runs/{id}/chart.svg for lag-correlations: r by lag, surrogate envelope, family-wise level, best lag", async () => {
+  const svc = await makeTestApp();
+  try {
+    const { spots, temp } = solarAndClimate();
+    const solar = await uploadSeries(svc, spots), climate = await uploadSeries(svc, temp);
+    const res = await svc.post("/v1/lag-correlations", {
+      solar,
+      climate,
+      max_lag: 36,
+      surrogates: 200,
+      seed: 3,
+    });
+    const run = await res.json();
+    assert.equal(res.status, 201, JSON.stringify(run));
+    const chart = await svc.get(`/v1/runs/${run.id}/chart.svg`);
+    assert.equal(chart.status, 200);
+    const root = checkSvg(await chart.text());
+    assert.match(findAll(root, "title")[0].text, /^Lagged correlation/);
+    const t = texts(root);
+    assert.ok(t.includes("Correlation r"));
+    assert.ok(t.some((s) => /^Lag \(months/.test(s)), t.join("|"));
+    assert.ok(t.includes("surrogate null: ±1.96 SD (pointwise ~95 %)"));
+    assert.ok(t.includes("family-wise 95 % threshold of max |r|"));
+    const fw = run.result.monte_carlo.family_wise_threshold_95 as number;
+    assert.ok(t.includes(`+${fw.toFixed(3)}`) && t.includes(`−${fw.toFixed(3)}`));
+    const best = run.result.best;
+    assert.ok(t.includes(`best lag ${best.lag} months`));
+    assert.ok(best.lag >= 12 && best.lag <= 24, `best lag ${best.lag}`); // the series follow by 18 months
+    assert.ok(t.some((s) => s.startsWith(`Best lag ${best.lag} months: r = `)));
+    assert.ok(t.some((s) => s.startsWith("Correlation is not attribution")));
+    const desc = findAll(root, "desc")[0].text;
+    assert.match(desc, /Correlation at lags -36 to 36 months, with 200 phase surrogates/);
+    // Cached: the second request is served with the same tag, and revalidates to 304
+    const again = await svc.get(`/v1/runs/${run.id}/chart.svg`, {
+      "If-None-Match": chart.headers.get("etag")!,
+    });
+    assert.equal(again.status, 304);
+  } finally {
+    await svc.close();
+  }
+});
+
+Deno.test("a chart builder that meets an unknown result shape falls back to the generic chart", async () => {
+  const svc = await makeTestApp();
+  try {
+    const t = [2000.5, 2001.5, 2002.5];
+    const run = await putFinishedRun(svc.store, "lag-correlations", {
+      lags: [{ lag: "zero" }],
+      outputs: { a: { name: "a", quantity: "tsi", units: "W m-2", time: t, value: [1, 2, 3] } },
+    });
+    const res = await svc.get(`/v1/runs/${run.id}/chart.svg`);
+    assert.equal(res.status, 200);
+    const root = checkSvg(await res.text());
+    assert.match(findAll(root, "title")[0].text, /^Lag correlations · run/);
+    assert.ok(texts(root).includes("Total solar irradiance (W m⁻²)"));
+  } finally {
+    await svc.close();
+  }
+});

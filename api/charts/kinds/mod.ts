@@ -3,7 +3,10 @@
  *
  * @module
  */
-import type { KindChart } from "../run_charts.ts";
+import type { KindChart } from "../run_common.ts";
+import { lagCorrelationChart } from "./lag_correlations.ts";
 
 /** Chart builders keyed by `run.kind`. */
-export const KIND_CHARTS: Record<string, KindChart> = {};
+export const KIND_CHARTS: Record<string, KindChart> = {
+  "lag-correlations": lagCorrelationChart,
+};
