@@ -207,7 +207,7 @@ Deno.test("SqliteStore: two processes writing to one file at once never fail wit
   await withDir(async (dir) => {
     const path = join(dir, "shared.db");
     await (await openSqliteStore({ path })).close();
-    const count = 120;
+    const count = 200;
     const children = ["p1", "p2"].map((tag) =>
       new Deno.Command(Deno.execPath(), {
         args: ["run", "-A", CHILD, "writer", path, tag, String(count)],
