@@ -610,6 +610,8 @@ export async function openSqliteStore(options: SqliteStoreOptions): Promise<Sqli
       throw new Error(`Cannot open SQLite store ${path}: WAL journal refused (mode is ${mode})`);
     }
     db.exec("PRAGMA synchronous = FULL");
+    // After a checkpoint, shrink a write-ahead log that a large upload grew beyond 64 MiB.
+    db.exec("PRAGMA journal_size_limit = 67108864");
     db.exec("PRAGMA foreign_keys = ON");
     migrate(db, options.migrations ?? SQLITE_MIGRATIONS);
   } catch (e) {
