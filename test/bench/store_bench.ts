@@ -1,7 +1,8 @@
 /**
  * Store speed for one 150,000-point series (about 410 years of daily values) with uncertainty:
  * putSeries and getSeries on the SQLite file store (WAL, synchronous FULL, so each put pays a
- * sync to disk) and on the in-memory store.
+ * sync to disk), on the in-memory store, and on PostgreSQL (an ephemeral local cluster with
+ * fsync off) when the server binaries exist. Medians: test/bench/store_medians.ts.
  *
  *   deno bench -A test/bench/store_bench.ts
  *
@@ -10,17 +11,27 @@
  */
 import { join } from "node:path";
 import { openSqliteStore } from "../../api/store/sqlite.ts";
-import type { StoredSeries } from "../../api/store/types.ts";
+import postgres from "postgres";
+import { openPostgresStore } from "../../api/store/postgres.ts";
+import type { Store, StoredSeries } from "../../api/store/types.ts";
+import { startPgServer } from "../api/store/pg_cluster.ts";
 import { makeSeries, seriesId } from "../api/store/store_suite.ts";
 
 const N = 150_000;
 const dir = await Deno.makeTempDir({ prefix: "sunlag-bench-" });
 globalThis.addEventListener("unload", () => Deno.removeSync(dir, { recursive: true }));
 
-const stores = {
+const stores: Record<string, Store> = {
   file: await openSqliteStore({ path: join(dir, "bench.db") }),
   memory: await openSqliteStore({ path: ":memory:" }),
 };
+const pg = await startPgServer();
+if (pg) {
+  const admin = postgres(pg.adminUrl, { max: 1, onnotice: () => {} });
+  await admin.unsafe("CREATE DATABASE sunlag_bench");
+  await admin.end();
+  stores["postgres, local"] = await openPostgresStore({ url: pg.urlFor("sunlag_bench") });
+}
 const template = makeSeries("bench", { n: N, uncertainty: true });
 for (const store of Object.values(stores)) await store.putSeries(template);
 
