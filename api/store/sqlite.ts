@@ -11,7 +11,9 @@
  * - Series points are three blobs of little-endian doubles (time, value, uncertainty) in
  *   `series_points`, apart from the metadata so listings never read them.
  * - A run's input series and input runs live in link tables indexed by the input id, so
- *   `runsUsingSeries` and the in-use check of `deleteSeries` are index look-ups.
+ *   `runsUsingSeries` and the in-use check of `deleteSeries` are index look-ups. Both link
+ *   tables are foreign keys: a run whose inputs are not stored is refused
+ *   (`MissingInputError`), and no delete can leave a run pointing at nothing.
  *
  * The methods are async to honour the `Store` interface, but each one runs synchronously to
  * completion: no transaction is ever held open across an `await`.
