@@ -4,7 +4,7 @@
  *
  * @module
  */
-import { parseIsoTime } from "../../core/time/mod.ts";
+import { parseIsoDecimalYear } from "../../core/time/mod.ts";
 import { checkMeta, ErrorList, finish } from "./normalise.ts";
 import type { DuplicatePolicy, IngestResult } from "./types.ts";
 import { MAX_POINTS } from "./types.ts";
@@ -110,7 +110,7 @@ export function ingestJson(body: JsonSeriesInput, options: JsonIngestOptions = {
       else errors.add({ ...at(`/time/${i}`), message: `time must be finite, got ${t}` });
     } else if (typeof t === "string") {
       try {
-        time[i] = parseIsoTime(t).decimalYear;
+        time[i] = parseIsoDecimalYear(t);
       } catch (e) {
         errors.add({
           ...at(`/time/${i}`),

@@ -167,8 +167,8 @@ export function finish(
   if (errors.size > 0 || meta === null) return { ok: false, errors: errors.done() };
 
   // Keep present points, sorted by time (stable) when averaging duplicates.
-  const idx: number[] = [];
-  for (let i = 0; i < n; i++) if (!Number.isNaN(value[i])) idx.push(i);
+  const idx = new Int32Array(present);
+  for (let i = 0, k = 0; i < n; i++) if (!Number.isNaN(value[i])) idx[k++] = i;
   if (duplicates === "mean") idx.sort((a, b) => time[a] - time[b] || a - b);
   const t: number[] = [], v: number[] = [], u: number[] | null = uncertainty ? [] : null;
   let aggregated = 0;
@@ -197,9 +197,14 @@ export function finish(
       }],
     };
   }
-  const tt = Float64Array.from(t);
-  const vv = Float64Array.from(v, (x) => (x === 0 ? 0 : x)); // no negative zero
-  const uu = u ? Float64Array.from(u, (x) => (x === 0 ? 0 : x)) : null;
+  const m = t.length;
+  const tt = new Float64Array(m), vv = new Float64Array(m);
+  const uu = u ? new Float64Array(m) : null;
+  for (let i = 0; i < m; i++) {
+    tt[i] = t[i];
+    vv[i] = v[i] === 0 ? 0 : v[i]; // no negative zero
+    if (uu && u) uu[i] = u[i] === 0 ? 0 : u[i];
+  }
   return {
     ok: true,
     series: { ...meta, resolution: inferResolution(tt), time: tt, value: vv, uncertainty: uu },

@@ -9,7 +9,12 @@
  *
  * @module
  */
-import { decimalYear, parseIsoTime, periodBounds } from "../../core/time/mod.ts";
+import {
+  decimalYear,
+  parseIsoDecimalYear,
+  parseIsoTime,
+  periodBounds,
+} from "../../core/time/mod.ts";
 import { checkMeta, ErrorList, finish, type SeriesMetaInput } from "./normalise.ts";
 import {
   DEFAULT_MISSING,
@@ -347,8 +352,10 @@ export function ingestText(
     sentinelText.add(t.toLowerCase());
     if (NUMBER.test(t)) sentinelNum.add(Number(t));
   }
+  let longest = 0;
+  for (const s of sentinelText) longest = Math.max(longest, s.length);
   const isMissing = (c: string) =>
-    sentinelText.has(c.toLowerCase()) ||
+    (c.length <= longest && (sentinelText.has(c) || sentinelText.has(c.toLowerCase()))) ||
     (sentinelNum.size > 0 && NUMBER.test(c) && sentinelNum.has(Number(c)));
 
   // 6. Time format for a single time column.
@@ -426,7 +433,7 @@ export function ingestText(
         else bodyErr(k, tc, `unparseable time "${short(c)}": expected a decimal year`);
       } else {
         try {
-          t = parseIsoTime(c).decimalYear;
+          t = parseIsoDecimalYear(c);
         } catch (e) {
           bodyErr(
             k,

@@ -1,5 +1,11 @@
 import assert from "node:assert/strict";
-import { decimalYear, formatIsoTime, parseIsoTime, periodBounds } from "../../../core/time/mod.ts";
+import {
+  decimalYear,
+  formatIsoTime,
+  parseIsoDecimalYear,
+  parseIsoTime,
+  periodBounds,
+} from "../../../core/time/mod.ts";
 
 const close = (a: number, b: number, tol = 1e-12) =>
   assert.ok(Math.abs(a - b) <= tol, `${a} vs ${b} (tol ${tol})`);
@@ -164,4 +170,29 @@ Deno.test("formatIsoTime() and parseIsoTime() round-trip at each resolution", as
       assert.deepEqual([b.start, b.end, b.middle], [p.start, p.end, p.decimalYear]);
     }
   });
+});
+
+Deno.test("parseIsoDecimalYear() equals parseIsoTime().decimalYear bit for bit, and fails alike", () => {
+  for (let y = 1599; y <= 2401; y += 1) {
+    const ys = String(y);
+    assert.equal(parseIsoDecimalYear(ys), parseIsoTime(ys).decimalYear);
+    for (let m = 1; m <= 12; m++) {
+      const ms = `${ys}-${String(m).padStart(2, "0")}`;
+      assert.equal(parseIsoDecimalYear(ms), parseIsoTime(ms).decimalYear);
+      for (const d of [1, 15, 28, 29, 30, 31]) {
+        const ds = `${ms}-${String(d).padStart(2, "0")}`;
+        let slow: number | Error;
+        try {
+          slow = parseIsoTime(ds).decimalYear;
+        } catch (e) {
+          slow = e as Error;
+        }
+        if (slow instanceof Error) assert.throws(() => parseIsoDecimalYear(ds), RangeError);
+        else assert.equal(parseIsoDecimalYear(ds), slow);
+      }
+    }
+  }
+  for (const bad of ["1996-13", "1996-00", "abcd", "1996-1-01", "+96"]) {
+    assert.throws(() => parseIsoDecimalYear(bad), RangeError, bad);
+  }
 });
