@@ -10,9 +10,9 @@ import { z } from "@hono/zod-openapi";
 import { InputProblem, type RunKind } from "../runs/kind.ts";
 import { refId, SeriesRef } from "../schemas/series_ref.ts";
 import {
-  cellBounds,
   cellKey,
   cellMeans,
+  cellSequence,
   evaluateSunspotMapping,
   reconstructFromProxies,
   type ReconstructionCells,
@@ -27,7 +27,6 @@ import type { StoredMappings, StoredModel } from "./irradiance_models.ts";
 import {
   cycleAmplitudeWarning,
   IRRADIANCE_CAUTIONS,
-  nullable,
   parsePeriod,
   PeriodInput,
   requireSunspotVersion,
@@ -94,6 +93,29 @@ const Request = z.object({
 
 type Params = z.output<typeof Request>;
 
+const SOURCE_NAMES = ["none", "direct", "back_extended"] as const;
+
+/** Runs of equal source code as { source, start, end, cells } (start/end: cell middles). */
+function segments(source: Uint8Array, time: ArrayLike<number>) {
+  const out: { source: string; start: number; end: number; cells: number }[] = [];
+  for (let i = 0; i < source.length;) {
+    let j = i;
+    while (j + 1 < source.length && source[j + 1] === source[i]) j++;
+    out.push({ source: SOURCE_NAMES[source[i]], start: time[i], end: time[j], cells: j - i + 1 });
+    i = j + 1;
+  }
+  return out;
+}
+
+/** Round to 1e-6 (W m-2): far below any interval width, and a third shorter in JSON. */
+function micro(x: ArrayLike<number>): (number | null)[] {
+  const out = new Array<number | null>(x.length);
+  for (let i = 0; i < x.length; i++) {
+    out[i] = Number.isFinite(x[i]) ? Math.round(x[i] * 1e6) / 1e6 : null;
+  }
+  return out;
+}
+
 function outsideCount(x: Float64Array, lo: number, hi: number): number {
   const pad = 0.25 * (hi - lo);
   let c = 0;
@@ -139,14 +161,9 @@ export const irradianceReconstructions: RunKind<typeof Request> = {
       throw new InputProblem("/period", `the period has ${n} ${res} cells; at most 400000`);
     }
     const keys = new Int32Array(n);
-    const time = new Array<number>(n);
-    const days = new Float64Array(n);
-    for (let i = 0; i < n; i++) {
-      keys[i] = k0 + i;
-      const b = cellBounds(k0 + i, res);
-      time[i] = b.middle;
-      days[i] = b.days;
-    }
+    for (let i = 0; i < n; i++) keys[i] = k0 + i;
+    const seq = cellSequence(k0, k1, res);
+    const time = seq.middle, days = seq.days;
     const termNames = model.terms.map((t) => t.name);
     params.proxies.forEach((p, i) => {
       if (!termNames.includes(p.term)) {
@@ -328,8 +345,8 @@ export const irradianceReconstructions: RunKind<typeof Request> = {
     const amp = tsiCycleAmplitude(time, rec.value);
     warnings.push(...cycleAmplitudeWarning(amp.median));
     const zNote = params.level === 0.95 ? "95 %" : `${(params.level * 100).toFixed(1)} %`;
-    const sdOut = nullable(rec.sd);
-    const valOut = nullable(rec.value);
+    const sdOut = micro(rec.sd);
+    const valOut = micro(rec.value);
     return {
       model: run.id,
       resolution: res,
@@ -353,21 +370,21 @@ export const irradianceReconstructions: RunKind<typeof Request> = {
         },
         missing: nNone,
       },
-      source: Array.from(rec.source),
-      sourceCodes: { "0": "no value", "1": "all proxies direct", "2": "back-extended" },
+      sourceSegments: segments(rec.source, time),
       cycleAmplitude: amp,
       outputs: {
         tsi: {
           name: "Reconstructed TSI",
           quantity: "tsi",
           units: "W m-2",
-          time,
+          time: Array.from(time),
           value: valOut,
           uncertainty: sdOut,
-          lower: nullable(rec.lower),
-          upper: nullable(rec.upper),
+          lower: micro(rec.lower),
+          upper: micro(rec.upper),
           interval: `${zNote} prediction interval`,
-          description: `Model run ${run.id}, ${res} means; ${scenario.label as string}`,
+          description: `Model run ${run.id}, ${res} means, values rounded to 1e-6 W m-2; ${scenario
+            .label as string}`,
         },
       },
       warnings,

@@ -219,3 +219,55 @@ export function valuesAtKeys(cells: CellMeans, keys: ArrayLike<number>): Float64
   }
   return out;
 }
+
+/**
+ * Middles and lengths (days) of the consecutive cells with keys k0..k1, computed
+ * incrementally (no per-cell calendar search), for building long target axes fast.
+ *
+ * @param k0 first key
+ * @param k1 last key (≥ k0)
+ * @param resolution cell resolution
+ * @returns `{ middle, days }` of length k1 − k0 + 1
+ * @throws {RangeError} when k1 < k0
+ * @example
+ * ```ts
+ * import { cellBounds, cellSequence } from "./calendar_cells.ts";
+ * import assert from "node:assert/strict";
+ * const s = cellSequence(0, 400, "daily");
+ * assert.equal(s.middle[399], cellBounds(399, "daily").middle);
+ * assert.equal(s.days[0], 1);
+ * ```
+ */
+export function cellSequence(
+  k0: number,
+  k1: number,
+  resolution: CellResolution,
+): { middle: Float64Array; days: Float64Array } {
+  if (!(k1 >= k0)) {
+    throw new RangeError(`Cannot build cell sequence: last key ${k1} is before first key ${k0}`);
+  }
+  const n = k1 - k0 + 1;
+  const middle = new Float64Array(n), days = new Float64Array(n);
+  if (resolution !== "daily") {
+    for (let i = 0; i < n; i++) {
+      const b = cellBounds(k0 + i, resolution);
+      middle[i] = b.middle;
+      days[i] = b.days;
+    }
+    return { middle, days };
+  }
+  const first = cellBounds(k0, "daily");
+  let year = Math.floor(first.start + 1e-9);
+  let yearStart = daysFromCivil(year, 1, 1), diy = daysInYear(year);
+  for (let i = 0; i < n; i++) {
+    const k = k0 + i;
+    if (k - yearStart >= diy) {
+      year++;
+      yearStart = daysFromCivil(year, 1, 1);
+      diy = daysInYear(year);
+    }
+    middle[i] = year + (k - yearStart + 0.5) / diy;
+    days[i] = 1;
+  }
+  return { middle, days };
+}
