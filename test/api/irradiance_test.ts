@@ -1,6 +1,8 @@
 import assert from "node:assert/strict";
 import { demoFileEntries, loadDemo } from "../../api/demo.ts";
 import { assertProblem, makeTestApp, type TestService } from "./helpers.ts";
+import { cellBounds, cellKey, julianDay, solarDiscGeometry } from "../../core/irradiance/mod.ts";
+import { parseIsoTime } from "../../core/time/mod.ts";
 
 // deno-lint-ignore no-explicit-any
 type Json = any;
@@ -102,6 +104,39 @@ Deno.test("irradiance endpoints: darkening → model → reconstruction → forc
         );
         assert.match(run.result.positionFactor, /Meeus 1998/);
         assert.ok(run.result.warnings.some((w: string) => /1\.15–1\.25/.test(w)));
+      },
+    );
+
+    await t.step(
+      "Carrington longitudes give the same PSI as central-meridian distances",
+      async () => {
+        const recs = (groups2001.records as Json[]).slice(0, 120);
+        const l0 = recs.map((r) => {
+          const noon =
+            cellBounds(cellKey(parseIsoTime(r.date).decimalYear, "daily"), "daily").middle;
+          return solarDiscGeometry(julianDay(noon)).l0Deg;
+        });
+        const body = (from: "central_meridian" | "carrington") => ({
+          groups: {
+            time: recs.map((r) => r.date),
+            area: recs.map((r) => r.area_msh),
+            position: {
+              kind: "heliographic",
+              latitude: recs.map((r) => r.latitude_deg),
+              longitude: recs.map((r, i) =>
+                from === "carrington" ? (r.cmd_deg + l0[i]) % 360 : r.cmd_deg
+              ),
+              longitudeFrom: from,
+            },
+          },
+        });
+        const a = await created(
+          await svc.post("/v1/irradiance/darkening", body("central_meridian")),
+        );
+        const b = await created(await svc.post("/v1/irradiance/darkening", body("carrington")));
+        a.result.outputs.psi.value.forEach((v: number, i: number) => {
+          assert.ok(Math.abs(v - b.result.outputs.psi.value[i]) < 1e-12);
+        });
       },
     );
 

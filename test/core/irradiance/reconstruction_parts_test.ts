@@ -1,0 +1,118 @@
+import assert from "node:assert/strict";
+import {
+  ar1MeanVarianceFactor,
+  blockedCrossValidation,
+  cellBounds,
+  cellKey,
+  cellMeans,
+  cellSequence,
+  reconstructFromProxies,
+  secularBackground,
+  tsiCycleAmplitude,
+} from "../../../core/irradiance/mod.ts";
+import { ordinaryLeastSquares } from "../../../core/stats/mod.ts";
+import { decimalYear } from "../../../core/time/mod.ts";
+
+Deno.test("ar1MeanVarianceFactor() equals the explicit sum 1 + 2Σ(1 − k/m)ρ^k", () => {
+  // definition of the variance of a mean of a stationary AR(1) series (common practice)
+  for (const m of [2, 7, 30, 365]) {
+    for (const rho of [-0.4, 0.3, 0.7, 0.95]) {
+      let s = 1;
+      for (let k = 1; k < m; k++) s += 2 * (1 - k / m) * rho ** k;
+      assert.ok(Math.abs(ar1MeanVarianceFactor(m, rho) - s) < 1e-9 * s, `m ${m} rho ${rho}`);
+    }
+  }
+  assert.equal(ar1MeanVarianceFactor(0.5, 0.7), 1);
+  assert.throws(() => ar1MeanVarianceFactor(10, 1), /rho must be in \(-1, 1\)/);
+  assert.throws(() => ar1MeanVarianceFactor(NaN, 0.5), RangeError);
+});
+
+Deno.test("cellKey() and cellSequence() follow the time model across leap years", () => {
+  // 2024 is a leap year: 29 February noon is day 60 of 366
+  const t = decimalYear(2024, 2, 29, 0.5);
+  const k = cellKey(t, "daily");
+  assert.equal(cellBounds(k, "daily").middle, t);
+  assert.equal(cellKey(t, "monthly"), 2024 * 12 + 1);
+  assert.equal(cellBounds(2024 * 12 + 1, "monthly").days, 29);
+  const seq = cellSequence(k - 400, k + 400, "daily");
+  for (let i = 0; i < seq.middle.length; i += 37) {
+    assert.equal(seq.middle[i], cellBounds(k - 400 + i, "daily").middle);
+  }
+  // monthly means of a daily series
+  const days = cellSequence(cellKey(2023.0001, "daily"), cellKey(2023.9999, "daily"), "daily");
+  const m = cellMeans(days.middle, days.middle.map((_, i) => i), "monthly");
+  assert.equal(m.keys.length, 12);
+  assert.deepEqual([...m.count].slice(0, 3), [31, 28, 31]);
+  assert.equal(m.mean[0], 15);
+  assert.throws(() => cellSequence(5, 4, "daily"), RangeError);
+  assert.throws(() => cellMeans([NaN], [1], "daily"), /time at index 0/);
+});
+
+Deno.test("blockedCrossValidation() uses contiguous blocks and catches a regime change", () => {
+  const n = 100, x = new Float64Array(n), y = new Float64Array(n);
+  for (let i = 0; i < n; i++) (x[i] = i), (y[i] = i < 80 ? 2 * i : 2 * i + 50);
+  const cv = blockedCrossValidation([x], y, 5, ordinaryLeastSquares);
+  assert.deepEqual(cv.blocks, [[0, 19], [20, 39], [40, 59], [60, 79], [80, 99]]);
+  // the last block lies after the change, so its held-out error is the largest
+  assert.equal(cv.foldRmse.indexOf(Math.max(...cv.foldRmse)), 4);
+  assert.throws(() => blockedCrossValidation([x], y, 1, ordinaryLeastSquares), /folds/);
+  assert.throws(() => blockedCrossValidation([x], y, 51, ordinaryLeastSquares), /folds/);
+});
+
+Deno.test("reconstructFromProxies() back-extends with wider bands and leaves gaps empty", () => {
+  const model = {
+    coefficients: [1360.8, 135],
+    covariance: [[1e-4, 0], [0, 4]],
+    terms: [{ role: "facular" as const, quietLevel: 0.15 }],
+    psiReference: 1360.8,
+    residualSd: 0.15,
+    rho: 0.7,
+    stepDays: 1,
+    backExtension: { residualSd: 0.3, rho: 0.9, stepDays: 30.436875 },
+  };
+  const r = reconstructFromProxies(model, {
+    days: Float64Array.of(30, 30, 30),
+    direct: [Float64Array.of(0.16, NaN, NaN)],
+    mapped: [{
+      value: Float64Array.of(0.16, 0.16, NaN),
+      paramVariance: Float64Array.of(0, 1e-8, 0),
+    }],
+  }, 1.96);
+  assert.deepEqual([...r.source], [1, 2, 0]);
+  assert.equal(r.value[0], r.value[1]);
+  assert.ok(r.sd[1] > r.sd[0]);
+  assert.ok(Number.isNaN(r.value[2]));
+  // hand check of the direct monthly variance: xᵀΣx + σ²f(30, ρ)/30
+  const q = 1e-4 + 0.01 ** 2 * 4;
+  const v = q + 0.15 ** 2 * ar1MeanVarianceFactor(30, 0.7) / 30;
+  assert.ok(Math.abs(r.sd[0] - Math.sqrt(v)) < 1e-12);
+  assert.throws(
+    () =>
+      reconstructFromProxies(model, { days: new Float64Array(1), direct: [], mapped: [] }, 1.96),
+    /model has 1 terms/,
+  );
+});
+
+Deno.test("secularBackground() refuses periods without data and equal means", () => {
+  const t = Array.from({ length: 100 }, (_, i) => 1900 + i + 0.5);
+  const r = t.map(() => 50);
+  const sc = {
+    windowYears: 11,
+    referenceMinimum: { start: 1900, end: 1910 },
+    laterPeriod: { start: 1950, end: 1960 },
+    deltaTsi: 1,
+    calibrationPeriod: { start: 1980, end: 2000 },
+  };
+  assert.throws(() => secularBackground(t, r, sc), /same in the reference and later periods/);
+  assert.throws(
+    () => secularBackground(t, r, { ...sc, referenceMinimum: { start: 1700, end: 1710 } }),
+    /reference minimum period \[1700, 1710\) holds no sunspot data/,
+  );
+  assert.throws(() => secularBackground(t, r, { ...sc, windowYears: 0 }), /windowYears/);
+});
+
+Deno.test("tsiCycleAmplitude() finds no cycle in a short or flat series", () => {
+  assert.equal(tsiCycleAmplitude([2000.5, 2001.5], [1361, 1362]).median, null);
+  const t = Array.from({ length: 30 }, (_, i) => 1990 + i + 0.5);
+  assert.equal(tsiCycleAmplitude(t, t.map(() => 1361)).median, null);
+});
