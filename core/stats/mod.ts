@@ -8,6 +8,11 @@
 export * from "./distributions.ts";
 export * from "./least_squares_qr.ts";
 export * from "./condition_number.ts";
-export * from "./ordinary_least_squares.ts";
+// the design/statistics helpers of ordinary_least_squares.ts are internal to the regressions
+export {
+  type OlsOptions,
+  ordinaryLeastSquares,
+  type RegressionFit,
+} from "./ordinary_least_squares.ts";
 export * from "./prais_winsten.ts";
 export * from "./newey_west.ts";
