@@ -185,12 +185,15 @@ export class PostgresStore implements Store {
     this.#sql = sql;
   }
 
-  async ping(): Promise<boolean> {
+  /** True when the server answers `SELECT 1` within `timeoutMs` (default 2 s). */
+  async ping(timeoutMs = 2000): Promise<boolean> {
+    let timer: ReturnType<typeof setTimeout> | undefined;
+    const late = new Promise<boolean>((ok) => timer = setTimeout(() => ok(false), timeoutMs));
+    const answer = this.#sql`SELECT 1 AS one`.then((rows) => rows[0]?.one === 1, () => false);
     try {
-      const rows = await this.#sql`SELECT 1 AS one`;
-      return rows[0]?.one === 1;
-    } catch {
-      return false;
+      return await Promise.race([answer, late]);
+    } finally {
+      clearTimeout(timer);
     }
   }
 

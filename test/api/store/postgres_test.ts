@@ -160,3 +160,19 @@ Deno.test({
     });
   },
 });
+
+Deno.test({
+  name: "PostgresStore.ping() answers false once its database is gone" + suffix,
+  ignore,
+  async fn() {
+    const db = await freshDatabase(server!);
+    const store = await openPostgresStore({ url: db.url, max: 1 });
+    try {
+      assert.equal(await store.ping(), true);
+      await db.drop(); // terminates the store's connections; reconnecting then fails
+      assert.equal(await store.ping(), false);
+    } finally {
+      await store.close();
+    }
+  },
+});
