@@ -115,6 +115,16 @@ function badge(status) {
 }
 
 /**
+ * Right-align only what reads as a number (a long text in a number column must wrap).
+ * @param {Child} c
+ */
+function looksNumeric(c) {
+  return typeof c === "number" ||
+    (typeof c === "string" &&
+      /^(—|[-+]?(\d[\d,]*\.?\d*|\.\d+)(e[-+]?\d+)?|[-+]?Infinity)$/i.test(c));
+}
+
+/**
  * A scrolling table.
  * @param {string[]} head
  * @param {Child[][]} rows
@@ -133,7 +143,13 @@ function table(head, rows, opts = {}) {
         "tbody",
         null,
         rows.map((r) =>
-          h("tr", null, r.map((c, i) => h("td", opts.numeric?.[i] ? { class: "num" } : null, c)))
+          h(
+            "tr",
+            null,
+            r.map((c, i) =>
+              h("td", opts.numeric?.[i] && looksNumeric(c) ? { class: "num" } : null, c)
+            ),
+          )
         ),
       ),
     ),
@@ -1187,6 +1203,13 @@ function isSeriesRef(doc, s) {
 
 /** Drop `null` alternatives: returns the non-null schema and whether null is allowed. @param {any} doc @param {any} s */
 function nonNull(doc, s) {
+  // `allOf: [{$ref}, {description}]` is how a described reference is written: unwrap it.
+  if (Array.isArray(s?.allOf)) {
+    const ref = s.allOf.find((/** @type {any} */ a) => a.$ref) ?? s.allOf[0];
+    const notes = Object.assign({}, ...s.allOf.filter((/** @type {any} */ a) => a !== ref));
+    const inner = nonNull(doc, ref);
+    return { ...inner, outer: { ...inner.outer, ...notes } };
+  }
   const d = deref(doc, s);
   const alts = d.anyOf ?? d.oneOf;
   if (Array.isArray(alts)) {
@@ -1286,7 +1309,9 @@ function buildFields(doc, schema, prefix, ctx) {
       input = h(
         "select",
         { id },
-        dflt === undefined ? h("option", { value: "" }, isRequired ? "choose…" : "(none)") : null,
+        dflt === undefined
+          ? h("option", { value: "" }, isRequired ? "choose…" : "(service default)")
+          : null,
         p.enum.map((/** @type {unknown} */ v) =>
           h("option", { value: String(v), selected: v === dflt }, String(v))
         ),
@@ -1500,7 +1525,7 @@ async function analyseView(gen, query) {
   };
   const picker = h(
     "div",
-    { class: "field" },
+    { class: "field wide" },
     h("label", { for: "analysis" }, "Analysis"),
     h(
       "select",

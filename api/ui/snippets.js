@@ -99,8 +99,14 @@ export function curlCommand(base, req) {
   if (req.json !== undefined || req.file !== undefined) {
     lines.push(line.join(" "));
     line = [];
-    if (req.json !== undefined) line.push("--data-raw", shellQuote(JSON.stringify(req.json)));
-    else line.push("--data-binary", shellQuote("@" + req.file));
+    if (req.json !== undefined) {
+      const flat = JSON.stringify(req.json);
+      // Long bodies are indented over several lines (still one quoted shell word).
+      line.push(
+        "--data-raw",
+        shellQuote(flat.length > 70 ? JSON.stringify(req.json, null, 2) : flat),
+      );
+    } else line.push("--data-binary", shellQuote("@" + req.file));
   }
   if (req.save) line.push("-o", shellQuote(req.save));
   line.push(shellQuote(requestUrl(base, req)));

@@ -1,3 +1,4 @@
+/// <reference lib="dom" />
 /**
  * The built-in page in a real browser: Debian's headless Chromium driven by playwright-core,
  * against the service on 127.0.0.1 with an in-memory store, the SYNTHETIC demo data and two
@@ -160,6 +161,139 @@ Deno.test({
           assert.equal(after, before);
         },
       );
+
+      const demoId = async (name: RegExp) => {
+        const page = await (await fetch(`${svc.url}/v1/series?limit=100`)).json();
+        const s = page.items.find((x: { id: string; name: string }) =>
+          svc.demoIds.includes(x.id) && name.test(x.name)
+        );
+        assert.ok(s, `no demo series matches ${name}`);
+        return s.id as string;
+      };
+      const solar = await demoId(/monthly sunspot number/);
+      const climate = await demoId(/monthly temperature anomaly/);
+
+      await t.step(
+        "a lag-correlation run from the form reaches succeeded while its progress bar moves",
+        async () => {
+          // Size the run to last a few seconds on this machine, whatever its speed: time a small
+          // synchronous run first, then scale the number of surrogates.
+          const t0 = performance.now();
+          const probe = await fetch(`${svc.url}/v1/lag-correlations`, {
+            method: "POST",
+            headers: { "content-type": "application/json" },
+            body: JSON.stringify({ solar, climate, surrogates: 200 }),
+          });
+          assert.equal(probe.status, 201, await probe.text());
+          const perSurrogate = (performance.now() - t0) / 1000 / 200;
+          const surrogates = Math.max(
+            200,
+            Math.min(100_000, Math.round(4 / perSurrogate / 100) * 100),
+          );
+
+          await page.goto(`${svc.url}/#/analyse?kind=/v1/lag-correlations`);
+          await page.waitForSelector("#analysis-form");
+          await page.selectOption("#f_solar", solar);
+          await page.selectOption("#f_climate", climate);
+          await page.click("#analysis-form details > summary");
+          await page.fill("#f_surrogates", String(surrogates));
+          assert.match(
+            await page.locator("#snippet-curl").innerText(),
+            new RegExp(`"surrogates": ${surrogates}`),
+          );
+          await shot(page, "analyse-form");
+          // Record every value the progress bar shows, from the moment it exists.
+          await page.evaluate(() => {
+            const w = globalThis as unknown as { seen: number[] };
+            w.seen = [];
+            new MutationObserver(() => {
+              const bar = document.querySelector("#run-progress") as HTMLProgressElement | null;
+              if (bar && w.seen[w.seen.length - 1] !== bar.value) w.seen.push(bar.value);
+            }).observe(document.body, { subtree: true, childList: true, attributes: true });
+          });
+          await page.click("#analysis-form button[type=submit]");
+          await page.waitForSelector("#run-progress");
+          await shot(page, "run-progress");
+          await page.waitForSelector("main [data-status=succeeded]", { timeout: 45_000 });
+          const seen = await page.evaluate(() =>
+            (globalThis as unknown as { seen: number[] }).seen
+          );
+          assert.ok(seen.length >= 2, `progress values seen: ${JSON.stringify(seen)}`);
+          assert.ok(
+            seen.some((v) => v > 0 && v < 1),
+            `progress values seen: ${JSON.stringify(seen)}`,
+          );
+          for (let i = 1; i < seen.length; i++) {
+            assert.ok(seen[i] >= seen[i - 1], JSON.stringify(seen));
+          }
+          await page.locator("figure.chart svg").waitFor();
+          assert.match(await page.locator("main").innerText(), /Cautions/);
+          assert.match(await page.locator("#snippet-curl").innerText(), /\/replay/);
+          await shot(page, "run-view");
+        },
+      );
+
+      await t.step("replay of the run shows verified", async () => {
+        await page.click("#replay");
+        const verdict = page.locator("#replay-result [data-verified]");
+        await verdict.waitFor({ timeout: 45_000 });
+        assert.equal(await verdict.getAttribute("data-verified"), "true");
+        assert.match(await page.locator("#replay-result").innerText(), /Verified/);
+        await shot(page, "run-replayed");
+      });
+
+      await t.step("the runs list shows the run, newest first, with its digest", async () => {
+        await page.click("nav >> text=Runs");
+        await page.waitForSelector("main h1:text-is('Runs')");
+        await page.waitForSelector("main table tbody tr");
+        const first = await page.locator("main table tbody tr").first().innerText();
+        assert.match(first, /Lag correlations\s+succeeded/);
+        assert.match(first, /[0-9a-f]{12}…/);
+        await shot(page, "runs-list");
+      });
+
+      await t.step("phone width and dark theme: no sideways scrolling, readable", async () => {
+        await page.setViewportSize({ width: 390, height: 844 });
+        await page.emulateMedia({ colorScheme: "dark" });
+        for (
+          const [hash, name] of [["#/series", "phone-dark-series"], ["#/runs", "phone-dark-runs"]]
+        ) {
+          await page.goto(`${svc.url}/${hash}`);
+          await page.waitForSelector("main table");
+          const overflow = await page.evaluate(() =>
+            document.documentElement.scrollWidth - document.documentElement.clientWidth
+          );
+          assert.ok(overflow <= 1, `page scrolls sideways by ${overflow}px at 390px`);
+          const bg = await page.evaluate(() =>
+            getComputedStyle(document.documentElement).backgroundColor
+          );
+          assert.equal(bg, "rgb(17, 21, 28)");
+          await shot(page, name);
+        }
+        await page.click("main table tbody tr a");
+        await page.locator("figure.chart svg").waitFor();
+        await shot(page, "phone-dark-series-view");
+      });
+
+      await t.step("every control is reachable from the keyboard", async () => {
+        await page.setViewportSize({ width: 1280, height: 900 });
+        await page.goto(`${svc.url}/#/series`);
+        await page.reload();
+        await page.waitForSelector("main table");
+        const reached = new Set<string>();
+        for (let i = 0; i < 12; i++) {
+          await page.keyboard.press("Tab");
+          reached.add(await page.evaluate(() => document.activeElement?.textContent?.trim() ?? ""));
+        }
+        for (const label of ["Series", "Runs", "Upload", "Analyse"]) {
+          assert.ok(reached.has(label), label);
+        }
+        // Enter on a focused link navigates, and focus moves to the new view's content.
+        await page.focus("[data-nav=upload]");
+        await page.keyboard.press("Enter");
+        await page.waitForSelector("#upload-form");
+        assert.equal(await page.evaluate(() => document.activeElement?.id), "view");
+      });
 
       assert.deepEqual(errors, [], "no uncaught errors in the page");
     } finally {
