@@ -5,6 +5,9 @@
  * @module
  */
 import type { RunKind } from "../runs/kind.ts";
+import { energyBalanceKind } from "./energy_balance.ts";
+import { compositeKind } from "./composites.ts";
+import { attributionKind } from "./attributions.ts";
 import { lagCorrelationKind } from "./lag_correlations.ts";
 import { resampleKind } from "./resample.ts";
 import { anomalyKind } from "./anomaly.ts";
@@ -15,6 +18,9 @@ import { irradianceReconstructions } from "./irradiance_reconstructions.ts";
 import { forcing } from "./forcing.ts";
 
 export const RUN_KINDS: RunKind[] = [
+  energyBalanceKind,
+  compositeKind,
+  attributionKind,
   lagCorrelationKind,
   resampleKind,
   anomalyKind,
