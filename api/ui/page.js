@@ -1201,7 +1201,12 @@ function isSeriesRef(doc, s) {
     alts.some((a) => /InlineSeries/.test(a.$ref ?? ""));
 }
 
-/** Drop `null` alternatives: returns the non-null schema and whether null is allowed. @param {any} doc @param {any} s */
+/**
+ * Drop `null` alternatives: returns the non-null schema and whether null is allowed.
+ * @param {any} doc
+ * @param {any} s
+ * @returns {{ schema: any, nullable: boolean, outer: any }}
+ */
 function nonNull(doc, s) {
   // `allOf: [{$ref}, {description}]` is how a described reference is written: unwrap it.
   if (Array.isArray(s?.allOf)) {
