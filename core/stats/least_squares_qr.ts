@@ -27,6 +27,8 @@ export interface LeastSquaresQr {
  *
  * @param columns the design X as columns, each of length n (n ≥ p)
  * @param y response, length n
+ * @param overwrite factorise `columns` and `y` in place (scratch arrays; saves the copies)
+ *   @default false
  * @returns coefficients, R and (XᵀX)⁻¹
  * @throws {RangeError} when lengths differ, n < p, or X is numerically rank deficient
  *   (a diagonal element of R below 1e-10 of the largest: collinear columns)
@@ -41,7 +43,11 @@ export interface LeastSquaresQr {
  * assert.ok(Math.abs(fit.coefficients[1] - 2) < 1e-12);
  * ```
  */
-export function leastSquaresQr(columns: readonly Float64Array[], y: Float64Array): LeastSquaresQr {
+export function leastSquaresQr(
+  columns: readonly Float64Array[],
+  y: Float64Array,
+  overwrite = false,
+): LeastSquaresQr {
   const p = columns.length;
   const n = y.length;
   if (p === 0) throw new RangeError("Cannot solve least squares: the design has no columns");
@@ -55,7 +61,7 @@ export function leastSquaresQr(columns: readonly Float64Array[], y: Float64Array
   if (n < p) {
     throw new RangeError(`Cannot solve least squares: needs at least ${p} rows, got ${n}`);
   }
-  const { r, qty } = householderR(columns, y);
+  const { r, qty } = householderR(columns, y, overwrite);
   const diag = r.map((row, i) => row[i]);
   let maxDiag = 0;
   for (let i = 0; i < p; i++) maxDiag = Math.max(maxDiag, Math.abs(diag[i]));
@@ -101,6 +107,7 @@ export function leastSquaresQr(columns: readonly Float64Array[], y: Float64Array
  *
  * @param columns the design X as columns of equal length n ≥ p
  * @param y optional response; Qᵀy is returned when given
+ * @param overwrite work in place on `columns` and `y` @default false
  * @returns R (p×p rows) and Qᵀy (length n, or empty)
  * @example
  * ```ts
@@ -113,11 +120,12 @@ export function leastSquaresQr(columns: readonly Float64Array[], y: Float64Array
 export function householderR(
   columns: readonly Float64Array[],
   y?: Float64Array,
+  overwrite = false,
 ): { r: number[][]; qty: Float64Array } {
   const p = columns.length;
   const n = columns[0].length;
-  const a = columns.map((c) => Float64Array.from(c));
-  const qty = y ? Float64Array.from(y) : new Float64Array(0);
+  const a = overwrite ? [...columns] : columns.map((c) => Float64Array.from(c));
+  const qty = y ? (overwrite ? y : Float64Array.from(y)) : new Float64Array(0);
   const diag = new Float64Array(p);
   for (let k = 0; k < p; k++) {
     const ak = a[k];

@@ -132,7 +132,7 @@ export function praisWinsten(
   while (iterations < maxIt) {
     transform(y, rho, ys);
     design.forEach((c, j) => transform(c, rho, xs[j]));
-    qr = leastSquaresQr(xs, ys);
+    qr = leastSquaresQr(xs, ys, true);
     beta = qr.coefficients;
     iterations++;
     const next = rhoFromResiduals(resid(beta));
@@ -146,7 +146,7 @@ export function praisWinsten(
   // final fit at the final ρ (so β, covariance and ρ belong together)
   transform(y, rho, ys);
   design.forEach((c, j) => transform(c, rho, xs[j]));
-  qr = leastSquaresQr(xs, ys);
+  qr = leastSquaresQr(xs, ys, true);
   beta = qr.coefficients;
   const st = fitStatistics(design, y, beta, intercept, level);
   const innovations = transform(st.residuals, rho, new Float64Array(n));
