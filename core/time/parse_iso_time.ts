@@ -4,11 +4,17 @@
  *
  * @module
  */
-import { daysBeforeMonth, daysFromCivil, daysInMonth, daysInYear } from "./calendar.ts";
+import {
+  civilFromDays,
+  daysBeforeMonth,
+  daysFromCivil,
+  daysInMonth,
+  daysInYear,
+} from "./calendar.ts";
 import { decimalYearFromEpochDays } from "./decimal_year.ts";
 
 /** How precise an ISO time is: a whole year, a month, a day, or an instant (date-time). */
-export type IsoPrecision = "year" | "month" | "day" | "instant";
+export type IsoPrecision = "year" | "month" | "day" | "instant" | "interval";
 
 /** A parsed ISO 8601 time. */
 export interface ParsedIsoTime {
@@ -42,6 +48,13 @@ const RE_INSTANT = new RegExp(
  *   may replace `T`; `24:00` means the end of the day): that instant, converted to UTC.
  *   A date-time without offset is read as UTC.
  *
+ * - time intervals `start/end` and `start/duration` (ISO 8601 §5.5; SCIENCE.md §11, e.g.
+ *   `1996-08/P1M` for a monthly mean): the middle of the interval. The interval runs from the
+ *   start of the period the start names to the end of the period the end names (so
+ *   `1961/1990` is 30 whole years, as climatologists read it), or to start + duration, with
+ *   durations `PnYnMnWnDTnHnMnS` (integers; seconds may have a fraction) added on the
+ *   calendar (a day past the end of a month is clamped to its last day).
+ *
  * Basic format (`19960815`) and week dates are not accepted, because a bare number is read as
  * a decimal year elsewhere in sunlag.
  *
@@ -62,6 +75,7 @@ const RE_INSTANT = new RegExp(
  */
 export function parseIsoTime(text: string): ParsedIsoTime {
   const s = text.trim();
+  if (s.includes("/")) return parseInterval(text, s);
   let m: RegExpExecArray | null;
   if ((m = RE_YEAR.exec(s))) {
     const y = Number(m[1]);
@@ -116,6 +130,54 @@ export function parseIsoTime(text: string): ParsedIsoTime {
     text,
     "expected ISO 8601 YYYY, YYYY-MM, YYYY-MM-DD, YYYY-DDD or YYYY-MM-DDThh:mm[:ss][Z|±hh:mm]",
   );
+}
+
+const RE_DURATION =
+  /^P(?:(\d+)Y)?(?:(\d+)M)?(?:(\d+)W)?(?:(\d+)D)?(?:T(?:(\d+)H)?(?:(\d+)M)?(?:(\d+(?:[.,]\d+)?)S)?)?$/;
+
+function parseInterval(text: string, s: string): ParsedIsoTime {
+  const parts = s.split("/");
+  if (parts.length !== 2 || parts[0] === "" || parts[1] === "") {
+    throw bad(text, "an interval is start/end or start/duration, e.g. 1996-08/P1M");
+  }
+  if (parts[0].startsWith("P")) {
+    throw bad(text, "duration/end intervals are not accepted; write start/duration or start/end");
+  }
+  const a = parseIsoTime(parts[0]);
+  const startDays = epochDays(a.start);
+  let endDays: number;
+  if (parts[1].startsWith("P")) {
+    const m = RE_DURATION.exec(parts[1]);
+    if (!m || parts[1] === "P" || parts[1].endsWith("T")) {
+      throw bad(text, `unparseable duration "${parts[1]}": expected PnYnMnWnDTnHnMnS`);
+    }
+    const [Y, Mo, W, D, H, Mi] = [1, 2, 3, 4, 5, 6].map((k) => (m[k] ? Number(m[k]) : 0));
+    const S = m[7] ? Number(m[7].replace(",", ".")) : 0;
+    const c = civilFromDays(Math.floor(startDays));
+    const frac = startDays - Math.floor(startDays);
+    const months = c.month - 1 + Mo;
+    const y2 = c.year + Y + Math.floor(months / 12);
+    const m2 = (months % 12) + 1;
+    const d2 = Math.min(c.day, daysInMonth(y2, m2));
+    endDays = daysFromCivil(y2, m2, d2) + frac + 7 * W + D + (H * 3600 + Mi * 60 + S) / 86400;
+  } else {
+    endDays = epochDays(parseIsoTime(parts[1]).end);
+  }
+  if (!(endDays > startDays)) throw bad(text, "the interval must end after it starts");
+  return {
+    decimalYear: decimalYearFromEpochDays((startDays + endDays) / 2),
+    precision: "interval",
+    start: a.start,
+    end: decimalYearFromEpochDays(endDays),
+  };
+}
+
+/** Days since 1970-01-01 of a decimal year. */
+function epochDays(t: number): number {
+  const y = Math.floor(t);
+  const d = daysFromCivil(y, 1, 1) + (t - y) * daysInYear(y);
+  const r = Math.round(d);
+  return Math.abs(d - r) < 1e-6 ? r : d; // period bounds are whole days: undo rounding error
 }
 
 function dayIndex(text: string, y: number, mo: number, d: number): number {

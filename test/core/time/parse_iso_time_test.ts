@@ -196,3 +196,33 @@ Deno.test("parseIsoDecimalYear() equals parseIsoTime().decimalYear bit for bit, 
     assert.throws(() => parseIsoDecimalYear(bad), RangeError, bad);
   }
 });
+
+Deno.test("parseIsoTime() reads ISO 8601 intervals as their middle", async (t) => {
+  await t.step("start/duration", () => {
+    // 1996-08/P1M is August 1996: same middle as "1996-08"
+    const p = parseIsoTime("1996-08/P1M");
+    assert.equal(p.precision, "interval");
+    close(p.decimalYear, parseIsoTime("1996-08").decimalYear, 1e-12);
+    close(p.end, parseIsoTime("1996-08").end, 1e-12);
+    // a year from 1 July 2023 ends 1 July 2024 and its middle is 183 days in (2023-12-31T00:00)
+    close(parseIsoTime("2023-07-01/P1Y").decimalYear, 2023 + 364 / 365, 1e-12);
+    close(parseIsoTime("2024-01-01T00:00Z/PT12H").decimalYear, 2024 + 0.25 / 366, 1e-15);
+    close(parseIsoTime("2024-01-01/P1W2D").end, 2024 + 9 / 366, 1e-12);
+    // 31 January + 1 month is clamped to 29 February 2024
+    close(parseIsoTime("2024-01-31/P1M").end, 2024 + (31 + 28) / 366, 1e-12);
+  });
+  await t.step("start/end: whole periods, inclusive", () => {
+    const p = parseIsoTime("1961/1990");
+    assert.deepEqual([p.start, p.end], [1961, 1991]);
+    // 10957 days (three leap years); the middle is 5478.5 days in: 1976-01-01T12:00Z
+    close(p.decimalYear, 1976 + 0.5 / 366, 1e-12);
+    close(parseIsoTime("2000-01/2000-03").end, 2000 + 91 / 366, 1e-12);
+  });
+  await t.step("bad intervals", () => {
+    assert.throws(() => parseIsoTime("1990/1961"), /must end after it starts/);
+    assert.throws(() => parseIsoTime("P1M/1996-08"), /duration\/end intervals/);
+    assert.throws(() => parseIsoTime("1996-08/P"), /unparseable duration/);
+    assert.throws(() => parseIsoTime("1996-08/P1X"), /unparseable duration/);
+    assert.throws(() => parseIsoTime("1996/1997/1998"), /an interval is start\/end/);
+  });
+});
