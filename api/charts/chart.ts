@@ -289,7 +289,7 @@ export function renderChart(spec: ChartSpec, opts: RenderOptions): string {
 
   // ---- layout: title, legend, notes, margins
   const top0 = 10;
-  const titleLines = wrapText(spec.title, TITLE_FONT, W - 24).slice(0, 2);
+  const titleLines = wrapText(spec.title, TITLE_FONT, W - 24, true).slice(0, 2);
   let y = top0 + TITLE_FONT;
   let markup = "";
   markup += el("rect", { width: W, height: H, fill: theme.background });
@@ -492,9 +492,13 @@ export function renderChart(spec: ChartSpec, opts: RenderOptions): string {
       case "band": {
         const d = xKind === "category"
           ? { x: [], lower: [], upper: [] }
+          : xKind === "log"
+          ? unlogBand(
+            decimateBand(log10All(l.x), l.lower, l.upper, Math.log10(x0), Math.log10(x1), columns),
+          )
           : decimateBand(l.x, l.lower, l.upper, x0, x1, columns);
         const gen = area<number>()
-          .defined((i) => yDefined(d.lower[i]) && yDefined(d.upper[i]))
+          .defined((i) => Number.isFinite(d.x[i]) && yDefined(d.lower[i]) && yDefined(d.upper[i]))
           .x((i) => X(d.x[i]))
           .y0((i) => Y(d.lower[i] as number))
           .y1((i) => Y(d.upper[i] as number))
@@ -514,9 +518,11 @@ export function renderChart(spec: ChartSpec, opts: RenderOptions): string {
         break;
       }
       case "line": {
-        const d = decimateM4(l.x, l.y, x0, x1, columns);
+        const d = xKind === "log"
+          ? unlog(decimateM4(log10All(l.x), l.y, Math.log10(x0), Math.log10(x1), columns))
+          : decimateM4(l.x, l.y, x0, x1, columns);
         const gen = line<number>()
-          .defined((i) => yDefined(d.y[i]))
+          .defined((i) => Number.isFinite(d.x[i]) && yDefined(d.y[i]))
           .x((i) => X(d.x[i]))
           .y((i) => Y(d.y[i] as number))
           .digits(2);
@@ -677,15 +683,18 @@ export function renderChart(spec: ChartSpec, opts: RenderOptions): string {
       }
     }
   });
-  // Vertical line texts only where they do not overlap.
-  let lastRight = -Infinity;
-  for (const v of vlineTexts.sort((a, b) => a.x - b.x)) {
+  // Vertical line texts right of their line (left when there is no room), only where they do
+  // not overlap, the first listed placed first.
+  const placed: [number, number][] = [];
+  const free = (a: number, b: number) =>
+    a >= left && b <= right && !placed.some(([p, q]) => a < q + 4 && b > p - 4);
+  for (const v of vlineTexts) {
     const w = textWidth(v.text, FONT - 1);
-    if (v.x + 3 < lastRight + 4 || v.x + 3 + w > right) continue;
-    overlay.push(
-      text({ x: v.x + 3, y: yRangeTop + FONT, fill: v.color, "font-size": FONT - 1 }, v.text),
-    );
-    lastRight = v.x + 3 + w;
+    let a = v.x + 3;
+    if (!free(a, a + w)) a = v.x - 3 - w;
+    if (!free(a, a + w)) continue;
+    placed.push([a, a + w]);
+    overlay.push(text({ x: a, y: yRangeTop + FONT, fill: v.color, "font-size": FONT - 1 }, v.text));
   }
   markup += el("g", { class: "layers", "clip-path": `url(#${clipId})` }, layers + overlay.join(""));
   if (!anyVisible) {
@@ -752,6 +761,18 @@ export function renderChart(spec: ChartSpec, opts: RenderOptions): string {
 function yearText(t: number, span: number): string {
   return formatIsoTime(t, span >= 30 ? "annual" : span >= 1 ? "monthly" : "daily");
 }
+
+/** log10 of every x (non-positive x become NaN, i.e. not drawn on a log axis). */
+function log10All(x: ArrayLike<number>): number[] {
+  return Array.from(x, (v) => (v > 0 ? Math.log10(v) : NaN));
+}
+
+function unlog<T extends { x: number[] }>(d: T): T {
+  d.x = d.x.map((v) => Math.pow(10, v));
+  return d;
+}
+
+const unlogBand = unlog;
 
 function countFinite(v: Values): number {
   let n = 0;

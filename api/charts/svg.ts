@@ -75,30 +75,36 @@ export function text(a: Attrs, content: string): string {
 }
 
 /**
- * Estimated rendered width of a text in px for a sans-serif system font: 0.56 em per
- * character on average, a little less for digits and narrow letters. Only used for layout
- * (margins, legend wrapping), so an estimate is enough.
+ * Estimated rendered width of a text in px for a sans-serif system font, on the wide side
+ * (DejaVu Sans, a common fallback, is wider than most): about 0.6 em per character, less for
+ * narrow letters and more for wide ones and capitals. Only used for layout (margins, legend
+ * and note wrapping), so a generous estimate is enough.
  */
-export function textWidth(s: string, fontSize: number): number {
+export function textWidth(s: string, fontSize: number, bold = false): number {
   let w = 0;
   for (const ch of s) {
-    if ("il.,:;|!'ⁱ ".includes(ch)) w += 0.3;
-    else if ("mwMW".includes(ch)) w += 0.85;
-    else if (/[0-9]/.test(ch)) w += 0.56;
-    else if (/[A-Z]/.test(ch)) w += 0.66;
-    else w += 0.54;
+    if ("il.,:;|!'ⁱ ".includes(ch)) w += 0.32;
+    else if ("mwMW".includes(ch)) w += 0.92;
+    else if (/[0-9]/.test(ch)) w += 0.64;
+    else if (/[A-Z]/.test(ch)) w += 0.72;
+    else w += 0.6;
   }
-  return w * fontSize;
+  return w * fontSize * (bold ? 1.1 : 1);
 }
 
 /** Break a text into lines no wider than `maxWidth` px (word wrap; long words are kept). */
-export function wrapText(s: string, fontSize: number, maxWidth: number): string[] {
+export function wrapText(
+  s: string,
+  fontSize: number,
+  maxWidth: number,
+  bold = false,
+): string[] {
   const words = s.split(/\s+/).filter(Boolean);
   const lines: string[] = [];
   let cur = "";
   for (const w of words) {
     const next = cur ? `${cur} ${w}` : w;
-    if (cur && textWidth(next, fontSize) > maxWidth) {
+    if (cur && textWidth(next, fontSize, bold) > maxWidth) {
       lines.push(cur);
       cur = w;
     } else cur = next;

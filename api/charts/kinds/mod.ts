@@ -4,9 +4,17 @@
  * @module
  */
 import type { KindChart } from "../run_common.ts";
+import { attributionsChart } from "./attributions.ts";
+import { cyclesChart } from "./cycles.ts";
+import { irradianceReconstructionChart } from "./irradiance_reconstruction.ts";
 import { lagCorrelationChart } from "./lag_correlations.ts";
+import { spectraChart } from "./spectra.ts";
 
 /** Chart builders keyed by `run.kind`. */
 export const KIND_CHARTS: Record<string, KindChart> = {
+  "attributions": attributionsChart,
+  "cycles": cyclesChart,
+  "irradiance_reconstruction": irradianceReconstructionChart,
   "lag-correlations": lagCorrelationChart,
+  "spectra": spectraChart,
 };
