@@ -21,8 +21,8 @@ async function chartOf(svc: TestService, id: string, query = ""): Promise<SvgNod
   return checkSvg(await res.text());
 }
 
-/** Invented monthly sunspot-like cycles of 11 years (a sine squared), 1900–1999. */
-function cycleSeries(n = 1200) {
+/** Invented monthly sunspot-like cycles of 11 years (a sine squared), by month index. */
+function cycleSeries() {
   return (i: number) => 5 + 150 * Math.sin((Math.PI * i) / 132) ** 2;
 }
 
