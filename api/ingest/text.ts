@@ -78,7 +78,8 @@ interface Line {
  * Rules:
  * - The input must be UTF-8 text: a NUL byte or an invalid UTF-8 sequence is an error (a
  *   leading byte-order mark is ignored). Lines end with LF, CRLF or CR.
- * - Lines whose first non-blank character is `#` are comments; blank lines are skipped. A file
+ * - Lines whose first non-blank character is `#` are comments; blank lines, and rows whose
+ *   cells are all empty (`,,`), are skipped. A file
  *   that starts with the `# sunlag series` comment of a sunlag export supplies name, quantity,
  *   units, description, source and version from its `# key: value` lines (options override).
  * - The delimiter is detected (tab, semicolon, comma, then runs of whitespace; the one that
@@ -147,7 +148,7 @@ export function ingestText(
 
   // 2. Lines, comments, file metadata.
   const raw = text.split(/\r\n|\n|\r/);
-  const lines: Line[] = [];
+  let lines: Line[] = [];
   const fileMeta: Record<string, string> = {};
   let isExport = false;
   for (let i = 0; i < raw.length; i++) {
@@ -207,15 +208,23 @@ export function ingestText(
   )!;
 
   // 4. Cells, header.
+  // Rows of empty cells only (",,," as spreadsheets write below a table) count as blank lines.
   const cells: string[][] = [];
+  const dataLines: Line[] = [];
   for (const line of lines) {
     const c = splitLine(line.text, delimiter);
     if (c === null) {
       errors.add({ pointer: "", in: "body", row: line.row, message: "unterminated quoted field" });
-      cells.push([]);
-    } else cells.push(c);
+    } else if (!c.every((x) => x.trim() === "")) {
+      cells.push(c);
+      dataLines.push(line);
+    }
   }
   if (errors.size > 0) return { ok: false, errors: errors.done() };
+  lines = dataLines;
+  if (lines.length === 0) {
+    return fail({ pointer: "", in: "body", message: "the body holds no data rows" });
+  }
   const width = cells[0].length;
   const refs = [
     options.time,

@@ -250,3 +250,15 @@ Deno.test("ingestText() reads quoted CSV fields", () => {
     /unterminated quoted field/,
   );
 });
+
+Deno.test("ingestText() skips rows of empty cells as spreadsheets write them", () => {
+  const r = ingestText("time,value\n2000,1\n,\n2001,2\n,,\n", META);
+  assert.ok(r.ok);
+  assert.equal(r.report.read, 2);
+  assert.equal(r.series.resolution, "annual");
+  // but a row with an empty time and a value is an error
+  const e = ingestText("time,value\n2000,1\n,5\n2001,2\n", META);
+  assert.ok(!e.ok);
+  assert.equal(e.errors[0].row, 3);
+  assert.match(e.errors[0].message, /unparseable time/);
+});
