@@ -21,6 +21,7 @@ import {
 import { outputToCsv } from "../export/csv.ts";
 import { wantsCsv } from "./format.ts";
 import { immutableHeaders, notModified } from "./cache.ts";
+import { ImmutableCache, serveRepresentation } from "./immutable_cache.ts";
 
 const FINAL = new Set(["succeeded", "failed", "cancelled"]);
 
@@ -43,6 +44,7 @@ async function mustGetRun(store: Store, id: string): Promise<RunRecord> {
 
 export function registerRunRoutes(app: App, deps: { store: Store; runs: RunService }): void {
   const { store, runs } = deps;
+  const runCache = new ImmutableCache();
 
   app.openapi(
     createRoute({
@@ -94,9 +96,21 @@ export function registerRunRoutes(app: App, deps: { store: Store; runs: RunServi
       },
     }),
     async (c) => {
+      // A succeeded run never changes: answer repeated GETs (and 304s) from memory.
+      const hit = runCache.get(c.req.valid("param").id);
+      if (hit) return serveRepresentation(c, hit) as never;
       const run = await mustGetRun(store, c.req.valid("param").id);
       if (FINAL.has(run.status)) {
         const etag = `"run-${run.id}-${run.status}-${run.result_digest ?? "none"}"`;
+        if (run.status === "succeeded") {
+          const rep = {
+            etag,
+            body: new TextEncoder().encode(JSON.stringify(runView(run))),
+            headers: { "Content-Type": "application/json" },
+          };
+          runCache.set(run.id, rep);
+          return serveRepresentation(c, rep) as never;
+        }
         const nm = notModified(c, etag);
         if (nm) return nm;
         for (const [k, v] of Object.entries(immutableHeaders(etag))) c.header(k, v);

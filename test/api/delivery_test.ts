@@ -370,3 +370,20 @@ Deno.test("CORS with * allows any origin; SUNLAG_CORS_ORIGINS is a comma-separat
     await svc.close();
   }
 });
+
+Deno.test("a succeeded run answered from memory is byte-identical to the first answer", async () => {
+  const svc = await makeTestApp();
+  try {
+    const { run } = await runWithOutput(svc);
+    const a = await svc.get(`/v1/runs/${run.id}`);
+    const b = await svc.get(`/v1/runs/${run.id}`);
+    assert.equal(a.headers.get("content-type"), b.headers.get("content-type"));
+    assert.match(a.headers.get("content-type") ?? "", /^application\/json/);
+    assert.equal(a.headers.get("etag"), b.headers.get("etag"));
+    const [ta, tb] = [await a.text(), await b.text()];
+    assert.equal(ta, tb);
+    assert.deepEqual(JSON.parse(ta).result, run.result);
+  } finally {
+    await svc.close();
+  }
+});

@@ -10,7 +10,7 @@
  * 3. Health-check latency (p50/p99 from `wrk --latency`) while a 10,000-surrogate
  *    lag-correlation run is in progress on the worker pool (goal: p99 under 50 ms).
  *
- * Usage: deno run -A test/bench/http_load.ts [--seconds 5] [--connections 32]
+ * Usage: deno run -A test/bench/http_load.ts [--seconds 5] [--connections 32] [--rounds 3]
  *
  * @module
  */
@@ -106,19 +106,23 @@ const results: Record<string, unknown> = {
   wrk: { threads: 1, connections: CONNECTIONS, seconds: SECONDS },
 };
 
-// ---- 1. baseline
-const hello = start(["run", "-A", "test/bench/http_hello.ts", String(HELLO_PORT)]);
-let baseline: WrkResult;
-try {
-  await waitFor(`http://127.0.0.1:${HELLO_PORT}/`);
-  await wrk(`http://127.0.0.1:${HELLO_PORT}/`, { seconds: 1 }); // warm-up
-  baseline = await wrk(`http://127.0.0.1:${HELLO_PORT}/`);
-  results.hello_world = baseline;
-} finally {
-  await stop(hello);
-}
+const ROUNDS = opt("rounds", 3);
+const median = (xs: number[]) => {
+  const a = [...xs].sort((p, q) => p - q);
+  return a.length % 2 ? a[(a.length - 1) / 2] : (a[a.length / 2 - 1] + a[a.length / 2]) / 2;
+};
+const loadAverage = () => {
+  try {
+    return Deno.readTextFileSync("/proc/loadavg").split(" ").slice(0, 3).map(Number);
+  } catch {
+    return null;
+  }
+};
+results.load_average_at_start = loadAverage();
 
-// ---- 2. the service
+// Both servers run side by side; measurements alternate in rounds, so that a busy machine
+// slows baseline and service alike, and the medians of the rounds are compared.
+const hello = start(["run", "-A", "test/bench/http_hello.ts", String(HELLO_PORT)]);
 const base = `http://127.0.0.1:${SERVICE_PORT}`;
 const service = start(["run", "-A", "api/main.ts"], {
   PORT: String(SERVICE_PORT),
@@ -127,7 +131,10 @@ const service = start(["run", "-A", "api/main.ts"], {
   SUNLAG_DEMO: "1",
   SUNLAG_LOG: "0",
 });
+const helloUrl = `http://127.0.0.1:${HELLO_PORT}/`;
+let baseline = NaN;
 try {
+  await waitFor(helloUrl);
   await waitFor(`${base}/v1/health`);
   const list = await (await fetch(`${base}/v1/series?limit=100`)).json();
   const find = (q: string) =>
@@ -146,29 +153,51 @@ try {
     throw new Error(`run not created: ${created.status} ${JSON.stringify(run)}`);
   }
   const runUrl = `${base}/v1/runs/${run.id}`;
-  const etagOf = async (u: string) => {
+  const probe = async (u: string) => {
     const r = await fetch(u);
     const bytes = (await r.arrayBuffer()).byteLength;
     return { etag: r.headers.get("etag") ?? "", bytes };
   };
-  const targets: [string, string][] = [
-    ["run_json", runUrl],
-    ["run_chart_svg", `${runUrl}/chart.svg`],
-    ["series_chart_svg", `${base}/v1/series/${spots}/chart.svg`],
-  ];
+  const targets: { name: string; url: string; headers?: Record<string, string>; bytes: number }[] =
+    [];
+  for (
+    const [name, url] of [
+      ["run_json", runUrl],
+      ["run_chart_svg", `${runUrl}/chart.svg`],
+      ["series_chart_svg", `${base}/v1/series/${spots}/chart.svg`],
+    ]
+  ) {
+    const { etag, bytes } = await probe(url);
+    targets.push({ name: `${name}_200`, url, bytes });
+    targets.push({ name: `${name}_304`, url, headers: { "If-None-Match": etag }, bytes: 0 });
+  }
+  // warm-up
+  await wrk(helloUrl, { seconds: 1 });
+  for (const t of targets) await wrk(t.url, { seconds: 1, headers: t.headers });
+  const rps: Record<string, number[]> = { hello_world: [] };
+  const last: Record<string, WrkResult> = {};
+  for (let round = 0; round < ROUNDS; round++) {
+    const h = await wrk(helloUrl);
+    rps.hello_world.push(h.requests_per_second);
+    last.hello_world = h;
+    for (const t of targets) {
+      const w = await wrk(t.url, { headers: t.headers });
+      if (w.non_2xx_3xx) throw new Error(`${t.name}: ${w.non_2xx_3xx} bad responses`);
+      (rps[t.name] ??= []).push(w.requests_per_second);
+      last[t.name] = w;
+    }
+  }
+  baseline = median(rps.hello_world);
   const served: Record<string, unknown> = {};
-  for (const [name, url] of targets) {
-    const { etag, bytes } = await etagOf(url);
-    await wrk(url, { seconds: 1 }); // warm-up
-    const full = await wrk(url);
-    const revalidated = await wrk(url, { headers: { "If-None-Match": etag } });
+  for (const [name, xs] of Object.entries(rps)) {
+    const t = targets.find((q) => q.name === name);
     served[name] = {
-      url: url.replace(base, ""),
-      body_bytes: bytes,
-      get_200: full,
-      get_304: revalidated,
-      ratio_200_to_hello: full.requests_per_second / baseline.requests_per_second,
-      ratio_304_to_hello: revalidated.requests_per_second / baseline.requests_per_second,
+      url: t ? t.url.replace(base, "") : "/ (hello-world)",
+      body_bytes: t?.bytes,
+      rounds_rps: xs.map(Math.round),
+      median_rps: Math.round(median(xs)),
+      ratio_to_hello: median(xs) / baseline,
+      last_latency_ms: last[name].latency_ms,
     };
   }
   results.cached_gets = served;
@@ -201,32 +230,38 @@ try {
   };
 } finally {
   await stop(service);
+  await stop(hello);
 }
 
+results.load_average_at_end = loadAverage();
 console.log(JSON.stringify(results, null, 2));
-const r = (x: number) => Math.round(x);
-const cg = results.cached_gets as Record<string, {
-  get_200: WrkResult;
-  get_304: WrkResult;
-  ratio_200_to_hello: number;
-  ratio_304_to_hello: number;
-}>;
-console.log("\nsummary (req/s; ratio to hello-world)");
-console.log(`hello-world            ${r(baseline.requests_per_second)}`);
+const cg = results.cached_gets as Record<
+  string,
+  { median_rps: number; ratio_to_hello: number; rounds_rps: number[] }
+>;
+console.log(
+  `\nsummary: median req/s over ${ROUNDS} alternating rounds of ${SECONDS} s; ratio to hello-world`,
+);
 for (const [k, v] of Object.entries(cg)) {
   console.log(
-    `${k.padEnd(22)} 200: ${r(v.get_200.requests_per_second)} (${
-      v.ratio_200_to_hello.toFixed(2)
-    })  ` +
-      `304: ${r(v.get_304.requests_per_second)} (${v.ratio_304_to_hello.toFixed(2)})`,
+    `${k.padEnd(22)} ${String(v.median_rps).padStart(7)}  ${v.ratio_to_hello.toFixed(2)}  [${
+      v.rounds_rps.join(", ")
+    }]`,
   );
 }
 const h = results.health_during_heavy_run as {
   idle: WrkResult;
   during: WrkResult;
   run_status_when_load_ended: string;
+  run_wall_seconds: number;
 };
 console.log(
-  `health idle p50/p99 ms ${h.idle.latency_ms.p50}/${h.idle.latency_ms.p99}; during 10k-surrogate run ` +
-    `p50/p99 ms ${h.during.latency_ms.p50}/${h.during.latency_ms.p99} (run ${h.run_status_when_load_ended} when the load ended)`,
+  `health idle p50/p99 ms ${h.idle.latency_ms.p50}/${h.idle.latency_ms.p99}; during the 10,000-surrogate run ` +
+    `p50/p99 ms ${h.during.latency_ms.p50}/${h.during.latency_ms.p99} (run ${h.run_status_when_load_ended} when ` +
+    `the load ended; run took ${h.run_wall_seconds.toFixed(1)} s)`,
+);
+console.log(
+  `load average start ${JSON.stringify(results.load_average_at_start)}, end ${
+    JSON.stringify(results.load_average_at_end)
+  }`,
 );
