@@ -5,6 +5,11 @@
  * @module
  */
 import type { RunKind } from "../runs/kind.ts";
+import { smoothingKind } from "./smoothing.ts";
+import { cyclesKind } from "./cycles.ts";
+import { spectraKind } from "./spectra.ts";
+import { cycleFitsKind } from "./cycle_fits.ts";
+import { cycleForecastsKind } from "./cycle_forecasts.ts";
 import { energyBalanceKind } from "./energy_balance.ts";
 import { compositeKind } from "./composites.ts";
 import { attributionKind } from "./attributions.ts";
@@ -18,6 +23,11 @@ import { irradianceReconstructions } from "./irradiance_reconstructions.ts";
 import { forcing } from "./forcing.ts";
 
 export const RUN_KINDS: RunKind[] = [
+  smoothingKind,
+  cyclesKind,
+  spectraKind,
+  cycleFitsKind,
+  cycleForecastsKind,
   energyBalanceKind,
   compositeKind,
   attributionKind,

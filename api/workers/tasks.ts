@@ -8,10 +8,14 @@
  */
 
 import { surrogateLagChunk } from "../../core/climate/surrogate_lag_test.ts";
+import { monteCarloMaximaChunk } from "../../core/spectral/false_alarm.ts";
+import { hindcastCaseTask } from "../../core/cycles/cycle_hindcast.ts";
 
 // deno-lint-ignore no-explicit-any
 export type Task = (input: any) => any;
 
 export const TASKS: Record<string, Task> = {
   "climate.surrogate_lag_chunk": surrogateLagChunk,
+  "spectral.monte_carlo_maxima": monteCarloMaximaChunk,
+  "cycles.hindcast_case": hindcastCaseTask,
 };

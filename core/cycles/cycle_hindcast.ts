@@ -181,3 +181,29 @@ export function summarizeHindcast(cases: readonly HindcastCase[]): HindcastSumma
     value: stats(cases.map((c) => c.error.value), cases.map((c) => c.covered.value)),
   };
 }
+
+/** Input of {@link hindcastCaseTask}. */
+export interface HindcastCaseInput {
+  cycle: HindcastCycle;
+  monthsUsed: number;
+  caseIndex: number;
+  options: Omit<HindcastOptions, "monthsUsed">;
+}
+
+/**
+ * {@link hindcastCase} with its arguments in one structured-clonable object, the shape a
+ * worker task takes.
+ *
+ * @param input cycle, months used, case index and forecast options
+ * @returns the case or null
+ * @example
+ * ```ts
+ * import { hindcastCaseTask } from "./cycle_hindcast.ts";
+ * import assert from "node:assert/strict";
+ * const cycle = { id: 1, time: [2000], value: [1], start: 2000, maximum: { time: 2004, value: 9 } };
+ * assert.equal(hindcastCaseTask({ cycle, monthsUsed: 1, caseIndex: 0, options: { seed: 1 } }), null);
+ * ```
+ */
+export function hindcastCaseTask(input: HindcastCaseInput): HindcastCase | null {
+  return hindcastCase(input.cycle, input.monthsUsed, input.caseIndex, input.options);
+}

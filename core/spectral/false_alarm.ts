@@ -198,3 +198,31 @@ export function monteCarloFalseAlarm(z: number, maxima: ArrayLike<number>): numb
   for (let r = 0; r < maxima.length; r++) if (maxima[r] >= z) c++;
   return (1 + c) / (1 + maxima.length);
 }
+
+/** Input of {@link monteCarloMaximaChunk}: the data, the grid and the replicate range. */
+export interface MonteCarloMaximaInput extends MonteCarloFapOptions {
+  time: ArrayLike<number>;
+  value: ArrayLike<number>;
+  frequency: ArrayLike<number>;
+}
+
+/**
+ * {@link monteCarloPeakMaxima} with all arguments in one structured-clonable object, the shape
+ * a worker task takes (replicates split into chunks by `firstReplicate`).
+ *
+ * @param input data, grid, seed and replicate range
+ * @returns maxima of the chunk's replicates
+ * @example
+ * ```ts
+ * import { monteCarloMaximaChunk } from "./false_alarm.ts";
+ * import assert from "node:assert/strict";
+ * const m = monteCarloMaximaChunk({
+ *   time: [1, 2, 3, 4, 5, 6], value: [1, 3, 2, 5, 4, 6], frequency: [0.1, 0.2],
+ *   seed: 1, replicates: 3,
+ * });
+ * assert.equal(m.length, 3);
+ * ```
+ */
+export function monteCarloMaximaChunk(input: MonteCarloMaximaInput): Float64Array {
+  return monteCarloPeakMaxima(input.time, input.value, input.frequency, input);
+}
