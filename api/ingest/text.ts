@@ -90,7 +90,9 @@ interface Line {
  *   or when a column is named by header name. Every row must have as many cells as the first.
  * - Columns are named by header name (exact, then case-insensitive) or by 0-based index.
  *   Defaults: time = `decimal_year`, `time`, `date`, `year` (the first present), else column
- *   0; value = `value`, else the only column left; uncertainty = `uncertainty` if present.
+ *   0, except that a header with `year` and `month` (and `day`) columns and none of the others
+ *   is read as year/month/day columns; value = `value`, else the only column left;
+ *   uncertainty = `uncertainty` if present.
  * - Time cells are ISO 8601 (parseIsoTime: middle-of-period rule) or decimal years. With
  *   `time_format: "auto"`, a column headed like `decimal_year` or holding any non-integer
  *   number is read as decimal years; a column of 4-digit integers as ISO years (mid-year);
@@ -279,9 +281,18 @@ export function ingestText(
   };
 
   let tCol = resolve(options.time, "time");
-  const yCol = resolve(options.year, "year");
-  const mCol = resolve(options.month, "month");
-  const dCol = resolve(options.day, "day");
+  let yCol = resolve(options.year, "year");
+  let mCol = resolve(options.month, "month");
+  let dCol = resolve(options.day, "day");
+  if (
+    [tCol, yCol, mCol, dCol].every((c) => c === undefined) &&
+    byName("decimal_year", "time", "date") < 0 && byName("year") >= 0 && byName("month") >= 0
+  ) {
+    // a header with year and month (and day) columns and no single time column
+    yCol = byName("year");
+    mCol = byName("month");
+    if (byName("day") >= 0) dCol = byName("day");
+  }
   let vCol = resolve(options.value, "value");
   let uCol = resolve(options.uncertainty, "uncertainty");
   if (tCol !== undefined && yCol !== undefined) {

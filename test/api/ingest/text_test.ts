@@ -262,3 +262,18 @@ Deno.test("ingestText() skips rows of empty cells as spreadsheets write them", (
   assert.equal(e.errors[0].row, 3);
   assert.match(e.errors[0].message, /unparseable time/);
 });
+
+Deno.test("ingestText() reads year and month header columns without being told", () => {
+  const r = ingestText("Year,Month,value\n2000,1,5\n2000,2,6\n2000,3,7\n", META);
+  assert.ok(r.ok, JSON.stringify(!r.ok && r.errors));
+  assert.equal(r.report.time_format, "year_month_day");
+  assert.equal(r.series.resolution, "monthly");
+  assert.equal(r.series.time[1], parseIsoTime("2000-02").decimalYear);
+  // a single time column still wins when present
+  const t = ingestText("date,year,month,value\n2000-01,2000,1,5\n2000-02,2000,2,6\n", {
+    ...META,
+    value: "value",
+  });
+  assert.ok(t.ok);
+  assert.equal(t.report.time_format, "iso");
+});
