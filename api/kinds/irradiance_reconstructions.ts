@@ -390,6 +390,7 @@ export const irradianceReconstructions: RunKind<typeof Request> = {
       warnings,
       cautions: [
         ...IRRADIANCE_CAUTIONS,
+        "Intervals of monthly and annual means assume AR(1) residuals; residuals with longer memory (instrument drifts, slow facular changes) would make them wider.",
         `Background scenario: ${scenario.label as string}`,
       ],
     };
