@@ -8,6 +8,7 @@ import assert from "node:assert/strict";
 import { makeTestApp, monthlySeries, type TestService } from "./helpers.ts";
 import { checkSvg, findAll, type SvgNode, texts } from "./svg_check.ts";
 import { randomStream } from "../../core/random/mod.ts";
+import { loadDataset } from "../core/cycles/load_dataset.ts";
 
 async function created(res: Response) {
   const body = await res.json();
@@ -154,6 +155,135 @@ Deno.test("attribution chart: one contribution line per regressor with its lag, 
       lines.length,
       Object.keys(run.result.outputs).filter((k) => k.startsWith("contribution_")).length,
     );
+  } finally {
+    await svc.close();
+  }
+});
+
+/** Pixel position of a value on an axis, interpolated from two labelled ticks. */
+function axisPixel(
+  root: SvgNode,
+  labels: [string, string],
+  value: [number, number],
+  v: number,
+  attr: "x" | "y",
+) {
+  const tickText = findAll(root, "g").find((g) => g.attrs.class === "axes")!.children.filter((c) =>
+    c.name === "text"
+  );
+  const at = (l: string) => {
+    const t = tickText.find((c) => c.text === l);
+    assert.ok(t, `tick ${l}`);
+    return Number(t.attrs[attr]) - (attr === "y" ? 4 : 0); // y labels sit 4 px below their tick
+  };
+  const [p0, p1] = [at(labels[0]), at(labels[1])];
+  return p0 + ((v - value[0]) / (value[1] - value[0])) * (p1 - p0);
+}
+
+function translate(p: SvgNode): [number, number] {
+  const m = /translate\(([-\d.]+) ([-\d.]+)\)/.exec(p.attrs.transform ?? "");
+  assert.ok(m, p.attrs.transform);
+  return [Number(m[1]), Number(m[2])];
+}
+
+Deno.test("cycles chart of R's sunspot.month: minima and maxima markers at the table's dates, cycle numbers", async () => {
+  const svc = await makeTestApp();
+  try {
+    // R datasets::sunspot.month (fixtures/datasets/PROVENANCE.md), version 1 scale
+    const d = loadDataset("sunspot_month");
+    const run = await created(
+      await svc.post("/v1/cycles", {
+        series: {
+          name: "R datasets sunspot.month",
+          quantity: "sunspot_number",
+          units: "1",
+          version: "1",
+          time: d.date,
+          value: d.value,
+        },
+        anchor: { cycle: 1, date: "1755-02" },
+      }),
+    );
+    const cycles = run.result.cycles;
+    const root = await chartOf(svc, run.id, "?width=2400&height=500");
+    assert.match(findAll(root, "title")[0].text, /^Solar cycles of R datasets sunspot.month/);
+    const t = texts(root);
+    for (const c of cycles) {
+      assert.ok(t.includes(`cycle ${c.number}`), `cycle ${c.number} labelled`);
+    }
+    assert.ok(t.includes("cycle minima") && t.includes("cycle maxima"));
+    assert.ok(
+      t.includes("provisional maximum") ===
+        cycles.some((c: { maximum: { provisional: boolean } | null }) => c.maximum?.provisional),
+    );
+    assert.ok(t.some((s) => /^\d+ complete cycles, mean length/.test(s)));
+    const groups = findAll(root, "g").filter((g) => g.attrs.class === "points");
+    const minima = groups[0].children.filter((c) => c.name === "path");
+    // one minimum per cycle start, plus the end of the last cycle when it has ended
+    assert.equal(minima.length, cycles.length + (cycles[cycles.length - 1].end ? 1 : 0));
+    // The marker of cycle 19's minimum (1954-04 in the published list, SCIENCE.md §5, C) sits at
+    // its decimal year on the axis, to a pixel.
+    const c19 = cycles.find((c: { number: number }) => c.number === 19);
+    assert.equal(c19.start.date, "1954-04");
+    const px = axisPixel(root, ["1900", "2000"], [1900, 2000], c19.start.decimal_year, "x");
+    assert.ok(
+      minima.some((m) => Math.abs(translate(m)[0] - px) < 1),
+      `a minimum marker at x ≈ ${px}`,
+    );
+  } finally {
+    await svc.close();
+  }
+});
+
+Deno.test("spectra chart of R's sunspot.year: log period axis, false-alarm levels at their power, the 11-year peak", async () => {
+  const svc = await makeTestApp();
+  try {
+    const d = loadDataset("sunspot_year");
+    const run = await created(
+      await svc.post("/v1/spectra", {
+        series: {
+          name: "R datasets sunspot.year",
+          quantity: "sunspot_number",
+          units: "1",
+          version: "1",
+          time: d.date,
+          value: d.value,
+        },
+        periods: { min: 2, max: 150, count: 1500 },
+        replicates: 50,
+        seed: 4,
+      }),
+    );
+    const r = run.result;
+    const root = await chartOf(svc, run.id);
+    assert.match(
+      findAll(root, "title")[0].text,
+      /^Lomb–Scargle periodogram of R datasets sunspot.year/,
+    );
+    const t = texts(root);
+    assert.ok(t.includes("Period (years, logarithmic)"));
+    assert.ok(t.includes("10") && t.includes("100"), t.join("|"));
+    const levels = r.false_alarm.levels as {
+      fap: number;
+      analytic: number | null;
+      monte_carlo: number | null;
+    }[];
+    for (const lv of levels) {
+      if (lv.analytic !== null) assert.ok(t.includes(`FAP ${lv.fap * 100} % (Horne & Baliunas)`));
+      if (lv.monte_carlo !== null) assert.ok(t.includes(`FAP ${lv.fap * 100} % (Monte Carlo)`));
+    }
+    // The dominant period is about 11 years (common practice; SCIENCE.md §5: mean cycle 11.03 yr)
+    assert.ok(Math.abs(r.dominant.period - 11) < 0.6, `${r.dominant.period}`);
+    assert.ok(t.some((s) => s.startsWith(`Peaks: ${r.dominant.period.toPrecision(4)}`)));
+    assert.ok(t.includes(`${r.dominant.period.toPrecision(3)} yr`));
+    // Each false-alarm line is drawn at its power level on the y axis.
+    const hlines = findAll(root, "line").filter((l) => l.attrs.class === "hline");
+    const yTicks = findAll(root, "g").find((g) => g.attrs.class === "axes")!.children
+      .filter((c) => c.name === "text" && c.attrs["text-anchor"] === "end").map((c) => c.text);
+    const [a, b] = [yTicks[0], yTicks[yTicks.length - 1]];
+    const lv = levels.find((l) => l.analytic !== null)!;
+    const py = axisPixel(root, [a, b], [Number(a), Number(b)], lv.analytic!, "y");
+    assert.ok(hlines.some((h) => Math.abs(Number(h.attrs.y1) - py) < 1), `an hline at y ≈ ${py}`);
   } finally {
     await svc.close();
   }
