@@ -7,7 +7,8 @@
 import { parseIsoDecimalYear } from "../../core/time/mod.ts";
 import { checkMeta, ErrorList, finish } from "./normalise.ts";
 import type { DuplicatePolicy, IngestResult } from "./types.ts";
-import { MAX_POINTS } from "./types.ts";
+import { MAX_ABS_DECIMAL_YEAR, MAX_POINTS } from "./types.ts";
+import { decimalYearRange } from "./text.ts";
 
 /** The JSON upload: an inline series plus missing-value sentinels and a duplicate policy. */
 export interface JsonSeriesInput {
@@ -106,8 +107,10 @@ export function ingestJson(body: JsonSeriesInput, options: JsonIngestOptions = {
   for (let i = 0; i < n && !errors.full; i++) {
     const t = tIn[i];
     if (typeof t === "number") {
-      if (Number.isFinite(t)) time[i] = t;
-      else errors.add({ ...at(`/time/${i}`), message: `time must be finite, got ${t}` });
+      if (Number.isFinite(t) && Math.abs(t) <= MAX_ABS_DECIMAL_YEAR) time[i] = t;
+      else if (Number.isFinite(t)) {
+        errors.add({ ...at(`/time/${i}`), message: decimalYearRange(String(t)) });
+      } else errors.add({ ...at(`/time/${i}`), message: `time must be finite, got ${t}` });
     } else if (typeof t === "string") {
       try {
         time[i] = parseIsoDecimalYear(t);

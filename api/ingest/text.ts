@@ -21,6 +21,7 @@ import {
   type DuplicatePolicy,
   type IngestError,
   type IngestResult,
+  MAX_ABS_DECIMAL_YEAR,
   MAX_POINTS,
 } from "./types.ts";
 
@@ -449,7 +450,8 @@ export function ingestText(
       const tc = tCol as number;
       const c = row[tc].trim();
       if (timeFormat === "decimal_year") {
-        if (NUMBER.test(c) && Number.isFinite(Number(c))) t = Number(c);
+        if (NUMBER.test(c) && Math.abs(Number(c)) <= MAX_ABS_DECIMAL_YEAR) t = Number(c);
+        else if (NUMBER.test(c)) bodyErr(k, tc, decimalYearRange(c));
         else bodyErr(k, tc, `unparseable time "${short(c)}": expected a decimal year`);
       } else {
         try {
@@ -513,6 +515,12 @@ export function ingestText(
   function fail(e: IngestError): IngestResult {
     return { ok: false, errors: [...errors.done(), e] };
   }
+}
+
+/** The message for a decimal year outside ±MAX_ABS_DECIMAL_YEAR. */
+export function decimalYearRange(c: string): string {
+  return `decimal year ${short(c)} is outside -${MAX_ABS_DECIMAL_YEAR}..${MAX_ABS_DECIMAL_YEAR}` +
+    " (a Unix timestamp? give ISO 8601 times or decimal years)";
 }
 
 /** Parse a finite number, reporting why not through `bad` (then returns NaN). */

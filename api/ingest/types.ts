@@ -73,3 +73,10 @@ export const DEFAULT_MISSING = ["", "NaN", "NA"] as const;
 
 /** Most errors listed for one upload; the rest are counted in a final entry. */
 export const MAX_ERRORS = 50;
+
+/**
+ * Largest magnitude of a decimal year accepted on upload. Wide enough for cosmogenic-isotope
+ * reconstructions over the Holocene and beyond; a Unix timestamp (seconds or milliseconds)
+ * given by mistake is far outside it.
+ */
+export const MAX_ABS_DECIMAL_YEAR = 100_000;

@@ -3,6 +3,7 @@ import {
   contentId,
   ingestJson,
   type IngestResult,
+  ingestText,
   type JsonSeriesInput,
 } from "../../../api/ingest/mod.ts";
 
@@ -103,4 +104,18 @@ Deno.test("contentId() depends on content only", () => {
     z2 = ingestJson({ ...BASE, value: [-0, 1, 2, 3] });
   assert.ok(z1.ok && z2.ok);
   assert.equal(contentId(z1.series), contentId(z2.series));
+});
+
+Deno.test("ingestJson() and ingestText() refuse decimal years that look like Unix timestamps", () => {
+  const e = errs(ingestJson({ ...BASE, time: [1996.5, 1997.5, 1.7e9, 1999.5] }));
+  assert.equal(e[0].pointer, "/time/2");
+  assert.match(e[0].message, /outside -100000\.\.100000 \(a Unix timestamp\?/);
+  const t = ingestText("decimal_year,value\n1996.5,1\n1700000000000,2\n", {
+    name: "x",
+    quantity: "other",
+    units: "1",
+  });
+  assert.ok(!t.ok);
+  assert.equal(t.errors[0].row, 3);
+  assert.match(t.errors[0].message, /Unix timestamp/);
 });
