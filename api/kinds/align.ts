@@ -134,6 +134,13 @@ export const alignKind: RunKind<typeof AlignRequest> = {
       })),
       outputs,
       warnings,
+      cautions: [
+        params.rule === "intersection"
+          ? "Statistics on the aligned series describe only the periods every series covers, " +
+            "which may not represent the full record of any of them."
+          : "Gaps (null) remain where a series lacks a covered value; an analysis of these " +
+            "series must handle them or use the intersection rule.",
+      ],
     };
   },
 };

@@ -141,6 +141,11 @@ export const anomalyKind: RunKind<typeof AnomalyRequest> = {
         },
       },
       warnings,
+      cautions: [
+        "Anomalies depend on the base period: compare only anomalies taken on the same base. " +
+        "Point uncertainties are carried over unchanged; the uncertainty of the base mean is " +
+        "not added.",
+      ],
     };
   },
 };

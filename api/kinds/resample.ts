@@ -115,6 +115,16 @@ export const resampleKind: RunKind<typeof ResampleRequest> = {
         },
       },
       warnings,
+      cautions: [
+        "A period that passes the coverage rule can still be biased when its missing values " +
+        "cluster in one part of it (for example the first half of a month).",
+        ...(m.uncertainty
+          ? [
+            "Uncertainties of the means combine the point uncertainties as independent errors; " +
+            "they leave out sampling error from missing values and correlation between points.",
+          ]
+          : []),
+      ],
     };
   },
 };
