@@ -9,6 +9,7 @@ import { makeTestApp, monthlySeries, type TestService } from "./helpers.ts";
 import { checkSvg, findAll, type SvgNode, texts } from "./svg_check.ts";
 import { randomStream } from "../../core/random/mod.ts";
 import { loadDataset } from "../core/cycles/load_dataset.ts";
+import { putFinishedRun } from "./run_fixture.ts";
 
 async function created(res: Response) {
   const body = await res.json();
@@ -284,6 +285,83 @@ Deno.test("spectra chart of R's sunspot.year: log period axis, false-alarm level
     const lv = levels.find((l) => l.analytic !== null)!;
     const py = axisPixel(root, [a, b], [Number(a), Number(b)], lv.analytic!, "y");
     assert.ok(hlines.some((h) => Math.abs(Number(h.attrs.y1) - py) < 1), `an hline at y ≈ ${py}`);
+  } finally {
+    await svc.close();
+  }
+});
+
+Deno.test("composite chart: years from the epoch, bootstrap band, epoch line, significant offsets marked", async () => {
+  const svc = await makeTestApp();
+  try {
+    const st = randomStream(5, 0);
+    const years = Array.from({ length: 150 }, (_, i) => 1850 + i);
+    const epochs = [1860, 1871, 1883, 1894, 1905, 1917, 1928, 1939, 1950, 1961, 1972, 1983];
+    const v = years.map((y) =>
+      0.1 * st.normal() + (epochs.some((e) => y - e >= 1 && y - e <= 2) ? 0.3 : 0)
+    );
+    const run = await created(
+      await svc.post("/v1/composites", {
+        series: {
+          name: "Invented annual station",
+          quantity: "temperature_anomaly",
+          units: "K",
+          time: years.map(String),
+          value: v,
+        },
+        epoch_dates: epochs.map(String),
+        before_years: 3,
+        after_years: 4,
+        bootstrap: 200,
+        random_sets: 200,
+        preprocess: "mean",
+      }),
+    );
+    const root = await chartOf(svc, run.id);
+    const t = texts(root);
+    assert.ok(t.includes("Years from the epoch"));
+    assert.ok(t.includes("epoch"));
+    assert.ok(t.includes(`composite of ${run.result.epochs_used.length} epochs`));
+    assert.ok(t.includes("95 % bootstrap band"));
+    // the invented response at +1 and +2 years stands out against random epochs
+    const sig = run.result.offsets.filter((o: { p_random_epochs: number }) =>
+      o.p_random_epochs < 0.05
+    );
+    assert.ok(sig.some((o: { offset_years: number }) => o.offset_years === 1));
+    const pts = findAll(root, "g").filter((g) => g.attrs.class === "points")[0];
+    assert.equal(pts.children.filter((c) => c.name === "path").length, sig.length);
+    assert.ok(t.includes("p < 0.05 against random epochs (pointwise)"));
+  } finally {
+    await svc.close();
+  }
+});
+
+Deno.test("every registered run kind gets a chart, whatever its stored result looks like", async () => {
+  const svc = await makeTestApp();
+  try {
+    const t = [2000.5, 2001.5, 2002.5];
+    const odd = [
+      {},
+      {
+        outputs: {
+          a: { name: "a", quantity: "tsi", units: "W m-2", time: t, value: [1, null, 3] },
+        },
+      },
+      {
+        outputs: { a: { name: "a", time: t, value: [1, 2] } },
+        cycles: "x",
+        lags: [1],
+        periodogram: { period: [1], power: [] },
+      },
+      { outputs: "nope", sourceSegments: [{ start: "x" }], offsets: null, coefficients: [null] },
+    ];
+    for (const kind of svc.runs.kinds.map((k) => k.kind)) {
+      for (const result of odd) {
+        const run = await putFinishedRun(svc.store, kind, result as Record<string, unknown>);
+        const res = await svc.get(`/v1/runs/${run.id}/chart.svg`);
+        assert.equal(res.status, 200, `${kind}: ${JSON.stringify(result)}`);
+        checkSvg(await res.text());
+      }
+    }
   } finally {
     await svc.close();
   }

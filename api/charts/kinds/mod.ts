@@ -5,6 +5,7 @@
  */
 import type { KindChart } from "../run_common.ts";
 import { attributionsChart } from "./attributions.ts";
+import { compositesChart } from "./composites.ts";
 import { cyclesChart } from "./cycles.ts";
 import { irradianceReconstructionChart } from "./irradiance_reconstruction.ts";
 import { lagCorrelationChart } from "./lag_correlations.ts";
@@ -13,6 +14,7 @@ import { spectraChart } from "./spectra.ts";
 /** Chart builders keyed by `run.kind`. */
 export const KIND_CHARTS: Record<string, KindChart> = {
   "attributions": attributionsChart,
+  "composites": compositesChart,
   "cycles": cyclesChart,
   "irradiance_reconstruction": irradianceReconstructionChart,
   "lag-correlations": lagCorrelationChart,
