@@ -119,6 +119,51 @@ Deno.test("POST /v1/series property: random bad uploads never give a 500 and nev
     );
   });
 
+  await t.step("random query parameters on a text upload never give a 500", async () => {
+    const keys = [
+      "name",
+      "quantity",
+      "units",
+      "time",
+      "year",
+      "month",
+      "day",
+      "value",
+      "uncertainty",
+      "delimiter",
+      "missing",
+      "duplicates",
+      "time_format",
+      "version",
+    ];
+    const text = "time,value,sigma\n1996-01,1,0.1\n1996-01,1,0.1\n";
+    await fc.assert(
+      fc.asyncProperty(
+        fc.dictionary(
+          fc.constantFrom(...keys),
+          fc.oneof(
+            fc.string({ maxLength: 12 }),
+            fc.constantFrom("0", "1", "2", "9", "sigma", "value", "tsi", "other", "mean"),
+          ),
+        ),
+        async (q) => {
+          // never a valid upload: the rows hold a duplicate timestamp unless duplicates=mean,
+          // so force reject
+          const params = new URLSearchParams({ ...q, duplicates: "reject" });
+          const res = await svc.app.request(`/v1/series?${params}`, {
+            method: "POST",
+            headers: { "content-type": "text/csv" },
+            body: text,
+          });
+          assert.ok(res.status === 422 || res.status === 400, `status ${res.status} for ${params}`);
+          const body = await res.json();
+          assert.ok(Array.isArray(body.errors) && body.errors.length > 0, JSON.stringify(body));
+        },
+      ),
+      { numRuns: 80, seed: 13 },
+    );
+  });
+
   assert.equal(await seriesCount(svc), before, "nothing stored by bad uploads");
   await svc.close();
 });
