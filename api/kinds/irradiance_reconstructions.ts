@@ -93,6 +93,8 @@ const Request = z.object({
 
 type Params = z.output<typeof Request>;
 
+const RANK: Record<string, number> = { daily: 0, monthly: 1, annual: 2, irregular: 3 };
+
 const SOURCE_NAMES = ["none", "direct", "back_extended"] as const;
 
 /** Runs of equal source code as { source, start, end, cells } (start/end: cell middles). */
@@ -183,10 +185,12 @@ export const irradianceReconstructions: RunKind<typeof Request> = {
     let sunspot: Float64Array | null = null;
     let sunspotSeries = null as null | { time: Float64Array; value: Float64Array };
     let conversion: string | null = null;
+    let sunspotResolution: string | null = null;
     const warnings: string[] = [];
     if (params.sunspotNumber !== undefined) {
       const ss = ctx.series(refId(params.sunspotNumber));
       const version = requireSunspotVersion(ss, "/sunspotNumber");
+      sunspotResolution = ss.resolution;
       if (!mappings) {
         throw new InputProblem(
           "/sunspotNumber",
@@ -316,8 +320,11 @@ export const irradianceReconstructions: RunKind<typeof Request> = {
       );
     }
     if (nNone > 0) {
+      const coarse = sunspotResolution !== null && RANK[sunspotResolution] > RANK[res]
+        ? ` The sunspot series is ${sunspotResolution}, coarser than the requested ${res} cells, so back-extension fills only the cells that hold one of its points; request ${sunspotResolution} or coarser resolution for the sunspot-only era.`
+        : "";
       warnings.push(
-        `${nNone} of ${n} ${res} cells have no value (a proxy and the sunspot series are both missing there).`,
+        `${nNone} of ${n} ${res} cells have no value (a proxy and the sunspot series are both missing there).${coarse}`,
       );
     }
     model.terms.forEach((t, k) => {

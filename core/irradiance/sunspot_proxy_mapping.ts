@@ -286,6 +286,11 @@ export function fitSunspotMapping(
   }
   if (form === "linear") return { chosen: linear, linear, saturating, reason: "requested" };
   if (form === "saturating") {
+    if (!Number.isFinite(saturating!.standardErrors[2])) {
+      throw new RangeError(
+        "Cannot fit the saturating sunspot mapping: R0 is not identified by these data (they are linear); use the linear form",
+      );
+    }
     return { chosen: saturating!, linear, saturating, reason: "requested" };
   }
   if (saturating && Number.isFinite(saturating.standardErrors[2]) && saturating.aic < linear.aic) {
