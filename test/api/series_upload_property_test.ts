@@ -147,8 +147,8 @@ Deno.test("POST /v1/series property: random bad uploads never give a 500 and nev
           ),
         ),
         async (q) => {
-          // never a valid upload: the rows hold a duplicate timestamp unless duplicates=mean,
-          // so force reject
+          // never a valid upload: the two rows are identical, so whatever columns are chosen the
+          // times repeat, and duplicates are rejected
           const params = new URLSearchParams({ ...q, duplicates: "reject" });
           const res = await svc.app.request(`/v1/series?${params}`, {
             method: "POST",
