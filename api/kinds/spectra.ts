@@ -16,6 +16,7 @@ import {
   findSpectralPeaks,
   hornBaliunasFrequencies,
   lombScargle,
+  type LombScargleChunkInput,
   monteCarloFalseAlarm,
   type MonteCarloFapOptions,
   periodGrid,
@@ -24,6 +25,10 @@ import {
 import { activityGrid, num } from "./cycles_common.ts";
 
 const MAX_GRID = 200_000;
+/** Points × frequencies above which the periodogram is computed in parallel chunks. */
+const PARALLEL_WORK = 4_000_000;
+/** Frequencies per parallel chunk (fixed: results must not depend on the worker count). */
+const LS_CHUNK = 1024;
 
 export const SpectraRequest = z.object({
   series: SeriesRef,
@@ -230,7 +235,33 @@ export const spectraKind: RunKind<typeof SpectraRequest> = {
         `periods longer than the series' span (${span.toFixed(1)} yr) are not resolved`,
       );
     }
-    const power = lombScargle(time, value, g.frequency, { normalization: p.normalization });
+    // large grids are split into fixed chunks of frequencies (the same split whatever the
+    // number of workers, so the numbers do not depend on it) and computed in parallel
+    let power: Float64Array;
+    const K = g.frequency.length;
+    if (time.length * K < PARALLEL_WORK) {
+      power = lombScargle(time, value, g.frequency, { normalization: p.normalization });
+    } else {
+      const chunks: LombScargleChunkInput[] = [];
+      for (let k0 = 0; k0 < K; k0 += LS_CHUNK) {
+        chunks.push({
+          time,
+          value,
+          frequency: g.frequency.slice(k0, Math.min(K, k0 + LS_CHUNK)),
+          normalization: p.normalization,
+        });
+      }
+      const parts = await ctx.parallel<LombScargleChunkInput, Float64Array>(
+        "spectral.lomb_scargle_chunk",
+        chunks,
+      );
+      power = new Float64Array(K);
+      let o = 0;
+      for (const part of parts) {
+        power.set(part, o);
+        o += part.length;
+      }
+    }
     ctx.progress(0.1);
     const peaks = findSpectralPeaks(g.frequency, power, { maxPeaks: p.max_peaks });
     const n = time.length;

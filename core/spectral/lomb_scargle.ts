@@ -179,3 +179,31 @@ export function lombScargle(
   }
   return power;
 }
+
+/** Input of {@link lombScargleChunk}. */
+export interface LombScargleChunkInput extends LombScargleOptions {
+  time: ArrayLike<number>;
+  value: ArrayLike<number>;
+  /** The part of the frequency grid this chunk covers. */
+  frequency: ArrayLike<number>;
+}
+
+/**
+ * {@link lombScargle} with its arguments in one structured-clonable object, the shape a worker
+ * task takes; a grid split into fixed chunks gives the same numbers whatever the number of
+ * workers.
+ *
+ * @param input data, frequencies of the chunk, normalisation
+ * @returns power at the chunk's frequencies
+ * @example
+ * ```ts
+ * import { lombScargle, lombScargleChunk } from "./lomb_scargle.ts";
+ * import assert from "node:assert/strict";
+ * const time = [0, 1, 2.5, 3, 4.2, 5], value = [1, 0, -1, 0, 1, 0];
+ * const frequency = [0.1, 0.2, 0.3];
+ * assert.deepEqual(lombScargleChunk({ time, value, frequency }), lombScargle(time, value, frequency));
+ * ```
+ */
+export function lombScargleChunk(input: LombScargleChunkInput): Float64Array {
+  return lombScargle(input.time, input.value, input.frequency, input);
+}

@@ -429,3 +429,24 @@ Deno.test("POST /v1/cycle-forecasts: too few months into the cycle in progress",
     await svc.close();
   }
 });
+
+Deno.test("POST /v1/spectra: a large grid in parallel chunks gives the same numbers on 0 and 2 workers", async () => {
+  // 3,177 months × 2,000 periods is above the parallel threshold (4e6 point-frequencies)
+  const body = {
+    series: rSeries("sunspot_month"),
+    periods: { min: 0.5, max: 100, count: 2000 },
+  };
+  const one = await makeTestApp({ config: { asyncSeconds: 1000 } });
+  const two = await makeTestApp({ workers: 2, config: { asyncSeconds: 1000 } });
+  try {
+    const a = await (await one.post("/v1/spectra", body)).json();
+    const b = await (await two.post("/v1/spectra", body)).json();
+    assert.equal(a.status, "succeeded");
+    assert.deepEqual(a.result.periodogram.power, b.result.periodogram.power);
+    assert.equal(a.result_digest, b.result_digest);
+    assert.ok(Math.abs(a.result.dominant.period - 11) < 0.6);
+  } finally {
+    await one.close();
+    await two.close();
+  }
+});
