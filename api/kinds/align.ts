@@ -9,7 +9,7 @@ import { InputProblem, type RunKind } from "../runs/kind.ts";
 import { refId, SeriesRef } from "../schemas/series_ref.ts";
 import { alignSeries } from "../../core/series/mod.ts";
 import { formatIsoTime } from "../../core/time/mod.ts";
-import { asInputProblem, withNulls } from "./series_output.ts";
+import { asInputProblem, checkPeriodCount, withNulls } from "./series_output.ts";
 
 /** Most series in one alignment. */
 export const MAX_ALIGNED = 20;
@@ -68,6 +68,7 @@ export const alignKind: RunKind<typeof AlignRequest> = {
         );
       }
     }
+    inputs.forEach((s, k) => checkPeriodCount(s.start, s.end, to!, `/series/${k}`));
     const r = asInputProblem("/series", () =>
       alignSeries(inputs, to!, {
         rule: params.rule,

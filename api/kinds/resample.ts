@@ -9,7 +9,7 @@ import { InputProblem, type RunKind } from "../runs/kind.ts";
 import { refId, SeriesRef } from "../schemas/series_ref.ts";
 import { resampleMeans } from "../../core/series/mod.ts";
 import { formatIsoTime } from "../../core/time/mod.ts";
-import { asInputProblem, definedCount, withNulls } from "./series_output.ts";
+import { asInputProblem, checkPeriodCount, definedCount, withNulls } from "./series_output.ts";
 
 export const ResampleRequest = z.object({
   series: SeriesRef,
@@ -49,6 +49,7 @@ export const resampleKind: RunKind<typeof ResampleRequest> = {
   estimateSeconds: () => 0.1,
   compute(params, ctx) {
     const s = ctx.series(refId(params.series));
+    checkPeriodCount(s.start, s.end, params.to, "/to");
     const m = asInputProblem("/series", () => {
       try {
         return resampleMeans(s, params.to, {

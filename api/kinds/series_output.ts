@@ -27,3 +27,24 @@ export function definedCount(v: (number | null)[]): number {
   for (const x of v) if (x !== null) n++;
   return n;
 }
+
+/** Most output periods a series operation returns (its per-period report grows with them). */
+export const MAX_PERIODS = 500_000;
+
+/** Refuse a span that would give more than {@link MAX_PERIODS} periods at a resolution. */
+export function checkPeriodCount(
+  start: number,
+  end: number,
+  to: "daily" | "monthly" | "annual",
+  pointer: string,
+): void {
+  const per = to === "daily" ? 366 : to === "monthly" ? 12 : 1;
+  const n = Math.ceil((end - start) * per) + 1;
+  if (n > MAX_PERIODS) {
+    throw new InputProblem(
+      pointer,
+      `the series spans about ${n} ${to} periods, more than the ${MAX_PERIODS} one run returns; ` +
+        "choose a coarser resolution or a shorter series",
+    );
+  }
+}

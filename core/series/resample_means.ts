@@ -173,7 +173,9 @@ function bin(
     if (keys[i] > k1) k1 = keys[i];
   }
   const m = n === 0 ? 0 : k1 - k0 + 1;
-  if (m > 50_000_000) throw new RangeError(`Cannot resample: ${m} periods is too many`);
+  if (m > 5_000_000) {
+    throw new RangeError(`Cannot resample: ${m} ${to} periods is too many (at most 5,000,000)`);
+  }
   const sum = new Float64Array(m), sq = unc ? new Float64Array(m) : null;
   const count = new Int32Array(m);
   for (let i = 0; i < n; i++) {

@@ -146,3 +146,21 @@ Deno.test("POST /v1/alignments: daily and monthly onto a monthly axis, drops rep
   assert.equal(bad.errors[0].pointer, "/series/1");
   await svc.close();
 });
+
+Deno.test("POST /v1/resampling: a span with too many output periods is refused before computing", async () => {
+  const svc = await makeTestApp();
+  const s = {
+    name: "long irregular",
+    quantity: "other",
+    units: "1",
+    time: [-1000.1234, 999.77, 1500.3],
+    value: [1, 2, 3],
+  };
+  const body = await assertProblem(
+    await svc.post("/v1/resampling", { series: s, to: "daily" }),
+    422,
+  );
+  assert.equal(body.errors[0].pointer, "/to");
+  assert.match(body.errors[0].message, /more than the 500000/);
+  await svc.close();
+});
