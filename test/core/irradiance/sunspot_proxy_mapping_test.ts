@@ -62,3 +62,28 @@ Deno.test("sunspot mappings reject too few points and bad values", () => {
   assert.throws(() => fitSunspotMapping([1, 2, NaN, 4, 5], [1, 2, 3, 4, 5]), /point 2/);
   assert.throws(() => fitSunspotMapping([1, 2, -3, 4, 5], [1, 2, 3, 4, 5]), RangeError);
 });
+
+Deno.test("sunspot mappings match scipy curve_fit and numpy polyfit", async () => {
+  // fixtures/reference/sunspot_mapping_scipy.py (versions in its JSON)
+  const ref = JSON.parse(
+    await Deno.readTextFile(
+      new URL("../../../fixtures/reference/sunspot_mapping_scipy.json", import.meta.url),
+    ),
+  );
+  const c = fitSunspotMapping(ref.data.R, ref.data.F);
+  const sat = c.saturating!, lin = c.linear;
+  // different optimisers reach the same least-squares minimum: 1e-5 relative on coefficients,
+  // 1e-3 on the Gauss–Newton standard errors (evaluated at slightly different optima)
+  ref.saturating.coefficients.forEach((v: number, j: number) => {
+    assert.ok(Math.abs(sat.coefficients[j] - v) <= 1e-5 * Math.abs(v), `sat coef ${j}`);
+    const se = ref.saturating.standardErrors[j];
+    assert.ok(Math.abs(sat.standardErrors[j] - se) <= 1e-3 * se, `sat se ${j}`);
+  });
+  assert.ok(sat.residualRms ** 2 * sat.n <= ref.saturating.rss * (1 + 1e-9));
+  ref.linear.coefficients.forEach((v: number, j: number) => {
+    assert.ok(Math.abs(lin.coefficients[j] - v) <= 1e-9 * Math.abs(v), `lin coef ${j}`);
+    const se = ref.linear.standardErrors[j];
+    assert.ok(Math.abs(lin.standardErrors[j] - se) <= 1e-8 * se, `lin se ${j}`);
+  });
+  assert.equal(c.chosen.form, "saturating");
+});
