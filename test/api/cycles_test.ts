@@ -450,3 +450,30 @@ Deno.test("POST /v1/spectra: a large grid in parallel chunks gives the same numb
     await two.close();
   }
 });
+
+Deno.test("POST /v1/cycles: yearly values of R's sunspot.year, unsmoothed", async () => {
+  const svc = await makeTestApp();
+  try {
+    const run = await (await svc.post("/v1/cycles", {
+      series: rSeries("sunspot_year"),
+      anchor: { cycle: 1, date: 1755 },
+    })).json();
+    assert.equal(run.status, "succeeded");
+    const r = run.result;
+    assert.equal(r.smoothing, "none");
+    // SCIENCE.md §5 minima (C) by year: cycle 1 1755, 10 1855-12 (yearly minimum 1856), 19 1954
+    const start = (k: number) =>
+      r.cycles.find((c: { number: number }) => c.number === k).start.date;
+    assert.equal(start(1), "1755");
+    assert.ok(["1855", "1856"].includes(start(10)));
+    assert.equal(start(19), "1954");
+    assert.ok(Math.abs(r.summary.length_years.mean - 11) < 0.3); // common practice
+    const bad = await assertProblem(
+      await svc.post("/v1/cycles", { series: rSeries("sunspot_year"), smoothing: "13_month" }),
+      422,
+    );
+    assert.deepEqual(pointers(bad), ["/smoothing"]);
+  } finally {
+    await svc.close();
+  }
+});
