@@ -4,13 +4,45 @@
  *
  * @module
  */
-import type { RunRecord } from "../store/types.ts";
+import type { RunRecord, StoredSeries } from "../store/types.ts";
 import type { OutputSeries } from "../runs/kind.ts";
 import type { ChartSpec, Layer } from "./chart.ts";
 import { strings } from "./read.ts";
 
-/** A specialised chart builder: null when the result does not fit it. */
-export type KindChart = (run: RunRecord) => ChartSpec | null;
+/**
+ * A specialised chart builder: null when the result does not fit it. `inputs` holds the run's
+ * input series when the kind asked for them (`KIND_INPUTS`), else is empty.
+ */
+export type KindChart = (run: RunRecord, inputs: StoredSeries[]) => ChartSpec | null;
+
+/**
+ * The input series of the given quantity and units as thin muted lines, to draw behind a
+ * result derived from them (a smoothing over its raw values, a forecast after the observed
+ * record). Points before `from` (decimal years) are left out.
+ */
+export function inputBackdrop(
+  inputs: StoredSeries[],
+  quantity: string,
+  units: string,
+  from = -Infinity,
+): Layer[] {
+  const layers: Layer[] = [];
+  for (const s of inputs) {
+    if (s.quantity !== quantity || s.units !== units) continue;
+    let a = 0;
+    while (a < s.n && s.time[a] < from) a++;
+    if (a >= s.n) continue;
+    layers.push({
+      type: "line",
+      label: `observed: ${s.name}`,
+      x: s.time.subarray(a),
+      y: s.value.subarray(a),
+      color: "muted",
+      width: 0.9,
+    });
+  }
+  return layers;
+}
 
 /** "lag_correlation" → "Lag correlation". */
 export function kindTitle(kind: string): string {

@@ -8,7 +8,7 @@
  */
 import { createRoute, z } from "@hono/zod-openapi";
 import type { App } from "../app.ts";
-import type { Store } from "../store/types.ts";
+import type { Store, StoredSeries } from "../store/types.ts";
 import { ProblemError } from "../problems.ts";
 import { problems } from "../schemas/common.ts";
 import {
@@ -20,7 +20,7 @@ import { parseIsoTime } from "../../core/time/mod.ts";
 import { renderChart, type RenderOptions } from "../charts/chart.ts";
 import { shortHash } from "../charts/svg.ts";
 import { seriesChartSpec } from "../charts/series_chart.ts";
-import { runChartSpec } from "../charts/run_charts.ts";
+import { chartNeedsInputs, runChartSpec } from "../charts/run_charts.ts";
 import { SERVICE_VERSION } from "../version.ts";
 
 /** Bump when the drawing of a chart changes for the same data and query. */
@@ -207,7 +207,17 @@ export function registerChartRoutes(
           );
         }
         const etag = etagFor(`run-${run.id}-${run.result_digest}`, opts);
-        const svg = renderChart(runChartSpec(run), { ...opts, idPrefix: "r" + shortHash(etag) });
+        const inputs: StoredSeries[] = [];
+        if (chartNeedsInputs(run.kind)) {
+          for (const sid of run.input_series.slice(0, 4)) {
+            const s = await store.getSeries(sid);
+            if (s && s.n <= 500_000) inputs.push(s);
+          }
+        }
+        const svg = renderChart(runChartSpec(run, inputs), {
+          ...opts,
+          idPrefix: "r" + shortHash(etag),
+        });
         rep = svgRepresentation(svg, etag);
         cache.set(key, rep);
       }

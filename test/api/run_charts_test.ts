@@ -366,3 +366,31 @@ Deno.test("every registered run kind gets a chart, whatever its stored result lo
     await svc.close();
   }
 });
+
+Deno.test("smoothing chart draws the smoothed series over the observed input", async () => {
+  const svc = await makeTestApp();
+  try {
+    const d = loadDataset("sunspot_month");
+    const run = await created(
+      await svc.post("/v1/smoothing", {
+        series: {
+          name: "R datasets sunspot.month",
+          quantity: "sunspot_number",
+          units: "1",
+          version: "1",
+          time: d.date,
+          value: d.value,
+        },
+      }),
+    );
+    const root = await chartOf(svc, run.id, "?from=1950&to=1980");
+    const t = texts(root);
+    assert.ok(t.includes("observed: R datasets sunspot.month"), t.join("|"));
+    const lines = findAll(root, "path").filter((p) => p.attrs.class === "line");
+    assert.equal(lines.length, 2);
+    assert.ok(t.includes("Sunspot number"));
+    assert.match(findAll(root, "desc")[0].text, /Horizontal axis: Year, from 1950 to 1981\./);
+  } finally {
+    await svc.close();
+  }
+});

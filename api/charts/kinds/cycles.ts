@@ -5,19 +5,20 @@
  *
  * @module
  */
-import type { RunRecord } from "../../store/types.ts";
+import type { RunRecord, StoredSeries } from "../../store/types.ts";
 import type { ChartSpec, Layer } from "../chart.ts";
-import { runDescription, runNotes } from "../run_common.ts";
+import { inputBackdrop, runDescription, runNotes } from "../run_common.ts";
 import { numOrNull, obj, objects, outputSeries, str } from "../read.ts";
 import { axisLabel, quantityLabel } from "../labels.ts";
 
 /** Chart spec, or null when the result has no smoothed output and cycle table. */
-export function cyclesChart(run: RunRecord): ChartSpec | null {
+export function cyclesChart(run: RunRecord, inputs: StoredSeries[] = []): ChartSpec | null {
   const r = run.result;
   const smoothed = outputSeries(obj(r?.outputs)?.smoothed, "smoothed");
   const cycles = objects(r?.cycles);
   if (!r || !smoothed || !cycles) return null;
   const layers: Layer[] = [
+    ...inputBackdrop(inputs, smoothed.quantity, smoothed.units),
     { type: "line", label: smoothed.name, x: smoothed.time, y: smoothed.value, color: 0 },
   ];
   const minX: number[] = [], minY: number[] = [];

@@ -10,13 +10,19 @@ import { cyclesChart } from "./cycles.ts";
 import { irradianceReconstructionChart } from "./irradiance_reconstruction.ts";
 import { lagCorrelationChart } from "./lag_correlations.ts";
 import { spectraChart } from "./spectra.ts";
+import { cycleForecastChart, smoothingChart } from "./with_inputs.ts";
 
 /** Chart builders keyed by `run.kind`. */
 export const KIND_CHARTS: Record<string, KindChart> = {
   "attributions": attributionsChart,
   "composites": compositesChart,
   "cycles": cyclesChart,
+  "cycle-forecasts": cycleForecastChart,
   "irradiance_reconstruction": irradianceReconstructionChart,
   "lag-correlations": lagCorrelationChart,
+  "smoothing": smoothingChart,
   "spectra": spectraChart,
 };
+
+/** Kinds whose chart draws the run's input series too (the route loads them). */
+export const KIND_INPUTS: ReadonlySet<string> = new Set(["cycles", "cycle-forecasts", "smoothing"]);
