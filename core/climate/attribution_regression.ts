@@ -44,7 +44,7 @@ export interface AttributionOptions {
   hacLags?: number;
   /** Interval level. @default 0.95 */
   level?: number;
-  /** Largest number of lag combinations searched exhaustively. @default 4096 */
+  /** Largest number of lag combinations searched exhaustively. @default 1000 */
   exhaustiveLimit?: number;
 }
 
@@ -139,7 +139,7 @@ export function attributionRegression(
   const fn = "fit attribution regression";
   const errors = options.errors ?? "ar1";
   const level = options.level ?? 0.95;
-  const limit = options.exhaustiveLimit ?? 4096;
+  const limit = options.exhaustiveLimit ?? 1000;
   if (regressors.length === 0) throw new RangeError(`Cannot ${fn}: needs at least one regressor`);
   const names = new Set<string>();
   let maxLag = 0;

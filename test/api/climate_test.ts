@@ -319,3 +319,94 @@ Deno.test("POST /v1/energy-balance matches the analytic sinusoid response (one- 
     await svc.close();
   }
 });
+
+/** A demo CSV (fixtures/demo) as an inline series. */
+async function demoSeries(
+  file: string,
+  column: string,
+  meta: { name: string; quantity: string; units: string; version?: string },
+  from = "",
+) {
+  const text = await Deno.readTextFile(new URL(`../../fixtures/demo/${file}`, import.meta.url));
+  const lines = text.split("\n").filter((l) => l && !l.startsWith("#"));
+  const head = lines[0].split(",");
+  const ci = head.indexOf(column), di = head.indexOf("date");
+  const rows = lines.slice(1).map((l) => l.split(",")).filter((c) => c[di] >= from);
+  return { ...meta, time: rows.map((c) => c[di]), value: rows.map((c) => Number(c[ci])) };
+}
+
+Deno.test("demo scenario: attribution recovers the solar sensitivity and lag; composites run on a cycle table", async () => {
+  // invented data (fixtures/demo, seed 31415); truth in fixtures/demo/manifest.json
+  const truth = JSON.parse(
+    await Deno.readTextFile(new URL("../../fixtures/demo/manifest.json", import.meta.url)),
+  ).truth.temperature;
+  const svc = await makeTestApp();
+  try {
+    const temp = await demoSeries("temperature_anomaly_monthly.csv", "temperature_anomaly", {
+      name: "SYNTHETIC station temperature",
+      quantity: "temperature_anomaly",
+      units: "K",
+    });
+    const tsi = await demoSeries("tsi_monthly_composite.csv", "tsi", {
+      name: "SYNTHETIC TSI composite",
+      quantity: "tsi",
+      units: "W m-2",
+    }, "1860");
+    const enso = await demoSeries("enso_index_monthly.csv", "enso_index", {
+      name: "SYNTHETIC ENSO-like index",
+      quantity: "enso_index",
+      units: "1",
+    });
+    const aod = await demoSeries("aerosol_optical_depth_monthly.csv", "aod", {
+      name: "SYNTHETIC aerosol optical depth",
+      quantity: "aerosol_optical_depth",
+      units: "1",
+    });
+    const res = await svc.post("/v1/attributions", {
+      climate: temp,
+      regressors: [
+        { name: "solar", role: "solar", series: tsi, min_lag: 0, max_lag: 24 },
+        { name: "enso", role: "enso", series: enso, min_lag: 0, max_lag: 6 },
+        { name: "volcanic", role: "volcanic", series: aod, min_lag: 0, max_lag: 12 },
+      ],
+    });
+    const run = await res.json();
+    assert.equal(res.status, 201, JSON.stringify(run).slice(0, 600));
+    const s = run.result.solar;
+    assert.equal(s.lag, truth.lag_solar_months);
+    assert.ok(
+      s.lag_support[0] <= truth.lag_solar_months && truth.lag_solar_months <= s.lag_support[1],
+    );
+    const k = truth.solar_sensitivity_k_per_w_m2;
+    assert.ok(s.sensitivity_ci[0] < k && k < s.sensitivity_ci[1], JSON.stringify(s));
+    assert.equal(s.max_minus_min_units, "K");
+    // the scenario's TSI cycles span 0.7–1.25 W m-2, so about 0.07–0.13 K
+    assert.ok(s.max_minus_min > 0.05 && s.max_minus_min < 0.2, `max-min ${s.max_minus_min} K`);
+
+    const sunspots = await demoSeries("sunspot_number_monthly.csv", "sunspot_number", {
+      name: "SYNTHETIC sunspot number",
+      quantity: "sunspot_number",
+      units: "1",
+      version: "2",
+    }, "1850");
+    const cyc = await (await svc.post("/v1/cycles", { series: sunspots })).json();
+    assert.equal(cyc.status, "succeeded", JSON.stringify(cyc).slice(0, 400));
+    const comp = await svc.post("/v1/composites", {
+      series: temp,
+      cycle_run: cyc.id,
+      cycle_epoch: "maximum",
+      before_years: 3,
+      after_years: 5,
+      bootstrap: 200,
+      random_sets: 200,
+    });
+    const cr = await comp.json();
+    assert.equal(comp.status, 201, JSON.stringify(cr).slice(0, 600));
+    assert.ok(cr.result.epochs_used.length >= 10);
+    assert.equal(cr.result.offsets.length, 3 * 12 + 5 * 12 + 1);
+    assert.ok(cr.result.p_family_wise > 0 && cr.result.p_family_wise <= 1);
+    assert.deepEqual(cr.input_runs, [cyc.id]);
+  } finally {
+    await svc.close();
+  }
+});
