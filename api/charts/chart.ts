@@ -304,46 +304,53 @@ export function renderChart(spec: ChartSpec, opts: RenderOptions): string {
   });
   y += (titleLines.length - 1) * (TITLE_FONT + 3) + 8;
 
-  // Legend items
+  // Legend items, in rows; only the rows that leave the plot a usable height are drawn (the
+  // description names every layer anyway).
+  const minPlot = Math.max(40, H * 0.35);
   const legendItems = spec.layers
     .map((l, i) => ({ l, i }))
     .filter(({ l }) => l.label);
-  let legend = "";
-  let lx = 12;
-  let ly = y + 4;
   const rowH = FONT + 6;
-  if (legendItems.length) {
-    for (const { l, i } of legendItems) {
-      const label = l.label as string;
-      const w = 22 + textWidth(label, FONT) + 14;
-      if (lx + w > W - 8 && lx > 12) {
-        lx = 12;
-        ly += rowH;
-      }
-      const cy = ly + FONT / 2 - 1;
-      legend += legendSwatch(l, colors[i], lx, cy, theme);
-      legend += text(
-        { x: lx + 22, y: ly + FONT - 2, fill: theme.foreground, "font-size": FONT },
-        label,
-      );
-      lx += w;
+  const rows: { l: Layer; i: number; x: number }[][] = [];
+  let lx = 12;
+  for (const { l, i } of legendItems) {
+    const w = 22 + textWidth(l.label as string, FONT) + 14;
+    if (!rows.length || (lx + w > W - 8 && lx > 12)) {
+      rows.push([]);
+      lx = 12;
     }
-    y = ly + rowH + 2;
+    rows[rows.length - 1].push({ l, i, x: lx });
+    lx += w;
   }
+  const legendRoom = Math.max(0, Math.floor((H - 42 - (y + 6) - minPlot - 6) / rowH));
+  const shownRows = rows.slice(0, legendRoom);
+  let legend = "";
+  shownRows.forEach((row, r) => {
+    const ly = y + 4 + r * rowH;
+    const cy = ly + FONT / 2 - 1;
+    for (const { l, i, x } of row) {
+      legend += legendSwatch(l, colors[i], x, cy, theme);
+      legend += text(
+        { x: x + 22, y: ly + FONT - 2, fill: theme.foreground, "font-size": FONT },
+        l.label as string,
+      );
+    }
+  });
+  if (shownRows.length) y += 4 + shownRows.length * rowH + 2;
   markup += el("g", { class: "legend" }, legend);
 
-  // Notes under the plot
+  // Notes under the plot, as many lines as leave the plot its minimum height (at most 6)
   const noteLines: string[] = [];
   for (const n of [...(spec.notes ?? []), ...dropped]) {
     noteLines.push(...wrapText(n, NOTE_FONT, W - 24));
   }
-  const maxNoteLines = Math.max(0, Math.floor((H - y - 120) / (NOTE_FONT + 3)));
+  const maxNoteLines = Math.max(0, Math.floor((H - 42 - (y + 6) - minPlot - 6) / (NOTE_FONT + 3)));
   const shownNotes = noteLines.slice(0, Math.min(6, maxNoteLines));
   const notesH = shownNotes.length ? shownNotes.length * (NOTE_FONT + 3) + 6 : 0;
 
   // Scales
-  const yRangeBottom = H - 42 - notesH;
   const yRangeTop = y + 6;
+  const yRangeBottom = Math.max(yRangeTop + 10, H - 42 - notesH);
   const ys = yKind === "log"
     ? scaleLog().domain(hasY ? [ye.lo, ye.hi] : [1, 10]).range([yRangeBottom, yRangeTop])
     : scaleLinear().domain(hasY ? [ye.lo, ye.hi] : [0, 1]).range([yRangeBottom, yRangeTop]);

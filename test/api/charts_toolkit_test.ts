@@ -297,3 +297,30 @@ Deno.test("decimateBand() never narrows the envelope", () => {
   assert.equal(Math.min(...(d.lower as number[])), -10);
   assert.equal(Math.max(...(d.upper as number[])), 10);
 });
+
+Deno.test("renderChart() keeps a usable plot at the smallest size with many legend entries and notes", () => {
+  const x = [2000, 2001, 2002];
+  const layers = Array.from({ length: 12 }, (_, i) => ({
+    type: "line" as const,
+    label: `a rather long legend entry number ${i}`,
+    x,
+    y: [i, i + 1, i + 2],
+  }));
+  const notes = Array.from({ length: 8 }, (_, i) => `note ${i}: ` + "words ".repeat(30));
+  for (const [w, h] of [[240, 160], [320, 200], [4000, 3000]]) {
+    const root = checkSvg(renderChart(spec({ layers, notes }), { ...OPTS, width: w, height: h }));
+    for (const r of findAll(root, "rect")) {
+      assert.ok(
+        Number(r.attrs.width ?? 0) >= 0 && Number(r.attrs.height ?? 0) >= 0,
+        JSON.stringify(r.attrs),
+      );
+    }
+    const clip = findAll(findAll(root, "clipPath")[0], "rect")[0];
+    assert.ok(
+      Number(clip.attrs.height) >= Math.max(40, h * 0.35) - 1,
+      `${w}x${h}: plot ${clip.attrs.height}`,
+    );
+    // every layer is still named in the description
+    assert.match(findAll(root, "desc")[0].text, /number 11/);
+  }
+});
