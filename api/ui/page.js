@@ -103,9 +103,16 @@ function when(iso) {
   return iso.replace("T", " ").replace(/\.\d+Z$/, "Z").replace(/Z$/, " UTC");
 }
 
-/** @param {string} s */
+const ACRONYMS = new Set(["tsi", "psi", "aic", "bic", "id", "ar1", "enso", "aod", "csv", "json"]);
+
+/**
+ * A machine name for people: "quietLevel" → "Quiet level", "psi_reference" → "PSI reference".
+ * @param {string} s
+ */
 function pretty(s) {
-  const t = s.replace(/[_-]+/g, " ").trim();
+  const words = s.replace(/([a-z0-9])([A-Z])/g, "$1 $2").replace(/[_-]+/g, " ").trim()
+    .split(/\s+/).map((w) => (ACRONYMS.has(w.toLowerCase()) ? w.toUpperCase() : w.toLowerCase()));
+  const t = words.join(" ");
   return t.charAt(0).toUpperCase() + t.slice(1);
 }
 
@@ -1181,6 +1188,9 @@ function replayPanel(path) {
  * @property {HTMLElement} wrap
  * @property {HTMLElement} error
  * @property {boolean} main Shown before "More options".
+ * @property {(v: unknown) => void} [set] Fill the control with a value.
+ * @property {() => Field[]} [children] Fields inside (rows of an array of records).
+ * @property {string[]} [itemKeys] Keys of each record, for an array of records.
  */
 
 /**
@@ -1253,9 +1263,10 @@ function seriesOptions(series, name) {
  * @param {any} schema
  * @param {string} prefix JSON Pointer prefix.
  * @param {{ series: any[], runs: any[], preselect?: string }} ctx
+ * @param {boolean} [optional] The object itself is optional: none of its fields is required.
  * @returns {Field[]}
  */
-function buildFields(doc, schema, prefix, ctx) {
+function buildFields(doc, schema, prefix, ctx, optional = false) {
   const s = deref(doc, schema);
   const props = s.properties ?? {};
   const required = new Set(s.required ?? []);
@@ -1267,7 +1278,7 @@ function buildFields(doc, schema, prefix, ctx) {
     const { schema: inner, nullable, outer } = nonNull(doc, raw);
     const p = deref(doc, inner);
     const dflt = outer.default ?? p.default;
-    const isRequired = required.has(name) && dflt === undefined && !nullable;
+    const isRequired = !optional && required.has(name) && dflt === undefined && !nullable;
     const description = outer.description ?? p.description ?? "";
     const label = pretty(name);
     const error = h("span", { class: "field-error", id: `${id}-err` });
@@ -1275,6 +1286,12 @@ function buildFields(doc, schema, prefix, ctx) {
     let input;
     /** @type {() => unknown} */
     let read;
+    /** @type {((v: unknown) => void) | undefined} */
+    let set;
+    /** @type {(() => Field[]) | undefined} */
+    let children;
+    /** @type {string[] | undefined} */
+    let itemKeys;
     let wide = false;
     if (isSeriesRef(doc, inner)) {
       const opts = seriesOptions(ctx.series, name);
@@ -1296,6 +1313,7 @@ function buildFields(doc, schema, prefix, ctx) {
         ),
       );
       read = () => /** @type {HTMLSelectElement} */ (input).value || undefined;
+      set = selectSetter(/** @type {HTMLSelectElement} */ (input));
       wide = true;
     } else if (p.type === "array" && isSeriesRef(doc, p.items)) {
       input = h(
@@ -1321,12 +1339,35 @@ function buildFields(doc, schema, prefix, ctx) {
           h("option", { value: String(v), selected: v === dflt }, String(v))
         ),
       );
+      set = selectSetter(/** @type {HTMLSelectElement} */ (input));
       read = () => {
         const v = /** @type {HTMLSelectElement} */ (input).value;
         if (v === "") return undefined;
         const match = p.enum.find((/** @type {unknown} */ e) => String(e) === v);
         return match === dflt && !isRequired ? undefined : match;
       };
+    } else if (
+      Array.isArray(p.anyOf ?? p.oneOf) &&
+      (p.anyOf ?? p.oneOf).every((/** @type {any} */ a) =>
+        ["string", "number", "integer"].includes(deref(doc, a).type)
+      )
+    ) {
+      // A time or a number written either way (e.g. "1996-08" or 1996.6): one text box.
+      input = h("input", {
+        id,
+        type: "text",
+        autocomplete: "off",
+        placeholder: dflt !== undefined ? String(dflt) : (p.example ?? outer.example ?? ""),
+      });
+      const numeric = (p.anyOf ?? p.oneOf).some((/** @type {any} */ a) =>
+        ["number", "integer"].includes(deref(doc, a).type)
+      );
+      read = () => {
+        const t = /** @type {HTMLInputElement} */ (input).value.trim();
+        if (t === "") return undefined;
+        return numeric && /^[-+]?\d+(\.\d+)?$/.test(t) && !/^\d{4}$/.test(t) ? Number(t) : t;
+      };
+      set = (v) => (/** @type {HTMLInputElement} */ (input).value = String(v ?? ""));
     } else if (p.type === "boolean") {
       input = h("input", { id, type: "checkbox", checked: dflt === true });
       read = () => {
@@ -1347,6 +1388,7 @@ function buildFields(doc, schema, prefix, ctx) {
         const t = /** @type {HTMLInputElement} */ (input).value.trim();
         return t === "" ? undefined : Number(t);
       };
+      set = (v) => (/** @type {HTMLInputElement} */ (input).value = String(v ?? ""));
     } else if (p.type === "string") {
       const runLike = /run|model/i.test(name) ||
         (typeof p.pattern === "string" && p.pattern.includes("0-9a-f-"));
@@ -1376,10 +1418,76 @@ function buildFields(doc, schema, prefix, ctx) {
         }
       }
       const el = /** @type {HTMLInputElement} */ (runLike ? input.firstChild : input);
+      if (runLike) wide = true;
       read = () => (el.value.trim() === "" ? undefined : el.value.trim());
+      set = (v) => (el.value = v === undefined || v === null ? "" : String(v));
+    } else if (p.type === "array" && deref(doc, p.items)?.properties) {
+      // An array of records (e.g. model terms): one small fieldset per record.
+      const item = deref(doc, p.items);
+      const min = Math.max(1, p.minItems ?? 1);
+      const max = p.maxItems ?? 50;
+      const noun = pretty(name).replace(/(ie)?s$/, (m) => (m === "ies" ? "y" : ""));
+      const rowsBox = h("div", { class: "rows" });
+      /** @type {Field[][]} */
+      const rows = [];
+      const changed = () => rowsBox.dispatchEvent(new Event("change", { bubbles: true }));
+      const add = /** @type {HTMLButtonElement} */ (h("button", {
+        type: "button",
+        class: "ghost",
+        onclick: () => (addRow(), changed()),
+      }, `Add ${noun.toLowerCase()}`));
+      const remove = /** @type {HTMLButtonElement} */ (h("button", {
+        type: "button",
+        class: "ghost",
+        onclick: () => (removeRow(), changed()),
+      }, "Remove the last"));
+      const sync = () => {
+        add.disabled = rows.length >= max;
+        remove.disabled = rows.length <= min;
+      };
+      const addRow = () => {
+        const i = rows.length;
+        const sub = buildFields(doc, item, `${pointer}/${i}`, { ...ctx, preselect: undefined });
+        rows.push(sub);
+        rowsBox.append(h(
+          "fieldset",
+          { class: "row" },
+          h("legend", null, `${noun} ${i + 1}`),
+          h("div", { class: "grid" }, sub.map((f) => f.wrap)),
+        ));
+        sync();
+      };
+      const removeRow = () => {
+        if (rows.length <= min) return;
+        rows.pop();
+        rowsBox.lastElementChild?.remove();
+        sync();
+      };
+      for (let i = 0; i < min; i++) addRow();
+      input = h(
+        "div",
+        { id, tabindex: "-1" },
+        rowsBox,
+        h("div", { class: "actions" }, add, remove),
+      );
+      read = () => rows.map((sub, i) => collect(sub, `${pointer}/${i}`));
+      set = (v) => {
+        if (!Array.isArray(v)) return;
+        while (rows.length < Math.min(max, v.length)) addRow();
+        while (rows.length > Math.max(min, v.length)) removeRow();
+        rows.forEach((sub, i) => {
+          for (const f of sub) {
+            const key = f.pointer.slice(`${pointer}/${i}/`.length);
+            if (v[i] && v[i][key] !== undefined) f.set?.(v[i][key]);
+          }
+        });
+      };
+      children = () => rows.flat();
+      itemKeys = Object.keys(item.properties);
+      wide = true;
     } else if (p.type === "object" && p.properties && !prefix.includes("/", 1)) {
-      const sub = buildFields(doc, p, pointer, ctx);
-      fields.push(...sub.map((f) => ({ ...f, main: f.main && isRequired })));
+      const sub = buildFields(doc, p, pointer, ctx, !isRequired);
+      fields.push(...sub);
       continue;
     } else if (
       p.type === "array" && ["number", "integer", "string"].includes(deref(doc, p.items)?.type)
@@ -1413,7 +1521,9 @@ function buildFields(doc, schema, prefix, ctx) {
       };
       wide = true;
     }
-    const control = input.querySelector?.("input, select, textarea") ?? input;
+    const control = p.type === "array" && itemKeys
+      ? input
+      : input.querySelector?.("input, select, textarea") ?? input;
     control.setAttribute("aria-describedby", `${id}-hint ${id}-err`);
     if (isRequired) control.setAttribute("aria-required", "true");
     const wrap = h(
@@ -1438,22 +1548,38 @@ function buildFields(doc, schema, prefix, ctx) {
       wrap,
       error,
       main: isRequired,
+      set,
+      children,
+      itemKeys,
     });
   }
   return fields;
 }
 
 /**
+ * A setter that chooses an option of a select when it exists.
+ * @param {HTMLSelectElement} sel
+ * @returns {(v: unknown) => void}
+ */
+function selectSetter(sel) {
+  return (v) => {
+    const want = String(v);
+    if ([...sel.options].some((o) => o.value === want)) sel.value = want;
+  };
+}
+
+/**
  * Collect a body object from fields (JSON Pointers to nested keys).
  * @param {Field[]} fields
+ * @param {string} [base] Pointer prefix to strip (the record's own pointer).
  */
-function collect(fields) {
+function collect(fields, base = "") {
   /** @type {Record<string, any>} */
   const body = {};
   for (const f of fields) {
     const v = f.read();
     if (v === undefined) continue;
-    const keys = f.pointer.split("/").slice(1);
+    const keys = f.pointer.slice(base.length).split("/").slice(1);
     let t = body;
     for (const k of keys.slice(0, -1)) t = t[k] ??= {};
     t[keys[keys.length - 1]] = v;
@@ -1467,16 +1593,23 @@ function collect(fields) {
  * @param {any} problem
  */
 function markFields(fields, problem) {
-  for (const f of fields) {
+  /** @type {(f: Field) => Field[]} */
+  const flat = (f) => [f, ...(f.children?.() ?? []).flatMap(flat)];
+  const all = fields.flatMap(flat);
+  for (const f of all) {
     f.error.textContent = "";
     f.input.removeAttribute("aria-invalid");
   }
   const unmatched = [];
   for (const e of problem?.errors ?? []) {
     const ptr = String(e.pointer ?? "");
-    const f = fields.find((x) => ptr === x.pointer || ptr.startsWith(x.pointer + "/"));
+    // The deepest field whose pointer is the error's pointer or a prefix of it.
+    const f = all
+      .filter((x) => ptr === x.pointer || ptr.startsWith(x.pointer + "/"))
+      .sort((a, b) => b.pointer.length - a.pointer.length)[0];
     if (f && (e.in === undefined || e.in === "body")) {
-      f.error.textContent = e.message;
+      const rest = ptr.slice(f.pointer.length);
+      f.error.textContent = (rest ? `${rest.slice(1)}: ` : "") + e.message;
       f.input.setAttribute("aria-invalid", "true");
     } else unmatched.push(e);
   }
@@ -1582,6 +1715,27 @@ async function analyseView(gen, query) {
     note: "Start the run; the answer's Location names it. Then follow GET /v1/runs/{id}/events",
   });
   const refresh = () => snip.update([spec()]);
+  // A reconstruction cites a model run: fill its proxy rows from the model's own terms.
+  const modelField = fields.find((f) => f.pointer === "/model");
+  const recordField = fields.find((f) =>
+    f.itemKeys?.includes("term") && f.itemKeys.includes("series")
+  );
+  if (modelField && recordField) {
+    const prefill = async () => {
+      const id = modelField.read();
+      if (typeof id !== "string" || !/^[0-9a-f-]{36}$/.test(id)) return;
+      const r = await call({ method: "GET", path: `/v1/runs/${id}` });
+      const terms = r.ok ? r.data?.result?.model?.terms : null;
+      if (!Array.isArray(terms)) return;
+      recordField.set?.(terms.map((t) => ({ term: t.name, series: t.series })));
+      const sunspot = fields.find((f) => f.pointer === "/sunspotNumber");
+      const mapped = r.data?.result?.mappings?.sunspotSeries;
+      if (sunspot && mapped) sunspot.set?.(mapped);
+      refresh();
+    };
+    modelField.input.addEventListener("change", prefill);
+    prefill();
+  }
   const form = h(
     "form",
     {
@@ -1638,6 +1792,19 @@ async function analyseView(gen, query) {
     h("div", { class: "grid" }, picker),
     h("h2", null, kind.summary),
     kind.description ? h("p", { class: "muted" }, kind.description) : null,
+    modelField && !runs.some((/** @type {any} */ r) => /model/.test(r.kind))
+      ? callout(
+        "warn",
+        "This analysis needs a calibrated model run",
+        h(
+          "p",
+          null,
+          "None has succeeded yet. ",
+          h("a", { href: "#/analyse?kind=/v1/irradiance/models" }, "Calibrate a model"),
+          " first, then come back.",
+        ),
+      )
+      : null,
     series.length ? null : callout(
       "warn",
       "No series stored yet",

@@ -170,26 +170,38 @@ Deno.test({
         assert.ok(s, `no demo series matches ${name}`);
         return s.id as string;
       };
+      // Seconds per surrogate on this machine, measured by the first run step.
+      let perSurrogate = 0.005, fixedSeconds = 0;
+      const surrogatesFor = (seconds: number) =>
+        Math.max(
+          200,
+          Math.min(100_000, Math.round((seconds - fixedSeconds) / perSurrogate / 100) * 100),
+        );
       const solar = await demoId(/monthly sunspot number/);
       const climate = await demoId(/monthly temperature anomaly/);
 
       await t.step(
         "a lag-correlation run from the form reaches succeeded while its progress bar moves",
         async () => {
-          // Size the run to last a few seconds on this machine, whatever its speed: time a small
-          // synchronous run first, then scale the number of surrogates.
-          const t0 = performance.now();
-          const probe = await fetch(`${svc.url}/v1/lag-correlations`, {
-            method: "POST",
-            headers: { "content-type": "application/json" },
-            body: JSON.stringify({ solar, climate, surrogates: 200 }),
-          });
-          assert.equal(probe.status, 201, await probe.text());
-          const perSurrogate = (performance.now() - t0) / 1000 / 200;
-          const surrogates = Math.max(
-            200,
-            Math.min(100_000, Math.round(4 / perSurrogate / 100) * 100),
-          );
+          // Size the run to last a few seconds on this machine, whatever its speed: after a
+          // warm-up run (workers load their code), time two small synchronous runs and take the
+          // cost per surrogate from their difference.
+          const probe = async (surrogates: number) => {
+            const t0 = performance.now();
+            const res = await fetch(`${svc.url}/v1/lag-correlations`, {
+              method: "POST",
+              headers: { "content-type": "application/json" },
+              body: JSON.stringify({ solar, climate, surrogates, seed: surrogates }),
+            });
+            assert.equal(res.status, 201, await res.text());
+            return (performance.now() - t0) / 1000;
+          };
+          await probe(100);
+          const small = await probe(200);
+          const large = await probe(1200);
+          fixedSeconds = small;
+          perSurrogate = Math.max(1e-6, (large - small) / 1000);
+          const surrogates = surrogatesFor(4);
 
           await page.goto(`${svc.url}/#/analyse?kind=/v1/lag-correlations`);
           await page.waitForSelector("#analysis-form");
@@ -242,12 +254,71 @@ Deno.test({
         await shot(page, "run-replayed");
       });
 
+      await t.step("a cancel from the run view stops a long run", async () => {
+        const res = await fetch(`${svc.url}/v1/lag-correlations`, {
+          method: "POST",
+          headers: { "content-type": "application/json", prefer: "respond-async" },
+          body: JSON.stringify({ solar, climate, surrogates: surrogatesFor(3) }),
+        });
+        assert.equal(res.status, 202);
+        const run = await res.json();
+        await page.goto(`${svc.url}/#/runs/${run.id}`);
+        await page.click("#cancel");
+        await page.waitForSelector("main [data-status=cancelled]");
+        assert.match(await page.locator("main").innerText(), /The run was cancelled/);
+      });
+
+      await t.step(
+        "a model calibrated from the form feeds a reconstruction whose proxies it fills",
+        async () => {
+          await page.goto(`${svc.url}/#/analyse?kind=/v1/irradiance/models`);
+          await page.waitForSelector("#analysis-form");
+          await page.selectOption("#f_tsi", await demoId(/daily measured TSI/));
+          await page.fill("#f_terms_0_name", "mg_ii");
+          await page.selectOption("#f_terms_0_series", await demoId(/daily facular index/));
+          await page.selectOption("#f_terms_0_role", "facular");
+          await page.click("#analysis-form details > summary");
+          await page.selectOption("#f_sunspotNumber", solar);
+          await page.click("#analysis-form button[type=submit]");
+          await page.waitForSelector("main [data-status=succeeded]", { timeout: 30_000 });
+          const modelRun = new URL(page.url()).hash.split("/")[2];
+
+          await page.goto(`${svc.url}/#/analyse?kind=/v1/irradiance/reconstructions`);
+          await page.waitForSelector("#analysis-form");
+          assert.equal(await page.inputValue("#f_model"), modelRun);
+          // The proxy rows come from the model's own terms.
+          await page.waitForFunction(() =>
+            (document.querySelector("#f_proxies_0_term") as HTMLInputElement | null)?.value ===
+              "mg_ii"
+          );
+          await page.fill("#f_period_start", "1900");
+          await page.fill("#f_period_end", "2020");
+          await page.click("#analysis-form button[type=submit]");
+          await page.waitForSelector("main [data-status=succeeded]", { timeout: 30_000 });
+          await page.locator("figure.chart svg").waitFor();
+          assert.match(await page.locator("main").innerText(), /satellite era/);
+          assert.match(await page.locator("main").innerText(), /All \d+ rows as CSV/);
+          await shot(page, "reconstruction-run");
+        },
+      );
+
+      await t.step("a cycle table from the form shows its first rows", async () => {
+        await page.goto(`${svc.url}/#/analyse?kind=/v1/cycles`);
+        await page.waitForSelector("#analysis-form");
+        await page.selectOption("#f_series", solar);
+        await page.click("#analysis-form button[type=submit]");
+        await page.waitForSelector("main [data-status=succeeded]", { timeout: 30_000 });
+        await page.waitForSelector("main .result-table table");
+        await page.locator("figure.chart svg").waitFor();
+        await shot(page, "cycles-run");
+      });
+
       await t.step("the runs list shows the run, newest first, with its digest", async () => {
         await page.click("nav >> text=Runs");
         await page.waitForSelector("main h1:text-is('Runs')");
         await page.waitForSelector("main table tbody tr");
         const first = await page.locator("main table tbody tr").first().innerText();
-        assert.match(first, /Lag correlations\s+succeeded/);
+        assert.match(first, /Cycles\s+succeeded/);
         assert.match(first, /[0-9a-f]{12}…/);
         await shot(page, "runs-list");
       });
