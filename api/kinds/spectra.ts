@@ -10,6 +10,7 @@ import { quantileSorted } from "d3-array";
 import { InputProblem, type RunKind } from "../runs/kind.ts";
 import { refId, SeriesRef } from "../schemas/series_ref.ts";
 import {
+  ar1Persistence,
   defaultGridCount,
   falseAlarmProbability,
   fftPeriodogram,
@@ -18,7 +19,8 @@ import {
   lombScargle,
   type LombScargleChunkInput,
   monteCarloFalseAlarm,
-  type MonteCarloFapOptions,
+  type MonteCarloMaximaInput,
+  type MonteCarloNull,
   periodGrid,
   powerAtFalseAlarm,
 } from "../../core/spectral/mod.ts";
@@ -74,6 +76,12 @@ export const SpectraRequest = z.object({
         "number of independent frequencies, a seeded Monte Carlo permutation test, or both",
       example: "both",
     }),
+  monte_carlo_null: z.enum(["ar1", "permutation"]).default("ar1").openapi({
+    description: "Null hypothesis of the Monte Carlo test: `ar1` red noise with the series' " +
+      "variance and persistence on its own times (Schulz & Mudelsee 2002), or `permutation` " +
+      "(white noise: values shuffled over the times)",
+    example: "ar1",
+  }),
   replicates: z.number().int().min(20).max(10_000).default(200).openapi({
     description: "Monte Carlo replicates",
     example: 200,
@@ -138,7 +146,8 @@ export const spectraKind: RunKind<typeof SpectraRequest> = {
   summary: "Periodogram, dominant periods and false-alarm probabilities",
   description: "Lomb–Scargle periodogram (Lomb 1976; Scargle 1982) of any series, gaps and " +
     "uneven sampling allowed, on a period grid you can set, with false-alarm probabilities " +
-    "of its peaks (Horne & Baliunas 1986, and a seeded Monte Carlo permutation test); or the " +
+    "of its peaks (Horne & Baliunas 1986, and a seeded Monte Carlo test against red (AR(1)) " +
+    "or white noise); or the " +
     "tapered FFT periodogram of a gap-free monthly or annual series. Peaks come with a period " +
     "uncertainty from their half-width at half maximum. Periods in years, frequencies in " +
     "cycles per year.",
@@ -152,8 +161,10 @@ export const spectraKind: RunKind<typeof SpectraRequest> = {
     const s = ctx.series(refId(p.series));
     const warnings: string[] = [];
     const cautions = [
-      "False-alarm probabilities test against white noise: in a red (autocorrelated) series, " +
-      "such as monthly sunspot numbers, long-period peaks look more significant than they are.",
+      "The analytic (Horne & Baliunas) and permutation false-alarm probabilities test against " +
+      "white noise: in a red (autocorrelated) series, such as monthly sunspot numbers, " +
+      "long-period peaks then look more significant than they are; the Monte Carlo AR(1) null " +
+      "allows for that persistence.",
       "A periodogram peak describes the record analysed; it is not by itself a physical period.",
     ];
     if (p.method === "fft") {
@@ -273,13 +284,11 @@ export const spectraKind: RunKind<typeof SpectraRequest> = {
       );
     }
     let maxima: Float64Array | null = null;
+    let localP: number[] | null = null;
     if (p.false_alarm !== "horne_baliunas") {
       const chunk = 25;
-      const inputs: (MonteCarloFapOptions & {
-        time: Float64Array;
-        value: Float64Array;
-        frequency: Float64Array;
-      })[] = [];
+      const probe = peaks.map((q) => q.index);
+      const inputs: MonteCarloMaximaInput[] = [];
       for (let r0 = 0; r0 < p.replicates; r0 += chunk) {
         inputs.push({
           time,
@@ -289,16 +298,27 @@ export const spectraKind: RunKind<typeof SpectraRequest> = {
           replicates: Math.min(chunk, p.replicates - r0),
           firstReplicate: r0,
           normalization: p.normalization,
+          null: p.monte_carlo_null,
+          probe,
         });
       }
-      const outs = await ctx.parallel<typeof inputs[number], Float64Array>(
+      const outs = await ctx.parallel<MonteCarloMaximaInput, MonteCarloNull>(
         "spectral.monte_carlo_maxima",
         inputs,
       );
       maxima = new Float64Array(p.replicates);
+      const above = new Array(probe.length).fill(0);
       let o = 0;
-      for (const a of outs) for (const x of a) maxima[o++] = x;
+      for (const a of outs) {
+        for (let r = 0; r < a.maxima.length; r++) {
+          maxima[o++] = a.maxima[r];
+          for (let j = 0; j < probe.length; j++) {
+            if (a.probed[r * probe.length + j] >= peaks[j].power) above[j]++;
+          }
+        }
+      }
       maxima.sort();
+      localP = above.map((c) => (1 + c) / (1 + p.replicates));
     }
     const levels = (fap: number) => ({
       fap,
@@ -309,9 +329,12 @@ export const spectraKind: RunKind<typeof SpectraRequest> = {
       analytic: analytic ? falseAlarmProbability(z, m) : null,
       monte_carlo: maxima ? monteCarloFalseAlarm(z, maxima) : null,
     });
-    const pk = peaks.map((q) => {
+    const pk = peaks.map((q, j) => {
       const f = fapOf(q.power);
-      return peakJson(q, f.analytic, f.monte_carlo);
+      return {
+        ...peakJson(q, f.analytic, f.monte_carlo),
+        p_local_monte_carlo: localP?.[j] ?? null,
+      };
     });
     return {
       input: { id: s.id, name: s.name, quantity: s.quantity, n },
@@ -336,8 +359,22 @@ export const spectraKind: RunKind<typeof SpectraRequest> = {
         independent_frequencies_source: "Horne & Baliunas 1986: M = -6.362 + 1.193 N + " +
           "0.00098 N^2",
         replicates: maxima ? p.replicates : null,
+        monte_carlo_tests: maxima
+          ? "false_alarm_monte_carlo: the grid's largest replicate power against the peak " +
+            "(family-wise over every period searched); p_local_monte_carlo: the replicate power " +
+            "at the peak's own period (one period tested)"
+          : null,
         seed: maxima ? p.seed : null,
-        null_hypothesis: "white noise (values permuted over the sampling times for Monte Carlo)",
+        null_hypothesis: {
+          analytic: "white noise",
+          monte_carlo: maxima
+            ? (p.monte_carlo_null === "ar1"
+              ? `red noise: AR(1) with persistence ${
+                ar1Persistence(time, value).toPrecision(4)
+              } yr and the series' variance`
+              : "white noise: values permuted over the sampling times")
+            : null,
+        },
         levels: [levels(0.01), levels(0.05)],
       },
       warnings,

@@ -110,6 +110,52 @@ export interface MonteCarloFapOptions {
   firstReplicate?: number;
   /** @default "horne_baliunas" */
   normalization?: LombScargleNormalization;
+  /**
+   * Null hypothesis: "permutation" (white noise: the values shuffled over the sample times)
+   * or "ar1" (red noise: a Gaussian AR(1) process on the actual, possibly uneven, times with
+   * the data's variance and persistence; see {@link ar1Persistence}).
+   * @default "permutation"
+   */
+  null?: "permutation" | "ar1";
+}
+
+/**
+ * Persistence time τ of a first-order autoregressive (red-noise) model of a series:
+ * τ = −d / ln ρ, with ρ the lag-1 autocorrelation of consecutive (mean-removed) values and d
+ * their median spacing. This is the simple moment estimator for near-even sampling; Mudelsee
+ * (2002, Comput. Geosci. 28, 69) gives a least-squares estimator for strongly uneven times.
+ * The red-noise model x_i = a_i x_{i−1} + σ√(1 − a_i²) ε_i with a_i = exp(−(t_i − t_{i−1})/τ)
+ * is the one used for uneven spectra by Schulz & Mudelsee (2002, Comput. Geosci. 28, 421).
+ *
+ * @param time sample times, increasing
+ * @param value values, finite
+ * @returns τ in time units, 0 when ρ ≤ 0 (white noise), Infinity never (ρ is capped at
+ *   0.9999)
+ * @example
+ * ```ts
+ * import { ar1Persistence } from "./false_alarm.ts";
+ * import assert from "node:assert/strict";
+ * // alternating values: negative lag-1 autocorrelation, white-noise model
+ * assert.equal(ar1Persistence([0, 1, 2, 3, 4], [1, -1, 1, -1, 1]), 0);
+ * ```
+ */
+export function ar1Persistence(time: ArrayLike<number>, value: ArrayLike<number>): number {
+  const n = value.length;
+  let m = 0;
+  for (let i = 0; i < n; i++) m += value[i];
+  m /= n;
+  let c0 = 0, c1 = 0;
+  for (let i = 0; i < n; i++) {
+    c0 += (value[i] - m) ** 2;
+    if (i > 0) c1 += (value[i] - m) * (value[i - 1] - m);
+  }
+  const rho = c0 > 0 ? Math.min(0.9999, c1 / c0) : 0;
+  if (!(rho > 0)) return 0;
+  const d: number[] = [];
+  for (let i = 1; i < n; i++) d.push(time[i] - time[i - 1]);
+  d.sort((a, b) => a - b);
+  const med = d.length % 2 ? d[(d.length - 1) / 2] : (d[d.length / 2 - 1] + d[d.length / 2]) / 2;
+  return -med / Math.log(rho);
 }
 
 /**
@@ -120,8 +166,10 @@ export interface MonteCarloFapOptions {
  * Replicate r draws from `randomStream(seed, firstReplicate + r)`, so the result does not
  * depend on how replicates are split over workers.
  *
- * Caution: a white-noise null overstates the significance of peaks in red (autocorrelated)
- * series.
+ * With `null: "ar1"` each replicate is instead red noise: a Gaussian AR(1) process on the
+ * same times with the data's variance and persistence ({@link ar1Persistence}), the usual null
+ * for climate spectra (Gilman, Fuglister & Mitchell 1963; Schulz & Mudelsee 2002). A
+ * white-noise null overstates the significance of long-period peaks in red series.
  *
  * @param time sample times
  * @param value sample values
@@ -147,6 +195,52 @@ export function monteCarloPeakMaxima(
   frequency: ArrayLike<number>,
   options: MonteCarloFapOptions,
 ): Float64Array {
+  return monteCarloPeriodogramNull(time, value, frequency, options).maxima;
+}
+
+/** Result of {@link monteCarloPeriodogramNull}. */
+export interface MonteCarloNull {
+  /** Largest power of each replicate over the whole grid. */
+  maxima: Float64Array;
+  /** Power of each replicate at the probed grid indices: replicate r, probe j at r·P + j. */
+  probed: Float64Array;
+}
+
+/**
+ * As {@link monteCarloPeakMaxima}, also recording each replicate's power at chosen grid
+ * indices (e.g. the observed peaks), for a local, single-frequency test beside the
+ * family-wise test over the whole grid.
+ *
+ * @param time sample times
+ * @param value sample values
+ * @param frequency the grid searched
+ * @param options seed, replicates, normalisation, null, and `probe` (grid indices)
+ * @returns replicate maxima and probed powers
+ * @throws {RangeError} as {@link monteCarloPeakMaxima}, or for a probe index off the grid
+ * @example
+ * ```ts
+ * import { monteCarloPeriodogramNull } from "./false_alarm.ts";
+ * import assert from "node:assert/strict";
+ * const t = [0, 1, 2, 3, 4, 5, 6, 7], y = [1, 3, 2, 5, 4, 6, 5, 8];
+ * const r = monteCarloPeriodogramNull(t, y, [0.1, 0.2, 0.3], { seed: 2, replicates: 4, probe: [1] });
+ * assert.equal(r.probed.length, 4);
+ * assert.ok(r.probed.every((p, i) => p <= r.maxima[i]));
+ * ```
+ */
+export function monteCarloPeriodogramNull(
+  time: ArrayLike<number>,
+  value: ArrayLike<number>,
+  frequency: ArrayLike<number>,
+  options: MonteCarloFapOptions & { probe?: readonly number[] },
+): MonteCarloNull {
+  const probe = options.probe ?? [];
+  for (const j of probe) {
+    if (!Number.isInteger(j) || j < 0 || j >= frequency.length) {
+      throw new RangeError(
+        `Cannot run Monte Carlo false-alarm test: probe index ${j} is off the grid of ${frequency.length}`,
+      );
+    }
+  }
   const { seed, replicates } = options;
   const first = options.firstReplicate ?? 0;
   if (!Number.isInteger(replicates) || replicates < 1) {
@@ -157,21 +251,46 @@ export function monteCarloPeakMaxima(
   const n = value.length;
   const y = new Float64Array(n);
   const out = new Float64Array(replicates);
+  const probed = new Float64Array(replicates * probe.length);
+  const red = options.null === "ar1";
+  // red noise: generated along increasing time with the data's variance and persistence
+  const order = Array.from({ length: n }, (_, i) => i).sort((a, b) => time[a] - time[b]);
+  let tau = 0, sd = 0;
+  if (red) {
+    const ts = order.map((i) => time[i]), vs = order.map((i) => value[i]);
+    tau = ar1Persistence(ts, vs);
+    let m = 0;
+    for (const v of vs) m += v;
+    m /= n;
+    for (const v of vs) sd += (v - m) ** 2;
+    sd = Math.sqrt(sd / (n - 1));
+  }
   for (let r = 0; r < replicates; r++) {
     const rng = randomStream(seed, first + r);
-    for (let i = 0; i < n; i++) y[i] = value[i];
-    for (let i = n - 1; i > 0; i--) {
-      const j = rng.int(0, i);
-      const tmp = y[i];
-      y[i] = y[j];
-      y[j] = tmp;
+    if (red) {
+      let prev = 0;
+      for (let q = 0; q < n; q++) {
+        const i = order[q];
+        const a = q === 0 || tau === 0 ? 0 : Math.exp(-(time[i] - time[order[q - 1]]) / tau);
+        prev = q === 0 ? sd * rng.normal() : a * prev + sd * Math.sqrt(1 - a * a) * rng.normal();
+        y[i] = prev;
+      }
+    } else {
+      for (let i = 0; i < n; i++) y[i] = value[i];
+      for (let i = n - 1; i > 0; i--) {
+        const j = rng.int(0, i);
+        const tmp = y[i];
+        y[i] = y[j];
+        y[j] = tmp;
+      }
     }
     const p = lombScargle(time, y, frequency, { normalization: options.normalization });
     let m = 0;
     for (let k = 0; k < p.length; k++) if (p[k] > m) m = p[k];
     out[r] = m;
+    for (let j = 0; j < probe.length; j++) probed[r * probe.length + j] = p[probe[j]];
   }
-  return out;
+  return { maxima: out, probed };
 }
 
 /**
@@ -201,17 +320,19 @@ export function monteCarloFalseAlarm(z: number, maxima: ArrayLike<number>): numb
 
 /** Input of {@link monteCarloMaximaChunk}: the data, the grid and the replicate range. */
 export interface MonteCarloMaximaInput extends MonteCarloFapOptions {
+  /** Grid indices whose replicate powers are returned too. */
+  probe?: number[];
   time: ArrayLike<number>;
   value: ArrayLike<number>;
   frequency: ArrayLike<number>;
 }
 
 /**
- * {@link monteCarloPeakMaxima} with all arguments in one structured-clonable object, the shape
- * a worker task takes (replicates split into chunks by `firstReplicate`).
+ * {@link monteCarloPeriodogramNull} with all arguments in one structured-clonable object, the
+ * shape a worker task takes (replicates split into chunks by `firstReplicate`).
  *
- * @param input data, grid, seed and replicate range
- * @returns maxima of the chunk's replicates
+ * @param input data, grid, seed, replicate range and probed indices
+ * @returns maxima (and probed powers) of the chunk's replicates
  * @example
  * ```ts
  * import { monteCarloMaximaChunk } from "./false_alarm.ts";
@@ -220,9 +341,9 @@ export interface MonteCarloMaximaInput extends MonteCarloFapOptions {
  *   time: [1, 2, 3, 4, 5, 6], value: [1, 3, 2, 5, 4, 6], frequency: [0.1, 0.2],
  *   seed: 1, replicates: 3,
  * });
- * assert.equal(m.length, 3);
+ * assert.equal(m.maxima.length, 3);
  * ```
  */
-export function monteCarloMaximaChunk(input: MonteCarloMaximaInput): Float64Array {
-  return monteCarloPeakMaxima(input.time, input.value, input.frequency, input);
+export function monteCarloMaximaChunk(input: MonteCarloMaximaInput): MonteCarloNull {
+  return monteCarloPeriodogramNull(input.time, input.value, input.frequency, input);
 }

@@ -213,6 +213,7 @@ Deno.test("POST /v1/spectra: Lomb-Scargle of R's sunspot.year against scipy", as
       periods: { min: 2, max: 150, count: 2000 },
       normalization: "psd",
       false_alarm: "monte_carlo",
+      monte_carlo_null: "permutation",
       replicates: 40,
       seed: 5,
     });
@@ -229,10 +230,25 @@ Deno.test("POST /v1/spectra: Lomb-Scargle of R's sunspot.year against scipy", as
       periods: { min: 2, max: 150, count: 2000 },
       normalization: "psd",
       false_alarm: "monte_carlo",
+      monte_carlo_null: "permutation",
       replicates: 40,
       seed: 5,
     })).json();
     assert.deepEqual(again.result.false_alarm.levels, r.false_alarm.levels);
+    // against red noise (AR(1) with the series' persistence) the 11-year peak still stands out
+    // at its own period
+    const red = await (await svc.post("/v1/spectra", {
+      series: rSeries("sunspot_year"),
+      periods: { min: 2, max: 150, count: 2000 },
+      false_alarm: "both",
+      replicates: 40,
+      seed: 5,
+    })).json();
+    assert.equal(red.result.dominant.p_local_monte_carlo, 1 / 41);
+    assert.ok(
+      red.result.dominant.false_alarm_monte_carlo >= red.result.dominant.p_local_monte_carlo,
+    );
+    assert.match(red.result.false_alarm.null_hypothesis.monte_carlo, /AR\(1\)/);
   } finally {
     await svc.close();
   }
