@@ -410,3 +410,43 @@ Deno.test("demo scenario: attribution recovers the solar sensitivity and lag; co
     await svc.close();
   }
 });
+
+Deno.test("POST /v1/energy-balance runs on a /v1/forcing run's output", async () => {
+  const svc = await makeTestApp();
+  try {
+    // invented TSI: an 11-year sinusoid of 1 W m-2 peak to peak around 1361 W m-2, monthly
+    const tsi = monthlySeries(
+      "invented tsi",
+      "tsi",
+      "W m-2",
+      1900,
+      1320,
+      (i) => 1361 + 0.5 * Math.sin((2 * Math.PI * i) / 132),
+    );
+    const f = await (await svc.post("/v1/forcing", {
+      tsi,
+      reference: { kind: "period", period: { start: "1900", end: "2009" } },
+    })).json();
+    assert.equal(f.status, "succeeded", JSON.stringify(f).slice(0, 400));
+    const res = await svc.post("/v1/energy-balance", { forcing_run: f.id });
+    const run = await res.json();
+    assert.equal(res.status, 201, JSON.stringify(run).slice(0, 400));
+    assert.deepEqual(run.input_runs, [f.id]);
+    // after the transient, the response swings about 2 · 0.08875 · gain peak to peak
+    const T: number[] = run.result.outputs.temperature.value;
+    const last = T.slice(-264);
+    const pp = Math.max(...last) - Math.min(...last);
+    assert.ok(
+      Math.abs(pp - run.result.sinusoid_analytic.gain_k_per_w_m2 * 2 * 0.08875) < 0.003,
+      `pp ${pp}`,
+    );
+    // a run without a forcing output
+    const wrong = await assertProblem(
+      await svc.post("/v1/energy-balance", { forcing_run: run.id }),
+      422,
+    );
+    assert.equal(wrong.errors[0].pointer, "/forcing_run");
+  } finally {
+    await svc.close();
+  }
+});
