@@ -6,6 +6,7 @@
  * @module
  */
 import { z } from "@hono/zod-openapi";
+import { quantileSorted } from "d3-array";
 import { InputProblem, type RunKind } from "../runs/kind.ts";
 import { SeriesRef } from "../schemas/series_ref.ts";
 import {
@@ -91,6 +92,31 @@ function summaryJson(cases: HindcastCase[], res: "monthly" | "annual") {
   };
 }
 
+/**
+ * An empirical interval for the maximum from the same-phase hindcast errors: the forecast
+ * minus the (1 ± level)/2 quantiles (R-7) of past errors (predicted − observed), so that it
+ * covers past outcomes at the stated rate (an empirical prediction interval; common practice
+ * in forecast verification). Null with fewer than 10 hindcast cases.
+ */
+function hindcastInterval(
+  cases: HindcastCase[],
+  m: { time: number; value: number },
+  level: number,
+) {
+  if (cases.length < 10) return null;
+  const q = (xs: number[], p: number) => quantileSorted(xs.sort((a, b) => a - b), p) as number;
+  const lo = (1 - level) / 2, hi = 1 - lo;
+  const et = cases.map((c) => c.error.time), ev = cases.map((c) => c.error.value);
+  const t = [m.time - q(et, hi), m.time - q(et, lo)];
+  return {
+    cases: cases.length,
+    date_interval: t.map((x) => iso(x, "monthly")),
+    decimal_year_interval: t,
+    value_interval: [Math.max(0, m.value - q(ev, hi)), m.value - q(ev, lo)],
+    basis: "forecast minus the quantiles of the same-phase hindcast errors",
+  };
+}
+
 export const cycleForecastsKind: RunKind<typeof CycleForecastsRequest> = {
   kind: "cycle-forecasts",
   path: "/v1/cycle-forecasts",
@@ -104,7 +130,8 @@ export const cycleForecastsKind: RunKind<typeof CycleForecastsRequest> = {
     "bootstrap of the residuals (scaled to the fitted level). The same method is run on every " +
     "past cycle truncated at the same number of months after its minimum (`same_phase`) and at " +
     "half its rise (`mid_rise`), and its errors and band coverage are reported, so that you " +
-    "can judge how far to trust the forecast. The next minimum is estimated from the lengths " +
+    "can judge how far to trust the forecast; the same-phase errors also give an empirical " +
+    "interval for the maximum (`hindcast_interval`). The next minimum is estimated from the lengths " +
     "of the past cycles in the series.",
   request: CycleForecastsRequest,
   estimateSeconds: (p) => (p.replicates + 2 * 25 * p.hindcast_replicates) * 0.001,
@@ -269,6 +296,7 @@ export const cycleForecastsKind: RunKind<typeof CycleForecastsRequest> = {
           decimal_year_interval: fc.maximum.timeInterval,
           value_interval: fc.maximum.valueInterval,
           level: params.level,
+          hindcast_interval: hindcastInterval(same, fc.maximum, params.level),
         },
         next_minimum: nextMin === null ? null : {
           date: iso(nextMin, "monthly"),

@@ -401,6 +401,10 @@ Deno.test("POST /v1/cycle-forecasts: the demo's cycle in progress, band and hind
     assert.ok(r.cycle_in_progress.months_observed >= 60);
     const m = r.forecast.maximum;
     assert.ok(m.value_interval[0] <= m.value && m.value <= m.value_interval[1]);
+    // the empirical interval from past errors at the same phase brackets the forecast too
+    const hi = m.hindcast_interval;
+    assert.ok(hi.cases >= 20);
+    assert.ok(hi.value_interval[0] <= hi.value_interval[1]);
     // recovery (invented data): the predicted maximum is near the true one of the manifest
     assert.ok(Math.abs(m.value / truth.maximum_v2 - 1) < 0.15, `${m.value} vs ${truth.maximum_v2}`);
     assert.ok(Math.abs(m.decimal_year - truth.peak_decimal_year) < 0.5);
