@@ -242,6 +242,11 @@ export const attributionKind: RunKind<typeof AttributionRequest> = {
         aic: pr.aic.map((a) => jsonNumber(a)),
         support: pr.support,
       })),
+      lag_grid: fit.lagGrid && {
+        regressors: fit.lagProfiles.map((pr) => pr.name),
+        lags: fit.lagGrid.lags,
+        aic: fit.lagGrid.aic.map((a) => jsonNumber(a)),
+      },
       solar,
       outputs,
       warnings: [...axis.warnings, ...fit.warnings],

@@ -80,6 +80,11 @@ export interface AttributionResult {
    * Model Selection and Multimodel Inference, §2.6).
    */
   lagProfiles: { name: string; lags: number[]; aic: number[]; support: [number, number] }[];
+  /**
+   * The whole lag surface when the search was exhaustive: every lag combination tried (lags in
+   * regressor order) with its AIC; null after a coordinate search.
+   */
+  lagGrid: { lags: number[][]; aic: number[] } | null;
   /** AR(1) coefficient of the errors (ar1) or lag-1 autocorrelation of OLS residuals. */
   residualRho: number;
   /** Lag-1 autocorrelation of the whitened residuals (ar1) or residuals (ols_hac). */
@@ -210,13 +215,17 @@ export function attributionRegression(
   const combos = ranges.reduce((s, a) => s * a.length, 1);
   let best = regressors.map((r) => r.minLag);
   let search: "exhaustive" | "coordinate";
+  let lagGrid: AttributionResult["lagGrid"] = null;
   if (combos <= limit) {
     search = "exhaustive";
+    lagGrid = { lags: [], aic: [] };
     let bestAic = Infinity;
     const idx = new Array(ranges.length).fill(0);
     for (let c = 0; c < combos; c++) {
       const lags = idx.map((k, j) => ranges[j][k]);
       const f = fitAt(lags);
+      lagGrid.lags.push(lags);
+      lagGrid.aic.push(f.aic);
       if (f.aic < bestAic) {
         bestAic = f.aic;
         best = lags;
@@ -367,6 +376,7 @@ export function attributionRegression(
     search,
     fitsEvaluated: fits,
     lagProfiles,
+    lagGrid,
     residualRho: rho,
     residualLag1: whiteLag1,
     rSquared: fit.rSquared,

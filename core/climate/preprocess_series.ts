@@ -11,6 +11,8 @@
  * @module
  */
 
+import { inverseRealDft, realDft, type RealSpectrum } from "../spectral/fft.ts";
+
 /** Preprocessing applied identically to observations and surrogates. */
 export type DetrendMethod = "mean" | "linear" | "quadratic" | "high_pass";
 
@@ -125,7 +127,8 @@ export function gaussianSigmaForCutoff(cutoffSamples: number): number {
  * ±4σ; near the ends the weights are renormalised over the samples that exist, so the ends
  * are not pulled toward zero). A linear operator, so surrogates get exactly the same one.
  *
- * Cost O(n · σ).
+ * Cost O(n · σ) for narrow kernels; above 48 samples of half-width the same convolution is
+ * done with a zero-padded FFT (O(m log m), m ≥ n + 4σ a power of two), equal to rounding.
  *
  * @param x series (finite values)
  * @param cutoffSamples half-power cutoff period in samples, ≥ 2
@@ -147,6 +150,7 @@ export function gaussianHighPass(x: Float64Array, cutoffSamples: number): Float6
   const h = Math.min(Math.ceil(4 * sigma), n - 1);
   const w = new Float64Array(h + 1);
   for (let j = 0; j <= h; j++) w[j] = Math.exp(-0.5 * (j / sigma) ** 2);
+  if (h > 48) return highPassByFft(x, w);
   const out = new Float64Array(n);
   for (let i = 0; i < n; i++) {
     let s = w[0] * x[i], ws = w[0];
@@ -161,6 +165,51 @@ export function gaussianHighPass(x: Float64Array, cutoffSamples: number): Float6
     }
     out[i] = x[i] - s / ws;
   }
+  return out;
+}
+
+interface FftSmoother {
+  key: string;
+  m: number;
+  kernel: RealSpectrum;
+  /** Σ of the weights that fall inside the series, per sample (the edge renormalisation). */
+  norm: Float64Array;
+}
+let lastSmoother: FftSmoother | null = null;
+
+/** Linear convolution of a zero-padded series with the symmetric kernel, via one real DFT
+ * pair of a power-of-two length m ≥ n + h (no wrap-around reaches the series). */
+function convolve(x: Float64Array, m: number, kernel: RealSpectrum): Float64Array {
+  const pad = new Float64Array(m);
+  pad.set(x);
+  const X = realDft(pad);
+  for (let f = 0; f < X.re.length; f++) {
+    // the kernel is real and even, so its spectrum is real
+    X.re[f] *= kernel.re[f];
+    X.im[f] *= kernel.re[f];
+  }
+  return inverseRealDft(X, m);
+}
+
+/** The FFT form of the same filter for wide kernels (cost O(m log m) instead of O(n·h)). */
+function highPassByFft(x: Float64Array, w: Float64Array): Float64Array {
+  const n = x.length, h = w.length - 1;
+  const key = `${n}:${h}:${w[1]}`;
+  let sm = lastSmoother;
+  if (!sm || sm.key !== key) {
+    let m = 1;
+    while (m < n + h) m <<= 1;
+    const k = new Float64Array(m);
+    k[0] = w[0];
+    for (let j = 1; j <= h; j++) k[j] = k[m - j] = w[j];
+    const kernel = realDft(k);
+    const norm = convolve(new Float64Array(n).fill(1), m, kernel);
+    sm = { key, m, kernel, norm };
+    lastSmoother = sm;
+  }
+  const low = convolve(x, sm.m, sm.kernel);
+  const out = new Float64Array(n);
+  for (let i = 0; i < n; i++) out[i] = x[i] - low[i] / sm.norm[i];
   return out;
 }
 

@@ -201,6 +201,8 @@ Deno.test("POST /v1/attributions recovers an invented solar sensitivity and lag"
     assert.equal(r.lags.solar, 6);
     assert.equal(r.lags.enso, 2);
     assert.equal(r.lag_search, "exhaustive");
+    assert.equal(r.lag_grid.aic.length, 13 * 7);
+    assert.deepEqual(r.lag_grid.regressors, ["solar", "enso", "trend"]);
     // within 3 standard errors (a 95 % interval misses the truth in 1 case of 20; this noise
     // realisation correlates −0.08 with the solar term, numpy lstsq on the same design agrees)
     const sc = r.coefficients.find((c: { name: string }) => c.name === "solar");

@@ -30,6 +30,8 @@ Deno.test("attributionRegression() AR(1) lag profile matches statsmodels GLS (Pr
     { name: "trend", values: t, minLag: 0, maxLag: 0 },
   ], { errors: "ar1" });
   assert.equal(r.search, "exhaustive");
+  assert.equal(r.lagGrid!.aic.length, 7);
+  assert.deepEqual(r.lagGrid!.lags[3], [3, 0]);
   assert.equal(r.n, ref.data.n);
   assert.equal(r.lags.sunspots, ref.prais_winsten.best_lag);
   const prof = r.lagProfiles[0];
@@ -98,6 +100,7 @@ Deno.test("attributionRegression() recovers the demo scenario's solar sensitivit
     { name: "trend", values: trend, minLag: 0, maxLag: 0 },
   ], { errors: "ar1" });
   assert.equal(r.search, "coordinate");
+  assert.equal(r.lagGrid, null);
   assert.equal(r.lags.tsi, truth.lag_solar_months);
   // the solar lag lies in the ΔAIC ≤ 2 support of its profile
   const [lo, hi] = r.lagProfiles[0].support;

@@ -6,7 +6,11 @@ import {
   laggedCorrelation,
   laggedCorrelationTable,
 } from "../../../core/climate/lagged_correlation.ts";
-import { preprocessSeries } from "../../../core/climate/preprocess_series.ts";
+import {
+  gaussianHighPass,
+  gaussianSigmaForCutoff,
+  preprocessSeries,
+} from "../../../core/climate/preprocess_series.ts";
 
 const close = (a: number, b: number, tol: number, what = "") =>
   assert.ok(Math.abs(a - b) <= tol, `${what}: ${a} vs ${b} (tol ${tol})`);
@@ -166,5 +170,26 @@ Deno.test("laggedCorrelation() matches R's ccf and cor on R's sunspot.year and n
       close(c.r[j], cs.overlap[i], 1e-12, `${cs.name} overlap lag ${k}`);
       assert.equal(c.n[j], x.length - Math.abs(k));
     });
+  }
+});
+
+Deno.test("gaussianHighPass() FFT form equals the direct sum for wide kernels", () => {
+  // the FFT path (half-width > 48 samples) against a direct evaluation of the same definition
+  const n = 700, P = 120;
+  const x = Float64Array.from(
+    { length: n },
+    (_, i) => Math.sin(i / 9) + 0.01 * i + ((i * 7919) % 13) / 13,
+  );
+  const fast = gaussianHighPass(x, P);
+  const sigma = gaussianSigmaForCutoff(P), h = Math.ceil(4 * sigma);
+  for (const i of [0, 1, 50, 349, 650, 699]) {
+    let s = 0, ws = 0;
+    for (let j = -h; j <= h; j++) {
+      if (i + j < 0 || i + j >= n) continue;
+      const wj = Math.exp(-0.5 * (j / sigma) ** 2);
+      s += wj * x[i + j];
+      ws += wj;
+    }
+    close(fast[i], x[i] - s / ws, 1e-12, `sample ${i}`);
   }
 });

@@ -68,6 +68,7 @@ Deno.test("surrogateLagChunk() equals the brute-force surrogate correlation at e
     { n: 255, pre: { method: "linear" }, method: "phase", full: false },
     { n: 200, pre: { method: "mean" }, method: "phase", full: true },
     { n: 256, pre: { method: "high_pass", cutoffSamples: 40 }, method: "phase", full: false },
+    { n: 300, pre: { method: "high_pass", cutoffSamples: 100 }, method: "ar1", full: true },
     { n: 150, pre: { method: "linear" }, method: "ar1", full: false },
   ];
   for (const cs of cases) {
