@@ -18,6 +18,15 @@ import { curlScript, pythonSnippet, requestUrl } from "./snippets.js";
 /** @typedef {Node | string | number | null | undefined | false} Child */
 
 const PAGE_SIZE = 20;
+
+/**
+ * Rows per page: `limit` in the view's query (1–100), else 20.
+ * @param {URLSearchParams} query
+ */
+function pageSize(query) {
+  const n = Math.floor(Number(query.get("limit")));
+  return Number.isFinite(n) && n >= 1 ? Math.min(100, n) : PAGE_SIZE;
+}
 const FIRST_ROWS = 12;
 const FINAL = new Set(["succeeded", "failed", "cancelled"]);
 /** Analyses offered first, by POST path. */
@@ -245,6 +254,24 @@ function deref(doc, s) {
     s = t;
   }
   return s ?? {};
+}
+
+/**
+ * An object schema with its `allOf` parts merged (properties and required lists).
+ * @param {any} doc
+ * @param {any} s
+ * @returns {any}
+ */
+function objectSchema(doc, s) {
+  const d = deref(doc, s);
+  if (!Array.isArray(d.allOf)) return d;
+  const parts = d.allOf.map((/** @type {any} */ x) => objectSchema(doc, x));
+  return {
+    ...d,
+    type: "object",
+    properties: Object.assign({}, ...parts.map((/** @type {any} */ x) => x.properties ?? {})),
+    required: parts.flatMap((/** @type {any} */ x) => x.required ?? []),
+  };
 }
 
 /** The quantity vocabulary, from the OpenAPI document. @returns {Promise<string[]>} */
@@ -529,13 +556,17 @@ function pager(base, query, offset, total, shown) {
     offset > 0
       ? h(
         "a",
-        { class: "button ghost", href: link(Math.max(0, offset - PAGE_SIZE)), rel: "prev" },
+        { class: "button ghost", href: link(Math.max(0, offset - pageSize(query))), rel: "prev" },
         "← Newer",
       )
       : null,
     h("span", { class: "muted" }, `${from}–${offset + shown} of ${total}`),
     offset + shown < total
-      ? h("a", { class: "button ghost", href: link(offset + PAGE_SIZE), rel: "next" }, "Older →")
+      ? h(
+        "a",
+        { class: "button ghost", href: link(offset + pageSize(query)), rel: "next" },
+        "Older →",
+      )
       : null,
   );
 }
@@ -582,7 +613,7 @@ async function seriesList(gen, query) {
   const req = {
     method: "GET",
     path: "/v1/series",
-    query: { limit: PAGE_SIZE, offset, quantity: quantity || undefined },
+    query: { limit: pageSize(query), offset, quantity: quantity || undefined },
     note: "List stored series, newest first",
   };
   const [r, qs] = await Promise.all([call(req), quantities()]);
@@ -758,7 +789,12 @@ async function runList(gen, query) {
   const req = {
     method: "GET",
     path: "/v1/runs",
-    query: { limit: PAGE_SIZE, offset, kind: kind || undefined, status: status || undefined },
+    query: {
+      limit: pageSize(query),
+      offset,
+      kind: kind || undefined,
+      status: status || undefined,
+    },
     note: "List runs, newest first",
   };
   const [r, version] = await Promise.all([call(req), call({ method: "GET", path: "/v1/version" })]);
@@ -860,8 +896,23 @@ function resultParts(result) {
  * @param {Record<string, unknown>[]} rows
  */
 function recordTable(name, rows) {
-  const cols = [...new Set(rows.slice(0, 50).flatMap((r) => Object.keys(r)))].slice(0, 10);
-  const first = rows.slice(0, FIRST_ROWS);
+  // Nested records (e.g. a cycle's start {date, value}) become "start.date", "start.value".
+  /** @param {Record<string, unknown>} r */
+  const flatten = (r) => {
+    /** @type {Record<string, unknown>} */
+    const out = {};
+    for (const [k, v] of Object.entries(r)) {
+      if (isObject(v)) {
+        for (const [k2, v2] of Object.entries(/** @type {any} */ (v))) out[`${k}.${k2}`] = v2;
+      } else out[k] = v;
+    }
+    return out;
+  };
+  const flat = rows.slice(0, 50).map(flatten);
+  const cols = [...new Set(flat.flatMap((r) => Object.keys(r)))]
+    .filter((c) => flat.some((r) => r[c] !== null && r[c] !== undefined))
+    .slice(0, 12);
+  const first = flat.slice(0, FIRST_ROWS);
   return h(
     "div",
     { class: "result-table" },
@@ -869,9 +920,7 @@ function recordTable(name, rows) {
     table(
       cols,
       first.map((r) => cols.map((c) => fmt(isScalar(r[c]) ? r[c] : JSON.stringify(r[c])))),
-      {
-        numeric: cols.map((c) => typeof first[0]?.[c] === "number"),
-      },
+      { numeric: cols.map(() => true) },
     ),
     rows.length > first.length
       ? h(
@@ -1267,7 +1316,7 @@ function seriesOptions(series, name) {
  * @returns {Field[]}
  */
 function buildFields(doc, schema, prefix, ctx, optional = false) {
-  const s = deref(doc, schema);
+  const s = objectSchema(doc, schema);
   const props = s.properties ?? {};
   const required = new Set(s.required ?? []);
   /** @type {Field[]} */
@@ -1878,7 +1927,7 @@ async function uploadView(gen) {
     /** @type {any[]} */ ((op.parameters ?? []).map((/** @type {any} */ p) => deref(doc, p)).filter(
       (/** @type {any} */ p) => p.in === "query",
     ));
-  const uploadSchema = deref(doc, op.requestBody?.content?.["application/json"]?.schema);
+  const uploadSchema = objectSchema(doc, op.requestBody?.content?.["application/json"]?.schema);
   const status = h("div", { id: "upload-status", "aria-live": "polite" });
   const snip = snippets([]);
 

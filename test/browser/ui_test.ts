@@ -138,6 +138,49 @@ Deno.test({
       });
 
       await t.step(
+        "a JSON upload with a missing-value sentinel is stored with its gap",
+        async () => {
+          await page.goto(`${svc.url}/#/upload`);
+          await page.check("#fmt-json");
+          await page.fill(
+            "#up-text",
+            JSON.stringify({
+              name: "Browser test JSON index",
+              quantity: "enso_index",
+              units: "1",
+              time: ["2001-01", "2001-02", "2001-03", "2001-04"],
+              value: [0.3, -999, 0.1, 0.2],
+            }),
+          );
+          await page.fill("#up-json-missing", "-999");
+          assert.match(
+            await page.locator("#snippet-python").textContent() ?? "",
+            /"missing": \[-999\]/,
+          );
+          await page.click("#upload-form button[type=submit]");
+          await page.waitForSelector("#uploaded-link");
+          assert.match(await page.locator("#upload-status").innerText(), /3 points .*missing 1/s);
+        },
+      );
+
+      await t.step("the lists page through their items", async () => {
+        await page.goto(`${svc.url}/#/series?limit=3`);
+        await page.waitForSelector("main .pager");
+        const total = (await (await fetch(`${svc.url}/v1/series?limit=1`)).json()).total;
+        assert.equal(await page.locator("main .pager span").innerText(), `1–3 of ${total}`);
+        const firstPage = await page.locator("main table tbody").innerText();
+        await page.click("main .pager a[rel=next]");
+        await page.waitForFunction(() =>
+          document.querySelector("main .pager span")?.textContent?.startsWith("4–6")
+        );
+        assert.notEqual(await page.locator("main table tbody").innerText(), firstPage);
+        await page.click("main .pager a[rel=prev]");
+        await page.waitForFunction(() =>
+          document.querySelector("main .pager span")?.textContent?.startsWith("1–3")
+        );
+      });
+
+      await t.step(
         "a bad upload shows the row and column of the problem and stores nothing",
         async () => {
           const before = (await (await fetch(`${svc.url}/v1/series?limit=1`)).json()).total;
