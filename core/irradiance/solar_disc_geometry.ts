@@ -50,6 +50,9 @@ export function julianDay(t: number): number {
  * low-precision theory of Meeus ch. 25 (accuracy about 0.01°):
  * B0 = asin(sin(λ − K) sin I), η = atan2(−sin(λ − K) cos I, −cos(λ − K)), L0 = η − θ,
  * P = atan(−cos λ tan ε) + atan(−cos(λ − K) tan I).
+ * Checked against sunpy (fixtures/reference/disc_geometry_sunpy.py): B0 and P within 0.05°;
+ * L0 within 0.04° near 2000, drifting by ~0.1° per century because sunpy follows the IAU
+ * rotation model (pole fixed in ICRS) while Meeus refers the node to the ecliptic of date.
  *
  * @param jd Julian Day (UT ≈ TT)
  * @returns {@link SolarDiscGeometry} in degrees

@@ -111,3 +111,25 @@ Deno.test("heliographicMu() matches the demo records' μ = cos(lat)·cos(CMD) wh
   }
   assert.ok(heliographicMu(0, 120) < 0); // behind the limb
 });
+
+Deno.test("solarDiscGeometry() agrees with sunpy's B0, P and L0 from 1700 to 2030", () => {
+  // fixtures/reference/disc_geometry_sunpy.py (sunpy.coordinates.sun, versions in its JSON).
+  // B0 and P: the Meeus ch. 25 low-precision solar longitude is good to ~0.01–0.04°.
+  // L0: sunpy follows the IAU rotation model (pole fixed in ICRS) while Meeus ch. 29 refers the
+  // node to the ecliptic of date; the two definitions drift apart by ~0.1° per century from
+  // 2000, irrelevant for μ (at most 1e-3 change near the limb) but a real difference.
+  const ref = JSON.parse(
+    Deno.readTextFileSync(
+      new URL("../../../fixtures/reference/disc_geometry_sunpy.json", import.meta.url),
+    ),
+  ) as { rows: { jd: number; b0: number; l0: number; p: number }[] };
+  for (const r of ref.rows) {
+    const g = solarDiscGeometry(r.jd);
+    const years = Math.abs(r.jd - 2451545) / 36525 * 100;
+    assert.ok(Math.abs(g.b0Deg - r.b0) < 0.05, `B0 at JD ${r.jd}`);
+    assert.ok(Math.abs(g.pDeg - r.p) < 0.05, `P at JD ${r.jd}`);
+    let d = Math.abs(g.l0Deg - r.l0) % 360;
+    if (d > 180) d = 360 - d;
+    assert.ok(d < 0.04 + 0.0011 * years, `L0 at JD ${r.jd}: ${d}`);
+  }
+});
