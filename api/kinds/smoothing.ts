@@ -8,7 +8,13 @@
 import { z } from "@hono/zod-openapi";
 import type { RunKind } from "../runs/kind.ts";
 import { refId, SeriesRef } from "../schemas/series_ref.ts";
-import { runningMeanWeights, SMOOTHED_13_MONTH_WEIGHTS } from "../../core/cycles/mod.ts";
+import {
+  gaussianWeights,
+  runningMeanWeights,
+  SMOOTHED_13_MONTH_WEIGHTS,
+  toRegularGrid,
+  weightedMovingAverageUncertainty,
+} from "../../core/cycles/mod.ts";
 import { activityGrid, applySmoothing, iso, nulls } from "./cycles_common.ts";
 import { InputProblem } from "../runs/kind.ts";
 
@@ -46,8 +52,9 @@ export const smoothingKind: RunKind<typeof SmoothingRequest> = {
   description: "Smooths a monthly or annual series on its calendar grid. Missing months are " +
     "gaps: a window with more missing weight than `max_missing_weight` gives null, never a " +
     "value biased by the gap, and the first and last half-windows are null (the 13-month " +
-    "smoothing is undefined for the first and last 6 months). Uncertainties are not " +
-    "propagated. The `smoothed` output is saved as a new series derived from the run.",
+    "smoothing is undefined for the first and last 6 months). Uncertainties, when the input " +
+    "has them, are propagated as independent errors (a lower bound for correlated ones). " +
+    "The `smoothed` output is saved as a new series derived from the run.",
   request: SmoothingRequest,
   autoSave: ["smoothed"],
   estimateSeconds: () => 0.1,
@@ -70,6 +77,15 @@ export const smoothingKind: RunKind<typeof SmoothingRequest> = {
       ? [...SMOOTHED_13_MONTH_WEIGHTS]
       : params.method === "running_mean"
       ? runningMeanWeights(params.window)
+      : null;
+    const kernel = weights ?? gaussianWeights(params.sigma, 3);
+    const uncertainty = s.uncertainty
+      ? nulls(weightedMovingAverageUncertainty(
+        grid.value,
+        toRegularGrid(s.time, s.uncertainty, grid.resolution).value,
+        kernel,
+        { maxMissingWeight: params.max_missing_weight },
+      ))
       : null;
     const label = params.method === "13_month"
       ? "13-month smoothed"
@@ -110,7 +126,9 @@ export const smoothingKind: RunKind<typeof SmoothingRequest> = {
           units: s.units,
           time: Array.from(grid.time),
           value,
-          description: `${label} values of series ${s.id}; null where the window is incomplete`,
+          ...(uncertainty ? { uncertainty } : {}),
+          description: `${label} values of series ${s.id}; null where the window is incomplete` +
+            (uncertainty ? "; uncertainties propagated as independent errors" : ""),
         },
       },
       warnings,

@@ -64,3 +64,30 @@ export function gaussianSmooth(
   );
   return weightedMovingAverage(values, w, options);
 }
+
+/**
+ * The truncated Gaussian kernel of {@link gaussianSmooth} (unnormalised weights
+ * exp(−k²/(2σ²)), |k| ≤ ceil(truncate·σ)).
+ *
+ * @param sigma standard deviation in samples, > 0
+ * @param truncate truncation in standard deviations, default 3
+ * @returns the kernel, odd length
+ * @throws {RangeError} for a non-positive sigma or truncate
+ * @example
+ * ```ts
+ * import { gaussianWeights } from "./gaussian_smoother.ts";
+ * import assert from "node:assert/strict";
+ * const w = gaussianWeights(1);
+ * assert.equal(w.length, 7);
+ * assert.equal(w[3], 1);
+ * ```
+ */
+export function gaussianWeights(sigma: number, truncate = 3): number[] {
+  if (!(Number.isFinite(sigma) && sigma > 0 && Number.isFinite(truncate) && truncate > 0)) {
+    throw new RangeError(
+      `Cannot build Gaussian kernel: sigma and truncate must be positive, got ${sigma}, ${truncate}`,
+    );
+  }
+  const h = Math.ceil(truncate * sigma);
+  return Array.from({ length: 2 * h + 1 }, (_, k) => Math.exp(-((k - h) ** 2) / (2 * sigma ** 2)));
+}

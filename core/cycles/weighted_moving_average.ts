@@ -83,3 +83,58 @@ export function weightedMovingAverage(
   }
   return out;
 }
+
+/**
+ * Standard uncertainty of {@link weightedMovingAverage}, for independent errors:
+ * u(y_i) = √(Σ_k w_k² u(x_{i+k−h})²) / Σ_k w_k over the present samples (law of propagation of
+ * uncertainty for a linear combination, JCGM 100:2008 "GUM", eq. 10, zero correlations).
+ * Serially correlated errors make the true uncertainty larger; this is a lower bound then.
+ *
+ * @param values samples (NaN = missing), the same as given to the average
+ * @param uncertainty one-sigma uncertainties, same length (NaN = unknown)
+ * @param weights kernel, as for the average
+ * @param options the same missing-data policy as the average
+ * @returns uncertainties, NaN where the average is undefined or a used sample has no
+ *   uncertainty
+ * @throws {RangeError} as {@link weightedMovingAverage}, or when lengths differ
+ * @example
+ * ```ts
+ * import { weightedMovingAverageUncertainty } from "./weighted_moving_average.ts";
+ * import assert from "node:assert/strict";
+ * // mean of 4 values with u = 2 each: 2/√4 = 1
+ * const u = weightedMovingAverageUncertainty([1, 2, 3, 4, 5], [2, 2, 2, 2, 2], [0.5, 1, 1, 1, 0.5]);
+ * assert.ok(Math.abs(u[2] - Math.sqrt(0.25 * 4 * 2 + 3 * 4) / 4) < 1e-12);
+ * ```
+ */
+export function weightedMovingAverageUncertainty(
+  values: ArrayLike<number>,
+  uncertainty: ArrayLike<number>,
+  weights: ArrayLike<number>,
+  options: WindowGapOptions = {},
+): Float64Array {
+  const n = values.length;
+  if (uncertainty.length !== n) {
+    throw new RangeError(
+      `Cannot propagate smoothing uncertainty: ${n} values but ${uncertainty.length} uncertainties`,
+    );
+  }
+  const mean = weightedMovingAverage(values, weights, options);
+  const h = (weights.length - 1) / 2;
+  const out = new Float64Array(n).fill(NaN);
+  for (let i = 0; i < n; i++) {
+    if (Number.isNaN(mean[i])) continue;
+    let sw = 0, s2 = 0, ok = true;
+    for (let j = Math.max(0, i - h); j <= Math.min(n - 1, i + h); j++) {
+      if (Number.isNaN(values[j])) continue;
+      const w = weights[j - i + h], u = uncertainty[j];
+      if (!Number.isFinite(u)) {
+        if (w > 0) ok = false;
+        continue;
+      }
+      sw += w;
+      s2 += w * w * u * u;
+    }
+    if (ok && sw > 0) out[i] = Math.sqrt(s2) / sw;
+  }
+  return out;
+}

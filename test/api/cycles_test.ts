@@ -30,6 +30,7 @@ function demoSeries() {
     version: "2",
     time: rows.map((r) => r[0]),
     value: rows.map((r) => Number(r[2])),
+    uncertainty: rows.map((r) => Number(r[3])),
   };
 }
 
@@ -56,6 +57,27 @@ Deno.test("POST /v1/smoothing: 13-month smoothing saved as a new series", async 
     assert.equal(run.saved_series[0].output, "smoothed");
     const saved = await (await svc.get(`/v1/series/${run.saved_series[0].id}`)).json();
     assert.equal(saved.derived_from ?? saved.series?.derived_from, run.id);
+  } finally {
+    await svc.close();
+  }
+});
+
+Deno.test("POST /v1/smoothing: uncertainties propagate as independent errors", async () => {
+  const svc = await makeTestApp();
+  try {
+    const series = demoSeries();
+    const run = await (await svc.post("/v1/smoothing", { series })).json();
+    assert.equal(run.status, "succeeded");
+    const u = run.result.outputs.smoothed.uncertainty;
+    // GUM (JCGM 100:2008) eq. 10 with zero correlation: √(Σ w² u²) / Σ w, 13-month weights
+    const i = 600;
+    let s2 = 0;
+    for (let k = -6; k <= 6; k++) {
+      const w = Math.abs(k) === 6 ? 0.5 : 1;
+      s2 += w * w * series.uncertainty[i + k] ** 2;
+    }
+    assert.ok(Math.abs(u[i] - Math.sqrt(s2) / 12) < 1e-9);
+    assert.equal(u[0], null);
   } finally {
     await svc.close();
   }
