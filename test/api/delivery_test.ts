@@ -387,3 +387,46 @@ Deno.test("a succeeded run answered from memory is byte-identical to the first a
     await svc.close();
   }
 });
+
+async function gunzip(bytes: ArrayBuffer): Promise<string> {
+  const s = new Blob([bytes]).stream().pipeThrough(new DecompressionStream("gzip"));
+  return await new Response(s).text();
+}
+
+Deno.test("cached runs and charts are sent gzip-coded to clients that accept it, with their own tag", async () => {
+  const svc = await makeTestApp();
+  try {
+    const { run } = await runWithOutput(svc);
+    for (const path of [`/v1/runs/${run.id}`, `/v1/runs/${run.id}/chart.svg`]) {
+      const plain = await svc.get(path);
+      const plainText = await plain.text();
+      assert.equal(plain.headers.get("content-encoding"), null);
+      const gz = await svc.get(path, { "Accept-Encoding": "br;q=1, gzip;q=0.8" });
+      assert.equal(gz.headers.get("content-encoding"), "gzip", path);
+      assert.match(gz.headers.get("vary") ?? "", /Accept-Encoding/);
+      const tag = gz.headers.get("etag")!;
+      assert.notEqual(tag, plain.headers.get("etag"));
+      assert.match(tag, /^"[^"]+-gzip"$/);
+      const bytes = await gz.arrayBuffer();
+      assert.ok(
+        bytes.byteLength < plainText.length / 2,
+        `${bytes.byteLength} vs ${plainText.length}`,
+      );
+      assert.equal(await gunzip(bytes), plainText);
+      const nm = await svc.get(path, { "Accept-Encoding": "gzip", "If-None-Match": tag });
+      assert.equal(nm.status, 304);
+      // the identity tag does not validate the gzip variant, and gzip;q=0 refuses gzip
+      const other = await svc.get(path, {
+        "Accept-Encoding": "gzip",
+        "If-None-Match": plain.headers.get("etag")!,
+      });
+      assert.equal(other.status, 200);
+      await other.body?.cancel();
+      const refused = await svc.get(path, { "Accept-Encoding": "gzip;q=0, identity" });
+      assert.equal(refused.headers.get("content-encoding"), null);
+      assert.equal(await refused.text(), plainText);
+    }
+  } finally {
+    await svc.close();
+  }
+});

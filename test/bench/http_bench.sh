@@ -6,4 +6,4 @@
 set -euo pipefail
 cd "$(dirname "$0")/../.."
 command -v wrk >/dev/null || { echo "wrk is not installed (apt-get install -y wrk)"; exit 1; }
-exec timeout 300 deno run -A test/bench/http_load.ts "$@"
+exec timeout 420 deno run -A test/bench/http_load.ts "$@"

@@ -4,8 +4,8 @@
  *
  * 1. A Hono hello-world on Deno.serve (test/bench/http_hello.ts) as the baseline.
  * 2. The service as `deno task start` runs it (api/main.ts) on a spare port with an in-memory
- *    store and the demo data: cached GETs of a finished run (200, and 304 revalidation) and of
- *    its chart, and of a stored series' chart. Reported as req/s and as a ratio to the
+ *    store and the demo data: cached GETs of a finished run (200 identity, 200 gzip-coded, and
+ *    304 revalidation) and of its chart, and of a stored series' chart. Reported as req/s and as a ratio to the
  *    baseline (goal: at least 1/3).
  * 3. Health-check latency (p50/p99 from `wrk --latency`) while a 10,000-surrogate
  *    lag-correlation run is in progress on the worker pool (goal: p99 under 50 ms).
@@ -169,6 +169,7 @@ try {
   ) {
     const { etag, bytes } = await probe(url);
     targets.push({ name: `${name}_200`, url, bytes });
+    targets.push({ name: `${name}_200_gzip`, url, headers: { "Accept-Encoding": "gzip" }, bytes });
     targets.push({ name: `${name}_304`, url, headers: { "If-None-Match": etag }, bytes: 0 });
   }
   // warm-up
@@ -202,35 +203,65 @@ try {
   }
   results.cached_gets = served;
 
-  // ---- 3. health latency during a 10,000-surrogate run
-  const healthIdle = await wrk(`${base}/v1/health`, { seconds: 3, connections: 4 });
+  // ---- 3. health latency during a 10,000-surrogate run: with the default pool (one worker per
+  // core), then with one worker, which leaves a core to the request thread.
+  results.health_during_heavy_run = {
+    default_workers: await healthDuringHeavyRun(base, body),
+  };
+  await stop(service);
+  const one = start(["run", "-A", "api/main.ts"], {
+    PORT: String(SERVICE_PORT + 1),
+    HOST: "127.0.0.1",
+    SUNLAG_STORE: "sqlite::memory:",
+    SUNLAG_DEMO: "1",
+    SUNLAG_LOG: "0",
+    SUNLAG_WORKERS: "1",
+  });
+  try {
+    const base1 = `http://127.0.0.1:${SERVICE_PORT + 1}`;
+    await waitFor(`${base1}/v1/health`);
+    (results.health_during_heavy_run as Record<string, unknown>).one_worker =
+      await healthDuringHeavyRun(base1, body);
+  } finally {
+    await stop(one);
+  }
+} finally {
+  await stop(service);
+  await stop(hello);
+}
+
+/** wrk on /v1/health idle, then while a 10,000-surrogate lag-correlation run is in progress. */
+async function healthDuringHeavyRun(base: string, body: Record<string, unknown>) {
+  const list = await (await fetch(`${base}/v1/series?limit=100`)).json();
+  const find = (q: string) =>
+    list.items.find((s: { quantity: string }) => s.quantity === q)?.id as string;
+  const req = { ...body, solar: find("sunspot_number"), climate: find("temperature_anomaly") };
+  const idle = await wrk(`${base}/v1/health`, { seconds: 3, connections: 4 });
   const t0 = Date.now();
   const heavy = await fetch(`${base}/v1/lag-correlations`, {
     method: "POST",
     headers: { "content-type": "application/json", Prefer: "respond-async" },
-    body: JSON.stringify({ ...body, surrogates: 10_000, seed: 2 }),
+    body: JSON.stringify({ ...req, surrogates: 10_000, seed: 2 }),
   });
   const heavyRun = await heavy.json();
   if (heavy.status !== 202) throw new Error(`heavy run not async: ${heavy.status}`);
   const during = await wrk(`${base}/v1/health`, { seconds: SECONDS, connections: 4 });
   const afterLoad = await (await fetch(`${base}/v1/runs/${heavyRun.id}`)).json();
   let final = afterLoad;
-  while (final.status === "queued" || final.status === "running") {
+  const until = Date.now() + 120_000;
+  while ((final.status === "queued" || final.status === "running") && Date.now() < until) {
     await new Promise((r) => setTimeout(r, 250));
     final = await (await fetch(`${base}/v1/runs/${heavyRun.id}`)).json();
   }
-  results.health_during_heavy_run = {
+  return {
     surrogates: 10_000,
-    idle: healthIdle,
+    idle,
     during,
-    run_status_when_load_ended: afterLoad.status,
-    run_progress_when_load_ended: afterLoad.progress,
-    run_final_status: final.status,
+    run_status_when_load_ended: afterLoad.status as string,
+    run_progress_when_load_ended: afterLoad.progress as number,
+    run_final_status: final.status as string,
     run_wall_seconds: (Date.now() - t0) / 1000,
   };
-} finally {
-  await stop(service);
-  await stop(hello);
 }
 
 results.load_average_at_end = loadAverage();
@@ -249,17 +280,15 @@ for (const [k, v] of Object.entries(cg)) {
     }]`,
   );
 }
-const h = results.health_during_heavy_run as {
-  idle: WrkResult;
-  during: WrkResult;
-  run_status_when_load_ended: string;
-  run_wall_seconds: number;
-};
-console.log(
-  `health idle p50/p99 ms ${h.idle.latency_ms.p50}/${h.idle.latency_ms.p99}; during the 10,000-surrogate run ` +
-    `p50/p99 ms ${h.during.latency_ms.p50}/${h.during.latency_ms.p99} (run ${h.run_status_when_load_ended} when ` +
-    `the load ended; run took ${h.run_wall_seconds.toFixed(1)} s)`,
-);
+type Health = Awaited<ReturnType<typeof healthDuringHeavyRun>>;
+for (const [k, h] of Object.entries(results.health_during_heavy_run as Record<string, Health>)) {
+  console.log(
+    `health (${k}) idle p50/p99 ms ${h.idle.latency_ms.p50}/${h.idle.latency_ms.p99}; during the ` +
+      `10,000-surrogate run p50/p99 ms ${h.during.latency_ms.p50}/${h.during.latency_ms.p99} (run ` +
+      `${h.run_status_when_load_ended} at ${(h.run_progress_when_load_ended * 100).toFixed(0)} % ` +
+      `when the load ended; ${h.run_final_status} after ${h.run_wall_seconds.toFixed(1)} s)`,
+  );
+}
 console.log(
   `load average start ${JSON.stringify(results.load_average_at_start)}, end ${
     JSON.stringify(results.load_average_at_end)
