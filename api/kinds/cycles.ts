@@ -79,7 +79,8 @@ export const cyclesKind: RunKind<typeof CyclesRequest> = {
       smoothing: an.smoothing,
       rule: {
         min_separation_years: params.min_separation_years,
-        prominence: an.extrema.length ? (params.prominence ?? null) : null,
+        prominence: an.prominence,
+        prominence_default: params.prominence === undefined,
       },
       cycles: rows.map((r) => cycleRowJson(r, res)),
       extrema: an.extrema.map((e) => ({

@@ -165,6 +165,8 @@ Deno.test("POST /v1/cycles: the cycle table of R's sunspot.month", async () => {
     // mean cycle length near 11 years (common practice; SCIENCE.md §5 D: 11.03 on V2 minima)
     assert.ok(Math.abs(r.summary.length_years.mean - 11.03) < 0.1);
     assert.equal(r.summary.complete_cycles, 23);
+    // default prominence: a tenth of the smoothed series' range (201.3 − 0.0 on V1)
+    assert.ok(r.rule.prominence_default && Math.abs(r.rule.prominence - 20.13) < 0.05);
     const phase = r.outputs.phase.value;
     assert.equal(phase.length, r.outputs.smoothed.value.length);
     assert.ok(phase.every((p: number | null) => p === null || (p >= 0 && p < 1)));
