@@ -30,10 +30,10 @@ export type MetaLocator = (field: keyof SeriesMetaInput) => Pick<IngestError, "p
 
 /** Parsed points in input order. `value` NaN marks a missing value (a gap). */
 export interface ParsedPoints {
-  time: number[];
-  value: number[];
+  time: ArrayLike<number>;
+  value: ArrayLike<number>;
   /** null when the series has no uncertainty. NaN where the value is missing. */
-  uncertainty: number[] | null;
+  uncertainty: ArrayLike<number> | null;
   /** Where point i came from, for error messages about its time. */
   where(i: number): Omit<IngestError, "message">;
 }

@@ -151,7 +151,7 @@ export function ingestText(
 
   // 2. Lines, comments, file metadata.
   const raw = text.split(/\r\n|\n|\r/);
-  let lines: Line[] = [];
+  const lines: Line[] = [];
   const fileMeta: Record<string, string> = {};
   let isExport = false;
   for (let i = 0; i < raw.length; i++) {
@@ -210,25 +210,34 @@ export function ingestText(
     DELIMS[k] === delimiter
   )!;
 
-  // 4. Cells, header.
-  // Rows of empty cells only (",,," as spreadsheets write below a table) count as blank lines.
-  const cells: string[][] = [];
-  const dataLines: Line[] = [];
-  for (const line of lines) {
-    const c = splitLine(line.text, delimiter);
+  // 4. First row, header. Rows of empty cells only (",,," as spreadsheets write below a
+  // table) count as blank lines. Rows are split again where they are read, so the table is
+  // never held as cells: a large upload stays cheap in memory and in garbage collection.
+  const rowCells = (k: number): string[] | null | "blank" => {
+    const c = splitLine(lines[k].text, delimiter);
+    if (c === null) return null;
+    for (const x of c) if (x.trim() !== "") return c;
+    return "blank";
+  };
+  let k0 = 0;
+  let firstCells: string[] | null = null;
+  for (; k0 < lines.length && firstCells === null; k0++) {
+    const c = rowCells(k0);
     if (c === null) {
-      errors.add({ pointer: "", in: "body", row: line.row, message: "unterminated quoted field" });
-    } else if (!c.every((x) => x.trim() === "")) {
-      cells.push(c);
-      dataLines.push(line);
+      return fail({
+        pointer: "",
+        in: "body",
+        row: lines[k0].row,
+        message: "unterminated quoted field",
+      });
     }
+    if (c !== "blank") firstCells = c;
   }
-  if (errors.size > 0) return { ok: false, errors: errors.done() };
-  lines = dataLines;
-  if (lines.length === 0) {
+  if (firstCells === null) {
     return fail({ pointer: "", in: "body", message: "the body holds no data rows" });
   }
-  const width = cells[0].length;
+  k0--; // index of the first row
+  const width = firstCells.length;
   const refs = [
     options.time,
     options.year,
@@ -238,11 +247,11 @@ export function ingestText(
     options.uncertainty,
   ];
   const namedRef = refs.some((r) => r !== undefined && !/^\d+$/.test(r.trim()));
-  const labels = cells[0].filter((c) => c.trim() !== "");
+  const labels = firstCells.filter((c) => c.trim() !== "");
   const header = isExport || namedRef ||
     (labels.length > 0 && labels.every((c) => !looksLikeData(c)));
-  const names = header ? cells[0].map((c) => c.trim()) : null;
-  const first = header ? 1 : 0;
+  const names = header ? firstCells.map((c) => c.trim()) : null;
+  const first = header ? k0 + 1 : k0; // index in `lines` of the first data row
   const colLabel = (j: number): string | number => (names ? names[j] || j : j);
 
   const resolve = (ref: string | undefined, param: string): number | null | undefined => {
@@ -359,9 +368,6 @@ export function ingestText(
       message: "time_format applies to a time column, not year/month/day columns",
     });
   }
-  if (lines.length - first === 0) {
-    errors.add({ pointer: "", in: "body", message: "the body holds a header but no data rows" });
-  }
   if (errors.size > 0) return { ok: false, errors: errors.done() };
   const vc = vCol as number, uc = uCol ?? null;
 
@@ -387,8 +393,10 @@ export function ingestText(
     else if (names && /decimal|fractional/i.test(names[tc] ?? "")) timeFormat = "decimal_year";
     else {
       let allNumbers = true, allYear4 = true;
-      for (let i = first; i < cells.length; i++) {
-        const c = (cells[i][tc] ?? "").trim();
+      for (let k = first; k < lines.length; k++) {
+        const row = rowCells(k);
+        if (row === null || row === "blank") continue;
+        const c = (row[tc] ?? "").trim();
         if (!NUMBER.test(c)) {
           allNumbers = false;
           break;
@@ -400,24 +408,42 @@ export function ingestText(
   }
 
   // 7. Rows.
-  const n = cells.length - first;
-  const time = new Array<number>(n), value = new Array<number>(n);
-  const unc = uc === null ? null : new Array<number>(n);
-  const rowOf = new Int32Array(n);
+  const cap = lines.length - first;
+  const time = new Float64Array(cap), value = new Float64Array(cap);
+  const unc = uc === null ? null : new Float64Array(cap);
+  const rowOf = new Int32Array(cap);
+  let n = 0;
   const bodyErr = (k: number, column: number, message: string) =>
     errors.add({ pointer: "", in: "body", row: lines[k].row, column: colLabel(column), message });
-  const readInt = (k: number, j: number, what: string, lo: number, hi: number): number | null => {
-    const c = cells[k][j].trim();
+  const readInt = (
+    row: string[],
+    k: number,
+    j: number,
+    what: string,
+    lo: number,
+    hi: number,
+  ): number | null => {
+    const c = row[j].trim();
     if (!/^[+-]?\d+$/.test(c) || Number(c) < lo || Number(c) > hi) {
       bodyErr(k, j, `${what} must be an integer in ${lo}..${hi}, got "${short(c)}"`);
       return null;
     }
     return Number(c);
   };
-  for (let k = first; k < cells.length; k++) {
-    const i = k - first;
+  for (let k = first; k < lines.length; k++) {
+    const row = rowCells(k);
+    if (row === "blank") continue;
+    if (row === null) {
+      errors.add({
+        pointer: "",
+        in: "body",
+        row: lines[k].row,
+        message: "unterminated quoted field",
+      });
+      continue;
+    }
+    const i = n++;
     rowOf[i] = lines[k].row;
-    const row = cells[k];
     if (row.length !== width) {
       errors.add({
         pointer: "",
@@ -434,9 +460,9 @@ export function ingestText(
     // time
     let t = NaN;
     if (ymd) {
-      const y = readInt(k, yCol as number, "year", -999999, 999999);
-      const m = typeof mCol === "number" ? readInt(k, mCol, "month", 1, 12) : null;
-      const d = typeof dCol === "number" ? readInt(k, dCol, "day", 1, 31) : null;
+      const y = readInt(row, k, yCol as number, "year", -999999, 999999);
+      const m = typeof mCol === "number" ? readInt(row, k, mCol, "month", 1, 12) : null;
+      const d = typeof dCol === "number" ? readInt(row, k, dCol, "day", 1, 31) : null;
       if (y !== null && (mCol === undefined || m !== null) && (dCol === undefined || d !== null)) {
         try {
           if (m === null) t = y + 0.5;
@@ -489,11 +515,14 @@ export function ingestText(
     }
     if (Number.isNaN(v) && !isMissing(vcell)) value[i] = 0; // an error was recorded
   }
+  if (n === 0 && errors.size === 0) {
+    return fail({ pointer: "", in: "body", message: "the body holds a header but no data rows" });
+  }
   return finish(
     {
-      time,
-      value,
-      uncertainty: unc,
+      time: time.subarray(0, n),
+      value: value.subarray(0, n),
+      uncertainty: unc ? unc.subarray(0, n) : null,
       where: (i) => ({
         pointer: "",
         in: "body",

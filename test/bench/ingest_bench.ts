@@ -7,19 +7,7 @@
 import { contentId, ingestText, seriesToCsv } from "../../api/ingest/mod.ts";
 import { makeTestApp } from "../api/helpers.ts";
 
-const ROWS = 150_000;
-
-/** The benchmark table: ISO dates from 1700-01-01, values and uncertainties from a formula. */
-export function dailyCsv(rows = ROWS): string {
-  const out = ["date,value,sigma"];
-  const t0 = Date.UTC(1700, 0, 1);
-  for (let i = 0; i < rows; i++) {
-    const d = new Date(t0 + i * 86_400_000).toISOString().slice(0, 10);
-    const v = 1360.5 + 0.5 * Math.sin((2 * Math.PI * i) / 4018) + 0.1 * Math.sin(i * 0.37);
-    out.push(`${d},${v.toFixed(4)},0.05`);
-  }
-  return out.join("\n") + "\n";
-}
+import { dailyCsv } from "./ingest_table.ts";
 
 const csv = dailyCsv();
 const bytes = new TextEncoder().encode(csv);

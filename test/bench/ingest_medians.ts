@@ -8,7 +8,7 @@
  */
 import { contentId, ingestText, seriesToCsv } from "../../api/ingest/mod.ts";
 import { makeTestApp } from "../api/helpers.ts";
-import { dailyCsv } from "./ingest_bench.ts";
+import { dailyCsv } from "./ingest_table.ts";
 
 const ROUNDS = 15;
 const bytes = new TextEncoder().encode(dailyCsv());
