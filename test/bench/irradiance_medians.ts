@@ -1,7 +1,8 @@
 /**
  * Side-by-side medians for the irradiance benchmarks: the same two tasks as
  * irradiance_bench.ts, timed with performance.now() over repeated runs, printed in the
- * format of irradiance_numpy.py so the two can be run back to back and compared:
+ * format of irradiance_numpy.py so the two can be run back to back and compared (the minimum
+ * is printed too: on a loaded machine it is the steadier figure):
  *
  *   deno run -A test/bench/irradiance_medians.ts
  *   (unset OPENBLAS_CORETYPE OPENBLAS_L2_SIZE; /usr/bin/python3 test/bench/irradiance_numpy.py)
@@ -30,6 +31,8 @@ function synthetic(n: number, seed: number) {
   return { r, f, psi, y };
 }
 
+const mins: number[] = [];
+
 function medianMs(fn: () => void, repeat: number): number {
   for (let i = 0; i < 3; i++) fn(); // warm-up (JIT)
   const t: number[] = [];
@@ -39,6 +42,7 @@ function medianMs(fn: () => void, repeat: number): number {
     t.push(performance.now() - t0);
   }
   t.sort((a, b) => a - b);
+  mins.push(t[0]);
   return t.length % 2 ? t[(t.length - 1) / 2] : (t[t.length / 2 - 1] + t[t.length / 2]) / 2;
 }
 
@@ -82,8 +86,12 @@ const recMs = medianMs(() => {
 }, 50);
 console.log(`deno ${Deno.version.deno}`);
 console.log(
-  `calibrate 17,000 days (Prais-Winsten + 5-fold blocked CV): median ${calMs.toFixed(2)} ms`,
+  `calibrate 17,000 days (Prais-Winsten + 5-fold blocked CV): median ${calMs.toFixed(2)} ms, min ${
+    mins[0].toFixed(2)
+  } ms`,
 );
 console.log(
-  `reconstruct 153,000 days with 95 % prediction intervals: median ${recMs.toFixed(2)} ms`,
+  `reconstruct 153,000 days with 95 % prediction intervals: median ${recMs.toFixed(2)} ms, min ${
+    mins[1].toFixed(2)
+  } ms`,
 );
