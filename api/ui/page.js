@@ -941,9 +941,15 @@ function recordTable(name, rows) {
 function outputTable(runId, name, o) {
   const cols = ["value", "uncertainty", "lower", "upper"].filter((c) => Array.isArray(o[c]));
   const n = o.time?.length ?? 0;
+  // Start at the first defined value: leading undefined rows (e.g. the ends of a 13-month
+  // smoothing) are counted, not shown.
+  const firstDefined = Array.isArray(o.value)
+    ? o.value.findIndex((/** @type {unknown} */ v) => v !== null)
+    : 0;
+  const from = Math.max(0, firstDefined);
   const rows = Array.from(
-    { length: Math.min(FIRST_ROWS, n) },
-    (_, i) => [fmt(o.time[i]), ...cols.map((c) => fmt(o[c][i]))],
+    { length: Math.max(0, Math.min(FIRST_ROWS, n - from)) },
+    (_, k) => [fmt(o.time[from + k]), ...cols.map((c) => fmt(o[c][from + k]))],
   );
   const href = `/v1/runs/${runId}/outputs/${seg(name)}?format=csv`;
   return h(
@@ -952,6 +958,14 @@ function outputTable(runId, name, o) {
     h("h3", null, `${pretty(name)} `, h("span", { class: "muted" }, `(${o.quantity}, ${o.units})`)),
     o.description ? h("p", { class: "muted" }, o.description) : null,
     o.interval ? h("p", { class: "muted" }, `Interval: ${o.interval}`) : null,
+    from > 0
+      ? h(
+        "p",
+        { class: "muted" },
+        `The first ${from} rows have no value; shown from row ${from + 1}.`,
+      )
+      : null,
+    firstDefined < 0 && n ? h("p", { class: "muted" }, "No row of this output has a value.") : null,
     table(["Decimal year", ...cols], rows, { numeric: [true, true, true, true, true] }),
     h("p", null, h("a", { href, download: `${name}.csv` }, `All ${n} rows as CSV`)),
   );
@@ -1013,9 +1027,21 @@ async function runView(gen, id) {
     }
   }
 
+  // Name the input series (one listing request; ids stand in for any not on it).
+  const listed = (run.input_series ?? []).length
+    ? await call({ method: "GET", path: "/v1/series", query: { limit: 1000 } })
+    : null;
+  /** @type {Map<string, string>} */
+  const names = new Map(
+    (listed?.ok ? listed.data.items : []).map((/** @type {any} */ x) => [x.id, x.name]),
+  );
   const inputs = [
     ...(run.input_series ?? []).map((/** @type {string} */ s) =>
-      h("a", { href: `#/series/${seg(s)}` }, h("code", null, s))
+      h(
+        "a",
+        { href: `#/series/${seg(s)}`, title: s },
+        names.get(s) ?? h("code", null, s),
+      )
     ),
     ...(run.input_runs ?? []).map((/** @type {string} */ s) =>
       h("a", { href: `#/runs/${s}` }, h("code", null, `run ${s}`))

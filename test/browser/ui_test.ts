@@ -369,15 +369,19 @@ Deno.test({
       await t.step("phone width and dark theme: no sideways scrolling, readable", async () => {
         await page.setViewportSize({ width: 390, height: 844 });
         await page.emulateMedia({ colorScheme: "dark" });
-        for (
-          const [hash, name] of [["#/series", "phone-dark-series"], ["#/runs", "phone-dark-runs"]]
-        ) {
+        const views = [
+          ["#/series", "phone-dark-series", "main table"],
+          ["#/upload", "phone-dark-upload", "#upload-form"],
+          ["#/analyse", "phone-dark-analyse", "#analysis-form"],
+          ["#/runs", "phone-dark-runs", "main table"],
+        ];
+        for (const [hash, name, ready] of views) {
           await page.goto(`${svc.url}/${hash}`);
-          await page.waitForSelector("main table");
+          await page.waitForSelector(ready);
           const overflow = await page.evaluate(() =>
             document.documentElement.scrollWidth - document.documentElement.clientWidth
           );
-          assert.ok(overflow <= 1, `page scrolls sideways by ${overflow}px at 390px`);
+          assert.ok(overflow <= 1, `${hash} scrolls sideways by ${overflow}px at 390px`);
           const bg = await page.evaluate(() =>
             getComputedStyle(document.documentElement).backgroundColor
           );
@@ -386,7 +390,7 @@ Deno.test({
         }
         await page.click("main table tbody tr a");
         await page.locator("figure.chart svg").waitFor();
-        await shot(page, "phone-dark-series-view");
+        await shot(page, "phone-dark-run-view");
       });
 
       await t.step("every control is reachable from the keyboard", async () => {
