@@ -7,6 +7,7 @@ import {
   toRegularGrid,
   weightedMovingAverage,
 } from "../../../core/cycles/mod.ts";
+import { loadDataset } from "./load_dataset.ts";
 
 const nanToNull = (a: Float64Array) => [...a].map((v) => (Number.isNaN(v) ? null : v));
 
@@ -126,4 +127,32 @@ Deno.test("toRegularGrid() fills missing months with NaN and rejects duplicates"
   assert.ok(Math.abs(g.time[2] - (2001 + (59 + 15.5) / 365)) < 1e-12);
   assert.throws(() => toRegularGrid([2001.01, 2001.02], [1, 2], "monthly"), /same month/);
   assert.throws(() => toRegularGrid([], [], "monthly"), RangeError);
+});
+
+Deno.test("smoothed13Month() and runningMean() match R's stats::filter on R's sunspot series", async (t) => {
+  // Reference: fixtures/reference/smoothing_r.R (R 4.2.2, stats::filter with sides = 2),
+  // which records the exact calls; NA there is null here
+  const ref = JSON.parse(
+    Deno.readTextFileSync(new URL("../../../fixtures/reference/smoothing_r.json", import.meta.url)),
+  );
+  const same = (a: Float64Array, b: (number | null)[]) => {
+    assert.equal(a.length, b.length);
+    for (let i = 0; i < a.length; i++) {
+      if (b[i] === null) assert.ok(Number.isNaN(a[i]), `index ${i}`);
+      else assert.ok(Math.abs(a[i] - b[i]!) < 1e-9, `index ${i}: ${a[i]} vs ${b[i]}`);
+    }
+  };
+  await t.step("13-month smoothing of sunspot.month", () => {
+    same(
+      smoothed13Month(Float64Array.from(loadDataset("sunspot_month").value)),
+      ref.sunspot_month_13_month.values,
+    );
+  });
+  const year = Float64Array.from(loadDataset("sunspot_year").value);
+  await t.step("5-year running mean of sunspot.year", () => {
+    same(runningMean(year, 5), ref.sunspot_year_running_mean_5.values);
+  });
+  await t.step("4-year (even) running mean of sunspot.year", () => {
+    same(runningMean(year, 4), ref.sunspot_year_running_mean_4.values);
+  });
 });
