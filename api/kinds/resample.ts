@@ -82,6 +82,12 @@ export const resampleKind: RunKind<typeof ResampleRequest> = {
         `${gaps} of ${m.time.length} ${params.to} periods failed the coverage rule and are gaps (null)`,
       );
     }
+    if (s.resolution === "irregular") {
+      warnings.push(
+        "the input is irregular: each period's mean weights its points equally, however they " +
+          `are spaced; a period needs at least ${m.required} point(s)`,
+      );
+    }
     if (s.resolution === params.to) {
       warnings.push(`the series is already ${params.to}: each period is its own value`);
     }
