@@ -48,7 +48,7 @@ export function canonicalJson(value: unknown): string {
  * ```ts
  * import { sha256Hex } from "./canonical.ts";
  * import assert from "node:assert/strict";
- * // FIPS 180-4 / NIST example "abc"
+ * // FIPS 180-4 example message "abc"
  * assert.equal(
  *   sha256Hex("abc"),
  *   "ba7816bf8f01cfea414140de5dae2223b00361a396177a9cb410ff61f20015ad",

@@ -30,7 +30,7 @@ export interface Anomalies {
 /**
  * Anomalies relative to a base period: x − mean of x over the base period, or, with the
  * monthly climatology, x − mean of the same calendar month over the base period (common
- * practice in climatology, e.g. WMO base periods such as 1961–1990; "anomaly" in the CF
+ * practice in climatology, e.g. 30-year base periods such as 1961–1990; "anomaly" in the CF
  * conventions sense of a difference from a stated base period).
  *
  * Points with base ≤ time < end belong to the base period. The base mean is a plain mean of

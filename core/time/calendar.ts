@@ -1,7 +1,7 @@
 /**
  * The proleptic Gregorian calendar: leap years, month lengths and day counts.
  *
- * The Gregorian rule (Inter gravissimas, 1582) extended backwards to every year ("proleptic",
+ * The Gregorian rule of 1582 extended backwards to every year ("proleptic",
  * ISO 8601 §3.2.1): a year is a leap year when it is divisible by 4, except century years,
  * which are leap years only when divisible by 400. Year 0 exists (astronomical numbering,
  * ISO 8601 §4.1.2.4) and is a leap year.

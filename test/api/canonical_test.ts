@@ -22,7 +22,7 @@ Deno.test("canonicalJson() follows RFC 8785", async (t) => {
 });
 
 Deno.test("sha256Hex() matches the FIPS 180-4 examples", () => {
-  // NIST FIPS 180-4 example messages (CSRC "SHA256.pdf")
+  // FIPS 180-4 example messages (the standard's published SHA-256 examples)
   assert.equal(sha256Hex(""), "e3b0c44298fc1c149afbf4c8996fb92427ae41e4649b934ca495991b7852b855");
   assert.equal(
     sha256Hex("abcdbcdecdefdefgefghfghighijhijkijkljklmklmnlmnomnopnopq"),
