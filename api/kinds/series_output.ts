@@ -1,5 +1,5 @@
 /**
- * Helpers shared by the series-operation run kinds (resampling, anomalies, alignment):
+ * Functions shared by the series-operation run kinds (resampling, anomalies, alignment):
  * typed arrays with NaN gaps → JSON arrays with null, and core RangeErrors → InputProblems.
  *
  * @module
