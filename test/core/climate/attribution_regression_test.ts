@@ -46,6 +46,23 @@ Deno.test("attributionRegression() AR(1) lag profile matches statsmodels GLS (Pr
   });
 });
 
+Deno.test("attributionRegression() AR(1) fit is close to statsmodels GLSAR (Cochrane–Orcutt)", () => {
+  // statsmodels 0.13.5 GLSAR(y, X, rho=1).iterative_fit(maxiter=100) drops the first
+  // observation and uses Yule–Walker ρ, so it differs slightly from Prais–Winsten: the slopes
+  // agree to a quarter of a standard error and ρ to 0.01
+  const { y, s, t } = nhtempCase();
+  const r = attributionRegression(y, [
+    { name: "sunspots", values: s, minLag: 0, maxLag: 6 },
+    { name: "trend", values: t, minLag: 0, maxLag: 0 },
+  ], { errors: "ar1" });
+  const g = ref.glsar_at_best_lag;
+  assert.ok(Math.abs(r.residualRho - g.rho) < 0.01);
+  for (const j of [1, 2]) {
+    const c = r.coefficients[j];
+    assert.ok(Math.abs(c.estimate - g.params[j]) < 0.25 * c.standardError, `${c.name}`);
+  }
+});
+
 Deno.test("attributionRegression() OLS + Newey–West matches statsmodels HAC", () => {
   // statsmodels 0.13.5 OLS(...).fit(cov_type="HAC", cov_kwds={"maxlags": 3, "use_correction": True})
   const { y, s, t } = nhtempCase();
