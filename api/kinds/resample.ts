@@ -118,7 +118,7 @@ export const resampleKind: RunKind<typeof ResampleRequest> = {
           value,
           ...(m.uncertainty ? { uncertainty: withNulls(m.uncertainty) } : {}),
           description:
-            `${params.to} means of series ${s.id}: ${m.rule}. Gaps where coverage failed.`,
+            `Resampled from series ${s.id}: ${m.rule}. Gaps (null) where coverage failed.`,
         },
       },
       warnings,

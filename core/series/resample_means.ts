@@ -143,10 +143,10 @@ export function resampleMeans(
     ? minDays
     : minMonths;
   const unit = from === "irregular" || from === to
-    ? "points"
+    ? (required === 1 ? "point" : "points")
     : from === "daily"
-    ? "daily values"
-    : "monthly values";
+    ? (required === 1 ? "daily value" : "daily values")
+    : (required === 1 ? "monthly value" : "monthly values");
   const out = bin(time, value, unc, to, required);
   out.rule = `${to} means of ${from} data; a period needs at least ${required} ${unit}`;
   return out;
