@@ -242,14 +242,27 @@ Deno.test("irradiance endpoints: darkening → model → reconstruction → forc
       assert.equal(saved.status, 201);
     });
 
+    await t.step("model and reconstruction runs replay byte for byte", async () => {
+      for (const id of [modelId, recId]) {
+        const res = await svc.post(`/v1/runs/${id}/replay`, {});
+        const body = await res.json();
+        assert.equal(res.status, 200, JSON.stringify(body));
+        assert.equal(body.identical, true);
+      }
+    });
+
     await t.step(
-      "a secular background scenario is labelled and changes the grand-minimum level",
+      "a secular background scenario is labelled and rises by deltaTsi between its periods",
       async () => {
         const run = await created(
           await svc.post("/v1/irradiance/reconstructions", {
             model: modelId,
+            proxies: [
+              { term: "mg", series: ids["facular_index_daily.csv"] },
+              { term: "psi", series: psiId },
+            ],
             sunspotNumber: ids["sunspot_number_monthly.csv"],
-            period: { start: "1700", end: "1900" },
+            period: { start: "1700", end: "2024" },
             resolution: "annual",
             background: {
               kind: "sunspot_running_mean",
@@ -260,6 +273,20 @@ Deno.test("irradiance endpoints: darkening → model → reconstruction → forc
           }),
         );
         assert.equal(run.result.scenario.kind, "sunspot_running_mean");
+        // by construction the background rises by deltaTsi from the reference to the later period
+        const base = (await (await svc.get(`/v1/runs/${recId}`)).json()).result.outputs.tsi;
+        const o = run.result.outputs.tsi;
+        const meanDiff = (a: number, b: number) => {
+          let s = 0, c = 0;
+          o.time.forEach((t: number, i: number) => {
+            if (t >= a && t < b && o.value[i] !== null) (s += o.value[i] - base.value[i]), c++;
+          });
+          return s / c;
+        };
+        // ISO periods name whole years: "1700" to "1720" is [1700, 1721)
+        const rise = meanDiff(1950, 2001) - meanDiff(1700, 1721);
+        // (annual cell means of B against period means of the monthly running mean: 1 % slack)
+        assert.ok(Math.abs(rise - 1.0) < 0.01, `background rise ${rise}`);
         assert.match(run.result.scenario.label, /SCENARIO/);
         assert.ok(run.result.cautions.some((c: string) => /SCENARIO/.test(c)));
       },
