@@ -8,7 +8,7 @@ import { z } from "@hono/zod-openapi";
 import { InputProblem, type RunKind } from "../runs/kind.ts";
 import { refId, SeriesRef, TimeValue } from "../schemas/series_ref.ts";
 import { anomaliesFromBasePeriod } from "../../core/series/mod.ts";
-import { formatIsoTime, parseIsoTime } from "../../core/time/mod.ts";
+import { formatIsoTime, parseIsoTime, periodBounds } from "../../core/time/mod.ts";
 import { asInputProblem, definedCount } from "./series_output.ts";
 
 const BaseBound = TimeValue.openapi({
@@ -84,10 +84,17 @@ export const anomalyKind: RunKind<typeof AnomalyRequest> = {
       () => anomaliesFromBasePeriod(s, { start, end }, { climatology: mode }),
     );
     const warnings: string[] = [];
-    if (start < s.start || end > s.end) {
+    // the periods the series' first and last points stand for (a monthly series covers its
+    // first month from the month's start, not from its mid-month time stamp)
+    const covStart = periodBounds(s.start, s.resolution).start;
+    const covEnd = periodBounds(s.end, s.resolution).end;
+    if (start < covStart - 1e-9 || end > covEnd + 1e-9) {
       warnings.push(
-        `the base period ${start}..${end} reaches beyond the series (${s.start}..${s.end}); ` +
-          "the base means rest on the part that has data",
+        `the base period ${formatIsoTime(start, "daily")} to ${
+          formatIsoTime(end - HALF_DAY, "daily")
+        } reaches beyond the series (${formatIsoTime(s.start, s.resolution)} to ${
+          formatIsoTime(s.end, s.resolution)
+        }); the base means rest on the part that has data`,
       );
     }
     if (mode === "monthly") {

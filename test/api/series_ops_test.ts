@@ -164,3 +164,20 @@ Deno.test("POST /v1/resampling: a span with too many output periods is refused b
   assert.match(body.errors[0].message, /more than the 500000/);
   await svc.close();
 });
+
+Deno.test("POST /v1/anomalies: warns only when the base period really reaches beyond the data", async () => {
+  const svc = await makeTestApp();
+  const s = monthlySeries("m", "temperature_anomaly", "K", 1990, 36, (i) => i % 12);
+  const inside =
+    await (await svc.post("/v1/anomalies", { series: s, base: { start: "1990", end: "1991" } }))
+      .json();
+  assert.deepEqual(inside.result.warnings, []);
+  const beyond =
+    await (await svc.post("/v1/anomalies", { series: s, base: { start: "1985", end: "1991" } }))
+      .json();
+  assert.match(
+    beyond.result.warnings[0],
+    /base period 1985-01-01 to 1991-12-31 reaches beyond the series \(1990-01 to 1992-12\)/,
+  );
+  await svc.close();
+});
