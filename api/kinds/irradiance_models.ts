@@ -19,11 +19,13 @@ import {
   fitSunspotMapping,
   type ProxyTerm,
   type SunspotMappingChoice,
+  tsiCycleAmplitude,
   valuesAtKeys,
 } from "../../core/irradiance/mod.ts";
 import { tQuantile } from "../../core/stats/distributions.ts";
 import {
   cellDays,
+  cycleAmplitudeWarning,
   IRRADIANCE_CAUTIONS,
   jsonSafe,
   nullable,
@@ -342,6 +344,8 @@ export const irradianceModels: RunKind<typeof Request> = {
     const fittedTime = [...keys].map((k) => cellBounds(k, res).middle);
     const fitted = new Float64Array(y.length);
     for (let i = 0; i < y.length; i++) fitted[i] = y[i] - fit.residuals[i];
+    const amplitude = tsiCycleAmplitude(fittedTime, fitted);
+    warnings.push(...cycleAmplitudeWarning(amplitude.median));
     const predSd = fit.residualSd;
     return {
       model: jsonSafe(model),
@@ -366,6 +370,7 @@ export const irradianceModels: RunKind<typeof Request> = {
           : null,
       }),
       mappings: jsonSafe(mappings),
+      cycleAmplitude: jsonSafe(amplitude),
       outputs: {
         fitted: {
           name: "Fitted TSI",

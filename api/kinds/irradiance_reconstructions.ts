@@ -29,6 +29,7 @@ import {
   IRRADIANCE_CAUTIONS,
   parsePeriod,
   PeriodInput,
+  quietSunWarning,
   requireSunspotVersion,
 } from "./irradiance_common.ts";
 
@@ -350,7 +351,7 @@ export const irradianceReconstructions: RunKind<typeof Request> = {
       }
     }
     const amp = tsiCycleAmplitude(time, rec.value);
-    warnings.push(...cycleAmplitudeWarning(amp.median));
+    warnings.push(...cycleAmplitudeWarning(amp.median), ...quietSunWarning(model.quietSun.value));
     const zNote = params.level === 0.95 ? "95 %" : `${(params.level * 100).toFixed(1)} %`;
     const sdOut = micro(rec.sd);
     const valOut = micro(rec.value);
