@@ -277,7 +277,13 @@ export const irradianceReconstructions: RunKind<typeof Request> = {
         });
       } catch (e) {
         if (e instanceof InputProblem) throw e;
-        throw new InputProblem("/background", (e as Error).message);
+        const msg = (e as Error).message;
+        const ptr = /reference minimum/.test(msg)
+          ? "/background/referenceMinimum"
+          : /later period/.test(msg)
+          ? "/background/laterPeriod"
+          : "/background";
+        throw new InputProblem(ptr, msg);
       }
       const bAt = valuesAtKeys(cellMeans(sunspotSeries.time, b.value, res), keys);
       for (let i = 0; i < n; i++) {

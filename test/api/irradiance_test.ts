@@ -292,6 +292,25 @@ Deno.test("irradiance endpoints: darkening → model → reconstruction → forc
       },
     );
 
+    await t.step("422: a background reference period with no sunspot data", async () => {
+      const p = await assertProblem(
+        await svc.post("/v1/irradiance/reconstructions", {
+          model: modelId,
+          sunspotNumber: ids["sunspot_number_monthly.csv"],
+          period: { start: "1700", end: "1800" },
+          resolution: "annual",
+          background: {
+            kind: "sunspot_running_mean",
+            referenceMinimum: { start: "1600", end: "1650" },
+            laterPeriod: { start: "1950", end: "2000" },
+            deltaTsi: 1.0,
+          },
+        }),
+        422,
+      );
+      assert.equal(p.errors[0].pointer, "/background/referenceMinimum");
+    });
+
     await t.step("forcing from the reconstruction relative to a reference period", async () => {
       const run = await created(
         await svc.post("/v1/forcing", {
