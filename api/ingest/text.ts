@@ -149,7 +149,11 @@ export function ingestText(
   }
   if (text.charCodeAt(0) === 0xfeff) text = text.slice(1);
 
-  // 2. Lines, comments, file metadata.
+  // 2. Lines, comments, file metadata. A body with too many data rows is refused by a cheap
+  // count before any line is split.
+  if (countDataLines(text, MAX_POINTS + 1) > MAX_POINTS + 1) {
+    return fail({ pointer: "", in: "body", message: `too many rows: more than ${MAX_POINTS}` });
+  }
   const raw = text.split(/\r\n|\n|\r/);
   const lines: Line[] = [];
   const fileMeta: Record<string, string> = {};
@@ -664,6 +668,24 @@ function notText(why: string, row: number | undefined): IngestResult {
       message: `the body is not UTF-8 text (${why}); upload a delimited text file or JSON`,
     }],
   };
+}
+
+/** Data lines (neither blank nor `#` comments) in `text`, counting no further than limit + 1. */
+function countDataLines(text: string, limit: number): number {
+  let count = 0, atStart = true, blank = true;
+  for (let i = 0; i < text.length; i++) {
+    const c = text.charCodeAt(i);
+    if (c === 10 || c === 13) {
+      if (!blank && ++count > limit) return count;
+      atStart = true;
+      blank = true;
+    } else if (atStart) {
+      if (c === 32 || c === 9) continue;
+      atStart = false;
+      blank = c === 35; // "#": a comment counts as blank
+    }
+  }
+  return blank ? count : count + 1;
 }
 
 function countNewlines(bytes: Uint8Array, end: number): number {
