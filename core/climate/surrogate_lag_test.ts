@@ -17,8 +17,8 @@
  * Fewest transforms: a phase-randomised surrogate is born in the frequency domain. With S its
  * spectrum and Y the climate spectrum, the circular cross-correlation c(k) = Σ_t s_t y_{t+k}
  * is IDFT(conj(S)·Y), and both s and c are real, so ONE complex inverse transform of
- * S + i·conj(S)·Y (length N, no zero padding) gives s in its real part and c in its imaginary
- * part. The linear (non-circular) overlap sums are c(k) minus the |k| wrapped pairs, O(|k|)
+ * S + i·conj(S)·Y (length N, no zero padding; by Bluestein's algorithm when N is not a power
+ * of two, see inverse_dft_plan.ts) gives s in its real part and c in its imaginary part. The linear (non-circular) overlap sums are c(k) minus the |k| wrapped pairs, O(|k|)
  * each, and overlap means and variances come from prefix sums of s. A polynomial detrend of
  * the surrogate is removed exactly by correcting with precomputed per-lag sums of the basis
  * times y. The AR(1) and high-pass variants are built in the time domain and need one
@@ -26,7 +26,6 @@
  *
  * @module
  */
-import FFT from "fft.js";
 import { randomStream } from "../random/random_stream.ts";
 import { inverseRealDft, realDft } from "../spectral/fft.ts";
 import type { CorrelationNormalisation, LagWindow } from "./lagged_correlation.ts";
@@ -35,6 +34,7 @@ import type { PreprocessOptions } from "./preprocess_series.ts";
 import { gaussianHighPass, polynomialBasis, removeProjection } from "./preprocess_series.ts";
 import { lag1Autocorrelation } from "./lag1_autocorrelation.ts";
 import { ar1Surrogate, dftAmplitudes, randomPhasors } from "./surrogates.ts";
+import { type InverseDftPlan, inverseDftPlan } from "./inverse_dft_plan.ts";
 
 /** Surrogate family. */
 export type SurrogateMethod = "phase" | "ar1";
@@ -218,12 +218,13 @@ export function planSurrogateLagTest(
   };
 }
 
-const fftCache = new Map<number, FFT>();
-function fftPlan(n: number): FFT {
-  let f = fftCache.get(n);
+const planCache = new Map<number, InverseDftPlan>();
+function idftPlan(n: number): InverseDftPlan {
+  let f = planCache.get(n);
   if (!f) {
-    f = new FFT(n);
-    fftCache.set(n, f);
+    if (planCache.size > 16) planCache.clear();
+    f = inverseDftPlan(n);
+    planCache.set(n, f);
   }
   return f;
 }
@@ -269,8 +270,7 @@ export function surrogateLagChunk(input: SurrogateChunkInput): SurrogateChunkOut
   const even = n % 2 === 0;
   const inner = even ? h - 2 : h - 1;
   const pr = new Float64Array(inner), pi = new Float64Array(inner);
-  const pow2 = n >= 2 && (n & (n - 1)) === 0;
-  const fft = pow2 ? fftPlan(n) : null;
+  const idft = idftPlan(n);
   const z = new Float64Array(2 * n), out = new Float64Array(2 * n);
   const s = new Float64Array(n), c = new Float64Array(n);
   // s before projection: the wrapped pairs of the circular sum c are pairs of this series
@@ -285,7 +285,7 @@ export function surrogateLagChunk(input: SurrogateChunkInput): SurrogateChunkOut
     if (plan.method === "phase") {
       randomPhasors(stream, inner, pr, pi);
       const nyq = even ? Math.SQRT2 * amp[h - 1] * Math.cos(2 * Math.PI * stream.uniform()) : 0;
-      if (fft && plan.degree >= 0) {
+      if (plan.degree >= 0) {
         // one complex inverse transform of Z = S + i·conj(S)·Y gives s + i·c
         z[0] = 0;
         z[1] = 0;
@@ -305,7 +305,7 @@ export function surrogateLagChunk(input: SurrogateChunkInput): SurrogateChunkOut
           z[n] = nyq;
           z[n + 1] = nyq * yRe[n / 2];
         }
-        fft.inverseTransform(out, z);
+        idft.inverse(z, out);
         for (let t = 0; t < n; t++) {
           s[t] = out[2 * t];
           c[t] = out[2 * t + 1];

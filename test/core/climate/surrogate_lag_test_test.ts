@@ -16,6 +16,8 @@ import {
   surrogateLagChunk,
 } from "../../../core/climate/surrogate_lag_test.ts";
 import { lag1Autocorrelation } from "../../../core/climate/lag1_autocorrelation.ts";
+import { inverseDftPlan } from "../../../core/climate/inverse_dft_plan.ts";
+import { inverseRealDft, realDft } from "../../../core/spectral/fft.ts";
 
 function ar1(n: number, phi: number, seed: number, index: number): Float64Array {
   return ar1Surrogate(n, phi, 1, randomStream(seed, index));
@@ -114,4 +116,27 @@ Deno.test("combineSurrogateChunks() gives the same answer for any split", () => 
   assert.equal(split.maxAbs95, whole.maxAbs95);
   assert.ok(whole.pFamilyWise >= Math.min(...whole.pPerLag), "family-wise pays for the search");
   assert.throws(() => combineSurrogateChunks(plan, []), RangeError);
+});
+
+Deno.test("inverseDftPlan() equals the inverse real DFT of core/spectral for any length", () => {
+  for (const n of [1, 2, 3, 7, 64, 100, 1752]) {
+    const x = ar1(n, 0.5, 9, n);
+    const { re, im } = realDft(x);
+    const z = new Float64Array(2 * n), out = new Float64Array(2 * n);
+    for (let f = 0; f < re.length; f++) {
+      z[2 * f] = re[f];
+      z[2 * f + 1] = im[f];
+      if (f > 0) {
+        z[2 * (n - f)] = re[f];
+        z[2 * (n - f) + 1] = -im[f];
+      }
+    }
+    inverseDftPlan(n).inverse(z, out);
+    const back = inverseRealDft({ re, im }, n);
+    for (let t = 0; t < n; t++) {
+      assert.ok(Math.abs(out[2 * t] - x[t]) < 1e-11 && Math.abs(out[2 * t] - back[t]) < 1e-11);
+      assert.ok(Math.abs(out[2 * t + 1]) < 1e-11, "real series back");
+    }
+  }
+  assert.throws(() => inverseDftPlan(0), RangeError);
 });
