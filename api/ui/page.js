@@ -1686,6 +1686,7 @@ function markFields(fields, problem) {
       const rest = ptr.slice(f.pointer.length);
       f.error.textContent = (rest ? `${rest.slice(1)}: ` : "") + e.message;
       f.input.setAttribute("aria-invalid", "true");
+      f.wrap.closest("details")?.setAttribute("open", "");
     } else unmatched.push(e);
   }
   return unmatched;
@@ -1896,6 +1897,8 @@ async function analyseView(gen, query) {
 
 /** Query parameters of a text upload that are series metadata (sent in the body for JSON). */
 const META = ["name", "quantity", "units", "version", "description", "source"];
+/** Text-upload parameters shown first; the others sit under "More reading rules". */
+const COLUMN_PARAMS = ["time", "value", "uncertainty"];
 
 /**
  * A few lines of the uploaded text around a problem row, the row highlighted and the cell
@@ -2066,7 +2069,21 @@ async function uploadView(gen) {
     "fieldset",
     { id: "text-options" },
     h("legend", null, "Columns and reading rules (delimited text)"),
-    h("div", { class: "grid" }, textFields.map((f) => f.wrap)),
+    h(
+      "div",
+      { class: "grid" },
+      textFields.filter((f) => COLUMN_PARAMS.includes(f.name)).map((f) => f.wrap),
+    ),
+    h(
+      "details",
+      null,
+      h("summary", null, "More reading rules (date parts, delimiter, missing values, duplicates)"),
+      h(
+        "div",
+        { class: "grid" },
+        textFields.filter((f) => !COLUMN_PARAMS.includes(f.name)).map((f) => f.wrap),
+      ),
+    ),
   );
   const jsonBox = h(
     "fieldset",
@@ -2217,6 +2234,7 @@ async function uploadView(gen) {
           if (f && err.row === undefined) {
             f.error.textContent = err.message;
             f.input.setAttribute("aria-invalid", "true");
+            f.wrap.closest("details")?.setAttribute("open", "");
           }
         }
         const placed = (p.errors ?? []).find((/** @type {any} */ e) => typeof e.row === "number");

@@ -42,6 +42,13 @@ async function launch(): Promise<{ ctx: BrowserContext; dir: string }> {
   return { ctx, dir };
 }
 
+/** Open the form's "More options" (idempotent, unlike a click on its summary). */
+async function openMoreOptions(page: Page) {
+  await page.evaluate(() => {
+    for (const d of document.querySelectorAll("#analysis-form details")) d.setAttribute("open", "");
+  });
+}
+
 async function shot(page: Page, name: string) {
   await Deno.mkdir(SHOTS, { recursive: true });
   await page.screenshot({ path: new URL(`${name}.png`, SHOTS).pathname, fullPage: true });
@@ -223,6 +230,21 @@ Deno.test({
       const solar = await demoId(/monthly sunspot number/);
       const climate = await demoId(/monthly temperature anomaly/);
 
+      await t.step("a bad analysis parameter is shown on its own field", async () => {
+        await page.goto(`${svc.url}/#/analyse?kind=/v1/lag-correlations`);
+        await page.waitForSelector("#analysis-form");
+        await openMoreOptions(page);
+        await page.fill("#f_surrogates", "5");
+        await page.click("#analysis-form button[type=submit]");
+        await page.waitForSelector("#f_surrogates[aria-invalid=true]");
+        assert.match(
+          await page.locator("[data-pointer='/surrogates'] .field-error").innerText(),
+          /100/,
+        );
+        assert.match(await page.locator("#submit-status").innerText(), /not started/);
+        await shot(page, "analyse-problem");
+      });
+
       await t.step(
         "a lag-correlation run from the form reaches succeeded while its progress bar moves",
         async () => {
@@ -240,17 +262,17 @@ Deno.test({
             return (performance.now() - t0) / 1000;
           };
           await probe(100);
-          const small = await probe(200);
-          const large = await probe(1200);
+          const small = await probe(100);
+          const large = await probe(600);
           fixedSeconds = small;
-          perSurrogate = Math.max(1e-6, (large - small) / 1000);
-          const surrogates = surrogatesFor(4);
+          perSurrogate = Math.max(1e-6, (large - small) / 500);
+          const surrogates = surrogatesFor(3);
 
           await page.goto(`${svc.url}/#/analyse?kind=/v1/lag-correlations`);
           await page.waitForSelector("#analysis-form");
           await page.selectOption("#f_solar", solar);
           await page.selectOption("#f_climate", climate);
-          await page.click("#analysis-form details > summary");
+          await openMoreOptions(page);
           await page.fill("#f_surrogates", String(surrogates));
           assert.match(
             await page.locator("#snippet-curl").innerText(),
@@ -269,7 +291,7 @@ Deno.test({
           await page.click("#analysis-form button[type=submit]");
           await page.waitForSelector("#run-progress");
           await shot(page, "run-progress");
-          await page.waitForSelector("main [data-status=succeeded]", { timeout: 45_000 });
+          await page.waitForSelector("main [data-status=succeeded]", { timeout: 60_000 });
           const seen = await page.evaluate(() =>
             (globalThis as unknown as { seen: number[] }).seen
           );
@@ -291,7 +313,7 @@ Deno.test({
       await t.step("replay of the run shows verified", async () => {
         await page.click("#replay");
         const verdict = page.locator("#replay-result [data-verified]");
-        await verdict.waitFor({ timeout: 45_000 });
+        await verdict.waitFor({ timeout: 60_000 });
         assert.equal(await verdict.getAttribute("data-verified"), "true");
         assert.match(await page.locator("#replay-result").innerText(), /Verified/);
         await shot(page, "run-replayed");
@@ -301,7 +323,7 @@ Deno.test({
         const res = await fetch(`${svc.url}/v1/lag-correlations`, {
           method: "POST",
           headers: { "content-type": "application/json", prefer: "respond-async" },
-          body: JSON.stringify({ solar, climate, surrogates: surrogatesFor(3) }),
+          body: JSON.stringify({ solar, climate, surrogates: surrogatesFor(2) }),
         });
         assert.equal(res.status, 202);
         const run = await res.json();
@@ -320,10 +342,10 @@ Deno.test({
           await page.fill("#f_terms_0_name", "mg_ii");
           await page.selectOption("#f_terms_0_series", await demoId(/daily facular index/));
           await page.selectOption("#f_terms_0_role", "facular");
-          await page.click("#analysis-form details > summary");
+          await openMoreOptions(page);
           await page.selectOption("#f_sunspotNumber", solar);
           await page.click("#analysis-form button[type=submit]");
-          await page.waitForSelector("main [data-status=succeeded]", { timeout: 30_000 });
+          await page.waitForSelector("main [data-status=succeeded]", { timeout: 60_000 });
           const modelRun = new URL(page.url()).hash.split("/")[2];
 
           await page.goto(`${svc.url}/#/analyse?kind=/v1/irradiance/reconstructions`);
@@ -337,7 +359,7 @@ Deno.test({
           await page.fill("#f_period_start", "1900");
           await page.fill("#f_period_end", "2020");
           await page.click("#analysis-form button[type=submit]");
-          await page.waitForSelector("main [data-status=succeeded]", { timeout: 30_000 });
+          await page.waitForSelector("main [data-status=succeeded]", { timeout: 60_000 });
           await page.locator("figure.chart svg").waitFor();
           assert.match(await page.locator("main").innerText(), /satellite era/);
           assert.match(await page.locator("main").innerText(), /All \d+ rows as CSV/);
@@ -350,7 +372,7 @@ Deno.test({
         await page.waitForSelector("#analysis-form");
         await page.selectOption("#f_series", solar);
         await page.click("#analysis-form button[type=submit]");
-        await page.waitForSelector("main [data-status=succeeded]", { timeout: 30_000 });
+        await page.waitForSelector("main [data-status=succeeded]", { timeout: 60_000 });
         await page.waitForSelector("main .result-table table");
         await page.locator("figure.chart svg").waitFor();
         await shot(page, "cycles-run");
