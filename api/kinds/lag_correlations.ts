@@ -175,9 +175,11 @@ export const lagCorrelationKind: RunKind<typeof LagCorrelationRequest> = {
       const pa = best.p_analytic, pm = mc.pPerLag[bestIdx];
       const disagree = pa !== null && (pa < 0.05) !== (pm < 0.05);
       verdict = "Trust the Monte Carlo p-values: the surrogates keep the solar series' whole " +
-        "autocorrelation, whereas N_eff uses only lag-1 autocorrelations and understates the " +
-        "spread of r for quasi-periodic series such as sunspot numbers. For the best lag, use " +
-        "the family-wise p-value, which pays for searching the lag window." +
+        "autocorrelation, whereas N_eff uses only lag-1 autocorrelations, which understates the " +
+        "spread of r for quasi-periodic series such as sunspot numbers (against a climate " +
+        "series with a cycle-like component the analytic test rejects a true null too often) " +
+        "and can overstate it in other cases. For the best lag, use the family-wise p-value, " +
+        "which pays for searching the lag window." +
         (disagree
           ? ` Here they disagree at the best lag (analytic ${pa!.toPrecision(3)}, Monte Carlo ${
             pm.toPrecision(3)
