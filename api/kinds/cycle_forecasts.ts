@@ -261,6 +261,21 @@ export const cycleForecastsKind: RunKind<typeof CycleForecastsRequest> = {
           "detectable yet (a minimum needs the following rise; see prominence)",
       );
     }
+    const sameSummary = summarizeHindcast(same);
+    if (sameSummary && sameSummary.cases >= 10) {
+      const low = [
+        ["date", sameSummary.time.coverage],
+        ["size", sameSummary.value.coverage],
+      ].filter(([, c]) => (c as number) < params.level - 0.2);
+      if (low.length) {
+        warnings.push(
+          `at this phase the bootstrap band held the observed maximum's ${
+            low.map(([w, c]) => `${w} in ${Math.round((c as number) * 100)} %`).join(" and its ")
+          } of ${sameSummary.cases} past cycles (nominal ${Math.round(params.level * 100)} %): ` +
+            "the band is too narrow there; prefer forecast.maximum.hindcast_interval",
+        );
+      }
+    }
     if (fc.failedReplicates > 0) {
       warnings.push(
         `${fc.failedReplicates} bootstrap replicate(s) failed to fit and were left out`,

@@ -443,6 +443,8 @@ Deno.test("POST /v1/cycle-forecasts: the demo's cycle in progress, band and hind
     assert.equal(out.lower.length, out.time.length);
     assert.match(out.interval, /90 %/);
     assert.ok(r.cautions.some((c: string) => /hindcast/.test(c)));
+    // the band's date interval is far narrower than past errors: said so in a warning
+    assert.ok(r.warnings.some((w: string) => /hindcast_interval/.test(w)));
   } finally {
     await svc.close();
   }
