@@ -198,3 +198,25 @@ Deno.test("cyclePhase() runs from 0 to 1 inside complete cycles and is undefined
     } else assert.ok(p.phase[i] >= 0 && p.phase[i] < 1);
   }
 });
+
+Deno.test("cycleTable() and cyclePhase() with no extrema", () => {
+  const t = [2000, 2001, 2002];
+  assert.deepEqual(cycleTable(t, []), []);
+  const p = cyclePhase(t, []);
+  assert.ok([...p.phase].every(Number.isNaN) && [...p.cycleIndex].every((i) => i === 0));
+  assert.throws(() => cycleTable(t, [], { activity: [1, 2] }), RangeError);
+});
+
+Deno.test("cycleTable() mean activity skips missing months and counts them", () => {
+  const t = Array.from({ length: 400 }, (_, i) => 1900 + i / 12);
+  const v = t.map((x) => 60 - 55 * Math.cos(2 * Math.PI * (x - 1900) / 11));
+  const act = v.slice();
+  act[200] = NaN;
+  act[201] = NaN;
+  const rows = cycleTable(t, findCycleExtrema(t, v), { activity: act });
+  const r = rows.find((x) => !x.inProgress)!;
+  assert.equal(r.samples.expected - r.samples.present, 2);
+  // a full period of 60 − 55 cos has mean 60 (exactly, up to the sampling of 132 months)
+  assert.ok(Math.abs(r.meanActivity! - 60) < 1);
+  assert.ok(Math.abs(r.integratedActivity! - r.meanActivity! * 11) < 1e-6);
+});

@@ -290,3 +290,18 @@ Deno.test("monteCarloPeakMaxima() red-noise null is calibrated for AR(1) series,
   assert.ok(redHits / series < 0.2, `red ${redHits}`);
   assert.ok(whiteHits / series > 0.4, `white ${whiteHits}`);
 });
+
+Deno.test("spectral edge cases: flat power, one-point grids, infinities", () => {
+  assert.deepEqual(findSpectralPeaks([1, 2, 3], [0, 0, 0]), []);
+  assert.deepEqual(findSpectralPeaks([1, 2, 3], [2, 2, 2]).length, 1); // plateau: first point
+  const g = periodGrid({ minPeriod: 4, maxPeriod: 12, count: 1 });
+  assert.equal(g.length, 1);
+  assert.equal(g[0], 2 / 16);
+  assert.throws(() => fftPeriodogram([1, 2, Infinity, 4, 5], 1), /not finite/);
+  assert.throws(() => lombScargle([1, 2, Infinity], [1, 2, 3], [0.1]), /not finite/);
+  assert.throws(() => monteCarloFalseAlarm(1, []), RangeError);
+  assert.throws(
+    () => monteCarloPeakMaxima([1, 2, 3], [1, 2, 4], [0.1], { seed: 1, replicates: 0 }),
+    /replicates/,
+  );
+});
