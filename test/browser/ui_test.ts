@@ -93,6 +93,13 @@ Deno.test({
     try {
       const page = await ctx.newPage();
       page.on("pageerror", (e) => errors.push(e.message));
+      // Console errors other than the browser's note on 4xx answers the tests ask for (bad
+      // uploads, bad parameters): e.g. a Content-Security-Policy violation.
+      page.on("console", (m) => {
+        if (m.type() === "error" && !/Failed to load resource/.test(m.text())) {
+          errors.push(m.text());
+        }
+      });
       page.setDefaultTimeout(15_000);
 
       await t.step("the series list loads with every demo series", async () => {
