@@ -501,8 +501,12 @@ function show(gen, title, ...content) {
   return true;
 }
 
-let firstRender = true;
-async function render() {
+/**
+ * Draw the view named by the URL fragment.
+ * @param {boolean} [navigated] True after the user moved to another view: focus goes to the
+ *   new content (not on the first load, and not when a view redraws itself).
+ */
+async function render(navigated = false) {
   for (const f of cleanups) f();
   cleanups = [];
   const gen = ++generation;
@@ -528,8 +532,7 @@ async function render() {
   } catch (e) {
     show(gen, "Error", callout("bad", "The page hit an error", h("p", null, String(e))));
   }
-  if (!firstRender && gen === generation) view.focus({ preventScroll: false });
-  firstRender = false;
+  if (navigated && gen === generation) view.focus({ preventScroll: false });
 }
 
 /**
@@ -1329,7 +1332,8 @@ function seriesOptions(series, name) {
     const i = prefer.indexOf(s.quantity);
     return i < 0 ? prefer.length : i;
   };
-  return [...series].sort((a, b) => rank(a) - rank(b));
+  // Among equals, the longer record first.
+  return [...series].sort((a, b) => rank(a) - rank(b) || (b.n ?? 0) - (a.n ?? 0));
 }
 
 /**
@@ -2355,5 +2359,5 @@ matchMedia("(prefers-color-scheme: dark)").addEventListener(
   () => theme === "auto" && redrawCharts(),
 );
 
-addEventListener("hashchange", render);
+addEventListener("hashchange", () => render(true));
 render();
