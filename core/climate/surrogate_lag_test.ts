@@ -277,6 +277,11 @@ export function surrogateLagChunk(input: SurrogateChunkInput): SurrogateChunkOut
   const raw = new Float64Array(n);
   const p1 = new Float64Array(n + 1), p2 = new Float64Array(n + 1);
   const coef = new Float64Array(plan.basis.length);
+  // the basis padded to three vectors with zeros, so the fused loops need no branches
+  const nb = plan.basis.length;
+  const zero = new Float64Array(n);
+  const b0 = nb > 0 ? plan.basis[0] : zero, b1 = nb > 1 ? plan.basis[1] : zero;
+  const b2 = nb > 2 ? plan.basis[2] : zero;
   const tol = 1e-12;
   const amp = plan.amplitude;
   for (let idx = start; idx < end; idx++) {
@@ -306,9 +311,29 @@ export function surrogateLagChunk(input: SurrogateChunkInput): SurrogateChunkOut
           z[n + 1] = nyq * yRe[n / 2];
         }
         idft.inverse(z, out);
+        // unpack s (real part) and c (imaginary part) and take the projection coefficients of
+        // s on the polynomial basis in the same pass
+        let q0 = 0, q1 = 0, q2 = 0;
         for (let t = 0; t < n; t++) {
-          s[t] = out[2 * t];
+          const v = out[2 * t];
+          raw[t] = v;
           c[t] = out[2 * t + 1];
+          q0 += v * b0[t];
+          q1 += v * b1[t];
+          q2 += v * b2[t];
+        }
+        coef[0] = q0;
+        if (nb > 1) coef[1] = q1;
+        if (nb > 2) coef[2] = q2;
+        // the preprocessed surrogate and its prefix sums, in one pass
+        let a1 = 0, a2 = 0;
+        for (let t = 0; t < n; t++) {
+          const v = raw[t] - q0 * b0[t] - q1 * b1[t] - q2 * b2[t];
+          s[t] = v;
+          a1 += v;
+          a2 += v * v;
+          p1[t + 1] = a1;
+          p2[t + 1] = a2;
         }
         spectral = true;
       } else {
@@ -323,28 +348,25 @@ export function surrogateLagChunk(input: SurrogateChunkInput): SurrogateChunkOut
     } else {
       s.set(ar1Surrogate(n, plan.phi, plan.sigma, stream));
     }
-    // preprocessing of the surrogate, identical to the observations'
-    if (spectral) raw.set(s);
-    if (plan.degree >= 0) {
-      coef.set(removeProjection(s, plan.basis));
-    } else {
-      const hp = gaussianHighPass(s, plan.cutoffSamples);
-      let m = 0;
-      for (let t = 0; t < n; t++) m += hp[t];
-      m /= n;
-      for (let t = 0; t < n; t++) s[t] = hp[t] - m;
-    }
     if (!spectral) {
+      // preprocessing of the surrogate, identical to the observations'
+      if (plan.degree >= 0) {
+        removeProjection(s, plan.basis);
+      } else {
+        const hp = gaussianHighPass(s, plan.cutoffSamples);
+        let m = 0;
+        for (let t = 0; t < n; t++) m += hp[t];
+        m /= n;
+        for (let t = 0; t < n; t++) s[t] = hp[t] - m;
+      }
       c.set(circularCorrelation(s, plan));
       coef.fill(0);
       raw.set(s);
-    }
-    // prefix sums of the preprocessed surrogate
-    p1[0] = 0;
-    p2[0] = 0;
-    for (let t = 0; t < n; t++) {
-      p1[t + 1] = p1[t] + s[t];
-      p2[t + 1] = p2[t] + s[t] * s[t];
+      // prefix sums of the preprocessed surrogate
+      for (let t = 0; t < n; t++) {
+        p1[t + 1] = p1[t] + s[t];
+        p2[t + 1] = p2[t] + s[t] * s[t];
+      }
     }
     const sMean = p1[n] / n;
     const sSs = p2[n] - p1[n] * sMean;

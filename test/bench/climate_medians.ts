@@ -75,23 +75,54 @@ async function timed<T>(
   return { median: median(ts), last };
 }
 
-await withWorkers(2); // warm-up: compile the worker module
-const two = await timed(ROUNDS, () => withWorkers(2));
-const one = await timed(
-  Math.max(1, ROUNDS >> 1),
-  () => [surrogateLagChunk({ plan, start: 0, end: SURROGATES })],
-);
-const resTwo = combineSurrogateChunks(plan, two.last);
-const resOne = combineSurrogateChunks(plan, one.last);
-if (resTwo.pFamilyWise !== resOne.pFamilyWise) throw new Error("worker count changed the result");
+function python(variant: string): number {
+  const out = new Deno.Command("/usr/bin/python3", {
+    args: [new URL("./climate_numpy.py", import.meta.url).pathname, "1", variant],
+    env: { OPENBLAS_CORETYPE: "", OPENBLAS_L2_SIZE: "" },
+    stdout: "piped",
+  }).outputSync();
+  const ref = JSON.parse(new TextDecoder().decode(out.stdout));
+  versions = ref.versions;
+  return ref[`${variant}_seconds`];
+}
+let versions: { numpy: string; scipy: string } = { numpy: "?", scipy: "?" };
 
-const py = new Deno.Command("/usr/bin/python3", {
-  args: [new URL("./climate_numpy.py", import.meta.url).pathname, String(Math.max(3, ROUNDS >> 1))],
-  env: { OPENBLAS_CORETYPE: "", OPENBLAS_L2_SIZE: "" },
-  stdout: "piped",
-}).outputSync();
-const ref = JSON.parse(new TextDecoder().decode(py.stdout));
+// The machine is shared, so load changes from minute to minute: the rounds interleave the
+// four contenders so that each sees the same conditions, and medians are taken per contender.
+await withWorkers(2); // warm-up: compile the worker module
+const times = {
+  two: [] as number[],
+  one: [] as number[],
+  numpy: [] as number[],
+  scipy: [] as number[],
+  packed: [] as number[],
+};
+let lastTwo: SurrogateChunkOutput[] = [], lastOne: SurrogateChunkOutput[] = [];
+const load0 = Deno.loadavg()[0];
+for (let r = 0; r < ROUNDS; r++) {
+  let t0 = performance.now();
+  lastTwo = await withWorkers(2);
+  times.two.push((performance.now() - t0) / 1000);
+  times.numpy.push(python("numpy"));
+  times.scipy.push(python("scipy"));
+  times.packed.push(python("numpy_packed"));
+  t0 = performance.now();
+  lastOne = [surrogateLagChunk({ plan, start: 0, end: SURROGATES })];
+  times.one.push((performance.now() - t0) / 1000);
+}
+const load1 = Deno.loadavg()[0];
+const resTwo = combineSurrogateChunks(plan, lastTwo);
+const resOne = combineSurrogateChunks(plan, lastOne);
+if (resTwo.pFamilyWise !== resOne.pFamilyWise) throw new Error("worker count changed the result");
+const two = { median: median(times.two) }, one = { median: median(times.one) };
+const ref = {
+  versions,
+  numpy_seconds: median(times.numpy),
+  scipy_seconds: median(times.scipy),
+  numpy_packed_seconds: median(times.packed),
+};
 const fastest = Math.min(ref.numpy_seconds, ref.scipy_seconds);
+const ratios = times.two.map((t, i) => t / Math.min(times.numpy[i], times.scipy[i]));
 
 const att = attributionCase();
 const a1 = await timed(
@@ -121,9 +152,17 @@ console.log(
 );
 console.log(`  speed-up 1 → 2 workers = ${(one.median / two.median).toFixed(2)}`);
 console.log(
-  `  family-wise p: sunlag ${resTwo.pFamilyWise.toFixed(4)}, numpy ${
-    ref.p_family_wise.numpy.toFixed(4)
-  } (different random phases)`,
+  `  per-round ratios: ${ratios.map((r) => r.toFixed(3)).join(", ")} (median ${
+    median(ratios).toFixed(3)
+  })`,
+);
+console.log(
+  `  load average (1 min) at start/end: ${load0.toFixed(2)} / ${
+    load1.toFixed(2)
+  } on ${navigator.hardwareConcurrency} cores`,
+);
+console.log(
+  `  family-wise p (sunlag data): ${resTwo.pFamilyWise.toFixed(4)}, identical on 1 and 2 workers`,
 );
 console.log(`attribution, 4 regressors × lags 0–24, 1,800 months (medians, ${ROUNDS} rounds)`);
 console.log(
