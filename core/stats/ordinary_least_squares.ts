@@ -69,7 +69,20 @@ export interface RegressionFit {
   design: Float64Array[];
 }
 
-/** Throw unless every value is finite. */
+/**
+ * Throw a RangeError naming the function, the array and the index unless every value is finite.
+ *
+ * @param fn what was being done, e.g. "fit ordinary least squares"
+ * @param what the array's name
+ * @param x the values
+ * @throws {RangeError} at the first NaN or ±Infinity
+ * @example
+ * ```ts
+ * import { assertFinite } from "./ordinary_least_squares.ts";
+ * import assert from "node:assert/strict";
+ * assert.throws(() => assertFinite("fit", "y", [1, NaN]), /y has a non-finite value at index 1/);
+ * ```
+ */
 export function assertFinite(fn: string, what: string, x: ArrayLike<number>): void {
   for (let i = 0; i < x.length; i++) {
     if (!Number.isFinite(x[i])) {
@@ -78,7 +91,26 @@ export function assertFinite(fn: string, what: string, x: ArrayLike<number>): vo
   }
 }
 
-/** Build the design (intercept first) and check shapes; shared by the regression methods. */
+/**
+ * Build the design (intercept column first when asked) and check shapes and values; shared by
+ * the regression methods.
+ *
+ * @param fn what was being done (for messages)
+ * @param columns regressors
+ * @param y response
+ * @param intercept prepend a column of ones
+ * @param names regressor names, or undefined for x1, x2, ...
+ * @returns the design columns and the coefficient names
+ * @throws {RangeError} for non-finite values, length mismatch or fewer than p + 1 points
+ * @example
+ * ```ts
+ * import { buildDesign } from "./ordinary_least_squares.ts";
+ * import assert from "node:assert/strict";
+ * const d = buildDesign("fit", [Float64Array.of(1, 2, 3)], Float64Array.of(2, 4, 7), true, ["x"]);
+ * assert.deepEqual(d.names, ["intercept", "x"]);
+ * assert.deepEqual([...d.design[0]], [1, 1, 1]);
+ * ```
+ */
 export function buildDesign(
   fn: string,
   columns: readonly Float64Array[],
@@ -115,7 +147,28 @@ export function buildDesign(
   return { design, names: nm };
 }
 
-/** Fit statistics shared by OLS and GLS-type fits (internal). */
+/**
+ * Original-scale fit statistics shared by OLS and GLS-type fits: fitted values, residuals,
+ * RSS, R² (centred with an intercept, else uncentred, as R), adjusted R², residual RMS,
+ * residual lag-1 autocorrelation and the two-sided t quantile for `level`.
+ *
+ * @param design design columns (intercept included)
+ * @param y response
+ * @param beta coefficients
+ * @param intercept whether the design has an intercept column
+ * @param level confidence level in (0, 1)
+ * @returns the statistics
+ * @throws {RangeError} for a level outside (0, 1)
+ * @example
+ * ```ts
+ * import { fitStatistics } from "./ordinary_least_squares.ts";
+ * import assert from "node:assert/strict";
+ * const one = Float64Array.of(1, 1, 1, 1), x = Float64Array.of(0, 1, 2, 3);
+ * const st = fitStatistics([one, x], Float64Array.of(1, 3, 5, 7), [1, 2], true, 0.95);
+ * assert.equal(st.rss, 0);
+ * assert.equal(st.rSquared, 1);
+ * ```
+ */
 export function fitStatistics(
   design: Float64Array[],
   y: Float64Array,
@@ -172,7 +225,25 @@ export function fitStatistics(
   };
 }
 
-/** Coefficient inference from a covariance matrix with t(df) (internal). */
+/**
+ * Standard errors, t values, two-sided p-values from t(df) and the intervals β ± tcrit·SE
+ * from a coefficient covariance matrix.
+ *
+ * @param beta coefficients
+ * @param covariance their covariance (p×p)
+ * @param df residual degrees of freedom
+ * @param tcrit the two-sided quantile for the intervals
+ * @returns per-coefficient arrays
+ * @example
+ * ```ts
+ * import { coefficientInference } from "./ordinary_least_squares.ts";
+ * import assert from "node:assert/strict";
+ * const r = coefficientInference([2], [[0.25]], 10, 2.228);
+ * assert.equal(r.standardErrors[0], 0.5);
+ * assert.equal(r.tValues[0], 4);
+ * assert.ok(Math.abs(r.lower[0] - (2 - 2.228 * 0.5)) < 1e-12);
+ * ```
+ */
 export function coefficientInference(
   beta: number[],
   covariance: number[][],
