@@ -523,3 +523,34 @@ Deno.test("POST /v1/cycles: yearly values of R's sunspot.year, unsmoothed", asyn
     await svc.close();
   }
 });
+
+Deno.test("POST /v1/cycle-forecasts: cycle 24 forecast from R's sunspot.month, checked against its published maximum", async () => {
+  // R's series ends 2013-09, before cycle 24's smoothed maximum of 2014-04 (SCIENCE.md §5, C;
+  // 116.4 on V2, about 116.4 / 1.41 = 82 on R's V1 scale by the post-1947 ratio of §4, D).
+  // The empirical interval from same-phase hindcast errors contains both; the bootstrap band,
+  // which the run warns is too narrow at this phase, does not have to.
+  const svc = await makeTestApp({ config: { asyncSeconds: 1000 } });
+  try {
+    const run = await (await svc.post("/v1/cycle-forecasts", {
+      series: rSeries("sunspot_month"),
+      anchor: { cycle: 1, date: "1755-02" },
+      replicates: 60,
+      hindcast_replicates: 30,
+    })).json();
+    assert.equal(run.status, "succeeded");
+    const r = run.result;
+    assert.equal(r.cycle_in_progress.number, 24);
+    const hi = r.forecast.maximum.hindcast_interval;
+    const published = 2014 + (3 + 0.5) / 12; // mid-April 2014
+    assert.ok(
+      hi.decimal_year_interval[0] <= published && published <= hi.decimal_year_interval[1],
+      JSON.stringify(hi),
+    );
+    const v1 = 116.4 / (1 / (0.6 * 1.18));
+    assert.ok(hi.value_interval[0] <= v1 && v1 <= hi.value_interval[1], JSON.stringify(hi));
+    // next minimum from the mean cycle length: cycle 25 began 2019-12 (SCIENCE.md §5, C)
+    assert.ok(Math.abs(r.forecast.next_minimum.decimal_year - (2019 + 11.5 / 12)) < 1);
+  } finally {
+    await svc.close();
+  }
+});
