@@ -1,5 +1,6 @@
 import assert from "node:assert/strict";
 import { heliographicMu, julianDay, solarDiscGeometry } from "../../../core/irradiance/mod.ts";
+
 Deno.test("solarDiscGeometry() matches Meeus 1998 example 29.a and the B0 annual cycle", () => {
   // Meeus 1998, Astronomical Algorithms, ex. 29.a (from memory, M): 1992 Oct 13.0
   // P = +26.27°, B0 = +5.99°, L0 = 238.63°
