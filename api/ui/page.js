@@ -970,8 +970,40 @@ function outputTable(runId, name, o) {
       : null,
     firstDefined < 0 && n ? h("p", { class: "muted" }, "No row of this output has a value.") : null,
     table(["Decimal year", ...cols], rows, { numeric: [true, true, true, true, true] }),
-    h("p", null, h("a", { href, download: `${name}.csv` }, `All ${n} rows as CSV`)),
+    h(
+      "div",
+      { class: "actions" },
+      h("a", { href, download: `${name}.csv` }, `All ${n} rows as CSV`),
+      saveButton(runId, name),
+    ),
   );
+}
+
+/**
+ * "Save as a stored series" for one output (lineage kept in `derived_from`).
+ * @param {string} runId
+ * @param {string} name
+ */
+function saveButton(runId, name) {
+  const out = h("span", { "aria-live": "polite" });
+  const button = h("button", {
+    type: "button",
+    class: "ghost",
+    onclick: async () => {
+      button.setAttribute("disabled", "");
+      const r = await call({
+        method: "POST",
+        path: `/v1/runs/${runId}/outputs/${seg(name)}/series`,
+      });
+      button.removeAttribute("disabled");
+      out.replaceChildren(
+        r.ok
+          ? h("a", { href: `#/series/${seg(r.data.id)}` }, "Open the stored series")
+          : problemBox(r.data, "Not saved"),
+      );
+    },
+  }, "Save as a stored series");
+  return h("span", null, button, " ", out);
 }
 
 /** @param {number} gen @param {string} id */
@@ -1031,9 +1063,12 @@ async function runView(gen, id) {
   }
 
   // Name the input series (one listing request; ids stand in for any not on it).
-  const listed = (run.input_series ?? []).length
+  const listed = (run.input_series ?? []).length || run.status === "succeeded"
     ? await call({ method: "GET", path: "/v1/series", query: { limit: 1000 } })
     : null;
+  const saved = (listed?.ok ? listed.data.items : []).filter((/** @type {any} */ x) =>
+    x.derived_from === run.id
+  );
   /** @type {Map<string, string>} */
   const names = new Map(
     (listed?.ok ? listed.data.items : []).map((/** @type {any} */ x) => [x.id, x.name]),
@@ -1099,12 +1134,25 @@ async function runView(gen, id) {
       ["Created", when(run.created_at)],
       ["Updated", when(run.updated_at)],
       ["Inputs", inputs.length ? inputs.flatMap((a, i) => (i ? [h("br"), a] : [a])) : "none"],
+      [
+        "Saved as series",
+        saved.length
+          ? saved.flatMap((/** @type {any} */ x, /** @type {number} */ i) => [
+            i ? h("br") : null,
+            h("a", { href: `#/series/${seg(x.id)}` }, x.name),
+          ])
+          : null,
+      ],
       ["Algorithm version", run.algorithm_version],
       ["Service version", run.service_version],
       ["Seed", run.seed === null ? "none (not random)" : String(run.seed)],
       [
         "Result digest",
-        run.result_digest ? h("code", { class: "digest" }, run.result_digest) : "not yet",
+        run.result_digest
+          ? h("code", { class: "digest" }, run.result_digest)
+          : final
+          ? "none"
+          : "not yet",
       ],
     ]),
     h(

@@ -383,6 +383,16 @@ Deno.test({
         await page.waitForSelector("main .result-table table");
         await page.locator("figure.chart svg").waitFor();
         await shot(page, "cycles-run");
+        // An output saved as a stored series keeps its lineage and the run's cautions.
+        await page.locator("main .output button", { hasText: "Save as a stored series" }).first()
+          .click();
+        await page.click("text=Open the stored series");
+        await page.waitForSelector("main h1");
+        await page.locator("figure.chart svg").waitFor();
+        const text = await page.locator("main").innerText();
+        assert.match(text, /Derived from run/);
+        assert.match(text, /Cautions of the run that produced it/);
+        await shot(page, "derived-series");
       });
 
       await t.step("the runs list shows the run, newest first, with its digest", async () => {
