@@ -217,6 +217,18 @@ export const irradianceModels: RunKind<typeof Request> = {
       if (e instanceof RangeError) throw new InputProblem("/terms", e.message);
       throw e;
     }
+    // the other estimator, for comparison (no cross-validation)
+    const otherMethod = params.method === "ols" ? "prais_winsten" : "ols";
+    let other: ReturnType<typeof calibrateProxyModel> | null = null;
+    try {
+      other = calibrateProxyModel(y, terms, {
+        method: otherMethod,
+        folds: 0,
+        psiReference: params.psiReference,
+      });
+    } catch {
+      other = null; // the comparison is optional; the requested fit succeeded
+    }
     const warnings: string[] = [...quietSunWarning(fit.quietSun.value)];
     if (!fit.converged) {
       warnings.push(
@@ -369,6 +381,21 @@ export const irradianceModels: RunKind<typeof Request> = {
           ? "b is the coefficient of −S_ref·PSI; b·S_ref is the darkening in W m-2 per unit PSI"
           : null,
       }),
+      alternative: other
+        ? jsonSafe({
+          method: otherMethod,
+          note: "The same model fitted with the other estimator, for comparison; the stored " +
+            `model uses ${params.method}.`,
+          coefficients: other.coefficients,
+          standardErrors: other.standardErrors,
+          lower: other.lower,
+          upper: other.upper,
+          residualRms: other.residualRms,
+          aic: other.aic,
+          bic: other.bic,
+          rho: other.rho,
+        })
+        : null,
       mappings: jsonSafe(mappings),
       cycleAmplitude: jsonSafe(amplitude),
       outputs: {

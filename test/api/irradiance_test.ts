@@ -167,6 +167,13 @@ Deno.test("irradiance endpoints: darkening → model → reconstruction → forc
         );
       });
       assert.ok(Math.abs(m.rho - truth.noise.ar1) < 0.05);
+      // the OLS comparison: same coefficients to a fraction of an SE, narrower (too narrow) SEs
+      const alt = run.result.alternative;
+      assert.equal(alt.method, "ols");
+      for (let j = 0; j < 3; j++) {
+        assert.ok(Math.abs(alt.coefficients[j] - m.coefficients[j]) < 2 * f.standardErrors[j]);
+        assert.ok(alt.standardErrors[j] < f.standardErrors[j]);
+      }
       assert.ok(f.crossValidation.rmse > 0 && f.crossValidation.folds === 5);
       assert.equal(run.result.mappings.sunspotVersion, "2");
       assert.ok(["linear", "saturating"].includes(run.result.mappings.terms.mg.chosen.form));
