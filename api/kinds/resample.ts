@@ -26,6 +26,12 @@ export const ResampleRequest = z.object({
       "input after the monthly stage)",
     example: 10,
   }),
+  max_missing_run_days: z.number().int().min(0).max(31).optional().openapi({
+    description: "Daily input: a month whose longest run of consecutive missing days exceeds " +
+      "this is a gap, whatever its count (with min_days_per_month = days − 10 and 4 here, the " +
+      'common "at most 10 missing, fewer than 5 in a row" practice); default no limit',
+    example: 4,
+  }),
   min_points_per_period: z.number().int().min(1).max(100_000).default(1).openapi({
     description: "Points a period needs when the input is irregular",
     example: 1,
@@ -58,6 +64,7 @@ export const resampleKind: RunKind<typeof ResampleRequest> = {
           minDaysPerMonth: params.min_days_per_month,
           minMonthsPerYear: params.min_months_per_year,
           minPointsPerPeriod: params.min_points_per_period,
+          maxMissingRunDays: params.max_missing_run_days,
         });
       } catch (e) {
         if (e instanceof RangeError && /only averages into longer periods/.test(e.message)) {
@@ -107,6 +114,7 @@ export const resampleKind: RunKind<typeof ResampleRequest> = {
         count: m.count[j],
         points: m.points[j],
         required: m.required,
+        ...(m.longestMissingRun ? { longest_missing_run: m.longestMissingRun[j] } : {}),
         covered: m.covered[j] === 1,
       })),
       outputs: {

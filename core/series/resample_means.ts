@@ -3,7 +3,13 @@
  *
  * @module
  */
-import { type CalendarResolution, inferResolution, type TimeResolution } from "../time/mod.ts";
+import {
+  calendarInstant,
+  type CalendarResolution,
+  daysInMonth,
+  inferResolution,
+  type TimeResolution,
+} from "../time/mod.ts";
 import { periodKey, periodOfKey } from "./period_key.ts";
 
 /** Coverage thresholds of {@link resampleMeans}. */
@@ -18,6 +24,14 @@ export interface ResampleOptions {
   minMonthsPerYear?: number;
   /** Points needed per period when the input is irregular. @default 1 */
   minPointsPerPeriod?: number;
+  /**
+   * Daily input only: a month whose longest run of consecutive missing days (counting from
+   * the month's first day and to its last) is longer than this is a gap, whatever its count.
+   * With `minDaysPerMonth` it expresses the common "at most 10 days missing, and fewer than 5
+   * in a row" practice (`minDaysPerMonth` = days − 10, `maxMissingRunDays` = 4).
+   * @default no limit
+   */
+  maxMissingRunDays?: number;
 }
 
 /** Means per calendar period, every period from the first to the last holding data. */
@@ -38,6 +52,8 @@ export interface PeriodMeans {
   required: number;
   /** 1 where `count >= required`, else 0. */
   covered: Uint8Array;
+  /** Daily → monthly only: the longest run of consecutive missing days per month, else null. */
+  longestMissingRun: Int32Array | null;
   /** Input points inside each period. */
   points: Int32Array;
   /** How the means were formed, in words. */
@@ -114,6 +130,10 @@ export function resampleMeans(
   const minDays = checkInt(options.minDaysPerMonth ?? 20, "minDaysPerMonth", 1, 31);
   const minMonths = checkInt(options.minMonthsPerYear ?? 10, "minMonthsPerYear", 1, 12);
   const minPoints = checkInt(options.minPointsPerPeriod ?? 1, "minPointsPerPeriod", 1, 1_000_000);
+  const maxRun = options.maxMissingRunDays === undefined
+    ? null
+    : checkInt(options.maxMissingRunDays, "maxMissingRunDays", 0, 31);
+  const runRule = maxRun === null ? "" : ` and no run of more than ${maxRun} missing days`;
   if (from !== "irregular" && RANK[from] > RANK[to]) {
     throw new RangeError(
       `Cannot resample ${from} data to ${to}: resampling only averages into longer periods`,
@@ -121,9 +141,10 @@ export function resampleMeans(
   }
 
   if (from === "daily" && to === "annual") {
-    const rule = `annual means of monthly means; a month needs ${minDays} daily values, ` +
+    const rule =
+      `annual means of monthly means; a month needs ${minDays} daily values${runRule}, ` +
       `a year ${minMonths} covered months`;
-    const monthly = bin(time, value, unc, "monthly", minDays);
+    const monthly = bin(time, value, unc, "monthly", minDays, maxRun);
     const keep = [...monthly.covered.keys()].filter((i) => monthly.covered[i] === 1);
     const annual = keep.length === 0 ? null : bin(
       keep.map((i) => monthly.time[i]),
@@ -147,8 +168,10 @@ export function resampleMeans(
     : from === "daily"
     ? (required === 1 ? "daily value" : "daily values")
     : (required === 1 ? "monthly value" : "monthly values");
-  const out = bin(time, value, unc, to, required);
-  out.rule = `${to} means of ${from} data; a period needs at least ${required} ${unit}`;
+  const daysToMonths = from === "daily" && to === "monthly";
+  const out = bin(time, value, unc, to, required, daysToMonths ? maxRun : null);
+  out.rule = `${to} means of ${from} data; a period needs at least ${required} ${unit}` +
+    (daysToMonths ? runRule : "");
   return out;
 }
 
@@ -158,6 +181,7 @@ function bin(
   unc: ArrayLike<number> | null,
   to: CalendarResolution,
   required: number,
+  maxRun: number | null = null,
 ): PeriodMeans {
   const n = time.length;
   const keys = new Float64Array(n);
@@ -178,11 +202,20 @@ function bin(
   }
   const sum = new Float64Array(m), sq = unc ? new Float64Array(m) : null;
   const count = new Int32Array(m);
+  // longest run of missing days per month: gaps between present days, before the first and
+  // after the last (points are in time order, so days rise within a month)
+  const run = maxRun === null ? null : new Int32Array(m);
+  const lastDay = maxRun === null ? null : new Int32Array(m);
   for (let i = 0; i < n; i++) {
     const j = keys[i] - k0;
     sum[j] += value[i];
     if (sq && unc) sq[j] += unc[i] * unc[i];
     count[j]++;
+    if (run && lastDay) {
+      const d = calendarInstant(time[i]).day;
+      run[j] = Math.max(run[j], d - lastDay[j] - 1);
+      lastDay[j] = d;
+    }
   }
   const out: PeriodMeans = {
     resolution: to,
@@ -194,6 +227,7 @@ function bin(
     count,
     required,
     covered: new Uint8Array(m),
+    longestMissingRun: run,
     points: Int32Array.from(count),
     rule: "",
   };
@@ -202,7 +236,11 @@ function bin(
     out.time[j] = p.middle;
     out.start[j] = p.start;
     out.end[j] = p.end;
-    const ok = count[j] >= required;
+    if (run && lastDay) {
+      const y = Math.floor((k0 + j) / 12), mo = k0 + j - y * 12 + 1;
+      run[j] = Math.max(run[j], daysInMonth(y, mo) - lastDay[j]);
+    }
+    const ok = count[j] >= required && (run === null || maxRun === null || run[j] <= maxRun);
     out.covered[j] = ok ? 1 : 0;
     out.value[j] = ok ? sum[j] / count[j] : NaN;
     if (out.uncertainty && sq) out.uncertainty[j] = ok ? Math.sqrt(sq[j]) / count[j] : NaN;

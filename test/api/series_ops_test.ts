@@ -181,3 +181,17 @@ Deno.test("POST /v1/anomalies: warns only when the base period really reaches be
   );
   await svc.close();
 });
+
+Deno.test("POST /v1/resampling: max_missing_run_days turns a month with a long run of gaps into a gap", async () => {
+  const svc = await makeTestApp();
+  // January 2001 without the 10th..14th (26 days, a run of 5 missing)
+  const s = dailyJson("Probe areas", 2001, 2001, (i) => (i >= 9 && i <= 13 ? null : 1));
+  const run =
+    await (await svc.post("/v1/resampling", { series: s, to: "monthly", max_missing_run_days: 4 }))
+      .json();
+  const jan = run.result.coverage[0];
+  assert.deepEqual([jan.count, jan.longest_missing_run, jan.covered], [26, 5, false]);
+  assert.equal(run.result.coverage[1].longest_missing_run, 0);
+  assert.match(run.result.rule, /no run of more than 4 missing days/);
+  await svc.close();
+});

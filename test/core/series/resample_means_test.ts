@@ -105,3 +105,44 @@ Deno.test("resampleMeans() refuses what it cannot do", () => {
   assert.deepEqual(Array.from(same.value), [1, 2]);
   assert.equal(same.required, 1);
 });
+
+Deno.test("resampleMeans() maxMissingRunDays refuses months with a long run of missing days", async (t) => {
+  // January 2001, 31 days: drop days 10..14 (a run of 5); 26 days remain
+  const keepDay = (d: number) => d < 10 || d > 14;
+  const jan = Array.from({ length: 31 }, (_, i) => i + 1).filter(keepDay)
+    .map((d) => decimalYear(2001, 1, d, 0.5));
+  // February 2001, 28 days: drop the last 4 days (a trailing run of 4); 24 remain
+  const feb = Array.from({ length: 24 }, (_, i) => decimalYear(2001, 2, i + 1, 0.5));
+  const time = [...jan, ...feb];
+  const value = time.map(() => 1);
+  await t.step("runs are reported, counted from the month's first to its last day", () => {
+    const m = resampleMeans({ time, value }, "monthly", { maxMissingRunDays: 4 });
+    assert.deepEqual(Array.from(m.longestMissingRun!), [5, 4]);
+    assert.deepEqual(Array.from(m.covered), [0, 1]);
+    assert.match(m.rule, /no run of more than 4 missing days/);
+  });
+  await t.step("without the rule both months pass the 20-day count", () => {
+    const m = resampleMeans({ time, value }, "monthly");
+    assert.equal(m.longestMissingRun, null);
+    assert.deepEqual(Array.from(m.covered), [1, 1]);
+  });
+  await t.step("a leading run counts too, and the rule reaches the annual stage", () => {
+    const late = Array.from({ length: 25 }, (_, i) => decimalYear(2001, 3, i + 7, 0.5)); // from 7 March
+    const m = resampleMeans({ time: late, value: late.map(() => 2) }, "monthly", {
+      maxMissingRunDays: 5,
+    });
+    assert.equal(m.longestMissingRun![0], 6);
+    assert.equal(m.covered[0], 0);
+    const a = resampleMeans({ time, value }, "annual", {
+      maxMissingRunDays: 4,
+      minMonthsPerYear: 1,
+    });
+    assert.equal(a.count[0], 1); // only February counts
+  });
+  await t.step("out-of-range values are refused", () => {
+    assert.throws(
+      () => resampleMeans({ time, value }, "monthly", { maxMissingRunDays: -1 }),
+      /maxMissingRunDays must be an integer in 0\.\.31/,
+    );
+  });
+});
