@@ -88,10 +88,7 @@ function optionsKey(o: RenderOptions): string {
 }
 
 function etagFor(resource: string, o: RenderOptions): string {
-  const q = optionsKey(o);
-  return `"chart-${resource}-${shortHash(q)}${
-    shortHash(q + "|" + resource)
-  }-s${SERVICE_VERSION}-c${CHART_VERSION}"`;
+  return `"chart-${resource}-${optionsKey(o)}-s${SERVICE_VERSION}-c${CHART_VERSION}"`;
 }
 
 const SVG_HEADERS = {
