@@ -10,7 +10,7 @@ import { cyclesChart } from "./cycles.ts";
 import { irradianceReconstructionChart } from "./irradiance_reconstruction.ts";
 import { lagCorrelationChart } from "./lag_correlations.ts";
 import { spectraChart } from "./spectra.ts";
-import { cycleForecastChart, smoothingChart } from "./with_inputs.ts";
+import { cycleForecastChart, irradianceModelChart, smoothingChart } from "./with_inputs.ts";
 
 /** Chart builders keyed by `run.kind`. */
 export const KIND_CHARTS: Record<string, KindChart> = {
@@ -18,6 +18,7 @@ export const KIND_CHARTS: Record<string, KindChart> = {
   "composites": compositesChart,
   "cycles": cyclesChart,
   "cycle-forecasts": cycleForecastChart,
+  "irradiance_model": irradianceModelChart,
   "irradiance_reconstruction": irradianceReconstructionChart,
   "lag-correlations": lagCorrelationChart,
   "smoothing": smoothingChart,
@@ -25,4 +26,9 @@ export const KIND_CHARTS: Record<string, KindChart> = {
 };
 
 /** Kinds whose chart draws the run's input series too (the route loads them). */
-export const KIND_INPUTS: ReadonlySet<string> = new Set(["cycles", "cycle-forecasts", "smoothing"]);
+export const KIND_INPUTS: ReadonlySet<string> = new Set([
+  "cycles",
+  "cycle-forecasts",
+  "irradiance_model",
+  "smoothing",
+]);

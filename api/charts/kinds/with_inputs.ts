@@ -1,6 +1,7 @@
 /**
- * Charts of kinds derived from one input series (smoothing, cycle forecasts): the generic
- * chart of their outputs drawn over the observed input series.
+ * Charts of kinds derived from an input series of the same quantity (smoothing, cycle
+ * forecasts, the fit of an irradiance model): the generic chart of their outputs drawn over the
+ * observed input series.
  *
  * @module
  */
@@ -28,3 +29,6 @@ export const smoothingChart = overInputs(Infinity);
 
 /** Cycle forecasts: the forecast curve and band after the last two cycles observed. */
 export const cycleForecastChart = overInputs(22);
+
+/** Irradiance model: the fitted TSI over the measured TSI it was calibrated on. */
+export const irradianceModelChart = overInputs(Infinity);
