@@ -80,6 +80,8 @@ function summaryJson(cases: HindcastCase[], res: "monthly" | "annual") {
         maximum_value: c.predicted.value,
         date_interval: c.predicted.timeInterval,
         value_interval: c.predicted.valueInterval,
+        smoothed_date_interval: c.predicted.smoothed?.timeInterval ?? null,
+        smoothed_value_interval: c.predicted.smoothed?.valueInterval ?? null,
       },
       observed: {
         maximum_date: iso(c.observed.time, res),
@@ -88,6 +90,7 @@ function summaryJson(cases: HindcastCase[], res: "monthly" | "annual") {
       },
       error: { time_years: c.error.time, value: c.error.value },
       covered: c.covered,
+      covered_by_curve_band: c.coveredByCurveBand,
     })),
   };
 }
@@ -269,10 +272,10 @@ export const cycleForecastsKind: RunKind<typeof CycleForecastsRequest> = {
       ].filter(([, c]) => (c as number) < params.level - 0.2);
       if (low.length) {
         warnings.push(
-          `at this phase the bootstrap band held the observed maximum's ${
+          `at this phase the bootstrap predictive interval held the observed maximum's ${
             low.map(([w, c]) => `${w} in ${Math.round((c as number) * 100)} %`).join(" and its ")
           } of ${sameSummary.cases} past cycles (nominal ${Math.round(params.level * 100)} %): ` +
-            "the band is too narrow there; prefer forecast.maximum.hindcast_interval",
+            "the intervals are too narrow there; prefer forecast.maximum.hindcast_interval",
         );
       }
     }
@@ -310,6 +313,14 @@ export const cycleForecastsKind: RunKind<typeof CycleForecastsRequest> = {
           date_interval: fc.maximum.timeInterval.map((t) => iso(t, "monthly")),
           decimal_year_interval: fc.maximum.timeInterval,
           value_interval: fc.maximum.valueInterval,
+          smoothed_observation: fc.maximum.smoothed && {
+            description: "predictive interval of the maximum of the 13-month smoothed " +
+              "observations: the observed months continued by each replicate's curve plus " +
+              "resampled noise",
+            date_interval: fc.maximum.smoothed.timeInterval.map((t) => iso(t, "monthly")),
+            decimal_year_interval: fc.maximum.smoothed.timeInterval,
+            value_interval: fc.maximum.smoothed.valueInterval,
+          },
           level: params.level,
           hindcast_interval: hindcastInterval(same, fc.maximum, params.level),
         },
@@ -333,7 +344,8 @@ export const cycleForecastsKind: RunKind<typeof CycleForecastsRequest> = {
         description: "the same method on past cycles truncated after the same number of " +
           "months as the cycle in progress (same_phase) and at half their own rise (mid_rise); " +
           "errors are predicted minus observed smoothed maximum (years, series units); " +
-          "coverage is the share of observed maxima inside the band",
+          "coverage is the share of observed smoothed maxima inside the predictive interval " +
+          "(covered_by_curve_band: inside the band of the fitted curve's maximum)",
         same_phase: { months_used: obsT.length, ...summaryJson(same, res) },
         mid_rise: summaryJson(mid, res),
       },

@@ -6,6 +6,7 @@
  */
 import { quantileSorted } from "d3-array";
 import { randomStream } from "../random/random_stream.ts";
+import { smoothed13Month } from "./smoothed_13_month.ts";
 import {
   fitHathawayCycle,
   hathawayCurve,
@@ -59,6 +60,13 @@ export interface CycleForecast {
     value: number;
     timeInterval: [number, number];
     valueInterval: [number, number];
+    /**
+     * Predictive intervals of the maximum of the 13-month smoothed observations (date and
+     * value): each replicate continues the observed months with its curve plus resampled
+     * noise and smooths the path. Null unless `curveTime` is the monthly grid continuing the
+     * observed months.
+     */
+    smoothed: { timeInterval: [number, number]; valueInterval: [number, number] } | null;
   };
   /** Forecast at `curveTime` (this cycle plus the previous cycle's tail) with its band. */
   curve: { time: Float64Array; value: Float64Array; lower: Float64Array; upper: Float64Array };
@@ -78,6 +86,14 @@ export interface CycleForecast {
  * fitted cycle curve (the smoothed cycle), not of individual monthly values, and it assumes
  * the shape function is right: the hindcast ({@link hindcastCycles}) measures how far that
  * holds on past cycles.
+ *
+ * Predictive intervals for what will be observed: when `curveTime` continues the observed
+ * months on the monthly grid, each replicate also continues the observed values with its own
+ * curve plus block-resampled, rescaled residuals, smooths the whole path with the 13-month
+ * smoothing and records the date and height of its maximum (a bootstrap prediction interval:
+ * Davison & Hinkley 1997, "Bootstrap Methods and their Application", §6.3.3). Those intervals
+ * include the noise of the future months and are the ones to compare with an observed
+ * smoothed maximum.
  *
  * Randomness: replicate r draws only from randomStream(seed, r), so the band is the same
  * whatever the order or split of the work.
@@ -139,6 +155,7 @@ export function forecastCycle(
   // (the variance-function estimate of Carroll & Ruppert 1988, "Transformation and Weighting
   // in Regression", §3.3); standardised residuals are resampled and rescaled to the target
   const resid = new Float64Array(n), scaleOf = new Float64Array(n);
+  let scaleOfLevel = (_: number) => 1;
   {
     let sx = 0, sy = 0, sxx = 0, sxy = 0;
     for (let i = 0; i < n; i++) {
@@ -154,16 +171,29 @@ export function forecastCycle(
     const alpha = (sy - beta * sx) / n;
     // floor: a tenth of the mean absolute residual keeps the scale positive
     const floor = Math.max(1e-12, 0.1 * (sy / n));
+    if (options.heteroscedastic !== false) {
+      scaleOfLevel = (level: number) => Math.max(floor, alpha + beta * level);
+    }
     for (let i = 0; i < n; i++) {
-      scaleOf[i] = options.heteroscedastic === false
-        ? 1
-        : Math.max(floor, alpha + beta * fit.fitted[i]);
+      scaleOf[i] = scaleOfLevel(fit.fitted[i]);
       resid[i] = (own[i] - fit.fitted[i]) / scaleOf[i];
     }
   }
   const ct = Float64Array.from(options.curveTime);
   const ctTail = prev ? hathawayCurve(prev, ct) : new Float64Array(ct.length);
   const K = ct.length;
+  // the observed 13-month smoothed maximum can be simulated when the curve is the monthly grid
+  // continuing the observed months (its first n times are the observed ones)
+  let predictive = K > n + 6;
+  for (let i = 0; predictive && i < n; i++) {
+    if (Math.abs(ct[i] - time[i]) > 1e-9) predictive = false;
+  }
+  for (let k = 1; predictive && k < K; k++) {
+    const d = ct[k] - ct[k - 1];
+    if (!(d > 0.07 && d < 0.1)) predictive = false;
+  }
+  const pT: number[] = [], pV: number[] = [];
+  const path = new Float64Array(predictive ? K : 0);
   const curves: Float64Array[] = [];
   const tMax: number[] = [], vMax: number[] = [];
   const ystar = new Float64Array(n);
@@ -187,6 +217,23 @@ export function forecastCycle(
       tMax.push(f.maximum.time);
       vMax.push(f.maximum.value);
       const cv = hathawayCurve(f, ct);
+      if (predictive) {
+        // observed months as they were, then the replicate's curve plus resampled noise
+        for (let i = 0; i < n; i++) path[i] = value[i];
+        for (let k = n; k < K;) {
+          const s0 = rng.int(0, n - L);
+          for (let j = 0; j < L && k < K; j++, k++) {
+            path[k] = cv[k] + ctTail[k] + scaleOfLevel(cv[k]) * resid[s0 + j];
+          }
+        }
+        const sm = smoothed13Month(path);
+        let best = -1;
+        for (let k = 0; k < K; k++) if (sm[k] === sm[k] && (best < 0 || sm[k] > sm[best])) best = k;
+        if (best >= 0) {
+          pT.push(ct[best]);
+          pV.push(sm[best]);
+        }
+      }
       for (let k = 0; k < cv.length; k++) cv[k] += ctTail[k];
       curves.push(cv);
     } catch {
@@ -215,6 +262,12 @@ export function forecastCycle(
       value: fit.maximum.value,
       timeInterval: tMax.length ? [q(tMax, lo), q(tMax, hi)] : [NaN, NaN],
       valueInterval: vMax.length ? [q(vMax, lo), q(vMax, hi)] : [NaN, NaN],
+      smoothed: pT.length
+        ? {
+          timeInterval: [q(pT.sort((a, b) => a - b), lo), q(pT, hi)],
+          valueInterval: [q(pV.sort((a, b) => a - b), lo), q(pV, hi)],
+        }
+        : null,
     },
     curve: { time: ct, value: value0, lower, upper },
     replicates: B,

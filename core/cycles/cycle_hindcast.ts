@@ -34,12 +34,19 @@ export interface HindcastCase {
     value: number;
     timeInterval: [number, number];
     valueInterval: [number, number];
+    smoothed: { timeInterval: [number, number]; valueInterval: [number, number] } | null;
   };
   observed: { time: number; value: number };
   /** predicted − observed: years and value units. */
   error: { time: number; value: number };
-  /** Whether the observed maximum lies inside the band. */
+  /**
+   * Whether the observed maximum lies inside the predictive intervals of the smoothed
+   * maximum (when the cycle's months continue past the truncation), else inside the band of
+   * the curve's maximum.
+   */
   covered: { time: boolean; value: boolean };
+  /** Whether it lies inside the band of the fitted curve's maximum (parameter uncertainty only). */
+  coveredByCurveBand: { time: boolean; value: boolean };
 }
 
 /** Error statistics over the hindcast cases. */
@@ -132,10 +139,12 @@ export function hindcastCase(
   if (!(months >= 12)) return null;
   const t = Array.from({ length: months }, (_, i) => c.time[i]);
   const v = Array.from({ length: months }, (_, i) => c.value[i]);
+  // the whole cycle's monthly times: the forecast continues the truncated months over them
+  const curveTime = Array.from({ length: c.time.length }, (_, i) => c.time[i]);
   const fc = forecastCycle(t, v, {
     ...options,
     seed: mixSeed(options.seed, caseIndex + 1),
-    curveTime: [],
+    curveTime,
     blockLength: Math.min(options.blockLength ?? 6, months),
     previousCycle: c.previousCycle,
   });
@@ -148,11 +157,17 @@ export function hindcastCase(
     observed: { ...c.maximum },
     error: { time: p.time - c.maximum.time, value: p.value - c.maximum.value },
     covered: {
-      time: c.maximum.time >= p.timeInterval[0] && c.maximum.time <= p.timeInterval[1],
-      value: c.maximum.value >= p.valueInterval[0] && c.maximum.value <= p.valueInterval[1],
+      time: inside(c.maximum.time, (p.smoothed ?? p).timeInterval),
+      value: inside(c.maximum.value, (p.smoothed ?? p).valueInterval),
+    },
+    coveredByCurveBand: {
+      time: inside(c.maximum.time, p.timeInterval),
+      value: inside(c.maximum.value, p.valueInterval),
     },
   };
 }
+
+const inside = (x: number, [lo, hi]: [number, number]) => x >= lo && x <= hi;
 
 /**
  * Bias, mean absolute error, RMSE and band coverage of hindcast cases.

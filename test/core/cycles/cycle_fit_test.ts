@@ -253,3 +253,29 @@ Deno.test("hindcastCycles() on the demo: mid-rise errors are reported and the ba
   assert.ok(s.value.meanAbsoluteError < 45, `MAE ${s.value.meanAbsoluteError}`);
   assert.ok(s.time.meanAbsoluteError < 1, `time MAE ${s.time.meanAbsoluteError}`);
 });
+
+Deno.test("forecastCycle() gives predictive intervals of the smoothed maximum on a continuing monthly grid", () => {
+  const rng = randomStream(31);
+  const all = months(132);
+  const v = all.map((x) =>
+    hathawayShape((x - 2000) * 12 + 3, { t0: 0, a: 0.002 }) * Math.exp(0.15 * rng.normal())
+  );
+  const fc = forecastCycle(all.slice(0, 30), v.slice(0, 30), {
+    seed: 4,
+    curveTime: all,
+    replicates: 60,
+  });
+  const sm = fc.maximum.smoothed!;
+  assert.ok(sm.timeInterval[0] <= sm.timeInterval[1] && sm.valueInterval[0] <= sm.valueInterval[1]);
+  // future noise widens the interval beyond the curve band (common practice for prediction
+  // intervals: parameter uncertainty plus the noise of the new observations)
+  const w = (i: [number, number]) => i[1] - i[0];
+  assert.ok(w(sm.timeInterval) > w(fc.maximum.timeInterval));
+  // not a continuation of the observed months: no predictive interval
+  const other = forecastCycle(all.slice(0, 30), v.slice(0, 30), {
+    seed: 4,
+    curveTime: [2005, 2006],
+    replicates: 20,
+  });
+  assert.equal(other.maximum.smoothed, null);
+});
