@@ -62,6 +62,9 @@ Deno.test("irradiance reconstruction chart: prediction band, observed-proxy and 
         sunspotNumber: ss,
       }),
     );
+    // the model's chart: the fitted TSI over the measured TSI it was calibrated on
+    const mt = texts(await chartOf(svc, model.id));
+    assert.ok(mt.includes("observed: Invented TSI"), mt.join("|"));
     const rec = await created(
       await svc.post("/v1/irradiance/reconstructions", {
         model: model.id,
