@@ -16,7 +16,8 @@ export function immutableHeaders(etag: string): Record<string, string> {
 export function notModified(c: Context, etag: string): Response | null {
   const inm = c.req.header("if-none-match");
   if (!inm) return null;
-  const tags = inm.split(",").map((t) => t.trim());
+  // If-None-Match uses the weak comparison (RFC 9110 §13.1.2): W/"x" matches "x".
+  const tags = inm.split(",").map((t) => t.trim().replace(/^W\//, ""));
   if (tags.includes("*") || tags.includes(etag)) {
     return new Response(null, {
       status: 304,

@@ -97,12 +97,15 @@ export class ImmutableCache {
   }
 }
 
-/** True when `If-None-Match` lists `etag` (or `*`), RFC 9110 §13.1.2 (strong comparison). */
+/**
+ * True when `If-None-Match` lists `etag` (or `*`). If-None-Match uses the weak comparison
+ * (RFC 9110 §13.1.2), so `W/"x"` (as a compressing proxy may rewrite a tag) matches `"x"`.
+ */
 export function matchesIfNoneMatch(c: Context, etag: string): boolean {
   const inm = c.req.header("if-none-match");
   if (!inm) return false;
   return inm.split(",").some((t) => {
-    const s = t.trim();
+    const s = t.trim().replace(/^W\//, "");
     return s === "*" || s === etag;
   });
 }

@@ -430,3 +430,29 @@ Deno.test("cached runs and charts are sent gzip-coded to clients that accept it,
     await svc.close();
   }
 });
+
+Deno.test('If-None-Match uses the weak comparison: W/"tag" revalidates a strong tag (RFC 9110 §13.1.2)', async () => {
+  const svc = await makeTestApp();
+  try {
+    const id = await uploadSeries(
+      svc,
+      monthlySeries("Spots", "sunspot_number", "1", 2000, 24, (i) => 10 + i),
+    );
+    const { run } = await runWithOutput(svc);
+    for (
+      const path of [
+        `/v1/series/${id}`,
+        `/v1/series/${id}/chart.svg`,
+        `/v1/runs/${run.id}`,
+        `/v1/runs/${run.id}/outputs/tsi`,
+      ]
+    ) {
+      const first = await svc.get(path);
+      await first.body?.cancel();
+      const weak = await svc.get(path, { "If-None-Match": `W/${first.headers.get("etag")}` });
+      assert.equal(weak.status, 304, path);
+    }
+  } finally {
+    await svc.close();
+  }
+});
