@@ -26,6 +26,12 @@ export function spectraChart(run: RunRecord): ChartSpec | null {
   const layers: Layer[] = [{ type: "line", label: "periodogram", x, y, color: 0, width: 1.3 }];
   const fa = obj(r.false_alarm);
   const levels = objects(fa?.levels) ?? [];
+  const nullText = str(obj(fa?.null_hypothesis)?.monte_carlo) ?? "";
+  const mcNull = /^red noise/.test(nullText)
+    ? ", AR(1) red noise"
+    : /^white noise/.test(nullText)
+    ? ", white noise"
+    : "";
   const dashFor = (f: number) => (f <= 0.011 ? "dashed" : "dotted") as "dashed" | "dotted";
   for (const lv of levels) {
     const f = numOrNull(lv.fap);
@@ -44,7 +50,7 @@ export function spectraChart(run: RunRecord): ChartSpec | null {
       layers.push({
         type: "hline",
         y: m,
-        label: `FAP ${pct(f)} (Monte Carlo)`,
+        label: `FAP ${pct(f)} (Monte Carlo${mcNull})`,
         color: 2,
         dash: dashFor(f),
       });
