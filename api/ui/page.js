@@ -1363,19 +1363,24 @@ function nonNull(doc, s) {
 }
 
 /**
- * Series options for a select, preferring quantities that fit the field name.
+ * Series options for a select, preferring quantities that fit the field's name (or, for a
+ * field just called "series", its description).
  * @param {any[]} series
  * @param {string} name
  */
 function seriesOptions(series, name) {
   const n = name.toLowerCase();
-  /** @type {string[]} */
-  let prefer = [];
-  if (/temp|climate|response|target/.test(n)) prefer = ["temperature_anomaly", "temperature"];
-  else if (/tsi|irradiance|measured/.test(n)) prefer = ["tsi"];
-  else if (/facul|mg/.test(n)) prefer = ["facular_index"];
-  else if (/area/.test(n)) prefer = ["sunspot_area"];
-  else if (/sunspot|solar|driver|proxy|activity|series/.test(n)) prefer = ["sunspot_number", "tsi"];
+  /** @type {[RegExp, string[]][]} */
+  const rules = [
+    [/temp|climate|response|target/, ["temperature_anomaly", "temperature"]],
+    [/tsi|irradiance|measured/, ["tsi"]],
+    [/facul|mg/, ["facular_index"]],
+    [/area/, ["sunspot_area"]],
+    [/sunspot|solar|driver|proxy|activity|series/, ["sunspot_number", "tsi"]],
+  ];
+  // A description ("Solar series (sunspot number, TSI, …)") names its main kind first.
+  if (n.startsWith("series ")) rules.splice(1, 0, [/sunspot|solar/, ["sunspot_number", "tsi"]]);
+  const prefer = rules.find(([re]) => re.test(n))?.[1] ?? [];
   const rank = (/** @type {any} */ s) => {
     const i = prefer.indexOf(s.quantity);
     return i < 0 ? prefer.length : i;
@@ -1419,9 +1424,13 @@ function buildFields(doc, schema, prefix, ctx, optional = false) {
     let children;
     /** @type {string[] | undefined} */
     let itemKeys;
+    let note = "";
     let wide = false;
     if (isSeriesRef(doc, inner)) {
-      const opts = seriesOptions(ctx.series, name);
+      const opts = seriesOptions(
+        ctx.series,
+        /^series$/i.test(name) ? `${name} ${description}` : name,
+      );
       let chosen = opts[0]?.id;
       if (
         ctx.preselect && ctx.series.some((x) => x.id === ctx.preselect) &&
@@ -1454,6 +1463,7 @@ function buildFields(doc, schema, prefix, ctx, optional = false) {
         const v = [.../** @type {HTMLSelectElement} */ (input).selectedOptions].map((o) => o.value);
         return v.length ? v : undefined;
       };
+      note = " Hold Ctrl (⌘ on a Mac) or Shift to choose several.";
       wide = true;
     } else if (Array.isArray(p.enum)) {
       input = h(
@@ -1662,7 +1672,7 @@ function buildFields(doc, schema, prefix, ctx, optional = false) {
       h(
         "span",
         { class: "hint", id: `${id}-hint` },
-        description +
+        description + note +
           (dflt !== undefined && p.type !== "boolean" ? ` (default ${JSON.stringify(dflt)})` : ""),
       ),
       error,
@@ -1895,7 +1905,8 @@ async function analyseView(gen, query) {
     moreFields.length
       ? h(
         "details",
-        null,
+        // Open when nothing is required (e.g. "groups or a total area": the user must choose).
+        { open: mainFields.length === 0 },
         h("summary", null, `More options (${moreFields.length}, defaults shown)`),
         h("div", { class: "grid" }, moreFields.map((f) => f.wrap)),
       )
