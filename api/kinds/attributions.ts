@@ -146,6 +146,12 @@ export const attributionKind: RunKind<typeof AttributionRequest> = {
         maxLag: 0,
       });
     }
+    if (p.hac_lags !== undefined && p.hac_lags >= n - maxLag) {
+      throw new InputProblem(
+        "/hac_lags",
+        `hac_lags must be below the ${n - maxLag} fitted observations`,
+      );
+    }
     let fit;
     try {
       fit = attributionRegression(y, regressors, { errors: p.errors, hacLags: p.hac_lags });

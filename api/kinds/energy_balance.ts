@@ -49,18 +49,18 @@ export const EnergyBalanceRequest = z.object({
     description: "Instead of forcing: F₀ sin(2πt/P), started on the steady state so the " +
       "numerical answer can be compared with the analytic one",
   }),
-  heat_capacity: z.number().positive().max(10_000).optional().openapi({
+  heat_capacity: z.number().min(0.01).max(10_000).optional().openapi({
     description: "Mixed-layer heat capacity C, W yr m-2 K-1 (one-box default 8.0, shared/" +
       "SCIENCE.md §10; two-box default 7.3, Held et al. 2010, from memory)",
   }),
-  feedback: z.number().positive().max(100).optional().openapi({
+  feedback: z.number().min(0.01).max(100).optional().openapi({
     description: "Feedback parameter λ, W m-2 K-1 (default 1.3)",
   }),
-  deep_heat_capacity: z.number().positive().max(100_000).optional().openapi({
+  deep_heat_capacity: z.number().min(0.01).max(100_000).optional().openapi({
     description: "Two-box: deep-ocean heat capacity C_d, W yr m-2 K-1 (default 106, Held et " +
       "al. 2010, from memory)",
   }),
-  exchange: z.number().positive().max(100).optional().openapi({
+  exchange: z.number().min(1e-6).max(100).optional().openapi({
     description: "Two-box: exchange coefficient γ, W m-2 K-1 (default 0.7, Held et al. 2010, " +
       "from memory)",
   }),
@@ -114,6 +114,14 @@ export const energyBalanceKind: RunKind<typeof EnergyBalanceRequest> = {
     let init: [number, number] = [0, 0];
     if (p.sinusoid) {
       const sn = p.sinusoid;
+      if (sn.period_years * sn.steps_per_year < 8) {
+        throw new InputProblem(
+          "/sinusoid/steps_per_year",
+          `${sn.steps_per_year} steps per year give ${
+            (sn.period_years * sn.steps_per_year).toFixed(1)
+          } samples per period; at least 8 are needed`,
+        );
+      }
       const n = Math.round(sn.years * sn.steps_per_year) + 1;
       if (n > 2_000_000) {
         throw new InputProblem(
@@ -191,6 +199,9 @@ export const energyBalanceKind: RunKind<typeof EnergyBalanceRequest> = {
       if (e instanceof RangeError) throw new InputProblem("/forcing", e.message);
       throw e;
     }
+    if (!surface.every(Number.isFinite) || (deep && !deep.every(Number.isFinite))) {
+      throw new InputProblem("/forcing", "the model response is not finite for these inputs");
+    }
     let numerical = null;
     if (p.sinusoid) {
       const sn = p.sinusoid;
@@ -205,7 +216,7 @@ export const energyBalanceKind: RunKind<typeof EnergyBalanceRequest> = {
         sn.period_years,
       );
       const aAmp = analytic.gain * sn.amplitude;
-      numerical = {
+      numerical = !Number.isFinite(f.amplitude) || !Number.isFinite(f.lagYears) ? null : {
         amplitude_k: f.amplitude,
         peak_to_peak_k: 2 * f.amplitude,
         lag_years: f.lagYears,

@@ -309,7 +309,22 @@ export function twoBoxSinusoidResponse(params: TwoBoxParameters, period: number)
   return { gain: Math.hypot(h.surfaceRe, h.surfaceIm), phase, lagYears: phase / w };
 }
 
-/** Complex transfer function (iωI − A)⁻¹ b of the two-box model at angular frequency ω. */
+/**
+ * Complex transfer function (iωI − A)⁻¹ b of the two-box model at angular frequency ω: the
+ * steady response to F = Re(e^{iωt}) is T = Re(h e^{iωt}) (K per W m-2).
+ *
+ * @param params C, C_d, λ, γ
+ * @param omega angular frequency, rad per year
+ * @returns real and imaginary parts for the surface and deep boxes
+ * @example
+ * ```ts
+ * import { twoBoxTransfer } from "./energy_balance.ts";
+ * import assert from "node:assert/strict";
+ * // ω → 0: the equilibrium response 1/λ in both boxes
+ * const h = twoBoxTransfer({ heatCapacity: 7.3, deepHeatCapacity: 106, feedback: 1.3, exchange: 0.7 }, 1e-9);
+ * assert.ok(Math.abs(h.surfaceRe - 1 / 1.3) < 1e-6 && Math.abs(h.deepRe - 1 / 1.3) < 1e-6);
+ * ```
+ */
 export function twoBoxTransfer(
   params: TwoBoxParameters,
   omega: number,

@@ -65,7 +65,20 @@ function checkInputs(fn: string, x: ArrayLike<number>, y: ArrayLike<number>, w: 
   }
 }
 
-/** Index range [start, end) of x paired with y_{t+k} at lag k, for series of length n. */
+/**
+ * Index range [start, end) of x paired with y_{t+k} at lag k, for series of length n.
+ *
+ * @param n series length
+ * @param k lag (k > 0: y follows x)
+ * @returns [start, end) of the x indices in the overlap
+ * @example
+ * ```ts
+ * import { overlapRange } from "./lagged_correlation.ts";
+ * import assert from "node:assert/strict";
+ * assert.deepEqual(overlapRange(10, 3), [0, 7]);
+ * assert.deepEqual(overlapRange(10, -3), [3, 10]);
+ * ```
+ */
 export function overlapRange(n: number, k: number): [number, number] {
   return k >= 0 ? [0, n - k] : [-k, n];
 }
