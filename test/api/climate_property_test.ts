@@ -156,7 +156,6 @@ Deno.test("solar–climate endpoints: random requests never give a 500", async (
         `${p}: ${JSON.stringify(statuses)}`,
       );
     }
-    console.log(JSON.stringify(statuses));
   } finally {
     await svc.close();
   }
