@@ -433,6 +433,25 @@ Deno.test({
         await shot(page, "phone-dark-run-view");
       });
 
+      await t.step("the theme switch redraws charts dark and is remembered", async () => {
+        await page.setViewportSize({ width: 1280, height: 900 });
+        await page.emulateMedia({ colorScheme: "light" });
+        await page.goto(`${svc.url}/#/series/${solar}`);
+        await page.locator("figure.chart svg").waitFor();
+        assert.equal(await page.locator("#theme").innerText(), "Theme: auto");
+        await page.click("#theme"); // auto → light
+        const darkChart = page.waitForRequest(/chart\.svg\?.*theme=dark/);
+        await page.click("#theme"); // light → dark
+        await darkChart;
+        assert.equal(await page.getAttribute("html", "data-theme"), "dark");
+        await page.reload();
+        await page.locator("figure.chart svg").waitFor();
+        assert.equal(await page.getAttribute("html", "data-theme"), "dark");
+        await shot(page, "series-view-dark");
+        await page.click("#theme"); // dark → auto
+        assert.equal(await page.getAttribute("html", "data-theme"), null);
+      });
+
       await t.step("every control is reachable from the keyboard", async () => {
         await page.setViewportSize({ width: 1280, height: 900 });
         await page.goto(`${svc.url}/#/series`);
