@@ -18,7 +18,7 @@ const PAIRS = 300, N = 256, M = 199, ALPHA = 0.05;
 // binomial Monte Carlo margin of a rejection rate over 300 pairs: 3σ = 3√(0.05·0.95/300)
 const MARGIN = 3 * Math.sqrt((ALPHA * (1 - ALPHA)) / PAIRS);
 
-function trial(phi: number, k: number) {
+function trial(phi: number, k: number, method: "phase" | "ar1" = "phase") {
   const x = preprocessSeries(ar1Surrogate(N, phi, 1, randomStream(1000, 2 * k)), {
     method: "mean",
   });
@@ -26,7 +26,7 @@ function trial(phi: number, k: number) {
     method: "mean",
   });
   const window = { minLag: -12, maxLag: 12 };
-  const plan = planSurrogateLagTest(x, y, { ...window, seed: k });
+  const plan = planSurrogateLagTest(x, y, { ...window, seed: k, method });
   const mc = combineSurrogateChunks(plan, [surrogateLagChunk({ plan, start: 0, end: M })]);
   const row = laggedCorrelationTable(x, y, window)[12]; // lag 0
   return {
@@ -50,6 +50,13 @@ Deno.test("phase-randomisation test rejects about 5 % of independent AR(1) 0.9 p
   assert.ok(Math.abs(fam - ALPHA) <= MARGIN, `family-wise rejection ${fam}`);
   // naive t test with n − 2 df: N_eff/N ≈ (1 − 0.81)/(1 + 0.81) ≈ 0.1, so it rejects far more
   assert.ok(naive > 0.3, `naive rejection ${naive}`);
+});
+
+Deno.test("AR(1)-surrogate test rejects about 5 % of independent AR(1) 0.9 pairs", () => {
+  // the null model is the true one here, so the test should hold its level
+  let rej = 0;
+  for (let k = 0; k < PAIRS; k++) if (trial(0.9, 2 * PAIRS + k, "ar1").pLag0 <= ALPHA) rej++;
+  assert.ok(Math.abs(rej / PAIRS - ALPHA) <= MARGIN, `AR(1) surrogate rejection ${rej / PAIRS}`);
 });
 
 Deno.test("phase-randomisation p-values are near uniform on white noise", () => {
