@@ -246,6 +246,18 @@ export const spectraKind: RunKind<typeof SpectraRequest> = {
         `periods longer than the series' span (${span.toFixed(1)} yr) are not resolved`,
       );
     }
+    {
+      const dts: number[] = [];
+      for (let i = 1; i < time.length; i++) dts.push(time[i] - time[i - 1]);
+      const nyquistPeriod = 2 * median(dts);
+      if (g.min < nyquistPeriod * (1 - 1e-9)) {
+        warnings.push(
+          `periods shorter than twice the median sampling interval (${
+            nyquistPeriod.toPrecision(3)
+          } yr) can be aliases of longer ones`,
+        );
+      }
+    }
     // large grids are split into fixed chunks of frequencies (the same split whatever the
     // number of workers, so the numbers do not depend on it) and computed in parallel
     let power: Float64Array;

@@ -287,6 +287,7 @@ Deno.test("POST /v1/spectra: analytic false alarm, FFT, and empty grids", async 
       const r = run.result;
       assert.ok(Math.abs(r.dominant.period - 11) < 0.6);
       assert.ok(r.dominant.false_alarm_analytic < 1e-6);
+      assert.deepEqual(r.warnings, []); // default grid: from twice the spacing to the span
       // SCIENCE.md §7: M = −6.362 + 1.193 N + 0.00098 N² for N = 289
       assert.ok(
         Math.abs(
