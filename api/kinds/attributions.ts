@@ -197,6 +197,8 @@ export const attributionKind: RunKind<typeof AttributionRequest> = {
         max_minus_min: c.estimate * amp,
         max_minus_min_ci: [c.lower * amp, c.upper * amp],
         max_minus_min_units: climate.units,
+        max_minus_min_note: "sensitivity × peak-to-trough solar amplitude; the interval carries " +
+          "the sensitivity's uncertainty only (the amplitude is taken as exact)",
       };
     }
     const outputs: Record<string, OutputSeries> = {};
