@@ -1,6 +1,8 @@
 /**
- * The built-in page: `GET /` serves a static HTML shell, and `/ui/*` its stylesheet and two
- * small ES modules (plain JavaScript with JSDoc types, checked by `deno check`; no build step).
+ * The built-in page: `GET /` serves a static HTML shell, and `/ui/*` its stylesheet and a few
+ * small ES modules (plain JavaScript with JSDoc types, checked by `deno check`; no build step):
+ * `page.js` (views and routing), `forms.js` (forms from the OpenAPI schemas), `service.js`
+ * (requests and problems), `dom.js` (elements from text) and `snippets.js` (curl and Python).
  * The page is a client of the public API: it works with no outside network, loads nothing
  * from elsewhere, and shows every request it makes as `curl` and Python `requests`.
  *
@@ -11,6 +13,9 @@ import html from "./page.html" with { type: "text" };
 import css from "./page.css" with { type: "text" };
 import pageJs from "./page.js" with { type: "text" };
 import snippetsJs from "./snippets.js" with { type: "text" };
+import domJs from "./dom.js" with { type: "text" };
+import serviceJs from "./service.js" with { type: "text" };
+import formsJs from "./forms.js" with { type: "text" };
 import icon from "./icon.svg" with { type: "text" };
 
 /** Content Security Policy of the page: only this origin; inline styles for chart SVGs. */
@@ -38,6 +43,9 @@ export const UI_ASSETS: readonly Asset[] = [
   { path: "/ui/page.css", type: "text/css; charset=utf-8", body: css },
   { path: "/ui/page.js", type: "text/javascript; charset=utf-8", body: pageJs },
   { path: "/ui/snippets.js", type: "text/javascript; charset=utf-8", body: snippetsJs },
+  { path: "/ui/dom.js", type: "text/javascript; charset=utf-8", body: domJs },
+  { path: "/ui/service.js", type: "text/javascript; charset=utf-8", body: serviceJs },
+  { path: "/ui/forms.js", type: "text/javascript; charset=utf-8", body: formsJs },
   { path: "/ui/icon.svg", type: "image/svg+xml", body: icon },
 ];
 

@@ -53,9 +53,29 @@ Deno.test("the page loads nothing from another origin (no CDN, no external fonts
   }
 });
 
-Deno.test("page.js sets text from the service as text, never as HTML", () => {
-  const js = UI_ASSETS.find((a) => a.path === "/ui/page.js")!.body;
-  assert.doesNotMatch(js, /\binnerHTML\b|\bouterHTML\b|insertAdjacentHTML|document\.write/);
+Deno.test("the page's scripts set text from the service as text, never as HTML", () => {
+  const scripts = UI_ASSETS.filter((a) => a.path.endsWith(".js"));
+  assert.ok(scripts.length >= 5);
+  for (const a of scripts) {
+    assert.doesNotMatch(
+      a.body,
+      /\binnerHTML\b|\bouterHTML\b|insertAdjacentHTML|document\.write|\beval\(/,
+      a.path,
+    );
+  }
+});
+
+Deno.test("every module the page imports is served", () => {
+  const served = new Set(UI_ASSETS.map((a) => a.path));
+  let imports = 0;
+  for (const a of UI_ASSETS.filter((x) => x.path.endsWith(".js"))) {
+    for (const [, spec] of a.body.matchAll(/^import [^;]*? from "(\.\/[\w.]+)";/gms)) {
+      assert.ok(served.has("/ui/" + spec.slice(2)), `${a.path} imports ${spec}`);
+      imports++;
+    }
+  }
+  // page.js imports four modules, service.js and forms.js two each.
+  assert.ok(imports >= 8, `only ${imports} imports found`);
 });
 
 Deno.test("shellQuote() survives a real POSIX shell for awkward strings", async (t) => {
