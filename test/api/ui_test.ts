@@ -189,3 +189,64 @@ Deno.test("shellQuote() leaves safe words bare", () => {
   assert.equal(shellQuote("http://h/v1/series"), "http://h/v1/series");
   assert.equal(shellQuote(""), "''");
 });
+
+/** WCAG 2.1 relative luminance of an sRGB colour "#rrggbb" (W3C WCAG 2.1, "relative luminance"). */
+function luminance(hex: string): number {
+  const [r, g, b] = [1, 3, 5].map((i) => parseInt(hex.slice(i, i + 2), 16) / 255).map((c) =>
+    c <= 0.04045 ? c / 12.92 : ((c + 0.055) / 1.055) ** 2.4
+  );
+  return 0.2126 * r + 0.7152 * g + 0.0722 * b;
+}
+
+/** WCAG 2.1 contrast ratio (L1 + 0.05) / (L2 + 0.05). */
+function contrast(a: string, b: string): number {
+  const [hi, lo] = [luminance(a), luminance(b)].sort((x, y) => y - x);
+  return (hi + 0.05) / (lo + 0.05);
+}
+
+/** The custom properties of the first CSS block that starts with `selector {`. */
+function palette(css: string, selector: string): Record<string, string> {
+  const start = css.indexOf(selector + " {");
+  assert.ok(start >= 0, selector);
+  const block = css.slice(start, css.indexOf("}", start));
+  return Object.fromEntries(
+    [...block.matchAll(/--([\w-]+):\s*(#[0-9a-f]{6})/gi)].map((m) => [m[1], m[2]]),
+  );
+}
+
+Deno.test("page colours meet WCAG 2.1 AA text contrast (4.5:1) in light and dark", async (t) => {
+  const css = UI_ASSETS.find((a) => a.path === "/ui/page.css")!.body;
+  // WCAG 2.1 success criterion 1.4.3: at least 4.5:1 for normal text. The check of the formula:
+  // black on white is 21:1 (W3C WCAG 2.1 definition of contrast ratio).
+  assert.equal(Math.round(contrast("#000000", "#ffffff") * 100) / 100, 21);
+  const pairs: [string, string][] = [
+    ["ink", "bg"],
+    ["ink", "panel"],
+    ["muted", "bg"],
+    ["muted", "panel"],
+    ["muted", "code-bg"],
+    ["link", "bg"],
+    ["link", "panel"],
+    ["accent", "bg"],
+    ["accent-ink", "accent"],
+    ["ok", "ok-bg"],
+    ["warn", "warn-bg"],
+    ["bad", "bad-bg"],
+    ["ink", "bad-bg"],
+    ["ink", "warn-bg"],
+    ["ink", "ok-bg"],
+    ["ink", "code-bg"],
+  ];
+  for (const [name, selector] of [["light", ":root"], ["dark", ':root[data-theme="dark"]']]) {
+    await t.step(name, () => {
+      const p = palette(css, selector);
+      for (const [fg, bg] of pairs) {
+        const ratio = contrast(p[fg], p[bg]);
+        assert.ok(ratio >= 4.5, `${name}: --${fg} on --${bg} is ${ratio.toFixed(2)}:1`);
+      }
+    });
+  }
+  // The dark palette under prefers-color-scheme repeats the explicit dark one.
+  const auto = palette(css, ':root:not([data-theme="light"])');
+  assert.deepEqual(auto, palette(css, ':root[data-theme="dark"]'));
+});
