@@ -160,7 +160,7 @@ export function laggedCorrelation(
       );
     }
     r[j] = Math.max(-1, Math.min(1, cxy / Math.sqrt(cxx * cyy)));
-    rFull[j] = fxy / Math.sqrt(sxx * syy);
+    rFull[j] = Math.max(-1, Math.min(1, fxy / Math.sqrt(sxx * syy)));
     nn[j] = m;
   }
   return { lags, r, rFull, n: nn };

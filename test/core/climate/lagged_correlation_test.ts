@@ -193,3 +193,15 @@ Deno.test("gaussianHighPass() FFT form equals the direct sum for wide kernels", 
     close(fast[i], x[i] - s / ws, 1e-12, `sample ${i}`);
   }
 });
+
+Deno.test("laggedCorrelationTable() handles a perfectly correlated pair without NaN", () => {
+  const x = Float64Array.from({ length: 50 }, (_, i) => Math.sin(i / 3) + 0.01 * i);
+  for (const norm of ["overlap", "full"] as const) {
+    const rows = laggedCorrelationTable(x, x, { minLag: -2, maxLag: 2 }, norm);
+    const r0 = rows[2];
+    assert.ok(Math.abs(r0.r - 1) < 1e-12 && r0.r <= 1 && r0.r_full <= 1);
+    assert.equal(r0.p_analytic, 0);
+    assert.equal(r0.ci_lower, null);
+    assert.ok(JSON.stringify(rows).indexOf("NaN") < 0);
+  }
+});
