@@ -19,6 +19,8 @@ import {
   CoverageFields,
   jsonArray,
   jsonNumber,
+  RUN_ID,
+  seriesFromRun,
   solarCautions,
 } from "./climate_common.ts";
 
@@ -28,7 +30,11 @@ const Regressor = z.object({
   name: z.string().regex(/^[a-z][a-z0-9_]{0,39}$/, "lower-case letters, digits and _").openapi({
     example: "solar",
   }),
-  series: SeriesRef,
+  series: SeriesRef.optional(),
+  run: z.string().regex(RUN_ID, "must be a run id (UUIDv7)").optional().openapi({
+    description: "Instead of series: a run whose `tsi` or `forcing` output is the regressor " +
+      "(e.g. a TSI reconstruction or a forcing run)",
+  }),
   role: z.enum(["solar", "enso", "volcanic", "anthropogenic", "other"]).default("other").openapi({
     description: "What the regressor stands for; exactly one `solar` regressor gives the " +
       "solar sensitivity and the implied solar maximum-minus-minimum response",
@@ -77,11 +83,19 @@ export const attributionKind: RunKind<typeof AttributionRequest> = {
     "implied solar maximum-minus-minimum response, and warnings for collinear regressors or " +
     "residuals that stay autocorrelated.",
   request: AttributionRequest,
+  runRefs: (p) => p.regressors.flatMap((r) => (r.run ? [r.run] : [])),
   estimateSeconds: (p) =>
     0.1 + 0.02 * p.regressors.reduce((s, r) => s + r.max_lag - r.min_lag + 1, 0),
   compute(p, ctx) {
     const climate = ctx.series(refId(p.climate));
-    const regs = p.regressors.map((r) => ctx.series(refId(r.series)));
+    const regs = p.regressors.map((r, k) => {
+      if ((r.series === undefined) === (r.run === undefined)) {
+        throw new InputProblem(`/regressors/${k}/series`, "give exactly one of series or run");
+      }
+      return r.run
+        ? seriesFromRun(ctx, r.run, `/regressors/${k}/run`)
+        : ctx.series(refId(r.series!));
+    });
     const names = new Set<string>();
     p.regressors.forEach((r, k) => {
       if (names.has(r.name) || (p.trend && r.name === "trend")) {
@@ -100,7 +114,7 @@ export const attributionKind: RunKind<typeof AttributionRequest> = {
     }
     const axis = analysisAxis(
       [climate, ...regs],
-      ["/climate", ...p.regressors.map((_, k) => `/regressors/${k}/series`)],
+      ["/climate", ...p.regressors.map((r, k) => `/regressors/${k}/${r.run ? "run" : "series"}`)],
       p.resolution,
       p,
       10,

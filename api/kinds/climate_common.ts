@@ -6,10 +6,62 @@
  * @module
  */
 import { z } from "@hono/zod-openapi";
-import { InputProblem } from "../runs/kind.ts";
+import { InputProblem, type OutputSeries, type RunContext } from "../runs/kind.ts";
 import type { StoredSeries } from "../store/types.ts";
 import { alignSeries } from "../../core/series/mod.ts";
-import { formatIsoTime } from "../../core/time/mod.ts";
+import { formatIsoTime, inferResolution } from "../../core/time/mod.ts";
+
+/** A run id (UUIDv7). */
+export const RUN_ID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/;
+
+/** Outputs a solar input may be taken from, in order of preference. */
+const SOLAR_OUTPUTS = ["tsi", "forcing"];
+
+/**
+ * A solar series taken from another run's output: a TSI reconstruction (`tsi`) or a forcing
+ * run (`forcing`), as a series-like object for the alignment (null values become gaps).
+ *
+ * @param ctx the run context (the run must be listed by the kind's runRefs)
+ * @param id run id
+ * @param pointer JSON Pointer of the field, for problems
+ */
+export function seriesFromRun(ctx: RunContext, id: string, pointer: string): StoredSeries {
+  const run = ctx.run(id);
+  const outputs = run.result?.outputs as Record<string, OutputSeries> | undefined;
+  const name = SOLAR_OUTPUTS.find((k) => outputs?.[k]);
+  if (!outputs || !name) {
+    throw new InputProblem(
+      pointer,
+      `run ${id} (${run.kind}) has no ${
+        SOLAR_OUTPUTS.join(" or ")
+      } output to use as a solar series`,
+    );
+  }
+  const o = outputs[name];
+  if (o.time.length < 2) {
+    throw new InputProblem(pointer, `output ${name} of run ${id} is too short`);
+  }
+  const time = Float64Array.from(o.time);
+  const value = Float64Array.from(o.value, (v) => (v === null ? NaN : v));
+  return {
+    id: `run:${id}/${name}`,
+    name: o.name,
+    quantity: o.quantity,
+    units: o.units,
+    description: o.description ?? null,
+    source: `output ${name} of run ${id}`,
+    version: null,
+    resolution: inferResolution(time),
+    n: time.length,
+    start: time[0],
+    end: time[time.length - 1],
+    derived_from: id,
+    created_at: run.created_at,
+    time,
+    value,
+    uncertainty: null,
+  };
+}
 
 /** Resolution of the common axis of a solar–climate analysis. */
 export const AnalysisResolution = z.enum(["monthly", "annual"]).optional().openapi({

@@ -17,9 +17,8 @@ import {
   CAUTION_REVIEW,
   CoverageFields,
   jsonArray,
+  RUN_ID,
 } from "./climate_common.ts";
-
-const RUN_ID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/;
 
 export const CompositeRequest = z.object({
   series: SeriesRef.openapi({ description: "The climate series to composite" }),

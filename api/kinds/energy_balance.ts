@@ -18,9 +18,7 @@ import {
   twoBoxSinusoidResponse,
   twoBoxTransfer,
 } from "../../core/climate/mod.ts";
-import { CAUTION_REVIEW, jsonArray } from "./climate_common.ts";
-
-const RUN_ID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/;
+import { CAUTION_REVIEW, jsonArray, RUN_ID } from "./climate_common.ts";
 
 const Sinusoid = z.object({
   amplitude: z.number().positive().max(1000).default(0.08875).openapi({

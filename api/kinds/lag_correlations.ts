@@ -23,11 +23,19 @@ import {
   jsonArray,
   jsonNumber,
   PreprocessField,
+  RUN_ID,
+  seriesFromRun,
   solarCautions,
 } from "./climate_common.ts";
 
 export const LagCorrelationRequest = z.object({
-  solar: SeriesRef.openapi({ description: "Solar series (sunspot number, TSI, forcing, ...)" }),
+  solar: SeriesRef.optional().openapi({
+    description: "Solar series (sunspot number, TSI, forcing, ...)",
+  }),
+  solar_run: z.string().regex(RUN_ID, "must be a run id (UUIDv7)").optional().openapi({
+    description: "Instead of solar: a run whose `tsi` output (a reconstruction) or `forcing` " +
+      "output (a forcing run) is the solar series",
+  }),
   climate: SeriesRef.openapi({ description: "Climate series (temperature anomaly, ...)" }),
   resolution: AnalysisResolution,
   ...CoverageFields,
@@ -82,6 +90,7 @@ export const lagCorrelationKind: RunKind<typeof LagCorrelationRequest> = {
     "preprocessing. The family-wise p-value compares the best |r| over the whole lag window " +
     "with the surrogates' best |r| over the same window, so searching many lags is paid for.",
   request: LagCorrelationRequest,
+  runRefs: (p) => (p.solar_run ? [p.solar_run] : []),
   estimateSeconds(p) {
     if (p.significance === "none") return 0.05;
     const hp = p.preprocess === "high_pass" ? 20 : 1;
@@ -89,7 +98,16 @@ export const lagCorrelationKind: RunKind<typeof LagCorrelationRequest> = {
     return 0.05 + (p.surrogates * 0.12e-3 * hp * ((p.max_lag ?? 36) + 60)) / 300;
   },
   async compute(p, ctx) {
-    const solar = ctx.series(refId(p.solar)), climate = ctx.series(refId(p.climate));
+    if ((p.solar === undefined) === (p.solar_run === undefined)) {
+      throw new InputProblem(
+        "/solar",
+        "give exactly one of solar (a series) or solar_run (a run id)",
+      );
+    }
+    const solar = p.solar_run
+      ? seriesFromRun(ctx, p.solar_run, "/solar_run")
+      : ctx.series(refId(p.solar!));
+    const climate = ctx.series(refId(p.climate));
     const axis = analysisAxis([solar, climate], ["/solar", "/climate"], p.resolution, p, 10);
     const n = axis.time.length;
     const { minLag, maxLag } = window(p, axis.resolution);

@@ -452,3 +452,49 @@ Deno.test("POST /v1/energy-balance runs on a /v1/forcing run's output", async ()
     await svc.close();
   }
 });
+
+Deno.test("lag correlations and attributions take the solar series from a forcing run", async () => {
+  const svc = await makeTestApp();
+  try {
+    const st = randomStream(31, 0);
+    const n = 600;
+    const tsiv = Array.from(
+      { length: n },
+      (_, i) => 1361 + 0.5 * Math.sin((2 * Math.PI * i) / 132) + 0.2 * st.normal(),
+    );
+    const tsi = monthlySeries("invented tsi", "tsi", "W m-2", 1900, n, (i) => tsiv[i]);
+    const f = await (await svc.post("/v1/forcing", {
+      tsi,
+      reference: { kind: "period", period: { start: "1900", end: "1949" } },
+    })).json();
+    assert.equal(f.status, "succeeded", JSON.stringify(f).slice(0, 300));
+    let e = 0;
+    const climate = monthlySeries("invented station", "temperature_anomaly", "K", 1900, n, (i) => {
+      e = 0.5 * e + 0.02 * st.normal();
+      return 0.5 * (i >= 8 ? tsiv[i - 8] - 1361 : 0) * 0.1775 + e;
+    });
+    const lc = await (await svc.post("/v1/lag-correlations", {
+      solar_run: f.id,
+      climate,
+      max_lag: 24,
+      surrogates: 100,
+    })).json();
+    assert.equal(lc.status, "succeeded", JSON.stringify(lc).slice(0, 300));
+    assert.equal(lc.result.best.lag, 8);
+    assert.deepEqual(lc.input_runs, [f.id]);
+    const at = await (await svc.post("/v1/attributions", {
+      climate,
+      regressors: [{ name: "solar", role: "solar", run: f.id, min_lag: 0, max_lag: 24 }],
+    })).json();
+    assert.equal(at.status, "succeeded", JSON.stringify(at).slice(0, 300));
+    assert.equal(at.result.solar.lag, 8);
+    assert.equal(at.result.solar.sensitivity_units, "K per W m-2");
+    const both = await assertProblem(
+      await svc.post("/v1/lag-correlations", { solar: tsi, solar_run: f.id, climate }),
+      422,
+    );
+    assert.equal(both.errors[0].pointer, "/solar");
+  } finally {
+    await svc.close();
+  }
+});
