@@ -170,6 +170,11 @@ export const lagCorrelationKind: RunKind<typeof LagCorrelationRequest> = {
         method: p.significance,
         normalisation: p.normalisation,
         preprocess: pre,
+        // the high-pass is not idempotent: surrogates come from the detrended solar series and
+        // are high-passed once, like the observations
+        surrogateSource: p.preprocess === "high_pass"
+          ? preprocessSeries(axis.values[0], { method: "linear" })
+          : undefined,
       });
       if (ctx.cancelled()) throw new CancelledError();
       const per = Math.ceil(p.surrogates / 16);

@@ -49,6 +49,13 @@ export interface SurrogateLagOptions extends LagWindow {
   preprocess?: PreprocessOptions;
   /** Seed of the surrogate streams, integer in [0, 2^32). */
   seed: number;
+  /**
+   * The series the surrogates are built from, before the preprocessing is applied to them.
+   * @default x. For the Gaussian high-pass, which is not idempotent, pass the solar series
+   * before high-passing (e.g. only detrended), so that each surrogate is filtered once, as the
+   * observations were.
+   */
+  surrogateSource?: Float64Array;
 }
 
 /** Everything fixed for the test; structured-clonable (plain numbers and typed arrays). */
@@ -138,6 +145,17 @@ export function planSurrogateLagTest(
     throw new RangeError(`Cannot plan surrogate test: seed must be an integer in [0, 2^32)`);
   }
   const obs = laggedCorrelation(x, y, options);
+  const src = options.surrogateSource ?? x;
+  if (src.length !== x.length) {
+    throw new RangeError(
+      `Cannot plan surrogate test: surrogateSource has ${src.length} values, x has ${x.length}`,
+    );
+  }
+  for (let i = 0; i < src.length; i++) {
+    if (!Number.isFinite(src[i])) {
+      throw new RangeError(`Cannot plan surrogate test: surrogateSource[${i}] is not finite`);
+    }
+  }
   const stat = normalisation === "full" ? obs.rFull : obs.r;
   const n = x.length;
   const nl = obs.lags.length;
@@ -184,12 +202,12 @@ export function planSurrogateLagTest(
   }
   let phi = 0, sigma = 1;
   if (method === "ar1") {
-    phi = lag1Autocorrelation(x);
+    phi = lag1Autocorrelation(src);
     let mx = 0;
-    for (let i = 0; i < n; i++) mx += x[i];
+    for (let i = 0; i < n; i++) mx += src[i];
     mx /= n;
     let vx = 0;
-    for (let i = 0; i < n; i++) vx += (x[i] - mx) ** 2;
+    for (let i = 0; i < n; i++) vx += (src[i] - mx) ** 2;
     sigma = Math.sqrt(vx / n);
   }
   return {
@@ -201,7 +219,7 @@ export function planSurrogateLagTest(
     seed: options.seed,
     degree,
     cutoffSamples: pre.cutoffSamples ?? 0,
-    amplitude: method === "phase" ? dftAmplitudes(x) : new Float64Array(0),
+    amplitude: method === "phase" ? dftAmplitudes(src) : new Float64Array(0),
     phi,
     sigma,
     y: Float64Array.from(y),
