@@ -20,7 +20,7 @@ const Reference = z.discriminatedUnion("kind", [
     time: TimeInput.openapi({
       description: "Time of a cycle minimum (e.g. from a cycle analysis)",
     }),
-    halfWidthYears: z.number().gt(0).max(5).default(0.5).openapi({
+    half_width_years: z.number().gt(0).max(5).default(0.5).openapi({
       description: "Average TSI over the minimum ± this many years",
     }),
   }),
@@ -49,7 +49,7 @@ const Request = z.object({
 export const forcing: RunKind<typeof Request> = {
   kind: "forcing",
   path: "/v1/forcing",
-  algorithmVersion: "1",
+  algorithmVersion: "2",
   tag: "Irradiance",
   summary: "Solar radiative forcing ΔF = ΔTSI·(1 − α)/4 relative to a reference period",
   description: "Converts TSI to radiative forcing relative to the mean TSI of a reference " +
@@ -96,8 +96,8 @@ export const forcing: RunKind<typeof Request> = {
       refLabel = `mean TSI over [${refPeriod.start.toFixed(4)}, ${refPeriod.end.toFixed(4)})`;
     } else {
       const t = timeBound(ref.time, "middle", "/reference/time");
-      refPeriod = { start: t - ref.halfWidthYears, end: t + ref.halfWidthYears };
-      refLabel = `mean TSI within ±${ref.halfWidthYears} yr of the cycle minimum at ${
+      refPeriod = { start: t - ref.half_width_years, end: t + ref.half_width_years };
+      refLabel = `mean TSI within ±${ref.half_width_years} yr of the cycle minimum at ${
         t.toFixed(3)
       }`;
     }
@@ -130,7 +130,7 @@ export const forcing: RunKind<typeof Request> = {
       formula: "ΔF = ΔTSI·(1 − α)/4",
       albedo: params.albedo,
       reference: { ...refPeriod, label: refLabel, tsi: f.referenceTsi, points: f.referencePoints },
-      referenceSd: f.referenceSd,
+      reference_sd: f.referenceSd,
       source,
       outputs: { forcing: out },
       warnings: f.sd ? [] : ["The TSI input carries no uncertainty, so the forcing has none."],

@@ -45,7 +45,7 @@ const Position = z.discriminatedUnion("kind", [
     kind: z.literal("heliographic"),
     latitude: z.array(z.number().min(-90).max(90)).openapi({ description: "degrees" }),
     longitude: z.array(z.number().min(-360).max(360)).openapi({ description: "degrees" }),
-    longitudeFrom: z.enum(["central_meridian", "carrington"]).default("central_meridian")
+    longitude_from: z.enum(["central_meridian", "carrington"]).default("central_meridian")
       .openapi({
         description: "central_meridian: longitude from the central meridian; carrington: " +
           "Carrington longitude, with the date's L0 and B0 from Meeus (1998) ch. 29",
@@ -58,7 +58,7 @@ const GroupRecords = z.object({
     description: "Observation date of each record (ISO day or decimal year); grouped per day",
   }),
   area: z.array(z.number().min(0)).openapi({ description: "Area of each record" }),
-  areaKind: z.enum(["true", "projected"]).default("true").openapi({
+  area_kind: z.enum(["true", "projected"]).default("true").openapi({
     description: "true: foreshortening-corrected, millionths of the hemisphere (MSH); " +
       "projected: millionths of the disc, converted with A_true = A_proj/(2μ)",
   }),
@@ -70,20 +70,20 @@ const GroupRecords = z.object({
 
 const Request = z.object({
   groups: GroupRecords.optional(),
-  totalArea: SeriesRef.optional().openapi({
+  total_area: SeriesRef.optional().openapi({
     description: "Instead of groups: a sunspot_area series (total true area, MSH); the position " +
       "factor is replaced by its disc average, exactly 1",
   }),
   contrast: Contrast.default({ kind: "constant", value: 0.32 }),
-  quietSunTsi: z.number().min(1300).max(1400).default(1360.8).openapi({
+  quiet_sun_tsi: z.number().min(1300).max(1400).default(1360.8).openapi({
     description: "S_Q for the darkening ΔS = −S_Q·PSI, W m-2 (Kopp & Lean 2011: 1360.8)",
   }),
 }).superRefine((v, ctx) => {
-  if ((v.groups === undefined) === (v.totalArea === undefined)) {
+  if ((v.groups === undefined) === (v.total_area === undefined)) {
     ctx.addIssue({
       code: "custom",
       path: ["groups"],
-      message: "give exactly one of groups (records) or totalArea (a series)",
+      message: "give exactly one of groups (records) or total_area (a series)",
     });
   }
   const g = v.groups;
@@ -118,7 +118,7 @@ function contrastModel(c: Params["contrast"]): ContrastModel {
 export const irradianceDarkening: RunKind<typeof Request> = {
   kind: "irradiance_darkening",
   path: "/v1/irradiance/darkening",
-  algorithmVersion: "1",
+  algorithmVersion: "2",
   tag: "Irradiance",
   summary: "Sunspot darkening: daily Photometric Sunspot Index and ΔS in W m-2",
   description: "PSI = Σ C·A·μ(3μ + 2)/2 per day (Hudson et al. 1982; Fröhlich, Pap & Hudson " +
@@ -131,15 +131,15 @@ export const irradianceDarkening: RunKind<typeof Request> = {
   estimateSeconds: (p) => (p.groups?.time.length ?? 0) / 2e6,
   compute(params, ctx) {
     const contrast = contrastModel(params.contrast);
-    const sq = params.quietSunTsi;
+    const sq = params.quiet_sun_tsi;
     const warnings: string[] = [];
     let time: number[], psi: Float64Array, groups: number[] | null = null;
     let positionFactor: string;
-    if (params.totalArea !== undefined) {
-      const s = ctx.series(refId(params.totalArea));
+    if (params.total_area !== undefined) {
+      const s = ctx.series(refId(params.total_area));
       if (s.quantity !== "sunspot_area") {
         throw new InputProblem(
-          "/totalArea",
+          "/total_area",
           `series ${s.id} has quantity ${s.quantity}; a sunspot_area series (MSH) is needed`,
         );
       }
@@ -147,7 +147,7 @@ export const irradianceDarkening: RunKind<typeof Request> = {
       for (let i = 0; i < s.value.length; i++) if (Number.isFinite(s.value[i])) keep.push(i);
       for (const i of keep) {
         if (s.value[i] < 0) {
-          throw new InputProblem("/totalArea", `series ${s.id} has a negative area at index ${i}`);
+          throw new InputProblem("/total_area", `series ${s.id} has a negative area at index ${i}`);
         }
       }
       psi = Float64Array.from(keep, (i) => psiFromTotalArea(s.value[i], contrast));
@@ -174,7 +174,7 @@ export const irradianceDarkening: RunKind<typeof Request> = {
         else {
           const noon = cellBounds(day[i], "daily").middle;
           const geo = solarDiscGeometry(julianDay(noon));
-          const dl = p.longitudeFrom === "central_meridian" ? p.longitude[i] : p.longitude[i] -
+          const dl = p.longitude_from === "central_meridian" ? p.longitude[i] : p.longitude[i] -
             geo.l0Deg;
           m = heliographicMu(p.latitude[i], dl, geo.b0Deg);
           if (m < -0.05) {
@@ -188,7 +188,7 @@ export const irradianceDarkening: RunKind<typeof Request> = {
           if (m <= 0) atLimb++;
         }
         mu[i] = Math.min(1, Math.max(0, m));
-        if (g.areaKind === "projected") {
+        if (g.area_kind === "projected") {
           if (!(mu[i] > 0)) {
             throw new InputProblem(
               `/groups/position`,
@@ -209,7 +209,7 @@ export const irradianceDarkening: RunKind<typeof Request> = {
       psi = d.psi;
       groups = [...d.groups];
       positionFactor = g.position.kind === "heliographic"
-        ? `per group μ(3μ + 2)/2, μ from heliographic coordinates (${g.position.longitudeFrom} longitude; B0, L0 from Meeus 1998 ch. 29)`
+        ? `per group μ(3μ + 2)/2, μ from heliographic coordinates (${g.position.longitude_from} longitude; B0, L0 from Meeus 1998 ch. 29)`
         : "per group μ(3μ + 2)/2";
       if (atLimb > 0) {
         warnings.push(
@@ -230,15 +230,15 @@ export const irradianceDarkening: RunKind<typeof Request> = {
     for (const v of psi) (maxPsi = Math.max(maxPsi, v)), (sum += v);
     return {
       method: "Photometric Sunspot Index, Hudson et al. 1982 / Fröhlich, Pap & Hudson 1994",
-      positionFactor,
+      position_factor: positionFactor,
       contrast: params.contrast,
-      quietSunTsi: sq,
+      quiet_sun_tsi: sq,
       days: psi.length,
-      groupsPerDay: groups,
+      groups_per_day: groups,
       summary: {
-        meanPsi: psi.length ? sum / psi.length : null,
-        maxPsi,
-        maxDarkening: -sq * maxPsi,
+        mean_psi: psi.length ? sum / psi.length : null,
+        max_psi: maxPsi,
+        max_darkening: -sq * maxPsi,
       },
       outputs: {
         psi: {

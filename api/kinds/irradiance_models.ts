@@ -27,13 +27,13 @@ import {
   cellDays,
   cycleAmplitudeWarning,
   IRRADIANCE_CAUTIONS,
-  jsonSafe,
   nullable,
   parsePeriod,
   PeriodInput,
   quietSunWarning,
   requireSunspotVersion,
   seriesResolution,
+  snakeKeys,
 } from "./irradiance_common.ts";
 
 const Term = z.object({
@@ -46,7 +46,7 @@ const Term = z.object({
       "a PSI series entering as −b·S_ref·PSI; other: any further proxy, entering like a " +
       "facular term",
   }),
-  quietLevel: z.number().optional().openapi({
+  quiet_level: z.number().optional().openapi({
     description: "Quiet-Sun level F_Q of the term (ignored for sunspot_darkening). Default: " +
       "the 1st percentile of the term over the calibration points",
   }),
@@ -55,11 +55,11 @@ const Term = z.object({
 const Request = z.object({
   tsi: SeriesRef.openapi({ description: "Measured TSI record (quantity tsi, W m-2)" }),
   terms: z.array(Term).min(1).max(6),
-  sunspotNumber: SeriesRef.optional().openapi({
+  sunspot_number: SeriesRef.optional().openapi({
     description: "Sunspot-number series (with a declared version) for fitting the " +
       "sunspot → proxy mappings that back-extension needs",
   }),
-  mappingForm: z.enum(["auto", "linear", "saturating"]).default("auto").openapi({
+  mapping_form: z.enum(["auto", "linear", "saturating"]).default("auto").openapi({
     description: "Form of the sunspot → proxy mappings; auto chooses by AIC",
   }),
   method: z.enum(["prais_winsten", "ols"]).default("prais_winsten").openapi({
@@ -70,7 +70,7 @@ const Request = z.object({
     description: "Folds of the time-blocked cross-validation (contiguous blocks); 0 = none",
   }),
   period: PeriodInput.optional().openapi({ description: "Restrict calibration to this period" }),
-  psiReference: z.number().min(1300).max(1400).default(1360.8).openapi({
+  psi_reference: z.number().min(1300).max(1400).default(1360.8).openapi({
     description: "S_ref in the darkening regressor −S_ref·PSI, W m-2",
   }),
 }).superRefine((v, ctx) => {
@@ -83,41 +83,50 @@ const Request = z.object({
   });
 }).openapi("ModelRequest");
 
-/** The stored model, as reconstructions read it from `result.model`. */
+/** The stored model, as reconstructions read it from `result.model` (snake_case JSON). */
 export interface StoredModel {
   method: "ols" | "prais_winsten";
   names: string[];
   terms: {
     name: string;
     role: "facular" | "sunspot_darkening" | "other";
-    quietLevel: number;
+    quiet_level: number;
     min: number;
     max: number;
     series: string;
     quantity: string;
     units: string;
   }[];
-  psiReference: number;
+  psi_reference: number;
   coefficients: number[];
   covariance: number[][];
-  dfResidual: number;
-  residualSd: number;
+  df_residual: number;
+  residual_sd: number;
   rho: number;
-  stepDays: number;
+  step_days: number;
   resolution: CellResolution;
-  calibrationPeriod: { start: number; end: number };
-  tQuantile975: number;
-  quietSun: { value: number; se: number; lower: number; upper: number };
+  calibration_period: { start: number; end: number };
+  t_quantile975: number;
+  quiet_sun: { value: number; se: number; lower: number; upper: number };
+}
+
+/** A sunspot → proxy mapping as stored: the core's {@link SunspotMappingChoice} with
+ * snake_case keys (`chosen.sunspot_max`, `chosen.standard_errors`, ...). */
+export interface StoredMappingChoice {
+  chosen: Record<string, unknown> & { form: string; sunspot_max: number };
+  linear: Record<string, unknown>;
+  saturating: Record<string, unknown> | null;
+  reason: string;
 }
 
 /** Mappings as stored in `result.mappings`. */
 export interface StoredMappings {
-  sunspotSeries: string;
-  sunspotVersion: string;
+  sunspot_series: string;
+  sunspot_version: string;
   resolution: CellResolution;
-  stepDays: number;
-  terms: Record<string, SunspotMappingChoice>;
-  backExtension: { residualSd: number; rho: number; stepDays: number; n: number };
+  step_days: number;
+  terms: Record<string, StoredMappingChoice>;
+  back_extension: { residual_sd: number; rho: number; step_days: number; n: number };
 }
 
 function lag1(e: Float64Array): number {
@@ -141,7 +150,7 @@ function keysOf(s: StoredSeries, r: CellResolution, period: { start: number; end
 export const irradianceModels: RunKind<typeof Request> = {
   kind: "irradiance_model",
   path: "/v1/irradiance/models",
-  algorithmVersion: "1",
+  algorithmVersion: "2",
   tag: "Irradiance",
   summary: "Calibrate a proxy-regression TSI model against a measured TSI record",
   description: "Fits TSI(t) = S_Q + Σ a_k·(F_k(t) − F_k,Q) − b·S_ref·PSI(t) (Foukal & Lean " +
@@ -199,14 +208,14 @@ export const irradianceModels: RunKind<typeof Request> = {
       name: t.name,
       role: t.role,
       values: Float64Array.from(use, (i) => termAtTsi[k][i]),
-      quietLevel: t.quietLevel,
+      quietLevel: t.quiet_level,
     }));
     let fit;
     try {
       fit = calibrateProxyModel(y, terms, {
         method: params.method,
         folds: params.folds,
-        psiReference: params.psiReference,
+        psiReference: params.psi_reference,
       });
     } catch (e) {
       if (e instanceof CollinearProxiesError) {
@@ -224,7 +233,7 @@ export const irradianceModels: RunKind<typeof Request> = {
       other = calibrateProxyModel(y, terms, {
         method: otherMethod,
         folds: 0,
-        psiReference: params.psiReference,
+        psiReference: params.psi_reference,
       });
     } catch {
       other = null; // the comparison is optional; the requested fit succeeded
@@ -267,30 +276,34 @@ export const irradianceModels: RunKind<typeof Request> = {
       method: fit.method,
       names: fit.names,
       terms: fit.terms.map((t, k) => ({
-        ...t,
+        name: t.name,
+        role: t.role,
+        quiet_level: t.quietLevel,
+        min: t.min,
+        max: t.max,
         series: termSeries[k].id,
         quantity: termSeries[k].quantity,
         units: termSeries[k].units,
       })),
-      psiReference: fit.psiReference,
+      psi_reference: fit.psiReference,
       coefficients: fit.coefficients,
       covariance: fit.covariance,
-      dfResidual: fit.dfResidual,
-      residualSd: fit.residualSd,
+      df_residual: fit.dfResidual,
+      residual_sd: fit.residualSd,
       rho: fit.rho,
-      stepDays,
+      step_days: stepDays,
       resolution: res,
-      calibrationPeriod: { start: first.start, end: last.end },
-      tQuantile975: tQuantile(0.975, fit.dfResidual),
-      quietSun: fit.quietSun,
+      calibration_period: { start: first.start, end: last.end },
+      t_quantile975: tQuantile(0.975, fit.dfResidual),
+      quiet_sun: fit.quietSun,
     };
     // sunspot → proxy mappings and the sunspot-only residual process
     let mappings: StoredMappings | null = null;
-    if (params.sunspotNumber !== undefined) {
-      const ss = ctx.series(refId(params.sunspotNumber));
-      const version = requireSunspotVersion(ss, "/sunspotNumber");
-      const sres = seriesResolution(ss, "/sunspotNumber");
-      const calPeriod = model.calibrationPeriod;
+    if (params.sunspot_number !== undefined) {
+      const ss = ctx.series(refId(params.sunspot_number));
+      const version = requireSunspotVersion(ss, "/sunspot_number");
+      const sres = seriesResolution(ss, "/sunspot_number");
+      const calPeriod = model.calibration_period;
       const sc = keysOf(ss, sres, calPeriod);
       const choices: Record<string, SunspotMappingChoice> = {};
       const mappedAtS: Float64Array[] = [];
@@ -303,10 +316,10 @@ export const irradianceModels: RunKind<typeof Request> = {
           }
         }
         try {
-          choices[params.terms[k].name] = fitSunspotMapping(rr, ff, params.mappingForm);
+          choices[params.terms[k].name] = fitSunspotMapping(rr, ff, params.mapping_form);
         } catch (e) {
           throw new InputProblem(
-            "/sunspotNumber",
+            "/sunspot_number",
             `cannot map sunspot number to term ${params.terms[k].name}: ${(e as Error).message}`,
           );
         }
@@ -331,7 +344,7 @@ export const irradianceModels: RunKind<typeof Request> = {
       }
       if (resid.length < 4) {
         throw new InputProblem(
-          "/sunspotNumber",
+          "/sunspot_number",
           `the sunspot series overlaps the TSI record in only ${resid.length} ${sres} cells; at least 4 are needed for the mappings`,
         );
       }
@@ -339,20 +352,20 @@ export const irradianceModels: RunKind<typeof Request> = {
       let ss2 = 0;
       for (const v of r) ss2 += v * v;
       mappings = {
-        sunspotSeries: ss.id,
-        sunspotVersion: version,
+        sunspot_series: ss.id,
+        sunspot_version: version,
         resolution: sres,
-        stepDays: cellDays(sres),
-        terms: choices,
-        backExtension: {
-          residualSd: Math.sqrt(ss2 / r.length),
+        step_days: cellDays(sres),
+        terms: snakeKeys(choices) as Record<string, StoredMappingChoice>,
+        back_extension: {
+          residual_sd: Math.sqrt(ss2 / r.length),
           rho: Math.max(-0.999, Math.min(0.999, lag1(r))),
-          stepDays: cellDays(sres),
+          step_days: cellDays(sres),
           n: r.length,
         },
       };
     }
-    const tcrit = model.tQuantile975;
+    const tcrit = model.t_quantile975;
     const fittedTime = [...keys].map((k) => cellBounds(k, res).middle);
     const fitted = new Float64Array(y.length);
     for (let i = 0; i < y.length; i++) fitted[i] = y[i] - fit.residuals[i];
@@ -360,44 +373,44 @@ export const irradianceModels: RunKind<typeof Request> = {
     warnings.push(...cycleAmplitudeWarning(amplitude.median));
     const predSd = fit.residualSd;
     return {
-      model: jsonSafe(model),
-      fit: jsonSafe({
+      model: snakeKeys(model),
+      fit: snakeKeys({
         n: fit.n,
-        standardErrors: fit.standardErrors,
+        standard_errors: fit.standardErrors,
         lower: fit.lower,
         upper: fit.upper,
-        rSquared: fit.rSquared,
-        adjRSquared: fit.adjRSquared,
-        residualRms: fit.residualRms,
+        r_squared: fit.rSquared,
+        adj_r_squared: fit.adjRSquared,
+        residual_rms: fit.residualRms,
         aic: fit.aic,
         bic: fit.bic,
-        residualLag1: fit.residualLag1,
+        residual_lag1: fit.residualLag1,
         rho: fit.rho,
         converged: fit.converged,
         iterations: fit.iterations,
-        collinearityConditionNumber: fit.collinearity,
-        crossValidation: fit.crossValidation,
-        darkeningScale: fit.terms.some((t) => t.role === "sunspot_darkening")
+        collinearity_condition_number: fit.collinearity,
+        cross_validation: fit.crossValidation,
+        darkening_scale: fit.terms.some((t) => t.role === "sunspot_darkening")
           ? "b is the coefficient of −S_ref·PSI; b·S_ref is the darkening in W m-2 per unit PSI"
           : null,
       }),
       alternative: other
-        ? jsonSafe({
+        ? snakeKeys({
           method: otherMethod,
           note: "The same model fitted with the other estimator, for comparison; the stored " +
             `model uses ${params.method}.`,
           coefficients: other.coefficients,
-          standardErrors: other.standardErrors,
+          standard_errors: other.standardErrors,
           lower: other.lower,
           upper: other.upper,
-          residualRms: other.residualRms,
+          residual_rms: other.residualRms,
           aic: other.aic,
           bic: other.bic,
           rho: other.rho,
         })
         : null,
-      mappings: jsonSafe(mappings),
-      cycleAmplitude: jsonSafe(amplitude),
+      mappings: snakeKeys(mappings),
+      cycle_amplitude: snakeKeys(amplitude),
       outputs: {
         fitted: {
           name: "Fitted TSI",

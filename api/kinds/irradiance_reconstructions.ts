@@ -19,18 +19,21 @@ import {
   secularBackground,
   SOURCE_BACK_EXTENDED,
   SOURCE_DIRECT,
+  type SunspotProxyMapping,
   tsiCycleAmplitude,
   valuesAtKeys,
 } from "../../core/irradiance/mod.ts";
 import { normalQuantile, tQuantile } from "../../core/stats/distributions.ts";
 import type { StoredMappings, StoredModel } from "./irradiance_models.ts";
 import {
+  camelKeys,
   cycleAmplitudeWarning,
   IRRADIANCE_CAUTIONS,
   parsePeriod,
   PeriodInput,
   quietSunWarning,
   requireSunspotVersion,
+  snakeKeys,
 } from "./irradiance_common.ts";
 
 const RUN_ID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/;
@@ -39,19 +42,19 @@ const Background = z.discriminatedUnion("kind", [
   z.object({ kind: z.literal("none") }),
   z.object({
     kind: z.literal("sunspot_running_mean"),
-    windowYears: z.number().min(1).max(100).default(11),
-    referenceMinimum: PeriodInput.openapi({
+    window_years: z.number().min(1).max(100).default(11),
+    reference_minimum: PeriodInput.openapi({
       description: "Period of the reference minimum (e.g. a grand minimum)",
     }),
-    laterPeriod: PeriodInput.openapi({
-      description: "Later period whose background exceeds the reference by deltaTsi",
+    later_period: PeriodInput.openapi({
+      description: "Later period whose background exceeds the reference by delta_tsi",
     }),
-    deltaTsi: z.number().min(-10).max(10).openapi({
+    delta_tsi: z.number().min(-10).max(10).openapi({
       description: "Background change from the reference minimum to the later period, W m-2",
     }),
   }).openapi({
     description: "A scenario, not a measurement: B(t) ∝ the running mean of sunspot number, " +
-      "scaled so that its change from referenceMinimum to laterPeriod is deltaTsi, and zero " +
+      "scaled so that its change from reference_minimum to later_period is delta_tsi, and zero " +
       "on average over the calibration period",
   }),
 ]).openapi("SecularBackground");
@@ -65,12 +68,12 @@ const Request = z.object({
     series: SeriesRef,
   })).max(6).default([]).openapi({
     description: "Direct proxy series per model term; where a term has no value the " +
-      "reconstruction back-extends from sunspotNumber",
+      "reconstruction back-extends from sunspot_number",
   }),
-  sunspotNumber: SeriesRef.optional().openapi({
+  sunspot_number: SeriesRef.optional().openapi({
     description: "Sunspot-number series for back-extension; its version must match the model's",
   }),
-  sunspotConversion: z.object({
+  sunspot_conversion: z.object({
     factor: z.number().positive().max(10).openapi({
       description: "Multiply the sunspot series by this to put it on the model's version",
     }),
@@ -129,7 +132,7 @@ function outsideCount(x: Float64Array, lo: number, hi: number): number {
 export const irradianceReconstructions: RunKind<typeof Request> = {
   kind: "irradiance_reconstruction",
   path: "/v1/irradiance/reconstructions",
-  algorithmVersion: "1",
+  algorithmVersion: "2",
   tag: "Irradiance",
   summary: "Reconstruct TSI from a calibrated model, with prediction intervals",
   description: "Applies a model run to proxy series averaged into daily, monthly or annual " +
@@ -152,8 +155,11 @@ export const irradianceReconstructions: RunKind<typeof Request> = {
         `run ${run.id} is a ${run.kind} run; a /v1/irradiance/models run is needed`,
       );
     }
-    const model = (run.result as { model: StoredModel }).model;
-    const mappings = (run.result as { mappings: StoredMappings | null }).mappings;
+    // snakeKeys also reads model runs stored before results were snake_case
+    const model = snakeKeys((run.result as { model: unknown }).model) as StoredModel;
+    const mappings = snakeKeys((run.result as { mappings: unknown }).mappings) as
+      | StoredMappings
+      | null;
     const period = parsePeriod(params.period, "/period");
     const res = params.resolution;
     // target cells
@@ -188,31 +194,31 @@ export const irradianceReconstructions: RunKind<typeof Request> = {
     let conversion: string | null = null;
     let sunspotResolution: string | null = null;
     const warnings: string[] = [];
-    if (params.sunspotNumber !== undefined) {
-      const ss = ctx.series(refId(params.sunspotNumber));
-      const version = requireSunspotVersion(ss, "/sunspotNumber");
+    if (params.sunspot_number !== undefined) {
+      const ss = ctx.series(refId(params.sunspot_number));
+      const version = requireSunspotVersion(ss, "/sunspot_number");
       sunspotResolution = ss.resolution;
       if (!mappings) {
         throw new InputProblem(
-          "/sunspotNumber",
-          `model run ${run.id} was calibrated without a sunspot series, so it has no sunspot → proxy mappings; calibrate with sunspotNumber to back-extend`,
+          "/sunspot_number",
+          `model run ${run.id} was calibrated without a sunspot series, so it has no sunspot → proxy mappings; calibrate with sunspot_number to back-extend`,
         );
       }
       let values = ss.value;
-      if (version !== mappings.sunspotVersion) {
-        if (!params.sunspotConversion) {
+      if (version !== mappings.sunspot_version) {
+        if (!params.sunspot_conversion) {
           throw new InputProblem(
-            "/sunspotNumber",
-            `the sunspot series is version "${version}" but the model was calibrated with version "${mappings.sunspotVersion}"; supply the matching version or a sunspotConversion factor (e.g. version 1 → 2 before 1947 is about 1/0.6)`,
+            "/sunspot_number",
+            `the sunspot series is version "${version}" but the model was calibrated with version "${mappings.sunspot_version}"; supply the matching version or a sunspot_conversion factor (e.g. version 1 → 2 before 1947 is about 1/0.6)`,
           );
         }
-        const f = params.sunspotConversion.factor;
+        const f = params.sunspot_conversion.factor;
         values = ss.value.map((v) => v * f);
-        conversion = `sunspot version ${version} × ${f} → version ${mappings.sunspotVersion}` +
-          (params.sunspotConversion.note ? ` (${params.sunspotConversion.note})` : "");
-      } else if (params.sunspotConversion) {
+        conversion = `sunspot version ${version} × ${f} → version ${mappings.sunspot_version}` +
+          (params.sunspot_conversion.note ? ` (${params.sunspot_conversion.note})` : "");
+      } else if (params.sunspot_conversion) {
         warnings.push(
-          `sunspotConversion was ignored: the series is already version ${version}, as the model.`,
+          `sunspot_conversion was ignored: the series is already version ${version}, as the model.`,
         );
       }
       sunspotSeries = { time: ss.time, value: values };
@@ -220,7 +226,7 @@ export const irradianceReconstructions: RunKind<typeof Request> = {
     }
     const mapped: ReconstructionCells["mapped"] = model.terms.map((t) => {
       if (!sunspot || !mappings) return null;
-      const m = mappings.terms[t.name].chosen;
+      const m = camelKeys(mappings.terms[t.name].chosen) as SunspotProxyMapping;
       const v = new Float64Array(n), pv = new Float64Array(n);
       evaluateSunspotMapping(m, sunspot, v, pv);
       return { value: v, paramVariance: pv };
@@ -236,18 +242,24 @@ export const irradianceReconstructions: RunKind<typeof Request> = {
       );
     }
     const z = params.level === 0.95
-      ? model.tQuantile975
-      : tQuantile(1 - (1 - params.level) / 2, model.dfResidual);
+      ? model.t_quantile975
+      : tQuantile(1 - (1 - params.level) / 2, model.df_residual);
     const rec = reconstructFromProxies(
       {
         coefficients: model.coefficients,
         covariance: model.covariance,
-        terms: model.terms,
-        psiReference: model.psiReference,
-        residualSd: model.residualSd,
+        terms: model.terms.map((t) => ({ role: t.role, quietLevel: t.quiet_level })),
+        psiReference: model.psi_reference,
+        residualSd: model.residual_sd,
         rho: model.rho,
-        stepDays: model.stepDays,
-        backExtension: mappings ? mappings.backExtension : null,
+        stepDays: model.step_days,
+        backExtension: mappings
+          ? {
+            residualSd: mappings.back_extension.residual_sd,
+            rho: mappings.back_extension.rho,
+            stepDays: mappings.back_extension.step_days,
+          }
+          : null,
       },
       { days, direct, mapped },
       z,
@@ -263,25 +275,25 @@ export const irradianceReconstructions: RunKind<typeof Request> = {
       if (!sunspotSeries) {
         throw new InputProblem(
           "/background",
-          "the sunspot_running_mean background needs a sunspotNumber series",
+          "the sunspot_running_mean background needs a sunspot_number series",
         );
       }
       let b;
       try {
         b = secularBackground(sunspotSeries.time, sunspotSeries.value, {
-          windowYears: bg.windowYears,
-          referenceMinimum: parsePeriod(bg.referenceMinimum, "/background/referenceMinimum"),
-          laterPeriod: parsePeriod(bg.laterPeriod, "/background/laterPeriod"),
-          deltaTsi: bg.deltaTsi,
-          calibrationPeriod: model.calibrationPeriod,
+          windowYears: bg.window_years,
+          referenceMinimum: parsePeriod(bg.reference_minimum, "/background/reference_minimum"),
+          laterPeriod: parsePeriod(bg.later_period, "/background/later_period"),
+          deltaTsi: bg.delta_tsi,
+          calibrationPeriod: model.calibration_period,
         });
       } catch (e) {
         if (e instanceof InputProblem) throw e;
         const msg = (e as Error).message;
         const ptr = /reference minimum/.test(msg)
-          ? "/background/referenceMinimum"
+          ? "/background/reference_minimum"
           : /later period/.test(msg)
-          ? "/background/laterPeriod"
+          ? "/background/later_period"
           : "/background";
         throw new InputProblem(ptr, msg);
       }
@@ -296,11 +308,11 @@ export const irradianceReconstructions: RunKind<typeof Request> = {
       scenario = {
         kind: "sunspot_running_mean",
         label:
-          `SCENARIO: secular background proportional to the ${bg.windowYears}-year running mean of sunspot number, ΔTSI = ${bg.deltaTsi} W m-2 from the reference minimum to the later period; the band does not include the (large) uncertainty of this choice`,
+          `SCENARIO: secular background proportional to the ${bg.window_years}-year running mean of sunspot number, ΔTSI = ${bg.delta_tsi} W m-2 from the reference minimum to the later period; the band does not include the (large) uncertainty of this choice`,
         scale: b.scale,
-        referenceMean: b.referenceMean,
-        laterMean: b.laterMean,
-        calibrationMean: b.calibrationMean,
+        reference_mean: b.referenceMean,
+        later_mean: b.laterMean,
+        calibration_mean: b.calibrationMean,
       };
     }
     // coverage and plausibility
@@ -346,18 +358,18 @@ export const irradianceReconstructions: RunKind<typeof Request> = {
       const m = Object.values(mappings.terms)[0].chosen;
       let c = 0;
       for (let i = 0; i < n; i++) {
-        if (rec.source[i] === SOURCE_BACK_EXTENDED && sunspot[i] > 1.25 * m.sunspotMax) c++;
+        if (rec.source[i] === SOURCE_BACK_EXTENDED && sunspot[i] > 1.25 * m.sunspot_max) c++;
       }
       if (c > 0) {
         warnings.push(
           `${c} back-extended cells have sunspot numbers above 1.25 × the largest in the mapping fit (${
-            m.sunspotMax.toFixed(1)
+            m.sunspot_max.toFixed(1)
           }); the mappings are extrapolated there.`,
         );
       }
     }
     const amp = tsiCycleAmplitude(time, rec.value);
-    warnings.push(...cycleAmplitudeWarning(amp.median), ...quietSunWarning(model.quietSun.value));
+    warnings.push(...cycleAmplitudeWarning(amp.median), ...quietSunWarning(model.quiet_sun.value));
     const zNote = params.level === 0.95 ? "95 %" : `${(params.level * 100).toFixed(1)} %`;
     const sdOut = micro(rec.sd);
     const valOut = micro(rec.value);
@@ -366,10 +378,10 @@ export const irradianceReconstructions: RunKind<typeof Request> = {
       resolution: res,
       period,
       level: params.level,
-      intervalQuantile: z,
-      normalQuantile: normalQuantile(1 - (1 - params.level) / 2),
+      interval_quantile: z,
+      normal_quantile: normalQuantile(1 - (1 - params.level) / 2),
       scenario,
-      sunspotConversion: conversion,
+      sunspot_conversion: conversion,
       coverage: {
         cells: n,
         direct: {
@@ -377,15 +389,15 @@ export const irradianceReconstructions: RunKind<typeof Request> = {
           start: nDirect ? firstDirect : null,
           end: nDirect ? lastDirect : null,
         },
-        backExtended: {
+        back_extended: {
           cells: nBack,
           start: nBack ? firstBack : null,
           end: nBack ? lastBack : null,
         },
         missing: nNone,
       },
-      sourceSegments: segments(rec.source, time),
-      cycleAmplitude: amp,
+      source_segments: segments(rec.source, time),
+      cycle_amplitude: snakeKeys(amp),
       outputs: {
         tsi: {
           name: "Reconstructed TSI",

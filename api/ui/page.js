@@ -1153,8 +1153,8 @@ async function analyseView(gen, query) {
       const terms = r.ok ? r.data?.result?.model?.terms : null;
       if (!Array.isArray(terms)) return;
       recordField.set?.(terms.map((t) => ({ term: t.name, series: t.series })));
-      const sunspot = fields.find((f) => f.pointer === "/sunspotNumber");
-      const mapped = r.data?.result?.mappings?.sunspotSeries;
+      const sunspot = fields.find((f) => f.pointer === "/sunspot_number");
+      const mapped = r.data?.result?.mappings?.sunspot_series;
       if (sunspot && mapped) sunspot.set?.(mapped);
       refresh();
     };

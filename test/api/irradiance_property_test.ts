@@ -67,18 +67,18 @@ Deno.test("irradiance endpoints property: mutated requests never give a 500", as
         ["groups", "time"],
         ["groups", "area"],
         ["groups", "position"],
-        ["groups", "areaKind"],
+        ["groups", "area_kind"],
         ["contrast"],
-        ["quietSunTsi"],
-        ["totalArea"],
+        ["quiet_sun_tsi"],
+        ["total_area"],
       ]],
       ["/v1/irradiance/models", {
         tsi: series("t", "tsi", "W m-2", tsi),
         terms: [{ name: "mg", role: "facular", series: series("f", "facular_index", "1", fac) }],
         folds: 2,
-      }, [["tsi"], ["terms"], ["folds"], ["method"], ["period"], ["psiReference"], [
-        "sunspotNumber",
-      ], ["mappingForm"]]],
+      }, [["tsi"], ["terms"], ["folds"], ["method"], ["period"], ["psi_reference"], [
+        "sunspot_number",
+      ], ["mapping_form"]]],
       ["/v1/irradiance/reconstructions", {
         model: model.id,
         proxies: [
@@ -88,8 +88,8 @@ Deno.test("irradiance endpoints property: mutated requests never give a 500", as
         period: { start: "2001", end: "2001" },
         resolution: "monthly",
       }, [["model"], ["proxies"], ["period"], ["resolution"], ["level"], ["background"], [
-        "sunspotNumber",
-      ], ["sunspotConversion"]]],
+        "sunspot_number",
+      ], ["sunspot_conversion"]]],
       ["/v1/forcing", {
         tsi: series("t", "tsi", "W m-2", tsi),
         reference: { kind: "period", period: { start: "2001-01", end: "2001-02" } },

@@ -3,6 +3,14 @@ import { demoFileEntries, loadDemo } from "../../api/demo.ts";
 import { assertProblem, makeTestApp, type TestService } from "./helpers.ts";
 import { cellBounds, cellKey, julianDay, solarDiscGeometry } from "../../core/irradiance/mod.ts";
 import { parseIsoTime } from "../../core/time/mod.ts";
+import { fitSunspotMapping } from "../../core/irradiance/sunspot_proxy_mapping.ts";
+import {
+  camelKeys,
+  camelName,
+  jsonSafe,
+  snakeKeys,
+  snakeName,
+} from "../../api/kinds/irradiance_common.ts";
 
 // deno-lint-ignore no-explicit-any
 type Json = any;
@@ -20,9 +28,21 @@ async function demoIds(svc: TestService): Promise<Record<string, string>> {
   return Object.fromEntries(entries.map((e, i) => [e.file, ids[i]]));
 }
 
+/** Every object key below `v`, with its path, that is not snake_case like the rest of the API. */
+function nonSnakeKeys(v: Json, path = ""): string[] {
+  if (Array.isArray(v)) return v.flatMap((x, i) => nonSnakeKeys(x, `${path}/${i}`));
+  if (v === null || typeof v !== "object") return [];
+  return Object.entries(v).flatMap(([k, x]) => [
+    ...(/^[a-z][a-z0-9_]*$/.test(k) ? [] : [`${path}/${k}`]),
+    ...nonSnakeKeys(x, `${path}/${k}`),
+  ]);
+}
+
 async function created(res: Response): Promise<Json> {
   const body = await res.json();
   assert.equal(res.status, 201, JSON.stringify(body).slice(0, 800));
+  // requests, results, structured warnings and outputs all speak snake_case
+  assert.deepEqual(nonSnakeKeys({ params: body.params, result: body.result }), []);
   return body;
 }
 
@@ -37,9 +57,9 @@ Deno.test("irradiance endpoints: darkening → model → reconstruction → forc
       "darkening from total daily area uses the disc-average factor and saves series",
       async () => {
         const run = await created(
-          await svc.post("/v1/irradiance/darkening", { totalArea: ids["sunspot_area_daily.csv"] }),
+          await svc.post("/v1/irradiance/darkening", { total_area: ids["sunspot_area_daily.csv"] }),
         );
-        assert.match(run.result.positionFactor, /disc average.*exactly 1/);
+        assert.match(run.result.position_factor, /disc average.*exactly 1/);
         const saved = Object.fromEntries(
           run.saved_series.map((s: Json) => [s.output, s.id]),
         );
@@ -48,7 +68,7 @@ Deno.test("irradiance endpoints: darkening → model → reconstruction → forc
         // PSI = 0.32·A·1e-6 (Hudson et al. 1982 with factor 1): check the largest day
         const area = (await svc.store.getSeries(ids["sunspot_area_daily.csv"]))!;
         const maxA = Math.max(...area.value);
-        assert.ok(Math.abs(run.result.summary.maxPsi - 0.32 * maxA * 1e-6) < 1e-12);
+        assert.ok(Math.abs(run.result.summary.max_psi - 0.32 * maxA * 1e-6) < 1e-12);
       },
     );
 
@@ -60,7 +80,7 @@ Deno.test("irradiance endpoints: darkening → model → reconstruction → forc
           groups: {
             time: recs.map((r) => r.date),
             area: recs.map((r) => (areaKind === "true" ? r.area_msh : r.projected_area_msd)),
-            areaKind,
+            area_kind: areaKind,
             position: { kind: "mu", mu: recs.map((r) => r.mu) },
           },
         });
@@ -79,7 +99,7 @@ Deno.test("irradiance endpoints: darkening → model → reconstruction → forc
           0,
         );
         assert.ok(Math.abs(pa[0] - expect) < 1e-15);
-        assert.match(a.result.positionFactor, /per group/);
+        assert.match(a.result.position_factor, /per group/);
       },
     );
 
@@ -102,7 +122,7 @@ Deno.test("irradiance endpoints: darkening → model → reconstruction → forc
             contrast: { kind: "area_dependent" },
           }),
         );
-        assert.match(run.result.positionFactor, /Meeus 1998/);
+        assert.match(run.result.position_factor, /Meeus 1998/);
         assert.ok(run.result.warnings.some((w: string) => /1\.15–1\.25/.test(w)));
       },
     );
@@ -126,7 +146,7 @@ Deno.test("irradiance endpoints: darkening → model → reconstruction → forc
               longitude: recs.map((r, i) =>
                 from === "carrington" ? (r.cmd_deg + l0[i]) % 360 : r.cmd_deg
               ),
-              longitudeFrom: from,
+              longitude_from: from,
             },
           },
         });
@@ -150,11 +170,11 @@ Deno.test("irradiance endpoints: darkening → model → reconstruction → forc
               name: "mg",
               role: "facular",
               series: ids["facular_index_daily.csv"],
-              quietLevel: truth.F_Q,
+              quiet_level: truth.F_Q,
             },
             { name: "psi", role: "sunspot_darkening", series: psiId },
           ],
-          sunspotNumber: ids["sunspot_number_monthly.csv"],
+          sunspot_number: ids["sunspot_number_monthly.csv"],
         }),
       );
       modelId = run.id;
@@ -171,11 +191,11 @@ Deno.test("irradiance endpoints: darkening → model → reconstruction → forc
       const alt = run.result.alternative;
       assert.equal(alt.method, "ols");
       for (let j = 0; j < 3; j++) {
-        assert.ok(Math.abs(alt.coefficients[j] - m.coefficients[j]) < 2 * f.standardErrors[j]);
-        assert.ok(alt.standardErrors[j] < f.standardErrors[j]);
+        assert.ok(Math.abs(alt.coefficients[j] - m.coefficients[j]) < 2 * f.standard_errors[j]);
+        assert.ok(alt.standard_errors[j] < f.standard_errors[j]);
       }
-      assert.ok(f.crossValidation.rmse > 0 && f.crossValidation.folds === 5);
-      assert.equal(run.result.mappings.sunspotVersion, "2");
+      assert.ok(f.cross_validation.rmse > 0 && f.cross_validation.folds === 5);
+      assert.equal(run.result.mappings.sunspot_version, "2");
       assert.ok(["linear", "saturating"].includes(run.result.mappings.terms.mg.chosen.form));
       // no quiet-Sun-scale warning: the demo is on the 1360.8 W m-2 scale
       assert.ok(
@@ -195,18 +215,18 @@ Deno.test("irradiance endpoints: darkening → model → reconstruction → forc
               { term: "mg", series: ids["facular_index_daily.csv"] },
               { term: "psi", series: psiId },
             ],
-            sunspotNumber: ids["sunspot_number_monthly.csv"],
+            sunspot_number: ids["sunspot_number_monthly.csv"],
             period: { start: "1700", end: "2024" },
             resolution: "annual",
           }),
         );
         recId = run.id;
         const r = run.result;
-        assert.ok(r.coverage.backExtended.cells >= 270);
+        assert.ok(r.coverage.back_extended.cells >= 270);
         assert.ok(r.coverage.direct.cells >= 40);
         assert.equal(r.scenario.kind, "none");
         // cycle amplitude within the published range (SCIENCE.md §1: 0.9–1.6 W m-2)
-        assert.ok(r.cycleAmplitude.median >= 0.9 && r.cycleAmplitude.median <= 1.6);
+        assert.ok(r.cycle_amplitude.median >= 0.9 && r.cycle_amplitude.median <= 1.6);
         // the demo's pre-1978 truth is TSI = S_Q + γ·R (manifest truth.tsi_proxy_mapping)
         const gamma = manifest.truth.tsi_proxy_mapping.gamma_w_m2_per_sunspot_number;
         const ss = (await svc.store.getSeries(ids["sunspot_number_monthly.csv"]))!;
@@ -259,7 +279,7 @@ Deno.test("irradiance endpoints: darkening → model → reconstruction → forc
     });
 
     await t.step(
-      "a secular background scenario is labelled and rises by deltaTsi between its periods",
+      "a secular background scenario is labelled and rises by delta_tsi between its periods",
       async () => {
         const run = await created(
           await svc.post("/v1/irradiance/reconstructions", {
@@ -268,19 +288,19 @@ Deno.test("irradiance endpoints: darkening → model → reconstruction → forc
               { term: "mg", series: ids["facular_index_daily.csv"] },
               { term: "psi", series: psiId },
             ],
-            sunspotNumber: ids["sunspot_number_monthly.csv"],
+            sunspot_number: ids["sunspot_number_monthly.csv"],
             period: { start: "1700", end: "2024" },
             resolution: "annual",
             background: {
               kind: "sunspot_running_mean",
-              referenceMinimum: { start: "1700", end: "1720" },
-              laterPeriod: { start: "1950", end: "2000" },
-              deltaTsi: 1.0,
+              reference_minimum: { start: "1700", end: "1720" },
+              later_period: { start: "1950", end: "2000" },
+              delta_tsi: 1.0,
             },
           }),
         );
         assert.equal(run.result.scenario.kind, "sunspot_running_mean");
-        // by construction the background rises by deltaTsi from the reference to the later period
+        // by construction the background rises by delta_tsi from the reference to the later period
         const base = (await (await svc.get(`/v1/runs/${recId}`)).json()).result.outputs.tsi;
         const o = run.result.outputs.tsi;
         const meanDiff = (a: number, b: number) => {
@@ -303,19 +323,19 @@ Deno.test("irradiance endpoints: darkening → model → reconstruction → forc
       const p = await assertProblem(
         await svc.post("/v1/irradiance/reconstructions", {
           model: modelId,
-          sunspotNumber: ids["sunspot_number_monthly.csv"],
+          sunspot_number: ids["sunspot_number_monthly.csv"],
           period: { start: "1700", end: "1800" },
           resolution: "annual",
           background: {
             kind: "sunspot_running_mean",
-            referenceMinimum: { start: "1600", end: "1650" },
-            laterPeriod: { start: "1950", end: "2000" },
-            deltaTsi: 1.0,
+            reference_minimum: { start: "1600", end: "1650" },
+            later_period: { start: "1950", end: "2000" },
+            delta_tsi: 1.0,
           },
         }),
         422,
       );
-      assert.equal(p.errors[0].pointer, "/background/referenceMinimum");
+      assert.equal(p.errors[0].pointer, "/background/reference_minimum");
     });
 
     await t.step("forcing from the reconstruction relative to a reference period", async () => {
@@ -347,17 +367,17 @@ Deno.test("irradiance endpoints: darkening → model → reconstruction → forc
       };
       const body = {
         model: modelId,
-        sunspotNumber: v1,
+        sunspot_number: v1,
         period: { start: "1700", end: "1740" },
         resolution: "annual",
       };
       const p = await assertProblem(await svc.post("/v1/irradiance/reconstructions", body), 422);
-      assert.equal(p.errors[0].pointer, "/sunspotNumber");
+      assert.equal(p.errors[0].pointer, "/sunspot_number");
       assert.match(p.detail, /version "1".*version "2"/);
       await created(
         await svc.post("/v1/irradiance/reconstructions", {
           ...body,
-          sunspotConversion: { factor: 1 / 0.6, note: "test" },
+          sunspot_conversion: { factor: 1 / 0.6, note: "test" },
         }),
       );
     });
@@ -366,7 +386,7 @@ Deno.test("irradiance endpoints: darkening → model → reconstruction → forc
       const p = await assertProblem(
         await svc.post("/v1/irradiance/reconstructions", {
           model: modelId,
-          sunspotNumber: ids["sunspot_number_monthly.csv"],
+          sunspot_number: ids["sunspot_number_monthly.csv"],
           period: { start: "1500", end: "1600" },
         }),
         422,
@@ -424,7 +444,7 @@ Deno.test("irradiance endpoints: darkening → model → reconstruction → forc
       assert.equal(p.errors[0].pointer, "/reference/period");
     });
 
-    await t.step("422 from schema: both or neither of groups/totalArea; bad μ", async () => {
+    await t.step("422 from schema: both or neither of groups/total_area; bad μ", async () => {
       await assertProblem(await svc.post("/v1/irradiance/darkening", {}), 422);
       const p = await assertProblem(
         await svc.post("/v1/irradiance/darkening", {
@@ -437,4 +457,27 @@ Deno.test("irradiance endpoints: darkening → model → reconstruction → forc
   } finally {
     await svc.close();
   }
+});
+
+Deno.test("snakeKeys/camelKeys: core results to API JSON and back; snake_case JSON unchanged", () => {
+  const choice = fitSunspotMapping([0, 30, 60, 90, 120, 150, 180], [
+    0.15,
+    0.1531,
+    0.1559,
+    0.1591,
+    0.1619,
+    0.1651,
+    0.1679,
+  ]);
+  const api = snakeKeys({ terms: { mg_ii: choice } }) as Json;
+  const chosen = api.terms.mg_ii.chosen;
+  assert.equal(chosen.sunspot_max, 180);
+  assert.ok(Array.isArray(chosen.standard_errors) && "r_squared" in chosen);
+  assert.deepEqual(nonSnakeKeys(api), []);
+  // stored results of either spelling read the same
+  assert.deepEqual(snakeKeys(api), api);
+  assert.deepEqual(snakeKeys(jsonSafe({ terms: { mg_ii: choice } })), api);
+  assert.deepEqual(camelKeys(chosen), jsonSafe(choice.chosen));
+  assert.equal(snakeName("adjRSquared"), "adj_r_squared");
+  assert.equal(camelName("adj_r_squared"), "adjRSquared");
 });

@@ -59,7 +59,7 @@ Deno.test("irradiance reconstruction chart: prediction band, observed-proxy and 
       await svc.post("/v1/irradiance/models", {
         tsi,
         terms: [{ name: "mg", role: "facular", series: mg }],
-        sunspotNumber: ss,
+        sunspot_number: ss,
       }),
     );
     // the model's chart: the fitted TSI over the measured TSI it was calibrated on
@@ -69,7 +69,7 @@ Deno.test("irradiance reconstruction chart: prediction band, observed-proxy and 
       await svc.post("/v1/irradiance/reconstructions", {
         model: model.id,
         proxies: [{ term: "mg", series: model.params.terms[0].series }],
-        sunspotNumber: model.params.sunspotNumber,
+        sunspot_number: model.params.sunspot_number,
         period: { start: "1900", end: "1999" },
         resolution: "annual",
       }),
@@ -357,7 +357,7 @@ Deno.test("every registered run kind gets a chart, whatever its stored result lo
         lags: [1],
         periodogram: { period: [1], power: [] },
       },
-      { outputs: "nope", sourceSegments: [{ start: "x" }], offsets: null, coefficients: [null] },
+      { outputs: "nope", source_segments: [{ start: "x" }], offsets: null, coefficients: [null] },
     ];
     for (const kind of svc.runs.kinds.map((k) => k.kind)) {
       for (const result of odd) {

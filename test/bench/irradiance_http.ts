@@ -27,16 +27,16 @@ const rid = await uploadSeries(svc, {
   value,
 });
 const dark = await (await svc.post("/v1/irradiance/darkening", {
-  totalArea: ids["sunspot_area_daily.csv"],
+  total_area: ids["sunspot_area_daily.csv"],
 })).json();
 const psiId = dark.saved_series.find((s: { output: string }) => s.output === "psi").id;
 const model = await (await svc.post("/v1/irradiance/models", {
   tsi: ids["tsi_daily.csv"],
   terms: [
-    { name: "mg", role: "facular", series: ids["facular_index_daily.csv"], quietLevel: 0.15 },
+    { name: "mg", role: "facular", series: ids["facular_index_daily.csv"], quiet_level: 0.15 },
     { name: "psi", role: "sunspot_darkening", series: psiId },
   ],
-  sunspotNumber: rid,
+  sunspot_number: rid,
 })).json();
 const ms: number[] = [];
 let bytes = 0;
@@ -48,7 +48,7 @@ for (let k = 0; k < 7; k++) {
       { term: "mg", series: ids["facular_index_daily.csv"] },
       { term: "psi", series: psiId },
     ],
-    sunspotNumber: rid,
+    sunspot_number: rid,
     period: { start: "1610", end: "2029" },
     resolution: "daily",
   });

@@ -351,7 +351,7 @@ Deno.test({
           await page.selectOption("#f_terms_0_series", await demoId(/daily facular index/));
           await page.selectOption("#f_terms_0_role", "facular");
           await openMoreOptions(page);
-          await page.selectOption("#f_sunspotNumber", solar);
+          await page.selectOption("#f_sunspot_number", solar);
           await page.click("#analysis-form button[type=submit]");
           await page.waitForSelector("main [data-status=succeeded]", { timeout: 60_000 });
           const modelRun = new URL(page.url()).hash.split("/")[2];

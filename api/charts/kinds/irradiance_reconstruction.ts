@@ -16,7 +16,8 @@ export function irradianceReconstructionChart(run: RunRecord): ChartSpec | null 
   const r = run.result;
   const o = outputSeries(obj(r?.outputs)?.tsi, "tsi");
   if (!r || !o) return null;
-  const segs = (objects(r.sourceSegments) ?? []).map((s) => ({
+  // runs stored before algorithm version 2 spelt it sourceSegments
+  const segs = (objects(r.source_segments ?? r.sourceSegments) ?? []).map((s) => ({
     source: str(s.source) ?? "",
     start: numOrNull(s.start),
     end: numOrNull(s.end),
