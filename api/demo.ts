@@ -8,15 +8,10 @@
  *
  * @module
  */
-import { contentId, ingestText } from "./ingest/mod.ts";
+import { ingestText } from "./ingest/mod.ts";
 import type { TextIngestOptions } from "./ingest/mod.ts";
 import type { Store, StoredSeries } from "./store/types.ts";
-
-/** The ingestion functions the loader uses (replaceable in tests). */
-export interface DemoIngest {
-  ingestText: typeof ingestText;
-  contentId: typeof contentId;
-}
+import { storedFromNormalised } from "./series_codec.ts";
 
 /** One CSV entry of the demo manifest. */
 export interface DemoFileEntry {
@@ -76,41 +71,19 @@ export function demoIngestOptions(entry: DemoFileEntry): TextIngestOptions {
  *   the first problems
  */
 export async function readDemoSeries(
-  ingest: DemoIngest = { ingestText, contentId },
   dir: URL = DEMO_DIR,
 ): Promise<{ file: string; series: StoredSeries }[]> {
   const out: { file: string; series: StoredSeries }[] = [];
   for (const entry of await demoFileEntries(dir)) {
     const text = await Deno.readTextFile(new URL(entry.file, dir));
-    const r = ingest.ingestText(text, demoIngestOptions(entry));
+    const r = ingestText(text, demoIngestOptions(entry));
     if (!r.ok) {
       const first = r.errors.slice(0, 3).map((e) =>
         `${e.row ? `line ${e.row}: ` : ""}${e.message}`
       );
       throw new Error(`Cannot load demo file ${entry.file}: ${first.join("; ")}`);
     }
-    const n = r.series;
-    out.push({
-      file: entry.file,
-      series: {
-        id: await ingest.contentId(n),
-        name: n.name,
-        quantity: n.quantity,
-        units: n.units,
-        description: n.description,
-        source: n.source,
-        version: n.version,
-        resolution: n.resolution,
-        n: n.time.length,
-        start: n.time[0],
-        end: n.time[n.time.length - 1],
-        derived_from: null,
-        created_at: new Date().toISOString(),
-        time: n.time,
-        value: n.value,
-        uncertainty: n.uncertainty,
-      },
-    });
+    out.push({ file: entry.file, series: await storedFromNormalised(r.series, null) });
   }
   return out;
 }
@@ -120,15 +93,13 @@ export async function readDemoSeries(
  * present (same content, same id) are left as they are.
  *
  * @param store the store to fill (normally an empty one)
- * @param ingest the ingester and content-id functions (default: api/ingest)
  * @returns the stored ids
  */
 export async function loadDemo(
   store: Store,
-  ingest: DemoIngest = { ingestText, contentId },
 ): Promise<string[]> {
   const ids: string[] = [];
-  for (const { series } of await readDemoSeries(ingest)) {
+  for (const { series } of await readDemoSeries()) {
     await store.putSeries(series);
     ids.push(series.id);
   }

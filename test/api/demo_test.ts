@@ -1,7 +1,6 @@
 import assert from "node:assert/strict";
 import { demoFileEntries, loadDemo, readDemoSeries } from "../../api/demo.ts";
 import { openStoreFromSpec } from "../../api/store/mod.ts";
-import { contentId, ingestText } from "../../api/ingest/mod.ts";
 import { makeTestApp } from "./helpers.ts";
 
 Deno.test("loadDemo() stores every demo series of the manifest and returns their ids", async (t) => {
@@ -62,20 +61,28 @@ Deno.test("loadDemo() stores every demo series of the manifest and returns their
   }
 });
 
-Deno.test("readDemoSeries() names the file when a demo file does not ingest", async () => {
-  const broken = {
-    ingestText: (_: Uint8Array | string) => ({
-      ok: false as const,
-      errors: [{ pointer: "", message: "not a number", row: 7 }],
-    }),
-    contentId,
-  };
-  await assert.rejects(
-    () => readDemoSeries(broken),
-    /sunspot_number_monthly\.csv: line 7: not a number/,
-  );
-  // the real ingester accepts every file
-  assert.equal((await readDemoSeries({ ingestText, contentId })).length, 8);
+Deno.test("readDemoSeries() names the file and line when a demo file does not ingest", async () => {
+  const dir = await Deno.makeTempDir();
+  try {
+    const src = new URL("../../fixtures/demo/", import.meta.url);
+    for (const e of await demoFileEntries()) {
+      await Deno.copyFile(new URL(e.file, src), `${dir}/${e.file}`);
+    }
+    await Deno.copyFile(new URL("manifest.json", src), `${dir}/manifest.json`);
+    const file = `${dir}/sunspot_number_monthly.csv`;
+    const lines = (await Deno.readTextFile(file)).split("\n");
+    const k = lines.findIndex((l) => /^\d{4}-\d{2},/.test(l));
+    lines[k] = lines[k].replace(/^([^,]+,[^,]+,)[^,]+/, "$1abc");
+    await Deno.writeTextFile(file, lines.join("\n"));
+    await assert.rejects(
+      () => readDemoSeries(new URL(`file://${dir}/`)),
+      new RegExp(`sunspot_number_monthly\\.csv: line ${k + 1}: .*abc`),
+    );
+  } finally {
+    await Deno.remove(dir, { recursive: true });
+  }
+  // the real files all ingest
+  assert.equal((await readDemoSeries()).length, 8);
 });
 
 Deno.test("demo series get the same ids as the same files uploaded through POST /v1/series", async () => {
