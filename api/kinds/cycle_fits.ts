@@ -55,6 +55,22 @@ function relation(points: { riseMonths: number; amplitude: number }[], scale: nu
   };
 }
 
+/** 1 − RSS/TSS over a window's defined values (share of the monthly variance the curve explains). */
+function rSquared(v: Float64Array, w: { start: number; end: number }, rss: number): number | null {
+  let n = 0, m = 0;
+  for (let i = w.start; i < w.end; i++) {
+    if (Number.isFinite(v[i])) {
+      n++;
+      m += v[i];
+    }
+  }
+  if (n < 2) return null;
+  m /= n;
+  let tss = 0;
+  for (let i = w.start; i < w.end; i++) if (Number.isFinite(v[i])) tss += (v[i] - m) ** 2;
+  return tss > 0 ? 1 - rss / tss : null;
+}
+
 export const cycleFitsKind: RunKind<typeof CycleFitsRequest> = {
   kind: "cycle-fits",
   path: "/v1/cycle-fits",
@@ -138,6 +154,7 @@ export const cycleFitsKind: RunKind<typeof CycleFitsRequest> = {
           rise_months: r.riseTime! * 12,
         },
         residual_sd: f.sigma,
+        r_squared: rSquared(grid.value, windows[k], f.rss),
         residual_lag1: f.residualLag1,
         autocorrelation_inflation: inf,
         dof: f.dof,

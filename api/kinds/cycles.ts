@@ -118,6 +118,18 @@ export const cyclesKind: RunKind<typeof CyclesRequest> = {
           value: nulls(phase.sinceMinimum),
           description: "years since the latest cycle minimum; null before the first",
         },
+        cycle: {
+          name: `${s.name} cycle`,
+          quantity: "other",
+          units: "1",
+          time: Array.from(grid.time),
+          value: Array.from(phase.cycleIndex, (k) => {
+            if (k === 0) return null;
+            return rows[k - 1].number ?? k;
+          }),
+          description: "the cycle each time belongs to: its number when an anchor numbers the " +
+            "cycles, else its position in the table; null before the first minimum",
+        },
       },
       warnings,
       cautions: [CAUTION_SCALE, CAUTION_CYCLE_REVIEW],

@@ -154,6 +154,7 @@ Deno.test("POST /v1/cycles: the cycle table of R's sunspot.month", async () => {
     assert.equal(r.cycles.length, 24);
     // SCIENCE.md §5 (C): cycle 19 began 1954-04, peaked 1958-03; cycle 24 began 2008-12
     const c19 = r.cycles.find((c: { number: number }) => c.number === 19);
+    const d1954 = loadDataset("sunspot_month").date.indexOf("1954-06");
     assert.equal(c19.start.date, "1954-04");
     assert.equal(c19.maximum.date, "1958-03");
     const last = r.cycles[23];
@@ -170,6 +171,9 @@ Deno.test("POST /v1/cycles: the cycle table of R's sunspot.month", async () => {
     const phase = r.outputs.phase.value;
     assert.equal(phase.length, r.outputs.smoothed.value.length);
     assert.ok(phase.every((p: number | null) => p === null || (p >= 0 && p < 1)));
+    const cyc = r.outputs.cycle.value;
+    assert.equal(cyc[d1954], 19);
+    assert.equal(cyc[0], null); // 1749-01 precedes the first minimum (1755-02)
     assert.ok(r.cautions.length >= 1);
   } finally {
     await svc.close();
@@ -362,6 +366,7 @@ Deno.test("POST /v1/cycle-fits: shape parameters and the Waldmeier relation", as
     for (const c of r.cycles) {
       assert.ok(c.a.value > 0 && c.b.value > 20 && c.b.value < 90, `cycle ${c.number}`);
       assert.ok(c.a.standard_error > 0 && c.a.standard_error_ar1 >= c.a.standard_error);
+      assert.ok(c.r_squared > 0.5 && c.r_squared < 1, `cycle ${c.number}: R² ${c.r_squared}`);
       // the fitted maximum lies within two years of the observed smoothed one (measured: 1.6
       // years for the flat cycle 5, under a year for the others)
       assert.ok(
