@@ -569,3 +569,24 @@ Deno.test("POST /v1/cycle-forecasts: cycle 24 forecast from R's sunspot.month, c
     await svc.close();
   }
 });
+
+Deno.test("POST /v1/cycle-forecasts: the same digest on 0 and 2 workers", async () => {
+  const body = {
+    series: rSeries("sunspot_month"),
+    replicates: 20,
+    hindcast_replicates: 20,
+    seed: 3,
+  };
+  const one = await makeTestApp({ config: { asyncSeconds: 1000 } });
+  const two = await makeTestApp({ workers: 2, config: { asyncSeconds: 1000 } });
+  try {
+    const a = await (await one.post("/v1/cycle-forecasts", body)).json();
+    const b = await (await two.post("/v1/cycle-forecasts", body)).json();
+    assert.equal(a.status, "succeeded");
+    assert.equal(a.result_digest, b.result_digest);
+    assert.deepEqual(a.result.hindcast, b.result.hindcast);
+  } finally {
+    await one.close();
+    await two.close();
+  }
+});
