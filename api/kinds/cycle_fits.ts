@@ -38,7 +38,9 @@ export const CycleFitsRequest = z.object({
   }),
 }).openapi("CycleFitsRequest");
 
-function relation(points: { riseMonths: number; amplitude: number }[], scale: number) {
+function relation(all: { riseMonths: number; amplitude: number }[], scale: number) {
+  // the relation is defined for positive amplitudes (activity measures)
+  const points = all.filter((p) => p.amplitude > 0 && Number.isFinite(p.riseMonths));
   if (points.length < 3) return null;
   const w = waldmeierRelation(points, scale);
   return {

@@ -119,7 +119,8 @@ export function hindcastCycles(
  * @param monthsUsed months to use (rounded down; capped at the cycle's length)
  * @param caseIndex position of the case, which selects its random streams
  * @param options forecast options (`monthsUsed` there is ignored)
- * @returns the case, or null when fewer than 12 months are usable
+ * @returns the case, or null when fewer than 12 months are usable or the shape cannot be
+ *   fitted to them
  * @throws {RangeError} for bad forecast options
  * @example
  * ```ts
@@ -141,13 +142,20 @@ export function hindcastCase(
   const v = Array.from({ length: months }, (_, i) => c.value[i]);
   // the whole cycle's monthly times: the forecast continues the truncated months over them
   const curveTime = Array.from({ length: c.time.length }, (_, i) => c.time[i]);
-  const fc = forecastCycle(t, v, {
-    ...options,
-    seed: mixSeed(options.seed, caseIndex + 1),
-    curveTime,
-    blockLength: Math.min(options.blockLength ?? 6, months),
-    previousCycle: c.previousCycle,
-  });
+  let fc;
+  try {
+    fc = forecastCycle(t, v, {
+      ...options,
+      seed: mixSeed(options.seed, caseIndex + 1),
+      curveTime,
+      blockLength: Math.min(options.blockLength ?? 6, months),
+      previousCycle: c.previousCycle,
+    });
+  } catch (e) {
+    // a past cycle the shape cannot be fitted to (e.g. no positive values) is no case
+    if (e instanceof RangeError && /Cannot fit Hathaway cycle/.test(e.message)) return null;
+    throw e;
+  }
   const p = fc.maximum;
   return {
     id: c.id,
