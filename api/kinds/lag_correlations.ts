@@ -240,6 +240,7 @@ export const lagCorrelationKind: RunKind<typeof LagCorrelationRequest> = {
         t: jsonNumber(r.t),
         p_monte_carlo: mc ? mc.pPerLag[j] : null,
         null_sd: mc ? mc.nullSd[j] : null,
+        threshold_95: mc ? mc.threshold95PerLag[j] : null,
       })),
       best: {
         lag: best.lag,

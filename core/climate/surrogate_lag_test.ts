@@ -110,7 +110,12 @@ export interface SurrogateChunkOutput {
   /** Per lag: Σ r and Σ r² over the chunk's surrogates (for the spread of the null). */
   sum: Float64Array;
   sumSq: Float64Array;
+  /** Per lag, a histogram of |r| in {@link ABS_R_BINS} bins of [0, 1] (lag-major). */
+  absHistogram: Uint32Array;
 }
+
+/** Bins of the per-lag |r| histograms: thresholds are resolved to 1/ABS_R_BINS = 0.001. */
+export const ABS_R_BINS = 1000;
 
 /**
  * Precompute the fixed parts of the surrogate test for preprocessed series x (solar) and y
@@ -282,6 +287,7 @@ export function surrogateLagChunk(input: SurrogateChunkInput): SurrogateChunkOut
   const { plan, start, end } = input;
   const n = plan.n, nl = plan.maxLag - plan.minLag + 1;
   const exceed = new Float64Array(nl), sum = new Float64Array(nl), sumSq = new Float64Array(nl);
+  const absHistogram = new Uint32Array(nl * ABS_R_BINS);
   const maxAbs = new Float64Array(Math.max(0, end - start));
   const y = plan.y;
   const h = Math.floor(n / 2) + 1;
@@ -420,10 +426,11 @@ export function surrogateLagChunk(input: SurrogateChunkInput): SurrogateChunkOut
       if (ar > best) best = ar;
       sum[j] += r;
       sumSq[j] += r * r;
+      absHistogram[j * ABS_R_BINS + Math.min(ABS_R_BINS - 1, Math.floor(ar * ABS_R_BINS))]++;
     }
     maxAbs[idx - start] = best;
   }
-  return { start, exceed, maxAbs, sum, sumSq };
+  return { start, exceed, maxAbs, sum, sumSq, absHistogram };
 }
 
 /** Combined result of a surrogate test. */
@@ -440,6 +447,12 @@ export interface SurrogateLagResult {
   maxAbs95: number;
   /** Per lag: standard deviation of surrogate r (the null spread). */
   nullSd: number[];
+  /**
+   * Per lag: the |r| that 95 % of the surrogates stay below at that lag (pointwise 5 %
+   * threshold), read from the histogram as the upper edge of the bin where the count reaches
+   * 95 %, so it is conservative by at most 0.001.
+   */
+  threshold95PerLag: number[];
 }
 
 /**
@@ -470,6 +483,7 @@ export function combineSurrogateChunks(
 ): SurrogateLagResult {
   const nl = plan.maxLag - plan.minLag + 1;
   const exceed = new Float64Array(nl), sum = new Float64Array(nl), sumSq = new Float64Array(nl);
+  const hist = new Float64Array(nl * ABS_R_BINS);
   const sorted = [...chunks].sort((a, b) => a.start - b.start);
   const maxima: number[] = [];
   for (const ch of sorted) {
@@ -478,6 +492,7 @@ export function combineSurrogateChunks(
       sum[j] += ch.sum[j];
       sumSq[j] += ch.sumSq[j];
     }
+    for (let i = 0; i < hist.length; i++) hist[i] += ch.absHistogram[i];
     for (const v of ch.maxAbs) maxima.push(v);
   }
   const m = maxima.length;
@@ -495,5 +510,14 @@ export function combineSurrogateChunks(
     observedMaxAbs: plan.observedMaxAbs,
     maxAbs95: q95,
     nullSd: Array.from(sum, (sj, j) => Math.sqrt(Math.max(0, sumSq[j] / m - (sj / m) ** 2))),
+    threshold95PerLag: Array.from({ length: nl }, (_, j) => {
+      const need = Math.ceil(0.95 * m);
+      let c = 0;
+      for (let b = 0; b < ABS_R_BINS; b++) {
+        c += hist[j * ABS_R_BINS + b];
+        if (c >= need) return (b + 1) / ABS_R_BINS;
+      }
+      return 1;
+    }),
   };
 }

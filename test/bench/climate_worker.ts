@@ -9,6 +9,8 @@ import { surrogateLagChunk } from "../../core/climate/surrogate_lag_test.ts";
 
 self.onmessage = (e: MessageEvent) => {
   const out = surrogateLagChunk(e.data);
-  const buffers = [out.exceed, out.maxAbs, out.sum, out.sumSq].map((a) => a.buffer as ArrayBuffer);
+  const buffers = [out.exceed, out.maxAbs, out.sum, out.sumSq, out.absHistogram].map((a) =>
+    a.buffer as ArrayBuffer
+  );
   self.postMessage(out, { transfer: buffers });
 };

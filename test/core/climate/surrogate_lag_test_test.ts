@@ -121,6 +121,20 @@ Deno.test("combineSurrogateChunks() gives the same answer for any split", () => 
   assert.deepEqual(split.pPerLag, whole.pPerLag);
   assert.equal(split.pFamilyWise, whole.pFamilyWise);
   assert.equal(split.maxAbs95, whole.maxAbs95);
+  assert.deepEqual(split.threshold95PerLag, whole.threshold95PerLag);
+  // the pointwise threshold agrees with the sorted surrogate |r| at each lag to the bin width
+  for (const j of [0, 10, 20]) {
+    const vals: number[] = [];
+    for (let i = 0; i < 300; i++) {
+      vals.push(Math.abs(surrogateLagChunk({ plan, start: i, end: i + 1 }).sum[j]));
+    }
+    vals.sort((a, b) => a - b);
+    const q = vals[Math.ceil(0.95 * 300) - 1];
+    const th = whole.threshold95PerLag[j];
+    assert.ok(q <= th && th - q <= 0.001 + 1e-12, `lag ${j - 10}: ${q} vs ${th}`);
+  }
+  // the family-wise threshold is higher than every pointwise one (it pays for the search)
+  assert.ok(whole.maxAbs95 >= Math.max(...whole.threshold95PerLag) - 0.001);
   assert.ok(whole.pFamilyWise >= Math.min(...whole.pPerLag), "family-wise pays for the search");
   assert.throws(() => combineSurrogateChunks(plan, []), RangeError);
 });
