@@ -177,7 +177,9 @@ export const lagCorrelationKind: RunKind<typeof LagCorrelationRequest> = {
           : undefined,
       });
       if (ctx.cancelled()) throw new CancelledError();
-      const per = Math.ceil(p.surrogates / 16);
+      // a fixed split for given parameters (so sums are added in one order whatever the pool
+      // size): up to 16 chunks of at least 250 surrogates
+      const per = Math.ceil(p.surrogates / Math.min(16, Math.ceil(p.surrogates / 250)));
       const chunks: SurrogateChunkInput[] = [];
       for (let s = 0; s < p.surrogates; s += per) {
         chunks.push({ plan, start: s, end: Math.min(p.surrogates, s + per) });
