@@ -66,17 +66,34 @@ export function weightedMovingAverage(
   if (!(total > 0)) throw new RangeError("Cannot smooth: kernel weights sum to zero");
   const h = (m - 1) / 2, n = values.length;
   const out = new Float64Array(n);
+  const x = Float64Array.from(values), w = Float64Array.from(weights);
+  if (maxMissing === 0) {
+    // complete windows only: a running count of missing samples finds them, and the sum
+    // needs no renormalisation (same numbers as the general loop, in one pass per point)
+    const missing = new Int32Array(n + 1);
+    for (let i = 0; i < n; i++) missing[i + 1] = missing[i] + (x[i] === x[i] ? 0 : 1);
+    for (let i = 0; i < n; i++) {
+      if (i - h < 0 || i + h >= n || missing[i + h + 1] - missing[i - h] > 0) {
+        out[i] = NaN;
+        continue;
+      }
+      let swx = 0;
+      for (let k = 0, j = i - h; k < m; k++, j++) swx += w[k] * x[j];
+      out[i] = swx / total;
+    }
+    return out;
+  }
   // a tiny tolerance so that "exactly the allowed share" passes despite rounding
   const allowedMissing = maxMissing * total + 1e-12 * total;
   for (let i = 0; i < n; i++) {
     let sw = 0, swx = 0;
     const lo = Math.max(0, i - h), hi = Math.min(n - 1, i + h);
     for (let j = lo; j <= hi; j++) {
-      const x = values[j];
-      if (x === x) { // not NaN
-        const w = weights[j - i + h];
-        sw += w;
-        swx += w * x;
+      const xj = x[j];
+      if (xj === xj) { // not NaN
+        const wk = w[j - i + h];
+        sw += wk;
+        swx += wk * xj;
       }
     }
     out[i] = total - sw <= allowedMissing && sw > 0 ? swx / sw : NaN;
