@@ -184,11 +184,18 @@ export const lagCorrelationKind: RunKind<typeof LagCorrelationRequest> = {
       for (let s = 0; s < p.surrogates; s += per) {
         chunks.push({ plan, start: s, end: Math.min(p.surrogates, s + per) });
       }
-      const outs = await ctx.parallel<SurrogateChunkInput, SurrogateChunkOutput>(
-        "climate.surrogate_lag_chunk",
-        chunks,
-      );
-      if (ctx.cancelled()) throw new CancelledError();
+      // in rounds of 4 chunks, so that progress moves and a cancel is seen between rounds
+      const outs: SurrogateChunkOutput[] = [];
+      for (let c = 0; c < chunks.length; c += 4) {
+        outs.push(
+          ...await ctx.parallel<SurrogateChunkInput, SurrogateChunkOutput>(
+            "climate.surrogate_lag_chunk",
+            chunks.slice(c, c + 4),
+          ),
+        );
+        if (ctx.cancelled()) throw new CancelledError();
+        ctx.progress(0.05 + (0.9 * outs.length) / chunks.length);
+      }
       mc = combineSurrogateChunks(plan, outs);
     }
     ctx.progress(0.95);
