@@ -184,13 +184,13 @@ export const lagCorrelationKind: RunKind<typeof LagCorrelationRequest> = {
       for (let s = 0; s < p.surrogates; s += per) {
         chunks.push({ plan, start: s, end: Math.min(p.surrogates, s + per) });
       }
-      // in rounds of 4 chunks, so that progress moves and a cancel is seen between rounds
+      // in rounds of 8 chunks, so that progress moves and a cancel is seen between rounds
       const outs: SurrogateChunkOutput[] = [];
-      for (let c = 0; c < chunks.length; c += 4) {
+      for (let c = 0; c < chunks.length; c += 8) {
         outs.push(
           ...await ctx.parallel<SurrogateChunkInput, SurrogateChunkOutput>(
             "climate.surrogate_lag_chunk",
-            chunks.slice(c, c + 4),
+            chunks.slice(c, c + 8),
           ),
         );
         if (ctx.cancelled()) throw new CancelledError();
