@@ -6,6 +6,7 @@
  * @module
  */
 import { z } from "@hono/zod-openapi";
+import { snakeKeys } from "./json_keys.ts";
 import { InputProblem, type RunKind } from "../runs/kind.ts";
 import { SeriesRef } from "../schemas/series_ref.ts";
 import {
@@ -76,7 +77,7 @@ function rSquared(v: Float64Array, w: { start: number; end: number }, rss: numbe
 export const cycleFitsKind: RunKind<typeof CycleFitsRequest> = {
   kind: "cycle-fits",
   path: "/v1/cycle-fits",
-  algorithmVersion: "1",
+  algorithmVersion: "2",
   tag: "Solar cycles",
   summary: "Cycle-shape fits with uncertainties and the Waldmeier relation",
   description: "Fits F(t) = a (t − t0)^3 / [exp((t − t0)^2 / b^2) − c], c = 0.71 (Hathaway, " +
@@ -191,7 +192,7 @@ export const cycleFitsKind: RunKind<typeof CycleFitsRequest> = {
         solver: "Levenberg-Marquardt (ml-levenberg-marquardt) with the analytic Jacobian",
       },
       cycles,
-      waldmeier: { observed, fitted },
+      waldmeier: snakeKeys({ observed, fitted }),
       outputs: {
         fitted: {
           name: `${s.name} (fitted cycle shapes)`,

@@ -6,6 +6,7 @@
  * @module
  */
 import { z } from "@hono/zod-openapi";
+import { snakeKeys } from "./json_keys.ts";
 import { quantileSorted } from "d3-array";
 import { InputProblem, type RunKind } from "../runs/kind.ts";
 import { SeriesRef } from "../schemas/series_ref.ts";
@@ -65,11 +66,11 @@ export const CycleForecastsRequest = z.object({
 function summaryJson(cases: HindcastCase[], res: "monthly" | "annual") {
   const s = summarizeHindcast(cases);
   return {
-    summary: s && {
+    summary: s && snakeKeys({
       cases: s.cases,
       maximum_time_years: s.time,
       maximum_value: s.value,
-    },
+    }),
     cases: cases.map((c) => ({
       index: c.id,
       truncated_at: iso(c.truncatedAt, res),
@@ -123,7 +124,7 @@ function hindcastInterval(
 export const cycleForecastsKind: RunKind<typeof CycleForecastsRequest> = {
   kind: "cycle-forecasts",
   path: "/v1/cycle-forecasts",
-  algorithmVersion: "1",
+  algorithmVersion: "2",
   tag: "Solar cycles",
   summary: "Forecast of the cycle in progress, with a bootstrap band and hindcast errors",
   description: "Fits the Hathaway, Wilson & Reichmann (1994) shape function to the months " +

@@ -442,7 +442,7 @@ Deno.test("POST /v1/cycle-forecasts: the demo's cycle in progress, band and hind
     for (const h of [r.hindcast.same_phase, r.hindcast.mid_rise]) {
       assert.ok(h.summary.cases >= 20);
       assert.ok(Number.isFinite(h.summary.maximum_value.rmse));
-      assert.ok(Number.isFinite(h.summary.maximum_time_years.meanAbsoluteError));
+      assert.ok(Number.isFinite(h.summary.maximum_time_years.mean_absolute_error));
     }
     assert.ok(r.forecast.next_minimum.decimal_year > r.cycle_in_progress.start.decimal_year + 8);
     const out = r.outputs.forecast;
