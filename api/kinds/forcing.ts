@@ -65,7 +65,7 @@ export const forcing: RunKind<typeof Request> = {
     if (params.reconstruction) {
       const run = ctx.run(params.reconstruction);
       const o = (run.result?.outputs as Record<string, OutputSeries> | undefined)?.tsi;
-      if (run.kind !== "irradiance_reconstruction" || !o) {
+      if (run.kind !== "irradiance-reconstructions" || !o) {
         throw new InputProblem(
           "/reconstruction",
           `run ${run.id} is a ${run.kind} run; a /v1/irradiance/reconstructions run is needed`,

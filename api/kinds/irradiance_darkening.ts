@@ -116,7 +116,7 @@ function contrastModel(c: Params["contrast"]): ContrastModel {
 }
 
 export const irradianceDarkening: RunKind<typeof Request> = {
-  kind: "irradiance_darkening",
+  kind: "irradiance-darkening",
   path: "/v1/irradiance/darkening",
   algorithmVersion: "2",
   tag: "Irradiance",

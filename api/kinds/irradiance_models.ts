@@ -148,7 +148,7 @@ function keysOf(s: StoredSeries, r: CellResolution, period: { start: number; end
 }
 
 export const irradianceModels: RunKind<typeof Request> = {
-  kind: "irradiance_model",
+  kind: "irradiance-models",
   path: "/v1/irradiance/models",
   algorithmVersion: "2",
   tag: "Irradiance",

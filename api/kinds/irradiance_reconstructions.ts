@@ -130,7 +130,7 @@ function outsideCount(x: Float64Array, lo: number, hi: number): number {
 }
 
 export const irradianceReconstructions: RunKind<typeof Request> = {
-  kind: "irradiance_reconstruction",
+  kind: "irradiance-reconstructions",
   path: "/v1/irradiance/reconstructions",
   algorithmVersion: "2",
   tag: "Irradiance",
@@ -149,7 +149,7 @@ export const irradianceReconstructions: RunKind<typeof Request> = {
   estimateSeconds: (p) => (p.resolution === "daily" ? 0.5 : 0.1),
   compute(params: Params, ctx) {
     const run = ctx.run(params.model);
-    if (run.kind !== "irradiance_model") {
+    if (run.kind !== "irradiance-models") {
       throw new InputProblem(
         "/model",
         `run ${run.id} is a ${run.kind} run; a /v1/irradiance/models run is needed`,

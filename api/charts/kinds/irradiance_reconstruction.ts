@@ -1,5 +1,5 @@
 /**
- * Chart of an "irradiance_reconstruction" run: reconstructed TSI with its prediction interval,
+ * Chart of an "irradiance-reconstructions" run: reconstructed TSI with its prediction interval,
  * drawn solid where every proxy was observed and dashed where proxies were mapped from
  * sunspot number (back-extension), with the boundary between the two marked.
  *

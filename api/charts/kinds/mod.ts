@@ -18,8 +18,8 @@ export const KIND_CHARTS: Record<string, KindChart> = {
   "composites": compositesChart,
   "cycles": cyclesChart,
   "cycle-forecasts": cycleForecastChart,
-  "irradiance_model": irradianceModelChart,
-  "irradiance_reconstruction": irradianceReconstructionChart,
+  "irradiance-models": irradianceModelChart,
+  "irradiance-reconstructions": irradianceReconstructionChart,
   "lag-correlations": lagCorrelationChart,
   "smoothing": smoothingChart,
   "spectra": spectraChart,
@@ -29,6 +29,6 @@ export const KIND_CHARTS: Record<string, KindChart> = {
 export const KIND_INPUTS: ReadonlySet<string> = new Set([
   "cycles",
   "cycle-forecasts",
-  "irradiance_model",
+  "irradiance-models",
   "smoothing",
 ]);
