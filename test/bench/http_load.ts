@@ -153,10 +153,19 @@ try {
     throw new Error(`run not created: ${created.status} ${JSON.stringify(run)}`);
   }
   const runUrl = `${base}/v1/runs/${run.id}`;
+  // wrk sends no Accept-Encoding, so probe the identity representation (fetch would ask for gzip)
   const probe = async (u: string) => {
-    const r = await fetch(u);
+    const r = await fetch(u, { headers: { "Accept-Encoding": "identity" } });
     const bytes = (await r.arrayBuffer()).byteLength;
-    return { etag: r.headers.get("etag") ?? "", bytes };
+    const etag = r.headers.get("etag") ?? "";
+    const again = await fetch(u, {
+      headers: { "Accept-Encoding": "identity", "If-None-Match": etag },
+    });
+    await again.body?.cancel();
+    if (again.status !== 304) {
+      throw new Error(`${u}: expected 304 on revalidation, got ${again.status}`);
+    }
+    return { etag, bytes };
   };
   const targets: { name: string; url: string; headers?: Record<string, string>; bytes: number }[] =
     [];
@@ -230,41 +239,93 @@ try {
   await stop(hello);
 }
 
-/** wrk on /v1/health idle, then while a 10,000-surrogate lag-correlation run is in progress. */
+/** Latencies (ms) of /v1/health from 4 sequential clients until `stop()` says so. */
+async function probeHealth(base: string, stop: () => boolean) {
+  const ms: number[] = [];
+  const client = async () => {
+    while (!stop()) {
+      const t0 = performance.now();
+      const r = await fetch(`${base}/v1/health`);
+      await r.body?.cancel();
+      ms.push(performance.now() - t0);
+    }
+  };
+  await Promise.all([client(), client(), client(), client()]);
+  ms.sort((a, b) => a - b);
+  const q = (p: number) => ms[Math.min(ms.length - 1, Math.floor(p * ms.length))];
+  const r3 = (x: number) => Math.round(x * 1000) / 1000;
+  return {
+    samples: ms.length,
+    p50_ms: r3(q(0.5)),
+    p99_ms: r3(q(0.99)),
+    max_ms: r3(ms[ms.length - 1]),
+  };
+}
+
+/**
+ * /v1/health latency idle and while a 10,000-surrogate lag-correlation run is in progress:
+ * wrk for a fixed window, and 4 sequential fetch clients that run exactly while the run is
+ * queued or running (so the whole sample falls inside the run).
+ */
 async function healthDuringHeavyRun(base: string, body: Record<string, unknown>) {
   const list = await (await fetch(`${base}/v1/series?limit=100`)).json();
   const find = (q: string) =>
     list.items.find((s: { quantity: string }) => s.quantity === q)?.id as string;
   const req = { ...body, solar: find("sunspot_number"), climate: find("temperature_anomaly") };
   const idle = await wrk(`${base}/v1/health`, { seconds: 3, connections: 4 });
-  const t0 = Date.now();
-  const heavy = await fetch(`${base}/v1/lag-correlations`, {
-    method: "POST",
-    headers: { "content-type": "application/json", Prefer: "respond-async" },
-    body: JSON.stringify({ ...req, surrogates: 10_000, seed: 2 }),
-  });
-  const heavyRun = await heavy.json();
-  if (heavy.status !== 202) throw new Error(`heavy run not async: ${heavy.status}`);
+  const idleUntil = Date.now() + 3000;
+  const idleProbe = await probeHealth(base, () => Date.now() > idleUntil);
+  const submit = async () => {
+    const heavy = await fetch(`${base}/v1/lag-correlations`, {
+      method: "POST",
+      headers: { "content-type": "application/json", Prefer: "respond-async" },
+      body: JSON.stringify({ ...req, surrogates: 10_000, seed: 2 }),
+    });
+    const run = await heavy.json();
+    if (heavy.status !== 202) throw new Error(`heavy run not async: ${heavy.status}`);
+    return run.id as string;
+  };
+  const status = async (id: string) => (await (await fetch(`${base}/v1/runs/${id}`)).json());
+  // 1. wrk over a fixed window from the submission
+  const id1 = await submit();
   const during = await wrk(`${base}/v1/health`, { seconds: SECONDS, connections: 4 });
-  const afterLoad = await (await fetch(`${base}/v1/runs/${heavyRun.id}`)).json();
-  let final = afterLoad;
+  const afterLoad = await status(id1);
+  let s1 = afterLoad;
   const until = Date.now() + 120_000;
-  while ((final.status === "queued" || final.status === "running") && Date.now() < until) {
-    await new Promise((r) => setTimeout(r, 250));
-    final = await (await fetch(`${base}/v1/runs/${heavyRun.id}`)).json();
+  while ((s1.status === "queued" || s1.status === "running") && Date.now() < until) {
+    await new Promise((r) => setTimeout(r, 200));
+    s1 = await status(id1);
   }
+  // 2. probe exactly while a second run (another seed) is queued or running
+  const t0 = Date.now();
+  const id2 = await submit();
+  let running = true;
+  const deadline = Date.now() + 180_000;
+  const watch = (async () => {
+    while (running) {
+      const s = await status(id2);
+      running = (s.status === "queued" || s.status === "running") && Date.now() < deadline;
+      if (running) await new Promise((r) => setTimeout(r, 100));
+    }
+  })();
+  const probe = await probeHealth(base, () => !running);
+  await watch;
   return {
     surrogates: 10_000,
     idle,
+    idle_probe: idleProbe,
     during,
     run_status_when_load_ended: afterLoad.status as string,
     run_progress_when_load_ended: afterLoad.progress as number,
-    run_final_status: final.status as string,
-    run_wall_seconds: (Date.now() - t0) / 1000,
+    run_final_status: s1.status as string,
+    during_run_probe: probe,
+    probed_run_seconds: (Date.now() - t0) / 1000,
   };
 }
 
 results.load_average_at_end = loadAverage();
+const outPath = Deno.env.get("SUNLAG_BENCH_JSON");
+if (outPath) await Deno.writeTextFile(outPath, JSON.stringify(results, null, 2) + "\n");
 console.log(JSON.stringify(results, null, 2));
 const cg = results.cached_gets as Record<
   string,
@@ -275,7 +336,7 @@ console.log(
 );
 for (const [k, v] of Object.entries(cg)) {
   console.log(
-    `${k.padEnd(22)} ${String(v.median_rps).padStart(7)}  ${v.ratio_to_hello.toFixed(2)}  [${
+    `${k.padEnd(26)} ${String(v.median_rps).padStart(7)}  ${v.ratio_to_hello.toFixed(2)}  [${
       v.rounds_rps.join(", ")
     }]`,
   );
@@ -283,10 +344,15 @@ for (const [k, v] of Object.entries(cg)) {
 type Health = Awaited<ReturnType<typeof healthDuringHeavyRun>>;
 for (const [k, h] of Object.entries(results.health_during_heavy_run as Record<string, Health>)) {
   console.log(
-    `health (${k}) idle p50/p99 ms ${h.idle.latency_ms.p50}/${h.idle.latency_ms.p99}; during the ` +
-      `10,000-surrogate run p50/p99 ms ${h.during.latency_ms.p50}/${h.during.latency_ms.p99} (run ` +
-      `${h.run_status_when_load_ended} at ${(h.run_progress_when_load_ended * 100).toFixed(0)} % ` +
-      `when the load ended; ${h.run_final_status} after ${h.run_wall_seconds.toFixed(1)} s)`,
+    `health (${k}) wrk idle p50/p99 ms ${h.idle.latency_ms.p50}/${h.idle.latency_ms.p99}; wrk from ` +
+      `submission of a 10,000-surrogate run p50/p99 ms ${h.during.latency_ms.p50}/` +
+      `${h.during.latency_ms.p99} (run ${h.run_status_when_load_ended} when the load ended)`,
+  );
+  console.log(
+    `health (${k}) probe idle p50/p99/max ms ${h.idle_probe.p50_ms}/${h.idle_probe.p99_ms}/` +
+      `${h.idle_probe.max_ms}; probe during the whole run (${h.probed_run_seconds.toFixed(1)} s, ` +
+      `${h.during_run_probe.samples} requests) p50/p99/max ms ${h.during_run_probe.p50_ms}/` +
+      `${h.during_run_probe.p99_ms}/${h.during_run_probe.max_ms}`,
   );
 }
 console.log(
