@@ -42,7 +42,8 @@ export interface RandomStream {
  * ```
  */
 export function mixSeed(seed: number, index: number): number {
-  let h = (Math.imul(seed >>> 0, 0x9e3779b1) ^ Math.imul((index >>> 0) + 0x7f4a7c15, 0x85ebca6b)) >>>
+  let h =
+    (Math.imul(seed >>> 0, 0x9e3779b1) ^ Math.imul((index >>> 0) + 0x7f4a7c15, 0x85ebca6b)) >>>
     0;
   h ^= h >>> 16;
   h = Math.imul(h, 0x7feb352d) >>> 0;
