@@ -7,10 +7,13 @@
  * @module
  */
 import assert from "node:assert/strict";
+import { Buffer } from "node:buffer";
 import { type BrowserContext, chromium, type Page } from "playwright-core";
 import { startDemoService } from "./demo_service.ts";
 
 const CHROMIUM = "/usr/bin/chromium";
+/** Longest wait for one analysis run, ms (runs take a few seconds on an idle machine). */
+const RUN_TIMEOUT_MS = 60_000;
 const SHOTS = new URL("../output/screenshots/", import.meta.url);
 
 function chromiumPresent(): boolean {
@@ -199,13 +202,22 @@ Deno.test({
         async () => {
           const before = (await (await fetch(`${svc.url}/v1/series?limit=1`)).json()).total;
           await page.goto(`${svc.url}/#/upload`);
-          await page.fill("#up-text", BAD_CSV);
+          // This one comes from a file, as most uploads do.
+          await page.setInputFiles("#up-file", {
+            name: "station-record.csv",
+            mimeType: "text/csv",
+            buffer: Buffer.from(BAD_CSV, "utf-8"),
+          });
           await page.fill("#up-name", "Browser test bad upload");
           await page.selectOption("#up-quantity", "temperature_anomaly");
           await page.fill("#up-units", "K");
           await page.fill("#up-time", "date");
           await page.fill("#up-value", "anomaly");
           await page.click("#upload-form button[type=submit]");
+          assert.match(
+            await page.locator("#snippet-curl").innerText(),
+            /--data-binary @station-record\.csv/,
+          );
           await page.waitForSelector("#problem-place");
           const place = await page.locator("#problem-place").innerText();
           assert.match(place, /row 4, column anomaly/);
@@ -262,6 +274,8 @@ Deno.test({
           const probe = async (surrogates: number) => {
             const t0 = performance.now();
             const res = await fetch(`${svc.url}/v1/lag-correlations`, {
+              // A run that never ends (e.g. workers that failed to start) fails the test.
+              signal: AbortSignal.timeout(RUN_TIMEOUT_MS),
               method: "POST",
               headers: { "content-type": "application/json" },
               body: JSON.stringify({ solar, climate, surrogates, seed: surrogates }),
@@ -299,7 +313,7 @@ Deno.test({
           await page.click("#analysis-form button[type=submit]");
           await page.waitForSelector("#run-progress");
           await shot(page, "run-progress");
-          await page.waitForSelector("main [data-status=succeeded]", { timeout: 60_000 });
+          await page.waitForSelector("main [data-status=succeeded]", { timeout: RUN_TIMEOUT_MS });
           const seen = await page.evaluate(() =>
             (globalThis as unknown as { seen: number[] }).seen
           );
@@ -321,7 +335,7 @@ Deno.test({
       await t.step("replay of the run shows verified", async () => {
         await page.click("#replay");
         const verdict = page.locator("#replay-result [data-verified]");
-        await verdict.waitFor({ timeout: 60_000 });
+        await verdict.waitFor({ timeout: RUN_TIMEOUT_MS });
         assert.equal(await verdict.getAttribute("data-verified"), "true");
         assert.match(await page.locator("#replay-result").innerText(), /Verified/);
         await shot(page, "run-replayed");
@@ -329,6 +343,7 @@ Deno.test({
 
       await t.step("a cancel from the run view stops a long run", async () => {
         const res = await fetch(`${svc.url}/v1/lag-correlations`, {
+          signal: AbortSignal.timeout(RUN_TIMEOUT_MS),
           method: "POST",
           headers: { "content-type": "application/json", prefer: "respond-async" },
           body: JSON.stringify({ solar, climate, surrogates: surrogatesFor(2) }),
@@ -353,7 +368,7 @@ Deno.test({
           await openMoreOptions(page);
           await page.selectOption("#f_sunspot_number", solar);
           await page.click("#analysis-form button[type=submit]");
-          await page.waitForSelector("main [data-status=succeeded]", { timeout: 60_000 });
+          await page.waitForSelector("main [data-status=succeeded]", { timeout: RUN_TIMEOUT_MS });
           const modelRun = new URL(page.url()).hash.split("/")[2];
 
           await page.goto(`${svc.url}/#/analyse?kind=/v1/irradiance/reconstructions`);
@@ -367,7 +382,7 @@ Deno.test({
           await page.fill("#f_period_start", "1900");
           await page.fill("#f_period_end", "2020");
           await page.click("#analysis-form button[type=submit]");
-          await page.waitForSelector("main [data-status=succeeded]", { timeout: 60_000 });
+          await page.waitForSelector("main [data-status=succeeded]", { timeout: RUN_TIMEOUT_MS });
           await page.locator("figure.chart svg").waitFor();
           assert.match(await page.locator("main").innerText(), /satellite era/);
           assert.match(await page.locator("main").innerText(), /All \d+ rows as CSV/);
@@ -380,7 +395,7 @@ Deno.test({
         await page.waitForSelector("#analysis-form");
         await page.selectOption("#f_series", solar);
         await page.click("#analysis-form button[type=submit]");
-        await page.waitForSelector("main [data-status=succeeded]", { timeout: 60_000 });
+        await page.waitForSelector("main [data-status=succeeded]", { timeout: RUN_TIMEOUT_MS });
         await page.waitForSelector("main .result-table table");
         await page.locator("figure.chart svg").waitFor();
         await shot(page, "cycles-run");
@@ -475,7 +490,13 @@ Deno.test({
       assert.deepEqual(errors, [], "no uncaught errors in the page");
     } finally {
       await ctx.close();
-      await svc.close();
+      // close() waits for background runs; do not let one that never ends hang the suite.
+      let timer: ReturnType<typeof setTimeout> | undefined;
+      await Promise.race([
+        svc.close(),
+        new Promise((resolve) => (timer = setTimeout(resolve, RUN_TIMEOUT_MS))),
+      ]);
+      clearTimeout(timer);
       await Deno.remove(dir, { recursive: true }).catch(() => {});
     }
   },
