@@ -58,23 +58,38 @@ const BASE = location.origin;
  * @param {RequestSpec[]} reqs
  */
 function snippets(reqs) {
-  const curl = h("pre", { id: "snippet-curl", role: "tabpanel", "aria-label": "curl" });
+  // Panels take focus so a keyboard can scroll their long lines.
+  const curl = h("pre", {
+    id: "snippet-curl",
+    role: "tabpanel",
+    "aria-labelledby": "tab-curl",
+    tabindex: "0",
+  });
   const py = h("pre", {
     id: "snippet-python",
     role: "tabpanel",
-    "aria-label": "Python",
+    "aria-labelledby": "tab-python",
+    tabindex: "0",
     hidden: true,
   });
-  /** @param {"curl" | "python"} which */
-  const select = (which) => {
+  /**
+   * @param {"curl" | "python"} which
+   * @param {boolean} [focus]
+   */
+  const select = (which, focus = false) => {
     curl.hidden = which !== "curl";
     py.hidden = which !== "python";
-    tabCurl.setAttribute("aria-selected", String(which === "curl"));
-    tabPy.setAttribute("aria-selected", String(which === "python"));
+    for (const [tab, on] of [[tabCurl, which === "curl"], [tabPy, which === "python"]]) {
+      const t = /** @type {HTMLElement} */ (tab);
+      t.setAttribute("aria-selected", String(on));
+      t.tabIndex = on ? 0 : -1; // one tab stop for the tab list (WAI-ARIA tabs pattern)
+      if (on && focus) t.focus();
+    }
   };
   const tabCurl = h("button", {
     type: "button",
     role: "tab",
+    id: "tab-curl",
     "aria-selected": "true",
     "aria-controls": "snippet-curl",
     onclick: () => select("curl"),
@@ -82,8 +97,10 @@ function snippets(reqs) {
   const tabPy = h("button", {
     type: "button",
     role: "tab",
+    id: "tab-python",
     "aria-selected": "false",
     "aria-controls": "snippet-python",
+    tabindex: "-1",
     onclick: () => select("python"),
   }, "Python requests");
   const copy = h("button", {
@@ -100,18 +117,32 @@ function snippets(reqs) {
       setTimeout(() => (copy.textContent = "Copy"), 1500);
     },
   }, "Copy");
+  const tablist = h(
+    "div",
+    { role: "tablist", "aria-label": "Snippet language", class: "tabs" },
+    tabCurl,
+    tabPy,
+  );
+  // Arrow keys, Home and End move between the tabs.
+  tablist.addEventListener("keydown", (e) => {
+    if (!["ArrowLeft", "ArrowRight", "Home", "End"].includes(e.key)) return;
+    e.preventDefault();
+    // Two tabs: an arrow key goes to the other one.
+    const next = e.key === "Home"
+      ? "curl"
+      : e.key === "End"
+      ? "python"
+      : py.hidden
+      ? "python"
+      : "curl";
+    select(next, true);
+  });
   const section = h(
     "section",
     { class: "snippets", "aria-labelledby": "snippets-title" },
     h("h2", { id: "snippets-title" }, "From a script"),
     h("p", { class: "lede" }, "The same requests this view makes, to run from a shell or Python."),
-    h(
-      "div",
-      { class: "tabs", role: "tablist", "aria-label": "Snippet language" },
-      tabCurl,
-      tabPy,
-      copy,
-    ),
+    h("div", { class: "tabs" }, tablist, copy),
     curl,
     py,
   );

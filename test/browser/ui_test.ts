@@ -480,6 +480,14 @@ Deno.test({
         for (const label of ["Series", "Runs", "Upload", "Analyse"]) {
           assert.ok(reached.has(label), label);
         }
+        // The snippet tabs follow the WAI-ARIA tabs pattern: arrows move between them.
+        await page.focus("#tab-curl");
+        await page.keyboard.press("ArrowRight");
+        assert.equal(await page.evaluate(() => document.activeElement?.id), "tab-python");
+        assert.ok(await page.locator("#snippet-python").isVisible());
+        assert.ok(!(await page.locator("#snippet-curl").isVisible()));
+        await page.keyboard.press("Home");
+        assert.ok(await page.locator("#snippet-curl").isVisible());
         // Enter on a focused link navigates, and focus moves to the new view's content.
         await page.focus("[data-nav=upload]");
         await page.keyboard.press("Enter");
