@@ -289,7 +289,11 @@ export function renderChart(spec: ChartSpec, opts: RenderOptions): string {
 
   // ---- layout: title, legend, notes, margins
   const top0 = 10;
-  const titleLines = wrapText(spec.title, TITLE_FONT, W - 24, true).slice(0, 2);
+  const wrappedTitle = wrapText(spec.title, TITLE_FONT, W - 24, true);
+  const titleLines = wrappedTitle.slice(0, 2).map((t, i, a) =>
+    fitText(i === a.length - 1 && wrappedTitle.length > 2 ? t + " …" : t, TITLE_FONT, W - 24, true)
+      .text
+  );
   let y = top0 + TITLE_FONT;
   let markup = "";
   markup += el("rect", { width: W, height: H, fill: theme.background });
@@ -330,9 +334,11 @@ export function renderChart(spec: ChartSpec, opts: RenderOptions): string {
     const cy = ly + FONT / 2 - 1;
     for (const { l, i, x } of row) {
       legend += legendSwatch(l, colors[i], x, cy, theme);
+      // an entry alone on its row may still be wider than the chart: cut it to fit
+      const fit = fitText(l.label as string, FONT, W - 8 - (x + 22));
       legend += text(
-        { x: x + 22, y: ly + FONT - 2, fill: theme.foreground, "font-size": FONT },
-        l.label as string,
+        { x: x + 22, y: ly + FONT - 2, fill: theme.foreground, "font-size": fit.size },
+        fit.text,
       );
     }
   });
@@ -454,15 +460,18 @@ export function renderChart(spec: ChartSpec, opts: RenderOptions): string {
     stroke: theme.foreground,
     "stroke-width": 1,
   });
+  const xMid = (left + right) / 2;
+  const xl = fitText(spec.x.label, FONT, 2 * Math.min(xMid, W - xMid) - 8);
   axes += text({
     class: "x-label",
-    x: (left + right) / 2,
+    x: xMid,
     y: yRangeBottom + 4 + FONT + 4 + FONT + 4,
     "text-anchor": "middle",
     fill: theme.foreground,
-    "font-size": FONT,
-  }, spec.x.label);
+    "font-size": xl.size,
+  }, xl.text);
   const yMid = (yRangeTop + yRangeBottom) / 2;
+  const yl = fitText(spec.y.label, FONT, 2 * Math.min(yMid, H - yMid) - 8);
   axes += text({
     class: "y-label",
     x: 12 + FONT,
@@ -470,8 +479,8 @@ export function renderChart(spec: ChartSpec, opts: RenderOptions): string {
     "text-anchor": "middle",
     transform: `rotate(-90 ${num(12 + FONT)} ${num(yMid)})`,
     fill: theme.foreground,
-    "font-size": FONT,
-  }, spec.y.label);
+    "font-size": yl.size,
+  }, yl.text);
   markup += el("g", { class: "axes" }, axes);
 
   // ---- layers, clipped to the plot area
@@ -762,6 +771,25 @@ export function renderChart(spec: ChartSpec, opts: RenderOptions): string {
   return `<?xml version="1.0" encoding="UTF-8"?>\n${head}<title id="${id}-title">${
     escapeXml(spec.title)
   }</title><desc id="${id}-desc">${escapeXml(desc)}</desc>${markup}</svg>\n`;
+}
+
+/**
+ * A label that fits `max` px: the font shrinks (down to 9 px), then the text is cut with an
+ * ellipsis. The full text stays in the description.
+ */
+function fitText(
+  s: string,
+  size: number,
+  max: number,
+  bold = false,
+): { text: string; size: number } {
+  const w = textWidth(s, size, bold);
+  if (w <= max) return { text: s, size };
+  const smaller = Math.max(9, Math.floor(size * (max / w) * 10) / 10);
+  if (textWidth(s, smaller, bold) <= max) return { text: s, size: smaller };
+  let cut = s;
+  while (cut.length > 1 && textWidth(cut + "…", smaller, bold) > max) cut = cut.slice(0, -1);
+  return { text: cut.trimEnd() + "…", size: smaller };
 }
 
 /** A decimal year as an ISO date at a precision fit for the axis span. */
