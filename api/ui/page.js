@@ -821,6 +821,13 @@ async function runView(gen, id) {
       path: `${path}/replay`,
       note: "Recompute it from the stored inputs and compare digests",
     });
+    reqs.push({
+      method: "GET",
+      path: `${path}/chart.svg`,
+      query: { width: 800, height: 400, theme: "light" },
+      save: "run.svg",
+      note: "Its chart as SVG",
+    });
     for (const [name] of outputs) {
       reqs.push({
         method: "GET",
