@@ -157,6 +157,44 @@ async function charts(svc: TestService): Promise<[string, string][]> {
   });
   const cyc = await post("/v1/cycles", { series: sid, anchor: { cycle: 1, date: "1755-02" } });
   const spec = await post("/v1/spectra", { series: sid, replicates: 20 });
+  const years = Array.from({ length: 150 }, (_, i) => 1850 + i);
+  const epochs = [1860, 1871, 1883, 1894, 1905, 1917, 1928, 1939, 1950, 1961, 1972, 1983];
+  const comp = await post("/v1/composites", {
+    series: {
+      name: "Invented annual station",
+      quantity: "temperature_anomaly",
+      units: "K",
+      time: years.map(String),
+      value: years.map((y, i) =>
+        0.1 * Math.sin(i * 2.3) + (epochs.some((e) => y - e >= 1 && y - e <= 2) ? 0.3 : 0)
+      ),
+    },
+    epoch_dates: epochs.map(String),
+    before_years: 3,
+    after_years: 4,
+    bootstrap: 100,
+    random_sets: 100,
+  });
+  const attr = await post("/v1/attributions", {
+    climate: temp,
+    regressors: [
+      { name: "solar", role: "solar", series: solar, min_lag: 0, max_lag: 24 },
+      {
+        name: "enso",
+        role: "enso",
+        series: monthlySeries(
+          "Invented ENSO index",
+          "enso_index",
+          "1",
+          1950,
+          600,
+          (i) => Math.sin(i * 0.37) + Math.sin(i * 0.11),
+        ),
+        min_lag: 0,
+        max_lag: 6,
+      },
+    ],
+  });
   const out: [string, string][] = [];
   for (const q of ["", "?theme=dark", "?width=240&height=160", "?width=1600&height=300"]) {
     for (
@@ -165,6 +203,8 @@ async function charts(svc: TestService): Promise<[string, string][]> {
         ["lag", `/v1/runs/${lag}/chart.svg`],
         ["cycles", `/v1/runs/${cyc}/chart.svg`],
         ["spectra", `/v1/runs/${spec}/chart.svg`],
+        ["composite", `/v1/runs/${comp}/chart.svg`],
+        ["attribution", `/v1/runs/${attr}/chart.svg`],
       ]
     ) {
       const res = await svc.get(path + q);
