@@ -119,7 +119,7 @@ function snippets(reqs) {
   }, "Copy");
   const tablist = h(
     "div",
-    { role: "tablist", "aria-label": "Snippet language", class: "tabs" },
+    { role: "tablist", "aria-label": "Snippet language", class: "tablist" },
     tabCurl,
     tabPy,
   );
@@ -322,7 +322,8 @@ function pager(base, query, offset, total, shown) {
     const s = q.toString();
     return base + (s ? "?" + s : "");
   };
-  const from = total ? offset + 1 : 0;
+  if (!total) return null;
+  const from = offset + 1;
   return h(
     "nav",
     { class: "pager", "aria-label": "Pages" },
