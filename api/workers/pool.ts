@@ -16,6 +16,9 @@ import { type SerialisedError, transferablesOf } from "./messages.ts";
 interface Slot {
   worker: Worker;
   load: number;
+  index: number;
+  /** The worker failed; a fresh one is started when the slot is next used. */
+  dead: boolean;
 }
 
 interface Job {
@@ -38,6 +41,7 @@ export class WorkerPool implements ComputeExecutor {
   private readonly slots: Slot[] = [];
   private readonly jobs = new Map<number, Job>();
   private nextJob = 1;
+  private terminated = false;
 
   constructor(readonly size: number) {
     if (!Number.isInteger(size) || size < 1) {
@@ -46,20 +50,45 @@ export class WorkerPool implements ComputeExecutor {
       );
     }
     for (let i = 0; i < size; i++) {
-      const worker = new Worker(new URL("./worker.ts", import.meta.url).href, { type: "module" });
-      const slot: Slot = { worker, load: 0 };
-      worker.onmessage = (e) => this.onMessage(slot, e.data);
-      worker.onerror = (e) => {
-        e.preventDefault();
-        console.error(JSON.stringify({ level: "error", worker: i, error: e.message }));
-      };
+      const slot: Slot = { worker: this.spawn(i), load: 0, index: i, dead: false };
+      this.attach(slot, i);
       this.slots.push(slot);
     }
+  }
+
+  /** Start one worker (overridable in tests). */
+  protected spawn(_index: number): Worker {
+    return new Worker(new URL("./worker.ts", import.meta.url).href, { type: "module" });
+  }
+
+  /**
+   * Wire a slot's worker. An uncaught error in a worker (a module that fails to load, a crash)
+   * fails every job it held, so no run waits for ever, and the slot gets a fresh worker.
+   */
+  private attach(slot: Slot, index: number): void {
+    slot.worker.onmessage = (e) => this.onMessage(slot, e.data);
+    slot.worker.onerror = (e) => {
+      e.preventDefault();
+      console.error(JSON.stringify({ level: "error", worker: index, error: e.message }));
+      for (const [id, job] of this.jobs) {
+        if (job.slot !== slot) continue;
+        this.jobs.delete(id);
+        job.reject(new Error(`compute worker ${index} failed: ${e.message}`));
+      }
+      slot.load = 0;
+      slot.dead = true;
+      slot.worker.terminate();
+    };
   }
 
   private pick(): Slot {
     let best = this.slots[0];
     for (const s of this.slots) if (s.load < best.load) best = s;
+    if (best.dead && !this.terminated) {
+      best.worker = this.spawn(best.index);
+      best.dead = false;
+      this.attach(best, best.index);
+    }
     return best;
   }
 
@@ -163,6 +192,7 @@ export class WorkerPool implements ComputeExecutor {
 
   /** Stop every worker; pending jobs are rejected. */
   terminate(): void {
+    this.terminated = true;
     for (const s of this.slots) s.worker.terminate();
     for (const j of this.jobs.values()) j.reject(new Error("worker pool terminated"));
     this.jobs.clear();

@@ -11,8 +11,30 @@ const monthly = monthlySeries(
   (i) => (i >= 30 ? null : Math.cos(i / 3) + i / 10),
 );
 
+/** Two 30-year monthly series with an 11-year cycle, the second following the first. */
+const solar = monthlySeries(
+  "probe solar",
+  "sunspot_number",
+  "1",
+  1950,
+  360,
+  (i) => 80 + 70 * Math.sin((2 * Math.PI * i) / 132) + 10 * Math.sin(i * 1.7),
+  { version: "2" },
+);
+const climate = monthlySeries(
+  "probe climate",
+  "temperature_anomaly",
+  "K",
+  1950,
+  360,
+  (i) => 0.1 * Math.sin((2 * Math.PI * (i - 6)) / 132) + 0.05 * Math.cos(i * 2.3),
+);
+
 const requests: [string, unknown][] = [
   ["/v1/resampling", { series: monthly, to: "annual" }],
+  // Surrogates are farmed out to the workers in chunks (ctx.parallel).
+  ["/v1/lag-correlations", { solar, climate, surrogates: 500, seed: 3 }],
+  ["/v1/spectra", { series: solar }],
 ];
 
 async function digests(workers: number): Promise<string[]> {
@@ -53,5 +75,36 @@ Deno.test("canonical digests agree across processes", async () => {
     }).output();
     assert.equal(out.code, 0, new TextDecoder().decode(out.stderr));
     assert.equal(new TextDecoder().decode(out.stdout).trim(), here[i], path);
+  }
+});
+
+Deno.test("workers: a worker that fails fails its jobs (no run waits for ever) and is replaced", async () => {
+  const { WorkerPool } = await import("../../api/workers/pool.ts");
+  let spawned = 0;
+  class FailingFirst extends WorkerPool {
+    protected override spawn(index: number): Worker {
+      spawned++;
+      if (spawned === 1) {
+        return new Worker("data:text/javascript,throw new Error('cannot load')", {
+          type: "module",
+        });
+      }
+      return super.spawn(index);
+    }
+  }
+  const origError = console.error;
+  console.error = () => {};
+  const pool = new FailingFirst(1);
+  try {
+    await assert.rejects(
+      () => pool.parallel("no-such-task", [1]),
+      /compute worker 0 failed|unknown worker task/,
+    );
+    // The next job gets a fresh worker that loads: it answers (here with an unknown-task error).
+    await assert.rejects(() => pool.parallel("no-such-task", [1]), /unknown worker task/);
+    assert.equal(spawned, 2);
+  } finally {
+    console.error = origError;
+    pool.terminate();
   }
 });
