@@ -33,8 +33,9 @@ export const THEMES: Record<ThemeName, Theme> = {
     foreground: "#1b1f24",
     muted: "#57606a",
     grid: "#e3e6ea",
-    // blue, vermillion, bluish green, reddish purple, orange, sky blue, black
-    palette: ["#0072B2", "#D55E00", "#009E73", "#CC79A7", "#E69F00", "#56B4E9", "#1b1f24"],
+    // blue, vermillion, bluish green, reddish purple, orange, sky blue, black; orange and sky
+    // blue darkened from #E69F00 and #56B4E9 (2.3:1 on white) to reach 3:1
+    palette: ["#0072B2", "#D55E00", "#009E73", "#CC79A7", "#B27800", "#2B8CC4", "#1b1f24"],
     bandOpacity: 0.22,
   },
   dark: {

@@ -9,6 +9,7 @@ import { escapeXml, wrapText } from "../../api/charts/svg.ts";
 import { numberLabel, yearTicks } from "../../api/charts/ticks.ts";
 import { decimateBand, decimateM4 } from "../../api/charts/decimate.ts";
 import { axisLabel, quantityLabel, unitsLabel } from "../../api/charts/labels.ts";
+import { THEMES } from "../../api/charts/theme.ts";
 import { checkSvg, findAll, texts } from "./svg_check.ts";
 
 const OPTS: RenderOptions = { width: 800, height: 400, theme: "light" };
@@ -322,5 +323,32 @@ Deno.test("renderChart() keeps a usable plot at the smallest size with many lege
     );
     // every layer is still named in the description
     assert.match(findAll(root, "desc")[0].text, /number 11/);
+  }
+});
+
+/** WCAG 2.2 contrast ratio (relative luminance as defined in WCAG 2.2, "relative luminance"). */
+function contrast(a: string, b: string): number {
+  const lum = (hex: string) => {
+    const [r, g, bl] = [1, 3, 5].map((i) => parseInt(hex.slice(i, i + 2), 16) / 255)
+      .map((c) => (c <= 0.03928 ? c / 12.92 : ((c + 0.055) / 1.055) ** 2.4));
+    return 0.2126 * r + 0.7152 * g + 0.0722 * bl;
+  };
+  const [x, y] = [lum(a), lum(b)].sort((p, q) => q - p);
+  return (x + 0.05) / (y + 0.05);
+}
+
+Deno.test("THEMES: every data colour, text and axis colour has at least 3:1 contrast with its background (WCAG 2.2 §1.4.11)", () => {
+  // check value of the formula: black on white is 21:1 (WCAG 2.2 definition)
+  assert.ok(Math.abs(contrast("#000000", "#ffffff") - 21) < 1e-9);
+  for (const t of Object.values(THEMES)) {
+    for (const c of [...t.palette, t.foreground, t.muted]) {
+      assert.ok(
+        contrast(c, t.background) >= 3,
+        `${t.name}: ${c} on ${t.background} is ${contrast(c, t.background).toFixed(2)}:1`,
+      );
+    }
+    // text (titles, labels, notes) at least 4.5:1 (WCAG 2.2 §1.4.3)
+    assert.ok(contrast(t.foreground, t.background) >= 4.5);
+    assert.ok(contrast(t.muted, t.background) >= 4.5);
   }
 });
