@@ -240,6 +240,11 @@ export function renderChart(spec: ChartSpec, opts: RenderOptions): string {
     }
     x0 = e.lo;
     x1 = e.hi;
+    // A range that starts after the data ends (or ends before it starts) shows one empty year.
+    if (x0 > x1) {
+      if (finite(opts.from) && !finite(opts.to)) x1 = x0 + 1;
+      else x0 = x1 - 1;
+    }
   }
   const hasX = xKind === "category"
     ? categories.length > 0

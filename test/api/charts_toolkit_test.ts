@@ -352,3 +352,12 @@ Deno.test("THEMES: every data colour, text and axis colour has at least 3:1 cont
     assert.ok(contrast(t.muted, t.background) >= 4.5);
   }
 });
+
+Deno.test("renderChart() with a one-sided range beyond the data draws an empty year, not a reversed axis", () => {
+  for (const o of [{ from: 2100 }, { to: 1800 }]) {
+    const root = checkSvg(renderChart(spec(), { ...OPTS, ...o }));
+    assert.ok(texts(root).includes("No data in the selected range"));
+    const desc = findAll(root, "desc")[0].text;
+    assert.match(desc, o.from ? /from 2100-01 to 2101-01/ : /from 1799-01 to 1800-01/, desc);
+  }
+});
