@@ -456,3 +456,24 @@ Deno.test('If-None-Match uses the weak comparison: W/"tag" revalidates a strong 
     await svc.close();
   }
 });
+
+Deno.test("acceptsGzip() reads Accept-Encoding with q-values (RFC 9110 §12.5.3)", async () => {
+  const { acceptsGzip, gzipTag } = await import("../../api/routes/immutable_cache.ts");
+  const cases: [string | undefined, boolean][] = [
+    [undefined, false],
+    ["", false],
+    ["gzip", true],
+    ["GZIP", true],
+    ["br, gzip;q=0.5", true],
+    ["gzip;q=0", false],
+    ["gzip; q=0.000", false],
+    ["identity", false],
+    ["*", true],
+    ["*;q=0", false],
+    ["*, gzip;q=0", false],
+    ["x-gzip", true],
+    ["deflate, br", false],
+  ];
+  for (const [h, want] of cases) assert.equal(acceptsGzip(h), want, String(h));
+  assert.equal(gzipTag('"abc"'), '"abc-gzip"');
+});
