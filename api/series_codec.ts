@@ -51,6 +51,14 @@ export const seriesCodec: SeriesCodec = {
   },
 
   async fromOutput(o: OutputSeries, runId: string) {
+    if (o.time_axis && o.time_axis !== "decimal_year") {
+      throw new ProblemError(
+        "conflict",
+        `Output "${o.name}" of run ${runId} has a ${
+          o.time_axis.replace(/_/g, " ")
+        } axis, not calendar time, and cannot be stored as a series`,
+      );
+    }
     const keep: number[] = [];
     for (let i = 0; i < o.time.length; i++) {
       const v = o.value[i];

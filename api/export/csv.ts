@@ -22,6 +22,8 @@ function comment(text: string): string {
 export function outputToCsv(run: RunRecord, name: string, o: OutputSeries): string {
   const cautions = (run.result?.cautions ?? []) as string[];
   const warnings = (run.result?.warnings ?? []) as string[];
+  const axis = o.time_axis ?? "decimal_year";
+  const calendar = axis === "decimal_year";
   const lines = [
     `# sunlag run output`,
     `# run_id: ${run.id}`,
@@ -31,20 +33,24 @@ export function outputToCsv(run: RunRecord, name: string, o: OutputSeries): stri
     `# name: ${comment(o.name)}`,
     `# quantity: ${o.quantity}`,
     `# units: ${o.units}`,
-    `# time: decimal_year on the proleptic Gregorian calendar; date is ISO 8601`,
+    calendar
+      ? `# time: decimal_year on the proleptic Gregorian calendar; date is ISO 8601`
+      : `# time: ${axis.replace(/_/g, " ")} (not calendar time)`,
     ...(o.interval ? [`# interval: ${comment(o.interval)}`] : []),
     ...(o.description ? [`# description: ${comment(o.description)}`] : []),
     ...warnings.map((w) => `# warning: ${comment(w)}`),
     ...cautions.map((w) => `# caution: ${comment(w)}`),
   ];
-  const cols = ["date", "decimal_year", "value"];
+  const cols = calendar ? ["date", "decimal_year", "value"] : [axis, "value"];
   if (o.uncertainty) cols.push("uncertainty");
   if (o.lower) cols.push("lower");
   if (o.upper) cols.push("upper");
   lines.push(cols.join(","));
   const res = inferResolution(o.time);
   for (let i = 0; i < o.time.length; i++) {
-    const row = [formatIsoTime(o.time[i], res), String(o.time[i]), cell(o.value[i])];
+    const row = calendar
+      ? [formatIsoTime(o.time[i], res), String(o.time[i]), cell(o.value[i])]
+      : [String(o.time[i]), cell(o.value[i])];
     if (o.uncertainty) row.push(cell(o.uncertainty[i]));
     if (o.lower) row.push(cell(o.lower[i]));
     if (o.upper) row.push(cell(o.upper[i]));

@@ -74,7 +74,7 @@ function epochsFromRun(
 export const compositeKind: RunKind<typeof CompositeRequest> = {
   kind: "composites",
   path: "/v1/composites",
-  algorithmVersion: "1",
+  algorithmVersion: "2",
   tag: "Solar–climate linkage",
   summary: "Superposed epoch composite around solar maxima, minima or given dates",
   description: "Averages the climate series in a window around each epoch (offsets in " +
@@ -206,6 +206,7 @@ export const compositeKind: RunKind<typeof CompositeRequest> = {
           lower: r.lower,
           upper: r.upper,
           interval: "95 % bootstrap band",
+          time_axis: "years_from_epoch",
           description: "time axis: years from the epoch, not calendar years",
         },
         series_preprocessed: {

@@ -67,7 +67,7 @@ export const EnergyBalanceRequest = z.object({
 export const energyBalanceKind: RunKind<typeof EnergyBalanceRequest> = {
   kind: "energy-balance",
   path: "/v1/energy-balance",
-  algorithmVersion: "1",
+  algorithmVersion: "2",
   tag: "Solar–climate linkage",
   summary: "Energy-balance temperature response to a forcing (one-box or two-box)",
   description: "Integrates C dT/dt = F − λT (one-box) or the two-box model with a deep ocean " +
@@ -230,6 +230,7 @@ export const energyBalanceKind: RunKind<typeof EnergyBalanceRequest> = {
         quantity,
         units: "K",
         time: Array.from(time),
+        ...(p.sinusoid ? { time_axis: "model_years" as const } : {}),
         value: jsonArray(surface),
         description: "Mixed-layer temperature response, K, relative to the initial state",
       },
@@ -240,6 +241,7 @@ export const energyBalanceKind: RunKind<typeof EnergyBalanceRequest> = {
         quantity,
         units: "K",
         time: Array.from(time),
+        ...(p.sinusoid ? { time_axis: "model_years" as const } : {}),
         value: jsonArray(deep),
       };
     }

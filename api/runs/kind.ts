@@ -26,6 +26,13 @@ export interface OutputSeries {
   upper?: (number | null)[];
   /** Human description of the interval, e.g. "95 % prediction interval". */
   interval?: string;
+  /**
+   * What `time` measures. Default `decimal_year` (calendar time). `years_from_epoch` (a
+   * superposed-epoch composite) and `model_years` (years from the start of an idealised
+   * experiment) are not calendar times: such outputs have no ISO dates and cannot be saved as
+   * stored series.
+   */
+  time_axis?: "decimal_year" | "years_from_epoch" | "model_years";
   description?: string;
 }
 

@@ -220,3 +220,33 @@ Deno.test("bundles: round trip into a second instance verifies; tampering is det
   await b.close();
   await c.close();
 });
+
+Deno.test("runs: outputs that are not on calendar time have no dates in CSV and cannot be saved", async () => {
+  const offsets: RunKind = {
+    ...meanKind,
+    kind: "test-offsets",
+    path: "/v1/test-offsets",
+    compute: () => ({
+      outputs: {
+        composite: {
+          name: "composite",
+          quantity: "temperature_anomaly",
+          units: "K",
+          time: [-2, -1, 0, 1, 2],
+          value: [0, 0.1, 0.3, 0.1, 0],
+          time_axis: "years_from_epoch",
+        },
+      },
+    }),
+  };
+  const svc = await service([offsets]);
+  const run = await (await svc.post("/v1/test-offsets", { series: inline })).json();
+  const csv = await (await svc.app.request(`/v1/runs/${run.id}/outputs/composite?format=csv`))
+    .text();
+  assert.match(csv, /# time: years from epoch \(not calendar time\)/);
+  assert.match(csv, /\nyears_from_epoch,value\n-2,0\n/);
+  const saved = await svc.post(`/v1/runs/${run.id}/outputs/composite/series`, {});
+  const body = await assertProblem(saved, 409);
+  assert.match(body.detail, /not calendar time/);
+  await svc.close();
+});
