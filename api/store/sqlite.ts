@@ -180,9 +180,9 @@ export class SqliteStore implements Store {
     return s;
   }
 
-  /** Run `fn` in one write transaction taken with BEGIN IMMEDIATE. */
-  #write<T>(fn: () => T): T {
-    this.#db.exec("BEGIN IMMEDIATE");
+  /** Run `fn` in one transaction opened by `begin`, committed on return, rolled back on throw. */
+  #transaction<T>(begin: string, fn: () => T): T {
+    this.#db.exec(begin);
     try {
       const out = fn();
       this.#db.exec("COMMIT");
@@ -193,17 +193,14 @@ export class SqliteStore implements Store {
     }
   }
 
+  /** Run `fn` in one write transaction taken with BEGIN IMMEDIATE. */
+  #write<T>(fn: () => T): T {
+    return this.#transaction("BEGIN IMMEDIATE", fn);
+  }
+
   /** Run `fn` in one read transaction (a consistent snapshot across statements). */
   #read<T>(fn: () => T): T {
-    this.#db.exec("BEGIN");
-    try {
-      const out = fn();
-      this.#db.exec("COMMIT");
-      return out;
-    } catch (e) {
-      if (this.#db.isTransaction) this.#db.exec("ROLLBACK");
-      throw e;
-    }
+    return this.#transaction("BEGIN", fn);
   }
 
   ping(): Promise<boolean> {
