@@ -23,6 +23,7 @@ import {
   valuesAtKeys,
 } from "../../core/irradiance/mod.ts";
 import { tQuantile } from "../../core/stats/distributions.ts";
+import { residualLag1 } from "../../core/stats/residual_lag1.ts";
 import {
   cellDays,
   cycleAmplitudeWarning,
@@ -127,15 +128,6 @@ export interface StoredMappings {
   step_days: number;
   terms: Record<string, StoredMappingChoice>;
   back_extension: { residual_sd: number; rho: number; step_days: number; n: number };
-}
-
-function lag1(e: Float64Array): number {
-  let num = 0, den = 0;
-  for (let i = 0; i < e.length; i++) {
-    den += e[i] * e[i];
-    if (i > 0) num += e[i] * e[i - 1];
-  }
-  return den > 0 ? num / den : 0;
 }
 
 function keysOf(s: StoredSeries, r: CellResolution, period: { start: number; end: number }) {
@@ -359,7 +351,7 @@ export const irradianceModels: RunKind<typeof Request> = {
         terms: snakeKeys(choices) as Record<string, StoredMappingChoice>,
         back_extension: {
           residual_sd: Math.sqrt(ss2 / r.length),
-          rho: Math.max(-0.999, Math.min(0.999, lag1(r))),
+          rho: Math.max(-0.999, Math.min(0.999, residualLag1(r))),
           step_days: cellDays(sres),
           n: r.length,
         },

@@ -20,6 +20,7 @@
  */
 import { leastSquaresQr } from "../stats/least_squares_qr.ts";
 import { ordinaryLeastSquares } from "../stats/ordinary_least_squares.ts";
+import { residualLag1 } from "../stats/residual_lag1.ts";
 
 /** A fitted sunspot-number → proxy mapping. */
 export interface SunspotProxyMapping {
@@ -46,15 +47,6 @@ export interface SunspotProxyMapping {
 function gaussianIc(rss: number, n: number, k: number): { aic: number; bic: number } {
   const ll = 0.5 * (-n * (Math.log(2 * Math.PI) + 1 - Math.log(n) + Math.log(rss)));
   return { aic: -2 * ll + 2 * (k + 1), bic: -2 * ll + Math.log(n) * (k + 1) };
-}
-
-function lag1(e: Float64Array): number {
-  let num = 0, den = 0;
-  for (let i = 0; i < e.length; i++) {
-    den += e[i] * e[i];
-    if (i > 0) num += e[i] * e[i - 1];
-  }
-  return den > 0 ? num / den : 0;
 }
 
 function check(r: ArrayLike<number>, f: ArrayLike<number>, need: number): void {
@@ -239,7 +231,7 @@ export function fitSaturatingSunspotMapping(
     rSquared: tss > 0 ? 1 - rss / tss : 0,
     aic: ic.aic,
     bic: ic.bic,
-    residualLag1: lag1(resid),
+    residualLag1: residualLag1(resid),
     sunspotMin: lo,
     sunspotMax: hi,
   };

@@ -16,3 +16,4 @@ export {
 } from "./ordinary_least_squares.ts";
 export * from "./prais_winsten.ts";
 export * from "./newey_west.ts";
+export * from "./residual_lag1.ts";

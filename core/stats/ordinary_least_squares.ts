@@ -3,6 +3,7 @@
  *
  * @module
  */
+import { residualLag1 } from "./residual_lag1.ts";
 import { leastSquaresQr } from "./least_squares_qr.ts";
 import { conditionNumberOfR } from "./condition_number.ts";
 import { tCdf, tQuantile } from "./distributions.ts";
@@ -204,9 +205,7 @@ export function fitStatistics(
   for (let i = 0; i < n; i++) tss += (y[i] - ybar) * (y[i] - ybar);
   const rSquared = tss > 0 ? 1 - rss / tss : 0;
   const adjRSquared = 1 - (1 - rSquared) * (n - (intercept ? 1 : 0)) / (n - p);
-  let num = 0;
-  for (let i = 1; i < n; i++) num += residuals[i] * residuals[i - 1];
-  const residualLag1 = rss > 0 ? num / rss : 0;
+  const lag1 = residualLag1(residuals);
   if (!(level > 0 && level < 1)) {
     throw new RangeError(
       `Cannot fit regression: level must be in (0, 1), current value is ${level}`,
@@ -220,7 +219,7 @@ export function fitStatistics(
     rSquared,
     adjRSquared,
     residualRms: Math.sqrt(rss / n),
-    residualLag1,
+    residualLag1: lag1,
     tcrit,
   };
 }
