@@ -219,10 +219,14 @@ export function registerSeriesRoutes(app: App, deps: { store: Store; config: Con
       const id = c.req.valid("param").id;
       const csv = wantsCsv(c);
       const etag = `"${id}${csv ? "-csv" : ""}"`;
-      const s = await store.getSeries(id);
-      if (!s) throw new ProblemError("not-found", `No series has id ${id}`);
+      // Existence first (cheap), then a 304 without reading the points.
+      if (!(await store.getSeriesMeta(id))) {
+        throw new ProblemError("not-found", `No series has id ${id}`);
+      }
       const nm = notModified(c, etag);
       if (nm) return nm;
+      const s = await store.getSeries(id);
+      if (!s) throw new ProblemError("not-found", `No series has id ${id}`);
       for (const [k, v] of Object.entries(immutableHeaders(etag))) c.header(k, v);
       c.header("Vary", "Accept");
       if (csv) {
