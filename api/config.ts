@@ -6,7 +6,7 @@
  * |---|---|---|
  * | `HOST` | `127.0.0.1` | bind address |
  * | `PORT` | `8080` | TCP port |
- * | `SUNLAG_STORE` | `sqlite:./data/sunlag.db` | store location (`sqlite:<file>` or `sqlite::memory:`) |
+ * | `SUNLAG_STORE` | `sqlite:./data/sunlag.db` | store location (`sqlite:<file>`, `sqlite::memory:` or `postgres://...`) |
  * | `SUNLAG_DEMO` | `1` | load the demo data into an empty store at start (`0` to skip) |
  * | `SUNLAG_BODY_LIMIT_MB` | `25` | largest accepted request body, MB |
  * | `SUNLAG_WORKERS` | number of cores | Web Workers for heavy computation (`0` = in-thread) |
