@@ -10,6 +10,8 @@ import type { RunKind } from "../runs/kind.ts";
 import type { RunService } from "../runs/service.ts";
 import { problems, RunSchema } from "../schemas/common.ts";
 import { requireJson } from "./media.ts";
+import { unknownFields } from "./unknown_fields.ts";
+import { ProblemError } from "../problems.ts";
 import { runView } from "./runs.ts";
 
 const PreferHeader = z.object({
@@ -47,6 +49,15 @@ export function registerKindRoutes(app: App, deps: { runs: RunService; kinds: Ru
     // deno-lint-ignore no-explicit-any
     app.openapi(route, async (c: any) => {
       const params = c.req.valid("json") as Record<string, unknown>;
+      const unknown = unknownFields(await c.req.json(), params);
+      if (unknown.length) {
+        throw new ProblemError(
+          "validation",
+          `The request names ${unknown.length} field(s) this analysis does not take: ` +
+            unknown.map((e) => e.pointer).join(", "),
+          { errors: unknown },
+        );
+      }
       const prefer = (c.req.header("prefer") ?? "").toLowerCase();
       const outcome = await deps.runs.submit(kind, params, {
         preferAsync: /\brespond-async\b/.test(prefer),

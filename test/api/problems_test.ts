@@ -126,3 +126,27 @@ Deno.test("every response carries X-Request-Id", async () => {
   }
   await svc.close();
 });
+
+Deno.test("problems: a misspelt analysis option is a 422 naming it, not a silent default", async () => {
+  const svc = await makeTestApp();
+  const spots = {
+    name: "spots",
+    quantity: "sunspot_number",
+    units: "1",
+    version: "2",
+    time: Array.from(
+      { length: 48 },
+      (_, i) => `${2000 + Math.floor(i / 12)}-${String(i % 12 + 1).padStart(2, "0")}`,
+    ),
+    value: Array.from({ length: 48 }, (_, i) => 50 + 40 * Math.sin(i / 8)),
+  };
+  const res = await svc.post("/v1/spectra", { series: spots, periods: { minimum: 2 }, gird: 1 });
+  const body = await assertProblem(res, 422);
+  const pointers = body.errors.map((e: { pointer: string }) => e.pointer).sort();
+  assert.deepEqual(pointers, ["/gird", "/periods/minimum"]);
+  const nested = body.errors.find((e: { pointer: string }) => e.pointer === "/periods/minimum");
+  assert.match(nested.message, /unknown field "minimum"/);
+  assert.equal((await svc.store.listRuns({ limit: 5, offset: 0 })).total, 0);
+  assert.equal((await svc.store.listSeries({ limit: 5, offset: 0 })).total, 0);
+  await svc.close();
+});
