@@ -231,6 +231,24 @@ export const irradianceModels: RunKind<typeof Request> = {
       other = null; // the comparison is optional; the requested fit succeeded
     }
     const warnings: string[] = [...quietSunWarning(fit.quietSun.value)];
+    // A term whose quantity does not fit its role is allowed (the user may know better) but
+    // never silent.
+    const FACULAR_QUANTITIES = ["facular_index", "radio_flux", "other"];
+    params.terms.forEach((t, k) => {
+      const q = termSeries[k].quantity;
+      if (t.role === "facular" && !FACULAR_QUANTITIES.includes(q)) {
+        warnings.push(
+          `term "${t.name}" has role facular but its series has quantity ${q}; a facular ` +
+            "brightening term is normally a facular index or radio flux",
+        );
+      }
+      if (t.role === "sunspot_darkening" && q !== "other") {
+        warnings.push(
+          `term "${t.name}" has role sunspot_darkening but its series has quantity ${q}; ` +
+            "the darkening regressor is a Photometric Sunspot Index series (from /v1/irradiance/darkening)",
+        );
+      }
+    });
     if (!fit.converged) {
       warnings.push(
         `The Prais–Winsten iteration did not converge in ${fit.iterations} steps; ρ = ${

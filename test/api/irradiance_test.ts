@@ -481,3 +481,21 @@ Deno.test("snakeKeys/camelKeys: core results to API JSON and back; snake_case JS
   assert.equal(snakeName("adjRSquared"), "adj_r_squared");
   assert.equal(camelName("adj_r_squared"), "adjRSquared");
 });
+
+Deno.test("irradiance models: a term whose quantity does not fit its role is warned about", async () => {
+  const svc = await makeTestApp();
+  await loadDemo(svc.store);
+  const TSI = "sha256:4de66a40b207591db1232e642ce89992bf2df2f556d26f12ada5d636c0034a0f";
+  const TEMP = "sha256:dc57cafa9ebf93093645c18f5c57f2c59cb3dfc8505841586e88f241a195e480";
+  const res = await svc.post("/v1/irradiance/models", {
+    tsi: TSI,
+    terms: [{ name: "odd", series: TEMP, role: "facular" }],
+  });
+  const run = await res.json();
+  assert.equal(res.status, 201, JSON.stringify(run));
+  assert.ok(
+    run.result.warnings.some((w: string) => /role facular .* quantity temperature_anomaly/.test(w)),
+    JSON.stringify(run.result.warnings),
+  );
+  await svc.close();
+});
