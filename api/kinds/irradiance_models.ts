@@ -142,7 +142,7 @@ function keysOf(s: StoredSeries, r: CellResolution, period: { start: number; end
 export const irradianceModels: RunKind<typeof Request> = {
   kind: "irradiance-models",
   path: "/v1/irradiance/models",
-  algorithmVersion: "2",
+  algorithmVersion: "3",
   tag: "Irradiance",
   summary: "Calibrate a proxy-regression TSI model against a measured TSI record",
   description: "Fits TSI(t) = S_Q + Σ a_k·(F_k(t) − F_k,Q) − b·S_ref·PSI(t) (Foukal & Lean " +
