@@ -9,6 +9,7 @@
  *
  *   deno run -A test/bench/climate_medians.ts [rounds]
  */
+import { median as d3Median } from "d3-array";
 import {
   attributionRegression,
   combineSurrogateChunks,
@@ -17,14 +18,10 @@ import {
 } from "../../core/climate/mod.ts";
 import { attributionCase, lagCase, SURROGATES } from "./climate_case.ts";
 
+const median = (xs: number[]): number => d3Median(xs) ?? NaN;
+
 const ROUNDS = Number(Deno.args[0] ?? 5);
 const CHUNK = 500;
-
-function median(xs: number[]): number {
-  const s = [...xs].sort((a, b) => a - b);
-  const k = s.length >> 1;
-  return s.length % 2 ? s[k] : (s[k - 1] + s[k]) / 2;
-}
 
 const { plan } = lagCase();
 

@@ -8,17 +8,14 @@
  *
  *   deno run -A test/bench/cycles_medians.ts [rounds]
  */
+import { median as d3Median } from "d3-array";
 import { cycleTable, findCycleExtrema, smoothed13Month } from "../../core/cycles/mod.ts";
 import { lombScargle, periodGrid } from "../../core/spectral/mod.ts";
 import { activity, monthTimes, PERIODS, unevenTimes } from "./cycles_case.ts";
 
-const ROUNDS = Number(Deno.args[0] ?? 15);
+const median = (xs: number[]): number => d3Median(xs) ?? NaN;
 
-function median(xs: number[]): number {
-  const s = [...xs].sort((a, b) => a - b);
-  const k = s.length >> 1;
-  return s.length % 2 ? s[k] : (s[k - 1] + s[k]) / 2;
-}
+const ROUNDS = Number(Deno.args[0] ?? 15);
 
 function timeIt(f: () => void): number {
   f(); // warm-up
