@@ -1,5 +1,10 @@
 import assert from "node:assert/strict";
-import { assertProblem, makeTestApp, monthlySeries } from "./helpers.ts";
+import {
+  assertProblem,
+  inventedAttributionRequest,
+  makeTestApp,
+  monthlySeries,
+} from "./helpers.ts";
 import { randomStream } from "../../core/random/random_stream.ts";
 
 /** Invented monthly pair: an 11-year solar cycle with noise, and a climate series following it
@@ -152,48 +157,7 @@ Deno.test("POST /v1/lag-correlations rejects bad input with 422 problems naming 
 Deno.test("POST /v1/attributions recovers an invented solar sensitivity and lag", async () => {
   const svc = await makeTestApp();
   try {
-    const st = randomStream(21, 0);
-    const n = 480, L = 12;
-    const tsi: number[] = [], enso: number[] = [];
-    let en = 0;
-    for (let i = 0; i < n + L; i++) {
-      tsi.push(1361 + 0.5 * Math.sin((2 * Math.PI * i) / 132) + 0.2 * st.normal());
-      en = 0.9 * en + 0.4 * st.normal();
-      enso.push(en);
-    }
-    let e = 0;
-    const temp: number[] = [];
-    for (let i = 0; i < n; i++) {
-      e = 0.5 * e + 0.02 * st.normal();
-      // solar acts 6 months later, ENSO 2 months later (indices shifted by L)
-      temp.push(0.1 * (tsi[i + L - 6] - 1361) + 0.05 * enso[i + L - 2] + 0.001 * i + e);
-    }
-    const body = {
-      climate: monthlySeries(
-        "invented station",
-        "temperature_anomaly",
-        "K",
-        1900,
-        n,
-        (i) => temp[i],
-      ),
-      regressors: [
-        {
-          name: "solar",
-          role: "solar",
-          series: monthlySeries("invented tsi", "tsi", "W m-2", 1900, n, (i) => tsi[i + L]),
-          min_lag: 0,
-          max_lag: 12,
-        },
-        {
-          name: "enso",
-          role: "enso",
-          series: monthlySeries("invented enso", "enso_index", "1", 1900, n, (i) => enso[i + L]),
-          min_lag: 0,
-          max_lag: 6,
-        },
-      ],
-    };
+    const body = inventedAttributionRequest({ n: 480, startYear: 1900, trendPerMonth: 0.001 });
     const res = await svc.post("/v1/attributions", body);
     const run = await res.json();
     assert.equal(res.status, 201, JSON.stringify(run).slice(0, 600));

@@ -11,6 +11,7 @@ import { openStoreFromSpec } from "../../api/store/mod.ts";
 import { InThreadExecutor } from "../../api/runs/service.ts";
 import { WorkerPool } from "../../api/workers/pool.ts";
 import type { ComputeExecutor } from "../../api/runs/service.ts";
+import { randomStream } from "../../core/random/mod.ts";
 
 export interface TestService extends Service {
   /** Stop workers and close the store. */
@@ -86,4 +87,55 @@ export async function assertProblem(res: Response, status: number) {
   assert.equal(typeof body.title, "string");
   assert.equal(typeof body.detail, "string");
   return body;
+}
+
+/**
+ * An invented attribution case: monthly TSI with an 11-year cycle (1 W m-2 peak to trough) and
+ * an AR(1) ENSO-like index; the temperature follows solar by 6 months (0.1 K per W m-2) and
+ * ENSO by 2 months (0.05 K per unit), plus AR(1) noise and an optional trend per month.
+ * Returns a `/v1/attributions` request searching solar lags 0–12 and ENSO lags 0–6.
+ */
+export function inventedAttributionRequest(
+  opts: { n: number; startYear: number; trendPerMonth?: number; seed?: number },
+) {
+  const { n, startYear, trendPerMonth = 0, seed = 21 } = opts;
+  const st = randomStream(seed, 0);
+  const L = 12;
+  const tsi: number[] = [], enso: number[] = [];
+  let en = 0;
+  for (let i = 0; i < n + L; i++) {
+    tsi.push(1361 + 0.5 * Math.sin((2 * Math.PI * i) / 132) + 0.2 * st.normal());
+    en = 0.9 * en + 0.4 * st.normal();
+    enso.push(en);
+  }
+  const temp: number[] = [];
+  let e = 0;
+  for (let i = 0; i < n; i++) {
+    e = 0.5 * e + 0.02 * st.normal();
+    // solar acts 6 months later, ENSO 2 months later (indices shifted by L)
+    temp.push(
+      0.1 * (tsi[i + L - 6] - 1361) + 0.05 * enso[i + L - 2] + trendPerMonth * i + e,
+    );
+  }
+  const ms = (name: string, q: string, u: string, v: number[], off: number) =>
+    monthlySeries(name, q, u, startYear, n, (i) => v[i + off]);
+  return {
+    climate: ms("Invented station", "temperature_anomaly", "K", temp, 0),
+    regressors: [
+      {
+        name: "solar",
+        role: "solar",
+        series: ms("Invented TSI", "tsi", "W m-2", tsi, L),
+        min_lag: 0,
+        max_lag: 12,
+      },
+      {
+        name: "enso",
+        role: "enso",
+        series: ms("Invented ENSO", "enso_index", "1", enso, L),
+        min_lag: 0,
+        max_lag: 6,
+      },
+    ],
+  };
 }

@@ -5,7 +5,12 @@
  * its title, description and axes.
  */
 import assert from "node:assert/strict";
-import { makeTestApp, monthlySeries, type TestService } from "./helpers.ts";
+import {
+  inventedAttributionRequest,
+  makeTestApp,
+  monthlySeries,
+  type TestService,
+} from "./helpers.ts";
 import { checkSvg, findAll, type SvgNode, texts } from "./svg_check.ts";
 import { randomStream } from "../../core/random/mod.ts";
 import { loadDataset } from "../core/cycles/load_dataset.ts";
@@ -102,48 +107,8 @@ Deno.test("irradiance reconstruction chart: prediction band, observed-proxy and 
 Deno.test("attribution chart: one contribution line per regressor with its lag, solar max minus min in the notes", async () => {
   const svc = await makeTestApp();
   try {
-    const st = randomStream(21, 0);
-    const n = 360, L = 12;
-    const tsi: number[] = [], enso: number[] = [];
-    let en = 0;
-    for (let i = 0; i < n + L; i++) {
-      tsi.push(1361 + 0.5 * Math.sin((2 * Math.PI * i) / 132) + 0.2 * st.normal());
-      en = 0.9 * en + 0.4 * st.normal();
-      enso.push(en);
-    }
-    const temp: number[] = [];
-    let e = 0;
-    for (let i = 0; i < n; i++) {
-      e = 0.5 * e + 0.02 * st.normal();
-      temp.push(0.1 * (tsi[i + L - 6] - 1361) + 0.05 * enso[i + L - 2] + e);
-    }
     const run = await created(
-      await svc.post("/v1/attributions", {
-        climate: monthlySeries(
-          "Invented station",
-          "temperature_anomaly",
-          "K",
-          1950,
-          n,
-          (i) => temp[i],
-        ),
-        regressors: [
-          {
-            name: "solar",
-            role: "solar",
-            series: monthlySeries("Invented TSI", "tsi", "W m-2", 1950, n, (i) => tsi[i + L]),
-            min_lag: 0,
-            max_lag: 12,
-          },
-          {
-            name: "enso",
-            role: "enso",
-            series: monthlySeries("Invented ENSO", "enso_index", "1", 1950, n, (i) => enso[i + L]),
-            min_lag: 0,
-            max_lag: 6,
-          },
-        ],
-      }),
+      await svc.post("/v1/attributions", inventedAttributionRequest({ n: 360, startYear: 1950 })),
     );
     const root = await chartOf(svc, run.id, "?theme=dark");
     assert.match(findAll(root, "title")[0].text, /^Contributions to Invented station/);
