@@ -13,6 +13,7 @@ import type { OutputSeries } from "../runs/kind.ts";
 import { ProblemError } from "../problems.ts";
 import {
   PageQuery,
+  pageSchema,
   problems,
   RunSchema,
   RunStatusSchema,
@@ -63,12 +64,7 @@ export function registerRunRoutes(app: App, deps: { store: Store; runs: RunServi
           description: "A page of runs",
           content: {
             "application/json": {
-              schema: z.object({
-                items: z.array(RunSummarySchema),
-                total: z.number().int(),
-                limit: z.number().int(),
-                offset: z.number().int(),
-              }),
+              schema: pageSchema(RunSummarySchema),
             },
           },
         },

@@ -9,7 +9,13 @@ import { zodErrors } from "../app.ts";
 import type { Config } from "../config.ts";
 import type { SeriesMeta, Store, StoredSeries } from "../store/types.ts";
 import { ProblemError } from "../problems.ts";
-import { PageQuery, problems, SeriesMetaSchema, SeriesSchema } from "../schemas/common.ts";
+import {
+  PageQuery,
+  pageSchema,
+  problems,
+  SeriesMetaSchema,
+  SeriesSchema,
+} from "../schemas/common.ts";
 import { SeriesUpload, TextUploadQuery } from "../schemas/ingest.ts";
 import { QUANTITIES } from "../../core/series/quantities.ts";
 import { formatIsoTime } from "../../core/time/mod.ts";
@@ -168,12 +174,7 @@ export function registerSeriesRoutes(app: App, deps: { store: Store; config: Con
           description: "A page of series metadata",
           content: {
             "application/json": {
-              schema: z.object({
-                items: z.array(SeriesMetaSchema),
-                total: z.number().int(),
-                limit: z.number().int(),
-                offset: z.number().int(),
-              }),
+              schema: pageSchema(SeriesMetaSchema),
             },
           },
         },

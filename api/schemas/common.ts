@@ -100,6 +100,16 @@ export const RunSchema = RunSummarySchema.extend({
   saved_series: z.array(z.object({ output: z.string(), id: z.string() })).optional(),
 }).openapi("Run");
 
+/** A page of a listing: the items, the total count, and the paging that produced it. */
+export function pageSchema<T extends z.ZodType>(item: T) {
+  return z.object({
+    items: z.array(item),
+    total: z.number().int(),
+    limit: z.number().int(),
+    offset: z.number().int(),
+  });
+}
+
 export const PageQuery = z.object({
   limit: z.coerce.number().int().min(1).max(1000).default(50).openapi({
     description: "Page size (1–1000)",
