@@ -16,7 +16,7 @@ import type { Store } from "./store/types.ts";
 import { type Problem, ProblemError, problemResponse, toPointer } from "./problems.ts";
 import type { ComputeExecutor } from "./runs/service.ts";
 import { RunService } from "./runs/service.ts";
-import { RUN_KINDS } from "./kinds/registry.ts";
+import { RUN_KINDS } from "./analyses/registry.ts";
 import type { RunKind } from "./runs/kind.ts";
 import { registerMetaRoutes } from "./routes/meta.ts";
 import { registerRunRoutes } from "./routes/runs.ts";
@@ -35,7 +35,7 @@ export interface AppDeps {
   store: Store;
   config: Config;
   executor: ComputeExecutor;
-  kinds?: RunKind[];
+  kinds?: readonly RunKind[];
 }
 
 export interface Service {
@@ -149,7 +149,7 @@ export function createService(deps: AppDeps): Service {
   registerUiRoutes(app);
   registerSeriesRoutes(app, { store, config });
   registerRunRoutes(app, { store, runs });
-  registerChartRoutes(app, { store });
+  registerChartRoutes(app, { store, kinds });
   registerBundleRoutes(app, { store, runs });
   registerKindRoutes(app, { runs, kinds });
 

@@ -1,12 +1,12 @@
 /**
- * Charts of finished runs, chosen by `run.kind` from the stored result. Each kind may have a
- * specialised builder (in `api/charts/kinds/`); every builder reads the result defensively
- * and answers null when the shape is not what it knows, and then (or when a builder throws)
- * the generic chart is drawn: the run's series-like outputs as lines with their bands.
+ * Charts of finished runs: the analysis' own chart (declared in its folder and typed on its
+ * result) when it has one and the stored result parses with its result schema, else the
+ * generic chart of the run's series-like outputs with their bands.
  *
  * @module
  */
 import type { RunRecord, StoredSeries } from "../store/types.ts";
+import type { RunKind } from "../runs/kind.ts";
 import type { ChartSpec } from "./chart.ts";
 import { KIND_CHARTS, KIND_INPUTS } from "./kinds/mod.ts";
 import { defaultRunChart } from "./default_chart.ts";
@@ -14,13 +14,26 @@ import { defaultRunChart } from "./default_chart.ts";
 export type { KindChart } from "./run_common.ts";
 export { defaultRunChart };
 
-/** True when the chart of this kind draws the run's input series too. */
-export function chartNeedsInputs(kind: string): boolean {
-  return KIND_INPUTS.has(kind);
+/** True when the chart of this run's analysis draws the run's input series too. */
+export function chartNeedsInputs(kind: RunKind | undefined, name: string): boolean {
+  return kind?.chart ? kind.chart.needsInputs === true : KIND_INPUTS.has(name);
 }
 
-/** The chart spec of a finished run: the kind's own chart when it fits, else the generic one. */
-export function runChartSpec(run: RunRecord, inputs: StoredSeries[] = []): ChartSpec {
+/** The chart spec of a finished run: its analysis' chart when it fits, else the generic one. */
+export function runChartSpec(
+  run: RunRecord,
+  kind: RunKind | undefined,
+  inputs: StoredSeries[] = [],
+): ChartSpec {
+  if (kind?.chart) {
+    // A stored result of an older shape (before an algorithm change) gets the generic chart.
+    const parsed = kind.result.safeParse(run.result);
+    if (parsed.success) {
+      const spec = kind.chart.build(run, parsed.data, inputs);
+      if (spec) return spec;
+    }
+    return defaultRunChart(run);
+  }
   const special = KIND_CHARTS[run.kind];
   if (special) {
     try {

@@ -5,6 +5,7 @@
  * @module
  */
 import { z } from "@hono/zod-openapi";
+import { LegacyResult } from "./legacy_result.ts";
 import { InputProblem, type RunKind } from "../runs/kind.ts";
 import { refId, SeriesRef } from "../schemas/series_ref.ts";
 import { alignSeries } from "../../core/series/mod.ts";
@@ -46,6 +47,7 @@ export const alignKind: RunKind<typeof AlignRequest> = {
     "intersection, and per period the count behind each value. Outputs `aligned_0`, " +
     "`aligned_1`, ... (in request order) are saved as new series.",
   request: AlignRequest,
+  result: LegacyResult,
   autoSave: Array.from({ length: MAX_ALIGNED }, (_, k) => `aligned_${k}`),
   estimateSeconds: () => 0.2,
   compute(params, ctx) {

@@ -5,6 +5,7 @@
  * @module
  */
 import { z } from "@hono/zod-openapi";
+import { LegacyResult } from "./legacy_result.ts";
 import { InputProblem, type RunKind } from "../runs/kind.ts";
 import { refId, SeriesRef, TimeValue } from "../schemas/series_ref.ts";
 import { anomaliesFromBasePeriod } from "../../core/series/mod.ts";
@@ -65,6 +66,7 @@ export const anomalyKind: RunKind<typeof AnomalyRequest> = {
     "means and how many points each rests on; the `anomalies` output is saved as a new series. " +
     "Temperatures become temperature anomalies (K); other quantities keep their quantity.",
   request: AnomalyRequest,
+  result: LegacyResult,
   autoSave: ["anomalies"],
   estimateSeconds: () => 0.1,
   compute(params, ctx) {

@@ -6,6 +6,7 @@
  * @module
  */
 import { z } from "@hono/zod-openapi";
+import { LegacyResult } from "./legacy_result.ts";
 import { InputProblem, type OutputSeries, type RunKind } from "../runs/kind.ts";
 import { refId, SeriesRef } from "../schemas/series_ref.ts";
 import {
@@ -83,6 +84,7 @@ export const attributionKind: RunKind<typeof AttributionRequest> = {
     "implied solar maximum-minus-minimum response, and warnings for collinear regressors or " +
     "residuals that stay autocorrelated.",
   request: AttributionRequest,
+  result: LegacyResult,
   runRefs: (p) => p.regressors.flatMap((r) => (r.run ? [r.run] : [])),
   estimateSeconds: (p) =>
     0.1 + 0.02 * p.regressors.reduce((s, r) => s + r.max_lag - r.min_lag + 1, 0),

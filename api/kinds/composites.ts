@@ -6,6 +6,7 @@
  * @module
  */
 import { z } from "@hono/zod-openapi";
+import { LegacyResult } from "./legacy_result.ts";
 import { InputProblem, type RunKind } from "../runs/kind.ts";
 import { refId, SeriesRef, TimeValue } from "../schemas/series_ref.ts";
 import { superposedEpoch } from "../../core/climate/mod.ts";
@@ -83,6 +84,7 @@ export const compositeKind: RunKind<typeof CompositeRequest> = {
     "ones: per-offset p-values and a family-wise p-value for the largest |composite| in the " +
     "window.",
   request: CompositeRequest,
+  result: LegacyResult,
   runRefs: (p) => (p.cycle_run ? [p.cycle_run] : []),
   estimateSeconds: (p) =>
     0.05 + (p.bootstrap + p.random_sets) * 2e-5 * (p.before_years + p.after_years),

@@ -6,6 +6,7 @@
  * @module
  */
 import { z } from "@hono/zod-openapi";
+import { LegacyResult } from "./legacy_result.ts";
 import { snakeKeys } from "./json_keys.ts";
 import { InputProblem, type RunKind } from "../runs/kind.ts";
 import { SeriesRef } from "../schemas/series_ref.ts";
@@ -89,6 +90,7 @@ export const cycleFitsKind: RunKind<typeof CycleFitsRequest> = {
     "for the fitted curves. For version 2 sunspot numbers, b(a) and the published relation are " +
     "evaluated on the version 1 scale (0.6 × the values).",
   request: CycleFitsRequest,
+  result: LegacyResult,
   estimateSeconds: () => 1,
   compute(params, ctx) {
     const an = analyseCycles(ctx, params);

@@ -6,6 +6,7 @@
  * @module
  */
 import { z } from "@hono/zod-openapi";
+import { LegacyResult } from "./legacy_result.ts";
 import { snakeKeys } from "./json_keys.ts";
 import { quantileSorted } from "d3-array";
 import { InputProblem, type RunKind } from "../runs/kind.ts";
@@ -138,6 +139,7 @@ export const cycleForecastsKind: RunKind<typeof CycleForecastsRequest> = {
     "interval for the maximum (`hindcast_interval`). The next minimum is estimated from the lengths " +
     "of the past cycles in the series.",
   request: CycleForecastsRequest,
+  result: LegacyResult,
   estimateSeconds: (p) => (p.replicates + 2 * 25 * p.hindcast_replicates) * 0.001,
   async compute(params, ctx) {
     const an = analyseCycles(ctx, params);

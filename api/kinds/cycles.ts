@@ -6,6 +6,7 @@
  * @module
  */
 import { z } from "@hono/zod-openapi";
+import { LegacyResult } from "./legacy_result.ts";
 import type { RunKind } from "../runs/kind.ts";
 import { SeriesRef } from "../schemas/series_ref.ts";
 import { cyclePhase } from "../../core/cycles/mod.ts";
@@ -49,6 +50,7 @@ export const cyclesKind: RunKind<typeof CyclesRequest> = {
     "Outputs: the smoothed series, the cycle phase (0 at a cycle's minimum, 1 at the next; " +
     "null in the cycle in progress) and years since the latest minimum.",
   request: CyclesRequest,
+  result: LegacyResult,
   estimateSeconds: () => 0.1,
   compute(params, ctx) {
     const an = analyseCycles(ctx, params);

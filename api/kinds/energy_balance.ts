@@ -6,6 +6,7 @@
  * @module
  */
 import { z } from "@hono/zod-openapi";
+import { LegacyResult } from "./legacy_result.ts";
 import { InputProblem, type OutputSeries, type RunKind } from "../runs/kind.ts";
 import { refId, SeriesRef } from "../schemas/series_ref.ts";
 import {
@@ -76,6 +77,7 @@ export const energyBalanceKind: RunKind<typeof EnergyBalanceRequest> = {
     "response to an 11-year (or the given) sinusoid; with a sinusoidal forcing the numerical " +
     "amplitude and lag are measured and reported beside the analytic ones.",
   request: EnergyBalanceRequest,
+  result: LegacyResult,
   runRefs: (p) => (p.forcing_run ? [p.forcing_run] : []),
   estimateSeconds: (p) =>
     0.05 + (p.sinusoid ? p.sinusoid.years * p.sinusoid.steps_per_year * 2e-7 : 0.05),

@@ -5,6 +5,7 @@
  * @module
  */
 import { z } from "@hono/zod-openapi";
+import { LegacyResult } from "./legacy_result.ts";
 import { InputProblem, type OutputSeries, type RunKind } from "../runs/kind.ts";
 import { refId, SeriesRef } from "../schemas/series_ref.ts";
 import { forcingSeries, PLANETARY_ALBEDO } from "../../core/irradiance/mod.ts";
@@ -58,6 +59,7 @@ export const forcing: RunKind<typeof Request> = {
     "σ_F = (1 − α)/4·√(σ(t)² + σ_ref²), σ_ref the mean σ in the reference period (errors " +
     "there taken as fully correlated, an upper bound).",
   request: Request,
+  result: LegacyResult,
   runRefs: (p) => (p.reconstruction ? [p.reconstruction] : []),
   compute(params, ctx) {
     let time: ArrayLike<number>, tsi: ArrayLike<number>, sd: ArrayLike<number> | null = null;

@@ -5,6 +5,7 @@
  * @module
  */
 import { z } from "@hono/zod-openapi";
+import { LegacyResult } from "./legacy_result.ts";
 import { InputProblem, type RunKind } from "../runs/kind.ts";
 import { refId, SeriesRef } from "../schemas/series_ref.ts";
 import {
@@ -127,6 +128,7 @@ export const irradianceDarkening: RunKind<typeof Request> = {
     "constant or area-dependent contrast; or from a total daily area with the disc-average " +
     "factor 1. Darkening ΔS = −S_Q·PSI. Outputs `psi` and `darkening` are saved as series.",
   request: Request,
+  result: LegacyResult,
   autoSave: ["psi", "darkening"],
   estimateSeconds: (p) => (p.groups?.time.length ?? 0) / 2e6,
   compute(params, ctx) {

@@ -6,6 +6,7 @@
  * @module
  */
 import { z } from "@hono/zod-openapi";
+import { LegacyResult } from "./legacy_result.ts";
 import { InputProblem, type RunKind } from "../runs/kind.ts";
 import { refId, SeriesRef } from "../schemas/series_ref.ts";
 import type { StoredSeries } from "../store/types.ts";
@@ -155,6 +156,7 @@ export const irradianceModels: RunKind<typeof Request> = {
     "the residual process of the sunspot-only model, which reconstructions use to back-extend " +
     "with honest uncertainty.",
   request: Request,
+  result: LegacyResult,
   estimateSeconds: () => 0.2,
   compute(params, ctx) {
     const tsiS = ctx.series(refId(params.tsi));

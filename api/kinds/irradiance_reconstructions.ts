@@ -7,6 +7,7 @@
  * @module
  */
 import { z } from "@hono/zod-openapi";
+import { LegacyResult } from "./legacy_result.ts";
 import { InputProblem, type RunKind } from "../runs/kind.ts";
 import { refId, SeriesRef } from "../schemas/series_ref.ts";
 import {
@@ -145,6 +146,7 @@ export const irradianceReconstructions: RunKind<typeof Request> = {
     "the model's unless a conversion factor is given. An optional secular background scenario " +
     "is added and labelled; the default is none.",
   request: Request,
+  result: LegacyResult,
   runRefs: (p) => [p.model],
   estimateSeconds: (p) => (p.resolution === "daily" ? 0.5 : 0.1),
   compute(params: Params, ctx) {

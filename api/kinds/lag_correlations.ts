@@ -6,6 +6,7 @@
  * @module
  */
 import { z } from "@hono/zod-openapi";
+import { LegacyResult } from "./legacy_result.ts";
 import { CancelledError, InputProblem, type RunKind } from "../runs/kind.ts";
 import { refId, SeriesRef } from "../schemas/series_ref.ts";
 import {
@@ -90,6 +91,7 @@ export const lagCorrelationKind: RunKind<typeof LagCorrelationRequest> = {
     "preprocessing. The family-wise p-value compares the best |r| over the whole lag window " +
     "with the surrogates' best |r| over the same window, so searching many lags is paid for.",
   request: LagCorrelationRequest,
+  result: LegacyResult,
   runRefs: (p) => (p.solar_run ? [p.solar_run] : []),
   estimateSeconds(p) {
     if (p.significance === "none") return 0.05;

@@ -5,6 +5,7 @@
  * @module
  */
 import { z } from "@hono/zod-openapi";
+import { LegacyResult } from "./legacy_result.ts";
 import { InputProblem, type RunKind } from "../runs/kind.ts";
 import { refId, SeriesRef } from "../schemas/series_ref.ts";
 import { resampleMeans } from "../../core/series/mod.ts";
@@ -51,6 +52,7 @@ export const resampleKind: RunKind<typeof ResampleRequest> = {
     "Uncertainties, when the input has them, combine as independent errors and exclude " +
     "sampling error. The `resampled` output is saved as a new series derived from the run.",
   request: ResampleRequest,
+  result: LegacyResult,
   autoSave: ["resampled"],
   estimateSeconds: () => 0.1,
   compute(params, ctx) {

@@ -6,6 +6,7 @@
  * @module
  */
 import { z } from "@hono/zod-openapi";
+import { LegacyResult } from "./legacy_result.ts";
 import { quantileSorted } from "d3-array";
 import { InputProblem, type RunKind } from "../runs/kind.ts";
 import { refId, SeriesRef } from "../schemas/series_ref.ts";
@@ -152,6 +153,7 @@ export const spectraKind: RunKind<typeof SpectraRequest> = {
     "uncertainty from their half-width at half maximum. Periods in years, frequencies in " +
     "cycles per year.",
   request: SpectraRequest,
+  result: LegacyResult,
   estimateSeconds(p) {
     const grid = p.period_list?.length ?? p.periods.count ?? 5000;
     const mc = p.false_alarm === "horne_baliunas" || p.method === "fft" ? 0 : p.replicates;

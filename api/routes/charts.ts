@@ -22,6 +22,8 @@ import { shortHash } from "../charts/svg.ts";
 import { seriesChartSpec } from "../charts/series_chart.ts";
 import { chartNeedsInputs, runChartSpec } from "../charts/run_charts.ts";
 import { SERVICE_VERSION } from "../version.ts";
+import type { RunKind } from "../runs/kind.ts";
+import { kindByName } from "../analyses/derive.ts";
 
 /** Bump when the drawing of a chart changes for the same data and query. */
 export const CHART_VERSION = "1";
@@ -113,7 +115,7 @@ const svgContent = { "image/svg+xml": { schema: z.string().openapi({ format: "bi
  */
 export function registerChartRoutes(
   app: App,
-  deps: { store: Store; cache?: ImmutableCache },
+  deps: { store: Store; kinds: readonly RunKind[]; cache?: ImmutableCache },
 ): void {
   const { store } = deps;
   const cache = deps.cache ?? new ImmutableCache();
@@ -205,13 +207,14 @@ export function registerChartRoutes(
         }
         const etag = etagFor(`run-${run.id}-${run.result_digest}`, opts);
         const inputs: StoredSeries[] = [];
-        if (chartNeedsInputs(run.kind)) {
+        const kind = kindByName(deps.kinds, run.kind);
+        if (chartNeedsInputs(kind, run.kind)) {
           for (const sid of run.input_series.slice(0, 4)) {
             const s = await store.getSeries(sid);
             if (s && s.n <= 500_000) inputs.push(s);
           }
         }
-        const svg = renderChart(runChartSpec(run, inputs), {
+        const svg = renderChart(runChartSpec(run, kind, inputs), {
           ...opts,
           idPrefix: "r" + shortHash(etag),
         });

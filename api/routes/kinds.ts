@@ -21,8 +21,24 @@ const PreferHeader = z.object({
   }),
 });
 
-export function registerKindRoutes(app: App, deps: { runs: RunService; kinds: RunKind[] }): void {
+/** The run schema of one analysis: the generic run with its kind and typed result. */
+export function runSchemaOf(kind: RunKind) {
+  const name = kind.kind.split(/[^a-z0-9]+/i).map((w) => w[0].toUpperCase() + w.slice(1))
+    .join("");
+  return RunSchema.extend({
+    kind: z.literal(kind.kind),
+    result: kind.result.nullable().openapi({
+      description: "The result once the run has succeeded, else null",
+    }),
+  }).openapi(`${name}Run`);
+}
+
+export function registerKindRoutes(
+  app: App,
+  deps: { runs: RunService; kinds: readonly RunKind[] },
+): void {
   for (const kind of deps.kinds) {
+    const schema = runSchemaOf(kind);
     const route = createRoute({
       method: "post",
       path: kind.path,
@@ -37,11 +53,11 @@ export function registerKindRoutes(app: App, deps: { runs: RunService; kinds: Ru
       responses: {
         201: {
           description: "Run recorded (synchronous)",
-          content: { "application/json": { schema: RunSchema } },
+          content: { "application/json": { schema } },
         },
         202: {
           description: "Run accepted; poll `Location` or its `/events`",
-          content: { "application/json": { schema: RunSchema } },
+          content: { "application/json": { schema } },
         },
         ...problems(400, 413, 415, 422, 500),
       },

@@ -56,7 +56,7 @@ window.ui = SwaggerUIBundle({
 
 export function registerMetaRoutes(
   app: App,
-  deps: { store: Store; config: Config; kinds: RunKind[] },
+  deps: { store: Store; config: Config; kinds: readonly RunKind[] },
 ): void {
   app.openapi(
     createRoute({

@@ -10,6 +10,7 @@
  */
 import type { z } from "@hono/zod-openapi";
 import type { RunRecord, StoredSeries } from "../store/types.ts";
+import type { ChartSpec } from "../charts/chart.ts";
 
 /** A series-like part of a result; fetchable as JSON/CSV and savable as a stored series. */
 export interface OutputSeries {
@@ -52,6 +53,12 @@ export interface RunContext {
   series(id: string): StoredSeries;
   /** A loaded input run by id (those listed by `RunKind.runRefs`). */
   run(id: string): RunRecord;
+  /**
+   * The result of a loaded input run, parsed with the result schema of the analysis that made
+   * it: typed, and refused (a problem at `pointer`) when the run is of another kind or has no
+   * result. Use this instead of reading `run(id).result` by field-name strings.
+   */
+  resultOf<K extends RunKind>(kind: K, id: string, pointer: string): ResultOf<K>;
   /** Report progress in [0, 1]. Cheap; call it as often as you like. */
   progress(fraction: number): void;
   /** True once the run was cancelled; long loops should check and throw `new CancelledError()`. */
@@ -83,8 +90,30 @@ export class InputProblem extends Error {
   }
 }
 
+/** A named pure worker task: structured-clonable input and output (typed arrays transferred). */
 // deno-lint-ignore no-explicit-any
-export interface RunKind<S extends z.ZodType = any> {
+export type Task = (input: any) => any;
+
+/** An analysis' chart, typed on its result. */
+export interface KindChart<T> {
+  /** True when the chart draws the run's input series too (the chart route loads them). */
+  needsInputs?: boolean;
+  /** The chart, or null to fall back to the generic chart of the run's outputs. */
+  build(run: RunRecord, result: T, inputs: StoredSeries[]): ChartSpec | null;
+}
+
+/** The typed (parsed) result of an analysis. */
+// deno-lint-ignore no-explicit-any
+export type ResultOf<K extends RunKind> = K extends RunKind<any, infer R> ? z.output<R> : never;
+
+/**
+ * An analysis ("run kind"). Each lives in one folder `api/analyses/<kind>/` (request schema,
+ * result schema, thin adapter calling core, chart, worker tasks) and is listed once in
+ * `api/analyses/registry.ts`; routes, OpenAPI, replay, bundles, workers, charts and the page
+ * derive from that list.
+ */
+// deno-lint-ignore no-explicit-any
+export interface RunKind<S extends z.ZodType = any, R extends z.ZodType = any> {
   /** Stable machine name, e.g. "smoothing". */
   kind: string;
   /** POST path that creates the run, e.g. "/v1/smoothing". */
@@ -103,5 +132,21 @@ export interface RunKind<S extends z.ZodType = any> {
   estimateSeconds?(params: z.output<S>): number;
   /** Names of outputs saved automatically as new series with lineage. */
   autoSave?: string[];
-  compute(params: z.output<S>, ctx: RunContext): Promise<RunResult> | RunResult;
+  /**
+   * Schema of the result as stored and served (JSON: arrays of numbers, null for a documented
+   * undefined value). Published in OpenAPI; tests parse every kind's result with it.
+   */
+  result: R;
+  compute(params: z.output<S>, ctx: RunContext): Promise<z.input<R>> | z.input<R>;
+  /** The specialised chart; without it the generic chart of the outputs is drawn. */
+  chart?: KindChart<z.output<R>>;
+  /** Worker tasks this analysis maps over chunks with `ctx.parallel`, by globally unique name. */
+  tasks?: Record<string, Task>;
+}
+
+/** Declare an analysis with its request and result types inferred from its schemas. */
+export function defineAnalysis<S extends z.ZodType, R extends z.ZodType>(
+  def: RunKind<S, R>,
+): RunKind<S, R> {
+  return def;
 }

@@ -11,7 +11,7 @@
  */
 import { uuidv7 } from "uuidv7";
 import type { RunRecord, Store, StoredSeries } from "../store/types.ts";
-import { CancelledError, InputProblem, type RunContext, type RunKind } from "./kind.ts";
+import { CancelledError, InputProblem, type RunContext, type RunKind, type Task } from "./kind.ts";
 import type { OutputSeries, RunResult } from "./kind.ts";
 import { SERIES_ID_PATTERN } from "../schemas/series_ref.ts";
 import type { InlineSeries } from "../schemas/series_ref.ts";
@@ -19,7 +19,8 @@ import { ProblemError, toPointer } from "../problems.ts";
 import { canonicalJson, sha256Hex } from "../canonical.ts";
 import { toPlainJson } from "./json.ts";
 import { SERVICE_VERSION } from "../version.ts";
-import { TASKS } from "../workers/tasks.ts";
+import { taskTable } from "../analyses/derive.ts";
+import { RUN_KINDS } from "../analyses/registry.ts";
 
 /** How inline and output series become stored series (implemented over api/ingest). */
 export interface SeriesCodec {
@@ -47,6 +48,11 @@ export type RunEvent =
 
 /** Runs compute in this thread (tests, `SUNLAG_WORKERS=0`). */
 export class InThreadExecutor implements ComputeExecutor {
+  private readonly tasks: Record<string, Task>;
+  /** `kinds`: the analyses whose worker tasks this executor can run (default: the registry). */
+  constructor(kinds: readonly RunKind[] = RUN_KINDS) {
+    this.tasks = taskTable(kinds);
+  }
   async compute(
     kind: RunKind,
     params: Record<string, unknown>,
@@ -58,7 +64,7 @@ export class InThreadExecutor implements ComputeExecutor {
     return await kind.compute(params, ctx);
   }
   parallel<I, O>(task: string, inputs: I[]): Promise<O[]> {
-    const fn = TASKS[task];
+    const fn = this.tasks[task];
     if (!fn) throw new Error(`unknown worker task "${task}"`);
     return Promise.resolve(inputs.map((i) => fn(i) as O));
   }
@@ -80,6 +86,33 @@ export function makeContext(
       const r = inputs.runs[id];
       if (!r) throw new InputProblem("", `run ${id} was not loaded`);
       return r;
+    },
+    resultOf(kind, id, pointer) {
+      const r = inputs.runs[id];
+      if (!r) throw new InputProblem(pointer, `run ${id} was not loaded`);
+      if (r.kind !== kind.kind) {
+        throw new InputProblem(
+          pointer,
+          `run ${id} is a ${r.kind} run; a ${kind.kind} run is needed`,
+          {
+            kind: r.kind,
+          },
+        );
+      }
+      if (r.status !== "succeeded" || r.result === null) {
+        throw new InputProblem(pointer, `run ${id} has no result (status ${r.status})`, {
+          status: r.status,
+        });
+      }
+      const parsed = kind.result.safeParse(r.result);
+      if (!parsed.success) {
+        throw new InputProblem(
+          pointer,
+          `run ${id} holds a ${kind.kind} result of an older shape; replay it or make a new one`,
+          { algorithm_version: r.algorithm_version },
+        );
+      }
+      return parsed.data;
     },
     progress: (f) => hooks.progress(Math.min(1, Math.max(0, f))),
     cancelled: () => hooks.isCancelled(),
@@ -163,7 +196,7 @@ export class RunService {
 
   constructor(
     readonly store: Store,
-    readonly kinds: RunKind[],
+    readonly kinds: readonly RunKind[],
     readonly codec: SeriesCodec,
     readonly executor: ComputeExecutor,
     readonly options: { asyncSeconds: number },

@@ -43,7 +43,14 @@ export class WorkerPool implements ComputeExecutor {
   private nextJob = 1;
   private terminated = false;
 
-  constructor(readonly size: number) {
+  /**
+   * `registry`: URL of the module whose `RUN_KINDS` the workers serve (default: the service's
+   * registry); an app built with other analyses passes its own.
+   */
+  constructor(
+    readonly size: number,
+    readonly registry: string = new URL("../analyses/registry.ts", import.meta.url).href,
+  ) {
     if (!Number.isInteger(size) || size < 1) {
       throw new RangeError(
         `Cannot create worker pool: size must be a positive integer, current value is ${size}`,
@@ -58,7 +65,10 @@ export class WorkerPool implements ComputeExecutor {
 
   /** Start one worker (overridable in tests). */
   protected spawn(_index: number): Worker {
-    return new Worker(new URL("./worker.ts", import.meta.url).href, { type: "module" });
+    return new Worker(new URL("./worker.ts", import.meta.url).href, {
+      type: "module",
+      name: this.registry,
+    });
   }
 
   /**

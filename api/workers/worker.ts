@@ -10,10 +10,21 @@
  * @module
  */
 /// <reference lib="deno.worker" />
-import { RUN_KINDS } from "../kinds/registry.ts";
-import { TASKS } from "./tasks.ts";
+import type { RunKind, Task } from "../runs/kind.ts";
 import { makeContext } from "../runs/service.ts";
+import { taskTable } from "../analyses/derive.ts";
 import { serialiseError, transferablesOf } from "./messages.ts";
+
+/**
+ * The analyses come from the registry module the pool names in the worker's `name` (a module
+ * URL exporting `RUN_KINDS`), so a pool serves the same analyses as the app that made it.
+ */
+const registry: Promise<{ kinds: readonly RunKind[]; tasks: Record<string, Task> }> = import(
+  self.name
+).then((m: { RUN_KINDS: readonly RunKind[] }) => ({
+  kinds: m.RUN_KINDS,
+  tasks: taskTable(m.RUN_KINDS),
+}));
 
 const cancelled = new Set<number>();
 const waiting = new Map<number, { resolve(v: unknown[]): void; reject(e: unknown): void }>();
@@ -32,9 +43,10 @@ self.onmessage = async (e: MessageEvent) => {
     else w?.resolve(m.results);
     return;
   }
+  const { kinds, tasks } = await registry;
   if (m.type === "task") {
     try {
-      const fn = TASKS[m.task];
+      const fn = tasks[m.task];
       if (!fn) throw new Error(`unknown worker task "${m.task}"`);
       const result = fn(m.input);
       self.postMessage({ type: "done", job: m.job, result }, transferablesOf(result));
@@ -47,7 +59,7 @@ self.onmessage = async (e: MessageEvent) => {
     const job = m.job as number;
     self.postMessage({ type: "started", job });
     try {
-      const kind = RUN_KINDS.find((k) => k.kind === m.kind);
+      const kind = kinds.find((k) => k.kind === m.kind);
       if (!kind) throw new Error(`unknown run kind "${m.kind}"`);
       let last = 0;
       const ctx = makeContext(m.inputs, {

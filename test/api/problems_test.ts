@@ -85,6 +85,7 @@ Deno.test("problems: an unexpected failure is a 500 with request id and no stack
     summary: "fails",
     description: "fails",
     request: z.object({ n: z.number().default(1) }),
+    result: z.object({}),
     compute() {
       throw new Error("secret internal detail at /some/file.ts:12");
     },

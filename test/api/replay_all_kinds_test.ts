@@ -6,7 +6,8 @@
 import assert from "node:assert/strict";
 import { makeTestApp } from "./helpers.ts";
 import { loadDemo } from "../../api/demo.ts";
-import { RUN_KINDS } from "../../api/kinds/registry.ts";
+import { RUN_KINDS } from "../../api/analyses/registry.ts";
+import { canonicalJson } from "../../api/canonical.ts";
 
 const SSN = "sha256:adebf4dd9a329b7382165cf603d02c96fa9a2c91a7ba58eb7b8e967337f2ff2b";
 const AREA = "sha256:165c80d17f315d238ae6ee0aacd536a8a8f7484217a18dfb7b7c9ede9ff27f14";
@@ -33,6 +34,11 @@ Deno.test("replay: every run kind recomputes to the stored digest", async (t) =>
       run = await (await svc.get(`/v1/runs/${run.id}`)).json();
     }
     assert.equal(run.status, "succeeded", `${path}: ${JSON.stringify(run.error)}`);
+    // The result schema describes the stored result exactly: it parses, and nothing is stripped.
+    const kind = RUN_KINDS.find((k) => k.kind === run.kind)!;
+    const parsed = kind.result.safeParse(run.result);
+    assert.ok(parsed.success, `${path}: ${JSON.stringify(parsed.error?.issues.slice(0, 3))}`);
+    assert.equal(canonicalJson(parsed.data), canonicalJson(run.result), `${path}: schema strips`);
     const rep = await (await svc.post(`/v1/runs/${run.id}/replay`, {})).json();
     assert.equal(rep.identical, true, `${path} replays identically`);
     assert.equal(rep.replay_digest, run.result_digest);

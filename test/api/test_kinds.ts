@@ -7,6 +7,7 @@ import { z } from "@hono/zod-openapi";
 import { CancelledError, InputProblem, type RunKind } from "../../api/runs/kind.ts";
 import { refId, SeriesRef } from "../../api/schemas/series_ref.ts";
 import { randomStream } from "../../core/random/mod.ts";
+import { cautions, nums, OutputSeriesSchema } from "../../api/analyses/common/result_parts.ts";
 
 /** Mean of a series plus a seeded Monte Carlo of bootstrap means; slow when `spin` > 0. */
 export const meanKind: RunKind = {
@@ -21,6 +22,12 @@ export const meanKind: RunKind = {
     replicates: z.number().int().min(1).max(100_000).default(50),
     spin_ms: z.number().min(0).max(10_000).default(0),
     seed: z.number().int().min(0).max(4294967295).default(7),
+  }),
+  result: z.object({
+    mean: z.number(),
+    bootstrap_means: nums,
+    outputs: z.object({ doubled: OutputSeriesSchema }),
+    cautions,
   }),
   estimateSeconds: (p: { spin_ms: number }) => p.spin_ms / 1000,
   async compute(p, ctx) {
@@ -59,3 +66,6 @@ export const meanKind: RunKind = {
     };
   },
 };
+
+/** The analyses of this module, for a worker pool serving them (`new WorkerPool(n, url)`). */
+export const RUN_KINDS: readonly RunKind[] = [meanKind];

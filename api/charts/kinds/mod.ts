@@ -10,7 +10,7 @@ import { cyclesChart } from "./cycles.ts";
 import { irradianceReconstructionChart } from "./irradiance_reconstruction.ts";
 import { lagCorrelationChart } from "./lag_correlations.ts";
 import { spectraChart } from "./spectra.ts";
-import { cycleForecastChart, irradianceModelChart, smoothingChart } from "./with_inputs.ts";
+import { cycleForecastChart, irradianceModelChart } from "./with_inputs.ts";
 
 /** Chart builders keyed by `run.kind`. */
 export const KIND_CHARTS: Record<string, KindChart> = {
@@ -21,7 +21,6 @@ export const KIND_CHARTS: Record<string, KindChart> = {
   "irradiance-models": irradianceModelChart,
   "irradiance-reconstructions": irradianceReconstructionChart,
   "lag-correlations": lagCorrelationChart,
-  "smoothing": smoothingChart,
   "spectra": spectraChart,
 };
 
@@ -30,5 +29,4 @@ export const KIND_INPUTS: ReadonlySet<string> = new Set([
   "cycles",
   "cycle-forecasts",
   "irradiance-models",
-  "smoothing",
 ]);

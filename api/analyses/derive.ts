@@ -1,0 +1,37 @@
+/**
+ * What the service derives from a list of analyses: the worker task table, lookups by name,
+ * the enum of kind names for OpenAPI, and the small index the page builds its forms from.
+ * Everything takes the list as an argument, so an app built with other analyses (tests) is
+ * served consistently by its routes, workers and charts.
+ *
+ * @module
+ */
+import type { RunKind, Task } from "../runs/kind.ts";
+import { TASKS as SHARED_TASKS } from "../workers/tasks.ts";
+
+/**
+ * The worker tasks of all analyses by name, plus the shared ones. A name registered twice is a
+ * programming error, reported at start-up.
+ */
+export function taskTable(kinds: readonly RunKind[]): Record<string, Task> {
+  const table: Record<string, Task> = { ...SHARED_TASKS };
+  for (const k of kinds) {
+    for (const [name, fn] of Object.entries(k.tasks ?? {})) {
+      if (table[name] && table[name] !== fn) {
+        throw new Error(`worker task "${name}" of analysis ${k.kind} is registered twice`);
+      }
+      table[name] = fn;
+    }
+  }
+  return table;
+}
+
+/** The analysis of a given kind name, or undefined. */
+export function kindByName(kinds: readonly RunKind[], name: string): RunKind | undefined {
+  return kinds.find((k) => k.kind === name);
+}
+
+/** The kind names, for enums in OpenAPI and for problems that list the valid ones. */
+export function kindNames(kinds: readonly RunKind[]): string[] {
+  return kinds.map((k) => k.kind);
+}
