@@ -13,7 +13,7 @@ import { cors } from "hono/cors";
 import { uuidv7 } from "uuidv7";
 import type { Config } from "./config.ts";
 import type { Store } from "./store/types.ts";
-import { type Problem, ProblemError, problemResponse, toPointer } from "./problems.ts";
+import { type Problem, ProblemError, problemResponse } from "./problems.ts";
 import type { ComputeExecutor } from "./runs/service.ts";
 import { RunService } from "./runs/service.ts";
 import { RUN_KINDS } from "./analyses/registry.ts";
@@ -26,10 +26,10 @@ import { registerSeriesRoutes } from "./routes/series.ts";
 import { registerBundleRoutes } from "./routes/bundles.ts";
 import { registerUiRoutes } from "./ui/routes.ts";
 import { seriesCodec } from "./series_codec.ts";
-import { SERVICE_VERSION } from "./version.ts";
+import { type App, type AppEnv, zodErrors } from "./app_env.ts";
 
-export type AppEnv = { Variables: { requestId: string } };
-export type App = OpenAPIHono<AppEnv>;
+export type { App, AppEnv } from "./app_env.ts";
+export { openApiDocument, zodErrors } from "./app_env.ts";
 
 export interface AppDeps {
   store: Store;
@@ -43,26 +43,6 @@ export interface Service {
   runs: RunService;
   store: Store;
   config: Config;
-}
-
-/** Map zod issues to field errors with JSON Pointers. */
-export function zodErrors(
-  issues: readonly { path: readonly PropertyKey[]; message: string }[],
-  where: "body" | "query" | "path" | "header",
-) {
-  // A union reports one issue per branch at the same place: merge them into one entry.
-  const byPointer = new Map<string, string[]>();
-  for (const i of issues) {
-    const p = toPointer(i.path);
-    const list = byPointer.get(p) ?? [];
-    if (!list.includes(i.message)) list.push(i.message);
-    byPointer.set(p, list);
-  }
-  return [...byPointer].map(([pointer, messages]) => ({
-    pointer,
-    message: messages.join("; or "),
-    ...(where === "body" ? {} : { in: where }),
-  }));
 }
 
 const TARGET_NAMES: Record<string, "body" | "query" | "path" | "header"> = {
@@ -229,20 +209,4 @@ export function createService(deps: AppDeps): Service {
   });
 
   return { app, runs, store, config };
-}
-
-/** The OpenAPI 3.1 document of the app. */
-export function openApiDocument(app: App) {
-  return app.getOpenAPI31Document({
-    openapi: "3.1.0",
-    info: {
-      title: "sunlag",
-      version: SERVICE_VERSION,
-      description:
-        "Solar activity records turned into climate-ready numbers: stored series, recorded and replayable runs. " +
-        "Correlation is not attribution; reconstructions before the satellite era are model-dependent; " +
-        "results do not replace peer-reviewed assessment.",
-    },
-    servers: [{ url: "/" }],
-  });
 }

@@ -8,7 +8,7 @@
  * @module
  */
 import { createRoute, z } from "@hono/zod-openapi";
-import type { App } from "../app.ts";
+import type { App } from "../app_env.ts";
 import type { RunRecord, Store, StoredSeries } from "../store/types.ts";
 import type { RunService } from "../runs/service.ts";
 import { resultDigest } from "../runs/service.ts";

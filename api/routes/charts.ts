@@ -7,7 +7,7 @@
  * @module
  */
 import { createRoute, z } from "@hono/zod-openapi";
-import type { App } from "../app.ts";
+import type { App } from "../app_env.ts";
 import type { Store, StoredSeries } from "../store/types.ts";
 import { ProblemError } from "../problems.ts";
 import { problems } from "../schemas/common.ts";

@@ -5,7 +5,7 @@
  * @module
  */
 import { createRoute, z } from "@hono/zod-openapi";
-import type { App } from "../app.ts";
+import type { App } from "../app_env.ts";
 import type { RunKind } from "../runs/kind.ts";
 import type { RunService } from "../runs/service.ts";
 import { problems, RunSchema } from "../schemas/common.ts";

@@ -6,8 +6,8 @@
 import { createRoute, z } from "@hono/zod-openapi";
 import swaggerJs from "swagger-ui-dist/swagger-ui-bundle.js" with { type: "text" };
 import swaggerCss from "swagger-ui-dist/swagger-ui.css" with { type: "text" };
-import type { App } from "../app.ts";
-import { openApiDocument } from "../app.ts";
+import type { App } from "../app_env.ts";
+import { openApiDocument } from "../app_env.ts";
 import type { Config } from "../config.ts";
 import type { Store } from "../store/types.ts";
 import type { RunKind } from "../runs/kind.ts";

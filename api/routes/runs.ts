@@ -6,7 +6,7 @@
  */
 import { createRoute, z } from "@hono/zod-openapi";
 import { streamSSE } from "hono/streaming";
-import type { App } from "../app.ts";
+import type { App } from "../app_env.ts";
 import type { RunRecord, Store } from "../store/types.ts";
 import type { RunService } from "../runs/service.ts";
 import type { OutputSeries } from "../runs/kind.ts";

@@ -4,8 +4,8 @@
  * @module
  */
 import { createRoute, z } from "@hono/zod-openapi";
-import type { App } from "../app.ts";
-import { zodErrors } from "../app.ts";
+import type { App } from "../app_env.ts";
+import { zodErrors } from "../app_env.ts";
 import type { Config } from "../config.ts";
 import type { SeriesMeta, Store, StoredSeries } from "../store/types.ts";
 import { ProblemError } from "../problems.ts";

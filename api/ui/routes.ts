@@ -8,7 +8,7 @@
  *
  * @module
  */
-import type { App } from "../app.ts";
+import type { App } from "../app_env.ts";
 import html from "./page.html" with { type: "text" };
 import css from "./page.css" with { type: "text" };
 import pageJs from "./page.js" with { type: "text" };
