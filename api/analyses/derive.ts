@@ -35,3 +35,34 @@ export function kindByName(kinds: readonly RunKind[], name: string): RunKind | u
 export function kindNames(kinds: readonly RunKind[]): string[] {
   return kinds.map((k) => k.kind);
 }
+
+/** A `$ref` name (`#/components/schemas/Name` → `Name`), or null. */
+function refName(schema: unknown): string | null {
+  const ref = (schema as { $ref?: unknown } | undefined)?.$ref;
+  return typeof ref === "string" ? ref.slice(ref.lastIndexOf("/") + 1) : null;
+}
+
+/**
+ * The index of analyses served at `GET /v1/analyses` (featured ones first, then in registry
+ * order), with the names of their request and run schemas read from the OpenAPI document.
+ */
+export function analysisIndex(
+  kinds: readonly RunKind[],
+  doc: { paths?: Record<string, Record<string, unknown>> },
+) {
+  const entries = kinds.map((k) => {
+    // deno-lint-ignore no-explicit-any
+    const op = doc.paths?.[k.path]?.post as any;
+    return {
+      kind: k.kind,
+      path: k.path,
+      tag: k.tag,
+      summary: k.summary,
+      featured: k.featured === true,
+      algorithm_version: k.algorithmVersion,
+      request_schema: refName(op?.requestBody?.content?.["application/json"]?.schema),
+      run_schema: refName(op?.responses?.["201"]?.content?.["application/json"]?.schema),
+    };
+  });
+  return [...entries.filter((e) => e.featured), ...entries.filter((e) => !e.featured)];
+}

@@ -11,6 +11,7 @@ import { openApiDocument } from "../app_env.ts";
 import type { Config } from "../config.ts";
 import type { Store } from "../store/types.ts";
 import type { RunKind } from "../runs/kind.ts";
+import { analysisIndex } from "../analyses/derive.ts";
 import { SERVICE_VERSION } from "../version.ts";
 
 const Health = z.object({
@@ -54,10 +55,29 @@ window.ui = SwaggerUIBundle({
 </body>
 </html>`;
 
+const AnalysisIndex = z.object({
+  items: z.array(z.object({
+    kind: z.string(),
+    path: z.string(),
+    tag: z.string(),
+    summary: z.string(),
+    featured: z.boolean(),
+    algorithm_version: z.string(),
+    request_schema: z.string().nullable().openapi({
+      description: "Name of the request schema under `components.schemas`, when it has one",
+    }),
+    run_schema: z.string().nullable().openapi({
+      description: "Name of the schema of its runs (with the typed result) under " +
+        "`components.schemas`",
+    }),
+  })),
+}).openapi("AnalysisIndex");
+
 export function registerMetaRoutes(
   app: App,
   deps: { store: Store; config: Config; kinds: readonly RunKind[] },
 ): void {
+  let index: ReturnType<typeof analysisIndex> | undefined;
   app.openapi(
     createRoute({
       method: "get",
@@ -112,6 +132,29 @@ export function registerMetaRoutes(
         store: deps.store.kind,
         algorithms: Object.fromEntries(deps.kinds.map((k) => [k.kind, k.algorithmVersion])),
       }, 200),
+  );
+
+  app.openapi(
+    createRoute({
+      method: "get",
+      path: "/v1/analyses",
+      tags: ["Service"],
+      summary: "The analyses this service offers",
+      description: "One entry per analysis, in the registry's order: its kind, the path that " +
+        "starts a run, its tag, summary, whether it is one of the main analyses, its algorithm " +
+        "version, and the names of its request and result schemas in the OpenAPI document. " +
+        "Clients (the web page among them) build their forms from this index.",
+      responses: {
+        200: {
+          description: "The analyses",
+          content: { "application/json": { schema: AnalysisIndex } },
+        },
+      },
+    }),
+    (c) => {
+      index ??= analysisIndex(deps.kinds, openApiDocument(app) as never);
+      return c.json({ items: index }, 200);
+    },
   );
 
   app.get("/v1/openapi.json", (c) => c.json(openApiDocument(app)));

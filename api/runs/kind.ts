@@ -122,6 +122,8 @@ export interface RunKind<S extends z.ZodType = any, R extends z.ZodType = any> {
   algorithmVersion: string;
   /** OpenAPI tag, e.g. "Solar cycles". */
   tag: string;
+  /** Listed first among the page's analyses (the main questions a researcher asks). */
+  featured?: boolean;
   summary: string;
   description: string;
   /** Request body schema; defaults filled by parsing. Series references use `seriesRef()`. */

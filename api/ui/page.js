@@ -47,7 +47,6 @@ function pageSize(query) {
 const FIRST_ROWS = 12;
 const FINAL = new Set(["succeeded", "failed", "cancelled"]);
 /** Analyses offered first, by POST path. */
-const MAIN_ANALYSES = ["/v1/lag-correlations", "/v1/irradiance/reconstructions", "/v1/cycles"];
 const BASE = location.origin;
 
 // ---------------------------------------------------------------------------------------------
@@ -1085,30 +1084,32 @@ function replayPanel(path) {
 
 /** @param {number} gen @param {URLSearchParams} query */
 async function analyseView(gen, query) {
-  const [doc, seriesRes, runsRes] = await Promise.all([
+  const [doc, indexRes, seriesRes, runsRes] = await Promise.all([
     openApi(),
+    call({ method: "GET", path: "/v1/analyses" }),
     call({ method: "GET", path: "/v1/series", query: { limit: 500 } }),
     call({ method: "GET", path: "/v1/runs", query: { limit: 200, status: "succeeded" } }),
   ]);
   const series = seriesRes.ok ? seriesRes.data.items : [];
   const runs = runsRes.ok ? runsRes.data.items : [];
-  /** @type {{ path: string, summary: string, description: string, schema: any }[]} */
+  // The analyses and their order come from the service's registry (GET /v1/analyses); the
+  // request schema of each comes from the OpenAPI document.
+  /** @type {{ path: string, summary: string, description: string, schema: any, featured: boolean }[]} */
   const kinds = [];
-  for (const [path, ops] of Object.entries(doc.paths ?? {})) {
-    const op = /** @type {any} */ (ops).post;
+  for (const a of indexRes.ok ? indexRes.data.items : []) {
+    const op = doc.paths?.[a.path]?.post;
     const schema = op?.requestBody?.content?.["application/json"]?.schema;
-    if (
-      !schema || path.startsWith("/v1/series") || path.startsWith("/v1/runs") ||
-      path.startsWith("/v1/bundles")
-    ) continue;
-    kinds.push({ path, summary: op.summary ?? path, description: op.description ?? "", schema });
+    if (!schema) continue;
+    kinds.push({
+      path: a.path,
+      summary: a.summary,
+      description: op.description ?? "",
+      schema,
+      featured: a.featured,
+    });
   }
-  const main = MAIN_ANALYSES.map((p) => kinds.find((k) => k.path === p)).filter((k) =>
-    k !== undefined
-  );
-  const more = kinds.filter((k) => !MAIN_ANALYSES.includes(k.path)).sort((a, b) =>
-    a.path.localeCompare(b.path)
-  );
+  const main = kinds.filter((k) => k.featured);
+  const more = kinds.filter((k) => !k.featured).sort((a, b) => a.path.localeCompare(b.path));
   const chosenPath = query.get("kind") ?? main[0]?.path ?? more[0]?.path ?? "";
   const kind = kinds.find((k) => k.path === chosenPath);
   if (!kinds.length) {

@@ -2,6 +2,7 @@ import assert from "node:assert/strict";
 import { Validator } from "@seriousme/openapi-schema-validator";
 import { makeTestApp } from "./helpers.ts";
 import { renderOpenApi } from "../../api/openapi_write.ts";
+import { RUN_KINDS } from "../../api/analyses/registry.ts";
 
 Deno.test("GET /v1/health reports the store as reachable", async () => {
   const svc = await makeTestApp();
@@ -55,5 +56,26 @@ Deno.test("GET /v1/docs serves the API reference with no outside requests", asyn
   const css = await svc.get("/v1/docs/swagger-ui.css");
   assert.equal(css.status, 200);
   await css.body?.cancel();
+  await svc.close();
+});
+
+Deno.test("GET /v1/analyses lists every registered analysis once, with schemas in the OpenAPI document", async () => {
+  const svc = await makeTestApp();
+  const res = await svc.get("/v1/analyses");
+  assert.equal(res.status, 200);
+  const { items } = await res.json();
+  const doc = await (await svc.get("/v1/openapi.json")).json();
+  assert.deepEqual(
+    items.map((i: { kind: string }) => i.kind).sort(),
+    RUN_KINDS.map((k) => k.kind).sort(),
+  );
+  for (const i of items) {
+    assert.ok(doc.components.schemas[i.request_schema], `${i.kind}: ${i.request_schema}`);
+    assert.ok(doc.components.schemas[i.run_schema], `${i.kind}: ${i.run_schema}`);
+    assert.ok(doc.paths[i.path].post, i.path);
+  }
+  // Featured analyses come first.
+  const flags = items.map((i: { featured: boolean }) => i.featured);
+  assert.deepEqual(flags, [...flags].sort((a: boolean, b: boolean) => Number(b) - Number(a)));
   await svc.close();
 });
