@@ -65,6 +65,7 @@ export function readRows(
       row: rowOf[i],
       column: table.label(cols.timeColumn),
     }),
+    whole: { pointer: "", in: "body" },
   };
 }
 
