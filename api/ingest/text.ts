@@ -17,7 +17,7 @@ import { type DuplicatePolicy, type IngestError, type IngestResult, MAX_POINTS }
 import { decodeTextBody } from "./text/decode.ts";
 import { FILE_META_KEYS, readLines, type TextLines } from "./text/lines.ts";
 import { type DelimiterName, delimiterName } from "./text/delimiter.ts";
-import { openTable } from "./text/table.ts";
+import { type ColumnRefs, openTable } from "./text/table.ts";
 import { resolveColumns } from "./text/columns.ts";
 import { missingTest } from "./text/cells.ts";
 import { checkTimeFormatOption, chooseTimeFormat, type TimeFormat } from "./text/time.ts";
@@ -29,17 +29,7 @@ export { decimalYearRange } from "./text/time.ts";
 export type { DelimiterName, TimeFormat };
 
 /** Options of a text upload (all optional; names match the query parameters). */
-export interface TextIngestOptions extends SeriesMetaInput {
-  /** Time column (ISO 8601 times or decimal years), by header name or 0-based index. */
-  time?: string;
-  /** Separate year / month / day columns instead of `time` (month and day optional). */
-  year?: string;
-  month?: string;
-  day?: string;
-  /** Value column. @default the column named "value", or the only other column */
-  value?: string;
-  /** One-sigma uncertainty column. @default the column named "uncertainty" if any */
-  uncertainty?: string;
+export interface TextIngestOptions extends SeriesMetaInput, ColumnRefs {
   /** @default "auto" */
   delimiter?: DelimiterName;
   /** Extra missing-value sentinels (added to empty, NaN and NA), e.g. ["-1", "-999"]. */

@@ -122,45 +122,23 @@ function temperatureConversion(
   difference: boolean,
 ): UnitConversion {
   const bare = given === "C" || given === "F" ? ` ("${given}" read as degrees)` : "";
-  if (scale === "K") {
-    return { from: given, to: "K", zero: 0, scale: 1, offset: 0, formula: "K (unit name only)" };
-  }
+  const to = (zero: number, factor: number, offset: number, formula: string): UnitConversion => ({
+    from: given,
+    to: "K",
+    zero,
+    scale: factor,
+    offset,
+    formula: formula + bare,
+  });
+  if (scale === "K") return to(0, 1, 0, "K (unit name only)");
   if (difference) {
     return scale === "degC"
-      ? {
-        from: given,
-        to: "K",
-        zero: 0,
-        scale: 1,
-        offset: 0,
-        formula: `a difference of 1 degC is 1 K: values unchanged${bare}`,
-      }
-      : {
-        from: given,
-        to: "K",
-        zero: 0,
-        scale: 5 / 9,
-        offset: 0,
-        formula: `a difference of 1 degF is 5/9 K: K = degF × 5/9${bare}`,
-      };
+      ? to(0, 1, 0, "a difference of 1 degC is 1 K: values unchanged")
+      : to(0, 5 / 9, 0, "a difference of 1 degF is 5/9 K: K = degF × 5/9");
   }
   return scale === "degC"
-    ? {
-      from: given,
-      to: "K",
-      zero: 0,
-      scale: 1,
-      offset: 273.15,
-      formula: `K = degC + 273.15${bare}`,
-    }
-    : {
-      from: given,
-      to: "K",
-      zero: 32,
-      scale: 5 / 9,
-      offset: 273.15,
-      formula: `K = (degF − 32) × 5/9 + 273.15${bare}`,
-    };
+    ? to(0, 1, 273.15, "K = degC + 273.15")
+    : to(32, 5 / 9, 273.15, "K = (degF − 32) × 5/9 + 273.15");
 }
 
 /**

@@ -4,37 +4,18 @@
  * "Derived from run" for them. Two instances in one process, as the bundle round-trip test.
  */
 import assert from "node:assert/strict";
-import { makeTestApp, type TestService } from "./helpers.ts";
+import { makeTestApp } from "./helpers.ts";
+import { DEMO, demoIrradianceModel } from "./demo_inputs.ts";
 import { loadDemo } from "../../api/demo.ts";
 
-// demo series (invented, fixtures/demo; ids are stable)
-const SSN = "sha256:adebf4dd9a329b7382165cf603d02c96fa9a2c91a7ba58eb7b8e967337f2ff2b";
-const AREA = "sha256:165c80d17f315d238ae6ee0aacd536a8a8f7484217a18dfb7b7c9ede9ff27f14";
-const MG = "sha256:d4780e80aedd5569ef8292dda45fb2f1372ae0c333d378b2a58a44de47432e10";
-const TSI = "sha256:4de66a40b207591db1232e642ce89992bf2df2f556d26f12ada5d636c0034a0f";
-
-async function created(svc: TestService, path: string, body: unknown) {
-  const res = await svc.post(path, body);
-  const json = await res.json();
-  assert.ok(res.status === 201 || res.status === 200, `${path}: ${JSON.stringify(json)}`);
-  return json;
-}
+const { SSN, AREA, MG, TSI } = DEMO;
 
 Deno.test("bundles: the run behind a derived input series travels and is served on import", async (t) => {
   const a = await makeTestApp();
   const b = await makeTestApp();
   try {
     await loadDemo(a.store);
-    const dark = await created(a, "/v1/irradiance/darkening", { total_area: AREA });
-    const psi = (await created(a, `/v1/runs/${dark.id}/outputs/psi/series`, {})).id;
-    const model = await created(a, "/v1/irradiance/models", {
-      tsi: TSI,
-      sunspot_number: SSN,
-      terms: [
-        { name: "mg_ii", series: MG, role: "facular" },
-        { name: "psi", series: psi, role: "sunspot_darkening" },
-      ],
-    });
+    const { darkening: dark, psi, model } = await demoIrradianceModel(a);
     assert.deepEqual(model.input_runs, [], "the darkening run is not an input run of the model");
     const bundle = await (await a.get(`/v1/runs/${model.id}/bundle`)).json();
 

@@ -12,15 +12,10 @@
 import assert from "node:assert/strict";
 import { makeTestApp, monthlySeries, type TestService } from "./helpers.ts";
 import { loadDemo } from "../../api/demo.ts";
+import { DEMO, demoIrradianceModel, demoModelRequest } from "./demo_inputs.ts";
 import { RUN_KINDS } from "../../api/kinds/registry.ts";
 
-const SSN = "sha256:adebf4dd9a329b7382165cf603d02c96fa9a2c91a7ba58eb7b8e967337f2ff2b";
-const AREA = "sha256:165c80d17f315d238ae6ee0aacd536a8a8f7484217a18dfb7b7c9ede9ff27f14";
-const MG = "sha256:d4780e80aedd5569ef8292dda45fb2f1372ae0c333d378b2a58a44de47432e10";
-const TSI = "sha256:4de66a40b207591db1232e642ce89992bf2df2f556d26f12ada5d636c0034a0f";
-const TSIM = "sha256:dcd8d0bcd0c66f73a1a079649dbcd55d3d0e247c1329eb803a87767023e8576d";
-const TEMP = "sha256:dc57cafa9ebf93093645c18f5c57f2c59cb3dfc8505841586e88f241a195e480";
-const ENSO = "sha256:481ce6e1b9d72efaae13afddd39bedb997b7eebfeb98f820f0c696d890d89d39";
+const { SSN, AREA, TSIM, TEMP, ENSO } = DEMO;
 
 /** Phrases that belong to the code, not to a message for the user. */
 const INTERNAL = [
@@ -108,13 +103,7 @@ Deno.test("problems of bad requests name their field and speak to the user", asy
       assert.ok(r.status === 201, `${path}: ${JSON.stringify(r.json).slice(0, 300)}`);
       return r.json;
     };
-    const dark = await run("/v1/irradiance/darkening", { total_area: AREA });
-    const psi = (await post(svc, `/v1/runs/${dark.id}/outputs/psi/series`, {})).json.id;
-    const terms = [
-      { name: "mg_ii", series: MG, role: "facular" },
-      { name: "psi", series: psi, role: "sunspot_darkening" },
-    ];
-    const model = await run("/v1/irradiance/models", { tsi: TSI, sunspot_number: SSN, terms });
+    const { psi, model } = await demoIrradianceModel(svc);
     const rec = await run("/v1/irradiance/reconstructions", {
       model: model.id,
       sunspot_number: SSN,
@@ -135,7 +124,7 @@ Deno.test("problems of bad requests name their field and speak to the user", asy
       ["/v1/cycle-fits", { series: SSN }],
       ["/v1/cycle-forecasts", { series: SSN, replicates: 20, hindcast_replicates: 10 }],
       ["/v1/irradiance/darkening", { total_area: AREA }],
-      ["/v1/irradiance/models", { tsi: TSI, sunspot_number: SSN, terms }],
+      ["/v1/irradiance/models", demoModelRequest(psi)],
       ["/v1/irradiance/reconstructions", {
         model: model.id,
         sunspot_number: SSN,

@@ -30,11 +30,15 @@ export interface Table {
 
 /** Column references given in the options: a header name or a 0-based index each. */
 export interface ColumnRefs {
+  /** Time column (ISO 8601 times or decimal years). */
   time?: string;
+  /** Separate year / month / day columns instead of `time` (month and day optional). */
   year?: string;
   month?: string;
   day?: string;
+  /** Value column. @default the column named "value", or the only other column */
   value?: string;
+  /** One-sigma uncertainty column. @default the column named "uncertainty" if any */
   uncertainty?: string;
 }
 
