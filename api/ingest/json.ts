@@ -166,7 +166,13 @@ export function ingestJson(body: JsonSeriesInput, options: JsonIngestOptions = {
     });
   }
   return finish(
-    { time, value, uncertainty: unc, where: (i) => at(`/time/${i}`) },
+    {
+      time,
+      value,
+      uncertainty: unc,
+      where: (i) => at(`/time/${i}`),
+      whole: at("/value"),
+    },
     checked,
     dup === "mean" ? "mean" : "reject",
     errors,

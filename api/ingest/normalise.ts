@@ -5,14 +5,26 @@
  *
  * @module
  */
-import { canonicalUnits, QUANTITIES, type Quantity } from "../../core/series/quantities.ts";
-import { inferResolution } from "../../core/time/mod.ts";
+import {
+  convertToCanonicalUnits,
+  QUANTITIES,
+  type Quantity,
+  type UnitConversion,
+  unitsForQuantity,
+} from "../../core/series/quantities.ts";
+import {
+  inferResolution,
+  type PeriodConvention,
+  readPeriodConvention,
+} from "../../core/time/mod.ts";
 import {
   type DuplicatePolicy,
   type IngestError,
   type IngestResult,
   MAX_ERRORS,
   MAX_POINTS,
+  type TimeGridReport,
+  type UnitsReport,
 } from "./types.ts";
 
 /** Series metadata as given by the user (before checks). */
@@ -36,6 +48,8 @@ export interface ParsedPoints {
   uncertainty: ArrayLike<number> | null;
   /** Where point i came from, for error messages about its time. */
   where(i: number): Omit<IngestError, "message">;
+  /** Where problems with the points as a whole point (too few, too many). */
+  whole: Omit<IngestError, "message">;
 }
 
 /** Collects errors up to {@link MAX_ERRORS}, then counts the rest. */
@@ -76,6 +90,8 @@ export function checkMeta(
     description: string | null;
     source: string | null;
     version: string | null;
+    /** How values convert to `units` (null when they are in it already). */
+    conversion: UnitConversion | null;
   }
   | null {
   const name = (meta.name ?? "").trim();
@@ -100,11 +116,12 @@ export function checkMeta(
     });
   } else quantity = q as Quantity;
   let units: string | null = null;
+  let conversion: UnitConversion | null = null;
   if (meta.units === undefined || meta.units === null) {
     errors.add({ ...at("units"), message: 'units are required (UDUNITS string, e.g. "W m-2")' });
   } else if (quantity !== null) {
-    const u = canonicalUnits(quantity, meta.units);
-    if (u.ok) units = u.units;
+    const u = unitsForQuantity(quantity, meta.units);
+    if (u.ok) [units, conversion] = [u.units, u.conversion];
     else errors.add({ ...at("units"), message: u.reason });
   }
   const opt = (v: string | null | undefined, field: keyof SeriesMetaInput, max: number) => {
@@ -118,11 +135,13 @@ export function checkMeta(
   const source = opt(meta.source, "source", 2000);
   const version = opt(meta.version === undefined ? undefined : meta.version?.trim(), "version", 40);
   if (quantity === null || units === null || name === "") return null;
-  return { name, quantity, units, description, source, version };
+  return { name, quantity, units, description, source, version, conversion };
 }
 
 /**
- * Finish an upload: drop gaps, enforce or resolve time order, check limits, infer resolution.
+ * Finish an upload: drop gaps, enforce or resolve time order, check limits, convert units,
+ * recognise a monthly or annual grid at the start or middle of its periods (stored at the
+ * middle: readPeriodConvention), infer resolution.
  *
  * @param points parsed points in input order (missing values as NaN)
  * @param meta checked metadata (null when it had errors; errors are then returned)
@@ -139,36 +158,84 @@ export function finish(
   extraReport: Record<string, unknown> = {},
 ): IngestResult {
   const n = points.time.length;
-  const { time, value, uncertainty } = points;
   let missing = 0;
-  for (let i = 0; i < n; i++) if (Number.isNaN(value[i])) missing++;
+  for (let i = 0; i < n; i++) if (Number.isNaN(points.value[i])) missing++;
   const present = n - missing;
-  if (errors.size === 0 && duplicates === "reject") {
-    for (let i = 1; i < n && !errors.full; i++) {
-      if (time[i] === time[i - 1]) {
-        errors.add({
-          ...points.where(i),
-          message: `duplicate timestamp: same time as the previous row (${time[i]}); ` +
-            `remove it, or upload with duplicates=mean to average rows that share a time`,
-        });
-      } else if (time[i] < time[i - 1]) {
-        errors.add({
-          ...points.where(i),
-          message: `non-monotonic timestamps: time ${time[i]} comes before the previous row's ${
-            time[i - 1]
-          }; sort the rows, or upload with duplicates=mean (sorts and averages)`,
-        });
-      }
-    }
-  }
+  if (errors.size === 0 && duplicates === "reject") checkOrder(points, errors);
   if (present > MAX_POINTS) {
-    errors.add({ pointer: "", message: `too many points: ${present}, at most ${MAX_POINTS}` });
+    errors.add({ ...points.whole, message: `too many points: ${present}, at most ${MAX_POINTS}` });
   }
   if (errors.size > 0 || meta === null) return { ok: false, errors: errors.done() };
+  const merged = mergePoints(points, present, duplicates);
+  const { aggregated } = merged;
+  if (merged.time.length < 2) {
+    return {
+      ok: false,
+      errors: [{
+        ...points.whole,
+        message: `fewer than 2 points: ${merged.time.length} kept of ${n} read (${missing} missing${
+          aggregated ? `, ${aggregated} merged as duplicates` : ""
+        })`,
+      }],
+    };
+  }
+  const grid = readPeriodConvention(merged.time);
+  const { conversion, ...fields } = meta;
+  const inUnits = convertUnits(merged.value, merged.uncertainty, conversion);
+  const time = grid ? grid.middle : merged.time;
+  return {
+    ok: true,
+    series: {
+      ...fields,
+      description: conversion
+        ? withConversionNote(fields.description, conversion)
+        : fields.description,
+      resolution: inferResolution(time),
+      time,
+      value: noNegativeZero(inUnits.value),
+      uncertainty: inUnits.uncertainty ? noNegativeZero(inUnits.uncertainty) : null,
+    },
+    report: {
+      read: n,
+      kept: time.length,
+      missing,
+      aggregated,
+      ...extraReport,
+      time_grid: grid ? timeGridReport(grid, merged.time) : null,
+      units_conversion: conversion ? unitsReport(conversion) : null,
+    },
+  };
+}
 
-  // Keep present points, sorted by time (stable) when averaging duplicates.
+/** "reject" policy: times must strictly increase in input order (missing rows included). */
+function checkOrder(points: ParsedPoints, errors: ErrorList): void {
+  const { time } = points;
+  for (let i = 1; i < time.length && !errors.full; i++) {
+    if (time[i] === time[i - 1]) {
+      errors.add({
+        ...points.where(i),
+        message: `duplicate timestamp: same time as the previous row (${time[i]}); ` +
+          `remove it, or upload with duplicates=mean to average rows that share a time`,
+      });
+    } else if (time[i] < time[i - 1]) {
+      errors.add({
+        ...points.where(i),
+        message: `non-monotonic timestamps: time ${time[i]} comes before the previous row's ${
+          time[i - 1]
+        }; sort the rows, or upload with duplicates=mean (sorts and averages)`,
+      });
+    }
+  }
+}
+
+/**
+ * Keep present points, sorted by time (stable) when averaging duplicates; rows sharing a time
+ * are averaged (uncertainty: root of the sum of squares over the count).
+ */
+function mergePoints(points: ParsedPoints, present: number, duplicates: DuplicatePolicy) {
+  const { time, value, uncertainty } = points;
   const idx = new Int32Array(present);
-  for (let i = 0, k = 0; i < n; i++) if (!Number.isNaN(value[i])) idx[k++] = i;
+  for (let i = 0, k = 0; i < time.length; i++) if (!Number.isNaN(value[i])) idx[k++] = i;
   if (duplicates === "mean") idx.sort((a, b) => time[a] - time[b] || a - b);
   const t: number[] = [], v: number[] = [], u: number[] | null = uncertainty ? [] : null;
   let aggregated = 0;
@@ -186,28 +253,69 @@ export function finish(
     if (u && uncertainty) u.push(m === 1 ? uncertainty[idx[k]] : Math.sqrt(sumSq) / m);
     k = j;
   }
-  if (t.length < 2) {
-    return {
-      ok: false,
-      errors: [{
-        pointer: "",
-        message: `fewer than 2 points: ${t.length} kept of ${n} read (${missing} missing${
-          aggregated ? `, ${aggregated} merged as duplicates` : ""
-        })`,
-      }],
-    };
-  }
-  const m = t.length;
-  const tt = new Float64Array(m), vv = new Float64Array(m);
-  const uu = u ? new Float64Array(m) : null;
-  for (let i = 0; i < m; i++) {
-    tt[i] = t[i];
-    vv[i] = v[i] === 0 ? 0 : v[i]; // no negative zero
-    if (uu && u) uu[i] = u[i] === 0 ? 0 : u[i];
-  }
   return {
-    ok: true,
-    series: { ...meta, resolution: inferResolution(tt), time: tt, value: vv, uncertainty: uu },
-    report: { read: n, kept: tt.length, missing, aggregated, ...extraReport },
+    time: Float64Array.from(t),
+    value: Float64Array.from(v),
+    uncertainty: u ? Float64Array.from(u) : null,
+    aggregated,
+  };
+}
+
+/** Values and uncertainties in the canonical unit. */
+function convertUnits(
+  value: Float64Array,
+  uncertainty: Float64Array | null,
+  conversion: UnitConversion | null,
+): { value: Float64Array; uncertainty: Float64Array | null } {
+  if (!conversion) return { value, uncertainty };
+  return {
+    value: convertToCanonicalUnits(value, conversion),
+    uncertainty: uncertainty ? convertToCanonicalUnits(uncertainty, conversion, true) : null,
+  };
+}
+
+/** Replace negative zeros by zeros, in place. */
+function noNegativeZero(a: Float64Array): Float64Array {
+  for (let i = 0; i < a.length; i++) if (a[i] === 0) a[i] = 0;
+  return a;
+}
+
+/** The series description with the unit conversion stated (it travels with the series). */
+function withConversionNote(description: string | null, c: UnitConversion): string {
+  const note = `Values converted on upload from ${c.from} to ${c.to}: ${c.formula}.`;
+  return description ? `${description} ${note}` : note;
+}
+
+function unitsReport(c: UnitConversion): UnitsReport {
+  return { from: c.from, to: c.to, formula: c.formula };
+}
+
+const GRID_WORDS: Record<string, string> = {
+  "annual/start":
+    "the start of each year (an integer decimal year, as R's time() writes a yearly ts)",
+  "annual/middle": "the middle of each year (year + 0.5, as an ISO 8601 year is read)",
+  "monthly/start/twelfths":
+    "the start of each month in twelfths of a year (year + (month - 1)/12, as R's time() writes a monthly ts)",
+  "monthly/middle/twelfths":
+    "the middle of each month in twelfths of a year (year + (month - 0.5)/12)",
+  "monthly/start/calendar": "the start of each calendar month (its first day)",
+  "monthly/middle/calendar": "the middle of each calendar month (as an ISO 8601 month is read)",
+};
+
+/** What the upload report says about a recognised monthly or annual grid. */
+function timeGridReport(g: PeriodConvention, given: Float64Array): TimeGridReport {
+  let moved = false;
+  for (let i = 0; i < given.length && !moved; i++) moved = given[i] !== g.middle[i];
+  const key = [g.resolution, g.position, ...(g.months ? [g.months] : [])].join("/");
+  const period = g.resolution === "annual" ? "year" : "calendar month";
+  return {
+    resolution: g.resolution,
+    position: g.position,
+    months: g.months,
+    moved_to_middle: moved,
+    note: `Times read as ${GRID_WORDS[key]}; ` +
+      (moved
+        ? `stored at the middle of each ${period}, sunlag's time convention.`
+        : `stored as given (the middle of each ${period}, sunlag's time convention).`),
   };
 }

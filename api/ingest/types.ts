@@ -42,6 +42,30 @@ export interface IngestReport {
   time_format?: string;
   /** Metadata fields taken from the `#` comment header of a sunlag CSV export. */
   metadata_from_file?: string[];
+  /** The regular monthly or annual grid the times were read as, or null (daily, irregular). */
+  time_grid?: TimeGridReport | null;
+  /** How the values were converted to the canonical unit, or null when they were in it. */
+  units_conversion?: UnitsReport | null;
+}
+
+/** A monthly or annual grid recognised on upload, and where its times were stored. */
+export interface TimeGridReport {
+  resolution: "monthly" | "annual";
+  /** Where in its period each time sat as given. */
+  position: "start" | "middle";
+  /** Monthly grids: calendar months or equal twelfths of a year; null for annual grids. */
+  months: "calendar" | "twelfths" | null;
+  /** Whether any time was moved to the middle of its period. */
+  moved_to_middle: boolean;
+  /** The convention in words. */
+  note: string;
+}
+
+/** A unit conversion applied on upload (also stated in the series description). */
+export interface UnitsReport {
+  from: string;
+  to: string;
+  formula: string;
 }
 
 /** One problem with an upload. Mirrors the RFC 9457 `errors` entries of the service. */

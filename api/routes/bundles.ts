@@ -1,7 +1,8 @@
 /**
  * Portable run bundles: one self-contained JSON document with a run record, every input series
- * in full, every input run (recursively, e.g. the calibrated model a reconstruction cites),
- * parameters, versions, seed and result digest. Importing a bundle checks every content id and
+ * in full, its whole lineage of runs (recursively: input runs, e.g. the calibrated model a
+ * reconstruction cites, and the runs that made input series, e.g. the darkening run behind a
+ * PSI series), parameters, versions, seed and result digest. Importing a bundle checks every content id and
  * digest, recomputes each run from the bundled inputs, and stores the bundle only when it
  * verifies, so a tampered bundle is reported and never stored as verified.
  *
@@ -11,6 +12,7 @@ import { createRoute, z } from "@hono/zod-openapi";
 import type { App } from "../app_env.ts";
 import type { RunRecord, Store, StoredSeries } from "../store/types.ts";
 import type { RunService } from "../runs/service.ts";
+import type { OutputSeries } from "../runs/kind.ts";
 import { resultDigest } from "../runs/service.ts";
 import { ProblemError } from "../problems.ts";
 import { problems } from "../schemas/common.ts";
@@ -63,7 +65,8 @@ export const Bundle = z.object({
   exported_by: z.string(),
   run: BundleRun,
   input_runs: z.array(BundleRun).openapi({
-    description: "Runs the main run depends on, dependencies first",
+    description: "The main run's lineage, dependencies first: the runs it takes as inputs " +
+      "and the runs that made its input series (derived_from), recursively",
   }),
   series: z.array(BundleSeries),
 }).openapi("Bundle");
@@ -78,40 +81,49 @@ const Verification = z.object({
   differences: z.array(z.object({ where: z.string(), message: z.string() })),
 }).openapi("BundleVerification");
 
-/** Collect a run and everything it depends on, dependencies first. */
+/**
+ * Collect a run and its whole lineage, dependencies first: its input runs, and the runs that
+ * made its input series (a series saved from a run output names that run in `derived_from`),
+ * with their own inputs, recursively.
+ */
 async function collect(store: Store, run: RunRecord) {
   const runs: RunRecord[] = [];
-  const seen = new Set<string>();
-  const seriesIds = new Set<string>();
-  const visit = async (r: RunRecord) => {
-    for (const rid of r.input_runs) {
-      if (seen.has(rid)) continue;
-      seen.add(rid);
-      const dep = await store.getRun(rid);
-      if (!dep) {
-        throw new ProblemError(
-          "conflict",
-          `run ${r.id} depends on run ${rid}, which is no longer stored`,
-        );
-      }
-      await visit(dep);
-      runs.push(dep);
-    }
-    r.input_series.forEach((s) => seriesIds.add(s));
+  const seenRuns = new Set<string>([run.id]);
+  const series = new Map<string, StoredSeries>();
+  const mustRun = async (id: string, why: string) => {
+    const r = await store.getRun(id);
+    if (!r) throw new ProblemError("conflict", `${why} run ${id}, which is no longer stored`);
+    return r;
   };
-  await visit(run);
-  const series: StoredSeries[] = [];
-  for (const id of [...seriesIds].sort()) {
+  const visitSeries = async (id: string, user: RunRecord) => {
+    if (series.has(id)) return;
     const s = await store.getSeries(id);
     if (!s) {
       throw new ProblemError(
         "conflict",
-        `run ${run.id} uses series ${id}, which is no longer stored`,
+        `run ${user.id} uses series ${id}, which is no longer stored`,
       );
     }
-    series.push(s);
-  }
-  return { runs, series };
+    series.set(id, s);
+    if (s.derived_from && !seenRuns.has(s.derived_from)) {
+      seenRuns.add(s.derived_from);
+      const maker = await mustRun(s.derived_from, `series ${id} was derived from`);
+      await visitRun(maker);
+      runs.push(maker);
+    }
+  };
+  const visitRun = async (r: RunRecord): Promise<void> => {
+    for (const sid of r.input_series) await visitSeries(sid, r);
+    for (const rid of r.input_runs) {
+      if (seenRuns.has(rid)) continue;
+      seenRuns.add(rid);
+      const dep = await mustRun(rid, `run ${r.id} depends on`);
+      await visitRun(dep);
+      runs.push(dep);
+    }
+  };
+  await visitRun(run);
+  return { runs, series: [...series.keys()].sort().map((id) => series.get(id)!) };
 }
 
 function seriesJson(s: StoredSeries) {
@@ -264,7 +276,43 @@ export async function verifyBundle(runs: RunService, b: BundleT) {
     }
     verifiedRuns[rec.id] = rec;
   }
+  differences.push(...await checkDerivedSeries(runs, b, verifiedRuns));
   return { differences, series, verifiedRuns };
+}
+
+/**
+ * Every bundled series that names a bundled run in `derived_from` must be an output of that
+ * run as this service saves it (same content id), so lineage cannot be claimed falsely.
+ */
+async function checkDerivedSeries(
+  runs: RunService,
+  b: BundleT,
+  verifiedRuns: Record<string, RunRecord>,
+): Promise<{ where: string; message: string }[]> {
+  const out: { where: string; message: string }[] = [];
+  const bundled = new Set([...b.input_runs.map((r) => r.id), b.run.id]);
+  for (const [i, s] of b.series.entries()) {
+    if (!s.derived_from || !bundled.has(s.derived_from)) continue;
+    const maker = verifiedRuns[s.derived_from];
+    if (!maker) continue; // its own verification failed and was reported
+    const outputs = (maker.result?.outputs ?? {}) as Record<string, OutputSeries>;
+    let found = false;
+    for (const o of Object.values(outputs)) {
+      try {
+        if ((await runs.codec.fromOutput(o, maker.id)).id === s.id) found = true;
+      } catch {
+        // an output that is not a calendar series cannot be the one saved
+      }
+      if (found) break;
+    }
+    if (!found) {
+      out.push({
+        where: `/series/${i}/derived_from`,
+        message: `series ${s.id} is not an output of run ${s.derived_from}, which it names`,
+      });
+    }
+  }
+  return out;
 }
 
 export function registerBundleRoutes(app: App, deps: { store: Store; runs: RunService }): void {

@@ -46,6 +46,12 @@ async function mustGetRun(store: Store, id: string): Promise<RunRecord> {
 export function registerRunRoutes(app: App, deps: { store: Store; runs: RunService }): void {
   const { store, runs } = deps;
   const runCache = new ImmutableCache();
+  // The kinds this service offers (the registry, or the kinds injected into the app).
+  const kindNames = runs.kinds.map((k) => k.kind).sort() as [string, ...string[]];
+  const KindFilter = z.enum(kindNames, {
+    error: (iss) =>
+      `unknown run kind ${JSON.stringify(iss.input)}; valid kinds: ${kindNames.join(", ")}`,
+  }).openapi({ description: "Only runs of this kind" });
 
   app.openapi(
     createRoute({
@@ -55,7 +61,7 @@ export function registerRunRoutes(app: App, deps: { store: Store; runs: RunServi
       summary: "List runs, newest first",
       request: {
         query: PageQuery.extend({
-          kind: z.string().optional(),
+          kind: KindFilter.optional(),
           status: RunStatusSchema.optional(),
         }),
       },

@@ -16,7 +16,7 @@ import {
   SeriesMetaSchema,
   SeriesSchema,
 } from "../schemas/common.ts";
-import { SeriesUpload, TextUploadQuery } from "../schemas/ingest.ts";
+import { SeriesUpload, TextUploadQuery, UploadReport } from "../schemas/ingest.ts";
 import { QUANTITIES } from "../../core/series/quantities.ts";
 import { formatIsoTime } from "../../core/time/mod.ts";
 import { ingestJson, ingestText, seriesToCsv } from "../ingest/mod.ts";
@@ -58,13 +58,6 @@ function seriesView(s: StoredSeries) {
     uncertainty: s.uncertainty ? Array.from(s.uncertainty) : null,
   };
 }
-
-const UploadReport = z.object({
-  read: z.number().int().openapi({ description: "Rows or points read" }),
-  kept: z.number().int().openapi({ description: "Points stored" }),
-  missing: z.number().int().openapi({ description: "Points treated as missing (gaps)" }),
-  aggregated: z.number().int().openapi({ description: "Points merged by the duplicates rule" }),
-}).openapi("UploadReport");
 
 const UploadAnswer = z.object({
   created: z.boolean(),

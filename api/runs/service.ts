@@ -79,12 +79,13 @@ export function makeContext(
   return {
     series(id) {
       const s = inputs.series[id];
-      if (!s) throw new InputProblem("", `series ${id} was not loaded`);
+      // a kind asking for a series its request does not name is a defect, not bad input
+      if (!s) throw new Error(`series ${id} was not loaded for this run`);
       return s;
     },
     run(id) {
       const r = inputs.runs[id];
-      if (!r) throw new InputProblem("", `run ${id} was not loaded`);
+      if (!r) throw new Error(`run ${id} was not loaded for this run`);
       return r;
     },
     resultOf(kind, id, pointer) {
@@ -513,7 +514,18 @@ function findPointer(params: unknown, needle: string): string {
   return found;
 }
 
-/** Map an exception from compute to a problem: InputProblem and RangeError → 422. */
+/**
+ * Map an exception from compute to a problem.
+ *
+ * - InputProblem: the kind named the field; a 422 with its pointer.
+ * - RangeError: a precondition of a core function that the kind did not check on its
+ *   request, so no field can be named. The input did trigger it, so it is a 422 and not a
+ *   500, but without a made-up pointer: the problem says that no field could be named, and
+ *   the error is logged so the missing check can be added. (A problem with an empty pointer
+ *   and a core function's wording is what users saw before; test/api/problems_scan_test.ts
+ *   scans bad requests for it.)
+ * - anything else: a 500, logged.
+ */
 export function asProblem(e: unknown): ProblemError {
   if (e instanceof ProblemError) return e;
   if (e instanceof InputProblem || (e as { name?: string })?.name === "InputProblem") {
@@ -524,8 +536,12 @@ export function asProblem(e: unknown): ProblemError {
     });
   }
   if (e instanceof RangeError || (e as { name?: string })?.name === "RangeError") {
-    const msg = (e as Error).message;
-    return new ProblemError("validation", msg, { errors: [{ pointer: "", message: msg }] });
+    console.error(JSON.stringify({ level: "warn", unchecked_input: (e as Error).message }));
+    return new ProblemError(
+      "validation",
+      "The analysis cannot use this combination of inputs, and the request checks did not " +
+        `name the field at fault (logged with this request id): ${(e as Error).message}`,
+    );
   }
   if (e instanceof CancelledError) return new ProblemError("conflict", "run cancelled");
   console.error(e);

@@ -6,6 +6,18 @@
  */
 import { z } from "@hono/zod-openapi";
 
+// Validation messages speak to the user: a missing field is "required", not zod's default
+// "expected object, received undefined". (zod's global configuration; every route's schemas
+// import this module.)
+z.config({
+  customError: (iss) => {
+    if (iss.input !== undefined) return undefined;
+    if (iss.code === "invalid_type") return `required (${iss.expected})`;
+    if (iss.code === "invalid_union") return "required";
+    return undefined;
+  },
+});
+
 export const FieldErrorSchema = z.object({
   pointer: z.string().openapi({ example: "/window" }),
   message: z.string(),

@@ -60,7 +60,8 @@ export const TextUploadQuery = z.object({
   }),
   units: z.string().max(60).optional().openapi({
     description: 'UDUNITS units; must agree with the quantity (e.g. "W m-2" for tsi, "1" ' +
-      "for indices) (required unless the file is a sunlag export)",
+      "for indices; temperatures in K, or degC, °C, degF, °F... converted to K) (required " +
+      "unless the file is a sunlag export)",
     example: "1",
   }),
   description: z.string().max(4000).optional().openapi({ description: "Free text" }),
@@ -71,7 +72,9 @@ export const TextUploadQuery = z.object({
   }),
   time: column(
     "Time column holding ISO 8601 times or decimal years (default: a column named " +
-      "decimal_year, time, date or year, else column 0)",
+      "decimal_year, time, date or year, else column 0). Monthly and annual decimal years at " +
+      "the start of each period (R's time()) or its middle are recognised and stored at the " +
+      "middle; the report's time_grid says which was read",
     "date",
   ),
   year: column("Year column (instead of `time`; with optional `month` and `day`)", "year"),
@@ -103,3 +106,49 @@ export const TextUploadQuery = z.object({
 }).openapi("TextUploadQuery");
 
 export type TextUploadQuery = z.output<typeof TextUploadQuery>;
+
+/** What an upload did with its rows (the `report` of `POST /v1/series`). */
+export const UploadReport = z.object({
+  read: z.number().int().openapi({ description: "Rows or points read" }),
+  kept: z.number().int().openapi({ description: "Points stored" }),
+  missing: z.number().int().openapi({ description: "Points treated as missing (gaps)" }),
+  aggregated: z.number().int().openapi({ description: "Points merged by the duplicates rule" }),
+  delimiter: z.enum(["comma", "semicolon", "tab", "whitespace"]).optional().openapi({
+    description: "Text uploads: the delimiter used",
+  }),
+  header: z.boolean().optional().openapi({
+    description: "Text uploads: whether the first row was read as a header",
+  }),
+  time_format: z.enum(["iso", "decimal_year", "year_month_day"]).optional().openapi({
+    description: "Text uploads: how the time column was read",
+  }),
+  metadata_from_file: z.array(z.string()).optional().openapi({
+    description: "Metadata fields taken from the comment header of a sunlag CSV export",
+  }),
+  time_grid: z.object({
+    resolution: z.enum(["monthly", "annual"]),
+    position: z.enum(["start", "middle"]).openapi({
+      description: "Where in its period each time sat as given",
+    }),
+    months: z.enum(["calendar", "twelfths"]).nullable().openapi({
+      description: "Monthly grids: calendar months, or equal twelfths of a year (R's time() " +
+        "of a monthly ts); null for annual grids",
+    }),
+    moved_to_middle: z.boolean().openapi({
+      description: "Whether times were moved to the middle of their period, where sunlag " +
+        "stores monthly and annual values",
+    }),
+    note: z.string(),
+  }).nullable().openapi({
+    description: "The regular monthly or annual grid the times were read as (start or " +
+      "middle of each period), or null for daily and irregular times",
+  }),
+  units_conversion: z.object({
+    from: z.string(),
+    to: z.string(),
+    formula: z.string(),
+  }).nullable().openapi({
+    description: "How values were converted to the quantity's unit (e.g. degF to K), also " +
+      "stated in the series description; null when they were in it",
+  }),
+}).openapi("UploadReport");

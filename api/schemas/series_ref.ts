@@ -21,13 +21,21 @@ export const TimeValue = z.union([z.string(), z.number()]);
 export const InlineSeries = z.object({
   name: z.string().min(1).max(200),
   quantity: z.enum(QUANTITIES),
-  units: z.string().max(60),
+  units: z.string().max(60).openapi({
+    description: 'UDUNITS units agreeing with the quantity (e.g. "W m-2" for tsi, "1" for ' +
+      "indices); temperatures may be given in degC, °C, degF, °F (and other usual spellings) " +
+      "and are converted to K, the conversion stated in the upload report and description",
+  }),
+  time: z.array(TimeValue).min(2).max(5_000_000).openapi({
+    description: "ISO 8601 strings or decimal years. Monthly and annual values dated at the " +
+      "start of each period (R's time(): 1749, 1749.0833…) or at its middle are recognised " +
+      "and stored at the middle of each period; the upload report says which was read",
+  }),
   description: z.string().max(4000).optional(),
   source: z.string().max(2000).optional(),
   version: z.string().max(40).optional().openapi({
     description: 'Version of the index, e.g. "1" or "2" for the sunspot number',
   }),
-  time: z.array(TimeValue).min(2).max(5_000_000),
   value: z.array(z.number().nullable()),
   uncertainty: z.array(z.number().nullable()).optional(),
 }).openapi("InlineSeries");

@@ -1,6 +1,6 @@
 /**
  * The fixed vocabulary of quantities a series may carry, with the UDUNITS unit strings each
- * accepts (CF conventions, shared/SCIENCE.md §11). The first unit listed is the canonical one;
+ * accepts (UDUNITS strings as the CF conventions use them). The first unit listed is the canonical one;
  * aliases are rewritten to it on upload.
  *
  * @module
@@ -36,7 +36,8 @@ export const QUANTITY_UNITS: Record<Quantity, { canonical: string; aliases: stri
   tsi: { canonical: "W m-2", aliases: ["W/m2", "W m^-2", "W/m^2"] },
   temperature: { canonical: "K", aliases: [] },
   temperature_anomaly: { canonical: "K", aliases: [] },
-  enso_index: { canonical: "1", aliases: ["", "K"] },
+  // sea-surface temperature anomaly indices are often given in K or degC (a difference)
+  enso_index: { canonical: "1", aliases: ["", "K", "degC", "°C"] },
   aerosol_optical_depth: { canonical: "1", aliases: [""] },
   radiative_forcing: { canonical: "W m-2", aliases: ["W/m2", "W m^-2", "W/m^2"] },
   other: null,
@@ -50,10 +51,179 @@ export const SUNSPOT_QUANTITIES: readonly Quantity[] = [
 ];
 
 /**
- * Check a unit string against a quantity and return the canonical unit.
+ * A linear conversion to a quantity's canonical unit:
+ * `canonical = (value − zero) × scale + offset`. A one-sigma uncertainty scales by `scale`.
+ */
+export interface UnitConversion {
+  /** The unit as given. */
+  from: string;
+  /** The canonical unit. */
+  to: string;
+  zero: number;
+  scale: number;
+  offset: number;
+  /** The rule in words, e.g. "K = degC + 273.15". */
+  formula: string;
+}
+
+// Temperature spellings (UDUNITS-2 names, symbols and aliases with their plurals and
+// underscore forms; from memory of its units database) plus the bare letters and capitalised
+// names people write. In UDUNITS "C" is the coulomb and "F" the farad: for a temperature they
+// can only mean degrees, so they are read as such and the report says so.
+const KELVIN = ["K", "kelvin", "kelvins", "degK", "deg_K", "degreeK", "degree_K", "degrees_K"];
+const CELSIUS = [
+  "degC",
+  "°C",
+  "℃",
+  "C",
+  "deg_C",
+  "degreeC",
+  "degreesC",
+  "degree_C",
+  "degrees_C",
+  "degree_Celsius",
+  "degrees_Celsius",
+  "celsius",
+];
+const FAHRENHEIT = [
+  "degF",
+  "°F",
+  "℉",
+  "F",
+  "deg_F",
+  "degreeF",
+  "degreesF",
+  "degree_F",
+  "degrees_F",
+  "degree_Fahrenheit",
+  "degrees_Fahrenheit",
+  "fahrenheit",
+];
+
+/** Which temperature scale a unit string names, or null. Names match case-insensitively. */
+function temperatureScale(u: string): "K" | "degC" | "degF" | null {
+  const match = (list: string[]) =>
+    list.some((a) => a === u || (a.length > 2 && a.toLowerCase() === u.toLowerCase()));
+  if (match(KELVIN)) return "K";
+  if (match(CELSIUS)) return "degC";
+  if (match(FAHRENHEIT)) return "degF";
+  return null;
+}
+
+/**
+ * The conversion of a temperature (absolute) or temperature difference to kelvin.
+ * Absolute: T/K = t/°C + 273.15 (BIPM, SI Brochure, 9th ed. 2019, §2.3.1) and
+ * t/°F = 1.8 t/°C + 32 (NIST SP 811, 2008, B.8; from memory), so K = (°F − 32) × 5/9 + 273.15.
+ * Differences: 1 °C = 1 K and 1 °F = 5/9 K.
+ */
+function temperatureConversion(
+  given: string,
+  scale: "K" | "degC" | "degF",
+  difference: boolean,
+): UnitConversion {
+  const bare = given === "C" || given === "F" ? ` ("${given}" read as degrees)` : "";
+  const to = (zero: number, factor: number, offset: number, formula: string): UnitConversion => ({
+    from: given,
+    to: "K",
+    zero,
+    scale: factor,
+    offset,
+    formula: formula + bare,
+  });
+  if (scale === "K") return to(0, 1, 0, "K (unit name only)");
+  if (difference) {
+    return scale === "degC"
+      ? to(0, 1, 0, "a difference of 1 degC is 1 K: values unchanged")
+      : to(0, 5 / 9, 0, "a difference of 1 degF is 5/9 K: K = degF × 5/9");
+  }
+  return scale === "degC"
+    ? to(0, 1, 273.15, "K = degC + 273.15")
+    : to(32, 5 / 9, 273.15, "K = (degF − 32) × 5/9 + 273.15");
+}
+
+/**
+ * Check a unit string against a quantity: the canonical unit, and the conversion the values
+ * need to be in it (null when the string is the canonical unit or a plain alias of it).
  *
- * Temperatures in degrees Celsius are accepted for `temperature_anomaly` (a difference, so
- * 1 degC = 1 K) and rejected for `temperature` (an offset would be needed).
+ * Temperatures (`temperature`) are accepted in kelvin, degrees Celsius or degrees Fahrenheit
+ * in the usual spellings (`degC`, `°C`, `Celsius`, `degF`, `°F`, `F`, `degree_Celsius`...)
+ * and converted to K; temperature differences (`temperature_anomaly`) in °C are the same
+ * number of K and in °F 5/9 as many.
+ *
+ * @param quantity one of {@link QUANTITIES}
+ * @param units a unit string (UDUNITS spelling, or a common alias listed for the quantity)
+ * @returns `{ ok: true, units, conversion }`, or `{ ok: false, reason }`
+ * @example
+ * ```ts
+ * import { unitsForQuantity } from "./quantities.ts";
+ * import assert from "node:assert/strict";
+ * const r = unitsForQuantity("temperature", "degF");
+ * assert.ok(r.ok && r.conversion);
+ * // 32 °F is the ice point, 273.15 K
+ * assert.equal((32 - r.conversion.zero) * r.conversion.scale + r.conversion.offset, 273.15);
+ * assert.deepEqual(unitsForQuantity("tsi", "W/m2"), { ok: true, units: "W m-2", conversion: null });
+ * ```
+ */
+export function unitsForQuantity(
+  quantity: Quantity,
+  units: string,
+): { ok: true; units: string; conversion: UnitConversion | null } | { ok: false; reason: string } {
+  const spec = QUANTITY_UNITS[quantity];
+  const u = units.trim();
+  if (spec === null) return { ok: true, units: u, conversion: null };
+  if (u === spec.canonical || spec.aliases.includes(u)) {
+    return { ok: true, units: spec.canonical, conversion: null };
+  }
+  const t = temperatureScale(u);
+  if (t !== null && (quantity === "temperature" || quantity === "temperature_anomaly")) {
+    const conversion = temperatureConversion(u, t, quantity === "temperature_anomaly");
+    return { ok: true, units: "K", conversion: t === "K" ? null : conversion };
+  }
+  const accepted = [spec.canonical, ...spec.aliases.filter((a) => a !== "")].map((a) => `"${a}"`)
+    .join(", ");
+  const temps = quantity === "temperature" || quantity === "temperature_anomaly"
+    ? ", or degrees Celsius or Fahrenheit (degC, °C, degF, °F), converted to K"
+    : "";
+  return {
+    ok: false,
+    reason: `units "${units}" contradict quantity ${quantity}; expected ${accepted}${temps}`,
+  };
+}
+
+/**
+ * Convert values to the canonical unit: `(v − zero) × scale + offset` (NaN stays NaN).
+ *
+ * @param values values in the given unit
+ * @param conversion from {@link unitsForQuantity}
+ * @param uncertainty true for one-sigma uncertainties, which only scale
+ * @returns a new array in the canonical unit
+ * @example
+ * ```ts
+ * import { convertToCanonicalUnits, unitsForQuantity } from "./quantities.ts";
+ * import assert from "node:assert/strict";
+ * const r = unitsForQuantity("temperature", "°C");
+ * assert.ok(r.ok && r.conversion);
+ * assert.deepEqual(Array.from(convertToCanonicalUnits([0, 100], r.conversion)), [273.15, 373.15]);
+ * ```
+ */
+export function convertToCanonicalUnits(
+  values: ArrayLike<number>,
+  conversion: UnitConversion,
+  uncertainty = false,
+): Float64Array {
+  const { zero, scale, offset } = conversion;
+  const out = new Float64Array(values.length);
+  for (let i = 0; i < values.length; i++) {
+    out[i] = uncertainty ? values[i] * scale : (values[i] - zero) * scale + offset;
+  }
+  return out;
+}
+
+/**
+ * Check a unit string against a quantity and return the canonical unit, for strings that need
+ * no change of the values (the canonical unit, an alias, or °C for a temperature difference).
+ * A unit that needs a conversion (°C or °F for an absolute temperature, °F for a difference)
+ * is refused here: use {@link unitsForQuantity} and convert.
  *
  * @param quantity one of {@link QUANTITIES}
  * @param units a UDUNITS string
@@ -70,20 +240,14 @@ export function canonicalUnits(
   quantity: Quantity,
   units: string,
 ): { ok: true; units: string } | { ok: false; reason: string } {
-  const spec = QUANTITY_UNITS[quantity];
-  const u = units.trim();
-  if (spec === null) return { ok: true, units: u };
-  if (u === spec.canonical || spec.aliases.includes(u)) return { ok: true, units: spec.canonical };
-  if (quantity === "temperature_anomaly" && (u === "degC" || u === "°C" || u === "C")) {
-    return { ok: true, units: "K" };
+  const r = unitsForQuantity(quantity, units);
+  if (!r.ok) return r;
+  const c = r.conversion;
+  if (c && !(c.zero === 0 && c.scale === 1 && c.offset === 0)) {
+    return {
+      ok: false,
+      reason: `units "${units}" need a conversion of the values to ${r.units} (${c.formula})`,
+    };
   }
-  const accepted = [spec.canonical, ...spec.aliases.filter((a) => a !== "")].map((a) => `"${a}"`)
-    .join(", ");
-  return {
-    ok: false,
-    reason: `units "${units}" contradict quantity ${quantity}; expected ${accepted}` +
-      (quantity === "temperature" && /deg|°|C$/.test(u)
-        ? " (absolute temperatures must be in K; use temperature_anomaly for differences in degC)"
-        : ""),
-  };
+  return { ok: true, units: r.units };
 }

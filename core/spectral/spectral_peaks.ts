@@ -55,7 +55,10 @@ export interface SpectralPeakOptions {
  * @param power periodogram values, finite
  * @param options how many peaks
  * @returns peaks in decreasing power
- * @throws {RangeError} when lengths differ or are below 2, or an option is out of range
+ * A grid of one frequency (a periodogram asked at one period) has one unresolved peak when
+ * its power is positive.
+ *
+ * @throws {RangeError} when lengths differ or are 0, or an option is out of range
  * @example
  * ```ts
  * import { findSpectralPeaks } from "./spectral_peaks.ts";
@@ -73,9 +76,9 @@ export function findSpectralPeaks(
   options: SpectralPeakOptions = {},
 ): SpectralPeak[] {
   const n = frequency.length;
-  if (power.length !== n || n < 2) {
+  if (power.length !== n || n < 1) {
     throw new RangeError(
-      `Cannot find spectral peaks: need equal lengths >= 2, got ${n} frequencies and ${power.length} powers`,
+      `Cannot find spectral peaks: need equal lengths >= 1, got ${n} frequencies and ${power.length} powers`,
     );
   }
   const maxPeaks = options.maxPeaks ?? 5;

@@ -9,3 +9,4 @@ export * from "./decimal_year.ts";
 export * from "./parse_iso_time.ts";
 export * from "./format_iso_time.ts";
 export * from "./resolution.ts";
+export * from "./period_convention.ts";

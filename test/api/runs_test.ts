@@ -250,3 +250,36 @@ Deno.test("runs: outputs that are not on calendar time have no dates in CSV and 
   assert.match(body.detail, /not calendar time/);
   await svc.close();
 });
+
+Deno.test("GET /v1/runs?kind= takes only the service's kinds (OpenAPI enum, 422 otherwise)", async () => {
+  const svc = await service();
+  try {
+    // the kinds this app was built with (here the injected test kind)
+    const doc = await (await svc.app.request("/v1/openapi.json")).json();
+    const param = doc.paths["/v1/runs"].get.parameters.find((p: { name: string }) =>
+      p.name === "kind"
+    );
+    assert.deepEqual(param.schema.enum, ["test-mean"]);
+    const ok = await svc.app.request("/v1/runs?kind=test-mean");
+    assert.equal(ok.status, 200);
+    const body = await assertProblem(await svc.app.request("/v1/runs?kind=test-maen"), 422);
+    assert.deepEqual(body.errors.map((e: { pointer: string; in: string }) => [e.pointer, e.in]), [[
+      "/kind",
+      "query",
+    ]]);
+    assert.match(body.errors[0].message, /unknown run kind "test-maen"; valid kinds: test-mean/);
+  } finally {
+    await svc.close();
+  }
+});
+
+Deno.test("GET /v1/runs?kind= of the default service lists every registered kind", async () => {
+  const { RUN_KINDS } = await import("../../api/analyses/registry.ts");
+  const doc = JSON.parse(
+    await Deno.readTextFile(new URL("../../openapi/openapi.json", import.meta.url)),
+  );
+  const param = doc.paths["/v1/runs"].get.parameters.find((p: { name: string }) =>
+    p.name === "kind"
+  );
+  assert.deepEqual(param.schema.enum, RUN_KINDS.map((k) => k.kind).sort());
+});

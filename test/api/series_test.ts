@@ -17,7 +17,14 @@ Deno.test("POST /v1/series: same content gives the same id, 201 then 200", async
   assert.equal(a.status, 201);
   const ja = await a.json();
   assert.match(ja.series.id, /^sha256:[0-9a-f]{64}$/);
-  assert.deepEqual(ja.report, { read: 24, kept: 24, missing: 0, aggregated: 0 });
+  const { time_grid, units_conversion, ...counts } = ja.report;
+  assert.deepEqual(counts, { read: 24, kept: 24, missing: 0, aggregated: 0 });
+  assert.equal(units_conversion, null);
+  assert.deepEqual([time_grid.resolution, time_grid.position, time_grid.months], [
+    "monthly",
+    "middle",
+    "calendar",
+  ]);
   assert.equal(a.headers.get("location"), `/v1/series/${ja.series.id}`);
   const b = await svc.post("/v1/series", spots);
   assert.equal(b.status, 200);

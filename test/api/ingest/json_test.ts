@@ -29,7 +29,10 @@ Deno.test("ingestJson() normalises times, gaps and sentinels", () => {
   });
   assert.ok(r.ok);
   assert.deepEqual(Array.from(r.series.time), [1996.5, 1999 + 182.5 / 365]);
-  assert.deepEqual(r.report, { read: 4, kept: 2, missing: 2, aggregated: 0 });
+  const { time_grid, units_conversion, ...counts } = r.report;
+  assert.deepEqual(counts, { read: 4, kept: 2, missing: 2, aggregated: 0 });
+  assert.equal(units_conversion, null);
+  assert.deepEqual([time_grid?.resolution, time_grid?.position], ["annual", "middle"]);
   // 1999-07-02 noon is 182.5 days into a 365-day year: exactly mid-year, so the axis is annual
   assert.equal(r.series.resolution, "annual");
 });

@@ -69,18 +69,18 @@ Deno.test("ingestText() reads every time format", async (t) => {
     assert.equal(dt.series.value[0], 1.5);
   });
   await t.step("decimal years (auto and stated)", () => {
-    const r = ok(ingest("t,v\n1996.042,1\n1996.125,2"));
+    const r = ok(ingest("t,v\n1996.042,1\n1996.3,2"));
     assert.equal(r.report.time_format, "decimal_year");
-    assert.deepEqual(Array.from(r.series.time), [1996.042, 1996.125]);
-    // integers are ISO years by default, decimal years when stated
-    assert.deepEqual(
-      Array.from(ok(ingest("t,v\n1996,1\n1997,2", { time_format: "decimal_year" })).series.time),
-      [1996, 1997],
-    );
-    assert.deepEqual(Array.from(ok(ingest("decimal_year,v\n1996,1\n1997,2")).series.time), [
-      1996,
-      1997,
-    ]);
+    assert.deepEqual(Array.from(r.series.time), [1996.042, 1996.3]);
+    assert.equal(r.report.time_grid, null);
+    // integers are ISO years by default (mid-year), decimal years when stated: then they are
+    // the start of each year, stored at its middle
+    const stated = ok(ingest("t,v\n1996,1\n1997,2", { time_format: "decimal_year" }));
+    assert.deepEqual(Array.from(stated.series.time), [1996.5, 1997.5]);
+    assert.equal(stated.report.time_grid?.position, "start");
+    const named = ok(ingest("decimal_year,v\n1996,1\n1997,2"));
+    assert.deepEqual(Array.from(named.series.time), [1996.5, 1997.5]);
+    assert.equal(named.report.time_grid?.position, "start");
   });
   await t.step("year/month/day columns", () => {
     const r = ok(
@@ -144,6 +144,15 @@ Deno.test("ingestText() treats sentinels as gaps and reports counts", () => {
     delimiter: "comma",
     header: true,
     time_format: "iso",
+    time_grid: {
+      resolution: "annual",
+      position: "middle",
+      months: null,
+      moved_to_middle: false,
+      note: "Times read as the middle of each year (year + 0.5, as an ISO 8601 year is read); " +
+        "stored as given (the middle of each year, sunlag's time convention).",
+    },
+    units_conversion: null,
   });
   assert.deepEqual(Array.from(r.series.time), [2000.5, 2006.5]);
   // without the extra sentinels, -999.0 and -1 are values

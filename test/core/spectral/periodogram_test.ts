@@ -241,7 +241,12 @@ Deno.test("findSpectralPeaks() widths, ordering and unresolved edges", () => {
   // a rising edge: the peak at the grid end has no upper half-power point
   const edge = findSpectralPeaks([1, 2, 3], [1, 2, 3]);
   assert.equal(edge[0].halfPowerFrequencies[1], null);
-  assert.throws(() => findSpectralPeaks([1], [1]), RangeError);
+  // one frequency: one unresolved peak (a periodogram asked at a single period)
+  const one = findSpectralPeaks([0.1], [2]);
+  assert.deepEqual([one.length, one[0].period, one[0].halfWidth], [1, 10, null]);
+  assert.deepEqual(findSpectralPeaks([0.1], [0]), []);
+  assert.throws(() => findSpectralPeaks([], []), RangeError);
+  assert.throws(() => findSpectralPeaks([1, 2], [1]), RangeError);
 });
 
 Deno.test("periodGrid() rejects empty ranges", () => {
