@@ -74,7 +74,9 @@ async function startInstance(
   const readyP = new Promise<boolean>((r) => ready = r);
   const pump = async (stream: ReadableStream<Uint8Array>) => {
     let buf = "";
-    for await (const chunk of stream.pipeThrough(new TextDecoderStream())) {
+    const decoder = new TextDecoder();
+    for await (const bytes of stream) {
+      const chunk = decoder.decode(bytes, { stream: true });
       buf += chunk;
       let i;
       while ((i = buf.indexOf("\n")) >= 0) {

@@ -118,12 +118,13 @@ Deno.test({
         const id = start.body.id;
         const ctrl = new AbortController();
         const events = await fetch(`${b}/v1/runs/${id}/events`, { signal: ctrl.signal });
-        const reader = events.body!.pipeThrough(new TextDecoderStream()).getReader();
+        const reader = events.body!.getReader();
+        const decoder = new TextDecoder();
         let text = "";
         while (!/event: progress/.test(text)) {
           const { value, done } = await reader.read();
           if (done) break;
-          text += value;
+          text += decoder.decode(value, { stream: true });
         }
         assert.match(text, /event: progress/, "progress from the worker reaches instance B");
         const cancel = await post(`${b}/v1/runs/${id}/cancel`, {});
@@ -132,7 +133,7 @@ Deno.test({
         while (!/"status":"cancelled"/.test(text)) {
           const { value, done } = await reader.read();
           if (done) break;
-          text += value;
+          text += decoder.decode(value, { stream: true });
         }
         ctrl.abort();
         assert.match(text, /"status":"cancelled"/);
