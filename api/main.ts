@@ -45,7 +45,7 @@ if (config.role === "worker") {
   const runs = new RunService(store, RUN_KINDS, seriesCodec, executor, {
     asyncSeconds: config.asyncSeconds,
   }, transport);
-  await runs.startWorking();
+  await runs.startWorking(Math.max(1, config.workers));
   console.log(JSON.stringify({
     event: "worker_ready",
     holder,

@@ -1,7 +1,7 @@
 /**
  * The run transport a process uses, from its configuration: for a PostgreSQL store the pg-boss
- * queue and LISTEN/NOTIFY events on the same database (any number of API and worker
- * instances); for SQLite this process' own queue and events (one process owns the file).
+ * queue, chunk jobs and LISTEN/NOTIFY events on the same database (any number of API and
+ * worker instances); for SQLite this process' own queue and events (one process owns the file).
  *
  * @module
  */
@@ -10,6 +10,7 @@ import type { RunTransport } from "../runs/service.ts";
 import { LocalEventBus, PostgresEventBus } from "./events.ts";
 import { InProcessQueue } from "./in_process.ts";
 import { PgBossQueue } from "./pg_boss.ts";
+import { PgChunkRouter } from "./chunks.ts";
 
 export async function openTransport(config: Config, holder: string): Promise<RunTransport> {
   if (config.store.startsWith("postgres://") || config.store.startsWith("postgresql://")) {
@@ -18,7 +19,8 @@ export async function openTransport(config: Config, holder: string): Promise<Run
       concurrency: config.runConcurrency,
     });
     const events = await PostgresEventBus.open(config.store);
-    return { queue, events, holder };
+    const chunks = await PgChunkRouter.open(queue.boss, config.store);
+    return { queue, events, holder, chunks };
   }
   if (config.role !== "all") {
     throw new RangeError(

@@ -24,6 +24,7 @@ import { RUN_KINDS } from "../analyses/registry.ts";
 import { LocalEventBus, type RunEvent, type RunEventBus } from "../queue/events.ts";
 import { InProcessQueue } from "../queue/in_process.ts";
 import type { RunQueue } from "../queue/types.ts";
+import type { ChunkRouter } from "../queue/chunks.ts";
 import { TERMINAL } from "../store/types.ts";
 
 /** How inline and output series become stored series (implemented over api/ingest). */
@@ -34,13 +35,25 @@ export interface SeriesCodec {
   fromOutput(o: OutputSeries, runId: string): Promise<StoredSeries>;
 }
 
+/** What a computation reports to, and where its chunks go. */
+export interface ComputeHooks {
+  progress(f: number): void;
+  isCancelled(): boolean;
+  onStart(): void;
+  /**
+   * Where `ctx.parallel` sends its chunks (default: this executor's own workers). Set to
+   * spread one run's chunks over the worker processes of several machines.
+   */
+  scatter?: <I, O>(task: string, chunks: I[]) => Promise<O[]>;
+}
+
 /** Executes a run kind's compute somewhere (a worker pool, or this thread). */
 export interface ComputeExecutor {
   compute(
     kind: RunKind,
     params: Record<string, unknown>,
     inputs: { series: Record<string, StoredSeries>; runs: Record<string, RunRecord> },
-    hooks: { progress(f: number): void; isCancelled(): boolean; onStart(): void },
+    hooks: ComputeHooks,
   ): Promise<RunResult>;
   /** Map a named task over inputs (used by in-thread compute too). */
   parallel<I, O>(task: string, inputs: I[]): Promise<O[]>;
@@ -59,10 +72,14 @@ export class InThreadExecutor implements ComputeExecutor {
     kind: RunKind,
     params: Record<string, unknown>,
     inputs: { series: Record<string, StoredSeries>; runs: Record<string, RunRecord> },
-    hooks: { progress(f: number): void; isCancelled(): boolean; onStart(): void },
+    hooks: ComputeHooks,
   ): Promise<RunResult> {
     hooks.onStart();
-    const ctx = makeContext(inputs, hooks, (task, chunks) => this.parallel(task, chunks));
+    const ctx = makeContext(
+      inputs,
+      hooks,
+      hooks.scatter ?? ((task, chunks) => this.parallel(task, chunks)),
+    );
     return await kind.compute(params, ctx);
   }
   parallel<I, O>(task: string, inputs: I[]): Promise<O[]> {
@@ -202,6 +219,8 @@ export interface RunTransport {
   events: RunEventBus;
   /** This process' name as a lease holder. */
   holder: string;
+  /** Where a run's chunks go (default: the executor's own workers). */
+  chunks?: ChunkRouter;
 }
 
 /** A holder name unique to this process. */
@@ -229,14 +248,19 @@ export class RunService {
     transport?: Partial<RunTransport>,
   ) {
     this.transport = {
+      ...transport,
       queue: transport?.queue ?? new InProcessQueue(),
       events: transport?.events ?? new LocalEventBus(),
       holder: transport?.holder ?? processHolder(),
     };
   }
 
-  /** Take runs from the queue and compute them here (worker role). */
-  async startWorking(): Promise<void> {
+  /** Take runs (and chunks of runs) from the queue and compute them here (worker role). */
+  async startWorking(chunkConcurrency = 1): Promise<void> {
+    await this.transport.chunks?.work(
+      async (task, input) => (await this.executor.parallel(task, [input]))[0],
+      chunkConcurrency,
+    );
     await this.transport.queue.work((id) => this.process(id));
   }
 
@@ -446,6 +470,9 @@ export class RunService {
         }
       },
       isCancelled: () => active.cancelled,
+      scatter: this.transport.chunks
+        ? (task, chunks) => this.transport.chunks!.map(run.id, task, chunks, () => active.cancelled)
+        : undefined,
     });
     if (active.cancelled) throw new CancelledError();
     const plain = toPlainJson(result) as Record<string, unknown>;

@@ -172,6 +172,31 @@ Deno.test({
         assert.equal(after.lease_holder, null);
       });
 
+      await t.step(
+        "a run of 40 chunks spread over two worker processes: in-process digest",
+        async () => {
+          const SSN = "sha256:adebf4dd9a329b7382165cf603d02c96fa9a2c91a7ba58eb7b8e967337f2ff2b";
+          const body = {
+            series: SSN,
+            false_alarm: "monte_carlo",
+            replicates: 1000,
+            seed: 9,
+            periods: { min: 5, max: 20, count: 200 },
+          };
+          const local = await makeTestApp();
+          await loadDemo(local.store);
+          const here = await (await local.post("/v1/spectra", body)).json();
+          await local.close();
+          const start = await post(`${a}/v1/spectra`, body, { prefer: "respond-async" });
+          assert.equal(start.status, 202);
+          const done = await waitRun(a, start.body.id, (r) => TERMINAL.has(r.status), seen);
+          assert.equal(done.status, "succeeded", JSON.stringify(done.error));
+          assert.equal(done.result_digest, here.result_digest);
+          const [n] = await db`SELECT count(*) AS n FROM sunlag_chunks`;
+          assert.equal(Number(n.n), 0, "chunk rows are removed once the run has its outputs");
+        },
+      );
+
       await t.step("no terminal state ever changed", async () => {
         await new Promise((r) => setTimeout(r, 1000));
         for (const id of [...seen.keys()]) await waitRun(a, id, () => true, seen);

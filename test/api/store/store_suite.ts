@@ -544,8 +544,8 @@ export function storeSuite(
     const live = makeRun("lease-live").id;
     const dead = makeRun("lease-dead").id;
     assert.ok(await s.claimRun(live, "worker-a", 60));
-    assert.ok(await s.claimRun(dead, "worker-b", 0.05));
-    await new Promise((r) => setTimeout(r, 120));
+    assert.ok(await s.claimRun(dead, "worker-b", 0.3));
+    await new Promise((r) => setTimeout(r, 450));
     assert.equal(await s.failOrphaned("lost", { all: false }), 1);
     assert.equal((await s.getRun(dead))!.status, "failed");
     assert.equal((await s.getRun(live))!.status, "running");
@@ -557,10 +557,10 @@ export function storeSuite(
     async (s) => {
       await s.putRun(makeRun("claim", { status: "queued", createdAt: at(1) }));
       const id = makeRun("claim").id;
-      const got = await s.claimRun(id, "worker-a", 0.05);
+      const got = await s.claimRun(id, "worker-a", 1.5);
       assert.equal(got?.status, "running");
       assert.equal(await s.claimRun(id, "worker-b", 60), null, "held: not claimable");
-      await new Promise((r) => setTimeout(r, 120));
+      await new Promise((r) => setTimeout(r, 1700));
       assert.equal(
         (await s.claimRun(id, "worker-b", 60))?.status,
         "running",
