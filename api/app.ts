@@ -15,10 +15,11 @@ import type { Config } from "./config.ts";
 import type { Store } from "./store/types.ts";
 import { type Problem, ProblemError, problemResponse } from "./problems.ts";
 import type { ComputeExecutor } from "./runs/service.ts";
-import { RunService } from "./runs/service.ts";
+import { RunService, type RunTransport } from "./runs/service.ts";
 import { RUN_KINDS } from "./analyses/registry.ts";
 import type { RunKind } from "./runs/kind.ts";
 import { registerMetaRoutes } from "./routes/meta.ts";
+import { registerMetricsRoutes, ServiceMetrics } from "./routes/metrics.ts";
 import { registerRunRoutes } from "./routes/runs.ts";
 import { registerChartRoutes } from "./routes/charts.ts";
 import { registerKindRoutes } from "./routes/kinds.ts";
@@ -36,6 +37,13 @@ export interface AppDeps {
   config: Config;
   executor: ComputeExecutor;
   kinds?: readonly RunKind[];
+  /** Queue, event bus and holder name (default: this process only). */
+  transport?: Partial<RunTransport>;
+  /**
+   * `api` serves HTTP only (runs wait in the queue for workers elsewhere); `all` (default)
+   * also computes the queued runs in this process.
+   */
+  role?: "api" | "all";
 }
 
 export interface Service {
@@ -58,7 +66,13 @@ export function createService(deps: AppDeps): Service {
   const kinds = deps.kinds ?? RUN_KINDS;
   const runs = new RunService(store, kinds, seriesCodec, deps.executor, {
     asyncSeconds: config.asyncSeconds,
-  });
+  }, deps.transport);
+  const metrics = new ServiceMetrics(store, runs.transport.queue);
+  if (deps.role !== "api") {
+    runs.startWorking().catch((e) =>
+      console.error(JSON.stringify({ level: "error", event: "worker_start", error: String(e) }))
+    );
+  }
 
   const app: App = new OpenAPIHono<AppEnv>({
     defaultHook: (result, c) => {
@@ -85,6 +99,7 @@ export function createService(deps: AppDeps): Service {
     const t0 = performance.now();
     await next();
     c.res.headers.set("X-Request-Id", id);
+    metrics.observe(c.req.method, c.res.status, (performance.now() - t0) / 1000);
     if (config.log) {
       console.log(JSON.stringify({
         time: new Date().toISOString(),
@@ -125,7 +140,8 @@ export function createService(deps: AppDeps): Service {
     }),
   );
 
-  registerMetaRoutes(app, { store, config, kinds });
+  registerMetaRoutes(app, { store, config, kinds, queue: runs.transport.queue });
+  registerMetricsRoutes(app, metrics);
   registerUiRoutes(app);
   registerSeriesRoutes(app, { store, config });
   registerRunRoutes(app, { store, runs });

@@ -13,6 +13,8 @@
  * | `SUNLAG_ASYNC_SECONDS` | `2` | runs estimated to take longer are asynchronous by default |
  * | `SUNLAG_CORS_ORIGINS` | (empty: CORS off) | comma-separated list of allowed origins, or `*` |
  * | `SUNLAG_LOG` | `1` | one JSON line per request on stdout (`0` to silence) |
+ * | `SUNLAG_ROLE` | `all` | `api` (HTTP only), `worker` (computes queued runs, no HTTP) or `all` |
+ * | `SUNLAG_RUN_CONCURRENCY` | `1` | runs one worker process computes at once (queue engine pg-boss) |
  *
  * @module
  */
@@ -27,6 +29,10 @@ export interface Config {
   asyncSeconds: number;
   corsOrigins: string[];
   log: boolean;
+  /** What this process does: serve HTTP, compute queued runs, or both. */
+  role: "api" | "worker" | "all";
+  /** Runs a worker process computes at once. */
+  runConcurrency: number;
 }
 
 function num(env: Record<string, string | undefined>, name: string, dflt: number, min = 0): number {
@@ -56,7 +62,17 @@ export function readConfig(env: Record<string, string | undefined>): Config {
     asyncSeconds: num(env, "SUNLAG_ASYNC_SECONDS", 2, 0),
     corsOrigins: (env.SUNLAG_CORS_ORIGINS ?? "").split(",").map((s) => s.trim()).filter(Boolean),
     log: env.SUNLAG_LOG !== "0",
+    role: readRole(env.SUNLAG_ROLE),
+    runConcurrency: Math.floor(num(env, "SUNLAG_RUN_CONCURRENCY", 1, 1)),
   };
+}
+
+function readRole(raw: string | undefined): Config["role"] {
+  if (raw === undefined || raw === "") return "all";
+  if (raw === "api" || raw === "worker" || raw === "all") return raw;
+  throw new RangeError(
+    `Cannot read configuration: SUNLAG_ROLE must be api, worker or all, got "${raw}"`,
+  );
 }
 
 /** Defaults for tests: in-memory store, no demo, no workers, no log. */

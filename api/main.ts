@@ -1,8 +1,10 @@
 /**
  * Entry point: `deno task start`. Opens the store named by `SUNLAG_STORE` (default an
- * embedded SQLite file under ./data/), marks runs interrupted by a previous stop as failed,
- * loads the demo data into an empty store (unless `SUNLAG_DEMO=0`), starts the worker pool
- * and serves on `HOST:PORT` (default 127.0.0.1:8080).
+ * embedded SQLite file under ./data/), sets up the run queue (in this process for SQLite;
+ * pg-boss on the store's database for PostgreSQL), fails the runs nobody will finish, loads
+ * the demo data into an empty store (unless `SUNLAG_DEMO=0`), and then, by `SUNLAG_ROLE`:
+ * `all` (default) serves HTTP on `HOST:PORT` (default 127.0.0.1:8080) and computes runs;
+ * `api` only serves; `worker` only computes queued runs.
  *
  * @module
  */
@@ -10,20 +12,26 @@ import { readConfig } from "./config.ts";
 import { openStoreFromSpec } from "./store/mod.ts";
 import { createService } from "./app.ts";
 import { WorkerPool } from "./workers/pool.ts";
-import { InThreadExecutor } from "./runs/service.ts";
+import { InThreadExecutor, processHolder, RunService } from "./runs/service.ts";
 import { loadDemo } from "./demo.ts";
+import { openTransport } from "./queue/mod.ts";
+import { RUN_KINDS } from "./analyses/registry.ts";
+import { seriesCodec } from "./series_codec.ts";
 
 const t0 = performance.now();
 const config = readConfig(Deno.env.toObject());
 const store = await openStoreFromSpec(config.store);
-const interrupted = await store.failInterrupted(
+const holder = processHolder();
+const transport = await openTransport(config, holder);
+// The embedded service's queue died with the previous process: everything left open is
+// orphaned. With a shared queue only runs whose worker's lease expired long ago are.
+const orphaned = await store.failOrphaned(
   "The service stopped while this run was queued or running; submit it again.",
+  { all: transport.queue.volatile, graceSeconds: 600 },
 );
-if (interrupted) {
-  console.log(JSON.stringify({ event: "interrupted_runs_failed", count: interrupted }));
-}
+if (orphaned) console.log(JSON.stringify({ event: "orphaned_runs_failed", count: orphaned }));
 
-if (config.demo) {
+if (config.demo && config.role !== "worker") {
   const page = await store.listSeries({ limit: 1, offset: 0 });
   if (page.total === 0) {
     const ids = await loadDemo(store);
@@ -32,19 +40,42 @@ if (config.demo) {
 }
 
 const executor = config.workers > 0 ? new WorkerPool(config.workers) : new InThreadExecutor();
-const { app } = createService({ store, config, executor });
 
-Deno.serve({
-  hostname: config.host,
-  port: config.port,
-  onListen: ({ hostname, port }) => {
-    console.log(JSON.stringify({
-      event: "listening",
-      url: `http://${hostname}:${port}/`,
-      docs: `http://${hostname}:${port}/v1/docs`,
-      store: store.kind,
-      workers: config.workers,
-      startup_ms: Math.round(performance.now() - t0),
-    }));
-  },
-}, app.fetch);
+if (config.role === "worker") {
+  const runs = new RunService(store, RUN_KINDS, seriesCodec, executor, {
+    asyncSeconds: config.asyncSeconds,
+  }, transport);
+  await runs.startWorking(Math.max(1, config.workers));
+  console.log(JSON.stringify({
+    event: "worker_ready",
+    holder,
+    queue: transport.queue.engine,
+    store: store.kind,
+    workers: config.workers,
+    startup_ms: Math.round(performance.now() - t0),
+  }));
+} else {
+  const { app } = createService({
+    store,
+    config,
+    executor,
+    transport,
+    role: config.role === "api" ? "api" : "all",
+  });
+  Deno.serve({
+    hostname: config.host,
+    port: config.port,
+    onListen: ({ hostname, port }) => {
+      console.log(JSON.stringify({
+        event: "listening",
+        url: `http://${hostname}:${port}/`,
+        docs: `http://${hostname}:${port}/v1/docs`,
+        role: config.role,
+        queue: transport.queue.engine,
+        store: store.kind,
+        workers: config.workers,
+        startup_ms: Math.round(performance.now() - t0),
+      }));
+    },
+  }, app.fetch);
+}

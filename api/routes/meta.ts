@@ -11,12 +11,24 @@ import { openApiDocument } from "../app_env.ts";
 import type { Config } from "../config.ts";
 import type { Store } from "../store/types.ts";
 import type { RunKind } from "../runs/kind.ts";
+import type { RunQueue } from "../queue/types.ts";
 import { analysisIndex } from "../analyses/derive.ts";
 import { SERVICE_VERSION } from "../version.ts";
 
 const Health = z.object({
   status: z.enum(["ok", "degraded"]),
   store: z.object({ kind: z.string(), reachable: z.boolean() }),
+  queue: z.object({
+    engine: z.string().openapi({ description: "`in-process` or `pg-boss`" }),
+    depth: z.number().int().openapi({ description: "Runs waiting for a worker" }),
+    active: z.number().int().openapi({ description: "Runs being computed" }),
+    oldest_seconds: z.number().nullable().openapi({
+      description: "Age of the oldest waiting run, seconds",
+    }),
+    workers_seen: z.number().int().openapi({
+      description: "Worker processes seen in the last 30 s",
+    }),
+  }).nullable().openapi({ description: "null when the queue cannot be read" }),
 }).openapi("Health");
 
 const Version = z.object({
@@ -75,7 +87,7 @@ const AnalysisIndex = z.object({
 
 export function registerMetaRoutes(
   app: App,
-  deps: { store: Store; config: Config; kinds: readonly RunKind[] },
+  deps: { store: Store; config: Config; kinds: readonly RunKind[]; queue: RunQueue },
 ): void {
   let index: ReturnType<typeof analysisIndex> | undefined;
   app.openapi(
@@ -102,10 +114,15 @@ export function registerMetaRoutes(
       } catch {
         reachable = false;
       }
+      const queue = await deps.queue.stats().then(
+        (s) => ({ engine: deps.queue.engine, ...s }),
+        () => null,
+      );
       return c.json(
         {
           status: reachable ? "ok" as const : "degraded" as const,
           store: { kind: deps.store.kind, reachable },
+          queue,
         },
         reachable ? 200 : 503,
       );

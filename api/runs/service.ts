@@ -21,6 +21,11 @@ import { toPlainJson } from "./json.ts";
 import { SERVICE_VERSION } from "../version.ts";
 import { taskTable } from "../analyses/derive.ts";
 import { RUN_KINDS } from "../analyses/registry.ts";
+import { LocalEventBus, type RunEvent, type RunEventBus } from "../queue/events.ts";
+import { InProcessQueue } from "../queue/in_process.ts";
+import type { RunQueue } from "../queue/types.ts";
+import type { ChunkRouter } from "../queue/chunks.ts";
+import { TERMINAL } from "../store/types.ts";
 
 /** How inline and output series become stored series (implemented over api/ingest). */
 export interface SeriesCodec {
@@ -30,21 +35,31 @@ export interface SeriesCodec {
   fromOutput(o: OutputSeries, runId: string): Promise<StoredSeries>;
 }
 
+/** What a computation reports to, and where its chunks go. */
+export interface ComputeHooks {
+  progress(f: number): void;
+  isCancelled(): boolean;
+  onStart(): void;
+  /**
+   * Where `ctx.parallel` sends its chunks (default: this executor's own workers). Set to
+   * spread one run's chunks over the worker processes of several machines.
+   */
+  scatter?: <I, O>(task: string, chunks: I[]) => Promise<O[]>;
+}
+
 /** Executes a run kind's compute somewhere (a worker pool, or this thread). */
 export interface ComputeExecutor {
   compute(
     kind: RunKind,
     params: Record<string, unknown>,
     inputs: { series: Record<string, StoredSeries>; runs: Record<string, RunRecord> },
-    hooks: { progress(f: number): void; isCancelled(): boolean; onStart(): void },
+    hooks: ComputeHooks,
   ): Promise<RunResult>;
   /** Map a named task over inputs (used by in-thread compute too). */
   parallel<I, O>(task: string, inputs: I[]): Promise<O[]>;
 }
 
-export type RunEvent =
-  | { type: "progress"; id: string; status: string; progress: number; eta_seconds: number | null }
-  | { type: "status"; id: string; status: string; progress: number };
+export type { RunEvent } from "../queue/events.ts";
 
 /** Runs compute in this thread (tests, `SUNLAG_WORKERS=0`). */
 export class InThreadExecutor implements ComputeExecutor {
@@ -57,10 +72,14 @@ export class InThreadExecutor implements ComputeExecutor {
     kind: RunKind,
     params: Record<string, unknown>,
     inputs: { series: Record<string, StoredSeries>; runs: Record<string, RunRecord> },
-    hooks: { progress(f: number): void; isCancelled(): boolean; onStart(): void },
+    hooks: ComputeHooks,
   ): Promise<RunResult> {
     hooks.onStart();
-    const ctx = makeContext(inputs, hooks, (task, chunks) => this.parallel(task, chunks));
+    const ctx = makeContext(
+      inputs,
+      hooks,
+      hooks.scatter ?? ((task, chunks) => this.parallel(task, chunks)),
+    );
     return await kind.compute(params, ctx);
   }
   parallel<I, O>(task: string, inputs: I[]): Promise<O[]> {
@@ -178,10 +197,36 @@ export async function resultDigest(result: unknown): Promise<string> {
   return await sha256Hex(canonicalJson(result));
 }
 
+/** A run this process computes: its stop flag (set by a cancel or a lost lease). */
 interface Active {
   cancelled: boolean;
-  listeners: Set<(e: RunEvent) => void>;
   started: number;
+}
+
+/** Seconds a worker's lease on a run lasts without renewal (renewed every third of it). */
+export const LEASE_SECONDS = 15;
+
+/** A delivered run is leased by a live worker elsewhere: the queue retries the delivery later. */
+export class LeaseHeldError extends Error {
+  constructor(readonly runId: string) {
+    super(`run ${runId} is being computed by another worker`);
+    this.name = "LeaseHeldError";
+  }
+}
+
+/** Where runs go and how their events travel (defaults: this process only). */
+export interface RunTransport {
+  queue: RunQueue;
+  events: RunEventBus;
+  /** This process' name as a lease holder. */
+  holder: string;
+  /** Where a run's chunks go (default: the executor's own workers). */
+  chunks?: ChunkRouter;
+}
+
+/** A holder name unique to this process. */
+export function processHolder(): string {
+  return `${Deno.hostname()}:${Deno.pid}:${uuidv7().slice(-12)}`;
 }
 
 export interface SubmitOutcome {
@@ -191,9 +236,9 @@ export interface SubmitOutcome {
 }
 
 export class RunService {
+  /** Runs this process is computing. */
   readonly active = new Map<string, Active>();
-  /** Background executions in flight (awaited by tests and on shutdown). */
-  readonly pending = new Set<Promise<void>>();
+  readonly transport: RunTransport;
 
   constructor(
     readonly store: Store,
@@ -201,7 +246,24 @@ export class RunService {
     readonly codec: SeriesCodec,
     readonly executor: ComputeExecutor,
     readonly options: { asyncSeconds: number },
-  ) {}
+    transport?: Partial<RunTransport>,
+  ) {
+    this.transport = {
+      ...transport,
+      queue: transport?.queue ?? new InProcessQueue(),
+      events: transport?.events ?? new LocalEventBus(),
+      holder: transport?.holder ?? processHolder(),
+    };
+  }
+
+  /** Take runs (and chunks of runs) from the queue and compute them here (worker role). */
+  async startWorking(chunkConcurrency = 1): Promise<void> {
+    await this.transport.chunks?.work(
+      async (task, input) => (await this.executor.parallel(task, [input]))[0],
+      chunkConcurrency,
+    );
+    await this.transport.queue.work((id) => this.process(id));
+  }
 
   kindOf(name: string): RunKind | undefined {
     return this.kinds.find((k) => k.kind === name);
@@ -278,9 +340,7 @@ export class RunService {
     if (isAsync) {
       for (const s of prep.inline.values()) await this.store.putSeries(s);
       await this.store.putRun(run);
-      const p = this.execute(kind, run, prep).then(() => {}, () => {});
-      this.pending.add(p);
-      p.finally(() => this.pending.delete(p));
+      await this.transport.queue.enqueue(run.id);
       return { status: 202, run, saved_series: [] };
     }
     const done = await this.computeRun(kind, run, prep);
@@ -329,77 +389,107 @@ export class RunService {
     };
   }
 
-  private async execute(
-    kind: RunKind,
-    run: RunRecord,
-    prep: { series: Record<string, StoredSeries>; runs: Record<string, RunRecord> },
-  ): Promise<void> {
-    const active: Active = { cancelled: false, listeners: new Set(), started: Date.now() };
-    this.active.set(run.id, active);
-    let lastWrite = 0;
-    let startedAt = 0;
-    const publish = (e: RunEvent) => active.listeners.forEach((l) => l(e));
+  /**
+   * Compute a delivered run here, under a lease (worker role). A run that ended meanwhile is
+   * left alone; one leased by a live worker elsewhere throws `LeaseHeldError` so the queue
+   * delivers it again later. Every write is conditional on still holding the lease, so a
+   * duplicated or recovered job never overwrites a newer state and writes its result once.
+   */
+  async process(runId: string): Promise<void> {
+    const { store } = this;
+    const { events, holder } = this.transport;
+    const run = await store.claimRun(runId, holder, LEASE_SECONDS);
+    if (!run) {
+      const now = await store.getRun(runId);
+      if (!now || TERMINAL.has(now.status)) return;
+      throw new LeaseHeldError(runId);
+    }
+    const active: Active = { cancelled: false, started: Date.now() };
+    this.active.set(runId, active);
+    const stop = events.subscribe(runId, (e) => {
+      if (e.type === "status" && e.status === "cancelled") active.cancelled = true;
+    });
+    const renew = setInterval(() => {
+      store.renewLease(runId, holder, LEASE_SECONDS).then((held) => {
+        // Cancelled (the state left `running`) or taken over after a stall: stop computing.
+        if (!held) active.cancelled = true;
+      }, () => {});
+    }, (LEASE_SECONDS * 1000) / 3);
+    const publish = (e: RunEvent) => events.publish(e);
     try {
-      const result = await this.executor.compute(kind, run.params, prep, {
-        onStart: () => {
-          startedAt = Date.now();
-          if (active.cancelled) return;
-          this.store.updateRun(run.id, {
-            status: "running",
-            updated_at: new Date().toISOString(),
-          }).catch(() => {});
-          publish({ type: "status", id: run.id, status: "running", progress: 0 });
-        },
-        progress: (f) => {
-          const elapsed = (Date.now() - startedAt) / 1000;
-          const eta = f > 0.01 ? Math.max(0, elapsed * (1 - f) / f) : null;
-          publish({
-            type: "progress",
-            id: run.id,
-            status: "running",
-            progress: f,
-            eta_seconds: eta,
-          });
-          const t = Date.now();
-          if (t - lastWrite > 250) {
-            lastWrite = t;
-            this.store.updateRun(run.id, {
-              progress: f,
-              eta_seconds: eta === null ? null : Math.round(eta * 10) / 10,
-              updated_at: new Date().toISOString(),
-            }).catch(() => {});
-          }
-        },
-        isCancelled: () => active.cancelled,
-      });
-      if (active.cancelled) throw new CancelledError();
-      const plain = toPlainJson(result) as Record<string, unknown>;
-      const digest = await resultDigest(plain);
-      await this.store.updateRun(run.id, {
-        status: "succeeded",
-        progress: 1,
-        result: plain,
-        result_digest: digest,
-        eta_seconds: null,
-        updated_at: new Date().toISOString(),
-      });
-      const finished = await this.store.getRun(run.id);
-      if (finished) await this.saveOutputs(kind, finished);
-      publish({ type: "status", id: run.id, status: "succeeded", progress: 1 });
+      const kind = this.kindOf(run.kind);
+      if (!kind) throw new ProblemError("conflict", `run kind "${run.kind}" no longer exists`);
+      const prep = await this.prepare(kind, run.params);
+      await this.#computeLeased(kind, run, prep, active, publish);
     } catch (e) {
       const cancelled = active.cancelled || e instanceof CancelledError;
       const status = cancelled ? "cancelled" : "failed";
-      const problem = cancelled ? null : asProblem(e).problem;
-      await this.store.updateRun(run.id, {
+      const written = await store.updateLeased(runId, holder, {
         status,
-        error: problem,
+        error: cancelled ? null : asProblem(e).problem,
         eta_seconds: null,
         updated_at: new Date().toISOString(),
-      });
-      publish({ type: "status", id: run.id, status, progress: 0 });
+      }).catch(() => false);
+      if (written) publish({ type: "status", id: runId, status, progress: 0 });
     } finally {
-      this.active.delete(run.id);
+      clearInterval(renew);
+      stop();
+      this.active.delete(runId);
     }
+  }
+
+  async #computeLeased(
+    kind: RunKind,
+    run: RunRecord,
+    prep: { series: Record<string, StoredSeries>; runs: Record<string, RunRecord> },
+    active: Active,
+    publish: (e: RunEvent) => void,
+  ): Promise<void> {
+    const { store } = this;
+    const { holder } = this.transport;
+    let lastWrite = 0;
+    let startedAt = Date.now();
+    const result = await this.executor.compute(kind, run.params, prep, {
+      onStart: () => {
+        startedAt = Date.now();
+        publish({ type: "status", id: run.id, status: "running", progress: 0 });
+      },
+      progress: (f) => {
+        const elapsed = (Date.now() - startedAt) / 1000;
+        const eta = f > 0.01 ? Math.max(0, elapsed * (1 - f) / f) : null;
+        publish({ type: "progress", id: run.id, status: "running", progress: f, eta_seconds: eta });
+        const t = Date.now();
+        if (t - lastWrite > 250) {
+          lastWrite = t;
+          store.updateLeased(run.id, holder, {
+            progress: f,
+            eta_seconds: eta === null ? null : Math.round(eta * 10) / 10,
+            updated_at: new Date().toISOString(),
+          }).then((held) => {
+            if (!held) active.cancelled = true;
+          }, () => {});
+        }
+      },
+      isCancelled: () => active.cancelled,
+      scatter: this.transport.chunks
+        ? (task, chunks) => this.transport.chunks!.map(run.id, task, chunks, () => active.cancelled)
+        : undefined,
+    });
+    if (active.cancelled) throw new CancelledError();
+    const plain = toPlainJson(result) as Record<string, unknown>;
+    const digest = await resultDigest(plain);
+    const written = await store.updateLeased(run.id, holder, {
+      status: "succeeded",
+      progress: 1,
+      result: plain,
+      result_digest: digest,
+      eta_seconds: null,
+      updated_at: new Date().toISOString(),
+    });
+    if (!written) return;
+    const finished = await store.getRun(run.id);
+    if (finished) await this.saveOutputs(kind, finished);
+    publish({ type: "status", id: run.id, status: "succeeded", progress: 1 });
   }
 
   /** Store the kind's auto-saved outputs as series derived from the run. */
@@ -464,39 +554,39 @@ export class RunService {
     };
   }
 
-  /** Ask a queued or running run to stop. */
+  /**
+   * Cancel a queued or running run: the stored state changes at once (on any instance) and
+   * the worker holding it hears of it through the event bus (or at its next lease renewal).
+   */
   async cancel(id: string): Promise<RunRecord | null> {
+    const after = await this.store.cancelRun(id);
+    if (after === null) return null;
     const run = await this.store.getRun(id);
-    if (!run) return null;
-    if (run.status !== "queued" && run.status !== "running") {
+    if (!after.changed || !run) {
       throw new ProblemError(
         "conflict",
-        `run ${id} has status ${run.status} and cannot be cancelled`,
+        `run ${id} has status ${after.status} and cannot be cancelled`,
       );
     }
-    const a = this.active.get(id);
-    if (a) a.cancelled = true;
-    await this.store.updateRun(id, {
+    const local = this.active.get(id);
+    if (local) local.cancelled = true;
+    this.transport.events.publish({
+      type: "status",
+      id,
       status: "cancelled",
-      eta_seconds: null,
-      updated_at: new Date().toISOString(),
+      progress: run.progress,
     });
-    a?.listeners.forEach((l) =>
-      l({ type: "status", id, status: "cancelled", progress: run.progress })
-    );
-    return await this.store.getRun(id);
+    return run;
   }
 
-  subscribe(id: string, fn: (e: RunEvent) => void): (() => void) | null {
-    const a = this.active.get(id);
-    if (!a) return null;
-    a.listeners.add(fn);
-    return () => a.listeners.delete(fn);
+  /** Follow one run's events (from whichever instance computes it). */
+  subscribe(id: string, fn: (e: RunEvent) => void): () => void {
+    return this.transport.events.subscribe(id, fn);
   }
 
   /** Wait for all background runs (tests, shutdown). */
   async settle(): Promise<void> {
-    while (this.pending.size) await Promise.all([...this.pending]);
+    await this.transport.queue.settle();
   }
 }
 

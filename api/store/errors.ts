@@ -13,6 +13,14 @@ export class RunNotFoundError extends Error {
   }
 }
 
+/** `updateRun` would change a run whose state is terminal: terminal states never change. */
+export class TerminalRunError extends Error {
+  constructor(readonly runId: string) {
+    super(`Cannot update run: run "${runId}" has finished and its record never changes`);
+    this.name = "TerminalRunError";
+  }
+}
+
 /** `putRun` was given an id that is already stored (run ids are never reused). */
 export class DuplicateRunError extends Error {
   constructor(readonly runId: string) {

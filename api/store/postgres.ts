@@ -52,7 +52,9 @@ import {
   MissingInputError,
   RunNotFoundError,
   SchemaMismatchError,
+  TerminalRunError,
 } from "./errors.ts";
+import { TERMINAL } from "./types.ts";
 
 /** The schema history of the PostgreSQL store, oldest first. */
 export const POSTGRES_MIGRATIONS: readonly Migration[] = [
@@ -128,6 +130,15 @@ export const POSTGRES_MIGRATIONS: readonly Migration[] = [
         PRIMARY KEY (run_id, position)
       );
       CREATE INDEX run_input_runs_by_input ON run_input_runs (input_run_id);
+    `,
+  },
+  {
+    version: 2,
+    name: "run leases",
+    sql: `
+      ALTER TABLE runs ADD COLUMN lease_holder TEXT;
+      ALTER TABLE runs ADD COLUMN lease_expires TIMESTAMPTZ;
+      CREATE INDEX runs_open ON runs (status) WHERE status IN ('queued', 'running');
     `,
   },
 ];
@@ -337,8 +348,13 @@ export class PostgresStore implements Store {
   ): Promise<void> {
     const cols = Object.fromEntries(encodeRunPatch(id, patch, new Date().toISOString()));
     await this.#sql.begin(async (tx: Tx) => {
-      const updated = await tx`UPDATE runs SET ${tx(cols)} WHERE id = ${id} RETURNING id`;
-      if (updated.length === 0) throw new RunNotFoundError(id);
+      const updated = await tx`UPDATE runs SET ${tx(cols)}
+        WHERE id = ${id} AND status IN ('queued', 'running') RETURNING id`;
+      if (updated.length === 0) {
+        const exists = await tx`SELECT 1 FROM runs WHERE id = ${id}`;
+        if (exists.length === 0) throw new RunNotFoundError(id);
+        throw new TerminalRunError(id);
+      }
       if (patch.input_series !== undefined || patch.input_runs !== undefined) {
         await this.#checkInputs(tx, id, patch.input_series ?? [], patch.input_runs ?? []);
         if (patch.input_series !== undefined) {
@@ -414,16 +430,67 @@ export class PostgresStore implements Store {
     return rows.map((r) => text(r.id));
   }
 
+  async claimRun(id: string, holder: string, leaseSeconds: number): Promise<RunRecord | null> {
+    // The database's clock decides expiry, so machines with skewed clocks agree.
+    const res = await this.#sql`
+      UPDATE runs SET status = 'running', lease_holder = ${holder},
+        lease_expires = now() + make_interval(secs => ${leaseSeconds}),
+        updated_at = ${new Date().toISOString()}
+      WHERE id = ${id} AND (status = 'queued' OR (status = 'running' AND
+        (lease_expires IS NULL OR lease_expires < now())))
+      RETURNING id`;
+    return res.length ? await this.getRun(id) : null;
+  }
+
+  async renewLease(id: string, holder: string, leaseSeconds: number): Promise<boolean> {
+    const res = await this.#sql`
+      UPDATE runs SET lease_expires = now() + make_interval(secs => ${leaseSeconds})
+      WHERE id = ${id} AND lease_holder = ${holder} AND status = 'running'`;
+    return res.count === 1;
+  }
+
+  async updateLeased(
+    id: string,
+    holder: string,
+    patch: Partial<Omit<RunRecord, "id" | "kind" | "created_at">>,
+  ): Promise<boolean> {
+    const cols: Record<string, unknown> = Object.fromEntries(
+      encodeRunPatch(id, patch, new Date().toISOString()),
+    );
+    if (patch.status !== undefined && TERMINAL.has(patch.status)) cols.lease_holder = null;
+    const res = await this.#sql`
+      UPDATE runs SET ${this.#sql(cols as Record<string, string>)}
+      WHERE id = ${id} AND lease_holder = ${holder} AND status = 'running'`;
+    return res.count === 1;
+  }
+
+  async cancelRun(id: string): Promise<{ status: RunStatus; changed: boolean } | null> {
+    return await this.#sql.begin(async (tx: Tx) => {
+      const rows = await tx`SELECT status FROM runs WHERE id = ${id} FOR UPDATE`;
+      if (rows.length === 0) return null;
+      const status = text(rows[0].status) as RunStatus;
+      if (TERMINAL.has(status)) return { status, changed: false };
+      await tx`UPDATE runs SET status = 'cancelled', eta_seconds = NULL, lease_holder = NULL,
+        updated_at = ${new Date().toISOString()} WHERE id = ${id}`;
+      return { status: "cancelled" as const, changed: true };
+    });
+  }
+
   /**
-   * Mark every queued or running run failed, as after a restart that lost them. The error is
-   * an RFC 9457 problem body `{ type, title, status: 500, detail: reason }`.
+   * Fail orphaned runs (see `Store.failOrphaned`). The error is an RFC 9457 problem body
+   * `{ type, title, status: 500, detail: reason }`.
    */
-  async failInterrupted(reason: string): Promise<number> {
+  async failOrphaned(
+    reason: string,
+    opts: { all: boolean; graceSeconds?: number },
+  ): Promise<number> {
     const error = JSON.stringify(interruptedProblem(reason));
     const res = await this.#sql`
       UPDATE runs SET status = 'failed', error = ${error}, eta_seconds = NULL,
-        updated_at = ${new Date().toISOString()}
-      WHERE status IN ('queued', 'running')`;
+        lease_holder = NULL, updated_at = ${new Date().toISOString()}
+      WHERE (status IN ('queued', 'running') AND ${opts.all})
+         OR (status = 'running' AND (lease_expires IS NULL OR
+           lease_expires < now() - make_interval(secs => ${opts.graceSeconds ?? 0})))`;
     return res.count;
   }
 

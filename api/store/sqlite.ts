@@ -32,6 +32,7 @@ import type {
   StoredSeries,
 } from "./types.ts";
 import { bytesLEToFloat64, float64ToBytesLE } from "./float64_blob.ts";
+import { TERMINAL } from "./types.ts";
 import {
   checkPaging,
   checkSeries,
@@ -54,6 +55,7 @@ import {
   MissingInputError,
   RunNotFoundError,
   SchemaMismatchError,
+  TerminalRunError,
 } from "./errors.ts";
 
 /** The schema history of the SQLite store, oldest first. */
@@ -127,6 +129,15 @@ export const SQLITE_MIGRATIONS: readonly Migration[] = [
         PRIMARY KEY (run_id, position)
       ) WITHOUT ROWID;
       CREATE INDEX run_input_runs_by_input ON run_input_runs (input_run_id);
+    `,
+  },
+  {
+    version: 2,
+    name: "run leases",
+    sql: `
+      ALTER TABLE runs ADD COLUMN lease_holder TEXT;
+      ALTER TABLE runs ADD COLUMN lease_expires_ms INTEGER;
+      CREATE INDEX runs_open ON runs (status) WHERE status IN ('queued', 'running');
     `,
   },
 ];
@@ -399,11 +410,15 @@ export class SqliteStore implements Store {
       const sets = cols.map(([c]) => `${c} = ?`);
       const args = cols.map(([, v]) => v);
       this.#write(() => {
-        const res = this.#db.prepare(`UPDATE runs SET ${sets.join(", ")} WHERE id = ?`).run(
-          ...args,
-          id,
-        );
-        if (Number(res.changes) === 0) throw new RunNotFoundError(id);
+        const res = this.#db.prepare(
+          `UPDATE runs SET ${sets.join(", ")} WHERE id = ? AND status IN ('queued', 'running')`,
+        ).run(...args, id);
+        if (Number(res.changes) === 0) {
+          if (!this.#stmt("SELECT 1 AS one FROM runs WHERE id = ?").get(id)) {
+            throw new RunNotFoundError(id);
+          }
+          throw new TerminalRunError(id);
+        }
         if (patch.input_series !== undefined || patch.input_runs !== undefined) {
           this.#checkInputs(id, patch.input_series ?? [], patch.input_runs ?? []);
           if (patch.input_series !== undefined) {
@@ -438,22 +453,23 @@ export class SqliteStore implements Store {
   }
 
   getRun(id: string): Promise<RunRecord | null> {
-    return settle(() => {
-      const run = this.#read(() => {
-        const row = this.#stmt(`SELECT ${RUN_ALL} FROM runs WHERE id = ?`).get(id) as
-          | Row
-          | undefined;
-        if (!row) return null;
-        const links = this.#links([id]).get(id)!;
-        const record: RunRecord = {
-          ...toRunSummary(row, links.series, links.runs),
-          params: JSON.parse(text(row.params)),
-          result: jsonOrNull(row.result),
-          error: jsonOrNull(row.error),
-        };
-        return record;
-      });
-      return run;
+    return settle(() => this.#getRunSync(id));
+  }
+
+  #getRunSync(id: string): RunRecord | null {
+    return this.#read(() => {
+      const row = this.#stmt(`SELECT ${RUN_ALL} FROM runs WHERE id = ?`).get(id) as
+        | Row
+        | undefined;
+      if (!row) return null;
+      const links = this.#links([id]).get(id)!;
+      const record: RunRecord = {
+        ...toRunSummary(row, links.series, links.runs),
+        params: JSON.parse(text(row.params)),
+        result: jsonOrNull(row.result),
+        error: jsonOrNull(row.error),
+      };
+      return record;
     });
   }
 
@@ -507,18 +523,91 @@ export class SqliteStore implements Store {
    * Mark every queued or running run failed, as after a restart that lost them. The error is
    * an RFC 9457 problem body `{ type, title, status: 500, detail: reason }`.
    */
-  failInterrupted(reason: string): Promise<number> {
+  claimRun(id: string, holder: string, leaseSeconds: number): Promise<RunRecord | null> {
     return settle(() => {
-      const error = JSON.stringify(interruptedProblem(reason));
-      const n = this.#write(() =>
+      const claimed = this.#write(() =>
         Number(
           this.#stmt(
-            `UPDATE runs SET status = 'failed', error = ?, eta_seconds = NULL, updated_at = ?
-             WHERE status IN ('queued', 'running')`,
-          ).run(error, new Date().toISOString()).changes,
+            `UPDATE runs SET status = 'running', lease_holder = ?, lease_expires_ms = ? + ?,
+               updated_at = ?
+             WHERE id = ? AND (status = 'queued' OR (status = 'running' AND
+               (lease_expires_ms IS NULL OR lease_expires_ms < ?)))`,
+          ).run(holder, nowMs(), leaseSeconds * 1000, new Date().toISOString(), id, nowMs())
+            .changes,
         )
       );
-      return n;
+      return claimed ? this.#getRunSync(id) : null;
+    });
+  }
+
+  renewLease(id: string, holder: string, leaseSeconds: number): Promise<boolean> {
+    return settle(() =>
+      this.#write(() =>
+        Number(
+          this.#stmt(
+            `UPDATE runs SET lease_expires_ms = ? + ?
+             WHERE id = ? AND lease_holder = ? AND status = 'running'`,
+          ).run(nowMs(), leaseSeconds * 1000, id, holder).changes,
+        ) === 1
+      )
+    );
+  }
+
+  updateLeased(
+    id: string,
+    holder: string,
+    patch: Partial<Omit<RunRecord, "id" | "kind" | "created_at">>,
+  ): Promise<boolean> {
+    return settle(() => {
+      const cols = encodeRunPatch(id, patch, new Date().toISOString());
+      const sets = cols.map(([c]) => `${c} = ?`);
+      const args = cols.map(([, v]) => v);
+      const ended = patch.status !== undefined && TERMINAL.has(patch.status);
+      return this.#write(() =>
+        Number(
+          this.#db.prepare(
+            `UPDATE runs SET ${sets.join(", ")}${ended ? ", lease_holder = NULL" : ""}
+             WHERE id = ? AND lease_holder = ? AND status = 'running'`,
+          ).run(...args, id, holder).changes,
+        ) === 1
+      );
+    });
+  }
+
+  cancelRun(id: string): Promise<{ status: RunStatus; changed: boolean } | null> {
+    return settle(() =>
+      this.#write(() => {
+        const row = this.#stmt("SELECT status FROM runs WHERE id = ?").get(id) as Row | undefined;
+        if (!row) return null;
+        const status = text(row.status) as RunStatus;
+        if (TERMINAL.has(status)) return { status, changed: false };
+        this.#stmt(
+          `UPDATE runs SET status = 'cancelled', eta_seconds = NULL, lease_holder = NULL,
+             updated_at = ? WHERE id = ?`,
+        ).run(new Date().toISOString(), id);
+        return { status: "cancelled" as const, changed: true };
+      })
+    );
+  }
+
+  failOrphaned(reason: string, opts: { all: boolean; graceSeconds?: number }): Promise<number> {
+    return settle(() => {
+      const error = JSON.stringify(interruptedProblem(reason));
+      return this.#write(() =>
+        Number(
+          this.#stmt(
+            `UPDATE runs SET status = 'failed', error = ?, eta_seconds = NULL, lease_holder = NULL,
+               updated_at = ?
+             WHERE (status IN ('queued', 'running') AND ? = 1)
+                OR (status = 'running' AND (lease_expires_ms IS NULL OR lease_expires_ms < ?))`,
+          ).run(
+            error,
+            new Date().toISOString(),
+            opts.all ? 1 : 0,
+            nowMs() - (opts.graceSeconds ?? 0) * 1000,
+          ).changes,
+        )
+      );
     });
   }
 
@@ -531,6 +620,11 @@ export class SqliteStore implements Store {
       return undefined;
     });
   }
+}
+
+/** Milliseconds since the epoch on this machine's clock (one machine shares a SQLite file). */
+function nowMs(): number {
+  return Date.now();
 }
 
 /** Apply the missing schema steps in one BEGIN IMMEDIATE transaction (safe when racing). */

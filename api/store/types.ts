@@ -42,6 +42,9 @@ export interface StoredSeries extends SeriesMeta {
 
 export type RunStatus = "queued" | "running" | "succeeded" | "failed" | "cancelled";
 
+/** States a run never leaves once written. */
+export const TERMINAL: ReadonlySet<RunStatus> = new Set(["succeeded", "failed", "cancelled"]);
+
 /** One recorded analysis. */
 export interface RunRecord {
   /** UUIDv7. */
@@ -93,7 +96,10 @@ export interface Store {
   deleteSeries(id: string): Promise<"deleted" | "not_found" | "in_use">;
   /** Insert a new run. */
   putRun(r: RunRecord): Promise<void>;
-  /** Update fields of an existing run (status, progress, result, digest, error, eta). */
+  /**
+   * Update fields of an existing queued or running run (status, progress, result, digest,
+   * error, eta). Throws `TerminalRunError` for a finished run: terminal states never change.
+   */
   updateRun(
     id: string,
     patch: Partial<Omit<RunRecord, "id" | "kind" | "created_at">>,
@@ -105,7 +111,35 @@ export interface Store {
   >;
   /** Ids of runs that use the series as input. */
   runsUsingSeries(id: string): Promise<string[]>;
-  /** Mark every queued/running run failed with the given reason; returns how many. */
-  failInterrupted(reason: string): Promise<number>;
+  /**
+   * Take the lease of a run for `holder` (a worker's id) for `leaseSeconds`: a queued run, or a
+   * running run whose lease expired (its holder died). Sets it running. Returns the run, or
+   * null when it is not claimable (another holder has it, it ended, it does not exist).
+   */
+  claimRun(id: string, holder: string, leaseSeconds: number): Promise<RunRecord | null>;
+  /** Extend a lease `holder` still holds; false when it was lost or the run ended. */
+  renewLease(id: string, holder: string, leaseSeconds: number): Promise<boolean>;
+  /**
+   * Write a patch only while `holder` holds the lease of the running run (a terminal patch
+   * releases it). False when nothing was written: a recovered or duplicated job can never
+   * overwrite a newer state, and a job that completes twice writes once.
+   */
+  updateLeased(
+    id: string,
+    holder: string,
+    patch: Partial<Omit<RunRecord, "id" | "kind" | "created_at">>,
+  ): Promise<boolean>;
+  /**
+   * Cancel a queued or running run; a finished run keeps its state. Answers the status after
+   * and whether this call changed it, or null when no run has the id.
+   */
+  cancelRun(id: string): Promise<{ status: RunStatus; changed: boolean } | null>;
+  /**
+   * Fail runs nobody will finish. `all`: every queued and running run (the embedded service
+   * at start-up: its queue and workers died with the previous process). Otherwise only the
+   * running runs whose lease expired more than `graceSeconds` ago (default 0) and that no
+   * worker took over. Returns how many.
+   */
+  failOrphaned(reason: string, opts: { all: boolean; graceSeconds?: number }): Promise<number>;
   close(): Promise<void>;
 }

@@ -10,7 +10,7 @@
 import type { RunRecord, StoredSeries } from "../store/types.ts";
 import type { RunKind, RunResult } from "../runs/kind.ts";
 import { CancelledError, InputProblem } from "../runs/kind.ts";
-import type { ComputeExecutor } from "../runs/service.ts";
+import type { ComputeExecutor, ComputeHooks } from "../runs/service.ts";
 import { type SerialisedError, transferablesOf } from "./messages.ts";
 
 interface Slot {
@@ -28,6 +28,8 @@ interface Job {
   onProgress?(f: number): void;
   onStart?(): void;
   isRun: boolean;
+  /** Where this run's chunks go instead of this pool (see `ComputeHooks.scatter`). */
+  scatter?: <I, O>(task: string, chunks: I[]) => Promise<O[]>;
 }
 
 function revive(e: SerialisedError): Error {
@@ -115,7 +117,8 @@ export class WorkerPool implements ComputeExecutor {
       case "parallel": {
         // The asking worker is idle while it waits for its chunks.
         slot.load -= 1;
-        this.parallel(m.task as string, m.chunks as unknown[]).then(
+        const scatter = job.scatter ?? ((t: string, c: unknown[]) => this.parallel(t, c));
+        scatter(m.task as string, m.chunks as unknown[]).then(
           (results) => {
             slot.load += 1;
             slot.worker.postMessage(
@@ -155,7 +158,7 @@ export class WorkerPool implements ComputeExecutor {
     kind: RunKind,
     params: Record<string, unknown>,
     inputs: { series: Record<string, StoredSeries>; runs: Record<string, RunRecord> },
-    hooks: { progress(f: number): void; isCancelled(): boolean; onStart(): void },
+    hooks: ComputeHooks,
   ): Promise<RunResult> {
     const id = this.nextJob++;
     const slot = this.pick();
@@ -180,6 +183,7 @@ export class WorkerPool implements ComputeExecutor {
         },
         onProgress: hooks.progress,
         onStart: hooks.onStart,
+        scatter: hooks.scatter,
       });
       slot.worker.postMessage({ type: "run", job: id, kind: kind.kind, params, inputs });
     });

@@ -8,7 +8,11 @@ Deno.test("GET /v1/health reports the store as reachable", async () => {
   const svc = await makeTestApp();
   const res = await svc.get("/v1/health");
   assert.equal(res.status, 200);
-  assert.deepEqual(await res.json(), { status: "ok", store: { kind: "sqlite", reachable: true } });
+  assert.deepEqual(await res.json(), {
+    status: "ok",
+    store: { kind: "sqlite", reachable: true },
+    queue: { engine: "in-process", depth: 0, active: 0, oldest_seconds: null, workers_seen: 1 },
+  });
   await svc.close();
 });
 
@@ -77,5 +81,19 @@ Deno.test("GET /v1/analyses lists every registered analysis once, with schemas i
   // Featured analyses come first.
   const flags = items.map((i: { featured: boolean }) => i.featured);
   assert.deepEqual(flags, [...flags].sort((a: boolean, b: boolean) => Number(b) - Number(a)));
+  await svc.close();
+});
+
+Deno.test("GET /metrics: Prometheus text with requests, runs by status and the queue", async () => {
+  const svc = await makeTestApp();
+  await svc.get("/v1/health");
+  const res = await svc.get("/metrics");
+  assert.equal(res.status, 200);
+  assert.match(res.headers.get("content-type") ?? "", /^text\/plain; version=0\.0\.4/);
+  const text = await res.text();
+  assert.match(text, /^sunlag_http_requests_total\{method="GET",status="200"\} [1-9]/m);
+  assert.match(text, /^sunlag_runs\{status="succeeded"\} 0$/m);
+  assert.match(text, /^sunlag_queue_depth\{engine="in-process"\} 0$/m);
+  assert.match(text, /^sunlag_http_request_duration_seconds_bucket\{le="0\.001",method="GET"\}/m);
   await svc.close();
 });

@@ -145,13 +145,16 @@ Deno.test("runs: a restart marks interrupted runs failed with the reason", async
   const run = await res.json();
   // Simulate a crash: the store goes away while the run is in flight.
   const reopened = await openStoreFromSpec(spec);
-  const n = await reopened.failInterrupted("The service stopped while this run was running");
+  const n = await reopened.failOrphaned("The service stopped while this run was running", {
+    all: true,
+  });
   assert.equal(n, 1);
   const r = await reopened.getRun(run.id);
   assert.equal(r?.status, "failed");
   assert.match(String(r?.error?.detail), /stopped/);
   await reopened.close();
-  svc.runs.active.get(run.id)!.cancelled = true;
+  const held = svc.runs.active.get(run.id);
+  if (held) held.cancelled = true;
   await svc.close();
   await Deno.remove(dir, { recursive: true });
 });

@@ -10,6 +10,7 @@ import {
   DuplicateRunError,
   MissingInputError,
   RunNotFoundError,
+  TerminalRunError,
 } from "../../../api/store/errors.ts";
 
 /** Where an adapter's data lives for one test. */
@@ -508,30 +509,114 @@ export function storeSuite(
     assert.deepEqual(await store.runsUsingSeries(seriesId("unknown")), []);
   });
 
-  withStore("failInterrupted() fails queued and running runs with a problem body", async (s) => {
-    const statuses: RunStatus[] = ["queued", "running", "succeeded", "failed", "cancelled"];
-    for (const [i, status] of statuses.entries()) {
-      await s.putRun(makeRun(`int-${status}`, { status, createdAt: at(i) }));
-    }
-    const reason = "the service restarted while this run was in progress";
-    assert.equal(await s.failInterrupted(reason), 2);
-    for (const status of statuses) {
-      const r = (await s.getRun(makeRun(`int-${status}`).id))!;
-      if (status === "queued" || status === "running") {
-        assert.equal(r.status, "failed");
-        assert.ok(r.error);
-        assert.equal(r.error.status, 500);
-        assert.equal(r.error.detail, reason);
-        assert.equal(typeof r.error.type, "string");
-        assert.equal(typeof r.error.title, "string");
-        assert.equal(r.eta_seconds, null);
-      } else {
-        assert.equal(r.status, status);
-        assert.equal(r.error, null);
+  withStore(
+    "failOrphaned({ all }) fails queued and running runs with a problem body",
+    async (s) => {
+      const statuses: RunStatus[] = ["queued", "running", "succeeded", "failed", "cancelled"];
+      for (const [i, status] of statuses.entries()) {
+        await s.putRun(makeRun(`int-${status}`, { status, createdAt: at(i) }));
       }
-    }
-    assert.equal(await s.failInterrupted(reason), 0);
+      const reason = "the service restarted while this run was in progress";
+      assert.equal(await s.failOrphaned(reason, { all: true }), 2);
+      for (const status of statuses) {
+        const r = (await s.getRun(makeRun(`int-${status}`).id))!;
+        if (status === "queued" || status === "running") {
+          assert.equal(r.status, "failed");
+          assert.ok(r.error);
+          assert.equal(r.error.status, 500);
+          assert.equal(r.error.detail, reason);
+          assert.equal(typeof r.error.type, "string");
+          assert.equal(typeof r.error.title, "string");
+          assert.equal(r.eta_seconds, null);
+        } else {
+          assert.equal(r.status, status);
+          assert.equal(r.error, null);
+        }
+      }
+      assert.equal(await s.failOrphaned(reason, { all: true }), 0);
+    },
+  );
+
+  withStore("failOrphaned() without `all` touches only runs whose lease expired", async (s) => {
+    await s.putRun(makeRun("lease-live", { status: "queued", createdAt: at(1) }));
+    await s.putRun(makeRun("lease-dead", { status: "queued", createdAt: at(2) }));
+    await s.putRun(makeRun("lease-waiting", { status: "queued", createdAt: at(3) }));
+    const live = makeRun("lease-live").id;
+    const dead = makeRun("lease-dead").id;
+    assert.ok(await s.claimRun(live, "worker-a", 60));
+    assert.ok(await s.claimRun(dead, "worker-b", 0.3));
+    await new Promise((r) => setTimeout(r, 450));
+    assert.equal(await s.failOrphaned("lost", { all: false }), 1);
+    assert.equal((await s.getRun(dead))!.status, "failed");
+    assert.equal((await s.getRun(live))!.status, "running");
+    assert.equal((await s.getRun(makeRun("lease-waiting").id))!.status, "queued");
   });
+
+  withStore(
+    "claimRun() leases a queued run to one holder; an expired lease is taken over",
+    async (s) => {
+      await s.putRun(makeRun("claim", { status: "queued", createdAt: at(1) }));
+      const id = makeRun("claim").id;
+      const got = await s.claimRun(id, "worker-a", 1.5);
+      assert.equal(got?.status, "running");
+      assert.equal(await s.claimRun(id, "worker-b", 60), null, "held: not claimable");
+      await new Promise((r) => setTimeout(r, 1700));
+      assert.equal(
+        (await s.claimRun(id, "worker-b", 60))?.status,
+        "running",
+        "expired: taken over",
+      );
+      // The first holder lost it: its writes are refused, the new holder's go through.
+      assert.equal(await s.renewLease(id, "worker-a", 60), false);
+      assert.equal(await s.updateLeased(id, "worker-a", { progress: 0.5 }), false);
+      assert.equal(await s.updateLeased(id, "worker-b", { progress: 0.25 }), true);
+      assert.equal((await s.getRun(id))!.progress, 0.25);
+    },
+  );
+
+  withStore(
+    "updateLeased(): a terminal write lands once; terminal states never change",
+    async (s) => {
+      await s.putRun(makeRun("final", { status: "queued", createdAt: at(1) }));
+      const id = makeRun("final").id;
+      await s.claimRun(id, "w", 60);
+      const done = {
+        status: "succeeded" as const,
+        progress: 1,
+        result: { x: 1 },
+        result_digest: "d",
+      };
+      assert.equal(await s.updateLeased(id, "w", done), true);
+      assert.equal(
+        await s.updateLeased(id, "w", done),
+        false,
+        "a job completing twice writes once",
+      );
+      assert.equal(await s.updateLeased(id, "w", { status: "failed" }), false);
+      assert.equal(await s.claimRun(id, "other", 60), null);
+      assert.deepEqual(await s.cancelRun(id), { status: "succeeded", changed: false });
+      await assert.rejects(() => s.updateRun(id, { status: "failed" }), TerminalRunError);
+      const r = (await s.getRun(id))!;
+      assert.equal(r.status, "succeeded");
+      assert.deepEqual(r.result, { x: 1 });
+    },
+  );
+
+  withStore(
+    "cancelRun(): queued and running runs end cancelled; unknown ids answer null",
+    async (s) => {
+      await s.putRun(makeRun("c-q", { status: "queued", createdAt: at(1) }));
+      await s.putRun(makeRun("c-r", { status: "queued", createdAt: at(2) }));
+      await s.claimRun(makeRun("c-r").id, "w", 60);
+      const cancelled = { status: "cancelled", changed: true };
+      assert.deepEqual(await s.cancelRun(makeRun("c-q").id), cancelled);
+      assert.deepEqual(await s.cancelRun(makeRun("c-r").id), cancelled);
+      assert.deepEqual(await s.cancelRun(makeRun("c-r").id), { ...cancelled, changed: false });
+      assert.equal(await s.updateLeased(makeRun("c-r").id, "w", { status: "succeeded" }), false);
+      assert.equal((await s.getRun(makeRun("c-r").id))!.status, "cancelled");
+      assert.equal(await s.cancelRun("01900000-0000-7000-8000-000000000000"), null);
+    },
+  );
 
   withStore("concurrent writers all succeed and see each other's writes", async (store, b) => {
     // Two store instances on the same backing when it is shared, else two users of one store.
