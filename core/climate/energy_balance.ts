@@ -15,11 +15,12 @@
  * frequency ω sampled every h years the amplitude is low by about (ωh)²/12).
  *
  * Steady-state response to F = F₀ sin ωt (one-box): T = F₀/√(λ² + C²ω²) · sin(ωt − φ),
- * φ = arctan(Cω/λ), lag φ/ω (shared/SCIENCE.md §10). Two-box: the same from the complex
- * transfer function (iω − A)⁻¹b of the linear system.
+ * φ = arctan(Cω/λ), lag φ/ω (the standard first-order linear response; derived). Two-box:
+ * the same from the complex transfer function (iω − A)⁻¹b of the linear system.
  *
  * @module
  */
+import { InputError } from "../errors.ts";
 
 /** Parameters of the one-box model. */
 export interface OneBoxParameters {
@@ -38,8 +39,9 @@ export interface TwoBoxParameters extends OneBoxParameters {
 }
 
 /**
- * Defaults of the one-box model: λ = 1.3 W m-2 K-1, C = 8.0 W yr m-2 K-1 (the worked case of
- * shared/SCIENCE.md §10; C close to a 50–60 m mixed layer).
+ * Defaults of the one-box model: λ = 1.3 W m-2 K-1 (the feedback of Held et al. 2010, J.
+ * Climate 23, 2418; from memory), C = 8.0 W yr m-2 K-1 (a mixed layer of about 60 m of sea
+ * water; common practice).
  */
 export const ONE_BOX_DEFAULTS: Readonly<OneBoxParameters> = { heatCapacity: 8.0, feedback: 1.3 };
 
@@ -57,25 +59,43 @@ export const TWO_BOX_DEFAULTS: Readonly<TwoBoxParameters> = {
 
 function checkPositive(fn: string, name: string, v: number) {
   if (!(v > 0) || !Number.isFinite(v)) {
-    throw new RangeError(`Cannot ${fn}: ${name} must be a positive finite number, got ${v}`);
+    throw new InputError(`Cannot ${fn}: ${name} must be a positive finite number, got ${v}`, {
+      field: name,
+      reason: "out_of_range",
+      value: v,
+    });
   }
 }
 
 function checkSeries(fn: string, time: ArrayLike<number>, forcing: ArrayLike<number>) {
   if (time.length !== forcing.length) {
-    throw new RangeError(
+    throw new InputError(
       `Cannot ${fn}: time has ${time.length} values, forcing has ${forcing.length}`,
+      { field: "forcing", reason: "length_mismatch", value: forcing.length },
     );
   }
   if (time.length < 2) {
-    throw new RangeError(`Cannot ${fn}: needs at least 2 forcing values, got ${time.length}`);
+    throw new InputError(`Cannot ${fn}: needs at least 2 forcing values, got ${time.length}`, {
+      field: "forcing",
+      reason: "too_few_points",
+      value: time.length,
+    });
   }
   for (let i = 0; i < time.length; i++) {
     if (!Number.isFinite(time[i]) || !Number.isFinite(forcing[i])) {
-      throw new RangeError(`Cannot ${fn}: time or forcing at index ${i} is not finite`);
+      throw new InputError(`Cannot ${fn}: time or forcing at index ${i} is not finite`, {
+        field: Number.isFinite(time[i]) ? "forcing" : "time",
+        reason: "not_finite",
+        index: i,
+      });
     }
     if (i > 0 && !(time[i] > time[i - 1])) {
-      throw new RangeError(`Cannot ${fn}: time must increase strictly (index ${i})`);
+      throw new InputError(`Cannot ${fn}: time must increase strictly (index ${i})`, {
+        field: "time",
+        reason: "not_increasing",
+        index: i,
+        value: time[i],
+      });
     }
   }
 }
@@ -89,8 +109,8 @@ function checkSeries(fn: string, time: ArrayLike<number>, forcing: ArrayLike<num
  * @param params heat capacity and feedback @default ONE_BOX_DEFAULTS
  * @param initial temperature at time[0], K @default 0
  * @returns temperature response in K at each time
- * @throws {RangeError} on mismatched, non-finite or non-increasing input, or non-positive
- *   parameters
+ * @throws {InputError} on mismatched, non-finite or non-increasing input (field `time` or
+ *   `forcing`, with the index), or non-positive parameters (the parameter's name)
  * @example
  * ```ts
  * import { oneBoxResponse } from "./energy_balance.ts";
@@ -178,7 +198,7 @@ function twoBoxSystem(p: TwoBoxParameters): { a: M2; b: [number, number] } {
  * @param params C, C_d, λ, γ @default TWO_BOX_DEFAULTS
  * @param initial [T, T_d] at time[0], K @default [0, 0]
  * @returns surface and deep temperatures, K
- * @throws {RangeError} as {@link oneBoxResponse}
+ * @throws {InputError} as {@link oneBoxResponse}
  * @example
  * ```ts
  * import { twoBoxResponse } from "./energy_balance.ts";
@@ -255,12 +275,12 @@ function checkPeriod(fn: string, period: number) {
  * @param params C and λ
  * @param period forcing period P, years
  * @returns gain (K per W m-2), phase (rad), lag (yr)
- * @throws {RangeError} on non-positive parameters or period
+ * @throws {InputError} on non-positive parameters or period (field: the parameter's name)
  * @example
  * ```ts
  * import { oneBoxSinusoidResponse } from "./energy_balance.ts";
  * import assert from "node:assert/strict";
- * // shared/SCIENCE.md §10 (D): λ = 1.3, C = 8, P = 11 yr, F₀ = 0.08875 → 0.0374 K p-p, 2.26 yr
+ * // derived from the closed form: λ = 1.3, C = 8, P = 11 yr, F₀ = 0.08875 → 0.0374 K p-p, 2.26 yr
  * const r = oneBoxSinusoidResponse({ heatCapacity: 8, feedback: 1.3 }, 11);
  * assert.ok(Math.abs(2 * 0.08875 * r.gain - 0.0374) < 5e-5);
  * assert.ok(Math.abs(r.lagYears - 2.26) < 5e-3);
@@ -284,7 +304,7 @@ export function oneBoxSinusoidResponse(params: OneBoxParameters, period: number)
  * @param params C, C_d, λ, γ
  * @param period forcing period P, years
  * @returns gain, phase and lag of the surface temperature
- * @throws {RangeError} on non-positive parameters or period
+ * @throws {InputError} on non-positive parameters or period (field: the parameter's name)
  * @example
  * ```ts
  * import { oneBoxSinusoidResponse, twoBoxSinusoidResponse } from "./energy_balance.ts";
@@ -355,7 +375,8 @@ export function twoBoxTransfer(
  * @param values the series
  * @param period P, years
  * @returns amplitude A ≥ 0, phase φ in (−π, π] relative to sin(ωt), and lag φ/ω
- * @throws {RangeError} with fewer than 3 points or a non-positive period
+ * @throws {InputError} with fewer than 3 points (field `values`) or a non-positive period
+ *   (`period`)
  * @example
  * ```ts
  * import { fitSinusoid } from "./energy_balance.ts";
@@ -372,7 +393,11 @@ export function fitSinusoid(
   period: number,
 ): { amplitude: number; phase: number; lagYears: number } {
   if (time.length !== values.length || time.length < 3) {
-    throw new RangeError("Cannot fit sinusoid: needs at least 3 points with matching lengths");
+    throw new InputError("Cannot fit sinusoid: needs at least 3 points with matching lengths", {
+      field: "values",
+      reason: time.length !== values.length ? "length_mismatch" : "too_few_points",
+      value: values.length,
+    });
   }
   checkPeriod("fit sinusoid", period);
   const w = (2 * Math.PI) / period;

@@ -119,13 +119,30 @@ Deno.test("twoBoxResponse() agrees with RK4 and with the analytic sinusoid respo
 
 Deno.test("energy-balance functions reject bad input", () => {
   const t = new Float64Array([0, 1, 2]);
-  assert.throws(() => oneBoxResponse(t, new Float64Array([0, 1])), /forcing has 2/);
-  assert.throws(() => oneBoxResponse(new Float64Array([0, 0, 1]), t), /increase/);
-  assert.throws(() => oneBoxResponse(t, new Float64Array([0, NaN, 1])), /not finite/);
-  assert.throws(() => oneBoxResponse(t, t, { heatCapacity: 0, feedback: 1 }), /heatCapacity/);
+  assert.throws(() => oneBoxResponse(t, new Float64Array([0, 1])), {
+    name: "InputError",
+    field: "forcing",
+    reason: "length_mismatch",
+  });
+  assert.throws(() => oneBoxResponse(new Float64Array([0, 0, 1]), t), {
+    field: "time",
+    reason: "not_increasing",
+    index: 1,
+  });
+  assert.throws(() => oneBoxResponse(t, new Float64Array([0, NaN, 1])), {
+    field: "forcing",
+    reason: "not_finite",
+    index: 1,
+  });
+  assert.throws(() => oneBoxResponse(t, t, { heatCapacity: 0, feedback: 1 }), {
+    field: "heatCapacity",
+    value: 0,
+  });
   assert.throws(
     () => twoBoxResponse(t, t, { heatCapacity: 1, deepHeatCapacity: 1, feedback: 1, exchange: -1 }),
-    /exchange/,
+    { field: "exchange", reason: "out_of_range" },
   );
-  assert.throws(() => oneBoxSinusoidResponse({ heatCapacity: 8, feedback: 1.3 }, 0), /period/);
+  assert.throws(() => oneBoxSinusoidResponse({ heatCapacity: 8, feedback: 1.3 }, 0), {
+    field: "period",
+  });
 });

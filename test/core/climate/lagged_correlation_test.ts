@@ -79,18 +79,28 @@ Deno.test("laggedCorrelation() rejects bad input", async (t) => {
   await t.step("constant series", () => {
     assert.throws(
       () => laggedCorrelation(x, new Float64Array(20).fill(2), { minLag: 0, maxLag: 1 }),
-      /constant/,
+      { name: "InputError", field: "y", reason: "constant" },
     );
   });
   await t.step("NaN", () => {
     const y = Float64Array.from(x);
     y[3] = NaN;
-    assert.throws(() => laggedCorrelation(x, y, { minLag: 0, maxLag: 1 }), /not finite/);
+    assert.throws(() => laggedCorrelation(x, y, { minLag: 0, maxLag: 1 }), {
+      field: "y",
+      reason: "not_finite",
+      index: 3,
+    });
   });
   await t.step("lengths and window", () => {
-    assert.throws(() => laggedCorrelation(x, x.subarray(1), { minLag: 0, maxLag: 1 }), RangeError);
-    assert.throws(() => laggedCorrelation(x, x, { minLag: 2, maxLag: 1 }), RangeError);
-    assert.throws(() => laggedCorrelation(x, x, { minLag: 0, maxLag: 18 }), /overlapping/);
+    assert.throws(() => laggedCorrelation(x, x.subarray(1), { minLag: 0, maxLag: 1 }), {
+      field: "y",
+      reason: "length_mismatch",
+    });
+    assert.throws(() => laggedCorrelation(x, x, { minLag: 2, maxLag: 1 }), { field: "window" });
+    assert.throws(() => laggedCorrelation(x, x, { minLag: 0, maxLag: 18 }), {
+      field: "window",
+      reason: "too_few_points",
+    });
   });
 });
 
@@ -139,15 +149,21 @@ Deno.test("preprocessSeries() removes polynomials and slow variations", async (t
     close(a / b, Math.SQRT1_2, 2e-3, "gain at cutoff");
   });
   await t.step("errors", () => {
-    assert.throws(() => preprocessSeries(new Float64Array([1, NaN, 2])), /not finite/);
+    assert.throws(() => preprocessSeries(new Float64Array([1, NaN, 2])), {
+      field: "x",
+      reason: "not_finite",
+      index: 1,
+    });
     assert.throws(
       () => preprocessSeries(new Float64Array([1, 2]), { method: "quadratic" }),
-      RangeError,
+      { field: "n", reason: "too_few_points" },
     );
-    assert.throws(() => preprocessSeries(new Float64Array(10), { method: "high_pass" }), /cutoff/);
+    assert.throws(() => preprocessSeries(new Float64Array(10), { method: "high_pass" }), {
+      field: "cutoffSamples",
+    });
     assert.throws(
       () => preprocessSeries(new Float64Array(10), { method: "high_pass", cutoffSamples: 1 }),
-      /cutoff/,
+      { field: "cutoffSamples", reason: "out_of_range", value: 1 },
     );
   });
 });
