@@ -368,6 +368,73 @@ export function twoBoxTransfer(
 }
 
 /**
+ * Temperature at t = 0 of the steady-state one-box response to F₀ sin(2πt/P):
+ * T(0) = F₀ · gain · sin(−φ) (from {@link oneBoxSinusoidResponse}). An integration started
+ * there follows the steady state from the first step, with no transient to wait out.
+ *
+ * @param params C and λ
+ * @param period forcing period P, years
+ * @param amplitude F₀, W m-2
+ * @returns T(0), K
+ * @throws {InputError} as {@link oneBoxSinusoidResponse}
+ * @example
+ * ```ts
+ * import { oneBoxResponse, oneBoxSinusoidStart } from "./energy_balance.ts";
+ * import assert from "node:assert/strict";
+ * const p = { heatCapacity: 8, feedback: 1.3 };
+ * const t = Float64Array.from({ length: 1101 }, (_, i) => i / 100);
+ * const f = t.map((x) => 0.1 * Math.sin((2 * Math.PI * x) / 11));
+ * const T = oneBoxResponse(t, f, p, oneBoxSinusoidStart(p, 11, 0.1));
+ * // one full period later the steady state is back where it started
+ * assert.ok(Math.abs(T[1100] - T[0]) < 1e-6);
+ * ```
+ */
+export function oneBoxSinusoidStart(
+  params: OneBoxParameters,
+  period: number,
+  amplitude: number,
+): number {
+  const r = oneBoxSinusoidResponse(params, period);
+  return amplitude * r.gain * Math.sin(-r.phase);
+}
+
+/**
+ * Surface and deep temperatures at t = 0 of the steady-state two-box response to
+ * F₀ sin(2πt/P): F₀ times the imaginary parts of the transfer function ({@link twoBoxTransfer}),
+ * so an integration started there has no transient.
+ *
+ * @param params C, C_d, λ, γ
+ * @param period forcing period P, years
+ * @param amplitude F₀, W m-2
+ * @returns [T(0), T_d(0)], K
+ * @throws {InputError} on non-positive parameters or period (field: the parameter's name)
+ * @example
+ * ```ts
+ * import { twoBoxResponse, twoBoxSinusoidStart } from "./energy_balance.ts";
+ * import assert from "node:assert/strict";
+ * const p = { heatCapacity: 7.3, deepHeatCapacity: 106, feedback: 1.3, exchange: 0.7 };
+ * const t = Float64Array.from({ length: 1101 }, (_, i) => i / 100);
+ * const f = t.map((x) => 0.1 * Math.sin((2 * Math.PI * x) / 11));
+ * const r = twoBoxResponse(t, f, p, twoBoxSinusoidStart(p, 11, 0.1));
+ * assert.ok(Math.abs(r.surface[1100] - r.surface[0]) < 1e-6);
+ * assert.ok(Math.abs(r.deep[1100] - r.deep[0]) < 1e-6);
+ * ```
+ */
+export function twoBoxSinusoidStart(
+  params: TwoBoxParameters,
+  period: number,
+  amplitude: number,
+): [number, number] {
+  const fn = "compute two-box sinusoid start";
+  for (const k of ["heatCapacity", "deepHeatCapacity", "feedback", "exchange"] as const) {
+    checkPositive(fn, k, params[k]);
+  }
+  checkPeriod(fn, period);
+  const h = twoBoxTransfer(params, (2 * Math.PI) / period);
+  return [amplitude * h.surfaceIm, amplitude * h.deepIm];
+}
+
+/**
  * Least-squares fit of A sin(ωt − φ) + c to a series (linear in sin, cos and a constant):
  * used to read the amplitude and phase of a numerical response.
  *

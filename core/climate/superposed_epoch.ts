@@ -17,6 +17,7 @@
  *
  * @module
  */
+import { quantileSorted } from "d3-array";
 import { randomStream } from "../random/random_stream.ts";
 import { InputError } from "../errors.ts";
 
@@ -94,12 +95,6 @@ function compositeOf(
     }
   }
   for (let j = 0; j < out.length; j++) out[j] = count[j] > 0 ? out[j] / count[j] : NaN;
-}
-
-function quantile7(sorted: Float64Array, p: number): number {
-  const h = (sorted.length - 1) * p, lo = Math.floor(h);
-  const hi = Math.min(lo + 1, sorted.length - 1);
-  return sorted[lo] + (h - lo) * (sorted[hi] - sorted[lo]);
 }
 
 /**
@@ -202,13 +197,14 @@ export function superposedEpoch(
   }
   const lower: (number | null)[] = [], upper: (number | null)[] = [];
   for (let j = 0; j < w; j++) {
-    const vals = boot[j].filter((v) => !Number.isNaN(v)).sort();
+    const vals = Array.from(boot[j].filter((v) => !Number.isNaN(v)).sort());
     if (vals.length === 0) {
       lower.push(null);
       upper.push(null);
     } else {
-      lower.push(quantile7(vals, (1 - level) / 2));
-      upper.push(quantile7(vals, (1 + level) / 2));
+      // R's type-7 quantiles (Hyndman & Fan 1996), as d3-array computes them
+      lower.push(quantileSorted(vals, (1 - level) / 2)!);
+      upper.push(quantileSorted(vals, (1 + level) / 2)!);
     }
   }
   // random epochs honouring the minimum spacing: K sorted uniform positions in

@@ -9,3 +9,4 @@ export * from "./period_key.ts";
 export * from "./resample_means.ts";
 export * from "./anomalies_from_base_period.ts";
 export * from "./align_series.ts";
+export * from "./longest_complete_run.ts";

@@ -16,7 +16,7 @@ const close = (a: number, b: number, tol: number, what = "") =>
   assert.ok(Math.abs(a - b) <= tol, `${what}: ${a} vs ${b} (tol ${tol})`);
 
 Deno.test("brethertonEffectiveSampleSize() reproduces the worked value and caps at N", () => {
-  // Bretherton et al. 1999, J. Climate 12, 1990, eq. 31; shared/SCIENCE.md §7 (D):
+  // Bretherton et al. 1999, J. Climate 12, 1990, eq. 31, derived:
   // N = 100, r1 = 0.5, r2 = 0.8 → 100 · 0.6 / 1.4 = 42.857
   close(brethertonEffectiveSampleSize(100, 0.5, 0.8), 42.857142857142854, 1e-12, "N_eff");
   assert.equal(brethertonEffectiveSampleSize(100, 0.5, -0.5), 100);
@@ -27,7 +27,7 @@ Deno.test("brethertonEffectiveSampleSize() reproduces the worked value and caps 
 });
 
 Deno.test("correlationTTest() gives the worked t values with N and N_eff", () => {
-  // shared/SCIENCE.md §7 (D): r = 0.3 → t = 3.113 at N = 100, 2.010 at N_eff = 42.857
+  // t = r √((N − 2)/(1 − r²)), derived: r = 0.3 → t = 3.113 at N = 100, 2.010 at N_eff = 42.857
   close(correlationTTest(0.3, 100).t, 0.3 * Math.sqrt(98 / 0.91), 1e-12, "t formula");
   close(correlationTTest(0.3, 100).t, 3.113, 5e-4, "t N=100");
   close(correlationTTest(0.3, 300 / 7).t, 2.010, 5e-4, "t N_eff");
@@ -39,7 +39,7 @@ Deno.test("correlationTTest() gives the worked t values with N and N_eff", () =>
 });
 
 Deno.test("fisherZInterval() gives the worked 95 % intervals", () => {
-  // Fisher z, SE 1/√(N − 3); shared/SCIENCE.md §7 (D)
+  // Fisher z, SE 1/√(N − 3) (Fisher 1921), derived
   const [a, b] = fisherZInterval(0.5, 50);
   close(a, 0.2575, 5e-5, "lower N=50");
   close(b, 0.6833, 5e-5, "upper N=50");
