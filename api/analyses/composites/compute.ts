@@ -8,6 +8,7 @@
 import { z } from "@hono/zod-openapi";
 import { InputProblem, type RunContext } from "../../runs/kind.ts";
 import { refId } from "../../schemas/series_ref.ts";
+import type { StoredSeries } from "../../store/types.ts";
 import { polynomialTrendResiduals, superposedEpoch } from "../../../core/climate/mod.ts";
 import { resampleMeans } from "../../../core/series/mod.ts";
 import { formatIsoTime, parseIsoTime } from "../../../core/time/mod.ts";
@@ -62,10 +63,8 @@ function epochDates(p: CompositeParams, ctx: RunContext): number[] {
   throw new InputProblem("/epoch_dates", "give epoch_dates or a cycle_run");
 }
 
-/** Composite the series around the epochs, with its band and significance. */
-export function computeComposites(p: CompositeParams, ctx: RunContext): CompositeResultIn {
-  const s = ctx.series(refId(p.series));
-  const dates = epochDates(p, ctx);
+/** The series as calendar-period means on the composite's axis, with the trend removed. */
+function seriesOnAxis(p: CompositeParams, s: StoredSeries) {
   const to = p.resolution ?? (s.resolution === "annual" ? "annual" : "monthly");
   if (s.resolution === "annual" && to === "monthly") {
     throw new InputProblem(
@@ -83,21 +82,32 @@ export function computeComposites(p: CompositeParams, ctx: RunContext): Composit
       minDaysPerMonth: p.min_days_per_month,
       minMonthsPerYear: p.min_months_per_year,
     }));
-  const step = to === "monthly" ? 1 / 12 : 1;
-  const before = Math.round(p.before_years / step), after = Math.round(p.after_years / step);
   const degree = { none: null, mean: 0, linear: 1, quadratic: 2 } as const;
   const d = degree[p.preprocess];
   const x = d === null
     ? grid.value
     : withInputPointers({ x: "/series" }, () => polynomialTrendResiduals(grid.value, d));
-  const t0 = grid.time[0];
-  const epochIdx: number[] = [];
-  const outside: number[] = [];
+  return { to, step: to === "monthly" ? 1 / 12 : 1, time: grid.time, x };
+}
+
+/** The sample index of each epoch on the axis, and the dates that fall outside it. */
+function epochIndices(dates: number[], time: Float64Array, step: number) {
+  const inside: number[] = [], outside: number[] = [];
   for (const date of dates) {
-    const i = Math.round((date - t0) / step);
-    if (i < 0 || i >= x.length) outside.push(date);
-    else epochIdx.push(i);
+    const i = Math.round((date - time[0]) / step);
+    if (i < 0 || i >= time.length) outside.push(date);
+    else inside.push(i);
   }
+  return { inside: [...new Set(inside)], outside };
+}
+
+/** Composite the series around the epochs, with its band and significance. */
+export function computeComposites(p: CompositeParams, ctx: RunContext): CompositeResultIn {
+  const s = ctx.series(refId(p.series));
+  const dates = epochDates(p, ctx);
+  const { to, step, time, x } = seriesOnAxis(p, s);
+  const before = Math.round(p.before_years / step), after = Math.round(p.after_years / step);
+  const epochIdx = epochIndices(dates, time, step);
   const epochs = p.cycle_run ? "/cycle_run" : "/epoch_dates";
   const r = withInputPointers({
     before: "/before_years",
@@ -106,7 +116,7 @@ export function computeComposites(p: CompositeParams, ctx: RunContext): Composit
     randomSets: "/random_sets",
     "*": epochs,
   }, () =>
-    superposedEpoch(x, [...new Set(epochIdx)], {
+    superposedEpoch(x, epochIdx.inside, {
       before,
       after,
       preEpochBaseline: p.baseline === "pre_epoch",
@@ -115,7 +125,7 @@ export function computeComposites(p: CompositeParams, ctx: RunContext): Composit
       seed: p.seed,
     }));
   const warnings: string[] = [];
-  const droppedDates = [...outside, ...r.dropped.map((i) => grid.time[i])];
+  const droppedDates = [...epochIdx.outside, ...r.dropped.map((i) => time[i])];
   if (droppedDates.length) {
     warnings.push(
       `${droppedDates.length} epoch(s) left out: their window does not fit inside the series ` +
@@ -127,7 +137,7 @@ export function computeComposites(p: CompositeParams, ctx: RunContext): Composit
   return {
     resolution: to,
     offset_unit: unit,
-    epochs_used: r.used.map((i) => formatIsoTime(grid.time[i], to)),
+    epochs_used: r.used.map((i) => formatIsoTime(time[i], to)),
     epochs_dropped: droppedDates.map((d) => formatIsoTime(d, to)),
     min_spacing: r.minSpacing,
     window: { before, after },
@@ -164,7 +174,7 @@ export function computeComposites(p: CompositeParams, ctx: RunContext): Composit
         name: `${s.name} (${to}, ${p.preprocess} removed)`,
         quantity: s.quantity,
         units: s.units,
-        time: Array.from(grid.time),
+        time: Array.from(time),
         // NaN marks a period that fails the coverage rule (documented null)
         value: undefinedAsNull(x),
       },

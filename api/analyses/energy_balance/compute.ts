@@ -146,6 +146,37 @@ function measuredSinusoid(
   };
 }
 
+/** The model's parameters: the request's, else the defaults of the model. */
+function modelParameters(p: EnergyBalanceParams): TwoBoxParameters {
+  const base = p.model === "one_box" ? ONE_BOX_DEFAULTS : TWO_BOX_DEFAULTS;
+  const params: TwoBoxParameters = {
+    heatCapacity: p.heat_capacity ?? base.heatCapacity,
+    feedback: p.feedback ?? base.feedback,
+    deepHeatCapacity: p.deep_heat_capacity ?? TWO_BOX_DEFAULTS.deepHeatCapacity,
+    exchange: p.exchange ?? TWO_BOX_DEFAULTS.exchange,
+  };
+  if (p.model === "one_box" && (p.deep_heat_capacity !== undefined || p.exchange !== undefined)) {
+    throw new InputProblem("/model", "deep_heat_capacity and exchange belong to the two_box model");
+  }
+  return params;
+}
+
+/** Surface (and, two-box, deep) temperatures through the forcing. */
+function response(p: EnergyBalanceParams, params: TwoBoxParameters, forcing: Forcing) {
+  const where = p.forcing_run ? "/forcing_run" : p.sinusoid ? "/sinusoid" : "/forcing";
+  const [surface, deep] = withInputPointers({ "*": where }, () => {
+    if (p.model === "one_box") {
+      return [oneBoxResponse(forcing.time, forcing.value, params, forcing.initial[0]), null];
+    }
+    const r = twoBoxResponse(forcing.time, forcing.value, params, forcing.initial);
+    return [r.surface, r.deep];
+  });
+  if (!surface.every(Number.isFinite) || (deep && !deep.every(Number.isFinite))) {
+    throw new InputProblem("/forcing", "the model response is not finite for these inputs");
+  }
+  return { surface, deep };
+}
+
 /** Integrate the energy-balance model through the forcing. */
 export function computeEnergyBalance(
   p: EnergyBalanceParams,
@@ -160,33 +191,14 @@ export function computeEnergyBalance(
         : "give only one of forcing, forcing_run and sinusoid",
     );
   }
-  const base = p.model === "one_box" ? ONE_BOX_DEFAULTS : TWO_BOX_DEFAULTS;
-  const params: TwoBoxParameters = {
-    heatCapacity: p.heat_capacity ?? base.heatCapacity,
-    feedback: p.feedback ?? base.feedback,
-    deepHeatCapacity: p.deep_heat_capacity ?? TWO_BOX_DEFAULTS.deepHeatCapacity,
-    exchange: p.exchange ?? TWO_BOX_DEFAULTS.exchange,
-  };
-  if (p.model === "one_box" && (p.deep_heat_capacity !== undefined || p.exchange !== undefined)) {
-    throw new InputProblem("/model", "deep_heat_capacity and exchange belong to the two_box model");
-  }
+  const params = modelParameters(p);
   const period = p.sinusoid?.period_years ?? 11;
   const analytic = p.model === "one_box"
     ? oneBoxSinusoidResponse(params, period)
     : twoBoxSinusoidResponse(params, period);
   const forcing = p.sinusoid ? sinusoidForcing(p, p.sinusoid, params) : forcingInput(p, ctx);
   const { time } = forcing;
-  const where = p.forcing_run ? "/forcing_run" : p.sinusoid ? "/sinusoid" : "/forcing";
-  const [surface, deep] = withInputPointers({ "*": where }, () => {
-    if (p.model === "one_box") {
-      return [oneBoxResponse(time, forcing.value, params, forcing.initial[0]), null] as const;
-    }
-    const r = twoBoxResponse(time, forcing.value, params, forcing.initial);
-    return [r.surface, r.deep] as const;
-  });
-  if (!surface.every(Number.isFinite) || (deep && !deep.every(Number.isFinite))) {
-    throw new InputProblem("/forcing", "the model response is not finite for these inputs");
-  }
+  const { surface, deep } = response(p, params, forcing);
   const amp0 = p.sinusoid?.amplitude ?? null;
   const timeAxis = p.sinusoid ? { time_axis: "model_years" as const } : {};
   const outputs: { temperature: OutputSeries; deep_temperature?: OutputSeries } = {
