@@ -1,7 +1,10 @@
 /**
  * Result hygiene before hashing: typed arrays become plain arrays, `-0` becomes `0`, and a
  * non-finite number anywhere is a bug in the analysis (JSON has no NaN; a silent null would
- * hide it), reported with its JSON Pointer.
+ * hide it), reported with its JSON Pointer. A value undefined by its method is written as a
+ * documented null by the analysis (`api/analyses/common/undefined_as_null.ts`) before it gets
+ * here. Object keys must follow the key-spelling policy of results (snake_case,
+ * `api/analyses/common/keys.ts`); any other key is refused the same way.
  *
  * Written as one pass with a shared path stack (no allocation per element): results can hold
  * hundreds of thousands of numbers.
@@ -9,6 +12,7 @@
  * @module
  */
 import { toPointer } from "../problems.ts";
+import { SNAKE_CASE_KEY } from "../analyses/common/keys.ts";
 
 function fail(value: unknown, path: (string | number)[]): never {
   throw new Error(
@@ -20,13 +24,19 @@ function fail(value: unknown, path: (string | number)[]): never {
   );
 }
 
+function badKey(key: string, path: (string | number)[]): never {
+  throw new Error(
+    `key "${key.slice(0, 60)}" in result at ${toPointer(path) || "/"} is not snake_case`,
+  );
+}
+
 function plainNumber(v: number, path: (string | number)[]): number {
   // `v - v === 0` is false exactly for NaN and ±Infinity.
   if (v - v !== 0) fail(v, path);
   return v === 0 ? 0 : v;
 }
 
-function walk(value: unknown, path: (string | number)[]): unknown {
+function walk(value: unknown, path: (string | number)[], keys: Set<string>): unknown {
   if (value === null || typeof value === "string" || typeof value === "boolean") return value;
   if (typeof value === "number") return plainNumber(value, path);
   if (value === undefined) return undefined;
@@ -51,7 +61,7 @@ function walk(value: unknown, path: (string | number)[]): unknown {
         out[i] = v;
       } else {
         path.push(i);
-        const p = walk(v, path);
+        const p = walk(v, path, keys);
         path.pop();
         out[i] = p === undefined ? null : p;
       }
@@ -61,8 +71,13 @@ function walk(value: unknown, path: (string | number)[]): unknown {
   if (typeof value === "object") {
     const out: Record<string, unknown> = {};
     for (const k of Object.keys(value as object)) {
+      // the same keys repeat in every row of a table: test each spelling once
+      if (!keys.has(k)) {
+        if (!SNAKE_CASE_KEY.test(k)) badKey(k, path);
+        keys.add(k);
+      }
       path.push(k);
-      const p = walk((value as Record<string, unknown>)[k], path);
+      const p = walk((value as Record<string, unknown>)[k], path, keys);
       path.pop();
       if (p !== undefined) out[k] = p;
     }
@@ -74,15 +89,17 @@ function walk(value: unknown, path: (string | number)[]): unknown {
 /**
  * Deep-copy `value` into plain JSON.
  *
- * @throws {Error} naming the JSON Pointer of any non-finite number or non-JSON value
+ * @throws {Error} naming the JSON Pointer of any non-finite number, non-JSON value or key that
+ *   is not snake_case
  * @example
  * ```ts
  * import { toPlainJson } from "./json.ts";
  * import assert from "node:assert/strict";
  * assert.deepEqual(toPlainJson({ a: Float64Array.of(1, -0), b: undefined }), { a: [1, 0] });
  * assert.throws(() => toPlainJson({ x: [1, NaN] }), /\/x\/1/);
+ * assert.throws(() => toPlainJson({ rSquared: 0.5 }), /rSquared/);
  * ```
  */
 export function toPlainJson(value: unknown): unknown {
-  return walk(value, []);
+  return walk(value, [], new Set());
 }

@@ -3,15 +3,21 @@
  *
  * @module
  */
+import { InputError, type InputErrorDetail } from "../../core/errors.ts";
 
 export interface SerialisedError {
   name: string;
   message: string;
   pointer?: string;
   extra?: Record<string, unknown>;
+  /** The fields of a core `InputError`. */
+  input?: InputErrorDetail;
 }
 
-/** Keep the fields the run machinery maps to problems (name, message, pointer, extra). */
+const EXPECTED = new Set(["InputProblem", "RangeError", "InputError", "CancelledError"]);
+
+/** Keep the fields the run machinery maps to problems (name, message, pointer, extra, and a
+ * core InputError's field, reason, index and value). */
 export function serialiseError(err: unknown): SerialisedError {
   const e = err as {
     name?: string;
@@ -20,14 +26,22 @@ export function serialiseError(err: unknown): SerialisedError {
     extra?: Record<string, unknown>;
     stack?: string;
   };
-  if (e?.name !== "InputProblem" && e?.name !== "RangeError" && e?.name !== "CancelledError") {
-    console.error(e?.stack ?? String(err));
-  }
+  if (!EXPECTED.has(e?.name ?? "")) console.error(e?.stack ?? String(err));
   return {
     name: e?.name ?? "Error",
     message: e?.message ?? String(err),
     ...(e?.pointer !== undefined ? { pointer: e.pointer } : {}),
     ...(e?.extra !== undefined ? { extra: e.extra } : {}),
+    ...(err instanceof InputError
+      ? {
+        input: {
+          field: err.field,
+          reason: err.reason,
+          ...(err.index !== undefined ? { index: err.index } : {}),
+          ...(err.value !== undefined ? { value: err.value } : {}),
+        },
+      }
+      : {}),
   };
 }
 

@@ -10,6 +10,7 @@
 import type { RunRecord, StoredSeries } from "../store/types.ts";
 import type { RunKind, RunResult } from "../runs/kind.ts";
 import { CancelledError, InputProblem } from "../runs/kind.ts";
+import { InputError } from "../../core/errors.ts";
 import type { ComputeExecutor, ComputeHooks } from "../runs/service.ts";
 import { type SerialisedError, transferablesOf } from "./messages.ts";
 
@@ -35,6 +36,7 @@ interface Job {
 function revive(e: SerialisedError): Error {
   if (e.name === "InputProblem") return new InputProblem(e.pointer ?? "", e.message, e.extra);
   if (e.name === "RangeError") return new RangeError(e.message);
+  if (e.name === "InputError" && e.input) return new InputError(e.message, e.input);
   if (e.name === "CancelledError") return new CancelledError();
   return Object.assign(new Error(e.message), { name: e.name });
 }

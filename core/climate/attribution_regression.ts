@@ -22,6 +22,7 @@ import { ordinaryLeastSquares, type RegressionFit } from "../stats/ordinary_leas
 import { praisWinsten } from "../stats/prais_winsten.ts";
 import { neweyWest } from "../stats/newey_west.ts";
 import { collinearityConditionNumber } from "../stats/condition_number.ts";
+import { InputError } from "../errors.ts";
 
 /** One regressor of {@link attributionRegression}. */
 export interface AttributionRegressor {
@@ -117,8 +118,9 @@ interface Fitted {
  * @param regressors named regressors on the same axis with their lag ranges
  * @param options error model, HAC lags, level, exhaustive-search limit
  * @returns coefficients with intervals, lags, lag surface, contributions and diagnostics
- * @throws {RangeError} on length mismatch, non-finite values, bad lag ranges, duplicate names,
- *   fewer than 10 observations per coefficient, or collinear regressors
+ * @throws {InputError} on length mismatch, non-finite values, bad lag ranges or duplicate names
+ *   (field `regressors` with the regressor's index, or `y`), fewer than 10 observations per
+ *   coefficient (`y`), or regressors collinear at every lag (`regressors`, reason `collinear`)
  * @example
  * ```ts
  * import { attributionRegression } from "./attribution_regression.ts";
@@ -145,42 +147,69 @@ export function attributionRegression(
   const errors = options.errors ?? "ar1";
   const level = options.level ?? 0.95;
   const limit = options.exhaustiveLimit ?? 1000;
-  if (regressors.length === 0) throw new RangeError(`Cannot ${fn}: needs at least one regressor`);
+  if (regressors.length === 0) {
+    throw new InputError(`Cannot ${fn}: needs at least one regressor`, {
+      field: "regressors",
+      reason: "empty",
+    });
+  }
   const names = new Set<string>();
   let maxLag = 0;
-  for (const r of regressors) {
-    if (names.has(r.name)) throw new RangeError(`Cannot ${fn}: regressor name ${r.name} repeats`);
+  for (const [k, r] of regressors.entries()) {
+    if (names.has(r.name)) {
+      throw new InputError(`Cannot ${fn}: regressor name ${r.name} repeats`, {
+        field: "regressors",
+        reason: "invalid",
+        index: k,
+        value: r.name,
+      });
+    }
     names.add(r.name);
     if (r.values.length !== y.length) {
-      throw new RangeError(
+      throw new InputError(
         `Cannot ${fn}: regressor ${r.name} has ${r.values.length} values, y has ${y.length}`,
+        { field: "regressors", reason: "length_mismatch", index: k, value: r.values.length },
       );
     }
     if (
       !Number.isInteger(r.minLag) || !Number.isInteger(r.maxLag) || r.minLag < 0 ||
       r.maxLag < r.minLag
     ) {
-      throw new RangeError(
+      throw new InputError(
         `Cannot ${fn}: regressor ${r.name} needs integer lags 0 ≤ minLag ≤ maxLag, got ${r.minLag}..${r.maxLag}`,
+        { field: "regressors", reason: "out_of_range", index: k, value: [r.minLag, r.maxLag] },
       );
     }
     for (let i = 0; i < r.values.length; i++) {
       if (!Number.isFinite(r.values[i])) {
-        throw new RangeError(`Cannot ${fn}: regressor ${r.name} value ${i} is not finite`);
+        throw new InputError(`Cannot ${fn}: regressor ${r.name} value ${i} is not finite`, {
+          field: "regressors",
+          reason: "not_finite",
+          index: k,
+          value: r.values[i],
+        });
       }
     }
     maxLag = Math.max(maxLag, r.maxLag);
   }
   for (let i = 0; i < y.length; i++) {
-    if (!Number.isFinite(y[i])) throw new RangeError(`Cannot ${fn}: y value ${i} is not finite`);
+    if (!Number.isFinite(y[i])) {
+      throw new InputError(`Cannot ${fn}: y value ${i} is not finite`, {
+        field: "y",
+        reason: "not_finite",
+        index: i,
+        value: y[i],
+      });
+    }
   }
   const first = maxLag, n = y.length - maxLag;
   const p = regressors.length + 1;
   if (n < 10 * p) {
-    throw new RangeError(
+    throw new InputError(
       `Cannot ${fn}: ${p} coefficients need at least ${
         10 * p
       } observations (10 per coefficient) after the largest lag ${maxLag}, got ${n}`,
+      { field: "y", reason: "too_few_points", value: n },
     );
   }
   const ys = y.subarray(first, first + n);
@@ -200,7 +229,7 @@ export function attributionRegression(
         : ordinaryLeastSquares(cols, ys, { names: regNames, level });
       out = { aic: fit.aic, fit };
     } catch (e) {
-      if (e instanceof RangeError && /rank|collinear/i.test(e.message)) {
+      if (e instanceof InputError && e.reason === "collinear") {
         out = { aic: Infinity, fit: undefined as unknown as RegressionFit };
       } else throw e;
     }
@@ -261,7 +290,10 @@ export function attributionRegression(
   }
   const chosen = fitAt(best);
   if (!Number.isFinite(chosen.aic)) {
-    throw new RangeError(`Cannot ${fn}: the regressors are collinear at every lag tried`);
+    throw new InputError(`Cannot ${fn}: the regressors are collinear at every lag tried`, {
+      field: "regressors",
+      reason: "collinear",
+    });
   }
   const lagProfiles = ranges.map((rg, j) => {
     const aic = rg.map((l) => {
@@ -426,7 +458,13 @@ function pearson(a: Float64Array, b: Float64Array): number {
  */
 export function cycleAmplitudeEstimate(x: Float64Array): number {
   const n = x.length;
-  if (n < 3) throw new RangeError(`Cannot estimate cycle amplitude: needs 3 values, got ${n}`);
+  if (n < 3) {
+    throw new InputError(`Cannot estimate cycle amplitude: needs 3 values, got ${n}`, {
+      field: "x",
+      reason: "too_few_points",
+      value: n,
+    });
+  }
   const t = Float64Array.from({ length: n }, (_, i) => i);
   const fit = ordinaryLeastSquares([t], x);
   let ss = 0;

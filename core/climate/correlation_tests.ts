@@ -9,6 +9,7 @@
  *
  * @module
  */
+import { InputError } from "../errors.ts";
 import { normalQuantile, tCdf } from "../stats/distributions.ts";
 
 /** Result of {@link correlationTTest}. */
@@ -26,21 +27,29 @@ export interface CorrelationTTest {
  * @param r correlation in [−1, 1]
  * @param n sample size (may be fractional, an effective size), > 2
  * @returns t, df = n − 2, two-sided p
- * @throws {RangeError} when |r| > 1 or n ≤ 2
+ * @throws {InputError} (field `r` or `n`) when |r| > 1 or n ≤ 2
  * @example
  * ```ts
  * import { correlationTTest } from "./correlation_tests.ts";
  * import assert from "node:assert/strict";
- * // shared/SCIENCE.md §7 (D): r = 0.3 → t = 3.113 at N = 100
+ * // derived from the formula: r = 0.3, N = 100 → t = 0.3 √(98 / 0.91) = 3.113
  * assert.ok(Math.abs(correlationTTest(0.3, 100).t - 3.113) < 5e-4);
  * ```
  */
 export function correlationTTest(r: number, n: number): CorrelationTTest {
   if (!(Math.abs(r) <= 1)) {
-    throw new RangeError(`Cannot test correlation: r must be in [−1, 1], got ${r}`);
+    throw new InputError(`Cannot test correlation: r must be in [−1, 1], got ${r}`, {
+      field: "r",
+      reason: "out_of_range",
+      value: r,
+    });
   }
   if (!(n > 2) || !Number.isFinite(n)) {
-    throw new RangeError(`Cannot test correlation: needs a sample size above 2, got ${n}`);
+    throw new InputError(`Cannot test correlation: needs a sample size above 2, got ${n}`, {
+      field: "n",
+      reason: "too_few_points",
+      value: n,
+    });
   }
   const df = n - 2;
   if (Math.abs(r) === 1) return { t: r > 0 ? Number.MAX_VALUE : -Number.MAX_VALUE, df, p: 0 };
@@ -56,25 +65,38 @@ export function correlationTTest(r: number, n: number): CorrelationTTest {
  * @param n sample size (or N_eff), > 3
  * @param level confidence level in (0, 1) @default 0.95
  * @returns [lower, upper]
- * @throws {RangeError} when |r| ≥ 1, n ≤ 3 or level is outside (0, 1)
+ * @throws {InputError} (field `r`, `n` or `level`) when |r| ≥ 1, n ≤ 3 or level is outside
+ *   (0, 1)
  * @example
  * ```ts
  * import { fisherZInterval } from "./correlation_tests.ts";
  * import assert from "node:assert/strict";
- * // shared/SCIENCE.md §7 (D): r = 0.5, N = 50 → [0.2575, 0.6833]
+ * // derived from the formula: r = 0.5, N = 50 → tanh(artanh 0.5 ± 1.96/√47) = [0.2575, 0.6833]
  * const [lo, hi] = fisherZInterval(0.5, 50);
  * assert.ok(Math.abs(lo - 0.2575) < 5e-5 && Math.abs(hi - 0.6833) < 5e-5);
  * ```
  */
 export function fisherZInterval(r: number, n: number, level = 0.95): [number, number] {
   if (!(Math.abs(r) < 1)) {
-    throw new RangeError(`Cannot compute Fisher interval: r must be in (−1, 1), got ${r}`);
+    throw new InputError(`Cannot compute Fisher interval: r must be in (−1, 1), got ${r}`, {
+      field: "r",
+      reason: "out_of_range",
+      value: r,
+    });
   }
   if (!(n > 3) || !Number.isFinite(n)) {
-    throw new RangeError(`Cannot compute Fisher interval: needs a sample size above 3, got ${n}`);
+    throw new InputError(`Cannot compute Fisher interval: needs a sample size above 3, got ${n}`, {
+      field: "n",
+      reason: "too_few_points",
+      value: n,
+    });
   }
   if (!(level > 0 && level < 1)) {
-    throw new RangeError(`Cannot compute Fisher interval: level must be in (0, 1), got ${level}`);
+    throw new InputError(`Cannot compute Fisher interval: level must be in (0, 1), got ${level}`, {
+      field: "level",
+      reason: "out_of_range",
+      value: level,
+    });
   }
   const z = Math.atanh(r);
   const half = normalQuantile((1 + level) / 2) / Math.sqrt(n - 3);

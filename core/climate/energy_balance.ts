@@ -15,11 +15,12 @@
  * frequency ω sampled every h years the amplitude is low by about (ωh)²/12).
  *
  * Steady-state response to F = F₀ sin ωt (one-box): T = F₀/√(λ² + C²ω²) · sin(ωt − φ),
- * φ = arctan(Cω/λ), lag φ/ω (shared/SCIENCE.md §10). Two-box: the same from the complex
- * transfer function (iω − A)⁻¹b of the linear system.
+ * φ = arctan(Cω/λ), lag φ/ω (the standard first-order linear response; derived). Two-box:
+ * the same from the complex transfer function (iω − A)⁻¹b of the linear system.
  *
  * @module
  */
+import { InputError } from "../errors.ts";
 
 /** Parameters of the one-box model. */
 export interface OneBoxParameters {
@@ -38,8 +39,9 @@ export interface TwoBoxParameters extends OneBoxParameters {
 }
 
 /**
- * Defaults of the one-box model: λ = 1.3 W m-2 K-1, C = 8.0 W yr m-2 K-1 (the worked case of
- * shared/SCIENCE.md §10; C close to a 50–60 m mixed layer).
+ * Defaults of the one-box model: λ = 1.3 W m-2 K-1 (the feedback of Held et al. 2010, J.
+ * Climate 23, 2418; from memory), C = 8.0 W yr m-2 K-1 (a mixed layer of about 60 m of sea
+ * water; common practice).
  */
 export const ONE_BOX_DEFAULTS: Readonly<OneBoxParameters> = { heatCapacity: 8.0, feedback: 1.3 };
 
@@ -57,25 +59,43 @@ export const TWO_BOX_DEFAULTS: Readonly<TwoBoxParameters> = {
 
 function checkPositive(fn: string, name: string, v: number) {
   if (!(v > 0) || !Number.isFinite(v)) {
-    throw new RangeError(`Cannot ${fn}: ${name} must be a positive finite number, got ${v}`);
+    throw new InputError(`Cannot ${fn}: ${name} must be a positive finite number, got ${v}`, {
+      field: name,
+      reason: "out_of_range",
+      value: v,
+    });
   }
 }
 
 function checkSeries(fn: string, time: ArrayLike<number>, forcing: ArrayLike<number>) {
   if (time.length !== forcing.length) {
-    throw new RangeError(
+    throw new InputError(
       `Cannot ${fn}: time has ${time.length} values, forcing has ${forcing.length}`,
+      { field: "forcing", reason: "length_mismatch", value: forcing.length },
     );
   }
   if (time.length < 2) {
-    throw new RangeError(`Cannot ${fn}: needs at least 2 forcing values, got ${time.length}`);
+    throw new InputError(`Cannot ${fn}: needs at least 2 forcing values, got ${time.length}`, {
+      field: "forcing",
+      reason: "too_few_points",
+      value: time.length,
+    });
   }
   for (let i = 0; i < time.length; i++) {
     if (!Number.isFinite(time[i]) || !Number.isFinite(forcing[i])) {
-      throw new RangeError(`Cannot ${fn}: time or forcing at index ${i} is not finite`);
+      throw new InputError(`Cannot ${fn}: time or forcing at index ${i} is not finite`, {
+        field: Number.isFinite(time[i]) ? "forcing" : "time",
+        reason: "not_finite",
+        index: i,
+      });
     }
     if (i > 0 && !(time[i] > time[i - 1])) {
-      throw new RangeError(`Cannot ${fn}: time must increase strictly (index ${i})`);
+      throw new InputError(`Cannot ${fn}: time must increase strictly (index ${i})`, {
+        field: "time",
+        reason: "not_increasing",
+        index: i,
+        value: time[i],
+      });
     }
   }
 }
@@ -89,8 +109,8 @@ function checkSeries(fn: string, time: ArrayLike<number>, forcing: ArrayLike<num
  * @param params heat capacity and feedback @default ONE_BOX_DEFAULTS
  * @param initial temperature at time[0], K @default 0
  * @returns temperature response in K at each time
- * @throws {RangeError} on mismatched, non-finite or non-increasing input, or non-positive
- *   parameters
+ * @throws {InputError} on mismatched, non-finite or non-increasing input (field `time` or
+ *   `forcing`, with the index), or non-positive parameters (the parameter's name)
  * @example
  * ```ts
  * import { oneBoxResponse } from "./energy_balance.ts";
@@ -178,7 +198,7 @@ function twoBoxSystem(p: TwoBoxParameters): { a: M2; b: [number, number] } {
  * @param params C, C_d, λ, γ @default TWO_BOX_DEFAULTS
  * @param initial [T, T_d] at time[0], K @default [0, 0]
  * @returns surface and deep temperatures, K
- * @throws {RangeError} as {@link oneBoxResponse}
+ * @throws {InputError} as {@link oneBoxResponse}
  * @example
  * ```ts
  * import { twoBoxResponse } from "./energy_balance.ts";
@@ -255,12 +275,12 @@ function checkPeriod(fn: string, period: number) {
  * @param params C and λ
  * @param period forcing period P, years
  * @returns gain (K per W m-2), phase (rad), lag (yr)
- * @throws {RangeError} on non-positive parameters or period
+ * @throws {InputError} on non-positive parameters or period (field: the parameter's name)
  * @example
  * ```ts
  * import { oneBoxSinusoidResponse } from "./energy_balance.ts";
  * import assert from "node:assert/strict";
- * // shared/SCIENCE.md §10 (D): λ = 1.3, C = 8, P = 11 yr, F₀ = 0.08875 → 0.0374 K p-p, 2.26 yr
+ * // derived from the closed form: λ = 1.3, C = 8, P = 11 yr, F₀ = 0.08875 → 0.0374 K p-p, 2.26 yr
  * const r = oneBoxSinusoidResponse({ heatCapacity: 8, feedback: 1.3 }, 11);
  * assert.ok(Math.abs(2 * 0.08875 * r.gain - 0.0374) < 5e-5);
  * assert.ok(Math.abs(r.lagYears - 2.26) < 5e-3);
@@ -284,7 +304,7 @@ export function oneBoxSinusoidResponse(params: OneBoxParameters, period: number)
  * @param params C, C_d, λ, γ
  * @param period forcing period P, years
  * @returns gain, phase and lag of the surface temperature
- * @throws {RangeError} on non-positive parameters or period
+ * @throws {InputError} on non-positive parameters or period (field: the parameter's name)
  * @example
  * ```ts
  * import { oneBoxSinusoidResponse, twoBoxSinusoidResponse } from "./energy_balance.ts";
@@ -348,6 +368,73 @@ export function twoBoxTransfer(
 }
 
 /**
+ * Temperature at t = 0 of the steady-state one-box response to F₀ sin(2πt/P):
+ * T(0) = F₀ · gain · sin(−φ) (from {@link oneBoxSinusoidResponse}). An integration started
+ * there follows the steady state from the first step, with no transient to wait out.
+ *
+ * @param params C and λ
+ * @param period forcing period P, years
+ * @param amplitude F₀, W m-2
+ * @returns T(0), K
+ * @throws {InputError} as {@link oneBoxSinusoidResponse}
+ * @example
+ * ```ts
+ * import { oneBoxResponse, oneBoxSinusoidStart } from "./energy_balance.ts";
+ * import assert from "node:assert/strict";
+ * const p = { heatCapacity: 8, feedback: 1.3 };
+ * const t = Float64Array.from({ length: 1101 }, (_, i) => i / 100);
+ * const f = t.map((x) => 0.1 * Math.sin((2 * Math.PI * x) / 11));
+ * const T = oneBoxResponse(t, f, p, oneBoxSinusoidStart(p, 11, 0.1));
+ * // one full period later the steady state is back where it started
+ * assert.ok(Math.abs(T[1100] - T[0]) < 1e-6);
+ * ```
+ */
+export function oneBoxSinusoidStart(
+  params: OneBoxParameters,
+  period: number,
+  amplitude: number,
+): number {
+  const r = oneBoxSinusoidResponse(params, period);
+  return amplitude * r.gain * Math.sin(-r.phase);
+}
+
+/**
+ * Surface and deep temperatures at t = 0 of the steady-state two-box response to
+ * F₀ sin(2πt/P): F₀ times the imaginary parts of the transfer function ({@link twoBoxTransfer}),
+ * so an integration started there has no transient.
+ *
+ * @param params C, C_d, λ, γ
+ * @param period forcing period P, years
+ * @param amplitude F₀, W m-2
+ * @returns [T(0), T_d(0)], K
+ * @throws {InputError} on non-positive parameters or period (field: the parameter's name)
+ * @example
+ * ```ts
+ * import { twoBoxResponse, twoBoxSinusoidStart } from "./energy_balance.ts";
+ * import assert from "node:assert/strict";
+ * const p = { heatCapacity: 7.3, deepHeatCapacity: 106, feedback: 1.3, exchange: 0.7 };
+ * const t = Float64Array.from({ length: 1101 }, (_, i) => i / 100);
+ * const f = t.map((x) => 0.1 * Math.sin((2 * Math.PI * x) / 11));
+ * const r = twoBoxResponse(t, f, p, twoBoxSinusoidStart(p, 11, 0.1));
+ * assert.ok(Math.abs(r.surface[1100] - r.surface[0]) < 1e-6);
+ * assert.ok(Math.abs(r.deep[1100] - r.deep[0]) < 1e-6);
+ * ```
+ */
+export function twoBoxSinusoidStart(
+  params: TwoBoxParameters,
+  period: number,
+  amplitude: number,
+): [number, number] {
+  const fn = "compute two-box sinusoid start";
+  for (const k of ["heatCapacity", "deepHeatCapacity", "feedback", "exchange"] as const) {
+    checkPositive(fn, k, params[k]);
+  }
+  checkPeriod(fn, period);
+  const h = twoBoxTransfer(params, (2 * Math.PI) / period);
+  return [amplitude * h.surfaceIm, amplitude * h.deepIm];
+}
+
+/**
  * Least-squares fit of A sin(ωt − φ) + c to a series (linear in sin, cos and a constant):
  * used to read the amplitude and phase of a numerical response.
  *
@@ -355,7 +442,8 @@ export function twoBoxTransfer(
  * @param values the series
  * @param period P, years
  * @returns amplitude A ≥ 0, phase φ in (−π, π] relative to sin(ωt), and lag φ/ω
- * @throws {RangeError} with fewer than 3 points or a non-positive period
+ * @throws {InputError} with fewer than 3 points (field `values`) or a non-positive period
+ *   (`period`)
  * @example
  * ```ts
  * import { fitSinusoid } from "./energy_balance.ts";
@@ -372,7 +460,11 @@ export function fitSinusoid(
   period: number,
 ): { amplitude: number; phase: number; lagYears: number } {
   if (time.length !== values.length || time.length < 3) {
-    throw new RangeError("Cannot fit sinusoid: needs at least 3 points with matching lengths");
+    throw new InputError("Cannot fit sinusoid: needs at least 3 points with matching lengths", {
+      field: "values",
+      reason: time.length !== values.length ? "length_mismatch" : "too_few_points",
+      value: values.length,
+    });
   }
   checkPeriod("fit sinusoid", period);
   const w = (2 * Math.PI) / period;

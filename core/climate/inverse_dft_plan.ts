@@ -15,6 +15,7 @@
  * @module
  */
 import FFT from "fft.js";
+import { InputError } from "../errors.ts";
 
 /** Inverse DFT of interleaved complex data [re0, im0, re1, im1, ...] of length N. */
 export interface InverseDftPlan {
@@ -45,7 +46,11 @@ export interface InverseDftPlan {
  */
 export function inverseDftPlan(n: number): InverseDftPlan {
   if (!Number.isInteger(n) || n < 1) {
-    throw new RangeError(`Cannot plan inverse DFT: length must be a positive integer, got ${n}`);
+    throw new InputError(`Cannot plan inverse DFT: length must be a positive integer, got ${n}`, {
+      field: "n",
+      reason: "out_of_range",
+      value: n,
+    });
   }
   if (n === 1) {
     return { n, inverse: (i, o) => o.set(i.subarray(0, 2)) };

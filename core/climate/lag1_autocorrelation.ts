@@ -5,6 +5,7 @@
  *
  * @module
  */
+import { InputError } from "../errors.ts";
 
 /**
  * Lag-1 autocorrelation of `x[start..end)`.
@@ -13,7 +14,8 @@
  * @param start first index included @default 0
  * @param end one past the last index @default x.length
  * @returns r₁ in [−1, 1]
- * @throws {RangeError} when fewer than 3 values are given or the segment is constant
+ * @throws {InputError} (field `x`) when fewer than 3 values are given or the segment is
+ *   constant
  * @example
  * ```ts
  * import { lag1Autocorrelation } from "./lag1_autocorrelation.ts";
@@ -25,7 +27,10 @@
 export function lag1Autocorrelation(x: ArrayLike<number>, start = 0, end = x.length): number {
   const n = end - start;
   if (n < 3) {
-    throw new RangeError(`Cannot compute lag-1 autocorrelation: needs at least 3 values, got ${n}`);
+    throw new InputError(
+      `Cannot compute lag-1 autocorrelation: needs at least 3 values, got ${n}`,
+      { field: "x", reason: "too_few_points", value: n },
+    );
   }
   let mean = 0;
   for (let i = start; i < end; i++) mean += x[i];
@@ -39,7 +44,10 @@ export function lag1Autocorrelation(x: ArrayLike<number>, start = 0, end = x.len
     prev = d;
   }
   if (!(c0 > 0)) {
-    throw new RangeError("Cannot compute lag-1 autocorrelation: the series is constant");
+    throw new InputError("Cannot compute lag-1 autocorrelation: the series is constant", {
+      field: "x",
+      reason: "constant",
+    });
   }
   return c1 / c0;
 }

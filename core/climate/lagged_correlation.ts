@@ -18,6 +18,7 @@
 import { lag1Autocorrelation } from "./lag1_autocorrelation.ts";
 import { brethertonEffectiveSampleSize } from "./effective_sample_size.ts";
 import { correlationTTest, fisherZInterval } from "./correlation_tests.ts";
+import { InputError } from "../errors.ts";
 
 /** Which estimator of the lagged correlation. */
 export type CorrelationNormalisation = "overlap" | "full";
@@ -43,24 +44,35 @@ export interface LaggedCorrelation {
 
 function checkInputs(fn: string, x: ArrayLike<number>, y: ArrayLike<number>, w: LagWindow) {
   if (x.length !== y.length) {
-    throw new RangeError(`Cannot ${fn}: x has ${x.length} values, y has ${y.length}`);
+    throw new InputError(`Cannot ${fn}: x has ${x.length} values, y has ${y.length}`, {
+      field: "y",
+      reason: "length_mismatch",
+      value: y.length,
+    });
   }
   for (const [name, s] of [["x", x], ["y", y]] as const) {
     for (let i = 0; i < s.length; i++) {
       if (!Number.isFinite(s[i])) {
-        throw new RangeError(`Cannot ${fn}: ${name}[${i}] is not finite (${s[i]})`);
+        throw new InputError(`Cannot ${fn}: ${name}[${i}] is not finite (${s[i]})`, {
+          field: name,
+          reason: "not_finite",
+          index: i,
+          value: s[i],
+        });
       }
     }
   }
   if (!Number.isInteger(w.minLag) || !Number.isInteger(w.maxLag) || w.minLag > w.maxLag) {
-    throw new RangeError(
+    throw new InputError(
       `Cannot ${fn}: lags must be integers with minLag ≤ maxLag, got ${w.minLag}..${w.maxLag}`,
+      { field: "window", reason: "invalid", value: [w.minLag, w.maxLag] },
     );
   }
   const big = Math.max(Math.abs(w.minLag), Math.abs(w.maxLag));
   if (x.length - big < 3) {
-    throw new RangeError(
+    throw new InputError(
       `Cannot ${fn}: lag ${big} leaves ${x.length - big} overlapping pairs, needs at least 3`,
+      { field: "window", reason: "too_few_points", value: big },
     );
   }
 }
@@ -92,8 +104,8 @@ export function overlapRange(n: number, k: number): [number, number] {
  * @param y climate series on the same axis, same length
  * @param window lag window
  * @returns lags, overlap-Pearson r, R-style rFull and overlap counts
- * @throws {RangeError} on different lengths, non-finite values, a bad window, fewer than 3
- *   overlapping pairs, or a constant series or segment
+ * @throws {InputError} (field `x`, `y` or `window`) on different lengths, non-finite values, a
+ *   bad window, fewer than 3 overlapping pairs, or a constant series or segment
  * @example
  * ```ts
  * import { laggedCorrelation } from "./lagged_correlation.ts";
@@ -125,8 +137,9 @@ export function laggedCorrelation(
     syy += (y[i] - my) ** 2;
   }
   if (!(sxx > 0) || !(syy > 0)) {
-    throw new RangeError(
+    throw new InputError(
       `Cannot compute lagged correlation: the ${sxx > 0 ? "climate" : "solar"} series is constant`,
+      { field: sxx > 0 ? "y" : "x", reason: "constant" },
     );
   }
   const lags: number[] = [];
@@ -153,10 +166,11 @@ export function laggedCorrelation(
       fxy += (x[t] - mx) * (y[t + k] - my);
     }
     if (!(cxx > 0) || !(cyy > 0)) {
-      throw new RangeError(
+      throw new InputError(
         `Cannot compute lagged correlation: at lag ${k} the overlapping ${
           cxx > 0 ? "climate" : "solar"
         } segment is constant`,
+        { field: cxx > 0 ? "y" : "x", reason: "constant", value: k },
       );
     }
     r[j] = Math.max(-1, Math.min(1, cxy / Math.sqrt(cxx * cyy)));
@@ -205,7 +219,7 @@ export interface LagRow {
  * @param normalisation which r the t test and interval use @default "overlap"
  * @param level interval confidence level @default 0.95
  * @returns one row per lag
- * @throws {RangeError} as {@link laggedCorrelation}; also when a segment's lag-1
+ * @throws {InputError} as {@link laggedCorrelation}; also when a segment's lag-1
  *   autocorrelation is ±1 (a degenerate series)
  * @example
  * ```ts
@@ -233,8 +247,9 @@ export function laggedCorrelationTable(
     const r1x = lag1Autocorrelation(x, a, b);
     const r1y = lag1Autocorrelation(y, a + k, b + k);
     if (!(Math.abs(r1x) < 1) || !(Math.abs(r1y) < 1)) {
-      throw new RangeError(
+      throw new InputError(
         `Cannot compute effective sample size at lag ${k}: a lag-1 autocorrelation is ±1`,
+        { field: Math.abs(r1x) < 1 ? "y" : "x", reason: "invalid", value: k },
       );
     }
     const m = c.n[j];

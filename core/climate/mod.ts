@@ -15,3 +15,4 @@ export * from "./energy_balance.ts";
 export * from "./superposed_epoch.ts";
 export * from "./attribution_regression.ts";
 export * from "./inverse_dft_plan.ts";
+export * from "./polynomial_trend_residuals.ts";

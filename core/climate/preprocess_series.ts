@@ -12,6 +12,7 @@
  */
 
 import { inverseRealDft, realDft, type RealSpectrum } from "../spectral/fft.ts";
+import { InputError } from "../errors.ts";
 
 /** Preprocessing applied identically to observations and surrogates. */
 export type DetrendMethod = "mean" | "linear" | "quadratic" | "high_pass";
@@ -34,7 +35,7 @@ export interface PreprocessOptions {
  * @param n number of samples, > degree
  * @param degree 0 (mean), 1 (linear) or 2 (quadratic)
  * @returns `degree + 1` vectors of length n, orthonormal under the plain dot product
- * @throws {RangeError} when n ≤ degree or degree is not 0, 1 or 2
+ * @throws {InputError} when n ≤ degree (field `n`) or degree is not 0, 1 or 2 (`degree`)
  * @example
  * ```ts
  * import { polynomialBasis } from "./preprocess_series.ts";
@@ -46,11 +47,15 @@ export interface PreprocessOptions {
  */
 export function polynomialBasis(n: number, degree: number): Float64Array[] {
   if (![0, 1, 2].includes(degree)) {
-    throw new RangeError(`Cannot build polynomial basis: degree must be 0, 1 or 2, got ${degree}`);
+    throw new InputError(
+      `Cannot build polynomial basis: degree must be 0, 1 or 2, got ${degree}`,
+      { field: "degree", reason: "unsupported", value: degree },
+    );
   }
   if (!Number.isInteger(n) || n <= degree) {
-    throw new RangeError(
+    throw new InputError(
       `Cannot build polynomial basis: needs more than ${degree} samples, got ${n}`,
+      { field: "n", reason: "too_few_points", value: n },
     );
   }
   const mid = (n - 1) / 2, half = Math.max(mid, 1);
@@ -115,8 +120,9 @@ export function removeProjection(x: Float64Array, basis: readonly Float64Array[]
  */
 export function gaussianSigmaForCutoff(cutoffSamples: number): number {
   if (!(cutoffSamples >= 2) || !Number.isFinite(cutoffSamples)) {
-    throw new RangeError(
+    throw new InputError(
       `Cannot build high-pass filter: cutoff must be a finite period of at least 2 samples, got ${cutoffSamples}`,
+      { field: "cutoffSamples", reason: "out_of_range", value: cutoffSamples },
     );
   }
   return cutoffSamples * Math.sqrt(Math.log(1 / (1 - Math.SQRT1_2)) / (2 * Math.PI * Math.PI));
@@ -133,7 +139,7 @@ export function gaussianSigmaForCutoff(cutoffSamples: number): number {
  * @param x series (finite values)
  * @param cutoffSamples half-power cutoff period in samples, ≥ 2
  * @returns the high-passed series
- * @throws {RangeError} when the cutoff is below 2 samples or not finite
+ * @throws {InputError} (field `cutoffSamples`) when the cutoff is below 2 samples or not finite
  * @example
  * ```ts
  * import { gaussianHighPass } from "./preprocess_series.ts";
@@ -223,8 +229,9 @@ function highPassByFft(x: Float64Array, w: Float64Array): Float64Array {
  * @param x evenly spaced values, all finite
  * @param options method (default `mean`) and cutoff for `high_pass`
  * @returns a new array, the preprocessed series
- * @throws {RangeError} when a value is not finite, the series is too short for the method, or
- *   the cutoff is missing or below 2 samples for `high_pass`
+ * @throws {InputError} when a value is not finite (field `x`, with the index), the series is too
+ *   short for the method (`x`), or the cutoff is missing or below 2 samples for `high_pass`
+ *   (`cutoffSamples`)
  * @example
  * ```ts
  * import { preprocessSeries } from "./preprocess_series.ts";
@@ -237,22 +244,40 @@ export function preprocessSeries(x: Float64Array, options: PreprocessOptions = {
   const method = options.method ?? "mean";
   for (let i = 0; i < x.length; i++) {
     if (!Number.isFinite(x[i])) {
-      throw new RangeError(`Cannot preprocess series: value ${i} is not finite (${x[i]})`);
+      throw new InputError(`Cannot preprocess series: value ${i} is not finite (${x[i]})`, {
+        field: "x",
+        reason: "not_finite",
+        index: i,
+        value: x[i],
+      });
     }
   }
   if (method === "high_pass") {
     if (options.cutoffSamples === undefined) {
-      throw new RangeError("Cannot preprocess series: high_pass needs cutoffSamples");
+      throw new InputError("Cannot preprocess series: high_pass needs cutoffSamples", {
+        field: "cutoffSamples",
+        reason: "invalid",
+      });
     }
     if (x.length < 2) {
-      throw new RangeError(`Cannot preprocess series: needs at least 2 samples, got ${x.length}`);
+      throw new InputError(`Cannot preprocess series: needs at least 2 samples, got ${x.length}`, {
+        field: "x",
+        reason: "too_few_points",
+        value: x.length,
+      });
     }
     const out = gaussianHighPass(x, options.cutoffSamples);
     removeProjection(out, polynomialBasis(out.length, 0));
     return out;
   }
   const degree = method === "mean" ? 0 : method === "linear" ? 1 : method === "quadratic" ? 2 : -1;
-  if (degree < 0) throw new RangeError(`Cannot preprocess series: unknown method ${method}`);
+  if (degree < 0) {
+    throw new InputError(`Cannot preprocess series: unknown method ${method}`, {
+      field: "method",
+      reason: "unsupported",
+      value: method,
+    });
+  }
   const out = Float64Array.from(x);
   removeProjection(out, polynomialBasis(out.length, degree));
   return out;

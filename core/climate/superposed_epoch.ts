@@ -17,7 +17,9 @@
  *
  * @module
  */
+import { quantileSorted } from "d3-array";
 import { randomStream } from "../random/random_stream.ts";
+import { InputError } from "../errors.ts";
 
 /** Options of {@link superposedEpoch}. */
 export interface SuperposedEpochOptions {
@@ -95,12 +97,6 @@ function compositeOf(
   for (let j = 0; j < out.length; j++) out[j] = count[j] > 0 ? out[j] / count[j] : NaN;
 }
 
-function quantile7(sorted: Float64Array, p: number): number {
-  const h = (sorted.length - 1) * p, lo = Math.floor(h);
-  const hi = Math.min(lo + 1, sorted.length - 1);
-  return sorted[lo] + (h - lo) * (sorted[hi] - sorted[lo]);
-}
-
 /**
  * Superposed epoch analysis of an evenly spaced series around epoch sample indices.
  *
@@ -108,8 +104,9 @@ function quantile7(sorted: Float64Array, p: number): number {
  * @param epochIndices sample index of each epoch (nearest sample to the key date)
  * @param options window, baseline, bootstrap and random-set counts, seed
  * @returns composite, band, p-values and the epochs used
- * @throws {RangeError} when the window is invalid, fewer than 2 epochs fit inside the series,
- *   counts are not positive integers, or there is no room for random epochs
+ * @throws {InputError} when the window is invalid (field `before`/`after`), fewer than 2
+ *   epochs fit inside the series or there is no room for random epochs (`epochIndices`), or
+ *   counts are not positive integers (`bootstrap`/`randomSets`)
  * @example
  * ```ts
  * import { superposedEpoch } from "./superposed_epoch.ts";
@@ -135,15 +132,27 @@ export function superposedEpoch(
   const fn = "compute superposed epoch composite";
   for (const [name, v] of [["before", before], ["after", after]] as const) {
     if (!Number.isInteger(v) || v < 0) {
-      throw new RangeError(`Cannot ${fn}: ${name} must be a non-negative integer, got ${v}`);
+      throw new InputError(`Cannot ${fn}: ${name} must be a non-negative integer, got ${v}`, {
+        field: name,
+        reason: "out_of_range",
+        value: v,
+      });
     }
   }
   if (baseline && before < 1) {
-    throw new RangeError(`Cannot ${fn}: a pre-epoch baseline needs before ≥ 1`);
+    throw new InputError(`Cannot ${fn}: a pre-epoch baseline needs before ≥ 1`, {
+      field: "before",
+      reason: "out_of_range",
+      value: before,
+    });
   }
   for (const [name, v] of [["bootstrap", B], ["randomSets", R]] as const) {
     if (!Number.isInteger(v) || v < 1) {
-      throw new RangeError(`Cannot ${fn}: ${name} must be a positive integer, got ${v}`);
+      throw new InputError(`Cannot ${fn}: ${name} must be a positive integer, got ${v}`, {
+        field: name,
+        reason: "out_of_range",
+        value: v,
+      });
     }
   }
   const n = x.length;
@@ -152,15 +161,21 @@ export function superposedEpoch(
   const used: number[] = [], dropped: number[] = [];
   for (const e of sortedEpochs) {
     if (!Number.isInteger(e)) {
-      throw new RangeError(`Cannot ${fn}: epoch index ${e} is not an integer`);
+      throw new InputError(`Cannot ${fn}: epoch index ${e} is not an integer`, {
+        field: "epochIndices",
+        reason: "invalid",
+        index: epochIndices.indexOf(e),
+        value: e,
+      });
     }
     if (e >= lo && e <= hi) used.push(e);
     else dropped.push(e);
   }
   const K = used.length;
   if (K < 2) {
-    throw new RangeError(
+    throw new InputError(
       `Cannot ${fn}: needs at least 2 epochs whose window fits in the series, got ${K}`,
+      { field: "epochIndices", reason: "too_few_points", value: K },
     );
   }
   let minSpacing = Infinity;
@@ -182,13 +197,14 @@ export function superposedEpoch(
   }
   const lower: (number | null)[] = [], upper: (number | null)[] = [];
   for (let j = 0; j < w; j++) {
-    const vals = boot[j].filter((v) => !Number.isNaN(v)).sort();
+    const vals = Array.from(boot[j].filter((v) => !Number.isNaN(v)).sort());
     if (vals.length === 0) {
       lower.push(null);
       upper.push(null);
     } else {
-      lower.push(quantile7(vals, (1 - level) / 2));
-      upper.push(quantile7(vals, (1 + level) / 2));
+      // R's type-7 quantiles (Hyndman & Fan 1996), as d3-array computes them
+      lower.push(quantileSorted(vals, (1 - level) / 2)!);
+      upper.push(quantileSorted(vals, (1 + level) / 2)!);
     }
   }
   // random epochs honouring the minimum spacing: K sorted uniform positions in
@@ -196,8 +212,9 @@ export function superposedEpoch(
   const g = Number.isFinite(minSpacing) ? minSpacing : 0;
   const span = hi - lo - (K - 1) * g;
   if (span < 0) {
-    throw new RangeError(
+    throw new InputError(
       `Cannot ${fn}: no room for ${K} random epochs ${g} samples apart in the valid range`,
+      { field: "epochIndices", reason: "invalid", value: K },
     );
   }
   let obsMax = 0;

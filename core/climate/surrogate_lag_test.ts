@@ -35,6 +35,7 @@ import { gaussianHighPass, polynomialBasis, removeProjection } from "./preproces
 import { lag1Autocorrelation } from "./lag1_autocorrelation.ts";
 import { ar1Surrogate, dftAmplitudes, randomPhasors } from "./surrogates.ts";
 import { type InverseDftPlan, inverseDftPlan } from "./inverse_dft_plan.ts";
+import { InputError } from "../errors.ts";
 
 /** Surrogate family. */
 export type SurrogateMethod = "phase" | "ar1";
@@ -147,18 +148,27 @@ export function planSurrogateLagTest(
   const pm = pre.method ?? "mean";
   const degree = pm === "mean" ? 0 : pm === "linear" ? 1 : pm === "quadratic" ? 2 : -1;
   if (!Number.isInteger(options.seed) || options.seed < 0 || options.seed >= 2 ** 32) {
-    throw new RangeError(`Cannot plan surrogate test: seed must be an integer in [0, 2^32)`);
+    throw new InputError(`Cannot plan surrogate test: seed must be an integer in [0, 2^32)`, {
+      field: "seed",
+      reason: "out_of_range",
+      value: options.seed,
+    });
   }
   const obs = laggedCorrelation(x, y, options);
   const src = options.surrogateSource ?? x;
   if (src.length !== x.length) {
-    throw new RangeError(
+    throw new InputError(
       `Cannot plan surrogate test: surrogateSource has ${src.length} values, x has ${x.length}`,
+      { field: "surrogateSource", reason: "length_mismatch", value: src.length },
     );
   }
   for (let i = 0; i < src.length; i++) {
     if (!Number.isFinite(src[i])) {
-      throw new RangeError(`Cannot plan surrogate test: surrogateSource[${i}] is not finite`);
+      throw new InputError(`Cannot plan surrogate test: surrogateSource[${i}] is not finite`, {
+        field: "surrogateSource",
+        reason: "not_finite",
+        index: i,
+      });
     }
   }
   const stat = normalisation === "full" ? obs.rFull : obs.r;
@@ -496,7 +506,12 @@ export function combineSurrogateChunks(
     for (const v of ch.maxAbs) maxima.push(v);
   }
   const m = maxima.length;
-  if (m === 0) throw new RangeError("Cannot combine surrogate tallies: no surrogates");
+  if (m === 0) {
+    throw new InputError("Cannot combine surrogate tallies: no surrogates", {
+      field: "chunks",
+      reason: "empty",
+    });
+  }
   let famEx = 0;
   for (const v of maxima) if (v >= plan.observedMaxAbs - 1e-12) famEx++;
   const srt = Float64Array.from(maxima).sort();

@@ -17,6 +17,7 @@
  */
 import type { RandomStream } from "../random/random_stream.ts";
 import { inverseRealDft, realDft } from "../spectral/fft.ts";
+import { InputError } from "../errors.ts";
 
 const TABLE_BITS = 10;
 const TABLE_SIZE = 1 << TABLE_BITS;
@@ -118,8 +119,9 @@ export function phaseRandomisedSpectrum(
 ): { re: Float64Array; im: Float64Array } {
   const h = Math.floor(n / 2) + 1;
   if (!Number.isInteger(n) || n < 2 || amplitudes.length !== h) {
-    throw new RangeError(
+    throw new InputError(
       `Cannot randomise phases: needs floor(n/2)+1 = ${h} amplitudes for n = ${n}, got ${amplitudes.length}`,
+      { field: "amplitudes", reason: "length_mismatch", value: amplitudes.length },
     );
   }
   const re = new Float64Array(h), im = new Float64Array(h);
@@ -157,7 +159,11 @@ export function phaseRandomisedSpectrum(
  */
 export function ebisuzakiSurrogate(x: ArrayLike<number>, stream: RandomStream): Float64Array {
   if (x.length < 2) {
-    throw new RangeError(`Cannot make surrogate: needs at least 2 values, got ${x.length}`);
+    throw new InputError(`Cannot make surrogate: needs at least 2 values, got ${x.length}`, {
+      field: "x",
+      reason: "too_few_points",
+      value: x.length,
+    });
   }
   const spec = phaseRandomisedSpectrum(dftAmplitudes(x), x.length, stream);
   return inverseRealDft(spec, x.length);
@@ -189,13 +195,25 @@ export function ar1Surrogate(
   stream: RandomStream,
 ): Float64Array {
   if (!(phi > -1 && phi < 1)) {
-    throw new RangeError(`Cannot make AR(1) surrogate: phi must be in (−1, 1), got ${phi}`);
+    throw new InputError(`Cannot make AR(1) surrogate: phi must be in (−1, 1), got ${phi}`, {
+      field: "phi",
+      reason: "out_of_range",
+      value: phi,
+    });
   }
   if (!(sigma > 0) || !Number.isFinite(sigma)) {
-    throw new RangeError(`Cannot make AR(1) surrogate: sigma must be positive, got ${sigma}`);
+    throw new InputError(`Cannot make AR(1) surrogate: sigma must be positive, got ${sigma}`, {
+      field: "sigma",
+      reason: "out_of_range",
+      value: sigma,
+    });
   }
   if (!Number.isInteger(n) || n < 1) {
-    throw new RangeError(`Cannot make AR(1) surrogate: length must be ≥ 1, got ${n}`);
+    throw new InputError(`Cannot make AR(1) surrogate: length must be ≥ 1, got ${n}`, {
+      field: "n",
+      reason: "out_of_range",
+      value: n,
+    });
   }
   const out = new Float64Array(n);
   const e = sigma * Math.sqrt(1 - phi * phi);

@@ -5,6 +5,7 @@
  */
 import type { CalendarResolution, TimeResolution } from "../time/mod.ts";
 import { type PeriodMeans, resampleMeans, type ResampleOptions } from "./resample_means.ts";
+import { InputError } from "../errors.ts";
 
 /** A series to align. */
 export interface AlignInput {
@@ -66,8 +67,9 @@ export interface AlignedSeries {
  * @param to target resolution (not finer than any input's)
  * @param options rule and coverage thresholds
  * @returns the common axis, values per series and what was dropped
- * @throws {RangeError} for fewer than 2 series, a target finer than an input, or no common
- *   period
+ * @throws {InputError} for fewer than 2 series, a target finer than an input (field `to`, index
+ *   of the series), a series {@link resampleMeans} refuses or without a covered period (`series`
+ *   with its index), or no common period (`series`, reason `no_overlap`)
  * @example
  * ```ts
  * import { alignSeries } from "./align_series.ts";
@@ -86,12 +88,17 @@ export function alignSeries(
   options: AlignOptions = {},
 ): AlignedSeries {
   if (series.length < 2) {
-    throw new RangeError(`Cannot align series: needs at least 2 series, got ${series.length}`);
+    throw new InputError(`Cannot align series: needs at least 2 series, got ${series.length}`, {
+      field: "series",
+      reason: "too_few_points",
+      value: series.length,
+    });
   }
   const rule = options.rule ?? "intersection";
   if (rule !== "intersection" && rule !== "common_span") {
-    throw new RangeError(
+    throw new InputError(
       `Cannot align series: rule must be intersection or common_span, got ${rule}`,
+      { field: "rule", reason: "unsupported", value: rule },
     );
   }
   const means: PeriodMeans[] = series.map((s, k) => {
@@ -102,7 +109,16 @@ export function alignSeries(
         uncertainty: s.uncertainty ?? null,
       });
     } catch (e) {
-      throw new RangeError(`Cannot align series: series ${k}: ${(e as Error).message}`);
+      if (!(e instanceof InputError)) throw e;
+      // the target resolution and the thresholds are checked for every series alike; anything
+      // else is about series k
+      const shared = e.field === "to" || e.field.startsWith("min") || e.field.startsWith("max");
+      throw new InputError(`Cannot align series: series ${k}: ${e.message}`, {
+        field: shared ? e.field : "series",
+        reason: e.reason,
+        index: k,
+        value: e.value,
+      });
     }
   });
   const index = means.map((m) => {
@@ -116,8 +132,9 @@ export function alignSeries(
   const lasts = means.map((m) => m.time[m.covered.lastIndexOf(1)]);
   if (firsts.some((t) => t === undefined)) {
     const k = firsts.findIndex((t) => t === undefined);
-    throw new RangeError(
+    throw new InputError(
       `Cannot align series: series ${k} has no ${to} period that meets coverage`,
+      { field: "series", reason: "empty", index: k },
     );
   }
   const lo = Math.max(...firsts), hi = Math.min(...lasts);
@@ -131,9 +148,10 @@ export function alignSeries(
     }
   }
   if (axis.length === 0) {
-    throw new RangeError(
+    throw new InputError(
       `Cannot align series: no common ${to} period where every series has a covered value` +
         (lo > hi ? ` (the series do not overlap in time)` : ""),
+      { field: "series", reason: "no_overlap" },
     );
   }
   const inAxis = new Set(axis);

@@ -4,6 +4,7 @@
  * @module
  */
 import { calendarInstant } from "../time/mod.ts";
+import { InputError } from "../errors.ts";
 
 /** Options of {@link anomaliesFromBasePeriod}. */
 export interface AnomalyOptions {
@@ -41,8 +42,9 @@ export interface Anomalies {
  * @param base `{ start, end }` decimal years, start < end, end exclusive
  * @param options climatology
  * @returns anomalies, baselines, base means and their counts
- * @throws {RangeError} when the base period holds no data (or, for the monthly climatology, no
- *   data for some calendar month, naming the months), or for malformed input
+ * @throws {InputError} (field `base`) when the base period holds no data (or, for the monthly
+ *   climatology, no data for some calendar month: `value` lists the months 1–12), or for
+ *   malformed input (`series`, `climatology`)
  * @example
  * ```ts
  * import { anomaliesFromBasePeriod } from "./anomalies_from_base_period.ts";
@@ -64,23 +66,30 @@ export function anomaliesFromBasePeriod(
   const n = time.length;
   const mode = options.climatology ?? "mean";
   if (mode !== "mean" && mode !== "monthly") {
-    throw new RangeError(
+    throw new InputError(
       `Cannot compute anomalies: climatology must be mean or monthly, got ${mode}`,
+      { field: "climatology", reason: "unsupported", value: mode },
     );
   }
   if (value.length !== n) {
-    throw new RangeError(
+    throw new InputError(
       `Cannot compute anomalies: value has ${value.length} entries but time has ${n}`,
+      { field: "series", reason: "length_mismatch", value: value.length },
     );
   }
   if (!(Number.isFinite(base.start) && Number.isFinite(base.end) && base.start < base.end)) {
-    throw new RangeError(
+    throw new InputError(
       `Cannot compute anomalies: base period must have finite start < end, got ${base.start}..${base.end}`,
+      { field: "base", reason: "invalid", value: [base.start, base.end] },
     );
   }
   for (let i = 0; i < n; i++) {
     if (!Number.isFinite(time[i]) || !Number.isFinite(value[i])) {
-      throw new RangeError(`Cannot compute anomalies: point ${i} is not finite`);
+      throw new InputError(`Cannot compute anomalies: point ${i} is not finite`, {
+        field: "series",
+        reason: "not_finite",
+        index: i,
+      });
     }
   }
   const groups = mode === "monthly" ? 12 : 1;
@@ -96,17 +105,19 @@ export function anomaliesFromBasePeriod(
     }
   }
   if (count.every((c) => c === 0)) {
-    throw new RangeError(
+    throw new InputError(
       `Cannot compute anomalies: the base period ${base.start}..${base.end} holds no data ` +
         `(series spans ${n ? time[0] : "nothing"}..${n ? time[n - 1] : ""})`,
+      { field: "base", reason: "no_overlap", value: [base.start, base.end] },
     );
   }
   const empty = [...count.keys()].filter((g) => count[g] === 0);
   if (empty.length > 0) {
     const names = empty.map((g) => MONTHS[g]).join(", ");
-    throw new RangeError(
+    throw new InputError(
       `Cannot compute anomalies: the base period ${base.start}..${base.end} holds no data for ${names}; ` +
         `a monthly climatology needs every calendar month`,
+      { field: "base", reason: "empty", value: empty.map((g) => g + 1) },
     );
   }
   const baseMeans = Float64Array.from(sum, (s, g) => s / count[g]);

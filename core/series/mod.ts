@@ -10,3 +10,4 @@ export * from "./resample_means.ts";
 export * from "./anomalies_from_base_period.ts";
 export * from "./align_series.ts";
 export * from "./sunspot_number_versions.ts";
+export * from "./longest_complete_run.ts";

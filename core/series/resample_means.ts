@@ -11,6 +11,7 @@ import {
   type TimeResolution,
 } from "../time/mod.ts";
 import { periodKey, periodOfKey } from "./period_key.ts";
+import { InputError } from "../errors.ts";
 
 /** Coverage thresholds of {@link resampleMeans}. */
 export interface ResampleOptions {
@@ -83,7 +84,9 @@ const RANK: Record<CalendarResolution, number> = { daily: 0, monthly: 1, annual:
  * @param to target resolution: `daily`, `monthly` or `annual`, not finer than the input
  * @param options input resolution, uncertainty and coverage thresholds
  * @returns means, bounds, counts and coverage per period
- * @throws {RangeError} for a target finer than the input, thresholds out of range, or bad input
+ * @throws {InputError} for a target finer than the input or too many periods (field `to`),
+ *   thresholds out of range (the option's name), or bad input (`time`, `value` or
+ *   `uncertainty`, with the index of a non-finite value)
  * @example
  * ```ts
  * import { resampleMeans } from "./resample_means.ts";
@@ -107,25 +110,42 @@ export function resampleMeans(
   const { time, value } = series;
   const n = time.length;
   if (!(to in RANK)) {
-    throw new RangeError(`Cannot resample: target must be daily, monthly or annual, got ${to}`);
+    throw new InputError(`Cannot resample: target must be daily, monthly or annual, got ${to}`, {
+      field: "to",
+      reason: "unsupported",
+      value: to,
+    });
   }
   if (value.length !== n) {
-    throw new RangeError(
+    throw new InputError(
       `Cannot resample: value has ${value.length} entries but time has ${n}`,
+      { field: "value", reason: "length_mismatch", value: value.length },
     );
   }
   const unc = options.uncertainty ?? null;
   if (unc && unc.length !== n) {
-    throw new RangeError(
+    throw new InputError(
       `Cannot resample: uncertainty has ${unc.length} entries but time has ${n}`,
+      { field: "uncertainty", reason: "length_mismatch", value: unc.length },
     );
   }
   for (let i = 0; i < n; i++) {
     if (!Number.isFinite(value[i])) {
-      throw new RangeError(`Cannot resample: value[${i}] is not finite (${value[i]})`);
+      throw new InputError(`Cannot resample: value[${i}] is not finite (${value[i]})`, {
+        field: "value",
+        reason: "not_finite",
+        index: i,
+        value: value[i],
+      });
     }
   }
-  if (n < 2) throw new RangeError(`Cannot resample: needs at least 2 points, got ${n}`);
+  if (n < 2) {
+    throw new InputError(`Cannot resample: needs at least 2 points, got ${n}`, {
+      field: "value",
+      reason: "too_few_points",
+      value: n,
+    });
+  }
   const from = options.from ?? inferResolution(time);
   const minDays = checkInt(options.minDaysPerMonth ?? 20, "minDaysPerMonth", 1, 31);
   const minMonths = checkInt(options.minMonthsPerYear ?? 10, "minMonthsPerYear", 1, 12);
@@ -135,8 +155,9 @@ export function resampleMeans(
     : checkInt(options.maxMissingRunDays, "maxMissingRunDays", 0, 31);
   const runRule = maxRun === null ? "" : ` and no run of more than ${maxRun} missing days`;
   if (from !== "irregular" && RANK[from] > RANK[to]) {
-    throw new RangeError(
+    throw new InputError(
       `Cannot resample ${from} data to ${to}: resampling only averages into longer periods`,
+      { field: "to", reason: "unsupported", value: to },
     );
   }
 
@@ -187,7 +208,12 @@ function bin(
   const keys = new Float64Array(n);
   for (let i = 0; i < n; i++) {
     if (!Number.isFinite(time[i])) {
-      throw new RangeError(`Cannot resample: time[${i}] is not finite (${time[i]})`);
+      throw new InputError(`Cannot resample: time[${i}] is not finite (${time[i]})`, {
+        field: "time",
+        reason: "not_finite",
+        index: i,
+        value: time[i],
+      });
     }
     keys[i] = periodKey(time[i], to);
   }
@@ -198,7 +224,11 @@ function bin(
   }
   const m = n === 0 ? 0 : k1 - k0 + 1;
   if (m > 5_000_000) {
-    throw new RangeError(`Cannot resample: ${m} ${to} periods is too many (at most 5,000,000)`);
+    throw new InputError(`Cannot resample: ${m} ${to} periods is too many (at most 5,000,000)`, {
+      field: "to",
+      reason: "out_of_range",
+      value: m,
+    });
   }
   const sum = new Float64Array(m), sq = unc ? new Float64Array(m) : null;
   const count = new Int32Array(m);
@@ -284,8 +314,9 @@ function merge(
 
 function checkInt(v: number, name: string, lo: number, hi: number): number {
   if (!Number.isInteger(v) || v < lo || v > hi) {
-    throw new RangeError(
+    throw new InputError(
       `Cannot resample: ${name} must be an integer in ${lo}..${hi}, current value is ${v}`,
+      { field: name, reason: "out_of_range", value: v },
     );
   }
   return v;

@@ -5,6 +5,7 @@
  */
 import { Matrix, SVD } from "ml-matrix";
 import { householderR } from "./least_squares_qr.ts";
+import { InputError } from "../errors.ts";
 
 /**
  * The exact 2-norm condition number κ(X) = σ_max / σ_min of a design given as columns: the
@@ -13,7 +14,7 @@ import { householderR } from "./least_squares_qr.ts";
  *
  * @param columns the design X as columns of equal length n ≥ p
  * @returns κ(X) ≥ 1, or Infinity for a rank-deficient design
- * @throws {RangeError} when there are no columns, lengths differ or n < p
+ * @throws {InputError} when there are no columns, lengths differ or n < p
  * @example
  * ```ts
  * import { conditionNumber } from "./condition_number.ts";
@@ -24,15 +25,28 @@ import { householderR } from "./least_squares_qr.ts";
  */
 export function conditionNumber(columns: readonly Float64Array[]): number {
   const p = columns.length;
-  if (p === 0) throw new RangeError("Cannot compute condition number: the design has no columns");
+  if (p === 0) {
+    throw new InputError("Cannot compute condition number: the design has no columns", {
+      field: "columns",
+      reason: "empty",
+    });
+  }
   const n = columns[0].length;
-  for (const c of columns) {
+  for (const [j, c] of columns.entries()) {
     if (c.length !== n) {
-      throw new RangeError("Cannot compute condition number: columns differ in length");
+      throw new InputError("Cannot compute condition number: columns differ in length", {
+        field: "columns",
+        reason: "length_mismatch",
+        index: j,
+      });
     }
   }
   if (n < p) {
-    throw new RangeError(`Cannot compute condition number: needs at least ${p} rows, got ${n}`);
+    throw new InputError(`Cannot compute condition number: needs at least ${p} rows, got ${n}`, {
+      field: "columns",
+      reason: "too_few_points",
+      value: n,
+    });
   }
   return conditionNumberOfR(householderR(columns).r);
 }
@@ -71,7 +85,7 @@ export function conditionNumberOfR(r: number[][]): number {
  * @param columns regressors (without the intercept), each of length n ≥ 2
  * @returns the condition number ≥ 1 (1 for a single regressor), Infinity when a regressor is
  *   constant or a combination of the others
- * @throws {RangeError} when there are no columns or lengths differ
+ * @throws {InputError} when there are no columns or lengths differ
  * @example
  * ```ts
  * import { collinearityConditionNumber } from "./condition_number.ts";
@@ -84,14 +98,18 @@ export function conditionNumberOfR(r: number[][]): number {
  */
 export function collinearityConditionNumber(columns: readonly Float64Array[]): number {
   if (columns.length === 0) {
-    throw new RangeError("Cannot compute collinearity condition number: no regressors");
+    throw new InputError("Cannot compute collinearity condition number: no regressors", {
+      field: "columns",
+      reason: "empty",
+    });
   }
   const n = columns[0].length;
   const scaled: Float64Array[] = [];
-  for (const c of columns) {
+  for (const [j, c] of columns.entries()) {
     if (c.length !== n) {
-      throw new RangeError(
+      throw new InputError(
         "Cannot compute collinearity condition number: columns differ in length",
+        { field: "columns", reason: "length_mismatch", index: j },
       );
     }
     let m = 0;

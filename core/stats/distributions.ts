@@ -1,8 +1,8 @@
 /**
  * Typed wrappers for the Student-t, normal and chi-square distribution functions of the
  * maintained `@stdlib` packages (cumulative distribution functions and quantiles). The
- * wrappers check their arguments, so a bad degree of freedom is a RangeError, never a silent
- * NaN.
+ * wrappers check their arguments, so a bad degree of freedom is an {@link InputError} (a
+ * RangeError naming the argument), never a silent NaN.
  *
  * @module
  */
@@ -11,23 +11,31 @@ import stdlibTQuantile from "@stdlib/stats-base-dists-t-quantile";
 import stdlibNormalCdf from "@stdlib/stats-base-dists-normal-cdf";
 import stdlibNormalQuantile from "@stdlib/stats-base-dists-normal-quantile";
 import stdlibChiSquareCdf from "@stdlib/stats-base-dists-chisquare-cdf";
+import { InputError } from "../errors.ts";
 
-function checkDf(fn: string, df: number): void {
+function checkDf(fn: string, df: number, field = "df"): void {
   if (!(df > 0) || !Number.isFinite(df)) {
-    throw new RangeError(
+    throw new InputError(
       `Cannot evaluate ${fn}: degrees of freedom must be a positive finite number, current value is ${df}`,
+      { field, reason: "out_of_range", value: df },
     );
   }
 }
 
 function checkProbability(fn: string, p: number): void {
   if (!(p >= 0 && p <= 1)) {
-    throw new RangeError(`Cannot evaluate ${fn}: p must be in [0, 1], current value is ${p}`);
+    throw new InputError(`Cannot evaluate ${fn}: p must be in [0, 1], current value is ${p}`, {
+      field: "p",
+      reason: "out_of_range",
+      value: p,
+    });
   }
 }
 
 function checkX(fn: string, x: number): void {
-  if (Number.isNaN(x)) throw new RangeError(`Cannot evaluate ${fn}: x is NaN`);
+  if (Number.isNaN(x)) {
+    throw new InputError(`Cannot evaluate ${fn}: x is NaN`, { field: "x", reason: "not_finite" });
+  }
 }
 
 /**
@@ -36,7 +44,7 @@ function checkX(fn: string, x: number): void {
  * @param x the value (±Infinity allowed)
  * @param df degrees of freedom, positive (need not be an integer)
  * @returns a probability in [0, 1]
- * @throws {RangeError} when x is NaN or df is not a positive finite number
+ * @throws {InputError} when x is NaN or df is not a positive finite number
  * @example
  * ```ts
  * import { tCdf } from "./distributions.ts";
@@ -57,7 +65,7 @@ export function tCdf(x: number, df: number): number {
  * @param p probability in [0, 1]
  * @param df degrees of freedom, positive
  * @returns the quantile (±Infinity at p = 0 or 1)
- * @throws {RangeError} when p is outside [0, 1] or df is not a positive finite number
+ * @throws {InputError} when p is outside [0, 1] or df is not a positive finite number
  * @example
  * ```ts
  * import { tQuantile } from "./distributions.ts";
@@ -79,7 +87,7 @@ export function tQuantile(p: number, df: number): number {
  * @param mean @default 0
  * @param sd standard deviation, positive @default 1
  * @returns a probability in [0, 1]
- * @throws {RangeError} when x is NaN or sd is not positive
+ * @throws {InputError} when x is NaN or sd is not positive
  * @example
  * ```ts
  * import { normalCdf } from "./distributions.ts";
@@ -91,8 +99,9 @@ export function tQuantile(p: number, df: number): number {
 export function normalCdf(x: number, mean = 0, sd = 1): number {
   checkX("normalCdf", x);
   if (!(sd > 0) || !Number.isFinite(sd) || !Number.isFinite(mean)) {
-    throw new RangeError(
+    throw new InputError(
       `Cannot evaluate normalCdf: needs finite mean and positive sd, got mean ${mean}, sd ${sd}`,
+      { field: Number.isFinite(mean) ? "sd" : "mean", reason: "out_of_range" },
     );
   }
   return stdlibNormalCdf(x, mean, sd);
@@ -105,7 +114,7 @@ export function normalCdf(x: number, mean = 0, sd = 1): number {
  * @param mean @default 0
  * @param sd standard deviation, positive @default 1
  * @returns the quantile (±Infinity at p = 0 or 1)
- * @throws {RangeError} when p is outside [0, 1] or sd is not positive
+ * @throws {InputError} when p is outside [0, 1] or sd is not positive
  * @example
  * ```ts
  * import { normalQuantile } from "./distributions.ts";
@@ -117,8 +126,9 @@ export function normalCdf(x: number, mean = 0, sd = 1): number {
 export function normalQuantile(p: number, mean = 0, sd = 1): number {
   checkProbability("normalQuantile", p);
   if (!(sd > 0) || !Number.isFinite(sd) || !Number.isFinite(mean)) {
-    throw new RangeError(
+    throw new InputError(
       `Cannot evaluate normalQuantile: needs finite mean and positive sd, got mean ${mean}, sd ${sd}`,
+      { field: Number.isFinite(mean) ? "sd" : "mean", reason: "out_of_range" },
     );
   }
   return stdlibNormalQuantile(p, mean, sd);
@@ -130,7 +140,7 @@ export function normalQuantile(p: number, mean = 0, sd = 1): number {
  * @param x the value (negative x gives 0)
  * @param k degrees of freedom, positive
  * @returns a probability in [0, 1]
- * @throws {RangeError} when x is NaN or k is not a positive finite number
+ * @throws {InputError} when x is NaN or k is not a positive finite number
  * @example
  * ```ts
  * import { chiSquareCdf } from "./distributions.ts";
@@ -141,6 +151,6 @@ export function normalQuantile(p: number, mean = 0, sd = 1): number {
  */
 export function chiSquareCdf(x: number, k: number): number {
   checkX("chiSquareCdf", x);
-  checkDf("chiSquareCdf", k);
+  checkDf("chiSquareCdf", k, "k");
   return stdlibChiSquareCdf(x, k);
 }

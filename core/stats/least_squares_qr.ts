@@ -11,6 +11,7 @@
  *
  * @module
  */
+import { InputError } from "../errors.ts";
 
 /** Result of {@link leastSquaresQr}. */
 export interface LeastSquaresQr {
@@ -30,7 +31,7 @@ export interface LeastSquaresQr {
  * @param overwrite factorise `columns` and `y` in place (scratch arrays; saves the copies)
  *   @default false
  * @returns coefficients, R and (XᵀX)⁻¹
- * @throws {RangeError} when lengths differ, n < p, or X is numerically rank deficient
+ * @throws {InputError} when lengths differ, n < p, or X is numerically rank deficient
  *   (a diagonal element of R below 1e-10 of the largest: collinear columns)
  * @example
  * ```ts
@@ -50,16 +51,26 @@ export function leastSquaresQr(
 ): LeastSquaresQr {
   const p = columns.length;
   const n = y.length;
-  if (p === 0) throw new RangeError("Cannot solve least squares: the design has no columns");
+  if (p === 0) {
+    throw new InputError("Cannot solve least squares: the design has no columns", {
+      field: "columns",
+      reason: "empty",
+    });
+  }
   for (let j = 0; j < p; j++) {
     if (columns[j].length !== n) {
-      throw new RangeError(
+      throw new InputError(
         `Cannot solve least squares: column ${j} has length ${columns[j].length}, y has ${n}`,
+        { field: "columns", reason: "length_mismatch", index: j },
       );
     }
   }
   if (n < p) {
-    throw new RangeError(`Cannot solve least squares: needs at least ${p} rows, got ${n}`);
+    throw new InputError(`Cannot solve least squares: needs at least ${p} rows, got ${n}`, {
+      field: "y",
+      reason: "too_few_points",
+      value: n,
+    });
   }
   const { r, qty } = householderR(columns, y, overwrite);
   const diag = r.map((row, i) => row[i]);
@@ -67,8 +78,9 @@ export function leastSquaresQr(
   for (let i = 0; i < p; i++) maxDiag = Math.max(maxDiag, Math.abs(diag[i]));
   for (let i = 0; i < p; i++) {
     if (!(Math.abs(diag[i]) > 1e-10 * maxDiag)) {
-      throw new RangeError(
+      throw new InputError(
         `Cannot solve least squares: the design is rank deficient (column ${i} is collinear with the columns before it)`,
+        { field: "columns", reason: "collinear", index: i },
       );
     }
   }

@@ -6,6 +6,7 @@
 import { leastSquaresQr } from "./least_squares_qr.ts";
 import type { RegressionFit } from "./ordinary_least_squares.ts";
 import { normalCdf, normalQuantile } from "./distributions.ts";
+import { InputError } from "../errors.ts";
 
 /** Options for {@link neweyWest}. */
 export interface NeweyWestOptions {
@@ -58,7 +59,7 @@ export function neweyWestDefaultLag(n: number): number {
  * @param fit an OLS {@link RegressionFit} (its design and residuals are used)
  * @param options {@link NeweyWestOptions}
  * @returns the {@link NeweyWestResult}
- * @throws {RangeError} when maxLags is not an integer in [0, n − 1]
+ * @throws {InputError} when maxLags is not an integer in [0, n − 1]
  * @example
  * ```ts
  * import { ordinaryLeastSquares } from "./ordinary_least_squares.ts";
@@ -77,10 +78,11 @@ export function neweyWest(fit: RegressionFit, options: NeweyWestOptions = {}): N
   const L = options.maxLags ?? neweyWestDefaultLag(n);
   const useCorrection = options.useCorrection ?? true;
   if (!Number.isInteger(L) || L < 0 || L > n - 1) {
-    throw new RangeError(
+    throw new InputError(
       `Cannot compute Newey–West covariance: maxLags must be an integer in [0, ${
         n - 1
       }], current value is ${L}`,
+      { field: "maxLags", reason: "out_of_range", value: L },
     );
   }
   // scores x_t e_t

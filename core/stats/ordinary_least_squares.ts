@@ -7,6 +7,7 @@ import { residualLag1 } from "./residual_lag1.ts";
 import { leastSquaresQr } from "./least_squares_qr.ts";
 import { conditionNumberOfR } from "./condition_number.ts";
 import { tCdf, tQuantile } from "./distributions.ts";
+import { InputError } from "../errors.ts";
 
 /** Options for {@link ordinaryLeastSquares}. */
 export interface OlsOptions {
@@ -71,23 +72,36 @@ export interface RegressionFit {
 }
 
 /**
- * Throw a RangeError naming the function, the array and the index unless every value is finite.
+ * Throw an {@link InputError} naming the function, the array and the index unless every value
+ * is finite.
  *
  * @param fn what was being done, e.g. "fit ordinary least squares"
- * @param what the array's name
+ * @param what the array's name in the message
  * @param x the values
- * @throws {RangeError} at the first NaN or ±Infinity
+ * @param at the argument the error names and, for an array of arrays, which one (default: `what`
+ *   and the index of the value)
+ * @throws {InputError} at the first NaN or ±Infinity
  * @example
  * ```ts
  * import { assertFinite } from "./ordinary_least_squares.ts";
  * import assert from "node:assert/strict";
- * assert.throws(() => assertFinite("fit", "y", [1, NaN]), /y has a non-finite value at index 1/);
+ * assert.throws(() => assertFinite("fit", "y", [1, NaN]), { field: "y", index: 1 });
  * ```
  */
-export function assertFinite(fn: string, what: string, x: ArrayLike<number>): void {
+export function assertFinite(
+  fn: string,
+  what: string,
+  x: ArrayLike<number>,
+  at: { field: string; index?: number } = { field: what },
+): void {
   for (let i = 0; i < x.length; i++) {
     if (!Number.isFinite(x[i])) {
-      throw new RangeError(`Cannot ${fn}: ${what} has a non-finite value at index ${i} (${x[i]})`);
+      throw new InputError(`Cannot ${fn}: ${what} has a non-finite value at index ${i} (${x[i]})`, {
+        field: at.field,
+        reason: "not_finite",
+        index: at.index ?? i,
+        value: x[i],
+      });
     }
   }
 }
@@ -102,7 +116,8 @@ export function assertFinite(fn: string, what: string, x: ArrayLike<number>): vo
  * @param intercept prepend a column of ones
  * @param names regressor names, or undefined for x1, x2, ...
  * @returns the design columns and the coefficient names
- * @throws {RangeError} for non-finite values, length mismatch or fewer than p + 1 points
+ * @throws {InputError} for non-finite values, length mismatch or fewer than p + 1 points (field
+ *   `y`, `columns` with the column's index, or `names`)
  * @example
  * ```ts
  * import { buildDesign } from "./ordinary_least_squares.ts";
@@ -123,13 +138,18 @@ export function buildDesign(
   assertFinite(fn, "y", y);
   columns.forEach((c, j) => {
     if (c.length !== n) {
-      throw new RangeError(`Cannot ${fn}: column ${j} has length ${c.length}, y has ${n}`);
+      throw new InputError(`Cannot ${fn}: column ${j} has length ${c.length}, y has ${n}`, {
+        field: "columns",
+        reason: "length_mismatch",
+        index: j,
+      });
     }
-    assertFinite(fn, `column ${j}`, c);
+    assertFinite(fn, `column ${j}`, c, { field: "columns", index: j });
   });
   if (names && names.length !== columns.length) {
-    throw new RangeError(
+    throw new InputError(
       `Cannot ${fn}: ${names.length} names given for ${columns.length} columns`,
+      { field: "names", reason: "length_mismatch", value: names.length },
     );
   }
   const design = intercept ? [new Float64Array(n).fill(1), ...columns] : [...columns];
@@ -137,12 +157,18 @@ export function buildDesign(
     ...(intercept ? ["intercept"] : []),
     ...(names ?? columns.map((_, j) => `x${j + 1}`)),
   ];
-  if (design.length === 0) throw new RangeError(`Cannot ${fn}: the design has no columns`);
+  if (design.length === 0) {
+    throw new InputError(`Cannot ${fn}: the design has no columns`, {
+      field: "columns",
+      reason: "empty",
+    });
+  }
   if (n < design.length + 1) {
-    throw new RangeError(
+    throw new InputError(
       `Cannot ${fn}: needs at least ${
         design.length + 1
       } points for ${design.length} coefficients, got ${n}`,
+      { field: "y", reason: "too_few_points", value: n },
     );
   }
   return { design, names: nm };
@@ -159,7 +185,7 @@ export function buildDesign(
  * @param intercept whether the design has an intercept column
  * @param level confidence level in (0, 1)
  * @returns the statistics
- * @throws {RangeError} for a level outside (0, 1)
+ * @throws {InputError} for a level outside (0, 1)
  * @example
  * ```ts
  * import { fitStatistics } from "./ordinary_least_squares.ts";
@@ -207,8 +233,9 @@ export function fitStatistics(
   const adjRSquared = 1 - (1 - rSquared) * (n - (intercept ? 1 : 0)) / (n - p);
   const lag1 = residualLag1(residuals);
   if (!(level > 0 && level < 1)) {
-    throw new RangeError(
+    throw new InputError(
       `Cannot fit regression: level must be in (0, 1), current value is ${level}`,
+      { field: "level", reason: "out_of_range", value: level },
     );
   }
   const tcrit = tQuantile(1 - (1 - level) / 2, n - p);
@@ -278,8 +305,9 @@ export function coefficientInference(
  * @param y response, length n
  * @param options {@link OlsOptions}
  * @returns the {@link RegressionFit}
- * @throws {RangeError} on non-finite values, length mismatch, fewer than p + 1 points, or a
- *   rank-deficient (collinear) design
+ * @throws {InputError} on non-finite values, length mismatch, fewer than p + 1 points (as
+ *   {@link buildDesign}), or a rank-deficient design (field `columns`, reason `collinear`, index
+ *   of the design column, the intercept first when there is one)
  * @example
  * ```ts
  * import { ordinaryLeastSquares } from "./ordinary_least_squares.ts";

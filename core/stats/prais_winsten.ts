@@ -5,6 +5,7 @@
  */
 import { leastSquaresQr } from "./least_squares_qr.ts";
 import { conditionNumberOfR } from "./condition_number.ts";
+import { InputError } from "../errors.ts";
 import {
   buildDesign,
   coefficientInference,
@@ -79,7 +80,7 @@ function transform(x: Float64Array, rho: number, out: Float64Array): Float64Arra
  * @param y response, length n
  * @param options {@link PraisWinstenOptions}
  * @returns the {@link PraisWinstenFit}
- * @throws {RangeError} as {@link ordinaryLeastSquares}, and when n < p + 2
+ * @throws {InputError} as {@link ordinaryLeastSquares}, and when n < p + 2
  * @example
  * ```ts
  * import { praisWinsten } from "./prais_winsten.ts";
@@ -111,7 +112,11 @@ export function praisWinsten(
   const { design, names } = buildDesign(fn, columns, y, intercept, options.names);
   const n = y.length, p = design.length;
   if (n < p + 2) {
-    throw new RangeError(`Cannot ${fn}: needs at least ${p + 2} points, got ${n}`);
+    throw new InputError(`Cannot ${fn}: needs at least ${p + 2} points, got ${n}`, {
+      field: "y",
+      reason: "too_few_points",
+      value: n,
+    });
   }
   let qr = leastSquaresQr(design, y);
   const kappa = conditionNumberOfR(qr.r);

@@ -1,6 +1,6 @@
 /**
- * The lag-1 autocorrelation of regression residuals as the Cochrane–Orcutt (1949) and
- * Prais–Winsten (1954) procedures estimate it (shared/SCIENCE.md §7):
+ * The lag-1 autocorrelation of regression residuals as the Cochrane–Orcutt (1949, J. Am.
+ * Stat. Assoc. 44, 32) and Prais–Winsten (1954) procedures estimate it (citations from memory):
  * ρ̂ = Σ_{t≥2} e_t e_{t−1} / Σ_t e_t², residuals taken as they are (no mean removed: OLS
  * residuals with an intercept have mean zero already).
  *

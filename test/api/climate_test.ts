@@ -121,11 +121,16 @@ Deno.test("POST /v1/lag-correlations rejects bad input with 422 problems naming 
         await svc.post("/v1/lag-correlations", { solar, climate, surrogates: 50 }),
         422,
       );
-      assert.match(JSON.stringify(body.errors), /surrogates/);
+      assert.ok(body.errors.some((e: { pointer: string }) => e.pointer === "/surrogates"));
     });
     await t.step("no overlap and fewer than 10 overlapping points", async () => {
       const late = monthlySeries("late", "temperature_anomaly", "K", 2100, 60, (i) => Math.sin(i));
-      await assertProblem(await svc.post("/v1/lag-correlations", { solar, climate: late }), 422);
+      const none = await assertProblem(
+        await svc.post("/v1/lag-correlations", { solar, climate: late }),
+        422,
+      );
+      assert.equal(none.errors[0].pointer, "/climate");
+      assert.equal(none.reason, "no_overlap");
       const short = monthlySeries(
         "short",
         "temperature_anomaly",
@@ -140,7 +145,9 @@ Deno.test("POST /v1/lag-correlations rejects bad input with 422 problems naming 
         await svc.post("/v1/lag-correlations", { solar, climate: late8, significance: "none" }),
         422,
       );
-      assert.match(body.detail, /at least 10/);
+      assert.equal(body.errors[0].pointer, "/climate");
+      assert.equal(body.periods, 8);
+      assert.equal(body.min_periods, 10);
     });
     await t.step("high-pass without a cutoff", async () => {
       const body = await assertProblem(
@@ -196,7 +203,9 @@ Deno.test("POST /v1/attributions rejects more regressors than the data can carry
       422,
     );
     assert.equal(body.errors[0].pointer, "/regressors");
-    assert.match(body.detail, /10 per coefficient/);
+    // 4 regressors, the trend and the intercept need 60 observations (10 per coefficient)
+    assert.equal(body.coefficients, 6);
+    assert.equal(body.observations, 40);
     const dup = await assertProblem(
       await svc.post("/v1/attributions", {
         climate,
@@ -267,7 +276,7 @@ Deno.test("POST /v1/energy-balance matches the analytic sinusoid response (one- 
       assert.ok(Math.abs(r.sinusoid_numerical.relative_difference_amplitude) < 1e-4);
       assert.ok(Math.abs(r.sinusoid_numerical.relative_difference_lag) < 1e-4);
       if (model === "one_box") {
-        // shared/SCIENCE.md §10 (D): λ = 1.3, C = 8 → 0.0374 K peak to peak, 2.26 yr
+        // derived from the one-box steady state: λ = 1.3, C = 8 → 0.0374 K peak to peak, 2.26 yr
         assert.ok(Math.abs(r.sinusoid_analytic.peak_to_peak_k - 0.0374) < 5e-5);
         assert.ok(Math.abs(r.sinusoid_analytic.lag_years - 2.26) < 5e-3);
       }

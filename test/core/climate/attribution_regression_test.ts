@@ -153,7 +153,11 @@ Deno.test("attributionRegression() errors and warnings", async (t) => {
       minLag: 0,
       maxLag: 0,
     }));
-    assert.throws(() => attributionRegression(y, many), /10 per coefficient/);
+    assert.throws(() => attributionRegression(y, many), {
+      name: "InputError",
+      field: "y",
+      reason: "too_few_points",
+    });
   });
   await t.step("collinear regressors warn", () => {
     const b = Float64Array.from(a, (v, i) => v + 0.01 * Math.sin(i * 3.1));
@@ -164,20 +168,24 @@ Deno.test("attributionRegression() errors and warnings", async (t) => {
     assert.ok(r.warnings.some((w) => /collinear/.test(w)));
   });
   await t.step("bad input", () => {
-    assert.throws(() => attributionRegression(y, []), /at least one/);
+    assert.throws(() => attributionRegression(y, []), { field: "regressors", reason: "empty" });
     assert.throws(
       () => attributionRegression(y, [{ name: "a", values: a.subarray(1), minLag: 0, maxLag: 0 }]),
-      /values/,
+      { field: "regressors", reason: "length_mismatch", index: 0 },
     );
     assert.throws(
-      () => attributionRegression(y, [{ name: "a", values: a, minLag: 3, maxLag: 1 }]),
-      /lags/,
+      () =>
+        attributionRegression(y, [
+          { name: "a", values: a, minLag: 0, maxLag: 0 },
+          { name: "b", values: a, minLag: 3, maxLag: 1 },
+        ]),
+      { field: "regressors", reason: "out_of_range", index: 1 },
     );
     const bad = Float64Array.from(y);
     bad[5] = NaN;
     assert.throws(
       () => attributionRegression(bad, [{ name: "a", values: a, minLag: 0, maxLag: 0 }]),
-      /not finite/,
+      { field: "y", reason: "not_finite", index: 5 },
     );
   });
 });

@@ -3,19 +3,21 @@ import {
   fitSinusoid,
   oneBoxResponse,
   oneBoxSinusoidResponse,
+  oneBoxSinusoidStart,
   twoBoxResponse,
   twoBoxSinusoidResponse,
+  twoBoxSinusoidStart,
   twoBoxTransfer,
 } from "../../../core/climate/energy_balance.ts";
 
 const rel = (a: number, b: number) => Math.abs(a - b) / Math.abs(b);
 
-// shared/SCIENCE.md §10 (D): ΔTSI 1.0 W m-2 peak to peak, α = 0.29 → F₀ = 0.25 · 0.71 / 2
+// IPCC AR6 WG1 §7.3.4.4: ΔTSI about 1 W m-2 peak to peak, albedo 0.29 → F₀ = 0.25 · 0.71 / 2
 const F0 = (1.0 * (1 - 0.29)) / 4 / 2;
 
-Deno.test("oneBoxSinusoidResponse() reproduces the worked table of §10", () => {
+Deno.test("oneBoxSinusoidResponse() reproduces the worked table of the one-box sinusoid", () => {
   assert.ok(Math.abs(F0 - 0.08875) < 1e-15);
-  // shared/SCIENCE.md §10 (D), re-derived: T_pp = 2F₀/√(λ² + C²ω²), φ = arctan(Cω/λ)
+  // derived from the steady state of C dT/dt = F − λT: T_pp = 2F₀/√(λ² + C²ω²), φ = arctan(Cω/λ)
   const table = [
     { c: 8.0, pp: 0.0374, phaseDeg: 74.1, lag: 2.26 },
     { c: 6.68, pp: 0.0440, phaseDeg: 71.2, lag: 2.18 },
@@ -119,13 +121,44 @@ Deno.test("twoBoxResponse() agrees with RK4 and with the analytic sinusoid respo
 
 Deno.test("energy-balance functions reject bad input", () => {
   const t = new Float64Array([0, 1, 2]);
-  assert.throws(() => oneBoxResponse(t, new Float64Array([0, 1])), /forcing has 2/);
-  assert.throws(() => oneBoxResponse(new Float64Array([0, 0, 1]), t), /increase/);
-  assert.throws(() => oneBoxResponse(t, new Float64Array([0, NaN, 1])), /not finite/);
-  assert.throws(() => oneBoxResponse(t, t, { heatCapacity: 0, feedback: 1 }), /heatCapacity/);
+  assert.throws(() => oneBoxResponse(t, new Float64Array([0, 1])), {
+    name: "InputError",
+    field: "forcing",
+    reason: "length_mismatch",
+  });
+  assert.throws(() => oneBoxResponse(new Float64Array([0, 0, 1]), t), {
+    field: "time",
+    reason: "not_increasing",
+    index: 1,
+  });
+  assert.throws(() => oneBoxResponse(t, new Float64Array([0, NaN, 1])), {
+    field: "forcing",
+    reason: "not_finite",
+    index: 1,
+  });
+  assert.throws(() => oneBoxResponse(t, t, { heatCapacity: 0, feedback: 1 }), {
+    field: "heatCapacity",
+    value: 0,
+  });
   assert.throws(
     () => twoBoxResponse(t, t, { heatCapacity: 1, deepHeatCapacity: 1, feedback: 1, exchange: -1 }),
-    /exchange/,
+    { field: "exchange", reason: "out_of_range" },
   );
-  assert.throws(() => oneBoxSinusoidResponse({ heatCapacity: 8, feedback: 1.3 }, 0), /period/);
+  assert.throws(() => oneBoxSinusoidResponse({ heatCapacity: 8, feedback: 1.3 }, 0), {
+    field: "period",
+  });
+});
+
+Deno.test("oneBoxSinusoidStart() and twoBoxSinusoidStart() are the steady state at t = 0", () => {
+  // T(t) = F₀ · gain · sin(ωt − φ) at t = 0, from the analytic responses
+  const one = { heatCapacity: 8, feedback: 1.3 };
+  const r1 = oneBoxSinusoidResponse(one, 11);
+  assert.ok(
+    Math.abs(oneBoxSinusoidStart(one, 11, 0.2) - 0.2 * r1.gain * Math.sin(-r1.phase)) < 1e-15,
+  );
+  const two = { heatCapacity: 7.3, deepHeatCapacity: 106, feedback: 1.3, exchange: 0.7 };
+  const r2 = twoBoxSinusoidResponse(two, 11);
+  const [t0] = twoBoxSinusoidStart(two, 11, 0.2);
+  assert.ok(Math.abs(t0 - 0.2 * r2.gain * Math.sin(-r2.phase)) < 1e-12);
+  assert.throws(() => twoBoxSinusoidStart(two, 0, 0.2), { name: "InputError", field: "period" });
 });

@@ -16,7 +16,7 @@ const close = (a: number, b: number, tol: number, what = "") =>
   assert.ok(Math.abs(a - b) <= tol, `${what}: ${a} vs ${b} (tol ${tol})`);
 
 Deno.test("brethertonEffectiveSampleSize() reproduces the worked value and caps at N", () => {
-  // Bretherton et al. 1999, J. Climate 12, 1990, eq. 31; shared/SCIENCE.md §7 (D):
+  // Bretherton et al. 1999, J. Climate 12, 1990, eq. 31, derived:
   // N = 100, r1 = 0.5, r2 = 0.8 → 100 · 0.6 / 1.4 = 42.857
   close(brethertonEffectiveSampleSize(100, 0.5, 0.8), 42.857142857142854, 1e-12, "N_eff");
   assert.equal(brethertonEffectiveSampleSize(100, 0.5, -0.5), 100);
@@ -27,7 +27,7 @@ Deno.test("brethertonEffectiveSampleSize() reproduces the worked value and caps 
 });
 
 Deno.test("correlationTTest() gives the worked t values with N and N_eff", () => {
-  // shared/SCIENCE.md §7 (D): r = 0.3 → t = 3.113 at N = 100, 2.010 at N_eff = 42.857
+  // t = r √((N − 2)/(1 − r²)), derived: r = 0.3 → t = 3.113 at N = 100, 2.010 at N_eff = 42.857
   close(correlationTTest(0.3, 100).t, 0.3 * Math.sqrt(98 / 0.91), 1e-12, "t formula");
   close(correlationTTest(0.3, 100).t, 3.113, 5e-4, "t N=100");
   close(correlationTTest(0.3, 300 / 7).t, 2.010, 5e-4, "t N_eff");
@@ -39,7 +39,7 @@ Deno.test("correlationTTest() gives the worked t values with N and N_eff", () =>
 });
 
 Deno.test("fisherZInterval() gives the worked 95 % intervals", () => {
-  // Fisher z, SE 1/√(N − 3); shared/SCIENCE.md §7 (D)
+  // Fisher z, SE 1/√(N − 3) (Fisher 1921), derived
   const [a, b] = fisherZInterval(0.5, 50);
   close(a, 0.2575, 5e-5, "lower N=50");
   close(b, 0.6833, 5e-5, "upper N=50");
@@ -79,18 +79,28 @@ Deno.test("laggedCorrelation() rejects bad input", async (t) => {
   await t.step("constant series", () => {
     assert.throws(
       () => laggedCorrelation(x, new Float64Array(20).fill(2), { minLag: 0, maxLag: 1 }),
-      /constant/,
+      { name: "InputError", field: "y", reason: "constant" },
     );
   });
   await t.step("NaN", () => {
     const y = Float64Array.from(x);
     y[3] = NaN;
-    assert.throws(() => laggedCorrelation(x, y, { minLag: 0, maxLag: 1 }), /not finite/);
+    assert.throws(() => laggedCorrelation(x, y, { minLag: 0, maxLag: 1 }), {
+      field: "y",
+      reason: "not_finite",
+      index: 3,
+    });
   });
   await t.step("lengths and window", () => {
-    assert.throws(() => laggedCorrelation(x, x.subarray(1), { minLag: 0, maxLag: 1 }), RangeError);
-    assert.throws(() => laggedCorrelation(x, x, { minLag: 2, maxLag: 1 }), RangeError);
-    assert.throws(() => laggedCorrelation(x, x, { minLag: 0, maxLag: 18 }), /overlapping/);
+    assert.throws(() => laggedCorrelation(x, x.subarray(1), { minLag: 0, maxLag: 1 }), {
+      field: "y",
+      reason: "length_mismatch",
+    });
+    assert.throws(() => laggedCorrelation(x, x, { minLag: 2, maxLag: 1 }), { field: "window" });
+    assert.throws(() => laggedCorrelation(x, x, { minLag: 0, maxLag: 18 }), {
+      field: "window",
+      reason: "too_few_points",
+    });
   });
 });
 
@@ -139,15 +149,21 @@ Deno.test("preprocessSeries() removes polynomials and slow variations", async (t
     close(a / b, Math.SQRT1_2, 2e-3, "gain at cutoff");
   });
   await t.step("errors", () => {
-    assert.throws(() => preprocessSeries(new Float64Array([1, NaN, 2])), /not finite/);
+    assert.throws(() => preprocessSeries(new Float64Array([1, NaN, 2])), {
+      field: "x",
+      reason: "not_finite",
+      index: 1,
+    });
     assert.throws(
       () => preprocessSeries(new Float64Array([1, 2]), { method: "quadratic" }),
-      RangeError,
+      { field: "n", reason: "too_few_points" },
     );
-    assert.throws(() => preprocessSeries(new Float64Array(10), { method: "high_pass" }), /cutoff/);
+    assert.throws(() => preprocessSeries(new Float64Array(10), { method: "high_pass" }), {
+      field: "cutoffSamples",
+    });
     assert.throws(
       () => preprocessSeries(new Float64Array(10), { method: "high_pass", cutoffSamples: 1 }),
-      /cutoff/,
+      { field: "cutoffSamples", reason: "out_of_range", value: 1 },
     );
   });
 });

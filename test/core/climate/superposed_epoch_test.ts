@@ -84,16 +84,19 @@ Deno.test("superposedEpoch() baseline, missing values, dropped epochs and errors
     const x = noise(100, 1);
     assert.throws(
       () => superposedEpoch(x, [50], { before: 5, after: 5, seed: 1 }),
-      /at least 2 epochs/,
+      { name: "InputError", field: "epochIndices", reason: "too_few_points", value: 1 },
     );
-    assert.throws(() => superposedEpoch(x, [20, 60], { before: -1, after: 5, seed: 1 }), /before/);
+    assert.throws(() => superposedEpoch(x, [20, 60], { before: -1, after: 5, seed: 1 }), {
+      field: "before",
+      value: -1,
+    });
     assert.throws(
       () => superposedEpoch(x, [20, 60], { before: 5, after: 5, seed: 1, bootstrap: 0 }),
-      /bootstrap/,
+      { field: "bootstrap", value: 0 },
     );
     assert.throws(
       () => superposedEpoch(x, [20, 60], { before: 0, after: 5, seed: 1, preEpochBaseline: true }),
-      /baseline/,
+      { field: "before", value: 0 },
     );
   });
 });

@@ -165,26 +165,30 @@ Deno.test("inverseDftPlan() equals the inverse real DFT of core/spectral for any
 Deno.test("surrogate functions reject bad input", async (t) => {
   const st = randomStream(1, 0);
   await t.step("AR(1) parameters", () => {
-    assert.throws(() => ar1Surrogate(10, 1, 1, st), /phi/);
-    assert.throws(() => ar1Surrogate(10, 0.5, 0, st), /sigma/);
-    assert.throws(() => ar1Surrogate(0, 0.5, 1, st), /length/);
+    assert.throws(() => ar1Surrogate(10, 1, 1, st), { name: "InputError", field: "phi" });
+    assert.throws(() => ar1Surrogate(10, 0.5, 0, st), { field: "sigma" });
+    assert.throws(() => ar1Surrogate(0, 0.5, 1, st), { field: "n" });
   });
   await t.step("phase randomisation", () => {
-    assert.throws(() => ebisuzakiSurrogate([1], st), /at least 2/);
-    assert.throws(() => phaseRandomisedSpectrum(new Float64Array(3), 6, st), /amplitudes/);
-    assert.throws(() => ebisuzakiSurrogate([1, NaN, 3], st), /not finite/);
+    assert.throws(() => ebisuzakiSurrogate([1], st), { field: "x", reason: "too_few_points" });
+    assert.throws(() => phaseRandomisedSpectrum(new Float64Array(3), 6, st), {
+      field: "amplitudes",
+    });
+    assert.throws(() => ebisuzakiSurrogate([1, NaN, 3], st), RangeError);
   });
   await t.step("plan", () => {
     const x = ar1(64, 0.5, 1, 0), y = ar1(64, 0.5, 2, 0);
-    assert.throws(() => planSurrogateLagTest(x, y, { minLag: 0, maxLag: 3, seed: -1 }), /seed/);
+    assert.throws(() => planSurrogateLagTest(x, y, { minLag: 0, maxLag: 3, seed: -1 }), {
+      field: "seed",
+    });
     assert.throws(
       () => planSurrogateLagTest(x, y, { minLag: 0, maxLag: 62, seed: 1 }),
-      /overlapping/,
+      { field: "window", reason: "too_few_points" },
     );
     assert.throws(
       () =>
         planSurrogateLagTest(x, new Float64Array(64).fill(1), { minLag: 0, maxLag: 3, seed: 1 }),
-      /constant/,
+      { field: "y", reason: "constant" },
     );
   });
 });

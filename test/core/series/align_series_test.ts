@@ -54,13 +54,21 @@ Deno.test("alignSeries() with common_span keeps gaps inside the overlap", () => 
 
 Deno.test("alignSeries() refuses series that do not overlap or cannot be resampled", () => {
   const a = { time: [2000.5, 2001.5], value: [1, 2] };
-  assert.throws(() => alignSeries([a], "annual"), /at least 2 series, got 1/);
+  assert.throws(() => alignSeries([a], "annual"), {
+    name: "InputError",
+    field: "series",
+    value: 1,
+  });
   assert.throws(
     () => alignSeries([a, { time: [2005.5, 2006.5], value: [1, 2] }], "annual"),
-    /do not overlap/,
+    { field: "series", reason: "no_overlap" },
   );
   assert.throws(
     () => alignSeries([a, a], "monthly"),
-    /series 0: Cannot resample annual data to monthly/,
+    { field: "to", reason: "unsupported", index: 0 },
+  );
+  assert.throws(
+    () => alignSeries([a, { time: [2000.5, 2001.5], value: [1, NaN] }], "annual"),
+    { field: "series", reason: "not_finite", index: 1 },
   );
 });

@@ -83,22 +83,27 @@ Deno.test("resampleMeans() leaves periods that fail coverage as gaps, never bias
 
 Deno.test("resampleMeans() refuses what it cannot do", () => {
   const annual = { time: [2000.5, 2001.5], value: [1, 2] };
-  assert.throws(() => resampleMeans(annual, "monthly"), /Cannot resample annual data to monthly/);
+  assert.throws(() => resampleMeans(annual, "monthly"), {
+    name: "InputError",
+    field: "to",
+    reason: "unsupported",
+    value: "monthly",
+  });
   assert.throws(
     () => resampleMeans({ time: [2000.5], value: [1] }, "annual"),
-    /at least 2 points, got 1/,
+    { field: "value", reason: "too_few_points", value: 1 },
   );
   assert.throws(
     () => resampleMeans({ time: [2000.5, 2001.5], value: [1, NaN] }, "annual"),
-    /value\[1\] is not finite/,
+    { field: "value", reason: "not_finite", index: 1 },
   );
   assert.throws(
     () => resampleMeans({ time: [2000.5, 2001.5], value: [1] }, "annual"),
-    /value has 1 entries/,
+    { field: "value", reason: "length_mismatch", value: 1 },
   );
   assert.throws(
     () => resampleMeans(annual, "annual", { minMonthsPerYear: 13 }),
-    /minMonthsPerYear must be an integer in 1\.\.12/,
+    { field: "minMonthsPerYear", reason: "out_of_range", value: 13 },
   );
   // same resolution: each period is its own mean
   const same = resampleMeans(annual, "annual");
@@ -142,7 +147,7 @@ Deno.test("resampleMeans() maxMissingRunDays refuses months with a long run of m
   await t.step("out-of-range values are refused", () => {
     assert.throws(
       () => resampleMeans({ time, value }, "monthly", { maxMissingRunDays: -1 }),
-      /maxMissingRunDays must be an integer in 0\.\.31/,
+      { field: "maxMissingRunDays", reason: "out_of_range", value: -1 },
     );
   });
 });

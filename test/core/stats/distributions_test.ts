@@ -20,10 +20,10 @@ Deno.test("distribution wrappers match R's pt/qt/pnorm/qnorm/pchisq", () => {
 });
 
 Deno.test("distribution wrappers reject NaN and bad parameters", () => {
-  assert.throws(() => tCdf(NaN, 3), /x is NaN/);
-  assert.throws(() => tCdf(1, 0), /degrees of freedom must be a positive/);
-  assert.throws(() => tQuantile(1.5, 3), /p must be in \[0, 1\]/);
-  assert.throws(() => normalCdf(0, 0, -1), RangeError);
-  assert.throws(() => normalQuantile(-0.1), RangeError);
-  assert.throws(() => chiSquareCdf(1, Infinity), RangeError);
+  assert.throws(() => tCdf(NaN, 3), { name: "InputError", field: "x", reason: "not_finite" });
+  assert.throws(() => tCdf(1, 0), { field: "df", reason: "out_of_range", value: 0 });
+  assert.throws(() => tQuantile(1.5, 3), { field: "p", value: 1.5 });
+  assert.throws(() => normalCdf(0, 0, -1), { field: "sd" });
+  assert.throws(() => normalQuantile(-0.1), { field: "p" });
+  assert.throws(() => chiSquareCdf(1, Infinity), { field: "k", value: Infinity });
 });

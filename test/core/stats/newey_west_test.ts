@@ -25,6 +25,11 @@ Deno.test("neweyWest() matches statsmodels HAC on longley", () => {
 Deno.test("neweyWest() rejects a lag outside [0, n − 1]", () => {
   const x = new Float64Array([1, 2, 3, 4, 5]);
   const fit = ordinaryLeastSquares([x], new Float64Array([1, 3, 2, 5, 4]));
-  assert.throws(() => neweyWest(fit, { maxLags: 5 }), /maxLags must be an integer in \[0, 4\]/);
-  assert.throws(() => neweyWest(fit, { maxLags: 1.5 }), RangeError);
+  assert.throws(() => neweyWest(fit, { maxLags: 5 }), {
+    name: "InputError",
+    field: "maxLags",
+    reason: "out_of_range",
+    value: 5,
+  });
+  assert.throws(() => neweyWest(fit, { maxLags: 1.5 }), { field: "maxLags", value: 1.5 });
 });

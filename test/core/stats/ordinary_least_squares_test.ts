@@ -53,38 +53,52 @@ Deno.test("ordinaryLeastSquares() without intercept uses the uncentred R² (as R
   assert.ok(Math.abs(fit.rSquared - (1 - rss / tss)) < 1e-12);
 });
 
-Deno.test("ordinaryLeastSquares() rejects bad input with RangeError", async (t) => {
+Deno.test("ordinaryLeastSquares() rejects bad input with InputError naming the argument", async (t) => {
   const x = new Float64Array([1, 2, 3, 4, 5]);
   const y = new Float64Array([1, 2, 3, 4, 6]);
   await t.step("NaN in y", () => {
     assert.throws(
       () => ordinaryLeastSquares([x], new Float64Array([1, NaN, 3, 4, 5])),
-      /y has a non-finite value at index 1/,
+      { name: "InputError", field: "y", reason: "not_finite", index: 1 },
     );
   });
   await t.step("Infinity in a column", () => {
     assert.throws(
-      () => ordinaryLeastSquares([new Float64Array([1, 2, Infinity, 4, 5])], y),
-      RangeError,
+      () => ordinaryLeastSquares([x, new Float64Array([1, 2, Infinity, 4, 5])], y),
+      { field: "columns", reason: "not_finite", index: 1, value: Infinity },
     );
   });
   await t.step("length mismatch", () => {
-    assert.throws(() => ordinaryLeastSquares([x.subarray(0, 4)], y), /length 4, y has 5/);
+    assert.throws(() => ordinaryLeastSquares([x.subarray(0, 4)], y), {
+      field: "columns",
+      reason: "length_mismatch",
+      index: 0,
+    });
   });
   await t.step("too few points", () => {
     assert.throws(
       () => ordinaryLeastSquares([x.subarray(0, 2)], y.subarray(0, 2)),
-      /needs at least 3 points/,
+      { field: "y", reason: "too_few_points", value: 2 },
     );
   });
   await t.step("collinear columns", () => {
     const twice = x.map((v) => 2 * v);
-    assert.throws(() => ordinaryLeastSquares([x, twice], y), /rank deficient/);
+    // design column 2 (after the intercept and x) is collinear with those before it
+    assert.throws(() => ordinaryLeastSquares([x, twice], y), {
+      field: "columns",
+      reason: "collinear",
+      index: 2,
+    });
   });
   await t.step("constant regressor with intercept", () => {
-    assert.throws(() => ordinaryLeastSquares([new Float64Array(5).fill(3)], y), /rank deficient/);
+    assert.throws(() => ordinaryLeastSquares([new Float64Array(5).fill(3)], y), {
+      reason: "collinear",
+    });
   });
   await t.step("empty input", () => {
-    assert.throws(() => ordinaryLeastSquares([], new Float64Array(0)), RangeError);
+    assert.throws(() => ordinaryLeastSquares([], new Float64Array(0)), {
+      field: "y",
+      reason: "too_few_points",
+    });
   });
 });

@@ -62,5 +62,10 @@ Deno.test("praisWinsten() on white noise keeps ρ near 0 and β near OLS", () =>
 
 Deno.test("praisWinsten() rejects too few points", () => {
   const x = new Float64Array([1, 2, 3]);
-  assert.throws(() => praisWinsten([x], new Float64Array([1, 2, 4])), /needs at least 4 points/);
+  assert.throws(() => praisWinsten([x], new Float64Array([1, 2, 4])), {
+    name: "InputError",
+    field: "y",
+    reason: "too_few_points",
+    value: 3,
+  });
 });
