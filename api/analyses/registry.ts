@@ -18,10 +18,10 @@ import { lagCorrelationKind } from "../kinds/lag_correlations.ts";
 import { resampleKind } from "../kinds/resample.ts";
 import { anomalyKind } from "../kinds/anomaly.ts";
 import { alignKind } from "../kinds/align.ts";
-import { irradianceDarkening } from "../kinds/irradiance_darkening.ts";
-import { irradianceModels } from "../kinds/irradiance_models.ts";
-import { irradianceReconstructions } from "../kinds/irradiance_reconstructions.ts";
-import { forcing } from "../kinds/forcing.ts";
+import { irradianceDarkening } from "./irradiance_darkening/mod.ts";
+import { irradianceModels } from "./irradiance_models/mod.ts";
+import { irradianceReconstructions } from "./irradiance_reconstructions/mod.ts";
+import { forcing } from "./forcing/mod.ts";
 
 export const RUN_KINDS: readonly RunKind[] = [
   smoothingKind,

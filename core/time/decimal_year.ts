@@ -18,6 +18,14 @@ import {
   daysInYear,
 } from "./calendar.ts";
 
+/**
+ * How close (in days, about 0.09 s) a decimal year must come to the start of a day to be read
+ * as that start: decimal years are binary fractions, so the start of a day computed one way may
+ * land a few ulps either side of the start computed another way. The one tolerance of the time
+ * model: {@link calendarInstant} and the calendar periods of core/series use it.
+ */
+export const DAY_TOLERANCE = 1e-6;
+
 /** A calendar date with the fraction of the day elapsed (0 = midnight, 0.5 = noon). */
 export interface CalendarInstant {
   year: number;
@@ -89,8 +97,8 @@ export function decimalYearFromEpochDays(days: number): number {
 /**
  * Calendar instant of a decimal year (inverse of {@link decimalYear}).
  *
- * A tolerance of 1e-6 day absorbs floating-point error so that the start of a day is not read
- * as the end of the previous one.
+ * A tolerance of {@link DAY_TOLERANCE} (1e-6 day) absorbs floating-point error so that the
+ * start of a day is not read as the end of the previous one.
  *
  * @param t decimal year; finite
  * @returns `{ year, month, day, fractionOfDay }`
@@ -115,7 +123,7 @@ export function calendarInstant(t: number): CalendarInstant {
   let year = Math.floor(t);
   let diy = daysInYear(year);
   let x = (t - year) * diy; // days since 1 January 00:00
-  let dayIndex = Math.floor(x + 1e-6);
+  let dayIndex = Math.floor(x + DAY_TOLERANCE);
   if (dayIndex >= diy) {
     year += 1;
     x = 0;

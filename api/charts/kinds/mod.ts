@@ -7,10 +7,9 @@ import type { KindChart } from "../run_common.ts";
 import { attributionsChart } from "./attributions.ts";
 import { compositesChart } from "./composites.ts";
 import { cyclesChart } from "./cycles.ts";
-import { irradianceReconstructionChart } from "./irradiance_reconstruction.ts";
 import { lagCorrelationChart } from "./lag_correlations.ts";
 import { spectraChart } from "./spectra.ts";
-import { cycleForecastChart, irradianceModelChart } from "./with_inputs.ts";
+import { cycleForecastChart } from "./with_inputs.ts";
 
 /** Chart builders keyed by `run.kind`. */
 export const KIND_CHARTS: Record<string, KindChart> = {
@@ -18,8 +17,6 @@ export const KIND_CHARTS: Record<string, KindChart> = {
   "composites": compositesChart,
   "cycles": cyclesChart,
   "cycle-forecasts": cycleForecastChart,
-  "irradiance-models": irradianceModelChart,
-  "irradiance-reconstructions": irradianceReconstructionChart,
   "lag-correlations": lagCorrelationChart,
   "spectra": spectraChart,
 };
@@ -28,5 +25,4 @@ export const KIND_CHARTS: Record<string, KindChart> = {
 export const KIND_INPUTS: ReadonlySet<string> = new Set([
   "cycles",
   "cycle-forecasts",
-  "irradiance-models",
 ]);
