@@ -47,6 +47,7 @@ import {
 import type { ModelParams } from "./request.ts";
 import type { IrradianceModelJson, ModelResultIn, SunspotMappingsJson } from "./result.ts";
 import { finiteOrNull, mappingChoiceJson } from "./mapping_json.ts";
+import { cycleAmplitudeJson } from "../common/tsi_cycle_amplitude.ts";
 
 /** Quantities a facular term's series normally has. */
 const FACULAR_QUANTITIES = ["facular_index", "radio_flux", "other"];
@@ -75,57 +76,10 @@ export function computeModel(params: ModelParams, ctx: RunContext): ModelResultI
   const amplitude = tsiCycleAmplitude(fittedTime, fit.fitted);
   return {
     model,
-    fit: {
-      n: fit.n,
-      standard_errors: fit.standardErrors,
-      lower: fit.lower,
-      upper: fit.upper,
-      r_squared: fit.rSquared,
-      adj_r_squared: fit.adjRSquared,
-      residual_rms: fit.residualRms,
-      aic: finiteOrNull(fit.aic),
-      bic: finiteOrNull(fit.bic),
-      residual_lag1: fit.residualLag1,
-      rho: fit.rho,
-      converged: fit.converged,
-      iterations: fit.iterations,
-      collinearity_condition_number: fit.collinearity,
-      cross_validation: fit.crossValidation
-        ? {
-          folds: fit.crossValidation.folds,
-          rmse: fit.crossValidation.rmse,
-          fold_rmse: fit.crossValidation.foldRmse,
-          blocks: fit.crossValidation.blocks,
-        }
-        : null,
-      darkening_scale: fit.terms.some((t) => t.role === "sunspot_darkening")
-        ? "b is the coefficient of −S_ref·PSI; b·S_ref is the darkening in W m-2 per unit PSI"
-        : null,
-    },
-    alternative: alternative
-      ? {
-        method: alternative.method,
-        note: "The same model fitted with the other estimator, for comparison; the stored " +
-          `model uses ${params.method}.`,
-        coefficients: alternative.coefficients,
-        standard_errors: alternative.standardErrors,
-        lower: alternative.lower,
-        upper: alternative.upper,
-        residual_rms: alternative.residualRms,
-        aic: finiteOrNull(alternative.aic),
-        bic: finiteOrNull(alternative.bic),
-        rho: alternative.rho,
-      }
-      : null,
+    fit: fitJson(fit),
+    alternative: alternative ? alternativeJson(alternative, params.method) : null,
     mappings,
-    cycle_amplitude: {
-      median: amplitude.median,
-      cycles: amplitude.cycles.map((c) => ({
-        minimum_year: c.minimumYear,
-        maximum_year: c.maximumYear,
-        amplitude: c.amplitude,
-      })),
-    },
+    cycle_amplitude: cycleAmplitudeJson(amplitude),
     outputs: {
       fitted: {
         name: "Fitted TSI",
@@ -153,6 +107,53 @@ export function computeModel(params: ModelParams, ctx: RunContext): ModelResultI
       "Proxy coefficients depend on the TSI instrument and on cycle phase; they are not universal constants.",
       ASSESSMENT_CAUTION,
     ],
+  };
+}
+
+/** The fit statistics as stored. */
+function fitJson(fit: ProxyModelFit): ModelResultIn["fit"] {
+  const cv = fit.crossValidation;
+  return {
+    n: fit.n,
+    standard_errors: fit.standardErrors,
+    lower: fit.lower,
+    upper: fit.upper,
+    r_squared: fit.rSquared,
+    adj_r_squared: fit.adjRSquared,
+    residual_rms: fit.residualRms,
+    aic: finiteOrNull(fit.aic),
+    bic: finiteOrNull(fit.bic),
+    residual_lag1: fit.residualLag1,
+    rho: fit.rho,
+    converged: fit.converged,
+    iterations: fit.iterations,
+    collinearity_condition_number: fit.collinearity,
+    cross_validation: cv
+      ? { folds: cv.folds, rmse: cv.rmse, fold_rmse: cv.foldRmse, blocks: cv.blocks }
+      : null,
+    darkening_scale: fit.terms.some((t) => t.role === "sunspot_darkening")
+      ? "b is the coefficient of −S_ref·PSI; b·S_ref is the darkening in W m-2 per unit PSI"
+      : null,
+  };
+}
+
+/** The comparison fit as stored. */
+function alternativeJson(
+  alt: ProxyModelFit,
+  requested: ModelParams["method"],
+): NonNullable<ModelResultIn["alternative"]> {
+  return {
+    method: alt.method,
+    note: "The same model fitted with the other estimator, for comparison; the stored " +
+      `model uses ${requested}.`,
+    coefficients: alt.coefficients,
+    standard_errors: alt.standardErrors,
+    lower: alt.lower,
+    upper: alt.upper,
+    residual_rms: alt.residualRms,
+    aic: finiteOrNull(alt.aic),
+    bic: finiteOrNull(alt.bic),
+    rho: alt.rho,
   };
 }
 
@@ -296,28 +297,7 @@ function sunspotMappings(
   const version = requireSunspotVersion(ss, "/sunspot_number");
   const res = calendarResolutionOf(ss, "/sunspot_number");
   const sc = cellMeansWithin(ss, res, calibration);
-  const choices: Record<string, SunspotMappingChoice> = {};
-  const mapped = cells.termSeries.map((s, k) => {
-    const name = params.terms[k].name;
-    const f = seriesAtPeriodKeys(s, res, sc.keys);
-    const rr: number[] = [], ff: number[] = [];
-    for (let i = 0; i < sc.keys.length; i++) {
-      if (Number.isFinite(f[i]) && Number.isFinite(sc.mean[i])) rr.push(sc.mean[i]), ff.push(f[i]);
-    }
-    try {
-      choices[name] = fitSunspotMapping(rr, ff, params.mapping_form);
-    } catch (e) {
-      if (!(e instanceof InputError)) throw e;
-      throw new InputProblem(
-        "/sunspot_number",
-        `cannot map sunspot number to term ${name}: ${e.message}`,
-        { term: name, field: e.field, reason: e.reason },
-      );
-    }
-    const v = new Float64Array(sc.keys.length), pv = new Float64Array(sc.keys.length);
-    evaluateSunspotMapping(choices[name].chosen, sc.mean, v, pv);
-    return v;
-  });
+  const { choices, mapped } = fitMappings(params, cells.termSeries, res, sc);
   const tsiAtS = seriesAtPeriodKeys(cells.tsi, res, sc.keys);
   let be;
   try {
@@ -345,6 +325,41 @@ function sunspotMappings(
       n: be.n,
     },
   };
+}
+
+/**
+ * For each term, the sunspot → proxy mapping fitted on the cells where the sunspot series and
+ * the term both have a value, and the term mapped from sunspot number at every sunspot cell.
+ */
+function fitMappings(
+  params: ModelParams,
+  termSeries: StoredSeries[],
+  res: CalendarResolution,
+  sc: PeriodMeansByKey,
+): { choices: Record<string, SunspotMappingChoice>; mapped: Float64Array[] } {
+  const choices: Record<string, SunspotMappingChoice> = {};
+  const mapped = termSeries.map((s, k) => {
+    const name = params.terms[k].name;
+    const f = seriesAtPeriodKeys(s, res, sc.keys);
+    const rr: number[] = [], ff: number[] = [];
+    for (let i = 0; i < sc.keys.length; i++) {
+      if (Number.isFinite(f[i]) && Number.isFinite(sc.mean[i])) rr.push(sc.mean[i]), ff.push(f[i]);
+    }
+    try {
+      choices[name] = fitSunspotMapping(rr, ff, params.mapping_form);
+    } catch (e) {
+      if (!(e instanceof InputError)) throw e;
+      throw new InputProblem(
+        "/sunspot_number",
+        `cannot map sunspot number to term ${name}: ${e.message}`,
+        { term: name, field: e.field, reason: e.reason },
+      );
+    }
+    const v = new Float64Array(sc.keys.length), pv = new Float64Array(sc.keys.length);
+    evaluateSunspotMapping(choices[name].chosen, sc.mean, v, pv);
+    return v;
+  });
+  return { choices, mapped };
 }
 
 /** Warnings about the inputs and the fit (never silent). */

@@ -13,6 +13,7 @@ import {
   OutputSeriesSchema,
   warnings,
 } from "../common/result_parts.ts";
+import { TsiCycleAmplitudeSchema } from "../common/tsi_cycle_amplitude.ts";
 import { ProxyRoleSchema } from "./request.ts";
 
 const CellResolution = z.enum(["daily", "monthly", "annual"]);
@@ -103,18 +104,6 @@ export const SunspotMappings = z.object({
   }),
 }).openapi("SunspotMappings");
 
-const CycleAmplitude = z.object({
-  median: z.number().nullable().openapi({
-    description: "Median maximum-minus-preceding-minimum of annual means, W m-2; null when no " +
-      "cycle is found",
-  }),
-  cycles: z.array(z.object({
-    minimum_year: z.number().int(),
-    maximum_year: z.number().int(),
-    amplitude: z.number(),
-  })),
-}).openapi("TsiCycleAmplitude");
-
 export const ModelResult = z.object({
   model: IrradianceModel,
   fit: z.object({
@@ -159,7 +148,7 @@ export const ModelResult = z.object({
   mappings: SunspotMappings.nullable().openapi({
     description: "null without a sunspot_number series",
   }),
-  cycle_amplitude: CycleAmplitude,
+  cycle_amplitude: TsiCycleAmplitudeSchema,
   outputs: z.object({ fitted: OutputSeriesSchema, residuals: OutputSeriesSchema }),
   warnings,
   cautions,

@@ -40,6 +40,7 @@ import {
 import { irradianceModels } from "../irradiance_models/mod.ts";
 import type { ModelResultOut } from "../irradiance_models/result.ts";
 import { mappingFromJson } from "../irradiance_models/mapping_json.ts";
+import { cycleAmplitudeJson } from "../common/tsi_cycle_amplitude.ts";
 import type { ReconstructionParams } from "./request.ts";
 import type { ReconstructionResultIn } from "./result.ts";
 
@@ -77,13 +78,7 @@ export function computeReconstruction(
   const sunspot = params.sunspot_number === undefined
     ? null
     : sunspotInput(params, ctx, stored, cells);
-  const mapped: ReconstructionCells["mapped"] = stored.model.terms.map((t) => {
-    if (!sunspot || !stored.mappings) return null;
-    const n = cells.keys.length, value = new Float64Array(n), paramVariance = new Float64Array(n);
-    const m = mappingFromJson(stored.mappings.terms[t.name].chosen);
-    evaluateSunspotMapping(m, sunspot.atCells, value, paramVariance);
-    return { value, paramVariance };
-  });
+  const mapped = mappedProxies(stored, sunspot, cells.keys.length);
   if (!direct.some((d) => d.some(Number.isFinite)) && !sunspot?.atCells.some(Number.isFinite)) {
     throw new InputProblem(
       "/period",
@@ -116,7 +111,6 @@ export function computeReconstruction(
     ...cycleAmplitudeWarning(amp.median),
     ...quietSunWarning(stored.model.quiet_sun.value),
   ];
-  const zNote = params.level === 0.95 ? "95 %" : `${(params.level * 100).toFixed(1)} %`;
   return {
     model: params.model,
     resolution: cells.resolution,
@@ -133,36 +127,55 @@ export function computeReconstruction(
       missing: coverage.missing,
     },
     source_segments: coverage.segments,
-    cycle_amplitude: {
-      median: amp.median,
-      cycles: amp.cycles.map((c) => ({
-        minimum_year: c.minimumYear,
-        maximum_year: c.maximumYear,
-        amplitude: c.amplitude,
-      })),
-    },
-    outputs: {
-      tsi: {
-        name: "Reconstructed TSI",
-        quantity: "tsi",
-        units: "W m-2",
-        time: Array.from(cells.time),
-        value: micro(rec.value),
-        uncertainty: micro(rec.sd),
-        lower: micro(rec.lower),
-        upper: micro(rec.upper),
-        interval: `${zNote} prediction interval`,
-        description:
-          `Model run ${params.model}, ${cells.resolution} means, values rounded to 1e-6 W m-2; ${scenario.label}`,
-      },
-    },
+    cycle_amplitude: cycleAmplitudeJson(amp),
+    outputs: { tsi: tsiOutput(params, cells, rec, scenario.label) },
     warnings,
-    cautions: [
-      PRE_SATELLITE_CAUTION,
-      ASSESSMENT_CAUTION,
-      "Intervals of monthly and annual means assume AR(1) residuals; residuals with longer memory (instrument drifts, slow facular changes) would make them wider.",
-      `Background scenario: ${scenario.label}`,
-    ],
+    cautions: [...RECONSTRUCTION_CAUTIONS, `Background scenario: ${scenario.label}`],
+  };
+}
+
+/** Cautions every reconstruction carries, before its background label. */
+const RECONSTRUCTION_CAUTIONS = [
+  PRE_SATELLITE_CAUTION,
+  ASSESSMENT_CAUTION,
+  "Intervals of monthly and annual means assume AR(1) residuals; residuals with longer memory (instrument drifts, slow facular changes) would make them wider.",
+];
+
+/** Each model term mapped from the cells' sunspot numbers (null without a sunspot series). */
+function mappedProxies(
+  stored: ModelResultOut,
+  sunspot: SunspotInput | null,
+  n: number,
+): ReconstructionCells["mapped"] {
+  return stored.model.terms.map((t) => {
+    if (!sunspot || !stored.mappings) return null;
+    const value = new Float64Array(n), paramVariance = new Float64Array(n);
+    const m = mappingFromJson(stored.mappings.terms[t.name].chosen);
+    evaluateSunspotMapping(m, sunspot.atCells, value, paramVariance);
+    return { value, paramVariance };
+  });
+}
+
+/** The reconstructed TSI as a series-like output, rounded to 1e-6 W m-2. */
+function tsiOutput(
+  params: ReconstructionParams,
+  cells: TargetCells,
+  rec: Reconstruction,
+  scenarioLabel: string,
+): ReconstructionResultIn["outputs"]["tsi"] {
+  const level = params.level === 0.95 ? "95 %" : `${(params.level * 100).toFixed(1)} %`;
+  return {
+    name: "Reconstructed TSI",
+    quantity: "tsi",
+    units: "W m-2",
+    time: Array.from(cells.time),
+    value: micro(rec.value),
+    uncertainty: micro(rec.sd),
+    lower: micro(rec.lower),
+    upper: micro(rec.upper),
+    interval: `${level} prediction interval`,
+    description:
+      `Model run ${params.model}, ${cells.resolution} means, values rounded to 1e-6 W m-2; ${scenarioLabel}`,
   };
 }
 

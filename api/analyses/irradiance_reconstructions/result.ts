@@ -5,6 +5,7 @@
  */
 import { z } from "@hono/zod-openapi";
 import { cautions, OutputSeriesSchema, warnings } from "../common/result_parts.ts";
+import { TsiCycleAmplitudeSchema } from "../common/tsi_cycle_amplitude.ts";
 
 const SourceCoverage = z.object({
   cells: z.number().int(),
@@ -51,14 +52,7 @@ export const ReconstructionResult = z.object({
     end: z.number().openapi({ description: "Last cell middle, decimal year" }),
     cells: z.number().int(),
   })).openapi({ description: "Runs of consecutive cells of one source" }),
-  cycle_amplitude: z.object({
-    median: z.number().nullable(),
-    cycles: z.array(z.object({
-      minimum_year: z.number().int(),
-      maximum_year: z.number().int(),
-      amplitude: z.number(),
-    })),
-  }).openapi({ description: "Cycle amplitudes of the annual means, W m-2" }),
+  cycle_amplitude: TsiCycleAmplitudeSchema,
   outputs: z.object({
     tsi: OutputSeriesSchema.openapi({
       description: "TSI per cell, W m-2, rounded to 1e-6; null where no proxy and no sunspot " +
