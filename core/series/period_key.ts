@@ -6,8 +6,8 @@
  *   year the year (proleptic Gregorian, astronomical year numbering); consecutive periods have
  *   consecutive keys;
  * - an instant (a decimal year) belongs to the period holding its calendar date, read by the
- *   time model (`calendarInstant`, with its one tolerance `DAY_TOLERANCE`), so the start of a
- *   period is never read as the end of the one before;
+ *   time model (`epochDayOf`, as `calendarInstant` reads it, with its one tolerance
+ *   `DAY_TOLERANCE`), so the start of a period is never read as the end of the one before;
  * - bounds of a period are computed from the integers of its key, end exclusive;
  * - a span [start, end) covers the periods from the one holding `start` to the one holding the
  *   last instant before `end`: the exclusive end is resolved once, in {@link periodKeyRange},
@@ -25,6 +25,7 @@ import {
   daysInMonth,
   daysInYear,
   decimalYearFromEpochDays,
+  epochDayOf,
 } from "../time/mod.ts";
 import { InputError } from "../errors.ts";
 
@@ -47,10 +48,7 @@ import { InputError } from "../errors.ts";
  * ```
  */
 export function periodKey(t: number, resolution: CalendarResolution): number {
-  const c = calendarInstant(t);
-  if (resolution === "annual") return c.year;
-  if (resolution === "monthly") return c.year * 12 + c.month - 1;
-  return daysFromCivil(c.year, c.month, c.day);
+  return periodKeyOfDay(epochDayOf(t), resolution);
 }
 
 /**

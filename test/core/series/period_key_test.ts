@@ -9,7 +9,12 @@ import {
   periodOfKey,
   periodSequence,
 } from "../../../core/series/mod.ts";
-import { parseIsoTime } from "../../../core/time/mod.ts";
+import {
+  calendarInstant,
+  daysFromCivil,
+  epochDayOf,
+  parseIsoTime,
+} from "../../../core/time/mod.ts";
 import { InputError } from "../../../core/errors.ts";
 
 // ---------------------------------------------------------------------------------------------
@@ -99,6 +104,22 @@ Deno.test("periodKey() reads an instant a few ulps before a period start as that
       assert.equal(periodKey(t, "daily"), refDay(y, 1, 1), `${t}`);
     }
   }
+});
+
+Deno.test("epochDayOf() property: the day calendarInstant() reads, near day starts too", () => {
+  fc.assert(
+    fc.property(
+      fc.integer({ min: 1600, max: 2400 }),
+      fc.double({ min: 0, max: 1, noNaN: true }),
+      fc.constantFrom(0, 1e-13, -1e-13, 1e-9, -1e-9),
+      (y, f, nudge) => {
+        const t = y + f + nudge;
+        const c = calendarInstant(t);
+        assert.equal(epochDayOf(t), daysFromCivil(c.year, c.month, c.day), `${t}`);
+      },
+    ),
+    { numRuns: 500, seed: 20260113 },
+  );
 });
 
 Deno.test("periodKeyRange() property: an exclusive end touches the periods a reference counts", () => {
