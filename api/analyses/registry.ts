@@ -18,10 +18,10 @@ import { lagCorrelationKind } from "./lag_correlations/mod.ts";
 import { resampleKind } from "./resampling/mod.ts";
 import { anomalyKind } from "./anomalies/mod.ts";
 import { alignKind } from "./alignments/mod.ts";
-import { irradianceDarkening } from "../kinds/irradiance_darkening.ts";
-import { irradianceModels } from "../kinds/irradiance_models.ts";
-import { irradianceReconstructions } from "../kinds/irradiance_reconstructions.ts";
-import { forcing } from "../kinds/forcing.ts";
+import { irradianceDarkening } from "./irradiance_darkening/mod.ts";
+import { irradianceModels } from "./irradiance_models/mod.ts";
+import { irradianceReconstructions } from "./irradiance_reconstructions/mod.ts";
+import { forcing } from "./forcing/mod.ts";
 
 export const RUN_KINDS: readonly RunKind[] = [
   smoothingKind,

@@ -3,6 +3,7 @@
  *
  * @module
  */
+import { InputError } from "../errors.ts";
 
 /**
  * The variance inflation of a mean of m consecutive AR(1) values relative to independent
@@ -15,7 +16,7 @@
  * @param m number of values averaged (≥ 0)
  * @param rho lag-1 autocorrelation in (−1, 1)
  * @returns f, between 1/m·(1−ρ)/(1+ρ)-ish and m; f = 1 for ρ = 0
- * @throws {RangeError} when ρ is outside (−1, 1) or m is negative / not finite
+ * @throws {InputError} when ρ is outside (−1, 1) or m is negative / not finite
  * @example
  * ```ts
  * import { ar1MeanVarianceFactor } from "./ar1_mean_variance.ts";
@@ -27,10 +28,17 @@
  */
 export function ar1MeanVarianceFactor(m: number, rho: number): number {
   if (!(rho > -1 && rho < 1)) {
-    throw new RangeError(`Cannot compute AR(1) mean variance: rho must be in (-1, 1), got ${rho}`);
+    throw new InputError(
+      `Cannot compute AR(1) mean variance: rho must be in (-1, 1), got ${rho}`,
+      { field: "rho", reason: "out_of_range", value: rho },
+    );
   }
   if (!(m >= 0) || !Number.isFinite(m)) {
-    throw new RangeError(`Cannot compute AR(1) mean variance: m must be ≥ 0, got ${m}`);
+    throw new InputError(`Cannot compute AR(1) mean variance: m must be ≥ 0, got ${m}`, {
+      field: "m",
+      reason: "out_of_range",
+      value: m,
+    });
   }
   if (m <= 1 || rho === 0) return 1;
   const a = rho / (1 - rho);

@@ -3,6 +3,7 @@
  *
  * @module
  */
+import { InputError } from "../errors.ts";
 import type { RegressionFit } from "../stats/ordinary_least_squares.ts";
 
 /** Result of {@link blockedCrossValidation}. */
@@ -27,7 +28,7 @@ export interface BlockedCrossValidation {
  * @param k number of folds, 2 ≤ k ≤ n/2 @default 5
  * @param fit the fitting function (e.g. ordinaryLeastSquares or praisWinsten)
  * @returns {@link BlockedCrossValidation}
- * @throws {RangeError} when k is out of range; errors of `fit` propagate
+ * @throws {InputError} when k is out of range; errors of `fit` propagate
  * @example
  * ```ts
  * import { blockedCrossValidation } from "./blocked_cross_validation.ts";
@@ -47,10 +48,11 @@ export function blockedCrossValidation(
 ): BlockedCrossValidation {
   const n = y.length;
   if (!Number.isInteger(k) || k < 2 || k > Math.floor(n / 2)) {
-    throw new RangeError(
+    throw new InputError(
       `Cannot cross-validate: folds must be an integer in [2, ${
         Math.floor(n / 2)
       }], current value is ${k}`,
+      { field: "k", reason: "out_of_range", value: k },
     );
   }
   const blocks: [number, number][] = [];

@@ -3,7 +3,8 @@
  *
  * @module
  */
-import { cellMeans } from "./calendar_cells.ts";
+import { median } from "d3-array";
+import { periodMeansByKey } from "../series/period_means.ts";
 
 /** Result of {@link tsiCycleAmplitude}. */
 export interface TsiCycleAmplitude {
@@ -17,7 +18,8 @@ export interface TsiCycleAmplitude {
  * Peak-to-trough cycle amplitude from annual means: a year is a maximum (minimum) when its
  * annual mean is the largest (smallest) within ±`halfWindow` years; each maximum is paired with
  * the latest minimum before it (common practice for cycle extrema of smoothed series; annual
- * means are close to the 13-month smoothing at the extrema).
+ * means are close to the 13-month smoothing at the extrema). Annual means are those of
+ * core/series (every year with at least one value); the median is d3-array's.
  *
  * @param time decimal years
  * @param value TSI, W m-2 (NaN skipped)
@@ -38,7 +40,7 @@ export function tsiCycleAmplitude(
   value: ArrayLike<number>,
   halfWindow = 3,
 ): TsiCycleAmplitude {
-  const annual = cellMeans(time, value, "annual");
+  const annual = periodMeansByKey({ time, value }, "annual");
   const years = annual.keys, v = annual.mean;
   const n = years.length;
   const isExt = (i: number, sign: number) => {
@@ -61,11 +63,5 @@ export function tsiCycleAmplitude(
       lastMin = -1;
     }
   }
-  const amps = cycles.map((c) => c.amplitude).sort((a, b) => a - b);
-  const median = amps.length === 0
-    ? null
-    : amps.length % 2
-    ? amps[(amps.length - 1) / 2]
-    : (amps[amps.length / 2 - 1] + amps[amps.length / 2]) / 2;
-  return { median, cycles };
+  return { median: median(cycles, (c) => c.amplitude) ?? null, cycles };
 }

@@ -1,19 +1,22 @@
 /**
  * Total solar irradiance: sunspot darkening (Photometric Sunspot Index), disc geometry,
- * sunspot-number → proxy mappings, proxy-model calibration with blocked cross-validation,
- * reconstruction with prediction intervals, the optional secular background scenario,
- * radiative forcing and cycle-amplitude checks.
+ * sunspot-number → proxy mappings, proxy-model evaluation and calibration with blocked
+ * cross-validation, reconstruction with prediction intervals, back-extension with its
+ * residual process, extrapolation checks, the optional secular background scenario,
+ * radiative forcing and cycle-amplitude checks. Calendar cells are core/series periods.
  *
  * @module
  */
 export * from "./solar_disc_geometry.ts";
-export * from "./calendar_cells.ts";
 export * from "./photometric_sunspot_index.ts";
 export * from "./sunspot_proxy_mapping.ts";
 export * from "./blocked_cross_validation.ts";
+export * from "./proxy_model_evaluation.ts";
 export * from "./proxy_model.ts";
 export * from "./ar1_mean_variance.ts";
 export * from "./proxy_reconstruction.ts";
+export * from "./back_extension.ts";
+export * from "./extrapolation_checks.ts";
 export * from "./secular_background.ts";
 export * from "./radiative_forcing.ts";
 export * from "./cycle_amplitude.ts";

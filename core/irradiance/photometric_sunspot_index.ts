@@ -12,6 +12,7 @@
  *
  * @module
  */
+import { InputError } from "../errors.ts";
 
 /** Bolometric contrast model. */
 export type ContrastModel =
@@ -26,7 +27,7 @@ export const HUDSON_CONTRAST = 0.32;
  *
  * @param mu μ = cos θ in [0, 1]
  * @returns the factor: 2.5 at disc centre, 0.875 at μ = 0.5, 0 at the limb
- * @throws {RangeError} when μ is not in [0, 1]
+ * @throws {InputError} when μ is not in [0, 1]
  * @example
  * ```ts
  * import { psiPositionFactor } from "./photometric_sunspot_index.ts";
@@ -37,8 +38,9 @@ export const HUDSON_CONTRAST = 0.32;
  */
 export function psiPositionFactor(mu: number): number {
   if (!(mu >= 0 && mu <= 1)) {
-    throw new RangeError(
+    throw new InputError(
       `Cannot compute PSI position factor: mu must be in [0, 1], current value is ${mu}`,
+      { field: "mu", reason: "out_of_range", value: mu },
     );
   }
   return (mu * (3 * mu + 2)) / 2;
@@ -51,7 +53,7 @@ export function psiPositionFactor(mu: number): number {
  * @param areaMsh true group area in millionths of the hemisphere (> 0 for area_dependent)
  * @param model contrast model @default { kind: "constant", value: 0.32 }
  * @returns the contrast (dimensionless)
- * @throws {RangeError} for a non-positive area with the area-dependent model, or a constant
+ * @throws {InputError} for a non-positive area with the area-dependent model, or a constant
  *   outside (0, 1]
  * @example
  * ```ts
@@ -68,13 +70,18 @@ export function sunspotContrast(
   if (model.kind === "constant") {
     const c = model.value ?? HUDSON_CONTRAST;
     if (!(c > 0 && c <= 1)) {
-      throw new RangeError(`Cannot compute contrast: constant must be in (0, 1], got ${c}`);
+      throw new InputError(`Cannot compute contrast: constant must be in (0, 1], got ${c}`, {
+        field: "contrast",
+        reason: "out_of_range",
+        value: c,
+      });
     }
     return c;
   }
   if (!(areaMsh > 0) || !Number.isFinite(areaMsh)) {
-    throw new RangeError(
+    throw new InputError(
       `Cannot compute area-dependent contrast: area must be positive MSH, current value is ${areaMsh}`,
+      { field: "areaMsh", reason: "out_of_range", value: areaMsh },
     );
   }
   return 0.2231 + 0.0244 * Math.log10(areaMsh);
@@ -88,7 +95,7 @@ export function sunspotContrast(
  * @param projectedMsd projected area, millionths of the disc, ≥ 0
  * @param mu μ in (0, 1]
  * @returns true area in MSH
- * @throws {RangeError} for negative area or μ outside (0, 1]
+ * @throws {InputError} for negative area or μ outside (0, 1]
  * @example
  * ```ts
  * import { trueAreaFromProjected } from "./photometric_sunspot_index.ts";
@@ -99,10 +106,18 @@ export function sunspotContrast(
  */
 export function trueAreaFromProjected(projectedMsd: number, mu: number): number {
   if (!(projectedMsd >= 0) || !Number.isFinite(projectedMsd)) {
-    throw new RangeError(`Cannot convert projected area: must be ≥ 0, got ${projectedMsd}`);
+    throw new InputError(`Cannot convert projected area: must be ≥ 0, got ${projectedMsd}`, {
+      field: "projectedMsd",
+      reason: "out_of_range",
+      value: projectedMsd,
+    });
   }
   if (!(mu > 0 && mu <= 1)) {
-    throw new RangeError(`Cannot convert projected area: mu must be in (0, 1], got ${mu}`);
+    throw new InputError(`Cannot convert projected area: mu must be in (0, 1], got ${mu}`, {
+      field: "mu",
+      reason: "out_of_range",
+      value: mu,
+    });
   }
   return projectedMsd / (2 * mu);
 }
@@ -114,18 +129,22 @@ export function trueAreaFromProjected(projectedMsd: number, mu: number): number 
  * @param mu μ = cos θ in [0, 1]
  * @param contrast contrast model @default constant 0.32
  * @returns the group's PSI (fraction of the quiet-Sun irradiance)
- * @throws {RangeError} as {@link psiPositionFactor} and {@link sunspotContrast}
+ * @throws {InputError} as {@link psiPositionFactor} and {@link sunspotContrast}
  * @example
  * ```ts
  * import { groupPsi } from "./photometric_sunspot_index.ts";
  * import assert from "node:assert/strict";
- * // shared/SCIENCE.md §2: 1000 MSH at θ = 30° with C = 0.32 → 6.3713e-4
+ * // Hudson et al. 1982 form, worked by hand: 1000 MSH at θ = 30°, C = 0.32 → 6.3713e-4
  * assert.ok(Math.abs(groupPsi(1000, Math.cos(Math.PI / 6)) - 6.3713e-4) < 5e-8);
  * ```
  */
 export function groupPsi(areaMsh: number, mu: number, contrast?: ContrastModel): number {
   if (!(areaMsh >= 0) || !Number.isFinite(areaMsh)) {
-    throw new RangeError(`Cannot compute PSI: area must be ≥ 0 MSH, current value is ${areaMsh}`);
+    throw new InputError(`Cannot compute PSI: area must be ≥ 0 MSH, current value is ${areaMsh}`, {
+      field: "areaMsh",
+      reason: "out_of_range",
+      value: areaMsh,
+    });
   }
   if (areaMsh === 0) return 0;
   return sunspotContrast(areaMsh, contrast) * areaMsh * 1e-6 * psiPositionFactor(mu);
@@ -139,7 +158,7 @@ export function groupPsi(areaMsh: number, mu: number, contrast?: ContrastModel):
  * @param areaMsh total true area, MSH, ≥ 0
  * @param contrast contrast model @default constant 0.32
  * @returns PSI
- * @throws {RangeError} for negative or non-finite area
+ * @throws {InputError} for negative or non-finite area
  * @example
  * ```ts
  * import { psiFromTotalArea } from "./photometric_sunspot_index.ts";
@@ -149,7 +168,11 @@ export function groupPsi(areaMsh: number, mu: number, contrast?: ContrastModel):
  */
 export function psiFromTotalArea(areaMsh: number, contrast?: ContrastModel): number {
   if (!(areaMsh >= 0) || !Number.isFinite(areaMsh)) {
-    throw new RangeError(`Cannot compute PSI: area must be ≥ 0 MSH, current value is ${areaMsh}`);
+    throw new InputError(`Cannot compute PSI: area must be ≥ 0 MSH, current value is ${areaMsh}`, {
+      field: "areaMsh",
+      reason: "out_of_range",
+      value: areaMsh,
+    });
   }
   if (areaMsh === 0) return 0;
   return sunspotContrast(areaMsh, contrast) * areaMsh * 1e-6;
@@ -173,7 +196,8 @@ export interface DailyPsi {
  * @param mu μ of each record (ignored when `discAverage` is true)
  * @param options contrast model and `discAverage` (use the factor 1 instead of μ)
  * @returns {@link DailyPsi}
- * @throws {RangeError} when lengths differ or a value is invalid (index named)
+ * @throws {InputError} when lengths differ or a record is invalid: `field` is `day`, `areaMsh`,
+ *   `mu` or `contrast`, `index` the record
  * @example
  * ```ts
  * import { dailyPsi } from "./photometric_sunspot_index.ts";
@@ -192,16 +216,27 @@ export function dailyPsi(
 ): DailyPsi {
   const n = day.length;
   if (areaMsh.length !== n || (mu && mu.length !== n)) {
-    throw new RangeError("Cannot compute daily PSI: day, area and mu differ in length");
+    throw new InputError("Cannot compute daily PSI: day, area and mu differ in length", {
+      field: areaMsh.length !== n ? "areaMsh" : "mu",
+      reason: "length_mismatch",
+    });
   }
   if (!options.discAverage && !mu) {
-    throw new RangeError("Cannot compute daily PSI: mu is needed unless discAverage is set");
+    throw new InputError("Cannot compute daily PSI: mu is needed unless discAverage is set", {
+      field: "mu",
+      reason: "invalid",
+    });
   }
   const order = Array.from({ length: n }, (_, i) => i).sort((a, b) => day[a] - day[b]);
   const days: number[] = [], psi: number[] = [], groups: number[] = [];
   for (const i of order) {
     if (!Number.isInteger(day[i])) {
-      throw new RangeError(`Cannot compute daily PSI: day at record ${i} is ${day[i]}`);
+      throw new InputError(`Cannot compute daily PSI: day at record ${i} is ${day[i]}`, {
+        field: "day",
+        reason: "invalid",
+        index: i,
+        value: day[i],
+      });
     }
     let v: number;
     try {
@@ -209,7 +244,14 @@ export function dailyPsi(
         ? psiFromTotalArea(areaMsh[i], options.contrast)
         : groupPsi(areaMsh[i], mu![i], options.contrast);
     } catch (e) {
-      throw new RangeError(`record ${i}: ${(e as Error).message}`);
+      if (!(e instanceof InputError)) throw e;
+      // the record's field (areaMsh, mu or contrast) and index
+      throw new InputError(`Cannot compute daily PSI: record ${i}: ${e.message}`, {
+        field: e.field,
+        reason: e.reason,
+        index: i,
+        value: e.value,
+      });
     }
     if (days.length > 0 && days[days.length - 1] === day[i]) {
       psi[psi.length - 1] += v;

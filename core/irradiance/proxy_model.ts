@@ -10,17 +10,19 @@
  * (or other) term enters relative to its quiet-Sun level F_k,Q, so the intercept is the
  * quiet-Sun irradiance S_Q itself, with its standard error. The darkening term enters as
  * −S_ref·PSI with S_ref a fixed reference level (1360.8 W m-2 by default), so b is
- * dimensionless and near 1 when the PSI is right.
+ * dimensionless and near 1 when the PSI is right. The regressors are those of
+ * core/irradiance/proxy_model_evaluation.ts.
  *
  * @module
  */
 import { ordinaryLeastSquares, type RegressionFit } from "../stats/ordinary_least_squares.ts";
 import { praisWinsten } from "../stats/prais_winsten.ts";
 import { collinearityConditionNumber } from "../stats/condition_number.ts";
+import { tQuantile } from "../stats/distributions.ts";
+import { quantile } from "d3-array";
+import { InputError } from "../errors.ts";
 import { type BlockedCrossValidation, blockedCrossValidation } from "./blocked_cross_validation.ts";
-
-/** Role of a model term. */
-export type ProxyRole = "facular" | "sunspot_darkening" | "other";
+import { proxyRegressor, type ProxyRole } from "./proxy_model_evaluation.ts";
 
 /** A proxy term of the model, aligned with the TSI values. */
 export interface ProxyTerm {
@@ -75,25 +77,24 @@ export interface ProxyModelFit {
   collinearity: number;
   crossValidation: BlockedCrossValidation | null;
   residuals: Float64Array;
+  /** Fitted values ŷ = TSI − residual, W m-2. */
+  fitted: Float64Array;
 }
 
-/** Thrown when the proxies are collinear; carries the condition number. */
-export class CollinearProxiesError extends RangeError {
+/**
+ * Thrown when the proxies are collinear: an {@link InputError} on `terms` with reason
+ * `collinear` whose `value` (and `conditionNumber`) is the condition number.
+ */
+export class CollinearProxiesError extends InputError {
   constructor(readonly conditionNumber: number, limit: number) {
     super(
       `Cannot calibrate proxy model: the proxies are collinear (condition number ${
         Number.isFinite(conditionNumber) ? conditionNumber.toPrecision(4) : "infinite"
       } exceeds ${limit}); drop or combine proxies`,
+      { field: "terms", reason: "collinear", value: conditionNumber },
     );
     this.name = "CollinearProxiesError";
   }
-}
-
-function percentile1(x: Float64Array): number {
-  const s = Float64Array.from(x).sort();
-  const pos = 0.01 * (s.length - 1);
-  const i = Math.floor(pos), f = pos - i;
-  return i + 1 < s.length ? s[i] * (1 - f) + s[i + 1] * f : s[i];
 }
 
 /**
@@ -103,8 +104,9 @@ function percentile1(x: Float64Array): number {
  * @param terms proxy terms aligned with `tsi`
  * @param options {@link CalibrationOptions}
  * @returns {@link ProxyModelFit}
- * @throws {CollinearProxiesError} for collinear proxies; {@link RangeError} for fewer points
- *   than coefficients + 2, non-finite values, or no terms
+ * @throws {CollinearProxiesError} for collinear proxies; {@link InputError} for no terms
+ *   (field `terms`), a term not aligned with TSI (`terms`, index of the term) or fewer points
+ *   than coefficients + 2 (`tsi`)
  * @example
  * ```ts
  * import { calibrateProxyModel } from "./proxy_model.ts";
@@ -132,30 +134,39 @@ export function calibrateProxyModel(
   const folds = options.folds ?? 5;
   const psiRef = options.psiReference ?? 1360.8;
   const maxCond = options.maxConditionNumber ?? 1000;
-  if (terms.length === 0) throw new RangeError("Cannot calibrate proxy model: no proxy terms");
+  if (terms.length === 0) {
+    throw new InputError("Cannot calibrate proxy model: no proxy terms", {
+      field: "terms",
+      reason: "empty",
+    });
+  }
   const n = tsi.length;
   const p = terms.length + 1;
   if (n < p + 2) {
-    throw new RangeError(
+    throw new InputError(
       `Cannot calibrate proxy model: needs at least ${
         p + 2
       } overlapping points for ${p} coefficients, got ${n}`,
+      { field: "tsi", reason: "too_few_points", value: n },
     );
   }
   const cols: Float64Array[] = [];
   const termInfo: ProxyModelFit["terms"] = [];
-  for (const t of terms) {
+  for (const [k, t] of terms.entries()) {
     if (t.values.length !== n) {
-      throw new RangeError(`Cannot calibrate proxy model: term ${t.name} is not aligned with TSI`);
+      throw new InputError(
+        `Cannot calibrate proxy model: term ${t.name} is not aligned with TSI`,
+        { field: "terms", reason: "length_mismatch", index: k, value: t.values.length },
+      );
     }
-    const q = t.role === "sunspot_darkening" ? 0 : (t.quietLevel ?? percentile1(t.values));
+    const q = t.role === "sunspot_darkening" ? 0 : (t.quietLevel ?? quietLevelOf(t.values));
     const c = new Float64Array(n);
     let lo = Infinity, hi = -Infinity;
     for (let i = 0; i < n; i++) {
       const v = t.values[i];
       if (v < lo) lo = v;
       if (v > hi) hi = v;
-      c[i] = t.role === "sunspot_darkening" ? -psiRef * v : v - q;
+      c[i] = proxyRegressor(t.role, q, psiRef, v);
     }
     cols.push(c);
     termInfo.push({ name: t.name, role: t.role, quietLevel: q, min: lo, max: hi });
@@ -202,5 +213,115 @@ export function calibrateProxyModel(
     collinearity,
     crossValidation: cv,
     residuals: fit.residuals,
+    fitted: tsi.map((y, i) => y - fit.residuals[i]),
   };
+}
+
+/**
+ * The default quiet-Sun level F_Q of a facular term: its 1st percentile over the calibration
+ * points (R's quantile type 7, linear interpolation between order statistics; d3-array
+ * `quantile`), a level the quiet Sun reaches but noise rarely undercuts.
+ *
+ * @param values the term's values at the calibration points (finite, at least one)
+ * @returns the 1st percentile
+ * @throws {InputError} (field `values`) when there is no finite value
+ * @example
+ * ```ts
+ * import { quietLevelOf } from "./proxy_model.ts";
+ * import assert from "node:assert/strict";
+ * // 101 values 0..100: the 1st percentile is 1 (R: quantile(0:100, 0.01) = 1)
+ * assert.equal(quietLevelOf(Float64Array.from({ length: 101 }, (_, i) => i)), 1);
+ * ```
+ */
+export function quietLevelOf(values: Iterable<number>): number {
+  const q = quantile(values, 0.01);
+  if (q === undefined) {
+    throw new InputError("Cannot choose a quiet level: the term has no finite value", {
+      field: "values",
+      reason: "empty",
+    });
+  }
+  return q;
+}
+
+/**
+ * The multiplier of a two-sided prediction interval at `level` for a regression with `df`
+ * residual degrees of freedom: the Student-t quantile t(1 − (1 − level)/2, df) (e.g. Draper &
+ * Smith 1998, Applied Regression Analysis, 3rd ed., §3.2).
+ *
+ * @param level coverage in (0, 1)
+ * @param df residual degrees of freedom (> 0)
+ * @returns the quantile (1.96 for level 0.95 and large df)
+ * @throws {InputError} (field `level`) when level is not in (0, 1)
+ * @example
+ * ```ts
+ * import { predictionQuantile } from "./proxy_model.ts";
+ * import assert from "node:assert/strict";
+ * // R: qt(0.975, 10) = 2.228139
+ * assert.ok(Math.abs(predictionQuantile(0.95, 10) - 2.228139) < 1e-6);
+ * ```
+ */
+export function predictionQuantile(level: number, df: number): number {
+  if (!(level > 0 && level < 1)) {
+    throw new InputError(
+      `Cannot compute a prediction quantile: level must be in (0, 1), got ${level}`,
+      {
+        field: "level",
+        reason: "out_of_range",
+        value: level,
+      },
+    );
+  }
+  return tQuantile(1 - (1 - level) / 2, df);
+}
+
+/** A band around fitted values (result of {@link fittedValueBand}). */
+export interface FittedValueBand {
+  lower: Float64Array;
+  upper: Float64Array;
+  /** The quantile used: t(1 − (1 − level)/2, df). */
+  quantile: number;
+}
+
+/**
+ * The band a new measurement at a calibration point falls in with probability `level`, from
+ * the residual spread only: ŷ ± t(1 − (1 − level)/2, df)·σ_e, with σ_e the marginal residual
+ * SD (Student's t with the residual degrees of freedom; coefficient uncertainty, small against
+ * σ_e inside the calibration span, is left out; the reconstruction's intervals include it).
+ *
+ * @param fitted fitted values ŷ, W m-2
+ * @param residualSd σ_e, W m-2 (≥ 0)
+ * @param dfResidual residual degrees of freedom (> 0)
+ * @param level coverage in (0, 1) @default 0.95
+ * @returns {@link FittedValueBand}
+ * @throws {InputError} (field `level` or `residualSd`) when out of range
+ * @example
+ * ```ts
+ * import { fittedValueBand } from "./proxy_model.ts";
+ * import assert from "node:assert/strict";
+ * const b = fittedValueBand([1361], 0.1, 1e6);
+ * assert.ok(Math.abs(b.quantile - 1.95996) < 1e-4); // t(0.975, ∞) → 1.96
+ * assert.ok(Math.abs(b.upper[0] - 1361 - 0.196) < 1e-4);
+ * ```
+ */
+export function fittedValueBand(
+  fitted: ArrayLike<number>,
+  residualSd: number,
+  dfResidual: number,
+  level = 0.95,
+): FittedValueBand {
+  if (!(residualSd >= 0)) {
+    throw new InputError(`Cannot build a band: residualSd must be ≥ 0, got ${residualSd}`, {
+      field: "residualSd",
+      reason: "out_of_range",
+      value: residualSd,
+    });
+  }
+  const t = predictionQuantile(level, dfResidual);
+  const n = fitted.length, lower = new Float64Array(n), upper = new Float64Array(n);
+  for (let i = 0; i < n; i++) {
+    lower[i] = fitted[i] - t * residualSd;
+    upper[i] = fitted[i] + t * residualSd;
+  }
+  return { lower, upper, quantile: t };
 }

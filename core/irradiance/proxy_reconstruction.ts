@@ -3,8 +3,9 @@
  *
  * @module
  */
+import { InputError } from "../errors.ts";
 import { ar1MeanVarianceFactor } from "./ar1_mean_variance.ts";
-import type { ProxyRole } from "./proxy_model.ts";
+import { proxyRegressor, proxyRegressorScale, type ProxyRole } from "./proxy_model_evaluation.ts";
 
 /** The parts of a calibrated model a reconstruction needs. */
 export interface ReconstructionModel {
@@ -50,7 +51,7 @@ export interface Reconstruction {
 
 /**
  * Reconstruct TSI per cell: ŷ = xᵀβ with x the cell's regressors (intercept, F_k − F_k,Q,
- * −S_ref·PSI), and the predictive variance
+ * −S_ref·PSI; core/irradiance/proxy_model_evaluation.ts), and the predictive variance
  *
  *   Var = xᵀΣ_β x + Σ_k (β_k² + Σ_β,kk)·s_k²·v_k + σ_e²·f(m, ρ)/m
  *
@@ -67,7 +68,8 @@ export interface Reconstruction {
  * @param cells {@link ReconstructionCells}
  * @param z quantile for the interval (1.96 for 95 % normal)
  * @returns {@link Reconstruction}; cells without proxies get NaN
- * @throws {RangeError} when the cells do not match the model's terms
+ * @throws {InputError} (field `cells`) when the cells do not match the model's terms, (field
+ *   `model`) when the coefficients do not
  * @example
  * ```ts
  * import { reconstructFromProxies } from "./proxy_reconstruction.ts";
@@ -88,17 +90,21 @@ export function reconstructFromProxies(
 ): Reconstruction {
   const K = model.terms.length;
   if (cells.direct.length !== K || cells.mapped.length !== K) {
-    throw new RangeError(
+    throw new InputError(
       `Cannot reconstruct: model has ${K} terms, cells have ${cells.direct.length}`,
+      { field: "cells", reason: "length_mismatch", value: cells.direct.length },
     );
   }
   if (model.coefficients.length !== K + 1) {
-    throw new RangeError("Cannot reconstruct: coefficients do not match the terms");
+    throw new InputError("Cannot reconstruct: coefficients do not match the terms", {
+      field: "model",
+      reason: "length_mismatch",
+      value: model.coefficients.length,
+    });
   }
   const n = cells.days.length;
   const beta = model.coefficients, S = model.covariance;
-  const scale = model.terms.map((t) => t.role === "sunspot_darkening" ? -model.psiReference : 1);
-  const offset = model.terms.map((t) => t.role === "sunspot_darkening" ? 0 : t.quietLevel);
+  const scale = model.terms.map((t) => proxyRegressorScale(t.role, model.psiReference));
   const value = new Float64Array(n), sd = new Float64Array(n);
   const lower = new Float64Array(n), upper = new Float64Array(n);
   const source = new Uint8Array(n);
@@ -131,7 +137,8 @@ export function reconstructFromProxies(
         const s = scale[k];
         mappedVar += (beta[k + 1] * beta[k + 1] + S[k + 1][k + 1]) * s * s * m.paramVariance[i];
       }
-      x[k + 1] = scale[k] * (v - offset[k]);
+      const t = model.terms[k];
+      x[k + 1] = proxyRegressor(t.role, t.quietLevel, model.psiReference, v);
     }
     if (!ok || (anyMapped && !be)) {
       value[i] =
@@ -161,4 +168,90 @@ export function reconstructFromProxies(
     source[i] = anyMapped ? SOURCE_BACK_EXTENDED : SOURCE_DIRECT;
   }
   return { value, sd, lower, upper, source };
+}
+
+/** Names of the source codes, in code order. */
+export const SOURCE_NAMES = ["none", "direct", "back_extended"] as const;
+
+/** Cells of one source: how many, and the first and last cell middles (null when none). */
+export interface SourceCoverage {
+  cells: number;
+  start: number | null;
+  end: number | null;
+}
+
+/** Where a reconstruction's values come from (result of {@link reconstructionCoverage}). */
+export interface ReconstructionCoverage {
+  cells: number;
+  direct: SourceCoverage;
+  backExtended: SourceCoverage;
+  /** Cells without a value. */
+  missing: number;
+  /** Runs of consecutive cells of one source, in time order (start/end: cell middles). */
+  segments: { source: typeof SOURCE_NAMES[number]; start: number; end: number; cells: number }[];
+}
+
+/**
+ * Count the cells of each source and split the axis into runs of one source. A cell whose
+ * value is not finite counts as having no value, whatever its source code.
+ *
+ * @param rec a reconstruction (its `value` and `source`)
+ * @param time cell middles, decimal years, increasing, same length
+ * @returns {@link ReconstructionCoverage}
+ * @throws {InputError} (field `time`) when the lengths differ
+ * @example
+ * ```ts
+ * import { reconstructionCoverage } from "./proxy_reconstruction.ts";
+ * import assert from "node:assert/strict";
+ * const c = reconstructionCoverage(
+ *   { value: Float64Array.of(1, 1, NaN, 1), source: Uint8Array.of(2, 2, 2, 1) },
+ *   [1700.5, 1701.5, 1702.5, 1703.5],
+ * );
+ * assert.equal(c.backExtended.cells, 2);
+ * assert.equal(c.missing, 1);
+ * assert.deepEqual(c.segments.map((s) => s.source), ["back_extended", "none", "direct"]);
+ * ```
+ */
+export function reconstructionCoverage(
+  rec: { value: ArrayLike<number>; source: ArrayLike<number> },
+  time: ArrayLike<number>,
+): ReconstructionCoverage {
+  const n = rec.value.length;
+  if (time.length !== n || rec.source.length !== n) {
+    throw new InputError(
+      `Cannot summarise coverage: ${n} values but ${time.length} times`,
+      { field: "time", reason: "length_mismatch", value: time.length },
+    );
+  }
+  const code = (i: number) => (Number.isFinite(rec.value[i]) ? rec.source[i] : SOURCE_NONE);
+  const of = (c: number): SourceCoverage => {
+    let cells = 0, start: number | null = null, end: number | null = null;
+    for (let i = 0; i < n; i++) {
+      if (code(i) !== c) continue;
+      cells++;
+      if (start === null) start = time[i];
+      end = time[i];
+    }
+    return { cells, start, end };
+  };
+  const segments: ReconstructionCoverage["segments"] = [];
+  for (let i = 0; i < n;) {
+    let j = i;
+    while (j + 1 < n && code(j + 1) === code(i)) j++;
+    segments.push({
+      source: SOURCE_NAMES[code(i)],
+      start: time[i],
+      end: time[j],
+      cells: j - i + 1,
+    });
+    i = j + 1;
+  }
+  const direct = of(SOURCE_DIRECT), backExtended = of(SOURCE_BACK_EXTENDED);
+  return {
+    cells: n,
+    direct,
+    backExtended,
+    missing: n - direct.cells - backExtended.cells,
+    segments,
+  };
 }

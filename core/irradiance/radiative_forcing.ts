@@ -3,6 +3,8 @@
  *
  * @module
  */
+import { InputError } from "../errors.ts";
+import { normalQuantile } from "../stats/distributions.ts";
 
 /** Planetary albedo used by default (IPCC AR6 WG1 §7.3.4.4). */
 export const PLANETARY_ALBEDO = 0.29;
@@ -15,21 +17,29 @@ export const PLANETARY_ALBEDO = 0.29;
  * @param deltaTsi change of TSI, W m-2
  * @param albedo planetary albedo α in [0, 1) @default 0.29
  * @returns ΔF in W m-2
- * @throws {RangeError} for non-finite ΔTSI or α outside [0, 1)
+ * @throws {InputError} (field `deltaTsi` or `albedo`) for non-finite ΔTSI or α outside [0, 1)
  * @example
  * ```ts
  * import { radiativeForcing } from "./radiative_forcing.ts";
  * import assert from "node:assert/strict";
- * // shared/SCIENCE.md §8: 1 W m-2 → 0.1775 W m-2
+ * // IPCC AR6 WG1 §7.3.4.4 with α = 0.29: 1 W m-2 → 0.1775 W m-2
  * assert.ok(Math.abs(radiativeForcing(1) - 0.1775) < 1e-12);
  * ```
  */
 export function radiativeForcing(deltaTsi: number, albedo = PLANETARY_ALBEDO): number {
   if (!Number.isFinite(deltaTsi)) {
-    throw new RangeError(`Cannot compute forcing: deltaTsi must be finite, got ${deltaTsi}`);
+    throw new InputError(`Cannot compute forcing: deltaTsi must be finite, got ${deltaTsi}`, {
+      field: "deltaTsi",
+      reason: "not_finite",
+      value: deltaTsi,
+    });
   }
   if (!(albedo >= 0 && albedo < 1)) {
-    throw new RangeError(`Cannot compute forcing: albedo must be in [0, 1), got ${albedo}`);
+    throw new InputError(`Cannot compute forcing: albedo must be in [0, 1), got ${albedo}`, {
+      field: "albedo",
+      reason: "out_of_range",
+      value: albedo,
+    });
   }
   return (deltaTsi * (1 - albedo)) / 4;
 }
@@ -58,7 +68,8 @@ export interface ForcingSeries {
  * @param reference `{ start, end }` decimal years, end exclusive
  * @param albedo planetary albedo @default 0.29
  * @returns {@link ForcingSeries}
- * @throws {RangeError} when the reference period holds no finite TSI, or lengths differ
+ * @throws {InputError} (field `reference`, reason `no_overlap`) when the reference period holds
+ *   no finite TSI; (field `tsi` or `sd`) when lengths differ; as {@link radiativeForcing}
  * @example
  * ```ts
  * import { forcingSeries } from "./radiative_forcing.ts";
@@ -78,7 +89,10 @@ export function forcingSeries(
 ): ForcingSeries {
   const n = time.length;
   if (tsi.length !== n || (sd && sd.length !== n)) {
-    throw new RangeError("Cannot compute forcing series: time, tsi and sd differ in length");
+    throw new InputError("Cannot compute forcing series: time, tsi and sd differ in length", {
+      field: tsi.length !== n ? "tsi" : "sd",
+      reason: "length_mismatch",
+    });
   }
   let sum = 0, count = 0, sdSum = 0, sdCount = 0;
   for (let i = 0; i < n; i++) {
@@ -89,8 +103,9 @@ export function forcingSeries(
     }
   }
   if (count === 0) {
-    throw new RangeError(
+    throw new InputError(
       `Cannot compute forcing series: the reference period [${reference.start}, ${reference.end}) holds no TSI value`,
+      { field: "reference", reason: "no_overlap", value: [reference.start, reference.end] },
     );
   }
   const ref = sum / count;
@@ -105,4 +120,54 @@ export function forcingSeries(
     }
   }
   return { referenceTsi: ref, referenceSd: refSd, referencePoints: count, value, sd: out };
+}
+
+/** A two-sided normal interval (result of {@link forcingInterval}). */
+export interface ForcingInterval {
+  lower: Float64Array;
+  upper: Float64Array;
+  /** The normal quantile z used (1.96 for 95 %). */
+  z: number;
+}
+
+/**
+ * The interval ΔF ± z·σ_F with z the standard normal quantile for a two-sided `level` (the
+ * forcing's uncertainty taken as normal; 1.959964 for 95 %). NaN where ΔF or σ_F is missing.
+ *
+ * @param f a forcing series with uncertainty
+ * @param level coverage in (0, 1) @default 0.95
+ * @returns {@link ForcingInterval}
+ * @throws {InputError} (field `sd`) when the series has no uncertainty; (field `level`) when
+ *   out of range
+ * @example
+ * ```ts
+ * import { forcingInterval } from "./radiative_forcing.ts";
+ * import assert from "node:assert/strict";
+ * const i = forcingInterval({ value: Float64Array.of(0.1), sd: Float64Array.of(0.01),
+ *   referenceTsi: 1361, referenceSd: 0, referencePoints: 1 });
+ * assert.ok(Math.abs(i.upper[0] - (0.1 + 1.959964 * 0.01)) < 1e-7);
+ * ```
+ */
+export function forcingInterval(f: ForcingSeries, level = 0.95): ForcingInterval {
+  if (!f.sd) {
+    throw new InputError("Cannot build a forcing interval: the series has no uncertainty", {
+      field: "sd",
+      reason: "empty",
+    });
+  }
+  if (!(level > 0 && level < 1)) {
+    throw new InputError(`Cannot build a forcing interval: level must be in (0, 1), got ${level}`, {
+      field: "level",
+      reason: "out_of_range",
+      value: level,
+    });
+  }
+  const z = normalQuantile(1 - (1 - level) / 2);
+  const sd = f.sd, n = f.value.length;
+  const lower = new Float64Array(n), upper = new Float64Array(n);
+  for (let i = 0; i < n; i++) {
+    lower[i] = f.value[i] - z * sd[i];
+    upper[i] = f.value[i] + z * sd[i];
+  }
+  return { lower, upper, z };
 }

@@ -5,6 +5,7 @@
  *
  * @module
  */
+import { InputError } from "../errors.ts";
 
 import { daysFromCivil, daysInYear } from "../time/calendar.ts";
 
@@ -26,7 +27,7 @@ export interface SolarDiscGeometry {
  *
  * @param t decimal year
  * @returns Julian Day
- * @throws {RangeError} when t is not finite
+ * @throws {InputError} when t is not finite
  * @example
  * ```ts
  * import { julianDay } from "./solar_disc_geometry.ts";
@@ -36,7 +37,11 @@ export interface SolarDiscGeometry {
  */
 export function julianDay(t: number): number {
   if (!Number.isFinite(t)) {
-    throw new RangeError(`Cannot compute Julian Day: decimal year must be finite, got ${t}`);
+    throw new InputError(`Cannot compute Julian Day: decimal year must be finite, got ${t}`, {
+      field: "t",
+      reason: "not_finite",
+      value: t,
+    });
   }
   const year = Math.floor(t);
   return 2440587.5 + daysFromCivil(year, 1, 1) + (t - year) * daysInYear(year);
@@ -56,7 +61,7 @@ export function julianDay(t: number): number {
  *
  * @param jd Julian Day (UT ≈ TT)
  * @returns {@link SolarDiscGeometry} in degrees
- * @throws {RangeError} when jd is not finite
+ * @throws {InputError} when jd is not finite
  * @example
  * ```ts
  * import { solarDiscGeometry } from "./solar_disc_geometry.ts";
@@ -70,7 +75,11 @@ export function julianDay(t: number): number {
  */
 export function solarDiscGeometry(jd: number): SolarDiscGeometry {
   if (!Number.isFinite(jd)) {
-    throw new RangeError(`Cannot compute solar disc geometry: jd must be finite, got ${jd}`);
+    throw new InputError(`Cannot compute solar disc geometry: jd must be finite, got ${jd}`, {
+      field: "jd",
+      reason: "not_finite",
+      value: jd,
+    });
   }
   const T = (jd - 2451545) / 36525;
   // Meeus ch. 25, low accuracy apparent longitude
@@ -106,7 +115,7 @@ export function solarDiscGeometry(jd: number): SolarDiscGeometry {
  * @param centralMeridianDeg longitude from the central meridian (L − L0), degrees
  * @param b0Deg heliographic latitude of the disc centre, degrees @default 0
  * @returns μ in [−1, 1]
- * @throws {RangeError} for non-finite input or |φ| > 90
+ * @throws {InputError} for non-finite input or |φ| > 90
  * @example
  * ```ts
  * import { heliographicMu } from "./solar_disc_geometry.ts";
@@ -120,8 +129,16 @@ export function heliographicMu(latitudeDeg: number, centralMeridianDeg: number, 
     !Number.isFinite(latitudeDeg) || !Number.isFinite(centralMeridianDeg) ||
     !Number.isFinite(b0Deg) || Math.abs(latitudeDeg) > 90
   ) {
-    throw new RangeError(
+    throw new InputError(
       `Cannot compute mu: needs finite latitude in [-90, 90], longitude and B0, got ${latitudeDeg}, ${centralMeridianDeg}, ${b0Deg}`,
+      {
+        field: !Number.isFinite(latitudeDeg) || Math.abs(latitudeDeg) > 90
+          ? "latitudeDeg"
+          : !Number.isFinite(centralMeridianDeg)
+          ? "centralMeridianDeg"
+          : "b0Deg",
+        reason: "out_of_range",
+      },
     );
   }
   const p = latitudeDeg * RAD, b = b0Deg * RAD, d = centralMeridianDeg * RAD;

@@ -18,6 +18,7 @@
  *
  * @module
  */
+import { InputError } from "../errors.ts";
 import { leastSquaresQr } from "../stats/least_squares_qr.ts";
 import { ordinaryLeastSquares } from "../stats/ordinary_least_squares.ts";
 import { residualLag1 } from "../stats/residual_lag1.ts";
@@ -51,19 +52,27 @@ function gaussianIc(rss: number, n: number, k: number): { aic: number; bic: numb
 
 function check(r: ArrayLike<number>, f: ArrayLike<number>, need: number): void {
   if (r.length !== f.length) {
-    throw new RangeError(
+    throw new InputError(
       `Cannot fit sunspot mapping: ${r.length} sunspot values but ${f.length} proxy values`,
+      { field: "f", reason: "length_mismatch", value: f.length },
     );
   }
   if (r.length < need) {
-    throw new RangeError(
+    throw new InputError(
       `Cannot fit sunspot mapping: needs at least ${need} overlapping points, got ${r.length}`,
+      { field: "r", reason: "too_few_points", value: r.length },
     );
   }
   for (let i = 0; i < r.length; i++) {
     if (!Number.isFinite(r[i]) || !Number.isFinite(f[i]) || r[i] < 0) {
-      throw new RangeError(
+      throw new InputError(
         `Cannot fit sunspot mapping: point ${i} is not usable (R = ${r[i]}, proxy = ${f[i]})`,
+        {
+          field: Number.isFinite(r[i]) && r[i] >= 0 ? "f" : "r",
+          reason: Number.isFinite(r[i]) && Number.isFinite(f[i]) ? "out_of_range" : "not_finite",
+          index: i,
+          value: Number.isFinite(r[i]) && r[i] >= 0 ? f[i] : r[i],
+        },
       );
     }
   }
@@ -84,7 +93,8 @@ function range(r: Float64Array): [number, number] {
  * @param r sunspot numbers (≥ 0), time-ordered
  * @param f proxy values at the same times
  * @returns the {@link SunspotProxyMapping}
- * @throws {RangeError} for fewer than 4 points, non-finite values, negative R or constant R
+ * @throws {InputError} (field `r` or `f`, with the index of a bad point) for fewer than 4
+ *   points, non-finite values, negative R or constant R
  * @example
  * ```ts
  * import { fitLinearSunspotMapping } from "./sunspot_proxy_mapping.ts";
@@ -132,7 +142,8 @@ function saturatingColumn(R: Float64Array, r0: number, out: Float64Array): Float
  * @param r sunspot numbers (≥ 0), time-ordered
  * @param f proxy values at the same times
  * @returns the {@link SunspotProxyMapping}
- * @throws {RangeError} for fewer than 5 points, non-finite values or negative R
+ * @throws {InputError} (field `r` or `f`, with the index of a bad point) for fewer than 5
+ *   points, non-finite values, negative or constant R
  * @example
  * ```ts
  * import { fitSaturatingSunspotMapping } from "./sunspot_proxy_mapping.ts";
@@ -152,7 +163,11 @@ export function fitSaturatingSunspotMapping(
   const n = R.length;
   const [lo, hi] = range(R);
   if (!(hi > lo)) {
-    throw new RangeError("Cannot fit sunspot mapping: sunspot numbers are constant");
+    throw new InputError("Cannot fit sunspot mapping: sunspot numbers are constant", {
+      field: "r",
+      reason: "constant",
+      value: hi,
+    });
   }
   const one = new Float64Array(n).fill(1);
   const z = new Float64Array(n);
@@ -253,7 +268,8 @@ export interface SunspotMappingChoice {
  * @param f proxy values at the same times
  * @param form "linear", "saturating" or "auto" @default "auto"
  * @returns {@link SunspotMappingChoice}
- * @throws {RangeError} as the fits
+ * @throws {InputError} as the fits; (field `form`) when the saturating form is requested but
+ *   R0 is not identified
  * @example
  * ```ts
  * import { fitSunspotMapping } from "./sunspot_proxy_mapping.ts";
@@ -279,8 +295,9 @@ export function fitSunspotMapping(
   if (form === "linear") return { chosen: linear, linear, saturating, reason: "requested" };
   if (form === "saturating") {
     if (!Number.isFinite(saturating!.standardErrors[2])) {
-      throw new RangeError(
+      throw new InputError(
         "Cannot fit the saturating sunspot mapping: R0 is not identified by these data (they are linear); use the linear form",
+        { field: "form", reason: "unsupported", value: "saturating" },
       );
     }
     return { chosen: saturating!, linear, saturating, reason: "requested" };

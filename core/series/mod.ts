@@ -1,11 +1,13 @@
 /**
- * Series vocabulary and operations: quantities and units, calendar-period means with coverage
- * rules, anomalies relative to a base period, and alignment on a common axis.
+ * Series vocabulary and operations: quantities and units, the calendar layer (period keys and
+ * bounds, spans with exclusive ends, period means with stated coverage rules), resampling,
+ * anomalies relative to a base period, and alignment on a common axis.
  *
  * @module
  */
 export * from "./quantities.ts";
 export * from "./period_key.ts";
+export * from "./period_means.ts";
 export * from "./resample_means.ts";
 export * from "./anomalies_from_base_period.ts";
 export * from "./align_series.ts";

@@ -1,5 +1,6 @@
 /**
- * Calendar-period means with a minimum-coverage rule: daily → monthly → annual.
+ * Calendar-period means with a minimum-coverage rule: daily → monthly → annual, built on the
+ * one binning pass of core/series (period_means.ts) and its periods (period_key.ts).
  *
  * @module
  */
@@ -12,6 +13,7 @@ import {
 } from "../time/mod.ts";
 import { periodKey, periodOfKey } from "./period_key.ts";
 import { InputError } from "../errors.ts";
+import { periodSums } from "./period_means.ts";
 
 /** Coverage thresholds of {@link resampleMeans}. */
 export interface ResampleOptions {
@@ -204,44 +206,18 @@ function bin(
   required: number,
   maxRun: number | null = null,
 ): PeriodMeans {
-  const n = time.length;
-  const keys = new Float64Array(n);
-  for (let i = 0; i < n; i++) {
-    if (!Number.isFinite(time[i])) {
-      throw new InputError(`Cannot resample: time[${i}] is not finite (${time[i]})`, {
-        field: "time",
-        reason: "not_finite",
-        index: i,
-        value: time[i],
-      });
-    }
-    keys[i] = periodKey(time[i], to);
-  }
-  let k0 = Infinity, k1 = -Infinity;
-  for (let i = 0; i < n; i++) {
-    if (keys[i] < k0) k0 = keys[i];
-    if (keys[i] > k1) k1 = keys[i];
-  }
-  const m = n === 0 ? 0 : k1 - k0 + 1;
-  if (m > 5_000_000) {
-    throw new InputError(`Cannot resample: ${m} ${to} periods is too many (at most 5,000,000)`, {
-      field: "to",
-      reason: "out_of_range",
-      value: m,
-    });
-  }
-  const sum = new Float64Array(m), sq = unc ? new Float64Array(m) : null;
-  const count = new Int32Array(m);
+  // the one binning pass of core/series (values are finite here: resampleMeans refuses NaN)
+  const sums = periodSums(time, value, to, unc);
+  const { sum, count, firstKey: k0 } = sums;
+  const sq = sums.sumSquaredUncertainty;
+  const m = count.length;
   // longest run of missing days per month: gaps between present days, before the first and
   // after the last (points are in time order, so days rise within a month)
   const run = maxRun === null ? null : new Int32Array(m);
   const lastDay = maxRun === null ? null : new Int32Array(m);
-  for (let i = 0; i < n; i++) {
-    const j = keys[i] - k0;
-    sum[j] += value[i];
-    if (sq && unc) sq[j] += unc[i] * unc[i];
-    count[j]++;
-    if (run && lastDay) {
+  if (run && lastDay) {
+    for (let i = 0; i < time.length; i++) {
+      const j = periodKey(time[i], to) - k0;
       const d = calendarInstant(time[i]).day;
       run[j] = Math.max(run[j], d - lastDay[j] - 1);
       lastDay[j] = d;
@@ -258,7 +234,7 @@ function bin(
     required,
     covered: new Uint8Array(m),
     longestMissingRun: run,
-    points: Int32Array.from(count),
+    points: sums.points,
     rule: "",
   };
   for (let j = 0; j < m; j++) {

@@ -18,6 +18,14 @@ import {
   daysInYear,
 } from "./calendar.ts";
 
+/**
+ * How close (in days, about 0.09 s) a decimal year must come to the start of a day to be read
+ * as that start: decimal years are binary fractions, so the start of a day computed one way may
+ * land a few ulps either side of the start computed another way. The one tolerance of the time
+ * model: {@link calendarInstant} and the calendar periods of core/series use it.
+ */
+export const DAY_TOLERANCE = 1e-6;
+
 /** A calendar date with the fraction of the day elapsed (0 = midnight, 0.5 = noon). */
 export interface CalendarInstant {
   year: number;
@@ -87,10 +95,38 @@ export function decimalYearFromEpochDays(days: number): number {
 }
 
 /**
+ * Day number (days since 1970-01-01) of the day holding a decimal year, read as
+ * {@link calendarInstant} reads it (within {@link DAY_TOLERANCE} of a day's start is that day),
+ * without building the date: the fast path for binning long series by day, month or year.
+ *
+ * @param t decimal year; finite
+ * @returns the integer day number
+ * @throws {RangeError} when t is not finite
+ * @example
+ * ```ts
+ * import { epochDayOf } from "./decimal_year.ts";
+ * import assert from "node:assert/strict";
+ * assert.equal(epochDayOf(1970 + 0.5 / 365), 0);
+ * assert.equal(epochDayOf(1970 - 1e-12), 0); // a few ulps below 1970 is its first day
+ * assert.equal(epochDayOf(1969.999), -1);
+ * ```
+ */
+export function epochDayOf(t: number): number {
+  if (!Number.isFinite(t)) {
+    throw new RangeError(
+      `Cannot convert decimal year: value must be finite, current value is ${t}`,
+    );
+  }
+  const year = Math.floor(t);
+  // (t − year)·days < days, so the day index is at most `days`: the next year's first day
+  return daysFromCivil(year, 1, 1) + Math.floor((t - year) * daysInYear(year) + DAY_TOLERANCE);
+}
+
+/**
  * Calendar instant of a decimal year (inverse of {@link decimalYear}).
  *
- * A tolerance of 1e-6 day absorbs floating-point error so that the start of a day is not read
- * as the end of the previous one.
+ * A tolerance of {@link DAY_TOLERANCE} (1e-6 day) absorbs floating-point error so that the
+ * start of a day is not read as the end of the previous one.
  *
  * @param t decimal year; finite
  * @returns `{ year, month, day, fractionOfDay }`
@@ -115,7 +151,7 @@ export function calendarInstant(t: number): CalendarInstant {
   let year = Math.floor(t);
   let diy = daysInYear(year);
   let x = (t - year) * diy; // days since 1 January 00:00
-  let dayIndex = Math.floor(x + 1e-6);
+  let dayIndex = Math.floor(x + DAY_TOLERANCE);
   if (dayIndex >= diy) {
     year += 1;
     x = 0;

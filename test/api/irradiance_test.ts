@@ -1,16 +1,11 @@
 import assert from "node:assert/strict";
 import { demoFileEntries, loadDemo } from "../../api/demo.ts";
 import { assertProblem, makeTestApp, type TestService } from "./helpers.ts";
-import { cellBounds, cellKey, julianDay, solarDiscGeometry } from "../../core/irradiance/mod.ts";
+import { julianDay, solarDiscGeometry } from "../../core/irradiance/mod.ts";
+import { periodKey, periodOfKey } from "../../core/series/mod.ts";
 import { parseIsoTime } from "../../core/time/mod.ts";
 import { fitSunspotMapping } from "../../core/irradiance/sunspot_proxy_mapping.ts";
-import {
-  camelKeys,
-  camelName,
-  jsonSafe,
-  snakeKeys,
-  snakeName,
-} from "../../api/kinds/irradiance_common.ts";
+import { camelKeys, camelName, snakeKeys, snakeName } from "../../api/kinds/json_keys.ts";
 
 // deno-lint-ignore no-explicit-any
 type Json = any;
@@ -132,8 +127,8 @@ Deno.test("irradiance endpoints: darkening → model → reconstruction → forc
       async () => {
         const recs = (groups2001.records as Json[]).slice(0, 120);
         const l0 = recs.map((r) => {
-          const noon =
-            cellBounds(cellKey(parseIsoTime(r.date).decimalYear, "daily"), "daily").middle;
+          const noon = periodOfKey(periodKey(parseIsoTime(r.date).decimalYear, "daily"), "daily")
+            .middle;
           return solarDiscGeometry(julianDay(noon)).l0Deg;
         });
         const body = (from: "central_meridian" | "carrington") => ({
@@ -259,6 +254,46 @@ Deno.test("irradiance endpoints: darkening → model → reconstruction → forc
       },
     );
 
+    await t.step(
+      "a period of whole ISO months or days gives exactly those cells (12 months, 31 days)",
+      async () => {
+        const rec = async (period: { start: string; end: string }, resolution: string) =>
+          (await created(
+            await svc.post("/v1/irradiance/reconstructions", {
+              model: modelId,
+              proxies: [
+                { term: "mg", series: ids["facular_index_daily.csv"] },
+                { term: "psi", series: psiId },
+              ],
+              period,
+              resolution,
+            }),
+          )).result;
+        // 2001-01..2001-12 once returned 13 cells and 2001-01-01..2001-01-31 32: the period end
+        // is exclusive of the period after it (core/series periodKeyRange)
+        const monthly = await rec({ start: "2001-01", end: "2001-12" }, "monthly");
+        assert.equal(monthly.coverage.cells, 12);
+        assert.equal(monthly.outputs.tsi.time.length, 12);
+        assert.ok(monthly.outputs.tsi.time.at(-1) < 2002);
+        const daily = await rec({ start: "2001-01-01", end: "2001-01-31" }, "daily");
+        assert.equal(daily.coverage.cells, 31);
+        assert.ok(daily.outputs.tsi.time.at(-1) < parseIsoTime("2001-02-01").start);
+        assert.equal((await rec({ start: "2001", end: "2001" }, "annual")).coverage.cells, 1);
+      },
+    );
+
+    await t.step("422: the model must be an irradiance-models run", async () => {
+      const p = await assertProblem(
+        await svc.post("/v1/irradiance/reconstructions", {
+          model: recId,
+          period: { start: "2001", end: "2002" },
+        }),
+        422,
+      );
+      assert.equal(p.errors[0].pointer, "/model");
+      assert.equal(p.kind, "irradiance-reconstructions");
+    });
+
     await t.step("reconstruction outputs come as JSON and CSV and can be saved", async () => {
       const j = await svc.get(`/v1/runs/${recId}/outputs/tsi`);
       assert.equal(j.status, 200);
@@ -373,7 +408,9 @@ Deno.test("irradiance endpoints: darkening → model → reconstruction → forc
       };
       const p = await assertProblem(await svc.post("/v1/irradiance/reconstructions", body), 422);
       assert.equal(p.errors[0].pointer, "/sunspot_number");
-      assert.match(p.detail, /version "1".*version "2"/);
+      assert.equal(p.reason, "version_mismatch");
+      assert.equal(p.version, "1");
+      assert.equal(p.model_version, "2");
       await created(
         await svc.post("/v1/irradiance/reconstructions", {
           ...body,
@@ -406,8 +443,8 @@ Deno.test("irradiance endpoints: darkening → model → reconstruction → forc
         422,
       );
       assert.equal(p.errors[0].pointer, "/terms");
+      assert.equal(p.reason, "collinear");
       assert.ok(p.condition_number === null || p.condition_number > 1000);
-      assert.match(p.detail, /collinear/);
     });
 
     await t.step("422: no overlap, and fewer points than coefficients + 2", async () => {
@@ -420,7 +457,7 @@ Deno.test("irradiance endpoints: darkening → model → reconstruction → forc
         422,
       );
       assert.equal(noOverlap.errors[0].pointer, "/terms");
-      assert.match(noOverlap.detail, /no overlap/);
+      assert.equal(noOverlap.reason, "no_overlap");
       const few = await assertProblem(
         await svc.post("/v1/irradiance/models", {
           tsi: ids["tsi_daily.csv"],
@@ -430,7 +467,8 @@ Deno.test("irradiance endpoints: darkening → model → reconstruction → forc
         422,
       );
       assert.equal(few.errors[0].pointer, "/tsi");
-      assert.match(few.detail, /needs at least 4/);
+      assert.equal(few.reason, "too_few_points");
+      assert.equal(few.needed, 4);
     });
 
     await t.step("422: forcing reference period with no data", async () => {
@@ -474,10 +512,11 @@ Deno.test("snakeKeys/camelKeys: core results to API JSON and back; snake_case JS
   assert.equal(chosen.sunspot_max, 180);
   assert.ok(Array.isArray(chosen.standard_errors) && "r_squared" in chosen);
   assert.deepEqual(nonSnakeKeys(api), []);
-  // stored results of either spelling read the same
+  // stored results of either spelling read the same (JSON writes infinities as null)
+  const json = (v: unknown) => JSON.parse(JSON.stringify(v));
   assert.deepEqual(snakeKeys(api), api);
-  assert.deepEqual(snakeKeys(jsonSafe({ terms: { mg_ii: choice } })), api);
-  assert.deepEqual(camelKeys(chosen), jsonSafe(choice.chosen));
+  assert.deepEqual(snakeKeys(json({ terms: { mg_ii: choice } })), api);
+  assert.deepEqual(camelKeys(chosen), json(choice.chosen));
   assert.equal(snakeName("adjRSquared"), "adj_r_squared");
   assert.equal(camelName("adj_r_squared"), "adjRSquared");
 });

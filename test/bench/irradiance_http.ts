@@ -8,13 +8,14 @@
  */
 import { makeTestApp, uploadSeries } from "../api/helpers.ts";
 import { demoFileEntries, loadDemo } from "../../api/demo.ts";
-import { cellKey, cellSequence } from "../../core/irradiance/mod.ts";
+import { periodKeyRange, periodSequence } from "../../core/series/mod.ts";
 
 const svc = await makeTestApp();
 const entries = await demoFileEntries();
 const stored = await loadDemo(svc.store);
 const ids = Object.fromEntries(entries.map((e, i) => [e.file, stored[i]]));
-const axis = cellSequence(cellKey(1610.0001, "daily"), cellKey(2029.9999, "daily"), "daily");
+const days = periodKeyRange(1610, 2030, "daily");
+const axis = periodSequence(days.first, days.last, "daily");
 const time = Array.from(axis.middle);
 // synthetic (invented) daily sunspot numbers with an 11-year cycle
 const value = time.map((t) => Math.max(0, 100 * (1 + Math.sin((2 * Math.PI * t) / 11))));

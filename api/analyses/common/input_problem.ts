@@ -1,8 +1,9 @@
 /**
  * From core's typed input errors to the API's problems: a core function throws
- * `InputError` naming its own argument (`field`), the element's `index` and a `reason`; the
- * adapter that called it knows where that argument came from in the request and says so with a
- * map from field to JSON Pointer. Nothing here reads the wording of a message.
+ * `InputError` naming its own argument (`field`), the reason and, where one element is at
+ * fault, its `index` and `value`; the adapter that called it knows where that argument came
+ * from in the request and says so with a map from field to JSON Pointer. Nothing here reads
+ * the wording of a message.
  *
  * @module
  */
@@ -17,13 +18,13 @@ import { InputProblem } from "../../runs/kind.ts";
 export type FieldPointers = Record<string, string | ((e: InputError) => string)>;
 
 /**
- * The problem for a core `InputError` at the pointer of its field (with the machine-readable
- * `reason` beside the message); any other error is returned unchanged.
+ * The problem for a core `InputError` at the pointer of its field, carrying the field, the
+ * machine-readable reason and, when known, the index and a short value; any other error (or
+ * an `InputError` whose field has no pointer) is returned unchanged.
  *
  * @param e what was thrown
  * @param pointers field → pointer map of this call
- * @returns the InputProblem, or `e` itself when it is not an InputError or its field has no
- *   pointer
+ * @returns the InputProblem, or `e` itself
  * @example
  * ```ts
  * import { InputError } from "../../../core/errors.ts";
@@ -38,20 +39,24 @@ export type FieldPointers = Record<string, string | ((e: InputError) => string)>
  * const p = inputProblem(e, { series: (e) => `/series/${e.index}` });
  * assert.ok(p instanceof InputProblem);
  * assert.equal(p.pointer, "/series/1");
- * assert.deepEqual(p.extra, { reason: "not_finite" });
+ * assert.deepEqual(p.extra, { field: "series", reason: "not_finite", index: 1 });
  * ```
  */
 export function inputProblem(e: unknown, pointers: FieldPointers): unknown {
   if (!(e instanceof InputError)) return e;
   const at = pointers[e.field] ?? pointers["*"];
   if (at === undefined) return e;
-  return new InputProblem(typeof at === "string" ? at : at(e), e.message, { reason: e.reason });
+  const extra: Record<string, unknown> = { field: e.field, reason: e.reason };
+  if (e.index !== undefined) extra.index = e.index;
+  if (typeof e.value === "number") extra.value = Number.isFinite(e.value) ? e.value : null;
+  else if (typeof e.value === "string") extra.value = e.value.slice(0, 200);
+  return new InputProblem(typeof at === "string" ? at : at(e), e.message, extra);
 }
 
 /**
  * Run a core call; an `InputError` it throws becomes a 422 problem at the pointer of its field.
  *
- * @param pointers field → pointer map of this call
+ * @param pointers field → pointer map of this call (`"*"` for every other field)
  * @param f the call
  * @returns what `f` returns
  * @throws {InputProblem} for an InputError whose field is mapped; anything else unchanged

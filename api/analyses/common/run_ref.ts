@@ -1,13 +1,19 @@
 /**
  * A reference to another run in a request: its id. The analysis lists such fields in
- * `runRefs`, so the run machinery loads the runs (and a bundle carries them).
+ * `runRefs`, so the run machinery loads the runs (and a bundle carries them), and reads them
+ * with `ctx.resultOf(kind, id, pointer)`.
  *
  * @module
  */
 import { z } from "@hono/zod-openapi";
 
-/** A run id (UUIDv7). */
+/** The form of a run id (UUIDv7, lower-case hex with dashes). */
 export const RUN_ID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/;
 
 /** The id of another run, as a request field. */
 export const RunRef = z.string().regex(RUN_ID, "must be a run id (UUIDv7)");
+
+/** A run id field with its description and an example. */
+export function runRef(description: string) {
+  return RunRef.openapi({ description, example: "0190a5f0-3c2e-7a41-9b1e-6d0c2f7e8a11" });
+}

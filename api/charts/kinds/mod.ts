@@ -5,16 +5,13 @@
  */
 import type { KindChart } from "../run_common.ts";
 import { cyclesChart } from "./cycles.ts";
-import { irradianceReconstructionChart } from "./irradiance_reconstruction.ts";
 import { spectraChart } from "./spectra.ts";
-import { cycleForecastChart, irradianceModelChart } from "./with_inputs.ts";
+import { cycleForecastChart } from "./with_inputs.ts";
 
 /** Chart builders keyed by `run.kind`. */
 export const KIND_CHARTS: Record<string, KindChart> = {
   "cycles": cyclesChart,
   "cycle-forecasts": cycleForecastChart,
-  "irradiance-models": irradianceModelChart,
-  "irradiance-reconstructions": irradianceReconstructionChart,
   "spectra": spectraChart,
 };
 
@@ -22,5 +19,4 @@ export const KIND_CHARTS: Record<string, KindChart> = {
 export const KIND_INPUTS: ReadonlySet<string> = new Set([
   "cycles",
   "cycle-forecasts",
-  "irradiance-models",
 ]);

@@ -1,4 +1,5 @@
 import assert from "node:assert/strict";
+import { InputError } from "../../../core/errors.ts";
 import {
   dailyPsi,
   groupPsi,
@@ -8,6 +9,10 @@ import {
   sunspotDarkening,
   trueAreaFromProjected,
 } from "../../../core/irradiance/mod.ts";
+
+/** An InputError on `field` for `reason`. */
+const refused = (field: string, reason: string) => (e: unknown) =>
+  e instanceof InputError && e.field === field && e.reason === reason;
 
 const SQ = 1360.8; // Kopp & Lean 2011, GRL 38, L01706 (C)
 
@@ -56,17 +61,24 @@ Deno.test("trueAreaFromProjected() undoes the foreshortening A_proj = 2μ A_true
   // SCIENCE.md §2 (D): A_true = A_proj / (2μ)
   const mu = 0.6;
   assert.ok(Math.abs(trueAreaFromProjected(2 * mu * 250, mu) - 250) < 1e-12);
-  assert.throws(() => trueAreaFromProjected(10, 0), /mu must be in \(0, 1\]/);
+  assert.throws(() => trueAreaFromProjected(10, 0), refused("mu", "out_of_range"));
 });
 
 Deno.test("psi functions reject invalid input", () => {
-  assert.throws(() => psiPositionFactor(1.2), RangeError);
-  assert.throws(() => psiPositionFactor(NaN), RangeError);
-  assert.throws(() => groupPsi(-1, 0.5), /area must be ≥ 0/);
-  assert.throws(() => sunspotContrast(0, { kind: "area_dependent" }), RangeError);
-  assert.throws(() => dailyPsi([1], [10], null), /mu is needed/);
-  assert.throws(() => dailyPsi([1, 2], [10], [1]), RangeError);
-  assert.throws(() => dailyPsi([1], [10], [2]), /record 0/);
+  assert.throws(() => psiPositionFactor(1.2), refused("mu", "out_of_range"));
+  assert.throws(() => psiPositionFactor(NaN), refused("mu", "out_of_range"));
+  assert.throws(() => groupPsi(-1, 0.5), refused("areaMsh", "out_of_range"));
+  assert.throws(
+    () => sunspotContrast(0, { kind: "area_dependent" }),
+    refused("areaMsh", "out_of_range"),
+  );
+  assert.throws(() => dailyPsi([1], [10], null), refused("mu", "invalid"));
+  assert.throws(() => dailyPsi([1, 2], [10], [1]), refused("areaMsh", "length_mismatch"));
+  // the failing record's field and index
+  assert.throws(
+    () => dailyPsi([1, 1], [10, 10], [1, 2]),
+    (e) => e instanceof InputError && e.field === "mu" && e.index === 1 && e.value === 2,
+  );
 });
 
 Deno.test("dailyPsi() sums groups per day and keeps spotless days at zero", () => {

@@ -1,4 +1,5 @@
 import assert from "node:assert/strict";
+import { InputError } from "../../../core/errors.ts";
 import {
   ar1MeanVarianceFactor,
   calibrateProxyModel,
@@ -132,7 +133,8 @@ Deno.test("calibrateProxyModel() refuses collinear proxies with the condition nu
   } catch (e) {
     assert.ok(e instanceof CollinearProxiesError);
     assert.ok(e.conditionNumber > 1000);
-    assert.match(e.message, /collinear \(condition number/);
+    assert.ok(e instanceof InputError && e.field === "terms" && e.reason === "collinear");
+    assert.equal(e.value, e.conditionNumber);
   }
 });
 
@@ -145,7 +147,9 @@ Deno.test("calibrateProxyModel() needs coefficients + 2 points", () => {
         role: "facular",
         values: f,
       }]),
-    /needs at least 4 overlapping points for 2 coefficients, got 3/,
+    (e) =>
+      e instanceof InputError && e.field === "tsi" && e.reason === "too_few_points" &&
+      e.value === 3,
   );
 });
 

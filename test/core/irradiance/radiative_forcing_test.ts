@@ -1,7 +1,8 @@
 import assert from "node:assert/strict";
+import { InputError } from "../../../core/errors.ts";
 import { forcingSeries, radiativeForcing } from "../../../core/irradiance/mod.ts";
 
-Deno.test("radiativeForcing() reproduces shared/SCIENCE.md §8", () => {
+Deno.test("radiativeForcing() reproduces the IPCC AR6 conversion", () => {
   // IPCC AR6 WG1 §7.3.4.4 (C): ΔF = ΔTSI (1 − α)/4, α = 0.29; D: 1 W m-2 → 0.1775
   assert.ok(Math.abs(radiativeForcing(1) - 0.1775) < 1e-12);
   // arithmetic without any model: −4.5 W m-2 dip (Chapman et al. 2004 size) → −0.79875
@@ -12,9 +13,10 @@ Deno.test("radiativeForcing() reproduces shared/SCIENCE.md §8", () => {
 });
 
 Deno.test("radiativeForcing() rejects NaN and bad albedo", () => {
-  assert.throws(() => radiativeForcing(NaN), RangeError);
-  assert.throws(() => radiativeForcing(1, 1), /albedo must be in \[0, 1\)/);
-  assert.throws(() => radiativeForcing(1, -0.1), RangeError);
+  const refused = (field: string) => (e: unknown) => e instanceof InputError && e.field === field;
+  assert.throws(() => radiativeForcing(NaN), refused("deltaTsi"));
+  assert.throws(() => radiativeForcing(1, 1), refused("albedo"));
+  assert.throws(() => radiativeForcing(1, -0.1), refused("albedo"));
 });
 
 Deno.test("forcingSeries() references the period mean and carries uncertainty", () => {
@@ -30,6 +32,6 @@ Deno.test("forcingSeries() references the period mean and carries uncertainty", 
   assert.ok(Math.abs(f.sd![2] - 0.1775 * Math.sqrt(0.04 + 0.04)) < 1e-12);
   assert.throws(
     () => forcingSeries(t, tsi, null, { start: 1900, end: 1910 }),
-    /reference period \[1900, 1910\) holds no TSI value/,
+    (e) => e instanceof InputError && e.field === "reference" && e.reason === "no_overlap",
   );
 });

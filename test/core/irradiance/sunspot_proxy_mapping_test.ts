@@ -1,4 +1,5 @@
 import assert from "node:assert/strict";
+import { InputError } from "../../../core/errors.ts";
 import {
   evaluateSunspotMapping,
   fitSaturatingSunspotMapping,
@@ -58,9 +59,17 @@ Deno.test("fitSaturatingSunspotMapping() recovers an exact saturating relation",
 });
 
 Deno.test("sunspot mappings reject too few points and bad values", () => {
-  assert.throws(() => fitSunspotMapping([1, 2, 3], [1, 2, 3]), /at least 4 overlapping points/);
-  assert.throws(() => fitSunspotMapping([1, 2, NaN, 4, 5], [1, 2, 3, 4, 5]), /point 2/);
-  assert.throws(() => fitSunspotMapping([1, 2, -3, 4, 5], [1, 2, 3, 4, 5]), RangeError);
+  const refused = (field: string, reason: string, index?: number) => (e: unknown) =>
+    e instanceof InputError && e.field === field && e.reason === reason && e.index === index;
+  assert.throws(() => fitSunspotMapping([1, 2, 3], [1, 2, 3]), refused("r", "too_few_points"));
+  assert.throws(
+    () => fitSunspotMapping([1, 2, NaN, 4, 5], [1, 2, 3, 4, 5]),
+    refused("r", "not_finite", 2),
+  );
+  assert.throws(
+    () => fitSunspotMapping([1, 2, -3, 4, 5], [1, 2, 3, 4, 5]),
+    refused("r", "out_of_range", 2),
+  );
 });
 
 Deno.test("sunspot mappings match scipy curve_fit and numpy polyfit", async () => {

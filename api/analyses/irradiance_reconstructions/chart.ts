@@ -1,0 +1,89 @@
+/**
+ * Chart of the "irradiance-reconstructions" analysis: reconstructed TSI with its prediction
+ * interval, drawn solid where every proxy was observed and dashed where proxies were mapped
+ * from sunspot number (back-extension), with the boundary between the two marked.
+ *
+ * @module
+ */
+import type { KindChart } from "../../runs/kind.ts";
+import type { Layer } from "../../charts/chart.ts";
+import { runDescription, runNotes } from "../../charts/run_common.ts";
+import { axisLabel, quantityLabel } from "../../charts/labels.ts";
+import type { ReconstructionResultOut } from "./result.ts";
+
+export const reconstructionChart: KindChart<ReconstructionResultOut> = {
+  build(run, r) {
+    const o = r.outputs.tsi;
+    const segs = r.source_segments;
+    const isBack = (t: number) =>
+      segs.some((s) => s.source === "back_extended" && t >= s.start && t <= s.end);
+    const direct: (number | null)[] = [], back: (number | null)[] = [];
+    let anyBack = false;
+    o.time.forEach((t, i) => {
+      const v = o.value[i];
+      const b = isBack(t);
+      if (b && v !== null) anyBack = true;
+      back.push(b ? v : null);
+      direct.push(b ? null : v);
+    });
+    // Join the two pieces where they meet, so the curve has no hole at the boundary.
+    for (let i = 1; i < o.time.length; i++) {
+      if (back[i - 1] !== null && direct[i] !== null && back[i] === null) back[i] = direct[i];
+      if (direct[i - 1] !== null && back[i] !== null && direct[i] === null) direct[i] = back[i];
+    }
+    const layers: Layer[] = [];
+    if (o.lower && o.upper) {
+      layers.push({
+        type: "band",
+        label: o.interval ?? "prediction interval",
+        x: o.time,
+        lower: o.lower,
+        upper: o.upper,
+        color: 0,
+      });
+    }
+    layers.push({
+      type: "line",
+      label: anyBack ? "TSI from observed proxies" : "Reconstructed TSI",
+      x: o.time,
+      y: direct,
+      color: 0,
+    });
+    if (anyBack) {
+      layers.push({
+        type: "line",
+        label: "TSI with proxies mapped from sunspot number",
+        x: o.time,
+        y: back,
+        color: 1,
+        dash: "dashed",
+      });
+      for (let k = 1; k < segs.length; k++) {
+        const a = segs[k - 1], b = segs[k];
+        const aBack = a.source === "back_extended", bBack = b.source === "back_extended";
+        if (aBack !== bBack && a.source !== "none" && b.source !== "none") {
+          layers.push({
+            type: "vline",
+            x: (a.end + b.start) / 2,
+            text: aBack ? "proxies observed from here" : "back-extension from here",
+          });
+        }
+      }
+    }
+    return {
+      title: `Reconstructed total solar irradiance (${r.resolution} means) · run ${
+        run.id.slice(0, 8)
+      }`,
+      description: runDescription(
+        run,
+        `Reconstructed TSI with its ${(r.level * 100).toFixed(0)} % prediction interval` +
+          `${anyBack ? "; dashed where proxies were mapped from sunspot number" : ""}.` +
+          ` ${r.scenario.label}`,
+      ),
+      x: { label: "Year", kind: "year" },
+      y: { label: axisLabel(quantityLabel(o.quantity), o.units, o.quantity) },
+      layers,
+      notes: runNotes(run),
+    };
+  },
+};

@@ -1,0 +1,39 @@
+/**
+ * Analysis "irradiance-reconstructions": apply a calibrated model (cited by run id) to proxy
+ * series over a period, at daily, monthly or annual resolution, with prediction intervals;
+ * back-extension through the model's sunspot → proxy mappings; optional secular background
+ * scenario (core/irradiance/proxy_reconstruction.ts, back_extension.ts, secular_background.ts;
+ * cells from core/series/period_key.ts).
+ *
+ * @module
+ */
+import { defineAnalysis } from "../../runs/kind.ts";
+import { ReconstructionRequest } from "./request.ts";
+import { ReconstructionResult } from "./result.ts";
+import { computeReconstruction } from "./compute.ts";
+import { reconstructionChart } from "./chart.ts";
+
+export const irradianceReconstructions = defineAnalysis({
+  kind: "irradiance-reconstructions",
+  path: "/v1/irradiance/reconstructions",
+  // 3: a period ending on a cell boundary no longer gains an extra cell (2001-01..2001-12 is
+  // 12 months, not 13); a cell whose background is missing has no SD either.
+  algorithmVersion: "3",
+  tag: "Irradiance",
+  summary: "Reconstruct TSI from a calibrated model, with prediction intervals",
+  description: "Applies a model run to proxy series averaged into daily, monthly or annual " +
+    "cells over a period. Prediction intervals combine the coefficient covariance with the " +
+    "residual variance, reduced for cell means by the AR(1) variance factor of the residuals " +
+    "(so intervals of monthly and annual means are not too narrow). Where a proxy has no value, " +
+    "its value is mapped from sunspot number with the model's fitted mapping; the band then " +
+    "uses the residual process of the sunspot-only model and the mappings' parameter " +
+    "uncertainty, so it widens where proxies are weaker. The sunspot series version must match " +
+    "the model's unless a conversion factor is given. An optional secular background scenario " +
+    "is added and labelled; the default is none.",
+  request: ReconstructionRequest,
+  result: ReconstructionResult,
+  runRefs: (p) => [p.model],
+  estimateSeconds: (p) => (p.resolution === "daily" ? 0.5 : 0.1),
+  compute: computeReconstruction,
+  chart: reconstructionChart,
+});
