@@ -435,6 +435,7 @@ export class RunService {
       clearInterval(renew);
       stop();
       this.active.delete(runId);
+      await this.transport.chunks?.release(runId);
     }
   }
 

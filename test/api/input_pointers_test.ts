@@ -17,7 +17,7 @@ Deno.test("inputProblem() maps an InputError by field, index function and fallba
     const p = inputProblem(e, { series: (e) => `/series/${e.index}` }) as InputProblem;
     assert.ok(p instanceof InputProblem);
     assert.equal(p.pointer, "/series/2");
-    assert.deepEqual(p.extra, { reason: "not_finite" });
+    assert.deepEqual(p.extra, { field: "series", reason: "not_finite", index: 2 });
   });
   await t.step("the fallback", () => {
     assert.equal((inputProblem(e, { "*": "/x" }) as InputProblem).pointer, "/x");
