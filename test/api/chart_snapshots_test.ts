@@ -3,8 +3,9 @@
  * analysis (several option sets for the solar-cycle ones) is drawn through the chart routes at
  * four sizes, themes and time ranges, and the SHA-256 of each SVG (run ids and element ids
  * replaced by fixed ones) must match `chart_snapshots.json`; the result digest of every run
- * must match too. A refactor of the renderer or of an analysis therefore keeps its output
- * byte-identical, or changes this file on purpose.
+ * must match too. The renderer alone is pinned the same way on specs that reach every axis
+ * kind, layer type and layout branch (`chart_specs.ts`). A refactor of the renderer or of an
+ * analysis therefore keeps its output byte-identical, or changes this file on purpose.
  *
  * After a deliberate change to a chart or a result, rewrite the snapshot file with
  * `SUNLAG_UPDATE_SNAPSHOTS=1 deno test -A test/api/chart_snapshots_test.ts` and say why in the
@@ -14,6 +15,8 @@ import assert from "node:assert/strict";
 import { makeTestApp, type TestService, uploadSeries } from "./helpers.ts";
 import { loadDemo } from "../../api/demo.ts";
 import { RUN_KINDS } from "../../api/analyses/registry.ts";
+import { renderChart } from "../../api/charts/chart.ts";
+import { rendererCases } from "./chart_specs.ts";
 
 const SNAPSHOTS = new URL("./chart_snapshots.json", import.meta.url);
 const UPDATE = Deno.env.get("SUNLAG_UPDATE_SNAPSHOTS") === "1";
@@ -239,13 +242,28 @@ Deno.test("charts and results of the demo are byte-identical to their snapshots"
   } finally {
     await svc.close();
   }
+  await compareOrUpdate("digests", got.digests);
+  await compareOrUpdate("charts", got.charts);
+});
+
+Deno.test("renderChart() output of every branch is byte-identical to its snapshot", async () => {
+  const got: Record<string, string> = {};
+  for (const [name, spec, opts] of rendererCases()) {
+    got[name] = await sha256(renderChart(spec, opts));
+  }
+  await compareOrUpdate("renderer", got);
+});
+
+/** Compare a section of the snapshot file with `got`, or rewrite that section in update mode. */
+async function compareOrUpdate(section: string, got: Record<string, string>) {
+  const file = JSON.parse(await Deno.readTextFile(SNAPSHOTS).catch(() => "{}"));
   if (UPDATE) {
-    await Deno.writeTextFile(SNAPSHOTS, JSON.stringify(got, null, 2) + "\n");
+    file[section] = got;
+    await Deno.writeTextFile(SNAPSHOTS, JSON.stringify(file, null, 2) + "\n");
     return;
   }
-  const want = JSON.parse(await Deno.readTextFile(SNAPSHOTS));
-  const differ = (a: Record<string, string>, b: Record<string, string>) =>
-    [...new Set([...Object.keys(a), ...Object.keys(b)])].filter((k) => a[k] !== b[k]);
-  assert.deepEqual(differ(got.digests, want.digests), [], "result digests differ");
-  assert.deepEqual(differ(got.charts, want.charts), [], "charts differ");
-});
+  const want: Record<string, string> = file[section] ?? {};
+  const differ = [...new Set([...Object.keys(got), ...Object.keys(want)])]
+    .filter((k) => got[k] !== want[k]);
+  assert.deepEqual(differ, [], `${section} differ from their snapshots`);
+}
