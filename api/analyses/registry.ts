@@ -7,7 +7,7 @@
  */
 import type { RunKind } from "../runs/kind.ts";
 import { smoothingKind } from "./smoothing/mod.ts";
-import { cyclesKind } from "../kinds/cycles.ts";
+import { cyclesKind } from "./cycles/mod.ts";
 import { spectraKind } from "../kinds/spectra.ts";
 import { cycleFitsKind } from "../kinds/cycle_fits.ts";
 import { cycleForecastsKind } from "../kinds/cycle_forecasts.ts";

@@ -6,7 +6,6 @@
 import type { KindChart } from "../run_common.ts";
 import { attributionsChart } from "./attributions.ts";
 import { compositesChart } from "./composites.ts";
-import { cyclesChart } from "./cycles.ts";
 import { irradianceReconstructionChart } from "./irradiance_reconstruction.ts";
 import { lagCorrelationChart } from "./lag_correlations.ts";
 import { spectraChart } from "./spectra.ts";
@@ -16,7 +15,6 @@ import { cycleForecastChart, irradianceModelChart } from "./with_inputs.ts";
 export const KIND_CHARTS: Record<string, KindChart> = {
   "attributions": attributionsChart,
   "composites": compositesChart,
-  "cycles": cyclesChart,
   "cycle-forecasts": cycleForecastChart,
   "irradiance-models": irradianceModelChart,
   "irradiance-reconstructions": irradianceReconstructionChart,
@@ -26,7 +24,6 @@ export const KIND_CHARTS: Record<string, KindChart> = {
 
 /** Kinds whose chart draws the run's input series too (the route loads them). */
 export const KIND_INPUTS: ReadonlySet<string> = new Set([
-  "cycles",
   "cycle-forecasts",
   "irradiance-models",
 ]);
