@@ -8,8 +8,6 @@
  */
 
 import { surrogateLagChunk } from "../../core/climate/surrogate_lag_test.ts";
-import { monteCarloMaximaChunk } from "../../core/spectral/false_alarm.ts";
-import { lombScargleChunk } from "../../core/spectral/lomb_scargle.ts";
 import { hindcastCaseTask } from "../../core/cycles/cycle_hindcast.ts";
 
 // deno-lint-ignore no-explicit-any
@@ -17,7 +15,5 @@ export type Task = (input: any) => any;
 
 export const TASKS: Record<string, Task> = {
   "climate.surrogate_lag_chunk": surrogateLagChunk,
-  "spectral.monte_carlo_maxima": monteCarloMaximaChunk,
-  "spectral.lomb_scargle_chunk": lombScargleChunk,
   "cycles.hindcast_case": hindcastCaseTask,
 };

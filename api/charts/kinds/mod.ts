@@ -8,7 +8,6 @@ import { attributionsChart } from "./attributions.ts";
 import { compositesChart } from "./composites.ts";
 import { irradianceReconstructionChart } from "./irradiance_reconstruction.ts";
 import { lagCorrelationChart } from "./lag_correlations.ts";
-import { spectraChart } from "./spectra.ts";
 import { cycleForecastChart, irradianceModelChart } from "./with_inputs.ts";
 
 /** Chart builders keyed by `run.kind`. */
@@ -19,7 +18,6 @@ export const KIND_CHARTS: Record<string, KindChart> = {
   "irradiance-models": irradianceModelChart,
   "irradiance-reconstructions": irradianceReconstructionChart,
   "lag-correlations": lagCorrelationChart,
-  "spectra": spectraChart,
 };
 
 /** Kinds whose chart draws the run's input series too (the route loads them). */
