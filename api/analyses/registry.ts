@@ -9,7 +9,7 @@ import type { RunKind } from "../runs/kind.ts";
 import { smoothingKind } from "./smoothing/mod.ts";
 import { cyclesKind } from "./cycles/mod.ts";
 import { spectraKind } from "./spectra/mod.ts";
-import { cycleFitsKind } from "../kinds/cycle_fits.ts";
+import { cycleFitsKind } from "./cycle_fits/mod.ts";
 import { cycleForecastsKind } from "../kinds/cycle_forecasts.ts";
 import { energyBalanceKind } from "../kinds/energy_balance.ts";
 import { compositeKind } from "../kinds/composites.ts";
