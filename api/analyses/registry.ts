@@ -10,7 +10,7 @@ import { smoothingKind } from "./smoothing/mod.ts";
 import { cyclesKind } from "./cycles/mod.ts";
 import { spectraKind } from "./spectra/mod.ts";
 import { cycleFitsKind } from "./cycle_fits/mod.ts";
-import { cycleForecastsKind } from "../kinds/cycle_forecasts.ts";
+import { cycleForecastsKind } from "./cycle_forecasts/mod.ts";
 import { energyBalanceKind } from "../kinds/energy_balance.ts";
 import { compositeKind } from "../kinds/composites.ts";
 import { attributionKind } from "../kinds/attributions.ts";

@@ -8,12 +8,10 @@
  */
 
 import { surrogateLagChunk } from "../../core/climate/surrogate_lag_test.ts";
-import { hindcastCaseTask } from "../../core/cycles/cycle_hindcast.ts";
 
 // deno-lint-ignore no-explicit-any
 export type Task = (input: any) => any;
 
 export const TASKS: Record<string, Task> = {
   "climate.surrogate_lag_chunk": surrogateLagChunk,
-  "cycles.hindcast_case": hindcastCaseTask,
 };

@@ -8,13 +8,12 @@ import { attributionsChart } from "./attributions.ts";
 import { compositesChart } from "./composites.ts";
 import { irradianceReconstructionChart } from "./irradiance_reconstruction.ts";
 import { lagCorrelationChart } from "./lag_correlations.ts";
-import { cycleForecastChart, irradianceModelChart } from "./with_inputs.ts";
+import { irradianceModelChart } from "./with_inputs.ts";
 
 /** Chart builders keyed by `run.kind`. */
 export const KIND_CHARTS: Record<string, KindChart> = {
   "attributions": attributionsChart,
   "composites": compositesChart,
-  "cycle-forecasts": cycleForecastChart,
   "irradiance-models": irradianceModelChart,
   "irradiance-reconstructions": irradianceReconstructionChart,
   "lag-correlations": lagCorrelationChart,
@@ -22,6 +21,5 @@ export const KIND_CHARTS: Record<string, KindChart> = {
 
 /** Kinds whose chart draws the run's input series too (the route loads them). */
 export const KIND_INPUTS: ReadonlySet<string> = new Set([
-  "cycle-forecasts",
   "irradiance-models",
 ]);
