@@ -36,7 +36,7 @@ export interface CycleExtremaOptions {
   /**
    * Shortest time between two minima, years; of two candidates closer than this, the lower
    * one is kept.
-   * @default 7 (solar cycles last 9.0–13.6 years: shared/SCIENCE.md §5)
+   * @default 7 (solar cycles last about 9 to 14 years: Hathaway 2010, Living Rev. Sol. Phys. 7, 1)
    */
   minSeparation?: number;
   /**

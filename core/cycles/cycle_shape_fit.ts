@@ -122,7 +122,7 @@ function rss(x: Float64Array, y: Float64Array, f: (x: number) => number): number
 
 /**
  * Fit F(t) = a (t − t0)³ / [exp((t − t0)²/b²) − c], c = 0.71, to the monthly values of one
- * cycle (Hathaway, Wilson & Reichmann 1994, Sol. Phys. 151, 177; shared/SCIENCE.md §6), by
+ * cycle (Hathaway, Wilson & Reichmann 1994, Sol. Phys. 151, 177), by
  * least squares.
  *
  * Solver: the maintained `ml-levenberg-marquardt` package with the analytic Jacobian. It

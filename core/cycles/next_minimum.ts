@@ -21,7 +21,7 @@ export interface NextMinimumEstimate {
  * Estimate the ending minimum of the cycle in progress as its start plus the mean length of
  * the complete cycles before it, with their standard deviation as the spread (the climatological
  * estimate, common practice: cycle lengths vary about 9 to 14 years, Hathaway 2010, Living Rev.
- * Sol. Phys. 7, 1, §4.2).
+ * Sol. Phys. 7, 1).
  *
  * @param start starting minimum of the cycle in progress, decimal year
  * @param lengths lengths of complete cycles, years

@@ -96,7 +96,7 @@ Deno.test("summarizeCycleTable(), completeCycleWindows() and pastCycles() on R's
   assert.equal(s.completeCycles, complete.length);
   assert.equal(s.lengthYears.n, complete.length);
   // the mean length of the solar cycles is about 11 years (Hathaway 2010, Living Rev. Sol.
-  // Phys. 7, 1, §4.2)
+  // Phys. 7, 1)
   assert.ok(Math.abs(s.lengthYears.mean! - 11) < 0.5, `${s.lengthYears.mean}`);
   const w = completeCycleWindows(g, rows);
   w.rows.forEach((r, k) => {
