@@ -115,6 +115,13 @@ function fittedOutput(t: Float64Array, w: CycleWindow[], fits: HathawayFit[]) {
   return { time, value: Array.from(cycleSequenceCurve(fits, time)) };
 }
 
+const CAUTIONS = [
+  "Standard errors assume the shape function is right; residuals of monthly values are " +
+  "autocorrelated, so the AR(1)-inflated errors are the safer ones.",
+  CAUTION_SCALE,
+  CAUTION_CYCLE_REVIEW,
+];
+
 /** Fit the shape to every complete cycle of the series. */
 export function computeCycleFits(params: CycleFitsParams, ctx: RunContext): CycleFitsResultIn {
   const an = analyseCycles(ctx, params);
@@ -142,16 +149,18 @@ export function computeCycleFits(params: CycleFitsParams, ctx: RunContext): Cycl
     const r2 = coefficientOfDetermination(grid.value.subarray(w.start, w.end), fits[k].rss);
     return fittedCycleJson(r, fits[k], r2, opts);
   });
+  const waldmeier = {
+    observed: relation(
+      complete.map((r) => ({ riseMonths: r.riseTime! * 12, amplitude: r.amplitude! })),
+      an.amplitudeScale,
+    ),
+    fitted: relation(
+      fits.map((f) => ({ riseMonths: f.riseMonths, amplitude: f.maximum.value })),
+      an.amplitudeScale,
+    ),
+  };
   const warnings = [...an.warnings];
-  const observed = relation(
-    complete.map((r) => ({ riseMonths: r.riseTime! * 12, amplitude: r.amplitude! })),
-    an.amplitudeScale,
-  );
-  const fitted = relation(
-    fits.map((f) => ({ riseMonths: f.riseMonths, amplitude: f.maximum.value })),
-    an.amplitudeScale,
-  );
-  if (!observed) warnings.push("the Waldmeier relation needs at least 3 complete cycles");
+  if (!waldmeier.observed) warnings.push("the Waldmeier relation needs at least 3 complete cycles");
   return {
     input: { id: s.id, name: s.name, quantity: s.quantity, version: s.version, n: s.n },
     model: {
@@ -163,7 +172,7 @@ export function computeCycleFits(params: CycleFitsParams, ctx: RunContext): Cycl
       solver: "Levenberg-Marquardt (ml-levenberg-marquardt) with the analytic Jacobian",
     },
     cycles,
-    waldmeier: { observed, fitted },
+    waldmeier,
     outputs: {
       fitted: {
         name: `${s.name} (fitted cycle shapes)`,
@@ -174,11 +183,6 @@ export function computeCycleFits(params: CycleFitsParams, ctx: RunContext): Cycl
       },
     },
     warnings,
-    cautions: [
-      "Standard errors assume the shape function is right; residuals of monthly values are " +
-      "autocorrelated, so the AR(1)-inflated errors are the safer ones.",
-      CAUTION_SCALE,
-      CAUTION_CYCLE_REVIEW,
-    ],
+    cautions: CAUTIONS,
   };
 }

@@ -8,8 +8,10 @@
  */
 import { InputProblem, type RunContext } from "../../runs/kind.ts";
 import {
+  completeCycleWindows,
   type CycleForecast,
   type CycleRow,
+  type CycleWindow,
   fitCycleSequence,
   forecastCycle,
   gridIndex,
@@ -18,14 +20,15 @@ import {
   type HindcastCaseInput,
   type HindcastCycle,
   hindcastInterval,
+  type NextMinimumEstimate,
   nextMinimumEstimate,
   pastCycles,
   periodMidpoint,
   type RegularGrid,
   summarizeHindcast,
 } from "../../../core/cycles/mod.ts";
-import { completeCycleWindows } from "../../../core/cycles/mod.ts";
 import { formatIsoTime } from "../../../core/time/mod.ts";
+import type { StoredSeries } from "../../store/types.ts";
 import { analyseCycles, type CycleAnalysis } from "../common/cycle_detection.ts";
 import { CAUTION_CYCLE_REVIEW, CAUTION_SCALE } from "../common/cycle_cautions.ts";
 import { cycleRowJson } from "../common/cycle_row.ts";
@@ -217,6 +220,102 @@ function maximumJson(fc: CycleForecast, level: number, same: HindcastCase[]) {
   };
 }
 
+/** "90 %" for a level of 0.9. */
+const pct = (level: number) => `${Math.round(level * 100)} %`;
+
+/** The forecast as JSON: its maximum with intervals, the next minimum, the fit. */
+function forecastJson(
+  fc: CycleForecast,
+  level: number,
+  same: HindcastCase[],
+  next: NextMinimumEstimate | null,
+) {
+  return {
+    maximum: maximumJson(fc, level, same),
+    next_minimum: next && {
+      date: month(next.time),
+      decimal_year: next.time,
+      sd_years: next.sdLength,
+      basis: `start of the cycle in progress + mean length of the ${next.n} ` +
+        "complete cycles in the series (± their standard deviation)",
+    },
+    fit: {
+      t0: fc.fit.t0,
+      a: fc.fit.a,
+      b_months: fc.fit.b,
+      residual_sd: fc.fit.sigma,
+      months_fitted: fc.fit.n,
+    },
+    failed_replicates: fc.failedReplicates,
+  };
+}
+
+/** The shape fitted to the observed months and its bootstrap band, after the previous tail. */
+function forecastInProgress(
+  an: CycleAnalysis,
+  obs: ReturnType<typeof cycleInProgress>,
+  past: { rows: CycleRow[]; windows: CycleWindow[] },
+  params: CycleForecastsParams,
+) {
+  const { grid } = an;
+  const fitOpts = { width: params.width, amplitudeScale: an.amplitudeScale };
+  // independent fits of the past cycles: each cycle's predecessor, whose tail overlaps it
+  const independent: HathawayFit[] = past.rows.length
+    ? asInputProblem(
+      "/series",
+      () => fitCycleSequence(grid.time, grid.value, past.windows, { ...fitOpts, passes: 0 }),
+    )
+      .independent
+    : [];
+  const lengths = past.rows.map((r) => r.length!);
+  const curveTime = curveTimes(grid, obs.i0, lengths);
+  const options = {
+    seed: params.seed,
+    replicates: params.replicates,
+    blockLength: Math.min(params.block_length, obs.time.length),
+    level: params.level,
+    ...fitOpts,
+  };
+  const previousCycle = params.previous_cycle_overlap && independent.length
+    ? independent[independent.length - 1]
+    : undefined;
+  const fc = asInputProblem(
+    "/series",
+    () => forecastCycle(obs.time, obs.value, { ...options, curveTime, previousCycle }),
+  );
+  return { fc, independent, lengths, curveTime, options };
+}
+
+/** The forecast curve with its band as a series-like output. */
+function forecastOutput(s: StoredSeries, curveTime: number[], fc: CycleForecast, level: number) {
+  return {
+    name: `${s.name} (forecast of the cycle in progress)`,
+    quantity: s.quantity,
+    units: s.units,
+    time: curveTime,
+    value: Array.from(fc.curve.value),
+    lower: Array.from(fc.curve.lower),
+    upper: Array.from(fc.curve.upper),
+    interval: `${pct(level)} bootstrap band of the cycle curve (not of monthly values)`,
+    description: "fitted cycle curve, plus the previous cycle's tail, from the cycle's " +
+      "minimum to the horizon",
+  };
+}
+
+const HINDCAST_DESCRIPTION = "the same method on past cycles truncated after the same number " +
+  "of months as the cycle in progress (same_phase) and at half their own rise (mid_rise); " +
+  "errors are predicted minus observed smoothed maximum (years, series units); " +
+  "coverage is the share of observed smoothed maxima inside the predictive interval " +
+  "(covered_by_curve_band: inside the band of the fitted curve's maximum)";
+
+const CAUTIONS = [
+  "A forecast from the cycle's shape assumes the cycle follows that shape; the band " +
+  "reflects the fit's residuals only. The hindcast coverage shows how often such bands " +
+  "held for past cycles.",
+  CAUTION_SCALE,
+  CAUTION_CYCLE_REVIEW,
+];
+
 /** Forecast the cycle in progress and score the method on the past cycles. */
 export async function computeCycleForecasts(
   params: CycleForecastsParams,
@@ -224,50 +323,24 @@ export async function computeCycleForecasts(
 ): Promise<CycleForecastsResultIn> {
   const an = analyseCycles(ctx, params);
   const { grid, series: s } = an;
-  const res = grid.resolution;
   const obs = cycleInProgress(grid, an.rows);
-  const { rows: complete, windows } = completeCycleWindows(grid, an.rows);
-  const fitOpts = { width: params.width, amplitudeScale: an.amplitudeScale };
-  // independent fits of the past cycles: each cycle's predecessor, whose tail overlaps it
-  const overlap = params.previous_cycle_overlap;
-  const independent: HathawayFit[] = complete.length
-    ? asInputProblem(
-      "/series",
-      () => fitCycleSequence(grid.time, grid.value, windows, { ...fitOpts, passes: 0 }),
-    ).independent
-    : [];
-  const lengths = complete.map((r) => r.length!);
-  const curveTime = curveTimes(grid, obs.i0, lengths);
-  const fcOpts = {
-    seed: params.seed,
-    replicates: params.replicates,
-    blockLength: Math.min(params.block_length, obs.time.length),
-    level: params.level,
-    ...fitOpts,
-  };
-  const previousCycle = overlap && independent.length
-    ? independent[independent.length - 1]
-    : undefined;
-  const fc = asInputProblem(
-    "/series",
-    () => forecastCycle(obs.time, obs.value, { ...fcOpts, curveTime, previousCycle }),
-  );
+  const complete = completeCycleWindows(grid, an.rows);
+  const f = forecastInProgress(an, obs, complete, params);
   ctx.progress(0.2);
-  const past = pastCycles(grid, complete, windows, overlap ? independent : undefined);
-  const hOpts = { ...fcOpts, replicates: params.hindcast_replicates, previousCycle: undefined };
-  const { same, mid } = await hindcasts(ctx, past, complete, obs.time.length, hOpts);
-  const warnings = forecastWarnings(
-    an,
-    { complete: complete.length, lengths, monthsSince: obs.monthsSince, level: params.level },
-    same,
-    fc,
+  const overlap = params.previous_cycle_overlap;
+  const past = pastCycles(
+    grid,
+    complete.rows,
+    complete.windows,
+    overlap ? f.independent : undefined,
   );
-  const next = nextMinimumEstimate(obs.current.start.time, lengths);
-  const pct = `${Math.round(params.level * 100)} %`;
+  const hOpts = { ...f.options, replicates: params.hindcast_replicates, previousCycle: undefined };
+  const { same, mid } = await hindcasts(ctx, past, complete.rows, obs.time.length, hOpts);
+  const next = nextMinimumEstimate(obs.current.start.time, f.lengths);
   return {
     input: { id: s.id, name: s.name, quantity: s.quantity, version: s.version, n: s.n },
     cycle_in_progress: {
-      ...cycleRowJson(obs.current, res),
+      ...cycleRowJson(obs.current, grid.resolution),
       months_observed: obs.time.length,
       months_since_minimum: obs.monthsSince,
     },
@@ -276,57 +349,27 @@ export async function computeCycleForecasts(
       width: params.width,
       amplitude_scale: an.amplitudeScale,
       previous_cycle_overlap: overlap,
-      band: `${pct} percentile interval of a moving-block residual bootstrap ` +
-        `(block ${fcOpts.blockLength} months, ${params.replicates} replicates, seed ${params.seed})`,
+      band: `${pct(params.level)} percentile interval of a moving-block residual bootstrap ` +
+        `(block ${f.options.blockLength} months, ${params.replicates} replicates, seed ${params.seed})`,
     },
-    forecast: {
-      maximum: maximumJson(fc, params.level, same),
-      next_minimum: next && {
-        date: month(next.time),
-        decimal_year: next.time,
-        sd_years: next.sdLength,
-        basis: `start of the cycle in progress + mean length of the ${next.n} ` +
-          "complete cycles in the series (± their standard deviation)",
-      },
-      fit: {
-        t0: fc.fit.t0,
-        a: fc.fit.a,
-        b_months: fc.fit.b,
-        residual_sd: fc.fit.sigma,
-        months_fitted: fc.fit.n,
-      },
-      failed_replicates: fc.failedReplicates,
-    },
+    forecast: forecastJson(f.fc, params.level, same, next),
     hindcast: {
-      description: "the same method on past cycles truncated after the same number of " +
-        "months as the cycle in progress (same_phase) and at half their own rise (mid_rise); " +
-        "errors are predicted minus observed smoothed maximum (years, series units); " +
-        "coverage is the share of observed smoothed maxima inside the predictive interval " +
-        "(covered_by_curve_band: inside the band of the fitted curve's maximum)",
-      same_phase: { months_used: obs.time.length, ...hindcastSetJson(same, res) },
-      mid_rise: hindcastSetJson(mid, res),
+      description: HINDCAST_DESCRIPTION,
+      same_phase: { months_used: obs.time.length, ...hindcastSetJson(same, grid.resolution) },
+      mid_rise: hindcastSetJson(mid, grid.resolution),
     },
-    outputs: {
-      forecast: {
-        name: `${s.name} (forecast of the cycle in progress)`,
-        quantity: s.quantity,
-        units: s.units,
-        time: curveTime,
-        value: Array.from(fc.curve.value),
-        lower: Array.from(fc.curve.lower),
-        upper: Array.from(fc.curve.upper),
-        interval: `${pct} bootstrap band of the cycle curve (not of monthly values)`,
-        description: "fitted cycle curve, plus the previous cycle's tail, from the cycle's " +
-          "minimum to the horizon",
+    outputs: { forecast: forecastOutput(s, f.curveTime, f.fc, params.level) },
+    warnings: forecastWarnings(
+      an,
+      {
+        complete: complete.rows.length,
+        lengths: f.lengths,
+        monthsSince: obs.monthsSince,
+        level: params.level,
       },
-    },
-    warnings,
-    cautions: [
-      "A forecast from the cycle's shape assumes the cycle follows that shape; the band " +
-      "reflects the fit's residuals only. The hindcast coverage shows how often such bands " +
-      "held for past cycles.",
-      CAUTION_SCALE,
-      CAUTION_CYCLE_REVIEW,
-    ],
+      same,
+      f.fc,
+    ),
+    cautions: CAUTIONS,
   };
 }

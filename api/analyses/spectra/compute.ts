@@ -257,6 +257,45 @@ async function monteCarlo(
   return combineMonteCarloNull(outs, peaks.map((q) => q.power));
 }
 
+/** How the peaks were tested, and the power of the 1 % and 5 % false-alarm levels. */
+function falseAlarmJson(
+  p: SpectraParams,
+  data: { time: Float64Array; value: Float64Array },
+  m: number,
+  analytic: boolean,
+  mc: MonteCarloPeakTests | null,
+) {
+  const level = (fap: number) => ({
+    fap,
+    analytic: analytic ? powerAtFalseAlarm(fap, m) : null,
+    monte_carlo: mc ? monteCarloPowerLevel(fap, mc.maxima) : null,
+  });
+  return {
+    method: p.false_alarm,
+    independent_frequencies: analytic ? m : null,
+    independent_frequencies_source: "Horne & Baliunas 1986: M = -6.362 + 1.193 N + " +
+      "0.00098 N^2",
+    replicates: mc ? p.replicates : null,
+    monte_carlo_tests: mc
+      ? "false_alarm_monte_carlo: the grid's largest replicate power against the peak " +
+        "(family-wise over every period searched); p_local_monte_carlo: the replicate power " +
+        "at the peak's own period (one period tested)"
+      : null,
+    seed: mc ? p.seed : null,
+    null_hypothesis: {
+      analytic: "white noise",
+      monte_carlo: mc
+        ? (p.monte_carlo_null === "ar1"
+          ? `red noise: AR(1) with persistence ${
+            ar1Persistence(data.time, data.value).toPrecision(4)
+          } yr and the series' variance`
+          : "white noise: values permuted over the sampling times")
+        : null,
+    },
+    levels: [level(0.01), level(0.05)],
+  };
+}
+
 /** Lomb–Scargle periodogram on the requested grid, its peaks and their false-alarm tests. */
 async function lombScargleSpectrum(
   p: SpectraParams,
@@ -287,11 +326,6 @@ async function lombScargleSpectrum(
     ),
     p_local_monte_carlo: mc?.localP[j] ?? null,
   }));
-  const level = (fap: number) => ({
-    fap,
-    analytic: analytic ? powerAtFalseAlarm(fap, m) : null,
-    monte_carlo: mc ? monteCarloPowerLevel(fap, mc.maxima) : null,
-  });
   return {
     input: { id: s.id, name: s.name, quantity: s.quantity, n: time.length },
     method: "lomb_scargle",
@@ -309,30 +343,7 @@ async function lombScargleSpectrum(
       period: Array.from(g.frequency, (x) => 1 / x),
       power: Array.from(power),
     },
-    false_alarm: {
-      method: p.false_alarm,
-      independent_frequencies: analytic ? m : null,
-      independent_frequencies_source: "Horne & Baliunas 1986: M = -6.362 + 1.193 N + " +
-        "0.00098 N^2",
-      replicates: mc ? p.replicates : null,
-      monte_carlo_tests: mc
-        ? "false_alarm_monte_carlo: the grid's largest replicate power against the peak " +
-          "(family-wise over every period searched); p_local_monte_carlo: the replicate power " +
-          "at the peak's own period (one period tested)"
-        : null,
-      seed: mc ? p.seed : null,
-      null_hypothesis: {
-        analytic: "white noise",
-        monte_carlo: mc
-          ? (p.monte_carlo_null === "ar1"
-            ? `red noise: AR(1) with persistence ${
-              ar1Persistence(time, value).toPrecision(4)
-            } yr and the series' variance`
-            : "white noise: values permuted over the sampling times")
-          : null,
-      },
-      levels: [level(0.01), level(0.05)],
-    },
+    false_alarm: falseAlarmJson(p, { time, value }, m, analytic, mc),
     warnings,
     cautions: CAUTIONS,
   };
