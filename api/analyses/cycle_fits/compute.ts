@@ -21,6 +21,7 @@ import { analyseCycles } from "../common/cycle_detection.ts";
 import { CAUTION_CYCLE_REVIEW, CAUTION_SCALE } from "../common/cycle_cautions.ts";
 import { asInputProblem } from "../common/input_problem.ts";
 import { numOrNull } from "../common/nulls.ts";
+import { sunspotInput } from "../common/sunspot_input.ts";
 import type { CycleFitsParams } from "./request.ts";
 import type { CycleFitsResultIn } from "./result.ts";
 
@@ -162,7 +163,7 @@ export function computeCycleFits(params: CycleFitsParams, ctx: RunContext): Cycl
   const warnings = [...an.warnings];
   if (!waldmeier.observed) warnings.push("the Waldmeier relation needs at least 3 complete cycles");
   return {
-    input: { id: s.id, name: s.name, quantity: s.quantity, version: s.version, n: s.n },
+    input: sunspotInput(s),
     model: {
       function: "F(t) = a (t - t0)^3 / [exp((t - t0)^2 / b^2) - c], t in months",
       source: "Hathaway, Wilson & Reichmann 1994, Sol. Phys. 151, 177",

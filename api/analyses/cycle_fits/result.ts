@@ -4,6 +4,7 @@
  * @module
  */
 import { z } from "@hono/zod-openapi";
+import { SunspotInput } from "../common/sunspot_input.ts";
 import { cautions, outputs, warnings } from "../common/result_parts.ts";
 
 const se = z.number().nullable();
@@ -85,13 +86,7 @@ const Relation = z.object({
 }).nullable().openapi({ description: "null with fewer than 3 cycles of positive amplitude" });
 
 export const CycleFitsResult = z.object({
-  input: z.object({
-    id: z.string(),
-    name: z.string(),
-    quantity: z.string(),
-    version: z.string().nullable(),
-    n: z.number().int(),
-  }),
+  input: SunspotInput,
   model: z.object({
     function: z.string(),
     source: z.string(),

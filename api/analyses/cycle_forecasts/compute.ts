@@ -32,6 +32,7 @@ import type { StoredSeries } from "../../store/types.ts";
 import { analyseCycles, type CycleAnalysis } from "../common/cycle_detection.ts";
 import { CAUTION_CYCLE_REVIEW, CAUTION_SCALE } from "../common/cycle_cautions.ts";
 import { cycleRowJson } from "../common/cycle_row.ts";
+import { sunspotInput } from "../common/sunspot_input.ts";
 import { asInputProblem } from "../common/input_problem.ts";
 import type { CycleForecastsParams } from "./request.ts";
 import type { CycleForecastsResultIn, HindcastSetIn } from "./result.ts";
@@ -338,7 +339,7 @@ export async function computeCycleForecasts(
   const { same, mid } = await hindcasts(ctx, past, complete.rows, obs.time.length, hOpts);
   const next = nextMinimumEstimate(obs.current.start.time, f.lengths);
   return {
-    input: { id: s.id, name: s.name, quantity: s.quantity, version: s.version, n: s.n },
+    input: sunspotInput(s),
     cycle_in_progress: {
       ...cycleRowJson(obs.current, grid.resolution),
       months_observed: obs.time.length,

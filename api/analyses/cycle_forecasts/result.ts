@@ -4,6 +4,7 @@
  * @module
  */
 import { z } from "@hono/zod-openapi";
+import { SunspotInput } from "../common/sunspot_input.ts";
 import { cautions, outputs, warnings } from "../common/result_parts.ts";
 import { CycleRowSchema } from "../common/cycle_row.ts";
 
@@ -60,13 +61,7 @@ const HindcastSet = z.object({
 });
 
 export const CycleForecastsResult = z.object({
-  input: z.object({
-    id: z.string(),
-    name: z.string(),
-    quantity: z.string(),
-    version: z.string().nullable(),
-    n: z.number().int(),
-  }),
+  input: SunspotInput,
   cycle_in_progress: CycleRowSchema.extend({
     months_observed: z.number().int().openapi({ description: "Values since its minimum" }),
     months_since_minimum: z.number().int(),

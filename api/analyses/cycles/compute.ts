@@ -11,6 +11,7 @@ import { analyseCycles, type CycleAnalysis } from "../common/cycle_detection.ts"
 import { CAUTION_CYCLE_REVIEW, CAUTION_SCALE } from "../common/cycle_cautions.ts";
 import { cycleRowJson } from "../common/cycle_row.ts";
 import { nulls } from "../common/nulls.ts";
+import { sunspotInput } from "../common/sunspot_input.ts";
 import type { CyclesParams } from "./request.ts";
 import type { CyclesResultIn } from "./result.ts";
 
@@ -61,14 +62,7 @@ export function computeCycles(params: CyclesParams, ctx: RunContext): CyclesResu
     warnings.push("no complete cycle: the series holds fewer than two cycle minima");
   }
   return {
-    input: {
-      id: s.id,
-      name: s.name,
-      quantity: s.quantity,
-      version: s.version,
-      resolution: res,
-      n: s.n,
-    },
+    input: { ...sunspotInput(s), resolution: res },
     smoothing: an.smoothing,
     rule: {
       min_separation_years: params.min_separation_years,

@@ -4,6 +4,7 @@
  * @module
  */
 import { z } from "@hono/zod-openapi";
+import { SunspotInput } from "../common/sunspot_input.ts";
 import { cautions, outputs, warnings } from "../common/result_parts.ts";
 import { CycleRowSchema } from "../common/cycle_row.ts";
 import { SmoothingMethod } from "../common/smoothing_method.ts";
@@ -20,14 +21,7 @@ const CycleStatistic = z.object({
 }).openapi("CycleStatistic");
 
 export const CyclesResult = z.object({
-  input: z.object({
-    id: z.string(),
-    name: z.string(),
-    quantity: z.string(),
-    version: z.string().nullable(),
-    resolution: z.enum(["monthly", "annual"]),
-    n: z.number().int(),
-  }),
+  input: SunspotInput.extend({ resolution: z.enum(["monthly", "annual"]) }),
   smoothing: SmoothingMethod.openapi({ description: "Smoothing that defined the extrema" }),
   rule: z.object({
     min_separation_years: z.number(),
