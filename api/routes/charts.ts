@@ -208,7 +208,7 @@ export function registerChartRoutes(
         const etag = etagFor(`run-${run.id}-${run.result_digest}`, opts);
         const inputs: StoredSeries[] = [];
         const kind = kindByName(deps.kinds, run.kind);
-        if (chartNeedsInputs(kind, run.kind)) {
+        if (chartNeedsInputs(kind)) {
           for (const sid of run.input_series.slice(0, 4)) {
             const s = await store.getSeries(sid);
             if (s && s.n <= 500_000) inputs.push(s);

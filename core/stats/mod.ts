@@ -17,3 +17,4 @@ export {
 export * from "./prais_winsten.ts";
 export * from "./newey_west.ts";
 export * from "./residual_lag1.ts";
+export * from "./coefficient_of_determination.ts";

@@ -15,7 +15,10 @@ import {
   toRegularGrid,
   weightedMovingAverageUncertainty,
 } from "../../../core/cycles/mod.ts";
-import { activityGrid, applySmoothing, iso, nulls } from "../../kinds/cycles_common.ts";
+import { formatIsoTime } from "../../../core/time/mod.ts";
+import { activityGrid } from "../common/activity_grid.ts";
+import { applySmoothing } from "../common/smoothing_method.ts";
+import { nulls } from "../common/nulls.ts";
 import type { SmoothingParams } from "./request.ts";
 import type { SmoothingResultIn } from "./result.ts";
 
@@ -75,8 +78,8 @@ export function computeSmoothing(params: SmoothingParams, ctx: RunContext): Smoo
     },
     kernel_weights: weights,
     grid: {
-      start: iso(grid.time[0], grid.resolution),
-      end: iso(grid.time[grid.time.length - 1], grid.resolution),
+      start: formatIsoTime(grid.time[0], grid.resolution),
+      end: formatIsoTime(grid.time[grid.time.length - 1], grid.resolution),
       points: grid.value.length,
       missing,
     },
