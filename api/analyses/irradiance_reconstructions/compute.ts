@@ -9,37 +9,39 @@
  */
 import type { RunContext } from "../../runs/kind.ts";
 import { InputProblem } from "../../runs/kind.ts";
-import { refId } from "../../schemas/series_ref.ts";
 import {
-  countBeyondMappingRange,
-  countFarOutsideRange,
-  evaluateSunspotMapping,
   predictionQuantile,
   reconstructFromProxies,
   type Reconstruction,
-  type ReconstructionCells,
   reconstructionCoverage,
-  type ReconstructionModel,
   secularBackground,
-  SOURCE_BACK_EXTENDED,
   tsiCycleAmplitude,
   withSecularBackground,
 } from "../../../core/irradiance/mod.ts";
-import { periodKeyRange, periodSequence, seriesAtPeriodKeys } from "../../../core/series/mod.ts";
+import { seriesAtPeriodKeys } from "../../../core/series/mod.ts";
 import { normalQuantile } from "../../../core/stats/distributions.ts";
-import type { CalendarResolution, TimeResolution } from "../../../core/time/mod.ts";
-import { parsePeriod, type YearSpan } from "../common/time_period.ts";
+import { parsePeriod } from "../common/time_period.ts";
 import { withInputPointers } from "../common/input_problem.ts";
-import { requireSunspotVersion } from "../common/sunspot_series.ts";
 import {
   ASSESSMENT_CAUTION,
   cycleAmplitudeWarning,
   PRE_SATELLITE_CAUTION,
   quietSunWarning,
 } from "../common/irradiance_notes.ts";
+import {
+  coverageWarnings,
+  directProxies,
+  extrapolationWarnings,
+  mappedProxies,
+  micro,
+  reconstructionModel,
+  type SunspotInput,
+  sunspotInput,
+  type TargetCells,
+  targetCells,
+} from "../common/reconstruction_inputs.ts";
 import { irradianceModels } from "../irradiance_models/mod.ts";
 import type { ModelResultOut } from "../irradiance_models/result.ts";
-import { mappingFromJson } from "../irradiance_models/mapping_json.ts";
 import { cycleAmplitudeJson } from "../common/tsi_cycle_amplitude.ts";
 import type { ReconstructionParams } from "./request.ts";
 import type { ReconstructionResultIn } from "./result.ts";
@@ -47,37 +49,17 @@ import type { ReconstructionResultIn } from "./result.ts";
 /** Most cells a reconstruction may have. */
 const MAX_CELLS = 400_000;
 
-const RANK: Record<TimeResolution, number> = { daily: 0, monthly: 1, annual: 2, irregular: 3 };
-
-/** The target cells: keys, middles and lengths. */
-interface TargetCells {
-  span: YearSpan;
-  resolution: CalendarResolution;
-  keys: Int32Array;
-  time: Float64Array;
-  days: Float64Array;
-}
-
-/** The sunspot series on the model's version, averaged into the cells. */
-interface SunspotInput {
-  series: { time: Float64Array; value: ArrayLike<number> };
-  atCells: Float64Array;
-  resolution: TimeResolution;
-  conversion: string | null;
-  warnings: string[];
-}
-
 /** Reconstruct TSI over the period from the model run and the proxies. */
 export function computeReconstruction(
   params: ReconstructionParams,
   ctx: RunContext,
 ): ReconstructionResultIn {
   const stored = ctx.resultOf(irradianceModels, params.model, "/model");
-  const cells = targetCells(params);
+  const cells = targetCells(params, MAX_CELLS);
   const direct = directProxies(params, ctx, stored, cells);
   const sunspot = params.sunspot_number === undefined
     ? null
-    : sunspotInput(params, ctx, stored, cells);
+    : sunspotInput(params, ctx, stored, cells, `model run ${params.model}`);
   const mapped = mappedProxies(stored, sunspot, cells.keys.length);
   if (!direct.some((d) => d.some(Number.isFinite)) && !sunspot?.atCells.some(Number.isFinite)) {
     throw new InputProblem(
@@ -141,21 +123,6 @@ const RECONSTRUCTION_CAUTIONS = [
   "Intervals of monthly and annual means assume AR(1) residuals; residuals with longer memory (instrument drifts, slow facular changes) would make them wider.",
 ];
 
-/** Each model term mapped from the cells' sunspot numbers (null without a sunspot series). */
-function mappedProxies(
-  stored: ModelResultOut,
-  sunspot: SunspotInput | null,
-  n: number,
-): ReconstructionCells["mapped"] {
-  return stored.model.terms.map((t) => {
-    if (!sunspot || !stored.mappings) return null;
-    const value = new Float64Array(n), paramVariance = new Float64Array(n);
-    const m = mappingFromJson(stored.mappings.terms[t.name].chosen);
-    evaluateSunspotMapping(m, sunspot.atCells, value, paramVariance);
-    return { value, paramVariance };
-  });
-}
-
 /** The reconstructed TSI as a series-like output, rounded to 1e-6 W m-2. */
 function tsiOutput(
   params: ReconstructionParams,
@@ -176,113 +143,6 @@ function tsiOutput(
     interval: `${level} prediction interval`,
     description:
       `Model run ${params.model}, ${cells.resolution} means, values rounded to 1e-6 W m-2; ${scenarioLabel}`,
-  };
-}
-
-/** The cells of the period: from the one holding its start to the one before its end. */
-function targetCells(params: ReconstructionParams): TargetCells {
-  const span = parsePeriod(params.period, "/period");
-  const resolution = params.resolution;
-  const range = withInputPointers(
-    { start: "/period/start", end: "/period/end", "*": "/period" },
-    () => periodKeyRange(span.start, span.end, resolution),
-  );
-  if (range.count > MAX_CELLS) {
-    throw new InputProblem(
-      "/period",
-      `the period has ${range.count} ${resolution} cells; at most ${MAX_CELLS}`,
-      { cells: range.count },
-    );
-  }
-  const keys = new Int32Array(range.count);
-  for (let i = 0; i < range.count; i++) keys[i] = range.first + i;
-  const seq = periodSequence(range.first, range.last, resolution);
-  return { span, resolution, keys, time: seq.middle, days: seq.days };
-}
-
-/** Each model term's direct proxy averaged into the cells (NaN where it has no value). */
-function directProxies(
-  params: ReconstructionParams,
-  ctx: RunContext,
-  stored: ModelResultOut,
-  cells: TargetCells,
-): Float64Array[] {
-  const names = stored.model.terms.map((t) => t.name);
-  params.proxies.forEach((p, i) => {
-    if (!names.includes(p.term)) {
-      throw new InputProblem(
-        `/proxies/${i}/term`,
-        `the model has no term "${p.term}"; its terms are ${names.join(", ")}`,
-        { terms: names },
-      );
-    }
-  });
-  return stored.model.terms.map((t) => {
-    const p = params.proxies.find((q) => q.term === t.name);
-    if (!p) return new Float64Array(cells.keys.length).fill(NaN);
-    return seriesAtPeriodKeys(ctx.series(refId(p.series)), cells.resolution, cells.keys);
-  });
-}
-
-/** The sunspot series: version check, optional conversion, cell means. */
-function sunspotInput(
-  params: ReconstructionParams,
-  ctx: RunContext,
-  stored: ModelResultOut,
-  cells: TargetCells,
-): SunspotInput {
-  const ss = ctx.series(refId(params.sunspot_number!));
-  const version = requireSunspotVersion(ss, "/sunspot_number");
-  const mappings = stored.mappings;
-  if (!mappings) {
-    throw new InputProblem(
-      "/sunspot_number",
-      `model run ${params.model} was calibrated without a sunspot series, so it has no sunspot → proxy mappings; calibrate with sunspot_number to back-extend`,
-      { reason: "no_mappings" },
-    );
-  }
-  let value: ArrayLike<number> = ss.value;
-  let conversion: string | null = null;
-  const warnings: string[] = [];
-  if (version !== mappings.sunspot_version) {
-    if (!params.sunspot_conversion) {
-      throw new InputProblem(
-        "/sunspot_number",
-        `the sunspot series is version "${version}" but the model was calibrated with version "${mappings.sunspot_version}"; supply the matching version or a sunspot_conversion factor (e.g. version 1 → 2 before 1947 is about 1/0.6)`,
-        { reason: "version_mismatch", version, model_version: mappings.sunspot_version },
-      );
-    }
-    const f = params.sunspot_conversion.factor;
-    value = ss.value.map((v) => v * f);
-    conversion = `sunspot version ${version} × ${f} → version ${mappings.sunspot_version}` +
-      (params.sunspot_conversion.note ? ` (${params.sunspot_conversion.note})` : "");
-  } else if (params.sunspot_conversion) {
-    warnings.push(
-      `sunspot_conversion was ignored: the series is already version ${version}, as the model.`,
-    );
-  }
-  const series = { time: ss.time, value };
-  return {
-    series,
-    atCells: seriesAtPeriodKeys(series, cells.resolution, cells.keys),
-    resolution: ss.resolution,
-    conversion,
-    warnings,
-  };
-}
-
-/** The stored model (and its back-extension residual process) as core reads it. */
-function reconstructionModel(stored: ModelResultOut): ReconstructionModel {
-  const m = stored.model, be = stored.mappings?.back_extension;
-  return {
-    coefficients: m.coefficients,
-    covariance: m.covariance,
-    terms: m.terms.map((t) => ({ role: t.role, quietLevel: t.quiet_level })),
-    psiReference: m.psi_reference,
-    residualSd: m.residual_sd,
-    rho: m.rho,
-    stepDays: m.step_days,
-    backExtension: be ? { residualSd: be.residual_sd, rho: be.rho, stepDays: be.step_days } : null,
   };
 }
 
@@ -346,62 +206,4 @@ function background(
       calibration_mean: b.calibrationMean,
     },
   };
-}
-
-/** Cells without a value, and why a coarse sunspot series leaves some. */
-function coverageWarnings(
-  missing: number,
-  cells: TargetCells,
-  sunspot: SunspotInput | null,
-): string[] {
-  if (missing === 0) return [];
-  const res = cells.resolution;
-  const coarse = sunspot && RANK[sunspot.resolution] > RANK[res]
-    ? ` The sunspot series is ${sunspot.resolution}, coarser than the requested ${res} cells, so back-extension fills only the cells that hold one of its points; request ${sunspot.resolution} or coarser resolution for the sunspot-only era.`
-    : "";
-  return [
-    `${missing} of ${cells.keys.length} ${res} cells have no value (a proxy and the sunspot series are both missing there).${coarse}`,
-  ];
-}
-
-/** Proxies far outside their calibration range, and sunspot numbers beyond the mappings'. */
-function extrapolationWarnings(
-  stored: ModelResultOut,
-  direct: Float64Array[],
-  sunspot: SunspotInput | null,
-  rec: Reconstruction,
-): string[] {
-  const warnings: string[] = [];
-  stored.model.terms.forEach((t, k) => {
-    const c = countFarOutsideRange(direct[k], t.min, t.max);
-    if (c > 0) {
-      warnings.push(
-        `Term ${t.name}: ${c} cells lie far outside the calibration range [${t.min}, ${t.max}] (by more than a quarter of the range); the linear model is extrapolated there.`,
-      );
-    }
-  });
-  const mappings = stored.mappings;
-  if (sunspot && mappings) {
-    const m = Object.values(mappings.terms)[0].chosen;
-    const back = rec.source.map((s) => (s === SOURCE_BACK_EXTENDED ? 1 : 0));
-    const c = countBeyondMappingRange(sunspot.atCells, back, m.sunspot_max);
-    if (c > 0) {
-      warnings.push(
-        `${c} back-extended cells have sunspot numbers above 1.25 × the largest in the mapping fit (${
-          m.sunspot_max.toFixed(1)
-        }); the mappings are extrapolated there.`,
-      );
-    }
-  }
-  return warnings;
-}
-
-/** Round to 1e-6 W m-2 (far below any interval width, and a third shorter in JSON); null where
- * the cell has no value. */
-function micro(x: ArrayLike<number>): (number | null)[] {
-  const out = new Array<number | null>(x.length);
-  for (let i = 0; i < x.length; i++) {
-    out[i] = Number.isNaN(x[i]) ? null : Math.round(x[i] * 1e6) / 1e6;
-  }
-  return out;
 }

@@ -6,9 +6,9 @@
  * @module
  */
 import { z } from "@hono/zod-openapi";
-import { SeriesRef } from "../../schemas/series_ref.ts";
 import { PeriodInput } from "../common/time_period.ts";
 import { runRef } from "../common/run_ref.ts";
+import { duplicateProxyTerms, ReconstructionInputFields } from "../common/reconstruction_inputs.ts";
 
 const SecularBackgroundRequest = z.discriminatedUnion("kind", [
   z.object({ kind: z.literal("none") }),
@@ -33,40 +33,9 @@ const SecularBackgroundRequest = z.discriminatedUnion("kind", [
 
 export const ReconstructionRequest = z.object({
   model: runRef("Id of a succeeded /v1/irradiance/models run"),
-  proxies: z.array(z.object({
-    term: z.string().min(1).max(40).openapi({ description: "A term name of the model" }),
-    series: SeriesRef,
-  })).max(6).default([]).openapi({
-    description: "Direct proxy series per model term; where a term has no value the " +
-      "reconstruction back-extends from sunspot_number",
-  }),
-  sunspot_number: SeriesRef.optional().openapi({
-    description: "Sunspot-number series for back-extension; its version must match the model's",
-  }),
-  sunspot_conversion: z.object({
-    factor: z.number().positive().max(10).openapi({
-      description: "Multiply the sunspot series by this to put it on the model's version",
-    }),
-    note: z.string().max(400).optional(),
-  }).optional(),
-  period: PeriodInput.openapi({
-    description: "The cells are every day, month or year from the one holding the start to " +
-      "the one holding the last instant before the end: ISO bounds name whole periods, so " +
-      '"2001-01" to "2001-12" is 12 months and "2001-01-01" to "2001-01-31" is 31 days',
-  }),
-  resolution: z.enum(["daily", "monthly", "annual"]).default("monthly"),
-  level: z.number().min(0.5).max(0.999).default(0.95).openapi({
-    description: "Level of the prediction intervals",
-  }),
+  ...ReconstructionInputFields,
   background: SecularBackgroundRequest.default({ kind: "none" }),
-}).superRefine((v, ctx) => {
-  const seen = new Set<string>();
-  v.proxies.forEach((p, i) => {
-    if (seen.has(p.term)) {
-      ctx.addIssue({ code: "custom", path: ["proxies", i, "term"], message: "duplicate term" });
-    }
-    seen.add(p.term);
-  });
-}).openapi("ReconstructionRequest");
+}).superRefine((v, ctx) => duplicateProxyTerms(v.proxies, (i) => ctx.addIssue(i)))
+  .openapi("ReconstructionRequest");
 
 export type ReconstructionParams = z.output<typeof ReconstructionRequest>;
