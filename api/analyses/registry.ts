@@ -22,6 +22,7 @@ import { irradianceDarkening } from "./irradiance_darkening/mod.ts";
 import { irradianceModels } from "./irradiance_models/mod.ts";
 import { irradianceReconstructions } from "./irradiance_reconstructions/mod.ts";
 import { forcing } from "./forcing/mod.ts";
+import { spectralIrradianceModels } from "./spectral_irradiance_models/mod.ts";
 
 export const RUN_KINDS: readonly RunKind[] = [
   smoothingKind,
@@ -39,5 +40,6 @@ export const RUN_KINDS: readonly RunKind[] = [
   irradianceDarkening,
   irradianceModels,
   irradianceReconstructions,
+  spectralIrradianceModels,
   forcing,
 ];
