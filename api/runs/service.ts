@@ -95,6 +95,7 @@ export function makeContext(
   hooks: { progress(f: number): void; isCancelled(): boolean },
   parallel: <I, O>(task: string, chunks: I[]) => Promise<O[]>,
 ): RunContext {
+  let reported = 0;
   return {
     series(id) {
       const s = inputs.series[id];
@@ -134,7 +135,9 @@ export function makeContext(
       }
       return parsed.data;
     },
-    progress: (f) => hooks.progress(Math.min(1, Math.max(0, f))),
+    // Progress never goes back (a kind may report 0.05 + 0.9·k/n, then 0.95, and float
+    // rounding makes the second smaller than the first).
+    progress: (f) => hooks.progress(reported = Math.max(reported, Math.min(1, Math.max(0, f)))),
     cancelled: () => hooks.isCancelled(),
     parallel: (task, chunks) => parallel(task, chunks),
   };
