@@ -16,7 +16,7 @@ import {
   type NetcdfAttribute,
   type NetcdfVariableInfo,
 } from "../../core/cf/netcdf_model.ts";
-import { type CfTimeAxis, readCfTimeAxis } from "./cf_time_axis.ts";
+import { type CfPlacedTimeAxis, placeCfTimeAxis, readCfTimeAxis } from "./cf_time_axis.ts";
 import { packingOf, timeDimensionOf } from "./cf_variables.ts";
 import { NetcdfError, shown } from "./errors.ts";
 import { type NetcdfSource, variableOf } from "./source.ts";
@@ -24,7 +24,7 @@ import { type NetcdfSource, variableOf } from "./source.ts";
 /** A gridded variable: its axes and how its values decode. */
 export interface CfGrid {
   variable: string;
-  time: CfTimeAxis;
+  time: CfPlacedTimeAxis;
   latitude: { name: string; values: Float64Array; bounds: Float64Array | null };
   longitude: { name: string; values: Float64Array; bounds: Float64Array | null };
   /** [time, lat, lon] sizes. */
@@ -118,7 +118,7 @@ export async function describeCfGrid(src: NetcdfSource, name: string): Promise<C
       { variable: name },
     );
   }
-  const time = await readCfTimeAxis(src, tdim);
+  const time = placeCfTimeAxis(await readCfTimeAxis(src, tdim));
   const latitude = await coordinate(src, rest[0]);
   const longitude = await coordinate(src, rest[1]);
   return {

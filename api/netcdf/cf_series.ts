@@ -12,7 +12,7 @@ import {
   type NetcdfAttribute,
   type NetcdfVariableInfo,
 } from "../../core/cf/netcdf_model.ts";
-import { type CfTimeAxis, readCfTimeAxis } from "./cf_time_axis.ts";
+import { type CfPlacedTimeAxis, placeCfTimeAxis, readCfTimeAxis } from "./cf_time_axis.ts";
 import { packingOf, timeDimensionOf } from "./cf_variables.ts";
 import { NetcdfError, shown } from "./errors.ts";
 import { type NetcdfSource, variableOf } from "./source.ts";
@@ -20,7 +20,7 @@ import { type NetcdfSource, variableOf } from "./source.ts";
 /** A series read from a file. */
 export interface CfSeries {
   variable: string;
-  time: CfTimeAxis;
+  time: CfPlacedTimeAxis;
   /** Decoded values; NaN where missing. */
   values: Float64Array;
   /** Decoded one-sigma uncertainty, or null. */
@@ -82,7 +82,7 @@ export async function readCfSeries(
       { variable: name },
     );
   }
-  const time = await readCfTimeAxis(src, tdim);
+  const time = placeCfTimeAxis(await readCfTimeAxis(src, tdim));
   const decoded = cfMaskAndScale(await src.read(name), v.type, packingOf(v));
   const values = decoded.values instanceof Float64Array
     ? decoded.values

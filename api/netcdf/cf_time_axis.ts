@@ -58,6 +58,10 @@ export interface CfTimeAxis {
   bounds: [CfDateTime, CfDateTime][] | null;
   /** Name of the bounds variable, or null. */
   boundsVariable: string | null;
+}
+
+/** A time axis with its place on sunlag's axis. */
+export interface CfPlacedTimeAxis extends CfTimeAxis {
   /** Each time on sunlag's axis (decimal years, proleptic Gregorian). */
   decimalYears: Float64Array;
   placement: TimePlacement;
@@ -75,10 +79,9 @@ function badTime(v: string, what: string, e?: unknown): NetcdfError {
  *
  * @param src the open file
  * @param dimension the time dimension (its coordinate variable has the same name)
- * @returns the decoded axis
+ * @returns the decoded axis (dates on its own calendar; see {@link placeCfTimeAxis})
  * @throws {NetcdfError} `bad_coordinate` for missing or undecodable units or calendar,
- *   non-finite or not strictly increasing times, bounds of the wrong shape, or dates with no
- *   place on sunlag's axis
+ *   non-finite or not strictly increasing times, or bounds of the wrong shape
  */
 export async function readCfTimeAxis(src: NetcdfSource, dimension: string): Promise<CfTimeAxis> {
   const v = src.header.variables.find((x) => x.name === dimension);
@@ -136,7 +139,6 @@ export async function readCfTimeAxis(src: NetcdfSource, dimension: string): Prom
       throw e;
     }
   }
-  const { decimalYears, placement } = place(dimension, dates, bounds, calendar);
   return {
     dimension,
     calendar,
@@ -145,9 +147,20 @@ export async function readCfTimeAxis(src: NetcdfSource, dimension: string): Prom
     dates,
     bounds,
     boundsVariable: bounds ? boundsName : null,
-    decimalYears,
-    placement,
   };
+}
+
+/**
+ * Place a decoded time axis on sunlag's axis (rules in the module doc).
+ *
+ * @param axis the decoded axis
+ * @returns the axis with its decimal years and the rule used
+ * @throws {NetcdfError} `bad_coordinate` for a date with no place on sunlag's axis (e.g. a
+ *   daily 360_day axis, whose 30 February has no Gregorian twin)
+ */
+export function placeCfTimeAxis(axis: CfTimeAxis): CfPlacedTimeAxis {
+  const { decimalYears, placement } = place(axis.dimension, axis.dates, axis.bounds, axis.calendar);
+  return { ...axis, decimalYears, placement };
 }
 
 function isMonthStart(d: CfDateTime): boolean {
