@@ -20,6 +20,10 @@ import type { NetcdfAttribute, NetcdfType } from "../../core/cf/netcdf_model.ts"
 // deno-lint-ignore no-explicit-any
 type Any = any;
 
+// The WebAssembly glue warns on the console about what it meets in damaged files (e.g. invalid
+// UTF-8 in names); this worker only runs the library, so its console is silenced.
+for (const k of ["log", "info", "warn", "error", "debug"] as const) console[k] = () => {};
+
 const mod: Any = await import("h5wasm/node");
 const h5: Any = mod.default;
 const Module: Any = await h5.ready;
