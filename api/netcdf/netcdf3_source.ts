@@ -15,10 +15,11 @@
  * @module
  */
 import { NetCDFReader } from "netcdfjs";
-import type {
-  NetcdfAttribute,
-  NetcdfClassicType,
-  NetcdfVariableInfo,
+import {
+  NETCDF_CLASSIC_TYPE_SIZE,
+  type NetcdfAttribute,
+  type NetcdfClassicType,
+  type NetcdfVariableInfo,
 } from "../../core/cf/netcdf_model.ts";
 import { NetcdfError, shown } from "./errors.ts";
 import {
@@ -29,14 +30,7 @@ import {
   variableOf,
 } from "./source.ts";
 
-const SIZE: Record<NetcdfClassicType, number> = {
-  byte: 1,
-  char: 1,
-  short: 2,
-  int: 4,
-  float: 4,
-  double: 8,
-};
+const SIZE = NETCDF_CLASSIC_TYPE_SIZE;
 
 interface Layout {
   begin: number;

@@ -15,7 +15,11 @@
  *
  * @module
  */
-import type { NetcdfAttribute, NetcdfClassicType } from "./netcdf_model.ts";
+import {
+  NETCDF_CLASSIC_TYPE_SIZE,
+  type NetcdfAttribute,
+  type NetcdfClassicType,
+} from "./netcdf_model.ts";
 
 /** Values of a variable produced one row (slice along the first dimension) at a time. */
 export interface NetcdfRowSource {
@@ -51,14 +55,7 @@ const TYPE_CODE: Record<NetcdfClassicType, number> = {
   float: 5,
   double: 6,
 };
-const TYPE_SIZE: Record<NetcdfClassicType, number> = {
-  byte: 1,
-  char: 1,
-  short: 2,
-  int: 4,
-  float: 4,
-  double: 8,
-};
+const TYPE_SIZE = NETCDF_CLASSIC_TYPE_SIZE;
 const NAME = /^[A-Za-z_][A-Za-z0-9_.@+-]*$/;
 const ENC = new TextEncoder();
 const CLASSIC_LIMIT = 2 ** 31 - 1;
@@ -395,7 +392,7 @@ function swapFloat32(values: ArrayLike<number>): Uint8Array {
   for (let i = 0; i < u.length; i++) {
     let x = u[i];
     if ((x & 0x7f800000) === 0x7f800000 && (x & 0x007fffff) !== 0) x = 0x7fc00000;
-    u[i] = ((x & 0xff) << 24) | ((x & 0xff00) << 8) | ((x >>> 8) & 0xff00) | (x >>> 24);
+    u[i] = bswap32(x);
   }
   return new Uint8Array(f.buffer);
 }
@@ -410,10 +407,15 @@ function swapFloat64(values: ArrayLike<number>): Uint8Array {
       hi = 0x7ff80000;
       lo = 0;
     }
-    u[i] = ((hi & 0xff) << 24) | ((hi & 0xff00) << 8) | ((hi >>> 8) & 0xff00) | (hi >>> 24);
-    u[i + 1] = ((lo & 0xff) << 24) | ((lo & 0xff00) << 8) | ((lo >>> 8) & 0xff00) | (lo >>> 24);
+    u[i] = bswap32(hi);
+    u[i + 1] = bswap32(lo);
   }
   return new Uint8Array(f.buffer);
+}
+
+/** The four bytes of a 32-bit word in reverse order. */
+function bswap32(x: number): number {
+  return ((x & 0xff) << 24) | ((x & 0xff00) << 8) | ((x >>> 8) & 0xff00) | (x >>> 24);
 }
 
 /**

@@ -25,6 +25,16 @@ export type NetcdfType =
 /** The types a NetCDF-3 classic file can hold. */
 export type NetcdfClassicType = "byte" | "char" | "short" | "int" | "float" | "double";
 
+/** Bytes per value of each classic type (NetCDF classic format specification). */
+export const NETCDF_CLASSIC_TYPE_SIZE: Readonly<Record<NetcdfClassicType, number>> = {
+  byte: 1,
+  char: 1,
+  short: 2,
+  int: 4,
+  float: 4,
+  double: 8,
+};
+
 /** A named attribute with its external type: text for `char`/`string`, else numbers. */
 export interface NetcdfAttribute {
   name: string;

@@ -70,13 +70,9 @@ export function cfDateTimeToDecimalYear(
     return y + (daysBeforeMonth(y, date.month) + fraction * len) / daysInYear(y);
   }
   if (date.day > daysInMonth(y, date.month)) {
-    throw new CfTimeError(
-      "not_representable",
-      "date",
-      `${date.year}-${date.month}-${date.day}`,
-      `Date ${date.year}-${String(date.month).padStart(2, "0")}-${
-        String(date.day).padStart(2, "0")
-      } of the ${calendar} calendar has no twin on the proleptic Gregorian calendar`,
+    throw notRepresentable(
+      date,
+      `of the ${calendar} calendar has no twin on the proleptic Gregorian calendar`,
     );
   }
   return decimalYear(y, date.month, date.day, date.seconds / 86400);
@@ -124,14 +120,12 @@ export function decimalYearToCfDateTime(t: number, calendar: CfCalendar): CfDate
   const g = cfDateFromDayNumber("proleptic_gregorian", days);
   const year = calendarYear(calendar, g.year);
   if (g.day > cfDaysInMonth(calendar, year, g.month)) {
-    throw new CfTimeError(
-      "not_representable",
-      "date",
-      `${g.year}-${g.month}-${g.day}`,
-      `Date ${g.year}-${String(g.month).padStart(2, "0")}-${
-        String(g.day).padStart(2, "0")
-      } does not exist on the ${calendar} calendar`,
-    );
+    throw notRepresentable(g, `does not exist on the ${calendar} calendar`);
   }
   return { year, month: g.month, day: g.day, seconds };
+}
+
+function notRepresentable(d: { year: number; month: number; day: number }, why: string) {
+  const text = `${d.year}-${String(d.month).padStart(2, "0")}-${String(d.day).padStart(2, "0")}`;
+  return new CfTimeError("not_representable", "date", text, `Date ${text} ${why}`);
 }
