@@ -12,6 +12,8 @@
  * - read NetCDF-4: a 600 × 90 × 180 float32 field, zlib level 4, chunked (12, 90, 180);
  *   sunlag describes the grid and reads all blocks (h5wasm in its worker); xarray
  *   `open_dataset(path).load()`.
+ * - for context, xarray's reads again with `decode_times=False` (no conversion of the time axis
+ *   and bounds to datetime64), since sunlag's reads decode CF time too but more cheaply.
  *
  *   deno run -A test/bench/netcdf_medians.ts [rounds] [members] [days]
  */
@@ -129,6 +131,8 @@ const t: Record<string, number[]> = {
   xarray_read3: [],
   sunlag_read4: [],
   xarray_read4: [],
+  xarray_read3_raw_times: [],
+  xarray_read4_raw_times: [],
 };
 // Warm-up round (not counted), then interleaved rounds.
 for (let r = -1; r < ROUNDS; r++) {
@@ -139,6 +143,8 @@ for (let r = -1; r < ROUNDS; r++) {
   keep("xarray_read3", (await ask(`read ${dir}/x.nc`)).seconds as number);
   keep("sunlag_read4", await sunlagRead4(field));
   keep("xarray_read4", (await ask(`read ${field}`)).seconds as number);
+  keep("xarray_read3_raw_times", (await ask(`read_raw ${dir}/x.nc`)).seconds as number);
+  keep("xarray_read4_raw_times", (await ask(`read_raw ${field}`)).seconds as number);
 }
 const sizes = {
   sunlag: (await Deno.stat(`${dir}/s.nc`)).size,

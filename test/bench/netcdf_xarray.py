@@ -10,6 +10,7 @@ Commands (one per line), each answered with one JSON line {"seconds": ...}:
   make_field <path>        write the field as NetCDF-4, zlib level 4, chunks (12, 90, 180)
   write <path>             write the ensemble as NetCDF-3 classic (to_netcdf)
   read <path>              xarray.open_dataset(path).load()
+  read_raw <path>          the same with decode_times=False (no datetime conversion)
   versions                 library versions
 
 Run by netcdf_medians.ts as: /usr/bin/python3 test/bench/netcdf_xarray.py MEMBERS DAYS
@@ -81,6 +82,9 @@ for line in sys.stdin:
         ds.to_netcdf(rest[0], format="NETCDF3_CLASSIC", encoding=ENC)
     elif cmd == "read":
         with xr.open_dataset(rest[0]) as x:
+            x.load()
+    elif cmd == "read_raw":
+        with xr.open_dataset(rest[0], decode_times=False) as x:
             x.load()
     elif cmd == "make_field":
         field(rest[0])
