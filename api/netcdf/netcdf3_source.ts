@@ -257,31 +257,42 @@ class Netcdf3Source implements NetcdfSource {
  * ```
  */
 export function decodeBigEndian(raw: Uint8Array, type: NetcdfClassicType): StoredValues {
-  const dv = new DataView(raw.buffer, raw.byteOffset, raw.byteLength);
-  switch (type) {
-    case "char":
-      return raw;
-    case "byte":
-      return new Int8Array(raw.buffer, raw.byteOffset, raw.byteLength).slice();
-    case "short": {
-      const out = new Int16Array(raw.byteLength / 2);
-      for (let i = 0; i < out.length; i++) out[i] = dv.getInt16(2 * i);
-      return out;
-    }
-    case "int": {
-      const out = new Int32Array(raw.byteLength / 4);
-      for (let i = 0; i < out.length; i++) out[i] = dv.getInt32(4 * i);
-      return out;
-    }
-    case "float": {
-      const out = new Float32Array(raw.byteLength / 4);
-      for (let i = 0; i < out.length; i++) out[i] = dv.getFloat32(4 * i);
-      return out;
-    }
-    case "double": {
-      const out = new Float64Array(raw.byteLength / 8);
-      for (let i = 0; i < out.length; i++) out[i] = dv.getFloat64(8 * i);
-      return out;
+  if (type === "char") return raw;
+  if (type === "byte") return new Int8Array(raw.buffer, raw.byteOffset, raw.byteLength).slice();
+  const size = SIZE[type];
+  // Swap bytes in place over an aligned copy, then view it as the native type: several times
+  // faster than a DataView get per value on 50 MB variables (measured in netcdf_medians.ts).
+  const bytes = raw.byteOffset % 8 === 0 ? raw : raw.slice();
+  const n = bytes.byteLength / size;
+  if (LITTLE_ENDIAN_HOST) {
+    if (size === 2) {
+      const u = new Uint16Array(bytes.buffer, bytes.byteOffset, n);
+      for (let i = 0; i < n; i++) u[i] = ((u[i] & 0xff) << 8) | (u[i] >>> 8);
+    } else {
+      const u = new Uint32Array(bytes.buffer, bytes.byteOffset, (n * size) / 4);
+      for (let i = 0; i < u.length; i++) {
+        const x = u[i];
+        u[i] = ((x & 0xff) << 24) | ((x & 0xff00) << 8) | ((x >>> 8) & 0xff00) | (x >>> 24);
+      }
+      if (size === 8) {
+        for (let i = 0; i < u.length; i += 2) {
+          const t = u[i];
+          u[i] = u[i + 1];
+          u[i + 1] = t;
+        }
+      }
     }
   }
+  switch (type) {
+    case "short":
+      return new Int16Array(bytes.buffer, bytes.byteOffset, n);
+    case "int":
+      return new Int32Array(bytes.buffer, bytes.byteOffset, n);
+    case "float":
+      return new Float32Array(bytes.buffer, bytes.byteOffset, n);
+    case "double":
+      return new Float64Array(bytes.buffer, bytes.byteOffset, n);
+  }
 }
+
+const LITTLE_ENDIAN_HOST = new Uint8Array(Uint16Array.of(1).buffer)[0] === 1;

@@ -183,6 +183,10 @@ export function cfMaskAndScale(
   const fill0 = nf > 0 ? fills[0] : NaN, fill1 = nf > 1 ? fills[1] : NaN;
   const s = scale === undefined ? undefined : f32 ? Math.fround(scale) : scale;
   const o = offset === undefined ? undefined : f32 ? Math.fround(offset) : offset;
+  if (nf === 0 && s === undefined && o === undefined && !unsignedBits && !signedBits) {
+    out.set(raw); // nothing to decode: a typed-array copy (rounds only into a Float32Array)
+    return { values: out, type: p.out };
+  }
   const uMod = unsignedBits ? 2 ** unsignedBits : 0;
   const sHalf = signedBits ? 2 ** (signedBits - 1) : 0, sMod = signedBits ? 2 ** signedBits : 0;
   for (let i = 0; i < n; i++) {

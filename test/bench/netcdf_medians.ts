@@ -185,6 +185,10 @@ console.log(JSON.stringify(
         sunlag: mbps(fieldBytes, m.sunlag_read4),
         xarray: mbps(fieldBytes, m.xarray_read4),
       },
+      xarray_without_time_decoding: {
+        read_netcdf3: mbps(ensBytes, m.xarray_read3_raw_times),
+        read_netcdf4_zlib: mbps(fieldBytes, m.xarray_read4_raw_times),
+      },
     },
     ratio_sunlag_time_over_xarray: {
       write_netcdf3: m.sunlag_write / m.xarray_write,
