@@ -31,7 +31,12 @@ import { listCfVariables } from "./cf_variables.ts";
 import { readCfSeries } from "./cf_series.ts";
 import { NetcdfError } from "./errors.ts";
 import { withNetcdf, withTempUpload } from "./open.ts";
-import { buildSeriesDataset, type Provenance, type SeriesLike } from "./series_dataset.ts";
+import {
+  buildSeriesDataset,
+  type EnsembleSource,
+  type Provenance,
+  type SeriesLike,
+} from "./series_dataset.ts";
 import type { NetcdfSource } from "./source.ts";
 
 /** The media type of NetCDF (classic and NetCDF-4 alike). */
@@ -224,7 +229,9 @@ export async function seriesNetcdfResponse(
 
 /**
  * `GET /v1/runs/{id}/outputs/{name}?format=netcdf[&calendar=...]`: one output as NetCDF-CF,
- * with the run's id, result digest, warnings and cautions in the global attributes.
+ * with the run's id, result digest, warnings and cautions in the global attributes. An
+ * ensemble, when given, is written as `<variable>_realizations` (realization × time), one
+ * member at a time as the response streams.
  *
  * @throws {ProblemError} 409 for an output off calendar time, 422 for an unfit calendar
  */
@@ -233,6 +240,7 @@ export function runOutputNetcdfResponse(
   run: RunRecord,
   name: string,
   o: OutputSeries,
+  ensemble?: EnsembleSource,
 ): Response {
   const calendar = calendarOf(c);
   if (o.time_axis && o.time_axis !== "decimal_year") {
@@ -277,7 +285,7 @@ export function runOutputNetcdfResponse(
   };
   return respond(
     c,
-    () => buildSeriesDataset(s, prov, { calendar, variable: undefined }),
+    () => buildSeriesDataset(s, prov, { calendar, ensemble }),
     etag,
     fileName([run.id, name, calendar]),
   );

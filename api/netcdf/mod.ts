@@ -48,5 +48,7 @@ export {
   NETCDF_CONTENT,
   NETCDF_MEDIA_TYPE,
   netcdfProblem,
+  runOutputNetcdfResponse,
+  seriesNetcdfResponse,
   wantsNetcdf,
 } from "./http.ts";
