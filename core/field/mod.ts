@@ -11,3 +11,6 @@ export * from "./area_weighted_mean.ts";
 export * from "./false_discovery_rate.ts";
 export * from "./field_analysis_inputs.ts";
 export * from "./solar_signal_map.ts";
+export * from "./float32_matrix_product.ts";
+export * from "./field_monte_carlo_summary.ts";
+export * from "./field_significance_monte_carlo.ts";
