@@ -11,3 +11,4 @@ export * from "./spectral/mod.ts";
 export * from "./stats/mod.ts";
 export * from "./climate/mod.ts";
 export * from "./irradiance/mod.ts";
+export * from "./field/mod.ts";

@@ -126,7 +126,7 @@ const op = {
  * assert.ok(WebAssembly.validate(float32KernelModule()));
  * ```
  */
-export function float32KernelModule(): Uint8Array {
+export function float32KernelModule(): Uint8Array<ArrayBuffer> {
   // params 0 ap, 1 bp, 2 cp, 3 k, 4 panels, 5 ldc; i32 locals 6 a-cursor, 7 b-cursor,
   // 8 panel, 9 a-end, 10 c-cursor; v128 locals: accumulators, then B vectors, then A
   const ACC = 11, B = ACC + MR * NV, A = B + NV;
@@ -215,7 +215,7 @@ let kernelModule: WebAssembly.Module | null = null;
  * ```
  */
 export function wasmFloat32Product(): Float32ProductEngine {
-  kernelModule ??= new WebAssembly.Module(float32KernelModule() as BufferSource);
+  kernelModule ??= new WebAssembly.Module(float32KernelModule());
   const memory = new WebAssembly.Memory({ initial: 1 });
   const tile = new WebAssembly.Instance(kernelModule, { env: { memory } }).exports.tile as (
     ap: number,

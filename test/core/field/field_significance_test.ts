@@ -1,0 +1,108 @@
+import assert from "node:assert/strict";
+import {
+  combineFieldMonteCarlo,
+  fieldAreaWeights,
+  fieldSignificanceChunk,
+  fieldSignificanceMonteCarlo,
+  fieldSignificanceTasks,
+  jsFloat32Product,
+  planFieldSignificance,
+  prepareFieldAnalysis,
+  solarSignalMap,
+  wasmFloat32Product,
+} from "../../../core/field/mod.ts";
+import { syntheticField } from "./synthetic_field.ts";
+
+const window = { minLag: 0, maxLag: 6 };
+
+function setup(seed: number, planted = false) {
+  const { field, x } = syntheticField({
+    seed,
+    planted: planted ? { slope: 0.8, lag: 3, south: 0, north: 60, west: 60, east: 150 } : undefined,
+  });
+  const inputs = prepareFieldAnalysis(field, x, window);
+  const map = solarSignalMap(inputs);
+  return { field, x, inputs, map, weights: fieldAreaWeights(field) };
+}
+
+Deno.test("fieldSignificanceChunk() results do not depend on chunking or the product engine", async (t) => {
+  const { inputs, map, weights } = setup(11, true);
+  const plan = planFieldSignificance(inputs, map, weights, { seed: 5, surrogates: 60 });
+  const run = (sp: number, cp: number, engine = wasmFloat32Product()) => {
+    const tasks = fieldSignificanceTasks(plan, { surrogatesPerTask: sp, cellsPerTask: cp });
+    return {
+      count: tasks.length,
+      result: combineFieldMonteCarlo(plan, tasks.map((k) => fieldSignificanceChunk(k, engine))),
+    };
+  };
+  const one = run(60, 72);
+  assert.equal(one.count, 1);
+  await t.step("1, 2 and 5 chunks, and 2 × 5, give bit-identical results", () => {
+    const two = run(30, 72), five = run(60, 15), ten = run(30, 15);
+    assert.deepEqual([two.count, five.count, ten.count], [2, 5, 10]);
+    for (const r of [two, five, ten]) assert.deepEqual(r.result, one.result);
+  });
+  await t.step("the plain-JS engine gives the same decisions as the SIMD kernel", () => {
+    assert.deepEqual(run(60, 72, jsFloat32Product()).result, one.result);
+  });
+  await t.step("deciding every comparison in float64 changes nothing", () => {
+    const strict = { ...plan };
+    strict.sigHi = new Float64Array(plan.sigHi.length).fill(Infinity);
+    strict.sigLo = new Float64Array(plan.sigLo.length);
+    strict.exHi = new Float64Array(plan.exHi.length).fill(Infinity);
+    strict.exLo = new Float64Array(plan.exLo.length);
+    const tally = fieldSignificanceChunk({
+      plan: strict,
+      surrogateStart: 0,
+      surrogateEnd: 60,
+      cellStart: 0,
+      cellEnd: plan.cellCount,
+    });
+    assert.ok(tally.rechecked > 0);
+    const r = combineFieldMonteCarlo(plan, [tally]);
+    assert.deepEqual({ ...r, rechecked: 0 }, { ...one.result, rechecked: 0 });
+  });
+  await t.step("a missing or doubled chunk is refused", () => {
+    const tasks = fieldSignificanceTasks(plan, { surrogatesPerTask: 30 });
+    const tallies = tasks.map((k) => fieldSignificanceChunk(k));
+    assert.throws(() => combineFieldMonteCarlo(plan, tallies.slice(1)), /cover/);
+    assert.throws(() => combineFieldMonteCarlo(plan, [...tallies, tallies[0]]), /overlap/);
+  });
+});
+
+Deno.test("fieldSignificanceMonteCarlo() recovers a signal planted in one region (invented case)", () => {
+  const { field, inputs, map, weights } = setup(21, true);
+  const r = fieldSignificanceMonteCarlo(inputs, map, weights, { seed: 9, surrogates: 199 });
+  assert.ok(r.pField <= 0.01, `field p ${r.pField}`);
+  // neighbouring lags share most of the signal (the predictor is AR(1), φ = 0.7)
+  assert.ok(Math.abs(map.lags[r.observedBestIndex] - 3) <= 1);
+  // per-cell Monte Carlo p: small inside the box, rarely outside
+  const nLon = field.lon.length;
+  let inside = 0, insideHit = 0, outsideHit = 0, outside = 0;
+  for (let c = 0; c < 72; c++) {
+    const la = field.lat[Math.floor(c / nLon)], lo = field.lon[c % nLon];
+    const box = la >= 0 && la <= 60 && lo >= 60 && lo <= 150;
+    if (box) {
+      inside++;
+      if (r.cellP[c] <= 0.05) insideHit++;
+    } else {
+      outside++;
+      if (r.cellP[c] <= 0.05) outsideHit++;
+    }
+  }
+  assert.equal(insideHit, inside);
+  assert.ok(outsideHit / outside < 0.15, `${outsideHit} of ${outside} cells outside`);
+});
+
+Deno.test("fieldSignificanceMonteCarlo() rejects at about the nominal rate without a signal", () => {
+  // 120 independent invented fields, 99 surrogates each: at α = 0.05 the number of rejections
+  // is Binomial(120, ≤ 0.05) if the test is valid; 0..14 covers 99.9 % of Binomial(120, 0.05)
+  const fields = 120;
+  let rejected = 0;
+  for (let k = 0; k < fields; k++) {
+    const { inputs, map, weights } = setup(1000 + k);
+    const r = fieldSignificanceMonteCarlo(inputs, map, weights, { seed: k, surrogates: 99 });
+    if (r.pField <= 0.05) rejected++;
+  }
+  assert.ok(rejected >= 1 && rejected <= 14, `${rejected} of ${fields} rejected`);
+});
