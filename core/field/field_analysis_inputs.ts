@@ -251,6 +251,67 @@ export function prepareFieldAnalysis(
     const cols = [new Float64Array(m).fill(1), ...controlSeries.map((z) => z.slice(a + k, b + k))];
     bases.push(orthonormalBasis(cols, m, k));
   }
+  const prepared = preprocessFieldCells(field, preprocess, seasonalPeriod);
+  warnings.push(...prepared.warnings);
+  return {
+    n,
+    minLag,
+    maxLag,
+    gridCells,
+    cells: prepared.cells,
+    status: prepared.status,
+    y: prepared.y,
+    x,
+    surrogateSource,
+    preprocess,
+    seasonalPeriod,
+    controlNames,
+    bases,
+    warnings,
+  };
+}
+
+/** Result of {@link preprocessFieldCells}. */
+export interface PreprocessedCells {
+  /** Grid index of each cell without missing values, ascending. */
+  cells: Int32Array;
+  /** Per grid cell: CELL_ANALYSED or CELL_MISSING. */
+  status: Uint8Array;
+  /** The preprocessed cells, time-major (N × cells.length), float32. */
+  y: Float32Array;
+  warnings: string[];
+}
+
+/**
+ * Deseasonalise (optionally) and preprocess every cell without missing values (the
+ * single-series preprocessing, preprocess_series.ts, per cell); cells with a missing value
+ * are left out and counted.
+ *
+ * @param field the field
+ * @param preprocess trend removal per cell
+ * @param seasonalPeriod samples per seasonal cycle, or 0 for none
+ * @returns the cells taken in and their preprocessed values
+ * @throws {RangeError} when every cell has a missing value, or as preprocessSeries
+ * @example
+ * ```ts
+ * import { preprocessFieldCells } from "./field_analysis_inputs.ts";
+ * import assert from "node:assert/strict";
+ * const field = {
+ *   values: Float32Array.of(1, NaN, 3, 5), nTime: 2, lat: Float64Array.of(0), lon: Float64Array.of(0, 180),
+ * };
+ * const p = preprocessFieldCells(field, { method: "mean" }, 0);
+ * assert.deepEqual(Array.from(p.y), [-1, 1]);
+ * assert.deepEqual(Array.from(p.status), [0, 1]);
+ * ```
+ */
+export function preprocessFieldCells(
+  field: GriddedField,
+  preprocess: PreprocessOptions,
+  seasonalPeriod: number,
+): PreprocessedCells {
+  const gridCells = checkGriddedField("preprocess field", field);
+  const n = field.nTime;
+  const warnings: string[] = [];
   // cells without missing values
   const status = new Uint8Array(gridCells);
   const vals = field.values;
@@ -267,7 +328,9 @@ export function prepareFieldAnalysis(
     else status[c] = CELL_MISSING;
   }
   if (keep.length === 0) {
-    throw new RangeError(`Cannot ${fn}: every cell has a missing value in the analysed period`);
+    throw new RangeError(
+      `Cannot preprocess field: every cell has a missing value in the analysed period`,
+    );
   }
   const missing = gridCells - keep.length;
   if (missing > 0) {
@@ -285,22 +348,7 @@ export function prepareFieldAnalysis(
     const pre = preprocessSeries(col, preprocess);
     for (let t = 0; t < n; t++) y[t * nc + i] = pre[t];
   }
-  return {
-    n,
-    minLag,
-    maxLag,
-    gridCells,
-    cells: Int32Array.from(keep),
-    status,
-    y,
-    x,
-    surrogateSource,
-    preprocess,
-    seasonalPeriod,
-    controlNames,
-    bases,
-    warnings,
-  };
+  return { cells: Int32Array.from(keep), status, y, warnings };
 }
 
 /**

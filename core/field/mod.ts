@@ -14,3 +14,4 @@ export * from "./solar_signal_map.ts";
 export * from "./float32_matrix_product.ts";
 export * from "./field_monte_carlo_summary.ts";
 export * from "./field_significance_monte_carlo.ts";
+export * from "./field_composite.ts";

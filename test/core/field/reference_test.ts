@@ -8,6 +8,7 @@ import {
   areaWeightedMean,
   benjaminiHochberg,
   type GriddedField,
+  planFieldComposite,
   prepareFieldAnalysis,
   solarSignalMap,
 } from "../../../core/field/mod.ts";
@@ -152,4 +153,22 @@ Deno.test("areaWeightedMean() agrees with xarray's weighted mean and numpy regio
     minCoverage: A.min_coverage,
   });
   assert.deepEqual(Array.from(box2.mean), Array.from(box.mean));
+});
+
+Deno.test("planFieldComposite() agrees with scipy's pooled two-sample t per cell", () => {
+  const C = ref.composite;
+  const plan = planFieldComposite(field, new Float64Array(G).fill(1), {
+    epochs: C.epochs,
+    contrastEpochs: C.contrast_epochs,
+    from: C.from,
+    to: C.to,
+    preprocess: { method: "linear" },
+    seasonalPeriod: 12,
+  });
+  assert.equal(plan.observed.df, 8);
+  (ref.analysed_cells as number[]).forEach((c, i) => {
+    close(plan.observed.composite[c], C.difference[i], 1e-5, 1e-7, `difference at ${c}`);
+    close(plan.observed.t[c], C.t[i], 1e-5, 1e-7, `t at ${c} (scipy.stats.ttest_ind)`);
+    close(plan.observed.p[c], C.p[i], 1e-4, 1e-10, `p at ${c} (scipy.stats.ttest_ind)`);
+  });
 });
