@@ -79,13 +79,16 @@ export interface FieldSignificancePlan extends FieldMonteCarloFrame {
   sliceCount: number;
   /** Field of the held cells, time-major (n × sliceCount), float32. */
   y: Float32Array;
-  /** Per lag × held cell (lag-major): thresholds on cov²/Σx̃², see the module documentation. */
+  /**
+   * Per lag × held cell (lag-major): thresholds on cov²/Σx̃² (see the module documentation);
+   * the bounds of the uncertain band in float32, widened by 2⁻²² so rounding never narrows it.
+   */
   sigExact: Float64Array;
-  sigHi: Float64Array;
-  sigLo: Float64Array;
+  sigHi: Float32Array;
+  sigLo: Float32Array;
   exExact: Float64Array;
-  exHi: Float64Array;
-  exLo: Float64Array;
+  exHi: Float32Array;
+  exLo: Float32Array;
 }
 
 /** Input of {@link fieldSignificanceChunk}. */
@@ -201,9 +204,10 @@ export function planFieldSignificance(
   for (let t = 0; t < n; t++) {
     for (let i = 0; i < C; i++) y[t * C + i] = inputs.y[t * nc + cols[i]];
   }
-  const arrays = () => new Float64Array(L * C);
-  const sigExact = arrays(), sigHi = arrays(), sigLo = arrays();
-  const exExact = arrays(), exHi = arrays(), exLo = arrays();
+  const sigExact = new Float64Array(L * C), exExact = new Float64Array(L * C);
+  const bound = () => new Float32Array(L * C);
+  const sigHi = bound(), sigLo = bound(), exHi = bound(), exLo = bound();
+  const UP = 1 + 2 ** -22, DOWN = 1 - 2 ** -22;
   const observedUnits = new Float64Array(L);
   const col = new Float64Array(n), res = new Float64Array(n);
   const xr = new Float64Array(n);
@@ -227,11 +231,11 @@ export function planFieldSignificance(
         if (r * r >= rStar * rStar) observedUnits[j] += units[i];
       }
       sigExact[o] = rStar * rStar * s.syy;
-      sigHi[o] = (rStar + delta) ** 2 * s.syy;
-      sigLo[o] = Math.max(0, rStar - delta) ** 2 * s.syy;
+      sigHi[o] = (rStar + delta) ** 2 * s.syy * UP;
+      sigLo[o] = Math.max(0, rStar - delta) ** 2 * s.syy * DOWN;
       exExact[o] = rBest * rBest * s.syy;
-      exHi[o] = (rBest + delta) ** 2 * s.syy;
-      exLo[o] = Math.max(0, rBest - delta) ** 2 * s.syy;
+      exHi[o] = (rBest + delta) ** 2 * s.syy * UP;
+      exLo[o] = Math.max(0, rBest - delta) ** 2 * s.syy * DOWN;
     }
   }
   return {
@@ -304,8 +308,8 @@ export function sliceFieldSignificancePlan(
   const C = end - start, L = plan.lagCount, n = plan.n, off = start - s0;
   const y = new Float32Array(n * C);
   for (let t = 0; t < n; t++) y.set(plan.y.subarray(t * held + off, t * held + off + C), t * C);
-  const cut = (a: Float64Array) => {
-    const out = new Float64Array(L * C);
+  const cut = <A extends Float64Array | Float32Array>(a: A): A => {
+    const out = new (a.constructor as new (n: number) => A)(L * C);
     for (let j = 0; j < L; j++) out.set(a.subarray(j * held + off, j * held + off + C), j * C);
     return out;
   };
@@ -381,7 +385,8 @@ export function fieldSignificanceChunk(
   const ranges = Array.from({ length: L }, (_, j) => overlapRange(n, plan.minLag + j));
   const units = new Float64Array((s1 - s0) * L);
   const exceed = new Uint32Array(cb);
-  const flag = new Uint8Array(cb);
+  const flag = new Uint8Array(SURROGATE_BLOCK * cb);
+  const { sigHi, sigLo, exHi, exLo } = plan;
   const rowsMax = SURROGATE_BLOCK * L;
   const a32 = new Float32Array(rowsMax * n);
   const a64 = new Float64Array(rowsMax * n);
@@ -413,31 +418,35 @@ export function fieldSignificanceChunk(
     }
     for (let i = 0; i < rows * n; i++) a32[i] = a64[i];
     const { c, ldc } = engine.multiply(a32, rows);
-    for (let i = blockStart; i < blockEnd; i++) {
-      flag.fill(0);
-      for (let j = 0; j < L; j++) {
-        const row = (i - blockStart) * L + j;
-        const sx = sxx[row], base = row * ldc, tb = j * held + off;
+    // lag outer, surrogate inner: a lag's thresholds are read once per block of surrogates
+    const nb = blockEnd - blockStart;
+    flag.fill(0, 0, nb * cb);
+    for (let j = 0; j < L; j++) {
+      const tb = j * held + off;
+      for (let ii = 0; ii < nb; ii++) {
+        const row = ii * L + j, sx = sxx[row], base = row * ldc, fb = ii * cb;
         let u = 0;
         for (let cc = 0; cc < cb; cc++) {
           const v = c[base + cc], v2 = v * v, o = tb + cc;
-          let sig = v2 >= plan.sigHi[o] * sx;
-          if (!sig && v2 > plan.sigLo[o] * sx) {
+          let sig = v2 >= sigHi[o] * sx;
+          if (!sig && v2 > sigLo[o] * sx) {
             rechecked++;
             sig = exact(row, cc, j) >= plan.sigExact[o] * sx;
           }
           if (sig) u += w[cellStart + cc];
-          if (flag[cc] === 0) {
-            if (v2 >= plan.exHi[o] * sx) flag[cc] = 1;
-            else if (v2 > plan.exLo[o] * sx) {
+          if (flag[fb + cc] === 0) {
+            if (v2 >= exHi[o] * sx) flag[fb + cc] = 1;
+            else if (v2 > exLo[o] * sx) {
               rechecked++;
-              if (exact(row, cc, j) >= plan.exExact[o] * sx) flag[cc] = 1;
+              if (exact(row, cc, j) >= plan.exExact[o] * sx) flag[fb + cc] = 1;
             }
           }
         }
-        units[(i - s0) * L + j] = u;
+        units[(blockStart + ii - s0) * L + j] = u;
       }
-      for (let cc = 0; cc < cb; cc++) exceed[cc] += flag[cc];
+    }
+    for (let ii = 0; ii < nb; ii++) {
+      for (let cc = 0; cc < cb; cc++) exceed[cc] += flag[ii * cb + cc];
     }
   }
   return {
