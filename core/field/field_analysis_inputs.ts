@@ -352,6 +352,24 @@ export function preprocessFieldCells(
 }
 
 /**
+ * Remove from `out[0..m)` its projection on an orthonormal basis stored column-major (modified
+ * Gram–Schmidt order, as preprocess_series.ts's removeProjection on a flat basis) and return
+ * the residual sum of squares.
+ */
+function removeBasis(out: Float64Array, basis: Float64Array, m: number): number {
+  const p = basis.length / m;
+  for (let i = 0; i < p; i++) {
+    let g = 0;
+    const o = i * m;
+    for (let t = 0; t < m; t++) g += basis[o + t] * out[t];
+    for (let t = 0; t < m; t++) out[t] -= g * basis[o + t];
+  }
+  let s = 0;
+  for (let t = 0; t < m; t++) s += out[t] * out[t];
+  return s;
+}
+
+/**
  * Residual of one lag's overlap segment of a cell on the lag's basis, and its sums: the
  * building block shared by the map and the significance plan.
  *
@@ -386,7 +404,6 @@ export function segmentSums(
   const [a, b] = overlapRange(inputs.n, k);
   const m = b - a, off = a + k;
   const basis = inputs.bases[j];
-  const p = basis.length / m;
   let segSs = 0, sxy = 0;
   for (let t = 0; t < m; t++) {
     const v = column[off + t];
@@ -394,15 +411,7 @@ export function segmentSums(
     segSs += v * v;
     sxy += xr[t] * v;
   }
-  for (let i = 0; i < p; i++) {
-    let g = 0;
-    const o = i * m;
-    for (let t = 0; t < m; t++) g += basis[o + t] * out[t];
-    for (let t = 0; t < m; t++) out[t] -= g * basis[o + t];
-  }
-  let syy = 0;
-  for (let t = 0; t < m; t++) syy += out[t] * out[t];
-  return { sxy, syy, segSs };
+  return { sxy, syy: removeBasis(out, basis, m), segSs };
 }
 
 /**
@@ -434,16 +443,6 @@ export function predictorResidual(
   const k = inputs.minLag + j;
   const [a, b] = overlapRange(inputs.n, k);
   const m = b - a;
-  const basis = inputs.bases[j];
-  const p = basis.length / m;
   for (let t = 0; t < m; t++) out[t] = x[a + t];
-  for (let i = 0; i < p; i++) {
-    let g = 0;
-    const o = i * m;
-    for (let t = 0; t < m; t++) g += basis[o + t] * out[t];
-    for (let t = 0; t < m; t++) out[t] -= g * basis[o + t];
-  }
-  let s = 0;
-  for (let t = 0; t < m; t++) s += out[t] * out[t];
-  return s;
+  return removeBasis(out, inputs.bases[j], m);
 }

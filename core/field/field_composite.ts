@@ -30,6 +30,7 @@ import type { PreprocessOptions } from "../climate/preprocess_series.ts";
 import type { GriddedField } from "./gridded_field.ts";
 import { preprocessFieldCells } from "./field_analysis_inputs.ts";
 import {
+  checkMonteCarloSettings,
   combineFieldMonteCarlo,
   type FieldChunkTally,
   type FieldMonteCarloFrame,
@@ -117,6 +118,24 @@ function smallestSpacing(e: number[]): number {
   return Number.isFinite(g) ? g : 0;
 }
 
+/** Mean and Σ(v − mean)² of cell c's window means at the given epoch positions. */
+function meanAndSs(
+  means: Float64Array,
+  C: number,
+  lo: number,
+  c: number,
+  set: ArrayLike<number>,
+): [number, number] {
+  let s = 0, q = 0;
+  for (let i = 0; i < set.length; i++) {
+    const v = means[(set[i] - lo) * C + c];
+    s += v;
+    q += v * v;
+  }
+  const m = s / set.length;
+  return [m, Math.max(0, q - set.length * m * m)];
+}
+
 /** Per cell: composite, t (one-sample or pooled two-sample) for the given epoch positions. */
 function compositeT(
   means: Float64Array,
@@ -126,24 +145,12 @@ function compositeT(
   set1: ArrayLike<number>,
   set2: ArrayLike<number> | null,
 ): { d: number; t: number } {
-  let s1 = 0, q1 = 0;
-  for (let i = 0; i < set1.length; i++) {
-    const v = means[(set1[i] - lo) * C + c];
-    s1 += v;
-    q1 += v * v;
-  }
-  const k1 = set1.length, m1 = s1 / k1, ss1 = Math.max(0, q1 - k1 * m1 * m1);
+  const [m1, ss1] = meanAndSs(means, C, lo, c, set1), k1 = set1.length;
   if (!set2) {
     const se = Math.sqrt(ss1 / (k1 - 1) / k1);
     return { d: m1, t: se > 0 ? m1 / se : m1 === 0 ? 0 : Math.sign(m1) * Infinity };
   }
-  let s2 = 0, q2 = 0;
-  for (let i = 0; i < set2.length; i++) {
-    const v = means[(set2[i] - lo) * C + c];
-    s2 += v;
-    q2 += v * v;
-  }
-  const k2 = set2.length, m2 = s2 / k2, ss2 = Math.max(0, q2 - k2 * m2 * m2);
+  const [m2, ss2] = meanAndSs(means, C, lo, c, set2), k2 = set2.length;
   const pooled = (ss1 + ss2) / (k1 + k2 - 2);
   const se = Math.sqrt(pooled * (1 / k1 + 1 / k2));
   const d = m1 - m2;
@@ -187,15 +194,7 @@ export function planFieldComposite(
   if (!Number.isInteger(from) || !Number.isInteger(to) || from > to) {
     throw new RangeError(`Cannot ${fn}: the window must be integers from ≤ to, got ${from}..${to}`);
   }
-  if (!Number.isInteger(seed) || seed < 0 || seed >= 2 ** 32) {
-    throw new RangeError(`Cannot ${fn}: seed must be an integer in [0, 2^32), got ${seed}`);
-  }
-  if (!Number.isInteger(M) || M < 1) {
-    throw new RangeError(`Cannot ${fn}: replicates must be a positive integer, got ${M}`);
-  }
-  if (!(alpha > 0 && alpha < 1)) {
-    throw new RangeError(`Cannot ${fn}: alphaLocal must be in (0, 1), got ${alpha}`);
-  }
+  checkMonteCarloSettings(fn, seed, M, alpha);
   checkEpochs(fn, "epochs", options.epochs);
   if (options.contrastEpochs) checkEpochs(fn, "contrastEpochs", options.contrastEpochs);
   const prepared = preprocessFieldCells(

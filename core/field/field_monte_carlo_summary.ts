@@ -94,6 +94,40 @@ export interface FieldMonteCarloResult {
 }
 
 /**
+ * Check the settings every field Monte Carlo test takes.
+ *
+ * @param fn what was being done, for messages
+ * @param seed seed of the random streams
+ * @param replicates number of replicates M (named `name` in messages)
+ * @param alphaLocal level of the local test
+ * @param name what the replicates are called @default "replicates"
+ * @throws {RangeError} naming the first bad setting
+ * @example
+ * ```ts
+ * import { checkMonteCarloSettings } from "./field_monte_carlo_summary.ts";
+ * import assert from "node:assert/strict";
+ * assert.throws(() => checkMonteCarloSettings("test", -1, 10, 0.05), /seed/);
+ * ```
+ */
+export function checkMonteCarloSettings(
+  fn: string,
+  seed: number,
+  replicates: number,
+  alphaLocal: number,
+  name = "replicates",
+): void {
+  if (!Number.isInteger(seed) || seed < 0 || seed >= 2 ** 32) {
+    throw new RangeError(`Cannot ${fn}: seed must be an integer in [0, 2^32), got ${seed}`);
+  }
+  if (!Number.isInteger(replicates) || replicates < 1) {
+    throw new RangeError(`Cannot ${fn}: ${name} must be a positive integer, got ${replicates}`);
+  }
+  if (!(alphaLocal > 0 && alphaLocal < 1)) {
+    throw new RangeError(`Cannot ${fn}: alphaLocal must be in (0, 1), got ${alphaLocal}`);
+  }
+}
+
+/**
  * Integer weight units: w / max(w) · 2³², rounded (cells with weight 0 get 0).
  *
  * @param weights non-negative weights

@@ -43,6 +43,7 @@ import {
 import type { SolarSignalMap } from "./solar_signal_map.ts";
 import { type Float32ProductEngine, wasmFloat32Product } from "./float32_matrix_product.ts";
 import {
+  checkMonteCarloSettings,
   combineFieldMonteCarlo,
   type FieldChunkTally,
   type FieldMonteCarloFrame,
@@ -173,15 +174,7 @@ export function planFieldSignificance(
   const L = maxLag - minLag + 1;
   const q = inputs.controlNames.length;
   const seed = options.seed, M = options.surrogates ?? 1000, alpha = options.alphaLocal ?? 0.05;
-  if (!Number.isInteger(seed) || seed < 0 || seed >= 2 ** 32) {
-    throw new RangeError(`Cannot ${fn}: seed must be an integer in [0, 2^32), got ${seed}`);
-  }
-  if (!Number.isInteger(M) || M < 1) {
-    throw new RangeError(`Cannot ${fn}: surrogates must be a positive integer, got ${M}`);
-  }
-  if (!(alpha > 0 && alpha < 1)) {
-    throw new RangeError(`Cannot ${fn}: alphaLocal must be in (0, 1), got ${alpha}`);
-  }
+  checkMonteCarloSettings(fn, seed, M, alpha, "surrogates");
   if (weights.length !== gridCells) {
     throw new RangeError(`Cannot ${fn}: ${weights.length} weights for ${gridCells} cells`);
   }

@@ -10,19 +10,14 @@
  *
  * @module
  */
-import { randomStream } from "../../core/random/random_stream.ts";
+import { type RandomStream, randomStream } from "../../core/random/random_stream.ts";
+import { ar1Surrogate } from "../../core/climate/surrogates.ts";
 import { fieldAreaWeights, type GriddedField } from "../../core/field/mod.ts";
 
 export const N_LAT = 36, N_LON = 72, N_TIME = 600, MAX_LAG = 24, SURROGATES = 1000;
 export const SEED = 17;
 
-function ar1(n: number, phi: number, s: ReturnType<typeof randomStream>): Float64Array {
-  const out = new Float64Array(n);
-  out[0] = s.normal();
-  const e = Math.sqrt(1 - phi * phi);
-  for (let t = 1; t < n; t++) out[t] = phi * out[t - 1] + e * s.normal();
-  return out;
-}
+const ar1 = (n: number, phi: number, s: RandomStream) => ar1Surrogate(n, phi, 1, s);
 
 /** The field, predictor and cos-latitude weights. */
 export function fieldCase(): { field: GriddedField; x: Float64Array; weights: Float64Array } {

@@ -51,10 +51,10 @@ Deno.test("fieldSignificanceChunk() results do not depend on chunking or the pro
   });
   await t.step("deciding every comparison in float64 changes nothing", () => {
     const strict = { ...plan };
-    strict.sigHi = new Float64Array(plan.sigHi.length).fill(Infinity);
-    strict.sigLo = new Float64Array(plan.sigLo.length);
-    strict.exHi = new Float64Array(plan.exHi.length).fill(Infinity);
-    strict.exLo = new Float64Array(plan.exLo.length);
+    strict.sigHi = new Float32Array(plan.sigHi.length).fill(Infinity);
+    strict.sigLo = new Float32Array(plan.sigLo.length);
+    strict.exHi = new Float32Array(plan.exHi.length).fill(Infinity);
+    strict.exLo = new Float32Array(plan.exLo.length);
     const tally = fieldSignificanceChunk({
       plan: strict,
       surrogateStart: 0,

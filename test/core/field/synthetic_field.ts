@@ -3,7 +3,8 @@
  * correlated AR(1) noise (a few large-scale patterns plus local noise), optionally with a
  * response to the predictor planted in a latitude–longitude box.
  */
-import { randomStream } from "../../../core/random/random_stream.ts";
+import { type RandomStream, randomStream } from "../../../core/random/random_stream.ts";
+import { ar1Surrogate } from "../../../core/climate/surrogates.ts";
 import type { GriddedField } from "../../../core/field/mod.ts";
 
 export interface SyntheticOptions {
@@ -22,13 +23,7 @@ export interface SyntheticOptions {
   };
 }
 
-function ar1(n: number, phi: number, s: ReturnType<typeof randomStream>): Float64Array {
-  const out = new Float64Array(n);
-  out[0] = s.normal();
-  const e = Math.sqrt(1 - phi * phi);
-  for (let t = 1; t < n; t++) out[t] = phi * out[t - 1] + e * s.normal();
-  return out;
-}
+const ar1 = (n: number, phi: number, s: RandomStream) => ar1Surrogate(n, phi, 1, s);
 
 export function syntheticField(o: SyntheticOptions): { field: GriddedField; x: Float64Array } {
   const nLat = o.nLat ?? 6, nLon = o.nLon ?? 12, n = o.n ?? 240;
