@@ -35,11 +35,7 @@ import { normalQuantile, tQuantile } from "../stats/distributions.ts";
 import { dftAmplitudes, phaseRandomisedSpectrum } from "../climate/surrogates.ts";
 import { overlapRange } from "../climate/lagged_correlation.ts";
 import { type PreprocessOptions, preprocessSeries } from "../climate/preprocess_series.ts";
-import {
-  type FieldAnalysisInputs,
-  predictorResidual,
-  segmentSums,
-} from "./field_analysis_inputs.ts";
+import { type FieldAnalysisInputs, predictorResidual } from "./field_analysis_inputs.ts";
 import type { SolarSignalMap } from "./solar_signal_map.ts";
 import { type Float32ProductEngine, wasmFloat32Product } from "./float32_matrix_product.ts";
 import {
@@ -202,17 +198,13 @@ export function planFieldSignificance(
   const sigHi = bound(), sigLo = bound(), exHi = bound(), exLo = bound();
   const UP = 1 + 2 ** -22, DOWN = 1 - 2 ** -22;
   const observedUnits = new Float64Array(L);
-  const col = new Float64Array(n), res = new Float64Array(n);
-  const xr = new Float64Array(n);
   const dotBound = float32DotBound(n);
   const tStar = criticalTTable(alpha);
   for (let i = 0; i < C; i++) {
     const c = cells[i];
-    for (let t = 0; t < n; t++) col[t] = y[t * C + i];
     const rBest = Math.abs(map.best.r[c]);
     for (let j = 0; j < L; j++) {
-      predictorResidual(inputs, j, inputs.x, xr);
-      const s = segmentSums(inputs, j, col, xr, res);
+      const s = { syy: map.residualSs[j * gridCells + c], segSs: map.segmentSs[j * gridCells + c] };
       const o = j * C + i;
       const delta = dotBound * Math.sqrt(s.segSs / s.syy);
       const df = map.perLag.nEff[j * gridCells + c] - 2 - q;

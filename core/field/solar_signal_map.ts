@@ -67,6 +67,12 @@ export interface SolarSignalMap {
   controls: number;
   /** Per lag, per grid cell (lag-major: index j · gridCells + c). */
   perLag: CellStatistics;
+  /**
+   * Per lag, per grid cell (lag-major): Σỹ², the cell's sum of squares over the overlap after
+   * the intercept and controls, and Σy², before them (field units squared; NaN where left out).
+   */
+  residualSs: Float64Array;
+  segmentSs: Float64Array;
   /** Per grid cell at its best lag. */
   best: CellStatistics & {
     lag: Float64Array;
@@ -142,6 +148,8 @@ export function solarSignalMap(inputs: FieldAnalysisInputs): SolarSignalMap {
     xr.push(v);
   }
   const perLag = cellStatistics(L * gridCells);
+  const residualSs = new Float64Array(L * gridCells).fill(NaN);
+  const segmentSs = new Float64Array(L * gridCells).fill(NaN);
   const best = {
     ...cellStatistics(gridCells),
     lag: new Float64Array(gridCells).fill(NaN),
@@ -193,6 +201,8 @@ export function solarSignalMap(inputs: FieldAnalysisInputs): SolarSignalMap {
       perLag.p[o] = row.p;
       perLag.nEff[o] = row.nEff;
       perLag.r1Field[o] = row.r1;
+      residualSs[o] = s.syy;
+      segmentSs[o] = s.segSs;
       if (Math.abs(r) > bestAbs) {
         bestAbs = Math.abs(r);
         bestJ = j;
@@ -201,7 +211,10 @@ export function solarSignalMap(inputs: FieldAnalysisInputs): SolarSignalMap {
     if (bestJ === -2) {
       status[c] = CELL_CONSTANT;
       constant++;
-      for (const k of keys) for (let j = 0; j < L; j++) perLag[k][j * gridCells + c] = NaN;
+      for (let j = 0; j < L; j++) {
+        for (const k of keys) perLag[k][j * gridCells + c] = NaN;
+        residualSs[j * gridCells + c] = segmentSs[j * gridCells + c] = NaN;
+      }
       continue;
     }
     for (const k of keys) best[k][c] = perLag[k][bestJ * gridCells + c];
@@ -227,6 +240,8 @@ export function solarSignalMap(inputs: FieldAnalysisInputs): SolarSignalMap {
     r1Predictor: r1x,
     controls: q,
     perLag,
+    residualSs,
+    segmentSs,
     best,
     warnings,
   };
