@@ -317,7 +317,7 @@ export function combineFieldMonteCarlo(
   }
   if (nullBest.q95 > 0.25) {
     warnings.push(
-      `The null distribution is wide: in 5 % of replicates more than ${
+      `The null distribution is wide: in 5 % of replicates at least ${
         (100 * nullBest.q95).toFixed(0)
       } % of the area is locally significant by chance.`,
     );
