@@ -367,6 +367,9 @@ export function fieldSignificanceChunk(
   const yb = new Float32Array(n * cb);
   for (let t = 0; t < n; t++) yb.set(plan.y.subarray(t * held + off, t * held + off + cb), t * cb);
   engine.setRight(yb, n, cb);
+  // cell-major copy for the exact recomputations (a time-major column is one cache line a step)
+  const ybT = new Float32Array(n * cb);
+  for (let t = 0; t < n; t++) for (let cc = 0; cc < cb; cc++) ybT[cc * n + t] = yb[t * cb + cc];
   const ranges = Array.from({ length: L }, (_, j) => overlapRange(n, plan.minLag + j));
   const units = new Float64Array((s1 - s0) * L);
   const exceed = new Uint32Array(cb);
@@ -383,7 +386,8 @@ export function fieldSignificanceChunk(
     const [a, b] = ranges[j];
     const k = plan.minLag + j;
     let s = 0;
-    for (let t = a + k; t < b + k; t++) s += a64[row * n + t] * yb[t * cb + cc];
+    const ra = row * n, ca = cc * n;
+    for (let t = a + k; t < b + k; t++) s += a64[ra + t] * ybT[ca + t];
     return s * s;
   };
   for (let blockStart = s0; blockStart < s1; blockStart += SURROGATE_BLOCK) {

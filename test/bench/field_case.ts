@@ -35,7 +35,7 @@ export function fieldCase(): { field: GriddedField; x: Float64Array; weights: Fl
       const c = i * N_LON + j, la = (lat[i] * Math.PI) / 180, lo = (lon[j] * Math.PI) / 180;
       const p = [Math.cos(la), Math.sin(la) * Math.cos(lo), Math.cos(la) * Math.sin(2 * lo)];
       local.set(ar1(n, 0.4, s));
-      const box = lat[i] >= 10 && lat[i] <= 40 && lon[j] >= 100 && lon[j] <= 160;
+      const box = lat[i] >= -20 && lat[i] <= 50 && lon[j] >= 60 && lon[j] <= 200;
       for (let t = 0; t < n; t++) {
         let v = 0.5 * (p[0] * modes[0][t] + p[1] * modes[1][t] + p[2] * modes[2][t]) +
           0.8 * local[t];
