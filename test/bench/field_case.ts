@@ -3,7 +3,8 @@
  * field_medians.ts: a 5° field (36 × 72 = 2,592 cells), 600 months, lags 0..24, 1,000
  * phase-randomised surrogates, best-lag statistic. Invented data with fixed seeds: a predictor
  * with an 11-year cycle and AR(1) noise, a field of spatially correlated AR(1) noise (three
- * large-scale patterns and local noise) with a response planted in one box.
+ * large-scale patterns and local noise) with a response planted in one box (20° S–50° N,
+ * 60°–200° E, about a fifth of the area).
  *
  * `writeFieldCase(dir)` writes the same numbers for the numpy peer (field_numpy.py):
  * field.f32 (600 × 2,592 float32, time-major), predictor.f64, weights.f64 (cos latitude).
