@@ -22,7 +22,8 @@ import { formatIsoTime } from "../../core/time/mod.ts";
 import { ingestJson, ingestText, seriesToCsv } from "../ingest/mod.ts";
 import { storedFromNormalised } from "../series_codec.ts";
 import { wantsCsv } from "./format.ts";
-import { immutableHeaders, notModified } from "./cache.ts";
+import { notModified } from "./cache.ts";
+import { ImmutableCache, serveRepresentation } from "./immutable_cache.ts";
 import {
   CalendarQuery,
   ingestNetcdfUpload,
@@ -78,6 +79,7 @@ const UploadAnswer = z.object({
 const TEXT_TYPES = /^(text\/csv|text\/plain|text\/tab-separated-values|application\/csv)$/i;
 
 export function registerSeriesRoutes(app: App, deps: { store: Store; config: Config }): void {
+  const representations = new ImmutableCache();
   const { store } = deps;
 
   app.openapi(
@@ -238,15 +240,22 @@ export function registerSeriesRoutes(app: App, deps: { store: Store; config: Con
       }
       const nm = notModified(c, etag);
       if (nm) return nm;
+      // A series never changes: its JSON and CSV are formatted once and served as stored bytes.
+      const key = `${id}${csv ? "-csv" : ""}`;
+      const hit = representations.get(key);
+      if (hit) return await serveRepresentation(c, hit);
       const s = await store.getSeries(id);
       if (!s) throw new ProblemError("not-found", `No series has id ${id}`);
-      for (const [k, v] of Object.entries(immutableHeaders(etag))) c.header(k, v);
-      c.header("Vary", "Accept");
-      if (csv) {
-        c.header("Content-Type", "text/csv; charset=utf-8");
-        return c.body(seriesToCsv(s));
-      }
-      return c.json(seriesView(s));
+      const rep = {
+        etag,
+        body: new TextEncoder().encode(csv ? seriesToCsv(s) : JSON.stringify(seriesView(s))),
+        headers: {
+          "Content-Type": csv ? "text/csv; charset=utf-8" : "application/json",
+          Vary: "Accept",
+        },
+      };
+      representations.set(key, rep);
+      return await serveRepresentation(c, rep);
     }) as never,
   );
 
