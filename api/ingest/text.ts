@@ -22,6 +22,7 @@ import {
   type IngestError,
   type IngestResult,
   MAX_ABS_DECIMAL_YEAR,
+  MAX_COLUMNS,
   MAX_POINTS,
 } from "./types.ts";
 
@@ -188,7 +189,7 @@ export function ingestText(
   const checked = checkMeta(meta, (f) => q(`/${f}`), errors);
   if (lines.length === 0) {
     errors.add({ pointer: "", in: "body", message: "the body holds no data rows" });
-    return { ok: false, errors: errors.done() };
+    return errors.failure();
   }
 
   // 3. Delimiter.
@@ -213,6 +214,16 @@ export function ingestText(
   const delimLabel = (Object.keys(DELIMS) as (keyof typeof DELIMS)[]).find((k) =>
     DELIMS[k] === delimiter
   )!;
+  const firstWidth = countCells(lines[0].text, delimiter);
+  if (firstWidth > MAX_COLUMNS) {
+    return fail({
+      pointer: "",
+      in: "body",
+      row: lines[0].row,
+      message: `the table has ${firstWidth} columns (${delimLabel} separated); at most ` +
+        `${MAX_COLUMNS} are read: upload the time, value and uncertainty columns`,
+    });
+  }
 
   // 4. First row, header. Rows of empty cells only (",,," as spreadsheets write below a
   // table) count as blank lines. Rows are split again where they are read, so the table is
@@ -343,8 +354,8 @@ export function ingestText(
         errors.add({
           ...q("/value"),
           message: `name the value column: ${rest.length} candidate columns (${
-            rest.map((k) => JSON.stringify(colLabel(k))).join(", ")
-          })`,
+            rest.slice(0, 10).map((k) => JSON.stringify(colLabel(k))).join(", ")
+          }${rest.length > 10 ? ", ..." : ""})`,
         });
         vCol = null;
       }
@@ -372,7 +383,7 @@ export function ingestText(
       message: "time_format applies to a time column, not year/month/day columns",
     });
   }
-  if (errors.size > 0) return { ok: false, errors: errors.done() };
+  if (errors.size > 0) return errors.failure();
   const vc = vCol as number, uc = uCol ?? null;
 
   // 5. Sentinels.
@@ -546,7 +557,7 @@ export function ingestText(
   );
 
   function fail(e: IngestError): IngestResult {
-    return { ok: false, errors: [...errors.done(), e] };
+    return errors.failure(e);
   }
 }
 
@@ -624,6 +635,27 @@ export function splitLine(line: string, delimiter: string): string[] | null {
   return out;
 }
 
+/**
+ * Cells of a line without splitting it (one pass, no allocation); a quoted line is split
+ * properly (-1 when a quote is not closed).
+ */
+export function countCells(line: string, delimiter: string): number {
+  if (delimiter === " ") {
+    let n = 0, inCell = false;
+    for (let i = 0; i < line.length; i++) {
+      const c = line.charCodeAt(i);
+      const blank = c === 32 || c === 9 || c === 11 || c === 12 || c === 160;
+      if (!blank && !inCell) n++;
+      inCell = !blank;
+    }
+    return Math.max(n, 1);
+  }
+  if (line.includes('"')) return splitLine(line, delimiter)?.length ?? -1;
+  let n = 1;
+  for (let i = line.indexOf(delimiter); i >= 0; i = line.indexOf(delimiter, i + 1)) n++;
+  return n;
+}
+
 /** Choose the delimiter that splits the first rows most consistently into 2+ cells. */
 function detectDelimiter(lines: Line[]): string | null {
   const sample = lines.slice(0, 100);
@@ -631,8 +663,7 @@ function detectDelimiter(lines: Line[]): string | null {
   for (const d of ["\t", ";", ",", " "]) {
     const counts = new Map<number, number>();
     for (const l of sample) {
-      const c = splitLine(l.text, d);
-      const k = c === null ? -1 : c.length;
+      const k = countCells(l.text, d);
       counts.set(k, (counts.get(k) ?? 0) + 1);
     }
     let mode = 0, modeCount = 0;
