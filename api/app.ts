@@ -1,7 +1,8 @@
 /**
- * The Hono application: middleware (request id, JSON log line, CORS, body limit, media types),
- * RFC 9457 problems for every failure, the OpenAPI 3.1 document generated from the zod schemas
- * that validate requests, and the routes.
+ * The Hono application: middleware (request id, JSON log line, `Host` check, request-head
+ * size, CORS, cross-site guard, authentication, request rate, role check, body limit,
+ * compressed bodies), RFC 9457 problems for every failure, the OpenAPI 3.1 document generated
+ * from the zod schemas that validate requests, and the routes.
  *
  * @module
  */
@@ -9,11 +10,10 @@ import { OpenAPIHono } from "@hono/zod-openapi";
 import type { Context } from "hono";
 import { HTTPException } from "hono/http-exception";
 import { bodyLimit } from "hono/body-limit";
-import { cors } from "hono/cors";
 import { uuidv7 } from "uuidv7";
 import type { Config } from "./config.ts";
 import type { Store } from "./store/types.ts";
-import { type Problem, ProblemError, problemResponse, toPointer } from "./problems.ts";
+import { type Problem, ProblemError, problemResponse, zodFieldErrors } from "./problems.ts";
 import type { ComputeExecutor } from "./runs/service.ts";
 import { RunService } from "./runs/service.ts";
 import { RUN_KINDS } from "./kinds/registry.ts";
@@ -27,8 +27,22 @@ import { registerBundleRoutes } from "./routes/bundles.ts";
 import { registerUiRoutes } from "./ui/routes.ts";
 import { seriesCodec } from "./series_codec.ts";
 import { SERVICE_VERSION } from "./version.ts";
+import type { Principal } from "./auth/principal.ts";
+import { authenticate } from "./auth/authenticate.ts";
+import { authorise } from "./auth/authorise.ts";
+import { hostCheck } from "./security/host_check.ts";
+import { headSizeLimit } from "./security/head_size.ts";
+import { corsPolicy } from "./security/cors.ts";
+import { crossSiteGuard } from "./security/cross_site.ts";
+import { contentEncoding } from "./security/content_encoding.ts";
+import { TokenBuckets } from "./limits/token_bucket.ts";
+import { rateLimit } from "./limits/rate_limit.ts";
+import { RunQuotas } from "./limits/quotas.ts";
+import { registerAdminRoutes } from "./routes/admin.ts";
+import { UploadPool } from "./ingest/upload.ts";
+import { registerSharingRoutes } from "./routes/sharing.ts";
 
-export type AppEnv = { Variables: { requestId: string } };
+export type AppEnv = { Variables: { requestId: string; principal: Principal } };
 export type App = OpenAPIHono<AppEnv>;
 
 export interface AppDeps {
@@ -43,27 +57,12 @@ export interface Service {
   runs: RunService;
   store: Store;
   config: Config;
+  quotas: RunQuotas;
+  /** Workers that read uploads; `terminate()` them when the service stops. */
+  uploads: UploadPool;
 }
 
-/** Map zod issues to field errors with JSON Pointers. */
-export function zodErrors(
-  issues: readonly { path: readonly PropertyKey[]; message: string }[],
-  where: "body" | "query" | "path" | "header",
-) {
-  // A union reports one issue per branch at the same place: merge them into one entry.
-  const byPointer = new Map<string, string[]>();
-  for (const i of issues) {
-    const p = toPointer(i.path);
-    const list = byPointer.get(p) ?? [];
-    if (!list.includes(i.message)) list.push(i.message);
-    byPointer.set(p, list);
-  }
-  return [...byPointer].map(([pointer, messages]) => ({
-    pointer,
-    message: messages.join("; or "),
-    ...(where === "body" ? {} : { in: where }),
-  }));
-}
+export { zodErrors, zodFieldErrors } from "./problems.ts";
 
 const TARGET_NAMES: Record<string, "body" | "query" | "path" | "header"> = {
   json: "body",
@@ -76,22 +75,27 @@ const TARGET_NAMES: Record<string, "body" | "query" | "path" | "header"> = {
 export function createService(deps: AppDeps): Service {
   const { store, config } = deps;
   const kinds = deps.kinds ?? RUN_KINDS;
+  const quotas = new RunQuotas(config.quotas);
   const runs = new RunService(store, kinds, seriesCodec, deps.executor, {
     asyncSeconds: config.asyncSeconds,
+    wallSeconds: config.runWallSeconds,
+    admission: quotas,
   });
 
   const app: App = new OpenAPIHono<AppEnv>({
     defaultHook: (result, c) => {
       if (!result.success) {
         const where = TARGET_NAMES[result.target] ?? "body";
-        const errors = zodErrors(result.error.issues, where);
+        const { errors, omitted } = zodFieldErrors(result.error.issues, where);
         return problemResponse(c, {
           type: "https://sunlag.invalid/problems/validation",
           title: "Invalid input",
           status: 422,
           detail: `The request ${where} failed validation: ` +
-            errors.map((e) => `${e.pointer || "/"}: ${e.message}`).join("; "),
+            errors.slice(0, 5).map((e) => `${e.pointer || "/"}: ${e.message}`).join("; ") +
+            (errors.length > 5 || omitted ? "; and more (see errors)" : ""),
           errors,
+          ...(omitted ? { errors_omitted: omitted } : {}),
         });
       }
     },
@@ -117,18 +121,14 @@ export function createService(deps: AppDeps): Service {
     }
   });
 
-  if (config.corsOrigins.length) {
-    app.use(
-      "*",
-      cors({
-        origin: config.corsOrigins.includes("*") ? "*" : config.corsOrigins,
-        allowMethods: ["GET", "POST", "DELETE", "OPTIONS"],
-        allowHeaders: ["Content-Type", "Accept", "Prefer", "If-None-Match", "X-Request-Id"],
-        exposeHeaders: ["X-Request-Id", "ETag", "Location", "Preference-Applied"],
-        maxAge: 600,
-      }),
-    );
-  }
+  app.use("*", hostCheck(config.allowedHosts));
+  app.use("*", headSizeLimit());
+  const cors = corsPolicy(config.corsOrigins);
+  if (cors) app.use("*", cors);
+  app.use("*", crossSiteGuard());
+  app.use("*", authenticate({ store, adminKey: config.adminKey }));
+  app.use("*", rateLimit(new TokenBuckets(config.quotas.ratePerSecond, config.quotas.rateBurst)));
+  app.use("*", authorise());
 
   app.use(
     "*",
@@ -144,14 +144,18 @@ export function createService(deps: AppDeps): Service {
         ),
     }),
   );
+  app.use("*", contentEncoding(config.bodyLimitBytes));
 
   registerMetaRoutes(app, { store, config, kinds });
   registerUiRoutes(app);
-  registerSeriesRoutes(app, { store, config });
-  registerRunRoutes(app, { store, runs });
+  const uploads = new UploadPool(config.ingestWorkers);
+  registerSeriesRoutes(app, { store, config, uploads });
+  registerRunRoutes(app, { store, runs, config });
   registerChartRoutes(app, { store });
-  registerBundleRoutes(app, { store, runs });
-  registerKindRoutes(app, { runs, kinds });
+  registerBundleRoutes(app, { store, runs, config });
+  registerKindRoutes(app, { runs, kinds, store, config });
+  registerSharingRoutes(app, { store });
+  registerAdminRoutes(app, { store, config, quotas });
 
   app.onError((err, c) => {
     if (err instanceof ProblemError) return problemResponse(c, err.problem, err.headers);
@@ -228,7 +232,7 @@ export function createService(deps: AppDeps): Service {
     } as Problem);
   });
 
-  return { app, runs, store, config };
+  return { app, runs, store, config, quotas, uploads };
 }
 
 /** The OpenAPI 3.1 document of the app. */

@@ -2,11 +2,12 @@
  * Entry point: `deno task start`. Opens the store named by `SUNLAG_STORE` (default an
  * embedded SQLite file under ./data/), marks runs interrupted by a previous stop as failed,
  * loads the demo data into an empty store (unless `SUNLAG_DEMO=0`), starts the worker pool
- * and serves on `HOST:PORT` (default 127.0.0.1:8080).
+ * and serves on `HOST:PORT` (default 127.0.0.1:8080). Refuses to start on a non-loopback
+ * address without an admin key (or `SUNLAG_OPEN_NETWORK=1`) and a list of allowed hosts.
  *
  * @module
  */
-import { readConfig } from "./config.ts";
+import { readConfig, startupRefusal } from "./config.ts";
 import { openStoreFromSpec } from "./store/mod.ts";
 import { createService } from "./app.ts";
 import { WorkerPool } from "./workers/pool.ts";
@@ -15,6 +16,11 @@ import { loadDemo } from "./demo.ts";
 
 const t0 = performance.now();
 const config = readConfig(Deno.env.toObject());
+const refusal = startupRefusal(config);
+if (refusal) {
+  console.error(JSON.stringify({ level: "error", event: "refused_to_start", reason: refusal }));
+  Deno.exit(1);
+}
 const store = await openStoreFromSpec(config.store);
 const interrupted = await store.failInterrupted(
   "The service stopped while this run was queued or running; submit it again.",
@@ -44,6 +50,8 @@ Deno.serve({
       docs: `http://${hostname}:${port}/v1/docs`,
       store: store.kind,
       workers: config.workers,
+      keys_required: config.adminKey !== null,
+      allowed_hosts: config.allowedHosts,
       startup_ms: Math.round(performance.now() - t0),
     }));
   },

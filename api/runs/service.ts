@@ -10,7 +10,8 @@
  * @module
  */
 import { uuidv7 } from "uuidv7";
-import type { RunRecord, Store, StoredSeries } from "../store/types.ts";
+import type { HolderSpec, RunRecord, Store, StoredSeries, Viewer } from "../store/types.ts";
+import { DEFAULT_HOLDER } from "../store/common.ts";
 import { CancelledError, InputProblem, type RunContext, type RunKind } from "./kind.ts";
 import type { OutputSeries, RunResult } from "./kind.ts";
 import { SERIES_ID_PATTERN } from "../schemas/series_ref.ts";
@@ -148,6 +149,42 @@ interface Active {
   cancelled: boolean;
   listeners: Set<(e: RunEvent) => void>;
   started: number;
+  /** A final status was recorded (cancel, time limit, or the outcome): write no other. */
+  final: boolean;
+}
+
+/** A run's place under its owner's quotas (api/limits/quotas.ts). */
+export interface RunTicket {
+  /** Resolves when the owner may start computing (its concurrent-runs quota). */
+  slot(): Promise<void>;
+  /** The run stopped after computing for `seconds` (0 when it never started). */
+  done(seconds: number): void;
+}
+
+/** Admits runs under per-owner quotas. */
+export interface RunAdmission {
+  /** Admit a run of `owner`; throws a 429 ProblemError when a quota is exceeded. */
+  admit(owner: string, mode: "sync" | "async"): RunTicket;
+}
+
+/** Who submits a run, and whether quotas apply. */
+export interface SubmitAccess {
+  /** Only inputs this viewer may see can be used; none given = any (internal use). */
+  viewer?: Viewer;
+  /** The run, its inline inputs and saved outputs are held by this holder. */
+  holder?: HolderSpec;
+  /** True when the owner is under quotas. */
+  limited?: boolean;
+}
+
+/** The problem of a run stopped by the wall-time limit. */
+export function timeLimitProblem(seconds: number): ProblemError {
+  return new ProblemError(
+    "time-limit",
+    `The run was still computing after the wall-time limit of ${seconds} s ` +
+      "(SUNLAG_RUN_WALL_SECONDS) and was stopped; ask for less work (fewer surrogates, a " +
+      "shorter period or a coarser grid)",
+  );
 }
 
 export interface SubmitOutcome {
@@ -166,15 +203,28 @@ export class RunService {
     readonly kinds: RunKind[],
     readonly codec: SeriesCodec,
     readonly executor: ComputeExecutor,
-    readonly options: { asyncSeconds: number },
+    readonly options: {
+      asyncSeconds: number;
+      /** Wall-time limit of one run's computation, seconds. @default Infinity */
+      wallSeconds?: number;
+      /** Per-owner run quotas; none = unlimited. */
+      admission?: RunAdmission;
+    },
   ) {}
+
+  get #wallMs(): number {
+    return (this.options.wallSeconds ?? Infinity) * 1000;
+  }
 
   kindOf(name: string): RunKind | undefined {
     return this.kinds.find((k) => k.kind === name);
   }
 
-  /** Resolve inline series and load every referenced series and run. */
-  async prepare(kind: RunKind, params: Record<string, unknown>) {
+  /**
+   * Resolve inline series and load every referenced series and run. With a viewer, a series
+   * or run it may not see is reported exactly like one that is not stored.
+   */
+  async prepare(kind: RunKind, params: Record<string, unknown>, viewer?: Viewer) {
     const inline = new Map<string, StoredSeries>();
     const normalised = await extractInline(params, [], this.codec, inline) as Record<
       string,
@@ -184,13 +234,15 @@ export class RunService {
     const series: Record<string, StoredSeries> = {};
     const missing: { pointer: string; message: string }[] = [];
     for (const [id, pointer] of ids) {
-      const s = inline.get(id) ?? await this.store.getSeries(id);
+      const visible = inline.has(id) || !viewer || await this.store.seriesHolding(id, viewer);
+      const s = inline.get(id) ?? (visible ? await this.store.getSeries(id) : null);
       if (!s) missing.push({ pointer, message: `no stored series has id ${id}` });
       else series[id] = s;
     }
     const runs: Record<string, RunRecord> = {};
     for (const rid of kind.runRefs?.(normalised) ?? []) {
-      const r = await this.store.getRun(rid);
+      const visible = !viewer || await this.store.runHolding(rid, viewer);
+      const r = visible ? await this.store.getRun(rid) : null;
       if (!r) {
         missing.push({ pointer: findPointer(normalised, rid), message: `no run has id ${rid}` });
       } else if (r.status !== "succeeded") {
@@ -216,9 +268,10 @@ export class RunService {
   async submit(
     kind: RunKind,
     rawParams: Record<string, unknown>,
-    opts: { preferAsync: boolean },
+    opts: { preferAsync: boolean } & SubmitAccess,
   ): Promise<SubmitOutcome> {
-    const prep = await this.prepare(kind, rawParams);
+    const holder = opts.holder ?? DEFAULT_HOLDER;
+    const prep = await this.prepare(kind, rawParams, opts.viewer);
     const now = new Date().toISOString();
     const seed = typeof prep.params.seed === "number" ? prep.params.seed : null;
     const run: RunRecord = {
@@ -241,38 +294,75 @@ export class RunService {
     };
     const estimate = kind.estimateSeconds?.(prep.params as never) ?? 0;
     const isAsync = opts.preferAsync || estimate > this.options.asyncSeconds;
+    const admission = opts.limited ? this.options.admission : undefined;
+    const ticket = admission?.admit(holder.owner, isAsync ? "async" : "sync") ?? null;
     if (isAsync) {
-      for (const s of prep.inline.values()) await this.store.putSeries(s);
-      await this.store.putRun(run);
-      const p = this.execute(kind, run, prep).then(() => {}, () => {});
+      try {
+        for (const s of prep.inline.values()) await this.store.putSeries(s, holder);
+        await this.store.putRun(run, holder);
+      } catch (e) {
+        ticket?.done(0);
+        throw e;
+      }
+      const p = this.execute(kind, run, prep, holder, ticket).then(() => {}, () => {});
       this.pending.add(p);
       p.finally(() => this.pending.delete(p));
       return { status: 202, run, saved_series: [] };
     }
-    const done = await this.computeRun(kind, run, prep);
+    let done: RunRecord;
+    const t0 = performance.now();
+    try {
+      await ticket?.slot();
+      done = await this.computeRun(kind, run, prep);
+    } finally {
+      ticket?.done((performance.now() - t0) / 1000);
+    }
     // Only a successful synchronous run is stored (with its inline inputs).
-    for (const s of prep.inline.values()) await this.store.putSeries(s);
-    await this.store.putRun(done);
-    const saved = await this.saveOutputs(kind, done);
+    for (const s of prep.inline.values()) await this.store.putSeries(s, holder);
+    await this.store.putRun(done, holder);
+    const saved = await this.saveOutputs(kind, done, holder);
     return { status: 201, run: done, saved_series: saved };
   }
 
-  /** Compute a result from params and loaded inputs, without storing anything. */
+  /**
+   * Compute a result from params and loaded inputs, without storing anything. A computation
+   * still going after the wall-time limit is asked to stop and answered with a time-limit
+   * problem (computed in this thread, it is refused once it returns).
+   */
   async computeResult(
     kind: RunKind,
     params: Record<string, unknown>,
     inputs: { series: Record<string, StoredSeries>; runs: Record<string, RunRecord> },
   ): Promise<{ result: Record<string, unknown>; digest: string }> {
     let result: RunResult;
+    let stop = false;
+    let timer: ReturnType<typeof setTimeout> | undefined;
+    const wallMs = this.#wallMs;
+    const t0 = performance.now();
     try {
-      result = await this.executor.compute(kind, params, inputs, {
+      const work = this.executor.compute(kind, params, inputs, {
         progress: () => {},
-        isCancelled: () => false,
+        isCancelled: () => stop,
         onStart: () => {},
       });
+      if (Number.isFinite(wallMs)) {
+        const late = new Promise<never>((_, reject) => {
+          timer = setTimeout(() => {
+            stop = true;
+            reject(timeLimitProblem(this.options.wallSeconds!));
+          }, wallMs);
+        });
+        work.catch(() => {});
+        result = await Promise.race([work, late]);
+      } else {
+        result = await work;
+      }
     } catch (e) {
       throw asProblem(e);
+    } finally {
+      clearTimeout(timer);
     }
+    if (performance.now() - t0 > wallMs) throw timeLimitProblem(this.options.wallSeconds!);
     const plain = toPlainJson(result) as Record<string, unknown>;
     return { result: plain, digest: await resultDigest(plain) };
   }
@@ -299,13 +389,48 @@ export class RunService {
     kind: RunKind,
     run: RunRecord,
     prep: { series: Record<string, StoredSeries>; runs: Record<string, RunRecord> },
+    holder: HolderSpec,
+    ticket: RunTicket | null,
   ): Promise<void> {
-    const active: Active = { cancelled: false, listeners: new Set(), started: Date.now() };
+    const active: Active = {
+      cancelled: false,
+      listeners: new Set(),
+      started: Date.now(),
+      final: false,
+    };
     this.active.set(run.id, active);
     let lastWrite = 0;
     let startedAt = 0;
+    let timer: ReturnType<typeof setTimeout> | undefined;
     const publish = (e: RunEvent) => active.listeners.forEach((l) => l(e));
+    /** Record the final status once; later outcomes (a run finishing after its limit) are dropped. */
+    const finish = async (
+      status: "succeeded" | "failed" | "cancelled",
+      patch: Partial<RunRecord>,
+    ): Promise<boolean> => {
+      if (active.final) return false;
+      active.final = true;
+      await this.store.updateRun(run.id, {
+        status,
+        eta_seconds: null,
+        updated_at: new Date().toISOString(),
+        ...patch,
+      });
+      publish({ type: "status", id: run.id, status, progress: status === "succeeded" ? 1 : 0 });
+      return true;
+    };
     try {
+      await ticket?.slot();
+      if (active.cancelled) throw new CancelledError();
+      const wallMs = this.#wallMs;
+      if (Number.isFinite(wallMs)) {
+        timer = setTimeout(() => {
+          active.cancelled = true;
+          finish("failed", { error: timeLimitProblem(this.options.wallSeconds!).problem })
+            .catch(() => {});
+        }, wallMs);
+      }
+      const t0 = performance.now();
       const result = await this.executor.compute(kind, run.params, prep, {
         onStart: () => {
           startedAt = Date.now();
@@ -317,6 +442,7 @@ export class RunService {
           publish({ type: "status", id: run.id, status: "running", progress: 0 });
         },
         progress: (f) => {
+          if (active.final) return;
           const elapsed = (Date.now() - startedAt) / 1000;
           const eta = f > 0.01 ? Math.max(0, elapsed * (1 - f) / f) : null;
           publish({
@@ -338,56 +464,60 @@ export class RunService {
         },
         isCancelled: () => active.cancelled,
       });
+      if (performance.now() - t0 > wallMs) {
+        // Computed in this thread, the timer could not fire before the computation returned.
+        await finish("failed", { error: timeLimitProblem(this.options.wallSeconds!).problem });
+        return;
+      }
       if (active.cancelled) throw new CancelledError();
       const plain = toPlainJson(result) as Record<string, unknown>;
       const digest = await resultDigest(plain);
-      await this.store.updateRun(run.id, {
-        status: "succeeded",
-        progress: 1,
-        result: plain,
-        result_digest: digest,
-        eta_seconds: null,
-        updated_at: new Date().toISOString(),
-      });
-      const finished = await this.store.getRun(run.id);
-      if (finished) await this.saveOutputs(kind, finished);
-      publish({ type: "status", id: run.id, status: "succeeded", progress: 1 });
+      if (
+        await finish("succeeded", { progress: 1, result: plain, result_digest: digest })
+      ) {
+        const finished = await this.store.getRun(run.id);
+        if (finished) await this.saveOutputs(kind, finished, holder);
+      }
     } catch (e) {
       const cancelled = active.cancelled || e instanceof CancelledError;
       const status = cancelled ? "cancelled" : "failed";
       const problem = cancelled ? null : asProblem(e).problem;
-      await this.store.updateRun(run.id, {
-        status,
-        error: problem,
-        eta_seconds: null,
-        updated_at: new Date().toISOString(),
-      });
-      publish({ type: "status", id: run.id, status, progress: 0 });
+      await finish(status, { error: problem });
     } finally {
+      clearTimeout(timer);
+      ticket?.done(startedAt ? (Date.now() - startedAt) / 1000 : 0);
       this.active.delete(run.id);
     }
   }
 
   /** Store the kind's auto-saved outputs as series derived from the run. */
-  async saveOutputs(kind: RunKind, run: RunRecord): Promise<{ output: string; id: string }[]> {
+  async saveOutputs(
+    kind: RunKind,
+    run: RunRecord,
+    holder: HolderSpec = DEFAULT_HOLDER,
+  ): Promise<{ output: string; id: string }[]> {
     const saved: { output: string; id: string }[] = [];
     const outputs = (run.result?.outputs ?? {}) as Record<string, OutputSeries>;
     for (const name of kind.autoSave ?? []) {
       const o = outputs[name];
       if (!o) continue;
-      saved.push({ output: name, id: await this.saveOutput(run, name) });
+      saved.push({ output: name, id: await this.saveOutput(run, name, holder) });
     }
     return saved;
   }
 
-  /** Save one output of a finished run as a stored series; returns its id. */
-  async saveOutput(run: RunRecord, name: string): Promise<string> {
+  /** Save one output of a finished run as a stored series held by `holder`; returns its id. */
+  async saveOutput(
+    run: RunRecord,
+    name: string,
+    holder: HolderSpec = DEFAULT_HOLDER,
+  ): Promise<string> {
     const o = (run.result?.outputs as Record<string, OutputSeries> | undefined)?.[name];
     if (!o) {
       throw new ProblemError("not-found", `run ${run.id} has no output named "${name}"`);
     }
     const s = await this.codec.fromOutput(o, run.id);
-    await this.store.putSeries(s);
+    await this.store.putSeries(s, holder);
     return s.id;
   }
 
@@ -441,7 +571,13 @@ export class RunService {
       );
     }
     const a = this.active.get(id);
-    if (a) a.cancelled = true;
+    if (a) {
+      if (a.final) {
+        throw new ProblemError("conflict", `run ${id} has just finished and cannot be cancelled`);
+      }
+      a.cancelled = true;
+      a.final = true;
+    }
     await this.store.updateRun(id, {
       status: "cancelled",
       eta_seconds: null,
