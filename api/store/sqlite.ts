@@ -21,7 +21,9 @@
  *   correctly.
  *
  * The methods are async to honour the `Store` interface, but each one runs synchronously to
- * completion: no transaction is ever held open across an `await`.
+ * completion: no transaction is ever held open across an `await`. A file store writes large
+ * series in a worker with its own connection (api/store/sqlite_writer.ts), so the request
+ * thread is not held by a long write.
  *
  * @module
  */
@@ -44,6 +46,7 @@ import type {
   Visibility,
 } from "./types.ts";
 import { bytesLEToFloat64, float64ToBytesLE } from "./float64_blob.ts";
+import { OFFLOAD_POINTS, SqliteWriter } from "./sqlite_writer.ts";
 import {
   checkPaging,
   checkSeries,
@@ -243,6 +246,11 @@ export interface SqliteStoreOptions {
   busyTimeoutMs?: number;
   /** Schema steps to apply; tests use this to simulate other versions. @default SQLITE_MIGRATIONS */
   migrations?: readonly Migration[];
+  /**
+   * Write series of more than OFFLOAD_POINTS points in a worker with its own connection (file
+   * stores only; see api/store/sqlite_writer.ts). @default true
+   */
+  offload?: boolean;
 }
 
 const SERIES_META = SERIES_META_COLUMNS.join(", ");
@@ -266,9 +274,12 @@ export class SqliteStore implements Store {
   #db: DatabaseSync;
   #stmts = new Map<string, StatementSync>();
 
+  #writer: SqliteWriter | null;
+
   /** Use {@link openSqliteStore}; the constructor expects a database already migrated. */
-  constructor(db: DatabaseSync, readonly path: string) {
+  constructor(db: DatabaseSync, readonly path: string, writer: SqliteWriter | null = null) {
     this.#db = db;
+    this.#writer = writer;
   }
 
   #stmt(sql: string): StatementSync {
@@ -355,6 +366,15 @@ export class SqliteStore implements Store {
     s: StoredSeries,
     holder: HolderSpec = DEFAULT_HOLDER,
   ): Promise<{ created: boolean; series: SeriesMeta }> {
+    if (this.#writer && s.n > OFFLOAD_POINTS) {
+      try {
+        checkSeries(s);
+        checkVisibility(`store series ${s.id}`, holder.visibility);
+      } catch (e) {
+        return Promise.reject(e);
+      }
+      return this.#writer.putSeries(s, holder);
+    }
     return settle(() => {
       checkSeries(s);
       checkVisibility(`store series ${s.id}`, holder.visibility);
@@ -902,14 +922,13 @@ export class SqliteStore implements Store {
     });
   }
 
-  close(): Promise<void> {
-    return settle(() => {
-      if (this.#db.isOpen) {
-        this.#stmts.clear();
-        this.#db.close();
-      }
-      return undefined;
-    });
+  async close(): Promise<void> {
+    await this.#writer?.close();
+    this.#writer = null;
+    if (this.#db.isOpen) {
+      this.#stmts.clear();
+      this.#db.close();
+    }
   }
 }
 
@@ -997,5 +1016,7 @@ export async function openSqliteStore(options: SqliteStoreOptions): Promise<Sqli
     db.close();
     throw e;
   }
-  return new SqliteStore(db, path);
+  const offload = path !== ":memory:" && (options.offload ?? true);
+  const writer = offload ? new SqliteWriter(path, options.busyTimeoutMs ?? 10_000) : null;
+  return new SqliteStore(db, path, writer);
 }
