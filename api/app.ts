@@ -237,7 +237,16 @@ export function createService(deps: AppDeps): Service {
 
 /** The OpenAPI 3.1 document of the app. */
 export function openApiDocument(app: App) {
+  if (!app.openAPIRegistry.definitions.some((d) => d.type === "component" && d.name === "bearer")) {
+    app.openAPIRegistry.registerComponent("securitySchemes", "bearer", {
+      type: "http",
+      scheme: "bearer",
+      description: "An API key (`sk_<id>_<secret>`) or the instance's admin key. Needed on an " +
+        "instance started with SUNLAG_ADMIN_KEY; without a key only public items are readable.",
+    });
+  }
   return app.getOpenAPI31Document({
+    security: [{ bearer: [] }, {}],
     openapi: "3.1.0",
     info: {
       title: "sunlag",
