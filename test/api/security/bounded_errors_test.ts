@@ -33,6 +33,8 @@ Deno.test("bounded errors: 200,000 unknown fields give a problem of 20 entries a
 });
 
 Deno.test("bounded errors: 100,000 bad array entries in an upload are counted, not listed", async () => {
+  // (The same screening guards inline series in analysis requests: one loop, not one zod issue
+  // per entry.)
   const svc = await makeTestApp();
   try {
     const n = 100_000;
@@ -46,7 +48,9 @@ Deno.test("bounded errors: 100,000 bad array entries in an upload are counted, n
     const res = await svc.post("/v1/series", body);
     const problem = await assertProblem(res, 422);
     assert.equal(problem.errors.length, MAX_FIELD_ERRORS);
-    assert.equal(problem.errors_omitted, n - MAX_FIELD_ERRORS);
+    // 19 entries by place, then one that counts the others.
+    assert.equal(problem.errors[0].pointer, "/value/0");
+    assert.match(problem.errors[19].message, new RegExp(`and ${n - 19} more entries`));
     assert.ok(JSON.stringify(problem).length < 8_000);
   } finally {
     await svc.close();
@@ -80,6 +84,28 @@ Deno.test("bounded errors: long values are cut in details, pointers and messages
     const problem = await assertProblem(res, 422);
     const text = JSON.stringify(problem);
     assert.ok(text.length < 4_000, `problem ${text.length} bytes`);
+  } finally {
+    await svc.close();
+  }
+});
+
+Deno.test("bounded errors: an inline series of 50,000 bad values in an analysis request", async () => {
+  const svc = await makeTestApp();
+  try {
+    const n = 50_000;
+    const series = {
+      name: "inline",
+      quantity: "other",
+      units: "1",
+      time: Array.from({ length: n }, (_, i) => 1900 + i / 1000),
+      value: Array.from({ length: n }, () => "warm"),
+    };
+    const problem = await assertProblem(await svc.post("/v1/smoothing", { series }), 422);
+    assert.ok(problem.errors.length <= MAX_FIELD_ERRORS);
+    assert.ok(
+      problem.errors.some((e: { message: string }) => /and 49981 more entries/.test(e.message)),
+      JSON.stringify(problem.errors.slice(-2)),
+    );
   } finally {
     await svc.close();
   }
