@@ -34,14 +34,7 @@ export async function mustHoldRun(
   id: string,
   action: string,
 ): Promise<Holding> {
-  const h = await mustSeeRun(store, p, id);
-  if (h.owner !== p.owner && p.role !== "admin") {
-    throw new ProblemError(
-      "forbidden",
-      `Run ${id} is shared with you by its owner; only its owner or an admin may ${action} it`,
-    );
-  }
-  return h;
+  return mustHold(await mustSeeRun(store, p, id), p, `Run ${id}`, action);
 }
 
 /** As {@link mustHoldRun}, for a series. */
@@ -51,11 +44,14 @@ export async function mustHoldSeries(
   id: string,
   action: string,
 ): Promise<Holding> {
-  const h = await mustSeeSeries(store, p, id);
+  return mustHold(await mustSeeSeries(store, p, id), p, `Series ${id}`, action);
+}
+
+function mustHold(h: Holding, p: Principal, what: string, action: string): Holding {
   if (h.owner !== p.owner && p.role !== "admin") {
     throw new ProblemError(
       "forbidden",
-      `Series ${id} is shared with you by its owner; only its owner or an admin may ${action} it`,
+      `${what} is shared with you by its owner; only its owner or an admin may ${action} it`,
     );
   }
   return h;

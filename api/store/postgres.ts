@@ -426,17 +426,24 @@ export class PostgresStore implements Store {
   }
 
   async setSeriesVisibility(id: string, owner: string, visibility: Visibility): Promise<boolean> {
-    checkVisibility(`share series ${id}`, visibility);
-    const res = await this.#sql`
-      UPDATE series_holdings SET visibility = ${visibility}
-      WHERE series_id = ${id} AND owner_id = ${owner}`;
-    return res.count > 0;
+    return await this.#setVisibility("series_holdings", "series_id", id, owner, visibility);
   }
 
   async setRunVisibility(id: string, owner: string, visibility: Visibility): Promise<boolean> {
-    checkVisibility(`share run ${id}`, visibility);
+    return await this.#setVisibility("run_holdings", "run_id", id, owner, visibility);
+  }
+
+  async #setVisibility(
+    table: string,
+    key: string,
+    id: string,
+    owner: string,
+    visibility: Visibility,
+  ): Promise<boolean> {
+    checkVisibility(`share ${id}`, visibility);
     const res = await this.#sql`
-      UPDATE run_holdings SET visibility = ${visibility} WHERE run_id = ${id} AND owner_id = ${owner}`;
+      UPDATE ${this.#sql(table)} SET visibility = ${visibility}
+      WHERE ${this.#sql(key)} = ${id} AND owner_id = ${owner}`;
     return res.count > 0;
   }
 

@@ -508,26 +508,26 @@ export class SqliteStore implements Store {
   }
 
   setSeriesVisibility(id: string, owner: string, visibility: Visibility): Promise<boolean> {
-    return settle(() => {
-      checkVisibility(`share series ${id}`, visibility);
-      return this.#write(() =>
-        Number(
-          this.#stmt(
-            "UPDATE series_holdings SET visibility = ? WHERE series_id = ? AND owner_id = ?",
-          ).run(visibility, id, owner).changes,
-        ) > 0
-      );
-    });
+    return this.#setVisibility("series_holdings", "series_id", id, owner, visibility);
   }
 
   setRunVisibility(id: string, owner: string, visibility: Visibility): Promise<boolean> {
+    return this.#setVisibility("run_holdings", "run_id", id, owner, visibility);
+  }
+
+  #setVisibility(
+    table: string,
+    key: string,
+    id: string,
+    owner: string,
+    visibility: Visibility,
+  ): Promise<boolean> {
     return settle(() => {
-      checkVisibility(`share run ${id}`, visibility);
+      checkVisibility(`share ${id}`, visibility);
       return this.#write(() =>
         Number(
-          this.#stmt(
-            "UPDATE run_holdings SET visibility = ? WHERE run_id = ? AND owner_id = ?",
-          ).run(visibility, id, owner).changes,
+          this.#stmt(`UPDATE ${table} SET visibility = ? WHERE ${key} = ? AND owner_id = ?`)
+            .run(visibility, id, owner).changes,
         ) > 0
       );
     });

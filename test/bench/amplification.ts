@@ -12,27 +12,21 @@
  *
  * @module
  */
+import { spawnService } from "./spawn_service.ts";
+
 const opt = (name: string, dflt: string) => {
   const i = Deno.args.indexOf(`--${name}`);
   return i >= 0 ? Deno.args[i + 1] : dflt;
 };
 const ROOT = opt("root", new URL("../../", import.meta.url).pathname);
 const PORT = Number(opt("port", "18450"));
-const BASE = `http://127.0.0.1:${PORT}`;
 
-const server = new Deno.Command(Deno.execPath(), {
-  args: ["run", "-A", "api/main.ts"],
-  cwd: ROOT,
-  env: {
-    PORT: String(PORT),
-    SUNLAG_STORE: "sqlite::memory:",
-    SUNLAG_DEMO: "0",
-    SUNLAG_LOG: "0",
-    SUNLAG_BODY_LIMIT_MB: "64",
-  },
-  stdout: "null",
-  stderr: "inherit",
-}).spawn();
+const server = await spawnService(ROOT, PORT, {
+  SUNLAG_STORE: "sqlite::memory:",
+  SUNLAG_DEMO: "0",
+  SUNLAG_BODY_LIMIT_MB: "64",
+});
+const BASE = server.base;
 
 function rssMb(pid: number): number {
   try {
@@ -62,14 +56,6 @@ async function attack(name: string, path: string, type: string, body: Uint8Array
 const enc = (s: string) => new TextEncoder().encode(s) as Uint8Array<ArrayBuffer>;
 
 try {
-  for (let i = 0; i < 200; i++) {
-    try {
-      if ((await fetch(`${BASE}/v1/health`)).ok) break;
-    } catch {
-      // not up yet
-    }
-    await new Promise((r) => setTimeout(r, 100));
-  }
   const results = [];
   {
     const parts = ['{"series":"sha256:' + "0".repeat(64) + '"'];
@@ -99,6 +85,5 @@ try {
   }
   for (const r of results) console.log(JSON.stringify({ root: ROOT, ...r }));
 } finally {
-  server.kill("SIGTERM");
-  await server.status;
+  await server.stop();
 }

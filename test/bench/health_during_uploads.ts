@@ -10,6 +10,7 @@
  *
  * @module
  */
+import { spawnService } from "./spawn_service.ts";
 
 const opt = (name: string, dflt: string) => {
   const i = Deno.args.indexOf(`--${name}`);
@@ -19,7 +20,6 @@ const UPLOADS = Number(opt("uploads", "20"));
 const MB = Number(opt("mb", "20"));
 const ROOT = opt("root", new URL("../../", import.meta.url).pathname);
 const PORT = Number(opt("port", "18440"));
-const BASE = `http://127.0.0.1:${PORT}`;
 
 function body(k: number): Uint8Array<ArrayBuffer> {
   // About 27 bytes per point as JSON: decimal years and values with many digits.
@@ -39,29 +39,14 @@ function body(k: number): Uint8Array<ArrayBuffer> {
 }
 
 const dir = await Deno.makeTempDir({ prefix: "sunlag-health-" });
-const server = new Deno.Command(Deno.execPath(), {
-  args: ["run", "-A", Deno.env.get("BENCH_SERVER") ?? "api/main.ts"],
-  cwd: ROOT,
-  env: {
-    PORT: String(PORT),
-    SUNLAG_STORE: `sqlite:${dir}/bench.db`,
-    SUNLAG_DEMO: "0",
-    SUNLAG_LOG: "0",
-    SUNLAG_BODY_LIMIT_MB: String(MB * 2),
-  },
-  stdout: "null",
-  stderr: "inherit",
-}).spawn();
+const server = await spawnService(ROOT, PORT, {
+  SUNLAG_STORE: `sqlite:${dir}/bench.db`,
+  SUNLAG_DEMO: "0",
+  SUNLAG_BODY_LIMIT_MB: String(MB * 2),
+}, Deno.env.get("BENCH_SERVER") ?? "api/main.ts");
+const BASE = server.base;
 
 try {
-  for (let i = 0; i < 200; i++) {
-    try {
-      if ((await fetch(`${BASE}/v1/health`)).ok) break;
-    } catch {
-      // not up yet
-    }
-    await new Promise((r) => setTimeout(r, 100));
-  }
   console.error(`making ${UPLOADS} bodies of ~${MB} MB ...`);
   const bodies = Array.from({ length: UPLOADS }, (_, k) => body(k));
   console.error(`body size ${(bodies[0].length / 1e6).toFixed(1)} MB`);
@@ -123,7 +108,6 @@ try {
     },
   }));
 } finally {
-  server.kill("SIGTERM");
-  await server.status;
+  await server.stop();
   await Deno.remove(dir, { recursive: true });
 }
