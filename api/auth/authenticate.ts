@@ -71,6 +71,18 @@ export function authenticate(deps: { store: Store; adminKey: string | null }): M
     }
     c.set("principal" as never, p as never);
     await next();
+    // What a caller may see depends on its key: a browser that changes keys must not answer
+    // the new one from what it kept for the old (RFC 9110 §12.5.5).
+    if (deps.adminKey !== null) {
+      try {
+        const vary = c.res.headers.get("vary");
+        if (!vary || !/\bauthorization\b/i.test(vary)) {
+          c.res.headers.set("Vary", vary ? `${vary}, Authorization` : "Authorization");
+        }
+      } catch {
+        // a response with immutable headers (none of the service's own)
+      }
+    }
   };
 }
 

@@ -165,7 +165,9 @@ Deno.test("authentication: 401 with WWW-Authenticate; roles decide writes and ad
     await assertProblem(bad, 401);
     const reader = await svc.owner("rita", { role: "reader" });
     await assertProblem(await reader.post("/v1/series", smallSeries("r")), 403);
-    assert.equal((await reader.get("/v1/series")).status, 200);
+    const listed = await reader.get("/v1/series");
+    assert.equal(listed.status, 200);
+    assert.match(listed.headers.get("vary") ?? "", /Authorization/, "caches keep callers apart");
     const writer = await svc.owner("walt");
     await assertProblem(await writer.get("/v1/admin/owners"), 403);
     await assertProblem(await writer.post("/v1/admin/owners", { id: "evil", name: "e" }), 403);
