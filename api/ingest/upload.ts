@@ -119,6 +119,9 @@ export function seriesBuffers(s: StoredSeries): ArrayBuffer[] {
   return [...new Set(out)] as ArrayBuffer[];
 }
 
+/** A body still arriving after this many milliseconds gives its reading turn away. */
+export const SLOW_BODY_MS = 5000;
+
 /**
  * A small pool of upload workers (`api/ingest/upload_worker.ts`); size 0 ingests in the
  * calling thread. Workers start on first use and are replaced if one fails.
@@ -127,8 +130,43 @@ export class UploadPool {
   #workers: { worker: Worker; load: number }[] = [];
   #jobs = new Map<number, { resolve(o: UploadOutcome): void; reject(e: Error): void }>();
   #next = 1;
+  #reading = 0;
+  #readers: (() => void)[] = [];
 
-  constructor(readonly size: number) {}
+  /**
+   * @param size upload workers (0: ingest in the calling thread)
+   * @param slowBodyMs a body still arriving after this gives its reading turn away
+   *   @default SLOW_BODY_MS
+   */
+  constructor(readonly size: number, readonly slowBodyMs: number = SLOW_BODY_MS) {}
+
+  /**
+   * Read a request body, one per upload worker at a time. The thread that reads bodies also
+   * does the service's network I/O: twenty 20 MB bodies read at once hold it for a few hundred
+   * milliseconds and health checks wait; read in turns (the others wait unread, held back by
+   * TCP flow control) they do not, and the workers cannot ingest more at once anyway. A body
+   * still arriving after `slowBodyMs` gives its turn away, so a slow sender never holds up the
+   * others for long.
+   */
+  async readBody(req: Request): Promise<Uint8Array> {
+    const slots = Math.max(1, this.size);
+    while (this.#reading >= slots) await new Promise<void>((ok) => this.#readers.push(ok));
+    this.#reading++;
+    let held = true;
+    const release = () => {
+      if (!held) return;
+      held = false;
+      this.#reading--;
+      this.#readers.shift()?.();
+    };
+    const timer = setTimeout(release, this.slowBodyMs);
+    try {
+      return new Uint8Array(await req.arrayBuffer());
+    } finally {
+      clearTimeout(timer);
+      release();
+    }
+  }
 
   #pick(): { worker: Worker; load: number } {
     if (this.#workers.length < this.size) {

@@ -148,7 +148,7 @@ export function registerSeriesRoutes(
       const ct = (c.req.header("content-type") ?? "").split(";")[0].trim().toLowerCase();
       let outcome;
       if (/^application\/([\w.-]+\+)?json$/.test(ct)) {
-        const bytes = new Uint8Array(await c.req.arrayBuffer());
+        const bytes = await uploads.readBody(c.req.raw);
         outcome = await uploads.run({ format: "json", bytes });
       } else if (TEXT_TYPES.test(ct)) {
         const q = TextUploadQuery.safeParse(c.req.query());
@@ -161,7 +161,7 @@ export function registerSeriesRoutes(
             { errors },
           );
         }
-        const bytes = new Uint8Array(await c.req.arrayBuffer());
+        const bytes = await uploads.readBody(c.req.raw);
         outcome = await uploads.run({ format: "text", bytes, query: q.data });
       } else {
         throw new ProblemError(

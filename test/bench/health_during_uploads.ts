@@ -3,7 +3,8 @@
  * SQLite file store, default workers) on a spare port; 20 concurrent uploads of about 20 MB of
  * JSON each (distinct contents, so every one is parsed, hashed and written) while a separate
  * worker probes `GET /v1/health` every 20 ms. Reports the probes' p50, p99 and maximum (goal:
- * p99 under 50 ms) and the uploads' statuses and wall time.
+ * p99 under 50 ms) and the uploads' statuses and wall time, beside the same probes against the
+ * idle service just before (what the machine's other load alone costs).
  *
  * Usage: deno run -A test/bench/health_during_uploads.ts [--uploads 20] [--mb 20]
  *        [--root <checkout to measure, default this one>] [--port 18440]
@@ -20,6 +21,7 @@ const UPLOADS = Number(opt("uploads", "20"));
 const MB = Number(opt("mb", "20"));
 const ROOT = opt("root", new URL("../../", import.meta.url).pathname);
 const PORT = Number(opt("port", "18440"));
+const IDLE_SECONDS = Number(opt("idle-seconds", "5"));
 
 function body(k: number): Uint8Array<ArrayBuffer> {
   // About 27 bytes per point as JSON: decimal years and values with many digits.
@@ -51,8 +53,9 @@ try {
   const bodies = Array.from({ length: UPLOADS }, (_, k) => body(k));
   console.error(`body size ${(bodies[0].length / 1e6).toFixed(1)} MB`);
 
-  const prober = new Worker(
-    "data:text/javascript," + encodeURIComponent(`
+  const probe = () =>
+    new Worker(
+      "data:text/javascript," + encodeURIComponent(`
       let stop = false; const lat = []; let failed = 0;
       self.onmessage = (e) => { if (e.data === "stop") stop = true; };
       (async () => {
@@ -69,8 +72,20 @@ try {
         self.postMessage({ lat, failed });
       })();
     `),
-    { type: "module" },
-  );
+      { type: "module" },
+    );
+  const collect = async (w: Worker) => {
+    w.postMessage("stop");
+    const out = await new Promise<{ lat: number[]; failed: number }>((ok) =>
+      w.onmessage = (e) => ok(e.data)
+    );
+    w.terminate();
+    return out;
+  };
+  const idleProber = probe();
+  await new Promise((r) => setTimeout(r, IDLE_SECONDS * 1000));
+  const idle = await collect(idleProber);
+  const prober = probe();
   await new Promise((r) => setTimeout(r, 300));
   const t0 = performance.now();
   const statuses = await Promise.all(bodies.map(async (b) => {
@@ -84,13 +99,16 @@ try {
   }));
   const uploadSeconds = (performance.now() - t0) / 1000;
   await new Promise((r) => setTimeout(r, 300));
-  prober.postMessage("stop");
-  const { lat, failed } = await new Promise<{ lat: number[]; failed: number }>((ok) =>
-    prober.onmessage = (e) => ok(e.data)
-  );
-  prober.terminate();
-  lat.sort((a, b) => a - b);
-  const q = (p: number) => lat[Math.min(lat.length - 1, Math.floor(p * lat.length))];
+  const { lat, failed } = await collect(prober);
+  const summary = (l: number[]) => {
+    const s = [...l].sort((a, b) => a - b);
+    const q = (p: number) => s[Math.min(s.length - 1, Math.floor(p * s.length))];
+    return {
+      p50: Math.round(q(0.5) * 10) / 10,
+      p99: Math.round(q(0.99) * 10) / 10,
+      max: Math.round(s[s.length - 1] * 10) / 10,
+    };
+  };
   console.log(JSON.stringify({
     root: ROOT,
     uploads: UPLOADS,
@@ -101,11 +119,10 @@ try {
     upload_wall_seconds: Math.round(uploadSeconds * 10) / 10,
     health_probes: lat.length,
     health_failed: failed,
-    health_ms: {
-      p50: Math.round(q(0.5) * 10) / 10,
-      p99: Math.round(q(0.99) * 10) / 10,
-      max: Math.round(lat[lat.length - 1] * 10) / 10,
-    },
+    health_ms: summary(lat),
+    idle_probes: idle.lat.length,
+    idle_failed: idle.failed,
+    idle_health_ms: summary(idle.lat),
   }));
 } finally {
   await server.stop();
