@@ -21,6 +21,7 @@ import type { RunKind } from "./runs/kind.ts";
 import { registerMetaRoutes } from "./routes/meta.ts";
 import { registerMetricsRoutes, ServiceMetrics } from "./routes/metrics.ts";
 import { registerRunRoutes } from "./routes/runs.ts";
+import { registerSpectrumRoutes } from "./routes/spectrum.ts";
 import { registerChartRoutes } from "./routes/charts.ts";
 import { registerKindRoutes } from "./routes/kinds.ts";
 import { registerSeriesRoutes } from "./routes/series.ts";
@@ -164,6 +165,7 @@ export function createService(deps: AppDeps): Service {
   const uploads = new UploadPool(config.ingestWorkers);
   registerSeriesRoutes(app, { store, config, uploads });
   registerRunRoutes(app, { store, runs, config });
+  registerSpectrumRoutes(app, { store, config });
   registerChartRoutes(app, { store, kinds });
   registerBundleRoutes(app, { store, runs, config });
   registerKindRoutes(app, { runs, kinds, store, config });

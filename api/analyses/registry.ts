@@ -23,6 +23,7 @@ import { irradianceModels } from "./irradiance_models/mod.ts";
 import { irradianceReconstructions } from "./irradiance_reconstructions/mod.ts";
 import { forcing } from "./forcing/mod.ts";
 import { spectralIrradianceModels } from "./spectral_irradiance_models/mod.ts";
+import { spectralIrradianceReconstructions } from "./spectral_irradiance_reconstructions/mod.ts";
 
 export const RUN_KINDS: readonly RunKind[] = [
   smoothingKind,
@@ -41,5 +42,6 @@ export const RUN_KINDS: readonly RunKind[] = [
   irradianceModels,
   irradianceReconstructions,
   spectralIrradianceModels,
+  spectralIrradianceReconstructions,
   forcing,
 ];

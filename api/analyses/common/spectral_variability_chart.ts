@@ -80,7 +80,11 @@ export function spectralVariabilityChart(
       `${what} Each marker is one band at its geometric centre; both axes are logarithmic, so ` +
         "the magnitude |cycle amplitude| / level is drawn and anti-phase bands are marked apart.",
     ),
-    x: { label: "Wavelength (nm)", kind: "log" },
+    x: {
+      label: "Wavelength (nm)",
+      kind: "log",
+      domain: [Math.min(...points.map((p) => p.lower)), Math.max(...points.map((p) => p.upper))],
+    },
     y: { label: "|Cycle amplitude| / level", kind: "log" },
     layers,
     notes: runNotes(run),

@@ -36,7 +36,8 @@ import { cellMeansWithin, proxiesAtCells } from "../common/proxy_cells.ts";
 import { bandValueKind } from "../common/wavelength_bands.ts";
 import { irradianceModels } from "../irradiance_models/mod.ts";
 import type { ModelResultOut } from "../irradiance_models/result.ts";
-import { finiteOrNull, mappingFromJson } from "../irradiance_models/mapping_json.ts";
+import { mappingFromJson } from "../irradiance_models/mapping_json.ts";
+import { undefinedAsNull } from "../common/undefined_as_null.ts";
 import type { SpectralModelParams } from "./request.ts";
 import type { SpectralModelResultIn } from "./result.ts";
 import { BAND_FITS_CHUNK, type BandFitsChunk } from "./tasks.ts";
@@ -77,7 +78,7 @@ export async function computeSpectralModel(
   const record = bandRecord(params, ctx);
   const axis = calibrationAxis(params, record, proxies.series, tsi);
   ctx.progress(0.05);
-  const fits = await calibrate(params, ctx, tsi, axis);
+  const fits = await calibrate(params, ctx, tsi, axis, record.bounds);
   const be = params.sunspot_number === undefined
     ? null
     : backExtension(params, ctx, tsi, record, axis, fits);
@@ -227,6 +228,7 @@ async function calibrate(
   ctx: RunContext,
   tsi: ModelResultOut,
   axis: CalibrationAxis,
+  bounds: WavelengthBand[],
 ): Promise<BandModels> {
   const options = {
     method: params.method,
@@ -246,7 +248,7 @@ async function calibrate(
   try {
     parts = await ctx.parallel<BandFitsChunk, BandModels>(BAND_FITS_CHUNK, chunks);
   } catch (e) {
-    throw calibrationProblem(e);
+    throw calibrationProblem(e, bounds);
   }
   if (ctx.cancelled()) throw new CancelledError();
   ctx.progress(0.8);
@@ -261,18 +263,23 @@ async function calibrate(
   };
 }
 
-/** A calibration error as a problem at the field it concerns. */
-function calibrationProblem(e: unknown): unknown {
+/** A calibration error as a problem at the field it concerns, naming the band. */
+function calibrationProblem(e: unknown, bounds: WavelengthBand[]): unknown {
   if (e instanceof CollinearProxiesError || (e instanceof InputError && e.reason === "collinear")) {
     return new InputProblem("/proxies", (e as Error).message, {
       reason: "collinear",
       condition_number: typeof (e as InputError).value === "number"
-        ? finiteOrNull((e as InputError).value as number)
+        ? undefinedAsNull((e as InputError).value as number)
         : null,
     });
   }
   if (e instanceof InputError && e.field === "bands" && e.index !== undefined) {
-    return new InputProblem(`/bands/${e.index}/series`, e.message, {
+    const b = bounds[e.index];
+    const what = `band ${e.index} (${b.lower}–${b.upper} nm)`;
+    const message = e.reason === "no_overlap"
+      ? `${what} does not overlap the proxies in time: its record has no cell where every proxy has a value`
+      : `${what}: ${e.message.replace(/^Cannot calibrate band models: band \d+ /, "")}`;
+    return new InputProblem(`/bands/${e.index}/series`, message, {
       field: "series",
       reason: e.reason,
       band: e.index,

@@ -23,7 +23,6 @@ import {
   type WavelengthBand,
 } from "../../../core/irradiance/mod.ts";
 import { InputProblem } from "../../runs/kind.ts";
-import { finiteOrNull } from "../irradiance_models/mapping_json.ts";
 import type { ModelResultOut } from "../irradiance_models/result.ts";
 import { rangeWeightsAt } from "../common/wavelength_bands.ts";
 import { undefinedAsNull } from "../common/undefined_as_null.ts";
@@ -334,8 +333,8 @@ export function bandModelsJson(
       adj_r_squared: f.adjRSquared,
       residual_rms: f.residualRms,
       residual_lag1: f.residualLag1,
-      aic: finiteOrNull(f.aic),
-      bic: finiteOrNull(f.bic),
+      aic: undefinedAsNull(f.aic),
+      bic: undefinedAsNull(f.bic),
       converged: f.converged,
       iterations: f.iterations,
       cross_validation: cv

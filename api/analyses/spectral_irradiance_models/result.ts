@@ -11,16 +11,11 @@
 import { z } from "@hono/zod-openapi";
 import { cautions, nums, OutputSeriesSchema, warnings } from "../common/result_parts.ts";
 import { IrradianceModel, SunspotMappings } from "../irradiance_models/result.ts";
+import { BandBounds } from "../common/spectrum_block.ts";
 
 const CellResolution = z.enum(["daily", "monthly", "annual"]);
 const statOrNull = z.number().nullable();
 const matrix = z.array(nums);
-
-/** Band (or range) bounds, nm. */
-export const BandBounds = z.object({
-  lower: z.number().openapi({ description: "nm, included" }),
-  upper: z.number().openapi({ description: "nm, excluded" }),
-}).openapi("WavelengthBounds");
 
 /** A coefficient vector with its standard errors and 95 % interval. */
 const Estimates = {
@@ -91,7 +86,7 @@ export const BandModelJson = z.object({
 }).openapi("SpectralBandModel");
 
 /** An integrated range's model. */
-const RangeModel = z.object({
+export const RangeModel = z.object({
   range: BandBounds.openapi({ description: "The range, nm" }),
   bands: z.number().int().openapi({ description: "Bands that contribute" }),
   covered_nm: z.number().openapi({ description: "Width of the range covered by bands, nm" }),
