@@ -35,7 +35,18 @@ const VARIANTS = [
  * cite those ids, so their digests are not pinned: `RUN_REFS`).
  */
 type Case = [string, string, (ids: Record<string, string>) => Record<string, unknown>];
-const RUN_REFS = new Set(["reconstructions", "forcing", "energy-balance", "composites"]);
+const RUN_REFS = new Set([
+  "reconstructions",
+  "forcing",
+  "energy-balance",
+  "composites",
+  "spectral-models",
+  "spectral-reconstructions",
+]);
+/** The demo spectral record's bands with their series ids (fixtures/demo/spectral_bands.json). */
+const SPECTRAL_BANDS = JSON.parse(
+  await Deno.readTextFile(new URL("../../fixtures/demo/spectral_bands.json", import.meta.url)),
+);
 const CASES: Case[] = [
   ["resampling", "/v1/resampling", () => ({ series: TEMP, to: "annual" })],
   ["anomalies", "/v1/anomalies", () => ({ series: TEMP, base: { start: "1961", end: "1990" } })],
@@ -121,6 +132,19 @@ const CASES: Case[] = [
   })],
   ["reconstructions", "/v1/irradiance/reconstructions", (ids) => ({
     model: ids.models,
+    sunspot_number: SSN,
+    resolution: "annual",
+    period: { start: "1700", end: "2025" },
+    proxies: [{ term: "mg_ii", series: MG }, { term: "psi", series: ids.psi }],
+  })],
+  ["spectral-models", "/v1/irradiance/spectral-models", (ids) => ({
+    tsi_model: ids.models,
+    sunspot_number: SSN,
+    proxies: [{ term: "mg_ii", series: MG }, { term: "psi", series: ids.psi }],
+    bands: SPECTRAL_BANDS,
+  })],
+  ["spectral-reconstructions", "/v1/irradiance/spectral-reconstructions", (ids) => ({
+    model: ids["spectral-models"],
     sunspot_number: SSN,
     resolution: "annual",
     period: { start: "1700", end: "2025" },
