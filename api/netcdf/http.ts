@@ -27,6 +27,8 @@ import { checkMeta, ErrorList, finish, type SeriesMetaInput } from "../ingest/no
 import type { IngestResult } from "../ingest/types.ts";
 import { SERVICE_VERSION } from "../version.ts";
 import { describePlacement } from "./cf_time_axis.ts";
+import { buildSpectrumDataset } from "./spectrum_dataset.ts";
+import type { SpectrumBlockIn } from "../analyses/common/spectrum_block.ts";
 import { listCfVariables } from "./cf_variables.ts";
 import { readCfSeries } from "./cf_series.ts";
 import { NetcdfError } from "./errors.ts";
@@ -288,6 +290,47 @@ export function runOutputNetcdfResponse(
     () => buildSeriesDataset(s, prov, { calendar, ensemble }),
     etag,
     fileName([run.id, name, calendar]),
+  );
+}
+
+/**
+ * `GET /v1/runs/{id}/spectrum?format=netcdf[&calendar=...]`: a run's spectrum over time as
+ * NetCDF-CF with a `wavelength` coordinate and `wavelength_bnds` (api/netcdf/spectrum_dataset.ts).
+ *
+ * @throws {ProblemError} 422 for a calendar that cannot hold the spectrum's resolution
+ */
+export function runSpectrumNetcdfResponse(
+  c: Context,
+  run: RunRecord,
+  s: SpectrumBlockIn,
+): Response {
+  const calendar = calendarOf(c);
+  const etag =
+    `"run-${run.id}-${run.result_digest}-spectrum-netcdf-${calendar}-${SERVICE_VERSION}"`;
+  const nm = notModified(c, etag);
+  if (nm) return nm;
+  const result = (run.result ?? {}) as Record<string, unknown>;
+  const strings = (x: unknown) => (Array.isArray(x) ? x.map(String) : []);
+  const prov: Provenance = {
+    title: `${s.name} (sunlag run ${run.id}, ${run.kind})`,
+    history: [
+      `${run.created_at}: sunlag ${run.service_version} ran ${run.kind} (algorithm ${run.algorithm_version}) as run ${run.id}`,
+      `sunlag ${SERVICE_VERSION}: spectrum written as NetCDF-CF on the ${calendar} calendar`,
+    ],
+    references: [
+      `sunlag run ${run.id}: /v1/runs/${run.id} (parameters, inputs, versions, seed, result digest); replay with POST /v1/runs/${run.id}/replay`,
+    ],
+    runId: run.id,
+    resultDigest: `sha256:${run.result_digest ?? ""}`,
+    dateCreated: run.created_at,
+    warnings: strings(result.warnings),
+    cautions: strings(result.cautions),
+  };
+  return respond(
+    c,
+    () => buildSpectrumDataset(s, prov, calendar),
+    etag,
+    fileName([run.id, "spectrum", calendar]),
   );
 }
 

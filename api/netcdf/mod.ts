@@ -33,14 +33,18 @@ export { type CfGrid, type CfGridBlock, describeCfGrid, readCfGridBlocks } from 
 export {
   buildSeriesDataset,
   CF_CONVENTIONS,
+  type CfTimeAxisVariables,
   cfVariableName,
   type EnsembleSource,
+  globalAttributes,
   type Provenance,
   type SeriesDatasetOptions,
   type SeriesLike,
   STANDING_CAUTIONS,
   TIME_REFERENCE,
+  timeAxisOf,
 } from "./series_dataset.ts";
+export { buildSpectrumDataset, SPECTRAL_IRRADIANCE_STANDARD_NAME } from "./spectrum_dataset.ts";
 export {
   CalendarQuery,
   cfTimeProblem,
@@ -49,6 +53,7 @@ export {
   NETCDF_MEDIA_TYPE,
   netcdfProblem,
   runOutputNetcdfResponse,
+  runSpectrumNetcdfResponse,
   seriesNetcdfResponse,
   wantsNetcdf,
 } from "./http.ts";

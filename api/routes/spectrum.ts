@@ -1,7 +1,8 @@
 /**
  * `GET /v1/runs/{id}/spectrum`: the spectrum over time that a run's result holds (a spectral
  * reconstruction: values and uncertainties per wavelength band and time cell), as JSON or as
- * long-form CSV (`?format=csv` or `Accept: text/csv`). Immutable like every finished run.
+ * long-form CSV (`?format=csv` or `Accept: text/csv`) or NetCDF-CF on a model calendar
+ * (`?format=netcdf&calendar=noleap`). Immutable like every finished run.
  *
  * @module
  */
@@ -18,6 +19,12 @@ import { wantsCsv } from "./format.ts";
 import { immutableHeaders, notModified } from "./cache.ts";
 import { SpectrumBlock } from "../analyses/common/spectrum_block.ts";
 import { spectrumToCsv } from "../export/spectrum_csv.ts";
+import {
+  CalendarQuery,
+  NETCDF_CONTENT,
+  runSpectrumNetcdfResponse,
+  wantsNetcdf,
+} from "../netcdf/http.ts";
 
 export function registerSpectrumRoutes(
   app: App,
@@ -29,14 +36,18 @@ export function registerSpectrumRoutes(
       method: "get",
       path: "/v1/runs/{id}/spectrum",
       tags: ["Runs"],
-      summary: "The spectrum over time of a spectral run, as JSON or long-form CSV " +
+      summary: "The spectrum over time of a spectral run, as JSON, long-form CSV " +
         "(`Accept: text/csv` or `?format=csv`: date, decimal_year, band_lower_nm, " +
-        "band_upper_nm, value, uncertainty, lower, upper)",
+        "band_upper_nm, value, uncertainty, lower, upper) or NetCDF-CF with a wavelength " +
+        "coordinate and wavelength_bnds on any model calendar (`?format=netcdf&calendar=`)",
       request: {
         params: z.object({
           id: RunIdString.openapi({ param: { name: "id", in: "path" } }),
         }),
-        query: z.object({ format: z.enum(["json", "csv"]).optional() }),
+        query: z.object({
+          format: z.enum(["json", "csv", "netcdf"]).optional(),
+          calendar: CalendarQuery,
+        }),
       },
       responses: {
         200: {
@@ -44,10 +55,11 @@ export function registerSpectrumRoutes(
           content: {
             "application/json": { schema: SpectrumBlock },
             "text/csv": { schema: z.string() },
+            ...NETCDF_CONTENT,
           },
         },
         304: { description: "Not modified" },
-        ...problems(404, 409),
+        ...problems(404, 409, 422),
       },
     }),
     // deno-lint-ignore no-explicit-any
@@ -72,6 +84,7 @@ export function registerSpectrumRoutes(
           `Run ${id} (kind ${run.kind}) has no spectrum; spectral reconstructions have one`,
         );
       }
+      if (wantsNetcdf(c)) return runSpectrumNetcdfResponse(c, run, parsed.data);
       const csv = wantsCsv(c);
       const etag = `"run-${run.id}-${run.result_digest}-spectrum-${csv ? "csv" : "json"}"`;
       const nm = notModified(c, etag, shared);

@@ -13,6 +13,40 @@ import { blackbodyBandFraction } from "../../core/irradiance/mod.ts";
 import { randomStream } from "../../core/random/mod.ts";
 
 const demoDir = new URL("../../fixtures/demo/", import.meta.url);
+
+/** Debian's python3-xarray (with netCDF4 and cftime) for reading NetCDF back. */
+const HAS_XARRAY = (() => {
+  try {
+    return new Deno.Command("/usr/bin/python3", {
+      args: ["-c", "import xarray, netCDF4, cftime"],
+      stdout: "null",
+      stderr: "null",
+    }).outputSync().success;
+  } catch {
+    return false;
+  }
+})();
+
+/** Reads a spectrum file with xarray (cftime decoding) and prints what the test compares. */
+const XARRAY_READER = `
+import json, sys, warnings
+import numpy as np, xarray as xr
+warnings.simplefilter("error", xr.SerializationWarning)
+with xr.open_dataset(sys.argv[1], use_cftime=True) as ds:
+    nan = lambda a: [[None if np.isnan(v) else float(v) for v in row] for row in np.asarray(a)]
+    print(json.dumps({
+        "dims": {k: int(v) for k, v in ds.sizes.items()},
+        "calendar": ds.time.encoding.get("calendar"),
+        "units": ds.ssi.attrs["units"],
+        "standard_name": ds.ssi.attrs.get("standard_name"),
+        "conventions": ds.attrs["Conventions"],
+        "wavelength_bounds_attr": ds.wavelength.attrs.get("bounds"),
+        "bnds": ds.wavelength_bnds.values.tolist(),
+        "ssi": nan(ds.ssi.values),
+        "unc": nan(ds.ssi_uncertainty.values),
+        "years": [d.year for d in ds.time.values],
+    }))
+`;
 const BANDS = JSON.parse(await Deno.readTextFile(new URL("spectral_bands.json", demoDir)));
 const TRUTH = JSON.parse(await Deno.readTextFile(new URL("manifest.json", demoDir))).truth;
 
@@ -204,6 +238,49 @@ Deno.test("spectral reconstruction back to 1700: bands, integrals, the TSI compa
     assert.deepEqual(json.bands, s.bands);
     const none = await svc.get(`/v1/runs/${spectral.id}/spectrum`);
     await assertProblem(none, 404);
+  });
+  await t.step("the spectrum as NetCDF-CF on a model calendar, read back by xarray", async (t) => {
+    const res = await svc.get(`/v1/runs/${rec.id}/spectrum?format=netcdf&calendar=noleap`);
+    assert.equal(res.status, 200, await res.clone().text());
+    const bytes = new Uint8Array(await res.arrayBuffer());
+    if (!HAS_XARRAY) {
+      if (Deno.env.get("CI")) assert.fail("python3-xarray is missing on CI");
+      console.warn("spectral NetCDF read-back skipped: /usr/bin/python3 lacks xarray");
+      return;
+    }
+    const dir = await Deno.makeTempDir({ prefix: "sunlag-ssi-" });
+    try {
+      await Deno.writeFile(`${dir}/ssi.nc`, bytes);
+      const out = await new Deno.Command("/usr/bin/python3", {
+        args: ["-c", XARRAY_READER, `${dir}/ssi.nc`],
+      }).output();
+      assert.ok(out.success, new TextDecoder().decode(out.stderr));
+      const x = JSON.parse(new TextDecoder().decode(out.stdout));
+      await t.step("dimensions, calendar, units and CF names", () => {
+        assert.deepEqual(x.dims, { time: 326, wavelength: 32, bnds: 2 });
+        assert.equal(x.calendar, "noleap");
+        assert.equal(x.units, "W m-2 nm-1");
+        assert.equal(x.standard_name, "solar_irradiance_per_unit_wavelength");
+        assert.equal(x.conventions, "CF-1.10");
+        assert.equal(x.wavelength_bounds_attr, "wavelength_bnds");
+      });
+      await t.step("the same band bounds, values and uncertainties", () => {
+        assert.deepEqual(
+          x.bnds,
+          s.bands.map((b: { lower: number; upper: number }) => [b.lower, b.upper]),
+        );
+        for (let b = 0; b < 32; b++) {
+          for (let i = 0; i < 326; i++) {
+            assert.equal(x.ssi[i][b], s.value[b][i]);
+            assert.equal(x.unc[i][b], s.uncertainty[b][i]);
+          }
+        }
+        // annual means keep their years on noleap: 1700 … 2025
+        assert.deepEqual([x.years[0], x.years[325]], [1700, 2025]);
+      });
+    } finally {
+      await Deno.remove(dir, { recursive: true });
+    }
   });
   await t.step(
     "charts: bands over time, the variability view, an unknown view refused",

@@ -1,7 +1,7 @@
 /**
  * A spectrum over time in a result: values and standard uncertainties per wavelength band and
- * time cell, with the band bounds and units, served as JSON, as long-form CSV and (with the
- * NetCDF layer) as NetCDF-CF by `GET /v1/runs/{id}/spectrum`.
+ * time cell, with the band bounds and units, served as JSON, as long-form CSV and as
+ * NetCDF-CF (api/netcdf/spectrum_dataset.ts) by `GET /v1/runs/{id}/spectrum`.
  *
  * @module
  */

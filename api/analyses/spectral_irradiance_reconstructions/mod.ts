@@ -27,7 +27,8 @@ export const spectralIrradianceReconstructions = defineAnalysis({
     "of a range without a band are left out and reported. The integral is compared cell by " +
     "cell with the TSI reconstruction of the same proxies (the difference and its uncertainty " +
     "from both models' coefficients), with the spectral coverage stated. The spectrum is " +
-    "served per band by GET /v1/runs/{id}/spectrum as JSON or long-form CSV. Uncertainty is " +
+    "served per band by GET /v1/runs/{id}/spectrum as JSON, long-form CSV or NetCDF-CF (a " +
+    "wavelength coordinate with wavelength_bnds, on any model calendar). Uncertainty is " +
     "analytic (no ensemble of realisations yet).",
   request: SpectralReconstructionRequest,
   result: SpectralReconstructionResult,
