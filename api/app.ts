@@ -22,6 +22,7 @@ import { registerMetaRoutes } from "./routes/meta.ts";
 import { registerMetricsRoutes, ServiceMetrics } from "./routes/metrics.ts";
 import { registerRunRoutes } from "./routes/runs.ts";
 import { registerSpectrumRoutes } from "./routes/spectrum.ts";
+import { registerSpectralUploadRoutes } from "./routes/spectral_upload.ts";
 import { registerChartRoutes } from "./routes/charts.ts";
 import { registerKindRoutes } from "./routes/kinds.ts";
 import { registerSeriesRoutes } from "./routes/series.ts";
@@ -163,6 +164,7 @@ export function createService(deps: AppDeps): Service {
   registerMetricsRoutes(app, metrics);
   registerUiRoutes(app);
   const uploads = new UploadPool(config.ingestWorkers);
+  registerSpectralUploadRoutes(app, { store, config });
   registerSeriesRoutes(app, { store, config, uploads });
   registerRunRoutes(app, { store, runs, config });
   registerSpectrumRoutes(app, { store, config });
