@@ -88,42 +88,109 @@ export function reconstructFromProxies(
   cells: ReconstructionCells,
   z: number,
 ): Reconstruction {
-  const K = model.terms.length;
+  return reconstructFromProxiesMany([model], cells, [z])[0];
+}
+
+/**
+ * {@link reconstructFromProxies} for several models on the same terms (the bands of a spectral
+ * model, and their integrals), over the same cells: each cell's regressors, mapped-proxy
+ * variances and source are formed once and applied to every model, and the AR(1) factor of
+ * each distinct cell length is computed once per model. Each result equals what
+ * {@link reconstructFromProxies} gives for that model alone, bit for bit.
+ *
+ * @param models the models: same term roles, quiet levels and S_ref
+ * @param cells {@link ReconstructionCells}
+ * @param z per model, the quantile for its interval
+ * @returns one {@link Reconstruction} per model
+ * @throws {InputError} as {@link reconstructFromProxies}; (field `models`) when the models'
+ *   terms differ, (field `z`) when there is not one quantile per model
+ * @example
+ * ```ts
+ * import { reconstructFromProxiesMany } from "./proxy_reconstruction.ts";
+ * import assert from "node:assert/strict";
+ * const band = (c: number, a: number) => ({
+ *   coefficients: [c, a], covariance: [[1e-6, 0], [0, 1e-2]],
+ *   terms: [{ role: "facular" as const, quietLevel: 0.15 }], psiReference: 1360.8,
+ *   residualSd: 0.01, rho: 0.5, stepDays: 1, backExtension: null,
+ * });
+ * const [uv, vis] = reconstructFromProxiesMany([band(0.5, 20), band(1.8, 2)],
+ *   { days: Float64Array.of(31), direct: [Float64Array.of(0.16)], mapped: [null] }, [1.96, 1.96]);
+ * assert.ok(Math.abs(uv.value[0] - 0.7) < 1e-12 && Math.abs(vis.value[0] - 1.82) < 1e-12);
+ * ```
+ */
+export function reconstructFromProxiesMany(
+  models: readonly ReconstructionModel[],
+  cells: ReconstructionCells,
+  z: readonly number[],
+): Reconstruction[] {
+  if (models.length === 0) return [];
+  const first = models[0];
+  const K = first.terms.length;
   if (cells.direct.length !== K || cells.mapped.length !== K) {
     throw new InputError(
       `Cannot reconstruct: model has ${K} terms, cells have ${cells.direct.length}`,
       { field: "cells", reason: "length_mismatch", value: cells.direct.length },
     );
   }
-  if (model.coefficients.length !== K + 1) {
-    throw new InputError("Cannot reconstruct: coefficients do not match the terms", {
-      field: "model",
+  if (z.length !== models.length) {
+    throw new InputError(`Cannot reconstruct: ${z.length} quantiles for ${models.length} models`, {
+      field: "z",
       reason: "length_mismatch",
-      value: model.coefficients.length,
+      value: z.length,
     });
   }
-  const n = cells.days.length;
-  const beta = model.coefficients, S = model.covariance;
-  const scale = model.terms.map((t) => proxyRegressorScale(t.role, model.psiReference));
-  const value = new Float64Array(n), sd = new Float64Array(n);
-  const lower = new Float64Array(n), upper = new Float64Array(n);
-  const source = new Uint8Array(n);
-  const x = new Float64Array(K + 1);
-  const stepDays = model.stepDays, be = model.backExtension;
-  // the AR(1) factor per distinct cell length (daily/monthly/annual cells have few lengths)
-  const caches = [new Map<number, number>(), new Map<number, number>()];
-  const residVar = (which: 0 | 1, days: number, sdr: number, rho: number, step: number) => {
-    let f = caches[which].get(days);
-    if (f === undefined) {
-      const m = Math.max(1, days / step);
-      f = ar1MeanVarianceFactor(m, rho) / m;
-      caches[which].set(days, f);
+  models.forEach((model, j) => {
+    if (model.coefficients.length !== K + 1) {
+      throw new InputError("Cannot reconstruct: coefficients do not match the terms", {
+        field: "model",
+        reason: "length_mismatch",
+        value: model.coefficients.length,
+      });
     }
-    return sdr * sdr * f;
-  };
+    const same = model.psiReference === first.psiReference && model.terms.length === K &&
+      model.terms.every((t, k) =>
+        t.role === first.terms[k].role && t.quietLevel === first.terms[k].quietLevel
+      );
+    if (!same) {
+      throw new InputError(
+        `Cannot reconstruct together: model ${j} has other terms than model 0`,
+        { field: "models", reason: "invalid", index: j },
+      );
+    }
+  });
+  const n = cells.days.length, M = models.length;
+  const scale = first.terms.map((t) => proxyRegressorScale(t.role, first.psiReference));
+  const out: Reconstruction[] = models.map(() => ({
+    value: new Float64Array(n),
+    sd: new Float64Array(n),
+    lower: new Float64Array(n),
+    upper: new Float64Array(n),
+    source: new Uint8Array(n),
+  }));
+  // the AR(1) variance factor of each distinct cell length, per model and process
+  const lengths = new Map<number, number>();
+  const lengthIndex = new Int32Array(n);
+  for (let i = 0; i < n; i++) {
+    let k = lengths.get(cells.days[i]);
+    if (k === undefined) lengths.set(cells.days[i], (k = lengths.size));
+    lengthIndex[i] = k;
+  }
+  const residVar = (sdr: number, rho: number, step: number) =>
+    Float64Array.from(lengths.keys(), (days) => {
+      const m = Math.max(1, days / step);
+      return sdr * sdr * (ar1MeanVarianceFactor(m, rho) / m);
+    });
+  const direct = models.map((m) => residVar(m.residualSd, m.rho, m.stepDays));
+  const back = models.map((m) =>
+    m.backExtension
+      ? residVar(m.backExtension.residualSd, m.backExtension.rho, m.backExtension.stepDays)
+      : null
+  );
+  const x = new Float64Array(K + 1);
+  const mappedAt = new Int32Array(K), mappedV = new Float64Array(K);
   for (let i = 0; i < n; i++) {
     x[0] = 1;
-    let mappedVar = 0, anyMapped = false, ok = true;
+    let nMapped = 0, ok = true;
     for (let k = 0; k < K; k++) {
       let v = cells.direct[k][i];
       if (!Number.isFinite(v)) {
@@ -133,41 +200,45 @@ export function reconstructFromProxies(
           break;
         }
         v = m.value[i];
-        anyMapped = true;
-        const s = scale[k];
-        mappedVar += (beta[k + 1] * beta[k + 1] + S[k + 1][k + 1]) * s * s * m.paramVariance[i];
+        mappedAt[nMapped] = k;
+        mappedV[nMapped++] = m.paramVariance[i];
       }
-      const t = model.terms[k];
-      x[k + 1] = proxyRegressor(t.role, t.quietLevel, model.psiReference, v);
+      const t = first.terms[k];
+      x[k + 1] = proxyRegressor(t.role, t.quietLevel, first.psiReference, v);
     }
-    if (!ok || (anyMapped && !be)) {
-      value[i] =
-        sd[i] =
-        lower[i] =
-        upper[i] =
-          NaN;
-      source[i] = SOURCE_NONE;
-      continue;
+    const anyMapped = nMapped > 0;
+    for (let j = 0; j < M; j++) {
+      const r = out[j], model = models[j];
+      if (!ok || (anyMapped && !back[j])) {
+        r.value[i] = r.sd[i] = r.lower[i] = r.upper[i] = NaN;
+        r.source[i] = SOURCE_NONE;
+        continue;
+      }
+      const beta = model.coefficients, S = model.covariance;
+      let mappedVar = 0;
+      for (let u = 0; u < nMapped; u++) {
+        const k = mappedAt[u];
+        const sk = scale[k]; // (β² + Σ_kk)·s·s·v, in the one-model order of operations
+        mappedVar += (beta[k + 1] * beta[k + 1] + S[k + 1][k + 1]) * sk * sk * mappedV[u];
+      }
+      let y = 0, q = 0;
+      for (let a = 0; a <= K; a++) {
+        y += beta[a] * x[a];
+        const Sa = S[a];
+        let s = 0;
+        for (let b = 0; b <= K; b++) s += Sa[b] * x[b];
+        q += x[a] * s;
+      }
+      const rv = anyMapped ? back[j]![lengthIndex[i]] : direct[j][lengthIndex[i]];
+      const sd = Math.sqrt(Math.max(0, q) + mappedVar + rv);
+      r.value[i] = y;
+      r.sd[i] = sd;
+      r.lower[i] = y - z[j] * sd;
+      r.upper[i] = y + z[j] * sd;
+      r.source[i] = anyMapped ? SOURCE_BACK_EXTENDED : SOURCE_DIRECT;
     }
-    let y = 0, q = 0;
-    for (let a = 0; a <= K; a++) {
-      y += beta[a] * x[a];
-      const Sa = S[a];
-      let r = 0;
-      for (let b = 0; b <= K; b++) r += Sa[b] * x[b];
-      q += x[a] * r;
-    }
-    const rv = anyMapped
-      ? residVar(1, cells.days[i], be!.residualSd, be!.rho, be!.stepDays)
-      : residVar(0, cells.days[i], model.residualSd, model.rho, stepDays);
-    const s = Math.sqrt(Math.max(0, q) + mappedVar + rv);
-    value[i] = y;
-    sd[i] = s;
-    lower[i] = y - z * s;
-    upper[i] = y + z * s;
-    source[i] = anyMapped ? SOURCE_BACK_EXTENDED : SOURCE_DIRECT;
   }
-  return { value, sd, lower, upper, source };
+  return out;
 }
 
 /** Names of the source codes, in code order. */

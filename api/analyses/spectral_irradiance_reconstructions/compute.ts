@@ -18,6 +18,7 @@ import {
   integrateBandModels,
   predictionQuantile,
   reconstructFromProxies,
+  reconstructFromProxiesMany,
   type Reconstruction,
   type ReconstructionCells,
   reconstructionCoverage,
@@ -81,12 +82,10 @@ export function computeSpectralReconstruction(
     direct,
     mapped: mappedProxies(model.tsi, sunspot, cells.keys.length),
   };
-  const bands = model.models.map((m, b) =>
-    reconstructFromProxies(
-      m,
-      input,
-      predictionQuantile(params.level, model.stored.bands[b].df_residual),
-    )
+  const bands = reconstructFromProxiesMany(
+    model.models,
+    input,
+    model.stored.bands.map((b) => predictionQuantile(params.level, b.df_residual)),
   );
   const tsi = reconstructFromProxies(
     reconstructionModel(model.tsi),
