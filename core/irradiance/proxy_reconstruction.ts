@@ -172,7 +172,7 @@ export function reconstructFromProxiesMany(
   const lengthIndex = new Int32Array(n);
   for (let i = 0; i < n; i++) {
     let k = lengths.get(cells.days[i]);
-    if (k === undefined) lengths.set(cells.days[i], (k = lengths.size));
+    if (k === undefined) lengths.set(cells.days[i], k = lengths.size);
     lengthIndex[i] = k;
   }
   const residVar = (sdr: number, rho: number, step: number) =>
@@ -210,7 +210,11 @@ export function reconstructFromProxiesMany(
     for (let j = 0; j < M; j++) {
       const r = out[j], model = models[j];
       if (!ok || (anyMapped && !back[j])) {
-        r.value[i] = r.sd[i] = r.lower[i] = r.upper[i] = NaN;
+        r.value[i] =
+          r.sd[i] =
+          r.lower[i] =
+          r.upper[i] =
+            NaN;
         r.source[i] = SOURCE_NONE;
         continue;
       }
