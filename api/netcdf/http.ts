@@ -229,6 +229,27 @@ export async function seriesNetcdfResponse(
   );
 }
 
+/** The provenance of a file written from a run's result (`what` names the part written). */
+function runProvenance(run: RunRecord, title: string, what: string, calendar: string): Provenance {
+  const result = (run.result ?? {}) as Record<string, unknown>;
+  const strings = (x: unknown) => (Array.isArray(x) ? x.map(String) : []);
+  return {
+    title: `${title} (sunlag run ${run.id}, ${run.kind})`,
+    history: [
+      `${run.created_at}: sunlag ${run.service_version} ran ${run.kind} (algorithm ${run.algorithm_version}) as run ${run.id}`,
+      `sunlag ${SERVICE_VERSION}: ${what} written as NetCDF-CF on the ${calendar} calendar`,
+    ],
+    references: [
+      `sunlag run ${run.id}: /v1/runs/${run.id} (parameters, inputs, versions, seed, result digest); replay with POST /v1/runs/${run.id}/replay`,
+    ],
+    runId: run.id,
+    resultDigest: `sha256:${run.result_digest ?? ""}`,
+    dateCreated: run.created_at,
+    warnings: strings(result.warnings),
+    cautions: strings(result.cautions),
+  };
+}
+
 /**
  * `GET /v1/runs/{id}/outputs/{name}?format=netcdf[&calendar=...]`: one output as NetCDF-CF,
  * with the run's id, result digest, warnings and cautions in the global attributes. An
@@ -256,23 +277,7 @@ export function runOutputNetcdfResponse(
   const etag = `"run-${run.id}-${run.result_digest}-${name}-netcdf-${calendar}-${SERVICE_VERSION}"`;
   const nm = notModified(c, etag);
   if (nm) return nm;
-  const result = (run.result ?? {}) as Record<string, unknown>;
-  const strings = (x: unknown) => (Array.isArray(x) ? x.map(String) : []);
-  const prov: Provenance = {
-    title: `${o.name} (sunlag run ${run.id}, ${run.kind})`,
-    history: [
-      `${run.created_at}: sunlag ${run.service_version} ran ${run.kind} (algorithm ${run.algorithm_version}) as run ${run.id}`,
-      `sunlag ${SERVICE_VERSION}: output "${name}" written as NetCDF-CF on the ${calendar} calendar`,
-    ],
-    references: [
-      `sunlag run ${run.id}: /v1/runs/${run.id} (parameters, inputs, versions, seed, result digest); replay with POST /v1/runs/${run.id}/replay`,
-    ],
-    runId: run.id,
-    resultDigest: `sha256:${run.result_digest ?? ""}`,
-    dateCreated: run.created_at,
-    warnings: strings(result.warnings),
-    cautions: strings(result.cautions),
-  };
+  const prov = runProvenance(run, o.name, `output "${name}"`, calendar);
   const s: SeriesLike = {
     name: o.name,
     quantity: o.quantity,
@@ -309,23 +314,7 @@ export function runSpectrumNetcdfResponse(
     `"run-${run.id}-${run.result_digest}-spectrum-netcdf-${calendar}-${SERVICE_VERSION}"`;
   const nm = notModified(c, etag);
   if (nm) return nm;
-  const result = (run.result ?? {}) as Record<string, unknown>;
-  const strings = (x: unknown) => (Array.isArray(x) ? x.map(String) : []);
-  const prov: Provenance = {
-    title: `${s.name} (sunlag run ${run.id}, ${run.kind})`,
-    history: [
-      `${run.created_at}: sunlag ${run.service_version} ran ${run.kind} (algorithm ${run.algorithm_version}) as run ${run.id}`,
-      `sunlag ${SERVICE_VERSION}: spectrum written as NetCDF-CF on the ${calendar} calendar`,
-    ],
-    references: [
-      `sunlag run ${run.id}: /v1/runs/${run.id} (parameters, inputs, versions, seed, result digest); replay with POST /v1/runs/${run.id}/replay`,
-    ],
-    runId: run.id,
-    resultDigest: `sha256:${run.result_digest ?? ""}`,
-    dateCreated: run.created_at,
-    warnings: strings(result.warnings),
-    cautions: strings(result.cautions),
-  };
+  const prov = runProvenance(run, s.name, "spectrum", calendar);
   return respond(
     c,
     () => buildSpectrumDataset(s, prov, calendar),
@@ -355,11 +344,16 @@ export const VariableQuery = z.string().min(1).max(200).optional().openapi({
   example: "tsi",
 });
 
-function candidates(src: NetcdfSource): string[] {
+/**
+ * Data variables along a CF time coordinate with `others` more dimensions longer than 1 (0
+ * for series, 1 for spectral records), uncertainty variables left out.
+ */
+export function timeDataVariables(src: NetcdfSource, others: 0 | 1 = 0): string[] {
   return listCfVariables(src.header)
     .filter((v) =>
       v.role === "data" && v.time_dimension !== null &&
-      v.shape.filter((n, i) => n !== 1 || v.dimensions[i] === v.time_dimension).length === 1 &&
+      v.shape.filter((n, i) => n !== 1 && v.dimensions[i] !== v.time_dimension).length ===
+        others &&
       !/standard_error$/.test(v.standard_name ?? "")
     )
     .map((v) => v.name);
@@ -404,7 +398,7 @@ export async function ingestNetcdfUpload(c: Context, limitBytes: number): Promis
         withNetcdf(path, async (src) => {
           let name = q.variable;
           if (name === undefined) {
-            const found = candidates(src);
+            const found = timeDataVariables(src);
             if (found.length !== 1) {
               throw new ProblemError(
                 "validation",

@@ -16,10 +16,9 @@ import { checkMeta, ErrorList, finish, type SeriesMetaInput } from "../ingest/no
 import type { NormalisedSeries } from "../ingest/types.ts";
 import { readCfSpectrum } from "./cf_spectrum.ts";
 import { describePlacement } from "./cf_time_axis.ts";
-import { listCfVariables } from "./cf_variables.ts";
 import { NetcdfError } from "./errors.ts";
 import { withNetcdf, withTempUpload } from "./open.ts";
-import { netcdfProblem } from "./http.ts";
+import { netcdfProblem, timeDataVariables } from "./http.ts";
 import type { NetcdfSource } from "./source.ts";
 
 /** Query of a spectral record upload. */
@@ -39,17 +38,6 @@ export const SpectralUploadQuery = z.object({
 export interface SpectralUploadOutcome {
   bands: { lower: number; upper: number; series: NormalisedSeries }[];
   report: Record<string, unknown>;
-}
-
-/** Variables with a time dimension and exactly one other dimension longer than 1. */
-function candidates(src: NetcdfSource): string[] {
-  return listCfVariables(src.header)
-    .filter((v) =>
-      v.role === "data" && v.time_dimension !== null &&
-      v.shape.filter((n, i) => n !== 1 && v.dimensions[i] !== v.time_dimension).length === 1 &&
-      !/standard_error$/.test(v.standard_name ?? "")
-    )
-    .map((v) => v.name);
 }
 
 /** The quantity band series of these units are. */
@@ -165,7 +153,7 @@ export async function ingestSpectralUpload(
 
 /** The only (time, wavelength) variable of a file, or a 422 listing them. */
 function onlyCandidate(src: NetcdfSource): string {
-  const found = candidates(src);
+  const found = timeDataVariables(src, 1);
   if (found.length === 1) return found[0];
   throw new ProblemError(
     "validation",

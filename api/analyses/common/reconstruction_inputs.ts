@@ -13,6 +13,7 @@ import {
   evaluateSunspotMapping,
   type Reconstruction,
   type ReconstructionCells,
+  type ReconstructionCoverage,
   type ReconstructionModel,
   SOURCE_BACK_EXTENDED,
 } from "../../../core/irradiance/mod.ts";
@@ -232,6 +233,16 @@ export function reconstructionModel(stored: StoredProxyModel): ReconstructionMod
     rho: m.rho,
     stepDays: m.step_days,
     backExtension: be ? { residualSd: be.residual_sd, rho: be.rho, stepDays: be.step_days } : null,
+  };
+}
+
+/** Where a reconstruction's values come from, as results store it. */
+export function coverageJson(c: ReconstructionCoverage) {
+  return {
+    cells: c.cells,
+    direct: c.direct,
+    back_extended: c.backExtended,
+    missing: c.missing,
   };
 }
 

@@ -29,6 +29,7 @@ import {
   quietSunWarning,
 } from "../common/irradiance_notes.ts";
 import {
+  coverageJson,
   coverageWarnings,
   directProxies,
   extrapolationWarnings,
@@ -102,12 +103,7 @@ export function computeReconstruction(
     normal_quantile: normalQuantile(1 - (1 - params.level) / 2),
     scenario,
     sunspot_conversion: sunspot?.conversion ?? null,
-    coverage: {
-      cells: coverage.cells,
-      direct: coverage.direct,
-      back_extended: coverage.backExtended,
-      missing: coverage.missing,
-    },
+    coverage: coverageJson(coverage),
     source_segments: coverage.segments,
     cycle_amplitude: cycleAmplitudeJson(amp),
     outputs: { tsi: tsiOutput(params, cells, rec, scenario.label) },

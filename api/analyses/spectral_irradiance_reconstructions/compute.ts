@@ -27,6 +27,7 @@ import {
   type WavelengthBand,
 } from "../../../core/irradiance/mod.ts";
 import {
+  coverageJson,
   coverageWarnings,
   directProxies,
   extrapolationWarnings,
@@ -115,12 +116,7 @@ export function computeSpectralReconstruction(
     period: cells.span,
     level: params.level,
     sunspot_conversion: sunspot?.conversion ?? null,
-    coverage: {
-      cells: coverage.cells,
-      direct: coverage.direct,
-      back_extended: coverage.backExtended,
-      missing: coverage.missing,
-    },
+    coverage: coverageJson(coverage),
     source_segments: coverage.segments,
     spectrum: spectrumBlock(params, model, cells, bands),
     ranges: integral?.ranges.map((r) => r.json) ?? [],
