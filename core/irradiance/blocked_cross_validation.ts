@@ -6,6 +6,9 @@
 import { InputError } from "../errors.ts";
 import type { RegressionFit } from "../stats/ordinary_least_squares.ts";
 
+/** What cross-validation reads of a fit: its coefficients, and whether the first is an intercept. */
+export type CrossValidationFit = Pick<RegressionFit, "coefficients" | "intercept">;
+
 /** Result of {@link blockedCrossValidation}. */
 export interface BlockedCrossValidation {
   folds: number;
@@ -44,7 +47,7 @@ export function blockedCrossValidation(
   columns: readonly Float64Array[],
   y: Float64Array,
   k: number,
-  fit: (columns: Float64Array[], y: Float64Array) => RegressionFit,
+  fit: (columns: Float64Array[], y: Float64Array) => CrossValidationFit,
 ): BlockedCrossValidation {
   return blockedCrossValidationMany(columns, [y], k, (c, ys) => [fit(c, ys[0])])[0];
 }
@@ -59,7 +62,8 @@ export function blockedCrossValidation(
  * @param columns regressors (without intercept), time-ordered
  * @param ys responses, each of the columns' length
  * @param k number of folds, 2 ≤ k ≤ n/2
- * @param fitMany fits every response on the training rows, in order
+ * @param fitMany fits every response on the training rows, in order (only the coefficients
+ *   are read: a fitter may skip the fit statistics)
  * @returns one {@link BlockedCrossValidation} per response
  * @throws {InputError} when k is out of range; errors of `fitMany` propagate
  * @example
@@ -78,7 +82,7 @@ export function blockedCrossValidationMany(
   columns: readonly Float64Array[],
   ys: readonly Float64Array[],
   k: number,
-  fitMany: (columns: Float64Array[], ys: Float64Array[]) => RegressionFit[],
+  fitMany: (columns: Float64Array[], ys: Float64Array[]) => CrossValidationFit[],
 ): BlockedCrossValidation[] {
   const n = ys[0]?.length ?? 0;
   if (!Number.isInteger(k) || k < 2 || k > Math.floor(n / 2)) {

@@ -28,6 +28,7 @@
 import { EigenvalueDecomposition, Matrix } from "ml-matrix";
 import { InputError } from "../errors.ts";
 import { ordinaryLeastSquaresMany } from "../stats/ordinary_least_squares.ts";
+import { leastSquaresQrMany } from "../stats/least_squares_qr.ts";
 import {
   type ResidualCrossCorrelation,
   residualCrossCorrelation,
@@ -157,13 +158,16 @@ export function calibrateBandModels(
 
 /** OLS fits of every band on the one design, and their cross-validation, factorised once. */
 function sharedOlsFits(design: ProxyDesign, ys: Float64Array[], folds: number): ProxyModelFit[] {
-  const many = (c: Float64Array[], y: Float64Array[]) =>
-    ordinaryLeastSquaresMany(c, y, { names: design.names });
+  // the folds need only coefficients: one factorisation per fold, no fit statistics
+  const coefficientsOnly = (c: Float64Array[], y: Float64Array[]) =>
+    leastSquaresQrMany([new Float64Array(y[0].length).fill(1), ...c], y).coefficients.map(
+      (coefficients) => ({ coefficients, intercept: true }),
+    );
   const n = ys[0].length;
   const cv = folds > 0 && Math.floor(n / 2) >= folds
-    ? blockedCrossValidationMany(design.columns, ys, folds, many)
+    ? blockedCrossValidationMany(design.columns, ys, folds, coefficientsOnly)
     : null;
-  return many(design.columns, ys).map((fit, b) =>
+  return ordinaryLeastSquaresMany(design.columns, ys, { names: design.names }).map((fit, b) =>
     proxyModelFit(design, "ols", fit, cv ? cv[b] : null, ys[b])
   );
 }
