@@ -135,9 +135,8 @@ export function computeSpectralReconstruction(
     ],
     cautions: [
       PRE_SATELLITE_CAUTION,
-      "Each band's sensitivities come from the spectral record's short span; before it, and before 1978, the bands are more model-dependent than TSI.",
-      "An integral over bands is not TSI unless they cover the whole spectrum; nothing outside the bands is invented.",
-      "Uncertainty is analytic per band (no ensemble of realisations yet); integrals include the correlation of the bands' errors.",
+      "A sum over bands is not TSI unless they cover the whole spectrum; nothing outside the bands is invented.",
+      "Band sensitivities come from a short spectral record, so bands are more model-dependent back in time than TSI; uncertainty is analytic (no ensemble yet), integrals include the bands' error correlation.",
       ASSESSMENT_CAUTION,
     ],
   };
