@@ -47,6 +47,12 @@ export interface AttributionOptions {
   level?: number;
   /** Largest number of lag combinations searched exhaustively. @default 1000 */
   exhaustiveLimit?: number;
+  /**
+   * Index in y of the first fitted observation. @default the largest candidate lag (the
+   * common sample of every lag combination). A later start keeps the sample of another search
+   * whose lag ranges were wider (so AIC and p-values stay comparable with it).
+   */
+  firstIndex?: number;
 }
 
 /** Per-coefficient result. */
@@ -193,13 +199,22 @@ function searchLagsByAic(
       });
     }
   }
-  const first = maxLag, n = y.length - maxLag;
+  const first = options.firstIndex ?? maxLag;
+  if (!Number.isInteger(first) || first < maxLag || first >= y.length) {
+    throw new InputError(
+      `Cannot ${fn}: firstIndex must be an integer from the largest lag ${maxLag} to ${
+        y.length - 1
+      }, got ${first}`,
+      { field: "firstIndex", reason: "out_of_range", value: first },
+    );
+  }
+  const n = y.length - first;
   const p = regressors.length + 1;
   if (n < 10 * p) {
     throw new InputError(
       `Cannot ${fn}: ${p} coefficients need at least ${
         10 * p
-      } observations (10 per coefficient) after the largest lag ${maxLag}, got ${n}`,
+      } observations (10 per coefficient) after the first fitted index ${first}, got ${n}`,
       { field: "y", reason: "too_few_points", value: n },
     );
   }

@@ -5,13 +5,16 @@
  *
  * Choosing the lag that fits best (here by AIC, attribution_regression.ts) and then testing
  * the coefficient at that lag as if it had been fixed overstates significance: under the null,
- * the best of many lags looks better than a fixed one. The surrogate test repeats the whole
- * search on each surrogate (same lag ranges for every regressor, same sample, same error
+ * the best of many lags looks better than a fixed one. The surrogate test repeats the search
+ * on each surrogate (the regressors' lag ranges as given, the same sample, the same error
  * model) and compares the observed p-value with the surrogates' p-values at their own chosen
- * lags: p = (1 + #{surrogates with p* ≤ p}) / (1 + M) (Davison & Hinkley 1997, Bootstrap
- * Methods and their Application, eq. 4.11; Phipson & Smyth 2010, Stat. Appl. Genet. Mol. Biol.
- * 9, 39). The surrogates keep the regressor's autocorrelation (its amplitude spectrum), so the
- * test also pays for the autocorrelation a t test with AR(1) errors may miss.
+ * lags. Given the other regressors at their chosen lags as fixed ranges (and `firstIndex` to
+ * keep the sample), only the tested regressor's lag is searched again: the search whose cost
+ * the test pays for, at one fit per lag per surrogate. The p-value is
+ * p = (1 + #{surrogates with p* ≤ p}) / (1 + M) (Davison & Hinkley 1997, Bootstrap Methods
+ * and their Application, eq. 4.11; Phipson & Smyth 2010, Stat. Appl. Genet. Mol. Biol. 9, 39).
+ * The surrogates keep the regressor's autocorrelation (its amplitude spectrum), so the test
+ * also pays for the autocorrelation a t test with AR(1) errors may miss.
  *
  * Work split as in surrogate_lag_test.ts: surrogate i draws from `randomStream(seed, i)`, so a
  * chunk of indices can run on any worker and {@link combineLagSearchChunks} gives the same
@@ -35,7 +38,7 @@ export interface LagSearchTestPlan {
   regressors: AttributionRegressor[];
   /** Index of the tested regressor in `regressors`. */
   tested: number;
-  options: Pick<AttributionOptions, "errors" | "hacLags" | "exhaustiveLimit">;
+  options: Pick<AttributionOptions, "errors" | "hacLags" | "exhaustiveLimit" | "firstIndex">;
   seed: number;
   /** DFT amplitudes of the tested regressor (its surrogates' spectrum). */
   amplitudes: Float64Array;
@@ -108,6 +111,7 @@ export function planLagSearchTest(
       errors: options.errors,
       hacLags: options.hacLags,
       exhaustiveLimit: options.exhaustiveLimit,
+      firstIndex: options.firstIndex,
     },
     seed,
     amplitudes: dftAmplitudes(x),
