@@ -29,7 +29,7 @@ import { solarCautions } from "../common/cautions.ts";
 import {
   annualCycleLeft,
   deseasonalisedQuantity,
-  seasonalAdjustment,
+  seasonalAxis,
   type SeasonalInput,
 } from "../common/seasonal_cycle.ts";
 import { LAG_SEARCH_CHUNK } from "./tasks.ts";
@@ -349,14 +349,7 @@ export async function computeAttributions(
       quantity: series[k].quantity,
     })),
   ];
-  const seasonal = seasonalAdjustment(
-    onAxis.resolution,
-    onAxis.time,
-    onAxis.values,
-    labels,
-    p.deseasonalise,
-  );
-  const axis = { ...onAxis, values: seasonal.values };
+  const { axis, seasonal } = seasonalAxis(onAxis, labels, p.deseasonalise);
   const seasonalLeft = annualCycleLeft(axis.resolution, axis.time, axis.values, labels);
   checkSample(p, axis);
   const regressors = coreRegressors(p, axis);

@@ -186,6 +186,20 @@ export function seasonalAdjustment(
 }
 
 /**
+ * {@link seasonalAdjustment} on a common analysis axis: the same axis with the adjusted values.
+ *
+ * @param axis the axis (its resolution, period middles and one value array per input)
+ * @param inputs what each value array is
+ * @param requested the request's `deseasonalise`
+ */
+export function seasonalAxis<
+  A extends { resolution: "monthly" | "annual"; time: Float64Array; values: Float64Array[] },
+>(axis: A, inputs: SeasonalInput[], requested: boolean | undefined) {
+  const seasonal = seasonalAdjustment(axis.resolution, axis.time, axis.values, inputs, requested);
+  return { axis: { ...axis, values: seasonal.values } as A, seasonal };
+}
+
+/**
  * The inputs that still carry a strong annual cycle as analysed (after the seasonal step and
  * any preprocessing), by their `input` label; empty on an annual axis.
  */

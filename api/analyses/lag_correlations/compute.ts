@@ -24,7 +24,7 @@ import { solarCautions } from "../common/cautions.ts";
 import {
   annualCycleLeft,
   deseasonalisedQuantity,
-  seasonalAdjustment,
+  seasonalAxis,
   type SeasonalInput,
 } from "../common/seasonal_cycle.ts";
 import { type FieldPointers, withInputPointers } from "../common/input_problem.ts";
@@ -247,14 +247,7 @@ export async function computeLagCorrelations(
     { input: "solar", name: solar.name, quantity: solar.quantity },
     { input: "climate", name: climate.name, quantity: climate.quantity },
   ];
-  const seasonal = seasonalAdjustment(
-    onAxis.resolution,
-    onAxis.time,
-    onAxis.values,
-    labels,
-    p.deseasonalise,
-  );
-  const axis = { ...onAxis, values: seasonal.values };
+  const { axis, seasonal } = seasonalAxis(onAxis, labels, p.deseasonalise);
   const deseasonalised = seasonal.json.deseasonalise;
   const window = lagWindow(p, axis);
   const series = preprocessed(p, axis, deseasonalised);
