@@ -1,7 +1,8 @@
 /**
  * A p-value for a regression coefficient whose lag was chosen by searching: a Monte Carlo over
  * the same search with phase-randomised surrogates of the tested regressor (Ebisuzaki 1997,
- * J. Climate 10, 2147), and the Šidák bound as a cheap, conservative alternative.
+ * J. Climate 10, 2147), and the Šidák bound as a cheap alternative that pays for the number of
+ * lags only.
  *
  * Choosing the lag that fits best (here by AIC, attribution_regression.ts) and then testing
  * the coefficient at that lag as if it had been fixed overstates significance: under the null,
@@ -209,7 +210,8 @@ export function combineLagSearchChunks(
 /**
  * Šidák bound for the smallest of m p-values: 1 − (1 − p)^m (Šidák 1967, J. Amer. Statist.
  * Assoc. 62, 626), exact for m independent tests; tests at neighbouring lags are strongly
- * correlated, so for a lag search it is conservative (too large). Computed as
+ * correlated, so for a lag search it is conservative (too large) about the search; it keeps
+ * whatever the p-values assume about the noise. Computed as
  * −expm1(m · log1p(−p)) to keep precision for small p.
  *
  * @param p the smallest p-value, in [0, 1]

@@ -179,13 +179,17 @@ async function lagSearchSignificance(
       "phase surrogates of the solar regressor and so pays for choosing the lag." +
       ` p_naive = ${g(naive)} treats the chosen lag as if it had been fixed ` +
       "in advance and is too small after a search (the search also picks the lag whose " +
-      `regressor best absorbs slow noise). p_sidak = ${g(sidak)} is a conservative bound ` +
-      `that treats the ${m} lags as independent tests.`;
+      `regressor best absorbs slow noise). p_sidak = ${g(sidak)} treats the ${m} lags as ` +
+      "independent tests: conservative about the search alone, but it keeps the error " +
+      `model's assumptions, which the surrogates do not need (autocorrelation the ` +
+      `${p.errors} errors miss makes p_search larger than p_sidak).`;
   } else {
-    text = `Use p_sidak = ${g(sidak)}, a conservative bound that treats the ${m} solar lags ` +
-      `searched as independent tests. p_naive = ${g(naive)} treats the chosen lag as fixed ` +
-      "and is too small after a search; lag_search_test: phase gives a sharper p-value " +
-      "that pays for the search.";
+    text = `Use p_sidak = ${g(sidak)}: it treats the ${m} solar lags searched as ` +
+      "independent tests, conservative about the search (neighbouring lags are correlated) " +
+      `but resting on the ${p.errors} error model like p_naive = ${g(naive)}, which treats ` +
+      "the chosen lag as fixed and is too small after a search. lag_search_test: phase " +
+      "pays for the search with surrogates that keep the solar regressor's whole " +
+      "autocorrelation.";
   }
   const warnings: string[] = [];
   const adjusted = pSearch ?? sidak;

@@ -60,8 +60,8 @@ export const AttributionRequest = z.object({
     description: "How the solar coefficient's p-value pays for choosing its lag by AIC over " +
       "a range: `phase` = Monte Carlo repeating the same search on phase-randomised " +
       "surrogates of the solar regressor (Ebisuzaki 1997), with the Šidák bound beside it; " +
-      "`sidak` = only the Šidák bound 1 − (1 − p)^m over the m lags searched (conservative, " +
-      "instant). Nothing to pay for when the solar lag is fixed (min_lag = max_lag).",
+      "`sidak` = only the Šidák bound 1 − (1 − p)^m over the m lags searched (conservative " +
+      "about the search, instant, but resting on the error model). Nothing to pay for when the solar lag is fixed (min_lag = max_lag).",
   }),
   surrogates: z.number().int().min(100).max(10_000).default(500).openapi({
     description: "Surrogates of the `phase` lag-search test (each repeats the whole lag search)",

@@ -23,8 +23,9 @@ export const LagSearchSignificance = z.object({
       "solar regressor; null with `sidak` or a fixed lag",
   }),
   p_sidak: z.number().openapi({
-    description: "Šidák bound 1 − (1 − p_naive)^m over the m lags searched: conservative, " +
-      "since neighbouring lags are correlated",
+    description: "Šidák bound 1 − (1 − p_naive)^m over the m lags searched: conservative " +
+      "about the search (neighbouring lags are correlated) but resting on the error model " +
+      "like p_naive, so it can be smaller than p_search when the errors are not AR(1)",
   }),
   method: z.enum(["phase", "sidak", "fixed_lag"]).openapi({
     description: "Which adjustment was made: the Monte Carlo (`phase`), the bound only " +
