@@ -92,14 +92,20 @@ export function textWidth(s: string, fontSize: number, bold = false): number {
   return w * fontSize * (bold ? 1.1 : 1);
 }
 
-/** Break a text into lines no wider than `maxWidth` px (word wrap; long words are kept). */
+/**
+ * Break a text into lines no wider than `maxWidth` px (word wrap). A word wider than a line is
+ * kept whole, or cut into pieces that fit when `breakWords` is true (notes that must stay
+ * inside the chart, e.g. a run id in a warning).
+ */
 export function wrapText(
   s: string,
   fontSize: number,
   maxWidth: number,
   bold = false,
+  breakWords = false,
 ): string[] {
-  const words = s.split(/\s+/).filter(Boolean);
+  const words = s.split(/\s+/).filter(Boolean)
+    .flatMap((w) => (breakWords ? splitWord(w, fontSize, maxWidth, bold) : [w]));
   const lines: string[] = [];
   let cur = "";
   for (const w of words) {
@@ -111,6 +117,21 @@ export function wrapText(
   }
   if (cur) lines.push(cur);
   return lines;
+}
+
+/** A word cut into pieces no wider than `maxWidth` px (at least one character each). */
+function splitWord(w: string, fontSize: number, maxWidth: number, bold: boolean): string[] {
+  if (textWidth(w, fontSize, bold) <= maxWidth) return [w];
+  const pieces: string[] = [];
+  let cur = "";
+  for (const ch of w) {
+    if (cur && textWidth(cur + ch, fontSize, bold) > maxWidth) {
+      pieces.push(cur);
+      cur = ch;
+    } else cur += ch;
+  }
+  if (cur) pieces.push(cur);
+  return pieces;
 }
 
 /** Short deterministic hash (FNV-1a, 32 bit) as base-36, for element ids. */

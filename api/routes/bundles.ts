@@ -13,6 +13,7 @@ import type { App } from "../app_env.ts";
 import type { RunRecord, Store, StoredSeries } from "../store/types.ts";
 import type { RunService } from "../runs/service.ts";
 import type { OutputSeries } from "../runs/kind.ts";
+import type { Lineage } from "../runs/inherit.ts";
 import { resultDigest } from "../runs/service.ts";
 import { ProblemError } from "../problems.ts";
 import { problems } from "../schemas/common.ts";
@@ -259,7 +260,17 @@ export async function verifyBundle(runs: RunService, b: BundleT) {
         series: Object.fromEntries(rec.input_series.map((id) => [id, series[id]])),
         runs: Object.fromEntries(rec.input_runs.map((id) => [id, verifiedRuns[id]])),
       };
-      const again = await runs.computeResult(kind, parsed.data as Record<string, unknown>, inputs);
+      // the inherited context comes from the bundle's own lineage, verified before this run
+      const lineage: Lineage = {
+        run: (id) => Promise.resolve(verifiedRuns[id] ?? null),
+        seriesOrigin: (id) => Promise.resolve(series[id]?.derived_from ?? null),
+      };
+      const again = await runs.computeResult(
+        kind,
+        parsed.data as Record<string, unknown>,
+        inputs,
+        lineage,
+      );
       if (again.digest !== rec.result_digest) {
         differences.push({
           where: `${where}/result_digest`,

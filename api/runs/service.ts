@@ -18,6 +18,7 @@ import type { InlineSeries } from "../schemas/series_ref.ts";
 import { ProblemError, toPointer } from "../problems.ts";
 import { canonicalJson, sha256Hex } from "../canonical.ts";
 import { toPlainJson } from "./json.ts";
+import { gatherInherited, type Lineage, withInherited } from "./inherit.ts";
 import { SERVICE_VERSION } from "../version.ts";
 import { taskTable } from "../analyses/derive.ts";
 import { RUN_KINDS } from "../analyses/registry.ts";
@@ -354,11 +355,16 @@ export class RunService {
     return { status: 201, run: done, saved_series: saved };
   }
 
-  /** Compute a result from params and loaded inputs, without storing anything. */
+  /**
+   * Compute a result from params and loaded inputs, without storing anything. The result
+   * carries the warnings and cautions of the runs it is built on (`inherited`), looked up in
+   * `lineage` (default: the store).
+   */
   async computeResult(
     kind: RunKind,
     params: Record<string, unknown>,
     inputs: { series: Record<string, StoredSeries>; runs: Record<string, RunRecord> },
+    lineage: Lineage = this.lineage(),
   ): Promise<{ result: Record<string, unknown>; digest: string }> {
     let result: RunResult;
     try {
@@ -370,8 +376,26 @@ export class RunService {
     } catch (e) {
       throw asProblem(e);
     }
-    const plain = toPlainJson(result) as Record<string, unknown>;
+    const plain = await this.finishResult(result, inputs, lineage);
     return { result: plain, digest: await resultDigest(plain) };
+  }
+
+  /** The stored form of a computed result: plain JSON with its inherited context. */
+  private async finishResult(
+    result: RunResult,
+    inputs: { series: Record<string, StoredSeries>; runs: Record<string, RunRecord> },
+    lineage: Lineage,
+  ): Promise<Record<string, unknown>> {
+    const plain = toPlainJson(result) as Record<string, unknown>;
+    return withInherited(plain, await gatherInherited(inputs, lineage));
+  }
+
+  /** The lineage of runs as the store holds it. */
+  lineage(): Lineage {
+    return {
+      run: (id) => this.store.getRun(id),
+      seriesOrigin: async (id) => (await this.store.getSeriesMeta(id))?.derived_from ?? null,
+    };
   }
 
   /** Compute without storing; returns the finished record or throws the input problem. */
@@ -480,7 +504,7 @@ export class RunService {
         : undefined,
     });
     if (active.cancelled) throw new CancelledError();
-    const plain = toPlainJson(result) as Record<string, unknown>;
+    const plain = await this.finishResult(result, prep, this.lineage());
     const digest = await resultDigest(plain);
     const written = await store.updateLeased(run.id, holder, {
       status: "succeeded",
@@ -553,6 +577,10 @@ export class RunService {
         ? "The recomputed result is byte-identical (same RFC 8785 canonical JSON digest)."
         : versionChanged
         ? `The algorithm of "${run.kind}" changed since this run (${run.algorithm_version} → ${kind.algorithmVersion}); the results differ.`
+        : await onlyInheritedAdded(run.result, again.result)
+        ? "The recomputed result equals the stored one except for its `inherited` part (the " +
+          "warnings and cautions of the runs it is built on), which results carry since a " +
+          "later service version than the one that made this run."
         : "The recomputed result differs from the stored one although the algorithm version is unchanged.",
       result: again.result,
     };
@@ -592,6 +620,16 @@ export class RunService {
   async settle(): Promise<void> {
     await this.transport.queue.settle();
   }
+}
+
+/** True when `again` is `stored` plus an `inherited` part that `stored` lacks. */
+async function onlyInheritedAdded(
+  stored: Record<string, unknown> | null,
+  again: Record<string, unknown> | null,
+): Promise<boolean> {
+  if (!stored || !again || "inherited" in stored || !("inherited" in again)) return false;
+  const { inherited: _, ...rest } = again;
+  return await resultDigest(rest) === await resultDigest(stored);
 }
 
 function findPointer(params: unknown, needle: string): string {

@@ -8,7 +8,7 @@
  *
  * @module
  */
-import { h, pretty, when } from "./dom.js";
+import { h, pretty, runLabel, when } from "./dom.js";
 import { deref, objectSchema } from "./service.js";
 
 /**
@@ -251,7 +251,11 @@ export function buildFields(doc, schema, prefix, ctx, optional = false) {
           "datalist",
           { id: listId },
           ctx.runs.filter(want).map((r) =>
-            h("option", { value: r.id }, `${pretty(r.kind)} · ${when(r.created_at)}`)
+            h(
+              "option",
+              { value: r.id },
+              `${pretty(r.kind)} run ${runLabel(r.id)} · ${when(r.created_at)}`,
+            )
           ),
         );
         input = h("span", null, input, list);

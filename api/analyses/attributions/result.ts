@@ -4,7 +4,7 @@
  * @module
  */
 import { z } from "@hono/zod-openapi";
-import { cautions, OutputSeriesSchema, warnings } from "../common/result_parts.ts";
+import { cautions, inherited, OutputSeriesSchema, warnings } from "../common/result_parts.ts";
 
 const LagUnit = z.enum(["months", "years"]);
 const Interval = z.tuple([z.number(), z.number()]);
@@ -110,6 +110,7 @@ export const AttributionResult = z.object({
   }),
   warnings,
   cautions,
+  inherited,
 }).openapi("AttributionResult");
 
 /** The result as `compute` builds it. */

@@ -4,7 +4,7 @@
  * @module
  */
 import { z } from "@hono/zod-openapi";
-import { cautions, OutputSeriesSchema, warnings } from "../common/result_parts.ts";
+import { cautions, inherited, OutputSeriesSchema, warnings } from "../common/result_parts.ts";
 
 const noEpochData = (what: string) =>
   z.number().nullable().openapi({
@@ -55,6 +55,7 @@ export const CompositeResult = z.object({
   }),
   warnings,
   cautions,
+  inherited,
 }).openapi("CompositeResult");
 
 /** The result as `compute` builds it. */

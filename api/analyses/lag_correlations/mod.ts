@@ -15,7 +15,8 @@ import { lagCorrelationTasks } from "./tasks.ts";
 export const lagCorrelationKind = defineAnalysis({
   kind: "lag-correlations",
   path: "/v1/lag-correlations",
-  algorithmVersion: "1",
+  // 2: `best.r` is the overlap r whatever the normalisation, `best.r_full` beside it
+  algorithmVersion: "2",
   tag: "Solar–climate linkage",
   summary: "Lagged correlation of a climate series with a solar series, with honest significance",
   description: "Brings both series onto one monthly or annual axis, removes the chosen trend " +
