@@ -20,6 +20,7 @@ export const irradianceReconstructions = defineAnalysis({
   // 12 months, not 13); a cell whose background is missing has no SD either.
   algorithmVersion: "3",
   tag: "Irradiance",
+  featured: true,
   summary: "Reconstruct TSI from a calibrated model, with prediction intervals",
   description: "Applies a model run to proxy series averaged into daily, monthly or annual " +
     "cells over a period. Prediction intervals combine the coefficient covariance with the " +

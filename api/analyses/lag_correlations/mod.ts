@@ -18,6 +18,7 @@ export const lagCorrelationKind = defineAnalysis({
   // 2: `best.r` is the overlap r whatever the normalisation, `best.r_full` beside it
   algorithmVersion: "2",
   tag: "Solar–climate linkage",
+  featured: true,
   summary: "Lagged correlation of a climate series with a solar series, with honest significance",
   description: "Brings both series onto one monthly or annual axis, removes the chosen trend " +
     "from both, and reports at every lag k (k > 0: the climate series follows the solar one " +
