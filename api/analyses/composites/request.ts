@@ -15,8 +15,8 @@ export const CompositeRequest = z.object({
     example: ["1947-05", "1958-03", "1968-11", "1979-12", "1989-11"],
   }),
   cycle_run: RunRef.optional().openapi({
-    description: "Instead of epoch_dates: a run whose result holds a cycle table (`cycles`, " +
-      "each with `start` and `maximum`); its maxima or minima become the epochs",
+    description: "Instead of epoch_dates: a /v1/cycles run; the maxima (or starting minima) " +
+      "of its cycle table become the epochs (a provisional maximum is left out)",
   }),
   cycle_epoch: z.enum(["maximum", "minimum"]).default("maximum"),
   resolution: z.enum(["monthly", "annual"]).optional().openapi({
