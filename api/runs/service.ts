@@ -3,9 +3,10 @@
  *
  * Synchronous runs are computed first and stored only when they succeed, so a rejected
  * request (422) leaves the store unchanged. Asynchronous runs (asked for with
- * `Prefer: respond-async`, or estimated to take longer than the configured threshold) are
- * stored as `queued` with their inputs, then computed in the background; progress and the
- * final status are published to subscribers (Server-Sent Events).
+ * `Prefer: respond-async`, or estimated to take longer than the configured threshold) have
+ * their inputs checked first (`preflight`: a request refused for its input is a 422 and is not
+ * stored either), are then stored as `queued` with their inputs, and computed in the
+ * background; progress and the final status are published to subscribers (Server-Sent Events).
  *
  * @module
  */
@@ -201,6 +202,14 @@ export async function resultDigest(result: unknown): Promise<string> {
   return await sha256Hex(canonicalJson(result));
 }
 
+/** Stops a preflight at the end of the input checks (the first progress report). */
+class InputsChecked extends Error {
+  constructor() {
+    super("input checks done");
+    this.name = "InputsChecked";
+  }
+}
+
 /** A run this process computes: its stop flag (set by a cancel or a lost lease). */
 interface Active {
   cancelled: boolean;
@@ -342,6 +351,8 @@ export class RunService {
     const estimate = kind.estimateSeconds?.(prep.params as never) ?? 0;
     const isAsync = opts.preferAsync || estimate > this.options.asyncSeconds;
     if (isAsync) {
+      // refused for its input: a 422 now, and nothing stored (as for a synchronous run)
+      await this.preflight(kind, prep.params, prep);
       for (const s of prep.inline.values()) await this.store.putSeries(s);
       await this.store.putRun(run);
       await this.transport.queue.enqueue(run.id);
@@ -353,6 +364,30 @@ export class RunService {
     await this.store.putRun(done);
     const saved = await this.saveOutputs(kind, done);
     return { status: 201, run: done, saved_series: saved };
+  }
+
+  /**
+   * Check a request's inputs before an asynchronous run is stored: run the analysis' compute
+   * in this thread up to its first progress report or parallel map, where by the contract of
+   * `RunContext.progress` its input checks are done (an analysis without either is cheap and
+   * runs to its end; the result is not kept). An input problem is thrown as the 422 the
+   * synchronous path gives; the request is then not stored.
+   */
+  async preflight(
+    kind: RunKind,
+    params: Record<string, unknown>,
+    inputs: { series: Record<string, StoredSeries>; runs: Record<string, RunRecord> },
+  ): Promise<void> {
+    const checked = () => {
+      throw new InputsChecked();
+    };
+    const ctx = makeContext(inputs, { progress: checked, isCancelled: () => false }, checked);
+    try {
+      await kind.compute(params, ctx);
+    } catch (e) {
+      if (e instanceof InputsChecked) return;
+      throw asProblem(e);
+    }
   }
 
   /**

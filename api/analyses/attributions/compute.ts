@@ -193,6 +193,7 @@ export function computeAttributions(
   );
   checkSample(p, axis);
   const regressors = coreRegressors(p, axis);
+  ctx.progress(0.1); // inputs checked; the lag search and the regression follow
   const fit = withInputPointers({
     regressors: (e) =>
       e.index === undefined || e.index >= p.regressors.length

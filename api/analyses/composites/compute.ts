@@ -97,21 +97,27 @@ export function computeComposites(p: CompositeParams, ctx: RunContext): Composit
   const before = Math.round(p.before_years / step), after = Math.round(p.after_years / step);
   const epochIdx = epochIndices(dates, time, step);
   const epochs = p.cycle_run ? "/cycle_run" : "/epoch_dates";
-  const r = withInputPointers({
-    before: "/before_years",
-    after: "/after_years",
-    bootstrap: "/bootstrap",
-    randomSets: "/random_sets",
-    "*": epochs,
-  }, () =>
-    superposedEpoch(x, epochIdx.inside, {
-      before,
-      after,
-      preEpochBaseline: p.baseline === "pre_epoch",
-      bootstrap: p.bootstrap,
-      randomSets: p.random_sets,
-      seed: p.seed,
-    }));
+  const composite = (replicates: { bootstrap: number; randomSets: number }) =>
+    withInputPointers({
+      before: "/before_years",
+      after: "/after_years",
+      bootstrap: "/bootstrap",
+      randomSets: "/random_sets",
+      "*": epochs,
+    }, () =>
+      superposedEpoch(x, epochIdx.inside, {
+        before,
+        after,
+        preEpochBaseline: p.baseline === "pre_epoch",
+        ...replicates,
+        seed: p.seed,
+      }));
+  // One replicate each meets every input rule of the method (epochs whose window fits, room
+  // for random epochs) at negligible cost, before the progress report that ends the input
+  // checks (RunContext.progress): a request refused for its epochs is never stored.
+  composite({ bootstrap: 1, randomSets: 1 });
+  ctx.progress(0.1);
+  const r = composite({ bootstrap: p.bootstrap, randomSets: p.random_sets });
   const warnings: string[] = [];
   const droppedDates = [...epochIdx.outside, ...r.dropped.map((i) => time[i])];
   if (droppedDates.length) {

@@ -187,6 +187,7 @@ export function computeEnergyBalance(
     : twoBoxSinusoidResponse(params, period);
   const forcing = p.sinusoid ? sinusoidForcing(p, p.sinusoid, params) : forcingInput(p, ctx);
   const { time } = forcing;
+  ctx.progress(0.1); // inputs checked; the integration follows
   const { surface, deep } = response(p, params, forcing);
   const amp0 = p.sinusoid?.amplitude ?? null;
   const timeAxis = p.sinusoid ? { time_axis: "model_years" as const } : {};
