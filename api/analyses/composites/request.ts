@@ -7,6 +7,8 @@ import { z } from "@hono/zod-openapi";
 import { SeriesRef, TimeValue } from "../../schemas/series_ref.ts";
 import { CoverageFields } from "../common/analysis_axis.ts";
 import { RunRef } from "../common/run_ref.ts";
+import { DEMO_SERIES } from "../../schemas/examples.ts";
+import { oneOfFields } from "../common/alternatives.ts";
 
 export const CompositeRequest = z.object({
   series: SeriesRef.openapi({ description: "The climate series to composite" }),
@@ -36,6 +38,14 @@ export const CompositeRequest = z.object({
   bootstrap: z.number().int().min(100).max(100_000).default(1000),
   random_sets: z.number().int().min(100).max(100_000).default(1000),
   seed: z.number().int().min(0).max(4294967295).default(1),
-}).openapi("CompositeRequest");
+}).openapi("CompositeRequest", {
+  ...oneOfFields("epoch_dates", "cycle_run"),
+  example: {
+    series: DEMO_SERIES.TEMP,
+    epoch_dates: ["1949-07", "1959-09", "1968-12", "1981-09", "1992-04", "2003-04", "2013-07"],
+    before_years: 5,
+    after_years: 5,
+  },
+});
 
 export type CompositeParams = z.output<typeof CompositeRequest>;
