@@ -77,15 +77,18 @@ export function text(a: Attrs, content: string): string {
 /**
  * Estimated rendered width of a text in px for a sans-serif system font, on the wide side
  * (DejaVu Sans, a common fallback, is wider than most): about 0.6 em per character, less for
- * narrow letters and more for wide ones and capitals. Only used for layout (margins, legend
- * and note wrapping), so a generous estimate is enough.
+ * narrow letters and more for wide ones and capitals (and for digits and the letters a–f, which
+ * share one width). Only used for layout (margins, legend and note wrapping), so a generous
+ * estimate is enough.
  */
 export function textWidth(s: string, fontSize: number, bold = false): number {
   let w = 0;
   for (const ch of s) {
     if ("il.,:;|!'ⁱ ".includes(ch)) w += 0.32;
     else if ("mwMW".includes(ch)) w += 0.92;
-    else if (/[0-9]/.test(ch)) w += 0.64;
+    // digits and the hex letters share one width, so that a run's label (8 hex digits) lays
+    // the chart out the same whatever its digits
+    else if (/[0-9a-f]/.test(ch)) w += 0.64;
     else if (/[A-Z]/.test(ch)) w += 0.72;
     else w += 0.6;
   }
