@@ -139,8 +139,12 @@ export function buildFields(doc, schema, prefix, ctx, optional = false) {
     const dflt = outer.default ?? p.default;
     const isRequired = !optional && required.has(name) && dflt === undefined && !nullable;
     const choice = choiceOf(name);
-    const description = (outer.description ?? p.description ?? "") +
-      (choice ? ` Give one of: ${choice.map(pretty).join(", ")}.` : "");
+    const text = outer.description ?? p.description ?? "";
+    const description = choice
+      ? `${text}${text === "" ? "" : /[.!?]\s*$/.test(text) ? " " : ". "}Give one of: ${
+        choice.map(pretty).join(", ")
+      }.`
+      : text;
     const label = pretty(name);
     const error = h("span", { class: "field-error", id: `${id}-err` });
     /** @type {HTMLElement} */

@@ -19,7 +19,7 @@ export function noteLines(notes: string[], width: number): string[] {
 
 /** The line that stands for `count` notes left out, pointing to where they are read. */
 export function notesPointer(count: number, ref?: string): string {
-  const what = `${count} more note${count === 1 ? "" : "s"} and cautions`;
+  const what = count === 1 ? "1 more note or caution" : `${count} more notes and cautions`;
   return ref ? `${what}: see ${ref}.` : `${what}: see the chart's description.`;
 }
 
