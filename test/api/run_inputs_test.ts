@@ -10,6 +10,7 @@ import assert from "node:assert/strict";
 import { assertProblem, makeTestApp, type TestService } from "./helpers.ts";
 import { loadDemo } from "../../api/demo.ts";
 import { DEMO } from "./demo_inputs.ts";
+import { tsSources } from "../source_files.ts";
 
 async function created(svc: TestService, path: string, body: unknown) {
   const res = await svc.post(path, body);
@@ -87,18 +88,9 @@ Deno.test("a run of the wrong kind as input is refused at its field, naming the 
 
 Deno.test("no analysis reads another run's result by field-name strings", async () => {
   // ctx.run(id) is for the record (kind, id, dates); results go through ctx.resultOf
-  const root = new URL("../../api/analyses/", import.meta.url);
   const offenders: string[] = [];
-  const walk = async (dir: URL) => {
-    for await (const e of Deno.readDir(dir)) {
-      const u = new URL(e.name + (e.isDirectory ? "/" : ""), dir);
-      if (e.isDirectory) await walk(u);
-      else if (e.name.endsWith(".ts")) {
-        const text = await Deno.readTextFile(u);
-        if (/\.run\([^)]*\)\s*\.result|\brun\.result\b/.test(text)) offenders.push(u.pathname);
-      }
-    }
-  };
-  await walk(root);
+  for await (const [u, text] of tsSources(new URL("../../api/analyses/", import.meta.url))) {
+    if (/\.run\([^)]*\)\s*\.result|\brun\.result\b/.test(text)) offenders.push(u.pathname);
+  }
   assert.deepEqual(offenders, []);
 });
