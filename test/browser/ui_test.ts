@@ -307,7 +307,11 @@ Deno.test({
           assert.equal(await runsTotal(), before);
           // with the form's defaults the run succeeds
           await page.goto(`${svc.url}/#/analyse?kind=/v1/lag-correlations&d=1`);
-          await page.waitForSelector("#analysis-form");
+          // the new form, with its defaults (the old one had "(none)" chosen)
+          await page.waitForFunction(() =>
+            (document.querySelector("#f_solar") as HTMLSelectElement | null)?.value !== "" &&
+            document.querySelector("#submit-status")?.textContent === ""
+          );
           await page.click("#analysis-form button[type=submit]");
           await page.waitForSelector("main [data-status=succeeded]", { timeout: RUN_TIMEOUT_MS });
           assert.equal(await runsTotal(), before + 1);
