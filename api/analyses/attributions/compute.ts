@@ -357,6 +357,7 @@ export async function computeAttributions(
   const seasonalLeft = annualCycleLeft(axis.resolution, axis.time, axis.values, labels);
   checkSample(p, axis);
   const regressors = coreRegressors(p, axis);
+  ctx.progress(0.1); // inputs checked; the lag search and the regression follow
   const fit = withInputPointers({
     regressors: (e) =>
       e.index === undefined || e.index >= p.regressors.length

@@ -23,6 +23,7 @@ export const irradianceReconstructions = defineAnalysis({
   // follow the coverage rule of core/series (a partial year at an end is no annual cell).
   algorithmVersion: "4",
   tag: "Irradiance",
+  featured: true,
   summary: "Reconstruct TSI from a calibrated model, with prediction intervals",
   description: "Applies a model run to proxy series averaged into daily, monthly or annual " +
     "cells over a period. Prediction intervals combine the coefficient covariance with the " +

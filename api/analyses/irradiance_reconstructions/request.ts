@@ -10,6 +10,7 @@ import { SeriesRef } from "../../schemas/series_ref.ts";
 import { PeriodInput } from "../common/time_period.ts";
 import { runRef } from "../common/run_ref.ts";
 import { SunspotConversion } from "../../schemas/sunspot_conversion.ts";
+import { DEMO_SERIES, EXAMPLE_RUN_ID } from "../../schemas/examples.ts";
 
 const SecularBackgroundRequest = z.discriminatedUnion("kind", [
   z.object({ kind: z.literal("none") }),
@@ -69,6 +70,14 @@ export const ReconstructionRequest = z.object({
     }
     seen.add(p.term);
   });
-}).openapi("ReconstructionRequest");
+}).openapi("ReconstructionRequest", {
+  example: {
+    model: EXAMPLE_RUN_ID,
+    sunspot_number: DEMO_SERIES.SSN,
+    proxies: [{ term: "mg_ii", series: DEMO_SERIES.MG }],
+    period: { start: "1700", end: "2025" },
+    resolution: "annual",
+  },
+});
 
 export type ReconstructionParams = z.output<typeof ReconstructionRequest>;

@@ -4,7 +4,7 @@
  * @module
  */
 import { z } from "@hono/zod-openapi";
-import { cautions, OutputSeriesSchema, warnings } from "../common/result_parts.ts";
+import { cautions, inherited, OutputSeriesSchema, warnings } from "../common/result_parts.ts";
 import { TsiCycleAmplitudeSchema } from "../common/tsi_cycle_amplitude.ts";
 import { CycleAmplitudeCheckSchema } from "./amplitude_check.ts";
 
@@ -68,6 +68,7 @@ export const ReconstructionResult = z.object({
   }),
   warnings,
   cautions,
+  inherited,
 }).openapi("ReconstructionResult");
 
 /** The result as `compute` builds it. */

@@ -305,7 +305,9 @@ export async function computeLagCorrelations(
     })),
     best: {
       lag: best.lag,
-      r: stat(best),
+      // the same two r as the lag table; `statistic` says which one the tests use
+      r: best.r,
+      r_full: best.r_full,
       n: best.n,
       n_eff: best.n_eff,
       p_analytic: best.p_analytic,
