@@ -22,6 +22,8 @@ export interface DemoFileEntry {
   time_column: string;
   value_column: string;
   uncertainty_column?: string;
+  /** For a band of the spectral record: its bounds in nm. */
+  band_nm?: { lower: number; upper: number };
   upload: {
     name: string;
     quantity: string;
@@ -91,7 +93,8 @@ export async function readDemoSeries(
 
 /**
  * Store every demo series and return their ids in manifest order. Idempotent: series already
- * present (same content, same id) are left as they are.
+ * present (same content, same id) are left as they are. The band series of the spectral record
+ * are stored first, so listings (newest first) open with the demo's main series.
  *
  * @param store the store to fill (normally an empty one)
  * @returns the stored ids
@@ -99,11 +102,15 @@ export async function readDemoSeries(
 export async function loadDemo(
   store: Store,
 ): Promise<string[]> {
-  const ids: string[] = [];
-  for (const { series } of await readDemoSeries()) {
+  const entries = await demoFileEntries();
+  const read = await readDemoSeries();
+  // the 32 band series of the spectral record first, so that listings (newest first) open
+  // with the demo's main series
+  const order = read.map((_, i) => i);
+  order.sort((a, b) => Number(!entries[a].band_nm) - Number(!entries[b].band_nm));
+  for (const i of order) {
     // Public: on a shared instance every owner may try the demo.
-    await store.putSeries(series, { owner: LOCAL_OWNER, visibility: "public" });
-    ids.push(series.id);
+    await store.putSeries(read[i].series, { owner: LOCAL_OWNER, visibility: "public" });
   }
-  return ids;
+  return read.map((r) => r.series.id);
 }

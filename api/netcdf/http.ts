@@ -22,6 +22,7 @@ import { canonicalUnits, QUANTITIES, type Quantity } from "../../core/series/qua
 import { type FieldError, ProblemError } from "../problems.ts";
 import type { RunRecord, Store, StoredSeries } from "../store/types.ts";
 import type { OutputSeries } from "../runs/kind.ts";
+import { noteLinesOf } from "../runs/inherit.ts";
 import { immutableHeaders, notModified } from "../routes/cache.ts";
 import { checkMeta, ErrorList, finish, type SeriesMetaInput } from "../ingest/normalise.ts";
 import type { IngestResult } from "../ingest/types.ts";
@@ -231,8 +232,8 @@ export async function seriesNetcdfResponse(
 
 /** The provenance of a file written from a run's result (`what` names the part written). */
 function runProvenance(run: RunRecord, title: string, what: string, calendar: string): Provenance {
-  const result = (run.result ?? {}) as Record<string, unknown>;
-  const strings = (x: unknown) => (Array.isArray(x) ? x.map(String) : []);
+  // the run's own warnings and cautions, then those of the runs it is built on
+  const notes = noteLinesOf(run.result);
   return {
     title: `${title} (sunlag run ${run.id}, ${run.kind})`,
     history: [
@@ -245,8 +246,8 @@ function runProvenance(run: RunRecord, title: string, what: string, calendar: st
     runId: run.id,
     resultDigest: `sha256:${run.result_digest ?? ""}`,
     dateCreated: run.created_at,
-    warnings: strings(result.warnings),
-    cautions: strings(result.cautions),
+    warnings: notes.warnings,
+    cautions: notes.cautions,
   };
 }
 

@@ -210,7 +210,7 @@ export function buildSeriesDataset(
 ): { dataset: NetcdfWriteDataset; method: string; dropped: number[] } {
   const calendar = options.calendar ?? "standard";
   const t = timeAxisOf(s.time, s.resolution, calendar);
-  const { axis, bounded, period } = t;
+  const { axis, period } = t;
   const n = axis.kept.length;
   const taken = new Set(["time", "time_bnds", "bnds", "realization"]);
   const name = options.variable ??

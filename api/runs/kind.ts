@@ -59,7 +59,15 @@ export interface RunContext {
    * result. Use this instead of reading `run(id).result` by field-name strings.
    */
   resultOf<K extends RunKind>(kind: K, id: string, pointer: string): ResultOf<K>;
-  /** Report progress in [0, 1]. Cheap; call it as often as you like. */
+  /**
+   * Report progress in [0, 1]. Cheap; call it as often as you like.
+   *
+   * The first report (or the first `parallel` map) also marks the end of the input checks: an
+   * asynchronous request is checked before it is stored by running `compute` up to that point
+   * (`RunService.preflight`), so a run refused for its input is never stored. An analysis
+   * therefore checks its inputs before it reports progress, and reports progress before work
+   * that may take long.
+   */
   progress(fraction: number): void;
   /** True once the run was cancelled; long loops should check and throw `new CancelledError()`. */
   cancelled(): boolean;

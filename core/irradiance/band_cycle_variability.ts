@@ -6,7 +6,8 @@
  */
 import { mean } from "d3-array";
 import { InputError } from "../errors.ts";
-import { seriesAtPeriodKeys } from "../series/period_means.ts";
+import { resampledAtPeriodKeys } from "../series/resample_means.ts";
+import { inferResolution } from "../time/resolution.ts";
 import { tsiCycleAmplitude } from "./cycle_amplitude.ts";
 
 /** One band's change over the cycles (part of {@link BandCycleVariability}). */
@@ -36,8 +37,8 @@ export interface BandCycleVariability {
  * a maximum or minimum within ±`halfWindow` years; each maximum pairs with the latest minimum
  * before it), and each series' change per cycle is its annual mean in the maximum year minus
  * that in the minimum year. A series that falls while the reference rises (a band dominated
- * by sunspot darkening) has a negative change. Annual means are those of core/series (every
- * year with a value).
+ * by sunspot darkening) has a negative change. Annual means follow the coverage rule of
+ * core/series (a year needs 10 covered months), as the reference's do.
  *
  * @param time decimal years, shared by the reference and the series
  * @param series the series (e.g. one per band), NaN for missing
@@ -81,8 +82,9 @@ export function bandCycleVariability(
     maximumYear: c.maximumYear,
   }));
   const keys = cycles.flatMap((c) => [c.minimumYear, c.maximumYear]);
+  const from = time.length >= 2 ? inferResolution(time) : "irregular";
   const bands = series.map((s): BandCycleChange => {
-    const at = seriesAtPeriodKeys({ time, value: s }, "annual", keys);
+    const at = resampledAtPeriodKeys({ time, value: s }, from, "annual", keys);
     const changes: number[] = [], levels: number[] = [];
     for (let c = 0; c < cycles.length; c++) {
       const lo = at[2 * c], hi = at[2 * c + 1];

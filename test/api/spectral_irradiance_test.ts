@@ -11,6 +11,7 @@ import { DEMO, demoIrradianceModel } from "./demo_inputs.ts";
 import { RUN_KINDS } from "../../api/analyses/registry.ts";
 import { blackbodyBandFraction } from "../../core/irradiance/mod.ts";
 import { randomStream } from "../../core/random/mod.ts";
+import { DEMO_SPECTRAL_BANDS } from "../../api/schemas/examples.ts";
 
 const demoDir = new URL("../../fixtures/demo/", import.meta.url);
 
@@ -493,4 +494,10 @@ Deno.test("bad spectral input: a problem naming the band and field, nothing stor
     });
   }
   await svc.close();
+});
+
+Deno.test("the API reference's example bands are demo bands with their content ids", () => {
+  for (const b of DEMO_SPECTRAL_BANDS) {
+    assert.ok(BANDS.some((x: typeof b) => JSON.stringify(x) === JSON.stringify(b)), b.series);
+  }
 });

@@ -13,7 +13,7 @@ import { DEMO, demoIrradianceModel } from "./demo_inputs.ts";
 const dir = new URL("../../fixtures/netcdf/", import.meta.url);
 const REF = JSON.parse(await Deno.readTextFile(new URL("spectral_record.json", dir)));
 
-async function upload(svc: TestService, body: Uint8Array, query = "") {
+async function upload(svc: TestService, body: Uint8Array<ArrayBuffer>, query = "") {
   return await svc.app.request(`/v1/series/spectral${query}`, {
     method: "POST",
     headers: { "content-type": "application/x-netcdf" },

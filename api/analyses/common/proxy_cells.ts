@@ -8,7 +8,7 @@
 import {
   type PeriodMeansByKey,
   periodMeansByKey,
-  seriesAtPeriodKeys,
+  resampledAtPeriodKeys,
 } from "../../../core/series/mod.ts";
 import type { CalendarResolution } from "../../../core/time/mod.ts";
 import type { StoredSeries } from "../../store/types.ts";
@@ -28,15 +28,16 @@ export function cellMeansWithin(
 }
 
 /**
- * Each proxy series averaged into the cells `keys` (NaN where a proxy has no value), and the
- * indices of the cells where every proxy has one.
+ * Each proxy series averaged into the cells `keys` with the coverage rule of core/series (a
+ * monthly cell from daily values needs 20 of them; NaN where a proxy has no covered cell), and
+ * the indices of the cells where every proxy has one.
  */
 export function proxiesAtCells(
   termSeries: readonly StoredSeries[],
   resolution: CalendarResolution,
   keys: Int32Array,
 ): { values: Float64Array[]; complete: number[] } {
-  const values = termSeries.map((s) => seriesAtPeriodKeys(s, resolution, keys));
+  const values = termSeries.map((s) => resampledAtPeriodKeys(s, s.resolution, resolution, keys));
   const complete: number[] = [];
   for (let i = 0; i < keys.length; i++) {
     if (values.every((v) => Number.isFinite(v[i]))) complete.push(i);

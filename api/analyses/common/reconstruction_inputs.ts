@@ -17,7 +17,12 @@ import {
   type ReconstructionModel,
   SOURCE_BACK_EXTENDED,
 } from "../../../core/irradiance/mod.ts";
-import { periodKeyRange, periodSequence, seriesAtPeriodKeys } from "../../../core/series/mod.ts";
+import {
+  convertSunspotNumberVersion,
+  periodKeyRange,
+  periodSequence,
+  resampledAtPeriodKeys,
+} from "../../../core/series/mod.ts";
 import type { CalendarResolution, TimeResolution } from "../../../core/time/mod.ts";
 import type { RunContext } from "../../runs/kind.ts";
 import { InputProblem } from "../../runs/kind.ts";
@@ -27,6 +32,7 @@ import { withInputPointers } from "./input_problem.ts";
 import { requireSunspotVersion } from "./sunspot_series.ts";
 import type { IrradianceModelJson, SunspotMappingsJson } from "../irradiance_models/result.ts";
 import { mappingFromJson } from "../irradiance_models/mapping_json.ts";
+import { applySunspotConversion, SunspotConversion } from "../../schemas/sunspot_conversion.ts";
 
 /** The request fields every proxy reconstruction takes (spread into its request schema). */
 export const ReconstructionInputFields = {
@@ -38,14 +44,15 @@ export const ReconstructionInputFields = {
       "reconstruction back-extends from sunspot_number",
   }),
   sunspot_number: SeriesRef.optional().openapi({
-    description: "Sunspot-number series for back-extension; its version must match the model's",
+    description: "Sunspot-number series for back-extension; its version must match the " +
+      "model's unless `sunspot_conversion` is given",
   }),
-  sunspot_conversion: z.object({
-    factor: z.number().positive().max(10).openapi({
-      description: "Multiply the sunspot series by this to put it on the model's version",
-    }),
-    note: z.string().max(400).optional(),
-  }).optional(),
+  sunspot_conversion: SunspotConversion.optional().openapi({
+    description: "How to put the sunspot series on the model's version: " +
+      '`{"method": "published"}` (the time-dependent conversion between versions 1 and 2) ' +
+      'or a constant `{"factor": f}` (warned about when the series crosses 1849, 1868 or ' +
+      "1947, where the ratio of the versions changes)",
+  }),
   period: PeriodInput.openapi({
     description: "The cells are every day, month or year from the one holding the start to " +
       "the one holding the last instant before the end: ISO bounds name whole periods, so " +
@@ -61,7 +68,7 @@ export const ReconstructionInputFields = {
 export interface ReconstructionInputParams {
   proxies: { term: string; series: SeriesRef }[];
   sunspot_number?: SeriesRef;
-  sunspot_conversion?: { factor: number; note?: string };
+  sunspot_conversion?: SunspotConversion;
   period: z.output<typeof PeriodInput>;
   resolution: CalendarResolution;
   level: number;
@@ -104,6 +111,11 @@ export interface SunspotInput {
   atCells: Float64Array;
   resolution: TimeResolution;
   conversion: string | null;
+  /**
+   * The yardstick of the amplitude check: the series on the model's version by the published
+   * time-dependent conversion (as given when the versions match), in the cells.
+   */
+  reference: { atCells: Float64Array; conversion: string };
   warnings: string[];
 }
 
@@ -151,13 +163,15 @@ export function directProxies(
   return stored.model.terms.map((t) => {
     const p = params.proxies.find((q) => q.term === t.name);
     if (!p) return new Float64Array(cells.keys.length).fill(NaN);
-    return seriesAtPeriodKeys(ctx.series(refId(p.series)), cells.resolution, cells.keys);
+    const s = ctx.series(refId(p.series));
+    return cellMeans(s, s.resolution, cells);
   });
 }
 
 /**
  * The sunspot series: version check against the model's mappings (`modelLabel` names the
- * model in messages), optional conversion, cell means.
+ * model in messages), optional conversion (the published time-dependent one, or a constant
+ * factor), cell means, and the amplitude check's yardstick.
  */
 export function sunspotInput(
   params: ReconstructionInputParams,
@@ -176,47 +190,101 @@ export function sunspotInput(
       { reason: "no_mappings" },
     );
   }
+  const target = mappings.sunspot_version;
   let value: ArrayLike<number> = ss.value;
   let conversion: string | null = null;
   const warnings: string[] = [];
-  if (version !== mappings.sunspot_version) {
+  if (version !== target) {
     if (!params.sunspot_conversion) {
       throw new InputProblem(
         "/sunspot_number",
-        `the sunspot series is version "${version}" but the model was calibrated with version "${mappings.sunspot_version}"; supply the matching version or a sunspot_conversion factor (e.g. version 1 → 2 before 1947 is about 1/0.6)`,
-        { reason: "version_mismatch", version, model_version: mappings.sunspot_version },
+        `the sunspot series is version "${version}" but the model was calibrated with version "${target}"; supply the matching version, or sunspot_conversion {"method": "published"} for the published time-dependent conversion between versions 1 and 2 (Clette et al. 2014; V2 ≈ V1/0.6 before 1947 and V1/(0.6 × 1.18) after), or a constant {"factor": f}`,
+        { reason: "version_mismatch", version, model_version: target },
       );
     }
-    const f = params.sunspot_conversion.factor;
-    value = ss.value.map((v) => v * f);
-    conversion = `sunspot version ${version} × ${f} → version ${mappings.sunspot_version}` +
-      (params.sunspot_conversion.note ? ` (${params.sunspot_conversion.note})` : "");
+    const c = applySunspotConversion(
+      ss,
+      version,
+      target,
+      params.sunspot_conversion,
+      "/sunspot_conversion",
+    );
+    value = c.value;
+    conversion = c.label;
+    warnings.push(...c.warnings);
   } else if (params.sunspot_conversion) {
     warnings.push(
       `sunspot_conversion was ignored: the series is already version ${version}, as the model.`,
     );
   }
   const series = { time: ss.time, value };
+  const atCells = cellMeans(series, ss.resolution, cells);
   return {
     series,
-    atCells: seriesAtPeriodKeys(series, cells.resolution, cells.keys),
+    atCells,
     resolution: ss.resolution,
     conversion,
+    reference: referenceSunspots(ss, version, target, conversion, atCells, cells),
     warnings,
   };
+}
+
+/**
+ * The sunspot series of the amplitude check's yardstick: on the model's version by the
+ * published time-dependent conversion, whatever the request chose; as given when the versions
+ * match; the request's own conversion between versions the published one does not cover.
+ */
+function referenceSunspots(
+  ss: { time: Float64Array; value: Float64Array; resolution: TimeResolution },
+  version: string,
+  target: string,
+  requested: string | null,
+  atCells: Float64Array,
+  cells: TargetCells,
+): SunspotInput["reference"] {
+  if (version === target) {
+    return { atCells, conversion: `as given (version ${version}, as the model)` };
+  }
+  const v12 = (v: string): v is "1" | "2" => v === "1" || v === "2";
+  if (!v12(version) || !v12(target)) {
+    return {
+      atCells,
+      conversion: `by the request's conversion (${requested}); no published conversion ` +
+        `between versions "${version}" and "${target}", so a wrong factor is not detected`,
+    };
+  }
+  const value = convertSunspotNumberVersion(ss.time, ss.value, version, target);
+  return {
+    atCells: cellMeans({ time: ss.time, value }, ss.resolution, cells),
+    conversion: `put on version ${target} by the published time-dependent conversion ` +
+      "(Clette et al. 2014; Clette & Lefèvre 2016)",
+  };
+}
+
+/**
+ * A series averaged into the cells with the coverage rule of core/series (a monthly cell from
+ * daily values needs 20 of them, an annual cell 10 covered months; a partial year at an end is
+ * no cell).
+ */
+export function cellMeans(
+  series: { time: ArrayLike<number>; value: ArrayLike<number> },
+  from: TimeResolution,
+  cells: TargetCells,
+): Float64Array {
+  return resampledAtPeriodKeys(series, from, cells.resolution, cells.keys);
 }
 
 /** Each model term mapped from the cells' sunspot numbers (null without a sunspot series). */
 export function mappedProxies(
   stored: StoredProxyModel,
-  sunspot: SunspotInput | null,
+  sunspotAtCells: Float64Array | null,
   n: number,
 ): ReconstructionCells["mapped"] {
   return stored.model.terms.map((t) => {
-    if (!sunspot || !stored.mappings) return null;
+    if (!sunspotAtCells || !stored.mappings) return null;
     const value = new Float64Array(n), paramVariance = new Float64Array(n);
     const m = mappingFromJson(stored.mappings.terms[t.name].chosen);
-    evaluateSunspotMapping(m, sunspot.atCells, value, paramVariance);
+    evaluateSunspotMapping(m, sunspotAtCells, value, paramVariance);
     return { value, paramVariance };
   });
 }

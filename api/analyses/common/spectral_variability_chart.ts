@@ -9,7 +9,7 @@
  */
 import type { ChartSpec, Layer } from "../../charts/chart.ts";
 import type { RunRecord } from "../../store/types.ts";
-import { runDescription, runNotes } from "../../charts/run_common.ts";
+import { runDescription, runNotes, runTitle } from "../../charts/run_common.ts";
 
 /** One band's relative variability and its uncertainty (null sd: none stated). */
 export interface BandVariabilityPoint {
@@ -74,7 +74,7 @@ export function spectralVariabilityChart(
     });
   }
   return {
-    title: `Relative solar-cycle variability by wavelength band · run ${run.id.slice(0, 8)}`,
+    title: runTitle("Relative solar-cycle variability by wavelength band", run),
     description: runDescription(
       run,
       `${what} Each marker is one band at its geometric centre; both axes are logarithmic, so ` +
@@ -87,6 +87,6 @@ export function spectralVariabilityChart(
     },
     y: { label: "|Cycle amplitude| / level", kind: "log" },
     layers,
-    notes: runNotes(run),
+    ...runNotes(run),
   };
 }

@@ -18,17 +18,16 @@ import {
   tsiCycleAmplitude,
   withSecularBackground,
 } from "../../../core/irradiance/mod.ts";
-import { seriesAtPeriodKeys } from "../../../core/series/mod.ts";
 import { normalQuantile } from "../../../core/stats/distributions.ts";
 import { parsePeriod } from "../common/time_period.ts";
 import { withInputPointers } from "../common/input_problem.ts";
 import {
   ASSESSMENT_CAUTION,
-  cycleAmplitudeWarning,
   PRE_SATELLITE_CAUTION,
   quietSunWarning,
 } from "../common/irradiance_notes.ts";
 import {
+  cellMeans,
   coverageJson,
   coverageWarnings,
   directProxies,
@@ -41,6 +40,7 @@ import {
   type TargetCells,
   targetCells,
 } from "../common/reconstruction_inputs.ts";
+import { cycleAmplitudeCheck } from "./amplitude_check.ts";
 import { irradianceModels } from "../irradiance_models/mod.ts";
 import type { ModelResultOut } from "../irradiance_models/result.ts";
 import { cycleAmplitudeJson } from "../common/tsi_cycle_amplitude.ts";
@@ -61,7 +61,7 @@ export function computeReconstruction(
   const sunspot = params.sunspot_number === undefined
     ? null
     : sunspotInput(params, ctx, stored, cells, `model run ${params.model}`);
-  const mapped = mappedProxies(stored, sunspot, cells.keys.length);
+  const mapped = mappedProxies(stored, sunspot?.atCells ?? null, cells.keys.length);
   if (!direct.some((d) => d.some(Number.isFinite)) && !sunspot?.atCells.some(Number.isFinite)) {
     throw new InputProblem(
       "/period",
@@ -87,11 +87,25 @@ export function computeReconstruction(
     );
   }
   const amp = tsiCycleAmplitude(cells.time, rec.value);
+  const check = cycleAmplitudeCheck(
+    cells.time,
+    proxyOnly.value,
+    proxyOnly.source,
+    amp,
+    sunspot && {
+      value: reconstructFromProxies(reconstructionModel(stored), {
+        days: cells.days,
+        direct: direct.map(() => new Float64Array(cells.keys.length).fill(NaN)),
+        mapped: mappedProxies(stored, sunspot.reference.atCells, cells.keys.length),
+      }, z).value,
+      conversion: sunspot.reference.conversion,
+    },
+  );
   const warnings = [
     ...(sunspot?.warnings ?? []),
     ...coverageWarnings(coverage.missing, cells, sunspot),
     ...extrapolationWarnings(stored, direct, sunspot, rec),
-    ...cycleAmplitudeWarning(amp.median),
+    ...check.warnings,
     ...quietSunWarning(stored.model.quiet_sun.value),
   ];
   return {
@@ -106,6 +120,7 @@ export function computeReconstruction(
     coverage: coverageJson(coverage),
     source_segments: coverage.segments,
     cycle_amplitude: cycleAmplitudeJson(amp),
+    cycle_amplitude_check: check.json,
     outputs: { tsi: tsiOutput(params, cells, rec, scenario.label) },
     warnings,
     cautions: [...RECONSTRUCTION_CAUTIONS, `Background scenario: ${scenario.label}`],
@@ -185,10 +200,10 @@ function background(
       deltaTsi: bg.delta_tsi,
       calibrationPeriod: stored.model.calibration_period,
     }));
-  const atCells = seriesAtPeriodKeys(
+  const atCells = cellMeans(
     { time: sunspot.series.time, value: b.value },
-    cells.resolution,
-    cells.keys,
+    sunspot.resolution,
+    cells,
   );
   return {
     rec: withSecularBackground(rec, atCells),

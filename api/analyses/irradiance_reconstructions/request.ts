@@ -9,6 +9,7 @@ import { z } from "@hono/zod-openapi";
 import { PeriodInput } from "../common/time_period.ts";
 import { runRef } from "../common/run_ref.ts";
 import { duplicateProxyTerms, ReconstructionInputFields } from "../common/reconstruction_inputs.ts";
+import { DEMO_SERIES, EXAMPLE_RUN_ID } from "../../schemas/examples.ts";
 
 const SecularBackgroundRequest = z.discriminatedUnion("kind", [
   z.object({ kind: z.literal("none") }),
@@ -36,6 +37,14 @@ export const ReconstructionRequest = z.object({
   ...ReconstructionInputFields,
   background: SecularBackgroundRequest.default({ kind: "none" }),
 }).superRefine((v, ctx) => duplicateProxyTerms(v.proxies, (i) => ctx.addIssue(i)))
-  .openapi("ReconstructionRequest");
+  .openapi("ReconstructionRequest", {
+    example: {
+      model: EXAMPLE_RUN_ID,
+      sunspot_number: DEMO_SERIES.SSN,
+      proxies: [{ term: "mg_ii", series: DEMO_SERIES.MG }],
+      period: { start: "1700", end: "2025" },
+      resolution: "annual",
+    },
+  });
 
 export type ReconstructionParams = z.output<typeof ReconstructionRequest>;

@@ -66,6 +66,12 @@ export interface CalibrationAxis {
   bands: Float64Array[];
   /** The proxy terms on the axis, with the TSI model's quiet levels. */
   terms: ProxyTerm[];
+  /**
+   * Every cell from the first to the last of the axis (gaps of the band records included),
+   * with each proxy there (NaN where it has none): the cells whose cycles the variability is
+   * measured over, so a month missing from every band does not cut a year out of the proxies.
+   */
+  span_cells: { time: Float64Array; values: Float64Array[] };
 }
 
 /** Calibrate the band models and build the result. */
@@ -205,7 +211,15 @@ function calibrationAxis(
     );
   }
   const keys = Int32Array.from(complete, (i) => union[i]);
+  const spanKeys = Int32Array.from(
+    { length: keys[keys.length - 1] - keys[0] + 1 },
+    (_, i) => keys[0] + i,
+  );
   return {
+    span_cells: {
+      time: Float64Array.from(spanKeys, (k) => periodOfKey(k, res).middle),
+      values: proxiesAtCells(proxies, res, spanKeys).values,
+    },
     keys,
     time: Float64Array.from(keys, (k) => periodOfKey(k, res).middle),
     span: {

@@ -121,13 +121,15 @@ export function integralParts(
 
 /**
  * The cycle variability of a model (band or range) between the cycle extrema of the TSI
- * model's prediction on the calibration axis: amplitude β·Δx with Δx the regressors' mean
+ * model's prediction from the proxies over the calibration span (every cell from the first to
+ * the last of the axis): amplitude β·Δx with Δx the regressors' mean
  * change from minimum to maximum, level β₀ + β·x̄, SD √(Δxᵀ S Δx) (delta method).
  */
 function cycleOf(axis: CalibrationAxis, tsi: ModelResultOut) {
   const m = tsi.model;
-  const regressors = axis.terms.map((t) =>
-    t.values.map((v) => proxyRegressor(t.role, t.quietLevel!, m.psi_reference, v))
+  const span = axis.span_cells;
+  const regressors = axis.terms.map((t, k) =>
+    span.values[k].map((v) => proxyRegressor(t.role, t.quietLevel!, m.psi_reference, v))
   );
   const reference = evaluateProxyModel(
     {
@@ -135,9 +137,9 @@ function cycleOf(axis: CalibrationAxis, tsi: ModelResultOut) {
       terms: m.terms.map((t) => ({ role: t.role, quietLevel: t.quiet_level })),
       psiReference: m.psi_reference,
     },
-    axis.terms.map((t) => t.values),
+    span.values,
   );
-  const v = bandCycleVariability(axis.time, regressors, reference);
+  const v = bandCycleVariability(span.time, regressors, reference);
   const dx = v.bands.map((b) => b.amplitude), xbar = v.bands.map((b) => b.level);
   const ok = v.cycles.length > 0 && dx.every((x) => x !== null) && xbar.every((x) => x !== null);
   return {

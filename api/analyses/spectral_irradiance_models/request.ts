@@ -11,6 +11,7 @@ import { z } from "@hono/zod-openapi";
 import { SeriesRef } from "../../schemas/series_ref.ts";
 import { PeriodInput } from "../common/time_period.ts";
 import { runRef } from "../common/run_ref.ts";
+import { DEMO_SERIES, DEMO_SPECTRAL_BANDS, EXAMPLE_RUN_ID } from "../../schemas/examples.ts";
 import { duplicateProxyTerms } from "../common/reconstruction_inputs.ts";
 import {
   bandOrderIssues,
@@ -66,6 +67,14 @@ export const SpectralModelRequest = z.object({
   bandOrderIssues(v.bands, add);
   rangeOrderIssues(v.ranges, add);
   duplicateProxyTerms(v.proxies, add);
-}).openapi("SpectralModelRequest");
+}).openapi("SpectralModelRequest", {
+  example: {
+    tsi_model: EXAMPLE_RUN_ID,
+    sunspot_number: DEMO_SERIES.SSN,
+    proxies: [{ term: "mg_ii", series: DEMO_SERIES.MG }],
+    bands: DEMO_SPECTRAL_BANDS.map((b) => ({ ...b })),
+    ranges: [{ lower: 200, upper: 400 }],
+  },
+});
 
 export type SpectralModelParams = z.output<typeof SpectralModelRequest>;

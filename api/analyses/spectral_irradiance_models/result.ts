@@ -9,7 +9,7 @@
  * @module
  */
 import { z } from "@hono/zod-openapi";
-import { cautions, nums, OutputSeriesSchema, warnings } from "../common/result_parts.ts";
+import { cautions, inherited, nums, OutputSeriesSchema, warnings } from "../common/result_parts.ts";
 import { IrradianceModel, SunspotMappings } from "../irradiance_models/result.ts";
 import { BandBounds } from "../common/spectrum_block.ts";
 
@@ -189,6 +189,7 @@ export const SpectralModelResult = z.object({
   }),
   warnings,
   cautions,
+  inherited,
 }).openapi("SpectralModelResult");
 
 /** The result as `compute` builds it. */

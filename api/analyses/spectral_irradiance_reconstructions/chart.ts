@@ -9,7 +9,7 @@
  */
 import type { KindChart } from "../../runs/kind.ts";
 import type { Layer } from "../../charts/chart.ts";
-import { runDescription, runNotes } from "../../charts/run_common.ts";
+import { runDescription, runNotes, runTitle } from "../../charts/run_common.ts";
 import { spectralVariabilityChart } from "../common/spectral_variability_chart.ts";
 import type { SpectralReconstructionResultOut } from "./result.ts";
 
@@ -40,9 +40,7 @@ export const spectralReconstructionChart: KindChart<SpectralReconstructionResult
       }
     }
     return {
-      title: `Reconstructed spectral irradiance by band (${r.resolution} means) · run ${
-        run.id.slice(0, 8)
-      }`,
+      title: runTitle(`Reconstructed spectral irradiance by band (${r.resolution} means)`, run),
       description: runDescription(
         run,
         "Chosen bands of the spectral reconstruction, each as the percentage change from its " +
@@ -53,7 +51,7 @@ export const spectralReconstructionChart: KindChart<SpectralReconstructionResult
       x: { label: "Year", kind: "year" },
       y: { label: "Change from the band's mean (%)" },
       layers,
-      notes: runNotes(run),
+      ...runNotes(run),
     };
   },
   views: {

@@ -81,7 +81,7 @@ export function computeSpectralReconstruction(
   const input: ReconstructionCells = {
     days: cells.days,
     direct,
-    mapped: mappedProxies(model.tsi, sunspot, cells.keys.length),
+    mapped: mappedProxies(model.tsi, sunspot?.atCells ?? null, cells.keys.length),
   };
   const bands = reconstructFromProxiesMany(
     model.models,

@@ -7,6 +7,7 @@
  */
 import { z } from "@hono/zod-openapi";
 import { runRef } from "../common/run_ref.ts";
+import { DEMO_SERIES, EXAMPLE_RUN_ID } from "../../schemas/examples.ts";
 import { duplicateProxyTerms, ReconstructionInputFields } from "../common/reconstruction_inputs.ts";
 import { rangeOrderIssues, Wavelength, WavelengthRange } from "../common/wavelength_bands.ts";
 
@@ -26,6 +27,15 @@ export const SpectralReconstructionRequest = z.object({
   const add = (i: Parameters<typeof ctx.addIssue>[0]) => ctx.addIssue(i);
   duplicateProxyTerms(v.proxies, add);
   rangeOrderIssues(v.ranges, add);
-}).openapi("SpectralReconstructionRequest");
+}).openapi("SpectralReconstructionRequest", {
+  example: {
+    model: EXAMPLE_RUN_ID,
+    sunspot_number: DEMO_SERIES.SSN,
+    proxies: [{ term: "mg_ii", series: DEMO_SERIES.MG }],
+    period: { start: "1700", end: "2025" },
+    resolution: "annual",
+    ranges: [{ lower: 200, upper: 400 }],
+  },
+});
 
 export type SpectralReconstructionParams = z.output<typeof SpectralReconstructionRequest>;

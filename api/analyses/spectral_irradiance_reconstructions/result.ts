@@ -7,7 +7,7 @@
  * @module
  */
 import { z } from "@hono/zod-openapi";
-import { cautions, OutputSeriesSchema, warnings } from "../common/result_parts.ts";
+import { cautions, inherited, OutputSeriesSchema, warnings } from "../common/result_parts.ts";
 import { BandBounds, SpectrumBlock } from "../common/spectrum_block.ts";
 import { SpectralCoverageJson } from "../spectral_irradiance_models/result.ts";
 
@@ -102,6 +102,7 @@ export const SpectralReconstructionResult = z.object({
   }),
   warnings,
   cautions,
+  inherited,
 }).openapi("SpectralReconstructionResult");
 
 /** The result as `compute` builds it. */
