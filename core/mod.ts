@@ -12,3 +12,4 @@ export * from "./stats/mod.ts";
 export * from "./climate/mod.ts";
 export * from "./irradiance/mod.ts";
 export * from "./errors.ts";
+export * from "./field/mod.ts";

@@ -50,6 +50,7 @@ Deno.test("core/mod.ts loses no export to a name clash between areas", async () 
     "stats",
     "climate",
     "irradiance",
+    "field",
   ];
   const seen = new Map<string, string>();
   const clashes: string[] = [];
