@@ -13,3 +13,4 @@ export * from "./climate/mod.ts";
 export * from "./irradiance/mod.ts";
 export * from "./errors.ts";
 export * from "./field/mod.ts";
+export * from "./cf/mod.ts";

@@ -23,6 +23,12 @@ import { outputToCsv } from "../export/csv.ts";
 import { wantsCsv } from "./format.ts";
 import { immutableHeaders, notModified } from "./cache.ts";
 import { ImmutableCache, serveRepresentation } from "./immutable_cache.ts";
+import {
+  CalendarQuery,
+  NETCDF_CONTENT,
+  runOutputNetcdfResponse,
+  wantsNetcdf,
+} from "../netcdf/http.ts";
 
 const FINAL = new Set(["succeeded", "failed", "cancelled"]);
 
@@ -250,11 +256,14 @@ export function registerRunRoutes(app: App, deps: { store: Store; runs: RunServi
       method: "get",
       path: "/v1/runs/{id}/outputs/{name}",
       tags: ["Runs"],
-      summary:
-        "One series-like output of a run, as JSON or CSV (`Accept: text/csv` or `?format=csv`)",
+      summary: "One series-like output of a run, as JSON, CSV (`Accept: text/csv` or " +
+        "`?format=csv`) or NetCDF-CF (`Accept: application/x-netcdf` or `?format=netcdf`)",
       request: {
         params: OutputParams,
-        query: z.object({ format: z.enum(["json", "csv"]).optional() }),
+        query: z.object({
+          format: z.enum(["json", "csv", "netcdf"]).optional(),
+          calendar: CalendarQuery,
+        }),
       },
       responses: {
         200: {
@@ -262,10 +271,11 @@ export function registerRunRoutes(app: App, deps: { store: Store; runs: RunServi
           content: {
             "application/json": { schema: z.record(z.string(), z.unknown()) },
             "text/csv": { schema: z.string() },
+            ...NETCDF_CONTENT,
           },
         },
         304: { description: "Not modified" },
-        ...problems(404),
+        ...problems(404, 409, 422),
       },
     }),
     // deno-lint-ignore no-explicit-any
@@ -281,6 +291,7 @@ export function registerRunRoutes(app: App, deps: { store: Store; runs: RunServi
             (names.length ? `; outputs: ${names.join(", ")}` : "; it has no series outputs"),
         );
       }
+      if (wantsNetcdf(c)) return runOutputNetcdfResponse(c, run, name, o);
       const csv = wantsCsv(c);
       const etag = `"run-${run.id}-${run.result_digest}-${name}-${csv ? "csv" : "json"}"`;
       const nm = notModified(c, etag);

@@ -23,6 +23,16 @@ import { ingestJson, ingestText, seriesToCsv } from "../ingest/mod.ts";
 import { storedFromNormalised } from "../series_codec.ts";
 import { wantsCsv } from "./format.ts";
 import { immutableHeaders, notModified } from "./cache.ts";
+import {
+  CalendarQuery,
+  ingestNetcdfUpload,
+  isNetcdfMediaType,
+  NETCDF_CONTENT,
+  NETCDF_MEDIA_TYPE,
+  seriesNetcdfResponse,
+  VariableQuery,
+  wantsNetcdf,
+} from "../netcdf/http.ts";
 
 const SeriesIdParam = z.object({
   id: z.string().openapi({ param: { name: "id", in: "path" }, example: "sha256:..." }),
@@ -84,7 +94,7 @@ export function registerSeriesRoutes(app: App, deps: { store: Store; config: Con
         "canonical JSON of the normalised series: uploading the same content again returns 200 and " +
         "the existing series. Nothing partial is ever stored.",
       request: {
-        query: TextUploadQuery.partial(),
+        query: TextUploadQuery.partial().extend({ variable: VariableQuery }),
         body: {
           // Not `required` here: the JSON schema then applies only to JSON bodies, and text
           // bodies are parsed by the handler.
@@ -94,6 +104,7 @@ export function registerSeriesRoutes(app: App, deps: { store: Store; config: Con
             "text/csv": {
               schema: z.string().openapi({ example: "time,value\n2001-01,80.2\n2001-02,85.1\n" }),
             },
+            ...NETCDF_CONTENT,
           },
         },
       },
@@ -126,14 +137,16 @@ export function registerSeriesRoutes(app: App, deps: { store: Store; config: Con
         }
         const bytes = new Uint8Array(await c.req.arrayBuffer());
         outcome = ingestText(bytes, q.data);
+      } else if (isNetcdfMediaType(ct)) {
+        outcome = await ingestNetcdfUpload(c, deps.config.bodyLimitBytes);
       } else {
         throw new ProblemError(
           "unsupported-media-type",
-          `Upload a series as application/json or text/csv (also text/plain, text/tab-separated-values); the request said "${
+          `Upload a series as application/json, text/csv (also text/plain, text/tab-separated-values) or ${NETCDF_MEDIA_TYPE}; the request said "${
             ct || "(no Content-Type)"
           }"`,
           {},
-          { Accept: "application/json, text/csv" },
+          { Accept: `application/json, text/csv, ${NETCDF_MEDIA_TYPE}` },
         );
       }
       if (!outcome.ok) {
@@ -191,10 +204,14 @@ export function registerSeriesRoutes(app: App, deps: { store: Store; config: Con
       method: "get",
       path: "/v1/series/{id}",
       tags: ["Series"],
-      summary: "One series with its points (JSON, or CSV with `Accept: text/csv` or `?format=csv`)",
+      summary: "One series with its points (JSON, CSV with `Accept: text/csv` or `?format=csv`, " +
+        "NetCDF-CF with `Accept: application/x-netcdf` or `?format=netcdf`)",
       request: {
         params: SeriesIdParam,
-        query: z.object({ format: z.enum(["json", "csv"]).optional() }),
+        query: z.object({
+          format: z.enum(["json", "csv", "netcdf"]).optional(),
+          calendar: CalendarQuery,
+        }),
       },
       responses: {
         200: {
@@ -202,15 +219,17 @@ export function registerSeriesRoutes(app: App, deps: { store: Store; config: Con
           content: {
             "application/json": { schema: SeriesSchema },
             "text/csv": { schema: z.string() },
+            ...NETCDF_CONTENT,
           },
         },
         304: { description: "Not modified (series are immutable)" },
-        ...problems(404),
+        ...problems(404, 422),
       },
     }),
     // deno-lint-ignore no-explicit-any
     (async (c: any) => {
       const id = c.req.valid("param").id;
+      if (wantsNetcdf(c)) return await seriesNetcdfResponse(c, store, id);
       const csv = wantsCsv(c);
       const etag = `"${id}${csv ? "-csv" : ""}"`;
       // Existence first (cheap), then a 304 without reading the points.
