@@ -28,7 +28,10 @@ import type {
   Store,
   StoredSeries,
 } from "./types.ts";
+import type { FieldDescription, FieldHolder, FieldMeta, FieldStaging } from "./field_types.ts";
 import { bytesLEToFloat64, float64ToBytesLE } from "./float64_blob.ts";
+import { FIELD_MIGRATION_NAME, POSTGRES_FIELD_SQL } from "./field_common.ts";
+import { PostgresFields } from "./postgres_fields.ts";
 import {
   checkPaging,
   checkSeries,
@@ -141,6 +144,7 @@ export const POSTGRES_MIGRATIONS: readonly Migration[] = [
       CREATE INDEX runs_open ON runs (status) WHERE status IN ('queued', 'running');
     `,
   },
+  { version: 3, name: FIELD_MIGRATION_NAME, sql: POSTGRES_FIELD_SQL },
 ];
 
 /** Options of {@link openPostgresStore}. */
@@ -190,10 +194,12 @@ function fromBase64(b64: string, n: number): Float64Array {
 export class PostgresStore implements Store {
   readonly kind = "postgres";
   #sql: Sql;
+  #fields: PostgresFields;
 
   /** Use {@link openPostgresStore}; the constructor expects a migrated database. */
   constructor(sql: Sql) {
     this.#sql = sql;
+    this.#fields = new PostgresFields(sql);
   }
 
   /** True when the server answers `SELECT 1` within `timeoutMs` (default 2 s). */
@@ -333,6 +339,7 @@ export class PostgresStore implements Store {
         INSERT INTO runs ${tx(runRow(r))} ON CONFLICT (id) DO NOTHING RETURNING id`;
       if (inserted.length === 0) throw new DuplicateRunError(r.id);
       await this.#writeLinks(tx, r.id, r.input_series, r.input_runs);
+      await this.#fields.linkRun(tx, r.id, r.input_fields ?? []);
     });
   }
 
@@ -392,8 +399,10 @@ export class PostgresStore implements Store {
       if (rows.length === 0) return null;
       const row: DbRow = rows[0];
       const links = (await this.#links(tx, [id])).get(id)!;
+      const fields = await this.#fields.runFields(tx, id);
       const record: RunRecord = {
         ...toRunSummary(row, links.series, links.runs),
+        ...(fields.length ? { input_fields: fields } : {}),
         params: JSON.parse(text(row.params)),
         result: jsonOrNull(row.result),
         error: jsonOrNull(row.error),
@@ -495,6 +504,60 @@ export class PostgresStore implements Store {
   }
 
   /** Applied schema steps, oldest first. */
+  beginField(f: FieldStaging): Promise<number> {
+    return this.#fields.begin(f);
+  }
+
+  putFieldBlock(
+    stage: number,
+    index: number,
+    tStart: number,
+    rows: number,
+    values: Float32Array,
+  ): Promise<void> {
+    return this.#fields.putBlock(stage, index, tStart, rows, values);
+  }
+
+  commitField(
+    stage: number,
+    id: string,
+    holder?: FieldHolder,
+  ): Promise<{ created: boolean; field: FieldMeta }> {
+    return this.#fields.commit(stage, id, holder);
+  }
+
+  abortField(stage: number): Promise<void> {
+    return this.#fields.abort(stage);
+  }
+
+  dropStagedFields(olderThanSeconds: number): Promise<number> {
+    return this.#fields.dropStaged(olderThanSeconds);
+  }
+
+  getField(id: string): Promise<FieldDescription | null> {
+    return this.#fields.get(id);
+  }
+
+  listFields(q: { limit: number; offset: number }): Promise<Page<FieldMeta>> {
+    return this.#fields.list(q);
+  }
+
+  readFieldSteps(id: string, tStart: number, tEnd: number): Promise<Float32Array> {
+    return this.#fields.readSteps(id, tStart, tEnd);
+  }
+
+  readFieldCell(id: string, cell: number): Promise<Float32Array> {
+    return this.#fields.readCell(id, cell);
+  }
+
+  deleteField(id: string): Promise<"deleted" | "not_found" | "in_use"> {
+    return this.#fields.delete(id);
+  }
+
+  runsUsingField(id: string): Promise<string[]> {
+    return this.#fields.runsUsing(id);
+  }
+
   async schemaVersions(): Promise<{ version: number; name: string; applied_at: string }[]> {
     const rows = await this.#sql`
       SELECT version, name, applied_at FROM schema_migrations ORDER BY version`;

@@ -31,7 +31,10 @@ import type {
   Store,
   StoredSeries,
 } from "./types.ts";
+import type { FieldDescription, FieldHolder, FieldMeta, FieldStaging } from "./field_types.ts";
 import { bytesLEToFloat64, float64ToBytesLE } from "./float64_blob.ts";
+import { FIELD_MIGRATION_NAME, SQLITE_FIELD_SQL } from "./field_common.ts";
+import { SqliteFields } from "./sqlite_fields.ts";
 import { TERMINAL } from "./types.ts";
 import {
   checkPaging,
@@ -140,6 +143,7 @@ export const SQLITE_MIGRATIONS: readonly Migration[] = [
       CREATE INDEX runs_open ON runs (status) WHERE status IN ('queued', 'running');
     `,
   },
+  { version: 3, name: FIELD_MIGRATION_NAME, sql: SQLITE_FIELD_SQL },
 ];
 
 /** Options of {@link openSqliteStore}. */
@@ -176,10 +180,12 @@ export class SqliteStore implements Store {
   readonly kind = "sqlite";
   #db: DatabaseSync;
   #stmts = new Map<string, StatementSync>();
+  #fields: SqliteFields;
 
   /** Use {@link openSqliteStore}; the constructor expects a database already migrated. */
   constructor(db: DatabaseSync, readonly path: string) {
     this.#db = db;
+    this.#fields = new SqliteFields(db);
   }
 
   #stmt(sql: string): StatementSync {
@@ -390,6 +396,7 @@ export class SqliteStore implements Store {
           `INSERT INTO runs (${RUN_ALL}) VALUES (${marks(RUN_COLUMNS.length)})`,
         ).run(...runValues(r));
         this.#writeLinks(r.id, r.input_series, r.input_runs);
+        if (r.input_fields?.length) this.#fields.linkRun(r.id, r.input_fields);
       });
       return undefined;
     });
@@ -463,8 +470,10 @@ export class SqliteStore implements Store {
         | undefined;
       if (!row) return null;
       const links = this.#links([id]).get(id)!;
+      const fields = this.#fields.runFields(id);
       const record: RunRecord = {
         ...toRunSummary(row, links.series, links.runs),
+        ...(fields.length ? { input_fields: fields } : {}),
         params: JSON.parse(text(row.params)),
         result: jsonOrNull(row.result),
         error: jsonOrNull(row.error),
@@ -611,10 +620,65 @@ export class SqliteStore implements Store {
     });
   }
 
+  beginField(f: FieldStaging): Promise<number> {
+    return settle(() => this.#fields.begin(f));
+  }
+
+  putFieldBlock(
+    stage: number,
+    index: number,
+    tStart: number,
+    rows: number,
+    values: Float32Array,
+  ): Promise<void> {
+    return settle(() => this.#fields.putBlock(stage, index, tStart, rows, values));
+  }
+
+  commitField(
+    stage: number,
+    id: string,
+    holder?: FieldHolder,
+  ): Promise<{ created: boolean; field: FieldMeta }> {
+    return settle(() => this.#fields.commit(stage, id, holder));
+  }
+
+  abortField(stage: number): Promise<void> {
+    return settle(() => this.#fields.abort(stage));
+  }
+
+  dropStagedFields(olderThanSeconds: number): Promise<number> {
+    return settle(() => this.#fields.dropStaged(olderThanSeconds));
+  }
+
+  getField(id: string): Promise<FieldDescription | null> {
+    return settle(() => this.#fields.get(id));
+  }
+
+  listFields(q: { limit: number; offset: number }): Promise<Page<FieldMeta>> {
+    return settle(() => this.#fields.list(q));
+  }
+
+  readFieldSteps(id: string, tStart: number, tEnd: number): Promise<Float32Array> {
+    return settle(() => this.#fields.readSteps(id, tStart, tEnd));
+  }
+
+  readFieldCell(id: string, cell: number): Promise<Float32Array> {
+    return settle(() => this.#fields.readCell(id, cell));
+  }
+
+  deleteField(id: string): Promise<"deleted" | "not_found" | "in_use"> {
+    return settle(() => this.#fields.delete(id));
+  }
+
+  runsUsingField(id: string): Promise<string[]> {
+    return settle(() => this.#fields.runsUsing(id));
+  }
+
   close(): Promise<void> {
     return settle(() => {
       if (this.#db.isOpen) {
         this.#stmts.clear();
+        this.#fields.clear();
         this.#db.close();
       }
       return undefined;

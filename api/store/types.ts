@@ -5,6 +5,9 @@
  *
  * @module
  */
+import type { FieldStore } from "./field_types.ts";
+
+export type * from "./field_types.ts";
 
 /** Sampling resolution inferred from the time axis. */
 export type Resolution = "daily" | "monthly" | "annual" | "irregular";
@@ -61,6 +64,8 @@ export interface RunRecord {
   input_series: string[];
   /** Ids of every input run (e.g. a calibrated model cited by a reconstruction), sorted. */
   input_runs: string[];
+  /** Ids of every input gridded field, sorted; absent when the run has none. */
+  input_fields?: string[];
   service_version: string;
   algorithm_version: string;
   seed: number | null;
@@ -81,7 +86,7 @@ export interface Page<T> {
   total: number;
 }
 
-export interface Store {
+export interface Store extends FieldStore {
   /** "sqlite" (file or memory) or "postgres". */
   readonly kind: string;
   /** True when the store answers a trivial query. */
