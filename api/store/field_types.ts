@@ -86,6 +86,12 @@ export interface FieldDescription extends FieldMeta {
   lon_bounds: Float64Array | null;
 }
 
+/** What is known of a field only once its values are read. */
+export interface FieldFinal {
+  missing: number;
+  info: FieldInfo;
+}
+
 /** What `beginField` records (the id comes at commit). */
 export type FieldStaging = Omit<FieldDescription, "id" | "owner" | "visibility">;
 
@@ -105,14 +111,16 @@ export interface FieldStore {
     values: Float32Array,
   ): Promise<void>;
   /**
-   * Make a staged field visible under its content id, held by `holder` (default the local
-   * owner, private). When that id is already stored, the staged copy is dropped and the
-   * stored field answered with `created: false`.
+   * Make a staged field visible under its content id, with what reading its values found
+   * (`final`: the count of missing values and the info with the value range), held by
+   * `holder` (default the local owner, private). When that id is already stored, the staged
+   * copy is dropped and the stored field answered with `created: false`.
    * @throws {RangeError} when the staged blocks do not cover every time step
    */
   commitField(
     stage: number,
     id: string,
+    final?: FieldFinal,
     holder?: FieldHolder,
   ): Promise<{ created: boolean; field: FieldMeta }>;
   /** Remove a staged field (an upload that failed). */

@@ -28,7 +28,13 @@ import type {
   Store,
   StoredSeries,
 } from "./types.ts";
-import type { FieldDescription, FieldHolder, FieldMeta, FieldStaging } from "./field_types.ts";
+import type {
+  FieldDescription,
+  FieldFinal,
+  FieldHolder,
+  FieldMeta,
+  FieldStaging,
+} from "./field_types.ts";
 import { bytesLEToFloat64, float64ToBytesLE } from "./float64_blob.ts";
 import { FIELD_MIGRATION_NAME, POSTGRES_FIELD_SQL } from "./field_common.ts";
 import { PostgresFields } from "./postgres_fields.ts";
@@ -521,9 +527,10 @@ export class PostgresStore implements Store {
   commitField(
     stage: number,
     id: string,
+    final?: FieldFinal,
     holder?: FieldHolder,
   ): Promise<{ created: boolean; field: FieldMeta }> {
-    return this.#fields.commit(stage, id, holder);
+    return this.#fields.commit(stage, id, final, holder);
   }
 
   abortField(stage: number): Promise<void> {

@@ -9,7 +9,13 @@
 import type postgres from "postgres";
 import { Buffer } from "node:buffer";
 import { uuidv7 } from "uuidv7";
-import type { FieldDescription, FieldHolder, FieldMeta, FieldStaging } from "./field_types.ts";
+import type {
+  FieldDescription,
+  FieldFinal,
+  FieldHolder,
+  FieldMeta,
+  FieldStaging,
+} from "./field_types.ts";
 import { LOCAL_FIELD_HOLDER } from "./field_types.ts";
 import type { Page } from "./types.ts";
 import {
@@ -105,6 +111,7 @@ export class PostgresFields {
   async commit(
     stage: number,
     id: string,
+    final?: FieldFinal,
     holder: FieldHolder = LOCAL_FIELD_HOLDER,
   ): Promise<{ created: boolean; field: FieldMeta }> {
     return await this.sql.begin(async (tx: Tx) => {
@@ -123,6 +130,12 @@ export class PostgresFields {
         await tx`DELETE FROM field_blocks WHERE field_seq = ${stage}`;
         await tx`DELETE FROM fields WHERE seq = ${stage}`;
       } else {
+        if (final) {
+          await tx`UPDATE fields SET missing = ${final.missing}, info = ${
+            JSON.stringify(final.info)
+          }
+            WHERE seq = ${stage}`;
+        }
         await tx`UPDATE fields SET id = ${id}, state = 'ready', created_at = ${now}
           WHERE seq = ${stage}`;
         created = true;

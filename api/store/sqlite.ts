@@ -31,7 +31,13 @@ import type {
   Store,
   StoredSeries,
 } from "./types.ts";
-import type { FieldDescription, FieldHolder, FieldMeta, FieldStaging } from "./field_types.ts";
+import type {
+  FieldDescription,
+  FieldFinal,
+  FieldHolder,
+  FieldMeta,
+  FieldStaging,
+} from "./field_types.ts";
 import { bytesLEToFloat64, float64ToBytesLE } from "./float64_blob.ts";
 import { FIELD_MIGRATION_NAME, SQLITE_FIELD_SQL } from "./field_common.ts";
 import { SqliteFields } from "./sqlite_fields.ts";
@@ -637,9 +643,10 @@ export class SqliteStore implements Store {
   commitField(
     stage: number,
     id: string,
+    final?: FieldFinal,
     holder?: FieldHolder,
   ): Promise<{ created: boolean; field: FieldMeta }> {
-    return settle(() => this.#fields.commit(stage, id, holder));
+    return settle(() => this.#fields.commit(stage, id, final, holder));
   }
 
   abortField(stage: number): Promise<void> {

@@ -8,7 +8,13 @@
  */
 import type { DatabaseSync, SQLInputValue, StatementSync } from "node:sqlite";
 import { uuidv7 } from "uuidv7";
-import type { FieldDescription, FieldHolder, FieldMeta, FieldStaging } from "./field_types.ts";
+import type {
+  FieldDescription,
+  FieldFinal,
+  FieldHolder,
+  FieldMeta,
+  FieldStaging,
+} from "./field_types.ts";
 import { LOCAL_FIELD_HOLDER } from "./field_types.ts";
 import type { Page } from "./types.ts";
 import {
@@ -110,6 +116,7 @@ export class SqliteFields {
   commit(
     stage: number,
     id: string,
+    final?: FieldFinal,
     holder: FieldHolder = LOCAL_FIELD_HOLDER,
   ): { created: boolean; field: FieldMeta } {
     return this.#tx("BEGIN IMMEDIATE", () => {
@@ -130,6 +137,10 @@ export class SqliteFields {
         this.#stmt("DELETE FROM field_blocks WHERE field_seq = ?").run(stage);
         this.#stmt("DELETE FROM fields WHERE seq = ?").run(stage);
       } else {
+        if (final) {
+          this.#stmt("UPDATE fields SET missing = ?, info = ? WHERE seq = ?")
+            .run(final.missing, JSON.stringify(final.info), stage);
+        }
         this.#stmt("UPDATE fields SET id = ?, state = 'ready', created_at = ? WHERE seq = ?")
           .run(id, now, stage);
         created = true;
