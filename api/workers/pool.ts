@@ -7,7 +7,6 @@
  *
  * @module
  */
-import type { RunRecord, StoredSeries } from "../store/types.ts";
 import type { RunInputs, RunKind, RunResult } from "../runs/kind.ts";
 import { CancelledError, InputProblem } from "../runs/kind.ts";
 import { InputError } from "../../core/errors.ts";
