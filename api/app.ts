@@ -25,6 +25,7 @@ import { registerChartRoutes } from "./routes/charts.ts";
 import { registerKindRoutes } from "./routes/kinds.ts";
 import { registerSeriesRoutes } from "./routes/series.ts";
 import { registerFieldRoutes } from "./routes/fields.ts";
+import { registerMapRoutes } from "./routes/maps.ts";
 import { registerBundleRoutes } from "./routes/bundles.ts";
 import { registerUiRoutes } from "./ui/routes.ts";
 import { seriesCodec } from "./series_codec.ts";
@@ -151,6 +152,7 @@ export function createService(deps: AppDeps): Service {
   registerUiRoutes(app);
   registerSeriesRoutes(app, { store, config });
   registerFieldRoutes(app, { store, config });
+  registerMapRoutes(app, { store });
   registerRunRoutes(app, { store, runs });
   registerChartRoutes(app, { store, kinds });
   registerBundleRoutes(app, { store, runs });
