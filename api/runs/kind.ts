@@ -78,6 +78,8 @@ export interface FieldRef {
   pointer: string;
   from?: number;
   to?: number;
+  /** Load at most this many steps from the start of the span (e.g. 1 for a mask). */
+  firstSteps?: number;
   /** Where the span came from, for the problem when the field has no step in it. */
   spanPointer?: string;
 }

@@ -351,6 +351,7 @@ export class RunService {
       let a = 0, b = f.n_time;
       while (a < b && f.time[a] < from) a++;
       while (b > a && f.time[b - 1] > to) b--;
+      if (ref.firstSteps !== undefined) b = Math.min(b, a + Math.max(1, ref.firstSteps));
       if (b <= a) {
         errors.push({
           pointer: ref.spanPointer ?? ref.pointer,
