@@ -11,3 +11,6 @@ export const TSIM = "sha256:dcd8d0bcd0c66f73a1a079649dbcd55d3d0e247c1329eb803a87
 export const TEMP = "sha256:dc57cafa9ebf93093645c18f5c57f2c59cb3dfc8505841586e88f241a195e480";
 export const ENSO = "sha256:481ce6e1b9d72efaae13afddd39bedb997b7eebfeb98f820f0c696d890d89d39";
 export const AOD = "sha256:1c90d09c4d2ddc23a99dac7abac5521ad06226ec60fd89683fd85a8ff665f8d7";
+/** The demo's gridded field (monthly 10° air temperature; a field id, not a series id). */
+export const FIELD =
+  "field:sha256:9e638701b97f5a020c0525c24628808eb8c395b5e326730a4bd06c7f2e710b35";

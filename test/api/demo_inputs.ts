@@ -7,6 +7,7 @@
  */
 import assert from "node:assert/strict";
 import type { TestService } from "./helpers.ts";
+import { FIELD } from "./demo_ids.ts";
 
 /** Content ids of the demo series loaded by `loadDemo`. */
 export const DEMO = {
@@ -26,6 +27,8 @@ export const DEMO = {
   ENSO: "sha256:481ce6e1b9d72efaae13afddd39bedb997b7eebfeb98f820f0c696d890d89d39",
   /** monthly aerosol optical depth */
   AOD: "sha256:1c90d09c4d2ddc23a99dac7abac5521ad06226ec60fd89683fd85a8ff665f8d7",
+  /** monthly 10° air temperature field (a gridded field, not a series) */
+  FIELD,
 } as const;
 
 /** The model request terms of the demo chain, given the saved PSI series id. */
