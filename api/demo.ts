@@ -11,6 +11,7 @@
 import { ingestText } from "./ingest/mod.ts";
 import type { TextIngestOptions } from "./ingest/mod.ts";
 import type { Store, StoredSeries } from "./store/types.ts";
+import { LOCAL_OWNER } from "./store/types.ts";
 import { storedFromNormalised } from "./series_codec.ts";
 import { withNetcdf } from "./netcdf/open.ts";
 import { storeNetcdfField } from "./fields/ingest.ts";
@@ -123,7 +124,7 @@ export async function loadDemoFields(store: Store, dir: URL = DEMO_DIR): Promise
   for (const e of await demoFieldEntries(dir)) {
     const out = await withNetcdf(
       new URL(e.file, dir).pathname,
-      (src) => storeNetcdfField(src, store, { variable: e.variable, ...e.upload }),
+      (src) => storeNetcdfField(src, store, { variable: e.variable, ...e.upload }, {}),
     );
     ids.push(out.field.id);
   }
@@ -143,7 +144,8 @@ export async function loadDemo(
 ): Promise<string[]> {
   const ids: string[] = [];
   for (const { series } of await readDemoSeries()) {
-    await store.putSeries(series);
+    // Public: on a shared instance every owner may try the demo.
+    await store.putSeries(series, { owner: LOCAL_OWNER, visibility: "public" });
     ids.push(series.id);
   }
   await loadDemoFields(store);

@@ -20,7 +20,7 @@ import { inferResolution } from "../../core/time/mod.ts";
 import { QUANTITIES } from "../../core/series/quantities.ts";
 import { canonicalJson } from "../canonical.ts";
 import { ProblemError } from "../problems.ts";
-import type { FieldHolder, FieldMeta, FieldStaging, Store } from "../store/types.ts";
+import type { FieldMeta, FieldStaging, HolderSpec, Store } from "../store/types.ts";
 import { float32ToBytesLE } from "../store/field_common.ts";
 import { describePlacement } from "../netcdf/cf_time_axis.ts";
 import { type CfGrid, describeCfGrid, readCfGridBlocks } from "../netcdf/cf_grid.ts";
@@ -211,7 +211,7 @@ function staging(grid: CfGrid, src: NetcdfSource, q: FieldUploadParams): FieldSt
  * @param src the open file
  * @param store where the field goes
  * @param q the upload query
- * @param holder who holds the stored field
+ * @param options who holds the stored field, the bytes read, and the storage admission
  * @returns the stored field's metadata, whether it is new, and the upload report
  * @throws {NetcdfError} for an unreadable file or variable; {@link ProblemError} for a bad
  *   choice of variable or missing units; nothing is stored then
@@ -220,12 +220,18 @@ export async function storeNetcdfField(
   src: NetcdfSource,
   store: Store,
   q: FieldUploadParams,
-  holder?: FieldHolder,
-  bytesRead = 0,
+  options: {
+    holder?: HolderSpec;
+    bytesRead?: number;
+    /** Called with the stored size (4 bytes a value) before any value is read: may refuse. */
+    admit?: (bytes: number) => Promise<void>;
+  } = {},
 ): Promise<{ created: boolean; field: FieldMeta; report: FieldUploadReport }> {
+  const { holder, bytesRead = 0 } = options;
   const grid = await describeCfGrid(src, chooseVariable(src, q.variable));
   checkTime(grid);
   const meta = staging(grid, src, q);
+  await options.admit?.(4 * meta.n_time * meta.n_lat * meta.n_lon);
   const stage = await store.beginField(meta);
   try {
     const hash = createHash("sha256");

@@ -431,7 +431,8 @@ function toNormalised(
       value: s.values,
       uncertainty: s.uncertainty,
       where: (i) => ({ pointer: "", column: name, row: i }),
-      whole: { pointer: "", in: "body" },
+      // Too few or too many points: the variable chosen is at fault.
+      whole: { pointer: "/variable", in: "query", column: name },
     },
     checked,
     "reject",

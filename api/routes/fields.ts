@@ -33,6 +33,10 @@ import { FieldUploadQuery, storeNetcdfField } from "../fields/ingest.ts";
 import { nearestCell, nearestStep } from "../fields/cells.ts";
 import { InputProblem } from "../runs/kind.ts";
 import { metaView } from "./series.ts";
+import { principalOf } from "../auth/authenticate.ts";
+import { holderOf, isLimited, viewerOf } from "../auth/principal.ts";
+import { mustSeeField, sharedCacheable } from "../auth/access.ts";
+import { checkStorage } from "../limits/quotas.ts";
 import { float32Text } from "../fields/float32_text.ts";
 
 const FieldIdParam = z.object({
@@ -166,10 +170,17 @@ function fullView(f: FieldDescription) {
   };
 }
 
-async function mustGetField(store: Store, id: string): Promise<FieldDescription> {
-  const f = await store.getField(id);
+/** A field the caller may see, with the holding it sees it through (404 otherwise). */
+async function mustGetField(
+  c: Context,
+  store: Store,
+  id: string,
+): Promise<{ f: FieldDescription; shared: boolean }> {
+  const p = principalOf(c);
+  const holding = await mustSeeField(store, p, id);
+  const f = await store.getField(id, viewerOf(p));
   if (!f) throw new ProblemError("not-found", `No field has id ${id}`);
-  return f;
+  return { f, shared: sharedCacheable(p, holding) };
 }
 
 /** A query's InputProblem as a 422 naming the query parameter. */
@@ -219,8 +230,10 @@ function cellSeriesInput(
 export async function uploadField(
   c: Context,
   store: Store,
-  limitBytes: number,
+  config: Config,
 ) {
+  const limitBytes = config.fieldLimitBytes;
+  const principal = principalOf(c);
   const ct = (c.req.header("content-type") ?? "").split(";")[0].trim().toLowerCase();
   if (!isNetcdfMediaType(ct) && ct !== "application/octet-stream") {
     throw new ProblemError(
@@ -260,7 +273,14 @@ export async function uploadField(
       c.req.raw.body,
       limitBytes,
       (path, size) =>
-        withNetcdf(path, (src) => storeNetcdfField(src, store, parsed.data, undefined, size)),
+        withNetcdf(path, (src) =>
+          storeNetcdfField(src, store, parsed.data, {
+            holder: holderOf(principal),
+            bytesRead: size,
+            admit: isLimited(principal)
+              ? (bytes) => checkStorage(store, principal.owner!, bytes, config.quotas)
+              : undefined,
+          })),
     );
   } catch (e) {
     if (e instanceof NetcdfError) {
@@ -314,12 +334,12 @@ export function registerFieldRoutes(app: App, deps: { store: Store; config: Conf
           description: "Stored",
           content: { "application/json": { schema: FieldUploadAnswer } },
         },
-        ...problems(413, 415, 422, 500),
+        ...problems(401, 403, 413, 415, 422, 429, 500),
       },
     }),
     // deno-lint-ignore no-explicit-any
     (async (c: any) => {
-      const out = await uploadField(c, store, deps.config.fieldLimitBytes);
+      const out = await uploadField(c, store, deps.config);
       c.header("Location", `/v1/fields/${out.field.id}`);
       return c.json(
         { created: out.created, field: fieldView(out.field), report: out.report },
@@ -345,7 +365,7 @@ export function registerFieldRoutes(app: App, deps: { store: Store; config: Conf
     }),
     async (c) => {
       const q = c.req.valid("query");
-      const page = await store.listFields(q);
+      const page = await store.listFields({ ...q, viewer: viewerOf(principalOf(c)) });
       return c.json({
         items: page.items.map(fieldView),
         total: page.total,
@@ -371,11 +391,9 @@ export function registerFieldRoutes(app: App, deps: { store: Store; config: Conf
     // deno-lint-ignore no-explicit-any
     (async (c: any) => {
       const id = c.req.valid("param").id;
-      const f = await mustGetField(store, id);
-      const etag = `"${id}-meta"`;
-      const nm = notModified(c, etag);
-      if (nm) return nm;
-      for (const [k, v] of Object.entries(immutableHeaders(etag))) c.header(k, v);
+      const { f } = await mustGetField(c, store, id);
+      // the metadata shows the caller's holding (owner, visibility): no shared cache
+      c.header("Cache-Control", "private, no-cache");
       return c.json(fullView(f));
     }) as never,
   );
@@ -403,7 +421,7 @@ export function registerFieldRoutes(app: App, deps: { store: Store; config: Conf
     (async (c: any) => {
       const id = c.req.valid("param").id;
       const q = c.req.valid("query");
-      const f = await mustGetField(store, id);
+      const { f, shared } = await mustGetField(c, store, id);
       let cell;
       try {
         cell = nearestCell(f, q.lat, q.lon);
@@ -412,10 +430,10 @@ export function registerFieldRoutes(app: App, deps: { store: Store; config: Conf
       }
       const csv = wantsCsv(c);
       const etag = `"${id}-cell-${cell.cell}${csv ? "-csv" : ""}"`;
-      const nm = notModified(c, etag);
+      const nm = notModified(c, etag, shared);
       if (nm) return nm;
       const values = await store.readFieldCell(id, cell.cell);
-      for (const [k, v] of Object.entries(immutableHeaders(etag))) c.header(k, v);
+      for (const [k, v] of Object.entries(immutableHeaders(etag, shared))) c.header(k, v);
       c.header("Vary", "Accept");
       const s = cellSeriesInput(f, values, cell);
       const res = f.resolution;
@@ -487,13 +505,14 @@ export function registerFieldRoutes(app: App, deps: { store: Store; config: Conf
     (async (c: any) => {
       const id = c.req.valid("param").id;
       const q = c.req.valid("query");
-      const f = await mustGetField(store, id);
+      const { f } = await mustGetField(c, store, id);
       let cell;
       try {
         cell = nearestCell(f, q.lat, q.lon);
       } catch (e) {
         throw queryProblem(e);
       }
+      const principal = principalOf(c);
       const values = await store.readFieldCell(id, cell.cell);
       const outcome = ingestJson(cellSeriesInput(f, values, cell));
       if (!outcome.ok) {
@@ -504,7 +523,10 @@ export function registerFieldRoutes(app: App, deps: { store: Store; config: Conf
         );
       }
       const stored = await storedFromNormalised(outcome.series, null);
-      const { created, series } = await store.putSeries(stored);
+      if (isLimited(principal)) {
+        await checkStorage(store, principal.owner!, stored.n * 24, deps.config.quotas);
+      }
+      const { created, series } = await store.putSeries(stored, holderOf(principal));
       c.header("Location", `/v1/series/${series.id}`);
       return c.json({ created, series: metaView(series) }, created ? 201 : 200);
     }) as never,
@@ -543,7 +565,7 @@ export function registerFieldRoutes(app: App, deps: { store: Store; config: Conf
     (async (c: any) => {
       const id = c.req.valid("param").id;
       const q = c.req.valid("query");
-      const f = await mustGetField(store, id);
+      const { f, shared } = await mustGetField(c, store, id);
       let k: number;
       try {
         k = nearestStep(f.time, readTime(q.time));
@@ -552,10 +574,10 @@ export function registerFieldRoutes(app: App, deps: { store: Store; config: Conf
       }
       const csv = wantsCsv(c);
       const etag = `"${id}-slice-${k}${csv ? "-csv" : ""}"`;
-      const nm = notModified(c, etag);
+      const nm = notModified(c, etag, shared);
       if (nm) return nm;
       const v = await store.readFieldSteps(id, k, k + 1);
-      for (const [h, x] of Object.entries(immutableHeaders(etag))) c.header(h, x);
+      for (const [h, x] of Object.entries(immutableHeaders(etag, shared))) c.header(h, x);
       c.header("Vary", "Accept");
       const res = f.resolution === "irregular" ? "daily" : f.resolution;
       if (csv) {
@@ -580,14 +602,28 @@ export function registerFieldRoutes(app: App, deps: { store: Store; config: Conf
       method: "delete",
       path: "/v1/fields/{id}",
       tags: ["Fields"],
-      summary: "Delete a field (refused with 409 while a run uses it)",
+      summary: "Delete your copy of a field (refused with 409 while a run uses it)",
+      description: "The rules of series: removes the caller's holding, and the content goes " +
+        "when no owner holds it; refused while one of the caller's runs uses the field, or " +
+        "while it is the last holding and another owner's run uses it. An admin deletes a " +
+        "field it does not hold outright, unless a run uses it.",
       request: { params: FieldIdParam },
-      responses: { 204: { description: "Deleted" }, ...problems(404, 409) },
+      responses: { 204: { description: "Deleted" }, ...problems(401, 403, 404, 409) },
     }),
     // deno-lint-ignore no-explicit-any
     (async (c: any) => {
       const id = c.req.valid("param").id;
-      const outcome = await store.deleteField(id);
+      const p = principalOf(c);
+      const h = await mustSeeField(store, p, id);
+      let outcome: "deleted" | "not_found" | "in_use";
+      if (h.owner === p.owner) outcome = await store.deleteFieldHolding(id, p.owner!);
+      else if (p.role === "admin") outcome = await store.deleteField(id);
+      else {
+        throw new ProblemError(
+          "forbidden",
+          `Field ${id} is shared with you by its owner; only its owner or an admin may delete it`,
+        );
+      }
       if (outcome === "not_found") throw new ProblemError("not-found", `No field has id ${id}`);
       if (outcome === "in_use") {
         const runs = await store.runsUsingField(id);

@@ -20,6 +20,8 @@ import { buildMapDataset, type LagMaps } from "../netcdf/map_dataset.ts";
 import { NETCDF_CONTENT, NETCDF_MEDIA_TYPE } from "../netcdf/http.ts";
 import type { Provenance } from "../netcdf/series_dataset.ts";
 import { SERVICE_VERSION } from "../version.ts";
+import { principalOf } from "../auth/authenticate.ts";
+import { mustSeeRun, sharedCacheable } from "../auth/access.ts";
 
 /** The parts of a gridded result the downloads read. */
 const GriddedResult = z.object({
@@ -39,7 +41,13 @@ const GriddedResult = z.object({
 type Gridded = z.output<typeof GriddedResult>;
 
 /** The map of a finished run, or the problem saying why there is none. */
-async function mapOf(store: Store, id: string): Promise<{ run: RunRecord; g: Gridded }> {
+async function mapOf(
+  c: Context,
+  store: Store,
+  id: string,
+): Promise<{ run: RunRecord; g: Gridded; shared: boolean }> {
+  const p = principalOf(c);
+  const holding = await mustSeeRun(store, p, id);
   const run = await store.getRun(id);
   if (!run) throw new ProblemError("not-found", `No run has id ${id}`);
   if (run.status !== "succeeded" || !run.result) {
@@ -54,7 +62,7 @@ async function mapOf(store: Store, id: string): Promise<{ run: RunRecord; g: Gri
   if (!parsed.success) {
     throw new ProblemError("not-found", `Run ${id} (${run.kind}) has no map`);
   }
-  return { run, g: parsed.data };
+  return { run, g: parsed.data, shared: sharedCacheable(p, holding) };
 }
 
 /** The provenance of a run's map. */
@@ -107,7 +115,13 @@ export function mapCsv(run: RunRecord, g: Gridded): string {
 }
 
 /** The NetCDF-CF response of a run's map, streamed. */
-function netcdfResponse(c: Context, run: RunRecord, g: Gridded, etag: string): Response {
+function netcdfResponse(
+  c: Context,
+  run: RunRecord,
+  g: Gridded,
+  etag: string,
+  shared: boolean,
+): Response {
   const lagMaps: LagMaps | null = g.lag_maps
     ? {
       lags: g.lag_maps.lags,
@@ -143,7 +157,7 @@ function netcdfResponse(c: Context, run: RunRecord, g: Gridded, etag: string): R
       "Content-Length": String(layout.totalBytes),
       "Content-Disposition": `attachment; filename="${run.id}_map.nc"`,
       "X-Request-Id": c.get("requestId" as never) ?? "",
-      ...immutableHeaders(etag),
+      ...immutableHeaders(etag, shared),
     },
   });
 }
@@ -185,12 +199,12 @@ export function registerMapRoutes(app: App, deps: { store: Store }): void {
     (async (c: any) => {
       const id: string = c.req.valid("param").id;
       const format: "json" | "csv" | "netcdf" = c.req.valid("query").format;
-      const { run, g } = await mapOf(deps.store, id);
+      const { run, g, shared } = await mapOf(c, deps.store, id);
       const etag = `"map-${run.id}-${run.result_digest}-${format}-${SERVICE_VERSION}"`;
-      const nm = notModified(c, etag);
+      const nm = notModified(c, etag, shared);
       if (nm) return nm;
-      if (format === "netcdf") return netcdfResponse(c, run, g, etag);
-      for (const [k, v] of Object.entries(immutableHeaders(etag))) c.header(k, v);
+      if (format === "netcdf") return netcdfResponse(c, run, g, etag, shared);
+      for (const [k, v] of Object.entries(immutableHeaders(etag, shared))) c.header(k, v);
       if (format === "csv") {
         c.header("Content-Type", "text/csv; charset=utf-8");
         c.header("Content-Disposition", `attachment; filename="${run.id}_map.csv"`);

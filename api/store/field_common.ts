@@ -6,17 +6,14 @@
  *
  * @module
  */
-import type {
-  FieldDescription,
-  FieldInfo,
-  FieldMeta,
-  FieldStaging,
-  FieldVisibility,
-} from "./field_types.ts";
-import type { Resolution } from "./types.ts";
+import type { FieldDescription, FieldInfo, FieldMeta, FieldStaging } from "./field_types.ts";
+import type { Resolution, Visibility } from "./types.ts";
 import { bytesLEToFloat64, float64ToBytesLE } from "./float64_blob.ts";
 
-/** Name of the schema step (recorded in schema_migrations). */
+/**
+ * Name of the schema step (recorded in schema_migrations). It needs the owners table of the
+ * tenancy step, so it comes after it.
+ */
 export const FIELD_MIGRATION_NAME = "gridded fields, their blocks, holdings and run inputs";
 
 /** The SQLite schema step. Blocks hang off the field's row number, so commit can rename it. */
@@ -61,7 +58,7 @@ export const SQLITE_FIELD_SQL = `
   CREATE TABLE field_holdings (
     seq INTEGER PRIMARY KEY AUTOINCREMENT,
     field_id TEXT NOT NULL REFERENCES fields (id) ON DELETE CASCADE,
-    owner_id TEXT NOT NULL,
+    owner_id TEXT NOT NULL REFERENCES owners (id),
     visibility TEXT NOT NULL CHECK (visibility IN ('private', 'group', 'public')),
     created_at TEXT NOT NULL,
     UNIQUE (field_id, owner_id)
@@ -119,8 +116,8 @@ export const POSTGRES_FIELD_SQL = `
 
   CREATE TABLE field_holdings (
     seq BIGSERIAL PRIMARY KEY,
-    field_id TEXT NOT NULL REFERENCES fields (id) ON DELETE CASCADE ON UPDATE CASCADE,
-    owner_id TEXT NOT NULL,
+    field_id TEXT NOT NULL REFERENCES fields (id) ON DELETE CASCADE,
+    owner_id TEXT NOT NULL REFERENCES owners (id),
     visibility TEXT NOT NULL CHECK (visibility IN ('private', 'group', 'public')),
     created_at TEXT NOT NULL,
     UNIQUE (field_id, owner_id)
@@ -262,7 +259,7 @@ export function toFieldMeta(r: Record<string, unknown>): FieldMeta {
     info: JSON.parse(String(r.info)) as FieldInfo,
     created_at: String(r.created_at),
     owner: String(r.owner_id ?? "local"),
-    visibility: String(r.visibility ?? "private") as FieldVisibility,
+    visibility: String(r.visibility ?? "private") as Visibility,
   };
 }
 

@@ -12,19 +12,7 @@
  *
  * @module
  */
-import type { Page, Resolution } from "./types.ts";
-
-/** Who may see a stored field (the notion the series and runs use on shared instances). */
-export type FieldVisibility = "private" | "group" | "public";
-
-/** The holder a field upload records. */
-export interface FieldHolder {
-  owner: string;
-  visibility: FieldVisibility;
-}
-
-/** The holder of uploads on an instance without owners: the built-in local owner. */
-export const LOCAL_FIELD_HOLDER: FieldHolder = { owner: "local", visibility: "private" };
+import type { HolderSpec, Holding, Page, Resolution, Viewer, Visibility } from "./types.ts";
 
 /** The form of a field id: `field:sha256:` and 64 lower-case hex digits. */
 export const FIELD_ID_PATTERN = /^field:sha256:[0-9a-f]{64}$/;
@@ -69,9 +57,10 @@ export interface FieldMeta {
   /** Number of missing values (NaN) in the whole field. */
   missing: number;
   info: FieldInfo;
+  /** When the holding shown was made (the viewer's own first, then the widest). */
   created_at: string;
   owner: string;
-  visibility: FieldVisibility;
+  visibility: Visibility;
 }
 
 /** A field's metadata with its coordinates. */
@@ -114,23 +103,37 @@ export interface FieldStore {
    * Make a staged field visible under its content id, with what reading its values found
    * (`final`: the count of missing values and the info with the value range), held by
    * `holder` (default the local owner, private). When that id is already stored, the staged
-   * copy is dropped and the stored field answered with `created: false`.
+   * copy is dropped; `created` is true when this holder's holding is new (as for series, it
+   * never tells one owner that another holds the same content).
    * @throws {RangeError} when the staged blocks do not cover every time step
    */
   commitField(
     stage: number,
     id: string,
     final?: FieldFinal,
-    holder?: FieldHolder,
+    holder?: HolderSpec,
   ): Promise<{ created: boolean; field: FieldMeta }>;
   /** Remove a staged field (an upload that failed). */
   abortField(stage: number): Promise<void>;
   /** Remove staged fields older than `olderThanSeconds` (uploads a crash interrupted). */
   dropStagedFields(olderThanSeconds: number): Promise<number>;
-  /** A stored field's metadata and coordinates, or null. */
-  getField(id: string): Promise<FieldDescription | null>;
-  /** Newest first. */
-  listFields(q: { limit: number; offset: number }): Promise<Page<FieldMeta>>;
+  /**
+   * A stored field's metadata and coordinates, or null; with a viewer, null unless it may see
+   * the field, and the holding shown is the one it sees.
+   */
+  getField(id: string, viewer?: Viewer): Promise<FieldDescription | null>;
+  /** Newest first; with a viewer, only the fields it may see, each once. */
+  listFields(q: { limit: number; offset: number; viewer?: Viewer }): Promise<Page<FieldMeta>>;
+  /** The holding through which `viewer` sees the field (its own first), or null. */
+  fieldHolding(id: string, viewer: Viewer): Promise<Holding | null>;
+  /** Change the visibility of `owner`'s holding of a field; false when it holds none. */
+  setFieldVisibility(id: string, owner: string, visibility: Visibility): Promise<boolean>;
+  /**
+   * Remove `owner`'s holding, with the rule of series: refused with "in_use" while a run
+   * `owner` holds uses the field, or when it is the last holding and any run uses it. The
+   * content goes with the last holding.
+   */
+  deleteFieldHolding(id: string, owner: string): Promise<"deleted" | "not_found" | "in_use">;
   /**
    * Time steps `[tStart, tEnd)` of a field, time-major (row t holds n_lat × n_lon values,
    * latitude-major), NaN where missing. Reads only the blocks that overlap.
@@ -139,7 +142,7 @@ export interface FieldStore {
   readFieldSteps(id: string, tStart: number, tEnd: number): Promise<Float32Array>;
   /** The series of one cell (index i · n_lon + j), n_time values, NaN where missing. */
   readFieldCell(id: string, cell: number): Promise<Float32Array>;
-  /** Atomic: refused with "in_use" while any run lists the field as input. */
+  /** Atomic: refused with "in_use" while any run lists the field as input. Every holding goes. */
   deleteField(id: string): Promise<"deleted" | "not_found" | "in_use">;
   /** Ids of runs that use the field as input, newest first. */
   runsUsingField(id: string): Promise<string[]>;

@@ -9,15 +9,9 @@
 import type postgres from "postgres";
 import { Buffer } from "node:buffer";
 import { uuidv7 } from "uuidv7";
-import type {
-  FieldDescription,
-  FieldFinal,
-  FieldHolder,
-  FieldMeta,
-  FieldStaging,
-} from "./field_types.ts";
-import { LOCAL_FIELD_HOLDER } from "./field_types.ts";
-import type { Page } from "./types.ts";
+import type { FieldDescription, FieldFinal, FieldMeta, FieldStaging } from "./field_types.ts";
+import type { HolderSpec, Holding, Page, Viewer, Visibility } from "./types.ts";
+import { DEFAULT_HOLDER } from "./common.ts";
 import {
   blockCount,
   bytesLEToFloat32,
@@ -45,15 +39,33 @@ const bytes = (
   s: unknown,
 ) => (s === null || s === undefined ? null : Buffer.from(String(s), "base64"));
 
+/** SQL fragments of the visibility test of a holding row aliased `h`, and of the order. */
+export interface PgHoldingSql {
+  visible(tx: Sql | Tx, h: string, v: Viewer): postgres.PendingQuery<postgres.Row[]>;
+  pickOrder(tx: Sql | Tx, h: string, v: Viewer): postgres.PendingQuery<postgres.Row[]>;
+}
+
+const META = FIELD_META_COLUMNS.filter((c) => c !== "created_at").map((c) => "f." + c);
+
 /** The field tables of one PostgreSQL database. */
 export class PostgresFields {
-  constructor(private readonly sql: Sql) {}
+  constructor(private readonly sql: Sql, private readonly holdings: PgHoldingSql) {}
 
-  #meta(tx: Tx | Sql, where: postgres.PendingQuery<postgres.Row[]>) {
+  /** The join to the holding a viewer sees (or, without a viewer, the oldest). */
+  #pick(tx: Sql | Tx, v: Viewer | undefined) {
+    if (!v) {
+      return tx`JOIN field_holdings h ON h.seq =
+        (SELECT min(h2.seq) FROM field_holdings h2 WHERE h2.field_id = f.id)`;
+    }
+    return tx`JOIN field_holdings h ON h.seq = (SELECT h2.seq FROM field_holdings h2
+      WHERE h2.field_id = f.id AND ${this.holdings.visible(tx, "h2", v)}
+      ${this.holdings.pickOrder(tx, "h2", v)} LIMIT 1)`;
+  }
+
+  #meta(tx: Tx | Sql, v: Viewer | undefined, where: postgres.PendingQuery<postgres.Row[]>) {
     return tx`
-      SELECT ${tx(FIELD_META_COLUMNS.map((c) => "f." + c))}, h.owner_id, h.visibility
-      FROM fields f LEFT JOIN field_holdings h ON h.seq =
-        (SELECT min(h2.seq) FROM field_holdings h2 WHERE h2.field_id = f.id)
+      SELECT ${tx(META)}, h.owner_id, h.visibility, h.created_at
+      FROM fields f ${this.#pick(tx, v)}
       WHERE f.state = 'ready' ${where}`;
   }
 
@@ -112,7 +124,7 @@ export class PostgresFields {
     stage: number,
     id: string,
     final?: FieldFinal,
-    holder: FieldHolder = LOCAL_FIELD_HOLDER,
+    holder: HolderSpec = DEFAULT_HOLDER,
   ): Promise<{ created: boolean; field: FieldMeta }> {
     return await this.sql.begin(async (tx: Tx) => {
       const m = await this.#staged(tx, stage);
@@ -144,7 +156,11 @@ export class PostgresFields {
         INSERT INTO field_holdings (field_id, owner_id, visibility, created_at)
         VALUES (${id}, ${holder.owner}, ${holder.visibility}, ${now})
         ON CONFLICT (field_id, owner_id) DO NOTHING RETURNING seq`;
-      const [row] = await this.#meta(tx, tx`AND f.id = ${id}`);
+      const [row] = await this.#meta(
+        tx,
+        { owner: holder.owner, group: null, admin: false },
+        tx`AND f.id = ${id}`,
+      );
       return { created: created || held.length === 1, field: toFieldMeta(row) };
     });
   }
@@ -168,31 +184,82 @@ export class PostgresFields {
     });
   }
 
-  async get(id: string): Promise<FieldDescription | null> {
+  async get(id: string, v?: Viewer): Promise<FieldDescription | null> {
     const rows = await this.sql`
-      SELECT ${this.sql(FIELD_META_COLUMNS.map((c) => "f." + c))}, h.owner_id, h.visibility,
+      SELECT ${this.sql(META)}, h.owner_id, h.visibility, h.created_at,
         ${
       this.sql.unsafe(
         FIELD_COORD_COLUMNS.map((c) => `encode(f.${c}, 'base64') AS ${c}`).join(", "),
       )
     }
-      FROM fields f LEFT JOIN field_holdings h ON h.seq =
-        (SELECT min(h2.seq) FROM field_holdings h2 WHERE h2.field_id = f.id)
+      FROM fields f ${this.#pick(this.sql, v)}
       WHERE f.state = 'ready' AND f.id = ${id}`;
     if (rows.length === 0) return null;
     const row = rows[0];
     return toFieldDescription(row, (c) => bytes(row[c]));
   }
 
-  async list(q: { limit: number; offset: number }): Promise<Page<FieldMeta>> {
+  async list(q: { limit: number; offset: number; viewer?: Viewer }): Promise<Page<FieldMeta>> {
     checkPaging("list fields", q.limit, q.offset);
     return await this.sql.begin("ISOLATION LEVEL REPEATABLE READ READ ONLY", async (tx: Tx) => {
-      const [{ n }] = await tx`SELECT count(*) AS n FROM fields WHERE state = 'ready'`;
+      const [{ n }] = await tx`SELECT count(*) AS n FROM fields f ${this.#pick(tx, q.viewer)}
+        WHERE f.state = 'ready'`;
       const rows = await this.#meta(
         tx,
-        tx`ORDER BY f.created_at DESC, f.seq DESC LIMIT ${q.limit} OFFSET ${q.offset}`,
+        q.viewer,
+        tx`ORDER BY h.created_at DESC, h.seq DESC LIMIT ${q.limit} OFFSET ${q.offset}`,
       );
       return { items: rows.map((r) => toFieldMeta(r)), total: Number(n) };
+    });
+  }
+
+  async holding(id: string, v: Viewer): Promise<Holding | null> {
+    const rows = await this.sql`
+      SELECT h.owner_id, h.visibility, h.created_at FROM field_holdings h
+      JOIN fields f ON f.id = h.field_id AND f.state = 'ready'
+      WHERE h.field_id = ${id} AND ${this.holdings.visible(this.sql, "h", v)}
+      ${this.holdings.pickOrder(this.sql, "h", v)} LIMIT 1`;
+    if (rows.length === 0) return null;
+    const r = rows[0];
+    return {
+      owner: String(r.owner_id),
+      visibility: String(r.visibility) as Visibility,
+      created_at: String(r.created_at),
+    };
+  }
+
+  async setVisibility(id: string, owner: string, visibility: Visibility): Promise<boolean> {
+    const res = await this.sql`UPDATE field_holdings SET visibility = ${visibility}
+      WHERE field_id = ${id} AND owner_id = ${owner}`;
+    return res.count === 1;
+  }
+
+  async deleteHolding(id: string, owner: string): Promise<"deleted" | "not_found" | "in_use"> {
+    return await this.sql.begin(async (tx: Tx) => {
+      const found =
+        await tx`SELECT seq FROM fields WHERE id = ${id} AND state = 'ready' FOR UPDATE`;
+      if (found.length === 0) return "not_found" as const;
+      const mine = await tx`SELECT 1 FROM field_holdings WHERE field_id = ${id}
+        AND owner_id = ${owner}`;
+      if (mine.length === 0) return "not_found" as const;
+      const [{ own, others }] = await tx`SELECT
+        (SELECT count(DISTINCT l.run_id) FROM run_input_fields l JOIN run_holdings h
+           ON h.run_id = l.run_id AND h.owner_id = ${owner} WHERE l.field_id = ${id}) AS own,
+        (SELECT count(DISTINCT l.run_id) FROM run_input_fields l WHERE l.field_id = ${id}
+           AND NOT EXISTS (SELECT 1 FROM run_holdings h WHERE h.run_id = l.run_id
+             AND h.owner_id = ${owner})) AS others`;
+      if (Number(own) > 0) return "in_use" as const;
+      const rest = await tx`SELECT 1 FROM field_holdings WHERE field_id = ${id}
+        AND owner_id <> ${owner} LIMIT 1`;
+      if (rest.length) {
+        await tx`DELETE FROM field_holdings WHERE field_id = ${id} AND owner_id = ${owner}`;
+        return "deleted" as const;
+      }
+      if (Number(others) > 0) return "in_use" as const;
+      await tx`DELETE FROM field_holdings WHERE field_id = ${id}`;
+      await tx`DELETE FROM field_blocks WHERE field_seq = ${found[0].seq}`;
+      await tx`DELETE FROM fields WHERE seq = ${found[0].seq}`;
+      return "deleted" as const;
     });
   }
 

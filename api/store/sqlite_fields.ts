@@ -8,15 +8,9 @@
  */
 import type { DatabaseSync, SQLInputValue, StatementSync } from "node:sqlite";
 import { uuidv7 } from "uuidv7";
-import type {
-  FieldDescription,
-  FieldFinal,
-  FieldHolder,
-  FieldMeta,
-  FieldStaging,
-} from "./field_types.ts";
-import { LOCAL_FIELD_HOLDER } from "./field_types.ts";
-import type { Page } from "./types.ts";
+import type { FieldDescription, FieldFinal, FieldMeta, FieldStaging } from "./field_types.ts";
+import type { HolderSpec, Holding, Page, Viewer, Visibility } from "./types.ts";
+import { DEFAULT_HOLDER } from "./common.ts";
 import {
   assembleSteps,
   blockCount,
@@ -37,16 +31,36 @@ import { MissingInputError } from "./errors.ts";
 
 type Row = Record<string, SQLInputValue>;
 
-const META = FIELD_META_COLUMNS.map((c) => "f." + c).join(", ");
-const HOLDING = `h.owner_id AS owner_id, h.visibility AS visibility`;
-/** The first (oldest) holding of a field. */
-const FIRST_HOLDING = `LEFT JOIN field_holdings h ON h.seq =
-  (SELECT min(h2.seq) FROM field_holdings h2 WHERE h2.field_id = f.id)`;
+const META = FIELD_META_COLUMNS.filter((c) => c !== "created_at").map((c) => "f." + c).join(", ");
+const HOLDING = `h.owner_id AS owner_id, h.visibility AS visibility, h.created_at AS created_at`;
+
+/** SQL of the visibility test of a holding row aliased `h`, and of the order a viewer's is picked. */
+export interface HoldingSql {
+  visibleTo(h: string, v: Viewer): { sql: string; args: SQLInputValue[] };
+  pickOrder(h: string, v: Viewer): { sql: string; args: SQLInputValue[] };
+}
 
 /** The field tables of one SQLite connection. */
 export class SqliteFields {
   #stmts = new Map<string, StatementSync>();
-  constructor(private readonly db: DatabaseSync) {}
+  constructor(private readonly db: DatabaseSync, private readonly holdings: HoldingSql) {}
+
+  /** The join to the holding a viewer sees (or, without a viewer, the oldest). */
+  #pick(v: Viewer | undefined): { sql: string; args: SQLInputValue[] } {
+    if (!v) {
+      return {
+        sql: `JOIN field_holdings h ON h.seq =
+          (SELECT min(h2.seq) FROM field_holdings h2 WHERE h2.field_id = f.id)`,
+        args: [],
+      };
+    }
+    const vis = this.holdings.visibleTo("h2", v), order = this.holdings.pickOrder("h2", v);
+    return {
+      sql: `JOIN field_holdings h ON h.seq = (SELECT h2.seq FROM field_holdings h2
+        WHERE h2.field_id = f.id AND ${vis.sql} ${order.sql} LIMIT 1)`,
+      args: [...vis.args, ...order.args],
+    };
+  }
 
   #stmt(sql: string): StatementSync {
     let s = this.#stmts.get(sql);
@@ -117,7 +131,7 @@ export class SqliteFields {
     stage: number,
     id: string,
     final?: FieldFinal,
-    holder: FieldHolder = LOCAL_FIELD_HOLDER,
+    holder: HolderSpec = DEFAULT_HOLDER,
   ): { created: boolean; field: FieldMeta } {
     return this.#tx("BEGIN IMMEDIATE", () => {
       const m = this.#staged(stage);
@@ -148,7 +162,7 @@ export class SqliteFields {
       const held = this.#stmt(
         "INSERT OR IGNORE INTO field_holdings (field_id, owner_id, visibility, created_at) VALUES (?, ?, ?, ?)",
       ).run(id, holder.owner, holder.visibility, now);
-      const field = this.#meta(id)!;
+      const field = this.#meta(id, { owner: holder.owner, group: null, admin: false })!;
       return { created: created || Number(held.changes) === 1, field };
     });
   }
@@ -176,33 +190,103 @@ export class SqliteFields {
     });
   }
 
-  #meta(id: string): FieldMeta | null {
-    const row = this.#stmt(
-      `SELECT ${META}, ${HOLDING} FROM fields f ${FIRST_HOLDING} WHERE f.id = ? AND f.state = 'ready'`,
-    ).get(id) as Row | undefined;
+  #meta(id: string, v?: Viewer): FieldMeta | null {
+    const pick = this.#pick(v);
+    const row = this.db.prepare(
+      `SELECT ${META}, ${HOLDING} FROM fields f ${pick.sql} WHERE f.id = ? AND f.state = 'ready'`,
+    ).get(...pick.args, id) as Row | undefined;
     return row ? toFieldMeta(row) : null;
   }
 
-  get(id: string): FieldDescription | null {
-    const row = this.#stmt(
+  get(id: string, v?: Viewer): FieldDescription | null {
+    const pick = this.#pick(v);
+    const row = this.db.prepare(
       `SELECT ${META}, ${HOLDING}, ${FIELD_COORD_COLUMNS.map((c) => "f." + c).join(", ")}
-       FROM fields f ${FIRST_HOLDING} WHERE f.id = ? AND f.state = 'ready'`,
-    ).get(id) as Row | undefined;
+       FROM fields f ${pick.sql} WHERE f.id = ? AND f.state = 'ready'`,
+    ).get(...pick.args, id) as Row | undefined;
     if (!row) return null;
     return toFieldDescription(row, (c) => (row[c] === null ? null : row[c] as Uint8Array));
   }
 
-  list(q: { limit: number; offset: number }): Page<FieldMeta> {
+  list(q: { limit: number; offset: number; viewer?: Viewer }): Page<FieldMeta> {
     checkPaging("list fields", q.limit, q.offset);
+    const pick = this.#pick(q.viewer);
     return this.#tx("BEGIN", () => {
       const total = Number(
-        (this.#stmt("SELECT count(*) AS n FROM fields WHERE state = 'ready'").get() as Row).n,
+        (this.db.prepare(
+          `SELECT count(*) AS n FROM fields f ${pick.sql} WHERE f.state = 'ready'`,
+        ).get(...pick.args) as Row).n,
       );
-      const rows = this.#stmt(
-        `SELECT ${META}, ${HOLDING} FROM fields f ${FIRST_HOLDING} WHERE f.state = 'ready'
-         ORDER BY f.created_at DESC, f.seq DESC LIMIT ? OFFSET ?`,
-      ).all(q.limit, q.offset) as Row[];
+      const rows = this.db.prepare(
+        `SELECT ${META}, ${HOLDING} FROM fields f ${pick.sql} WHERE f.state = 'ready'
+         ORDER BY h.created_at DESC, h.seq DESC LIMIT ? OFFSET ?`,
+      ).all(...pick.args, q.limit, q.offset) as Row[];
       return { items: rows.map(toFieldMeta), total };
+    });
+  }
+
+  holding(id: string, v: Viewer): Holding | null {
+    const vis = this.holdings.visibleTo("h", v), order = this.holdings.pickOrder("h", v);
+    const row = this.db.prepare(
+      `SELECT h.owner_id AS owner_id, h.visibility AS visibility, h.created_at AS created_at
+       FROM field_holdings h JOIN fields f ON f.id = h.field_id AND f.state = 'ready'
+       WHERE h.field_id = ? AND ${vis.sql} ${order.sql} LIMIT 1`,
+    ).get(id, ...vis.args, ...order.args) as Row | undefined;
+    return row
+      ? {
+        owner: String(row.owner_id),
+        visibility: String(row.visibility) as Visibility,
+        created_at: String(row.created_at),
+      }
+      : null;
+  }
+
+  setVisibility(id: string, owner: string, visibility: Visibility): boolean {
+    return this.#tx("BEGIN IMMEDIATE", () =>
+      Number(
+        this.#stmt("UPDATE field_holdings SET visibility = ? WHERE field_id = ? AND owner_id = ?")
+          .run(visibility, id, owner).changes,
+      ) === 1);
+  }
+
+  /** Runs using the field: those `owner` holds, and how many others. */
+  #usage(id: string, owner: string): { own: number; others: number } {
+    const own = Number(
+      (this.#stmt(
+        `SELECT count(DISTINCT l.run_id) AS n FROM run_input_fields l
+         JOIN run_holdings h ON h.run_id = l.run_id AND h.owner_id = ? WHERE l.field_id = ?`,
+      ).get(owner, id) as Row).n,
+    );
+    const others = Number(
+      (this.#stmt(
+        `SELECT count(DISTINCT l.run_id) AS n FROM run_input_fields l WHERE l.field_id = ?
+         AND NOT EXISTS (SELECT 1 FROM run_holdings h WHERE h.run_id = l.run_id AND h.owner_id = ?)`,
+      ).get(id, owner) as Row).n,
+    );
+    return { own, others };
+  }
+
+  deleteHolding(id: string, owner: string): "deleted" | "not_found" | "in_use" {
+    return this.#tx("BEGIN IMMEDIATE", (): "deleted" | "not_found" | "in_use" => {
+      const mine = this.#stmt(
+        "SELECT 1 AS one FROM field_holdings WHERE field_id = ? AND owner_id = ?",
+      ).get(id, owner);
+      if (!mine) return "not_found";
+      const usage = this.#usage(id, owner);
+      if (usage.own > 0) return "in_use";
+      const others = this.#stmt(
+        "SELECT 1 AS one FROM field_holdings WHERE field_id = ? AND owner_id <> ? LIMIT 1",
+      ).get(id, owner);
+      if (others) {
+        this.#stmt("DELETE FROM field_holdings WHERE field_id = ? AND owner_id = ?").run(id, owner);
+        return "deleted";
+      }
+      if (usage.others > 0) return "in_use";
+      const row = this.#stmt("SELECT seq FROM fields WHERE id = ?").get(id) as Row;
+      this.#stmt("DELETE FROM field_holdings WHERE field_id = ?").run(id);
+      this.#stmt("DELETE FROM field_blocks WHERE field_seq = ?").run(row.seq);
+      this.#stmt("DELETE FROM fields WHERE seq = ?").run(row.seq);
+      return "deleted";
     });
   }
 

@@ -8,7 +8,7 @@
 import { z } from "@hono/zod-openapi";
 import type { CycleRow } from "../../../core/cycles/mod.ts";
 import { formatIsoTime } from "../../../core/time/mod.ts";
-import { numOrNull } from "./nulls.ts";
+import { undefinedAsNull } from "./undefined_as_null.ts";
 
 /** A point of the smoothed series. */
 export const CyclePointSchema = z.object({
@@ -75,12 +75,12 @@ export function cycleRowJson(
     start: pt(r.start),
     maximum: r.maximum && { ...pt(r.maximum), provisional: r.maximum.provisional },
     end: r.end && pt(r.end),
-    length_years: numOrNull(r.length),
-    rise_years: numOrNull(r.riseTime),
-    decline_years: numOrNull(r.declineTime),
-    amplitude: numOrNull(r.amplitude),
-    mean_activity: numOrNull(r.meanActivity),
-    integrated_activity: numOrNull(r.integratedActivity),
+    length_years: undefinedAsNull(r.length),
+    rise_years: undefinedAsNull(r.riseTime),
+    decline_years: undefinedAsNull(r.declineTime),
+    amplitude: undefinedAsNull(r.amplitude),
+    mean_activity: undefinedAsNull(r.meanActivity),
+    integrated_activity: undefinedAsNull(r.integratedActivity),
     samples: r.samples,
   };
 }

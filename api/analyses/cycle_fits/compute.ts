@@ -20,7 +20,7 @@ import { formatIsoTime } from "../../../core/time/mod.ts";
 import { analyseCycles } from "../common/cycle_detection.ts";
 import { CAUTION_CYCLE_REVIEW, CAUTION_SCALE } from "../common/cycle_cautions.ts";
 import { withInputPointers } from "../common/input_problem.ts";
-import { numOrNull } from "../common/nulls.ts";
+import { undefinedAsNull } from "../common/undefined_as_null.ts";
 import { sunspotInput } from "../common/sunspot_input.ts";
 import type { CycleFitsParams } from "./request.ts";
 import type { CycleFitsResultIn } from "./result.ts";
@@ -38,10 +38,13 @@ function relation(all: { riseMonths: number; amplitude: number }[], scale: numbe
   return {
     n: w.n,
     form: "rise_months = intercept + slope / (amplitude × amplitude_scale)",
-    intercept: { value: w.intercept.value, standard_error: numOrNull(w.intercept.standardError) },
-    slope: { value: w.slope.value, standard_error: numOrNull(w.slope.standardError) },
+    intercept: {
+      value: w.intercept.value,
+      standard_error: undefinedAsNull(w.intercept.standardError),
+    },
+    slope: { value: w.slope.value, standard_error: undefinedAsNull(w.slope.standardError) },
     correlation_rise_amplitude: w.correlation,
-    residual_sd_months: numOrNull(w.sigma),
+    residual_sd_months: undefinedAsNull(w.sigma),
     published: {
       intercept: w.published.intercept,
       slope: w.published.slope,
@@ -72,20 +75,20 @@ function fittedCycleJson(
     t0: {
       date: formatIsoTime(f.t0, "monthly"),
       decimal_year: f.t0,
-      standard_error_years: numOrNull(se.t0),
+      standard_error_years: undefinedAsNull(se.t0),
       standard_error_years_ar1: ar1(se.t0),
     },
     a: {
       value: f.a,
       units: `(${p.units}) month-3`,
-      standard_error: numOrNull(se.a),
+      standard_error: undefinedAsNull(se.a),
       standard_error_ar1: ar1(se.a),
     },
     b: {
       value: f.b,
       units: "month",
       derived: p.width === "amplitude_dependent",
-      standard_error: numOrNull(se.b),
+      standard_error: undefinedAsNull(se.b),
       standard_error_ar1: ar1(se.b),
     },
     c: f.c,
@@ -93,8 +96,8 @@ function fittedCycleJson(
       date: formatIsoTime(f.maximum.time, "monthly"),
       decimal_year: f.maximum.time,
       value: f.maximum.value,
-      time_standard_error_years: numOrNull(f.maximum.timeSE),
-      value_standard_error: numOrNull(f.maximum.valueSE),
+      time_standard_error_years: undefinedAsNull(f.maximum.timeSE),
+      value_standard_error: undefinedAsNull(f.maximum.valueSE),
     },
     rise_months: f.riseMonths,
     observed: {

@@ -10,7 +10,7 @@ import { formatIsoTime } from "../../../core/time/mod.ts";
 import { analyseCycles, type CycleAnalysis } from "../common/cycle_detection.ts";
 import { CAUTION_CYCLE_REVIEW, CAUTION_SCALE } from "../common/cycle_cautions.ts";
 import { cycleRowJson } from "../common/cycle_row.ts";
-import { nulls } from "../common/nulls.ts";
+import { undefinedAsNull } from "../common/undefined_as_null.ts";
 import { sunspotInput } from "../common/sunspot_input.ts";
 import type { CyclesParams } from "./request.ts";
 import type { CyclesResultIn } from "./result.ts";
@@ -28,18 +28,18 @@ function cycleOutputs(an: CycleAnalysis, rows: CycleRow[]): CyclesResultIn["outp
         s.quantity,
         s.units,
       ),
-      value: nulls(an.smoothed),
+      value: undefinedAsNull(an.smoothed),
       description: `series ${s.id} smoothed (${an.smoothing}) as used to find cycle extrema`,
     },
     phase: {
       ...out(`${s.name} cycle phase`, "other", "1"),
-      value: nulls(phase.phase),
+      value: undefinedAsNull(phase.phase),
       description: "fraction of the cycle elapsed: 0 at its starting minimum, 1 at the next " +
         "minimum; null before the first minimum and in the cycle in progress",
     },
     since_minimum: {
       ...out(`${s.name} years since cycle minimum`, "other", "yr"),
-      value: nulls(phase.sinceMinimum),
+      value: undefinedAsNull(phase.sinceMinimum),
       description: "years since the latest cycle minimum; null before the first",
     },
     cycle: {

@@ -16,7 +16,7 @@ import {
 } from "../../../core/field/mod.ts";
 import { CAUTION_REVIEW } from "../common/cautions.ts";
 import { withInputPointers } from "../common/input_problem.ts";
-import { nulls } from "../common/nulls.ts";
+import { undefinedAsNull } from "../common/undefined_as_null.ts";
 import type { FieldAreaMeanParams } from "./request.ts";
 import type { FieldAreaMeanResultIn } from "./result.ts";
 
@@ -112,7 +112,7 @@ export function computeFieldAreaMean(
         quantity: f.meta.quantity,
         units: f.meta.units,
         time,
-        value: nulls(m.mean),
+        value: undefinedAsNull(m.mean),
         description:
           `Area-weighted mean (${
             fromBounds ? "cell areas from bounds" : "cos latitude weights"

@@ -46,7 +46,8 @@ import {
 } from "../common/irradiance_notes.ts";
 import type { ModelParams } from "./request.ts";
 import type { IrradianceModelJson, ModelResultIn, SunspotMappingsJson } from "./result.ts";
-import { finiteOrNull, mappingChoiceJson } from "./mapping_json.ts";
+import { undefinedAsNull } from "../common/undefined_as_null.ts";
+import { mappingChoiceJson } from "./mapping_json.ts";
 import { cycleAmplitudeJson } from "../common/tsi_cycle_amplitude.ts";
 
 /** Quantities a facular term's series normally has. */
@@ -121,8 +122,8 @@ function fitJson(fit: ProxyModelFit): ModelResultIn["fit"] {
     r_squared: fit.rSquared,
     adj_r_squared: fit.adjRSquared,
     residual_rms: fit.residualRms,
-    aic: finiteOrNull(fit.aic),
-    bic: finiteOrNull(fit.bic),
+    aic: undefinedAsNull(fit.aic),
+    bic: undefinedAsNull(fit.bic),
     residual_lag1: fit.residualLag1,
     rho: fit.rho,
     converged: fit.converged,
@@ -151,8 +152,8 @@ function alternativeJson(
     lower: alt.lower,
     upper: alt.upper,
     residual_rms: alt.residualRms,
-    aic: finiteOrNull(alt.aic),
-    bic: finiteOrNull(alt.bic),
+    aic: undefinedAsNull(alt.aic),
+    bic: undefinedAsNull(alt.bic),
     rho: alt.rho,
   };
 }
@@ -226,7 +227,7 @@ function calibrate(cells: CalibrationCells, params: ModelParams): ProxyModelFit 
     if (e instanceof CollinearProxiesError) {
       throw new InputProblem("/terms", e.message, {
         reason: "collinear",
-        condition_number: finiteOrNull(e.conditionNumber),
+        condition_number: undefinedAsNull(e.conditionNumber),
       });
     }
     if (e instanceof InputError) throw inputProblem(e, { tsi: "/tsi", "*": "/terms" });

@@ -30,7 +30,7 @@ import {
   type SpectralPeak,
 } from "../../../core/spectral/mod.ts";
 import { activityGrid } from "../common/activity_grid.ts";
-import { numOrNull } from "../common/nulls.ts";
+import { undefinedAsNull } from "../common/undefined_as_null.ts";
 import { MAX_GRID, type SpectraParams } from "./request.ts";
 import type { PeakIn, SpectraResultIn } from "./result.ts";
 
@@ -60,9 +60,9 @@ function peakJson(q: SpectralPeak, fapAnalytic: number | null, fapMc: number | n
     period: q.period,
     frequency: q.frequency,
     power: q.power,
-    period_uncertainty: numOrNull(q.periodUncertainty),
-    period_interval: [numOrNull(q.periodInterval[0]), numOrNull(q.periodInterval[1])],
-    half_width_frequency: numOrNull(q.halfWidth),
+    period_uncertainty: undefinedAsNull(q.periodUncertainty),
+    period_interval: [undefinedAsNull(q.periodInterval[0]), undefinedAsNull(q.periodInterval[1])],
+    half_width_frequency: undefinedAsNull(q.halfWidth),
     false_alarm_analytic: fapAnalytic,
     false_alarm_monte_carlo: fapMc,
   };

@@ -33,7 +33,7 @@ export function midMonthDays(y: number, m: number): number {
 }
 
 /** The NetCDF-3 bytes of a monthly (time, lat, lon) field. */
-export function gridNetcdf(o: GridFileOptions): Uint8Array {
+export function gridNetcdf(o: GridFileOptions): Uint8Array<ArrayBuffer> {
   const fill = o.fill ?? -9999;
   const time = o.time ??
     Array.from(
@@ -82,7 +82,7 @@ export function gridNetcdf(o: GridFileOptions): Uint8Array {
       ),
     },
   ];
-  return encodeNetcdf3({
+  return new Uint8Array(encodeNetcdf3({
     dimensions: [
       { name: "time", size: o.nTime },
       { name: "lat", size: o.lat.length },
@@ -90,5 +90,5 @@ export function gridNetcdf(o: GridFileOptions): Uint8Array {
     ],
     attributes: [ncText("Conventions", "CF-1.10"), ncText("title", "constructed test field")],
     variables: vars,
-  });
+  }));
 }

@@ -30,7 +30,7 @@ function close(actual: number | null, expected: number, rel: number, abs: number
   );
 }
 
-async function upload(svc: TestService, bytes: Uint8Array, query = "") {
+async function upload(svc: TestService, bytes: Uint8Array<ArrayBuffer>, query = "") {
   return await svc.app.request(`/v1/fields${query}`, {
     method: "POST",
     headers: { "content-type": "application/x-netcdf" },
