@@ -16,7 +16,7 @@
  *
  * @module
  */
-import { interpolateRdBu } from "d3-scale-chromatic";
+import { interpolateRdBu, interpolateViridis } from "d3-scale-chromatic";
 import { el, escapeXml, num, shortHash, text, wrapText } from "./svg.ts";
 import { FONT_STACK, THEMES } from "./theme.ts";
 import type { ChartSpec, RenderOptions } from "./spec.ts";
@@ -45,6 +45,11 @@ export interface MapChartSpec {
   stippleLabel?: string;
   /** Fixed symmetric colour limit; default the 98th percentile of |value|. */
   limit?: number;
+  /**
+   * `diverging` (default): centred on zero, for signed quantities (r, slopes, anomalies);
+   * `sequential`: viridis from the 2nd to the 98th percentile, for absolute values.
+   */
+  scale?: "diverging" | "sequential";
   /** Warnings and cautions, each written in full under the map. */
   notes?: string[];
 }
@@ -113,7 +118,21 @@ function colourLimit(values: ArrayLike<number | null>): number {
   return q > 0 ? q : (a[a.length - 1] > 0 ? a[a.length - 1] : 1);
 }
 
-/** A round step for the colour bar's ticks. */
+/** The 2nd and 98th percentiles of the values (a non-empty range). */
+function sequentialDomain(values: ArrayLike<number | null>): [number, number] {
+  const a: number[] = [];
+  for (let i = 0; i < values.length; i++) {
+    const v = values[i];
+    if (v !== null && Number.isFinite(v)) a.push(v);
+  }
+  if (a.length === 0) return [0, 1];
+  a.sort((x, y) => x - y);
+  const q = (p: number) => a[Math.min(a.length - 1, Math.floor(p * (a.length - 1)))];
+  const lo = q(0.02), hi = q(0.98);
+  return hi > lo ? [lo, hi] : [lo - 0.5, lo + 0.5];
+}
+
+/** A round step for the colour bar's ticks over a range of width `2 · limit`. */
 function niceStep(limit: number): number {
   const raw = limit / 2;
   const p = 10 ** Math.floor(Math.log10(raw));
@@ -127,10 +146,12 @@ function tickLabel(v: number, step: number): string {
   return /^-0(\.0*)?$/.test(s) ? s.slice(1) : s;
 }
 
-/** The colour of a class k of CLASSES (0 = most negative). Blue below zero, red above. */
-function classColour(k: number): string {
+/** The colour of a class k of CLASSES (0 = lowest). Diverging: blue below zero, red above. */
+function classColour(k: number, scale: "diverging" | "sequential"): string {
   // RdBu goes red (0) to blue (1): reverse so negative values are blue
-  return interpolateRdBu(1 - (k + 0.5) / CLASSES);
+  return scale === "sequential"
+    ? interpolateViridis((k + 0.5) / CLASSES)
+    : interpolateRdBu(1 - (k + 0.5) / CLASSES);
 }
 
 /**
@@ -159,10 +180,12 @@ export function renderMapChart(spec: MapChartSpec, opts: RenderOptions): string 
   const top = 10 + titleLines.length * (TITLE_FONT + 4) + 4;
   const notes: string[] = [];
   for (const n of spec.notes ?? []) notes.push(...wrapText(n, NOTE_FONT, W - 24));
-  const below = 58 + (spec.stipple ? 16 : 0) + (notes.length ? notes.length * NOTE_LINE + 8 : 0);
+  const below = 66 + (spec.stipple ? 16 : 0) + (notes.length ? notes.length * NOTE_LINE + 8 : 0);
   const aspect = (east - west) / Math.max(1e-9, north - south);
   let mapW = W - 24, mapH = mapW / aspect;
-  const room = Math.max(80, opts.height - top - below);
+  // the map keeps at least three quarters of the full width: the chart grows taller for long
+  // notes rather than shrink the map to a thumbnail
+  const room = Math.max(80, opts.height - top - below, (0.75 * (W - 24)) / aspect);
   if (mapH > room) {
     mapH = room;
     mapW = mapH * aspect;
@@ -178,9 +201,11 @@ export function renderMapChart(spec: MapChartSpec, opts: RenderOptions): string 
     width: mapW,
     height: mapH,
   };
+  const scale = spec.scale ?? "diverging";
   const limit = spec.limit && spec.limit > 0 ? spec.limit : colourLimit(spec.values);
+  const [lo, hi] = scale === "sequential" ? sequentialDomain(spec.values) : [-limit, limit];
   const classOf = (v: number) =>
-    Math.max(0, Math.min(CLASSES - 1, Math.floor(((v + limit) / (2 * limit)) * CLASSES)));
+    Math.max(0, Math.min(CLASSES - 1, Math.floor(((v - lo) / (hi - lo)) * CLASSES)));
   const shiftLon = (lon: number) => {
     let x = lon;
     while (x < west - 1e-9) x += 360;
@@ -212,7 +237,7 @@ export function renderMapChart(spec: MapChartSpec, opts: RenderOptions): string 
     for (const j of order) {
       const v = spec.values[i * nLon + j];
       const ok = v !== null && Number.isFinite(v);
-      const fill = ok ? classColour(classOf(v as number)) : theme.grid;
+      const fill = ok ? classColour(classOf(v as number), scale) : theme.grid;
       if (ok) {
         shown++;
         vmin = Math.min(vmin, v as number);
@@ -288,7 +313,7 @@ export function renderMapChart(spec: MapChartSpec, opts: RenderOptions): string 
       "stroke-width": 0.8,
     }) + graticuleLabels(frame, theme.muted);
   // colour bar
-  const barW = Math.min(420, W - 24), barX = (W - barW) / 2, barY = top + mapH + 26;
+  const barW = Math.min(420, W - 24), barX = (W - barW) / 2, barY = top + mapH + 34;
   let bar = "";
   for (let k = 0; k < CLASSES; k++) {
     bar += el("rect", {
@@ -296,12 +321,12 @@ export function renderMapChart(spec: MapChartSpec, opts: RenderOptions): string 
       y: barY,
       width: barW / CLASSES + 0.3,
       height: 10,
-      fill: classColour(k),
+      fill: classColour(k, scale),
     });
   }
-  const step = niceStep(limit);
-  for (let v = -Math.floor(limit / step) * step; v <= limit + 1e-12; v += step) {
-    const x = barX + ((v + limit) / (2 * limit)) * barW;
+  const step = niceStep((hi - lo) / 2);
+  for (let v = Math.ceil(lo / step - 1e-9) * step; v <= hi + 1e-9 * step; v += step) {
+    const x = barX + ((v - lo) / (hi - lo)) * barW;
     bar += el("line", { x1: x, x2: x, y1: barY + 10, y2: barY + 14, stroke: theme.muted }) +
       text({
         x,
@@ -311,13 +336,20 @@ export function renderMapChart(spec: MapChartSpec, opts: RenderOptions): string 
         "font-size": FONT - 1,
       }, tickLabel(v, step));
   }
-  bar += text({
-    x: W / 2,
-    y: barY - 6,
-    "text-anchor": "middle",
-    fill: theme.foreground,
-    "font-size": FONT,
-  }, `${spec.legend}; colours saturate beyond ±${tickLabel(limit, step / 10)}`);
+  bar += text(
+    {
+      x: W / 2,
+      y: barY - 6,
+      "text-anchor": "middle",
+      fill: theme.foreground,
+      "font-size": FONT,
+    },
+    `${spec.legend}; colours saturate ${
+      scale === "sequential"
+        ? `below ${tickLabel(lo, step / 10)} and above ${tickLabel(hi, step / 10)}`
+        : `beyond ±${tickLabel(limit, step / 10)}`
+    }`,
+  );
   let key = "";
   let y = barY + 40;
   if (spec.stipple) {

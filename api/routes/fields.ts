@@ -38,6 +38,8 @@ import { holderOf, isLimited, viewerOf } from "../auth/principal.ts";
 import { mustSeeField, sharedCacheable } from "../auth/access.ts";
 import { checkStorage } from "../limits/quotas.ts";
 import { float32Text } from "../fields/float32_text.ts";
+import { renderMapChart } from "../charts/map_chart.ts";
+import { SERVICE_VERSION } from "../version.ts";
 
 const FieldIdParam = z.object({
   id: z.string().regex(FIELD_ID_PATTERN, "must be a field id: field:sha256:<64 hex>").openapi({
@@ -594,6 +596,75 @@ export function registerFieldRoutes(app: App, deps: { store: Store; config: Conf
         lon: Array.from(f.lon),
         value: Array.from(v, (x) => (Number.isNaN(x) ? null : x)),
       });
+    }) as never,
+  );
+
+  app.openapi(
+    createRoute({
+      method: "get",
+      path: "/v1/fields/{id}/slices/chart.svg",
+      tags: ["Fields", "Charts"],
+      summary: "The map of the time step nearest to `time` as a standalone SVG chart",
+      description: "Equirectangular map of the cells on a sequential colour scale (viridis, " +
+        "2nd to 98th percentile), Natural Earth coastlines, grey where missing; immutable.",
+      request: {
+        params: FieldIdParam,
+        query: z.object({
+          time: z.string().min(1).max(40).openapi({
+            description: "A decimal year with a fraction or an ISO 8601 date",
+            example: "1996-07",
+          }),
+          width: z.coerce.number().int().min(240).max(4000).default(800),
+          height: z.coerce.number().int().min(160).max(3000).default(480),
+          theme: z.enum(["light", "dark"]).default("light"),
+        }),
+      },
+      responses: {
+        200: {
+          description: "The map",
+          content: { "image/svg+xml": { schema: z.string().openapi({ format: "binary" }) } },
+        },
+        304: { description: "Not modified" },
+        ...problems(404, 422),
+      },
+    }),
+    // deno-lint-ignore no-explicit-any
+    (async (c: any) => {
+      const id = c.req.valid("param").id;
+      const q = c.req.valid("query");
+      const { f, shared } = await mustGetField(c, store, id);
+      let k: number;
+      try {
+        k = nearestStep(f.time, readTime(q.time));
+      } catch (e) {
+        throw queryProblem(e);
+      }
+      const etag = `"${id}-slice-${k}-svg-${q.width}x${q.height}-${q.theme}-${SERVICE_VERSION}"`;
+      const nm = notModified(c, etag, shared);
+      if (nm) return nm;
+      const v = await store.readFieldSteps(id, k, k + 1);
+      const res = f.resolution === "irregular" ? "daily" : f.resolution;
+      const date = formatIsoTime(f.time[k], res);
+      const svg = renderMapChart({
+        type: "map",
+        title: `${f.name}, ${date}`,
+        description: `Field ${f.id} (variable ${f.variable}) at time step ${k}.`,
+        lat: f.lat,
+        lon: f.lon,
+        lat_bounds: f.lat_bounds,
+        lon_bounds: f.lon_bounds,
+        values: Array.from(v, (x) => (Number.isNaN(x) ? null : x)),
+        legend: `${f.variable} (${f.units})`,
+        scale: "sequential",
+        notes: [
+          `Time step ${k + 1} of ${f.n_time}; ${f.info.calendar} calendar in the uploaded file.`,
+        ],
+      }, { width: q.width, height: q.height, theme: q.theme });
+      for (const [h, x] of Object.entries(immutableHeaders(etag, shared))) c.header(h, x);
+      c.header("Content-Type", "image/svg+xml; charset=utf-8");
+      c.header("X-Content-Type-Options", "nosniff");
+      c.header("Content-Security-Policy", "default-src 'none'; style-src 'unsafe-inline'; sandbox");
+      return c.body(svg);
     }) as never,
   );
 
