@@ -58,7 +58,7 @@ async function setUp(svc: TestService) {
   return { field: body.field.id as string, solar, enso, upload: body };
 }
 
-async function run(svc: TestService, body: Record<string, unknown>) {
+async function runMap(svc: TestService, body: Record<string, unknown>) {
   const res = await svc.post("/v1/solar-signal-maps", body);
   const json = await res.json();
   assert.equal(res.status, 201, JSON.stringify(json).slice(0, 2000));
@@ -76,7 +76,7 @@ Deno.test("solar-signal-maps agrees with scipy/statsmodels per cell and lag, thr
     const { field, solar, upload: up } = await setUp(svc);
     // the upload decoded the missing cell and the gap from the _FillValue
     assert.equal(up.field.missing, N + 1);
-    const runBody = await run(svc, {
+    const runBody = await runMap(svc, {
       field,
       solar,
       min_lag: 0,
@@ -141,7 +141,7 @@ Deno.test("solar-signal-maps: the FDR mask at one lag is statsmodels' fdr_bh; co
   const svc = await makeTestApp();
   try {
     const { field, solar, enso } = await setUp(svc);
-    const one = (await run(svc, {
+    const one = (await runMap(svc, {
       field,
       solar,
       min_lag: 2,
@@ -153,7 +153,7 @@ Deno.test("solar-signal-maps: the FDR mask at one lag is statsmodels' fdr_bh; co
     const mask = (ref.analysed_cells as number[]).map((c) => variable(one, "significant")[c]);
     assert.deepEqual(mask, ref.fdr_lag2_q010, "multipletests(method='fdr_bh', alpha=0.10)");
     assert.equal(one.field_significance.fdr.alpha_fdr, 0.1);
-    const withControl = (await run(svc, {
+    const withControl = (await runMap(svc, {
       field,
       solar,
       controls: [{ name: "enso", series: enso }],
@@ -187,8 +187,8 @@ Deno.test("solar-signal-maps: the Monte Carlo test gives the same digest on 1 th
   const b = await makeTestApp({ workers: 2 });
   try {
     const ia = await setUp(a), ib = await setUp(b);
-    const ra = await run(a, body(ia));
-    const rb = await run(b, body(ib));
+    const ra = await runMap(a, body(ia));
+    const rb = await runMap(b, body(ib));
     assert.equal(ra.result_digest, rb.result_digest);
     const mc = ra.result.field_significance.monte_carlo;
     assert.equal(mc.surrogates, 199);
@@ -221,10 +221,23 @@ Deno.test("solar-signal-maps: a field with no time overlap, and a field a run us
     const p = await assertProblem(res, 422);
     assert.equal(p.errors[0].pointer, "/solar");
     assert.match(p.errors[0].message, /no time step/);
-    await run(svc, { field, solar, surrogates: 0, max_lag: 2 });
+    await runMap(svc, { field, solar, surrogates: 0, max_lag: 2 });
     const del = await svc.app.request(`/v1/fields/${field}`, { method: "DELETE" });
     const conflict = await assertProblem(del, 409);
     assert.equal(conflict.runs.length, 1);
+  } finally {
+    await svc.close();
+  }
+});
+
+Deno.test("a run on a gridded field is not bundled: the problem says how to move it", async () => {
+  const svc = await makeTestApp();
+  try {
+    const { field, solar } = await setUp(svc);
+    const run = await runMap(svc, { field, solar, surrogates: 0, max_lag: 2 });
+    const p = await assertProblem(await svc.get(`/v1/runs/${run.id}/bundle`), 409);
+    assert.deepEqual(p.fields, [field]);
+    assert.match(p.detail, /same NetCDF file/);
   } finally {
     await svc.close();
   }
