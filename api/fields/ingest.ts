@@ -239,7 +239,19 @@ export async function storeNetcdfField(
     // the header goes first, but its min/max and missing count are not part of it
     hash.update(canonicalJson(fieldHeader(meta)), "utf8");
     hash.update("\n", "utf8");
-    for await (const b of readCfGridBlocks(src, grid, meta.block_rows)) {
+    // the next block is read (in the NetCDF-4 worker) while this one is hashed and stored
+    const blocks = readCfGridBlocks(src, grid, meta.block_rows);
+    const ahead = () => {
+      const p = blocks.next();
+      p.catch(() => undefined); // awaited below; a failure after an abort is not unhandled
+      return p;
+    };
+    let next = ahead();
+    for (;;) {
+      const step = await next;
+      if (step.done) break;
+      next = ahead();
+      const b = step.value;
       const v = b.values;
       for (let i = 0; i < v.length; i++) {
         const x = v[i];
