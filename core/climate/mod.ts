@@ -14,4 +14,3 @@ export * from "./surrogate_lag_test.ts";
 export * from "./energy_balance.ts";
 export * from "./superposed_epoch.ts";
 export * from "./attribution_regression.ts";
-export * from "./inverse_dft_plan.ts";

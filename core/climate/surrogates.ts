@@ -57,8 +57,9 @@ export function randomPhasors(
   re: Float64Array,
   im: Float64Array,
 ): void {
+  stream.fill(re, count);
   for (let i = 0; i < count; i++) {
-    const u = stream.uniform() * TABLE_SIZE;
+    const u = re[i] * TABLE_SIZE;
     const j = u | 0;
     const d = (u - j) * STEP, d2 = d * d;
     const cd = 1 - (d2 / 2) * (1 - (d2 / 12) * (1 - d2 / 30));

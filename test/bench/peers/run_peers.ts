@@ -68,7 +68,7 @@ class Side {
   }
 }
 
-async function* lines(stream: ReadableStream<Uint8Array>): AsyncGenerator<string> {
+async function* lines(stream: ReadableStream<Uint8Array<ArrayBuffer>>): AsyncGenerator<string> {
   let buf = "";
   for await (const chunk of stream.pipeThrough(new TextDecoderStream())) {
     buf += chunk;
