@@ -48,6 +48,23 @@ export interface Reconstruction {
   source: Uint8Array;
 }
 
+/** σ²·f(m, ρ)/m for a cell of `days` days, m = max(1, days/step), cached per cell length. */
+function residualVariance(sdr: number, rho: number, step: number): (days: number) => number {
+  const cache = new Map<number, number>();
+  let lastDays = NaN, last = NaN;
+  return (days: number) => {
+    if (days === lastDays) return last;
+    let f = cache.get(days);
+    if (f === undefined) {
+      const m = Math.max(1, days / step);
+      f = ar1MeanVarianceFactor(m, rho) / m;
+      cache.set(days, f);
+    }
+    lastDays = days;
+    return last = sdr * sdr * f;
+  };
+}
+
 /**
  * Reconstruct TSI per cell: ŷ = xᵀβ with x the cell's regressors (intercept, F_k − F_k,Q,
  * −S_ref·PSI), and the predictive variance
@@ -96,27 +113,85 @@ export function reconstructFromProxies(
     throw new RangeError("Cannot reconstruct: coefficients do not match the terms");
   }
   const n = cells.days.length;
-  const beta = model.coefficients, S = model.covariance;
-  const scale = model.terms.map((t) => t.role === "sunspot_darkening" ? -model.psiReference : 1);
-  const offset = model.terms.map((t) => t.role === "sunspot_darkening" ? 0 : t.quietLevel);
-  const value = new Float64Array(n), sd = new Float64Array(n);
-  const lower = new Float64Array(n), upper = new Float64Array(n);
-  const source = new Uint8Array(n);
-  const x = new Float64Array(K + 1);
-  const stepDays = model.stepDays, be = model.backExtension;
-  // the AR(1) factor per distinct cell length (daily/monthly/annual cells have few lengths)
-  const caches = [new Map<number, number>(), new Map<number, number>()];
-  const residVar = (which: 0 | 1, days: number, sdr: number, rho: number, step: number) => {
-    let f = caches[which].get(days);
-    if (f === undefined) {
-      const m = Math.max(1, days / step);
-      f = ar1MeanVarianceFactor(m, rho) / m;
-      caches[which].set(days, f);
-    }
-    return sdr * sdr * f;
+  const P = K + 1;
+  // typed copies of the model (the same products in the same order as the formula)
+  const beta = Float64Array.from(model.coefficients);
+  const S = new Float64Array(P * P);
+  for (let a = 0; a < P; a++) for (let b = 0; b < P; b++) S[a * P + b] = model.covariance[a][b];
+  const scale = Float64Array.from(
+    model.terms,
+    (t) => t.role === "sunspot_darkening" ? -model.psiReference : 1,
+  );
+  const offset = Float64Array.from(
+    model.terms,
+    (t) => t.role === "sunspot_darkening" ? 0 : t.quietLevel,
+  );
+  // per term: the mapped-variance weight (β_k² + Σ_kk)·s_k²
+  const weight = Float64Array.from(
+    { length: K },
+    (_, k) => (beta[k + 1] * beta[k + 1] + S[(k + 1) * P + k + 1]) * scale[k] * scale[k],
+  );
+  const out: Reconstruction = {
+    value: new Float64Array(n),
+    sd: new Float64Array(n),
+    lower: new Float64Array(n),
+    upper: new Float64Array(n),
+    source: new Uint8Array(n),
   };
+  const be = model.backExtension;
+  const residVar = [
+    residualVariance(model.residualSd, model.rho, model.stepDays),
+    be ? residualVariance(be.residualSd, be.rho, be.stepDays) : null,
+  ];
+  const fill = K === 2 ? fillTwoTerms : fillAnyTerms;
+  fill({ cells, beta, S, scale, offset, weight, residVar, z }, out);
+  return out;
+}
+
+/** What the cell loops need, prepared once. */
+interface CellModel {
+  cells: ReconstructionCells;
+  beta: Float64Array;
+  /** Σ_β, row-major (K+1)². */
+  S: Float64Array;
+  scale: Float64Array;
+  offset: Float64Array;
+  weight: Float64Array;
+  /** Residual variance of a cell by its length in days: [direct model, back-extension]. */
+  residVar: (((days: number) => number) | null)[];
+  z: number;
+}
+
+/** One cell's results from ŷ, Var without the residual term, and its state (1 = mapped). */
+function setCell(
+  out: Reconstruction,
+  i: number,
+  y: number,
+  varNoResid: number,
+  rv: number,
+  z: number,
+  mapped: boolean,
+): void {
+  const s = Math.sqrt(varNoResid + rv);
+  out.value[i] = y;
+  out.sd[i] = s;
+  out.lower[i] = y - z * s;
+  out.upper[i] = y + z * s;
+  out.source[i] = mapped ? SOURCE_BACK_EXTENDED : SOURCE_DIRECT;
+}
+
+function setEmpty(out: Reconstruction, i: number): void {
+  out.value[i] = out.sd[i] = out.lower[i] = out.upper[i] = NaN;
+  out.source[i] = SOURCE_NONE;
+}
+
+/** Any number of terms: x = (1, s_k (v_k − o_k)), ŷ = βᵀx, xᵀΣx, cell by cell. */
+function fillAnyTerms(c: CellModel, out: Reconstruction): void {
+  const { cells, beta, S, scale, offset, weight, residVar, z } = c;
+  const K = cells.direct.length, P = K + 1, n = cells.days.length;
+  const x = new Float64Array(P);
+  x[0] = 1;
   for (let i = 0; i < n; i++) {
-    x[0] = 1;
     let mappedVar = 0, anyMapped = false, ok = true;
     for (let k = 0; k < K; k++) {
       let v = cells.direct[k][i];
@@ -128,31 +203,75 @@ export function reconstructFromProxies(
         }
         v = m.value[i];
         anyMapped = true;
-        const s = scale[k];
-        mappedVar += (beta[k + 1] * beta[k + 1] + S[k + 1][k + 1]) * s * s * m.paramVariance[i];
+        mappedVar += weight[k] * m.paramVariance[i];
       }
       x[k + 1] = scale[k] * (v - offset[k]);
     }
-    if (!ok || (anyMapped && !be)) {
-      value[i] =
-        sd[i] =
-        lower[i] =
-        upper[i] =
-          NaN;
-      source[i] = SOURCE_NONE;
+    const rv = residVar[anyMapped ? 1 : 0];
+    if (!ok || !rv) {
+      setEmpty(out, i);
       continue;
     }
     let y = 0, q = 0;
-    for (let a = 0; a <= K; a++) {
+    for (let a = 0; a < P; a++) {
       y += beta[a] * x[a];
-      const Sa = S[a];
       let r = 0;
-      for (let b = 0; b <= K; b++) r += Sa[b] * x[b];
+      for (let b = 0; b < P; b++) r += S[a * P + b] * x[b];
       q += x[a] * r;
     }
-    const rv = anyMapped
-      ? residVar(1, cells.days[i], be!.residualSd, be!.rho, be!.stepDays)
-      : residVar(0, cells.days[i], model.residualSd, model.rho, stepDays);
+    setCell(out, i, y, Math.max(0, q) + mappedVar, rv(cells.days[i]), z, anyMapped);
+  }
+}
+
+/**
+ * Two terms (the usual facular + darkening model): {@link fillAnyTerms} written out, the same
+ * operations in the same order, so the numbers are identical. Written out for speed: 153,000
+ * daily cells take 2.8 ms here against 4.0 ms through the general loop (test/bench/peers).
+ */
+function fillTwoTerms(c: CellModel, out: Reconstruction): void {
+  const { cells, scale, offset, weight, residVar, z } = c;
+  const { value, sd, lower, upper, source } = out;
+  const n = cells.days.length, days = cells.days;
+  const [b0, b1, b2] = c.beta;
+  const [s00, s01, s02, s10, s11, s12, s20, s21, s22] = c.S;
+  const d1 = cells.direct[0], d2 = cells.direct[1], m1 = cells.mapped[0], m2 = cells.mapped[1];
+  const sc1 = scale[0], sc2 = scale[1], of1 = offset[0], of2 = offset[1];
+  const w1 = weight[0], w2 = weight[1];
+  let lastDays = NaN, lastMapped = false, rv = NaN;
+  for (let i = 0; i < n; i++) {
+    let v1 = d1[i], v2 = d2[i], mappedVar = 0, anyMapped = false;
+    if (!Number.isFinite(v1)) {
+      if (!m1 || !Number.isFinite(m1.value[i])) {
+        setEmpty(out, i);
+        continue;
+      }
+      v1 = m1.value[i];
+      anyMapped = true;
+      mappedVar += w1 * m1.paramVariance[i];
+    }
+    if (!Number.isFinite(v2)) {
+      if (!m2 || !Number.isFinite(m2.value[i])) {
+        setEmpty(out, i);
+        continue;
+      }
+      v2 = m2.value[i];
+      anyMapped = true;
+      mappedVar += w2 * m2.paramVariance[i];
+    }
+    if (days[i] !== lastDays || anyMapped !== lastMapped) {
+      const f = residVar[anyMapped ? 1 : 0];
+      if (!f) {
+        setEmpty(out, i);
+        continue;
+      }
+      rv = f(days[i]);
+      lastDays = days[i];
+      lastMapped = anyMapped;
+    }
+    const x1 = sc1 * (v1 - of1), x2 = sc2 * (v2 - of2);
+    const y = 0 + b0 * 1 + b1 * x1 + b2 * x2;
+    const q = 0 + 1 * (0 + s00 * 1 + s01 * x1 + s02 * x2) +
+      x1 * (0 + s10 * 1 + s11 * x1 + s12 * x2) + x2 * (0 + s20 * 1 + s21 * x1 + s22 * x2);
     const s = Math.sqrt(Math.max(0, q) + mappedVar + rv);
     value[i] = y;
     sd[i] = s;
@@ -160,5 +279,5 @@ export function reconstructFromProxies(
     upper[i] = y + z * s;
     source[i] = anyMapped ? SOURCE_BACK_EXTENDED : SOURCE_DIRECT;
   }
-  return { value, sd, lower, upper, source };
 }
+
