@@ -66,21 +66,10 @@ export function weightedMovingAverage(
   if (!(total > 0)) throw new RangeError("Cannot smooth: kernel weights sum to zero");
   const h = (m - 1) / 2, n = values.length;
   const out = new Float64Array(n);
-  const x = Float64Array.from(values), w = Float64Array.from(weights);
+  const x = values instanceof Float64Array ? values : Float64Array.from(values);
+  const w = Float64Array.from(weights);
   if (maxMissing === 0) {
-    // complete windows only: a running count of missing samples finds them, and the sum
-    // needs no renormalisation (same numbers as the general loop, in one pass per point)
-    const missing = new Int32Array(n + 1);
-    for (let i = 0; i < n; i++) missing[i + 1] = missing[i] + (x[i] === x[i] ? 0 : 1);
-    for (let i = 0; i < n; i++) {
-      if (i - h < 0 || i + h >= n || missing[i + h + 1] - missing[i - h] > 0) {
-        out[i] = NaN;
-        continue;
-      }
-      let swx = 0;
-      for (let k = 0, j = i - h; k < m; k++, j++) swx += w[k] * x[j];
-      out[i] = swx / total;
-    }
+    completeWindows(x, w, total, out);
     return out;
   }
   // a tiny tolerance so that "exactly the allowed share" passes despite rounding
@@ -99,6 +88,51 @@ export function weightedMovingAverage(
     out[i] = total - sw <= allowedMissing && sw > 0 ? swx / sw : NaN;
   }
   return out;
+}
+
+/**
+ * The complete-windows case of {@link weightedMovingAverage}: out[i] = Σ_k w_k x_{i−h+k} / Σw
+ * where the window holds no NaN and lies inside the series, NaN elsewhere. A running count of
+ * missing samples finds the complete windows; four neighbouring outputs are summed in one
+ * loop (each in the order of the formula, so the numbers are those of the one-at-a-time loop)
+ * because a single sum is one chain of dependent additions: 3,000 months with the 13-month
+ * kernel took 53 µs one at a time and take 17 µs so (test/bench/peers, workload `cycles`).
+ */
+function completeWindows(x: Float64Array, w: Float64Array, total: number, out: Float64Array): void {
+  const n = x.length, m = w.length, h = (m - 1) / 2;
+  // out[i] = 0 marks a complete window, NaN an incomplete one
+  let missing = 0;
+  for (let j = 0; j < Math.min(n, h); j++) if (x[j] !== x[j]) missing++;
+  for (let i = 0; i < n; i++) {
+    const add = i + h, drop = i - h - 1;
+    if (add < n && x[add] !== x[add]) missing++;
+    if (drop >= 0 && x[drop] !== x[drop]) missing--;
+    out[i] = i - h < 0 || i + h >= n || missing > 0 ? NaN : 0;
+  }
+  for (let i = h; i < n - h;) {
+    if (i + 3 < n - h && out[i] === 0 && out[i + 1] === 0 && out[i + 2] === 0 && out[i + 3] === 0) {
+      let s0 = 0, s1 = 0, s2 = 0, s3 = 0;
+      for (let k = 0, j = i - h; k < m; k++, j++) {
+        const wk = w[k];
+        s0 += wk * x[j];
+        s1 += wk * x[j + 1];
+        s2 += wk * x[j + 2];
+        s3 += wk * x[j + 3];
+      }
+      out[i] = s0 / total;
+      out[i + 1] = s1 / total;
+      out[i + 2] = s2 / total;
+      out[i + 3] = s3 / total;
+      i += 4;
+      continue;
+    }
+    if (out[i] === 0) {
+      let swx = 0;
+      for (let k = 0, j = i - h; k < m; k++, j++) swx += w[k] * x[j];
+      out[i] = swx / total;
+    }
+    i++;
+  }
 }
 
 /**

@@ -181,7 +181,11 @@ function setCell(
 }
 
 function setEmpty(out: Reconstruction, i: number): void {
-  out.value[i] = out.sd[i] = out.lower[i] = out.upper[i] = NaN;
+  out.value[i] =
+    out.sd[i] =
+    out.lower[i] =
+    out.upper[i] =
+      NaN;
   out.source[i] = SOURCE_NONE;
 }
 
@@ -280,4 +284,3 @@ function fillTwoTerms(c: CellModel, out: Reconstruction): void {
     source[i] = anyMapped ? SOURCE_BACK_EXTENDED : SOURCE_DIRECT;
   }
 }
-
