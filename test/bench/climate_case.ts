@@ -1,6 +1,6 @@
 /**
  * The benchmark cases of the solar–climate area, shared by climate_bench.ts and
- * climate_medians.ts: two 4,096-month series (invented AR(1) data, fixed seeds), lags
+ * test/bench/peers/workloads.ts: two 4,096-month series (invented AR(1) data, fixed seeds), lags
  * −120..120, linear detrend; and a 1,800-month attribution with 4 regressors whose lags are
  * searched over 0–24 months.
  *

@@ -1,6 +1,6 @@
 /**
  * Irradiance benchmarks (deno bench): the workload of irradiance_case.ts. The same work in
- * numpy: test/bench/irradiance_numpy.py.
+ * numpy: test/bench/peers/peer_side.py (`deno task bench:peers`).
  */
 import { irradianceCase } from "./irradiance_case.ts";
 

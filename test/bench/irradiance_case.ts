@@ -1,9 +1,9 @@
 /**
- * The irradiance benchmark workload, shared by irradiance_bench.ts (deno bench) and
- * irradiance_medians.ts (side-by-side medians): calibrate a two-proxy model on 17,000 daily
+ * The irradiance benchmark workload, shared by irradiance_bench.ts (deno bench) and the
+ * side-by-side benchmarks (test/bench/peers): calibrate a two-proxy model on 17,000 daily
  * points (Prais–Winsten + 5-fold blocked CV) and reconstruct 153,000 daily points with 95 %
  * prediction intervals, the first half back-extended through sunspot mappings. The same work in
- * numpy: irradiance_numpy.py. Synthetic inputs (invented, seeded).
+ * numpy: `irradiance_job` in test/bench/peers/peer_side.py. Synthetic inputs (invented, seeded).
  */
 import {
   calibrateProxyModel,
