@@ -304,6 +304,8 @@ function edgeSums(sv: (t: number) => number, n: number, L: number, out: Surrogat
  * basis vector beyond the constant (for the projection coefficients) and Σ_f |X_f|².
  */
 interface PhaseFixed {
+  /** Zeros of length N, standing in for absent basis vectors at the edges. */
+  zero: Float64Array;
   basisRe: Float64Array[];
   basisIm: Float64Array[];
   innerPower: number;
@@ -319,7 +321,7 @@ function phaseFixed(plan: SurrogateLagPlan): PhaseFixed {
   const h = Math.floor(plan.n / 2) + 1, inner = plan.n % 2 === 0 ? h - 2 : h - 1;
   let innerPower = 0;
   for (let f = 1; f <= inner; f++) innerPower += plan.amplitude[f] * plan.amplitude[f];
-  return { basisRe, basisIm, innerPower };
+  return { zero: new Float64Array(plan.n), basisRe, basisIm, innerPower };
 }
 
 /**
@@ -386,16 +388,24 @@ function phaseSurrogate(
   const b1 = plan.basis[1], b2 = plan.basis[2], c1 = coef[1] ?? 0, c2 = coef[2] ?? 0;
   const nb = plan.basis.length;
   out.scale = inv;
-  edgeSums(
-    nb === 1
-      ? (t) => inv * zc[2 * t]
-      : nb === 2
-      ? (t) => inv * zc[2 * t] - c1 * b1[t]
-      : (t) => inv * zc[2 * t] - c1 * b1[t] - c2 * b2[t],
-    n,
-    L,
-    out,
-  );
+  // head and tail sums of the preprocessed surrogate s_t = raw_t/N − Σ_q coef_q b_q(t)
+  const { head1, head2, tail1, tail2 } = out;
+  const zero = fixed.zero;
+  const bb1 = nb > 1 ? b1 : zero, bb2 = nb > 2 ? b2 : zero;
+  let a1 = 0, a2 = 0, e1 = 0, e2 = 0;
+  for (let u = 0; u < L; u++) {
+    const t = n - 1 - u;
+    const h = inv * zc[2 * u] - c1 * bb1[u] - c2 * bb2[u];
+    const g = inv * zc[2 * t] - c1 * bb1[t] - c2 * bb2[t];
+    a1 += h;
+    a2 += h * h;
+    e1 += g;
+    e2 += g * g;
+    head1[u + 1] = a1;
+    head2[u + 1] = a2;
+    tail1[u + 1] = e1;
+    tail2[u + 1] = e2;
+  }
 }
 
 /** Any other surrogate (AR(1), or the high-pass), made and preprocessed in the time domain. */

@@ -109,7 +109,8 @@ export function randomStream(seed: number, index = 0): RandomStream {
    * same bits.
    */
   function fillUniform(g: typeof rng, out: Float64Array, count: number): void {
-    let [s01, s00, s11, s10] = g.getState();
+    const st = g.getState();
+    let s01 = st[0], s00 = st[1], s11 = st[2], s10 = st[3];
     for (let i = 0; i < count; i++) {
       const v1 = (s00 + s10) | 0;
       let a0 = s10 ^ s00, a1 = s11 ^ s01;

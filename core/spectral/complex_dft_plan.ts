@@ -516,11 +516,13 @@ function stockhamPlan(n: number): ComplexDftPlan {
   const lastAt = (x: Float64Array, y: Float64Array, t: number) => {
     const k = (t / ls) | 0, q = t - ls * k;
     let re = 0, im = 0;
-    for (let j = 0, u = 0; j < lr; j++, u = (u + k) % lr) {
+    for (let j = 0, u = 0, o = 2 * q; j < lr; j++, o += 2 * ls) {
       const c = roots[2 * u], sn = roots[2 * u + 1];
-      const xr = x[2 * (q + ls * j)], xi = x[2 * (q + ls * j) + 1];
+      const xr = x[o], xi = x[o + 1];
       re += xr * c - xi * sn;
       im += xr * sn + xi * c;
+      u += k;
+      if (u >= lr) u -= lr;
     }
     y[2 * t] = re;
     y[2 * t + 1] = im;
