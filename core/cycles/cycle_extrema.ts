@@ -211,9 +211,10 @@ function scratch(n: number): Scratch {
  * For every point k: `left[k]` = max of v over (p, k] with p the nearest point before k that
  * is strictly lower than v[k] (or over [0, k] when there is none), and `right[k]` the same
  * after k. One pass each way with a monotone stack (each point pushed and popped once), so
- * all prominences cost O(N) instead of a scan per candidate. Written by hand: no library
- * offers it; on 3,000 months with 142 local minima it cut findCycleExtrema from 100 µs to
- * 35 µs (test/bench/peers, workload `cycles`).
+ * all prominences cost O(N) instead of a scan per candidate. Written by hand (no library
+ * offers it): with typed work arrays kept between calls, findCycleExtrema on 3,000 months
+ * with 142 local minima went from 110 µs to 53 µs (CPU time, shared 2-core machine;
+ * workload `cycles` of test/bench/peers).
  */
 function climbs(v: Float64Array, work: Scratch): { left: Float64Array; right: Float64Array } {
   const n = v.length;

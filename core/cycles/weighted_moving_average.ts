@@ -96,7 +96,8 @@ export function weightedMovingAverage(
  * missing samples finds the complete windows; four neighbouring outputs are summed in one
  * loop (each in the order of the formula, so the numbers are those of the one-at-a-time loop)
  * because a single sum is one chain of dependent additions: 3,000 months with the 13-month
- * kernel took 53 µs one at a time and take 17 µs so (test/bench/peers, workload `cycles`).
+ * kernel took 57 µs one at a time and take 30 µs so (CPU time, shared 2-core machine;
+ * workload `cycles` of test/bench/peers).
  */
 function completeWindows(x: Float64Array, w: Float64Array, total: number, out: Float64Array): void {
   const n = x.length, m = w.length, h = (m - 1) / 2;

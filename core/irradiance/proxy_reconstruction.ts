@@ -230,7 +230,8 @@ function fillAnyTerms(c: CellModel, out: Reconstruction): void {
 /**
  * Two terms (the usual facular + darkening model): {@link fillAnyTerms} written out, the same
  * operations in the same order, so the numbers are identical. Written out for speed: 153,000
- * daily cells take 2.8 ms here against 4.0 ms through the general loop (test/bench/peers).
+ * daily cells take 3.1 ms here against 4.0 ms through the general loop (CPU time, shared
+ * 2-core machine; the workload of test/bench/irradiance_case.ts).
  */
 function fillTwoTerms(c: CellModel, out: Reconstruction): void {
   const { cells, scale, offset, weight, residVar, z } = c;

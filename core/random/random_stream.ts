@@ -104,9 +104,9 @@ export function randomStream(seed: number, index = 0): RandomStream {
    * pure-rand's xoroshiro128+ step and its uniformFloat64 (26 + 27 bits of two outputs),
    * written out with the state in local variables, then handed back through the package's
    * own state API. Written by hand for speed only: the phase-randomisation test draws about
-   * 2,000 uniforms per surrogate, and this loop takes 2.4 ns per uniform against 5.9 ns through
-   * `uniform()` (test/bench/random_bench.ts). random_stream_test.ts checks that both give the
-   * same bits.
+   * 2,000 uniforms per surrogate, and 2,047 of them take 7.7 µs here against 9.8 µs through
+   * `uniform()` (fastest runs of test/bench/random_bench.ts on a shared 2-core machine; 23
+   * against 42 µs on average under load). random_stream_test.ts checks both give the same bits.
    */
   function fillUniform(g: typeof rng, out: Float64Array, count: number): void {
     const st = g.getState();

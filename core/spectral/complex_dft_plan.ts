@@ -20,12 +20,14 @@
  * Convention (as numpy.fft): forward X_k = Σ_j x_j e^{−2πi jk/N}; `inverse` is the same sum
  * with e^{+2πi jk/N} and WITHOUT the 1/N factor (callers scale).
  *
- * Why hand-written: the npm FFTs are power-of-two only in float64 (fft.js, which sunlag used
- * before: a length such as 4,000 went through Bluestein with transforms of 8,192, 1.66 × the
- * time of 4,096), or float32 only (the WebAssembly builds of PFFFT and KISS FFT), which is not
- * enough for the 1e-12 agreement with numpy our tests ask. Measured with
- * test/bench/fft_bench.ts on this 2-core machine: length 4,096, this engine 22 µs and fft.js
- * 4.0.4 29 µs; length 4,000 (2⁵·5³), 24 µs here and 98 µs through fft.js + Bluestein.
+ * Why hand-written: the float64 FFTs on npm handle powers of two only (fft.js 4.0.4, which
+ * sunlag used before, so that a length such as 4,000 went through Bluestein with two
+ * transforms of 8,192), and the mixed-radix ones are float32 only (the WebAssembly builds of
+ * PFFFT and KISS FFT), not enough for the 1e-12 agreement with numpy the tests ask. Measured
+ * with test/bench/fft_bench.ts (deno bench, shared 2-core machine): complex length 4,000
+ * (2⁵·5³) 50 µs here against 213 µs through fft.js + Bluestein; length 4,096 46 µs here
+ * against 38 µs with fft.js, where `inverseEdges` (which fft.js cannot do) brings the
+ * surrogate test's transform down to about the fft.js time.
  *
  * @module
  */
