@@ -354,6 +354,12 @@ function phaseSurrogate(
   const nyq = even ? Math.SQRT2 * amp[h - 1] * Math.cos(2 * Math.PI * stream.uniform()) : 0;
   z[0] = 0;
   z[1] = 0;
+  // the spectrum Z and, in the same loop, Σ_f Re(S_f conj(B_q,f)) for the basis vectors beyond
+  // the constant (none when only the mean is removed)
+  const nb = plan.basis.length;
+  const b1r = nb > 1 ? fixed.basisRe[0] : amp, b1i = nb > 1 ? fixed.basisIm[0] : amp;
+  const b2r = nb > 2 ? fixed.basisRe[1] : amp, b2i = nb > 2 ? fixed.basisIm[1] : amp;
+  let acc1 = 0, acc2 = 0;
   for (let f = 1; f <= inner; f++) {
     const a = amp[f];
     const sr = a * pr[f - 1], si = a * pi[f - 1];
@@ -364,6 +370,10 @@ function phaseSurrogate(
     const m = 2 * (n - f);
     z[m] = sr + wi;
     z[m + 1] = wr - si;
+    if (nb > 1) {
+      acc1 += sr * b1r[f] + si * b1i[f];
+      if (nb > 2) acc2 += sr * b2r[f] + si * b2i[f];
+    }
   }
   if (even) {
     z[n] = nyq;
@@ -373,25 +383,17 @@ function phaseSurrogate(
   const zc = out.zc, coef = out.coef;
   // 1/N of the inverse transform, applied to the 2L samples read and to c at the lags
   const inv = 1 / n;
-  // projection coefficients: (1/N) Σ_f S_f conj(B_f) over the full spectrum, S real-symmetric
+  // projection coefficients: (1/N) Σ_f S_f conj(B_f) over the full spectrum (S and B
+  // Hermitian: twice the sum over 0 < f < N/2, plus the Nyquist term)
   let ss = 2 * fixed.innerPower + nyq * nyq;
   coef[0] = 0;
-  for (let q = 1; q < coef.length; q++) {
-    const br = fixed.basisRe[q - 1], bi = fixed.basisIm[q - 1];
-    let acc = 0;
-    for (let f = 1; f <= inner; f++) {
-      const a = amp[f];
-      acc += a * (pr[f - 1] * br[f] + pi[f - 1] * bi[f]);
-    }
-    acc = 2 * acc + (even ? nyq * br[h - 1] : 0);
-    coef[q] = acc * inv;
-  }
+  if (nb > 1) coef[1] = (2 * acc1 + (even ? nyq * b1r[h - 1] : 0)) * inv;
+  if (nb > 2) coef[2] = (2 * acc2 + (even ? nyq * b2r[h - 1] : 0)) * inv;
   ss *= inv;
   for (let q = 1; q < coef.length; q++) ss -= coef[q] * coef[q];
   out.total1 = 0;
   out.total2 = ss;
   const b1 = plan.basis[1], b2 = plan.basis[2], c1 = coef[1] ?? 0, c2 = coef[2] ?? 0;
-  const nb = plan.basis.length;
   out.scale = inv;
   // head and tail sums of the preprocessed surrogate s_t = raw_t/N − Σ_q coef_q b_q(t)
   const { head1, head2, tail1, tail2 } = out;
@@ -484,6 +486,7 @@ export function surrogateLagChunk(input: SurrogateChunkInput): SurrogateChunkOut
   const n = plan.n, nl = plan.maxLag - plan.minLag + 1;
   const exceed = new Float64Array(nl), sum = new Float64Array(nl), sumSq = new Float64Array(nl);
   const absHistogram = new Uint32Array(nl * ABS_R_BINS);
+  const binMajor = new Uint32Array(nl * ABS_R_BINS);
   const maxAbs = new Float64Array(Math.max(0, end - start));
   // edge length: every lag's excluded samples and wrapped pairs lie within L of an end
   const L = Math.min(n, Math.max(Math.abs(plan.minLag), Math.abs(plan.maxLag), 0));
@@ -548,9 +551,14 @@ export function surrogateLagChunk(input: SurrogateChunkInput): SurrogateChunkOut
       if (ar > best) best = ar;
       sum[j] += r;
       sumSq[j] += r * r;
-      absHistogram[j * ABS_R_BINS + Math.min(ABS_R_BINS - 1, Math.floor(ar * ABS_R_BINS))]++;
+      binMajor[Math.min(ABS_R_BINS - 1, Math.floor(ar * ABS_R_BINS)) * nl + j]++;
     }
     maxAbs[idx - start] = best;
+  }
+  // the counts were kept bin-major (neighbouring lags have similar |r|, so one surrogate's
+  // increments fall close together); the output is lag-major
+  for (let b = 0; b < ABS_R_BINS; b++) {
+    for (let j = 0; j < nl; j++) absHistogram[j * ABS_R_BINS + b] = binMajor[b * nl + j];
   }
   return { start, exceed, maxAbs, sum, sumSq, absHistogram };
 }
