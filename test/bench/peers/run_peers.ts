@@ -8,8 +8,10 @@
  * input files. Then, round after round, it asks each process for one timed repetition,
  * alternating which side goes first, so both sides see the same machine load. After one
  * untimed warm-up round it reports per workload the median seconds of each side, their ratio
- * (sunlag / peer; below 1 means sunlag is faster), the per-round ratios, each process's peak
- * resident memory (VmHWM from /proc), the load average before and after, and the numbers
+ * (sunlag / peer; below 1 means sunlag is faster), the per-round ratios, the median CPU
+ * seconds each process used per repetition (all its threads: workers, BLAS and FFT threads;
+ * 10 ms resolution, so a guide for the short workloads), each process's peak resident
+ * memory (VmHWM from /proc), the load average before and after, and the numbers
  * both sides computed (to check they did the same work). The summary goes to
  * test/bench/results/peers.json.
  *
@@ -55,6 +57,12 @@ class Side {
     await this.#writer.write(new TextEncoder().encode(cmd + "\n"));
     return await this.read();
   }
+  /** CPU seconds used so far by all threads (utime + stime of /proc/PID/stat, 100 ticks/s). */
+  cpuSeconds(): number {
+    const st = Deno.readTextFileSync(`/proc/${this.#proc.pid}/stat`);
+    const f = st.slice(st.lastIndexOf(")") + 2).split(" ");
+    return (Number(f[11]) + Number(f[12])) / 100;
+  }
   /** Peak resident set size so far, MiB (Linux: VmHWM of /proc/PID/status). */
   peakMiB(): number {
     const st = Deno.readTextFileSync(`/proc/${this.#proc.pid}/status`);
@@ -92,6 +100,7 @@ interface Pair {
   peer: Side;
   ready: { sunlag: Record<string, unknown>; peer: Record<string, unknown> };
   seconds: { sunlag: number[]; peer: number[] };
+  cpu: { sunlag: number[]; peer: number[] };
   check: { sunlag: unknown; peer: unknown };
 }
 
@@ -108,6 +117,7 @@ for (const name of ONLY) {
     peer,
     ready: { sunlag: readyS, peer: readyP },
     seconds: { sunlag: [], peer: [] },
+    cpu: { sunlag: [], peer: [] },
     check: { sunlag: null, peer: null },
   });
 }
@@ -118,8 +128,11 @@ for (let r = 0; r <= ROUNDS; r++) {
   for (const p of pairs) {
     const order: ("sunlag" | "peer")[] = r % 2 ? ["peer", "sunlag"] : ["sunlag", "peer"];
     for (const side of order) {
+      const cpu0 = p[side].cpuSeconds();
       const res = await p[side].ask("run");
       if (r === 0) continue; // warm-up round
+      const repeat = p.ready[side].repeat as number;
+      p.cpu[side].push((p[side].cpuSeconds() - cpu0) / repeat);
       p.seconds[side].push(res.seconds as number);
       p.check[side] = res.check;
     }
@@ -139,6 +152,8 @@ for (const p of pairs) {
     per_round_ratios: p.seconds.sunlag.map((v, i) => v / p.seconds.peer[i]),
     sunlag_rounds: p.seconds.sunlag,
     peer_rounds: p.seconds.peer,
+    sunlag_cpu_seconds: med(p.cpu.sunlag),
+    peer_cpu_seconds: med(p.cpu.peer),
     sunlag_peak_rss_mib: p.sunlag.peakMiB(),
     peer_peak_rss_mib: p.peer.peakMiB(),
     check: p.check,
@@ -150,7 +165,8 @@ const peerInfo = pairs[0]?.ready.peer ?? {};
 const summary = {
   started,
   rounds: ROUNDS,
-  statistic: "median seconds per repetition; ratio = sunlag / peer",
+  statistic: "median wall-clock seconds per repetition; ratio = sunlag / peer; " +
+    "cpu_seconds: median CPU seconds per repetition, all threads of the process",
   machine: {
     cores: navigator.hardwareConcurrency,
     load_average_before: load0,
@@ -179,9 +195,9 @@ for (const r of results) {
   console.log(
     `${r.workload.padEnd(11)} sunlag ${f(r.sunlag_seconds).padStart(10)}  peer ${
       f(r.peer_seconds).padStart(10)
-    }  ratio ${r.ratio.toFixed(3)}  peak RSS ${r.sunlag_peak_rss_mib.toFixed(0)} / ${
-      r.peer_peak_rss_mib.toFixed(0)
-    } MiB`,
+    }  ratio ${r.ratio.toFixed(3)}  CPU ${f(r.sunlag_cpu_seconds)} / ${
+      f(r.peer_cpu_seconds)
+    }  peak RSS ${r.sunlag_peak_rss_mib.toFixed(0)} / ${r.peer_peak_rss_mib.toFixed(0)} MiB`,
   );
 }
 console.log(
