@@ -206,7 +206,9 @@ function prominence(v: Float64Array, n: number, k: number, e: number, threshold:
   const base = v[k];
   let l = k - 1, r = e + 1, left = base, right = base;
   let leftDone = l < 0, rightDone = r >= n;
-  while (!leftDone || !rightDone) {
+  // in step until one side has ended below the threshold (a shallow minimum) or both sides
+  // have climbed past it (a deep one)
+  while ((!leftDone || !rightDone) && (left - base < threshold || right - base < threshold)) {
     if (!leftDone) {
       if (v[l] < base) leftDone = true;
       else {
@@ -223,6 +225,13 @@ function prominence(v: Float64Array, n: number, k: number, e: number, threshold:
       }
       if (rightDone && right - base < threshold) return right - base;
     }
+  }
+  // a deep minimum: the rest of each climb, one side at a time
+  if (!leftDone) {
+    for (; l >= 0 && v[l] >= base; l--) if (v[l] > left) left = v[l];
+  }
+  if (!rightDone) {
+    for (; r < n && v[r] >= base; r++) if (v[r] > right) right = v[r];
   }
   return Math.min(left, right) - base;
 }
