@@ -31,7 +31,7 @@
  *
  * @module
  */
-import { randomStream } from "../random/random_stream.ts";
+import { type RandomStream, randomStream } from "../random/random_stream.ts";
 import { inverseRealDft, realDft } from "../spectral/fft.ts";
 import type { CorrelationNormalisation, LagWindow } from "./lagged_correlation.ts";
 import { laggedCorrelation, overlapRange } from "./lagged_correlation.ts";
@@ -340,7 +340,7 @@ function phaseFixed(plan: SurrogateLagPlan): PhaseFixed {
 function phaseSurrogate(
   plan: SurrogateLagPlan,
   fixed: PhaseFixed,
-  stream: ReturnType<typeof randomStream>,
+  stream: RandomStream,
   work: { pr: Float64Array; pi: Float64Array; z: Float64Array },
   idft: ComplexDftPlan,
   L: number,
@@ -418,7 +418,7 @@ function phaseSurrogate(
 /** Any other surrogate (AR(1), or the high-pass), made and preprocessed in the time domain. */
 function timeDomainSurrogate(
   plan: SurrogateLagPlan,
-  stream: ReturnType<typeof randomStream>,
+  stream: RandomStream,
   L: number,
   out: SurrogateSums,
 ): void {
