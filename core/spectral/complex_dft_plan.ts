@@ -166,92 +166,38 @@ function pass2(x: Float64Array, y: Float64Array, st: Stage, n: number, sg: numbe
 function pass4(x: Float64Array, y: Float64Array, st: Stage, n: number, sg: number): void {
   const s = st.stride, m = st.len / 4, tw = st.twiddle;
   const d = n / 2; // input stride between the four legs, in doubles: 2·(n/4)
-  if (m === 1) return pass4Last(x, y, s, d, sg);
-  if (s === 1) return pass4First(x, y, m, d, tw, sg);
   const s2 = 2 * s;
-  for (let p = 0; p < m; p++) {
-    const t = 6 * p;
-    const w1r = tw[t], w1i = sg * tw[t + 1];
-    const w2r = tw[t + 2], w2i = sg * tw[t + 3];
-    const w3r = tw[t + 4], w3i = sg * tw[t + 5];
-    let i = 2 * s * p, o = 8 * s * p;
-    for (let q = 0; q < s; q++, i += 2, o += 2) {
-      const a0r = x[i], a0i = x[i + 1];
-      const a1r = x[i + d], a1i = x[i + d + 1];
-      const a2r = x[i + 2 * d], a2i = x[i + 2 * d + 1];
-      const a3r = x[i + 3 * d], a3i = x[i + 3 * d + 1];
-      const t0r = a0r + a2r, t0i = a0i + a2i, t1r = a0r - a2r, t1i = a0i - a2i;
-      const t2r = a1r + a3r, t2i = a1i + a3i;
-      // (a1 − a3)·(sg·i)
-      const t3r = -sg * (a1i - a3i), t3i = sg * (a1r - a3r);
-      y[o] = t0r + t2r;
-      y[o + 1] = t0i + t2i;
-      const y1r = t1r + t3r, y1i = t1i + t3i;
-      const y2r = t0r - t2r, y2i = t0i - t2i;
-      const y3r = t1r - t3r, y3i = t1i - t3i;
-      y[o + s2] = y1r * w1r - y1i * w1i;
-      y[o + s2 + 1] = y1r * w1i + y1i * w1r;
-      y[o + 2 * s2] = y2r * w2r - y2i * w2i;
-      y[o + 2 * s2 + 1] = y2r * w2i + y2i * w2r;
-      y[o + 3 * s2] = y3r * w3r - y3i * w3i;
-      y[o + 3 * s2 + 1] = y3r * w3i + y3i * w3r;
+  let w1r = 1, w1i = 0, w2r = 1, w2i = 0, w3r = 1, w3i = 0;
+  // one loop over all m·s butterflies (efficient for any stride), twiddles reloaded per p
+  for (let p = 0, q = s, i = -2, o = -2; p < m || q < s; q++, i += 2, o += 2) {
+    if (q === s) {
+      const t = 6 * p;
+      w1r = tw[t], w1i = sg * tw[t + 1], w2r = tw[t + 2], w2i = sg * tw[t + 3];
+      w3r = tw[t + 4], w3i = sg * tw[t + 5];
+      q = 0;
+      i = 2 * s * p;
+      o = 8 * s * p;
+      p++;
     }
-  }
-}
-
-/** The first radix-4 pass (stride 1): one butterfly per twiddle set, outputs contiguous. */
-function pass4First(
-  x: Float64Array,
-  y: Float64Array,
-  m: number,
-  d: number,
-  tw: Float64Array,
-  sg: number,
-): void {
-  for (let p = 0, i = 0, o = 0, t = 0; p < m; p++, i += 2, o += 8, t += 6) {
     const a0r = x[i], a0i = x[i + 1];
     const a1r = x[i + d], a1i = x[i + d + 1];
     const a2r = x[i + 2 * d], a2i = x[i + 2 * d + 1];
     const a3r = x[i + 3 * d], a3i = x[i + 3 * d + 1];
     const t0r = a0r + a2r, t0i = a0i + a2i, t1r = a0r - a2r, t1i = a0i - a2i;
     const t2r = a1r + a3r, t2i = a1i + a3i;
+    // (a1 − a3)·(sg·i)
     const t3r = -sg * (a1i - a3i), t3i = sg * (a1r - a3r);
-    const w1r = tw[t], w1i = sg * tw[t + 1];
-    const w2r = tw[t + 2], w2i = sg * tw[t + 3];
-    const w3r = tw[t + 4], w3i = sg * tw[t + 5];
     y[o] = t0r + t2r;
     y[o + 1] = t0i + t2i;
     const y1r = t1r + t3r, y1i = t1i + t3i;
     const y2r = t0r - t2r, y2i = t0i - t2i;
     const y3r = t1r - t3r, y3i = t1i - t3i;
-    y[o + 2] = y1r * w1r - y1i * w1i;
-    y[o + 3] = y1r * w1i + y1i * w1r;
-    y[o + 4] = y2r * w2r - y2i * w2i;
-    y[o + 5] = y2r * w2i + y2i * w2r;
-    y[o + 6] = y3r * w3r - y3i * w3i;
-    y[o + 7] = y3r * w3i + y3i * w3r;
-  }
-}
-
-/** The last radix-4 pass (sub-transforms of length 4): all twiddles are 1. */
-function pass4Last(x: Float64Array, y: Float64Array, s: number, d: number, sg: number): void {
-  const s2 = 2 * s;
-  for (let i = 0; i < s2; i += 2) {
-    const a0r = x[i], a0i = x[i + 1];
-    const a1r = x[i + d], a1i = x[i + d + 1];
-    const a2r = x[i + 2 * d], a2i = x[i + 2 * d + 1];
-    const a3r = x[i + 3 * d], a3i = x[i + 3 * d + 1];
-    const t0r = a0r + a2r, t0i = a0i + a2i, t1r = a0r - a2r, t1i = a0i - a2i;
-    const t2r = a1r + a3r, t2i = a1i + a3i;
-    const t3r = -sg * (a1i - a3i), t3i = sg * (a1r - a3r);
-    y[i] = t0r + t2r;
-    y[i + 1] = t0i + t2i;
-    y[i + s2] = t1r + t3r;
-    y[i + s2 + 1] = t1i + t3i;
-    y[i + 2 * s2] = t0r - t2r;
-    y[i + 2 * s2 + 1] = t0i - t2i;
-    y[i + 3 * s2] = t1r - t3r;
-    y[i + 3 * s2 + 1] = t1i - t3i;
+    y[o + s2] = y1r * w1r - y1i * w1i;
+    y[o + s2 + 1] = y1r * w1i + y1i * w1r;
+    y[o + 2 * s2] = y2r * w2r - y2i * w2i;
+    y[o + 2 * s2 + 1] = y2r * w2i + y2i * w2r;
+    y[o + 3 * s2] = y3r * w3r - y3i * w3i;
+    y[o + 3 * s2 + 1] = y3r * w3i + y3i * w3r;
   }
 }
 
