@@ -24,6 +24,9 @@ import { irradianceReconstructions } from "./irradiance_reconstructions/mod.ts";
 import { forcing } from "./forcing/mod.ts";
 import { spectralIrradianceModels } from "./spectral_irradiance_models/mod.ts";
 import { spectralIrradianceReconstructions } from "./spectral_irradiance_reconstructions/mod.ts";
+import { solarSignalMapKind } from "./solar_signal_maps/mod.ts";
+import { fieldAreaMeanKind } from "./field_area_means/mod.ts";
+import { fieldCompositeKind } from "./field_composites/mod.ts";
 
 export const RUN_KINDS: readonly RunKind[] = [
   smoothingKind,
@@ -44,4 +47,7 @@ export const RUN_KINDS: readonly RunKind[] = [
   spectralIrradianceModels,
   spectralIrradianceReconstructions,
   forcing,
+  fieldAreaMeanKind,
+  solarSignalMapKind,
+  fieldCompositeKind,
 ];

@@ -36,7 +36,6 @@ export {
   type CfTimeAxisVariables,
   cfVariableName,
   type EnsembleSource,
-  globalAttributes,
   type Provenance,
   type SeriesDatasetOptions,
   type SeriesLike,

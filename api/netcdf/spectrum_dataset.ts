@@ -20,7 +20,7 @@ import { ncNumber, ncText } from "../../core/cf/netcdf_model.ts";
 import type { NetcdfWriteDataset, NetcdfWriteVariable } from "../../core/cf/netcdf3_write.ts";
 import type { CfCalendar } from "../../core/time/mod.ts";
 import type { SpectrumBlockIn } from "../analyses/common/spectrum_block.ts";
-import { globalAttributes, type Provenance, timeAxisOf } from "./series_dataset.ts";
+import { type Provenance, provenanceAttributes, timeAxisOf } from "./series_dataset.ts";
 
 /** CF standard name of band-mean spectral irradiance (from memory). */
 export const SPECTRAL_IRRADIANCE_STANDARD_NAME = "solar_irradiance_per_unit_wavelength";
@@ -135,7 +135,7 @@ export function buildSpectrumDataset(
   return {
     dataset: {
       dimensions,
-      attributes: globalAttributes(prov, t.axis.method),
+      attributes: provenanceAttributes(prov, [ncText("calendar_conversion", t.axis.method)]),
       variables,
     },
     method: t.axis.method,

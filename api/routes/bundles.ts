@@ -503,6 +503,17 @@ export function registerBundleRoutes(
         );
       }
       const { runs: deps, series } = await collect(store, run, viewerOf(principal));
+      const onField = [run, ...deps].find((r) => (r.input_fields?.length ?? 0) > 0);
+      if (onField) {
+        throw new ProblemError(
+          "conflict",
+          `Run ${onField.id} uses gridded field(s) ${onField.input_fields!.join(", ")}, which a ` +
+            "JSON bundle does not carry (a field may be 200 MB): replay the run here, or upload " +
+            "the same NetCDF file to the other instance (it gets the same field id) and run the " +
+            "same request there",
+          { fields: onField.input_fields },
+        );
+      }
       c.header("Content-Disposition", contentDisposition(`sunlag-run-${run.id}.json`));
       return c.json({
         format: BUNDLE_FORMAT,

@@ -13,7 +13,15 @@
 import { uuidv7 } from "uuidv7";
 import type { HolderSpec, RunRecord, Store, StoredSeries, Viewer } from "../store/types.ts";
 import { DEFAULT_HOLDER } from "../store/common.ts";
-import { CancelledError, InputProblem, type RunContext, type RunKind, type Task } from "./kind.ts";
+import {
+  CancelledError,
+  InputProblem,
+  type LoadedField,
+  type RunContext,
+  type RunInputs,
+  type RunKind,
+  type Task,
+} from "./kind.ts";
 import type { OutputSeries, RunResult } from "./kind.ts";
 import { SERIES_ID_PATTERN } from "../schemas/series_ref.ts";
 import type { InlineSeries } from "../schemas/series_ref.ts";
@@ -29,6 +37,7 @@ import { InProcessQueue } from "../queue/in_process.ts";
 import type { RunQueue } from "../queue/types.ts";
 import type { ChunkRouter } from "../queue/chunks.ts";
 import { TERMINAL } from "../store/types.ts";
+import { fieldMetaOf } from "../store/field_common.ts";
 
 /** How inline and output series become stored series (implemented over api/ingest). */
 export interface SeriesCodec {
@@ -55,7 +64,7 @@ export interface ComputeExecutor {
   compute(
     kind: RunKind,
     params: Record<string, unknown>,
-    inputs: { series: Record<string, StoredSeries>; runs: Record<string, RunRecord> },
+    inputs: RunInputs,
     hooks: ComputeHooks,
   ): Promise<RunResult>;
   /** Map a named task over inputs (used by in-thread compute too). */
@@ -74,7 +83,7 @@ export class InThreadExecutor implements ComputeExecutor {
   async compute(
     kind: RunKind,
     params: Record<string, unknown>,
-    inputs: { series: Record<string, StoredSeries>; runs: Record<string, RunRecord> },
+    inputs: RunInputs,
     hooks: ComputeHooks,
   ): Promise<RunResult> {
     hooks.onStart();
@@ -94,7 +103,7 @@ export class InThreadExecutor implements ComputeExecutor {
 
 /** Build the RunContext seen by compute. */
 export function makeContext(
-  inputs: { series: Record<string, StoredSeries>; runs: Record<string, RunRecord> },
+  inputs: RunInputs,
   hooks: { progress(f: number): void; isCancelled(): boolean },
   parallel: <I, O>(task: string, chunks: I[]) => Promise<O[]>,
 ): RunContext {
@@ -110,6 +119,11 @@ export function makeContext(
       const r = inputs.runs[id];
       if (!r) throw new Error(`run ${id} was not loaded for this run`);
       return r;
+    },
+    field(id) {
+      const f = inputs.fields?.[id];
+      if (!f) throw new Error(`field ${id} was not loaded for this run`);
+      return f;
     },
     resultOf(kind, id, pointer) {
       const r = inputs.runs[id];
@@ -372,7 +386,74 @@ export class RunService {
         },
       );
     }
-    return { params: normalised, series, runs, inline };
+    const fields = await this.#loadFields(kind, normalised, { series, runs }, viewer);
+    return { params: normalised, series, runs, fields, inline };
+  }
+
+  /** Load the time steps each field reference needs (only the blocks that overlap). */
+  async #loadFields(
+    kind: RunKind,
+    params: Record<string, unknown>,
+    loaded: RunInputs,
+    viewer?: Viewer,
+  ): Promise<Record<string, LoadedField>> {
+    if (!kind.fieldRefs) return {};
+    const ctx = makeContext(loaded, { progress: () => {}, isCancelled: () => false }, () => {
+      throw new Error("fieldRefs cannot map tasks");
+    });
+    let refs;
+    try {
+      refs = kind.fieldRefs(params as never, ctx);
+    } catch (e) {
+      throw asProblem(e);
+    }
+    const out: Record<string, LoadedField> = {};
+    const errors: { pointer: string; message: string }[] = [];
+    for (const ref of refs) {
+      const visible = !viewer || await this.store.fieldHolding(ref.id, viewer);
+      const f = visible ? await this.store.getField(ref.id) : null;
+      if (!f) {
+        errors.push({ pointer: ref.pointer, message: `no stored field has id ${ref.id}` });
+        continue;
+      }
+      const from = ref.from ?? -Infinity, to = ref.to ?? Infinity;
+      let a = 0, b = f.n_time;
+      while (a < b && f.time[a] < from) a++;
+      while (b > a && f.time[b - 1] > to) b--;
+      if (ref.firstSteps !== undefined) b = Math.min(b, a + Math.max(1, ref.firstSteps));
+      if (b <= a) {
+        errors.push({
+          pointer: ref.spanPointer ?? ref.pointer,
+          message: `field ${ref.id} (${f.start.toFixed(3)}..${f.end.toFixed(3)}) has no time ` +
+            `step in the span the other inputs cover (${from.toFixed(3)}..${to.toFixed(3)})`,
+        });
+        continue;
+      }
+      const prev = out[ref.id];
+      if (prev && prev.stepStart <= a && prev.stepStart + prev.time.length >= b) continue;
+      if (prev) {
+        a = Math.min(a, prev.stepStart);
+        b = Math.max(b, prev.stepStart + prev.time.length);
+      }
+      out[ref.id] = {
+        meta: fieldMetaOf(f),
+        lat: f.lat,
+        lon: f.lon,
+        lat_bounds: f.lat_bounds,
+        lon_bounds: f.lon_bounds,
+        stepStart: a,
+        time: f.time.slice(a, b),
+        values: await this.store.readFieldSteps(ref.id, a, b),
+      };
+    }
+    if (errors.length) {
+      throw new ProblemError(
+        "validation",
+        `The request's gridded field cannot be used: ${errors[0].message}`,
+        { errors },
+      );
+    }
+    return out;
   }
 
   /** Create a run. */
@@ -395,6 +476,7 @@ export class RunService {
       params: prep.params,
       input_series: Object.keys(prep.series).sort(),
       input_runs: Object.keys(prep.runs).sort(),
+      ...(Object.keys(prep.fields).length ? { input_fields: Object.keys(prep.fields).sort() } : {}),
       service_version: SERVICE_VERSION,
       algorithm_version: kind.algorithmVersion,
       seed,
@@ -476,7 +558,7 @@ export class RunService {
   async computeResult(
     kind: RunKind,
     params: Record<string, unknown>,
-    inputs: { series: Record<string, StoredSeries>; runs: Record<string, RunRecord> },
+    inputs: RunInputs,
     lineage: Lineage = this.lineage(),
   ): Promise<{ result: Record<string, unknown>; digest: string }> {
     let result: RunResult;
@@ -534,7 +616,7 @@ export class RunService {
   private async computeRun(
     kind: RunKind,
     run: RunRecord,
-    prep: { series: Record<string, StoredSeries>; runs: Record<string, RunRecord> },
+    prep: RunInputs,
   ): Promise<RunRecord> {
     const { result, digest } = await this.computeResult(kind, run.params, prep);
     return {
@@ -650,7 +732,7 @@ export class RunService {
   async #computeLeased(
     kind: RunKind,
     run: RunRecord,
-    prep: { series: Record<string, StoredSeries>; runs: Record<string, RunRecord> },
+    prep: RunInputs,
     active: Active,
     publish: (e: RunEvent) => void,
     owner: HolderSpec,

@@ -50,21 +50,21 @@ export const DEMO_SPECTRAL_BANDS = [
   {
     lower: 200,
     upper: 220,
-    series: "sha256:797dedfeac18d317967d4ffd042042ed763a44f2449710e27d42bd435b285aa1",
+    series: "sha256:b989ef8e13c3dce25198aaf9155f57dba2253578507d2fadc1fb0b8f0b063905",
   },
   {
     lower: 300,
     upper: 320,
-    series: "sha256:d6c7843da42fb2c6e2d36623833a811fc197cf7c3952d3f3b383130825ca3739",
+    series: "sha256:4e17ecd16fade0f65dff51c4bc4c06609ec7962eb9281768d6dab86bf1d6fccc",
   },
   {
     lower: 500,
     upper: 525,
-    series: "sha256:320d79c3eb24c6c96abe8554c002a17f07eedd7eeb31daf8f08750306fcb55b1",
+    series: "sha256:e5d8a5fcccb0ef089a35e811816e075c87e815990ea0c875cd07689ab46276fb",
   },
   {
     lower: 1400,
     upper: 1600,
-    series: "sha256:09112418d1825e85b57ff86f3745ccd0bd19891a4baea66091e2f9f4ecb025ef",
+    series: "sha256:1f52459e170206d5818e5d69511952de300e4359e0936cdddaa270a4f74fc977",
   },
 ] as const;

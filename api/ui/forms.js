@@ -36,7 +36,10 @@ function isSeriesRef(doc, s) {
   if (!s) return false;
   if (typeof s.$ref === "string" && /\/(SeriesRef|SeriesId)$/.test(s.$ref)) return true;
   const d = deref(doc, s);
-  if (d.type === "string" && typeof d.pattern === "string" && d.pattern.includes("sha256")) {
+  if (
+    d.type === "string" && typeof d.pattern === "string" && d.pattern.includes("sha256") &&
+    !d.pattern.includes("field:")
+  ) {
     return true;
   }
   const alts = d.anyOf ?? d.oneOf;
@@ -115,7 +118,7 @@ export function requiredChoices(s) {
  * @param {any} doc
  * @param {any} schema
  * @param {string} prefix JSON Pointer prefix.
- * @param {{ series: any[], runs: any[], preselect?: string }} ctx
+ * @param {{ series: any[], runs: any[], preselect?: string, fields?: any[], field?: string }} ctx
  * @param {boolean} [optional] The object itself is optional: none of its fields is required.
  * @returns {Field[]}
  */
@@ -264,6 +267,25 @@ export function buildFields(doc, schema, prefix, ctx, optional = false) {
         return t === "" ? undefined : Number(t);
       };
       set = (v) => (/** @type {HTMLInputElement} */ (input).value = String(v ?? ""));
+    } else if (
+      p.type === "string" && typeof p.pattern === "string" && p.pattern.includes("field:")
+    ) {
+      // a stored gridded field: pick one of the fields the caller can see
+      const sel = /** @type {HTMLSelectElement} */ (h(
+        "select",
+        { id },
+        (ctx.fields ?? []).map((f) =>
+          h(
+            "option",
+            { value: f.id, selected: f.id === ctx.field },
+            `${f.name} (${f.n_lat} × ${f.n_lon})`,
+          )
+        ),
+      ));
+      input = sel;
+      wide = true;
+      read = () => (sel.value === "" ? undefined : sel.value);
+      set = (v) => (sel.value = String(v ?? ""));
     } else if (p.type === "string") {
       const runLike = /run|model/i.test(name) ||
         (typeof p.pattern === "string" && p.pattern.includes("0-9a-f-"));

@@ -7,12 +7,13 @@
  * text, never parsed as HTML; charts (SVG from the service) are parsed as XML and stripped of
  * scripts and event handlers before they are shown.
  *
- * Views (in the URL fragment): #/series, #/series/{id}, #/runs, #/runs/{id}, #/upload,
- * #/analyse.
+ * Views (in the URL fragment): #/series, #/series/{id}, #/fields, #/fields/{id} (fields.js),
+ * #/runs, #/runs/{id}, #/upload, #/analyse.
  *
  * @module
  */
 import { curlScript, pythonSnippet } from "./snippets.js";
+import { fieldList, fieldView, mapDownloads } from "./fields.js";
 import {
   append,
   badge,
@@ -205,7 +206,9 @@ async function drawChart(box) {
   const path = box.dataset.src ?? "";
   const width = Math.max(320, Math.min(1000, Math.round((box.clientWidth || 800) - 18)));
   const height = Math.max(240, Math.round(width * (width < 500 ? 0.75 : 0.5)));
-  const url = `${path}?width=${width}&height=${height}&theme=${effectiveTheme()}`;
+  const url = `${path}${
+    path.includes("?") ? "&" : "?"
+  }width=${width}&height=${height}&theme=${effectiveTheme()}`;
   let res;
   try {
     res = await authFetch(url);
@@ -271,6 +274,11 @@ function redrawCharts() {
   }
 }
 
+/** The shared pieces the views of fields.js draw with. */
+function ui() {
+  return { show, chart, pager, snippets, keyedDownload, pageSize };
+}
+
 // ---------------------------------------------------------------------------------------------
 // Router
 
@@ -321,6 +329,8 @@ async function render(navigated = false) {
     else if (section === "series") await seriesList(gen, query);
     else if (section === "runs" && parts[1]) await runView(gen, parts[1]);
     else if (section === "runs") await runList(gen, query);
+    else if (section === "fields" && parts[1]) await fieldView(gen, parts[1], query, ui());
+    else if (section === "fields") await fieldList(gen, query, ui());
     else if (section === "upload") await uploadView(gen);
     else if (section === "analyse") await analyseView(gen, query);
     else {show(
@@ -954,6 +964,7 @@ async function runView(gen, id) {
     run.status === "succeeded"
       ? chart(`${path}/chart.svg`, `Chart of the ${pretty(run.kind)} run`)
       : null,
+    run.status === "succeeded" && isObject(result.map) ? mapDownloads(run.id, ui()) : null,
     run.status === "succeeded" ? replayPanel(path) : null,
     scalars.length
       ? [
@@ -1150,11 +1161,12 @@ function replayPanel(path) {
 
 /** @param {number} gen @param {URLSearchParams} query */
 async function analyseView(gen, query) {
-  const [doc, indexRes, seriesRes, runsRes] = await Promise.all([
+  const [doc, indexRes, seriesRes, runsRes, fieldsRes] = await Promise.all([
     openApi(),
     call({ method: "GET", path: "/v1/analyses" }),
     call({ method: "GET", path: "/v1/series", query: { limit: 500 } }),
     call({ method: "GET", path: "/v1/runs", query: { limit: 200, status: "succeeded" } }),
+    call({ method: "GET", path: "/v1/fields", query: { limit: 200 } }),
   ]);
   const series = seriesRes.ok ? seriesRes.data.items : [];
   const runs = runsRes.ok ? runsRes.data.items : [];
@@ -1233,6 +1245,8 @@ async function analyseView(gen, query) {
     series,
     runs,
     preselect: query.get("series") ?? undefined,
+    fields: fieldsRes.ok ? fieldsRes.data.items : [],
+    field: query.get("field") ?? undefined,
   });
   const mainFields = fields.filter((f) => f.main);
   const moreFields = fields.filter((f) => !f.main);

@@ -9,6 +9,13 @@ import type { RegressionFit } from "../stats/ordinary_least_squares.ts";
 /** What cross-validation reads of a fit: its coefficients, and whether the first is an intercept. */
 export type CrossValidationFit = Pick<RegressionFit, "coefficients" | "intercept">;
 
+const pool: Float64Array[] = [];
+/** Work array `i` of length n (a view of a pooled buffer that grows as needed). */
+function work(i: number, n: number): Float64Array {
+  if (!pool[i] || pool[i].length < n) pool[i] = new Float64Array(Math.max(n, 1024));
+  return pool[i].subarray(0, n);
+}
+
 /** Result of {@link blockedCrossValidation}. */
 export interface BlockedCrossValidation {
   folds: number;
@@ -96,18 +103,21 @@ export function blockedCrossValidationMany(
   const blocks: [number, number][] = [];
   const foldRmse: number[][] = ys.map(() => []);
   const sse = new Float64Array(ys.length);
-  const cut = (c: Float64Array, a: number, b: number, m: number) => {
-    const out = new Float64Array(m);
-    out.set(c.subarray(0, a), 0);
-    out.set(c.subarray(b), a);
-    return out;
-  };
   for (let j = 0; j < k; j++) {
     const a = Math.floor((j * n) / k), b = Math.floor(((j + 1) * n) / k);
     blocks.push([a, b - 1]);
     const m = n - (b - a);
-    const trainCols = columns.map((c) => cut(c, a, b, m));
-    const fits = fitMany(trainCols, ys.map((y) => cut(y, a, b, m)));
+    // the training rows in pooled work arrays: the fits' results are read for their
+    // coefficients and dropped, so nothing kept refers to them (fresh arrays cost page faults
+    // per fold)
+    const cut = (c: Float64Array, q: number) => {
+      const out = work(q, m);
+      out.set(c.subarray(0, a), 0);
+      out.set(c.subarray(b), a);
+      return out;
+    };
+    const trainCols = columns.map((c, q) => cut(c, q));
+    const fits = fitMany(trainCols, ys.map((y, r) => cut(y, columns.length + r)));
     ys.forEach((y, r) => {
       const beta = fits[r].coefficients;
       const off = fits[r].intercept ? 1 : 0;

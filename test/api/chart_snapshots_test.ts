@@ -22,7 +22,7 @@ import { renderChart } from "../../api/charts/chart.ts";
 import { rendererCases } from "./chart_specs.ts";
 import { runLabel } from "../../api/runs/label.ts";
 import { noteText, squash } from "./svg_text.ts";
-import { AOD, AREA, ENSO, MG, SSN, TEMP, TSI, TSIM } from "./demo_ids.ts";
+import { AOD, AREA, ENSO, FIELD, MG, SSN, TEMP, TSI, TSIM } from "./demo_ids.ts";
 
 const SNAPSHOTS = new URL("./chart_snapshots.json", import.meta.url);
 const UPDATE = Deno.env.get("SUNLAG_UPDATE_SNAPSHOTS") === "1";
@@ -164,6 +164,17 @@ const CASES: Case[] = [
     series: TEMP,
     cycle_run: ids.cycles,
     bootstrap: 200,
+    random_sets: 200,
+  })],
+  ["field-area-means", "/v1/field-area-means", () => ({ field: FIELD })],
+  ["solar-signal-maps", "/v1/solar-signal-maps", () => ({
+    field: FIELD,
+    solar: TSIM,
+    surrogates: 200,
+  })],
+  ["field-composites", "/v1/field-composites", (ids) => ({
+    field: FIELD,
+    cycle_run: ids.cycles,
     random_sets: 200,
   })],
   // last, so the run ids of the cases above keep their places in the normalisation

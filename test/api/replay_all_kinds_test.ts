@@ -10,7 +10,7 @@ import { RUN_KINDS } from "../../api/analyses/registry.ts";
 import { canonicalJson } from "../../api/canonical.ts";
 import { DEMO } from "./demo_inputs.ts";
 
-const { SSN, AREA, MG, TSI, TSIM, TEMP, ENSO, AOD } = DEMO;
+const { SSN, AREA, MG, TSI, TSIM, TEMP, ENSO, AOD, FIELD } = DEMO;
 /** The demo spectral record's bands with their series ids (fixtures/demo/spectral_bands.json). */
 const SPECTRAL_BANDS = JSON.parse(
   await Deno.readTextFile(new URL("../../fixtures/demo/spectral_bands.json", import.meta.url)),
@@ -102,6 +102,22 @@ Deno.test("replay: every run kind recomputes to the stored digest", async (t) =>
       series: TEMP,
       cycle_run: runIds["/v1/cycles"],
       bootstrap: 200,
+      random_sets: 200,
+    })],
+    [
+      "/v1/field-area-means",
+      () => ({ field: FIELD, region: { kind: "band", south: 20, north: 60 } }),
+    ],
+    ["/v1/solar-signal-maps", () => ({
+      field: FIELD,
+      solar: TSIM,
+      controls: [{ name: "enso", series: ENSO }],
+      max_lag: 12,
+      surrogates: 200,
+    })],
+    ["/v1/field-composites", () => ({
+      field: FIELD,
+      cycle_run: runIds["/v1/cycles"],
       random_sets: 200,
     })],
   ];

@@ -19,23 +19,9 @@ import {
   seasonalAdjustment,
 } from "../common/seasonal_cycle.ts";
 import { undefinedAsNull } from "../common/undefined_as_null.ts";
-import { cyclesKind } from "../cycles/mod.ts";
+import { cycleEpochs } from "../common/cycle_epochs.ts";
 import type { CompositeParams } from "./request.ts";
 import type { CompositeResultIn } from "./result.ts";
-
-/**
- * Decimal years of the cycle maxima (or starts, the minima) of a cycles run's table, read
- * through the cycles result schema; a provisional maximum is left out.
- */
-function epochsFromRun(p: CompositeParams, ctx: RunContext, id: string): number[] {
-  const table = ctx.resultOf(cyclesKind, id, "/cycle_run");
-  const out: number[] = [];
-  for (const c of table.cycles) {
-    if (p.cycle_epoch === "minimum") out.push(c.start.decimal_year);
-    else if (c.maximum && !c.maximum.provisional) out.push(c.maximum.decimal_year);
-  }
-  return out;
-}
 
 /** The epochs of the request as decimal years. */
 function epochDates(p: CompositeParams, ctx: RunContext): number[] {
@@ -52,7 +38,7 @@ function epochDates(p: CompositeParams, ctx: RunContext): number[] {
       }
     });
   }
-  if (p.cycle_run) return epochsFromRun(p, ctx, p.cycle_run);
+  if (p.cycle_run) return cycleEpochs(ctx, p.cycle_run, p.cycle_epoch, "/cycle_run");
   throw new InputProblem("/epoch_dates", "give epoch_dates or a cycle_run");
 }
 
