@@ -152,8 +152,10 @@ export async function loadDemo(
   const order = read.map((_, i) => i);
   order.sort((a, b) => Number(!entries[a].band_nm) - Number(!entries[b].band_nm));
   for (const i of order) {
+    // stamped when stored (the time it means), so the listing's order is the storing order
+    const series = { ...read[i].series, created_at: new Date().toISOString() };
     // Public: on a shared instance every owner may try the demo.
-    await store.putSeries(read[i].series, { owner: LOCAL_OWNER, visibility: "public" });
+    await store.putSeries(series, { owner: LOCAL_OWNER, visibility: "public" });
   }
   await loadDemoFields(store);
   return read.map((r) => r.series.id);
