@@ -346,6 +346,28 @@ export const VariableQuery = z.string().min(1).max(200).optional().openapi({
 });
 
 /**
+ * The one data variable along time with `others` more dimensions (0: a series, 1: a spectral
+ * record), or a 422 at /variable listing them when there is none or several.
+ */
+export function onlyTimeDataVariable(src: NetcdfSource, others: 0 | 1): string {
+  const found = timeDataVariables(src, others);
+  if (found.length === 1) return found[0];
+  const what = others === 0 ? "series" : "spectral record (time and one wavelength dimension)";
+  throw new ProblemError(
+    "validation",
+    found.length === 0
+      ? `The file has no variable along a CF time coordinate that could be a ${what}`
+      : `The file has ${found.length} variables that could be a ${what}: name one with variable= (${
+        found.slice(0, 20).join(", ")
+      })`,
+    {
+      errors: [{ pointer: "/variable", in: "query", message: "required: choose one" }],
+      variables: found.slice(0, 50),
+    },
+  );
+}
+
+/**
  * Data variables along a CF time coordinate with `others` more dimensions longer than 1 (0
  * for series, 1 for spectral records), uncertainty variables left out.
  */
@@ -397,25 +419,7 @@ export async function ingestNetcdfUpload(c: Context, limitBytes: number): Promis
       limitBytes,
       (path) =>
         withNetcdf(path, async (src) => {
-          let name = q.variable;
-          if (name === undefined) {
-            const found = timeDataVariables(src);
-            if (found.length !== 1) {
-              throw new ProblemError(
-                "validation",
-                found.length === 0
-                  ? "The file has no variable along a CF time coordinate that could be a series"
-                  : `The file has ${found.length} series variables: name one with variable= (${
-                    found.slice(0, 20).join(", ")
-                  })`,
-                {
-                  errors: [{ pointer: "/variable", in: "query", message: "required: choose one" }],
-                  variables: found.slice(0, 50),
-                },
-              );
-            }
-            name = found[0];
-          }
+          const name = q.variable ?? onlyTimeDataVariable(src, 0);
           const s = await readCfSeries(src, name, { uncertainty: q.uncertainty });
           return toNormalised(src, s, name, q);
         }),

@@ -18,8 +18,7 @@ import { readCfSpectrum } from "./cf_spectrum.ts";
 import { describePlacement } from "./cf_time_axis.ts";
 import { NetcdfError } from "./errors.ts";
 import { withNetcdf, withTempUpload } from "./open.ts";
-import { netcdfProblem, timeDataVariables } from "./http.ts";
-import type { NetcdfSource } from "./source.ts";
+import { netcdfProblem, onlyTimeDataVariable } from "./http.ts";
 
 /** Query of a spectral record upload. */
 export const SpectralUploadQuery = z.object({
@@ -78,7 +77,7 @@ export async function ingestSpectralUpload(
       limitBytes,
       (path) =>
         withNetcdf(path, async (src) => {
-          const name = q.variable ?? onlyCandidate(src);
+          const name = q.variable ?? onlyTimeDataVariable(src, 1);
           const s = await readCfSpectrum(src, name);
           const units = (attributeText(s.attributes, "units") ?? "").trim();
           const quantity = quantityOf(units);
@@ -149,22 +148,4 @@ export async function ingestSpectralUpload(
     if (e instanceof NetcdfError) throw netcdfProblem(e);
     throw e;
   }
-}
-
-/** The only (time, wavelength) variable of a file, or a 422 listing them. */
-function onlyCandidate(src: NetcdfSource): string {
-  const found = timeDataVariables(src, 1);
-  if (found.length === 1) return found[0];
-  throw new ProblemError(
-    "validation",
-    found.length === 0
-      ? "The file has no variable along a CF time coordinate and one wavelength dimension"
-      : `The file has ${found.length} such variables: name one with variable= (${
-        found.slice(0, 20).join(", ")
-      })`,
-    {
-      errors: [{ pointer: "/variable", in: "query", message: "required: choose one" }],
-      variables: found.slice(0, 50),
-    },
-  );
 }

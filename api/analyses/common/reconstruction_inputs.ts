@@ -363,6 +363,22 @@ export function extrapolationWarnings(
 }
 
 /**
+ * The time axis, values, uncertainty and interval of a reconstruction as an output series
+ * holds them (rounded to 1e-6 by {@link micro}), with the interval's level in words.
+ */
+export function reconstructionOutputParts(cells: TargetCells, rec: Reconstruction, level: number) {
+  const pct = level === 0.95 ? "95 %" : `${(level * 100).toFixed(1)} %`;
+  return {
+    time: Array.from(cells.time),
+    value: micro(rec.value),
+    uncertainty: micro(rec.sd),
+    lower: micro(rec.lower),
+    upper: micro(rec.upper),
+    interval: `${pct} prediction interval`,
+  };
+}
+
+/**
  * Round to 1e-6 (W m-2 for irradiance: far below any interval width, and a third shorter in
  * JSON); null where the cell has no value.
  */

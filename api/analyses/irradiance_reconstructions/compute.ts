@@ -33,8 +33,8 @@ import {
   directProxies,
   extrapolationWarnings,
   mappedProxies,
-  micro,
   reconstructionModel,
+  reconstructionOutputParts,
   type SunspotInput,
   sunspotInput,
   type TargetCells,
@@ -141,17 +141,11 @@ function tsiOutput(
   rec: Reconstruction,
   scenarioLabel: string,
 ): ReconstructionResultIn["outputs"]["tsi"] {
-  const level = params.level === 0.95 ? "95 %" : `${(params.level * 100).toFixed(1)} %`;
   return {
     name: "Reconstructed TSI",
     quantity: "tsi",
     units: "W m-2",
-    time: Array.from(cells.time),
-    value: micro(rec.value),
-    uncertainty: micro(rec.sd),
-    lower: micro(rec.lower),
-    upper: micro(rec.upper),
-    interval: `${level} prediction interval`,
+    ...reconstructionOutputParts(cells, rec, params.level),
     description:
       `Model run ${params.model}, ${cells.resolution} means, values rounded to 1e-6 W m-2; ${scenarioLabel}`,
   };

@@ -34,6 +34,7 @@ import {
   mappedProxies,
   micro,
   reconstructionModel,
+  reconstructionOutputParts,
   type StoredProxyModel,
   type SunspotInput,
   sunspotInput,
@@ -365,17 +366,11 @@ function irradianceOutput(
   name: string,
   missing: [number, number][],
 ): OutputSeries {
-  const level = `${(params.level * 100).toFixed(params.level === 0.95 ? 0 : 1)} %`;
   return {
     name,
     quantity: "band_irradiance",
     units: "W m-2",
-    time: Array.from(cells.time),
-    value: micro(rec.value),
-    uncertainty: micro(rec.sd),
-    lower: micro(rec.lower),
-    upper: micro(rec.upper),
-    interval: `${level} prediction interval`,
+    ...reconstructionOutputParts(cells, rec, params.level),
     description:
       `Spectral model run ${params.model}, ${cells.resolution} means, values rounded to 1e-6 W m-2${
         missing.length
