@@ -45,6 +45,7 @@ const RUN_REFS = new Set([
   "forcing",
   "energy-balance",
   "composites",
+  "field-composites",
   "spectral-models",
   "spectral-reconstructions",
 ]);

@@ -4,6 +4,7 @@
  * @module
  */
 import { z } from "@hono/zod-openapi";
+import { DEMO_FIELD } from "../../schemas/examples.ts";
 import { fieldRef } from "../common/field_ref.ts";
 
 const lat = (what: string) => z.number().min(-90).max(90).openapi({ description: what });
@@ -48,6 +49,8 @@ export const FieldAreaMeanRequest = z.object({
   name: z.string().min(1).max(200).optional().openapi({
     description: "Name of the stored mean series (default: the field's name and the region)",
   }),
-}).openapi("FieldAreaMeanRequest");
+}).openapi("FieldAreaMeanRequest", {
+  example: { field: DEMO_FIELD, region: { kind: "globe" } },
+});
 
 export type FieldAreaMeanParams = z.output<typeof FieldAreaMeanRequest>;

@@ -4,6 +4,7 @@
  * @module
  */
 import { z } from "@hono/zod-openapi";
+import { DEMO_FIELD } from "../../schemas/examples.ts";
 import { TimeValue } from "../../schemas/series_ref.ts";
 import { RunRef } from "../common/run_ref.ts";
 import { fieldRef } from "../common/field_ref.ts";
@@ -52,6 +53,13 @@ export const FieldCompositeRequest = z.object({
     description: "Random epoch sets for the Monte Carlo field significance; 0 skips it",
   }),
   seed: z.number().int().min(0).max(4294967295).default(1),
-}).openapi("FieldCompositeRequest");
+}).openapi("FieldCompositeRequest", {
+  example: {
+    field: DEMO_FIELD,
+    epoch_dates: ["1969-03", "1980-01", "1991-01", "2001-06", "2014-04"],
+    contrast_dates: ["1964-10", "1976-03", "1986-09", "1996-08", "2008-12"],
+    random_sets: 200,
+  },
+});
 
 export type FieldCompositeParams = z.output<typeof FieldCompositeRequest>;

@@ -4,6 +4,7 @@
  * @module
  */
 import { z } from "@hono/zod-openapi";
+import { DEMO_FIELD, DEMO_SERIES } from "../../schemas/examples.ts";
 import { SeriesRef } from "../../schemas/series_ref.ts";
 import { CoverageFields } from "../common/analysis_axis.ts";
 import { RunRef } from "../common/run_ref.ts";
@@ -75,6 +76,14 @@ export const SolarSignalMapRequest = z.object({
   keep_lag_maps: z.boolean().default(false).openapi({
     description: "Also keep r and p of every lag (lags × cells numbers in the result)",
   }),
-}).openapi("SolarSignalMapRequest");
+}).openapi("SolarSignalMapRequest", {
+  example: {
+    field: DEMO_FIELD,
+    solar: DEMO_SERIES.TSIM,
+    min_lag: 0,
+    max_lag: 24,
+    surrogates: 200,
+  },
+});
 
 export type SolarSignalMapParams = z.output<typeof SolarSignalMapRequest>;
