@@ -7,7 +7,6 @@
  */
 import {
   calibrateProxyModel,
-  evaluateSunspotMapping,
   fitSunspotMapping,
   reconstructFromProxies,
 } from "../../core/irradiance/mod.ts";
@@ -59,14 +58,11 @@ export function irradianceCase(): { calibrate(): void; reconstruct(): void } {
       calibrateProxyModel(cal.y, terms, { method: "prais_winsten", folds: 5 });
     },
     reconstruct() {
-      const vf = new Float64Array(N), pf = new Float64Array(N);
-      const vp = new Float64Array(N), pp = new Float64Array(N);
-      evaluateSunspotMapping(mapF, rec.r, vf, pf);
-      evaluateSunspotMapping(mapP, rec.r, vp, pp);
       reconstructFromProxies(model, {
         days,
         direct: [directF, directP],
-        mapped: [{ value: vf, paramVariance: pf }, { value: vp, paramVariance: pp }],
+        mappings: [mapF, mapP],
+        sunspot: rec.r,
       }, 1.96);
     },
   };

@@ -13,7 +13,6 @@ import { refId } from "../../schemas/series_ref.ts";
 import {
   countBeyondMappingRange,
   countFarOutsideRange,
-  evaluateSunspotMapping,
   predictionQuantile,
   reconstructFromProxies,
   type Reconstruction,
@@ -78,7 +77,7 @@ export function computeReconstruction(
   const sunspot = params.sunspot_number === undefined
     ? null
     : sunspotInput(params, ctx, stored, cells);
-  const mapped = mappedProxies(stored, sunspot, cells.keys.length);
+  const mappings = termMappings(stored, sunspot);
   if (!direct.some((d) => d.some(Number.isFinite)) && !sunspot?.atCells.some(Number.isFinite)) {
     throw new InputProblem(
       "/period",
@@ -91,7 +90,7 @@ export function computeReconstruction(
   const z = predictionQuantile(params.level, stored.model.df_residual);
   const proxyOnly = reconstructFromProxies(
     reconstructionModel(stored),
-    { days: cells.days, direct, mapped },
+    { days: cells.days, direct, mappings, sunspot: sunspot?.atCells ?? null },
     z,
   );
   const { rec, scenario } = background(params, stored, sunspot, cells, proxyOnly);
@@ -141,19 +140,14 @@ const RECONSTRUCTION_CAUTIONS = [
   "Intervals of monthly and annual means assume AR(1) residuals; residuals with longer memory (instrument drifts, slow facular changes) would make them wider.",
 ];
 
-/** Each model term mapped from the cells' sunspot numbers (null without a sunspot series). */
-function mappedProxies(
+/** Each model term's sunspot → proxy mapping (null without a sunspot series). */
+function termMappings(
   stored: ModelResultOut,
   sunspot: SunspotInput | null,
-  n: number,
-): ReconstructionCells["mapped"] {
-  return stored.model.terms.map((t) => {
-    if (!sunspot || !stored.mappings) return null;
-    const value = new Float64Array(n), paramVariance = new Float64Array(n);
-    const m = mappingFromJson(stored.mappings.terms[t.name].chosen);
-    evaluateSunspotMapping(m, sunspot.atCells, value, paramVariance);
-    return { value, paramVariance };
-  });
+): ReconstructionCells["mappings"] {
+  return stored.model.terms.map((t) =>
+    sunspot && stored.mappings ? mappingFromJson(stored.mappings.terms[t.name].chosen) : null
+  );
 }
 
 /** The reconstructed TSI as a series-like output, rounded to 1e-6 W m-2. */

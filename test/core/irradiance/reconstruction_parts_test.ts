@@ -2,6 +2,7 @@ import assert from "node:assert/strict";
 import {
   ar1MeanVarianceFactor,
   blockedCrossValidation,
+  fitLinearSunspotMapping,
   reconstructFromProxies,
   secularBackground,
   tsiCycleAmplitude,
@@ -52,25 +53,38 @@ Deno.test("reconstructFromProxies() back-extends with wider bands and leaves gap
     stepDays: 1,
     backExtension: { residualSd: 0.3, rho: 0.9, stepDays: 30.436875 },
   };
+  // F = 0.15 + 1e-4·R exactly at R = 100 → 0.16, with parameter covariance diag(1e-8, 1e-12)
+  const mapping = {
+    ...fitLinearSunspotMapping([0, 50, 100, 150], [0.15, 0.155, 0.16, 0.165]),
+    covariance: [[1e-8, 0], [0, 1e-12]],
+  };
   const r = reconstructFromProxies(model, {
     days: Float64Array.of(30, 30, 30),
     direct: [Float64Array.of(0.16, NaN, NaN)],
-    mapped: [{
-      value: Float64Array.of(0.16, 0.16, NaN),
-      paramVariance: Float64Array.of(0, 1e-8, 0),
-    }],
+    mappings: [mapping],
+    sunspot: Float64Array.of(100, 100, NaN),
   }, 1.96);
   assert.deepEqual([...r.source], [1, 2, 0]);
-  assert.equal(r.value[0], r.value[1]);
+  assert.ok(Math.abs(r.value[0] - r.value[1]) < 1e-9);
   assert.ok(r.sd[1] > r.sd[0]);
   assert.ok(Number.isNaN(r.value[2]));
   // hand check of the direct monthly variance: xᵀΣx + σ²f(30, ρ)/30
   const q = 1e-4 + 0.01 ** 2 * 4;
   const v = q + 0.15 ** 2 * ar1MeanVarianceFactor(30, 0.7) / 30;
   assert.ok(Math.abs(r.sd[0] - Math.sqrt(v)) < 1e-12);
+  // and of the mapped cell: xᵀΣx + β²·gᵀΣ_c g + σ_B²f(m, ρ_B)/m, g = (1, R), m = 30/30.44 → 1
+  const vb = q + 135 ** 2 * (1e-8 + 100 ** 2 * 1e-12) + 0.3 ** 2;
+  assert.ok(Math.abs(r.sd[1] - Math.sqrt(vb)) < 1e-12, `${r.sd[1]} vs ${Math.sqrt(vb)}`);
+  assert.ok(Math.abs(r.components.mapping[1] - 135 ** 2 * 2e-8) < 1e-15);
+  assert.ok(Math.abs(r.components.residual[1] - 0.09) < 1e-15);
+  assert.equal(r.components.input[1], 0);
   assert.throws(
     () =>
-      reconstructFromProxies(model, { days: new Float64Array(1), direct: [], mapped: [] }, 1.96),
+      reconstructFromProxies(
+        model,
+        { days: new Float64Array(1), direct: [], mappings: [], sunspot: null },
+        1.96,
+      ),
     (e) => e instanceof InputError && e.field === "cells" && e.reason === "length_mismatch",
   );
 });
