@@ -10,6 +10,7 @@ import { proxyRegressor, proxyRegressorScale } from "./proxy_model_evaluation.ts
 import { sunspotMappingDerivatives } from "./sunspot_proxy_mapping.ts";
 import { mappingCholesky } from "./back_extension.ts";
 import { ar1CellMeans } from "./ar1_cell_means.ts";
+import { scaleErrorLag1 } from "./sunspot_number_uncertainty.ts";
 import type {
   ErrorFactor,
   ErrorProcess,
@@ -22,9 +23,6 @@ import {
   SOURCE_BACK_EXTENDED,
   SOURCE_DIRECT,
 } from "./proxy_reconstruction.ts";
-
-/** Mean days per year of the Gregorian calendar, for the sunspot error's correlation time. */
-const YEAR_DAYS = 365.2425;
 
 /**
  * dTSI/dR of each back-extended cell: Σ over the terms mapped there of β_k·s_k·dF_k/dR at the
@@ -196,12 +194,8 @@ export function proxyReconstructionErrorModel(
   if (u && source.includes(SOURCE_BACK_EXTENDED)) {
     const sens = sunspotSensitivity(model, cells, design);
     const correlated = new Float64Array(n), independent = new Float64Array(n);
-    const lag1 = new Float64Array(n);
+    const lag1 = scaleErrorLag1(cells.days, u.correlationYears);
     for (let i = 0; i < n; i++) {
-      if (i > 0) {
-        const dt = (cells.days[i - 1] + cells.days[i]) / 2 / YEAR_DAYS;
-        lag1[i] = Math.exp(-dt / u.correlationYears);
-      }
       if (source[i] !== SOURCE_BACK_EXTENDED || sens[i] === 0) continue;
       const c = u.correlated[i], d = u.independent[i];
       correlated[i] = Number.isFinite(c) ? sens[i] * c : 0;

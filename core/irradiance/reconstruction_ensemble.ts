@@ -26,6 +26,7 @@ import { choleskyLower, drawMultivariateNormal } from "../stats/multivariate_nor
 import { proxyRegressorScale } from "./proxy_model_evaluation.ts";
 import { drawSunspotMappingCoefficients, mappingCholesky } from "./back_extension.ts";
 import { ar1CellMeans } from "./ar1_cell_means.ts";
+import { scaleErrorLag1 } from "./sunspot_number_uncertainty.ts";
 import type { SunspotProxyMapping } from "./sunspot_proxy_mapping.ts";
 import {
   type ReconstructionCells,
@@ -138,10 +139,7 @@ export function reconstructionEnsemblePlan(
   const u = cells.sunspotUncertainty;
   let inputCorrelated: PlannedProcess | null = null, inputIndependent: PlannedProcess | null = null;
   if (u && anyBack) {
-    const lag1 = new Float64Array(n);
-    for (let i = 1; i < n; i++) {
-      lag1[i] = Math.exp(-(cells.days[i - 1] + cells.days[i]) / 2 / 365.2425 / u.correlationYears);
-    }
+    const lag1 = scaleErrorLag1(cells.days, u.correlationYears);
     const back = (i: number) => source[i] === SOURCE_BACK_EXTENDED;
     const finite = (a: Float64Array) => a.map((v) => (Number.isFinite(v) ? v : 0));
     inputCorrelated = planProcess(back, finite(u.correlated), lag1, n);

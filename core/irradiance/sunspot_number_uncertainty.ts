@@ -27,6 +27,7 @@
 import type { CalendarResolution } from "../time/mod.ts";
 import { InputError } from "../errors.ts";
 import { periodSums } from "../series/period_means.ts";
+import { MEAN_YEAR_DAYS } from "../series/period_key.ts";
 
 /** One era of the sunspot-number uncertainty model. */
 export interface SunspotUncertaintyEra {
@@ -239,4 +240,28 @@ export function sunspotUncertaintyAtCells(
     independent[i] = Math.sqrt(b.sumSquaredUncertainty![j]) / b.count[j];
   }
   return { correlated, independent, correlationYears };
+}
+
+/**
+ * The lag-1 correlation of the correlated (scale) error between consecutive cells:
+ * e^{−Δt/τ} with Δt the years between the cell middles ((d_{i−1} + d_i)/2 days), the
+ * exponential correlation of a continuous-time AR(1) (Ornstein–Uhlenbeck) process.
+ *
+ * @param days cell lengths in days
+ * @param correlationYears τ in years (> 0)
+ * @returns per cell, the correlation with the previous cell (0 for the first)
+ * @example
+ * ```ts
+ * import { scaleErrorLag1 } from "./sunspot_number_uncertainty.ts";
+ * import assert from "node:assert/strict";
+ * const r = scaleErrorLag1([365.2425, 365.2425], 20);
+ * assert.ok(Math.abs(r[1] - Math.exp(-1 / 20)) < 1e-15);
+ * ```
+ */
+export function scaleErrorLag1(days: ArrayLike<number>, correlationYears: number): Float64Array {
+  const out = new Float64Array(days.length);
+  for (let i = 1; i < days.length; i++) {
+    out[i] = Math.exp(-(days[i - 1] + days[i]) / 2 / MEAN_YEAR_DAYS / correlationYears);
+  }
+  return out;
 }

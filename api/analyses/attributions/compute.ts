@@ -18,6 +18,8 @@ import { type AnalysisAxis, analysisAxis } from "../common/analysis_axis.ts";
 import { solarCautions } from "../common/cautions.ts";
 import { withInputPointers } from "../common/input_problem.ts";
 import { solarSeriesFromRun } from "../common/solar_series_from_run.ts";
+import { solarBandCautions, solarEnsembleFromRun } from "../common/solar_ensemble.ts";
+import { attributionEnsembleSpread } from "./ensemble_spread.ts";
 import { undefinedAsNull } from "../common/undefined_as_null.ts";
 import type { AttributionParams } from "./request.ts";
 import type { AttributionResultIn } from "./result.ts";
@@ -122,8 +124,7 @@ function solarSummary(
 ): NonNullable<AttributionResultIn["solar"]> {
   const c = fit.coefficients[k + 1];
   const lag = fit.lags[p.regressors[k].name];
-  const t0 = fit.firstIndex;
-  const xs = axis.values[k + 1].subarray(t0 - lag, t0 - lag + fit.n);
+  const xs = solarSample(p, k, fit, axis);
   const amp = p.solar_cycle_amplitude ??
     withInputPointers({ "*": sourcePointer(p, k) }, () => cycleAmplitudeEstimate(xs));
   return {
@@ -177,13 +178,8 @@ function outputs(
   };
 }
 
-/** Regress the climate series on the regressors, each at its AIC-chosen lag. */
-export function computeAttributions(
-  p: AttributionParams,
-  ctx: RunContext,
-): AttributionResultIn {
-  const climate = ctx.series(refId(p.climate));
-  const { series, solarIndex } = regressorSeries(p, ctx);
+/** The common axis, the checks and the regression for a given list of regressor series. */
+function regress(p: AttributionParams, climate: StoredSeries, series: StoredSeries[]) {
   const axis = analysisAxis(
     [climate, ...series],
     ["/climate", ...p.regressors.map((_, k) => sourcePointer(p, k))],
@@ -206,6 +202,39 @@ export function computeAttributions(
       errors: p.errors,
       hacLags: p.hac_lags,
     }));
+  return { axis, regressors, fit };
+}
+
+/** The solar regressor's values over the fitted sample, at its chosen lag. */
+function solarSample(p: AttributionParams, k: number, fit: AttributionResult, axis: AnalysisAxis) {
+  const lag = fit.lags[p.regressors[k].name];
+  const t0 = fit.firstIndex;
+  return axis.values[k + 1].subarray(t0 - lag, t0 - lag + fit.n);
+}
+
+/** Regress the climate series on the regressors, each at its AIC-chosen lag. */
+export function computeAttributions(
+  p: AttributionParams,
+  ctx: RunContext,
+): AttributionResultIn {
+  const climate = ctx.series(refId(p.climate));
+  const { series, solarIndex } = regressorSeries(p, ctx);
+  const { axis, regressors, fit } = regress(p, climate, series);
+  const solarRun = solarIndex === null ? undefined : p.regressors[solarIndex].run;
+  const ensemble = solarRun
+    ? solarEnsembleFromRun(ctx, solarRun, series[solarIndex!], sourcePointer(p, solarIndex!))
+    : null;
+  const spread = ensemble
+    ? attributionEnsembleSpread(ctx, ensemble, solarIndex!, p.regressors[solarIndex!].name, (s) => {
+      const r = regress(p, climate, s);
+      const amplitude = p.solar_cycle_amplitude ??
+        withInputPointers(
+          { "*": sourcePointer(p, solarIndex!) },
+          () => cycleAmplitudeEstimate(solarSample(p, solarIndex!, r.fit, r.axis)),
+        );
+      return { fit: r.fit, amplitude };
+    }, series)
+    : null;
   const t0 = fit.firstIndex;
   const sampleTime = Array.from(axis.time.subarray(t0, t0 + fit.n));
   const unitsOf = (k: number) => (k < series.length ? series[k].units : "yr");
@@ -254,9 +283,12 @@ export function computeAttributions(
       ? null
       : solarSummary(p, solarIndex, fit, axis, climate, series[solarIndex]),
     outputs: outputs(regressors, fit, climate, sampleTime),
+    // present only when the solar regressor has an ensemble, so other results keep their shape
+    ...(spread ? { ensemble_spread: spread } : {}),
     warnings: [...axis.warnings, ...fit.warnings],
     cautions: [
       ...solarCautions(solarIndex === null ? [] : [series[solarIndex]]),
+      ...(solarRun ? solarBandCautions(ctx, solarRun) : []),
       "Coefficients measure association given the chosen regressors and lags; a missing or " +
       "mis-specified regressor changes them.",
     ],

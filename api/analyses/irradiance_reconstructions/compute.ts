@@ -13,6 +13,8 @@ import { refId } from "../../schemas/series_ref.ts";
 import {
   countBeyondMappingRange,
   countFarOutsideRange,
+  ERROR_SOURCES,
+  type ErrorSource,
   predictionQuantile,
   reconstructFromProxies,
   type Reconstruction,
@@ -21,7 +23,9 @@ import {
   type ReconstructionModel,
   secularBackground,
   SOURCE_BACK_EXTENDED,
+  SOURCE_NONE,
   tsiCycleAmplitude,
+  varianceByPeriod,
   withSecularBackground,
 } from "../../../core/irradiance/mod.ts";
 import { periodKeyRange, periodSequence, seriesAtPeriodKeys } from "../../../core/series/mod.ts";
@@ -42,6 +46,10 @@ import { mappingFromJson } from "../irradiance_models/mapping_json.ts";
 import { cycleAmplitudeJson } from "../common/tsi_cycle_amplitude.ts";
 import type { ReconstructionParams } from "./request.ts";
 import type { ReconstructionResultIn } from "./result.ts";
+import { checkEnsembleSize, membersJson } from "../common/ensemble_members.ts";
+import { bandCaution, type UncertaintyBand, uncertaintyBand } from "../common/uncertainty_band.ts";
+import { drawEnsemble, type DrawnEnsemble } from "./ensemble.ts";
+import { type SunspotErrors, sunspotErrors } from "./sunspot_errors.ts";
 
 /** Most cells a reconstruction may have. */
 const MAX_CELLS = 400_000;
@@ -64,20 +72,28 @@ interface SunspotInput {
   resolution: TimeResolution;
   conversion: string | null;
   warnings: string[];
+  /** Its own error, as propagated. */
+  errors: SunspotErrors;
 }
 
 /** Reconstruct TSI over the period from the model run and the proxies. */
-export function computeReconstruction(
+export async function computeReconstruction(
   params: ReconstructionParams,
   ctx: RunContext,
-): ReconstructionResultIn {
+): Promise<ReconstructionResultIn> {
   const stored = ctx.resultOf(irradianceModels, params.model, "/model");
   const cells = targetCells(params);
+  if (params.realizations > 0) {
+    checkEnsembleSize(params.realizations, cells.keys.length, [
+      "/realizations",
+      "/period",
+      "/resolution",
+    ]);
+  }
   const direct = directProxies(params, ctx, stored, cells);
   const sunspot = params.sunspot_number === undefined
     ? null
     : sunspotInput(params, ctx, stored, cells);
-  const mappings = termMappings(stored, sunspot);
   if (!direct.some((d) => d.some(Number.isFinite)) && !sunspot?.atCells.some(Number.isFinite)) {
     throw new InputProblem(
       "/period",
@@ -88,12 +104,19 @@ export function computeReconstruction(
     );
   }
   const z = predictionQuantile(params.level, stored.model.df_residual);
-  const proxyOnly = reconstructFromProxies(
-    reconstructionModel(stored),
-    { days: cells.days, direct, mappings, sunspot: sunspot?.atCells ?? null },
-    z,
+  const model = reconstructionModel(stored);
+  const coreCells: ReconstructionCells = {
+    days: cells.days,
+    direct,
+    mappings: termMappings(stored, sunspot),
+    sunspot: sunspot?.atCells ?? null,
+    sunspotUncertainty: sunspot?.errors.cells ?? null,
+  };
+  const proxyOnly = withInputPointers(
+    { mapping: "/model", covariance: "/model", "*": "/model" },
+    () => reconstructFromProxies(model, coreCells, z),
   );
-  const { rec, scenario } = background(params, stored, sunspot, cells, proxyOnly);
+  const { rec, scenario, atCells } = background(params, stored, sunspot, cells, proxyOnly);
   const coverage = reconstructionCoverage(rec, cells.time);
   if (coverage.direct.cells + coverage.backExtended.cells === 0) {
     throw new InputProblem(
@@ -102,6 +125,16 @@ export function computeReconstruction(
       { reason: "no_overlap" },
     );
   }
+  ctx.progress(0.1);
+  const ens = params.realizations > 0
+    ? await drawEnsemble(ctx, model, coreCells, {
+      realizations: params.realizations,
+      seed: params.seed,
+      level: params.level,
+      background: atCells,
+    })
+    : null;
+  const band = reconstructionBand(params, rec, sunspot, scenario.kind !== "none");
   const amp = tsiCycleAmplitude(cells.time, rec.value);
   const warnings = [
     ...(sunspot?.warnings ?? []),
@@ -109,6 +142,13 @@ export function computeReconstruction(
     ...extrapolationWarnings(stored, direct, sunspot, rec),
     ...cycleAmplitudeWarning(amp.median),
     ...quietSunWarning(stored.model.quiet_sun.value),
+    ...(ens && ens.realizations < 100
+      ? [
+        `The band rests on ${ens.realizations} members: it is ŷ ± ${
+          normalQuantile(1 - (1 - params.level) / 2).toFixed(3)
+        } × the members' SD; ask for 100 or more realizations for quantiles of the members.`,
+      ]
+      : []),
   ];
   return {
     model: params.model,
@@ -127,9 +167,100 @@ export function computeReconstruction(
     },
     source_segments: coverage.segments,
     cycle_amplitude: cycleAmplitudeJson(amp),
-    outputs: { tsi: tsiOutput(params, cells, rec, scenario.label) },
+    outputs: { tsi: tsiOutput(params, cells, rec, scenario.label, ens, band.method) },
+    band,
+    sunspot_uncertainty: sunspot?.errors.json ?? null,
+    variance_by_period: varianceBlocks(params, cells, rec, ens),
+    error_model: errorModelJson(rec),
+    ensemble: ens
+      ? {
+        realizations: ens.realizations,
+        seed: params.seed,
+        units: "W m-2",
+        rounding: MEMBER_ROUNDING,
+        members: membersJson(ens.members, ens.realizations, MEMBER_ROUNDING),
+      }
+      : null,
     warnings,
-    cautions: [...RECONSTRUCTION_CAUTIONS, `Background scenario: ${scenario.label}`],
+    cautions: [
+      ...RECONSTRUCTION_CAUTIONS,
+      bandCaution(band),
+      `Background scenario: ${scenario.label}`,
+    ],
+  };
+}
+
+/** Members are rounded to 0.1 mW m-2, far below any band width. */
+const MEMBER_ROUNDING = 1e-4;
+
+/** What the band is made of and what it leaves out. */
+function reconstructionBand(
+  params: ReconstructionParams,
+  rec: Reconstruction,
+  sunspot: SunspotInput | null,
+  withScenario: boolean,
+): UncertaintyBand {
+  const back = rec.source.includes(SOURCE_BACK_EXTENDED);
+  const included: ErrorSource[] = ["calibration", "residual"];
+  if (back) included.push("mapping");
+  if (back && sunspot?.errors.cells) included.push("input");
+  const method = params.realizations >= 100
+    ? "ensemble_quantiles"
+    : params.realizations > 0
+    ? "ensemble_sd"
+    : "analytic";
+  return uncertaintyBand(method, included, [
+    ...(back ? sunspot?.errors.notIncluded ?? [] : []),
+    ...(withScenario
+      ? ["the uncertainty of the secular background scenario (a labelled choice)"]
+      : []),
+  ]);
+}
+
+/** Mean variance by source over blocks of years, with the ensemble's beside it. */
+function varianceBlocks(
+  params: ReconstructionParams,
+  cells: TargetCells,
+  rec: Reconstruction,
+  ens: DrawnEnsemble | null,
+): ReconstructionResultIn["variance_by_period"] {
+  const none = (i: number) => rec.source[i] === SOURCE_NONE;
+  const masked = Object.fromEntries(
+    ERROR_SOURCES.map((s) => [s, rec.components[s].map((v, i) => (none(i) ? NaN : v))]),
+  ) as Record<ErrorSource, Float64Array>;
+  const ensVar = ens ? ens.summary.sd.map((v, i) => (none(i) ? NaN : v * v)) : null;
+  return varianceByPeriod(cells.time, masked, params.variance_block_years, ensVar).map((b) => ({
+    start: b.start,
+    end: b.end,
+    cells: b.cells,
+    variance: b.variance,
+    share: b.share,
+    total: b.total,
+    dominant: b.dominant,
+    ensemble_variance: b.ensembleVariance,
+  }));
+}
+
+/** The error model as stored: loadings rounded to 1e-9 W m-2, zero where a cell has no value. */
+function errorModelJson(rec: Reconstruction): ReconstructionResultIn["error_model"] {
+  const r9 = (a: Float64Array) =>
+    Array.from(a, (v, i) => (rec.source[i] === SOURCE_NONE ? 0 : Math.round(v * 1e9) / 1e9));
+  return {
+    description: "e(t) = Σ_j loading_j(t)·z_j + Σ_p loading_p(t)·u_p(t): z_j independent " +
+      "standard normals shared by all cells, u_p unit-variance processes with corr(u_p(t), " +
+      "u_p(t − 1)) = lag1_p(t). Var(t) = Σ loading²; Cov(s, t) = Σ_j loading_j(s)loading_j(t) " +
+      "+ Σ_p loading_p(s)loading_p(t)·Π lag1_p between s and t. First order (delta method).",
+    factors: rec.errorModel.factors.map((f) => ({
+      source: f.source,
+      label: f.label,
+      loading: r9(f.loading),
+    })),
+    processes: rec.errorModel.processes.map((p) => ({
+      source: p.source,
+      label: p.label,
+      loading: r9(p.loading),
+      lag1: Array.from(p.lag1),
+    })),
   };
 }
 
@@ -156,18 +287,39 @@ function tsiOutput(
   cells: TargetCells,
   rec: Reconstruction,
   scenarioLabel: string,
+  ens: DrawnEnsemble | null,
+  method: UncertaintyBand["method"],
 ): ReconstructionResultIn["outputs"]["tsi"] {
   const level = params.level === 0.95 ? "95 %" : `${(params.level * 100).toFixed(1)} %`;
+  let sd: ArrayLike<number> = rec.sd, lower: ArrayLike<number> = rec.lower;
+  let upper: ArrayLike<number> = rec.upper;
+  let interval = `${level} prediction interval`;
+  if (ens) {
+    sd = ens.summary.sd;
+    if (method === "ensemble_quantiles") {
+      lower = ens.summary.lower;
+      upper = ens.summary.upper;
+      interval = `${level} interval of ${ens.realizations} ensemble members`;
+    } else {
+      const zn = normalQuantile(1 - (1 - params.level) / 2);
+      lower = rec.value.map((v, i) => v - zn * ens.summary.sd[i]);
+      upper = rec.value.map((v, i) => v + zn * ens.summary.sd[i]);
+      interval = `${level} interval (±${zn.toFixed(2)} SD of ${ens.realizations} members)`;
+    }
+  }
+  // a cell without a central value has no band either
+  const gap = (a: ArrayLike<number>) =>
+    Float64Array.from(a, (v, i) => (Number.isFinite(rec.value[i]) ? v : NaN));
   return {
     name: "Reconstructed TSI",
     quantity: "tsi",
     units: "W m-2",
     time: Array.from(cells.time),
     value: micro(rec.value),
-    uncertainty: micro(rec.sd),
-    lower: micro(rec.lower),
-    upper: micro(rec.upper),
-    interval: `${level} prediction interval`,
+    uncertainty: micro(gap(sd)),
+    lower: micro(gap(lower)),
+    upper: micro(gap(upper)),
+    interval,
     description:
       `Model run ${params.model}, ${cells.resolution} means, values rounded to 1e-6 W m-2; ${scenarioLabel}`,
   };
@@ -256,12 +408,14 @@ function sunspotInput(
     );
   }
   const series = { time: ss.time, value };
+  const factor = version !== mappings.sunspot_version ? params.sunspot_conversion!.factor : 1;
   return {
     series,
     atCells: seriesAtPeriodKeys(series, cells.resolution, cells.keys),
     resolution: ss.resolution,
     conversion,
     warnings,
+    errors: sunspotErrors(params, ss, value, factor, cells.resolution, cells.keys),
   };
 }
 
@@ -289,11 +443,12 @@ function background(
   sunspot: SunspotInput | null,
   cells: TargetCells,
   rec: Reconstruction,
-): { rec: Reconstruction; scenario: Scenario } {
+): { rec: Reconstruction; scenario: Scenario; atCells: Float64Array | null } {
   const bg = params.background;
   if (bg.kind === "none") {
     return {
       rec,
+      atCells: null,
       scenario: {
         kind: "none",
         label:
@@ -330,6 +485,7 @@ function background(
   );
   return {
     rec: withSecularBackground(rec, atCells),
+    atCells,
     scenario: {
       kind: "sunspot_running_mean",
       label:

@@ -12,28 +12,40 @@ import { ReconstructionRequest } from "./request.ts";
 import { ReconstructionResult } from "./result.ts";
 import { computeReconstruction } from "./compute.ts";
 import { reconstructionChart } from "./chart.ts";
+import { reconstructionTasks } from "./tasks.ts";
 
 export const irradianceReconstructions = defineAnalysis({
   kind: "irradiance-reconstructions",
   path: "/v1/irradiance/reconstructions",
   // 3: a period ending on a cell boundary no longer gains an extra cell (2001-01..2001-12 is
   // 12 months, not 13); a cell whose background is missing has no SD either.
-  algorithmVersion: "3",
+  // 4: the band propagates the sunspot number's own error (its uncertainties, or a documented
+  // model growing back in time) and is first order throughout (the mapping's product term
+  // Σ_β,kk·v_k is dropped); optional ensembles; variance by source and period.
+  algorithmVersion: "4",
   tag: "Irradiance",
-  summary: "Reconstruct TSI from a calibrated model, with prediction intervals",
+  summary: "Reconstruct TSI from a calibrated model, with prediction intervals and ensembles",
   description: "Applies a model run to proxy series averaged into daily, monthly or annual " +
     "cells over a period. Prediction intervals combine the coefficient covariance with the " +
     "residual variance, reduced for cell means by the AR(1) variance factor of the residuals " +
     "(so intervals of monthly and annual means are not too narrow). Where a proxy has no value, " +
     "its value is mapped from sunspot number with the model's fitted mapping; the band then " +
     "uses the residual process of the sunspot-only model and the mappings' parameter " +
-    "uncertainty, so it widens where proxies are weaker. The sunspot series version must match " +
+    "uncertainty, so it widens where proxies are weaker; the sunspot number's own error (its " +
+    "stated uncertainties, or a documented model that grows back in time) is propagated " +
+    "through the mappings, so the band also grows back in time. With `realizations` the run " +
+    "draws seeded ensemble members jointly from every source and reports the ensemble's band; " +
+    "the result decomposes the variance by source per block of years and states which " +
+    "sources the band contains and which it does not. The sunspot series version must match " +
     "the model's unless a conversion factor is given. An optional secular background scenario " +
     "is added and labelled; the default is none.",
   request: ReconstructionRequest,
   result: ReconstructionResult,
   runRefs: (p) => [p.model],
-  estimateSeconds: (p) => (p.resolution === "daily" ? 0.5 : 0.1),
+  estimateSeconds: (p) =>
+    (p.resolution === "daily" ? 0.5 : 0.1) +
+    p.realizations * (p.resolution === "daily" ? 2e-3 : p.resolution === "monthly" ? 1e-4 : 1e-5),
   compute: computeReconstruction,
   chart: reconstructionChart,
+  tasks: reconstructionTasks,
 });

@@ -23,6 +23,8 @@ import { type AnalysisAxis, analysisAxis } from "../common/analysis_axis.ts";
 import { solarCautions } from "../common/cautions.ts";
 import { type FieldPointers, withInputPointers } from "../common/input_problem.ts";
 import { solarSeriesFromRun } from "../common/solar_series_from_run.ts";
+import { solarBandCautions, solarEnsembleFromRun } from "../common/solar_ensemble.ts";
+import { lagEnsembleSpread } from "./ensemble_spread.ts";
 import type { LagCorrelationParams } from "./request.ts";
 import type { LagCorrelationResultIn } from "./result.ts";
 import { SURROGATE_LAG_CHUNK } from "./tasks.ts";
@@ -205,6 +207,10 @@ export async function computeLagCorrelations(
     : await monteCarlo({ ...p, significance: p.significance }, ctx, series, axis, window);
   ctx.progress(0.95);
   const best = rows[bestIdx];
+  const ensemble = p.solar_run ? solarEnsembleFromRun(ctx, p.solar_run, solar, "/solar_run") : null;
+  const spread = ensemble
+    ? lagEnsembleSpread(p, ctx, ensemble, climate, window, (a) => preprocessed(p, a), bestIdx)
+    : null;
   const warnings = [...axis.warnings];
   const trust = verdict(best, mc ? mc.pPerLag[bestIdx] : null);
   if (trust.warning) warnings.push(trust.warning);
@@ -263,7 +269,12 @@ export async function computeLagCorrelations(
       solar_preprocessed: preprocessedOutput(solar, series.x),
       climate_preprocessed: preprocessedOutput(climate, series.y),
     },
+    // present only when the solar input has an ensemble, so other results keep their shape
+    ...(spread ? { ensemble_spread: spread } : {}),
     warnings,
-    cautions: solarCautions([solar]),
+    cautions: [
+      ...solarCautions([solar]),
+      ...(p.solar_run ? solarBandCautions(ctx, p.solar_run) : []),
+    ],
   };
 }

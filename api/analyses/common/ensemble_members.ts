@@ -1,0 +1,84 @@
+/**
+ * Ensemble members in results: the schema (members × points, rounded, null where the central
+ * series has no value), the size limit that keeps JSON results bounded, and the conversions
+ * from and to core's member-major Float64Array.
+ *
+ * @module
+ */
+import { z } from "@hono/zod-openapi";
+import { InputProblem } from "../../runs/kind.ts";
+
+/**
+ * Most member values (members × points) a JSON result may hold: 1,000 members of an annual
+ * 1700–2025 reconstruction (326,000) or of a monthly one (3.9 million, about 30 MB of JSON);
+ * a daily 1700–2025 ensemble of 1,000 members would be 119 million values (950 MB as doubles)
+ * and is refused: use monthly or annual cells, or fewer members.
+ */
+export const MAX_ENSEMBLE_VALUES = 4_000_000;
+
+/** The ensemble part of a result. */
+export const EnsembleSchema = z.object({
+  realizations: z.number().int().openapi({ description: "Number of members" }),
+  seed: z.number().int().openapi({
+    description: "Seed of the draws: member m uses the random stream (seed, m)",
+  }),
+  units: z.string(),
+  rounding: z.number().openapi({ description: "Member values are rounded to this step" }),
+  members: z.array(z.array(z.number().nullable())).openapi({
+    description: "members[m][i]: member m at point i of the output's time axis; null where " +
+      "the central value is null",
+  }),
+}).openapi("EnsembleMembers");
+
+/** The ensemble part as `compute` builds it. */
+export type EnsembleJson = z.input<typeof EnsembleSchema>;
+
+/**
+ * Refuse an ensemble whose JSON would exceed {@link MAX_ENSEMBLE_VALUES}, naming the fields
+ * that set its size.
+ *
+ * @param realizations requested members
+ * @param points points per member
+ * @param fields JSON Pointers of the fields that set the size, the first one reported
+ * @throws {InputProblem} at `fields[0]` when realizations × points is above the limit
+ */
+export function checkEnsembleSize(realizations: number, points: number, fields: string[]): void {
+  const values = realizations * points;
+  if (values <= MAX_ENSEMBLE_VALUES) return;
+  throw new InputProblem(
+    fields[0],
+    `${realizations} realizations × ${points} points = ${values} member values, more than the ` +
+      `${MAX_ENSEMBLE_VALUES} a JSON result holds; ask for fewer realizations, a shorter ` +
+      `period or coarser (monthly or annual) cells (set by ${fields.join(", ")})`,
+    { reason: "ensemble_too_large", values, limit: MAX_ENSEMBLE_VALUES, fields },
+  );
+}
+
+/** Members (count × n, member-major) as rounded JSON rows, null where not finite. */
+export function membersJson(
+  members: Float64Array,
+  count: number,
+  step: number,
+): (number | null)[][] {
+  const n = members.length / count, inv = 1 / step;
+  const rows: (number | null)[][] = [];
+  for (let m = 0; m < count; m++) {
+    const row = new Array<number | null>(n);
+    for (let i = 0; i < n; i++) {
+      const v = members[m * n + i];
+      row[i] = Number.isFinite(v) ? Math.round(v * inv) / inv : null;
+    }
+    rows.push(row);
+  }
+  return rows;
+}
+
+/** JSON rows back to a member-major Float64Array (null → NaN). */
+export function membersFromJson(rows: readonly (readonly (number | null)[])[]): Float64Array {
+  const count = rows.length, n = count ? rows[0].length : 0;
+  const out = new Float64Array(count * n);
+  rows.forEach((row, m) => {
+    for (let i = 0; i < n; i++) out[m * n + i] = row[i] ?? NaN;
+  });
+  return out;
+}

@@ -1,0 +1,101 @@
+/**
+ * A solar input's ensemble: when a solar–climate analysis takes its solar series from a
+ * reconstruction or forcing run that drew members, each member as a series (for the analysis
+ * to be repeated member by member), the band statement the run passes on, and the summary of
+ * an answer's spread over the members.
+ *
+ * @module
+ */
+import { z } from "@hono/zod-openapi";
+import { quantileSorted } from "d3-array";
+import { InputProblem, type RunContext } from "../../runs/kind.ts";
+import type { StoredSeries } from "../../store/types.ts";
+import { EnsembleSchema } from "./ensemble_members.ts";
+import { bandCaution, UncertaintyBandSchema } from "./uncertainty_band.ts";
+
+/** The parts of a reconstruction's or forcing run's result read here. */
+const WithEnsemble = z.object({
+  band: UncertaintyBandSchema.nullable().optional(),
+  ensemble: EnsembleSchema.nullable().optional(),
+});
+
+/** The members of a solar run, each available as a series like its central one. */
+export interface SolarEnsemble {
+  realizations: number;
+  seed: number;
+  /** Member m as a series with the central series' times and metadata. */
+  member(m: number): StoredSeries;
+}
+
+/**
+ * The ensemble of run `id`, read beside its central series (`solarSeriesFromRun`); null when
+ * the run has none.
+ *
+ * @param ctx the run context
+ * @param id run id
+ * @param central the central series taken from the run
+ * @param pointer JSON Pointer of the request field
+ * @throws {InputProblem} at `pointer` when the members do not match the central series
+ */
+export function solarEnsembleFromRun(
+  ctx: RunContext,
+  id: string,
+  central: StoredSeries,
+  pointer: string,
+): SolarEnsemble | null {
+  const parsed = WithEnsemble.safeParse(ctx.run(id).result);
+  const e = parsed.success ? parsed.data.ensemble : null;
+  if (!e) return null;
+  if (e.members.length !== e.realizations || e.members.some((r) => r.length !== central.n)) {
+    throw new InputProblem(
+      pointer,
+      `run ${id} holds an ensemble whose members do not match its output's time axis`,
+    );
+  }
+  return {
+    realizations: e.realizations,
+    seed: e.seed,
+    member: (m) => ({
+      ...central,
+      id: `${central.id}#member${m}`,
+      value: Float64Array.from(e.members[m], (v) => v ?? NaN),
+    }),
+  };
+}
+
+/** The caution a run built on `id` inherits about its solar input's band, if it states one. */
+export function solarBandCautions(ctx: RunContext, id: string): string[] {
+  const parsed = WithEnsemble.safeParse(ctx.run(id).result);
+  const band = parsed.success ? parsed.data.band : null;
+  return band ? [bandCaution(band, `The solar input's uncertainty band (run ${id})`)] : [];
+}
+
+/** The 2.5 %, 50 % and 97.5 % points of an answer over the members. */
+export const SpreadQuantiles = z.object({
+  p025: z.number(),
+  median: z.number(),
+  p975: z.number(),
+}).openapi("SpreadQuantiles");
+
+/**
+ * Quantiles (R's type 7, d3-array) of the finite values; null when there is none.
+ *
+ * @param values one answer per member
+ */
+export function spreadQuantiles(values: readonly number[]): z.input<typeof SpreadQuantiles> | null {
+  const v = values.filter(Number.isFinite).sort((a, b) => a - b);
+  if (v.length === 0) return null;
+  return {
+    p025: quantileSorted(v, 0.025)!,
+    median: quantileSorted(v, 0.5)!,
+    p975: quantileSorted(v, 0.975)!,
+  };
+}
+
+/** How many members chose each value (e.g. a best lag), in increasing order of the value. */
+export function spreadCounts(values: readonly number[]): { values: number[]; members: number[] } {
+  const counts = new Map<number, number>();
+  for (const v of values) counts.set(v, (counts.get(v) ?? 0) + 1);
+  const keys = [...counts.keys()].sort((a, b) => a - b);
+  return { values: keys, members: keys.map((k) => counts.get(k)!) };
+}
