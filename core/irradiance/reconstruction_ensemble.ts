@@ -34,7 +34,6 @@ import {
   type ReconstructionModel,
   SOURCE_BACK_EXTENDED,
   SOURCE_DIRECT,
-  SOURCE_NONE,
 } from "./proxy_reconstruction.ts";
 
 /** Most members one ensemble may have. */
@@ -48,6 +47,8 @@ export interface PlannedProcess {
   sd: Float64Array;
   /** Correlation with the previous active cell (the product of lag-1 correlations between). */
   lag: Float64Array;
+  /** √(1 − lag²), the innovation's share (1 at the first cell). */
+  innovation: Float64Array;
 }
 
 /** Everything a member draw needs, computed once (plain data: it travels to workers). */
@@ -59,6 +60,11 @@ export interface ReconstructionEnsemblePlan {
   termScale: number[];
   termOffset: number[];
   source: Uint8Array;
+  /** Cells with every proxy observed, and back-extended cells. */
+  directCells: Int32Array;
+  backCells: Int32Array;
+  /** Per term, true when it is mapped at every back-extended cell. */
+  mappedEverywhere: boolean[];
   /** Per term, the direct value (NaN where mapped or no value). */
   direct: Float64Array[];
   mapped: Uint8Array[];
@@ -82,15 +88,18 @@ function planProcess(
   const idx: number[] = [];
   for (let i = 0; i < n; i++) if (active(i) && sd[i] > 0) idx.push(i);
   const cells = Int32Array.from(idx);
-  const s = new Float64Array(cells.length), lag = new Float64Array(cells.length);
-  for (let j = 0; j < cells.length; j++) {
+  const m = cells.length;
+  const s = new Float64Array(m), lag = new Float64Array(m), innovation = new Float64Array(m);
+  for (let j = 0; j < m; j++) {
     s[j] = sd[cells[j]];
+    innovation[j] = 1;
     if (j === 0) continue;
     let r = 1;
     for (let i = cells[j - 1] + 1; i <= cells[j]; i++) r *= lag1[i];
     lag[j] = r;
+    innovation[j] = Math.sqrt(1 - r * r);
   }
-  return { cells, sd: s, lag };
+  return { cells, sd: s, lag, innovation };
 }
 
 /**
@@ -158,6 +167,11 @@ export function reconstructionEnsemblePlan(
     termScale,
     termOffset,
     source,
+    directCells: cellsOf(source, SOURCE_DIRECT),
+    backCells: cellsOf(source, SOURCE_BACK_EXTENDED),
+    mappedEverywhere: design.mapped.map((mk) =>
+      source.every((src, i) => src !== SOURCE_BACK_EXTENDED || mk[i] === 1)
+    ),
     direct,
     mapped: design.mapped,
     mappings,
@@ -171,13 +185,19 @@ export function reconstructionEnsemblePlan(
   };
 }
 
+/** The cells of one source. */
+function cellsOf(source: Uint8Array, code: number): Int32Array {
+  const out: number[] = [];
+  for (let i = 0; i < source.length; i++) if (source[i] === code) out.push(i);
+  return Int32Array.from(out);
+}
+
 /** Add a draw of a planned process to `out` at its active cells, from normals `z[at..]`. */
 function addProcess(p: PlannedProcess, z: Float64Array, at: number, out: Float64Array): number {
-  const { cells, sd, lag } = p, m = cells.length;
+  const { cells, sd, lag, innovation } = p, m = cells.length;
   let u = 0;
   for (let j = 0; j < m; j++) {
-    const r = lag[j];
-    u = j === 0 ? z[at + j] : r * u + Math.sqrt(1 - r * r) * z[at + j];
+    u = lag[j] * u + innovation[j] * z[at + j];
     out[cells[j]] += sd[j] * u;
   }
   return at + m;
@@ -224,17 +244,35 @@ function drawMember(
     slope[k] = beta[k + 1] * plan.termScale[k];
     base -= beta[k + 1] * plan.termOffset[k];
   }
-  for (let i = 0; i < n; i++) {
-    const src = plan.source[i];
-    if (src === SOURCE_NONE) {
-      out[i] = NaN;
-      continue;
-    }
+  out.fill(NaN);
+  // cells with every proxy observed: y = base + Σ slope_k·F_k + e
+  const dc = plan.directCells;
+  for (let j = 0; j < dc.length; j++) {
+    const i = dc[j];
     let y = base + e[i];
-    for (let k = 0; k < K; k++) {
+    for (let k = 0; k < K; k++) y += slope[k] * plan.direct[k][i];
+    out[i] = y;
+  }
+  const bc = plan.backCells;
+  if (bc.length === 0) return;
+  // back-extended cells: a linear mapping used everywhere folds into y = a + b·R; the others
+  // (saturating, or a term observed at some back-extended cells) are evaluated per cell
+  let a = base, b = 0;
+  const perCell: number[] = [];
+  for (let k = 0; k < K; k++) {
+    const m = plan.mappings[k];
+    if (m && m.form === "linear" && plan.mappedEverywhere[k]) {
+      a += slope[k] * c[k]![0];
+      b += slope[k] * c[k]![1];
+    } else perCell.push(k);
+  }
+  for (let j = 0; j < bc.length; j++) {
+    const i = bc[j], x = R![i];
+    let y = a + b * x + e[i];
+    for (const k of perCell) {
       let v: number;
-      if (src === SOURCE_BACK_EXTENDED && plan.mapped[k][i]) {
-        const ck = c[k]!, x = R![i];
+      if (plan.mapped[k][i]) {
+        const ck = c[k]!;
         v = plan.mappings[k]!.form === "linear"
           ? ck[0] + ck[1] * x
           : ck[0] + ck[1] * (ck[2] * -Math.expm1(-(x / ck[2])));
