@@ -22,8 +22,8 @@ export const SOURCE_DESCRIPTIONS: Record<ErrorSource, string> = {
 export const SOURCES_NEVER_INCLUDED = [
   "the spread between published reconstruction methods (other proxies, models and " +
   "sunspot-number series give pre-satellite TSI histories that differ by more than this band)",
-  "an unknown secular (long-term) trend of quiet-Sun irradiance: published Maunder Minimum " +
-  "deficits span −0.75 to +6.3 W m-2 (Yeo et al. 2020, GRL)",
+  "an unknown secular trend of quiet-Sun irradiance (long-term; published Maunder Minimum " +
+  "deficits span −0.75 to +6.3 W m-2, Yeo et al. 2020, GRL)",
   "the absolute scale of the TSI record the model was calibrated on (1360.8 ± 0.5 W m-2 at " +
   "the 2008 minimum; Kopp & Lean 2011, GRL 38, L01706)",
   "changes of the proxy relations outside the calibration era (the mappings are assumed to " +
