@@ -11,6 +11,7 @@
 import { ingestText } from "./ingest/mod.ts";
 import type { TextIngestOptions } from "./ingest/mod.ts";
 import type { Store, StoredSeries } from "./store/types.ts";
+import { LOCAL_OWNER } from "./store/types.ts";
 import { storedFromNormalised } from "./series_codec.ts";
 
 /** One CSV entry of the demo manifest. */
@@ -100,7 +101,8 @@ export async function loadDemo(
 ): Promise<string[]> {
   const ids: string[] = [];
   for (const { series } of await readDemoSeries()) {
-    await store.putSeries(series);
+    // Public: on a shared instance every owner may try the demo.
+    await store.putSeries(series, { owner: LOCAL_OWNER, visibility: "public" });
     ids.push(series.id);
   }
   return ids;

@@ -4,11 +4,13 @@
  * pg-boss on the store's database for PostgreSQL), fails the runs nobody will finish, loads
  * the demo data into an empty store (unless `SUNLAG_DEMO=0`), and then, by `SUNLAG_ROLE`:
  * `all` (default) serves HTTP on `HOST:PORT` (default 127.0.0.1:8080) and computes runs;
- * `api` only serves; `worker` only computes queued runs.
+ * `api` only serves; `worker` only computes queued runs. Refuses to
+ * start on a non-loopback address without an admin key (or `SUNLAG_OPEN_NETWORK=1`) and a list
+ * of allowed hosts.
  *
  * @module
  */
-import { readConfig } from "./config.ts";
+import { readConfig, startupRefusal } from "./config.ts";
 import { openStoreFromSpec } from "./store/mod.ts";
 import { createService } from "./app.ts";
 import { WorkerPool } from "./workers/pool.ts";
@@ -20,6 +22,11 @@ import { seriesCodec } from "./series_codec.ts";
 
 const t0 = performance.now();
 const config = readConfig(Deno.env.toObject());
+const refusal = startupRefusal(config);
+if (refusal) {
+  console.error(JSON.stringify({ level: "error", event: "refused_to_start", reason: refusal }));
+  Deno.exit(1);
+}
 const store = await openStoreFromSpec(config.store);
 const holder = processHolder();
 const transport = await openTransport(config, holder);
@@ -44,6 +51,7 @@ const executor = config.workers > 0 ? new WorkerPool(config.workers) : new InThr
 if (config.role === "worker") {
   const runs = new RunService(store, RUN_KINDS, seriesCodec, executor, {
     asyncSeconds: config.asyncSeconds,
+    wallSeconds: config.runWallSeconds,
   }, transport);
   await runs.startWorking(Math.max(1, config.workers));
   console.log(JSON.stringify({
@@ -74,6 +82,8 @@ if (config.role === "worker") {
         queue: transport.queue.engine,
         store: store.kind,
         workers: config.workers,
+        keys_required: config.adminKey !== null,
+        allowed_hosts: config.allowedHosts,
         startup_ms: Math.round(performance.now() - t0),
       }));
     },

@@ -12,3 +12,5 @@ export * from "./stats/mod.ts";
 export * from "./climate/mod.ts";
 export * from "./irradiance/mod.ts";
 export * from "./errors.ts";
+export * from "./cf/mod.ts";
+export * from "./field/mod.ts";

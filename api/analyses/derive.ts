@@ -7,14 +7,13 @@
  * @module
  */
 import type { RunKind, Task } from "../runs/kind.ts";
-import { TASKS as SHARED_TASKS } from "../workers/tasks.ts";
 
 /**
- * The worker tasks of all analyses by name, plus the shared ones. A name registered twice is a
- * programming error, reported at start-up.
+ * The worker tasks of all analyses by name. A name registered twice is a programming error,
+ * reported at start-up.
  */
 export function taskTable(kinds: readonly RunKind[]): Record<string, Task> {
-  const table: Record<string, Task> = { ...SHARED_TASKS };
+  const table: Record<string, Task> = {};
   for (const k of kinds) {
     for (const [name, fn] of Object.entries(k.tasks ?? {})) {
       if (table[name] && table[name] !== fn) {

@@ -7,10 +7,10 @@
  */
 import type { RunKind } from "../runs/kind.ts";
 import { smoothingKind } from "./smoothing/mod.ts";
-import { cyclesKind } from "../kinds/cycles.ts";
-import { spectraKind } from "../kinds/spectra.ts";
-import { cycleFitsKind } from "../kinds/cycle_fits.ts";
-import { cycleForecastsKind } from "../kinds/cycle_forecasts.ts";
+import { cyclesKind } from "./cycles/mod.ts";
+import { spectraKind } from "./spectra/mod.ts";
+import { cycleFitsKind } from "./cycle_fits/mod.ts";
+import { cycleForecastsKind } from "./cycle_forecasts/mod.ts";
 import { energyBalanceKind } from "./energy_balance/mod.ts";
 import { compositeKind } from "./composites/mod.ts";
 import { attributionKind } from "./attributions/mod.ts";

@@ -8,15 +8,13 @@
 import type { RunRecord, StoredSeries } from "../store/types.ts";
 import type { RunKind } from "../runs/kind.ts";
 import type { ChartSpec } from "./chart.ts";
-import { KIND_CHARTS, KIND_INPUTS } from "./kinds/mod.ts";
 import { defaultRunChart } from "./default_chart.ts";
 
-export type { KindChart } from "./run_common.ts";
 export { defaultRunChart };
 
 /** True when the chart of this run's analysis draws the run's input series too. */
-export function chartNeedsInputs(kind: RunKind | undefined, name: string): boolean {
-  return kind?.chart ? kind.chart.needsInputs === true : KIND_INPUTS.has(name);
+export function chartNeedsInputs(kind: RunKind | undefined): boolean {
+  return kind?.chart?.needsInputs === true;
 }
 
 /** The chart spec of a finished run: its analysis' chart when it fits, else the generic one. */
@@ -31,16 +29,6 @@ export function runChartSpec(
     if (parsed.success) {
       const spec = kind.chart.build(run, parsed.data, inputs);
       if (spec) return spec;
-    }
-    return defaultRunChart(run);
-  }
-  const special = KIND_CHARTS[run.kind];
-  if (special) {
-    try {
-      const spec = special(run, inputs);
-      if (spec) return spec;
-    } catch {
-      // A result shape this builder does not know: draw the generic chart instead.
     }
   }
   return defaultRunChart(run);

@@ -6,14 +6,8 @@
  */
 import type { RunRecord, StoredSeries } from "../store/types.ts";
 import type { OutputSeries } from "../runs/kind.ts";
-import type { ChartSpec, Layer } from "./chart.ts";
+import type { Layer } from "./chart.ts";
 import { strings } from "./read.ts";
-
-/**
- * A specialised chart builder: null when the result does not fit it. `inputs` holds the run's
- * input series when the kind asked for them (`KIND_INPUTS`), else is empty.
- */
-export type KindChart = (run: RunRecord, inputs: StoredSeries[]) => ChartSpec | null;
 
 /**
  * The input series of the given quantity and units as thin muted lines, to draw behind a

@@ -7,7 +7,8 @@
  *
  * A chunk job is idempotent: a chunk whose worker died is computed again by another and only
  * the first output is kept. Chunks of a run that ended (cancelled, failed, taken over) are
- * skipped; their rows are removed when the run's holder finishes or gives up.
+ * skipped; their rows are removed when the run's holder finishes or gives up, including the
+ * rows a dead holder left behind.
  *
  * @module
  */
@@ -28,6 +29,8 @@ export interface ChunkRouter {
     chunks: I[],
     isCancelled: () => boolean,
   ): Promise<O[]>;
+  /** Forget every chunk of a run (its holder finished, or took it over from a dead one). */
+  release(runId: string): Promise<void>;
   /** Compute chunk jobs here with `local` (worker role). */
   work(local: (task: string, input: unknown) => Promise<unknown>, concurrency: number): Promise<
     void
@@ -96,6 +99,10 @@ export class PgChunkRouter implements ChunkRouter {
     } finally {
       await this.sql`DELETE FROM sunlag_chunks WHERE batch = ${batch}`.catch(() => {});
     }
+  }
+
+  async release(runId: string): Promise<void> {
+    await this.sql`DELETE FROM sunlag_chunks WHERE run_id = ${runId}`.catch(() => {});
   }
 
   async work(

@@ -11,6 +11,12 @@ import type { RunRecord, Store } from "../store/types.ts";
 import type { RunService } from "../runs/service.ts";
 import type { OutputSeries } from "../runs/kind.ts";
 import { ProblemError } from "../problems.ts";
+import { RunIdParam } from "../schemas/ids.ts";
+import type { Config } from "../config.ts";
+import { principalOf } from "../auth/authenticate.ts";
+import { holderOf, isLimited, viewerOf } from "../auth/principal.ts";
+import { mustHoldRun, mustSeeRun, sharedCacheable } from "../auth/access.ts";
+import { checkStorage } from "../limits/quotas.ts";
 import {
   PageQuery,
   pageSchema,
@@ -23,6 +29,12 @@ import { outputToCsv } from "../export/csv.ts";
 import { wantsCsv } from "./format.ts";
 import { immutableHeaders, notModified } from "./cache.ts";
 import { ImmutableCache, serveRepresentation } from "./immutable_cache.ts";
+import {
+  CalendarQuery,
+  NETCDF_CONTENT,
+  runOutputNetcdfResponse,
+  wantsNetcdf,
+} from "../netcdf/http.ts";
 
 const FINAL = new Set(["succeeded", "failed", "cancelled"]);
 
@@ -31,11 +43,7 @@ export function runView(r: RunRecord) {
   return r;
 }
 
-const RunId = z.object({
-  id: z.string().regex(/^[0-9a-f-]{36}$/, "must be a run id (UUIDv7)").openapi({
-    param: { name: "id", in: "path" },
-  }),
-});
+const RunId = RunIdParam;
 
 async function mustGetRun(store: Store, id: string): Promise<RunRecord> {
   const r = await store.getRun(id);
@@ -43,7 +51,10 @@ async function mustGetRun(store: Store, id: string): Promise<RunRecord> {
   return r;
 }
 
-export function registerRunRoutes(app: App, deps: { store: Store; runs: RunService }): void {
+export function registerRunRoutes(
+  app: App,
+  deps: { store: Store; runs: RunService; config?: Config },
+): void {
   const { store, runs } = deps;
   const runCache = new ImmutableCache();
   // The kinds this service offers (the registry, or the kinds injected into the app).
@@ -79,7 +90,7 @@ export function registerRunRoutes(app: App, deps: { store: Store; runs: RunServi
     }),
     async (c) => {
       const q = c.req.valid("query");
-      const page = await store.listRuns(q);
+      const page = await store.listRuns({ ...q, viewer: viewerOf(principalOf(c)) });
       return c.json({ ...page, limit: q.limit, offset: q.offset }, 200);
     },
   );
@@ -98,9 +109,12 @@ export function registerRunRoutes(app: App, deps: { store: Store; runs: RunServi
       },
     }),
     async (c) => {
-      // A succeeded run never changes: answer repeated GETs (and 304s) from memory.
+      // A succeeded run never changes: answer repeated GETs (and 304s) from memory, once the
+      // caller is known to see it.
+      const holding = await mustSeeRun(store, principalOf(c), c.req.valid("param").id);
+      const shared = sharedCacheable(principalOf(c), holding);
       const hit = runCache.get(c.req.valid("param").id);
-      if (hit) return serveRepresentation(c, hit) as never;
+      if (hit) return serveRepresentation(c, hit, shared) as never;
       const run = await mustGetRun(store, c.req.valid("param").id);
       if (FINAL.has(run.status)) {
         const etag = `"run-${run.id}-${run.status}-${run.result_digest ?? "none"}"`;
@@ -111,11 +125,11 @@ export function registerRunRoutes(app: App, deps: { store: Store; runs: RunServi
             headers: { "Content-Type": "application/json" },
           };
           runCache.set(run.id, rep);
-          return serveRepresentation(c, rep) as never;
+          return serveRepresentation(c, rep, shared) as never;
         }
-        const nm = notModified(c, etag);
+        const nm = notModified(c, etag, shared);
         if (nm) return nm;
-        for (const [k, v] of Object.entries(immutableHeaders(etag))) c.header(k, v);
+        for (const [k, v] of Object.entries(immutableHeaders(etag, shared))) c.header(k, v);
       } else {
         c.header("Cache-Control", "no-store");
       }
@@ -149,10 +163,11 @@ export function registerRunRoutes(app: App, deps: { store: Store; runs: RunServi
             },
           },
         },
-        ...problems(404, 409, 422),
+        ...problems(401, 404, 409, 422, 429),
       },
     }),
     async (c) => {
+      await mustSeeRun(store, principalOf(c), c.req.valid("param").id);
       const run = await mustGetRun(store, c.req.valid("param").id);
       const { result: _r, ...rep } = await runs.replay(run);
       return c.json(rep as never, 200);
@@ -164,17 +179,18 @@ export function registerRunRoutes(app: App, deps: { store: Store; runs: RunServi
       method: "post",
       path: "/v1/runs/{id}/cancel",
       tags: ["Runs"],
-      summary: "Stop a queued or running run",
+      summary: "Stop a queued or running run (its owner or an admin)",
       request: { params: RunId },
       responses: {
         200: {
           description: "The cancelled run",
           content: { "application/json": { schema: RunSchema } },
         },
-        ...problems(404, 409),
+        ...problems(401, 403, 404, 409),
       },
     }),
     async (c) => {
+      await mustHoldRun(store, principalOf(c), c.req.valid("param").id, "cancel");
       const r = await runs.cancel(c.req.valid("param").id);
       if (!r) throw new ProblemError("not-found", `No run has id ${c.req.valid("param").id}`);
       return c.json(runView(r), 200);
@@ -199,6 +215,7 @@ export function registerRunRoutes(app: App, deps: { store: Store; runs: RunServi
     // deno-lint-ignore no-explicit-any
     (async (c: any) => {
       const id = c.req.valid("param").id;
+      await mustSeeRun(store, principalOf(c), id);
       const first = await mustGetRun(store, id);
       return streamSSE(c, async (stream) => {
         const send = (event: string, data: unknown) =>
@@ -250,11 +267,14 @@ export function registerRunRoutes(app: App, deps: { store: Store; runs: RunServi
       method: "get",
       path: "/v1/runs/{id}/outputs/{name}",
       tags: ["Runs"],
-      summary:
-        "One series-like output of a run, as JSON or CSV (`Accept: text/csv` or `?format=csv`)",
+      summary: "One series-like output of a run, as JSON, CSV (`Accept: text/csv` or " +
+        "`?format=csv`) or NetCDF-CF (`Accept: application/x-netcdf` or `?format=netcdf`)",
       request: {
         params: OutputParams,
-        query: z.object({ format: z.enum(["json", "csv"]).optional() }),
+        query: z.object({
+          format: z.enum(["json", "csv", "netcdf"]).optional(),
+          calendar: CalendarQuery,
+        }),
       },
       responses: {
         200: {
@@ -262,15 +282,18 @@ export function registerRunRoutes(app: App, deps: { store: Store; runs: RunServi
           content: {
             "application/json": { schema: z.record(z.string(), z.unknown()) },
             "text/csv": { schema: z.string() },
+            ...NETCDF_CONTENT,
           },
         },
         304: { description: "Not modified" },
-        ...problems(404),
+        ...problems(404, 409, 422),
       },
     }),
     // deno-lint-ignore no-explicit-any
     (async (c: any) => {
       const { id, name } = c.req.valid("param");
+      const holding = await mustSeeRun(store, principalOf(c), id);
+      const shared = sharedCacheable(principalOf(c), holding);
       const run = await mustGetRun(store, id);
       const o = (run.result?.outputs as Record<string, OutputSeries> | undefined)?.[name];
       if (!o) {
@@ -281,11 +304,12 @@ export function registerRunRoutes(app: App, deps: { store: Store; runs: RunServi
             (names.length ? `; outputs: ${names.join(", ")}` : "; it has no series outputs"),
         );
       }
+      if (wantsNetcdf(c)) return runOutputNetcdfResponse(c, run, name, o);
       const csv = wantsCsv(c);
       const etag = `"run-${run.id}-${run.result_digest}-${name}-${csv ? "csv" : "json"}"`;
-      const nm = notModified(c, etag);
+      const nm = notModified(c, etag, shared);
       if (nm) return nm;
-      for (const [k, v] of Object.entries(immutableHeaders(etag))) c.header(k, v);
+      for (const [k, v] of Object.entries(immutableHeaders(etag, shared))) c.header(k, v);
       c.header("Vary", "Accept");
       if (csv) {
         c.header("Content-Type", "text/csv; charset=utf-8");
@@ -319,6 +343,8 @@ export function registerRunRoutes(app: App, deps: { store: Store; runs: RunServi
     }),
     async (c) => {
       const { id, name } = c.req.valid("param");
+      const principal = principalOf(c);
+      await mustSeeRun(store, principal, id);
       const run = await mustGetRun(store, id);
       if (run.status !== "succeeded") {
         throw new ProblemError(
@@ -326,7 +352,11 @@ export function registerRunRoutes(app: App, deps: { store: Store; runs: RunServi
           `Run ${id} has status ${run.status}; it has no outputs yet`,
         );
       }
-      const sid = await runs.saveOutput(run, name);
+      if (isLimited(principal) && deps.config) {
+        const o = (run.result?.outputs as Record<string, OutputSeries> | undefined)?.[name];
+        await checkStorage(store, principal.owner!, (o?.time.length ?? 0) * 24, deps.config.quotas);
+      }
+      const sid = await runs.saveOutput(run, name, holderOf(principal));
       c.header("Location", `/v1/series/${sid}`);
       return c.json({ id: sid, derived_from: run.id }, 201);
     },

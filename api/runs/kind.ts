@@ -64,7 +64,7 @@ export interface RunContext {
   /** True once the run was cancelled; long loops should check and throw `new CancelledError()`. */
   cancelled(): boolean;
   /**
-   * Map a registered worker task (see `api/workers/tasks.ts`) over chunks of work, on the
+   * Map a worker task (declared in an analysis' `tasks`) over chunks of work, on the
    * service's pool of Web Workers when there is one, else in this thread. Results come back in
    * input order, so the answer never depends on the number of workers. Typed arrays inside
    * inputs are transferred, not copied, when `transfer` is true.

@@ -10,7 +10,8 @@
  * @module
  */
 import { uuidv7 } from "uuidv7";
-import type { RunRecord, Store, StoredSeries } from "../store/types.ts";
+import type { HolderSpec, RunRecord, Store, StoredSeries, Viewer } from "../store/types.ts";
+import { DEFAULT_HOLDER } from "../store/common.ts";
 import { CancelledError, InputProblem, type RunContext, type RunKind, type Task } from "./kind.ts";
 import type { OutputSeries, RunResult } from "./kind.ts";
 import { SERIES_ID_PATTERN } from "../schemas/series_ref.ts";
@@ -95,6 +96,7 @@ export function makeContext(
   hooks: { progress(f: number): void; isCancelled(): boolean },
   parallel: <I, O>(task: string, chunks: I[]) => Promise<O[]>,
 ): RunContext {
+  let reported = 0;
   return {
     series(id) {
       const s = inputs.series[id];
@@ -134,7 +136,9 @@ export function makeContext(
       }
       return parsed.data;
     },
-    progress: (f) => hooks.progress(Math.min(1, Math.max(0, f))),
+    // Progress never goes back (a kind may report 0.05 + 0.9·k/n, then 0.95, and float
+    // rounding makes the second smaller than the first).
+    progress: (f) => hooks.progress(reported = Math.max(reported, Math.min(1, Math.max(0, f)))),
     cancelled: () => hooks.isCancelled(),
     parallel: (task, chunks) => parallel(task, chunks),
   };
@@ -201,6 +205,42 @@ export async function resultDigest(result: unknown): Promise<string> {
 interface Active {
   cancelled: boolean;
   started: number;
+  /** A final status was recorded (cancel, time limit, or the outcome): write no other. */
+  final: boolean;
+}
+
+/** A run's place under its owner's quotas (api/limits/quotas.ts). */
+export interface RunTicket {
+  /** Resolves when the owner may start computing (its concurrent-runs quota). */
+  slot(): Promise<void>;
+  /** The run stopped after computing for `seconds` (0 when it never started). */
+  done(seconds: number): void;
+}
+
+/** Admits runs under per-owner quotas. */
+export interface RunAdmission {
+  /** Admit a run of `owner`; throws a 429 ProblemError when a quota is exceeded. */
+  admit(owner: string, mode: "sync" | "async"): RunTicket;
+}
+
+/** Who submits a run, and whether quotas apply. */
+export interface SubmitAccess {
+  /** Only inputs this viewer may see can be used; none given = any (internal use). */
+  viewer?: Viewer;
+  /** The run, its inline inputs and saved outputs are held by this holder. */
+  holder?: HolderSpec;
+  /** True when the owner is under quotas. */
+  limited?: boolean;
+}
+
+/** The problem of a run stopped by the wall-time limit. */
+export function timeLimitProblem(seconds: number): ProblemError {
+  return new ProblemError(
+    "time-limit",
+    `The run was still computing after the wall-time limit of ${seconds} s ` +
+      "(SUNLAG_RUN_WALL_SECONDS) and was stopped; ask for less work (fewer surrogates, a " +
+      "shorter period or a coarser grid)",
+  );
 }
 
 /** Seconds a worker's lease on a run lasts without renewal (renewed every third of it). */
@@ -238,6 +278,8 @@ export interface SubmitOutcome {
 export class RunService {
   /** Runs this process is computing. */
   readonly active = new Map<string, Active>();
+  /** Runs this process accepted and queued: their holder and quota ticket, until computed. */
+  readonly #accepted = new Map<string, { holder: HolderSpec; ticket: RunTicket | null }>();
   readonly transport: RunTransport;
 
   constructor(
@@ -245,7 +287,13 @@ export class RunService {
     readonly kinds: readonly RunKind[],
     readonly codec: SeriesCodec,
     readonly executor: ComputeExecutor,
-    readonly options: { asyncSeconds: number },
+    readonly options: {
+      asyncSeconds: number;
+      /** Wall-time limit of one run's computation, seconds. @default Infinity */
+      wallSeconds?: number;
+      /** Per-owner run quotas; none = unlimited. */
+      admission?: RunAdmission;
+    },
     transport?: Partial<RunTransport>,
   ) {
     this.transport = {
@@ -265,12 +313,19 @@ export class RunService {
     await this.transport.queue.work((id) => this.process(id));
   }
 
+  get #wallMs(): number {
+    return (this.options.wallSeconds ?? Infinity) * 1000;
+  }
+
   kindOf(name: string): RunKind | undefined {
     return this.kinds.find((k) => k.kind === name);
   }
 
-  /** Resolve inline series and load every referenced series and run. */
-  async prepare(kind: RunKind, params: Record<string, unknown>) {
+  /**
+   * Resolve inline series and load every referenced series and run. With a viewer, a series
+   * or run it may not see is reported exactly like one that is not stored.
+   */
+  async prepare(kind: RunKind, params: Record<string, unknown>, viewer?: Viewer) {
     const inline = new Map<string, StoredSeries>();
     const normalised = await extractInline(params, [], this.codec, inline) as Record<
       string,
@@ -280,13 +335,15 @@ export class RunService {
     const series: Record<string, StoredSeries> = {};
     const missing: { pointer: string; message: string }[] = [];
     for (const [id, pointer] of ids) {
-      const s = inline.get(id) ?? await this.store.getSeries(id);
+      const visible = inline.has(id) || !viewer || await this.store.seriesHolding(id, viewer);
+      const s = inline.get(id) ?? (visible ? await this.store.getSeries(id) : null);
       if (!s) missing.push({ pointer, message: `no stored series has id ${id}` });
       else series[id] = s;
     }
     const runs: Record<string, RunRecord> = {};
     for (const rid of kind.runRefs?.(normalised) ?? []) {
-      const r = await this.store.getRun(rid);
+      const visible = !viewer || await this.store.runHolding(rid, viewer);
+      const r = visible ? await this.store.getRun(rid) : null;
       if (!r) {
         missing.push({ pointer: findPointer(normalised, rid), message: `no run has id ${rid}` });
       } else if (r.status !== "succeeded") {
@@ -312,9 +369,10 @@ export class RunService {
   async submit(
     kind: RunKind,
     rawParams: Record<string, unknown>,
-    opts: { preferAsync: boolean },
+    opts: { preferAsync: boolean } & SubmitAccess,
   ): Promise<SubmitOutcome> {
-    const prep = await this.prepare(kind, rawParams);
+    const holder = opts.holder ?? DEFAULT_HOLDER;
+    const prep = await this.prepare(kind, rawParams, opts.viewer);
     const now = new Date().toISOString();
     const seed = typeof prep.params.seed === "number" ? prep.params.seed : null;
     const run: RunRecord = {
@@ -337,36 +395,75 @@ export class RunService {
     };
     const estimate = kind.estimateSeconds?.(prep.params as never) ?? 0;
     const isAsync = opts.preferAsync || estimate > this.options.asyncSeconds;
+    const admission = opts.limited ? this.options.admission : undefined;
+    const ticket = admission?.admit(holder.owner, isAsync ? "async" : "sync") ?? null;
     if (isAsync) {
-      for (const s of prep.inline.values()) await this.store.putSeries(s);
-      await this.store.putRun(run);
-      await this.transport.queue.enqueue(run.id);
+      try {
+        for (const s of prep.inline.values()) await this.store.putSeries(s, holder);
+        await this.store.putRun(run, holder);
+        this.#accepted.set(run.id, { holder, ticket });
+        await this.transport.queue.enqueue(run.id);
+      } catch (e) {
+        this.#accepted.delete(run.id);
+        ticket?.done(0);
+        throw e;
+      }
       return { status: 202, run, saved_series: [] };
     }
-    const done = await this.computeRun(kind, run, prep);
+    let done: RunRecord;
+    const t0 = performance.now();
+    try {
+      await ticket?.slot();
+      done = await this.computeRun(kind, run, prep);
+    } finally {
+      ticket?.done((performance.now() - t0) / 1000);
+    }
     // Only a successful synchronous run is stored (with its inline inputs).
-    for (const s of prep.inline.values()) await this.store.putSeries(s);
-    await this.store.putRun(done);
-    const saved = await this.saveOutputs(kind, done);
+    for (const s of prep.inline.values()) await this.store.putSeries(s, holder);
+    await this.store.putRun(done, holder);
+    const saved = await this.saveOutputs(kind, done, holder);
     return { status: 201, run: done, saved_series: saved };
   }
 
-  /** Compute a result from params and loaded inputs, without storing anything. */
+  /**
+   * Compute a result from params and loaded inputs, without storing anything. A computation
+   * still going after the wall-time limit is asked to stop and answered with a time-limit
+   * problem (computed in this thread, it is refused once it returns).
+   */
   async computeResult(
     kind: RunKind,
     params: Record<string, unknown>,
     inputs: { series: Record<string, StoredSeries>; runs: Record<string, RunRecord> },
   ): Promise<{ result: Record<string, unknown>; digest: string }> {
     let result: RunResult;
+    let stop = false;
+    let timer: ReturnType<typeof setTimeout> | undefined;
+    const wallMs = this.#wallMs;
+    const t0 = performance.now();
     try {
-      result = await this.executor.compute(kind, params, inputs, {
+      const work = this.executor.compute(kind, params, inputs, {
         progress: () => {},
-        isCancelled: () => false,
+        isCancelled: () => stop,
         onStart: () => {},
       });
+      if (Number.isFinite(wallMs)) {
+        const late = new Promise<never>((_, reject) => {
+          timer = setTimeout(() => {
+            stop = true;
+            reject(timeLimitProblem(this.options.wallSeconds!));
+          }, wallMs);
+        });
+        work.catch(() => {});
+        result = await Promise.race([work, late]);
+      } else {
+        result = await work;
+      }
     } catch (e) {
       throw asProblem(e);
+    } finally {
+      clearTimeout(timer);
     }
+    if (performance.now() - t0 > wallMs) throw timeLimitProblem(this.options.wallSeconds!);
     const plain = toPlainJson(result) as Record<string, unknown>;
     return { result: plain, digest: await resultDigest(plain) };
   }
@@ -394,47 +491,97 @@ export class RunService {
    * left alone; one leased by a live worker elsewhere throws `LeaseHeldError` so the queue
    * delivers it again later. Every write is conditional on still holding the lease, so a
    * duplicated or recovered job never overwrites a newer state and writes its result once.
+   * The owner's quota ticket (when the run was accepted by this process) holds a concurrency
+   * slot while it computes; the wall-time limit fails it with its reason.
    */
   async process(runId: string): Promise<void> {
     const { store } = this;
-    const { events, holder } = this.transport;
-    const run = await store.claimRun(runId, holder, LEASE_SECONDS);
-    if (!run) {
-      const now = await store.getRun(runId);
-      if (!now || TERMINAL.has(now.status)) return;
-      throw new LeaseHeldError(runId);
+    const { holder: lessee } = this.transport;
+    const accepted = this.#accepted.get(runId);
+    this.#accepted.delete(runId);
+    const ticket = accepted?.ticket ?? null;
+    let startedAt = 0;
+    try {
+      await ticket?.slot();
+      const run = await store.claimRun(runId, lessee, LEASE_SECONDS);
+      if (!run) {
+        const now = await store.getRun(runId);
+        if (!now || TERMINAL.has(now.status)) return;
+        throw new LeaseHeldError(runId);
+      }
+      startedAt = Date.now();
+      await this.#processLeased(run, accepted?.holder ?? await this.#ownerOf(runId));
+    } finally {
+      ticket?.done(startedAt ? (Date.now() - startedAt) / 1000 : 0);
     }
-    const active: Active = { cancelled: false, started: Date.now() };
+  }
+
+  /** The holder of a run accepted by another process (its owner and visibility). */
+  async #ownerOf(runId: string): Promise<HolderSpec> {
+    const h = await this.store.runHolding(runId, { owner: null, group: null, admin: true });
+    return h ? { owner: h.owner, visibility: h.visibility } : DEFAULT_HOLDER;
+  }
+
+  async #processLeased(run: RunRecord, holder: HolderSpec): Promise<void> {
+    const { store } = this;
+    const { events, holder: lessee } = this.transport;
+    const runId = run.id;
+    const active: Active = { cancelled: false, started: Date.now(), final: false };
     this.active.set(runId, active);
     const stop = events.subscribe(runId, (e) => {
       if (e.type === "status" && e.status === "cancelled") active.cancelled = true;
     });
     const renew = setInterval(() => {
-      store.renewLease(runId, holder, LEASE_SECONDS).then((held) => {
+      store.renewLease(runId, lessee, LEASE_SECONDS).then((held) => {
         // Cancelled (the state left `running`) or taken over after a stall: stop computing.
         if (!held) active.cancelled = true;
       }, () => {});
     }, (LEASE_SECONDS * 1000) / 3);
     const publish = (e: RunEvent) => events.publish(e);
-    try {
-      const kind = this.kindOf(run.kind);
-      if (!kind) throw new ProblemError("conflict", `run kind "${run.kind}" no longer exists`);
-      const prep = await this.prepare(kind, run.params);
-      await this.#computeLeased(kind, run, prep, active, publish);
-    } catch (e) {
-      const cancelled = active.cancelled || e instanceof CancelledError;
-      const status = cancelled ? "cancelled" : "failed";
-      const written = await store.updateLeased(runId, holder, {
+    const fail = async (status: "failed" | "cancelled", error: Record<string, unknown> | null) => {
+      if (active.final) return;
+      active.final = true;
+      const written = await store.updateLeased(runId, lessee, {
         status,
-        error: cancelled ? null : asProblem(e).problem,
+        error,
         eta_seconds: null,
         updated_at: new Date().toISOString(),
       }).catch(() => false);
       if (written) publish({ type: "status", id: runId, status, progress: 0 });
+    };
+    const wallMs = this.#wallMs;
+    const limit = Number.isFinite(wallMs)
+      ? setTimeout(() => {
+        active.cancelled = true;
+        fail("failed", timeLimitProblem(this.options.wallSeconds!).problem).catch(() => {});
+      }, wallMs)
+      : undefined;
+    try {
+      const kind = this.kindOf(run.kind);
+      if (!kind) throw new ProblemError("conflict", `run kind "${run.kind}" no longer exists`);
+      const prep = await this.prepare(kind, run.params);
+      const t0 = performance.now();
+      await this.#computeLeased(kind, run, prep, active, publish, holder, () => {
+        // Computed in this thread, the timer could not fire before the computation returned.
+        if (performance.now() - t0 > wallMs) {
+          active.cancelled = true;
+          return timeLimitProblem(this.options.wallSeconds!);
+        }
+        return null;
+      });
+    } catch (e) {
+      if (e instanceof ProblemError && e.problem.type?.toString().endsWith("time-limit")) {
+        await fail("failed", e.problem);
+      } else {
+        const cancelled = active.cancelled || e instanceof CancelledError;
+        await fail(cancelled ? "cancelled" : "failed", cancelled ? null : asProblem(e).problem);
+      }
     } finally {
+      clearTimeout(limit);
       clearInterval(renew);
       stop();
       this.active.delete(runId);
+      await this.transport.chunks?.release(runId);
     }
   }
 
@@ -444,6 +591,8 @@ export class RunService {
     prep: { series: Record<string, StoredSeries>; runs: Record<string, RunRecord> },
     active: Active,
     publish: (e: RunEvent) => void,
+    owner: HolderSpec,
+    overTime: () => ProblemError | null,
   ): Promise<void> {
     const { store } = this;
     const { holder } = this.transport;
@@ -455,6 +604,7 @@ export class RunService {
         publish({ type: "status", id: run.id, status: "running", progress: 0 });
       },
       progress: (f) => {
+        if (active.final) return;
         const elapsed = (Date.now() - startedAt) / 1000;
         const eta = f > 0.01 ? Math.max(0, elapsed * (1 - f) / f) : null;
         publish({ type: "progress", id: run.id, status: "running", progress: f, eta_seconds: eta });
@@ -475,9 +625,13 @@ export class RunService {
         ? (task, chunks) => this.transport.chunks!.map(run.id, task, chunks, () => active.cancelled)
         : undefined,
     });
+    const late = overTime();
+    if (late) throw late;
     if (active.cancelled) throw new CancelledError();
     const plain = toPlainJson(result) as Record<string, unknown>;
     const digest = await resultDigest(plain);
+    if (active.final) return;
+    active.final = true;
     const written = await store.updateLeased(run.id, holder, {
       status: "succeeded",
       progress: 1,
@@ -488,30 +642,38 @@ export class RunService {
     });
     if (!written) return;
     const finished = await store.getRun(run.id);
-    if (finished) await this.saveOutputs(kind, finished);
+    if (finished) await this.saveOutputs(kind, finished, owner);
     publish({ type: "status", id: run.id, status: "succeeded", progress: 1 });
   }
 
   /** Store the kind's auto-saved outputs as series derived from the run. */
-  async saveOutputs(kind: RunKind, run: RunRecord): Promise<{ output: string; id: string }[]> {
+  async saveOutputs(
+    kind: RunKind,
+    run: RunRecord,
+    holder: HolderSpec = DEFAULT_HOLDER,
+  ): Promise<{ output: string; id: string }[]> {
     const saved: { output: string; id: string }[] = [];
     const outputs = (run.result?.outputs ?? {}) as Record<string, OutputSeries>;
     for (const name of kind.autoSave ?? []) {
       const o = outputs[name];
       if (!o) continue;
-      saved.push({ output: name, id: await this.saveOutput(run, name) });
+      saved.push({ output: name, id: await this.saveOutput(run, name, holder) });
     }
     return saved;
   }
 
-  /** Save one output of a finished run as a stored series; returns its id. */
-  async saveOutput(run: RunRecord, name: string): Promise<string> {
+  /** Save one output of a finished run as a stored series held by `holder`; returns its id. */
+  async saveOutput(
+    run: RunRecord,
+    name: string,
+    holder: HolderSpec = DEFAULT_HOLDER,
+  ): Promise<string> {
     const o = (run.result?.outputs as Record<string, OutputSeries> | undefined)?.[name];
     if (!o) {
       throw new ProblemError("not-found", `run ${run.id} has no output named "${name}"`);
     }
     const s = await this.codec.fromOutput(o, run.id);
-    await this.store.putSeries(s);
+    await this.store.putSeries(s, holder);
     return s.id;
   }
 

@@ -54,3 +54,11 @@ export class SchemaMismatchError extends Error {
     this.name = "SchemaMismatchError";
   }
 }
+
+/** `putOwner` was given an id that is already taken. */
+export class DuplicateOwnerError extends Error {
+  constructor(readonly ownerId: string) {
+    super(`Cannot add owner: an owner with id "${ownerId}" already exists`);
+    this.name = "DuplicateOwnerError";
+  }
+}

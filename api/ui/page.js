@@ -27,7 +27,18 @@ import {
   table,
   when,
 } from "./dom.js";
-import { call, deref, objectSchema, openApi, problemBox, quantities } from "./service.js";
+import {
+  apiKey,
+  authFetch,
+  call,
+  deref,
+  objectSchema,
+  openApi,
+  problemBox,
+  quantities,
+  setApiKey,
+  whenUnauthorized,
+} from "./service.js";
 import { buildFields, collect, markFields, nonNull } from "./forms.js";
 
 /** @typedef {import("./snippets.js").RequestSpec} RequestSpec */
@@ -196,7 +207,7 @@ async function drawChart(box) {
   const url = `${path}?width=${width}&height=${height}&theme=${effectiveTheme()}`;
   let res;
   try {
-    res = await fetch(url);
+    res = await authFetch(url);
   } catch (e) {
     box.replaceChildren(h("p", { class: "muted" }, `Chart unavailable: ${e}`));
     return;
@@ -217,6 +228,25 @@ async function drawChart(box) {
   sanitizeSvg(svg);
   box.replaceChildren(document.importNode(svg, true));
   box.dataset.drawn = "true";
+}
+
+/**
+ * A download link's click with a key set: a plain link cannot send the key, so fetch the file
+ * with it and save that.
+ * @param {MouseEvent} e
+ */
+async function keyedDownload(e) {
+  if (!apiKey()) return;
+  e.preventDefault();
+  const a = /** @type {HTMLAnchorElement} */ (e.currentTarget);
+  const res = await authFetch(a.href);
+  if (!res.ok) return;
+  const url = URL.createObjectURL(await res.blob());
+  const tmp = h("a", { href: url, download: a.download || "download" });
+  document.body.append(tmp);
+  tmp.click();
+  tmp.remove();
+  setTimeout(() => URL.revokeObjectURL(url), 10_000);
 }
 
 /**
@@ -512,7 +542,12 @@ async function seriesView(gen, id) {
       ),
       h(
         "a",
-        { class: "button ghost", href: `${path}?format=csv`, download: "series.csv" },
+        {
+          class: "button ghost",
+          href: `${path}?format=csv`,
+          download: "series.csv",
+          onclick: keyedDownload,
+        },
         "Download CSV",
       ),
       h("a", { class: "button ghost", href: path }, "JSON"),
@@ -544,7 +579,11 @@ async function seriesView(gen, id) {
     h(
       "p",
       null,
-      h("a", { href: `${path}?format=csv`, download: "series.csv" }, "All points as CSV"),
+      h(
+        "a",
+        { href: `${path}?format=csv`, download: "series.csv", onclick: keyedDownload },
+        "All points as CSV",
+      ),
     ),
     snippets([req, csvReq, chartReq]).el,
   );
@@ -743,7 +782,7 @@ function outputTable(runId, name, o) {
     h(
       "div",
       { class: "actions" },
-      h("a", { href, download: `${name}.csv` }, `All ${n} rows as CSV`),
+      h("a", { href, download: `${name}.csv`, onclick: keyedDownload }, `All ${n} rows as CSV`),
       saveButton(runId, name),
     ),
   );
@@ -992,17 +1031,18 @@ function liveProgress(gen, run) {
       text.textContent = `${d.status ?? "running"} · ${Math.round(d.progress * 100)} %${eta}`;
     }
     if (FINAL.has(d.status)) {
-      es.close();
+      es?.close();
       finish();
     }
   };
-  const es = new EventSource(`/v1/runs/${run.id}/events`);
-  es.addEventListener("progress", onEvent);
-  es.addEventListener("status", onEvent);
+  // An EventSource cannot send the key: with a key, the page polls the run instead.
+  const es = apiKey() ? null : new EventSource(`/v1/runs/${run.id}/events`);
+  es?.addEventListener("progress", onEvent);
+  es?.addEventListener("status", onEvent);
   // If the stream drops, fall back to polling the run until it finishes.
-  es.onerror = () => {
+  const poller = () => {
     if (done) return;
-    es.close();
+    es?.close();
     const poll = setInterval(async () => {
       const r = await call({ method: "GET", path: `/v1/runs/${run.id}` });
       if (r.ok) onEvent(new MessageEvent("status", { data: JSON.stringify(r.data) }));
@@ -1013,9 +1053,11 @@ function liveProgress(gen, run) {
     }, 1000);
     cleanups.push(() => clearInterval(poll));
   };
+  if (es) es.onerror = poller;
+  else poller();
   cleanups.push(() => {
     done = true;
-    es.close();
+    es?.close();
   });
   return box;
 }
@@ -1745,5 +1787,54 @@ matchMedia("(prefers-color-scheme: dark)").addEventListener(
   () => theme === "auto" && redrawCharts(),
 );
 
+// ---------------------------------------------------------------------------------------------
+// API key: asked for when the instance requires one, kept for this tab only
+
+const keyButton = /** @type {HTMLButtonElement} */ (document.getElementById("key"));
+const keyDialog = /** @type {HTMLDialogElement} */ (document.getElementById("key-dialog"));
+const keyForm = /** @type {HTMLFormElement} */ (document.getElementById("key-form"));
+const keyInput = /** @type {HTMLInputElement} */ (document.getElementById("key-input"));
+const keyMessage = /** @type {HTMLElement} */ (document.getElementById("key-message"));
+
+/** Show who the page acts as, from `GET /v1/me`. */
+async function showIdentity() {
+  const me = await call({ method: "GET", path: "/v1/me" });
+  if (!me.ok) {
+    keyButton.textContent = "API key…";
+    return me;
+  }
+  keyButton.hidden = !me.data.keys_required && !apiKey();
+  keyButton.textContent = me.data.owner ? `Key: ${me.data.owner} (${me.data.role})` : "API key…";
+  return me;
+}
+
+/** @param {string} message */
+function askForKey(message) {
+  keyMessage.textContent = message;
+  keyInput.value = "";
+  if (!keyDialog.open) keyDialog.showModal();
+}
+
+keyButton.addEventListener("click", () =>
+  askForKey(
+    apiKey()
+      ? "This tab uses a key. Give another, or clear the field to forget it."
+      : "This instance requires an API key for anything not public. Ask its admin for one.",
+  ));
+keyForm.addEventListener("submit", async (e) => {
+  e.preventDefault();
+  setApiKey(keyInput.value.trim());
+  keyDialog.close();
+  await showIdentity();
+  render(true);
+});
+document.getElementById("key-cancel")?.addEventListener("click", () => keyDialog.close());
+whenUnauthorized((detail) => askForKey(detail));
+
 addEventListener("hashchange", () => render(true));
+showIdentity().then((me) => {
+  if (me.ok && me.data.keys_required && !apiKey()) {
+    askForKey("This instance requires an API key; without one you see public items only.");
+  }
+});
 render();

@@ -18,7 +18,7 @@
  * @module
  */
 import { quantileSorted } from "d3-array";
-import { randomStream } from "../random/random_stream.ts";
+import { type RandomStream, randomStream } from "../random/random_stream.ts";
 import { InputError } from "../errors.ts";
 
 /** Options of {@link superposedEpoch}. */
@@ -95,6 +95,49 @@ function compositeOf(
     }
   }
   for (let j = 0; j < out.length; j++) out[j] = count[j] > 0 ? out[j] / count[j] : NaN;
+}
+
+/**
+ * Draw K random epochs in [lo, hi] at least `spacing` samples apart, uniformly among such
+ * sets: K sorted uniform positions in [0, hi − lo − (K − 1)·spacing], the i-th shifted by
+ * lo + i·spacing (the random-epoch null of Haurwitz & Brier 1981 with the observed epochs'
+ * smallest spacing kept). Draws exactly K integers from the stream.
+ *
+ * @param stream the random stream of this set
+ * @param count number of epochs K
+ * @param lo smallest allowed epoch index
+ * @param hi largest allowed epoch index
+ * @param spacing smallest distance between neighbouring epochs, ≥ 0
+ * @param out receives the K epochs, ascending
+ * @throws {RangeError} when there is no room for K epochs that far apart
+ * @example
+ * ```ts
+ * import { randomSpacedEpochs } from "./superposed_epoch.ts";
+ * import { type RandomStream, randomStream } from "../random/random_stream.ts";
+ * import assert from "node:assert/strict";
+ * const e = new Array<number>(3);
+ * randomSpacedEpochs(randomStream(1, 0), 3, 10, 100, 30, e);
+ * assert.ok(e[0] >= 10 && e[2] <= 100 && e[1] - e[0] >= 30 && e[2] - e[1] >= 30);
+ * ```
+ */
+export function randomSpacedEpochs(
+  stream: RandomStream,
+  count: number,
+  lo: number,
+  hi: number,
+  spacing: number,
+  out: number[],
+): void {
+  const span = hi - lo - (count - 1) * spacing;
+  if (span < 0) {
+    throw new RangeError(
+      `Cannot draw random epochs: no room for ${count} epochs ${spacing} samples apart in ${lo}..${hi}`,
+    );
+  }
+  for (let i = 0; i < count; i++) out[i] = stream.int(0, span);
+  out.length = count;
+  out.sort((a, b) => a - b);
+  for (let i = 0; i < count; i++) out[i] = lo + out[i] + i * spacing;
 }
 
 /**
@@ -224,9 +267,7 @@ export function superposedEpoch(
   const rnd = new Array<number>(K);
   for (let r = 0; r < R; r++) {
     const st = randomStream(options.seed, 2 * r + 1);
-    for (let i = 0; i < K; i++) rnd[i] = st.int(0, span);
-    rnd.sort((a, b) => a - b);
-    for (let i = 0; i < K; i++) rnd[i] = lo + rnd[i] + i * g;
+    randomSpacedEpochs(st, K, lo, hi, g, rnd);
     compositeOf(x, rnd, before, after, baseline, bc, bn);
     let mx = 0;
     for (let j = 0; j < w; j++) {

@@ -6,6 +6,8 @@
  * @module
  */
 
+import { InputError } from "../errors.ts";
+
 /** One turning point of the smoothed series. */
 export interface Extremum {
   kind: "minimum" | "maximum";
@@ -34,7 +36,7 @@ export interface CycleExtremaOptions {
   /**
    * Shortest time between two minima, years; of two candidates closer than this, the lower
    * one is kept.
-   * @default 7 (solar cycles last 9.0–13.6 years: shared/SCIENCE.md §5)
+   * @default 7 (solar cycles last about 9 to 14 years: Hathaway 2010, Living Rev. Sol. Phys. 7, 1)
    */
   minSeparation?: number;
   /**
@@ -42,6 +44,29 @@ export interface CycleExtremaOptions {
    * @default 0.1 × (max − min of the smoothed series)
    */
   prominence?: number;
+}
+
+/**
+ * The default prominence threshold of {@link findCycleExtrema}: a tenth of the range of the
+ * finite values (common practice).
+ *
+ * @param value smoothed values (NaN = missing), input units
+ * @returns 0.1 × (max − min), input units (−Infinity without finite values)
+ * @example
+ * ```ts
+ * import { defaultCycleProminence } from "./cycle_extrema.ts";
+ * import assert from "node:assert/strict";
+ * assert.equal(defaultCycleProminence([NaN, 20, 220, 120]), 20);
+ * ```
+ */
+export function defaultCycleProminence(value: ArrayLike<number>): number {
+  let lo = Infinity, hi = -Infinity;
+  for (let i = 0; i < value.length; i++) {
+    const x = value[i];
+    if (x < lo) lo = x;
+    if (x > hi) hi = x;
+  }
+  return 0.1 * (hi - lo);
 }
 
 /**
@@ -64,7 +89,7 @@ export interface CycleExtremaOptions {
  * @param value smoothed values (NaN = undefined)
  * @param options separation and prominence rules
  * @returns extrema in time order (minima and maxima alternate)
- * @throws {RangeError} when lengths differ or an option is not a positive finite number
+ * @throws {InputError} when lengths differ or an option is not a positive finite number
  * @example
  * ```ts
  * import { findCycleExtrema } from "./cycle_extrema.ts";
@@ -83,14 +108,16 @@ export function findCycleExtrema(
   options: CycleExtremaOptions = {},
 ): Extremum[] {
   if (time.length !== value.length) {
-    throw new RangeError(
+    throw new InputError(
       `Cannot find cycle extrema: time has ${time.length} points but value has ${value.length}`,
+      { field: "value", reason: "length_mismatch", value: value.length },
     );
   }
   const sep = options.minSeparation ?? 7;
   if (!(Number.isFinite(sep) && sep > 0)) {
-    throw new RangeError(
+    throw new InputError(
       `Cannot find cycle extrema: minSeparation must be a positive number of years, current value is ${sep}`,
+      { field: "minSeparation", reason: "out_of_range", value: sep },
     );
   }
   // defined points only
@@ -104,10 +131,11 @@ export function findCycleExtrema(
     if (x < lo) lo = x;
     if (x > hi) hi = x;
   }
-  const prom = options.prominence ?? 0.1 * (hi - lo);
+  const prom = options.prominence ?? defaultCycleProminence(v);
   if (options.prominence !== undefined && !(Number.isFinite(prom) && prom > 0)) {
-    throw new RangeError(
+    throw new InputError(
       `Cannot find cycle extrema: prominence must be a positive finite number, current value is ${prom}`,
+      { field: "prominence", reason: "out_of_range", value: prom },
     );
   }
   if (!(hi > lo)) return [];

@@ -4,6 +4,7 @@
  *
  * @module
  */
+import { InputError } from "../errors.ts";
 import { quantileSorted } from "d3-array";
 import { randomStream } from "../random/random_stream.ts";
 import { smoothed13Month } from "./smoothed_13_month.ts";
@@ -102,8 +103,8 @@ export interface CycleForecast {
  * @param value observed values, finite
  * @param options seed, curve times, replicates, block length, level, width model
  * @returns the forecast
- * @throws {RangeError} for fewer than 12 points, or bad options (replicates < 20, block length
- *   not in [1, n], level outside (0, 1))
+ * @throws {InputError} for fewer than 12 points (field `time`), bad options (`replicates` < 20,
+ *   `blockLength` not in [1, n], `level` outside (0, 1)), or as {@link fitHathawayCycle}
  * @example
  * ```ts
  * import { forecastCycle } from "./cycle_forecast.ts";
@@ -128,19 +129,31 @@ export function forecastCycle(
   const B = options.replicates ?? 200;
   const L = options.blockLength ?? 6;
   const level = options.level ?? 0.9;
-  if (n < 12) throw new RangeError(`Cannot ${fn}: needs at least 12 observed months, got ${n}`);
+  if (n < 12) {
+    throw new InputError(`Cannot ${fn}: needs at least 12 observed months, got ${n}`, {
+      field: "time",
+      reason: "too_few_points",
+      value: n,
+    });
+  }
   if (!Number.isInteger(B) || B < 20) {
-    throw new RangeError(
+    throw new InputError(
       `Cannot ${fn}: replicates must be an integer >= 20, current value is ${B}`,
+      { field: "replicates", reason: "out_of_range", value: B },
     );
   }
   if (!Number.isInteger(L) || L < 1 || L > n) {
-    throw new RangeError(
+    throw new InputError(
       `Cannot ${fn}: blockLength must be an integer in [1, ${n}], current value is ${L}`,
+      { field: "blockLength", reason: "out_of_range", value: L },
     );
   }
   if (!(level > 0 && level < 1)) {
-    throw new RangeError(`Cannot ${fn}: level must be in (0, 1), current value is ${level}`);
+    throw new InputError(`Cannot ${fn}: level must be in (0, 1), current value is ${level}`, {
+      field: "level",
+      reason: "out_of_range",
+      value: level,
+    });
   }
   const width = options.width ?? "amplitude_dependent";
   const fitOpts = { width, amplitudeScale: options.amplitudeScale };

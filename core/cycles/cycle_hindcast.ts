@@ -4,6 +4,7 @@
  *
  * @module
  */
+import { InputError } from "../errors.ts";
 import { mixSeed } from "../random/random_stream.ts";
 import { type CycleForecastOptions, forecastCycle } from "./cycle_forecast.ts";
 
@@ -152,8 +153,9 @@ export function hindcastCase(
       previousCycle: c.previousCycle,
     });
   } catch (e) {
-    // a past cycle the shape cannot be fitted to (e.g. no positive values) is no case
-    if (e instanceof RangeError && /Cannot fit Hathaway cycle/.test(e.message)) return null;
+    // a past cycle whose values the shape cannot be fitted to (e.g. no positive values) is no
+    // case; bad options still throw
+    if (e instanceof InputError && (e.field === "time" || e.field === "value")) return null;
     throw e;
   }
   const p = fc.maximum;

@@ -3,6 +3,7 @@
  *
  * @module
  */
+import { InputError } from "../errors.ts";
 import { fitHathawayCycle, type HathawayFit, type HathawayFitOptions } from "./cycle_shape_fit.ts";
 import { hathawayCurve } from "./cycle_shape_fit.ts";
 
@@ -38,7 +39,7 @@ export interface CycleSequenceOptions extends Omit<HathawayFitOptions, "start"> 
  * @param options width model, amplitude scale, passes
  * @returns one fit per window (its `fitted` values refer to the window's non-missing points);
  *   `independent` holds the first-pass fits, which use no data outside their window
- * @throws {RangeError} as {@link fitHathawayCycle}, or for a window out of range
+ * @throws {InputError} as {@link fitHathawayCycle}, or for a window out of range
  * @example
  * ```ts
  * import { fitCycleSequence } from "./cycle_sequence_fit.ts";
@@ -63,8 +64,9 @@ export function fitCycleSequence(
 ): { fits: HathawayFit[]; independent: HathawayFit[] } {
   const passes = options.passes ?? 2;
   if (!Number.isInteger(passes) || passes < 0) {
-    throw new RangeError(
+    throw new InputError(
       `Cannot fit cycle sequence: passes must be an integer >= 0, current value is ${passes}`,
+      { field: "passes", reason: "out_of_range", value: passes },
     );
   }
   const pts = windows.map((w) => {
@@ -72,8 +74,9 @@ export function fitCycleSequence(
       !(Number.isInteger(w.start) && Number.isInteger(w.end) && w.start >= 0 &&
         w.end <= time.length && w.end > w.start)
     ) {
-      throw new RangeError(
+      throw new InputError(
         `Cannot fit cycle sequence: window [${w.start}, ${w.end}) is outside the series`,
+        { field: "windows", reason: "out_of_range", value: [w.start, w.end] },
       );
     }
     const t: number[] = [], v: number[] = [];
@@ -102,4 +105,34 @@ export function fitCycleSequence(
     });
   }
   return { fits, independent };
+}
+
+/**
+ * The sum of the fitted curves of a sequence of cycles at decimal-year times: the additive
+ * model of {@link fitCycleSequence} (each curve is 0 before its start t0).
+ *
+ * @param fits fitted cycles (e.g. `fits` of {@link fitCycleSequence})
+ * @param time decimal years
+ * @returns the summed curve, input units
+ * @example
+ * ```ts
+ * import { cycleSequenceCurve } from "./cycle_sequence_fit.ts";
+ * import { hathawayCurve } from "./cycle_shape_fit.ts";
+ * import assert from "node:assert/strict";
+ * const a = { t0: 2000, a: 0.002, b: 45, c: 0.71 }, b = { t0: 2011, a: 0.001, b: 50, c: 0.71 };
+ * const t = [2005, 2013];
+ * const s = cycleSequenceCurve([a, b], t);
+ * assert.equal(s[1], hathawayCurve(a, t)[1] + hathawayCurve(b, t)[1]);
+ * ```
+ */
+export function cycleSequenceCurve(
+  fits: readonly Parameters<typeof hathawayCurve>[0][],
+  time: ArrayLike<number>,
+): Float64Array {
+  const sum = new Float64Array(time.length);
+  for (const f of fits) {
+    const c = hathawayCurve(f, time);
+    for (let i = 0; i < time.length; i++) sum[i] += c[i];
+  }
+  return sum;
 }

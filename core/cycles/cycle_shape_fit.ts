@@ -4,6 +4,7 @@
  *
  * @module
  */
+import { InputError } from "../errors.ts";
 import { levenbergMarquardt } from "ml-levenberg-marquardt";
 import { inverse, Matrix } from "ml-matrix";
 import { HATHAWAY_C, hathawayAmplitudeFor, hathawayPeak } from "./hathaway_shape.ts";
@@ -121,7 +122,7 @@ function rss(x: Float64Array, y: Float64Array, f: (x: number) => number): number
 
 /**
  * Fit F(t) = a (t − t0)³ / [exp((t − t0)²/b²) − c], c = 0.71, to the monthly values of one
- * cycle (Hathaway, Wilson & Reichmann 1994, Sol. Phys. 151, 177; shared/SCIENCE.md §6), by
+ * cycle (Hathaway, Wilson & Reichmann 1994, Sol. Phys. 151, 177), by
  * least squares.
  *
  * Solver: the maintained `ml-levenberg-marquardt` package with the analytic Jacobian. It
@@ -146,8 +147,8 @@ function rss(x: Float64Array, y: Float64Array, f: (x: number) => number): number
  * @param value sunspot numbers (or areas) at those times, finite
  * @param options width model, scale of b(a), start and iterations
  * @returns the fit
- * @throws {RangeError} for too few points, non-finite values, an all-zero series, or a
- *   non-positive amplitudeScale
+ * @throws {InputError} for too few points (field `time`), non-finite values or an all-zero
+ *   series (field `value`), or a non-positive amplitudeScale
  * @example
  * ```ts
  * import { fitHathawayCycle } from "./cycle_shape_fit.ts";
@@ -172,20 +173,36 @@ export function fitHathawayCycle(
   const n = time.length;
   const fn = "fit Hathaway cycle";
   if (value.length !== n) {
-    throw new RangeError(`Cannot ${fn}: time has ${n} points but value has ${value.length}`);
+    throw new InputError(`Cannot ${fn}: time has ${n} points but value has ${value.length}`, {
+      field: "value",
+      reason: "length_mismatch",
+      value: value.length,
+    });
   }
   if (n < np + 2) {
-    throw new RangeError(`Cannot ${fn}: needs at least ${np + 2} points, got ${n}`);
+    throw new InputError(`Cannot ${fn}: needs at least ${np + 2} points, got ${n}`, {
+      field: "time",
+      reason: "too_few_points",
+      value: n,
+    });
   }
   if (!(Number.isFinite(scale) && scale > 0)) {
-    throw new RangeError(`Cannot ${fn}: amplitudeScale must be > 0, current value is ${scale}`);
+    throw new InputError(`Cannot ${fn}: amplitudeScale must be > 0, current value is ${scale}`, {
+      field: "amplitudeScale",
+      reason: "out_of_range",
+      value: scale,
+    });
   }
   const t0Ref = time[0];
   const x = new Float64Array(n), y = new Float64Array(n);
   let peak = -Infinity, peakX = 0;
   for (let i = 0; i < n; i++) {
     if (!Number.isFinite(time[i]) || !Number.isFinite(value[i])) {
-      throw new RangeError(`Cannot ${fn}: point ${i} is not finite (${time[i]}, ${value[i]})`);
+      throw new InputError(`Cannot ${fn}: point ${i} is not finite (${time[i]}, ${value[i]})`, {
+        field: Number.isFinite(time[i]) ? "value" : "time",
+        reason: "not_finite",
+        index: i,
+      });
     }
     x[i] = (time[i] - t0Ref) * 12;
     y[i] = value[i];
@@ -202,7 +219,12 @@ export function fitHathawayCycle(
       peakX = x[i];
     }
   }
-  if (!(peak > 0)) throw new RangeError(`Cannot ${fn}: every value is zero or negative`);
+  if (!(peak > 0)) {
+    throw new InputError(`Cannot ${fn}: every value is zero or negative`, {
+      field: "value",
+      reason: "out_of_range",
+    });
+  }
   const xEnd = x[n - 1];
   const m = model(width, scale, c);
   const { x: xs, g } = hathawayPeak(c);

@@ -3,12 +3,12 @@
  * width, its peak, and the Waldmeier rise-time relation.
  *
  * Method: Hathaway, D. H., Wilson, R. M. & Reichmann, E. J. 1994, "The shape of the sunspot
- * cycle", Sol. Phys. 151, 177 (shared/SCIENCE.md §6):
+ * cycle", Sol. Phys. 151, 177:
  *
  *   F(t) = a (t − t0)^3 / [exp((t − t0)^2 / b^2) − c],   t and t0 in months, c = 0.71,
  *
  * on the version 1 sunspot-number scale, with the one-parameter width
- * b(a) = 27.12 + 25.15 / (a·1e3)^(1/4) months (from memory, SCIENCE.md marks it M).
+ * b(a) = 27.12 + 25.15 / (a·1e3)^(1/4) months (constants from memory).
  * Writing x = (t − t0)/b, F = a b^3 g(x) with g(x) = x^3 / (exp(x^2) − c), so the cycle peaks
  * at t0 + x* b with F_max = g(x*) a b^3; for c = 0.71, x* = 1.081 and g(x*) = 0.5038 (derived).
  *
@@ -54,7 +54,7 @@ function checkPositive(fn: string, name: string, v: number): void {
 
 /**
  * The amplitude-dependent width b(a) of the Hathaway et al. (1994) shape function:
- * b = 27.12 + 25.15 / (a·1e3)^(1/4) months (from memory; SCIENCE.md §6, mark M).
+ * b = 27.12 + 25.15 / (a·1e3)^(1/4) months (constants from memory).
  *
  * Larger cycles get narrower widths and hence shorter rise times (the Waldmeier effect).
  *
@@ -80,8 +80,8 @@ export function hathawayWidth(a: number): number {
  * Setting g'(x) = 0 gives 3 (exp(x^2) − c) = 2 x^2 exp(x^2), i.e.
  * h(x) = (3 − 2x^2) exp(x^2) − 3c = 0, solved here by bisection on [0.5, √1.5] where h
  * changes sign for every c in [0, 1) (written by hand: a one-dimensional root of a smooth
- * monotone function needs no library). For c = 0.71, x* = 1.081 and g(x*) = 0.5038 (derived,
- * SCIENCE.md §6).
+ * monotone function needs no library). For c = 0.71, x* = 1.081 and g(x*) = 0.5038 (derived
+ * here).
  *
  * @param c asymmetry parameter in [0, 1) (default 0.71)
  * @returns `{ x, g }`: location x* (in units of b) and height g(x*) of the peak
@@ -228,7 +228,7 @@ export function hathawayAmplitudeFor(maximum: number, c: number = HATHAWAY_C): n
 /**
  * The Waldmeier effect as a rise-time relation: rise (months) ≈ 35 + 1800 / amplitude,
  * amplitude the smoothed maximum sunspot number on the V1 scale (Hathaway 2010, Living Rev.
- * Sol. Phys. 7, 1, eq. 7; SCIENCE.md §6, mark C).
+ * Sol. Phys. 7, 1, eq. 7).
  *
  * @param amplitude smoothed cycle maximum, V1 sunspot number, > 0
  * @returns rise time from minimum to maximum, months

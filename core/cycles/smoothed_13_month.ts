@@ -12,7 +12,7 @@ export const SMOOTHED_13_MONTH_WEIGHTS: readonly number[] = Object.freeze(
 
 /**
  * The standard 13-month smoothed sunspot number (the "tapered" running mean used for the
- * official cycle minima and maxima; shared/SCIENCE.md §4, C):
+ * official cycle minima and maxima; the standard definition, common practice):
  *
  *   R_s(m) = [0.5 R(m−6) + Σ_{k=−5..5} R(m+k) + 0.5 R(m+6)] / 12.
  *
@@ -28,7 +28,7 @@ export const SMOOTHED_13_MONTH_WEIGHTS: readonly number[] = Object.freeze(
  * ```ts
  * import { smoothed13Month } from "./smoothed_13_month.ts";
  * import assert from "node:assert/strict";
- * // SCIENCE.md §4 (D): a ramp 1..13 gives 7.0 at the centre
+ * // derived: a ramp 1..13 gives 7.0 at the centre
  * const r = smoothed13Month(Float64Array.from({ length: 13 }, (_, i) => i + 1));
  * assert.ok(Math.abs(r[6] - 7) < 1e-12);
  * assert.ok(Number.isNaN(r[5]) && Number.isNaN(r[7]));

@@ -32,7 +32,7 @@ export interface WaldmeierRelation {
 /**
  * Fit rise = α + β / A across cycles by ordinary least squares, the form of the Waldmeier
  * relation given by Hathaway 2010 (Living Rev. Sol. Phys. 7, 1, eq. 7: rise ≈ 35 + 1800 / A
- * months, A the smoothed maximum on the version 1 scale; shared/SCIENCE.md §6, C), and report
+ * months, A the smoothed maximum on the version 1 scale), and report
  * the correlation of rise time with amplitude and the published relation's fit to the same
  * cycles.
  *

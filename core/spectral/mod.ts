@@ -9,3 +9,6 @@ export * from "./lomb_scargle.ts";
 export * from "./false_alarm.ts";
 export * from "./fft_periodogram.ts";
 export * from "./spectral_peaks.ts";
+export * from "./sampling_interval.ts";
+export * from "./monte_carlo_peak_tests.ts";
+export * from "./period_band.ts";

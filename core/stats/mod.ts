@@ -19,3 +19,4 @@ export * from "./newey_west.ts";
 export * from "./residual_lag1.ts";
 export * from "./multivariate_normal.ts";
 export * from "./ensemble_summary.ts";
+export * from "./coefficient_of_determination.ts";

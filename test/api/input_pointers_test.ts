@@ -17,7 +17,7 @@ Deno.test("inputProblem() maps an InputError by field, index function and fallba
     const p = inputProblem(e, { series: (e) => `/series/${e.index}` }) as InputProblem;
     assert.ok(p instanceof InputProblem);
     assert.equal(p.pointer, "/series/2");
-    assert.deepEqual(p.extra, { reason: "not_finite" });
+    assert.deepEqual(p.extra, { field: "series", reason: "not_finite", index: 2 });
   });
   await t.step("the fallback", () => {
     assert.equal((inputProblem(e, { "*": "/x" }) as InputProblem).pointer, "/x");
@@ -25,7 +25,14 @@ Deno.test("inputProblem() maps an InputError by field, index function and fallba
   await t.step("an unmapped field or another error passes unchanged", () => {
     assert.equal(inputProblem(e, { other: "/o" }), e);
     const plain = new RangeError("r");
-    assert.equal(inputProblem(plain, { "*": "/x" }), plain);
+    assert.equal(inputProblem(plain, { other: "/o" }), plain);
+    const boom = new Error("e");
+    assert.equal(inputProblem(boom, { "*": "/x" }), boom);
+  });
+  await t.step("an untyped RangeError from core goes to the catch-all field", () => {
+    const p = inputProblem(new RangeError("r"), { "*": "/x" }) as InputProblem;
+    assert.ok(p instanceof InputProblem);
+    assert.equal(p.pointer, "/x");
   });
   await t.step("withInputPointers() returns the value when nothing is thrown", () => {
     assert.equal(withInputPointers({}, () => 3), 3);

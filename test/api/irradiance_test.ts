@@ -5,7 +5,7 @@ import { julianDay, solarDiscGeometry } from "../../core/irradiance/mod.ts";
 import { periodKey, periodOfKey } from "../../core/series/mod.ts";
 import { parseIsoTime } from "../../core/time/mod.ts";
 import { fitSunspotMapping } from "../../core/irradiance/sunspot_proxy_mapping.ts";
-import { camelKeys, camelName, snakeKeys, snakeName } from "../../api/kinds/json_keys.ts";
+import { camelKeys, camelName, snakeKeys, snakeName } from "../../api/analyses/common/keys.ts";
 
 // deno-lint-ignore no-explicit-any
 type Json = any;

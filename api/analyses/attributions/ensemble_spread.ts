@@ -29,7 +29,8 @@ export const AttributionEnsembleSpread = z.object({
     members: z.array(z.number().int()).openapi({ description: "Members choosing each lag" }),
   }).openapi({ description: "How often each solar lag is chosen over the members" }),
   p_value: SpreadQuantiles.nullable().openapi({
-    description: "The solar coefficient's p-value over the members; null when undefined",
+    description: "The solar coefficient's naive p-value over the members (the chosen lag " +
+      "taken as fixed; only the central run pays for the lag search); null when undefined",
   }),
   fraction_p_below_0_05: z.number(),
   max_minus_min: SpreadQuantiles.openapi({

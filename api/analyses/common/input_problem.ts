@@ -19,8 +19,9 @@ export type FieldPointers = Record<string, string | ((e: InputError) => string)>
 
 /**
  * The problem for a core `InputError` at the pointer of its field, carrying the field, the
- * machine-readable reason and, when known, the index and a short value; any other error (or
- * an `InputError` whose field has no pointer) is returned unchanged.
+ * machine-readable reason and, when known, the index and a short value. A plain `RangeError`
+ * (a core precondition not yet typed) goes to the `"*"` pointer when there is one. Any other
+ * error (or an `InputError` whose field has no pointer) is returned unchanged.
  *
  * @param e what was thrown
  * @param pointers field → pointer map of this call
@@ -43,7 +44,15 @@ export type FieldPointers = Record<string, string | ((e: InputError) => string)>
  * ```
  */
 export function inputProblem(e: unknown, pointers: FieldPointers): unknown {
-  if (!(e instanceof InputError)) return e;
+  if (!(e instanceof InputError)) {
+    // A core precondition not yet typed (a plain RangeError) is still the request's fault:
+    // it goes to the call's catch-all field rather than to a problem without a pointer.
+    const all = pointers["*"];
+    if (e instanceof RangeError && typeof all === "string") {
+      return new InputProblem(all, e.message, { reason: "invalid" });
+    }
+    return e;
+  }
   const at = pointers[e.field] ?? pointers["*"];
   if (at === undefined) return e;
   const extra: Record<string, unknown> = { field: e.field, reason: e.reason };

@@ -17,6 +17,10 @@ import { bandCaution, UncertaintyBandSchema } from "./uncertainty_band.ts";
 const WithEnsemble = z.object({
   band: UncertaintyBandSchema.nullable().optional(),
   ensemble: EnsembleSchema.nullable().optional(),
+  outputs: z.object({
+    tsi: z.object({ value: z.array(z.number().nullable()) }).optional(),
+    forcing: z.object({ value: z.array(z.number().nullable()) }).optional(),
+  }).optional(),
 });
 
 /** The members of a solar run, each available as a series like its central one. */
@@ -46,7 +50,13 @@ export function solarEnsembleFromRun(
   const parsed = WithEnsemble.safeParse(ctx.run(id).result);
   const e = parsed.success ? parsed.data.ensemble : null;
   if (!e) return null;
-  if (e.members.length !== e.realizations || e.members.some((r) => r.length !== central.n)) {
+  // the central series leaves out the output's empty cells: the members leave out the same
+  const o = parsed.data!.outputs?.tsi ?? parsed.data!.outputs?.forcing;
+  const keep = o ? o.value.flatMap((v, i) => (v === null ? [] : [i])) : [];
+  if (
+    keep.length !== central.n || e.members.length !== e.realizations ||
+    e.members.some((r) => r.length !== o!.value.length)
+  ) {
     throw new InputProblem(
       pointer,
       `run ${id} holds an ensemble whose members do not match its output's time axis`,
@@ -58,7 +68,7 @@ export function solarEnsembleFromRun(
     member: (m) => ({
       ...central,
       id: `${central.id}#member${m}`,
-      value: Float64Array.from(e.members[m], (v) => v ?? NaN),
+      value: Float64Array.from(keep, (i) => e.members[m][i] ?? NaN),
     }),
   };
 }

@@ -22,8 +22,10 @@ const SolarOutputs = z.object({
 });
 
 /**
- * The `tsi` (else `forcing`) output of run `id` as a series-like object for the alignment
- * (null values become NaN gaps).
+ * The `tsi` (else `forcing`) output of run `id` as a series-like object for the alignment.
+ * Cells without a value (null) are left out, as gaps are in a stored series, so the alignment's
+ * coverage rules decide what a gap does to a month or a year (a year with 9 months is no
+ * annual value).
  *
  * @param ctx the run context (the run must be listed by the analysis' `runRefs`)
  * @param id run id
@@ -48,11 +50,15 @@ export function solarSeriesFromRun(ctx: RunContext, id: string, pointer: string)
     );
   }
   const o = outputs[name]!;
-  if (o.time.length < 2) {
-    throw new InputProblem(pointer, `output ${name} of run ${id} is too short`);
+  const keep = o.value.flatMap((v, i) => (v === null ? [] : [i]));
+  if (keep.length < 2) {
+    throw new InputProblem(
+      pointer,
+      `output ${name} of run ${id} has ${keep.length} value(s); at least 2 are needed`,
+    );
   }
-  const time = Float64Array.from(o.time);
-  const value = Float64Array.from(o.value, (v) => (v === null ? NaN : v));
+  const time = Float64Array.from(keep, (i) => o.time[i]);
+  const value = Float64Array.from(keep, (i) => o.value[i]!);
   return {
     id: `run:${id}/${name}`,
     name: o.name,

@@ -52,7 +52,10 @@ export const compositesChart: KindChart<CompositeResultOut> = {
       title: `Superposed epoch composite · run ${run.id.slice(0, 8)}`,
       description: runDescription(
         run,
-        `${o.name} against years from the epoch, over ${used} epochs, with a ${r.band}.`,
+        `${o.name} against years from the epoch, over ${used} epochs, with a ${r.band}.` +
+          (r.seasonal_cycle.deseasonalise
+            ? " Each calendar month's mean over the series was removed first."
+            : ""),
       ),
       x: { label: "Years from the epoch", kind: "linear" },
       y: { label: axisLabel(quantityLabel(o.quantity), o.units, o.quantity) },

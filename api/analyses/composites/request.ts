@@ -7,6 +7,7 @@ import { z } from "@hono/zod-openapi";
 import { SeriesRef, TimeValue } from "../../schemas/series_ref.ts";
 import { CoverageFields } from "../common/analysis_axis.ts";
 import { RunRef } from "../common/run_ref.ts";
+import { DeseasonaliseField } from "../common/seasonal_cycle.ts";
 
 export const CompositeRequest = z.object({
   series: SeriesRef.openapi({ description: "The climate series to composite" }),
@@ -24,6 +25,7 @@ export const CompositeRequest = z.object({
       "resolution; daily series default to monthly)",
   }),
   ...CoverageFields,
+  deseasonalise: DeseasonaliseField,
   before_years: z.number().min(0).max(100).default(5),
   after_years: z.number().min(0).max(100).default(5),
   preprocess: z.enum(["none", "mean", "linear", "quadratic"]).default("linear").openapi({

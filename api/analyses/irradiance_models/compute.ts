@@ -28,7 +28,7 @@ import {
   type PeriodMeansByKey,
   periodMeansByKey,
   periodOfKey,
-  seriesAtPeriodKeys,
+  resampledAtPeriodKeys,
 } from "../../../core/series/mod.ts";
 import type { CalendarResolution } from "../../../core/time/mod.ts";
 import { InputError } from "../../../core/errors.ts";
@@ -46,7 +46,8 @@ import {
 } from "../common/irradiance_notes.ts";
 import type { ModelParams } from "./request.ts";
 import type { IrradianceModelJson, ModelResultIn, SunspotMappingsJson } from "./result.ts";
-import { finiteOrNull, mappingChoiceJson } from "./mapping_json.ts";
+import { undefinedAsNull } from "../common/undefined_as_null.ts";
+import { mappingChoiceJson } from "./mapping_json.ts";
 import { cycleAmplitudeJson } from "../common/tsi_cycle_amplitude.ts";
 
 /** Quantities a facular term's series normally has. */
@@ -121,8 +122,8 @@ function fitJson(fit: ProxyModelFit): ModelResultIn["fit"] {
     r_squared: fit.rSquared,
     adj_r_squared: fit.adjRSquared,
     residual_rms: fit.residualRms,
-    aic: finiteOrNull(fit.aic),
-    bic: finiteOrNull(fit.bic),
+    aic: undefinedAsNull(fit.aic),
+    bic: undefinedAsNull(fit.bic),
     residual_lag1: fit.residualLag1,
     rho: fit.rho,
     converged: fit.converged,
@@ -151,8 +152,8 @@ function alternativeJson(
     lower: alt.lower,
     upper: alt.upper,
     residual_rms: alt.residualRms,
-    aic: finiteOrNull(alt.aic),
-    bic: finiteOrNull(alt.bic),
+    aic: undefinedAsNull(alt.aic),
+    bic: undefinedAsNull(alt.bic),
     rho: alt.rho,
   };
 }
@@ -175,7 +176,10 @@ function calibrationCells(params: ModelParams, ctx: RunContext): CalibrationCell
     : { start: -Infinity, end: Infinity };
   const tsiCells = cellMeansWithin(tsi, resolution, span);
   const termSeries = params.terms.map((t) => ctx.series(refId(t.series)));
-  const termAtTsi = termSeries.map((s) => seriesAtPeriodKeys(s, resolution, tsiCells.keys));
+  // the coverage rule of core/series: a monthly cell from daily values needs 20 of them
+  const termAtTsi = termSeries.map((s) =>
+    resampledAtPeriodKeys(s, s.resolution, resolution, tsiCells.keys)
+  );
   const use: number[] = [];
   for (let i = 0; i < tsiCells.keys.length; i++) {
     if (termAtTsi.every((v) => Number.isFinite(v[i]))) use.push(i);
@@ -226,7 +230,7 @@ function calibrate(cells: CalibrationCells, params: ModelParams): ProxyModelFit 
     if (e instanceof CollinearProxiesError) {
       throw new InputProblem("/terms", e.message, {
         reason: "collinear",
-        condition_number: finiteOrNull(e.conditionNumber),
+        condition_number: undefinedAsNull(e.conditionNumber),
       });
     }
     if (e instanceof InputError) throw inputProblem(e, { tsi: "/tsi", "*": "/terms" });
@@ -298,7 +302,7 @@ function sunspotMappings(
   const res = calendarResolutionOf(ss, "/sunspot_number");
   const sc = cellMeansWithin(ss, res, calibration);
   const { choices, mapped } = fitMappings(params, cells.termSeries, res, sc);
-  const tsiAtS = seriesAtPeriodKeys(cells.tsi, res, sc.keys);
+  const tsiAtS = resampledAtPeriodKeys(cells.tsi, cells.tsi.resolution, res, sc.keys);
   let be;
   try {
     be = backExtensionResiduals(tsiAtS, mapped, fit);
@@ -340,7 +344,7 @@ function fitMappings(
   const choices: Record<string, SunspotMappingChoice> = {};
   const mapped = termSeries.map((s, k) => {
     const name = params.terms[k].name;
-    const f = seriesAtPeriodKeys(s, res, sc.keys);
+    const f = resampledAtPeriodKeys(s, s.resolution, res, sc.keys);
     const rr: number[] = [], ff: number[] = [];
     for (let i = 0; i < sc.keys.length; i++) {
       if (Number.isFinite(f[i]) && Number.isFinite(sc.mean[i])) rr.push(sc.mean[i]), ff.push(f[i]);

@@ -7,11 +7,7 @@
  */
 import type { SunspotMappingChoice, SunspotProxyMapping } from "../../../core/irradiance/mod.ts";
 import type { SunspotMappingJson } from "./result.ts";
-
-/** A number, or null when not finite (stated in the schema). */
-export function finiteOrNull(x: number): number | null {
-  return Number.isFinite(x) ? x : null;
-}
+import { undefinedAsNull } from "../common/undefined_as_null.ts";
 
 /** A core mapping as stored. */
 export function mappingJson(m: SunspotProxyMapping): SunspotMappingJson {
@@ -19,14 +15,14 @@ export function mappingJson(m: SunspotProxyMapping): SunspotMappingJson {
     form: m.form,
     names: m.names,
     coefficients: m.coefficients,
-    covariance: m.covariance.map((row) => row.map(finiteOrNull)),
-    standard_errors: m.standardErrors.map(finiteOrNull),
+    covariance: m.covariance.map((row) => row.map((x) => undefinedAsNull(x))),
+    standard_errors: undefinedAsNull(m.standardErrors),
     n: m.n,
     sigma: m.sigma,
     residual_rms: m.residualRms,
     r_squared: m.rSquared,
-    aic: finiteOrNull(m.aic),
-    bic: finiteOrNull(m.bic),
+    aic: undefinedAsNull(m.aic),
+    bic: undefinedAsNull(m.bic),
     residual_lag1: m.residualLag1,
     sunspot_min: m.sunspotMin,
     sunspot_max: m.sunspotMax,

@@ -19,10 +19,13 @@ export const irradianceReconstructions = defineAnalysis({
   path: "/v1/irradiance/reconstructions",
   // 3: a period ending on a cell boundary no longer gains an extra cell (2001-01..2001-12 is
   // 12 months, not 13); a cell whose background is missing has no SD either.
-  // 4: the band propagates the sunspot number's own error (its uncertainties, or a documented
+  // 4: the published time-dependent sunspot-version conversion; the cycle-amplitude warning
+  // per cycle against what its sunspot amplitude implies; cells from daily or monthly inputs
+  // follow the coverage rule of core/series (a partial year at an end is no annual cell).
+  // 5: the band propagates the sunspot number's own error (its uncertainties, or a documented
   // model growing back in time) and is first order throughout (the mapping's product term
   // Σ_β,kk·v_k is dropped); optional ensembles; variance by source and period.
-  algorithmVersion: "4",
+  algorithmVersion: "5",
   tag: "Irradiance",
   summary: "Reconstruct TSI from a calibrated model, with prediction intervals and ensembles",
   description: "Applies a model run to proxy series averaged into daily, monthly or annual " +
@@ -37,8 +40,12 @@ export const irradianceReconstructions = defineAnalysis({
     "draws seeded ensemble members jointly from every source and reports the ensemble's band; " +
     "the result decomposes the variance by source per block of years and states which " +
     "sources the band contains and which it does not. The sunspot series version must match " +
-    "the model's unless a conversion factor is given. An optional secular background scenario " +
-    "is added and labelled; the default is none.",
+    'the model\'s unless `sunspot_conversion` is given: `{"method": "published"}` for the ' +
+    "time-dependent conversion between versions 1 and 2, or a constant factor. Cells average " +
+    "their inputs with the coverage rule of resampling (20 days for a month, 10 months for a " +
+    "year). Each solar cycle's amplitude is checked against what its sunspot amplitude " +
+    "implies through the model. An optional secular background scenario is added and " +
+    "labelled; the default is none.",
   request: ReconstructionRequest,
   result: ReconstructionResult,
   runRefs: (p) => [p.model],

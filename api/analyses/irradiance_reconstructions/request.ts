@@ -13,6 +13,7 @@ import { periodKeyRange } from "../../../core/series/mod.ts";
 import { runRef } from "../common/run_ref.ts";
 import { MAX_ENSEMBLE_VALUES } from "../common/ensemble_members.ts";
 import { MAX_REALIZATIONS, SUNSPOT_SCALE_CORRELATION_YEARS } from "../../../core/irradiance/mod.ts";
+import { SunspotConversion } from "../../schemas/sunspot_conversion.ts";
 
 const SecularBackgroundRequest = z.discriminatedUnion("kind", [
   z.object({ kind: z.literal("none") }),
@@ -76,14 +77,15 @@ export const ReconstructionRequest = z.object({
       "reconstruction back-extends from sunspot_number",
   }),
   sunspot_number: SeriesRef.optional().openapi({
-    description: "Sunspot-number series for back-extension; its version must match the model's",
+    description: "Sunspot-number series for back-extension; its version must match the " +
+      "model's unless `sunspot_conversion` is given",
   }),
-  sunspot_conversion: z.object({
-    factor: z.number().positive().max(10).openapi({
-      description: "Multiply the sunspot series by this to put it on the model's version",
-    }),
-    note: z.string().max(400).optional(),
-  }).optional(),
+  sunspot_conversion: SunspotConversion.optional().openapi({
+    description: "How to put the sunspot series on the model's version: " +
+      '`{"method": "published"}` (the time-dependent conversion between versions 1 and 2) ' +
+      'or a constant `{"factor": f}` (warned about when the series crosses 1849, 1868 or ' +
+      "1947, where the ratio of the versions changes)",
+  }),
   period: PeriodInput.openapi({
     description: "The cells are every day, month or year from the one holding the start to " +
       "the one holding the last instant before the end: ISO bounds name whole periods, so " +

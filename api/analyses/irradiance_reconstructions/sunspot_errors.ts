@@ -54,7 +54,7 @@ function daysPerValue(s: StoredSeries): number {
  * @param params the request (`sunspot_uncertainty`)
  * @param ss the stored sunspot series
  * @param value its values on the model's version
- * @param factor the version conversion factor applied to the values (1 without)
+ * @param ownSd its own one-sigma uncertainties on the model's version, or null
  * @param resolution the cells' resolution
  * @param keys the cells' period keys
  * @throws {InputProblem} at `/sunspot_uncertainty/source` when `series` is asked of a series
@@ -64,13 +64,13 @@ export function sunspotErrors(
   params: ReconstructionParams,
   ss: StoredSeries,
   value: ArrayLike<number>,
-  factor: number,
+  ownSd: ArrayLike<number> | null,
   resolution: CalendarResolution,
   keys: Int32Array,
 ): SunspotErrors {
   const req = params.sunspot_uncertainty;
-  const own = ss.uncertainty && ss.uncertainty.some((v) => Number.isFinite(v))
-    ? ss.uncertainty
+  const own = ownSd && Array.prototype.some.call(ownSd, (v: number) => Number.isFinite(v))
+    ? ownSd
     : null;
   if (req.source === "series" && !own) {
     throw new InputProblem(
@@ -102,7 +102,7 @@ export function sunspotErrors(
     const n = value.length;
     u = {
       correlated: new Float64Array(n),
-      independent: Float64Array.from(own!, (s) => s * factor * k),
+      independent: Float64Array.from(own!, (s) => s * k),
     };
   } else {
     u = withInputPointers(

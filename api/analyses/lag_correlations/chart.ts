@@ -11,6 +11,14 @@ import type { Layer } from "../../charts/chart.ts";
 import { runDescription, runNotes } from "../../charts/run_common.ts";
 import type { LagCorrelationResultOut } from "./result.ts";
 
+/** What was removed from both series before correlating, in words. */
+function preprocessing(r: LagCorrelationResultOut): string {
+  const trend = r.preprocess === "high_pass"
+    ? `variations slower than ${r.high_pass_cutoff_years} years`
+    : `the ${r.preprocess === "mean" ? "mean" : `${r.preprocess} trend`}`;
+  return r.seasonal_cycle.deseasonalise ? `the monthly climatology, then ${trend}` : trend;
+}
+
 function fmt(v: number | null, digits = 3): string {
   return v === null ? "n/a" : v.toPrecision(digits);
 }
@@ -83,7 +91,8 @@ export const lagCorrelationChart: KindChart<LagCorrelationResultOut> = {
       description: runDescription(
         run,
         `Correlation at lags ${r.lags[0].lag} to ${r.lags[r.lags.length - 1].lag} ${unit}` +
-          (mc ? `, with ${mc.surrogates} ${mc.method} surrogates for significance.` : "."),
+          (mc ? `, with ${mc.surrogates} ${mc.method} surrogates for significance.` : ".") +
+          ` Removed before correlating: ${preprocessing(r)}.`,
       ),
       x: { label: `Lag (${unit}; > 0: climate follows solar)`, kind: "linear" },
       y: { label: "Correlation r" },

@@ -7,6 +7,7 @@ import { z } from "@hono/zod-openapi";
 import { SeriesRef } from "../../schemas/series_ref.ts";
 import { AnalysisResolution, CoverageFields } from "../common/analysis_axis.ts";
 import { RunRef } from "../common/run_ref.ts";
+import { DeseasonaliseField } from "../common/seasonal_cycle.ts";
 
 /** Preprocessing applied to observations and surrogates alike. */
 export const PreprocessField = z.enum(["mean", "linear", "quadratic", "high_pass"]).openapi({
@@ -26,6 +27,7 @@ export const LagCorrelationRequest = z.object({
   climate: SeriesRef.openapi({ description: "Climate series (temperature anomaly, ...)" }),
   resolution: AnalysisResolution,
   ...CoverageFields,
+  deseasonalise: DeseasonaliseField,
   min_lag: z.number().int().min(-10_000).max(10_000).optional().openapi({
     description: "Smallest lag in samples (default −max_lag). Negative lags: the climate " +
       "series leads.",

@@ -7,6 +7,7 @@ import { z } from "@hono/zod-openapi";
 import { cautions, OutputSeriesSchema, warnings } from "../common/result_parts.ts";
 import { PreprocessField } from "./request.ts";
 import { LagEnsembleSpread } from "./ensemble_spread.ts";
+import { SeasonalCycleSchema } from "../common/seasonal_cycle.ts";
 
 const nullWhenNeffSmall = (what: string, limit: number) =>
   z.number().nullable().openapi({
@@ -66,6 +67,7 @@ export const LagCorrelationResult = z.object({
   n: z.number().int().openapi({ description: "Periods on the common gap-free axis" }),
   start_period: z.string().openapi({ description: "ISO 8601 first period of the axis" }),
   end_period: z.string().openapi({ description: "ISO 8601 last period of the axis" }),
+  seasonal_cycle: SeasonalCycleSchema,
   preprocess: PreprocessField,
   high_pass_cutoff_years: z.number().nullable().openapi({
     description: "Cutoff of the high-pass, years; null for the other preprocessings",

@@ -15,7 +15,10 @@ import {
   toRegularGrid,
   weightedMovingAverageUncertainty,
 } from "../../../core/cycles/mod.ts";
-import { activityGrid, applySmoothing, iso, nulls } from "../../kinds/cycles_common.ts";
+import { formatIsoTime } from "../../../core/time/mod.ts";
+import { activityGrid } from "../common/activity_grid.ts";
+import { applySmoothing } from "../common/smoothing_method.ts";
+import { undefinedAsNull } from "../common/undefined_as_null.ts";
 import type { SmoothingParams } from "./request.ts";
 import type { SmoothingResultIn } from "./result.ts";
 
@@ -24,7 +27,7 @@ export function computeSmoothing(params: SmoothingParams, ctx: RunContext): Smoo
   const s = ctx.series(refId(params.series));
   const grid = activityGrid(s);
   const smoothed = applySmoothing(grid, params.method, params, "/method");
-  const value = nulls(smoothed);
+  const value = undefinedAsNull(smoothed);
   const defined = value.filter((v) => v !== null).length;
   if (defined < 2) {
     throw new InputProblem(
@@ -42,7 +45,7 @@ export function computeSmoothing(params: SmoothingParams, ctx: RunContext): Smoo
     : null;
   const kernel = weights ?? gaussianWeights(params.sigma, 3);
   const uncertainty = s.uncertainty
-    ? nulls(weightedMovingAverageUncertainty(
+    ? undefinedAsNull(weightedMovingAverageUncertainty(
       grid.value,
       toRegularGrid(s.time, s.uncertainty, grid.resolution).value,
       kernel,
@@ -75,8 +78,8 @@ export function computeSmoothing(params: SmoothingParams, ctx: RunContext): Smoo
     },
     kernel_weights: weights,
     grid: {
-      start: iso(grid.time[0], grid.resolution),
-      end: iso(grid.time[grid.time.length - 1], grid.resolution),
+      start: formatIsoTime(grid.time[0], grid.resolution),
+      end: formatIsoTime(grid.time[grid.time.length - 1], grid.resolution),
       points: grid.value.length,
       missing,
     },

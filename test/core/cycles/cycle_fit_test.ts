@@ -71,9 +71,20 @@ Deno.test("fitHathawayCycle() standard errors match the scatter of repeated fits
 });
 
 Deno.test("fitHathawayCycle() rejects bad input", () => {
-  assert.throws(() => fitHathawayCycle([1, 2, 3, 4], [1, 2, 3, 4]), /at least 5/);
-  assert.throws(() => fitHathawayCycle(months(20), new Array(20).fill(0)), /zero/);
-  assert.throws(() => fitHathawayCycle(months(20), new Array(20).fill(NaN)), /not finite/);
+  assert.throws(() => fitHathawayCycle([1, 2, 3, 4], [1, 2, 3, 4]), {
+    field: "time",
+    reason: "too_few_points",
+    value: 4,
+  });
+  assert.throws(() => fitHathawayCycle(months(20), new Array(20).fill(0)), {
+    field: "value",
+    reason: "out_of_range",
+  });
+  assert.throws(() => fitHathawayCycle(months(20), new Array(20).fill(NaN)), {
+    field: "value",
+    reason: "not_finite",
+    index: 0,
+  });
   assert.throws(
     () => fitHathawayCycle(months(20), new Array(20).fill(1), { amplitudeScale: 0 }),
     RangeError,
@@ -183,10 +194,14 @@ Deno.test("forecastCycle() is reproducible by seed and its band brackets the fit
   assert.equal(a.failedReplicates, 0);
   assert.throws(
     () => forecastCycle(months(11), new Array(11).fill(5), { seed: 1, curveTime }),
-    /12/,
+    { field: "time", reason: "too_few_points", value: 11 },
   );
-  assert.throws(() => forecastCycle(time, v, { seed: 1, curveTime, replicates: 5 }), /replicates/);
-  assert.throws(() => forecastCycle(time, v, { seed: 1, curveTime, level: 1 }), /level/);
+  assert.throws(() => forecastCycle(time, v, { seed: 1, curveTime, replicates: 5 }), {
+    field: "replicates",
+  });
+  assert.throws(() => forecastCycle(time, v, { seed: 1, curveTime, level: 1 }), {
+    field: "level",
+  });
 });
 
 Deno.test("forecastCycle() adds the previous cycle's tail back to the curve", () => {

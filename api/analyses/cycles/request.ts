@@ -1,0 +1,15 @@
+/**
+ * Request of the "cycles" analysis.
+ *
+ * @module
+ */
+import { z } from "@hono/zod-openapi";
+import { SeriesRef } from "../../schemas/series_ref.ts";
+import { CycleDetectionFields } from "../common/cycle_detection.ts";
+
+export const CyclesRequest = z.object({
+  series: SeriesRef,
+  ...CycleDetectionFields,
+}).openapi("CyclesRequest");
+
+export type CyclesParams = z.output<typeof CyclesRequest>;

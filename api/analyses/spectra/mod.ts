@@ -1,0 +1,38 @@
+/**
+ * Analysis "spectra": Lomb–Scargle periodogram (uneven or gapped series) with false-alarm
+ * probabilities, or a tapered FFT periodogram (evenly sampled series), and the dominant peaks
+ * with period uncertainties from their widths (core/spectral/).
+ *
+ * @module
+ */
+import { defineAnalysis } from "../../runs/kind.ts";
+import { SpectraRequest } from "./request.ts";
+import { SpectraResult } from "./result.ts";
+import { computeSpectra } from "./compute.ts";
+import { spectraChart } from "./chart.ts";
+import { spectraTasks } from "./tasks.ts";
+
+export const spectraKind = defineAnalysis({
+  kind: "spectra",
+  path: "/v1/spectra",
+  algorithmVersion: "1",
+  tag: "Solar cycles",
+  summary: "Periodogram, dominant periods and false-alarm probabilities",
+  description: "Lomb–Scargle periodogram (Lomb 1976; Scargle 1982) of any series, gaps and " +
+    "uneven sampling allowed, on a period grid you can set, with false-alarm probabilities " +
+    "of its peaks (Horne & Baliunas 1986, and a seeded Monte Carlo test against red (AR(1)) " +
+    "or white noise); or the " +
+    "tapered FFT periodogram of a gap-free monthly or annual series. Peaks come with a period " +
+    "uncertainty from their half-width at half maximum. Periods in years, frequencies in " +
+    "cycles per year.",
+  request: SpectraRequest,
+  result: SpectraResult,
+  estimateSeconds(p) {
+    const grid = p.period_list?.length ?? p.periods.count ?? 5000;
+    const mc = p.false_alarm === "horne_baliunas" || p.method === "fft" ? 0 : p.replicates;
+    return (3600 * grid * (1 + mc)) / 1e9;
+  },
+  compute: computeSpectra,
+  chart: spectraChart,
+  tasks: spectraTasks,
+});

@@ -1,1 +1,0 @@
-export { RUN_KINDS } from "../analyses/registry.ts";

@@ -1,0 +1,53 @@
+/**
+ * `deno bench` of the gridded-field area on the case of field_case.ts: the float32 product
+ * kernels (one block of 8 surrogates × 25 lags against all 2,592 cells), one chunk task of 25
+ * surrogates, the map, and the area-weighted mean. Side-by-side numbers against numpy are in
+ * field_medians.ts.
+ *
+ * @module
+ */
+import {
+  areaWeightedMean,
+  fieldSignificanceChunk,
+  jsFloat32Product,
+  planFieldSignificance,
+  prepareFieldAnalysis,
+  solarSignalMap,
+  wasmFloat32Product,
+} from "../../core/field/mod.ts";
+import { fieldCase, MAX_LAG, N_TIME, SEED } from "./field_case.ts";
+
+const { field, x, weights } = fieldCase();
+const inputs = prepareFieldAnalysis(field, x, { minLag: 0, maxLag: MAX_LAG });
+const map = solarSignalMap(inputs);
+const plan = planFieldSignificance(inputs, map, weights, { seed: SEED, surrogates: 25 });
+const rows = 8 * (MAX_LAG + 1);
+const a = Float32Array.from({ length: rows * N_TIME }, (_, i) => Math.sin(i));
+const wasm = wasmFloat32Product(), js = jsFloat32Product();
+wasm.setRight(plan.y, N_TIME, plan.cellCount);
+js.setRight(plan.y, N_TIME, plan.cellCount);
+
+Deno.bench("float32 product 200 × 600 · 600 × 2,592, WebAssembly SIMD", {
+  group: "product",
+  baseline: true,
+}, () => {
+  wasm.multiply(a, rows);
+});
+Deno.bench("float32 product 200 × 600 · 600 × 2,592, plain JS", { group: "product" }, () => {
+  js.multiply(a, rows);
+});
+Deno.bench("field significance chunk: 25 surrogates × 2,592 cells × 25 lags", () => {
+  fieldSignificanceChunk({
+    plan,
+    surrogateStart: 0,
+    surrogateEnd: 25,
+    cellStart: 0,
+    cellEnd: plan.cellCount,
+  }, wasm);
+});
+Deno.bench("solar-signal map: 2,592 cells × 25 lags × 600 months", () => {
+  solarSignalMap(inputs);
+});
+Deno.bench("area-weighted global mean: 2,592 cells × 600 months", () => {
+  areaWeightedMean(field);
+});
