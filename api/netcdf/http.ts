@@ -241,6 +241,7 @@ export function runOutputNetcdfResponse(
   name: string,
   o: OutputSeries,
   ensemble?: EnsembleSource,
+  attributes: [string, string][] = [],
 ): Response {
   const calendar = calendarOf(c);
   if (o.time_axis && o.time_axis !== "decimal_year") {
@@ -270,6 +271,7 @@ export function runOutputNetcdfResponse(
     dateCreated: run.created_at,
     warnings: strings(result.warnings),
     cautions: strings(result.cautions),
+    attributes,
   };
   const s: SeriesLike = {
     name: o.name,

@@ -18,6 +18,10 @@ export const MAX_ENSEMBLE_VALUES = 4_000_000;
 
 /** The ensemble part of a result. */
 export const EnsembleSchema = z.object({
+  output: z.string().openapi({
+    description: "The output whose time axis the members share (its NetCDF download carries " +
+      "them on a `realization` dimension)",
+  }),
   realizations: z.number().int().openapi({ description: "Number of members" }),
   seed: z.number().int().openapi({
     description: "Seed of the draws: member m uses the random stream (seed, m)",
@@ -81,4 +85,24 @@ export function membersFromJson(rows: readonly (readonly (number | null)[])[]): 
     for (let i = 0; i < n; i++) out[m * n + i] = row[i] ?? NaN;
   });
   return out;
+}
+
+/**
+ * The members of a stored result for output `name`, as the NetCDF writer streams them (one
+ * member at a time, null → NaN); undefined when the result has no ensemble for that output.
+ *
+ * @param result a stored run result
+ * @param name the output asked for
+ */
+export function ensembleSourceOf(
+  result: unknown,
+  name: string,
+): { members: number; member(k: number): ArrayLike<number> } | undefined {
+  const parsed = z.object({ ensemble: EnsembleSchema.nullable().optional() }).safeParse(result);
+  const e = parsed.success ? parsed.data.ensemble : null;
+  if (!e || e.output !== name) return undefined;
+  return {
+    members: e.realizations,
+    member: (k) => Float64Array.from(e.members[k], (v) => v ?? NaN),
+  };
 }

@@ -80,3 +80,23 @@ export function bandCaution(band: UncertaintyBand, what = "The uncertainty band"
     band.not_included.join("; ")
   }.`;
 }
+
+/**
+ * The band statement of a stored result as global attributes of a NetCDF file: the method, the
+ * sources included and those not included (one per line); none when the result states no band.
+ *
+ * @param result a stored run result
+ */
+export function bandAttributes(result: unknown): [string, string][] {
+  const parsed = z.object({ band: UncertaintyBandSchema.nullable().optional() }).safeParse(result);
+  const band = parsed.success ? parsed.data.band : null;
+  if (!band) return [];
+  return [
+    ["uncertainty_band_method", band.method],
+    [
+      "uncertainty_sources_included",
+      band.included.map((s) => `${s.source}: ${s.description}`).join("\n") || "none",
+    ],
+    ["uncertainty_sources_not_included", band.not_included.join("\n")],
+  ];
+}

@@ -316,6 +316,7 @@ export function computeEnergyBalance(
       ? {
         band,
         ensemble: {
+          output: "temperature",
           realizations: forcing.ensemble!.realizations,
           seed: forcing.ensemble!.seed,
           units: "K",

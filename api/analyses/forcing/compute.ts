@@ -80,6 +80,7 @@ export function computeForcing(params: ForcingParams, ctx: RunContext): ForcingR
       : `95 % interval: ± 1.96 × the SD of ${ens.realizations} members, each against its own reference mean`;
     band = { ...input.band!, method: quantiles ? "ensemble_quantiles" : "ensemble_sd" };
     members = {
+      output: "forcing",
       realizations: ens.realizations,
       seed: ens.seed,
       units: "W m-2",

@@ -201,6 +201,7 @@ export async function computeReconstruction(
     error_model: errorModelJson(rec),
     ensemble: ens
       ? {
+        output: "tsi",
         realizations: ens.realizations,
         seed: params.seed,
         units: "W m-2",
