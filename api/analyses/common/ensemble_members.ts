@@ -98,11 +98,17 @@ export function ensembleSourceOf(
   result: unknown,
   name: string,
 ): { members: number; member(k: number): ArrayLike<number> } | undefined {
-  const parsed = z.object({ ensemble: EnsembleSchema.nullable().optional() }).safeParse(result);
-  const e = parsed.success ? parsed.data.ensemble : null;
-  if (!e || e.output !== name) return undefined;
+  // checked by shape rather than parsed with the schema: a stored result was validated when it
+  // was made, and parsing millions of member values again would dominate a download
+  const e = (result as { ensemble?: unknown } | null)?.ensemble as
+    | { output?: unknown; realizations?: unknown; members?: unknown }
+    | null
+    | undefined;
+  if (!e || e.output !== name || !Array.isArray(e.members)) return undefined;
+  const rows = e.members as unknown[];
+  if (rows.length !== e.realizations || !rows.every(Array.isArray)) return undefined;
   return {
-    members: e.realizations,
-    member: (k) => Float64Array.from(e.members[k], (v) => v ?? NaN),
+    members: rows.length,
+    member: (k) => Float64Array.from(rows[k] as (number | null)[], (v) => v ?? NaN),
   };
 }
