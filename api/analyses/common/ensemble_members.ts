@@ -7,6 +7,7 @@
  */
 import { z } from "@hono/zod-openapi";
 import { InputProblem } from "../../runs/kind.ts";
+import { ensembleSummary, normalQuantile } from "../../../core/stats/mod.ts";
 
 /**
  * Most member values (members × points) a JSON result may hold: 1,000 members of an annual
@@ -111,4 +112,80 @@ export function ensembleSourceOf(
     members: rows.length,
     member: (k) => Float64Array.from(rows[k] as (number | null)[], (v) => v ?? NaN),
   };
+}
+
+/** Members from which the band is the members' quantiles; below, ± z × their SD. */
+export const MIN_MEMBERS_FOR_QUANTILES = 100;
+
+/** The band an ensemble gives around a central series (result of {@link memberBand}). */
+export interface MemberBand {
+  sd: Float64Array;
+  lower: Float64Array;
+  upper: Float64Array;
+  method: "ensemble_quantiles" | "ensemble_sd";
+  /** E.g. "95 % interval of 200 ensemble members". */
+  interval: string;
+}
+
+/**
+ * The band of an ensemble at `level`: the members' SD per point and, with at least
+ * {@link MIN_MEMBERS_FOR_QUANTILES} members, their quantiles (R's type 7); with fewer, the
+ * central value ± the normal quantile × their SD (a 2.5 % quantile of a few dozen members rests
+ * on one or two of them).
+ *
+ * @param central the central series (NaN where missing)
+ * @param members count × n, member-major
+ * @param count members
+ * @param level central interval @default 0.95
+ * @param what how the members are named in `interval` @default "ensemble members"
+ */
+export function memberBand(
+  central: ArrayLike<number>,
+  members: Float64Array,
+  count: number,
+  level = 0.95,
+  what = "ensemble members",
+): MemberBand {
+  const s = ensembleSummary(members, count, level);
+  const pct = level === 0.95 ? "95 %" : `${(level * 100).toFixed(1)} %`;
+  if (count >= MIN_MEMBERS_FOR_QUANTILES) {
+    return {
+      sd: s.sd,
+      lower: s.lower,
+      upper: s.upper,
+      method: "ensemble_quantiles",
+      interval: `${pct} interval of ${count} ${what}`,
+    };
+  }
+  const z = normalQuantile(1 - (1 - level) / 2);
+  return {
+    sd: s.sd,
+    lower: Float64Array.from(central, (v, i) => v - z * s.sd[i]),
+    upper: Float64Array.from(central, (v, i) => v + z * s.sd[i]),
+    method: "ensemble_sd",
+    interval: `${pct} interval (±${z.toFixed(2)} SD of ${count} ${what})`,
+  };
+}
+
+/**
+ * Refuse a stored ensemble whose members do not have one value per point of its output.
+ *
+ * @param e the stored ensemble
+ * @param points the output's length
+ * @param pointer request field that named the run
+ * @param runId the run
+ * @throws {InputProblem} at `pointer`
+ */
+export function checkStoredMembers(
+  e: { realizations: number; members: readonly (readonly unknown[])[] },
+  points: number,
+  pointer: string,
+  runId: string,
+): void {
+  if (e.members.length !== e.realizations || e.members.some((m) => m.length !== points)) {
+    throw new InputProblem(
+      pointer,
+      `run ${runId} holds an ensemble whose members do not match its output's time axis`,
+    );
+  }
 }

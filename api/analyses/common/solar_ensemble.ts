@@ -8,9 +8,9 @@
  */
 import { z } from "@hono/zod-openapi";
 import { quantileSorted } from "d3-array";
-import { InputProblem, type RunContext } from "../../runs/kind.ts";
+import type { RunContext } from "../../runs/kind.ts";
 import type { StoredSeries } from "../../store/types.ts";
-import { EnsembleSchema } from "./ensemble_members.ts";
+import { checkStoredMembers, EnsembleSchema } from "./ensemble_members.ts";
 import { bandCaution, UncertaintyBandSchema } from "./uncertainty_band.ts";
 
 /** The parts of a reconstruction's or forcing run's result read here. */
@@ -53,15 +53,7 @@ export function solarEnsembleFromRun(
   // the central series leaves out the output's empty cells: the members leave out the same
   const o = parsed.data!.outputs?.tsi ?? parsed.data!.outputs?.forcing;
   const keep = o ? o.value.flatMap((v, i) => (v === null ? [] : [i])) : [];
-  if (
-    keep.length !== central.n || e.members.length !== e.realizations ||
-    e.members.some((r) => r.length !== o!.value.length)
-  ) {
-    throw new InputProblem(
-      pointer,
-      `run ${id} holds an ensemble whose members do not match its output's time axis`,
-    );
-  }
+  checkStoredMembers(e, keep.length === central.n ? o!.value.length : -1, pointer, id);
   return {
     realizations: e.realizations,
     seed: e.seed,

@@ -22,8 +22,7 @@ import {
 } from "../../../core/climate/mod.ts";
 import { CAUTION_REVIEW } from "../common/cautions.ts";
 import { withInputPointers } from "../common/input_problem.ts";
-import { ensembleSummary, normalQuantile } from "../../../core/stats/mod.ts";
-import { membersJson } from "../common/ensemble_members.ts";
+import { checkStoredMembers, memberBand, membersJson } from "../common/ensemble_members.ts";
 import { bandCaution, type UncertaintyBand } from "../common/uncertainty_band.ts";
 import { forcing } from "../forcing/mod.ts";
 import type { ForcingResultOut } from "../forcing/result.ts";
@@ -110,14 +109,7 @@ function forcingInput(p: EnergyBalanceParams, ctx: RunContext): Forcing {
   }
   if (keep.length < 2) throw new InputProblem("/forcing", "the forcing has fewer than 2 values");
   const e = run?.ensemble ?? null;
-  if (
-    e && (e.members.length !== e.realizations || e.members.some((m) => m.length !== o.time.length))
-  ) {
-    throw new InputProblem(
-      "/forcing_run",
-      `run ${p.forcing_run} holds an ensemble whose members do not match its time axis`,
-    );
-  }
+  if (e) checkStoredMembers(e, o.time.length, "/forcing_run", p.forcing_run!);
   const n = keep.length;
   return {
     time: Float64Array.from(keep, (i) => o.time[i]),
@@ -160,17 +152,14 @@ function memberResponses(
   if (!members.every(Number.isFinite)) {
     throw new InputProblem("/forcing_run", "a member's response is not finite");
   }
-  const s = ensembleSummary(members, e.realizations, 0.95);
-  const quantiles = e.realizations >= 100, z = normalQuantile(0.975);
+  const b = memberBand(central, members, e.realizations, 0.95, "responses to forcing members");
   return {
     members,
-    uncertainty: s.sd,
-    lower: quantiles ? s.lower : central.map((v, i) => v - z * s.sd[i]),
-    upper: quantiles ? s.upper : central.map((v, i) => v + z * s.sd[i]),
-    interval: quantiles
-      ? `95 % interval: quantiles of the responses to ${e.realizations} forcing members`
-      : `95 % interval: ± 1.96 × the SD of the responses to ${e.realizations} forcing members`,
-    method: (quantiles ? "ensemble_quantiles" : "ensemble_sd") as UncertaintyBand["method"],
+    uncertainty: b.sd,
+    lower: b.lower,
+    upper: b.upper,
+    interval: b.interval,
+    method: b.method,
   };
 }
 

@@ -7,7 +7,7 @@
  *
  * @module
  */
-import { InputProblem, type OutputSeries, type RunContext } from "../../runs/kind.ts";
+import type { OutputSeries, RunContext } from "../../runs/kind.ts";
 import { refId } from "../../schemas/series_ref.ts";
 import {
   type ForcingErrors,
@@ -16,13 +16,17 @@ import {
   forcingSeries,
   type ReconstructionErrorModel,
 } from "../../../core/irradiance/mod.ts";
-import { ensembleSummary, normalQuantile } from "../../../core/stats/mod.ts";
 import { parsePeriod, timeBound, type YearSpan } from "../common/time_period.ts";
 import { withInputPointers } from "../common/input_problem.ts";
 import { requireQuantity } from "../common/sunspot_series.ts";
 import { undefinedAsNull } from "../common/undefined_as_null.ts";
 import { ASSESSMENT_CAUTION } from "../common/irradiance_notes.ts";
-import { membersFromJson, membersJson } from "../common/ensemble_members.ts";
+import {
+  checkStoredMembers,
+  memberBand,
+  membersFromJson,
+  membersJson,
+} from "../common/ensemble_members.ts";
 import { bandCaution, type UncertaintyBand, uncertaintyBand } from "../common/uncertainty_band.ts";
 import { irradianceReconstructions } from "../irradiance_reconstructions/mod.ts";
 import type { ReconstructionResultOut } from "../irradiance_reconstructions/result.ts";
@@ -69,16 +73,18 @@ export function computeForcing(params: ForcingParams, ctx: RunContext): ForcingR
       { "*": pointer },
       () => forcingMembers(input.time, ens.members, ens.realizations, span, params.albedo),
     );
-    const s = ensembleSummary(fm, ens.realizations, 0.95);
-    const quantiles = ens.realizations >= 100;
-    const z = normalQuantile(0.975);
-    out.uncertainty = undefinedAsNull(s.sd);
-    out.lower = undefinedAsNull(quantiles ? s.lower : f.value.map((v, i) => v - z * s.sd[i]));
-    out.upper = undefinedAsNull(quantiles ? s.upper : f.value.map((v, i) => v + z * s.sd[i]));
-    out.interval = quantiles
-      ? `95 % interval: quantiles of ${ens.realizations} members, each against its own reference mean`
-      : `95 % interval: ± 1.96 × the SD of ${ens.realizations} members, each against its own reference mean`;
-    band = { ...input.band!, method: quantiles ? "ensemble_quantiles" : "ensemble_sd" };
+    const b = memberBand(
+      f.value,
+      fm,
+      ens.realizations,
+      0.95,
+      "members, each against its own reference mean",
+    );
+    out.uncertainty = undefinedAsNull(b.sd);
+    out.lower = undefinedAsNull(b.lower);
+    out.upper = undefinedAsNull(b.upper);
+    out.interval = b.interval;
+    band = { ...input.band!, method: b.method };
     members = {
       output: "forcing",
       realizations: ens.realizations,
@@ -151,15 +157,7 @@ function tsiInput(params: ForcingParams, ctx: RunContext): TsiInput {
     const r = ctx.resultOf(irradianceReconstructions, params.reconstruction, "/reconstruction");
     const o = r.outputs.tsi;
     const e = r.ensemble;
-    if (
-      e &&
-      (e.members.length !== e.realizations || e.members.some((m) => m.length !== o.time.length))
-    ) {
-      throw new InputProblem(
-        "/reconstruction",
-        `run ${params.reconstruction} holds an ensemble whose members do not match its time axis`,
-      );
-    }
+    if (e) checkStoredMembers(e, o.time.length, "/reconstruction", params.reconstruction);
     return {
       time: o.time,
       tsi: o.value.map((v) => v ?? NaN),

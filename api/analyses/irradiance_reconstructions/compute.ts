@@ -52,9 +52,15 @@ import { mappingFromJson } from "../irradiance_models/mapping_json.ts";
 import { cycleAmplitudeJson } from "../common/tsi_cycle_amplitude.ts";
 import type { ReconstructionParams } from "./request.ts";
 import type { ReconstructionResultIn } from "./result.ts";
-import { checkEnsembleSize, membersJson } from "../common/ensemble_members.ts";
+import {
+  checkEnsembleSize,
+  type MemberBand,
+  memberBand,
+  membersJson,
+  MIN_MEMBERS_FOR_QUANTILES,
+} from "../common/ensemble_members.ts";
 import { bandCaution, type UncertaintyBand, uncertaintyBand } from "../common/uncertainty_band.ts";
-import { drawEnsemble, type DrawnEnsemble } from "./ensemble.ts";
+import { drawEnsemble } from "./ensemble.ts";
 import { type SunspotErrors, sunspotErrors } from "./sunspot_errors.ts";
 
 /** Most cells a reconstruction may have. */
@@ -141,10 +147,10 @@ export async function computeReconstruction(
     ? await drawEnsemble(ctx, model, coreCells, {
       realizations: params.realizations,
       seed: params.seed,
-      level: params.level,
       background: atCells,
     })
     : null;
+  const members = ens ? memberBand(rec.value, ens.members, ens.realizations, params.level) : null;
   const band = reconstructionBand(params, rec, sunspot, scenario.kind !== "none");
   const amp = tsiCycleAmplitude(cells.time, rec.value);
   const check = cycleAmplitudeCheck(
@@ -168,7 +174,7 @@ export async function computeReconstruction(
     ...extrapolationWarnings(stored, direct, sunspot, rec),
     ...check.warnings,
     ...quietSunWarning(stored.model.quiet_sun.value),
-    ...(ens && ens.realizations < 100
+    ...(ens && ens.realizations < MIN_MEMBERS_FOR_QUANTILES
       ? [
         `The band rests on ${ens.realizations} members: it is ŷ ± ${
           normalQuantile(1 - (1 - params.level) / 2).toFixed(3)
@@ -194,10 +200,10 @@ export async function computeReconstruction(
     source_segments: coverage.segments,
     cycle_amplitude: cycleAmplitudeJson(amp),
     cycle_amplitude_check: check.json,
-    outputs: { tsi: tsiOutput(params, cells, rec, scenario.label, ens, band.method) },
+    outputs: { tsi: tsiOutput(params, cells, rec, scenario.label, members) },
     band,
     sunspot_uncertainty: sunspot?.errors.json ?? null,
-    variance_by_period: varianceBlocks(params, cells, rec, ens),
+    variance_by_period: varianceBlocks(params, cells, rec, members),
     error_model: errorModelJson(rec),
     ensemble: ens
       ? {
@@ -232,7 +238,7 @@ function reconstructionBand(
   const included: ErrorSource[] = ["calibration", "residual"];
   if (back) included.push("mapping");
   if (back && sunspot?.errors.cells) included.push("input");
-  const method = params.realizations >= 100
+  const method = params.realizations >= MIN_MEMBERS_FOR_QUANTILES
     ? "ensemble_quantiles"
     : params.realizations > 0
     ? "ensemble_sd"
@@ -250,13 +256,13 @@ function varianceBlocks(
   params: ReconstructionParams,
   cells: TargetCells,
   rec: Reconstruction,
-  ens: DrawnEnsemble | null,
+  members: MemberBand | null,
 ): ReconstructionResultIn["variance_by_period"] {
   const none = (i: number) => rec.source[i] === SOURCE_NONE;
   const masked = Object.fromEntries(
     ERROR_SOURCES.map((s) => [s, rec.components[s].map((v, i) => (none(i) ? NaN : v))]),
   ) as Record<ErrorSource, Float64Array>;
-  const ensVar = ens ? ens.summary.sd.map((v, i) => (none(i) ? NaN : v * v)) : null;
+  const ensVar = members ? members.sd.map((v, i) => (none(i) ? NaN : v * v)) : null;
   return varianceByPeriod(cells.time, masked, params.variance_block_years, ensVar).map((b) => ({
     start: b.start,
     end: b.end,
@@ -315,26 +321,12 @@ function tsiOutput(
   cells: TargetCells,
   rec: Reconstruction,
   scenarioLabel: string,
-  ens: DrawnEnsemble | null,
-  method: UncertaintyBand["method"],
+  members: MemberBand | null,
 ): ReconstructionResultIn["outputs"]["tsi"] {
   const level = params.level === 0.95 ? "95 %" : `${(params.level * 100).toFixed(1)} %`;
-  let sd: ArrayLike<number> = rec.sd, lower: ArrayLike<number> = rec.lower;
-  let upper: ArrayLike<number> = rec.upper;
-  let interval = `${level} prediction interval`;
-  if (ens) {
-    sd = ens.summary.sd;
-    if (method === "ensemble_quantiles") {
-      lower = ens.summary.lower;
-      upper = ens.summary.upper;
-      interval = `${level} interval of ${ens.realizations} ensemble members`;
-    } else {
-      const zn = normalQuantile(1 - (1 - params.level) / 2);
-      lower = rec.value.map((v, i) => v - zn * ens.summary.sd[i]);
-      upper = rec.value.map((v, i) => v + zn * ens.summary.sd[i]);
-      interval = `${level} interval (±${zn.toFixed(2)} SD of ${ens.realizations} members)`;
-    }
-  }
+  const sd = members?.sd ?? rec.sd;
+  const lower = members?.lower ?? rec.lower, upper = members?.upper ?? rec.upper;
+  const interval = members?.interval ?? `${level} prediction interval`;
   // a cell without a central value has no band either
   const gap = (a: ArrayLike<number>) =>
     Float64Array.from(a, (v, i) => (Number.isFinite(rec.value[i]) ? v : NaN));

@@ -2,7 +2,7 @@
  * The ensemble of a reconstruction in the service: members drawn in chunks on the worker pool
  * (core/irradiance/reconstruction_ensemble.ts; member m always from the stream (seed, m), so
  * the chunking and the number of workers do not change a bit), the background scenario added,
- * and the per-cell summary the band is made from.
+ * ready for the band (common/ensemble_members.ts `memberBand`).
  *
  * @module
  */
@@ -13,16 +13,14 @@ import {
   reconstructionEnsemblePlan,
   type ReconstructionModel,
 } from "../../../core/irradiance/mod.ts";
-import { type EnsembleSummary, ensembleSummary } from "../../../core/stats/mod.ts";
 import { inputProblem, withInputPointers } from "../common/input_problem.ts";
 import { RECONSTRUCTION_ENSEMBLE_CHUNK } from "./tasks.ts";
 
-/** Members of a drawn ensemble and their per-cell summary. */
+/** Members of a drawn ensemble. */
 export interface DrawnEnsemble {
   /** realizations × cells, member-major, W m-2 (NaN where the cell has no value). */
   members: Float64Array;
   realizations: number;
-  summary: EnsembleSummary;
 }
 
 /** Members per chunk: up to 8 chunks, so the pool is busy and progress moves between rounds. */
@@ -34,13 +32,13 @@ function chunkSizes(realizations: number): [number, number][] {
 }
 
 /**
- * Draw the ensemble of the reconstruction on the pool, add the background scenario (NaN where
- * it is missing) and summarise each cell at `level`.
+ * Draw the ensemble of the reconstruction on the pool and add the background scenario (NaN
+ * where it is missing).
  *
  * @param ctx the run context (its pool, progress and cancel flag)
  * @param model the calibrated model
  * @param cells the cells as the reconstruction used them
- * @param options realizations, seed, level and the background per cell (or null)
+ * @param options realizations, seed and the background per cell (or null)
  */
 export async function drawEnsemble(
   ctx: RunContext,
@@ -49,7 +47,6 @@ export async function drawEnsemble(
   options: {
     realizations: number;
     seed: number;
-    level: number;
     background: Float64Array | null;
   },
 ): Promise<DrawnEnsemble> {
@@ -90,5 +87,5 @@ export async function drawEnsemble(
       for (let i = 0; i < n; i++) members[m * n + i] += bg[i];
     }
   }
-  return { members, realizations: N, summary: ensembleSummary(members, N, options.level) };
+  return { members, realizations: N };
 }
