@@ -6,12 +6,16 @@
  * time and peak resident memory, in this thread and on 2 Web Workers (the service's pool, the
  * path `ctx.parallel` takes), and the same numbers from numpy:
  *
- *   deno run -A test/bench/ensemble_medians.ts [repeats] [thread|workers|both]
+ *   deno run -A test/bench/ensemble_medians.ts [repeats] [thread|workers|both|netcdf]
  *   /usr/bin/python3 test/bench/ensemble_numpy.py [repeats]
  *   sh test/bench/ensemble_interleaved.sh [rounds]   (the three alternated, one run each)
  */
+import { buildSeriesDataset } from "../../api/netcdf/series_dataset.ts";
+import { netcdf3Chunks } from "../../core/cf/netcdf3_write.ts";
+import { decimalYear } from "../../core/time/mod.ts";
 import {
   drawReconstructionMembers,
+  reconstructFromProxies,
   type ReconstructionEnsembleChunk,
   reconstructionEnsemblePlan,
 } from "../../core/irradiance/mod.ts";
@@ -21,7 +25,7 @@ import { DAYS, ensembleCase } from "./ensemble_case.ts";
 
 const MEMBERS = 1000, CHUNK = 25;
 const repeats = Number(Deno.args[0] ?? 3);
-/** Which runs: "thread", "workers" or both (default). */
+/** Which runs: "thread", "workers", both (default), or "netcdf" (draw into a NetCDF file). */
 const only = Deno.args[1] ?? "both";
 const { model, cells } = ensembleCase();
 const plan = reconstructionEnsemblePlan(model, cells);
@@ -68,6 +72,71 @@ async function run(pool: WorkerPool | null): Promise<{ ms: number; sd1750: numbe
   const i = 18_262; // 1750-01-01
   const mean = sum[i] / MEMBERS;
   return { ms, sd1750: Math.sqrt((sq[i] - MEMBERS * mean * mean) / (MEMBERS - 1)) };
+}
+
+/**
+ * Draw the ensemble and stream it into a NetCDF-CF file (api/netcdf: members as
+ * realization × time float32, written one member at a time as it is drawn, 25 at a time).
+ */
+async function toNetcdf(): Promise<{ ms: number; mb: number }> {
+  const path = await Deno.makeTempFile({ suffix: ".nc" });
+  const t0 = performance.now();
+  const { value } = reconstructFromProxies(model, cells, 1.96);
+  let cached = -1, chunk: Float64Array = new Float64Array(0);
+  const { dataset } = buildSeriesDataset(
+    { name: "TSI", quantity: "tsi", units: "W m-2", time: caseTime, value, resolution: "daily" },
+    { title: "bench", history: [], references: [], warnings: [], cautions: [] },
+    {
+      ensemble: {
+        members: MEMBERS,
+        member: (k) => {
+          const c = Math.floor(k / CHUNK);
+          if (c !== cached) {
+            chunk = drawReconstructionMembers(plan, 1, c * CHUNK, CHUNK);
+            cached = c;
+            sample();
+          }
+          const m = k % CHUNK;
+          return chunk.subarray(m * DAYS, (m + 1) * DAYS);
+        },
+      },
+    },
+  );
+  const file = await Deno.open(path, { write: true, truncate: true });
+  let bytes = 0;
+  for (const b of netcdf3Chunks(dataset)) {
+    await file.write(b);
+    bytes += b.length;
+  }
+  file.close();
+  const ms = performance.now() - t0;
+  await Deno.remove(path);
+  return { ms, mb: bytes / 1e6 };
+}
+
+/** Noon of each day from 1700-01-01, as decimal years (the case's daily cells). */
+const caseTime = Float64Array.from({ length: DAYS }, (_, i) => {
+  const d = new Date(Date.UTC(1700, 0, 1 + i));
+  return decimalYear(d.getUTCFullYear(), d.getUTCMonth() + 1, d.getUTCDate(), 0.5);
+});
+
+if (only === "netcdf") {
+  const times: number[] = [];
+  let mb = 0;
+  peak = 0;
+  for (let k = 0; k < repeats; k++) {
+    const r = await toNetcdf();
+    times.push(r.ms);
+    mb = r.mb;
+  }
+  times.sort((a, b) => a - b);
+  const med = times[times.length >> 1] / 1000;
+  console.log(
+    `draw + NetCDF file, 1 thread: median ${med.toFixed(2)} s for ${mb.toFixed(0)} MB (${
+      (mb / med).toFixed(0)
+    } MB/s including the draw), peak RSS ${(peak / 2 ** 20).toFixed(0)} MiB`,
+  );
+  Deno.exit(0);
 }
 
 const pool = new WorkerPool(2);
