@@ -24,6 +24,8 @@ import { registerRunRoutes } from "./routes/runs.ts";
 import { registerChartRoutes } from "./routes/charts.ts";
 import { registerKindRoutes } from "./routes/kinds.ts";
 import { registerSeriesRoutes } from "./routes/series.ts";
+import { registerFieldRoutes } from "./routes/fields.ts";
+import { registerMapRoutes } from "./routes/maps.ts";
 import { registerBundleRoutes } from "./routes/bundles.ts";
 import { registerUiRoutes } from "./ui/routes.ts";
 import { seriesCodec } from "./series_codec.ts";
@@ -87,6 +89,8 @@ export function createService(deps: AppDeps): Service {
     admission: quotas,
   }, deps.transport);
   const metrics = new ServiceMetrics(store, runs.transport.queue);
+  // Field uploads a crash interrupted left staged blocks: remove those over an hour old.
+  store.dropStagedFields(3600).catch(() => undefined);
   if (deps.role !== "api") {
     runs.startWorking().catch((e) =>
       console.error(JSON.stringify({ level: "error", event: "worker_start", error: String(e) }))
@@ -142,19 +146,22 @@ export function createService(deps: AppDeps): Service {
   app.use("*", rateLimit(new TokenBuckets(config.quotas.ratePerSecond, config.quotas.rateBurst)));
   app.use("*", authorise());
 
+  const jsonLimit = bodyLimit({
+    maxSize: config.bodyLimitBytes,
+    onError: (c) =>
+      problemResponse(
+        c,
+        new ProblemError(
+          "payload-too-large",
+          `The request body is over the configured limit of ${config.bodyLimitBytes} bytes (SUNLAG_BODY_LIMIT_MB)`,
+        ).problem,
+      ),
+  });
+  // A field upload streams to a temporary file under its own limit (SUNLAG_FIELD_LIMIT_MB).
   app.use(
     "*",
-    bodyLimit({
-      maxSize: config.bodyLimitBytes,
-      onError: (c) =>
-        problemResponse(
-          c,
-          new ProblemError(
-            "payload-too-large",
-            `The request body is over the configured limit of ${config.bodyLimitBytes} bytes (SUNLAG_BODY_LIMIT_MB)`,
-          ).problem,
-        ),
-    }),
+    (c, next) =>
+      c.req.method === "POST" && c.req.path === "/v1/fields" ? next() : jsonLimit(c, next),
   );
   app.use("*", contentEncoding(config.bodyLimitBytes));
 
@@ -163,6 +170,8 @@ export function createService(deps: AppDeps): Service {
   registerUiRoutes(app);
   const uploads = new UploadPool(config.ingestWorkers);
   registerSeriesRoutes(app, { store, config, uploads });
+  registerFieldRoutes(app, { store, config });
+  registerMapRoutes(app, { store });
   registerRunRoutes(app, { store, runs, config });
   registerChartRoutes(app, { store, kinds });
   registerBundleRoutes(app, { store, runs, config });

@@ -9,6 +9,7 @@
  * | `SUNLAG_STORE` | `sqlite:./data/sunlag.db` | store location (`sqlite:<file>`, `sqlite::memory:` or `postgres://...`) |
  * | `SUNLAG_DEMO` | `1` | load the demo data into an empty store at start (`0` to skip) |
  * | `SUNLAG_BODY_LIMIT_MB` | `25` | largest accepted request body, MB |
+ * | `SUNLAG_FIELD_LIMIT_MB` | `200` | largest accepted gridded-field upload (`POST /v1/fields`), MB |
  * | `SUNLAG_WORKERS` | number of cores | Web Workers for heavy computation (`0` = in-thread) |
  * | `SUNLAG_ASYNC_SECONDS` | `2` | runs estimated to take longer are asynchronous by default |
  * | `SUNLAG_CORS_ORIGINS` | (empty: CORS off) | comma-separated list of allowed origins, or `*` |
@@ -39,6 +40,8 @@ export interface Config {
   store: string;
   demo: boolean;
   bodyLimitBytes: number;
+  /** Largest field upload (NetCDF body of `POST /v1/fields`, streamed to a temporary file). */
+  fieldLimitBytes: number;
   workers: number;
   asyncSeconds: number;
   corsOrigins: string[];
@@ -143,6 +146,7 @@ export function readConfig(env: Record<string, string | undefined>): Config {
     store: env.SUNLAG_STORE || "sqlite:./data/sunlag.db",
     demo: env.SUNLAG_DEMO !== "0",
     bodyLimitBytes: Math.round(num(env, "SUNLAG_BODY_LIMIT_MB", 25, 0.001) * 1024 * 1024),
+    fieldLimitBytes: Math.round(num(env, "SUNLAG_FIELD_LIMIT_MB", 200, 0.001) * 1024 * 1024),
     workers: Math.floor(num(env, "SUNLAG_WORKERS", cores, 0)),
     asyncSeconds: num(env, "SUNLAG_ASYNC_SECONDS", 2, 0),
     corsOrigins: list(env.SUNLAG_CORS_ORIGINS),

@@ -42,7 +42,8 @@ if (config.demo && config.role !== "worker") {
   const page = await store.listSeries({ limit: 1, offset: 0 });
   if (page.total === 0) {
     const ids = await loadDemo(store);
-    console.log(JSON.stringify({ event: "demo_loaded", series: ids.length }));
+    const fields = (await store.listFields({ limit: 1, offset: 0 })).total;
+    console.log(JSON.stringify({ event: "demo_loaded", series: ids.length, fields }));
   }
 }
 

@@ -38,6 +38,23 @@ export async function mustHoldRun(
 }
 
 /** As {@link mustHoldRun}, for a series. */
+/** The holding through which the caller sees field `id`, or a 404 problem. */
+export async function mustSeeField(store: Store, p: Principal, id: string): Promise<Holding> {
+  const h = await store.fieldHolding(id, viewerOf(p));
+  if (!h) throw new ProblemError("not-found", `No field has id ${id}`);
+  return h;
+}
+
+/** The caller's own holding of field `id` (admins may act on any), or a 403/404 problem. */
+export async function mustHoldField(
+  store: Store,
+  p: Principal,
+  id: string,
+  action: string,
+): Promise<Holding> {
+  return mustHold(await mustSeeField(store, p, id), p, `Field ${id}`, action);
+}
+
 export async function mustHoldSeries(
   store: Store,
   p: Principal,

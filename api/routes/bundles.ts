@@ -26,6 +26,7 @@ import { ProblemError, toPointer } from "../problems.ts";
 import { problems, ResolutionSchema, RunStatusSchema } from "../schemas/common.ts";
 import { InlineSeries, SeriesId } from "../schemas/series_ref.ts";
 import { RunIdString } from "../schemas/ids.ts";
+import type { Lineage } from "../runs/inherit.ts";
 import { storedFromNormalised } from "../series_codec.ts";
 import { ingestJson } from "../ingest/mod.ts";
 import { canonicalJson } from "../canonical.ts";
@@ -343,7 +344,12 @@ async function verifyRun(
       series: Object.fromEntries(inputSeries.map((id) => [id, series[id]])),
       runs: Object.fromEntries(inputRuns.map((id) => [id, verified.get(id)!])),
     };
-    const again = await runs.computeResult(kind, params, inputs);
+    // the inherited context comes from the bundle's own lineage, verified before this run
+    const lineage: Lineage = {
+      run: (id) => Promise.resolve(verified.get(id) ?? null),
+      seriesOrigin: (id) => Promise.resolve(series[id]?.derived_from ?? null),
+    };
+    const again = await runs.computeResult(kind, params, inputs, lineage);
     if (again.digest !== rec.result_digest) {
       differ(
         `${where}/result_digest`,
@@ -497,6 +503,17 @@ export function registerBundleRoutes(
         );
       }
       const { runs: deps, series } = await collect(store, run, viewerOf(principal));
+      const onField = [run, ...deps].find((r) => (r.input_fields?.length ?? 0) > 0);
+      if (onField) {
+        throw new ProblemError(
+          "conflict",
+          `Run ${onField.id} uses gridded field(s) ${onField.input_fields!.join(", ")}, which a ` +
+            "JSON bundle does not carry (a field may be 200 MB): replay the run here, or upload " +
+            "the same NetCDF file to the other instance (it gets the same field id) and run the " +
+            "same request there",
+          { fields: onField.input_fields },
+        );
+      }
       c.header("Content-Disposition", contentDisposition(`sunlag-run-${run.id}.json`));
       return c.json({
         format: BUNDLE_FORMAT,

@@ -23,6 +23,7 @@ import {
 import { parseIsoTime } from "../../core/time/mod.ts";
 import { renderChart, type RenderOptions } from "../charts/chart.ts";
 import { shortHash } from "../charts/svg.ts";
+import { renderAnyChart } from "../charts/map_chart.ts";
 import { seriesChartSpec } from "../charts/series_chart.ts";
 import { chartNeedsInputs, runChartSpec } from "../charts/run_charts.ts";
 import { SERVICE_VERSION } from "../version.ts";
@@ -226,7 +227,7 @@ export function registerChartRoutes(
             if (s && s.n <= 500_000) inputs.push(s);
           }
         }
-        const svg = renderChart(runChartSpec(run, kind, inputs), {
+        const svg = renderAnyChart(runChartSpec(run, kind, inputs), {
           ...opts,
           idPrefix: "r" + shortHash(etag),
         });

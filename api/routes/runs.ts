@@ -6,6 +6,7 @@
  */
 import { ensembleSourceOf } from "../analyses/common/ensemble_members.ts";
 import { bandAttributes } from "../analyses/common/uncertainty_band.ts";
+import { runLabel } from "../runs/label.ts";
 import { createRoute, z } from "@hono/zod-openapi";
 import { streamSSE } from "hono/streaming";
 import type { App } from "../app_env.ts";
@@ -42,7 +43,7 @@ const FINAL = new Set(["succeeded", "failed", "cancelled"]);
 
 /** The public view of a run record. */
 export function runView(r: RunRecord) {
-  return r;
+  return { ...r, label: runLabel(r.id) };
 }
 
 const RunId = RunIdParam;
@@ -93,7 +94,8 @@ export function registerRunRoutes(
     async (c) => {
       const q = c.req.valid("query");
       const page = await store.listRuns({ ...q, viewer: viewerOf(principalOf(c)) });
-      return c.json({ ...page, limit: q.limit, offset: q.offset }, 200);
+      const items = page.items.map((r) => ({ ...r, label: runLabel(r.id) }));
+      return c.json({ ...page, items, limit: q.limit, offset: q.offset }, 200);
     },
   );
 
@@ -331,7 +333,9 @@ export function registerRunRoutes(
       return c.json({
         run_id: run.id,
         result_digest: run.result_digest,
+        warnings: run.result?.warnings ?? [],
         cautions: run.result?.cautions ?? [],
+        ...(run.result?.inherited ? { inherited: run.result.inherited } : {}),
         ...o,
       });
     }) as never,

@@ -22,7 +22,15 @@ import { SeriesId } from "../schemas/series_ref.ts";
 import { RunIdString } from "../schemas/ids.ts";
 import { principalOf } from "../auth/authenticate.ts";
 import type { Principal } from "../auth/principal.ts";
-import { mustHoldRun, mustHoldSeries, mustSeeRun, mustSeeSeries } from "../auth/access.ts";
+import {
+  mustHoldField,
+  mustHoldRun,
+  mustHoldSeries,
+  mustSeeField,
+  mustSeeRun,
+  mustSeeSeries,
+} from "../auth/access.ts";
+import { FieldId } from "../analyses/common/field_ref.ts";
 import { requireJson } from "./media.ts";
 
 const VisibilitySchema = z.enum(VISIBILITIES as [Visibility, ...Visibility[]]).openapi({
@@ -70,11 +78,11 @@ async function shareClosure(
   owner: string,
   id: string,
   visibility: Visibility,
-): Promise<{ series: string[]; runs: string[] }> {
+): Promise<{ series: string[]; runs: string[]; fields: string[] }> {
   const group = await groupOf(store, owner);
   const ownView: Viewer = { owner, group, admin: false };
   const reach = audience(visibility, group);
-  const plan = { series: [] as string[], runs: [] as string[] };
+  const plan = { series: [] as string[], runs: [] as string[], fields: [] as string[] };
   const seen = new Set<string>([id]);
   const queue = [id];
   while (queue.length) {
@@ -92,6 +100,21 @@ async function shareClosure(
           `Run ${id} uses series ${sid}, which its owner shares less widely than ${visibility}; ` +
             "ask them to share it first",
           { input: sid },
+        );
+      }
+    }
+    for (const fid of run.input_fields ?? []) {
+      if (seen.has(fid)) continue;
+      seen.add(fid);
+      const h = await store.fieldHolding(fid, ownView);
+      if (h?.owner === owner) {
+        if (visibilityRank(h.visibility) < visibilityRank(visibility)) plan.fields.push(fid);
+      } else if (!(await store.fieldHolding(fid, reach))) {
+        throw new ProblemError(
+          "conflict",
+          `Run ${id} uses field ${fid}, which its owner shares less widely than ${visibility}; ` +
+            "ask them to share it first",
+          { input: fid },
         );
       }
     }
@@ -188,6 +211,64 @@ export function registerSharingRoutes(app: App, deps: { store: Store }): void {
     },
   );
 
+  const FieldParam = z.object({
+    id: FieldId.openapi({ param: { name: "id", in: "path" } }),
+  });
+
+  app.openapi(
+    createRoute({
+      method: "get",
+      path: "/v1/fields/{id}/sharing",
+      tags: ["Sharing"],
+      summary: "Who holds this gridded field and who may see it (the copy you see)",
+      request: { params: FieldParam },
+      responses: { 200: { description: "The holding", ...answer }, ...problems(404, 422) },
+    }),
+    async (c) => {
+      const id = c.req.valid("param").id;
+      const p = principalOf(c);
+      c.header("Cache-Control", "no-store");
+      return c.json(view(id, await mustSeeField(store, p, id), p), 200);
+    },
+  );
+
+  app.openapi(
+    createRoute({
+      method: "put",
+      path: "/v1/fields/{id}/sharing",
+      tags: ["Sharing"],
+      summary: "Share your gridded field with your group or everyone, or make it private again",
+      description: "Refused (409) when it would hide the field from a run that uses it.",
+      middleware: [requireJson()] as const,
+      request: {
+        params: FieldParam,
+        body: { required: true, content: { "application/json": { schema: ShareRequest } } },
+      },
+      responses: {
+        200: { description: "The holding after the change", ...answer },
+        ...problems(401, 403, 404, 409, 415, 422),
+      },
+    }),
+    async (c) => {
+      const id = c.req.valid("param").id;
+      const { visibility } = c.req.valid("json");
+      const p = principalOf(c);
+      const h = await mustHoldField(store, p, id, "share");
+      if (visibilityRank(visibility) < visibilityRank(h.visibility)) {
+        const users = await store.runsUsingField(id);
+        if (users.length > 0) {
+          throw new ProblemError(
+            "conflict",
+            `Field ${id} is an input of ${users.length} run(s); it stays ${h.visibility} so ` +
+              "they can be replayed",
+          );
+        }
+      }
+      await store.setFieldVisibility(id, h.owner, visibility);
+      return c.json(view(id, { ...h, visibility }, p), 200);
+    },
+  );
+
   app.openapi(
     createRoute({
       method: "get",
@@ -248,6 +329,7 @@ export function registerSharingRoutes(app: App, deps: { store: Store }): void {
         const plan = await shareClosure(store, h.owner, id, visibility);
         for (const sid of plan.series) await store.setSeriesVisibility(sid, h.owner, visibility);
         for (const rid of plan.runs) await store.setRunVisibility(rid, h.owner, visibility);
+        for (const fid of plan.fields) await store.setFieldVisibility(fid, h.owner, visibility);
       }
       await store.setRunVisibility(id, h.owner, visibility);
       return c.json(view(id, { ...h, visibility }, p), 200);

@@ -3,22 +3,32 @@
  *
  * Synchronous runs are computed first and stored only when they succeed, so a rejected
  * request (422) leaves the store unchanged. Asynchronous runs (asked for with
- * `Prefer: respond-async`, or estimated to take longer than the configured threshold) are
- * stored as `queued` with their inputs, then computed in the background; progress and the
- * final status are published to subscribers (Server-Sent Events).
+ * `Prefer: respond-async`, or estimated to take longer than the configured threshold) have
+ * their inputs checked first (`preflight`: a request refused for its input is a 422 and is not
+ * stored either), are then stored as `queued` with their inputs, and computed in the
+ * background; progress and the final status are published to subscribers (Server-Sent Events).
  *
  * @module
  */
 import { uuidv7 } from "uuidv7";
 import type { HolderSpec, RunRecord, Store, StoredSeries, Viewer } from "../store/types.ts";
 import { DEFAULT_HOLDER } from "../store/common.ts";
-import { CancelledError, InputProblem, type RunContext, type RunKind, type Task } from "./kind.ts";
+import {
+  CancelledError,
+  InputProblem,
+  type LoadedField,
+  type RunContext,
+  type RunInputs,
+  type RunKind,
+  type Task,
+} from "./kind.ts";
 import type { OutputSeries, RunResult } from "./kind.ts";
 import { SERIES_ID_PATTERN } from "../schemas/series_ref.ts";
 import type { InlineSeries } from "../schemas/series_ref.ts";
 import { ProblemError, toPointer } from "../problems.ts";
 import { canonicalJson, sha256Hex } from "../canonical.ts";
 import { toPlainJson } from "./json.ts";
+import { gatherInherited, type Lineage, withInherited } from "./inherit.ts";
 import { SERVICE_VERSION } from "../version.ts";
 import { taskTable } from "../analyses/derive.ts";
 import { RUN_KINDS } from "../analyses/registry.ts";
@@ -27,6 +37,7 @@ import { InProcessQueue } from "../queue/in_process.ts";
 import type { RunQueue } from "../queue/types.ts";
 import type { ChunkRouter } from "../queue/chunks.ts";
 import { TERMINAL } from "../store/types.ts";
+import { fieldMetaOf } from "../store/field_common.ts";
 
 /** How inline and output series become stored series (implemented over api/ingest). */
 export interface SeriesCodec {
@@ -53,7 +64,7 @@ export interface ComputeExecutor {
   compute(
     kind: RunKind,
     params: Record<string, unknown>,
-    inputs: { series: Record<string, StoredSeries>; runs: Record<string, RunRecord> },
+    inputs: RunInputs,
     hooks: ComputeHooks,
   ): Promise<RunResult>;
   /** Map a named task over inputs (used by in-thread compute too). */
@@ -72,7 +83,7 @@ export class InThreadExecutor implements ComputeExecutor {
   async compute(
     kind: RunKind,
     params: Record<string, unknown>,
-    inputs: { series: Record<string, StoredSeries>; runs: Record<string, RunRecord> },
+    inputs: RunInputs,
     hooks: ComputeHooks,
   ): Promise<RunResult> {
     hooks.onStart();
@@ -92,7 +103,7 @@ export class InThreadExecutor implements ComputeExecutor {
 
 /** Build the RunContext seen by compute. */
 export function makeContext(
-  inputs: { series: Record<string, StoredSeries>; runs: Record<string, RunRecord> },
+  inputs: RunInputs,
   hooks: { progress(f: number): void; isCancelled(): boolean },
   parallel: <I, O>(task: string, chunks: I[]) => Promise<O[]>,
 ): RunContext {
@@ -108,6 +119,11 @@ export function makeContext(
       const r = inputs.runs[id];
       if (!r) throw new Error(`run ${id} was not loaded for this run`);
       return r;
+    },
+    field(id) {
+      const f = inputs.fields?.[id];
+      if (!f) throw new Error(`field ${id} was not loaded for this run`);
+      return f;
     },
     resultOf(kind, id, pointer) {
       const r = inputs.runs[id];
@@ -199,6 +215,14 @@ export function collectSeriesIds(
 /** The digest of a result: hex SHA-256 of its RFC 8785 canonical JSON. */
 export async function resultDigest(result: unknown): Promise<string> {
   return await sha256Hex(canonicalJson(result));
+}
+
+/** Stops a preflight at the end of the input checks (the first progress report). */
+class InputsChecked extends Error {
+  constructor() {
+    super("input checks done");
+    this.name = "InputsChecked";
+  }
 }
 
 /** A run this process computes: its stop flag (set by a cancel or a lost lease). */
@@ -362,7 +386,74 @@ export class RunService {
         },
       );
     }
-    return { params: normalised, series, runs, inline };
+    const fields = await this.#loadFields(kind, normalised, { series, runs }, viewer);
+    return { params: normalised, series, runs, fields, inline };
+  }
+
+  /** Load the time steps each field reference needs (only the blocks that overlap). */
+  async #loadFields(
+    kind: RunKind,
+    params: Record<string, unknown>,
+    loaded: RunInputs,
+    viewer?: Viewer,
+  ): Promise<Record<string, LoadedField>> {
+    if (!kind.fieldRefs) return {};
+    const ctx = makeContext(loaded, { progress: () => {}, isCancelled: () => false }, () => {
+      throw new Error("fieldRefs cannot map tasks");
+    });
+    let refs;
+    try {
+      refs = kind.fieldRefs(params as never, ctx);
+    } catch (e) {
+      throw asProblem(e);
+    }
+    const out: Record<string, LoadedField> = {};
+    const errors: { pointer: string; message: string }[] = [];
+    for (const ref of refs) {
+      const visible = !viewer || await this.store.fieldHolding(ref.id, viewer);
+      const f = visible ? await this.store.getField(ref.id) : null;
+      if (!f) {
+        errors.push({ pointer: ref.pointer, message: `no stored field has id ${ref.id}` });
+        continue;
+      }
+      const from = ref.from ?? -Infinity, to = ref.to ?? Infinity;
+      let a = 0, b = f.n_time;
+      while (a < b && f.time[a] < from) a++;
+      while (b > a && f.time[b - 1] > to) b--;
+      if (ref.firstSteps !== undefined) b = Math.min(b, a + Math.max(1, ref.firstSteps));
+      if (b <= a) {
+        errors.push({
+          pointer: ref.spanPointer ?? ref.pointer,
+          message: `field ${ref.id} (${f.start.toFixed(3)}..${f.end.toFixed(3)}) has no time ` +
+            `step in the span the other inputs cover (${from.toFixed(3)}..${to.toFixed(3)})`,
+        });
+        continue;
+      }
+      const prev = out[ref.id];
+      if (prev && prev.stepStart <= a && prev.stepStart + prev.time.length >= b) continue;
+      if (prev) {
+        a = Math.min(a, prev.stepStart);
+        b = Math.max(b, prev.stepStart + prev.time.length);
+      }
+      out[ref.id] = {
+        meta: fieldMetaOf(f),
+        lat: f.lat,
+        lon: f.lon,
+        lat_bounds: f.lat_bounds,
+        lon_bounds: f.lon_bounds,
+        stepStart: a,
+        time: f.time.slice(a, b),
+        values: await this.store.readFieldSteps(ref.id, a, b),
+      };
+    }
+    if (errors.length) {
+      throw new ProblemError(
+        "validation",
+        `The request's gridded field cannot be used: ${errors[0].message}`,
+        { errors },
+      );
+    }
+    return out;
   }
 
   /** Create a run. */
@@ -385,6 +476,7 @@ export class RunService {
       params: prep.params,
       input_series: Object.keys(prep.series).sort(),
       input_runs: Object.keys(prep.runs).sort(),
+      ...(Object.keys(prep.fields).length ? { input_fields: Object.keys(prep.fields).sort() } : {}),
       service_version: SERVICE_VERSION,
       algorithm_version: kind.algorithmVersion,
       seed,
@@ -398,6 +490,13 @@ export class RunService {
     const admission = opts.limited ? this.options.admission : undefined;
     const ticket = admission?.admit(holder.owner, isAsync ? "async" : "sync") ?? null;
     if (isAsync) {
+      // refused for its input: a 422 now, and nothing stored (as for a synchronous run)
+      try {
+        await this.preflight(kind, prep.params, prep);
+      } catch (e) {
+        ticket?.done(0);
+        throw e;
+      }
       try {
         for (const s of prep.inline.values()) await this.store.putSeries(s, holder);
         await this.store.putRun(run, holder);
@@ -426,14 +525,41 @@ export class RunService {
   }
 
   /**
-   * Compute a result from params and loaded inputs, without storing anything. A computation
-   * still going after the wall-time limit is asked to stop and answered with a time-limit
-   * problem (computed in this thread, it is refused once it returns).
+   * Check a request's inputs before an asynchronous run is stored: run the analysis' compute
+   * in this thread up to its first progress report or parallel map, where by the contract of
+   * `RunContext.progress` its input checks are done (an analysis without either is cheap and
+   * runs to its end; the result is not kept). An input problem is thrown as the 422 the
+   * synchronous path gives; the request is then not stored.
+   */
+  async preflight(
+    kind: RunKind,
+    params: Record<string, unknown>,
+    inputs: { series: Record<string, StoredSeries>; runs: Record<string, RunRecord> },
+  ): Promise<void> {
+    const checked = () => {
+      throw new InputsChecked();
+    };
+    const ctx = makeContext(inputs, { progress: checked, isCancelled: () => false }, checked);
+    try {
+      await kind.compute(params, ctx);
+    } catch (e) {
+      if (e instanceof InputsChecked) return;
+      throw asProblem(e);
+    }
+  }
+
+  /**
+   * Compute a result from params and loaded inputs, without storing anything. The result
+   * carries the warnings and cautions of the runs it is built on (`inherited`), looked up in
+   * `lineage` (default: the store). A computation still going after the wall-time limit is
+   * asked to stop and answered with a time-limit problem (computed in this thread, it is
+   * refused once it returns).
    */
   async computeResult(
     kind: RunKind,
     params: Record<string, unknown>,
-    inputs: { series: Record<string, StoredSeries>; runs: Record<string, RunRecord> },
+    inputs: RunInputs,
+    lineage: Lineage = this.lineage(),
   ): Promise<{ result: Record<string, unknown>; digest: string }> {
     let result: RunResult;
     let stop = false;
@@ -464,15 +590,33 @@ export class RunService {
       clearTimeout(timer);
     }
     if (performance.now() - t0 > wallMs) throw timeLimitProblem(this.options.wallSeconds!);
-    const plain = toPlainJson(result) as Record<string, unknown>;
+    const plain = await this.finishResult(result, inputs, lineage);
     return { result: plain, digest: await resultDigest(plain) };
+  }
+
+  /** The stored form of a computed result: plain JSON with its inherited context. */
+  private async finishResult(
+    result: RunResult,
+    inputs: { series: Record<string, StoredSeries>; runs: Record<string, RunRecord> },
+    lineage: Lineage,
+  ): Promise<Record<string, unknown>> {
+    const plain = toPlainJson(result) as Record<string, unknown>;
+    return withInherited(plain, await gatherInherited(inputs, lineage));
+  }
+
+  /** The lineage of runs as the store holds it. */
+  lineage(): Lineage {
+    return {
+      run: (id) => this.store.getRun(id),
+      seriesOrigin: async (id) => (await this.store.getSeriesMeta(id))?.derived_from ?? null,
+    };
   }
 
   /** Compute without storing; returns the finished record or throws the input problem. */
   private async computeRun(
     kind: RunKind,
     run: RunRecord,
-    prep: { series: Record<string, StoredSeries>; runs: Record<string, RunRecord> },
+    prep: RunInputs,
   ): Promise<RunRecord> {
     const { result, digest } = await this.computeResult(kind, run.params, prep);
     return {
@@ -588,7 +732,7 @@ export class RunService {
   async #computeLeased(
     kind: RunKind,
     run: RunRecord,
-    prep: { series: Record<string, StoredSeries>; runs: Record<string, RunRecord> },
+    prep: RunInputs,
     active: Active,
     publish: (e: RunEvent) => void,
     owner: HolderSpec,
@@ -628,7 +772,7 @@ export class RunService {
     const late = overTime();
     if (late) throw late;
     if (active.cancelled) throw new CancelledError();
-    const plain = toPlainJson(result) as Record<string, unknown>;
+    const plain = await this.finishResult(result, prep, this.lineage());
     const digest = await resultDigest(plain);
     if (active.final) return;
     active.final = true;
@@ -711,6 +855,10 @@ export class RunService {
         ? "The recomputed result is byte-identical (same RFC 8785 canonical JSON digest)."
         : versionChanged
         ? `The algorithm of "${run.kind}" changed since this run (${run.algorithm_version} → ${kind.algorithmVersion}); the results differ.`
+        : await onlyInheritedAdded(run.result, again.result)
+        ? "The recomputed result equals the stored one except for its `inherited` part (the " +
+          "warnings and cautions of the runs it is built on), which results carry since a " +
+          "later service version than the one that made this run."
         : "The recomputed result differs from the stored one although the algorithm version is unchanged.",
       result: again.result,
     };
@@ -750,6 +898,16 @@ export class RunService {
   async settle(): Promise<void> {
     await this.transport.queue.settle();
   }
+}
+
+/** True when `again` is `stored` plus an `inherited` part that `stored` lacks. */
+async function onlyInheritedAdded(
+  stored: Record<string, unknown> | null,
+  again: Record<string, unknown> | null,
+): Promise<boolean> {
+  if (!stored || !again || "inherited" in stored || !("inherited" in again)) return false;
+  const { inherited: _, ...rest } = again;
+  return await resultDigest(rest) === await resultDigest(stored);
 }
 
 function findPointer(params: unknown, needle: string): string {

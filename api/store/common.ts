@@ -223,7 +223,10 @@ export function encodeRunPatch(
   const out: [string, string | number | null][] = [];
   const p: Record<string, unknown> = { ...patch, updated_at: patch.updated_at ?? now };
   for (const [key, value] of Object.entries(p)) {
-    if (value === undefined || key === "input_series" || key === "input_runs") continue;
+    if (
+      value === undefined || key === "input_series" || key === "input_runs" ||
+      key === "input_fields"
+    ) continue;
     const enc = RUN_PATCH_COLUMNS[key];
     if (!enc) throw new RangeError(`Cannot update run ${id}: unknown field "${key}"`);
     out.push([key, enc(value)]);

@@ -36,7 +36,7 @@ export class DuplicateRunError extends Error {
 export class MissingInputError extends Error {
   constructor(
     readonly runId: string,
-    readonly inputKind: "series" | "run",
+    readonly inputKind: "series" | "run" | "field",
     readonly inputId: string,
   ) {
     super(`Cannot record run "${runId}": its input ${inputKind} "${inputId}" is not stored`);

@@ -37,7 +37,10 @@ import type {
   Viewer,
   Visibility,
 } from "./types.ts";
+import type { FieldDescription, FieldFinal, FieldMeta, FieldStaging } from "./field_types.ts";
 import { bytesLEToFloat64, float64ToBytesLE } from "./float64_blob.ts";
+import { FIELD_MIGRATION_NAME, POSTGRES_FIELD_SQL } from "./field_common.ts";
+import { PostgresFields } from "./postgres_fields.ts";
 import {
   checkPaging,
   checkSeries,
@@ -210,6 +213,7 @@ export const POSTGRES_MIGRATIONS: readonly Migration[] = [
         SELECT id, 'local', 'private', created_at FROM runs ORDER BY seq;
     `,
   },
+  { version: 4, name: FIELD_MIGRATION_NAME, sql: POSTGRES_FIELD_SQL },
 ];
 
 const API_KEY_COLUMNS = [
@@ -277,8 +281,14 @@ export class PostgresStore implements Store {
   #sql: Sql;
 
   /** Use {@link openPostgresStore}; the constructor expects a migrated database. */
+  #fields: PostgresFields;
+
   constructor(sql: Sql) {
     this.#sql = sql;
+    this.#fields = new PostgresFields(sql, {
+      visible: (tx, h, v) => this.#visible(tx, h, v),
+      pickOrder: (tx, h, v) => this.#pickOrder(tx, h, v),
+    });
   }
 
   /** The visibility test of a holding aliased `h` for a viewer (a query fragment). */
@@ -572,6 +582,7 @@ export class PostgresStore implements Store {
         INSERT INTO runs ${tx(runRow(r))} ON CONFLICT (id) DO NOTHING RETURNING id`;
       if (inserted.length === 0) throw new DuplicateRunError(r.id);
       await this.#writeLinks(tx, r.id, r.input_series, r.input_runs);
+      await this.#fields.linkRun(tx, r.id, r.input_fields ?? []);
       await tx`
         INSERT INTO run_holdings (run_id, owner_id, visibility, created_at)
         VALUES (${r.id}, ${holder.owner}, ${holder.visibility}, ${r.created_at})`;
@@ -647,8 +658,10 @@ export class PostgresStore implements Store {
       if (rows.length === 0) return null;
       const row: DbRow = rows[0];
       const links = (await this.#links(tx, [id])).get(id)!;
+      const fields = await this.#fields.runFields(tx, id);
       const record: RunRecord = {
         ...toRunSummary(row, links.series, links.runs),
+        ...(fields.length ? { input_fields: fields } : {}),
         params: JSON.parse(text(row.params)),
         result: jsonOrNull(row.result),
         error: jsonOrNull(row.error),
@@ -841,8 +854,77 @@ export class PostgresStore implements Store {
                   WHERE h.owner_id = ${owner}), 0) * 24 +
         COALESCE((SELECT sum(octet_length(r.params) + COALESCE(octet_length(r.result), 0))
                   FROM run_holdings h JOIN runs r ON r.id = h.run_id
-                  WHERE h.owner_id = ${owner}), 0) AS n`;
+                  WHERE h.owner_id = ${owner}), 0) +
+        COALESCE((SELECT sum(f.n_time::bigint * f.n_lat * f.n_lon) FROM field_holdings h
+                  JOIN fields f ON f.id = h.field_id WHERE h.owner_id = ${owner}), 0) * 4 AS n`;
     return Number(n);
+  }
+
+  beginField(f: FieldStaging): Promise<number> {
+    return this.#fields.begin(f);
+  }
+
+  putFieldBlock(
+    stage: number,
+    index: number,
+    tStart: number,
+    rows: number,
+    values: Float32Array,
+  ): Promise<void> {
+    return this.#fields.putBlock(stage, index, tStart, rows, values);
+  }
+
+  commitField(
+    stage: number,
+    id: string,
+    final?: FieldFinal,
+    holder?: HolderSpec,
+  ): Promise<{ created: boolean; field: FieldMeta }> {
+    return this.#fields.commit(stage, id, final, holder);
+  }
+
+  abortField(stage: number): Promise<void> {
+    return this.#fields.abort(stage);
+  }
+
+  dropStagedFields(olderThanSeconds: number): Promise<number> {
+    return this.#fields.dropStaged(olderThanSeconds);
+  }
+
+  getField(id: string, viewer?: Viewer): Promise<FieldDescription | null> {
+    return this.#fields.get(id, viewer);
+  }
+
+  listFields(q: { limit: number; offset: number; viewer?: Viewer }): Promise<Page<FieldMeta>> {
+    return this.#fields.list(q);
+  }
+
+  fieldHolding(id: string, viewer: Viewer): Promise<Holding | null> {
+    return this.#fields.holding(id, viewer);
+  }
+
+  setFieldVisibility(id: string, owner: string, visibility: Visibility): Promise<boolean> {
+    return this.#fields.setVisibility(id, owner, visibility);
+  }
+
+  deleteFieldHolding(id: string, owner: string): Promise<"deleted" | "not_found" | "in_use"> {
+    return this.#fields.deleteHolding(id, owner);
+  }
+
+  readFieldSteps(id: string, tStart: number, tEnd: number): Promise<Float32Array> {
+    return this.#fields.readSteps(id, tStart, tEnd);
+  }
+
+  readFieldCell(id: string, cell: number): Promise<Float32Array> {
+    return this.#fields.readCell(id, cell);
+  }
+
+  deleteField(id: string): Promise<"deleted" | "not_found" | "in_use"> {
+    return this.#fields.delete(id);
+  }
+
+  runsUsingField(id: string): Promise<string[]> {
+    return this.#fields.runsUsing(id);
   }
 
   /** Applied schema steps, oldest first. */

@@ -45,7 +45,10 @@ import type {
   Viewer,
   Visibility,
 } from "./types.ts";
+import type { FieldDescription, FieldFinal, FieldMeta, FieldStaging } from "./field_types.ts";
 import { bytesLEToFloat64, float64ToBytesLE } from "./float64_blob.ts";
+import { FIELD_MIGRATION_NAME, SQLITE_FIELD_SQL } from "./field_common.ts";
+import { SqliteFields } from "./sqlite_fields.ts";
 import { TERMINAL } from "./types.ts";
 import { OFFLOAD_POINTS, SqliteWriter } from "./sqlite_writer.ts";
 import {
@@ -214,10 +217,11 @@ export const SQLITE_MIGRATIONS: readonly Migration[] = [
         SELECT id, 'local', 'private', created_at FROM runs ORDER BY seq;
     `,
   },
+  { version: 4, name: FIELD_MIGRATION_NAME, sql: SQLITE_FIELD_SQL },
 ];
 
 /** The visibility test of a holding row aliased `h` for a viewer, with its arguments. */
-function visibleTo(h: string, v: Viewer): { sql: string; args: SQLInputValue[] } {
+export function visibleTo(h: string, v: Viewer): { sql: string; args: SQLInputValue[] } {
   if (v.admin) return { sql: "1 = 1", args: [] };
   if (v.owner === null) return { sql: `${h}.visibility = 'public'`, args: [] };
   return {
@@ -228,7 +232,7 @@ function visibleTo(h: string, v: Viewer): { sql: string; args: SQLInputValue[] }
 }
 
 /** The order in which a viewer's holding is chosen: its own, then the widest, then the oldest. */
-function pickOrder(h: string, v: Viewer): { sql: string; args: SQLInputValue[] } {
+export function pickOrder(h: string, v: Viewer): { sql: string; args: SQLInputValue[] } {
   return {
     sql: `ORDER BY (${h}.owner_id = ?) DESC,
       CASE ${h}.visibility WHEN 'public' THEN 0 WHEN 'group' THEN 1 ELSE 2 END, ${h}.seq`,
@@ -291,7 +295,10 @@ export class SqliteStore implements Store {
   constructor(db: DatabaseSync, readonly path: string, writer: SqliteWriter | null = null) {
     this.#db = db;
     this.#writer = writer;
+    this.#fields = new SqliteFields(db, { visibleTo, pickOrder });
   }
+
+  #fields: SqliteFields;
 
   #stmt(sql: string): StatementSync {
     let s = this.#stmts.get(sql);
@@ -648,6 +655,7 @@ export class SqliteStore implements Store {
           `INSERT INTO runs (${RUN_ALL}) VALUES (${marks(RUN_COLUMNS.length)})`,
         ).run(...runValues(r));
         this.#writeLinks(r.id, r.input_series, r.input_runs);
+        if (r.input_fields?.length) this.#fields.linkRun(r.id, r.input_fields);
         this.#stmt(
           `INSERT INTO run_holdings (run_id, owner_id, visibility, created_at) VALUES (?, ?, ?, ?)`,
         ).run(r.id, holder.owner, holder.visibility, r.created_at);
@@ -740,8 +748,10 @@ export class SqliteStore implements Store {
         | undefined;
       if (!row) return null;
       const links = this.#links([id]).get(id)!;
+      const fields = this.#fields.runFields(id);
       const record: RunRecord = {
         ...toRunSummary(row, links.series, links.runs),
+        ...(fields.length ? { input_fields: fields } : {}),
         params: JSON.parse(text(row.params)),
         result: jsonOrNull(row.result),
         error: jsonOrNull(row.error),
@@ -1004,11 +1014,80 @@ export class SqliteStore implements Store {
              COALESCE((SELECT sum(length(CAST(r.params AS BLOB)) +
                               COALESCE(length(CAST(r.result AS BLOB)), 0))
                        FROM run_holdings h JOIN runs r ON r.id = h.run_id
-                       WHERE h.owner_id = ?), 0) AS n`,
-        ).get(owner, owner) as Row
+                       WHERE h.owner_id = ?), 0) +
+             COALESCE((SELECT sum(f.n_time * f.n_lat * f.n_lon) FROM field_holdings h
+                       JOIN fields f ON f.id = h.field_id WHERE h.owner_id = ?), 0) * 4 AS n`,
+        ).get(owner, owner, owner) as Row
       );
       return Number(row.n);
     });
+  }
+
+  beginField(f: FieldStaging): Promise<number> {
+    return settle(() => this.#fields.begin(f));
+  }
+
+  putFieldBlock(
+    stage: number,
+    index: number,
+    tStart: number,
+    rows: number,
+    values: Float32Array,
+  ): Promise<void> {
+    return settle(() => this.#fields.putBlock(stage, index, tStart, rows, values));
+  }
+
+  commitField(
+    stage: number,
+    id: string,
+    final?: FieldFinal,
+    holder?: HolderSpec,
+  ): Promise<{ created: boolean; field: FieldMeta }> {
+    return settle(() => this.#fields.commit(stage, id, final, holder));
+  }
+
+  abortField(stage: number): Promise<void> {
+    return settle(() => this.#fields.abort(stage));
+  }
+
+  dropStagedFields(olderThanSeconds: number): Promise<number> {
+    return settle(() => this.#fields.dropStaged(olderThanSeconds));
+  }
+
+  getField(id: string, viewer?: Viewer): Promise<FieldDescription | null> {
+    return settle(() => this.#fields.get(id, viewer));
+  }
+
+  listFields(q: { limit: number; offset: number; viewer?: Viewer }): Promise<Page<FieldMeta>> {
+    return settle(() => this.#fields.list(q));
+  }
+
+  fieldHolding(id: string, viewer: Viewer): Promise<Holding | null> {
+    return settle(() => this.#fields.holding(id, viewer));
+  }
+
+  setFieldVisibility(id: string, owner: string, visibility: Visibility): Promise<boolean> {
+    return settle(() => this.#fields.setVisibility(id, owner, visibility));
+  }
+
+  deleteFieldHolding(id: string, owner: string): Promise<"deleted" | "not_found" | "in_use"> {
+    return settle(() => this.#fields.deleteHolding(id, owner));
+  }
+
+  readFieldSteps(id: string, tStart: number, tEnd: number): Promise<Float32Array> {
+    return settle(() => this.#fields.readSteps(id, tStart, tEnd));
+  }
+
+  readFieldCell(id: string, cell: number): Promise<Float32Array> {
+    return settle(() => this.#fields.readCell(id, cell));
+  }
+
+  deleteField(id: string): Promise<"deleted" | "not_found" | "in_use"> {
+    return settle(() => this.#fields.delete(id));
+  }
+
+  runsUsingField(id: string): Promise<string[]> {
+    return settle(() => this.#fields.runsUsing(id));
   }
 
   async close(): Promise<void> {
@@ -1016,6 +1095,7 @@ export class SqliteStore implements Store {
     this.#writer = null;
     if (this.#db.isOpen) {
       this.#stmts.clear();
+      this.#fields.clear();
       this.#db.close();
     }
   }

@@ -5,6 +5,9 @@
  *
  * @module
  */
+import type { FieldStore } from "./field_types.ts";
+
+export type * from "./field_types.ts";
 
 /** Who may see a held item: its owner (and admins), the owner's group, or everyone. */
 export type Visibility = "private" | "group" | "public";
@@ -132,6 +135,8 @@ export interface RunRecord {
   input_series: string[];
   /** Ids of every input run (e.g. a calibrated model cited by a reconstruction), sorted. */
   input_runs: string[];
+  /** Ids of every input gridded field, sorted; absent when the run has none. */
+  input_fields?: string[];
   service_version: string;
   algorithm_version: string;
   seed: number | null;
@@ -161,7 +166,7 @@ export interface Page<T> {
   total: number;
 }
 
-export interface Store {
+export interface Store extends FieldStore {
   /** "sqlite" (file or memory) or "postgres". */
   readonly kind: string;
   /** True when the store answers a trivial query. */

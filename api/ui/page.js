@@ -7,12 +7,13 @@
  * text, never parsed as HTML; charts (SVG from the service) are parsed as XML and stripped of
  * scripts and event handlers before they are shown.
  *
- * Views (in the URL fragment): #/series, #/series/{id}, #/runs, #/runs/{id}, #/upload,
- * #/analyse.
+ * Views (in the URL fragment): #/series, #/series/{id}, #/fields, #/fields/{id} (fields.js),
+ * #/runs, #/runs/{id}, #/upload, #/analyse.
  *
  * @module
  */
 import { curlScript, pythonSnippet } from "./snippets.js";
+import { fieldList, fieldView, mapDownloads } from "./fields.js";
 import {
   append,
   badge,
@@ -23,6 +24,7 @@ import {
   isScalar,
   metaList,
   pretty,
+  runLabel,
   seg,
   table,
   when,
@@ -204,7 +206,9 @@ async function drawChart(box) {
   const path = box.dataset.src ?? "";
   const width = Math.max(320, Math.min(1000, Math.round((box.clientWidth || 800) - 18)));
   const height = Math.max(240, Math.round(width * (width < 500 ? 0.75 : 0.5)));
-  const url = `${path}?width=${width}&height=${height}&theme=${effectiveTheme()}`;
+  const url = `${path}${
+    path.includes("?") ? "&" : "?"
+  }width=${width}&height=${height}&theme=${effectiveTheme()}`;
   let res;
   try {
     res = await authFetch(url);
@@ -270,6 +274,11 @@ function redrawCharts() {
   }
 }
 
+/** The shared pieces the views of fields.js draw with. */
+function ui() {
+  return { show, chart, pager, snippets, keyedDownload, pageSize };
+}
+
 // ---------------------------------------------------------------------------------------------
 // Router
 
@@ -320,6 +329,8 @@ async function render(navigated = false) {
     else if (section === "series") await seriesList(gen, query);
     else if (section === "runs" && parts[1]) await runView(gen, parts[1]);
     else if (section === "runs") await runList(gen, query);
+    else if (section === "fields" && parts[1]) await fieldView(gen, parts[1], query, ui());
+    else if (section === "fields") await fieldList(gen, query, ui());
     else if (section === "upload") await uploadView(gen);
     else if (section === "analyse") await analyseView(gen, query);
     else {show(
@@ -508,7 +519,7 @@ async function seriesView(gen, id) {
         ? callout(
           "warn",
           "Warnings of the run that produced it",
-          h("ul", null, warnings.map((/** @type {string} */ w) => h("li", null, w))),
+          h("ul", null, warnings.map((/** @type {any} */ w) => h("li", null, w))),
         )
         : null,
       cautions.length
@@ -568,7 +579,12 @@ async function seriesView(gen, id) {
       ["Source", s.source],
       [
         "Derived from run",
-        s.derived_from ? h("a", { href: `#/runs/${s.derived_from}` }, s.derived_from) : null,
+        s.derived_from
+          ? h("a", { href: `#/runs/${s.derived_from}`, title: s.derived_from }, [
+            "run ",
+            h("code", null, runLabel(s.derived_from)),
+          ])
+          : null,
       ],
       ["Stored", when(s.created_at)],
     ]),
@@ -614,7 +630,8 @@ async function runList(gen, query) {
   const kinds = Object.keys(version.data?.algorithms ?? {}).sort();
   const items = /** @type {any[]} */ (r.data.items);
   const rows = items.map((run) => [
-    h("a", { href: `#/runs/${run.id}` }, pretty(run.kind)),
+    h("a", { href: `#/runs/${run.id}`, title: run.id }, h("code", null, runLabel(run.id))),
+    pretty(run.kind),
     badge(run.status),
     run.status === "running" ? `${Math.round(run.progress * 100)} %` : "",
     when(run.created_at),
@@ -645,13 +662,15 @@ async function runList(gen, query) {
       ),
       h("a", { class: "button", href: "#/analyse" }, "Start an analysis"),
     ),
-    items.length ? table(["Kind", "Status", "Progress", "Created", "Result digest"], rows) : h(
-      "p",
-      { class: "muted", id: "empty" },
-      "No runs yet. ",
-      h("a", { href: "#/analyse" }, "Start an analysis"),
-      ".",
-    ),
+    items.length
+      ? table(["Run", "Kind", "Status", "Progress", "Created", "Result digest"], rows)
+      : h(
+        "p",
+        { class: "muted", id: "empty" },
+        "No runs yet. ",
+        h("a", { href: "#/analyse" }, "Start an analysis"),
+        ".",
+      ),
     pager("#/runs", query, offset, r.data.total, items.length),
     snippets([req]).el,
   );
@@ -696,7 +715,7 @@ function resultParts(result) {
     }
   };
   for (const [k, v] of Object.entries(result)) {
-    if (k === "outputs" || k === "warnings" || k === "cautions") continue;
+    if (["outputs", "warnings", "cautions", "inherited"].includes(k)) continue;
     visit(k, v, 0);
   }
   return { scalars, tables };
@@ -850,8 +869,23 @@ async function runView(gen, id) {
   }
 
   const result = isObject(run.result) ? run.result : {};
-  const warnings = Array.isArray(result.warnings) ? result.warnings : [];
-  const cautions = Array.isArray(result.cautions) ? result.cautions : [];
+  // The run's own warnings and cautions, then those of the runs it is built on (linked).
+  const inherited = Array.isArray(result.inherited) ? result.inherited : [];
+  /** @param {"warning" | "caution"} level */
+  const fromRuns = (level) =>
+    inherited.filter((/** @type {any} */ n) => n.level === level).map((/** @type {any} */ n) => [
+      h("a", { href: `#/runs/${seg(n.run)}` }, `From ${pretty(n.kind)} run ${runLabel(n.run)}`),
+      ": ",
+      n.text,
+    ]);
+  const warnings = [
+    ...(Array.isArray(result.warnings) ? result.warnings : []),
+    ...fromRuns("warning"),
+  ];
+  const cautions = [
+    ...(Array.isArray(result.cautions) ? result.cautions : []),
+    ...fromRuns("caution"),
+  ];
   const outputs = isObject(result.outputs) ? Object.entries(result.outputs) : [];
   const { scalars, tables } = resultParts(result);
   if (run.status === "succeeded") {
@@ -898,7 +932,7 @@ async function runView(gen, id) {
       )
     ),
     ...(run.input_runs ?? []).map((/** @type {string} */ s) =>
-      h("a", { href: `#/runs/${s}` }, h("code", null, `run ${s}`))
+      h("a", { href: `#/runs/${s}`, title: s }, h("code", null, `run ${runLabel(s)}`))
     ),
   ];
 
@@ -906,7 +940,7 @@ async function runView(gen, id) {
     gen,
     `${pretty(run.kind)} run`,
     h("p", { class: "muted" }, h("a", { href: "#/runs" }, "← All runs")),
-    h("h1", null, `${pretty(run.kind)} run`),
+    h("h1", null, `${pretty(run.kind)} run ${runLabel(run.id)}`),
     statusLine,
     live,
     run.status === "failed" && run.error ? problemBox(run.error, "The run failed") : null,
@@ -917,19 +951,20 @@ async function runView(gen, id) {
       ? callout(
         "warn",
         "Warnings",
-        h("ul", null, warnings.map((/** @type {string} */ w) => h("li", null, w))),
+        h("ul", null, warnings.map((/** @type {any} */ w) => h("li", null, w))),
       )
       : null,
     cautions.length
       ? callout(
         "",
         "Cautions",
-        h("ul", { class: "cautions" }, cautions.map((/** @type {string} */ c) => h("li", null, c))),
+        h("ul", { class: "cautions" }, cautions.map((/** @type {any} */ c) => h("li", null, c))),
       )
       : null,
     run.status === "succeeded"
       ? chart(`${path}/chart.svg`, `Chart of the ${pretty(run.kind)} run`)
       : null,
+    run.status === "succeeded" && isObject(result.map) ? mapDownloads(run.id, ui()) : null,
     run.status === "succeeded" ? replayPanel(path) : null,
     scalars.length
       ? [
@@ -1126,11 +1161,12 @@ function replayPanel(path) {
 
 /** @param {number} gen @param {URLSearchParams} query */
 async function analyseView(gen, query) {
-  const [doc, indexRes, seriesRes, runsRes] = await Promise.all([
+  const [doc, indexRes, seriesRes, runsRes, fieldsRes] = await Promise.all([
     openApi(),
     call({ method: "GET", path: "/v1/analyses" }),
     call({ method: "GET", path: "/v1/series", query: { limit: 500 } }),
     call({ method: "GET", path: "/v1/runs", query: { limit: 200, status: "succeeded" } }),
+    call({ method: "GET", path: "/v1/fields", query: { limit: 200 } }),
   ]);
   const series = seriesRes.ok ? seriesRes.data.items : [];
   const runs = runsRes.ok ? runsRes.data.items : [];
@@ -1209,6 +1245,8 @@ async function analyseView(gen, query) {
     series,
     runs,
     preselect: query.get("series") ?? undefined,
+    fields: fieldsRes.ok ? fieldsRes.data.items : [],
+    field: query.get("field") ?? undefined,
   });
   const mainFields = fields.filter((f) => f.main);
   const moreFields = fields.filter((f) => !f.main);

@@ -7,8 +7,7 @@
  *
  * @module
  */
-import type { RunRecord, StoredSeries } from "../store/types.ts";
-import type { RunKind, RunResult } from "../runs/kind.ts";
+import type { RunInputs, RunKind, RunResult } from "../runs/kind.ts";
 import { CancelledError, InputProblem } from "../runs/kind.ts";
 import { InputError } from "../../core/errors.ts";
 import type { ComputeExecutor, ComputeHooks } from "../runs/service.ts";
@@ -159,7 +158,7 @@ export class WorkerPool implements ComputeExecutor {
   compute(
     kind: RunKind,
     params: Record<string, unknown>,
-    inputs: { series: Record<string, StoredSeries>; runs: Record<string, RunRecord> },
+    inputs: RunInputs,
     hooks: ComputeHooks,
   ): Promise<RunResult> {
     const id = this.nextJob++;
@@ -187,7 +186,11 @@ export class WorkerPool implements ComputeExecutor {
         onStart: hooks.onStart,
         scatter: hooks.scatter,
       });
-      slot.worker.postMessage({ type: "run", job: id, kind: kind.kind, params, inputs });
+      // a field's values go to the worker without a copy (the caller does not reuse them)
+      slot.worker.postMessage(
+        { type: "run", job: id, kind: kind.kind, params, inputs },
+        inputs.fields ? transferablesOf(inputs.fields) : [],
+      );
     });
   }
 

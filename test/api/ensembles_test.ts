@@ -287,7 +287,8 @@ Deno.test("members flow into forcing, energy balance, lag correlations and attri
       assert.equal(s.realizations, 100);
       assert.equal(s.best_lag.members.reduce((a: number, b: number) => a + b, 0), 100);
       assert.ok(s.r_at_best.p025 <= s.r_at_best.median && s.r_at_best.median <= s.r_at_best.p975);
-      assert.ok(lc.result.cautions.some((c: string) => /solar input's uncertainty band/.test(c)));
+      // the reconstruction's band statement reaches the run as an inherited caution
+      assert.ok(lc.result.inherited.some((n: Json) => /uncertainty band .*includes/.test(n.text)));
       const central = await created(
         await svc.post("/v1/lag-correlations", {
           solar_run: plain.id,

@@ -7,7 +7,7 @@
  */
 import type { KindChart } from "../../runs/kind.ts";
 import type { Layer } from "../../charts/chart.ts";
-import { runDescription, runNotes } from "../../charts/run_common.ts";
+import { runDescription, runNotes, runTitle } from "../../charts/run_common.ts";
 import { axisLabel, quantityLabel, unitsLabel } from "../../charts/labels.ts";
 import type { AttributionResultOut } from "./result.ts";
 
@@ -80,9 +80,7 @@ export const attributionsChart: KindChart<AttributionResultOut> = {
     });
     const first = contributions[0][1];
     return {
-      title: `Contributions to ${first.name.replace(/^.* contribution to /, "")} · run ${
-        run.id.slice(0, 8)
-      }`,
+      title: runTitle(`Contributions to ${first.name.replace(/^.* contribution to /, "")}`, run),
       description: runDescription(
         run,
         `Contribution of each regressor (${
@@ -96,11 +94,10 @@ export const attributionsChart: KindChart<AttributionResultOut> = {
         }`,
       },
       layers,
-      notes: [
+      ...runNotes(run, [
         ...(r.solar ? [solarNote(r.solar), lagSearchNote(r.solar)] : []),
         `R² of the regression ${r.r_squared.toFixed(3)}; errors: ${r.errors}.`,
-        ...runNotes(run),
-      ],
+      ]),
     };
   },
 };

@@ -35,7 +35,7 @@ import {
 import { LAG_SEARCH_CHUNK } from "./tasks.ts";
 import { withInputPointers } from "../common/input_problem.ts";
 import { solarSeriesFromRun } from "../common/solar_series_from_run.ts";
-import { solarBandCautions, solarEnsembleFromRun } from "../common/solar_ensemble.ts";
+import { solarEnsembleFromRun } from "../common/solar_ensemble.ts";
 import { attributionEnsembleSpread } from "./ensemble_spread.ts";
 import { undefinedAsNull } from "../common/undefined_as_null.ts";
 import type { AttributionParams } from "./request.ts";
@@ -383,6 +383,7 @@ export async function computeAttributions(
   const climate = ctx.series(refId(p.climate));
   const { series, solarIndex } = regressorSeries(p, ctx);
   const { axis, labels, seasonal, regressors, fit } = regress(p, climate, series);
+  ctx.progress(0.1); // inputs checked and the regression fitted; the lag search test follows
   const seasonalLeft = annualCycleLeft(axis.resolution, axis.time, axis.values, labels);
   const solarRun = solarIndex === null ? undefined : p.regressors[solarIndex].run;
   const ensemble = solarRun
@@ -475,7 +476,6 @@ export async function computeAttributions(
     ],
     cautions: [
       ...solarCautions(solarIndex === null ? [] : [series[solarIndex]]),
-      ...(solarRun ? solarBandCautions(ctx, solarRun) : []),
       "Coefficients measure association given the chosen regressors and lags; a missing or " +
       "mis-specified regressor changes them.",
     ],

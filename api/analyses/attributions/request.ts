@@ -8,6 +8,8 @@ import { SeriesRef } from "../../schemas/series_ref.ts";
 import { AnalysisResolution, CoverageFields } from "../common/analysis_axis.ts";
 import { RunRef } from "../common/run_ref.ts";
 import { DeseasonaliseField } from "../common/seasonal_cycle.ts";
+import { DEMO_SERIES } from "../../schemas/examples.ts";
+import { oneOfFields } from "../common/alternatives.ts";
 
 export const MAX_REGRESSORS = 8;
 
@@ -34,7 +36,7 @@ const Regressor = z.object({
   max_lag: z.number().int().min(0).max(600).default(0).openapi({
     description: "Largest lag searched (equal to min_lag for a fixed lag)",
   }),
-}).openapi("AttributionRegressor");
+}).openapi("AttributionRegressor", oneOfFields("series", "run"));
 
 export const AttributionRequest = z.object({
   climate: SeriesRef,
@@ -69,6 +71,16 @@ export const AttributionRequest = z.object({
   seed: z.number().int().min(0).max(4294967295).default(1).openapi({
     description: "Seed of the surrogates' random streams",
   }),
-}).openapi("AttributionRequest");
+}).openapi("AttributionRequest", {
+  example: {
+    climate: DEMO_SERIES.TEMP,
+    regressors: [
+      { name: "solar", series: DEMO_SERIES.TSIM, role: "solar", min_lag: 0, max_lag: 24 },
+      { name: "enso", series: DEMO_SERIES.ENSO, role: "enso", min_lag: 0, max_lag: 6 },
+      { name: "volcanic", series: DEMO_SERIES.AOD, role: "volcanic", min_lag: 0, max_lag: 12 },
+    ],
+    surrogates: 200,
+  },
+});
 
 export type AttributionParams = z.output<typeof AttributionRequest>;

@@ -5,7 +5,7 @@
  */
 import { z } from "@hono/zod-openapi";
 import { AttributionEnsembleSpread } from "./ensemble_spread.ts";
-import { cautions, OutputSeriesSchema, warnings } from "../common/result_parts.ts";
+import { cautions, inherited, OutputSeriesSchema, warnings } from "../common/result_parts.ts";
 import { SeasonalCycleSchema } from "../common/seasonal_cycle.ts";
 
 /** The solar coefficient's p-value, naive and paying for the search of its lag. */
@@ -152,6 +152,7 @@ export const AttributionResult = z.object({
   }),
   warnings,
   cautions,
+  inherited,
 }).openapi("AttributionResult");
 
 /** The result as `compute` builds it. */

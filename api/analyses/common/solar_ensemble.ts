@@ -1,8 +1,8 @@
 /**
  * A solar input's ensemble: when a solar–climate analysis takes its solar series from a
  * reconstruction or forcing run that drew members, each member as a series (for the analysis
- * to be repeated member by member), the band statement the run passes on, and the summary of
- * an answer's spread over the members.
+ * to be repeated member by member), and the summary of an answer's spread over the members
+ * (the band statement reaches the run through the inherited cautions of its input runs).
  *
  * @module
  */
@@ -11,7 +11,7 @@ import { quantileSorted } from "d3-array";
 import type { RunContext } from "../../runs/kind.ts";
 import type { StoredSeries } from "../../store/types.ts";
 import { checkStoredMembers, EnsembleSchema } from "./ensemble_members.ts";
-import { bandCaution, UncertaintyBandSchema } from "./uncertainty_band.ts";
+import { UncertaintyBandSchema } from "./uncertainty_band.ts";
 
 /** The parts of a reconstruction's or forcing run's result read here. */
 const WithEnsemble = z.object({
@@ -63,13 +63,6 @@ export function solarEnsembleFromRun(
       value: Float64Array.from(keep, (i) => e.members[m][i] ?? NaN),
     }),
   };
-}
-
-/** The caution a run built on `id` inherits about its solar input's band, if it states one. */
-export function solarBandCautions(ctx: RunContext, id: string): string[] {
-  const parsed = WithEnsemble.safeParse(ctx.run(id).result);
-  const band = parsed.success ? parsed.data.band : null;
-  return band ? [bandCaution(band, `The solar input's uncertainty band (run ${id})`)] : [];
 }
 
 /** The 2.5 %, 50 % and 97.5 % points of an answer over the members. */

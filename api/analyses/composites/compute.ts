@@ -5,7 +5,6 @@
  *
  * @module
  */
-import { z } from "@hono/zod-openapi";
 import { InputProblem, type RunContext } from "../../runs/kind.ts";
 import { refId } from "../../schemas/series_ref.ts";
 import type { StoredSeries } from "../../store/types.ts";
@@ -20,34 +19,9 @@ import {
   seasonalAdjustment,
 } from "../common/seasonal_cycle.ts";
 import { undefinedAsNull } from "../common/undefined_as_null.ts";
+import { cycleEpochs } from "../common/cycle_epochs.ts";
 import type { CompositeParams } from "./request.ts";
 import type { CompositeResultIn } from "./result.ts";
-
-/** A point of a cycle table (a cycle's start or maximum); anything else reads as absent. */
-const CyclePoint = z.object({ decimal_year: z.number(), provisional: z.boolean().optional() })
-  .nullish().catch(null);
-
-/** The part of a result holding a cycle table, as the cycles analysis stores it. */
-const CycleTable = z.object({
-  cycles: z.array(z.object({ start: CyclePoint, maximum: CyclePoint }).catch({})),
-});
-
-/** Decimal years of the cycle maxima (or starts, the minima) of a run with a cycle table. */
-function epochsFromRun(p: CompositeParams, ctx: RunContext, id: string): number[] {
-  // The cycles analysis does not publish its result schema yet: the table is read with the part
-  // of it this analysis needs (ctx.resultOf replaces this once it does).
-  const run = ctx.run(id);
-  const table = CycleTable.safeParse(run.result);
-  if (!table.success) {
-    throw new InputProblem("/cycle_run", `run ${run.id} (${run.kind}) has no cycle table`);
-  }
-  const out: number[] = [];
-  for (const c of table.data.cycles) {
-    const pt = p.cycle_epoch === "maximum" ? c.maximum : c.start;
-    if (pt && !pt.provisional) out.push(pt.decimal_year);
-  }
-  return out;
-}
 
 /** The epochs of the request as decimal years. */
 function epochDates(p: CompositeParams, ctx: RunContext): number[] {
@@ -64,7 +38,7 @@ function epochDates(p: CompositeParams, ctx: RunContext): number[] {
       }
     });
   }
-  if (p.cycle_run) return epochsFromRun(p, ctx, p.cycle_run);
+  if (p.cycle_run) return cycleEpochs(ctx, p.cycle_run, p.cycle_epoch, "/cycle_run");
   throw new InputProblem("/epoch_dates", "give epoch_dates or a cycle_run");
 }
 
@@ -121,21 +95,27 @@ export function computeComposites(p: CompositeParams, ctx: RunContext): Composit
   const before = Math.round(p.before_years / step), after = Math.round(p.after_years / step);
   const epochIdx = epochIndices(dates, time, step);
   const epochs = p.cycle_run ? "/cycle_run" : "/epoch_dates";
-  const r = withInputPointers({
-    before: "/before_years",
-    after: "/after_years",
-    bootstrap: "/bootstrap",
-    randomSets: "/random_sets",
-    "*": epochs,
-  }, () =>
-    superposedEpoch(x, epochIdx.inside, {
-      before,
-      after,
-      preEpochBaseline: p.baseline === "pre_epoch",
-      bootstrap: p.bootstrap,
-      randomSets: p.random_sets,
-      seed: p.seed,
-    }));
+  const composite = (replicates: { bootstrap: number; randomSets: number }) =>
+    withInputPointers({
+      before: "/before_years",
+      after: "/after_years",
+      bootstrap: "/bootstrap",
+      randomSets: "/random_sets",
+      "*": epochs,
+    }, () =>
+      superposedEpoch(x, epochIdx.inside, {
+        before,
+        after,
+        preEpochBaseline: p.baseline === "pre_epoch",
+        ...replicates,
+        seed: p.seed,
+      }));
+  // One replicate each meets every input rule of the method (epochs whose window fits, room
+  // for random epochs) at negligible cost, before the progress report that ends the input
+  // checks (RunContext.progress): a request refused for its epochs is never stored.
+  composite({ bootstrap: 1, randomSets: 1 });
+  ctx.progress(0.1);
+  const r = composite({ bootstrap: p.bootstrap, randomSets: p.random_sets });
   const warnings: string[] = [...seasonal.warnings];
   if (left) {
     warnings.push(

@@ -4,8 +4,8 @@
  * @module
  */
 import { z } from "@hono/zod-openapi";
-import { cautions, OutputSeriesSchema, warnings } from "../common/result_parts.ts";
 import { SeasonalCycleSchema } from "../common/seasonal_cycle.ts";
+import { cautions, inherited, OutputSeriesSchema, warnings } from "../common/result_parts.ts";
 
 const noEpochData = (what: string) =>
   z.number().nullable().openapi({
@@ -57,6 +57,7 @@ export const CompositeResult = z.object({
   }),
   warnings,
   cautions,
+  inherited,
 }).openapi("CompositeResult");
 
 /** The result as `compute` builds it. */

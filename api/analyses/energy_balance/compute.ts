@@ -24,7 +24,7 @@ import { CAUTION_REVIEW } from "../common/cautions.ts";
 import { withInputPointers } from "../common/input_problem.ts";
 import { checkStoredMembers, memberBand, membersJson } from "../common/ensemble_members.ts";
 import { bandCaution, type UncertaintyBand } from "../common/uncertainty_band.ts";
-import { forcing } from "../forcing/mod.ts";
+import { forcing as forcingAnalysis } from "../forcing/mod.ts";
 import type { ForcingResultOut } from "../forcing/result.ts";
 import type { EnergyBalanceParams } from "./request.ts";
 import type { EnergyBalanceResultIn } from "./result.ts";
@@ -84,7 +84,7 @@ function forcingInput(p: EnergyBalanceParams, ctx: RunContext): Forcing {
   let o: { time: ArrayLike<number>; value: ArrayLike<number | null>; units: string; name: string };
   let run: ForcingResultOut | null = null;
   if (p.forcing_run) {
-    run = ctx.resultOf(forcing, p.forcing_run, "/forcing_run");
+    run = ctx.resultOf(forcingAnalysis, p.forcing_run, "/forcing_run");
     o = run.outputs.forcing;
   } else {
     const s = ctx.series(refId(p.forcing!));
@@ -240,6 +240,7 @@ export function computeEnergyBalance(
     : twoBoxSinusoidResponse(params, period);
   const forcing = p.sinusoid ? sinusoidForcing(p, p.sinusoid, params) : forcingInput(p, ctx);
   const { time } = forcing;
+  ctx.progress(0.1); // inputs checked; the integration follows
   const { surface, deep } = response(p, params, forcing);
   const amp0 = p.sinusoid?.amplitude ?? null;
   const timeAxis = p.sinusoid ? { time_axis: "model_years" as const } : {};

@@ -4,9 +4,9 @@
  * @module
  */
 import { z } from "@hono/zod-openapi";
-import { cautions, OutputSeriesSchema, warnings } from "../common/result_parts.ts";
 import { UncertaintyBandSchema } from "../common/uncertainty_band.ts";
 import { EnsembleSchema } from "../common/ensemble_members.ts";
+import { cautions, inherited, OutputSeriesSchema, warnings } from "../common/result_parts.ts";
 
 export const EnergyBalanceResult = z.object({
   model: z.enum(["one_box", "two_box"]),
@@ -72,6 +72,7 @@ export const EnergyBalanceResult = z.object({
   }),
   warnings,
   cautions,
+  inherited,
 }).openapi("EnergyBalanceResult");
 
 /** The result as `compute` builds it. */

@@ -4,9 +4,9 @@
  * @module
  */
 import { z } from "@hono/zod-openapi";
-import { cautions, OutputSeriesSchema, warnings } from "../common/result_parts.ts";
 import { UncertaintyBandSchema } from "../common/uncertainty_band.ts";
 import { EnsembleSchema } from "../common/ensemble_members.ts";
+import { cautions, inherited, OutputSeriesSchema, warnings } from "../common/result_parts.ts";
 
 export const ForcingResult = z.object({
   formula: z.string(),
@@ -41,6 +41,7 @@ export const ForcingResult = z.object({
   }),
   warnings,
   cautions,
+  inherited,
 }).openapi("ForcingResult");
 
 /** The result as `compute` builds it. */

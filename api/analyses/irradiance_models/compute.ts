@@ -90,7 +90,8 @@ export function computeModel(params: ModelParams, ctx: RunContext): ModelResultI
         value: Array.from(fit.fitted),
         lower: Array.from(band.lower),
         upper: Array.from(band.upper),
-        interval: "fitted value ± t(0.975, df)·residual SD",
+        interval: "95 % band of a new measurement from the residual spread: fitted value ± " +
+          "t(0.975, df)·residual SD",
       },
       residuals: {
         name: "Calibration residuals",

@@ -20,7 +20,9 @@ export const irradianceModels = defineAnalysis({
   // 5: proxies averaged into coarser cells follow the coverage rule of core/series (20 days
   // for a monthly cell, 10 months for an annual one), and so do the annual means of the
   // fitted cycle amplitude (a partial year at an end is no extremum).
-  algorithmVersion: "5",
+  // 6: both of the above (the coverage rule and the interval's level)
+  // 5 (another change): the fitted band's interval names its level (95 %)
+  algorithmVersion: "6",
   tag: "Irradiance",
   summary: "Calibrate a proxy-regression TSI model against a measured TSI record",
   description: "Fits TSI(t) = S_Q + Σ a_k·(F_k(t) − F_k,Q) − b·S_ref·PSI(t) (Foukal & Lean " +

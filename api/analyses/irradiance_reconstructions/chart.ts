@@ -9,7 +9,7 @@
  */
 import type { KindChart } from "../../runs/kind.ts";
 import type { Layer } from "../../charts/chart.ts";
-import { runDescription, runNotes } from "../../charts/run_common.ts";
+import { runDescription, runNotes, runTitle } from "../../charts/run_common.ts";
 import { axisLabel, quantityLabel } from "../../charts/labels.ts";
 import type { ReconstructionResultOut } from "./result.ts";
 
@@ -87,9 +87,7 @@ export const reconstructionChart: KindChart<ReconstructionResultOut> = {
       }
     }
     return {
-      title: `Reconstructed total solar irradiance (${r.resolution} means) · run ${
-        run.id.slice(0, 8)
-      }`,
+      title: runTitle(`Reconstructed total solar irradiance (${r.resolution} means)`, run),
       description: runDescription(
         run,
         `Reconstructed TSI with its ${(r.level * 100).toFixed(0)} % band (${
@@ -102,12 +100,12 @@ export const reconstructionChart: KindChart<ReconstructionResultOut> = {
       x: { label: "Year", kind: "year" },
       y: { label: axisLabel(quantityLabel(o.quantity), o.units, o.quantity) },
       layers,
-      notes: [
+      // what the band holds is read with the band: never shortened
+      ...runNotes(run, [], [
         `Band: ${r.band.included.map((s) => s.source).join(", ")} uncertainty. Not in the band: ${
           r.band.not_included.map((t) => t.split(" (")[0]).join("; ")
         }.`,
-        ...runNotes(run),
-      ],
+      ]),
     };
   },
 };

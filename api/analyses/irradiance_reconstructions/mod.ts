@@ -27,6 +27,7 @@ export const irradianceReconstructions = defineAnalysis({
   // Σ_β,kk·v_k is dropped); optional ensembles; variance by source and period.
   algorithmVersion: "5",
   tag: "Irradiance",
+  featured: true,
   summary: "Reconstruct TSI from a calibrated model, with prediction intervals and ensembles",
   description: "Applies a model run to proxy series averaged into daily, monthly or annual " +
     "cells over a period. Prediction intervals combine the coefficient covariance with the " +

@@ -14,6 +14,7 @@ import { runRef } from "../common/run_ref.ts";
 import { MAX_ENSEMBLE_VALUES } from "../common/ensemble_members.ts";
 import { MAX_REALIZATIONS, SUNSPOT_SCALE_CORRELATION_YEARS } from "../../../core/irradiance/mod.ts";
 import { SunspotConversion } from "../../schemas/sunspot_conversion.ts";
+import { DEMO_SERIES, EXAMPLE_RUN_ID } from "../../schemas/examples.ts";
 
 const SecularBackgroundRequest = z.discriminatedUnion("kind", [
   z.object({ kind: z.literal("none") }),
@@ -138,6 +139,14 @@ export const ReconstructionRequest = z.object({
     }
     seen.add(p.term);
   });
-}).openapi("ReconstructionRequest");
+}).openapi("ReconstructionRequest", {
+  example: {
+    model: EXAMPLE_RUN_ID,
+    sunspot_number: DEMO_SERIES.SSN,
+    proxies: [{ term: "mg_ii", series: DEMO_SERIES.MG }],
+    period: { start: "1700", end: "2025" },
+    resolution: "annual",
+  },
+});
 
 export type ReconstructionParams = z.output<typeof ReconstructionRequest>;

@@ -4,7 +4,7 @@
  * @module
  */
 import { z } from "@hono/zod-openapi";
-import { cautions, OutputSeriesSchema, warnings } from "../common/result_parts.ts";
+import { cautions, inherited, OutputSeriesSchema, warnings } from "../common/result_parts.ts";
 import { TsiCycleAmplitudeSchema } from "../common/tsi_cycle_amplitude.ts";
 import { UncertaintyBandSchema } from "../common/uncertainty_band.ts";
 import { EnsembleSchema } from "../common/ensemble_members.ts";
@@ -144,6 +144,7 @@ export const ReconstructionResult = z.object({
   }),
   warnings,
   cautions,
+  inherited,
 }).openapi("ReconstructionResult");
 
 /** The result as `compute` builds it. */

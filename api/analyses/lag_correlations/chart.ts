@@ -8,7 +8,7 @@
  */
 import type { KindChart } from "../../runs/kind.ts";
 import type { Layer } from "../../charts/chart.ts";
-import { runDescription, runNotes } from "../../charts/run_common.ts";
+import { runDescription, runNotes, runTitle } from "../../charts/run_common.ts";
 import type { LagCorrelationResultOut } from "./result.ts";
 
 /** What was removed from both series before correlating, in words. */
@@ -72,7 +72,7 @@ function layers(r: LagCorrelationResultOut): Layer[] {
     type: "points",
     label: `best lag ${r.best.lag} ${r.lag_unit}`,
     x: [r.best.lag],
-    y: [r.best.r],
+    y: [r.best[r.statistic]],
     marker: "diamond",
     size: 80,
     color: 3,
@@ -80,14 +80,49 @@ function layers(r: LagCorrelationResultOut): Layer[] {
   return out;
 }
 
+/** What was removed from both series before correlating, in words. */
+export function preprocessText(r: LagCorrelationResultOut): string {
+  switch (r.preprocess) {
+    case "mean":
+      return "mean removed";
+    case "linear":
+      return "linear trend removed";
+    case "quadratic":
+      return "quadratic trend removed";
+    case "high_pass":
+      return `variations slower than ${r.high_pass_cutoff_years} years removed (Gaussian high-pass)`;
+  }
+}
+
+/** A signed lag: "−36", "0", "+36". */
+function signed(k: number): string {
+  return k > 0 ? `+${k}` : k < 0 ? `−${-k}` : "0";
+}
+
+/** The lag window in words: "lags −36 to +36 months". */
+export function lagWindowText(r: LagCorrelationResultOut): string {
+  const lo = r.lags[0].lag, hi = r.lags[r.lags.length - 1].lag;
+  return `lags ${signed(lo)} to ${signed(hi)} ${r.lag_unit}`;
+}
+
+/** The best lag's r and p-values, naming the r the tests used. */
+function bestNote(r: LagCorrelationResultOut): string {
+  const b = r.best;
+  const rText = r.statistic === "r_full"
+    ? `r (ccf normalisation) = ${fmt(b.r_full)} (overlap r = ${fmt(b.r)})`
+    : `r = ${fmt(b.r)}`;
+  return `Best lag ${b.lag} ${r.lag_unit}: ${rText}, analytic p = ${fmt(b.p_analytic)}, ` +
+    `Monte Carlo p = ${fmt(b.p_monte_carlo)}, family-wise p = ${fmt(b.p_family_wise)}.`;
+}
+
 export const lagCorrelationChart: KindChart<LagCorrelationResultOut> = {
   build(run, r) {
     if (r.lags.length === 0) return null;
     const unit = r.lag_unit;
-    const b = r.best;
     const mc = r.monte_carlo;
+    const method = `${preprocessText(r)}, ${lagWindowText(r)}`;
     return {
-      title: `Lagged correlation of climate with solar · run ${run.id.slice(0, 8)}`,
+      title: runTitle(`Lagged correlation of climate with solar, ${method}`, run),
       description: runDescription(
         run,
         `Correlation at lags ${r.lags[0].lag} to ${r.lags[r.lags.length - 1].lag} ${unit}` +
@@ -97,12 +132,14 @@ export const lagCorrelationChart: KindChart<LagCorrelationResultOut> = {
       x: { label: `Lag (${unit}; > 0: climate follows solar)`, kind: "linear" },
       y: { label: "Correlation r" },
       layers: layers(r),
-      notes: [
-        `Best lag ${b.lag} ${unit}: r = ${fmt(b.r)}, analytic p = ${fmt(b.p_analytic)}, ` +
-        `Monte Carlo p = ${fmt(b.p_monte_carlo)}, family-wise p = ${fmt(b.p_family_wise)}.`,
-        `Sign convention: ${r.sign_convention}.`,
-        ...runNotes(run),
-      ],
+      ...runNotes(
+        run,
+        [bestNote(r), `Sign convention: ${r.sign_convention}.`],
+        [
+          `Both series: ${method} (> 0: climate follows solar); ${r.resolution} axis ` +
+          `${r.start_period} to ${r.end_period}, ${r.n} periods.`,
+        ],
+      ),
     };
   },
 };

@@ -29,7 +29,7 @@ import {
 } from "../common/seasonal_cycle.ts";
 import { type FieldPointers, withInputPointers } from "../common/input_problem.ts";
 import { solarSeriesFromRun } from "../common/solar_series_from_run.ts";
-import { solarBandCautions, solarEnsembleFromRun } from "../common/solar_ensemble.ts";
+import { solarEnsembleFromRun } from "../common/solar_ensemble.ts";
 import { lagEnsembleSpread } from "./ensemble_spread.ts";
 import type { LagCorrelationParams } from "./request.ts";
 import type { LagCorrelationResultIn } from "./result.ts";
@@ -320,7 +320,9 @@ export async function computeLagCorrelations(
     })),
     best: {
       lag: best.lag,
-      r: stat(best),
+      // the same two r as the lag table; `statistic` says which one the tests use
+      r: best.r,
+      r_full: best.r_full,
       n: best.n,
       n_eff: best.n_eff,
       p_analytic: best.p_analytic,
@@ -346,9 +348,6 @@ export async function computeLagCorrelations(
     // present only when the solar input has an ensemble, so other results keep their shape
     ...(spread ? { ensemble_spread: spread } : {}),
     warnings,
-    cautions: [
-      ...solarCautions([solar]),
-      ...(p.solar_run ? solarBandCautions(ctx, p.solar_run) : []),
-    ],
+    cautions: solarCautions([solar]),
   };
 }

@@ -15,8 +15,11 @@ import { lagCorrelationTasks } from "./tasks.ts";
 export const lagCorrelationKind = defineAnalysis({
   kind: "lag-correlations",
   path: "/v1/lag-correlations",
-  algorithmVersion: "2",
+  // 2: deseasonalising by default for absolute monthly quantities, best-lag warnings;
+  // 3: also `best.r` is the overlap r whatever the normalisation, `best.r_full` beside it
+  algorithmVersion: "3",
   tag: "Solar–climate linkage",
+  featured: true,
   summary: "Lagged correlation of a climate series with a solar series, with honest significance",
   description: "Brings both series onto one monthly or annual axis, removes each calendar " +
     "month's mean over the overlap on a monthly axis (`deseasonalise`, on by default for " +

@@ -4,7 +4,7 @@
  * @module
  */
 import { z } from "@hono/zod-openapi";
-import { cautions, OutputSeriesSchema, warnings } from "../common/result_parts.ts";
+import { cautions, inherited, OutputSeriesSchema, warnings } from "../common/result_parts.ts";
 import { PreprocessField } from "./request.ts";
 import { LagEnsembleSpread } from "./ensemble_spread.ts";
 import { SeasonalCycleSchema } from "../common/seasonal_cycle.ts";
@@ -74,12 +74,19 @@ export const LagCorrelationResult = z.object({
   }),
   normalisation: z.enum(["overlap", "full"]),
   statistic: z.enum(["r", "r_full"]).openapi({
-    description: "Which r the tests, intervals and the best lag use",
+    description: "Which r the tests, intervals and the choice of the best lag use: `r` (the " +
+      "overlap Pearson r, normalisation `overlap`) or `r_full` (R's ccf normalisation, " +
+      "normalisation `full`). The lag table and `best` carry both, under the same names",
   }),
   lags: z.array(LagRow),
   best: z.object({
     lag: z.number().int().openapi({ description: "Lag with the largest |statistic|" }),
-    r: z.number().openapi({ description: "The statistic at the best lag" }),
+    r: z.number().openapi({
+      description: "Pearson r over the overlapping pairs at the best lag (the table's `r`)",
+    }),
+    r_full: z.number().openapi({
+      description: "r with R's ccf normalisation at the best lag (the table's `r_full`)",
+    }),
     n: z.number().int(),
     n_eff: z.number(),
     p_analytic: z.number().nullable().openapi({
@@ -113,6 +120,7 @@ export const LagCorrelationResult = z.object({
   }),
   warnings,
   cautions,
+  inherited,
 }).openapi("LagCorrelationResult");
 
 /** The result as `compute` builds it. */

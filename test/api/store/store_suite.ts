@@ -20,6 +20,7 @@ import {
   RunNotFoundError,
   TerminalRunError,
 } from "../../../api/store/errors.ts";
+import { fieldStoreSuite } from "./field_store_suite.ts";
 
 /** Where an adapter's data lives for one test. */
 export interface StoreBacking {
@@ -191,6 +192,8 @@ export function storeSuite(
   options: StoreSuiteOptions = {},
 ): void {
   /** Run `body` on a fresh backing and store, closing and disposing afterwards. */
+  fieldStoreSuite(name, makeBacking, options);
+
   function withStore(
     title: string,
     body: (store: Store, backing: StoreBacking, t: Deno.TestContext) => Promise<void>,

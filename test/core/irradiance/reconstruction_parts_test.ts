@@ -89,6 +89,76 @@ Deno.test("reconstructFromProxies() back-extends with wider bands and leaves gap
   );
 });
 
+Deno.test("reconstructFromProxies() two-term path equals the formula cell by cell", () => {
+  // first order (delta method): Var = xᵀΣx + Σ_k β_k²·s_k²·gᵀΣ_c g + σ²·f(m, ρ)/m, with the same
+  // rules for gaps, for two terms and days of varying length; mapped values c0 + c1·R
+  const n = 400;
+  const days = Float64Array.from({ length: n }, (_, i) => [1, 1, 30, 31, 365][i % 5]);
+  const f = Float64Array.from({ length: n }, (_, i) => (i % 7 === 3 ? NaN : 0.15 + 1e-3 * i));
+  const psi = Float64Array.from({ length: n }, (_, i) => (i < 100 ? NaN : 1e-5 * (i % 13)));
+  const r = Float64Array.from({ length: n }, (_, i) => (i % 11 === 0 ? NaN : 20 + (i % 150)));
+  const linear = (c: number[], cov: number[][]) => ({
+    ...fitLinearSunspotMapping([0, 50, 100, 150], [1, 2, 3, 4]),
+    coefficients: c,
+    covariance: cov,
+  });
+  const mapF = linear([0.151, 6.5e-5], [[1e-9, -2e-12], [-2e-12, 1e-13]]);
+  const mapP = linear([0, 2.5e-6], [[4e-12, 0], [0, 1e-16]]);
+  const model = {
+    coefficients: [1360.8, 135, 0.96],
+    covariance: [[1e-4, 2e-5, -1e-5], [2e-5, 4, 0.1], [-1e-5, 0.1, 0.02]],
+    terms: [
+      { role: "facular" as const, quietLevel: 0.15 },
+      { role: "sunspot_darkening" as const, quietLevel: 0 },
+    ],
+    psiReference: 1360.8,
+    residualSd: 0.15,
+    rho: 0.7,
+    stepDays: 1,
+    backExtension: { residualSd: 0.3, rho: 0.9, stepDays: 1 },
+  };
+  const cells = { days, direct: [f, psi], mappings: [mapF, mapP], sunspot: r };
+  const rec = reconstructFromProxies(model, cells, 2);
+  const scale = [1, -1360.8], off = [0.15, 0];
+  const S = model.covariance, b = model.coefficients;
+  for (let i = 0; i < n; i++) {
+    const x = [1], vars = [];
+    let mapped = false, ok = true;
+    for (const [k, [d, m]] of [[f, mapF], [psi, mapP]].entries()) {
+      let v = (d as Float64Array)[i];
+      if (Number.isNaN(v)) {
+        const mm = m as typeof mapF, R = r[i];
+        if (Number.isNaN(R)) ok = false;
+        v = mm.coefficients[0] + mm.coefficients[1] * R;
+        mapped = true;
+        const C = mm.covariance;
+        vars.push(b[k + 1] ** 2 * scale[k] ** 2 * (C[0][0] + 2 * R * C[0][1] + R * R * C[1][1]));
+      }
+      x.push(scale[k] * (v - off[k]));
+    }
+    if (!ok) {
+      assert.equal(rec.source[i], 0);
+      assert.ok(Number.isNaN(rec.value[i]) && Number.isNaN(rec.sd[i]));
+      continue;
+    }
+    let q = 0;
+    for (let a = 0; a < 3; a++) for (let c = 0; c < 3; c++) q += x[a] * S[a][c] * x[c];
+    const [sdr, rho] = mapped ? [0.3, 0.9] : [0.15, 0.7];
+    const rv = sdr ** 2 * ar1MeanVarianceFactor(days[i], rho) / days[i];
+    const sd = Math.sqrt(q + vars.reduce((s, v) => s + v, 0) + rv);
+    const y = b[0] + b[1] * x[1] + b[2] * x[2];
+    assert.equal(rec.source[i], mapped ? 2 : 1);
+    assert.ok(Math.abs(rec.value[i] - y) < 1e-10, `value ${i}`);
+    assert.ok(Math.abs(rec.sd[i] - sd) < 1e-12 * sd, `sd ${i}: ${rec.sd[i]} vs ${sd}`);
+    assert.ok(Math.abs(rec.upper[i] - (y + 2 * sd)) < 1e-10);
+  }
+  // without a back-extension model, mapped cells stay empty
+  const direct = reconstructFromProxies({ ...model, backExtension: null }, cells, 2);
+  assert.equal(direct.source[0], 0);
+  assert.equal(direct.source[101], 0); // facular value mapped (101 mod 7 = 3)
+  assert.equal(direct.source[102], 1);
+});
+
 Deno.test("secularBackground() refuses periods without data and equal means", () => {
   const t = Array.from({ length: 100 }, (_, i) => 1900 + i + 0.5);
   const r = t.map(() => 50);
