@@ -10,18 +10,9 @@ import { z } from "@hono/zod-openapi";
 import { quantileSorted } from "d3-array";
 import type { RunContext } from "../../runs/kind.ts";
 import type { StoredSeries } from "../../store/types.ts";
-import { checkStoredMembers, EnsembleSchema } from "./ensemble_members.ts";
-import { UncertaintyBandSchema } from "./uncertainty_band.ts";
-
-/** The parts of a reconstruction's or forcing run's result read here. */
-const WithEnsemble = z.object({
-  band: UncertaintyBandSchema.nullable().optional(),
-  ensemble: EnsembleSchema.nullable().optional(),
-  outputs: z.object({
-    tsi: z.object({ value: z.array(z.number().nullable()) }).optional(),
-    forcing: z.object({ value: z.array(z.number().nullable()) }).optional(),
-  }).optional(),
-});
+import { checkStoredMembers } from "./ensemble_members.ts";
+import { irradianceReconstructions } from "../irradiance_reconstructions/mod.ts";
+import { forcing } from "../forcing/mod.ts";
 
 /** The members of a solar run, each available as a series like its central one. */
 export interface SolarEnsemble {
@@ -32,8 +23,8 @@ export interface SolarEnsemble {
 }
 
 /**
- * The ensemble of run `id`, read beside its central series (`solarSeriesFromRun`); null when
- * the run has none.
+ * The ensemble of run `id` (a reconstruction's or a forcing run's, read through its result
+ * schema), beside its central series (`solarSeriesFromRun`); null when the run has none.
  *
  * @param ctx the run context
  * @param id run id
@@ -47,13 +38,21 @@ export function solarEnsembleFromRun(
   central: StoredSeries,
   pointer: string,
 ): SolarEnsemble | null {
-  const parsed = WithEnsemble.safeParse(ctx.run(id).result);
-  const e = parsed.success ? parsed.data.ensemble : null;
-  if (!e) return null;
+  const kind = ctx.run(id).kind;
+  const found = kind === irradianceReconstructions.kind
+    ? (({ ensemble, outputs }) => ({ e: ensemble, o: outputs.tsi }))(
+      ctx.resultOf(irradianceReconstructions, id, pointer),
+    )
+    : kind === forcing.kind
+    ? (({ ensemble, outputs }) => ({ e: ensemble, o: outputs.forcing }))(
+      ctx.resultOf(forcing, id, pointer),
+    )
+    : null;
+  if (!found?.e) return null;
+  const { e, o } = found;
   // the central series leaves out the output's empty cells: the members leave out the same
-  const o = parsed.data!.outputs?.tsi ?? parsed.data!.outputs?.forcing;
-  const keep = o ? o.value.flatMap((v, i) => (v === null ? [] : [i])) : [];
-  checkStoredMembers(e, keep.length === central.n ? o!.value.length : -1, pointer, id);
+  const keep = o.value.flatMap((v, i) => (v === null ? [] : [i]));
+  checkStoredMembers(e, keep.length === central.n ? o.value.length : -1, pointer, id);
   return {
     realizations: e.realizations,
     seed: e.seed,
