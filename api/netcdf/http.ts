@@ -242,6 +242,7 @@ export function runOutputNetcdfResponse(
   name: string,
   o: OutputSeries,
   ensemble?: EnsembleSource,
+  attributes: [string, string][] = [],
 ): Response {
   const calendar = calendarOf(c);
   if (o.time_axis && o.time_axis !== "decimal_year") {
@@ -271,6 +272,7 @@ export function runOutputNetcdfResponse(
     dateCreated: run.created_at,
     warnings: notes.warnings,
     cautions: notes.cautions,
+    attributes,
   };
   const s: SeriesLike = {
     name: o.name,
