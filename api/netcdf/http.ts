@@ -265,6 +265,7 @@ export function runOutputNetcdfResponse(
   name: string,
   o: OutputSeries,
   ensemble?: EnsembleSource,
+  attributes: [string, string][] = [],
 ): Response {
   const calendar = calendarOf(c);
   if (o.time_axis && o.time_axis !== "decimal_year") {
@@ -278,7 +279,7 @@ export function runOutputNetcdfResponse(
   const etag = `"run-${run.id}-${run.result_digest}-${name}-netcdf-${calendar}-${SERVICE_VERSION}"`;
   const nm = notModified(c, etag);
   if (nm) return nm;
-  const prov = runProvenance(run, o.name, `output "${name}"`, calendar);
+  const prov = { ...runProvenance(run, o.name, `output "${name}"`, calendar), attributes };
   const s: SeriesLike = {
     name: o.name,
     quantity: o.quantity,

@@ -70,6 +70,8 @@ export interface Provenance {
   dateCreated?: string;
   warnings: string[];
   cautions: string[];
+  /** Further global text attributes (name, value), e.g. what an uncertainty band contains. */
+  attributes?: [string, string][];
 }
 
 /** Options of {@link buildSeriesDataset}. */
@@ -328,5 +330,6 @@ export function provenanceAttributes(
     ...(prov.dateCreated ? [ncText("date_created", prov.dateCreated)] : []),
     ncText("warnings", prov.warnings.length ? prov.warnings.join("\n") : "none"),
     ncText("cautions", prov.cautions.length ? prov.cautions.join("\n") : "none"),
+    ...(prov.attributes ?? []).map(([k, v]) => ncText(k, v)),
   ];
 }

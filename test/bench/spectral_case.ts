@@ -10,7 +10,6 @@
 import {
   type BandModels,
   calibrateBandModels,
-  evaluateSunspotMapping,
   fitSunspotMapping,
   integrateBandModels,
   type ProxyTerm,
@@ -88,15 +87,7 @@ export function spectralCase() {
     calibrateOls: (): BandModels => calibrate("ols"),
     calibratePraisWinsten: (): BandModels => calibrate("prais_winsten"),
     reconstruct() {
-      const vf = new Float64Array(REC_DAYS), pf = new Float64Array(REC_DAYS);
-      const vp = new Float64Array(REC_DAYS), pp = new Float64Array(REC_DAYS);
-      evaluateSunspotMapping(mapF, rec.r, vf, pf);
-      evaluateSunspotMapping(mapP, rec.r, vp, pp);
-      const cells = {
-        days,
-        direct: [directF, directP],
-        mapped: [{ value: vf, paramVariance: pf }, { value: vp, paramVariance: pp }],
-      };
+      const cells = { days, direct: [directF, directP], mappings: [mapF, mapP], sunspot: rec.r };
       const integral = integrateBandModels(models, weights, {
         residual: corr,
         backExtension: corr,

@@ -10,13 +10,14 @@ import { z } from "@hono/zod-openapi";
 import {
   countBeyondMappingRange,
   countFarOutsideRange,
-  evaluateSunspotMapping,
   type Reconstruction,
   type ReconstructionCells,
   type ReconstructionCoverage,
   type ReconstructionModel,
   SOURCE_BACK_EXTENDED,
+  SUNSPOT_SCALE_CORRELATION_YEARS,
 } from "../../../core/irradiance/mod.ts";
+import { type SunspotErrors, sunspotErrors, SunspotUncertaintyRequest } from "./sunspot_errors.ts";
 import {
   convertSunspotNumberVersion,
   periodKeyRange,
@@ -62,6 +63,11 @@ export const ReconstructionInputFields = {
   level: z.number().min(0.5).max(0.999).default(0.95).openapi({
     description: "Level of the prediction intervals",
   }),
+  sunspot_uncertainty: SunspotUncertaintyRequest.default({
+    source: "auto",
+    multiplier: 1,
+    correlation_years: SUNSPOT_SCALE_CORRELATION_YEARS,
+  }),
 };
 
 /** The parsed reconstruction input fields. */
@@ -72,6 +78,7 @@ export interface ReconstructionInputParams {
   period: z.output<typeof PeriodInput>;
   resolution: CalendarResolution;
   level: number;
+  sunspot_uncertainty: z.output<typeof SunspotUncertaintyRequest>;
 }
 
 /** A duplicate term among the proxies: an issue at /proxies/i/term (for a superRefine). */
@@ -117,6 +124,8 @@ export interface SunspotInput {
    */
   reference: { atCells: Float64Array; conversion: string };
   warnings: string[];
+  /** Its own error, as propagated. */
+  errors: SunspotErrors;
 }
 
 /**
@@ -219,6 +228,16 @@ export function sunspotInput(
   }
   const series = { time: ss.time, value };
   const atCells = cellMeans(series, ss.resolution, cells);
+  // the series' own σ on the model's version: the conversion is a factor at each time
+  const ownSd = ss.uncertainty && version !== target
+    ? applySunspotConversion(
+      { time: ss.time, value: ss.uncertainty },
+      version,
+      target,
+      params.sunspot_conversion!,
+      "/sunspot_conversion",
+    ).value
+    : ss.uncertainty;
   return {
     series,
     atCells,
@@ -226,6 +245,7 @@ export function sunspotInput(
     conversion,
     reference: referenceSunspots(ss, version, target, conversion, atCells, cells),
     warnings,
+    errors: sunspotErrors(params, ss, value, ownSd, cells.resolution, cells.keys),
   };
 }
 
@@ -274,19 +294,30 @@ export function cellMeans(
   return resampledAtPeriodKeys(series, from, cells.resolution, cells.keys);
 }
 
-/** Each model term mapped from the cells' sunspot numbers (null without a sunspot series). */
-export function mappedProxies(
+/** Each model term's sunspot → proxy mapping (null without a sunspot series). */
+export function termMappings(
   stored: StoredProxyModel,
-  sunspotAtCells: Float64Array | null,
-  n: number,
-): ReconstructionCells["mapped"] {
-  return stored.model.terms.map((t) => {
-    if (!sunspotAtCells || !stored.mappings) return null;
-    const value = new Float64Array(n), paramVariance = new Float64Array(n);
-    const m = mappingFromJson(stored.mappings.terms[t.name].chosen);
-    evaluateSunspotMapping(m, sunspotAtCells, value, paramVariance);
-    return { value, paramVariance };
-  });
+  sunspot: unknown | null,
+): ReconstructionCells["mappings"] {
+  return stored.model.terms.map((t) =>
+    sunspot && stored.mappings ? mappingFromJson(stored.mappings.terms[t.name].chosen) : null
+  );
+}
+
+/** The cells as core reconstructs them: direct proxies, mappings, sunspot numbers and their error. */
+export function reconstructionCells(
+  stored: StoredProxyModel,
+  cells: TargetCells,
+  direct: Float64Array[],
+  sunspot: SunspotInput | null,
+): ReconstructionCells {
+  return {
+    days: cells.days,
+    direct,
+    mappings: termMappings(stored, sunspot),
+    sunspot: sunspot?.atCells ?? null,
+    sunspotUncertainty: sunspot?.errors.cells ?? null,
+  };
 }
 
 /** The stored model (and its back-extension residual process) as core reads it. */
@@ -364,17 +395,27 @@ export function extrapolationWarnings(
 
 /**
  * The time axis, values, uncertainty and interval of a reconstruction as an output series
- * holds them (rounded to 1e-6 by {@link micro}), with the interval's level in words.
+ * holds them (rounded to 1e-6 by {@link micro}), with the interval's level in words; an
+ * ensemble's band, when given, replaces the analytic one (a cell without a central value has
+ * no band either).
  */
-export function reconstructionOutputParts(cells: TargetCells, rec: Reconstruction, level: number) {
+export function reconstructionOutputParts(
+  cells: TargetCells,
+  rec: Reconstruction,
+  level: number,
+  members: { sd: Float64Array; lower: Float64Array; upper: Float64Array; interval: string } | null =
+    null,
+) {
   const pct = level === 0.95 ? "95 %" : `${(level * 100).toFixed(1)} %`;
+  const gap = (a: ArrayLike<number>) =>
+    Float64Array.from(a, (v, i) => (Number.isFinite(rec.value[i]) ? v : NaN));
   return {
     time: Array.from(cells.time),
     value: micro(rec.value),
-    uncertainty: micro(rec.sd),
-    lower: micro(rec.lower),
-    upper: micro(rec.upper),
-    interval: `${pct} prediction interval`,
+    uncertainty: micro(gap(members?.sd ?? rec.sd)),
+    lower: micro(gap(members?.lower ?? rec.lower)),
+    upper: micro(gap(members?.upper ?? rec.upper)),
+    interval: members?.interval ?? `${pct} prediction interval`,
   };
 }
 

@@ -10,12 +10,17 @@
 import type { RunContext } from "../../runs/kind.ts";
 import { InputProblem } from "../../runs/kind.ts";
 import {
+  ERROR_SOURCES,
+  type ErrorSource,
   predictionQuantile,
   reconstructFromProxies,
   type Reconstruction,
   reconstructionCoverage,
   secularBackground,
+  SOURCE_BACK_EXTENDED,
+  SOURCE_NONE,
   tsiCycleAmplitude,
+  varianceByPeriod,
   withSecularBackground,
 } from "../../../core/irradiance/mod.ts";
 import { normalQuantile } from "../../../core/stats/distributions.ts";
@@ -32,7 +37,7 @@ import {
   coverageWarnings,
   directProxies,
   extrapolationWarnings,
-  mappedProxies,
+  reconstructionCells,
   reconstructionModel,
   reconstructionOutputParts,
   type SunspotInput,
@@ -46,22 +51,37 @@ import type { ModelResultOut } from "../irradiance_models/result.ts";
 import { cycleAmplitudeJson } from "../common/tsi_cycle_amplitude.ts";
 import type { ReconstructionParams } from "./request.ts";
 import type { ReconstructionResultIn } from "./result.ts";
+import {
+  checkEnsembleSize,
+  type MemberBand,
+  memberBand,
+  membersJson,
+  MIN_MEMBERS_FOR_QUANTILES,
+} from "../common/ensemble_members.ts";
+import { bandCaution, type UncertaintyBand, uncertaintyBand } from "../common/uncertainty_band.ts";
+import { drawEnsemble } from "./ensemble.ts";
 
 /** Most cells a reconstruction may have. */
 const MAX_CELLS = 400_000;
 
 /** Reconstruct TSI over the period from the model run and the proxies. */
-export function computeReconstruction(
+export async function computeReconstruction(
   params: ReconstructionParams,
   ctx: RunContext,
-): ReconstructionResultIn {
+): Promise<ReconstructionResultIn> {
   const stored = ctx.resultOf(irradianceModels, params.model, "/model");
   const cells = targetCells(params, MAX_CELLS);
+  if (params.realizations > 0) {
+    checkEnsembleSize(params.realizations, cells.keys.length, [
+      "/realizations",
+      "/period",
+      "/resolution",
+    ]);
+  }
   const direct = directProxies(params, ctx, stored, cells);
   const sunspot = params.sunspot_number === undefined
     ? null
     : sunspotInput(params, ctx, stored, cells, `model run ${params.model}`);
-  const mapped = mappedProxies(stored, sunspot?.atCells ?? null, cells.keys.length);
   if (!direct.some((d) => d.some(Number.isFinite)) && !sunspot?.atCells.some(Number.isFinite)) {
     throw new InputProblem(
       "/period",
@@ -72,12 +92,13 @@ export function computeReconstruction(
     );
   }
   const z = predictionQuantile(params.level, stored.model.df_residual);
-  const proxyOnly = reconstructFromProxies(
-    reconstructionModel(stored),
-    { days: cells.days, direct, mapped },
-    z,
+  const model = reconstructionModel(stored);
+  const coreCells = reconstructionCells(stored, cells, direct, sunspot);
+  const proxyOnly = withInputPointers(
+    { mapping: "/model", covariance: "/model", "*": "/model" },
+    () => reconstructFromProxies(model, coreCells, z),
   );
-  const { rec, scenario } = background(params, stored, sunspot, cells, proxyOnly);
+  const { rec, scenario, atCells } = background(params, stored, sunspot, cells, proxyOnly);
   const coverage = reconstructionCoverage(rec, cells.time);
   if (coverage.direct.cells + coverage.backExtended.cells === 0) {
     throw new InputProblem(
@@ -86,6 +107,16 @@ export function computeReconstruction(
       { reason: "no_overlap" },
     );
   }
+  ctx.progress(0.1);
+  const ens = params.realizations > 0
+    ? await drawEnsemble(ctx, model, coreCells, {
+      realizations: params.realizations,
+      seed: params.seed,
+      background: atCells,
+    })
+    : null;
+  const members = ens ? memberBand(rec.value, ens.members, ens.realizations, params.level) : null;
+  const band = reconstructionBand(params, rec, sunspot, scenario.kind !== "none");
   const amp = tsiCycleAmplitude(cells.time, rec.value);
   const check = cycleAmplitudeCheck(
     cells.time,
@@ -93,10 +124,11 @@ export function computeReconstruction(
     proxyOnly.source,
     amp,
     sunspot && {
-      value: reconstructFromProxies(reconstructionModel(stored), {
+      value: reconstructFromProxies(model, {
         days: cells.days,
         direct: direct.map(() => new Float64Array(cells.keys.length).fill(NaN)),
-        mapped: mappedProxies(stored, sunspot.reference.atCells, cells.keys.length),
+        mappings: coreCells.mappings,
+        sunspot: sunspot.reference.atCells,
       }, z).value,
       conversion: sunspot.reference.conversion,
     },
@@ -107,6 +139,13 @@ export function computeReconstruction(
     ...extrapolationWarnings(stored, direct, sunspot, rec),
     ...check.warnings,
     ...quietSunWarning(stored.model.quiet_sun.value),
+    ...(ens && ens.realizations < MIN_MEMBERS_FOR_QUANTILES
+      ? [
+        `The band rests on ${ens.realizations} members: it is ŷ ± ${
+          normalQuantile(1 - (1 - params.level) / 2).toFixed(3)
+        } × the members' SD; ask for 100 or more realizations for quantiles of the members.`,
+      ]
+      : []),
   ];
   return {
     model: params.model,
@@ -121,9 +160,101 @@ export function computeReconstruction(
     source_segments: coverage.segments,
     cycle_amplitude: cycleAmplitudeJson(amp),
     cycle_amplitude_check: check.json,
-    outputs: { tsi: tsiOutput(params, cells, rec, scenario.label) },
+    outputs: { tsi: tsiOutput(params, cells, rec, scenario.label, members) },
+    band,
+    sunspot_uncertainty: sunspot?.errors.json ?? null,
+    variance_by_period: varianceBlocks(params, cells, rec, members),
+    error_model: errorModelJson(rec),
+    ensemble: ens
+      ? {
+        output: "tsi",
+        realizations: ens.realizations,
+        seed: params.seed,
+        units: "W m-2",
+        rounding: MEMBER_ROUNDING,
+        members: membersJson(ens.members, ens.realizations, MEMBER_ROUNDING),
+      }
+      : null,
     warnings,
-    cautions: [...RECONSTRUCTION_CAUTIONS, `Background scenario: ${scenario.label}`],
+    cautions: [
+      ...RECONSTRUCTION_CAUTIONS,
+      bandCaution(band),
+      `Background scenario: ${scenario.label}`,
+    ],
+  };
+}
+
+/** Members are rounded to 0.1 mW m-2, far below any band width. */
+const MEMBER_ROUNDING = 1e-4;
+
+/** What the band is made of and what it leaves out. */
+function reconstructionBand(
+  params: ReconstructionParams,
+  rec: Reconstruction,
+  sunspot: SunspotInput | null,
+  withScenario: boolean,
+): UncertaintyBand {
+  const back = rec.source.includes(SOURCE_BACK_EXTENDED);
+  const included: ErrorSource[] = ["calibration", "residual"];
+  if (back) included.push("mapping");
+  if (back && sunspot?.errors.cells) included.push("input");
+  const method = params.realizations >= MIN_MEMBERS_FOR_QUANTILES
+    ? "ensemble_quantiles"
+    : params.realizations > 0
+    ? "ensemble_sd"
+    : "analytic";
+  return uncertaintyBand(method, included, [
+    ...(back ? sunspot?.errors.notIncluded ?? [] : []),
+    ...(withScenario
+      ? ["the uncertainty of the secular background scenario (a labelled choice)"]
+      : []),
+  ]);
+}
+
+/** Mean variance by source over blocks of years, with the ensemble's beside it. */
+function varianceBlocks(
+  params: ReconstructionParams,
+  cells: TargetCells,
+  rec: Reconstruction,
+  members: MemberBand | null,
+): ReconstructionResultIn["variance_by_period"] {
+  const none = (i: number) => rec.source[i] === SOURCE_NONE;
+  const masked = Object.fromEntries(
+    ERROR_SOURCES.map((s) => [s, rec.components[s].map((v, i) => (none(i) ? NaN : v))]),
+  ) as Record<ErrorSource, Float64Array>;
+  const ensVar = members ? members.sd.map((v, i) => (none(i) ? NaN : v * v)) : null;
+  return varianceByPeriod(cells.time, masked, params.variance_block_years, ensVar).map((b) => ({
+    start: b.start,
+    end: b.end,
+    cells: b.cells,
+    variance: b.variance,
+    share: b.share,
+    total: b.total,
+    dominant: b.dominant,
+    ensemble_variance: b.ensembleVariance,
+  }));
+}
+
+/** The error model as stored: loadings rounded to 1e-9 W m-2, zero where a cell has no value. */
+function errorModelJson(rec: Reconstruction): ReconstructionResultIn["error_model"] {
+  const r9 = (a: Float64Array) =>
+    Array.from(a, (v, i) => (rec.source[i] === SOURCE_NONE ? 0 : Math.round(v * 1e9) / 1e9));
+  return {
+    description: "e(t) = Σ_j loading_j(t)·z_j + Σ_p loading_p(t)·u_p(t): z_j independent " +
+      "standard normals shared by all cells, u_p unit-variance processes with corr(u_p(t), " +
+      "u_p(t − 1)) = lag1_p(t). Var(t) = Σ loading²; Cov(s, t) = Σ_j loading_j(s)loading_j(t) " +
+      "+ Σ_p loading_p(s)loading_p(t)·Π lag1_p between s and t. First order (delta method).",
+    factors: rec.errorModel.factors.map((f) => ({
+      source: f.source,
+      label: f.label,
+      loading: r9(f.loading),
+    })),
+    processes: rec.errorModel.processes.map((p) => ({
+      source: p.source,
+      label: p.label,
+      loading: r9(p.loading),
+      lag1: Array.from(p.lag1),
+    })),
   };
 }
 
@@ -140,12 +271,13 @@ function tsiOutput(
   cells: TargetCells,
   rec: Reconstruction,
   scenarioLabel: string,
+  members: MemberBand | null,
 ): ReconstructionResultIn["outputs"]["tsi"] {
   return {
     name: "Reconstructed TSI",
     quantity: "tsi",
     units: "W m-2",
-    ...reconstructionOutputParts(cells, rec, params.level),
+    ...reconstructionOutputParts(cells, rec, params.level, members),
     description:
       `Model run ${params.model}, ${cells.resolution} means, values rounded to 1e-6 W m-2; ${scenarioLabel}`,
   };
@@ -160,11 +292,12 @@ function background(
   sunspot: SunspotInput | null,
   cells: TargetCells,
   rec: Reconstruction,
-): { rec: Reconstruction; scenario: Scenario } {
+): { rec: Reconstruction; scenario: Scenario; atCells: Float64Array | null } {
   const bg = params.background;
   if (bg.kind === "none") {
     return {
       rec,
+      atCells: null,
       scenario: {
         kind: "none",
         label:
@@ -201,6 +334,7 @@ function background(
   );
   return {
     rec: withSecularBackground(rec, atCells),
+    atCells,
     scenario: {
       kind: "sunspot_running_mean",
       label:

@@ -31,8 +31,8 @@ import {
   coverageWarnings,
   directProxies,
   extrapolationWarnings,
-  mappedProxies,
   micro,
+  reconstructionCells,
   reconstructionModel,
   reconstructionOutputParts,
   type StoredProxyModel,
@@ -79,11 +79,7 @@ export function computeSpectralReconstruction(
     cells,
     `the TSI model of spectral model run ${params.model}`,
   );
-  const input: ReconstructionCells = {
-    days: cells.days,
-    direct,
-    mapped: mappedProxies(model.tsi, sunspot?.atCells ?? null, cells.keys.length),
-  };
+  const input = reconstructionCells(model.tsi, cells, direct, sunspot);
   const bands = reconstructFromProxiesMany(
     model.models,
     input,
@@ -117,6 +113,7 @@ export function computeSpectralReconstruction(
     period: cells.span,
     level: params.level,
     sunspot_conversion: sunspot?.conversion ?? null,
+    sunspot_uncertainty: sunspot?.errors.json ?? null,
     coverage: coverageJson(coverage),
     source_segments: coverage.segments,
     spectrum: spectrumBlock(params, model, cells, bands),

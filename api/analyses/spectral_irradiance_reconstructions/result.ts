@@ -10,6 +10,7 @@ import { z } from "@hono/zod-openapi";
 import { cautions, inherited, OutputSeriesSchema, warnings } from "../common/result_parts.ts";
 import { BandBounds, SpectrumBlock } from "../common/spectrum_block.ts";
 import { SpectralCoverageJson } from "../spectral_irradiance_models/result.ts";
+import { SunspotUncertaintySchema } from "../common/sunspot_errors.ts";
 
 const SourceCoverage = z.object({
   cells: z.number().int(),
@@ -38,6 +39,7 @@ export const SpectralReconstructionResult = z.object({
   period: z.object({ start: z.number(), end: z.number() }),
   level: z.number(),
   sunspot_conversion: z.string().nullable(),
+  sunspot_uncertainty: SunspotUncertaintySchema,
   coverage: z.object({
     cells: z.number().int(),
     direct: SourceCoverage.openapi({ description: "Cells where every proxy was observed" }),
