@@ -210,7 +210,80 @@ export function reconstructFromProxies(
   cells: ReconstructionCells,
   z: number,
 ): Reconstruction {
-  const design = reconstructionDesign(model, cells);
+  return reconstructWithDesign(model, cells, reconstructionDesign(model, cells), z);
+}
+
+/**
+ * {@link reconstructFromProxies} for several models on the same terms (the bands of a spectral
+ * model, and their integrals), over the same cells: which proxy value each cell uses
+ * ({@link reconstructionDesign}) is decided once and shared by every model with the same
+ * back-extension availability. Each result equals what {@link reconstructFromProxies} gives
+ * for that model alone, bit for bit.
+ *
+ * @param models the models: same term roles, quiet levels and S_ref
+ * @param cells {@link ReconstructionCells}
+ * @param z per model, the quantile for its interval
+ * @returns one {@link Reconstruction} per model
+ * @throws {InputError} as {@link reconstructFromProxies}; (field `models`) when the models'
+ *   terms differ, (field `z`) when there is not one quantile per model
+ * @example
+ * ```ts
+ * import { reconstructFromProxiesMany } from "./proxy_reconstruction.ts";
+ * import assert from "node:assert/strict";
+ * const band = (c: number, a: number) => ({
+ *   coefficients: [c, a], covariance: [[1e-6, 0], [0, 1e-2]],
+ *   terms: [{ role: "facular" as const, quietLevel: 0.15 }], psiReference: 1360.8,
+ *   residualSd: 0.01, rho: 0.5, stepDays: 1, backExtension: null,
+ * });
+ * const [uv, vis] = reconstructFromProxiesMany([band(0.5, 20), band(1.8, 2)], {
+ *   days: Float64Array.of(31), direct: [Float64Array.of(0.16)], mappings: [null], sunspot: null,
+ * }, [1.96, 1.96]);
+ * assert.ok(Math.abs(uv.value[0] - 0.7) < 1e-12 && Math.abs(vis.value[0] - 1.82) < 1e-12);
+ * ```
+ */
+export function reconstructFromProxiesMany(
+  models: readonly ReconstructionModel[],
+  cells: ReconstructionCells,
+  z: readonly number[],
+): Reconstruction[] {
+  if (z.length !== models.length) {
+    throw new InputError(`Cannot reconstruct: ${z.length} quantiles for ${models.length} models`, {
+      field: "z",
+      reason: "length_mismatch",
+      value: z.length,
+    });
+  }
+  const first = models[0];
+  models.forEach((model, j) => {
+    const same = model.psiReference === first.psiReference &&
+      model.terms.length === first.terms.length &&
+      model.terms.every((t, k) =>
+        t.role === first.terms[k].role && t.quietLevel === first.terms[k].quietLevel
+      );
+    if (!same) {
+      throw new InputError(
+        `Cannot reconstruct together: model ${j} has other terms than model 0`,
+        { field: "models", reason: "invalid", index: j },
+      );
+    }
+  });
+  // the design depends on a model only through its terms and whether it can back-extend
+  const designs = new Map<boolean, ReconstructionDesign>();
+  return models.map((model, j) => {
+    checkCells(model, cells);
+    const key = model.backExtension !== null;
+    let design = designs.get(key);
+    if (!design) designs.set(key, design = reconstructionDesign(model, cells));
+    return reconstructWithDesign(model, cells, design, z[j]);
+  });
+}
+
+function reconstructWithDesign(
+  model: ReconstructionModel,
+  cells: ReconstructionCells,
+  design: ReconstructionDesign,
+  z: number,
+): Reconstruction {
   const K = model.terms.length, n = cells.days.length;
   const beta = model.coefficients;
   const errorModel = proxyReconstructionErrorModel(model, cells, design);

@@ -7,13 +7,12 @@
  * @module
  */
 import { z } from "@hono/zod-openapi";
-import { SeriesRef } from "../../schemas/series_ref.ts";
 import { parsePeriod, PeriodInput } from "../common/time_period.ts";
 import { periodKeyRange } from "../../../core/series/mod.ts";
 import { runRef } from "../common/run_ref.ts";
+import { duplicateProxyTerms, ReconstructionInputFields } from "../common/reconstruction_inputs.ts";
 import { MAX_ENSEMBLE_VALUES } from "../common/ensemble_members.ts";
-import { MAX_REALIZATIONS, SUNSPOT_SCALE_CORRELATION_YEARS } from "../../../core/irradiance/mod.ts";
-import { SunspotConversion } from "../../schemas/sunspot_conversion.ts";
+import { MAX_REALIZATIONS } from "../../../core/irradiance/mod.ts";
 import { DEMO_SERIES, EXAMPLE_RUN_ID } from "../../schemas/examples.ts";
 
 const SecularBackgroundRequest = z.discriminatedUnion("kind", [
@@ -37,24 +36,6 @@ const SecularBackgroundRequest = z.discriminatedUnion("kind", [
   }),
 ]).openapi("SecularBackground");
 
-const SunspotUncertaintyRequest = z.object({
-  source: z.enum(["auto", "series", "model", "none"]).default("auto").openapi({
-    description: "The sunspot number's own error, propagated where proxies are mapped from it: " +
-      "`series` its own one-sigma uncertainties (taken as independent between values), " +
-      "`model` the documented model that grows back in time (a scale error correlated over " +
-      "decades, 5 % since 1981 to 40 % before 1749, and Poisson-like counting noise; see the " +
-      "result's `sunspot_uncertainty`), `auto` the series' own when it has them, else the " +
-      "model, `none` taken as exact",
-  }),
-  multiplier: z.number().min(0).max(10).default(1).openapi({
-    description: "Scale both parts of the sunspot number's error by this factor",
-  }),
-  correlation_years: z.number().gt(0).max(1000).default(SUNSPOT_SCALE_CORRELATION_YEARS).openapi({
-    description: "Correlation time τ (years) of the model's scale error: e^{−Δt/τ} between " +
-      "cells Δt apart",
-  }),
-}).openapi("SunspotUncertaintyRequest");
-
 /** Cells of a period at a resolution, or null when the period does not parse (compute says why). */
 function periodCells(
   period: { start: string | number; end: string | number },
@@ -70,38 +51,8 @@ function periodCells(
 
 export const ReconstructionRequest = z.object({
   model: runRef("Id of a succeeded /v1/irradiance/models run"),
-  proxies: z.array(z.object({
-    term: z.string().min(1).max(40).openapi({ description: "A term name of the model" }),
-    series: SeriesRef,
-  })).max(6).default([]).openapi({
-    description: "Direct proxy series per model term; where a term has no value the " +
-      "reconstruction back-extends from sunspot_number",
-  }),
-  sunspot_number: SeriesRef.optional().openapi({
-    description: "Sunspot-number series for back-extension; its version must match the " +
-      "model's unless `sunspot_conversion` is given",
-  }),
-  sunspot_conversion: SunspotConversion.optional().openapi({
-    description: "How to put the sunspot series on the model's version: " +
-      '`{"method": "published"}` (the time-dependent conversion between versions 1 and 2) ' +
-      'or a constant `{"factor": f}` (warned about when the series crosses 1849, 1868 or ' +
-      "1947, where the ratio of the versions changes)",
-  }),
-  period: PeriodInput.openapi({
-    description: "The cells are every day, month or year from the one holding the start to " +
-      "the one holding the last instant before the end: ISO bounds name whole periods, so " +
-      '"2001-01" to "2001-12" is 12 months and "2001-01-01" to "2001-01-31" is 31 days',
-  }),
-  resolution: z.enum(["daily", "monthly", "annual"]).default("monthly"),
-  level: z.number().min(0.5).max(0.999).default(0.95).openapi({
-    description: "Level of the prediction intervals",
-  }),
+  ...ReconstructionInputFields,
   background: SecularBackgroundRequest.default({ kind: "none" }),
-  sunspot_uncertainty: SunspotUncertaintyRequest.default({
-    source: "auto",
-    multiplier: 1,
-    correlation_years: SUNSPOT_SCALE_CORRELATION_YEARS,
-  }),
   realizations: z.number().int().min(0).max(MAX_REALIZATIONS).default(0).openapi({
     description: "Seeded ensemble members to draw (0 to 1,000; 0 = none): each draws the " +
       "calibration coefficients, the mapping parameters, the sunspot number's error and the " +
@@ -132,13 +83,7 @@ export const ReconstructionRequest = z.object({
         "/realizations, /period, /resolution)",
     });
   }
-  const seen = new Set<string>();
-  v.proxies.forEach((p, i) => {
-    if (seen.has(p.term)) {
-      ctx.addIssue({ code: "custom", path: ["proxies", i, "term"], message: "duplicate term" });
-    }
-    seen.add(p.term);
-  });
+  duplicateProxyTerms(v.proxies, (i) => ctx.addIssue(i));
 }).openapi("ReconstructionRequest", {
   example: {
     model: EXAMPLE_RUN_ID,

@@ -8,6 +8,7 @@ import { cautions, inherited, OutputSeriesSchema, warnings } from "../common/res
 import { TsiCycleAmplitudeSchema } from "../common/tsi_cycle_amplitude.ts";
 import { UncertaintyBandSchema } from "../common/uncertainty_band.ts";
 import { EnsembleSchema } from "../common/ensemble_members.ts";
+import { SunspotUncertaintySchema } from "../common/sunspot_errors.ts";
 import { ERROR_SOURCES } from "../../../core/irradiance/mod.ts";
 
 const bySource = (what: string) =>
@@ -36,25 +37,6 @@ export const ErrorModelSchema = z.object({
   })).openapi({ description: "Unit-variance processes over the cells" }),
 }).openapi("ReconstructionErrorModel");
 
-const SunspotUncertaintySchema = z.object({
-  source: z.enum(["series", "model", "none"]).openapi({
-    description: "Where the sunspot number's error came from (`none`: taken as exact)",
-  }),
-  multiplier: z.number(),
-  correlation_years: z.number().nullable().openapi({
-    description: "τ of the correlated (scale) part; null when there is none",
-  }),
-  description: z.string(),
-  eras: z.array(z.object({
-    from: z.number().nullable().openapi({ description: "First year of the era; null: open" }),
-    relative_scale_sd: z.number(),
-    poisson_coefficient: z.number(),
-    basis: z.string(),
-  })).nullable().openapi({ description: "The model's eras (source `model`), else null" }),
-  references: z.array(z.string()),
-}).nullable().openapi({
-  description: "The sunspot number's error as propagated; null without a sunspot series",
-});
 import { CycleAmplitudeCheckSchema } from "./amplitude_check.ts";
 
 const SourceCoverage = z.object({

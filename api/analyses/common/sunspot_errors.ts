@@ -8,8 +8,10 @@
  */
 import { InputProblem } from "../../runs/kind.ts";
 import type { StoredSeries } from "../../store/types.ts";
+import { z } from "@hono/zod-openapi";
 import {
   modelledSunspotUncertainty,
+  SUNSPOT_SCALE_CORRELATION_YEARS,
   SUNSPOT_UNCERTAINTY_ERAS,
   type SunspotCellUncertainty,
   sunspotUncertaintyAtCells,
@@ -17,14 +19,52 @@ import {
 } from "../../../core/irradiance/mod.ts";
 import { MEAN_YEAR_DAYS, meanPeriodDays } from "../../../core/series/mod.ts";
 import type { CalendarResolution } from "../../../core/time/mod.ts";
-import { withInputPointers } from "../common/input_problem.ts";
-import type { ReconstructionParams } from "./request.ts";
-import type { ReconstructionResultIn } from "./result.ts";
+import { withInputPointers } from "./input_problem.ts";
+
+/** How the request asks for the sunspot number's own error. */
+export const SunspotUncertaintyRequest = z.object({
+  source: z.enum(["auto", "series", "model", "none"]).default("auto").openapi({
+    description: "The sunspot number's own error, propagated where proxies are mapped from it: " +
+      "`series` its own one-sigma uncertainties (taken as independent between values), " +
+      "`model` the documented model that grows back in time (a scale error correlated over " +
+      "decades, 5 % since 1981 to 40 % before 1749, and Poisson-like counting noise; see the " +
+      "result's `sunspot_uncertainty`), `auto` the series' own when it has them, else the " +
+      "model, `none` taken as exact",
+  }),
+  multiplier: z.number().min(0).max(10).default(1).openapi({
+    description: "Scale both parts of the sunspot number's error by this factor",
+  }),
+  correlation_years: z.number().gt(0).max(1000).default(SUNSPOT_SCALE_CORRELATION_YEARS).openapi({
+    description: "Correlation time τ (years) of the model's scale error: e^{−Δt/τ} between " +
+      "cells Δt apart",
+  }),
+}).openapi("SunspotUncertaintyRequest");
+
+/** The sunspot number's error as a result states it. */
+export const SunspotUncertaintySchema = z.object({
+  source: z.enum(["series", "model", "none"]).openapi({
+    description: "Where the sunspot number's error came from (`none`: taken as exact)",
+  }),
+  multiplier: z.number(),
+  correlation_years: z.number().nullable().openapi({
+    description: "τ of the correlated (scale) part; null when there is none",
+  }),
+  description: z.string(),
+  eras: z.array(z.object({
+    from: z.number().nullable().openapi({ description: "First year of the era; null: open" }),
+    relative_scale_sd: z.number(),
+    poisson_coefficient: z.number(),
+    basis: z.string(),
+  })).nullable().openapi({ description: "The model's eras (source `model`), else null" }),
+  references: z.array(z.string()),
+}).nullable().openapi({
+  description: "The sunspot number's error as propagated; null without a sunspot series",
+});
 
 /** The sunspot error as propagated, and its statement in the result. */
 export interface SunspotErrors {
   cells: SunspotCellUncertainty | null;
-  json: NonNullable<ReconstructionResultIn["sunspot_uncertainty"]>;
+  json: NonNullable<z.input<typeof SunspotUncertaintySchema>>;
   /** What the band leaves out because of this choice. */
   notIncluded: string[];
 }
@@ -61,7 +101,7 @@ function daysPerValue(s: StoredSeries): number {
  *   without uncertainties
  */
 export function sunspotErrors(
-  params: ReconstructionParams,
+  params: { sunspot_uncertainty: z.output<typeof SunspotUncertaintyRequest> },
   ss: StoredSeries,
   value: ArrayLike<number>,
   ownSd: ArrayLike<number> | null,
