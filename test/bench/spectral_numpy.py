@@ -162,8 +162,9 @@ def reconstruct(B, cov, sd, rho, r2, f2, p2, half, mapF, mapP, corr, weights):
     besd = np.append(bsd, np.sqrt(bv0))
     value = X @ Ball
     q = np.einsum("ni,bij,nj->nb", X, covall, X, optimize=True)
-    mapped = ((Ball[1] ** 2 + covall[:, 1, 1])[None, :] * pf[:, None]
-              + (Ball[2] ** 2 + covall[:, 2, 2])[None, :] * 1360.8 ** 2 * pp[:, None])
+    # first-order (delta-method) mapping term, as core/irradiance/proxy_reconstruction_errors.ts
+    mapped = ((Ball[1] ** 2)[None, :] * pf[:, None]
+              + (Ball[2] ** 2)[None, :] * 1360.8 ** 2 * pp[:, None])
     rv = np.where(back[:, None], besd[None, :] ** 2 + mapped, sdall[None, :] ** 2)
     s = np.sqrt(q + rv)
     return value, s, value - 1.96 * s, value + 1.96 * s
