@@ -8,6 +8,7 @@ import { formatIsoTime } from "../../core/time/mod.ts";
 import type { Resolution } from "../store/types.ts";
 import { EXPORT_MARKER } from "./text.ts";
 import { csvMetaLine, csvMetaValue, csvText } from "../export/csv_cell.ts";
+import { DECIMAL_YEAR_COLUMN, TIME_COLUMN, UNCERTAINTY_MEANING } from "../export/columns.ts";
 
 /** What {@link seriesToCsv} needs: a normalised or stored series, optionally with id/lineage. */
 export interface CsvSeries {
@@ -31,9 +32,9 @@ export interface CsvSeries {
  * Layout: the `# sunlag series` line, then `# key: value` comment lines for id, name,
  * quantity, units, version, resolution, source, description and derived_from (empty when
  * absent; a value with a line break, surrounding blanks or a leading quote is written as a
- * JSON string, and no delimiter is left where a spreadsheet could start a formula after it:
- * api/export/csv_cell.ts), a comment describing the columns, then the header
- * `time,decimal_year,value[,uncertainty]` and one row per point. `time` is ISO 8601 at the
+ * JSON string), a comment describing the columns (the vocabulary of every CSV the service
+ * writes, `api/export/columns.ts`), then the header `time,decimal_year,value[,uncertainty]`
+ * and one row per point. `time` is ISO 8601 at the
  * series' resolution (the period holding the point; UTC date-time for irregular series);
  * `decimal_year` is the exact stored time (shortest round-trip decimal), so
  * `ingestText(seriesToCsv(s))` gives the same content id. pandas
@@ -73,9 +74,10 @@ export function seriesToCsv(series: CsvSeries): string {
       series.resolution === "irregular" ? "instant" : `${series.resolution} period`
     }; decimal_year = proleptic Gregorian decimal year; value in ${
       series.units === "1" ? "dimensionless units" : JSON.stringify(csvMetaValue(series.units))
-    }${u ? "; uncertainty = one-sigma, same units" : ""}`,
+    }${u ? `; ${UNCERTAINTY_MEANING}` : ""}`,
   );
-  out.push(u ? "time,decimal_year,value,uncertainty" : "time,decimal_year,value");
+  const cols = [TIME_COLUMN, DECIMAL_YEAR_COLUMN, "value", ...(u ? ["uncertainty"] : [])];
+  out.push(cols.join(","));
   const n = series.time.length;
   for (let i = 0; i < n; i++) {
     const t = series.time[i];

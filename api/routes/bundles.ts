@@ -26,6 +26,7 @@ import { ProblemError, toPointer } from "../problems.ts";
 import { problems, ResolutionSchema, RunStatusSchema } from "../schemas/common.ts";
 import { InlineSeries, SeriesId } from "../schemas/series_ref.ts";
 import { RunIdString } from "../schemas/ids.ts";
+import type { Lineage } from "../runs/inherit.ts";
 import { storedFromNormalised } from "../series_codec.ts";
 import { ingestJson } from "../ingest/mod.ts";
 import { canonicalJson } from "../canonical.ts";
@@ -343,7 +344,12 @@ async function verifyRun(
       series: Object.fromEntries(inputSeries.map((id) => [id, series[id]])),
       runs: Object.fromEntries(inputRuns.map((id) => [id, verified.get(id)!])),
     };
-    const again = await runs.computeResult(kind, params, inputs);
+    // the inherited context comes from the bundle's own lineage, verified before this run
+    const lineage: Lineage = {
+      run: (id) => Promise.resolve(verified.get(id) ?? null),
+      seriesOrigin: (id) => Promise.resolve(series[id]?.derived_from ?? null),
+    };
+    const again = await runs.computeResult(kind, params, inputs, lineage);
     if (again.digest !== rec.result_digest) {
       differ(
         `${where}/result_digest`,

@@ -4,6 +4,7 @@
  *
  * @module
  */
+import { runLabel } from "../runs/label.ts";
 import { createRoute, z } from "@hono/zod-openapi";
 import { streamSSE } from "hono/streaming";
 import type { App } from "../app_env.ts";
@@ -40,7 +41,7 @@ const FINAL = new Set(["succeeded", "failed", "cancelled"]);
 
 /** The public view of a run record. */
 export function runView(r: RunRecord) {
-  return r;
+  return { ...r, label: runLabel(r.id) };
 }
 
 const RunId = RunIdParam;
@@ -91,7 +92,8 @@ export function registerRunRoutes(
     async (c) => {
       const q = c.req.valid("query");
       const page = await store.listRuns({ ...q, viewer: viewerOf(principalOf(c)) });
-      return c.json({ ...page, limit: q.limit, offset: q.offset }, 200);
+      const items = page.items.map((r) => ({ ...r, label: runLabel(r.id) }));
+      return c.json({ ...page, items, limit: q.limit, offset: q.offset }, 200);
     },
   );
 
@@ -318,7 +320,9 @@ export function registerRunRoutes(
       return c.json({
         run_id: run.id,
         result_digest: run.result_digest,
+        warnings: run.result?.warnings ?? [],
         cautions: run.result?.cautions ?? [],
+        ...(run.result?.inherited ? { inherited: run.result.inherited } : {}),
         ...o,
       });
     }) as never,

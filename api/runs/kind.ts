@@ -104,7 +104,15 @@ export interface RunContext {
    * result. Use this instead of reading `run(id).result` by field-name strings.
    */
   resultOf<K extends RunKind>(kind: K, id: string, pointer: string): ResultOf<K>;
-  /** Report progress in [0, 1]. Cheap; call it as often as you like. */
+  /**
+   * Report progress in [0, 1]. Cheap; call it as often as you like.
+   *
+   * The first report (or the first `parallel` map) also marks the end of the input checks: an
+   * asynchronous request is checked before it is stored by running `compute` up to that point
+   * (`RunService.preflight`), so a run refused for its input is never stored. An analysis
+   * therefore checks its inputs before it reports progress, and reports progress before work
+   * that may take long.
+   */
   progress(fraction: number): void;
   /** True once the run was cancelled; long loops should check and throw `new CancelledError()`. */
   cancelled(): boolean;
@@ -140,11 +148,11 @@ export class InputProblem extends Error {
 export type Task = (input: any) => any;
 
 /** An analysis' chart, typed on its result. */
-export interface KindChart<T> {
+export interface KindChart<T, S extends ChartSpec | MapChartSpec = ChartSpec> {
   /** True when the chart draws the run's input series too (the chart route loads them). */
   needsInputs?: boolean;
-  /** The chart, or null to fall back to the generic chart of the run's outputs. */
-  build(run: RunRecord, result: T, inputs: StoredSeries[]): ChartSpec | MapChartSpec | null;
+  /** The chart (a line-chart panel, or a map), or null for the generic chart of the outputs. */
+  build(run: RunRecord, result: T, inputs: StoredSeries[]): S | null;
 }
 
 /** The typed (parsed) result of an analysis. */
@@ -191,7 +199,7 @@ export interface RunKind<S extends z.ZodType = any, R extends z.ZodType = any> {
   result: R;
   compute(params: z.output<S>, ctx: RunContext): Promise<z.input<R>> | z.input<R>;
   /** The specialised chart; without it the generic chart of the outputs is drawn. */
-  chart?: KindChart<z.output<R>>;
+  chart?: KindChart<z.output<R>, ChartSpec | MapChartSpec>;
   /** Worker tasks this analysis maps over chunks with `ctx.parallel`, by globally unique name. */
   tasks?: Record<string, Task>;
 }

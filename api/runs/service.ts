@@ -3,9 +3,10 @@
  *
  * Synchronous runs are computed first and stored only when they succeed, so a rejected
  * request (422) leaves the store unchanged. Asynchronous runs (asked for with
- * `Prefer: respond-async`, or estimated to take longer than the configured threshold) are
- * stored as `queued` with their inputs, then computed in the background; progress and the
- * final status are published to subscribers (Server-Sent Events).
+ * `Prefer: respond-async`, or estimated to take longer than the configured threshold) have
+ * their inputs checked first (`preflight`: a request refused for its input is a 422 and is not
+ * stored either), are then stored as `queued` with their inputs, and computed in the
+ * background; progress and the final status are published to subscribers (Server-Sent Events).
  *
  * @module
  */
@@ -27,6 +28,7 @@ import type { InlineSeries } from "../schemas/series_ref.ts";
 import { ProblemError, toPointer } from "../problems.ts";
 import { canonicalJson, sha256Hex } from "../canonical.ts";
 import { toPlainJson } from "./json.ts";
+import { gatherInherited, type Lineage, withInherited } from "./inherit.ts";
 import { SERVICE_VERSION } from "../version.ts";
 import { taskTable } from "../analyses/derive.ts";
 import { RUN_KINDS } from "../analyses/registry.ts";
@@ -213,6 +215,14 @@ export function collectSeriesIds(
 /** The digest of a result: hex SHA-256 of its RFC 8785 canonical JSON. */
 export async function resultDigest(result: unknown): Promise<string> {
   return await sha256Hex(canonicalJson(result));
+}
+
+/** Stops a preflight at the end of the input checks (the first progress report). */
+class InputsChecked extends Error {
+  constructor() {
+    super("input checks done");
+    this.name = "InputsChecked";
+  }
 }
 
 /** A run this process computes: its stop flag (set by a cancel or a lost lease). */
@@ -480,6 +490,13 @@ export class RunService {
     const admission = opts.limited ? this.options.admission : undefined;
     const ticket = admission?.admit(holder.owner, isAsync ? "async" : "sync") ?? null;
     if (isAsync) {
+      // refused for its input: a 422 now, and nothing stored (as for a synchronous run)
+      try {
+        await this.preflight(kind, prep.params, prep);
+      } catch (e) {
+        ticket?.done(0);
+        throw e;
+      }
       try {
         for (const s of prep.inline.values()) await this.store.putSeries(s, holder);
         await this.store.putRun(run, holder);
@@ -508,14 +525,41 @@ export class RunService {
   }
 
   /**
-   * Compute a result from params and loaded inputs, without storing anything. A computation
-   * still going after the wall-time limit is asked to stop and answered with a time-limit
-   * problem (computed in this thread, it is refused once it returns).
+   * Check a request's inputs before an asynchronous run is stored: run the analysis' compute
+   * in this thread up to its first progress report or parallel map, where by the contract of
+   * `RunContext.progress` its input checks are done (an analysis without either is cheap and
+   * runs to its end; the result is not kept). An input problem is thrown as the 422 the
+   * synchronous path gives; the request is then not stored.
+   */
+  async preflight(
+    kind: RunKind,
+    params: Record<string, unknown>,
+    inputs: RunInputs,
+  ): Promise<void> {
+    const checked = () => {
+      throw new InputsChecked();
+    };
+    const ctx = makeContext(inputs, { progress: checked, isCancelled: () => false }, checked);
+    try {
+      await kind.compute(params, ctx);
+    } catch (e) {
+      if (e instanceof InputsChecked) return;
+      throw asProblem(e);
+    }
+  }
+
+  /**
+   * Compute a result from params and loaded inputs, without storing anything. The result
+   * carries the warnings and cautions of the runs it is built on (`inherited`), looked up in
+   * `lineage` (default: the store). A computation still going after the wall-time limit is
+   * asked to stop and answered with a time-limit problem (computed in this thread, it is
+   * refused once it returns).
    */
   async computeResult(
     kind: RunKind,
     params: Record<string, unknown>,
     inputs: RunInputs,
+    lineage: Lineage = this.lineage(),
   ): Promise<{ result: Record<string, unknown>; digest: string }> {
     let result: RunResult;
     let stop = false;
@@ -546,8 +590,26 @@ export class RunService {
       clearTimeout(timer);
     }
     if (performance.now() - t0 > wallMs) throw timeLimitProblem(this.options.wallSeconds!);
-    const plain = toPlainJson(result) as Record<string, unknown>;
+    const plain = await this.finishResult(result, inputs, lineage);
     return { result: plain, digest: await resultDigest(plain) };
+  }
+
+  /** The stored form of a computed result: plain JSON with its inherited context. */
+  private async finishResult(
+    result: RunResult,
+    inputs: { series: Record<string, StoredSeries>; runs: Record<string, RunRecord> },
+    lineage: Lineage,
+  ): Promise<Record<string, unknown>> {
+    const plain = toPlainJson(result) as Record<string, unknown>;
+    return withInherited(plain, await gatherInherited(inputs, lineage));
+  }
+
+  /** The lineage of runs as the store holds it. */
+  lineage(): Lineage {
+    return {
+      run: (id) => this.store.getRun(id),
+      seriesOrigin: async (id) => (await this.store.getSeriesMeta(id))?.derived_from ?? null,
+    };
   }
 
   /** Compute without storing; returns the finished record or throws the input problem. */
@@ -710,7 +772,7 @@ export class RunService {
     const late = overTime();
     if (late) throw late;
     if (active.cancelled) throw new CancelledError();
-    const plain = toPlainJson(result) as Record<string, unknown>;
+    const plain = await this.finishResult(result, prep, this.lineage());
     const digest = await resultDigest(plain);
     if (active.final) return;
     active.final = true;
@@ -793,6 +855,10 @@ export class RunService {
         ? "The recomputed result is byte-identical (same RFC 8785 canonical JSON digest)."
         : versionChanged
         ? `The algorithm of "${run.kind}" changed since this run (${run.algorithm_version} → ${kind.algorithmVersion}); the results differ.`
+        : await onlyInheritedAdded(run.result, again.result)
+        ? "The recomputed result equals the stored one except for its `inherited` part (the " +
+          "warnings and cautions of the runs it is built on), which results carry since a " +
+          "later service version than the one that made this run."
         : "The recomputed result differs from the stored one although the algorithm version is unchanged.",
       result: again.result,
     };
@@ -832,6 +898,16 @@ export class RunService {
   async settle(): Promise<void> {
     await this.transport.queue.settle();
   }
+}
+
+/** True when `again` is `stored` plus an `inherited` part that `stored` lacks. */
+async function onlyInheritedAdded(
+  stored: Record<string, unknown> | null,
+  again: Record<string, unknown> | null,
+): Promise<boolean> {
+  if (!stored || !again || "inherited" in stored || !("inherited" in again)) return false;
+  const { inherited: _, ...rest } = again;
+  return await resultDigest(rest) === await resultDigest(stored);
 }
 
 function findPointer(params: unknown, needle: string): string {

@@ -95,6 +95,11 @@ export const RunStatusSchema = z.enum(["queued", "running", "succeeded", "failed
 
 export const RunSummarySchema = z.object({
   id: z.string().openapi({ description: "UUIDv7" }),
+  label: z.string().openapi({
+    description: "Short label that tells runs apart (the last 8 hex digits of the id, its " +
+      "random part; the first digits are the creation time, shared by runs made within a " +
+      "minute), as chart titles and CSV headers show it",
+  }),
   kind: z.string(),
   created_at: z.string(),
   updated_at: z.string(),

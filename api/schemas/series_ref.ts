@@ -6,13 +6,15 @@
  */
 import { z } from "@hono/zod-openapi";
 import { QUANTITIES } from "../../core/series/quantities.ts";
+import { DEMO_SERIES } from "./examples.ts";
 
 export const SERIES_ID_PATTERN = /^sha256:[0-9a-f]{64}$/;
 
 export const SeriesId = z.string().regex(SERIES_ID_PATTERN, "must be a series id: sha256:<64 hex>")
   .openapi({
     description: "Content id of a stored series",
-    example: "sha256:3f1c...",
+    // the demo's monthly sunspot number, stored on every fresh instance
+    example: DEMO_SERIES.SSN,
   });
 
 /** Time values: ISO 8601 strings (YYYY, YYYY-MM, YYYY-MM-DD, date-times) or decimal years. */

@@ -24,6 +24,7 @@ import {
   isScalar,
   metaList,
   pretty,
+  runLabel,
   seg,
   table,
   when,
@@ -518,7 +519,7 @@ async function seriesView(gen, id) {
         ? callout(
           "warn",
           "Warnings of the run that produced it",
-          h("ul", null, warnings.map((/** @type {string} */ w) => h("li", null, w))),
+          h("ul", null, warnings.map((/** @type {any} */ w) => h("li", null, w))),
         )
         : null,
       cautions.length
@@ -578,7 +579,12 @@ async function seriesView(gen, id) {
       ["Source", s.source],
       [
         "Derived from run",
-        s.derived_from ? h("a", { href: `#/runs/${s.derived_from}` }, s.derived_from) : null,
+        s.derived_from
+          ? h("a", { href: `#/runs/${s.derived_from}`, title: s.derived_from }, [
+            "run ",
+            h("code", null, runLabel(s.derived_from)),
+          ])
+          : null,
       ],
       ["Stored", when(s.created_at)],
     ]),
@@ -624,7 +630,8 @@ async function runList(gen, query) {
   const kinds = Object.keys(version.data?.algorithms ?? {}).sort();
   const items = /** @type {any[]} */ (r.data.items);
   const rows = items.map((run) => [
-    h("a", { href: `#/runs/${run.id}` }, pretty(run.kind)),
+    h("a", { href: `#/runs/${run.id}`, title: run.id }, h("code", null, runLabel(run.id))),
+    pretty(run.kind),
     badge(run.status),
     run.status === "running" ? `${Math.round(run.progress * 100)} %` : "",
     when(run.created_at),
@@ -655,13 +662,15 @@ async function runList(gen, query) {
       ),
       h("a", { class: "button", href: "#/analyse" }, "Start an analysis"),
     ),
-    items.length ? table(["Kind", "Status", "Progress", "Created", "Result digest"], rows) : h(
-      "p",
-      { class: "muted", id: "empty" },
-      "No runs yet. ",
-      h("a", { href: "#/analyse" }, "Start an analysis"),
-      ".",
-    ),
+    items.length
+      ? table(["Run", "Kind", "Status", "Progress", "Created", "Result digest"], rows)
+      : h(
+        "p",
+        { class: "muted", id: "empty" },
+        "No runs yet. ",
+        h("a", { href: "#/analyse" }, "Start an analysis"),
+        ".",
+      ),
     pager("#/runs", query, offset, r.data.total, items.length),
     snippets([req]).el,
   );
@@ -706,7 +715,7 @@ function resultParts(result) {
     }
   };
   for (const [k, v] of Object.entries(result)) {
-    if (k === "outputs" || k === "warnings" || k === "cautions") continue;
+    if (["outputs", "warnings", "cautions", "inherited"].includes(k)) continue;
     visit(k, v, 0);
   }
   return { scalars, tables };
@@ -860,8 +869,23 @@ async function runView(gen, id) {
   }
 
   const result = isObject(run.result) ? run.result : {};
-  const warnings = Array.isArray(result.warnings) ? result.warnings : [];
-  const cautions = Array.isArray(result.cautions) ? result.cautions : [];
+  // The run's own warnings and cautions, then those of the runs it is built on (linked).
+  const inherited = Array.isArray(result.inherited) ? result.inherited : [];
+  /** @param {"warning" | "caution"} level */
+  const fromRuns = (level) =>
+    inherited.filter((/** @type {any} */ n) => n.level === level).map((/** @type {any} */ n) => [
+      h("a", { href: `#/runs/${seg(n.run)}` }, `From ${pretty(n.kind)} run ${runLabel(n.run)}`),
+      ": ",
+      n.text,
+    ]);
+  const warnings = [
+    ...(Array.isArray(result.warnings) ? result.warnings : []),
+    ...fromRuns("warning"),
+  ];
+  const cautions = [
+    ...(Array.isArray(result.cautions) ? result.cautions : []),
+    ...fromRuns("caution"),
+  ];
   const outputs = isObject(result.outputs) ? Object.entries(result.outputs) : [];
   const { scalars, tables } = resultParts(result);
   if (run.status === "succeeded") {
@@ -908,7 +932,7 @@ async function runView(gen, id) {
       )
     ),
     ...(run.input_runs ?? []).map((/** @type {string} */ s) =>
-      h("a", { href: `#/runs/${s}` }, h("code", null, `run ${s}`))
+      h("a", { href: `#/runs/${s}`, title: s }, h("code", null, `run ${runLabel(s)}`))
     ),
   ];
 
@@ -916,7 +940,7 @@ async function runView(gen, id) {
     gen,
     `${pretty(run.kind)} run`,
     h("p", { class: "muted" }, h("a", { href: "#/runs" }, "← All runs")),
-    h("h1", null, `${pretty(run.kind)} run`),
+    h("h1", null, `${pretty(run.kind)} run ${runLabel(run.id)}`),
     statusLine,
     live,
     run.status === "failed" && run.error ? problemBox(run.error, "The run failed") : null,
@@ -927,14 +951,14 @@ async function runView(gen, id) {
       ? callout(
         "warn",
         "Warnings",
-        h("ul", null, warnings.map((/** @type {string} */ w) => h("li", null, w))),
+        h("ul", null, warnings.map((/** @type {any} */ w) => h("li", null, w))),
       )
       : null,
     cautions.length
       ? callout(
         "",
         "Cautions",
-        h("ul", { class: "cautions" }, cautions.map((/** @type {string} */ c) => h("li", null, c))),
+        h("ul", { class: "cautions" }, cautions.map((/** @type {any} */ c) => h("li", null, c))),
       )
       : null,
     run.status === "succeeded"

@@ -16,3 +16,4 @@ export * from "./superposed_epoch.ts";
 export * from "./attribution_regression.ts";
 export * from "./inverse_dft_plan.ts";
 export * from "./polynomial_trend_residuals.ts";
+export * from "./lag_search_surrogate_test.ts";

@@ -139,5 +139,7 @@ export function inventedAttributionRequest(
         max_lag: 6,
       },
     ],
+    // the fewest surrogates of the test that pays for the solar lag search (each repeats it)
+    surrogates: 100,
   };
 }

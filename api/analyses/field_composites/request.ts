@@ -7,6 +7,8 @@ import { z } from "@hono/zod-openapi";
 import { TimeValue } from "../../schemas/series_ref.ts";
 import { RunRef } from "../common/run_ref.ts";
 import { fieldRef } from "../common/field_ref.ts";
+import { DEMO_FIELD } from "../../schemas/examples.ts";
+import { oneOfFields } from "../common/alternatives.ts";
 
 const dates = (what: string) =>
   z.array(TimeValue).min(2).max(2000).optional().openapi({
@@ -52,6 +54,17 @@ export const FieldCompositeRequest = z.object({
     description: "Random epoch sets for the Monte Carlo field significance; 0 skips it",
   }),
   seed: z.number().int().min(0).max(4294967295).default(1),
-}).openapi("FieldCompositeRequest");
+}).openapi("FieldCompositeRequest", {
+  ...oneOfFields("epoch_dates", "cycle_run"),
+  example: {
+    field: DEMO_FIELD,
+    epoch_dates: ["1968-10", "1982-05", "1992-06", "2003-02", "2014-02"],
+    contrast_dates: ["1965-01", "1978-03", "1988-06", "1998-12", "2010-01"],
+    from_years: 0,
+    to_years: 2,
+    random_sets: 1000,
+    seed: 3,
+  },
+});
 
 export type FieldCompositeParams = z.output<typeof FieldCompositeRequest>;

@@ -6,10 +6,11 @@
  * @module
  */
 import type { KindChart } from "../../runs/kind.ts";
+import type { MapChartSpec } from "../../charts/map_chart.ts";
 import { mapChartOf } from "../common/map_result.ts";
 import type { SolarSignalMapResultOut } from "./result.ts";
 
-export const solarSignalMapChart: KindChart<SolarSignalMapResultOut> = {
+export const solarSignalMapChart: KindChart<SolarSignalMapResultOut, MapChartSpec> = {
   build(run, r) {
     const fs = r.field_significance;
     const mc = fs.monte_carlo;
