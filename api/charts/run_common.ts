@@ -64,8 +64,8 @@ export interface RunChartNotes {
 
 /**
  * The lines under a run chart: `notes` (the chart's own method notes) and the run's cautions,
- * own then inherited, may be shortened; `keep` (statements the chart cannot be read without)
- * and the run's warnings, own then inherited, are always shown whole.
+ * own then inherited, may be shortened; `keep` (statements the chart cannot be read without),
+ * the run's first caution and its warnings, own then inherited, are always shown whole.
  */
 export function runNotes(run: RunRecord, notes: string[] = [], keep: string[] = []): RunChartNotes {
   const r = run.result ?? {};
@@ -75,14 +75,18 @@ export function runNotes(run: RunRecord, notes: string[] = [], keep: string[] = 
       source: inheritedSource(n),
       text: n.text,
     }));
+  // The kind's first caution (correlation is not attribution, reconstructions are
+  // model-dependent, ...) is never shortened: a chart shown alone must still say it.
+  const [primary, ...otherCautions] = strings(r.cautions);
   return {
     notes: [
       ...notes,
-      ...strings(r.cautions),
+      ...otherCautions,
       ...from("caution").map((n) => `From ${n.source}: ${n.text}`),
     ],
     keep: [
       ...keep,
+      ...(primary ? [primary] : []),
       ...strings(r.warnings).map((w) => `Warning: ${w}`),
       ...from("warning").map((n) => `Warning (from ${n.source}): ${n.text}`),
     ],

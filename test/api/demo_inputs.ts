@@ -7,10 +7,11 @@
  */
 import assert from "node:assert/strict";
 import type { TestService } from "./helpers.ts";
-import { DEMO_FIELD, DEMO_SERIES } from "../../api/schemas/examples.ts";
+import { DEMO_SERIES } from "../../api/schemas/examples.ts";
+import { FIELD } from "./demo_ids.ts";
 
-/** Content ids of the demo series loaded by `loadDemo` (api/schemas/examples.ts), and its field. */
-export const DEMO = { ...DEMO_SERIES, FIELD: DEMO_FIELD } as const;
+/** Content ids of the demo series loaded by `loadDemo` (api/schemas/examples.ts), and the field. */
+export const DEMO = { ...DEMO_SERIES, FIELD } as const;
 
 /** The model request terms of the demo chain, given the saved PSI series id. */
 export function demoModelRequest(psi: string) {

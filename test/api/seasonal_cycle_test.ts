@@ -6,6 +6,7 @@
  * R's cor() on the deseasonalised, detrended series (fixtures/reference/seasonal_r.R).
  */
 import assert from "node:assert/strict";
+import type { ChartSpec, Layer } from "../../api/charts/chart.ts";
 import { makeTestApp, type TestService, uploadSeries } from "./helpers.ts";
 import { loadDataset } from "../core/cycles/load_dataset.ts";
 import { attributionsChart } from "../../api/analyses/attributions/chart.ts";
@@ -205,8 +206,14 @@ Deno.test("attributions: the seasonal cycle and the solar lag search, before and
     );
     // the chart says which p-value is which, in the solar line's legend and in a note
     const run = await (await svc.get(`/v1/runs/${adjustedRun}`)).json();
-    const chart = attributionsChart.build(run, AttributionResult.parse(run.result), [])!;
-    const solarLine = chart.layers.find((l) => l.type === "line" && /^solar/.test(l.label ?? ""));
+    const chart = attributionsChart.build(
+      run,
+      AttributionResult.parse(run.result),
+      [],
+    ) as ChartSpec;
+    const solarLine = chart.layers.find((l: Layer) =>
+      l.type === "line" && /^solar/.test(l.label ?? "")
+    );
     assert.match(solarLine!.label!, /paying for the lag search, 0\.0\d\d if the lag were fixed/);
     assert.ok(chart.notes!.some((n) => /naive \(chosen lag taken as fixed, too small\)/.test(n)));
   } finally {

@@ -1,7 +1,7 @@
 /**
  * Epoch dates from a cycle table: the maxima or the starts (minima) of the cycles of a cycles
- * run, read through the cycles result schema (`ctx.resultOf`), for the superposed-epoch
- * analyses of a series and of a field. A provisional maximum is left out.
+ * run, read through the cycles result schema, for the superposed-epoch analyses of a series and
+ * of a field. Provisional maxima are left out.
  *
  * @module
  */
@@ -15,7 +15,7 @@ import { cyclesKind } from "../cycles/mod.ts";
  * @param id the run id
  * @param which maxima or minima
  * @param pointer where the request names the run
- * @throws {InputProblem} at `pointer` when the run is not a succeeded cycles run
+ * @throws {InputProblem} at `pointer` when the run is not a cycles run of the current shape
  */
 export function cycleEpochs(
   ctx: RunContext,

@@ -4,7 +4,7 @@
  * @module
  */
 import { z } from "@hono/zod-openapi";
-import { cautions, outputs, warnings } from "../common/result_parts.ts";
+import { cautions, inherited, outputs, warnings } from "../common/result_parts.ts";
 import { AreaRegionRequest } from "./request.ts";
 
 export const FieldAreaMeanResult = z.object({
@@ -24,6 +24,7 @@ export const FieldAreaMeanResult = z.object({
   outputs: outputs(["area_mean", "coverage"]),
   warnings,
   cautions,
+  inherited,
 }).openapi("FieldAreaMeanResult");
 
 export type FieldAreaMeanResultIn = z.input<typeof FieldAreaMeanResult>;

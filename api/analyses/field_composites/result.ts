@@ -4,7 +4,7 @@
  * @module
  */
 import { z } from "@hono/zod-openapi";
-import { cautions, warnings } from "../common/result_parts.ts";
+import { cautions, inherited, warnings } from "../common/result_parts.ts";
 import { MapPartSchema } from "../common/map_result.ts";
 import { FieldFdrSchema, FieldNullSchema, FieldSummary } from "../solar_signal_maps/result.ts";
 
@@ -45,6 +45,7 @@ export const FieldCompositeResult = z.object({
   }),
   warnings,
   cautions,
+  inherited,
 }).openapi("FieldCompositeResult");
 
 export type FieldCompositeResultIn = z.input<typeof FieldCompositeResult>;
