@@ -40,7 +40,13 @@ const VARIANTS = [
  * cite those ids, so their digests are not pinned: `RUN_REFS`).
  */
 type Case = [string, string, (ids: Record<string, string>) => Record<string, unknown>];
-const RUN_REFS = new Set(["reconstructions", "forcing", "energy-balance", "composites"]);
+const RUN_REFS = new Set([
+  "reconstructions",
+  "forcing",
+  "energy-balance",
+  "composites",
+  "field-composites",
+]);
 const CASES: Case[] = [
   ["resampling", "/v1/resampling", () => ({ series: TEMP, to: "annual" })],
   ["anomalies", "/v1/anomalies", () => ({ series: TEMP, base: { start: "1961", end: "1990" } })],
