@@ -148,11 +148,11 @@ export class InputProblem extends Error {
 export type Task = (input: any) => any;
 
 /** An analysis' chart, typed on its result. */
-export interface KindChart<T, S extends ChartSpec | MapChartSpec = ChartSpec> {
+export interface KindChart<T> {
   /** True when the chart draws the run's input series too (the chart route loads them). */
   needsInputs?: boolean;
-  /** The chart (a line-chart panel, or a map), or null for the generic chart of the outputs. */
-  build(run: RunRecord, result: T, inputs: StoredSeries[]): S | null;
+  /** The chart, or null to fall back to the generic chart of the run's outputs. */
+  build(run: RunRecord, result: T, inputs: StoredSeries[]): ChartSpec | MapChartSpec | null;
 }
 
 /** The typed (parsed) result of an analysis. */
@@ -199,7 +199,7 @@ export interface RunKind<S extends z.ZodType = any, R extends z.ZodType = any> {
   result: R;
   compute(params: z.output<S>, ctx: RunContext): Promise<z.input<R>> | z.input<R>;
   /** The specialised chart; without it the generic chart of the outputs is drawn. */
-  chart?: KindChart<z.output<R>, ChartSpec | MapChartSpec>;
+  chart?: KindChart<z.output<R>>;
   /** Worker tasks this analysis maps over chunks with `ctx.parallel`, by globally unique name. */
   tasks?: Record<string, Task>;
 }

@@ -35,7 +35,7 @@ export const DEMO_SERIES = {
   AOD: "sha256:1c90d09c4d2ddc23a99dac7abac5521ad06226ec60fd89683fd85a8ff665f8d7",
 } as const;
 
-/** Content id of the demo's gridded field (fixtures/demo, invented data; a field, not a series). */
+/** Content id of the demo's gridded field (monthly 10° near-surface air temperature). */
 export const DEMO_FIELD =
   "field:sha256:9e638701b97f5a020c0525c24628808eb8c395b5e326730a4bd06c7f2e710b35";
 

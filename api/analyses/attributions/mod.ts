@@ -15,7 +15,8 @@ import { attributionTasks } from "./tasks.ts";
 export const attributionKind = defineAnalysis({
   kind: "attributions",
   path: "/v1/attributions",
-  algorithmVersion: "2",
+  // 3: the lag-search surrogates use the one mixed-radix FFT (last bits)
+  algorithmVersion: "3",
   tag: "Solar–climate linkage",
   summary: "Multiple-regression attribution with a lag per regressor",
   description: "Regresses a climate series on named regressors on one calendar axis, each at " +

@@ -4,8 +4,8 @@
  * @module
  */
 import { z } from "@hono/zod-openapi";
-import { fieldRef } from "../common/field_ref.ts";
 import { DEMO_FIELD } from "../../schemas/examples.ts";
+import { fieldRef } from "../common/field_ref.ts";
 
 const lat = (what: string) => z.number().min(-90).max(90).openapi({ description: what });
 const lon = (what: string) => z.number().min(-360).max(720).openapi({ description: what });
@@ -50,11 +50,7 @@ export const FieldAreaMeanRequest = z.object({
     description: "Name of the stored mean series (default: the field's name and the region)",
   }),
 }).openapi("FieldAreaMeanRequest", {
-  example: {
-    field: DEMO_FIELD,
-    region: { kind: "box", south: -20, north: 60, west: 30, east: 170 },
-    min_coverage: 0.5,
-  },
+  example: { field: DEMO_FIELD, region: { kind: "globe" } },
 });
 
 export type FieldAreaMeanParams = z.output<typeof FieldAreaMeanRequest>;

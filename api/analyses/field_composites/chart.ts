@@ -5,11 +5,10 @@
  * @module
  */
 import type { KindChart } from "../../runs/kind.ts";
-import type { MapChartSpec } from "../../charts/map_chart.ts";
 import { mapChartOf } from "../common/map_result.ts";
 import type { FieldCompositeResultOut } from "./result.ts";
 
-export const fieldCompositeChart: KindChart<FieldCompositeResultOut, MapChartSpec> = {
+export const fieldCompositeChart: KindChart<FieldCompositeResultOut> = {
   build(run, r) {
     const fs = r.field_significance;
     const mc = fs.monte_carlo;

@@ -17,7 +17,8 @@ export const lagCorrelationKind = defineAnalysis({
   path: "/v1/lag-correlations",
   // 2: deseasonalising by default for absolute monthly quantities, best-lag warnings;
   // 3: also `best.r` is the overlap r whatever the normalisation, `best.r_full` beside it
-  algorithmVersion: "3",
+  // 4: one mixed-radix FFT in the surrogate loop (tallies change in the last bits)
+  algorithmVersion: "4",
   tag: "Solar–climate linkage",
   featured: true,
   summary: "Lagged correlation of a climate series with a solar series, with honest significance",

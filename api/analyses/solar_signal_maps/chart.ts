@@ -6,11 +6,10 @@
  * @module
  */
 import type { KindChart } from "../../runs/kind.ts";
-import type { MapChartSpec } from "../../charts/map_chart.ts";
 import { mapChartOf } from "../common/map_result.ts";
 import type { SolarSignalMapResultOut } from "./result.ts";
 
-export const solarSignalMapChart: KindChart<SolarSignalMapResultOut, MapChartSpec> = {
+export const solarSignalMapChart: KindChart<SolarSignalMapResultOut> = {
   build(run, r) {
     const fs = r.field_significance;
     const mc = fs.monte_carlo;

@@ -4,13 +4,12 @@
  * @module
  */
 import { z } from "@hono/zod-openapi";
+import { DEMO_FIELD, DEMO_SERIES } from "../../schemas/examples.ts";
 import { SeriesRef } from "../../schemas/series_ref.ts";
 import { CoverageFields } from "../common/analysis_axis.ts";
 import { RunRef } from "../common/run_ref.ts";
 import { fieldRef } from "../common/field_ref.ts";
 import { PreprocessField } from "../lag_correlations/request.ts";
-import { DEMO_FIELD, DEMO_SERIES } from "../../schemas/examples.ts";
-import { oneOfFields } from "../common/alternatives.ts";
 
 /** A control regressor of the per-cell multiple regression. */
 export const FieldControl = z.object({
@@ -78,15 +77,12 @@ export const SolarSignalMapRequest = z.object({
     description: "Also keep r and p of every lag (lags × cells numbers in the result)",
   }),
 }).openapi("SolarSignalMapRequest", {
-  ...oneOfFields("solar", "solar_run"),
   example: {
     field: DEMO_FIELD,
     solar: DEMO_SERIES.TSIM,
-    controls: [{ name: "enso", series: DEMO_SERIES.ENSO }],
     min_lag: 0,
     max_lag: 24,
-    surrogates: 1000,
-    seed: 7,
+    surrogates: 200,
   },
 });
 

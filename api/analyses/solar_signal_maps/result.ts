@@ -4,7 +4,7 @@
  * @module
  */
 import { z } from "@hono/zod-openapi";
-import { cautions, nums, numsOrNull, warnings } from "../common/result_parts.ts";
+import { cautions, inherited, nums, numsOrNull, warnings } from "../common/result_parts.ts";
 import { MapPartSchema } from "../common/map_result.ts";
 import { PreprocessField } from "../lag_correlations/request.ts";
 
@@ -121,6 +121,7 @@ export const SolarSignalMapResult = z.object({
   which_to_trust: z.string(),
   warnings,
   cautions,
+  inherited,
 }).openapi("SolarSignalMapResult");
 
 export type SolarSignalMapResultIn = z.input<typeof SolarSignalMapResult>;
