@@ -12,6 +12,7 @@ import type { App } from "../app_env.ts";
 import type { Config } from "../config.ts";
 import type { FieldDescription, FieldMeta, Store } from "../store/types.ts";
 import { FIELD_ID_PATTERN } from "../store/field_types.ts";
+import { DEMO_FIELD } from "../schemas/examples.ts";
 import { fieldMetaOf } from "../store/field_common.ts";
 import { ProblemError } from "../problems.ts";
 import { PageQuery, pageSchema, problems, SeriesMetaSchema } from "../schemas/common.ts";
@@ -44,7 +45,7 @@ import { SERVICE_VERSION } from "../version.ts";
 const FieldIdParam = z.object({
   id: z.string().regex(FIELD_ID_PATTERN, "must be a field id: field:sha256:<64 hex>").openapi({
     param: { name: "id", in: "path" },
-    example: "field:sha256:…",
+    example: DEMO_FIELD,
   }),
 });
 
