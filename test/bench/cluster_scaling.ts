@@ -150,6 +150,23 @@ try {
     await new Promise((r) => setTimeout(r, 100));
     if (Date.now() - killedAt > 120_000) break;
   }
+  // and until the run that lost a chunk ends, with the digest an undisturbed run gives
+  let killToDoneMs = NaN, afterKill = "";
+  while (Date.now() - killedAt < 300_000) {
+    const run = await (await fetch(`${api}/v1/runs/${id}`)).json();
+    if (TERMINAL.has(run.status)) {
+      killToDoneMs = Date.now() - killedAt;
+      afterKill = run.status;
+      const ref = await runOn(api, { ...lagBody, seed: 2 });
+      afterKill += run.result_digest === ref.digest
+        ? ", digest as undisturbed"
+        : ", digest differs";
+      break;
+    }
+    await new Promise((r) => setTimeout(r, 100));
+  }
+  const jobStates = await db`SELECT state, retry_count, count(*)::int AS n FROM pgboss.job
+    WHERE name = 'sunlag-chunks' GROUP BY state, retry_count ORDER BY state, retry_count`;
   await db.end();
 
   const load = Deno.loadavg();
@@ -166,6 +183,9 @@ try {
       100,
     queue_overhead_ms_per_chunk: Math.round(median(overhead) * 10) / 10,
     kill_to_chunk_elsewhere_seconds: Math.round(recoveredMs / 100) / 10,
+    kill_to_run_done_seconds: Math.round(killToDoneMs / 100) / 10,
+    run_after_kill: afterKill,
+    chunk_jobs_by_state: jobStates.map((j) => `${j.state} (retry ${j.retry_count}): ${j.n}`),
     identical_digests: digests.size === 1,
   };
   console.log(JSON.stringify(summary, null, 2));
