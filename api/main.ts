@@ -47,7 +47,14 @@ if (config.demo && config.role !== "worker") {
   }
 }
 
-const executor = config.workers > 0 ? new WorkerPool(config.workers) : new InThreadExecutor();
+const pool = config.workers > 0 ? new WorkerPool(config.workers) : null;
+const executor = pool ?? new InThreadExecutor();
+// Warm the workers up in the background; /v1/health answers meanwhile.
+pool?.warmUp().then((timings) => {
+  console.log(
+    JSON.stringify({ event: "workers_warm", ms: Math.round(performance.now() - t0), timings }),
+  );
+});
 
 if (config.role === "worker") {
   const runs = new RunService(store, RUN_KINDS, seriesCodec, executor, {
