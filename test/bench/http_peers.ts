@@ -16,7 +16,9 @@
  *    153,000-day reconstructions).
  *
  * Usage: deno run -A test/bench/http_peers.ts [--seconds 10] [--rounds 3] [--threads 2]
- *   [--connections 50] [--only wrk|runs|memory|first]
+ *   [--connections 50] [--only wrk|runs|memory|first] [--root DIR]
+ * `--root` starts the service of another checkout (e.g. an export of an earlier commit) for a
+ * before/after comparison; the hello-world and the in-process compute stay this checkout's.
  * Writes a JSON summary to $SUNLAG_BENCH_JSON when set.
  *
  * @module
@@ -43,7 +45,10 @@ const THREADS = opt("threads", 2);
 const CONNECTIONS = opt("connections", 50);
 const HELLO_PORT = opt("hello-port", 18441);
 const SERVICE_PORT = opt("service-port", 18442);
-const ROOT = new URL("../../", import.meta.url).pathname;
+const ROOT = (() => {
+  const i = args.indexOf("--root");
+  return i >= 0 ? args[i + 1] : new URL("../../", import.meta.url).pathname;
+})();
 
 const median = (xs: number[]) => {
   const a = [...xs].sort((p, q) => p - q);
@@ -308,11 +313,13 @@ const say = (s: string) => {
 
 if (want("first")) {
   // First heavy run after start beside the next one (fresh process each time).
-  const firsts: number[] = [], seconds: number[] = [], ready: number[] = [];
-  for (let k = 0; k < 3; k++) {
+  const firsts: number[] = [], seconds: number[] = [], ready: number[] = [], late: number[] = [];
+  for (let k = 0; k < 4; k++) {
     const s = await startService(SERVICE_PORT);
     try {
       ready.push(s.ready_ms);
+      // the last start: the first run 5 s after the health check answers
+      if (k === 3) await new Promise((r) => setTimeout(r, 5000));
       const ids = await demoIds(s.base);
       const body = {
         solar: ids["sunspot_number_monthly.csv"],
@@ -321,7 +328,9 @@ if (want("first")) {
         surrogates: 1000,
         seed: 1,
       };
-      firsts.push((await timedPost(s.base, "/v1/lag-correlations", body)).ms);
+      const first = (await timedPost(s.base, "/v1/lag-correlations", body)).ms;
+      if (k === 3) late.push(first);
+      else firsts.push(first);
       seconds.push((await timedPost(s.base, "/v1/lag-correlations", { ...body, seed: 2 })).ms);
     } finally {
       await s.stop();
@@ -331,11 +340,13 @@ if (want("first")) {
     workload: "lag-correlations, 1,000 surrogates, sync POST right after /v1/health answers",
     health_ready_ms: ready.map(Math.round),
     first_ms: firsts.map(Math.round),
+    first_ms_5s_after_health: late.map(Math.round),
     second_ms: seconds.map(Math.round),
   };
   say(
     `first heavy run after start: ${firsts.map(Math.round).join(", ")} ms; the next one ` +
-      `${seconds.map(Math.round).join(", ")} ms; /v1/health up after ${
+      `${seconds.map(Math.round).join(", ")} ms; first run 5 s after the health check ` +
+      `${late.map(Math.round).join(", ")} ms; /v1/health up after ${
         ready.map(Math.round).join(", ")
       } ms`,
   );
@@ -485,7 +496,12 @@ if (want("memory")) {
 }
 
 if (want("wrk")) {
-  const hello = spawn(["run", "-A", "test/bench/http_hello.ts", String(HELLO_PORT)]);
+  const hello = spawn([
+    "run",
+    "-A",
+    new URL("./http_hello.ts", import.meta.url).pathname,
+    String(HELLO_PORT),
+  ]);
   const s = await startService(SERVICE_PORT);
   const helloUrl = `http://127.0.0.1:${HELLO_PORT}/`;
   try {
@@ -520,6 +536,7 @@ if (want("wrk")) {
     }
     const spots = ids["sunspot_number_monthly.csv"];
     const targets: { name: string; url: string; headers?: Record<string, string> }[] = [];
+    const sizes: Record<string, number> = {};
     for (
       const [name, url] of [
         ["run_json", runUrl],
@@ -527,10 +544,18 @@ if (want("wrk")) {
         ["series_csv", csvUrl(spots)],
       ] as const
     ) {
-      const { etag } = await get(url);
+      const { etag, bytes } = await get(url);
+      sizes[name] = bytes;
       targets.push({ name: `${name}_200`, url });
+      // the hello-world answering as many bytes: the ceiling for a body of this size
+      targets.push({ name: `hello_${name}_bytes`, url: `${helloUrl}bytes/${bytes}` });
+      // what Python's requests and browsers ask for (Accept-Encoding: gzip)
+      if (name !== "run_chart_svg") {
+        targets.push({ name: `${name}_200_gzip`, url, headers: { "Accept-Encoding": "gzip" } });
+      }
       targets.push({ name: `${name}_304`, url, headers: { "If-None-Match": etag } });
     }
+    results.body_bytes = sizes;
     await wrk(helloUrl, {}, 2);
     for (const t of targets) await wrk(t.url, t.headers, 2);
     const rps: Record<string, number[]> = { hello_world: [] };
@@ -548,7 +573,10 @@ if (want("wrk")) {
     }
     const base = median(rps.hello_world);
     const table: Record<string, unknown> = {};
-    say(`wrk ${THREADS} threads, ${CONNECTIONS} connections, ${SECONDS} s, ${ROUNDS} rounds:`);
+    say(
+      `wrk ${THREADS} threads, ${CONNECTIONS} connections, ${SECONDS} s, ${ROUNDS} rounds ` +
+        `(bodies: ${JSON.stringify(sizes)} bytes); ratio to the hello-world (12 bytes):`,
+    );
     for (const [name, xs] of Object.entries(rps)) {
       const m = median(xs);
       table[name] = {
