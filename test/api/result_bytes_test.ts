@@ -11,7 +11,6 @@ import postgres from "postgres";
 import { canonicalJson, sha256Hex } from "../../api/canonical.ts";
 import { toPlainJson } from "../../api/runs/json.ts";
 import { canonicalResult, resultTextOf } from "../../api/store/result_text.ts";
-import { ImmutableCache } from "../../api/routes/immutable_cache.ts";
 import { makeTestApp, monthlySeries, uploadSeries } from "./helpers.ts";
 import * as DEMO from "./demo_ids.ts";
 import { pgUnavailableReason, startPgServer } from "./store/pg_cluster.ts";
@@ -190,20 +189,3 @@ for (const adapter of adapters) {
     },
   });
 }
-
-Deno.test("ImmutableCache keeps its byte budget and refuses entries above the entry limit", () => {
-  const cache = new ImmutableCache(1000, 400);
-  const rep = (n: number) => ({ etag: `"${n}"`, body: new Uint8Array(n), headers: {} });
-  for (let i = 0; i < 20; i++) {
-    cache.set(`k${i}`, rep(150 + i));
-    assert.ok(cache.bytes <= 1000, `after ${i + 1} entries: ${cache.bytes} bytes`);
-  }
-  assert.ok(cache.get("k19"), "the newest entry is kept");
-  assert.equal(cache.get("k0"), undefined, "the oldest entry was evicted");
-  const before = cache.bytes;
-  cache.set("big", rep(401));
-  assert.equal(cache.get("big"), undefined);
-  assert.equal(cache.bytes, before);
-  cache.set("k19", rep(10));
-  assert.equal(cache.bytes, before - 169 + 10, "replacing an entry counts its new size");
-});
