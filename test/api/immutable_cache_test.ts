@@ -5,7 +5,11 @@
 import assert from "node:assert/strict";
 import { Hono } from "hono";
 import { gunzipSync } from "node:zlib";
-import { ImmutableCache, serveRepresentation } from "../../api/routes/immutable_cache.ts";
+import {
+  type CachedRepresentation,
+  ImmutableCache,
+  serveRepresentation,
+} from "../../api/routes/immutable_cache.ts";
 
 Deno.test("ImmutableCache keeps its byte budget and refuses entries above the entry limit", () => {
   const cache = new ImmutableCache(1000, 400);
@@ -27,7 +31,7 @@ Deno.test("ImmutableCache keeps its byte budget and refuses entries above the en
 Deno.test("ImmutableCache counts a gzip-coded copy in its budget once it is made", async () => {
   const cache = new ImmutableCache(10_000, 8_000);
   const text = "0123456789,".repeat(400); // 4,400 bytes, compresses well
-  const rep = {
+  const rep: CachedRepresentation = {
     etag: '"a"',
     body: new TextEncoder().encode(text) as Uint8Array<ArrayBuffer>,
     headers: { "Content-Type": "text/csv" },
