@@ -47,7 +47,20 @@ if (config.demo && config.role !== "worker") {
   }
 }
 
-const executor = config.workers > 0 ? new WorkerPool(config.workers) : new InThreadExecutor();
+const pool = config.workers > 0 ? new WorkerPool(config.workers) : null;
+const executor = pool ?? new InThreadExecutor();
+/**
+ * Warm the compute workers up (api/workers/warm_up.ts) in the background once this process
+ * is ready, so that the first user's run does not pay for compiling the hot code. Started
+ * earlier, the warm-up competes with start-up for the cores and delays the health check.
+ */
+function warmWorkers(): void {
+  pool?.warmUp().then((timings) => {
+    console.log(
+      JSON.stringify({ event: "workers_warm", ms: Math.round(performance.now() - t0), timings }),
+    );
+  });
+}
 
 if (config.role === "worker") {
   const runs = new RunService(store, RUN_KINDS, seriesCodec, executor, {
@@ -63,6 +76,7 @@ if (config.role === "worker") {
     workers: config.workers,
     startup_ms: Math.round(performance.now() - t0),
   }));
+  warmWorkers();
 } else {
   const { app } = createService({
     store,
@@ -87,6 +101,7 @@ if (config.role === "worker") {
         allowed_hosts: config.allowedHosts,
         startup_ms: Math.round(performance.now() - t0),
       }));
+      warmWorkers();
     },
   }, app.fetch);
 }

@@ -33,14 +33,28 @@ export function runChartSpec(
   inputs: StoredSeries[] = [],
   view?: string,
 ): ChartSpec | MapChartSpec {
+  const parsed = kind?.result.safeParse(run.result);
   if (kind?.chart) {
     // A stored result of an older shape (before an algorithm change) gets the generic chart.
-    const parsed = kind.result.safeParse(run.result);
-    if (parsed.success) {
+    if (parsed?.success) {
       const build = view === undefined ? kind.chart.build : kind.chart.views?.[view]?.build;
       const spec = build?.(run, parsed.data, inputs);
       if (spec) return spec;
     }
   }
-  return defaultRunChart(run);
+  return defaultRunChart(parsed?.success ? withSchemaOrder(run, parsed.data) : run);
+}
+
+/**
+ * The run with its outputs in the order its result schema names them (stored results keep
+ * their keys in RFC 8785 order, which is not the order an analysis lists its outputs in).
+ */
+function withSchemaOrder(run: RunRecord, parsed: unknown): RunRecord {
+  const outs = (run.result as { outputs?: Record<string, unknown> } | null)?.outputs;
+  const order = (parsed as { outputs?: Record<string, unknown> } | null)?.outputs;
+  if (!outs || !order || typeof outs !== "object" || typeof order !== "object") return run;
+  const sorted: Record<string, unknown> = {};
+  for (const k of Object.keys(order)) if (k in outs) sorted[k] = outs[k];
+  for (const k of Object.keys(outs)) if (!(k in sorted)) sorted[k] = outs[k];
+  return { ...run, result: { ...run.result, outputs: sorted } };
 }

@@ -5,8 +5,8 @@
  * cache needs no invalidation; a hit answers without touching the store or re-rendering,
  * and a matching `If-None-Match` answers 304 straight from the cached tag. Clients that accept
  * gzip get a gzip-coded copy, compressed once on first demand and kept beside the identity
- * bytes (outside the byte budget, which counts identity bodies); it is a representation of its
- * own with its own strong tag (RFC 9110 §8.8.3).
+ * bytes (the byte budget counts both); it is a representation of its own with its own strong
+ * tag (RFC 9110 §8.8.3).
  *
  * Written by hand: a Map in insertion order is an LRU in a dozen lines, and the registry's
  * LRU packages count entries rather than bytes.
@@ -24,6 +24,8 @@ export interface CachedRepresentation {
   headers: Record<string, string>;
   /** The gzip-coded body, made on first demand. */
   gzip?: Promise<Uint8Array<ArrayBuffer>>;
+  /** Told the size of the gzip-coded body once it is made (set by the cache holding it). */
+  onGzip?: (bytes: number) => void;
   /** Series drawn into it: served from the cache only to callers who may see them all. */
   requires?: string[];
 }
@@ -57,6 +59,8 @@ export function gzipTag(etag: string): string {
 
 export class ImmutableCache {
   readonly #map = new Map<string, CachedRepresentation>();
+  /** Bytes each entry holds: its identity body, plus its gzip-coded body once made. */
+  readonly #sizes = new Map<string, number>();
   #bytes = 0;
 
   /**
@@ -84,17 +88,32 @@ export class ImmutableCache {
 
   set(key: string, v: CachedRepresentation): void {
     if (v.body.byteLength > this.maxEntryBytes) return;
-    const old = this.#map.get(key);
-    if (old) {
-      this.#bytes -= old.body.byteLength;
-      this.#map.delete(key);
-    }
+    this.#drop(key);
     this.#map.set(key, v);
+    this.#sizes.set(key, v.body.byteLength);
     this.#bytes += v.body.byteLength;
-    for (const [k, e] of this.#map) {
+    v.onGzip = (n) => {
+      // counted only while this very entry is cached
+      if (this.#map.get(key) !== v) return;
+      this.#sizes.set(key, this.#sizes.get(key)! + n);
+      this.#bytes += n;
+      this.#evict();
+    };
+    this.#evict();
+  }
+
+  #drop(key: string): void {
+    if (!this.#map.has(key)) return;
+    this.#bytes -= this.#sizes.get(key)!;
+    this.#map.delete(key);
+    this.#sizes.delete(key);
+  }
+
+  /** Evict least recently used entries until the budget holds. */
+  #evict(): void {
+    for (const k of this.#map.keys()) {
       if (this.#bytes <= this.maxBytes) break;
-      this.#map.delete(k);
-      this.#bytes -= e.body.byteLength;
+      this.#drop(k);
     }
   }
 }
@@ -134,7 +153,10 @@ export async function serveRepresentation(
   };
   if (matchesIfNoneMatch(c, etag)) return new Response(null, { status: 304, headers: common });
   if (!gz) return new Response(r.body, { status: 200, headers: { ...r.headers, ...common } });
-  r.gzip ??= gzipBytes(r.body);
+  if (!r.gzip) {
+    r.gzip = gzipBytes(r.body);
+    r.gzip.then((g) => r.onGzip?.(g.byteLength), () => {});
+  }
   return new Response(await r.gzip, {
     status: 200,
     headers: { ...r.headers, ...common, "Content-Encoding": "gzip" },

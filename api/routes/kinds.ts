@@ -12,7 +12,7 @@ import { problems, RunSchema } from "../schemas/common.ts";
 import { requireJson } from "./media.ts";
 import { findUnknownFields } from "./unknown_fields.ts";
 import { ProblemError } from "../problems.ts";
-import { runView } from "./runs.ts";
+import { runViewJson } from "./runs.ts";
 import type { Store } from "../store/types.ts";
 import type { Config } from "../config.ts";
 import { principalOf } from "../auth/authenticate.ts";
@@ -96,10 +96,11 @@ export function registerKindRoutes(
       });
       c.header("Location", `/v1/runs/${outcome.run.id}`);
       if (outcome.status === 202) c.header("Preference-Applied", "respond-async");
-      return c.json(
-        { ...runView(outcome.run), saved_series: outcome.saved_series },
-        outcome.status,
-      );
+      // the result's one serialisation, spliced into the run's JSON
+      return c.body(runViewJson(outcome.run, { saved_series: outcome.saved_series }), {
+        status: outcome.status,
+        headers: { "Content-Type": "application/json" },
+      });
     });
   }
 }

@@ -1,6 +1,6 @@
 /**
  * `GET /metrics` in the Prometheus text exposition format (prom-client): HTTP requests and
- * their durations in this process, runs by status in the store, and the run queue (depth,
+ * their durations in this process, its memory, runs by status in the store, and the run queue (depth,
  * oldest waiting run, active runs, workers seen), which every instance reads from the shared
  * store so any of them can be scraped.
  *
@@ -62,6 +62,20 @@ export class ServiceMetrics {
           this.set({ engine: queue.engine }, pick(await queueStats()));
         },
       });
+    new Gauge({
+      name: "sunlag_process_memory_bytes",
+      help: "Memory of this process (Deno.memoryUsage): rss is the resident set of the whole " +
+        "process (compute workers included), heap_used and heap_total the request thread's heap",
+      labelNames: ["kind"],
+      registers,
+      collect() {
+        const m = Deno.memoryUsage();
+        this.set({ kind: "rss" }, m.rss);
+        this.set({ kind: "heap_used" }, m.heapUsed);
+        this.set({ kind: "heap_total" }, m.heapTotal);
+        this.set({ kind: "external" }, m.external);
+      },
+    });
     gauge("sunlag_queue_depth", "Runs waiting for a worker", (s) => s!.depth);
     gauge("sunlag_queue_active", "Runs being computed", (s) => s!.active);
     gauge(

@@ -7,6 +7,7 @@
 import { ensembleSourceOf } from "../analyses/common/ensemble_members.ts";
 import { bandAttributes } from "../analyses/common/uncertainty_band.ts";
 import { runLabel } from "../runs/label.ts";
+import { resultTextOf } from "../store/result_text.ts";
 import { createRoute, z } from "@hono/zod-openapi";
 import { streamSSE } from "hono/streaming";
 import type { App } from "../app_env.ts";
@@ -44,6 +45,23 @@ const FINAL = new Set(["succeeded", "failed", "cancelled"]);
 /** The public view of a run record. */
 export function runView(r: RunRecord) {
   return { ...r, label: runLabel(r.id) };
+}
+
+/** Stands in for the result while the rest of a run is serialised (unguessable per process). */
+const RESULT_SLOT = `result-slot-${crypto.randomUUID()}`;
+
+/**
+ * The JSON text of a run's public view (plus `extra` members): the result's text is the one
+ * made when it was computed or read from the store (api/store/result_text.ts), spliced in
+ * where the result goes rather than serialised again.
+ */
+export function runViewJson(r: RunRecord, extra: Record<string, unknown> = {}): string {
+  const text = resultTextOf(r.result);
+  if (text === undefined) return JSON.stringify({ ...runView(r), ...extra });
+  const shell = JSON.stringify({ ...runView(r), result: RESULT_SLOT, ...extra });
+  const slot = `"result":"${RESULT_SLOT}"`;
+  const at = shell.indexOf(slot);
+  return shell.slice(0, at) + `"result":` + text + shell.slice(at + slot.length);
 }
 
 const RunId = RunIdParam;
@@ -125,7 +143,7 @@ export function registerRunRoutes(
         if (run.status === "succeeded") {
           const rep = {
             etag,
-            body: new TextEncoder().encode(JSON.stringify(runView(run))),
+            body: new TextEncoder().encode(runViewJson(run)),
             headers: { "Content-Type": "application/json" },
           };
           runCache.set(run.id, rep);

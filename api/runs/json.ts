@@ -1,5 +1,7 @@
 /**
- * Result hygiene before hashing: typed arrays become plain arrays, `-0` becomes `0`, and a
+ * Result hygiene before hashing: typed arrays become plain arrays, `-0` becomes `0`, object
+ * keys are put in RFC 8785 order (so `JSON.stringify` of the result is its canonical JSON), a
+ * string with a lone surrogate is refused as RFC 8785 refuses it, and a
  * non-finite number anywhere is a bug in the analysis (JSON has no NaN; a silent null would
  * hide it), reported with its JSON Pointer. A value undefined by its method is written as a
  * documented null by the analysis (`api/analyses/common/undefined_as_null.ts`) before it gets
@@ -36,8 +38,15 @@ function plainNumber(v: number, path: (string | number)[]): number {
   return v === 0 ? 0 : v;
 }
 
+function badString(path: (string | number)[]): never {
+  throw new RangeError(
+    `Cannot canonicalise JSON: lone surrogate in a string in result at ${toPointer(path) || "/"}`,
+  );
+}
+
 function walk(value: unknown, path: (string | number)[], keys: Set<string>): unknown {
-  if (value === null || typeof value === "string" || typeof value === "boolean") return value;
+  if (typeof value === "string") return value.isWellFormed() ? value : badString(path);
+  if (value === null || typeof value === "boolean") return value;
   if (typeof value === "number") return plainNumber(value, path);
   if (value === undefined) return undefined;
   if (ArrayBuffer.isView(value) && !(value instanceof DataView)) {
@@ -57,7 +66,9 @@ function walk(value: unknown, path: (string | number)[], keys: Set<string>): unk
       if (typeof v === "number") {
         if (v - v !== 0) fail(v, [...path, i]);
         out[i] = v === 0 ? 0 : v;
-      } else if (v === null || typeof v === "string" || typeof v === "boolean") {
+      } else if (typeof v === "string") {
+        out[i] = v.isWellFormed() ? v : badString([...path, i]);
+      } else if (v === null || typeof v === "boolean") {
         out[i] = v;
       } else {
         path.push(i);
@@ -70,7 +81,9 @@ function walk(value: unknown, path: (string | number)[], keys: Set<string>): unk
   }
   if (typeof value === "object") {
     const out: Record<string, unknown> = {};
-    for (const k of Object.keys(value as object)) {
+    // RFC 8785 order (UTF-16 code units, the default sort): JSON.stringify of the result is
+    // then its canonical JSON (api/runs/result_text.ts)
+    for (const k of Object.keys(value as object).sort()) {
       // the same keys repeat in every row of a table: test each spelling once
       if (!keys.has(k)) {
         if (!SNAKE_CASE_KEY.test(k)) badKey(k, path);
@@ -87,7 +100,7 @@ function walk(value: unknown, path: (string | number)[], keys: Set<string>): unk
 }
 
 /**
- * Deep-copy `value` into plain JSON.
+ * Deep-copy `value` into plain JSON with the keys of every object sorted (RFC 8785 order).
  *
  * @throws {Error} naming the JSON Pointer of any non-finite number, non-JSON value or key that
  *   is not snake_case
@@ -96,6 +109,7 @@ function walk(value: unknown, path: (string | number)[], keys: Set<string>): unk
  * import { toPlainJson } from "./json.ts";
  * import assert from "node:assert/strict";
  * assert.deepEqual(toPlainJson({ a: Float64Array.of(1, -0), b: undefined }), { a: [1, 0] });
+ * assert.equal(JSON.stringify(toPlainJson({ b: 1, a: { d: 2, c: 3 } })), '{"a":{"c":3,"d":2},"b":1}');
  * assert.throws(() => toPlainJson({ x: [1, NaN] }), /\/x\/1/);
  * assert.throws(() => toPlainJson({ rSquared: 0.5 }), /rSquared/);
  * ```

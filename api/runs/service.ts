@@ -28,6 +28,7 @@ import type { InlineSeries } from "../schemas/series_ref.ts";
 import { ProblemError, toPointer } from "../problems.ts";
 import { canonicalJson, sha256Hex } from "../canonical.ts";
 import { toPlainJson } from "./json.ts";
+import { canonicalResult } from "../store/result_text.ts";
 import { gatherInherited, type Lineage, withInherited } from "./inherit.ts";
 import { SERVICE_VERSION } from "../version.ts";
 import { taskTable } from "../analyses/derive.ts";
@@ -591,17 +592,26 @@ export class RunService {
     }
     if (performance.now() - t0 > wallMs) throw timeLimitProblem(this.options.wallSeconds!);
     const plain = await this.finishResult(result, inputs, lineage);
-    return { result: plain, digest: await resultDigest(plain) };
+    return { result: plain, digest: canonicalResult(plain).digest };
   }
 
-  /** The stored form of a computed result: plain JSON with its inherited context. */
+  /**
+   * The stored form of a computed result: plain JSON with its inherited context, every
+   * object's keys in RFC 8785 order (so that its one serialisation is its canonical JSON).
+   */
   private async finishResult(
     result: RunResult,
     inputs: { series: Record<string, StoredSeries>; runs: Record<string, RunRecord> },
     lineage: Lineage,
   ): Promise<Record<string, unknown>> {
     const plain = toPlainJson(result) as Record<string, unknown>;
-    return withInherited(plain, await gatherInherited(inputs, lineage));
+    const full = withInherited(plain, await gatherInherited(inputs, lineage));
+    if (full === plain) return plain;
+    // the inherited part is small: sort it, then the top level with it
+    const withNotes: Record<string, unknown> = { ...plain, inherited: toPlainJson(full.inherited) };
+    const sorted: Record<string, unknown> = {};
+    for (const k of Object.keys(withNotes).sort()) sorted[k] = withNotes[k];
+    return sorted;
   }
 
   /** The lineage of runs as the store holds it. */
@@ -773,7 +783,7 @@ export class RunService {
     if (late) throw late;
     if (active.cancelled) throw new CancelledError();
     const plain = await this.finishResult(result, prep, this.lineage());
-    const digest = await resultDigest(plain);
+    const { digest } = canonicalResult(plain);
     if (active.final) return;
     active.final = true;
     const written = await store.updateLeased(run.id, holder, {

@@ -19,6 +19,7 @@ import type {
   Visibility,
 } from "./types.ts";
 import { LOCAL_OWNER, VISIBILITIES } from "./types.ts";
+import { resultJson } from "./result_text.ts";
 
 /** One schema step. Versions are consecutive from 1; never edit a released step, add one. */
 export interface Migration {
@@ -159,7 +160,7 @@ export function runValues(r: RunRecord): (string | number | null)[] {
     r.result_digest,
     r.eta_seconds,
     JSON.stringify(r.params),
-    r.result === null ? null : JSON.stringify(r.result),
+    r.result === null ? null : resultJson(r.result),
     r.error === null ? null : JSON.stringify(r.error),
   ];
 }
@@ -203,7 +204,7 @@ const RUN_PATCH_COLUMNS: Record<string, (v: unknown) => string | number | null> 
   service_version: (v) => String(v),
   algorithm_version: (v) => String(v),
   seed: (v) => (v === null ? null : Number(v)),
-  result: (v) => (v === null ? null : JSON.stringify(v)),
+  result: (v) => (v === null ? null : resultJson(v as Record<string, unknown>)),
   result_digest: (v) => (v === null ? null : String(v)),
   error: (v) => (v === null ? null : JSON.stringify(v)),
   eta_seconds: (v) => (v === null ? null : Number(v)),

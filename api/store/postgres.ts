@@ -65,6 +65,7 @@ import {
   toRunSummary,
   toSeriesMeta,
 } from "./common.ts";
+import { parseResult } from "./result_text.ts";
 import {
   DuplicateOwnerError,
   DuplicateRunError,
@@ -663,7 +664,7 @@ export class PostgresStore implements Store {
         ...toRunSummary(row, links.series, links.runs),
         ...(fields.length ? { input_fields: fields } : {}),
         params: JSON.parse(text(row.params)),
-        result: jsonOrNull(row.result),
+        result: parseResult(row.result),
         error: jsonOrNull(row.error),
       };
       return record;

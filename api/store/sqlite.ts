@@ -74,6 +74,7 @@ import {
   toRunSummary,
   toSeriesMeta,
 } from "./common.ts";
+import { parseResult } from "./result_text.ts";
 import {
   DuplicateOwnerError,
   DuplicateRunError,
@@ -753,7 +754,7 @@ export class SqliteStore implements Store {
         ...toRunSummary(row, links.series, links.runs),
         ...(fields.length ? { input_fields: fields } : {}),
         params: JSON.parse(text(row.params)),
-        result: jsonOrNull(row.result),
+        result: parseResult(row.result),
         error: jsonOrNull(row.error),
       };
       return record;

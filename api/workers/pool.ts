@@ -209,6 +209,23 @@ export class WorkerPool implements ComputeExecutor {
     ));
   }
 
+  /**
+   * Warm every worker up (a small run of the hot analyses, api/workers/warm_up.ts) so that
+   * the first user's run does not pay for compiling their code. Does not block: call it after
+   * the pool is made; a run sent meanwhile waits for its worker's warm-up. Resolves with each
+   * worker's timings (and errors, which never reject).
+   */
+  warmUp(): Promise<unknown[]> {
+    return Promise.all(this.slots.map((slot) =>
+      new Promise<unknown>((resolve) => {
+        const id = this.nextJob++;
+        slot.load += 1;
+        this.jobs.set(id, { slot, isRun: false, resolve, reject: (e) => resolve({ error: e }) });
+        slot.worker.postMessage({ type: "warm", job: id });
+      })
+    ));
+  }
+
   /** Stop every worker; pending jobs are rejected. */
   terminate(): void {
     this.terminated = true;

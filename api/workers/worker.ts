@@ -5,6 +5,7 @@
  * - in  `{ type: "run", job, kind, params, inputs }` → out `started`, `progress`, `parallel`
  *   (a request to map a task over chunks on the pool), then `done` or `error`
  * - in  `{ type: "task", job, task, input }` → out `done` or `error`
+ * - in  `{ type: "warm", job }` → out `done` with the warm-up's timings (api/workers/warm_up.ts)
  * - in  `{ type: "cancel", job }`; in `{ type: "parallel-result", job, req, results | error }`
  *
  * @module
@@ -14,6 +15,7 @@ import type { RunKind, Task } from "../runs/kind.ts";
 import { makeContext } from "../runs/service.ts";
 import { taskTable } from "../analyses/derive.ts";
 import { serialiseError, transferablesOf } from "./messages.ts";
+import { warmUp } from "./warm_up.ts";
 
 /**
  * The analyses come from the registry module the pool names in the worker's `name` (a module
@@ -44,6 +46,10 @@ self.onmessage = async (e: MessageEvent) => {
     return;
   }
   const { kinds, tasks } = await registry;
+  if (m.type === "warm") {
+    self.postMessage({ type: "done", job: m.job, result: await warmUp(kinds, tasks) });
+    return;
+  }
   if (m.type === "task") {
     try {
       const fn = tasks[m.task];

@@ -57,7 +57,13 @@ function solarNote(s: NonNullable<AttributionResultOut["solar"]>): string {
 
 export const attributionsChart: KindChart<AttributionResultOut> = {
   build(run, r) {
-    const contributions = Object.entries(r.outputs).filter(([k]) => k.startsWith(PREFIX));
+    // in the order of the regressors (stored outputs are keyed in RFC 8785 order)
+    const rank = (k: string) => {
+      const i = r.coefficients.findIndex((q) => q.name === k.slice(PREFIX.length));
+      return i < 0 ? Infinity : i;
+    };
+    const contributions = Object.entries(r.outputs).filter(([k]) => k.startsWith(PREFIX))
+      .sort(([a], [b]) => rank(a) - rank(b));
     if (!contributions.length) return null;
     const layers: Layer[] = [{ type: "hline", y: 0, color: "foreground", dash: "solid" }];
     contributions.forEach(([key, o], i) => {
