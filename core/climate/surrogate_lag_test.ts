@@ -26,6 +26,7 @@
  *
  * @module
  */
+import { type StopOptions, throwIfStopped } from "../stop_signal.ts";
 import { randomStream } from "../random/random_stream.ts";
 import { inverseRealDft, realDft } from "../spectral/fft.ts";
 import type { CorrelationNormalisation, LagWindow } from "./lagged_correlation.ts";
@@ -279,7 +280,10 @@ function circularCorrelation(s: Float64Array, plan: SurrogateLagPlan): Float64Ar
  * task `climate.surrogateLagChunk`).
  *
  * @param input plan and index range
+ * @param control `shouldStop`, polled before each surrogate (not part of the input: a worker
+ *   passes its own)
  * @returns per-lag exceedance counts, per-surrogate max |r|, per-lag Σr and Σr²
+ * @throws {StoppedError} when `control.shouldStop` answers true
  * @example
  * ```ts
  * import { planSurrogateLagTest, surrogateLagChunk } from "./surrogate_lag_test.ts";
@@ -293,7 +297,10 @@ function circularCorrelation(s: Float64Array, plan: SurrogateLagPlan): Float64Ar
  * assert.deepEqual([...whole.maxAbs], [...a.maxAbs, ...b.maxAbs]);
  * ```
  */
-export function surrogateLagChunk(input: SurrogateChunkInput): SurrogateChunkOutput {
+export function surrogateLagChunk(
+  input: SurrogateChunkInput,
+  control: StopOptions = {},
+): SurrogateChunkOutput {
   const { plan, start, end } = input;
   const n = plan.n, nl = plan.maxLag - plan.minLag + 1;
   const exceed = new Float64Array(nl), sum = new Float64Array(nl), sumSq = new Float64Array(nl);
@@ -319,6 +326,7 @@ export function surrogateLagChunk(input: SurrogateChunkInput): SurrogateChunkOut
   const tol = 1e-12;
   const amp = plan.amplitude;
   for (let idx = start; idx < end; idx++) {
+    throwIfStopped(control, "run surrogate lag test");
     const stream = randomStream(plan.seed, idx);
     let spectral = false; // true when c already holds the correlation of s (before projection)
     if (plan.method === "phase") {

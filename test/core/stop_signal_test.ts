@@ -1,0 +1,156 @@
+/**
+ * Every core computation with a long loop stops with a StoppedError soon after its
+ * `shouldStop` answers true, and gives the same numbers as without it while it answers false.
+ */
+import assert from "node:assert/strict";
+import {
+  attributionRegression,
+  fitCycleSequence,
+  forecastCycle,
+  hathawayShape,
+  hindcastCaseTask,
+  lombScargle,
+  lombScargleChunk,
+  monteCarloMaximaChunk,
+  planSurrogateLagTest,
+  randomStream,
+  StoppedError,
+  superposedEpoch,
+  surrogateLagChunk,
+  throwIfStopped,
+} from "../../core/mod.ts";
+
+/** A `shouldStop` that answers true from its `after`-th call on, counting its calls. */
+function stopAfter(after: number) {
+  const probe = { calls: 0, shouldStop: () => ++probe.calls > after };
+  return probe;
+}
+
+const rng = randomStream(11);
+const n = 600;
+const time = Float64Array.from({ length: n }, (_, i) => 1900 + i / 12 + 0.01 * rng.uniform());
+const value = Float64Array.from(time, (t) => Math.sin((2 * Math.PI * t) / 11) + 0.3 * rng.normal());
+const frequency = Float64Array.from({ length: 2000 }, (_, k) => 0.01 + k * 0.002);
+
+Deno.test("throwIfStopped() throws only when shouldStop answers true", () => {
+  throwIfStopped(undefined, "x");
+  throwIfStopped({}, "x");
+  throwIfStopped({ shouldStop: () => false }, "x");
+  assert.throws(() => throwIfStopped({ shouldStop: () => true }, "sum"), {
+    name: "StoppedError",
+    message: "Cannot sum: stopped on request",
+  });
+});
+
+Deno.test("lombScargle() polls every 64 frequencies and stops; the numbers are unchanged", () => {
+  const plain = lombScargle(time, value, frequency);
+  assert.deepEqual(lombScargle(time, value, frequency, { shouldStop: () => false }), plain);
+  const probe = stopAfter(3);
+  assert.throws(() => lombScargle(time, value, frequency, probe), StoppedError);
+  assert.equal(probe.calls, 4, "stopped at the fourth block of 64 frequencies");
+  assert.throws(
+    () => lombScargleChunk({ time, value, frequency }, { shouldStop: () => true }),
+    StoppedError,
+  );
+});
+
+Deno.test("monteCarloMaximaChunk() stops between and inside replicates", () => {
+  const input = { time, value, frequency, seed: 3, replicates: 50, null: "ar1" as const };
+  const probe = stopAfter(10);
+  assert.throws(() => monteCarloMaximaChunk(input, probe), StoppedError);
+  assert.ok(probe.calls <= 11);
+  const few = { ...input, replicates: 3 };
+  assert.deepEqual(
+    monteCarloMaximaChunk(few, { shouldStop: () => false }),
+    monteCarloMaximaChunk(few),
+  );
+});
+
+Deno.test("surrogateLagChunk() stops before its next surrogate", () => {
+  const y = Float64Array.from(value, (v, i) => (i >= 6 ? value[i - 6] : v) + 0.1 * Math.cos(i));
+  const plan = planSurrogateLagTest(value, y, { minLag: -24, maxLag: 24, seed: 5 });
+  const probe = stopAfter(7);
+  assert.throws(() => surrogateLagChunk({ plan, start: 0, end: 500 }, probe), StoppedError);
+  assert.equal(probe.calls, 8);
+  const part = { plan, start: 0, end: 20 };
+  assert.deepEqual(surrogateLagChunk(part, { shouldStop: () => false }), surrogateLagChunk(part));
+});
+
+/** Months of an invented cycle from its minimum, and their times. */
+function cycle(months: number, a = 0.002) {
+  const r = randomStream(2);
+  const t = Array.from({ length: months }, (_, i) => 2000 + i / 12);
+  const v = t.map((x) => hathawayShape((x - 2000) * 12 + 2, { t0: 0, a }) + 5 * r.normal());
+  return { t, v };
+}
+
+Deno.test("forecastCycle() and hindcastCaseTask() stop before their next bootstrap replicate", () => {
+  const { t, v } = cycle(40);
+  const curveTime = Array.from({ length: 150 }, (_, i) => 2000 + i / 12);
+  const probe = stopAfter(5);
+  assert.throws(
+    () => forecastCycle(t, v, { seed: 1, curveTime, replicates: 200, ...probe }),
+    StoppedError,
+  );
+  assert.equal(probe.calls, 6);
+  const whole = cycle(140);
+  const input = {
+    cycle: {
+      id: 1,
+      time: whole.t,
+      value: whole.v,
+      start: 2000,
+      maximum: { time: 2004, value: Math.max(...whole.v) },
+    },
+    monthsUsed: 36,
+    caseIndex: 0,
+    options: { seed: 1, replicates: 100 },
+  };
+  assert.throws(() => hindcastCaseTask(input, { shouldStop: () => true }), StoppedError);
+});
+
+Deno.test("fitCycleSequence() stops before its next fit", () => {
+  const t = Array.from({ length: 264 }, (_, i) => 1900 + i / 12);
+  const v = t.map((x) =>
+    hathawayShape((x - 1900) * 12, { t0: -6, a: 0.002 }) +
+    hathawayShape((x - 1900) * 12, { t0: 126, a: 0.0015 })
+  );
+  const windows = [{ start: 0, end: 130 }, { start: 130, end: 264 }];
+  const probe = stopAfter(1);
+  assert.throws(() => fitCycleSequence(t, v, windows, probe), StoppedError);
+  assert.equal(probe.calls, 2, "the first independent fit ran, the second did not");
+});
+
+Deno.test("attributionRegression() stops before its next fit of the lag search", () => {
+  const m = 400;
+  const solar = Float64Array.from({ length: m }, (_, i) => Math.sin((2 * Math.PI * i) / 132));
+  const noise = randomStream(4);
+  const y = Float64Array.from(
+    { length: m },
+    (_, i) => 0.1 * (i >= 12 ? solar[i - 12] : 0) + 0.02 * noise.normal(),
+  );
+  const probe = stopAfter(10);
+  assert.throws(
+    () =>
+      attributionRegression(y, [{ name: "solar", values: solar, minLag: 0, maxLag: 40 }], {
+        errors: "ols_hac",
+        ...probe,
+      }),
+    StoppedError,
+  );
+  assert.equal(probe.calls, 11);
+});
+
+Deno.test("superposedEpoch() stops before its next bootstrap replicate or random set", () => {
+  const x = Float64Array.from({ length: 600 }, (_, i) => Math.sin(i / 5));
+  const epochs = [60, 180, 300, 420, 540];
+  const options = { before: 10, after: 10, seed: 1, bootstrap: 300, randomSets: 300 };
+  const early = stopAfter(100);
+  assert.throws(() => superposedEpoch(x, epochs, { ...options, ...early }), StoppedError);
+  const late = stopAfter(400);
+  assert.throws(() => superposedEpoch(x, epochs, { ...options, ...late }), StoppedError);
+  assert.deepEqual(
+    superposedEpoch(x, epochs, { ...options, shouldStop: () => false }),
+    superposedEpoch(x, epochs, options),
+  );
+});
