@@ -11,6 +11,7 @@
 import type { z } from "@hono/zod-openapi";
 import type { RunRecord, StoredSeries } from "../store/types.ts";
 import type { ChartSpec } from "../charts/chart.ts";
+import type { StopOptions } from "../../core/stop_signal.ts";
 
 /** A series-like part of a result; fetchable as JSON/CSV and savable as a stored series. */
 export interface OutputSeries {
@@ -61,7 +62,13 @@ export interface RunContext {
   resultOf<K extends RunKind>(kind: K, id: string, pointer: string): ResultOf<K>;
   /** Report progress in [0, 1]. Cheap; call it as often as you like. */
   progress(fraction: number): void;
-  /** True once the run was cancelled; long loops should check and throw `new CancelledError()`. */
+  /**
+   * True once the run must stop: it was cancelled, or it ran past the run time limit. Long
+   * loops check it and throw `new CancelledError()`; core functions with long loops take it
+   * as their `shouldStop` option (core/stop_signal.ts), and their `StoppedError` counts as a
+   * cancellation. In a worker it reads a flag shared with the pool, so it turns true while
+   * the computation runs.
+   */
   cancelled(): boolean;
   /**
    * Map a worker task (declared in an analysis' `tasks`) over chunks of work, on the
@@ -90,9 +97,14 @@ export class InputProblem extends Error {
   }
 }
 
-/** A named pure worker task: structured-clonable input and output (typed arrays transferred). */
+/**
+ * A named pure worker task: structured-clonable input and output (typed arrays transferred).
+ * The second argument carries `shouldStop`, which turns true when the run that asked for the
+ * task is cancelled or out of time: a task with a long loop polls it (core functions take it
+ * as their `StopOptions`) so that the worker is free again within milliseconds.
+ */
 // deno-lint-ignore no-explicit-any
-export type Task = (input: any) => any;
+export type Task = (input: any, control?: StopOptions) => any;
 
 /** An analysis' chart, typed on its result. */
 export interface KindChart<T> {

@@ -61,7 +61,15 @@ export interface ComputeExecutor {
 
 export type { RunEvent } from "../queue/events.ts";
 
-/** Runs compute in this thread (tests, `SUNLAG_WORKERS=0`). */
+/** Longest stretch of chunks an in-thread run computes before it lets other work in, ms. */
+const IN_THREAD_SLICE_MS = 20;
+
+/**
+ * Runs compute in this thread (tests, `SUNLAG_WORKERS=0`). Chunks are computed one by one: a
+ * run asked to stop is stopped before its next chunk (a cancel can only arrive between chunks,
+ * since nothing else runs in this thread meanwhile; the time limit is seen inside a chunk too),
+ * and the thread is handed back to other requests every {@link IN_THREAD_SLICE_MS} ms.
+ */
 export class InThreadExecutor implements ComputeExecutor {
   private readonly tasks: Record<string, Task>;
   /** `kinds`: the analyses whose worker tasks this executor can run (default: the registry). */
@@ -78,14 +86,27 @@ export class InThreadExecutor implements ComputeExecutor {
     const ctx = makeContext(
       inputs,
       hooks,
-      hooks.scatter ?? ((task, chunks) => this.parallel(task, chunks)),
+      hooks.scatter ?? ((task, chunks) => this.#map(task, chunks, () => hooks.isCancelled())),
     );
     return await kind.compute(params, ctx);
   }
   parallel<I, O>(task: string, inputs: I[]): Promise<O[]> {
+    return this.#map(task, inputs, () => false);
+  }
+  async #map<I, O>(task: string, inputs: I[], shouldStop: () => boolean): Promise<O[]> {
     const fn = this.tasks[task];
     if (!fn) throw new Error(`unknown worker task "${task}"`);
-    return Promise.resolve(inputs.map((i) => fn(i) as O));
+    const out: O[] = [];
+    let slice = performance.now();
+    for (const input of inputs) {
+      if (shouldStop()) throw new CancelledError();
+      out.push(fn(input, { shouldStop }) as O);
+      if (performance.now() - slice > IN_THREAD_SLICE_MS) {
+        await new Promise((r) => setTimeout(r, 0));
+        slice = performance.now();
+      }
+    }
+    return out;
   }
 }
 

@@ -2,10 +2,15 @@
  * A compute worker: runs whole run-kind computations and named tasks off the request thread.
  * Messages (structured clone; typed-array buffers in task results are transferred):
  *
- * - in  `{ type: "run", job, kind, params, inputs }` → out `started`, `progress`, `parallel`
- *   (a request to map a task over chunks on the pool), then `done` or `error`
- * - in  `{ type: "task", job, task, input }` → out `done` or `error`
- * - in  `{ type: "cancel", job }`; in `{ type: "parallel-result", job, req, results | error }`
+ * - in  `{ type: "run", job, kind, params, inputs, stop }` → out `started`, `progress`,
+ *   `parallel` (a request to map a task over chunks on the pool), then `done` or `error`
+ * - in  `{ type: "task", job, task, input, stop? }` → out `done` or `error`
+ * - in  `{ type: "parallel-result", req, results | error }`
+ *
+ * `stop` is an `Int32Array` over a `SharedArrayBuffer` of the run: the pool sets its first
+ * element when the run is cancelled or out of time. A message cannot reach a worker that is
+ * busy in a loop, but this flag can: `ctx.cancelled()` and a task's `shouldStop` read it, so
+ * the loops that poll them stop within milliseconds.
  *
  * @module
  */
@@ -26,16 +31,16 @@ const registry: Promise<{ kinds: readonly RunKind[]; tasks: Record<string, Task>
   tasks: taskTable(m.RUN_KINDS),
 }));
 
-const cancelled = new Set<number>();
 const waiting = new Map<number, { resolve(v: unknown[]): void; reject(e: unknown): void }>();
 let nextReq = 1;
 
+/** The stop test of a shared flag (never, without one). */
+function stopTest(stop: Int32Array | undefined): () => boolean {
+  return stop ? () => Atomics.load(stop, 0) !== 0 : () => false;
+}
+
 self.onmessage = async (e: MessageEvent) => {
   const m = e.data;
-  if (m.type === "cancel") {
-    cancelled.add(m.job);
-    return;
-  }
   if (m.type === "parallel-result") {
     const w = waiting.get(m.req);
     waiting.delete(m.req);
@@ -48,7 +53,7 @@ self.onmessage = async (e: MessageEvent) => {
     try {
       const fn = tasks[m.task];
       if (!fn) throw new Error(`unknown worker task "${m.task}"`);
-      const result = fn(m.input);
+      const result = fn(m.input, { shouldStop: stopTest(m.stop) });
       self.postMessage({ type: "done", job: m.job, result }, transferablesOf(result));
     } catch (err) {
       self.postMessage({ type: "error", job: m.job, error: serialiseError(err) });
@@ -70,7 +75,7 @@ self.onmessage = async (e: MessageEvent) => {
             self.postMessage({ type: "progress", job, fraction: f });
           }
         },
-        isCancelled: () => cancelled.has(job),
+        isCancelled: stopTest(m.stop),
       }, (task, chunks) =>
         new Promise((resolve, reject) => {
           const req = nextReq++;
@@ -81,8 +86,6 @@ self.onmessage = async (e: MessageEvent) => {
       self.postMessage({ type: "done", job, result });
     } catch (err) {
       self.postMessage({ type: "error", job, error: serialiseError(err) });
-    } finally {
-      cancelled.delete(job);
     }
   }
 };

@@ -205,6 +205,7 @@ export function computeAttributions(
     attributionRegression(axis.values[0], regressors, {
       errors: p.errors,
       hacLags: p.hac_lags,
+      shouldStop: ctx.cancelled,
     }));
   const t0 = fit.firstIndex;
   const sampleTime = Array.from(axis.time.subarray(t0, t0 + fit.n));

@@ -123,6 +123,7 @@ export function computeComposites(p: CompositeParams, ctx: RunContext): Composit
       bootstrap: p.bootstrap,
       randomSets: p.random_sets,
       seed: p.seed,
+      shouldStop: ctx.cancelled,
     }));
   const warnings: string[] = [];
   const droppedDates = [...epochIdx.outside, ...r.dropped.map((i) => time[i])];

@@ -30,6 +30,7 @@ import {
   type SpectralPeak,
 } from "../../../core/spectral/mod.ts";
 import { activityGrid } from "../common/activity_grid.ts";
+import { parallelInRounds } from "../common/parallel_rounds.ts";
 import { undefinedAsNull } from "../common/undefined_as_null.ts";
 import { MAX_GRID, type SpectraParams } from "./request.ts";
 import type { PeakIn, SpectraResultIn } from "./result.ts";
@@ -195,7 +196,7 @@ function gridWarnings(g: { min: number; max: number }, time: Float64Array): stri
 /**
  * The Lomb–Scargle power on the grid; large grids are split into fixed chunks of frequencies
  * (the same split whatever the number of workers, so the numbers do not depend on it) and
- * computed in parallel.
+ * computed in parallel, in rounds (a cancel is seen between them, and inside a chunk).
  */
 async function periodogram(
   p: SpectraParams,
@@ -206,7 +207,10 @@ async function periodogram(
 ): Promise<Float64Array> {
   const K = frequency.length;
   if (time.length * K < PARALLEL_WORK) {
-    return lombScargle(time, value, frequency, { normalization: p.normalization });
+    return lombScargle(time, value, frequency, {
+      normalization: p.normalization,
+      shouldStop: ctx.cancelled,
+    });
   }
   const chunks: LombScargleChunkInput[] = [];
   for (let k0 = 0; k0 < K; k0 += LS_CHUNK) {
@@ -217,9 +221,11 @@ async function periodogram(
       normalization: p.normalization,
     });
   }
-  const parts = await ctx.parallel<LombScargleChunkInput, Float64Array>(
+  const parts = await parallelInRounds<LombScargleChunkInput, Float64Array>(
+    ctx,
     "spectral.lomb_scargle_chunk",
     chunks,
+    { progress: [0, 0.1] },
   );
   const power = new Float64Array(K);
   let o = 0;
@@ -250,9 +256,11 @@ async function monteCarlo(
       probe,
     });
   }
-  const outs = await ctx.parallel<MonteCarloMaximaInput, MonteCarloNull>(
+  const outs = await parallelInRounds<MonteCarloMaximaInput, MonteCarloNull>(
+    ctx,
     "spectral.monte_carlo_maxima",
     inputs,
+    { progress: [0.1, 0.95] },
   );
   return combineMonteCarloNull(outs, peaks.map((q) => q.power));
 }
