@@ -66,6 +66,7 @@ export function createService(deps: AppDeps): Service {
   const kinds = deps.kinds ?? RUN_KINDS;
   const runs = new RunService(store, kinds, seriesCodec, deps.executor, {
     asyncSeconds: config.asyncSeconds,
+    wallSeconds: config.runWallSeconds,
   }, deps.transport);
   const metrics = new ServiceMetrics(store, runs.transport.queue);
   if (deps.role !== "api") {

@@ -15,6 +15,7 @@
  * | `SUNLAG_LOG` | `1` | one JSON line per request on stdout (`0` to silence) |
  * | `SUNLAG_ROLE` | `all` | `api` (HTTP only), `worker` (computes queued runs, no HTTP) or `all` |
  * | `SUNLAG_RUN_CONCURRENCY` | `1` | runs one worker process computes at once (queue engine pg-boss) |
+ * | `SUNLAG_RUN_WALL_SECONDS` | `3600` | a run still computing after this fails with its reason (at most a week) |
  *
  * @module
  */
@@ -33,6 +34,8 @@ export interface Config {
   role: "api" | "worker" | "all";
   /** Runs a worker process computes at once. */
   runConcurrency: number;
+  /** Wall-time limit of one run, seconds. */
+  runWallSeconds: number;
 }
 
 function num(env: Record<string, string | undefined>, name: string, dflt: number, min = 0): number {
@@ -64,6 +67,7 @@ export function readConfig(env: Record<string, string | undefined>): Config {
     log: env.SUNLAG_LOG !== "0",
     role: readRole(env.SUNLAG_ROLE),
     runConcurrency: Math.floor(num(env, "SUNLAG_RUN_CONCURRENCY", 1, 1)),
+    runWallSeconds: Math.min(num(env, "SUNLAG_RUN_WALL_SECONDS", 3600, 1), 7 * 86400),
   };
 }
 

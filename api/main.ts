@@ -44,6 +44,7 @@ const executor = config.workers > 0 ? new WorkerPool(config.workers) : new InThr
 if (config.role === "worker") {
   const runs = new RunService(store, RUN_KINDS, seriesCodec, executor, {
     asyncSeconds: config.asyncSeconds,
+    wallSeconds: config.runWallSeconds,
   }, transport);
   await runs.startWorking(Math.max(1, config.workers));
   console.log(JSON.stringify({

@@ -40,6 +40,7 @@ export const PROBLEM_TYPES = {
   "payload-too-large": { status: 413, title: "Payload too large" },
   "unsupported-media-type": { status: 415, title: "Unsupported media type" },
   "validation": { status: 422, title: "Invalid input" },
+  "time-limit": { status: 422, title: "Run time limit exceeded" },
   "precondition": { status: 412, title: "Precondition failed" },
   "internal": { status: 500, title: "Internal error" },
   "unavailable": { status: 503, title: "Service unavailable" },

@@ -12,6 +12,7 @@
 import { uuidv7 } from "uuidv7";
 import type { RunRecord, Store, StoredSeries } from "../store/types.ts";
 import { CancelledError, InputProblem, type RunContext, type RunKind, type Task } from "./kind.ts";
+import { StoppedError } from "../../core/stop_signal.ts";
 import type { OutputSeries, RunResult } from "./kind.ts";
 import { SERIES_ID_PATTERN } from "../schemas/series_ref.ts";
 import type { InlineSeries } from "../schemas/series_ref.ts";
@@ -221,10 +222,34 @@ export async function resultDigest(result: unknown): Promise<string> {
   return await sha256Hex(canonicalJson(result));
 }
 
-/** A run this process computes: its stop flag (set by a cancel or a lost lease). */
+/**
+ * A run this process computes: its stop flag (set by a cancel, a lost lease or the time
+ * limit), and whether the time limit set it.
+ */
 interface Active {
   cancelled: boolean;
+  timedOut: boolean;
   started: number;
+}
+
+/** Default wall-time limit of one run, seconds (`SUNLAG_RUN_WALL_SECONDS`). */
+export const DEFAULT_RUN_WALL_SECONDS = 3600;
+
+/** The problem of a run stopped by the wall-time limit. */
+export function timeLimitProblem(seconds: number): ProblemError {
+  return new ProblemError(
+    "time-limit",
+    `The run was still computing after the wall-time limit of ${seconds} s ` +
+      "(SUNLAG_RUN_WALL_SECONDS) and was stopped; ask for less work (fewer surrogates, a " +
+      "shorter period or a coarser grid)",
+    { limit_seconds: seconds },
+  );
+}
+
+/** True for the errors of a computation that stopped on request (api or core). */
+function isStopped(e: unknown): boolean {
+  return e instanceof CancelledError || e instanceof StoppedError ||
+    (e as { name?: string })?.name === "StoppedError";
 }
 
 /** Seconds a worker's lease on a run lasts without renewal (renewed every third of it). */
@@ -269,7 +294,11 @@ export class RunService {
     readonly kinds: readonly RunKind[],
     readonly codec: SeriesCodec,
     readonly executor: ComputeExecutor,
-    readonly options: { asyncSeconds: number },
+    readonly options: {
+      asyncSeconds: number;
+      /** Wall-time limit of one run, seconds. @default DEFAULT_RUN_WALL_SECONDS */
+      wallSeconds?: number;
+    },
     transport?: Partial<RunTransport>,
   ) {
     this.transport = {
@@ -287,6 +316,11 @@ export class RunService {
       chunkConcurrency,
     );
     await this.transport.queue.work((id) => this.process(id));
+  }
+
+  /** The wall-time limit of one run, seconds. */
+  get wallSeconds(): number {
+    return this.options.wallSeconds ?? DEFAULT_RUN_WALL_SECONDS;
   }
 
   kindOf(name: string): RunKind | undefined {
@@ -375,22 +409,30 @@ export class RunService {
     return { status: 201, run: done, saved_series: saved };
   }
 
-  /** Compute a result from params and loaded inputs, without storing anything. */
+  /**
+   * Compute a result from params and loaded inputs, without storing anything (a synchronous
+   * run, a replay). A computation still going at the wall-time limit is stopped and answered
+   * with a time-limit problem.
+   */
   async computeResult(
     kind: RunKind,
     params: Record<string, unknown>,
     inputs: { series: Record<string, StoredSeries>; runs: Record<string, RunRecord> },
   ): Promise<{ result: Record<string, unknown>; digest: string }> {
     let result: RunResult;
+    const deadline = performance.now() + this.wallSeconds * 1000;
+    const late = () => performance.now() >= deadline;
     try {
       result = await this.executor.compute(kind, params, inputs, {
         progress: () => {},
-        isCancelled: () => false,
+        isCancelled: late,
         onStart: () => {},
       });
     } catch (e) {
+      if (isStopped(e) && late()) throw timeLimitProblem(this.wallSeconds);
       throw asProblem(e);
     }
+    if (late()) throw timeLimitProblem(this.wallSeconds);
     const plain = toPlainJson(result) as Record<string, unknown>;
     return { result: plain, digest: await resultDigest(plain) };
   }
@@ -428,7 +470,7 @@ export class RunService {
       if (!now || TERMINAL.has(now.status)) return;
       throw new LeaseHeldError(runId);
     }
-    const active: Active = { cancelled: false, started: Date.now() };
+    const active: Active = { cancelled: false, timedOut: false, started: Date.now() };
     this.active.set(runId, active);
     const stop = events.subscribe(runId, (e) => {
       if (e.type === "status" && e.status === "cancelled") active.cancelled = true;
@@ -440,27 +482,49 @@ export class RunService {
       }, () => {});
     }, (LEASE_SECONDS * 1000) / 3);
     const publish = (e: RunEvent) => events.publish(e);
+    // The time limit: the run fails at once with its reason (a write conditional on the lease,
+    // so a run that ended meanwhile keeps its state) and its work is stopped like a cancel's.
+    const limit = setTimeout(() => {
+      active.timedOut = true;
+      active.cancelled = true;
+      this.#fail(runId, timeLimitProblem(this.wallSeconds), publish);
+    }, this.wallSeconds * 1000);
     try {
       const kind = this.kindOf(run.kind);
       if (!kind) throw new ProblemError("conflict", `run kind "${run.kind}" no longer exists`);
       const prep = await this.prepare(kind, run.params);
       await this.#computeLeased(kind, run, prep, active, publish);
     } catch (e) {
-      const cancelled = active.cancelled || e instanceof CancelledError;
-      const status = cancelled ? "cancelled" : "failed";
-      const written = await store.updateLeased(runId, holder, {
-        status,
-        error: cancelled ? null : asProblem(e).problem,
-        eta_seconds: null,
-        updated_at: new Date().toISOString(),
-      }).catch(() => false);
-      if (written) publish({ type: "status", id: runId, status, progress: 0 });
+      if (active.timedOut) {
+        await this.#fail(runId, timeLimitProblem(this.wallSeconds), publish);
+      } else if (active.cancelled || isStopped(e)) {
+        const written = await store.updateLeased(runId, holder, {
+          status: "cancelled",
+          eta_seconds: null,
+          updated_at: new Date().toISOString(),
+        }).catch(() => false);
+        if (written) publish({ type: "status", id: runId, status: "cancelled", progress: 0 });
+      } else {
+        await this.#fail(runId, asProblem(e), publish);
+      }
     } finally {
+      clearTimeout(limit);
       clearInterval(renew);
       stop();
       this.active.delete(runId);
       await this.transport.chunks?.release(runId);
     }
+  }
+
+  /** Record a leased run's failure with its problem (once: the write needs the lease). */
+  async #fail(runId: string, problem: ProblemError, publish: (e: RunEvent) => void) {
+    const written = await this.store.updateLeased(runId, this.transport.holder, {
+      status: "failed",
+      error: problem.problem,
+      eta_seconds: null,
+      updated_at: new Date().toISOString(),
+    }).catch(() => false);
+    if (written) publish({ type: "status", id: runId, status: "failed", progress: 0 });
   }
 
   async #computeLeased(
@@ -474,6 +538,16 @@ export class RunService {
     const { holder } = this.transport;
     let lastWrite = 0;
     let startedAt = Date.now();
+    const deadline = active.started + this.wallSeconds * 1000;
+    // Computed in this thread, a run sees the time limit by the clock (no timer fires while a
+    // chunk computes); in a worker pool the flag set by the timer reaches it.
+    const mustStop = () => {
+      if (!active.cancelled && Date.now() >= deadline) {
+        active.timedOut = true;
+        active.cancelled = true;
+      }
+      return active.cancelled;
+    };
     const result = await this.executor.compute(kind, run.params, prep, {
       onStart: () => {
         startedAt = Date.now();
@@ -495,12 +569,12 @@ export class RunService {
           }, () => {});
         }
       },
-      isCancelled: () => active.cancelled,
+      isCancelled: mustStop,
       scatter: this.transport.chunks
-        ? (task, chunks) => this.transport.chunks!.map(run.id, task, chunks, () => active.cancelled)
+        ? (task, chunks) => this.transport.chunks!.map(run.id, task, chunks, mustStop)
         : undefined,
     });
-    if (active.cancelled) throw new CancelledError();
+    if (mustStop()) throw new CancelledError();
     const plain = toPlainJson(result) as Record<string, unknown>;
     const digest = await resultDigest(plain);
     const written = await store.updateLeased(run.id, holder, {
@@ -658,7 +732,7 @@ export function asProblem(e: unknown): ProblemError {
         `name the field at fault (logged with this request id): ${(e as Error).message}`,
     );
   }
-  if (e instanceof CancelledError) return new ProblemError("conflict", "run cancelled");
+  if (isStopped(e)) return new ProblemError("conflict", "run cancelled");
   console.error(e);
   return new ProblemError(
     "internal",
