@@ -15,7 +15,7 @@
  * @module
  */
 /// <reference lib="deno.worker" />
-import type { RunKind, Task } from "../runs/kind.ts";
+import { CancelledError, type RunKind, type Task } from "../runs/kind.ts";
 import { makeContext } from "../runs/service.ts";
 import { taskTable } from "../analyses/derive.ts";
 import { serialiseError, transferablesOf } from "./messages.ts";
@@ -53,7 +53,10 @@ self.onmessage = async (e: MessageEvent) => {
     try {
       const fn = tasks[m.task];
       if (!fn) throw new Error(`unknown worker task "${m.task}"`);
-      const result = fn(m.input, { shouldStop: stopTest(m.stop) });
+      const shouldStop = stopTest(m.stop);
+      // stopped while this worker was starting or busy: do not begin
+      if (shouldStop()) throw new CancelledError();
+      const result = fn(m.input, { shouldStop });
       self.postMessage({ type: "done", job: m.job, result }, transferablesOf(result));
     } catch (err) {
       self.postMessage({ type: "error", job: m.job, error: serialiseError(err) });
@@ -66,6 +69,7 @@ self.onmessage = async (e: MessageEvent) => {
     try {
       const kind = kinds.find((k) => k.kind === m.kind);
       if (!kind) throw new Error(`unknown run kind "${m.kind}"`);
+      if (stopTest(m.stop)()) throw new CancelledError();
       let last = 0;
       const ctx = makeContext(m.inputs, {
         progress: (f) => {
