@@ -17,6 +17,7 @@ import { loadDemo } from "./demo.ts";
 import { openTransport } from "./queue/mod.ts";
 import { RUN_KINDS } from "./analyses/registry.ts";
 import { seriesCodec } from "./series_codec.ts";
+import { machineSpeedFactor } from "./runs/estimate.ts";
 
 const t0 = performance.now();
 const config = readConfig(Deno.env.toObject());
@@ -40,6 +41,8 @@ if (config.demo && config.role !== "worker") {
 }
 
 const executor = config.workers > 0 ? new WorkerPool(config.workers) : new InThreadExecutor();
+// the estimates' machine-speed factor, measured now rather than on the first request
+const speedFactor = Math.round(machineSpeedFactor() * 100) / 100;
 
 if (config.role === "worker") {
   const runs = new RunService(store, RUN_KINDS, seriesCodec, executor, {
@@ -75,6 +78,7 @@ if (config.role === "worker") {
         queue: transport.queue.engine,
         store: store.kind,
         workers: config.workers,
+        speed_factor: speedFactor,
         startup_ms: Math.round(performance.now() - t0),
       }));
     },

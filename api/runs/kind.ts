@@ -106,6 +106,14 @@ export class InputProblem extends Error {
 // deno-lint-ignore no-explicit-any
 export type Task = (input: any, control?: StopOptions) => any;
 
+/** What an estimate may look at: the loaded inputs of the run (their sizes, their times). */
+export interface EstimateInputs {
+  /** A loaded input series by id (every series id found in params). */
+  series(id: string): StoredSeries;
+  /** A loaded input run by id (those listed by `RunKind.runRefs`). */
+  run(id: string): RunRecord;
+}
+
 /** An analysis' chart, typed on its result. */
 export interface KindChart<T> {
   /** True when the chart draws the run's input series too (the chart route loads them). */
@@ -142,8 +150,14 @@ export interface RunKind<S extends z.ZodType = any, R extends z.ZodType = any> {
   request: S;
   /** Ids of runs the params refer to (loaded into the context), default none. */
   runRefs?(params: z.output<S>): string[];
-  /** Rough work estimate in seconds, used to decide asynchronous execution. */
-  estimateSeconds?(params: z.output<S>): number;
+  /**
+   * The run's computing time in seconds on one core of the reference machine, from a cost
+   * model of its real work (points × grid × replicates ...; see api/runs/estimate.ts). The
+   * service scales it by the measured speed of the machine and runs a request asynchronously
+   * (cancellable) when the result exceeds `SUNLAG_ASYNC_SECONDS`. Tested against measured
+   * times to within a factor of three.
+   */
+  estimateSeconds?(params: z.output<S>, inputs: EstimateInputs): number;
   /** Names of outputs saved automatically as new series with lineage. */
   autoSave?: string[];
   /**

@@ -13,6 +13,7 @@ import { uuidv7 } from "uuidv7";
 import type { RunRecord, Store, StoredSeries } from "../store/types.ts";
 import { CancelledError, InputProblem, type RunContext, type RunKind, type Task } from "./kind.ts";
 import { StoppedError } from "../../core/stop_signal.ts";
+import { estimateRunSeconds } from "./estimate.ts";
 import type { OutputSeries, RunResult } from "./kind.ts";
 import { SERIES_ID_PATTERN } from "../schemas/series_ref.ts";
 import type { InlineSeries } from "../schemas/series_ref.ts";
@@ -393,7 +394,7 @@ export class RunService {
       error: null,
       eta_seconds: null,
     };
-    const estimate = kind.estimateSeconds?.(prep.params as never) ?? 0;
+    const estimate = estimateRunSeconds(kind, prep.params, prep);
     const isAsync = opts.preferAsync || estimate > this.options.asyncSeconds;
     if (isAsync) {
       for (const s of prep.inline.values()) await this.store.putSeries(s);

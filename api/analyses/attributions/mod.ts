@@ -10,6 +10,7 @@ import { AttributionRequest } from "./request.ts";
 import { AttributionResult } from "./result.ts";
 import { computeAttributions } from "./compute.ts";
 import { attributionsChart } from "./chart.ts";
+import { estimateAttributionsSeconds } from "./estimate.ts";
 
 export const attributionKind = defineAnalysis({
   kind: "attributions",
@@ -27,8 +28,7 @@ export const attributionKind = defineAnalysis({
   request: AttributionRequest,
   result: AttributionResult,
   runRefs: (p) => p.regressors.flatMap((r) => (r.run ? [r.run] : [])),
-  estimateSeconds: (p) =>
-    0.1 + 0.02 * p.regressors.reduce((s, r) => s + r.max_lag - r.min_lag + 1, 0),
+  estimateSeconds: estimateAttributionsSeconds,
   compute: computeAttributions,
   chart: attributionsChart,
 });

@@ -12,6 +12,7 @@ import { ReconstructionRequest } from "./request.ts";
 import { ReconstructionResult } from "./result.ts";
 import { computeReconstruction } from "./compute.ts";
 import { reconstructionChart } from "./chart.ts";
+import { estimateReconstructionSeconds } from "./estimate.ts";
 
 export const irradianceReconstructions = defineAnalysis({
   kind: "irradiance-reconstructions",
@@ -33,7 +34,7 @@ export const irradianceReconstructions = defineAnalysis({
   request: ReconstructionRequest,
   result: ReconstructionResult,
   runRefs: (p) => [p.model],
-  estimateSeconds: (p) => (p.resolution === "daily" ? 0.5 : 0.1),
+  estimateSeconds: estimateReconstructionSeconds,
   compute: computeReconstruction,
   chart: reconstructionChart,
 });

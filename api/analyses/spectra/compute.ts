@@ -175,6 +175,21 @@ function lombScargleGrid(p: SpectraParams, time: Float64Array) {
   return { frequency, min: lo, max: hi, spacing: p.periods.spacing };
 }
 
+/**
+ * The size of a Lomb–Scargle request's work (for its cost model): finite samples, grid points,
+ * and whether the grid is even in frequency (the periodogram's fast path); a 422 as the
+ * computation would give one.
+ */
+export function lombScargleWork(p: SpectraParams, s: StoredSeries) {
+  const { time } = samples(s);
+  const g = lombScargleGrid(p, time);
+  return {
+    points: time.length,
+    grid: g.frequency.length,
+    even: p.period_list === undefined && p.periods.spacing === "frequency",
+  };
+}
+
 /** Warnings on periods the sampling does not resolve. */
 function gridWarnings(g: { min: number; max: number }, time: Float64Array): string[] {
   const warnings: string[] = [];
