@@ -42,6 +42,8 @@ interface Slot {
   jobs: Set<Job>;
   /** The worker failed; a fresh one is started when the slot is next given a job. */
   dead: boolean;
+  /** The worker has loaded the analyses (before that, nothing posted to it has begun). */
+  ready: boolean;
 }
 
 /** One run's stop flag, shared with every worker computing for it. */
@@ -129,7 +131,13 @@ export class WorkerPool implements ComputeExecutor {
     }
     this.graceMs = options.graceMs ?? STOP_GRACE_MS;
     for (let i = 0; i < size; i++) {
-      const slot: Slot = { index: i, worker: this.spawn(i), jobs: new Set(), dead: false };
+      const slot: Slot = {
+        index: i,
+        worker: this.spawn(i),
+        jobs: new Set(),
+        dead: false,
+        ready: false,
+      };
       this.attach(slot);
       this.slots.push(slot);
     }
@@ -191,6 +199,7 @@ export class WorkerPool implements ComputeExecutor {
       if (slot.dead) {
         slot.worker = this.spawn(slot.index);
         slot.dead = false;
+        slot.ready = false;
         this.attach(slot);
       }
       job.slot = slot;
@@ -221,6 +230,10 @@ export class WorkerPool implements ComputeExecutor {
   }
 
   private onMessage(slot: Slot, m: Record<string, unknown>) {
+    if (m.type === "ready") {
+      slot.ready = true;
+      return;
+    }
     const job = this.jobs.get(m.job as number);
     if (!job || job.slot !== slot) return;
     switch (m.type) {
@@ -387,9 +400,10 @@ export class WorkerPool implements ComputeExecutor {
       this.timers.delete(timer);
       for (const slot of this.slots) {
         const mine = [...slot.jobs].filter((j) => j.control === control);
-        if (mine.some(active)) this.replace(slot);
+        if (slot.ready && mine.some(active)) this.replace(slot);
         else {
-          // a run still waiting for chunks that went elsewhere: let go of it
+          // a run still waiting for chunks that went elsewhere, or jobs of a worker still
+          // loading (it will see the flag before it begins them): let go of them
           for (const j of mine) this.detach(j);
         }
       }
@@ -427,6 +441,7 @@ export class WorkerPool implements ComputeExecutor {
     }));
     slot.worker = this.spawn(slot.index);
     slot.dead = false;
+    slot.ready = false;
     this.attach(slot);
     const held = [...slot.jobs];
     slot.jobs.clear();

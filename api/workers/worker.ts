@@ -6,6 +6,7 @@
  *   `parallel` (a request to map a task over chunks on the pool), then `done` or `error`
  * - in  `{ type: "task", job, task, input, stop? }` → out `done` or `error`
  * - in  `{ type: "parallel-result", req, results | error }`
+ * - out `{ type: "ready" }` once the analyses are loaded
  *
  * `stop` is an `Int32Array` over a `SharedArrayBuffer` of the run: the pool sets its first
  * element when the run is cancelled or out of time. A message cannot reach a worker that is
@@ -30,6 +31,9 @@ const registry: Promise<{ kinds: readonly RunKind[]; tasks: Record<string, Task>
   kinds: m.RUN_KINDS,
   tasks: taskTable(m.RUN_KINDS),
 }));
+
+// the pool knows from here on that this worker computes what it is given
+registry.then(() => self.postMessage({ type: "ready" }));
 
 const waiting = new Map<number, { resolve(v: unknown[]): void; reject(e: unknown): void }>();
 let nextReq = 1;

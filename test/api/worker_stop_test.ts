@@ -119,3 +119,20 @@ Deno.test("worker pool: chunks that ignore their stop flag are stopped by replac
     pool.terminate();
   }
 });
+
+Deno.test("worker pool: a run cancelled while its worker is still loading ends without replacing the worker", async () => {
+  const pool = new WorkerPool(1, REGISTRY, { graceMs: 100 });
+  try {
+    const h = hooks();
+    const run = pool.compute(spinKind, { chunks: 2, ms: 5000, polite: false }, NO_INPUTS, h);
+    h.cancel();
+    await assert.rejects(run, CancelledError);
+    assert.equal(pool.stats().replaced, 0, "a loading worker is not busy with the run");
+    // the same worker serves the next run once it has loaded
+    const ok = await pool.compute(steadyKind, { n: 10, chunks: 2, ms: 0 }, NO_INPUTS, hooks());
+    assert.equal((ok as { sum: number }).sum, 45);
+    assert.equal(pool.stats().replaced, 0);
+  } finally {
+    pool.terminate();
+  }
+});
