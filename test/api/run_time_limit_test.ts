@@ -23,6 +23,12 @@ Deno.test("time limit: an asynchronous run fails with the limit as its reason, a
   const svc = await makeTestApp({ workers: 2, config: { runWallSeconds: 1 } });
   try {
     await loadDemo(svc.store);
+    // a small run first, so that the workers have loaded the analyses before the clock runs
+    // (under the 1 s limit it may itself run out of time while they load)
+    await svc.post("/v1/lag-correlations", { ...HEAVY, surrogates: 100 }, {
+      prefer: "respond-async",
+    });
+    await svc.runs.settle();
     const res = await svc.post("/v1/lag-correlations", HEAVY, { prefer: "respond-async" });
     assert.equal(res.status, 202);
     const { id } = await res.json();

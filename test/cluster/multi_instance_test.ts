@@ -183,7 +183,8 @@ Deno.test({
             seed: 9,
             periods: { min: 5, max: 20, count: 200 },
           };
-          const local = await makeTestApp();
+          // computed synchronously here (estimated at a few seconds, it would be queued)
+          const local = await makeTestApp({ config: { asyncSeconds: 1e6 } });
           await loadDemo(local.store);
           const here = await (await local.post("/v1/spectra", body)).json();
           await local.close();
