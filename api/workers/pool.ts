@@ -8,7 +8,8 @@
  * Stopping (a cancel or the run time limit):
  * - Work waits in the pool, not in the workers: a worker is given one job at a time (besides
  *   runs waiting there for their chunks), so a stopped run's chunks that have not started are
- *   dropped at once, and two runs share the workers chunk by chunk.
+ *   dropped at once, and runs take turns chunk by chunk (a light run does not wait for a
+ *   heavy one's chunks).
  * - Each run has a stop flag in a `SharedArrayBuffer` that every worker computing for it can
  *   read while it is busy (`ctx.cancelled()`, a task's `shouldStop`); the long loops of the
  *   analyses poll it and stop within milliseconds.
@@ -81,6 +82,8 @@ interface Job {
 /** What the pool is doing (tests, metrics). */
 export interface PoolStats {
   workers: number;
+  /** Workers that have loaded the analyses. */
+  ready: number;
   /** Workers computing something (not only holding runs that wait for their chunks). */
   busy: number;
   /** Jobs posted to workers and not finished. */
@@ -105,9 +108,11 @@ const active = (j: Job) => j.pending.size === 0;
 export class WorkerPool implements ComputeExecutor {
   private readonly slots: Slot[] = [];
   private readonly jobs = new Map<number, Job>();
-  /** Tasks wait here (served first: they belong to runs already computing), then runs. */
-  private readonly queuedTasks: Job[] = [];
-  private readonly queuedRuns: Job[] = [];
+  /** Jobs waiting for a worker, in arrival order (see `next`). */
+  private readonly queue: Job[] = [];
+  /** When each run (or the runless tasks, under null) last got a worker. */
+  private readonly served = new Map<RunControl | null, number>();
+  private dispatches = 0;
   private readonly timers = new Set<ReturnType<typeof setTimeout>>();
   private nextJob = 1;
   private terminated = false;
@@ -188,14 +193,30 @@ export class WorkerPool implements ComputeExecutor {
     return best;
   }
 
+  /**
+   * The next job to give a worker: the first waiting job of the run served longest ago, so that
+   * runs take turns chunk by chunk (a light run submitted behind a heavy one starts as soon as
+   * one chunk ends, not after all the chunks queued before it).
+   */
+  private next(): Job | null {
+    let best = -1, bestServed = Infinity;
+    for (let i = 0; i < this.queue.length; i++) {
+      const served = this.served.get(this.queue[i].control) ?? -1;
+      if (served < bestServed) {
+        best = i;
+        bestServed = served;
+      }
+    }
+    return best < 0 ? null : this.queue.splice(best, 1)[0];
+  }
+
   /** Give waiting jobs to idle workers. */
   private pump(): void {
-    while (!this.terminated) {
-      const queue = this.queuedTasks.length ? this.queuedTasks : this.queuedRuns;
-      if (queue.length === 0) return;
+    while (!this.terminated && this.queue.length) {
       const slot = this.idleSlot();
       if (!slot) return;
-      const job = queue.shift()!;
+      const job = this.next()!;
+      this.served.set(job.control, ++this.dispatches);
       if (slot.dead) {
         slot.worker = this.spawn(slot.index);
         slot.dead = false;
@@ -212,9 +233,8 @@ export class WorkerPool implements ComputeExecutor {
 
   private enqueue(job: Job, front = false): void {
     this.jobs.set(job.id, job);
-    const queue = job.type === "task" ? this.queuedTasks : this.queuedRuns;
-    if (front) queue.unshift(job);
-    else queue.push(job);
+    if (front) this.queue.unshift(job);
+    else this.queue.push(job);
   }
 
   /** Forget a job (posted or waiting) and settle it with `settle`. */
@@ -222,10 +242,9 @@ export class WorkerPool implements ComputeExecutor {
     if (!this.jobs.delete(job.id)) return;
     job.slot?.jobs.delete(job);
     job.slot = null;
-    for (const q of [this.queuedTasks, this.queuedRuns]) {
-      const i = q.indexOf(job);
-      if (i >= 0) q.splice(i, 1);
-    }
+    const i = this.queue.indexOf(job);
+    if (i >= 0) this.queue.splice(i, 1);
+    if (job.type === "run" && job.control) this.served.delete(job.control);
     settle();
   }
 
@@ -393,7 +412,7 @@ export class WorkerPool implements ComputeExecutor {
     if (control.stopped) return;
     control.stopped = true;
     Atomics.store(control.flag, 0, 1);
-    for (const job of [...this.queuedTasks, ...this.queuedRuns]) {
+    for (const job of [...this.queue]) {
       if (job.control === control) this.finish(job, () => job.reject(new CancelledError()));
     }
     const timer = setTimeout(() => {
@@ -464,7 +483,7 @@ export class WorkerPool implements ComputeExecutor {
     if (job.type === "run") {
       job.attempt++;
       job.pending.clear();
-      for (const t of [...this.queuedTasks]) {
+      for (const t of [...this.queue]) {
         if (t.parent?.job === job) this.finish(t, () => t.reject(new CancelledError()));
       }
     }
@@ -481,9 +500,10 @@ export class WorkerPool implements ComputeExecutor {
     }
     return {
       workers: this.slots.length,
+      ready: this.slots.filter((s) => s.ready && !s.dead).length,
       busy,
       in_flight: inFlight,
-      queued: this.queuedTasks.length + this.queuedRuns.length,
+      queued: this.queue.length,
       replaced: this.replaced,
     };
   }

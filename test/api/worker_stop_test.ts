@@ -28,6 +28,11 @@ function hooks(): ComputeHooks & { cancel(): void; started: Promise<void> } {
 
 const sleep = (ms: number) => new Promise((r) => setTimeout(r, ms));
 
+/** Wait until every worker of the pool has loaded the analyses. */
+async function loaded(pool: WorkerPool) {
+  await until(() => pool.stats().ready === pool.size, 20_000, "workers loaded");
+}
+
 /** Wait until `f` holds (polling every 10 ms), or fail after `ms`. */
 async function until(f: () => boolean, ms: number, what: string) {
   const t0 = performance.now();
@@ -40,6 +45,7 @@ async function until(f: () => boolean, ms: number, what: string) {
 Deno.test("worker pool: chunks that poll their stop flag end within milliseconds of a cancel", async () => {
   const pool = new WorkerPool(2, REGISTRY);
   try {
+    await loaded(pool);
     const h = hooks();
     // 40 chunks of 2 s: about 40 s of work on two workers
     const run = pool.compute(spinKind, { chunks: 40, ms: 2000, polite: true }, NO_INPUTS, h);
@@ -69,6 +75,7 @@ Deno.test("worker pool: chunks that poll their stop flag end within milliseconds
 Deno.test("worker pool: a worker that ignores the cancel is replaced after the grace period; the other run it held is sent again and succeeds", async () => {
   const pool = new WorkerPool(2, REGISTRY, { graceMs: 300 });
   try {
+    await loaded(pool);
     // run B waits for its chunks in worker 0 (its chunks go to worker 1 first)
     const hb = hooks();
     // (two chunks: one per round, so that B's worker holds only B while B waits)
@@ -102,6 +109,7 @@ Deno.test("worker pool: a worker that ignores the cancel is replaced after the g
 Deno.test("worker pool: chunks that ignore their stop flag are stopped by replacing their workers; a queued run of another caller then runs", async () => {
   const pool = new WorkerPool(2, REGISTRY, { graceMs: 300 });
   try {
+    await loaded(pool);
     const ha = hooks();
     const a = pool.compute(spinKind, { chunks: 6, ms: 2500, polite: false }, NO_INPUTS, ha);
     await ha.started;
@@ -132,6 +140,28 @@ Deno.test("worker pool: a run cancelled while its worker is still loading ends w
     const ok = await pool.compute(steadyKind, { n: 10, chunks: 2, ms: 0 }, NO_INPUTS, hooks());
     assert.equal((ok as { sum: number }).sum, 45);
     assert.equal(pool.stats().replaced, 0);
+  } finally {
+    pool.terminate();
+  }
+});
+
+Deno.test("worker pool: runs take turns chunk by chunk: a light run behind a heavy one waits for one chunk, not for all", async () => {
+  const pool = new WorkerPool(1, REGISTRY);
+  try {
+    await loaded(pool);
+    const ha = hooks();
+    const a = pool.compute(spinKind, { chunks: 30, ms: 300, polite: true }, NO_INPUTS, ha);
+    a.catch(() => {});
+    await ha.started;
+    await until(() => pool.stats().busy === 1 && pool.stats().queued > 20, 10_000, "A busy");
+    const t0 = performance.now();
+    const b = await pool.compute(steadyKind, { n: 100, chunks: 2, ms: 0 }, NO_INPUTS, hooks());
+    const waited = performance.now() - t0;
+    assert.equal((b as { sum: number }).sum, 4950);
+    assert.ok(pool.stats().queued > 10, "A still has most of its chunks to do");
+    console.log(`light run done ${waited.toFixed(0)} ms after it was submitted behind 30 chunks`);
+    ha.cancel();
+    await assert.rejects(a, CancelledError);
   } finally {
     pool.terminate();
   }
