@@ -18,8 +18,8 @@
  *
  * @module
  */
-import { type EstimateInputs, InputProblem, type RunKind } from "./kind.ts";
-import type { RunRecord, StoredSeries } from "../store/types.ts";
+import { InputProblem, type RunKind } from "./kind.ts";
+import { type LoadedInputs, loadedInputs } from "./loaded_inputs.ts";
 import { lombScargle } from "../../core/spectral/lomb_scargle.ts";
 
 /** CPU seconds the reference workload takes on the reference machine. */
@@ -129,25 +129,13 @@ export function machineSpeedFactor(): number {
 export function estimateRunSeconds(
   kind: RunKind,
   params: Record<string, unknown>,
-  inputs: { series: Record<string, StoredSeries>; runs: Record<string, RunRecord> },
+  inputs: LoadedInputs,
   speed: () => number = machineSpeedFactor,
 ): number {
   if (!kind.estimateSeconds) return 0;
-  const view: EstimateInputs = {
-    series(id) {
-      const s = inputs.series[id];
-      if (!s) throw new Error(`series ${id} was not loaded for this estimate`);
-      return s;
-    },
-    run(id) {
-      const r = inputs.runs[id];
-      if (!r) throw new Error(`run ${id} was not loaded for this estimate`);
-      return r;
-    },
-  };
   let seconds: number;
   try {
-    seconds = kind.estimateSeconds(params as never, view);
+    seconds = kind.estimateSeconds(params as never, loadedInputs(inputs));
   } catch (e) {
     // a bad input gets its problem from the computation; anything else is a defect to log
     if (!(e instanceof InputProblem)) {

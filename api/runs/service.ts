@@ -14,6 +14,7 @@ import type { RunRecord, Store, StoredSeries } from "../store/types.ts";
 import { CancelledError, InputProblem, type RunContext, type RunKind, type Task } from "./kind.ts";
 import { StoppedError } from "../../core/stop_signal.ts";
 import { estimateRunSeconds } from "./estimate.ts";
+import { loadedInputs } from "./loaded_inputs.ts";
 import type { OutputSeries, RunResult } from "./kind.ts";
 import { SERIES_ID_PATTERN } from "../schemas/series_ref.ts";
 import type { InlineSeries } from "../schemas/series_ref.ts";
@@ -120,17 +121,7 @@ export function makeContext(
 ): RunContext {
   let reported = 0;
   return {
-    series(id) {
-      const s = inputs.series[id];
-      // a kind asking for a series its request does not name is a defect, not bad input
-      if (!s) throw new Error(`series ${id} was not loaded for this run`);
-      return s;
-    },
-    run(id) {
-      const r = inputs.runs[id];
-      if (!r) throw new Error(`run ${id} was not loaded for this run`);
-      return r;
-    },
+    ...loadedInputs(inputs),
     resultOf(kind, id, pointer) {
       const r = inputs.runs[id];
       if (!r) throw new InputProblem(pointer, `run ${id} was not loaded`);
