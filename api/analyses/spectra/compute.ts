@@ -39,8 +39,15 @@ import type { PeakIn, SpectraResultIn } from "./result.ts";
 const PARALLEL_WORK = 4_000_000;
 /** Frequencies per parallel chunk (fixed: results must not depend on the worker count). */
 const LS_CHUNK = 1024;
-/** Monte Carlo replicates per parallel chunk (fixed, likewise). */
+/** Most Monte Carlo replicates per parallel chunk. */
 const MC_CHUNK = 25;
+/**
+ * Points × frequencies × replicates of one Monte Carlo chunk at most (about 0.1 s on one core;
+ * one replicate at least): a worker is free for other runs that often. Each replicate draws
+ * from its own stream and the chunks' maxima are joined in order, so the split does not change
+ * the numbers.
+ */
+const MC_CHUNK_WORK = 3e7;
 
 const CAUTIONS = [
   "The analytic (Horne & Baliunas) and permutation false-alarm probabilities test against " +
@@ -251,7 +258,7 @@ async function periodogram(
   return power;
 }
 
-/** The Monte Carlo null in fixed chunks of replicates, probed at the peaks, combined. */
+/** The Monte Carlo null in chunks of replicates, probed at the peaks, combined. */
 async function monteCarlo(
   p: SpectraParams,
   data: { time: Float64Array; value: Float64Array; frequency: Float64Array },
@@ -259,12 +266,14 @@ async function monteCarlo(
   ctx: RunContext,
 ): Promise<MonteCarloPeakTests> {
   const probe = peaks.map((q) => q.index);
+  const perReplicate = data.time.length * data.frequency.length;
+  const per = Math.max(1, Math.min(MC_CHUNK, Math.floor(MC_CHUNK_WORK / perReplicate)));
   const inputs: MonteCarloMaximaInput[] = [];
-  for (let r0 = 0; r0 < p.replicates; r0 += MC_CHUNK) {
+  for (let r0 = 0; r0 < p.replicates; r0 += per) {
     inputs.push({
       ...data,
       seed: p.seed,
-      replicates: Math.min(MC_CHUNK, p.replicates - r0),
+      replicates: Math.min(per, p.replicates - r0),
       firstReplicate: r0,
       normalization: p.normalization,
       null: p.monte_carlo_null,
