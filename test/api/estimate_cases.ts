@@ -419,6 +419,11 @@ export async function estimateCases(svc: TestService): Promise<EstimateCase[]> {
       body: () => ({ series: inventedMonthly(30_000), method: "gaussian", sigma: 300 }),
     },
     {
+      path: "/v1/spectra",
+      label: "50,000 days, default grid (125,000)",
+      body: () => ({ series: inventedDaily(50_000) }),
+    },
+    {
       path: "/v1/resampling",
       label: "monthly SSN → annual",
       body: () => ({ series: SSN, to: "annual" }),
