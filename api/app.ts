@@ -1,7 +1,8 @@
 /**
- * The Hono application: middleware (request id, JSON log line, CORS, body limit, media types),
- * RFC 9457 problems for every failure, the OpenAPI 3.1 document generated from the zod schemas
- * that validate requests, and the routes.
+ * The Hono application: middleware (request id, JSON log line, `Host` check, request-head
+ * size, CORS, cross-site guard, authentication, request rate, role check, body limit,
+ * compressed bodies), RFC 9457 problems for every failure, the OpenAPI 3.1 document generated
+ * from the zod schemas that validate requests, and the routes.
  *
  * @module
  */
@@ -9,11 +10,10 @@ import { OpenAPIHono } from "@hono/zod-openapi";
 import type { Context } from "hono";
 import { HTTPException } from "hono/http-exception";
 import { bodyLimit } from "hono/body-limit";
-import { cors } from "hono/cors";
 import { uuidv7 } from "uuidv7";
 import type { Config } from "./config.ts";
 import type { Store } from "./store/types.ts";
-import { type Problem, ProblemError, problemResponse } from "./problems.ts";
+import { type Problem, ProblemError, problemResponse, zodFieldErrors } from "./problems.ts";
 import type { ComputeExecutor } from "./runs/service.ts";
 import { RunService, type RunTransport } from "./runs/service.ts";
 import { RUN_KINDS } from "./analyses/registry.ts";
@@ -24,13 +24,28 @@ import { registerRunRoutes } from "./routes/runs.ts";
 import { registerChartRoutes } from "./routes/charts.ts";
 import { registerKindRoutes } from "./routes/kinds.ts";
 import { registerSeriesRoutes } from "./routes/series.ts";
+import { registerFieldRoutes } from "./routes/fields.ts";
+import { registerMapRoutes } from "./routes/maps.ts";
 import { registerBundleRoutes } from "./routes/bundles.ts";
 import { registerUiRoutes } from "./ui/routes.ts";
 import { seriesCodec } from "./series_codec.ts";
-import { type App, type AppEnv, zodErrors } from "./app_env.ts";
+import type { App, AppEnv } from "./app_env.ts";
 
 export type { App, AppEnv } from "./app_env.ts";
-export { openApiDocument, zodErrors } from "./app_env.ts";
+export { openApiDocument, zodErrors, zodFieldErrors } from "./app_env.ts";
+import { authenticate } from "./auth/authenticate.ts";
+import { authorise } from "./auth/authorise.ts";
+import { hostCheck } from "./security/host_check.ts";
+import { headSizeLimit } from "./security/head_size.ts";
+import { corsPolicy } from "./security/cors.ts";
+import { crossSiteGuard } from "./security/cross_site.ts";
+import { contentEncoding } from "./security/content_encoding.ts";
+import { TokenBuckets } from "./limits/token_bucket.ts";
+import { rateLimit } from "./limits/rate_limit.ts";
+import { RunQuotas } from "./limits/quotas.ts";
+import { registerAdminRoutes } from "./routes/admin.ts";
+import { UploadPool } from "./ingest/upload.ts";
+import { registerSharingRoutes } from "./routes/sharing.ts";
 
 export interface AppDeps {
   store: Store;
@@ -51,6 +66,9 @@ export interface Service {
   runs: RunService;
   store: Store;
   config: Config;
+  quotas: RunQuotas;
+  /** Workers that read uploads; `terminate()` them when the service stops. */
+  uploads: UploadPool;
 }
 
 const TARGET_NAMES: Record<string, "body" | "query" | "path" | "header"> = {
@@ -64,11 +82,15 @@ const TARGET_NAMES: Record<string, "body" | "query" | "path" | "header"> = {
 export function createService(deps: AppDeps): Service {
   const { store, config } = deps;
   const kinds = deps.kinds ?? RUN_KINDS;
+  const quotas = new RunQuotas(config.quotas);
   const runs = new RunService(store, kinds, seriesCodec, deps.executor, {
     asyncSeconds: config.asyncSeconds,
     wallSeconds: config.runWallSeconds,
+    admission: quotas,
   }, deps.transport);
   const metrics = new ServiceMetrics(store, runs.transport.queue);
+  // Field uploads a crash interrupted left staged blocks: remove those over an hour old.
+  store.dropStagedFields(3600).catch(() => undefined);
   if (deps.role !== "api") {
     runs.startWorking().catch((e) =>
       console.error(JSON.stringify({ level: "error", event: "worker_start", error: String(e) }))
@@ -79,14 +101,16 @@ export function createService(deps: AppDeps): Service {
     defaultHook: (result, c) => {
       if (!result.success) {
         const where = TARGET_NAMES[result.target] ?? "body";
-        const errors = zodErrors(result.error.issues, where);
+        const { errors, omitted } = zodFieldErrors(result.error.issues, where);
         return problemResponse(c, {
           type: "https://sunlag.invalid/problems/validation",
           title: "Invalid input",
           status: 422,
           detail: `The request ${where} failed validation: ` +
-            errors.map((e) => `${e.pointer || "/"}: ${e.message}`).join("; "),
+            errors.slice(0, 5).map((e) => `${e.pointer || "/"}: ${e.message}`).join("; ") +
+            (errors.length > 5 || omitted ? "; and more (see errors)" : ""),
           errors,
+          ...(omitted ? { errors_omitted: omitted } : {}),
         });
       }
     },
@@ -113,42 +137,47 @@ export function createService(deps: AppDeps): Service {
     }
   });
 
-  if (config.corsOrigins.length) {
-    app.use(
-      "*",
-      cors({
-        origin: config.corsOrigins.includes("*") ? "*" : config.corsOrigins,
-        allowMethods: ["GET", "POST", "DELETE", "OPTIONS"],
-        allowHeaders: ["Content-Type", "Accept", "Prefer", "If-None-Match", "X-Request-Id"],
-        exposeHeaders: ["X-Request-Id", "ETag", "Location", "Preference-Applied"],
-        maxAge: 600,
-      }),
-    );
-  }
+  app.use("*", hostCheck(config.allowedHosts));
+  app.use("*", headSizeLimit());
+  const cors = corsPolicy(config.corsOrigins);
+  if (cors) app.use("*", cors);
+  app.use("*", crossSiteGuard());
+  app.use("*", authenticate({ store, adminKey: config.adminKey }));
+  app.use("*", rateLimit(new TokenBuckets(config.quotas.ratePerSecond, config.quotas.rateBurst)));
+  app.use("*", authorise());
 
+  const jsonLimit = bodyLimit({
+    maxSize: config.bodyLimitBytes,
+    onError: (c) =>
+      problemResponse(
+        c,
+        new ProblemError(
+          "payload-too-large",
+          `The request body is over the configured limit of ${config.bodyLimitBytes} bytes (SUNLAG_BODY_LIMIT_MB)`,
+        ).problem,
+      ),
+  });
+  // A field upload streams to a temporary file under its own limit (SUNLAG_FIELD_LIMIT_MB).
   app.use(
     "*",
-    bodyLimit({
-      maxSize: config.bodyLimitBytes,
-      onError: (c) =>
-        problemResponse(
-          c,
-          new ProblemError(
-            "payload-too-large",
-            `The request body is over the configured limit of ${config.bodyLimitBytes} bytes (SUNLAG_BODY_LIMIT_MB)`,
-          ).problem,
-        ),
-    }),
+    (c, next) =>
+      c.req.method === "POST" && c.req.path === "/v1/fields" ? next() : jsonLimit(c, next),
   );
+  app.use("*", contentEncoding(config.bodyLimitBytes));
 
   registerMetaRoutes(app, { store, config, kinds, queue: runs.transport.queue });
   registerMetricsRoutes(app, metrics);
   registerUiRoutes(app);
-  registerSeriesRoutes(app, { store, config });
-  registerRunRoutes(app, { store, runs });
+  const uploads = new UploadPool(config.ingestWorkers);
+  registerSeriesRoutes(app, { store, config, uploads });
+  registerFieldRoutes(app, { store, config });
+  registerMapRoutes(app, { store });
+  registerRunRoutes(app, { store, runs, config });
   registerChartRoutes(app, { store, kinds });
-  registerBundleRoutes(app, { store, runs });
-  registerKindRoutes(app, { runs, kinds });
+  registerBundleRoutes(app, { store, runs, config });
+  registerKindRoutes(app, { runs, kinds, store, config });
+  registerSharingRoutes(app, { store });
+  registerAdminRoutes(app, { store, config, quotas });
 
   app.onError((err, c) => {
     if (err instanceof ProblemError) return problemResponse(c, err.problem, err.headers);
@@ -225,5 +254,5 @@ export function createService(deps: AppDeps): Service {
     } as Problem);
   });
 
-  return { app, runs, store, config };
+  return { app, runs, store, config, quotas, uploads };
 }

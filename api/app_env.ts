@@ -1,40 +1,31 @@
 /**
- * The application's type and the pieces the routes share with it (zod issues as field
- * errors, the OpenAPI document), kept apart from `app.ts` so routes never import the module
- * that imports them.
+ * The application's type and the pieces the routes share with it (the OpenAPI document; zod
+ * issues as field errors live in `problems.ts`), kept apart from `app.ts` so routes never
+ * import the module that imports them.
  *
  * @module
  */
 import type { OpenAPIHono } from "@hono/zod-openapi";
-import { toPointer } from "./problems.ts";
+import type { Principal } from "./auth/principal.ts";
 import { SERVICE_VERSION } from "./version.ts";
 
-export type AppEnv = { Variables: { requestId: string } };
-export type App = OpenAPIHono<AppEnv>;
+export { zodErrors, zodFieldErrors } from "./problems.ts";
 
-/** Map zod issues to field errors with JSON Pointers. */
-export function zodErrors(
-  issues: readonly { path: readonly PropertyKey[]; message: string }[],
-  where: "body" | "query" | "path" | "header",
-) {
-  // A union reports one issue per branch at the same place: merge them into one entry.
-  const byPointer = new Map<string, string[]>();
-  for (const i of issues) {
-    const p = toPointer(i.path);
-    const list = byPointer.get(p) ?? [];
-    if (!list.includes(i.message)) list.push(i.message);
-    byPointer.set(p, list);
-  }
-  return [...byPointer].map(([pointer, messages]) => ({
-    pointer,
-    message: messages.join("; or "),
-    ...(where === "body" ? {} : { in: where }),
-  }));
-}
+export type AppEnv = { Variables: { requestId: string; principal: Principal } };
+export type App = OpenAPIHono<AppEnv>;
 
 /** The OpenAPI 3.1 document of the app. */
 export function openApiDocument(app: App) {
+  if (!app.openAPIRegistry.definitions.some((d) => d.type === "component" && d.name === "bearer")) {
+    app.openAPIRegistry.registerComponent("securitySchemes", "bearer", {
+      type: "http",
+      scheme: "bearer",
+      description: "An API key (`sk_<id>_<secret>`) or the instance's admin key. Needed on an " +
+        "instance started with SUNLAG_ADMIN_KEY; without a key only public items are readable.",
+    });
+  }
   return app.getOpenAPI31Document({
+    security: [{ bearer: [] }, {}],
     openapi: "3.1.0",
     info: {
       title: "sunlag",

@@ -11,7 +11,25 @@
 import { ingestText } from "./ingest/mod.ts";
 import type { TextIngestOptions } from "./ingest/mod.ts";
 import type { Store, StoredSeries } from "./store/types.ts";
+import { LOCAL_OWNER } from "./store/types.ts";
 import { storedFromNormalised } from "./series_codec.ts";
+import { withNetcdf } from "./netcdf/open.ts";
+import { storeNetcdfField } from "./fields/ingest.ts";
+import type { QUANTITIES } from "../core/series/quantities.ts";
+
+/** One NetCDF field entry of the demo manifest. */
+export interface DemoFieldEntry {
+  file: string;
+  format: "netcdf";
+  variable: string;
+  upload: {
+    name: string;
+    quantity: (typeof QUANTITIES)[number];
+    units: string;
+    description: string;
+    source: string;
+  };
+}
 
 /** One CSV entry of the demo manifest. */
 export interface DemoFileEntry {
@@ -88,20 +106,48 @@ export async function readDemoSeries(
   return out;
 }
 
+/** The manifest's gridded-field entries, in manifest order. */
+export async function demoFieldEntries(dir: URL = DEMO_DIR): Promise<DemoFieldEntry[]> {
+  const manifest = JSON.parse(await Deno.readTextFile(new URL("manifest.json", dir)));
+  return (manifest.files as { format: string }[])
+    .filter((f): f is DemoFieldEntry => f.format === "netcdf");
+}
+
 /**
- * Store every demo series and return their ids in manifest order. Idempotent: series already
- * present (same content, same id) are left as they are.
+ * Store every demo field (the same decoding as `POST /v1/fields`, so a demo field has the id
+ * the same file would get when uploaded with the manifest's options). Idempotent.
+ *
+ * @returns the field ids in manifest order
+ */
+export async function loadDemoFields(store: Store, dir: URL = DEMO_DIR): Promise<string[]> {
+  const ids: string[] = [];
+  for (const e of await demoFieldEntries(dir)) {
+    const out = await withNetcdf(
+      new URL(e.file, dir).pathname,
+      (src) => storeNetcdfField(src, store, { variable: e.variable, ...e.upload }, {}),
+    );
+    ids.push(out.field.id);
+  }
+  return ids;
+}
+
+/**
+ * Store every demo series and field, and return the series ids in manifest order (the fields'
+ * ids come from {@link loadDemoFields}). Idempotent: what is already present (same content,
+ * same id) is left as it is.
  *
  * @param store the store to fill (normally an empty one)
- * @returns the stored ids
+ * @returns the stored series ids
  */
 export async function loadDemo(
   store: Store,
 ): Promise<string[]> {
   const ids: string[] = [];
   for (const { series } of await readDemoSeries()) {
-    await store.putSeries(series);
+    // Public: on a shared instance every owner may try the demo.
+    await store.putSeries(series, { owner: LOCAL_OWNER, visibility: "public" });
     ids.push(series.id);
   }
+  await loadDemoFields(store);
   return ids;
 }

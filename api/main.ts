@@ -4,11 +4,13 @@
  * pg-boss on the store's database for PostgreSQL), fails the runs nobody will finish, loads
  * the demo data into an empty store (unless `SUNLAG_DEMO=0`), and then, by `SUNLAG_ROLE`:
  * `all` (default) serves HTTP on `HOST:PORT` (default 127.0.0.1:8080) and computes runs;
- * `api` only serves; `worker` only computes queued runs.
+ * `api` only serves; `worker` only computes queued runs. Refuses to
+ * start on a non-loopback address without an admin key (or `SUNLAG_OPEN_NETWORK=1`) and a list
+ * of allowed hosts.
  *
  * @module
  */
-import { readConfig } from "./config.ts";
+import { readConfig, startupRefusal } from "./config.ts";
 import { openStoreFromSpec } from "./store/mod.ts";
 import { createService } from "./app.ts";
 import { WorkerPool } from "./workers/pool.ts";
@@ -21,6 +23,11 @@ import { machineSpeedFactor } from "./runs/estimate.ts";
 
 const t0 = performance.now();
 const config = readConfig(Deno.env.toObject());
+const refusal = startupRefusal(config);
+if (refusal) {
+  console.error(JSON.stringify({ level: "error", event: "refused_to_start", reason: refusal }));
+  Deno.exit(1);
+}
 const store = await openStoreFromSpec(config.store);
 const holder = processHolder();
 const transport = await openTransport(config, holder);
@@ -36,7 +43,8 @@ if (config.demo && config.role !== "worker") {
   const page = await store.listSeries({ limit: 1, offset: 0 });
   if (page.total === 0) {
     const ids = await loadDemo(store);
-    console.log(JSON.stringify({ event: "demo_loaded", series: ids.length }));
+    const fields = (await store.listFields({ limit: 1, offset: 0 })).total;
+    console.log(JSON.stringify({ event: "demo_loaded", series: ids.length, fields }));
   }
 }
 
@@ -79,6 +87,8 @@ if (config.role === "worker") {
         store: store.kind,
         workers: config.workers,
         speed_factor: speedFactor,
+        keys_required: config.adminKey !== null,
+        allowed_hosts: config.allowedHosts,
         startup_ms: Math.round(performance.now() - t0),
       }));
     },

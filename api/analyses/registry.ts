@@ -22,6 +22,9 @@ import { irradianceDarkening } from "./irradiance_darkening/mod.ts";
 import { irradianceModels } from "./irradiance_models/mod.ts";
 import { irradianceReconstructions } from "./irradiance_reconstructions/mod.ts";
 import { forcing } from "./forcing/mod.ts";
+import { solarSignalMapKind } from "./solar_signal_maps/mod.ts";
+import { fieldAreaMeanKind } from "./field_area_means/mod.ts";
+import { fieldCompositeKind } from "./field_composites/mod.ts";
 
 export const RUN_KINDS: readonly RunKind[] = [
   smoothingKind,
@@ -40,4 +43,7 @@ export const RUN_KINDS: readonly RunKind[] = [
   irradianceModels,
   irradianceReconstructions,
   forcing,
+  fieldAreaMeanKind,
+  solarSignalMapKind,
+  fieldCompositeKind,
 ];

@@ -2,8 +2,9 @@
  * A small declarative chart toolkit rendered to standalone SVG with d3-scale and d3-shape
  * (no DOM): one panel with an x and a y axis, and layers (lines, uncertainty bands, point
  * markers, stems, bars with error bars, vertical event lines and horizontal reference
- * levels), a legend, notes (cautions) under the plot, light and dark themes and time-range
- * clipping.
+ * levels), a legend, lines under the plot (warnings always whole, growing the chart when they
+ * need the room; notes and cautions shortened to a pointer when room is short), light and dark
+ * themes and time-range clipping.
  *
  * The SVG is accessible (`role="img"`, `aria-labelledby` pointing at `<title>` and `<desc>`,
  * with a text summary of what is drawn), uses the system font stack only, loads nothing, runs
@@ -36,12 +37,14 @@ export type * from "./spec.ts";
 /** Render a chart spec to an SVG document string. */
 export function renderChart(spec: ChartSpec, opts: RenderOptions): string {
   const theme = THEMES[opts.theme];
-  const W = opts.width, H = opts.height;
+  const W = opts.width;
   const id = opts.idPrefix ??
-    "c" + shortHash(JSON.stringify([spec.title, W, H, opts.theme, opts.from, opts.to]));
+    "c" + shortHash(JSON.stringify([spec.title, W, opts.height, opts.theme, opts.from, opts.to]));
   const colors = layerColors(spec.layers, theme);
   const domains = dataDomains(spec, opts);
-  const frame = layoutFrame(spec, [...(spec.notes ?? []), ...domains.dropped], W, H);
+  const frame = layoutFrame(spec, [...(spec.notes ?? []), ...domains.dropped], W, opts.height);
+  // the kept lines (warnings) are never cut: the chart is taller than asked when they need it
+  const H = frame.height;
   const plot = buildPlot(spec, domains, frame, W, H);
   const drawn = drawLayers(plot, spec.layers, colors, theme);
   const markup = el("rect", { width: W, height: H, fill: theme.background }) +

@@ -7,7 +7,7 @@ import type { RunRecord } from "../store/types.ts";
 import type { ChartSpec, Layer } from "./chart.ts";
 import { axisLabel, quantityLabel } from "./labels.ts";
 import { outputsOf } from "./read.ts";
-import { kindTitle, outputLayers, runDescription, runNotes } from "./run_common.ts";
+import { kindTitle, outputLayers, runDescription, runNotes, runTitle } from "./run_common.ts";
 
 /**
  * The generic chart of a run: its outputs that share the units of the first one, as lines
@@ -15,8 +15,8 @@ import { kindTitle, outputLayers, runDescription, runNotes } from "./run_common.
  */
 export function defaultRunChart(run: RunRecord): ChartSpec {
   const outs = outputsOf(run.result);
-  const notes = runNotes(run);
-  const title = `${kindTitle(run.kind)} · run ${run.id.slice(0, 8)}`;
+  const notes: string[] = [];
+  const title = runTitle(kindTitle(run.kind), run);
   if (!outs.length) {
     return {
       title,
@@ -27,7 +27,7 @@ export function defaultRunChart(run: RunRecord): ChartSpec {
       x: { label: "Year", kind: "year" },
       y: { label: "Value" },
       layers: [],
-      notes,
+      ...runNotes(run, notes),
     };
   }
   const first = outs[0][1];
@@ -52,6 +52,6 @@ export function defaultRunChart(run: RunRecord): ChartSpec {
     x: { label: "Year", kind: "year" },
     y: { label: axisLabel(quantityLabel(first.quantity), first.units, first.quantity) },
     layers,
-    notes,
+    ...runNotes(run, notes),
   };
 }

@@ -8,6 +8,7 @@
 import type { RunRecord, StoredSeries } from "../store/types.ts";
 import type { RunKind } from "../runs/kind.ts";
 import type { ChartSpec } from "./chart.ts";
+import type { MapChartSpec } from "./map_chart.ts";
 import { defaultRunChart } from "./default_chart.ts";
 
 export { defaultRunChart };
@@ -22,7 +23,7 @@ export function runChartSpec(
   run: RunRecord,
   kind: RunKind | undefined,
   inputs: StoredSeries[] = [],
-): ChartSpec {
+): ChartSpec | MapChartSpec {
   if (kind?.chart) {
     // A stored result of an older shape (before an algorithm change) gets the generic chart.
     const parsed = kind.result.safeParse(run.result);

@@ -1,5 +1,6 @@
 /**
- * Pieces shared by run charts: titles, notes (cautions and warnings), descriptions, and the
+ * Pieces shared by run charts: titles with the run's label, the lines under the plot (warnings,
+ * own and inherited, always whole; notes and cautions shortenable), descriptions, and the
  * band-and-line layers of a series-like output.
  *
  * @module
@@ -8,6 +9,8 @@ import type { RunRecord, StoredSeries } from "../store/types.ts";
 import type { OutputSeries } from "../runs/kind.ts";
 import type { Layer } from "./chart.ts";
 import { strings } from "./read.ts";
+import { runLabel } from "../runs/label.ts";
+import { inheritedOf, inheritedSource } from "../runs/inherit.ts";
 
 /**
  * The input series of the given quantity and units as thin muted lines, to draw behind a
@@ -44,13 +47,51 @@ export function kindTitle(kind: string): string {
   return s ? s[0].toUpperCase() + s.slice(1) : "Run";
 }
 
-/** The notes every run chart carries: its cautions, then its warnings. */
-export function runNotes(run: RunRecord): string[] {
+/** A run chart's title: what it shows, then the run's short label. */
+export function runTitle(what: string, run: RunRecord): string {
+  return `${what} · run ${runLabel(run.id)}`;
+}
+
+/** What a run chart shows under its plot. */
+export interface RunChartNotes {
+  /** Notes that may be shortened to a pointer when room is short: method notes, cautions. */
+  notes: string[];
+  /** Lines always shown whole: the statements given, then every warning. */
+  keep: string[];
+  /** Where the shortened notes are read: the run, by its label. */
+  notesRef: string;
+}
+
+/**
+ * The lines under a run chart: `notes` (the chart's own method notes) and the run's cautions,
+ * own then inherited, may be shortened; `keep` (statements the chart cannot be read without),
+ * the run's first caution and its warnings, own then inherited, are always shown whole.
+ */
+export function runNotes(run: RunRecord, notes: string[] = [], keep: string[] = []): RunChartNotes {
   const r = run.result ?? {};
-  return [
-    ...strings(r.cautions),
-    ...strings(r.warnings).map((w) => `Warning: ${w}`),
-  ];
+  const inherited = inheritedOf(r);
+  const from = (level: "warning" | "caution") =>
+    inherited.filter((n) => n.level === level).map((n) => ({
+      source: inheritedSource(n),
+      text: n.text,
+    }));
+  // The kind's first caution (correlation is not attribution, reconstructions are
+  // model-dependent, ...) is never shortened: a chart shown alone must still say it.
+  const [primary, ...otherCautions] = strings(r.cautions);
+  return {
+    notes: [
+      ...notes,
+      ...otherCautions,
+      ...from("caution").map((n) => `From ${n.source}: ${n.text}`),
+    ],
+    keep: [
+      ...keep,
+      ...(primary ? [primary] : []),
+      ...strings(r.warnings).map((w) => `Warning: ${w}`),
+      ...from("warning").map((n) => `Warning (from ${n.source}): ${n.text}`),
+    ],
+    notesRef: `run ${runLabel(run.id)}`,
+  };
 }
 
 /** The opening of a run chart's description. */

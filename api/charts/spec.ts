@@ -106,12 +106,25 @@ export interface ChartSpec {
   x: AxisSpec;
   y: AxisSpec;
   layers: Layer[];
-  /** Short lines shown under the plot (cautions, method notes). */
+  /**
+   * Lines under the plot that may be shortened when room is short (method notes, cautions):
+   * shown whole as long as they fit, else as many whole notes as fit and one line pointing to
+   * where the rest is read (`notesRef`, else the chart's description, which holds them all).
+   */
   notes?: string[];
+  /**
+   * Lines always shown whole, whatever the size (warnings, and what the chart cannot be read
+   * without, e.g. a lag chart's preprocessing and lag window): the chart grows taller than
+   * asked when they need the room.
+   */
+  keep?: string[];
+  /** Where notes cut for room can be read, e.g. "run 7e8f9a0b" (a run chart's label). */
+  notesRef?: string;
 }
 
 export interface RenderOptions {
   width: number;
+  /** Height asked for; the chart is taller when its kept lines (`ChartSpec.keep`) need it. */
   height: number;
   theme: ThemeName;
   /** Time range (decimal years), applied to a "year" x axis. */

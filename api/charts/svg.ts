@@ -77,29 +77,38 @@ export function text(a: Attrs, content: string): string {
 /**
  * Estimated rendered width of a text in px for a sans-serif system font, on the wide side
  * (DejaVu Sans, a common fallback, is wider than most): about 0.6 em per character, less for
- * narrow letters and more for wide ones and capitals. Only used for layout (margins, legend
- * and note wrapping), so a generous estimate is enough.
+ * narrow letters and more for wide ones and capitals (and for digits and the letters a–f, which
+ * share one width). Only used for layout (margins, legend and note wrapping), so a generous
+ * estimate is enough.
  */
 export function textWidth(s: string, fontSize: number, bold = false): number {
   let w = 0;
   for (const ch of s) {
     if ("il.,:;|!'ⁱ ".includes(ch)) w += 0.32;
     else if ("mwMW".includes(ch)) w += 0.92;
-    else if (/[0-9]/.test(ch)) w += 0.64;
+    // digits and the hex letters share one width, so that a run's label (8 hex digits) lays
+    // the chart out the same whatever its digits
+    else if (/[0-9a-f]/.test(ch)) w += 0.64;
     else if (/[A-Z]/.test(ch)) w += 0.72;
     else w += 0.6;
   }
   return w * fontSize * (bold ? 1.1 : 1);
 }
 
-/** Break a text into lines no wider than `maxWidth` px (word wrap; long words are kept). */
+/**
+ * Break a text into lines no wider than `maxWidth` px (word wrap). A word wider than a line is
+ * kept whole, or cut into pieces that fit when `breakWords` is true (notes that must stay
+ * inside the chart, e.g. a run id in a warning).
+ */
 export function wrapText(
   s: string,
   fontSize: number,
   maxWidth: number,
   bold = false,
+  breakWords = false,
 ): string[] {
-  const words = s.split(/\s+/).filter(Boolean);
+  const words = s.split(/\s+/).filter(Boolean)
+    .flatMap((w) => (breakWords ? splitWord(w, fontSize, maxWidth, bold) : [w]));
   const lines: string[] = [];
   let cur = "";
   for (const w of words) {
@@ -111,6 +120,21 @@ export function wrapText(
   }
   if (cur) lines.push(cur);
   return lines;
+}
+
+/** A word cut into pieces no wider than `maxWidth` px (at least one character each). */
+function splitWord(w: string, fontSize: number, maxWidth: number, bold: boolean): string[] {
+  if (textWidth(w, fontSize, bold) <= maxWidth) return [w];
+  const pieces: string[] = [];
+  let cur = "";
+  for (const ch of w) {
+    if (cur && textWidth(cur + ch, fontSize, bold) > maxWidth) {
+      pieces.push(cur);
+      cur = ch;
+    } else cur += ch;
+  }
+  if (cur) pieces.push(cur);
+  return pieces;
 }
 
 /** Short deterministic hash (FNV-1a, 32 bit) as base-36, for element ids. */

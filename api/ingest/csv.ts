@@ -7,6 +7,8 @@
 import { formatIsoTime } from "../../core/time/mod.ts";
 import type { Resolution } from "../store/types.ts";
 import { EXPORT_MARKER } from "./text.ts";
+import { csvMetaLine, csvMetaValue, csvText } from "../export/csv_cell.ts";
+import { DECIMAL_YEAR_COLUMN, TIME_COLUMN, UNCERTAINTY_MEANING } from "../export/columns.ts";
 
 /** What {@link seriesToCsv} needs: a normalised or stored series, optionally with id/lineage. */
 export interface CsvSeries {
@@ -30,8 +32,9 @@ export interface CsvSeries {
  * Layout: the `# sunlag series` line, then `# key: value` comment lines for id, name,
  * quantity, units, version, resolution, source, description and derived_from (empty when
  * absent; a value with a line break, surrounding blanks or a leading quote is written as a
- * JSON string), a comment describing the columns, then the header
- * `time,decimal_year,value[,uncertainty]` and one row per point. `time` is ISO 8601 at the
+ * JSON string), a comment describing the columns (the vocabulary of every CSV the service
+ * writes, `api/export/columns.ts`), then the header `time,decimal_year,value[,uncertainty]`
+ * and one row per point. `time` is ISO 8601 at the
  * series' resolution (the period holding the point; UTC date-time for irregular series);
  * `decimal_year` is the exact stored time (shortest round-trip decimal), so
  * `ingestText(seriesToCsv(s))` gives the same content id. pandas
@@ -64,20 +67,21 @@ export function seriesToCsv(series: CsvSeries): string {
     ["derived_from", series.derived_from],
   ];
   const out: string[] = [EXPORT_MARKER];
-  for (const [k, v] of meta) out.push(`# ${k}: ${encodeMetaValue(v)}`);
+  for (const [k, v] of meta) out.push(csvMetaLine(k, v));
   const u = series.uncertainty;
   out.push(
     `# columns: time = ISO 8601 (UTC) ${
       series.resolution === "irregular" ? "instant" : `${series.resolution} period`
     }; decimal_year = proleptic Gregorian decimal year; value in ${
-      series.units === "1" ? "dimensionless units" : JSON.stringify(series.units)
-    }${u ? "; uncertainty = one-sigma, same units" : ""}`,
+      series.units === "1" ? "dimensionless units" : JSON.stringify(csvMetaValue(series.units))
+    }${u ? `; ${UNCERTAINTY_MEANING}` : ""}`,
   );
-  out.push(u ? "time,decimal_year,value,uncertainty" : "time,decimal_year,value");
+  const cols = [TIME_COLUMN, DECIMAL_YEAR_COLUMN, "value", ...(u ? ["uncertainty"] : [])];
+  out.push(cols.join(","));
   const n = series.time.length;
   for (let i = 0; i < n; i++) {
     const t = series.time[i];
-    const row = `${formatIsoTime(t, series.resolution)},${num(t)},${num(series.value[i])}`;
+    const row = `${csvText(formatIsoTime(t, series.resolution))},${num(t)},${num(series.value[i])}`;
     out.push(u ? `${row},${num(u[i])}` : row);
   }
   return out.join("\n") + "\n";
@@ -85,10 +89,4 @@ export function seriesToCsv(series: CsvSeries): string {
 
 function num(x: number): string {
   return Object.is(x, -0) ? "0" : String(x);
-}
-
-function encodeMetaValue(v: string | null | undefined): string {
-  if (v === null || v === undefined) return "";
-  if (/[\r\n]/.test(v) || v !== v.trim() || v.startsWith('"')) return JSON.stringify(v);
-  return v;
 }

@@ -72,7 +72,7 @@ export function ingestJson(body: JsonSeriesInput, options: JsonIngestOptions = {
     errors.add({ ...at("/uncertainty"), message: "uncertainty must be an array or absent" });
   }
   if (errors.size > 0 && (!Array.isArray(tIn) || !Array.isArray(vIn))) {
-    return { ok: false, errors: errors.done() };
+    return errors.failure();
   }
   const n = tIn.length;
   if (n > MAX_POINTS) {
@@ -94,7 +94,7 @@ export function ingestJson(body: JsonSeriesInput, options: JsonIngestOptions = {
         `uncertainty has ${uIn.length} entries but time has ${n}; the arrays must be parallel`,
     });
   }
-  if (errors.size > 0) return { ok: false, errors: errors.done() };
+  if (errors.size > 0) return errors.failure();
 
   const sentinels = new Set<number>();
   for (const [j, s] of (body.missing ?? []).entries()) {

@@ -66,14 +66,18 @@ export class ErrorList {
   get full(): boolean {
     return this.items.length >= MAX_ERRORS;
   }
+  /** Errors found beyond the listed ones. */
+  get omitted(): number {
+    return this.extra;
+  }
+  /** The listed errors. */
   done(): IngestError[] {
-    if (this.extra > 0) {
-      return [...this.items, {
-        pointer: "",
-        message: `${this.extra} more error(s) not listed`,
-      }];
-    }
     return this.items;
+  }
+  /** The failed result: the listed errors, plus `e` when given, and the count left out. */
+  failure(e?: IngestError): { ok: false; errors: IngestError[]; omitted: number } {
+    if (e && !this.full) return { ok: false, errors: [...this.items, e], omitted: this.extra };
+    return { ok: false, errors: this.items, omitted: this.extra + (e ? 1 : 0) };
   }
 }
 
@@ -165,7 +169,7 @@ export function finish(
   if (present > MAX_POINTS) {
     errors.add({ ...points.whole, message: `too many points: ${present}, at most ${MAX_POINTS}` });
   }
-  if (errors.size > 0 || meta === null) return { ok: false, errors: errors.done() };
+  if (errors.size > 0 || meta === null) return errors.failure();
   const merged = mergePoints(points, present, duplicates);
   const { aggregated } = merged;
   if (merged.time.length < 2) {

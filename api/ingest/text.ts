@@ -95,7 +95,7 @@ export function ingestText(
   options: TextIngestOptions = {},
 ): IngestResult {
   const errors = new ErrorList();
-  const fail = (e: IngestError): IngestResult => ({ ok: false, errors: [...errors.done(), e] });
+  const fail = (e: IngestError): IngestResult => errors.failure(e);
   const decoded = decodeTextBody(input);
   if ("refused" in decoded) return decoded.refused;
   const file = readLines(decoded.text);
@@ -111,7 +111,7 @@ export function ingestText(
   if (!("cells" in table)) return fail(table);
   const cols = resolveColumns(table, options, errors);
   checkTimeFormatOption(options.time_format, cols.ymd, errors);
-  if (errors.size > 0) return { ok: false, errors: errors.done() };
+  if (errors.size > 0) return errors.failure();
   const timeFormat = chooseTimeFormat(table, cols, options.time_format);
   const points = readRows(table, cols, timeFormat, missingTest(options.missing), errors);
   if (points.time.length === 0 && errors.size === 0) {

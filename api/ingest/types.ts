@@ -84,10 +84,17 @@ export interface IngestError {
 /** Either a complete series with its report, or the reasons there is none (never partial). */
 export type IngestResult =
   | { ok: true; series: NormalisedSeries; report: IngestReport }
-  | { ok: false; errors: IngestError[] };
+  | { ok: false; errors: IngestError[]; omitted?: number };
 
 /** How to treat repeated timestamps: refuse them, or average them (and sort the rows). */
 export type DuplicatePolicy = "reject" | "mean";
+
+/**
+ * Most columns a delimited upload may have. A series needs at most five (time or year, month,
+ * day, value, uncertainty); tables with a few hundred others are common, a million are not,
+ * and are refused before any row is split.
+ */
+export const MAX_COLUMNS = 1000;
 
 /** Most points a series may have. */
 export const MAX_POINTS = 5_000_000;
@@ -95,8 +102,11 @@ export const MAX_POINTS = 5_000_000;
 /** Missing-value sentinels always in force (compared case-insensitively). */
 export const DEFAULT_MISSING = ["", "NaN", "NA"] as const;
 
-/** Most errors listed for one upload; the rest are counted in a final entry. */
-export const MAX_ERRORS = 50;
+/**
+ * Most errors listed for one upload; the rest are only counted (`omitted`). The same bound as
+ * the field errors of a problem (api/problems.ts), so nothing is collected to be dropped.
+ */
+export const MAX_ERRORS = 20;
 
 /**
  * Largest magnitude of a decimal year accepted on upload. Wide enough for cosmogenic-isotope

@@ -22,6 +22,7 @@ import { canonicalUnits, QUANTITIES, type Quantity } from "../../core/series/qua
 import { type FieldError, ProblemError } from "../problems.ts";
 import type { RunRecord, Store, StoredSeries } from "../store/types.ts";
 import type { OutputSeries } from "../runs/kind.ts";
+import { noteLinesOf } from "../runs/inherit.ts";
 import { immutableHeaders, notModified } from "../routes/cache.ts";
 import { checkMeta, ErrorList, finish, type SeriesMetaInput } from "../ingest/normalise.ts";
 import type { IngestResult } from "../ingest/types.ts";
@@ -254,8 +255,8 @@ export function runOutputNetcdfResponse(
   const etag = `"run-${run.id}-${run.result_digest}-${name}-netcdf-${calendar}-${SERVICE_VERSION}"`;
   const nm = notModified(c, etag);
   if (nm) return nm;
-  const result = (run.result ?? {}) as Record<string, unknown>;
-  const strings = (x: unknown) => (Array.isArray(x) ? x.map(String) : []);
+  // the run's own warnings and cautions, then those of the runs it is built on
+  const notes = noteLinesOf(run.result);
   const prov: Provenance = {
     title: `${o.name} (sunlag run ${run.id}, ${run.kind})`,
     history: [
@@ -268,8 +269,8 @@ export function runOutputNetcdfResponse(
     runId: run.id,
     resultDigest: `sha256:${run.result_digest ?? ""}`,
     dateCreated: run.created_at,
-    warnings: strings(result.warnings),
-    cautions: strings(result.cautions),
+    warnings: notes.warnings,
+    cautions: notes.cautions,
   };
   const s: SeriesLike = {
     name: o.name,

@@ -259,15 +259,35 @@ export function buildSeriesDataset(
     data: column(s.value, axis.kept),
   });
   vars.push(...extra);
-  const history = [...prov.history];
-  const global: NetcdfAttribute[] = [
+  const global = provenanceAttributes(prov, [ncText("calendar_conversion", axis.method)]);
+  return {
+    dataset: { dimensions: dims, attributes: global, variables: vars },
+    method: axis.method,
+    dropped: axis.dropped,
+  };
+}
+
+/**
+ * The global attributes of a file sunlag writes: Conventions, title, source, history,
+ * references, the standing cautions (comment), then `extra`, then the ids, digest, creation
+ * time, warnings and cautions of the provenance.
+ *
+ * @param prov where the data come from
+ * @param extra attributes placed after the comment (e.g. calendar_conversion)
+ * @returns the attributes in a fixed order (the bytes of a file depend only on its content)
+ */
+export function provenanceAttributes(
+  prov: Provenance,
+  extra: NetcdfAttribute[] = [],
+): NetcdfAttribute[] {
+  return [
     ncText("Conventions", CF_CONVENTIONS),
     ncText("title", prov.title),
     ncText("source", `sunlag ${SERVICE_VERSION}`),
-    ncText("history", history.join("\n")),
+    ncText("history", prov.history.join("\n")),
     ncText("references", prov.references.join("\n")),
     ncText("comment", STANDING_CAUTIONS),
-    ncText("calendar_conversion", axis.method),
+    ...extra,
     ...(prov.seriesId ? [ncText("series_id", prov.seriesId)] : []),
     ...(prov.runId ? [ncText("run_id", prov.runId)] : []),
     ...(prov.resultDigest ? [ncText("result_digest", prov.resultDigest)] : []),
@@ -275,9 +295,4 @@ export function buildSeriesDataset(
     ncText("warnings", prov.warnings.length ? prov.warnings.join("\n") : "none"),
     ncText("cautions", prov.cautions.length ? prov.cautions.join("\n") : "none"),
   ];
-  return {
-    dataset: { dimensions: dims, attributes: global, variables: vars },
-    method: axis.method,
-    dropped: axis.dropped,
-  };
 }

@@ -7,13 +7,22 @@
  */
 import type { Context } from "hono";
 
-/** Headers for an immutable representation. */
-export function immutableHeaders(etag: string): Record<string, string> {
-  return { ETag: etag, "Cache-Control": "public, max-age=31536000, immutable" };
+/**
+ * Cache-Control of an immutable representation that only some callers may see (a private or
+ * group item): browsers keep it, shared caches do not (RFC 9111 §5.2.2.7).
+ */
+export const PRIVATE_IMMUTABLE = "private, max-age=31536000, immutable";
+
+/** Headers for an immutable representation; `shared: false` keeps it out of shared caches. */
+export function immutableHeaders(etag: string, shared = true): Record<string, string> {
+  return {
+    ETag: etag,
+    "Cache-Control": shared ? "public, max-age=31536000, immutable" : PRIVATE_IMMUTABLE,
+  };
 }
 
 /** A 304 response when `If-None-Match` matches `etag`, else null. */
-export function notModified(c: Context, etag: string): Response | null {
+export function notModified(c: Context, etag: string, shared = true): Response | null {
   const inm = c.req.header("if-none-match");
   if (!inm) return null;
   // If-None-Match uses the weak comparison (RFC 9110 §13.1.2): W/"x" matches "x".
@@ -21,7 +30,10 @@ export function notModified(c: Context, etag: string): Response | null {
   if (tags.includes("*") || tags.includes(etag)) {
     return new Response(null, {
       status: 304,
-      headers: { ...immutableHeaders(etag), "X-Request-Id": c.get("requestId" as never) ?? "" },
+      headers: {
+        ...immutableHeaders(etag, shared),
+        "X-Request-Id": c.get("requestId" as never) ?? "",
+      },
     });
   }
   return null;

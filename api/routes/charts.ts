@@ -10,6 +10,10 @@ import { createRoute, z } from "@hono/zod-openapi";
 import type { App } from "../app_env.ts";
 import type { Store, StoredSeries } from "../store/types.ts";
 import { ProblemError } from "../problems.ts";
+import { principalOf } from "../auth/authenticate.ts";
+import { viewerOf } from "../auth/principal.ts";
+import { mustSeeRun, mustSeeSeries, sharedCacheable } from "../auth/access.ts";
+import { RunIdString } from "../schemas/ids.ts";
 import { problems } from "../schemas/common.ts";
 import {
   type CachedRepresentation,
@@ -19,6 +23,7 @@ import {
 import { parseIsoTime } from "../../core/time/mod.ts";
 import { renderChart, type RenderOptions } from "../charts/chart.ts";
 import { shortHash } from "../charts/svg.ts";
+import { renderAnyChart } from "../charts/map_chart.ts";
 import { seriesChartSpec } from "../charts/series_chart.ts";
 import { chartNeedsInputs, runChartSpec } from "../charts/run_charts.ts";
 import { SERVICE_VERSION } from "../version.ts";
@@ -147,9 +152,7 @@ export function registerChartRoutes(
       const id: string = c.req.valid("param").id;
       const opts = renderOptions(c.req.valid("query"));
       const etag = etagFor(`series-${id.replace(/^sha256:/, "")}`, opts);
-      if (!(await store.getSeriesMeta(id))) {
-        throw new ProblemError("not-found", `No series has id ${id}`);
-      }
+      const holding = await mustSeeSeries(store, principalOf(c), id);
       let rep = cache.get(etag);
       if (!rep) {
         const s = await store.getSeries(id);
@@ -158,7 +161,7 @@ export function registerChartRoutes(
         rep = svgRepresentation(svg, etag);
         cache.set(etag, rep);
       }
-      return serveRepresentation(c, rep);
+      return serveRepresentation(c, rep, sharedCacheable(principalOf(c), holding));
     }) as never,
   );
 
@@ -175,9 +178,7 @@ export function registerChartRoutes(
         "The run's cautions are printed under the plot. Only succeeded runs have charts (409 otherwise).",
       request: {
         params: z.object({
-          id: z.string().regex(/^[0-9a-f-]{36}$/, "must be a run id (UUIDv7)").openapi({
-            param: { name: "id", in: "path" },
-          }),
+          id: RunIdString.openapi({ param: { name: "id", in: "path" } }),
         }),
         query: ChartQuery,
       },
@@ -191,9 +192,17 @@ export function registerChartRoutes(
     (async (c: any) => {
       const id: string = c.req.valid("param").id;
       const opts = renderOptions(c.req.valid("query"));
-      // A succeeded run never changes: its chart is found by run id and query alone.
+      // A succeeded run never changes: its chart is found by run id and query alone, once the
+      // caller is known to see the run. The inputs it draws are those the caller may see.
+      const principal = principalOf(c);
+      const holding = await mustSeeRun(store, principal, id);
       const key = `run-${id}-${optionsKey(opts)}`;
+      const viewer = viewerOf(principal);
       let rep = cache.get(key);
+      for (const sid of rep?.requires ?? []) {
+        if (!(await store.seriesHolding(sid, viewer))) rep = undefined;
+      }
+      let cacheable = true;
       if (!rep) {
         const run = await store.getRun(id);
         if (!run) throw new ProblemError("not-found", `No run has id ${id}`);
@@ -210,18 +219,22 @@ export function registerChartRoutes(
         const kind = kindByName(deps.kinds, run.kind);
         if (chartNeedsInputs(kind)) {
           for (const sid of run.input_series.slice(0, 4)) {
+            if (!(await store.seriesHolding(sid, viewer))) {
+              cacheable = false; // drawn without an input this caller may not see
+              continue;
+            }
             const s = await store.getSeries(sid);
             if (s && s.n <= 500_000) inputs.push(s);
           }
         }
-        const svg = renderChart(runChartSpec(run, kind, inputs), {
+        const svg = renderAnyChart(runChartSpec(run, kind, inputs), {
           ...opts,
           idPrefix: "r" + shortHash(etag),
         });
-        rep = svgRepresentation(svg, etag);
-        cache.set(key, rep);
+        rep = { ...svgRepresentation(svg, etag), requires: inputs.map((s) => s.id) };
+        if (cacheable) cache.set(key, rep);
       }
-      return serveRepresentation(c, rep);
+      return serveRepresentation(c, rep, sharedCacheable(principalOf(c), holding));
     }) as never,
   );
 }

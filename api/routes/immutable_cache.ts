@@ -24,6 +24,8 @@ export interface CachedRepresentation {
   headers: Record<string, string>;
   /** The gzip-coded body, made on first demand. */
   gzip?: Promise<Uint8Array<ArrayBuffer>>;
+  /** Series drawn into it: served from the cache only to callers who may see them all. */
+  requires?: string[];
 }
 
 /** Bodies smaller than this are sent as they are. */
@@ -112,16 +114,21 @@ export function matchesIfNoneMatch(c: Context, etag: string): boolean {
 
 /**
  * The response for a cached representation: 304 when the client has it, else 200, gzip-coded
- * when the client accepts it and the body is worth compressing.
+ * when the client accepts it and the body is worth compressing. `shared: false` (an item not
+ * public) keeps it out of shared caches.
  */
-export async function serveRepresentation(c: Context, r: CachedRepresentation): Promise<Response> {
+export async function serveRepresentation(
+  c: Context,
+  r: CachedRepresentation,
+  shared = true,
+): Promise<Response> {
   const requestId = (c.get("requestId" as never) as string | undefined) ?? "";
   const gz = r.body.byteLength >= GZIP_MIN_BYTES && acceptsGzip(c.req.header("accept-encoding"));
   const etag = gz ? gzipTag(r.etag) : r.etag;
   const vary = [r.headers.Vary, r.body.byteLength >= GZIP_MIN_BYTES ? "Accept-Encoding" : ""]
     .filter(Boolean).join(", ");
   const common: Record<string, string> = {
-    ...immutableHeaders(etag),
+    ...immutableHeaders(etag, shared),
     "X-Request-Id": requestId,
     ...(vary ? { Vary: vary } : {}),
   };

@@ -10,9 +10,14 @@ import type { RunKind } from "../runs/kind.ts";
 import type { RunService } from "../runs/service.ts";
 import { problems, RunSchema } from "../schemas/common.ts";
 import { requireJson } from "./media.ts";
-import { unknownFields } from "./unknown_fields.ts";
+import { findUnknownFields } from "./unknown_fields.ts";
 import { ProblemError } from "../problems.ts";
 import { runView } from "./runs.ts";
+import type { Store } from "../store/types.ts";
+import type { Config } from "../config.ts";
+import { principalOf } from "../auth/authenticate.ts";
+import { holderOf, isLimited, viewerOf } from "../auth/principal.ts";
+import { checkStorage } from "../limits/quotas.ts";
 
 const PreferHeader = z.object({
   prefer: z.string().optional().openapi({
@@ -35,7 +40,7 @@ export function runSchemaOf(kind: RunKind) {
 
 export function registerKindRoutes(
   app: App,
-  deps: { runs: RunService; kinds: readonly RunKind[] },
+  deps: { runs: RunService; kinds: readonly RunKind[]; store?: Store; config?: Config },
 ): void {
   for (const kind of deps.kinds) {
     const schema = runSchemaOf(kind);
@@ -59,24 +64,35 @@ export function registerKindRoutes(
           description: "Run accepted; poll `Location` or its `/events`",
           content: { "application/json": { schema } },
         },
-        ...problems(400, 413, 415, 422, 500),
+        ...problems(400, 401, 403, 413, 415, 422, 429, 500),
       },
     });
     // deno-lint-ignore no-explicit-any
     app.openapi(route, async (c: any) => {
       const params = c.req.valid("json") as Record<string, unknown>;
-      const unknown = unknownFields(await c.req.json(), params);
-      if (unknown.length) {
+      const unknown = findUnknownFields(await c.req.json(), params);
+      if (unknown.errors.length) {
+        const count = unknown.errors.length + unknown.omitted;
         throw new ProblemError(
           "validation",
-          `The request names ${unknown.length} field(s) this analysis does not take: ` +
-            unknown.map((e) => e.pointer).join(", "),
-          { errors: unknown },
+          `The request names ${count} field(s) this analysis does not take: ` +
+            unknown.errors.slice(0, 5).map((e) => e.pointer).join(", ") +
+            (count > 5 ? ", ..." : ""),
+          { errors: unknown.errors, errors_omitted: unknown.omitted },
         );
+      }
+      const principal = principalOf(c);
+      const limited = isLimited(principal);
+      // A new run is refused while its owner is over the storage quota.
+      if (limited && deps.store && deps.config) {
+        await checkStorage(deps.store, principal.owner!, 0, deps.config.quotas);
       }
       const prefer = (c.req.header("prefer") ?? "").toLowerCase();
       const outcome = await deps.runs.submit(kind, params, {
         preferAsync: /\brespond-async\b/.test(prefer),
+        viewer: viewerOf(principal),
+        holder: holderOf(principal),
+        limited,
       });
       c.header("Location", `/v1/runs/${outcome.run.id}`);
       if (outcome.status === 202) c.header("Preference-Applied", "respond-async");

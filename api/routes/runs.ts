@@ -4,6 +4,7 @@
  *
  * @module
  */
+import { runLabel } from "../runs/label.ts";
 import { createRoute, z } from "@hono/zod-openapi";
 import { streamSSE } from "hono/streaming";
 import type { App } from "../app_env.ts";
@@ -11,6 +12,12 @@ import type { RunRecord, Store } from "../store/types.ts";
 import type { RunService } from "../runs/service.ts";
 import type { OutputSeries } from "../runs/kind.ts";
 import { ProblemError } from "../problems.ts";
+import { RunIdParam } from "../schemas/ids.ts";
+import type { Config } from "../config.ts";
+import { principalOf } from "../auth/authenticate.ts";
+import { holderOf, isLimited, viewerOf } from "../auth/principal.ts";
+import { mustHoldRun, mustSeeRun, sharedCacheable } from "../auth/access.ts";
+import { checkStorage } from "../limits/quotas.ts";
 import {
   PageQuery,
   pageSchema,
@@ -34,14 +41,10 @@ const FINAL = new Set(["succeeded", "failed", "cancelled"]);
 
 /** The public view of a run record. */
 export function runView(r: RunRecord) {
-  return r;
+  return { ...r, label: runLabel(r.id) };
 }
 
-const RunId = z.object({
-  id: z.string().regex(/^[0-9a-f-]{36}$/, "must be a run id (UUIDv7)").openapi({
-    param: { name: "id", in: "path" },
-  }),
-});
+const RunId = RunIdParam;
 
 async function mustGetRun(store: Store, id: string): Promise<RunRecord> {
   const r = await store.getRun(id);
@@ -49,7 +52,10 @@ async function mustGetRun(store: Store, id: string): Promise<RunRecord> {
   return r;
 }
 
-export function registerRunRoutes(app: App, deps: { store: Store; runs: RunService }): void {
+export function registerRunRoutes(
+  app: App,
+  deps: { store: Store; runs: RunService; config?: Config },
+): void {
   const { store, runs } = deps;
   const runCache = new ImmutableCache();
   // The kinds this service offers (the registry, or the kinds injected into the app).
@@ -85,8 +91,9 @@ export function registerRunRoutes(app: App, deps: { store: Store; runs: RunServi
     }),
     async (c) => {
       const q = c.req.valid("query");
-      const page = await store.listRuns(q);
-      return c.json({ ...page, limit: q.limit, offset: q.offset }, 200);
+      const page = await store.listRuns({ ...q, viewer: viewerOf(principalOf(c)) });
+      const items = page.items.map((r) => ({ ...r, label: runLabel(r.id) }));
+      return c.json({ ...page, items, limit: q.limit, offset: q.offset }, 200);
     },
   );
 
@@ -104,9 +111,12 @@ export function registerRunRoutes(app: App, deps: { store: Store; runs: RunServi
       },
     }),
     async (c) => {
-      // A succeeded run never changes: answer repeated GETs (and 304s) from memory.
+      // A succeeded run never changes: answer repeated GETs (and 304s) from memory, once the
+      // caller is known to see it.
+      const holding = await mustSeeRun(store, principalOf(c), c.req.valid("param").id);
+      const shared = sharedCacheable(principalOf(c), holding);
       const hit = runCache.get(c.req.valid("param").id);
-      if (hit) return serveRepresentation(c, hit) as never;
+      if (hit) return serveRepresentation(c, hit, shared) as never;
       const run = await mustGetRun(store, c.req.valid("param").id);
       if (FINAL.has(run.status)) {
         const etag = `"run-${run.id}-${run.status}-${run.result_digest ?? "none"}"`;
@@ -117,11 +127,11 @@ export function registerRunRoutes(app: App, deps: { store: Store; runs: RunServi
             headers: { "Content-Type": "application/json" },
           };
           runCache.set(run.id, rep);
-          return serveRepresentation(c, rep) as never;
+          return serveRepresentation(c, rep, shared) as never;
         }
-        const nm = notModified(c, etag);
+        const nm = notModified(c, etag, shared);
         if (nm) return nm;
-        for (const [k, v] of Object.entries(immutableHeaders(etag))) c.header(k, v);
+        for (const [k, v] of Object.entries(immutableHeaders(etag, shared))) c.header(k, v);
       } else {
         c.header("Cache-Control", "no-store");
       }
@@ -155,10 +165,11 @@ export function registerRunRoutes(app: App, deps: { store: Store; runs: RunServi
             },
           },
         },
-        ...problems(404, 409, 422),
+        ...problems(401, 404, 409, 422, 429),
       },
     }),
     async (c) => {
+      await mustSeeRun(store, principalOf(c), c.req.valid("param").id);
       const run = await mustGetRun(store, c.req.valid("param").id);
       const { result: _r, ...rep } = await runs.replay(run);
       return c.json(rep as never, 200);
@@ -170,17 +181,18 @@ export function registerRunRoutes(app: App, deps: { store: Store; runs: RunServi
       method: "post",
       path: "/v1/runs/{id}/cancel",
       tags: ["Runs"],
-      summary: "Stop a queued or running run",
+      summary: "Stop a queued or running run (its owner or an admin)",
       request: { params: RunId },
       responses: {
         200: {
           description: "The cancelled run",
           content: { "application/json": { schema: RunSchema } },
         },
-        ...problems(404, 409),
+        ...problems(401, 403, 404, 409),
       },
     }),
     async (c) => {
+      await mustHoldRun(store, principalOf(c), c.req.valid("param").id, "cancel");
       const r = await runs.cancel(c.req.valid("param").id);
       if (!r) throw new ProblemError("not-found", `No run has id ${c.req.valid("param").id}`);
       return c.json(runView(r), 200);
@@ -205,6 +217,7 @@ export function registerRunRoutes(app: App, deps: { store: Store; runs: RunServi
     // deno-lint-ignore no-explicit-any
     (async (c: any) => {
       const id = c.req.valid("param").id;
+      await mustSeeRun(store, principalOf(c), id);
       const first = await mustGetRun(store, id);
       return streamSSE(c, async (stream) => {
         const send = (event: string, data: unknown) =>
@@ -281,6 +294,8 @@ export function registerRunRoutes(app: App, deps: { store: Store; runs: RunServi
     // deno-lint-ignore no-explicit-any
     (async (c: any) => {
       const { id, name } = c.req.valid("param");
+      const holding = await mustSeeRun(store, principalOf(c), id);
+      const shared = sharedCacheable(principalOf(c), holding);
       const run = await mustGetRun(store, id);
       const o = (run.result?.outputs as Record<string, OutputSeries> | undefined)?.[name];
       if (!o) {
@@ -294,9 +309,9 @@ export function registerRunRoutes(app: App, deps: { store: Store; runs: RunServi
       if (wantsNetcdf(c)) return runOutputNetcdfResponse(c, run, name, o);
       const csv = wantsCsv(c);
       const etag = `"run-${run.id}-${run.result_digest}-${name}-${csv ? "csv" : "json"}"`;
-      const nm = notModified(c, etag);
+      const nm = notModified(c, etag, shared);
       if (nm) return nm;
-      for (const [k, v] of Object.entries(immutableHeaders(etag))) c.header(k, v);
+      for (const [k, v] of Object.entries(immutableHeaders(etag, shared))) c.header(k, v);
       c.header("Vary", "Accept");
       if (csv) {
         c.header("Content-Type", "text/csv; charset=utf-8");
@@ -305,7 +320,9 @@ export function registerRunRoutes(app: App, deps: { store: Store; runs: RunServi
       return c.json({
         run_id: run.id,
         result_digest: run.result_digest,
+        warnings: run.result?.warnings ?? [],
         cautions: run.result?.cautions ?? [],
+        ...(run.result?.inherited ? { inherited: run.result.inherited } : {}),
         ...o,
       });
     }) as never,
@@ -330,6 +347,8 @@ export function registerRunRoutes(app: App, deps: { store: Store; runs: RunServi
     }),
     async (c) => {
       const { id, name } = c.req.valid("param");
+      const principal = principalOf(c);
+      await mustSeeRun(store, principal, id);
       const run = await mustGetRun(store, id);
       if (run.status !== "succeeded") {
         throw new ProblemError(
@@ -337,7 +356,11 @@ export function registerRunRoutes(app: App, deps: { store: Store; runs: RunServi
           `Run ${id} has status ${run.status}; it has no outputs yet`,
         );
       }
-      const sid = await runs.saveOutput(run, name);
+      if (isLimited(principal) && deps.config) {
+        const o = (run.result?.outputs as Record<string, OutputSeries> | undefined)?.[name];
+        await checkStorage(store, principal.owner!, (o?.time.length ?? 0) * 24, deps.config.quotas);
+      }
+      const sid = await runs.saveOutput(run, name, holderOf(principal));
       c.header("Location", `/v1/series/${sid}`);
       return c.json({ id: sid, derived_from: run.id }, 201);
     },

@@ -7,8 +7,13 @@ import { createRoute, z } from "@hono/zod-openapi";
 import type { App } from "../app_env.ts";
 import { zodErrors } from "../app_env.ts";
 import type { Config } from "../config.ts";
-import type { SeriesMeta, Store, StoredSeries } from "../store/types.ts";
+import type { Holding, SeriesMeta, Store, StoredSeries } from "../store/types.ts";
 import { ProblemError } from "../problems.ts";
+import { principalOf } from "../auth/authenticate.ts";
+import { holderOf, isLimited, viewerOf } from "../auth/principal.ts";
+import { mustSeeSeries, sharedCacheable } from "../auth/access.ts";
+import { checkStorage } from "../limits/quotas.ts";
+import { toUploadOutcome, UploadPool } from "../ingest/upload.ts";
 import {
   PageQuery,
   pageSchema,
@@ -19,10 +24,10 @@ import {
 import { SeriesUpload, TextUploadQuery, UploadReport } from "../schemas/ingest.ts";
 import { QUANTITIES } from "../../core/series/quantities.ts";
 import { formatIsoTime } from "../../core/time/mod.ts";
-import { ingestJson, ingestText, seriesToCsv } from "../ingest/mod.ts";
-import { storedFromNormalised } from "../series_codec.ts";
+import { seriesToCsv } from "../ingest/mod.ts";
 import { wantsCsv } from "./format.ts";
-import { immutableHeaders, notModified } from "./cache.ts";
+import { notModified } from "./cache.ts";
+import { ImmutableCache, serveRepresentation } from "./immutable_cache.ts";
 import {
   CalendarQuery,
   ingestNetcdfUpload,
@@ -38,8 +43,15 @@ const SeriesIdParam = z.object({
   id: z.string().openapi({ param: { name: "id", in: "path" }, example: "sha256:..." }),
 });
 
-/** Metadata with ISO dates beside the decimal years. */
-export function metaView(m: SeriesMeta) {
+/**
+ * Metadata with ISO dates beside the decimal years, and the holding the caller sees it
+ * through (owner, visibility, and that holding's creation time) when given.
+ */
+export function metaView(m: SeriesMeta, holding?: Holding) {
+  const h = holding ??
+    (m.owner && m.visibility
+      ? { owner: m.owner, visibility: m.visibility, created_at: m.created_at }
+      : undefined);
   return {
     id: m.id,
     name: m.name,
@@ -55,13 +67,20 @@ export function metaView(m: SeriesMeta) {
     start_date: formatIsoTime(m.start, m.resolution),
     end_date: formatIsoTime(m.end, m.resolution),
     derived_from: m.derived_from,
-    created_at: m.created_at,
+    created_at: h?.created_at ?? m.created_at,
+    ...(h ? { owner: h.owner, visibility: h.visibility } : {}),
   };
 }
 
-function seriesView(s: StoredSeries) {
+/**
+ * A series with its points. Its `created_at` is the caller's holding's (never another owner's
+ * earlier upload of the same content); who holds it and how it is shared are at
+ * `/v1/series/{id}/sharing`, since they may change while the content never does.
+ */
+function seriesView(s: StoredSeries, holding: Holding) {
+  const { owner: _o, visibility: _v, ...meta } = metaView(s, holding);
   return {
-    ...metaView(s),
+    ...meta,
     date: Array.from(s.time, (t) => formatIsoTime(t, s.resolution)),
     time: Array.from(s.time),
     value: Array.from(s.value),
@@ -77,8 +96,18 @@ const UploadAnswer = z.object({
 
 const TEXT_TYPES = /^(text\/csv|text\/plain|text\/tab-separated-values|application\/csv)$/i;
 
-export function registerSeriesRoutes(app: App, deps: { store: Store; config: Config }): void {
+const textBody = z.string().openapi({ example: "time,value\n2001-01,80.2\n2001-02,85.1\n" });
+
+export function registerSeriesRoutes(
+  app: App,
+  deps: { store: Store; config: Config; uploads?: UploadPool },
+): void {
+  const representations = new ImmutableCache();
   const { store } = deps;
+  const uploads = deps.uploads ?? new UploadPool(0);
+  // The JSON body is documented by reference and read by the handler (in a worker), not by
+  // the route's validator on the request thread.
+  app.openAPIRegistry.register("SeriesUpload", SeriesUpload);
 
   app.openapi(
     createRoute({
@@ -92,7 +121,8 @@ export function registerSeriesRoutes(app: App, deps: { store: Store; config: Con
         "Text body (`text/csv`, semicolon, tab or whitespace separated, `#` comments, header row): " +
         "the query names the time column(s) and value column. The id is the SHA-256 of the RFC 8785 " +
         "canonical JSON of the normalised series: uploading the same content again returns 200 and " +
-        "the existing series. Nothing partial is ever stored.",
+        "the existing series. Nothing partial is ever stored. Bodies may be gzip or deflate " +
+        "compressed (`Content-Encoding`). JSON and text must be UTF-8.",
       request: {
         query: TextUploadQuery.partial().extend({ variable: VariableQuery }),
         body: {
@@ -100,10 +130,11 @@ export function registerSeriesRoutes(app: App, deps: { store: Store; config: Con
           // bodies are parsed by the handler.
           required: false,
           content: {
-            "application/json": { schema: SeriesUpload },
-            "text/csv": {
-              schema: z.string().openapi({ example: "time,value\n2001-01,80.2\n2001-02,85.1\n" }),
-            },
+            "application/json": { schema: { $ref: "#/components/schemas/SeriesUpload" } },
+            "text/csv": { schema: textBody },
+            "text/plain": { schema: textBody },
+            "text/tab-separated-values": { schema: textBody },
+            "application/csv": { schema: textBody },
             ...NETCDF_CONTENT,
           },
         },
@@ -114,16 +145,17 @@ export function registerSeriesRoutes(app: App, deps: { store: Store; config: Con
           content: { "application/json": { schema: UploadAnswer } },
         },
         201: { description: "Stored", content: { "application/json": { schema: UploadAnswer } } },
-        ...problems(400, 413, 415, 422, 500),
+        ...problems(400, 401, 403, 413, 415, 422, 429, 500),
       },
     }),
     // deno-lint-ignore no-explicit-any
     (async (c: any) => {
+      const principal = principalOf(c);
       const ct = (c.req.header("content-type") ?? "").split(";")[0].trim().toLowerCase();
       let outcome;
       if (/^application\/([\w.-]+\+)?json$/.test(ct)) {
-        const body = c.req.valid("json");
-        outcome = ingestJson(body);
+        const bytes = await uploads.readBody(c.req.raw);
+        outcome = await uploads.run({ format: "json", bytes });
       } else if (TEXT_TYPES.test(ct)) {
         const q = TextUploadQuery.safeParse(c.req.query());
         if (!q.success) {
@@ -135,10 +167,12 @@ export function registerSeriesRoutes(app: App, deps: { store: Store; config: Con
             { errors },
           );
         }
-        const bytes = new Uint8Array(await c.req.arrayBuffer());
-        outcome = ingestText(bytes, q.data);
+        const bytes = await uploads.readBody(c.req.raw);
+        outcome = await uploads.run({ format: "text", bytes, query: q.data });
       } else if (isNetcdfMediaType(ct)) {
-        outcome = await ingestNetcdfUpload(c, deps.config.bodyLimitBytes);
+        outcome = await toUploadOutcome(
+          await ingestNetcdfUpload(c, deps.config.bodyLimitBytes),
+        );
       } else {
         throw new ProblemError(
           "unsupported-media-type",
@@ -150,16 +184,16 @@ export function registerSeriesRoutes(app: App, deps: { store: Store; config: Con
         );
       }
       if (!outcome.ok) {
-        throw new ProblemError(
-          "validation",
-          `The series was not stored: ${outcome.errors.length} problem(s); first: ${
-            outcome.errors[0].message
-          }`,
-          { errors: outcome.errors },
-        );
+        throw new ProblemError(outcome.type, outcome.detail, {
+          ...(outcome.type === "validation" ? { errors: outcome.errors } : {}),
+          ...(outcome.omitted ? { errors_omitted: outcome.omitted } : {}),
+        });
       }
-      const stored = await storedFromNormalised(outcome.series, null);
-      const { created, series } = await store.putSeries(stored);
+      const stored = outcome.series;
+      if (isLimited(principal)) {
+        await checkStorage(store, principal.owner!, stored.n * 24, deps.config.quotas);
+      }
+      const { created, series } = await store.putSeries(stored, holderOf(principal));
       c.header("Location", `/v1/series/${series.id}`);
       return c.json(
         { created, series: metaView(series), report: outcome.report },
@@ -189,9 +223,9 @@ export function registerSeriesRoutes(app: App, deps: { store: Store; config: Con
     }),
     async (c) => {
       const q = c.req.valid("query");
-      const page = await store.listSeries(q);
+      const page = await store.listSeries({ ...q, viewer: viewerOf(principalOf(c)) });
       return c.json({
-        items: page.items.map(metaView),
+        items: page.items.map((m) => metaView(m)),
         total: page.total,
         limit: q.limit,
         offset: q.offset,
@@ -229,24 +263,33 @@ export function registerSeriesRoutes(app: App, deps: { store: Store; config: Con
     // deno-lint-ignore no-explicit-any
     (async (c: any) => {
       const id = c.req.valid("param").id;
+      // Visibility first (cheap), then a 304 without reading the points.
+      const holding = await mustSeeSeries(store, principalOf(c), id);
       if (wantsNetcdf(c)) return await seriesNetcdfResponse(c, store, id);
       const csv = wantsCsv(c);
       const etag = `"${id}${csv ? "-csv" : ""}"`;
-      // Existence first (cheap), then a 304 without reading the points.
-      if (!(await store.getSeriesMeta(id))) {
-        throw new ProblemError("not-found", `No series has id ${id}`);
-      }
-      const nm = notModified(c, etag);
+      const shared = sharedCacheable(principalOf(c), holding);
+      const nm = notModified(c, etag, shared);
       if (nm) return nm;
+      // A series never changes: its CSV (and its JSON for one holding, whose dates it shows)
+      // are formatted once and served as stored bytes.
+      const key = csv ? `${id}-csv` : `${id}-json-${JSON.stringify(holding)}`;
+      const hit = representations.get(key);
+      if (hit) return await serveRepresentation(c, hit, shared);
       const s = await store.getSeries(id);
       if (!s) throw new ProblemError("not-found", `No series has id ${id}`);
-      for (const [k, v] of Object.entries(immutableHeaders(etag))) c.header(k, v);
-      c.header("Vary", "Accept");
-      if (csv) {
-        c.header("Content-Type", "text/csv; charset=utf-8");
-        return c.body(seriesToCsv(s));
-      }
-      return c.json(seriesView(s));
+      const rep = {
+        etag,
+        body: new TextEncoder().encode(
+          csv ? seriesToCsv(s) : JSON.stringify(seriesView(s, holding)),
+        ),
+        headers: {
+          "Content-Type": csv ? "text/csv; charset=utf-8" : "application/json",
+          Vary: "Accept",
+        },
+      };
+      representations.set(key, rep);
+      return await serveRepresentation(c, rep, shared);
     }) as never,
   );
 
@@ -255,23 +298,40 @@ export function registerSeriesRoutes(app: App, deps: { store: Store; config: Con
       method: "delete",
       path: "/v1/series/{id}",
       tags: ["Series"],
-      summary: "Delete a series (refused with 409 while a run uses it)",
+      summary: "Delete your copy of a series (refused with 409 while a run uses it)",
+      description: "Removes the caller's holding; the content goes when no owner holds it. " +
+        "Refused while one of the caller's runs uses the series, or while it is the last " +
+        "holding and another owner's run uses it. An admin deletes a series it does not hold " +
+        "outright (every holding), unless a run uses it.",
       request: { params: SeriesIdParam },
       responses: {
         204: { description: "Deleted" },
-        ...problems(404, 409),
+        ...problems(401, 403, 404, 409),
       },
     }),
     // deno-lint-ignore no-explicit-any
     (async (c: any) => {
       const id = c.req.valid("param").id;
-      const outcome = await store.deleteSeries(id);
+      const p = principalOf(c);
+      const h = await mustSeeSeries(store, p, id);
+      let outcome: "deleted" | "not_found" | "in_use";
+      if (h.owner === p.owner) outcome = await store.deleteSeriesHolding(id, p.owner!);
+      else if (p.role === "admin") outcome = await store.deleteSeries(id);
+      else {
+        throw new ProblemError(
+          "forbidden",
+          `Series ${id} is shared with you by its owner; only its owner or an admin may delete it`,
+        );
+      }
       if (outcome === "not_found") throw new ProblemError("not-found", `No series has id ${id}`);
       if (outcome === "in_use") {
-        const runs = await store.runsUsingSeries(id);
+        const runs = await store.runsUsingSeries(id, viewerOf(p));
+        const usage = await store.seriesUsage(id, p.owner!);
         throw new ProblemError(
           "conflict",
-          `Series ${id} is an input of ${runs.length} run(s) and cannot be deleted`,
+          `Series ${id} is an input of ${runs.length} run(s) you can see` +
+            (usage.others ? ` and of runs of owners it was shared with` : "") +
+            " and cannot be deleted",
           { runs: runs.slice(0, 50) },
         );
       }

@@ -9,9 +9,10 @@
  * @module
  */
 import type { z } from "@hono/zod-openapi";
-import type { RunRecord, StoredSeries } from "../store/types.ts";
+import type { FieldMeta, RunRecord, StoredSeries } from "../store/types.ts";
 import type { ChartSpec } from "../charts/chart.ts";
 import type { StopOptions } from "../../core/stop_signal.ts";
+import type { MapChartSpec } from "../charts/map_chart.ts";
 
 /** A series-like part of a result; fetchable as JSON/CSV and savable as a stored series. */
 export interface OutputSeries {
@@ -49,18 +50,70 @@ export interface RunResult {
   cautions?: string[];
 }
 
+/**
+ * A stored gridded field as an analysis sees it: its metadata and coordinates, and the values
+ * of the time steps the analysis asked for (see `RunKind.fieldRefs`), loaded before compute.
+ * Structured-clonable; its typed arrays are transferred to the worker that computes.
+ */
+export interface LoadedField {
+  meta: FieldMeta;
+  lat: Float64Array;
+  lon: Float64Array;
+  lat_bounds: Float64Array | null;
+  lon_bounds: Float64Array | null;
+  /** Index in the stored field of the first loaded time step. */
+  stepStart: number;
+  /** Decimal years of the loaded steps. */
+  time: Float64Array;
+  /** Loaded steps × n_lat × n_lon values, time-major, latitude-major; NaN where missing. */
+  values: Float32Array;
+}
+
+/**
+ * A field a request uses, and the span of time the analysis needs from it (decimal years,
+ * inclusive; default the whole field). Only the stored blocks that overlap are read.
+ */
+export interface FieldRef {
+  id: string;
+  /** JSON Pointer of the field id in the request. */
+  pointer: string;
+  from?: number;
+  to?: number;
+  /** Load at most this many steps from the start of the span (e.g. 1 for a mask). */
+  firstSteps?: number;
+  /** Where the span came from, for the problem when the field has no step in it. */
+  spanPointer?: string;
+}
+
+/** The loaded inputs of a run. */
+export interface RunInputs {
+  series: Record<string, StoredSeries>;
+  runs: Record<string, RunRecord>;
+  fields?: Record<string, LoadedField>;
+}
+
 export interface RunContext {
   /** A loaded input series by id (every series id found in params is preloaded). */
   series(id: string): StoredSeries;
   /** A loaded input run by id (those listed by `RunKind.runRefs`). */
   run(id: string): RunRecord;
+  /** A loaded gridded field by id (those listed by `RunKind.fieldRefs`). */
+  field(id: string): LoadedField;
   /**
    * The result of a loaded input run, parsed with the result schema of the analysis that made
    * it: typed, and refused (a problem at `pointer`) when the run is of another kind or has no
    * result. Use this instead of reading `run(id).result` by field-name strings.
    */
   resultOf<K extends RunKind>(kind: K, id: string, pointer: string): ResultOf<K>;
-  /** Report progress in [0, 1]. Cheap; call it as often as you like. */
+  /**
+   * Report progress in [0, 1]. Cheap; call it as often as you like.
+   *
+   * The first report (or the first `parallel` map) also marks the end of the input checks: an
+   * asynchronous request is checked before it is stored by running `compute` up to that point
+   * (`RunService.preflight`), so a run refused for its input is never stored. An analysis
+   * therefore checks its inputs before it reports progress, and reports progress before work
+   * that may take long.
+   */
   progress(fraction: number): void;
   /**
    * True once the run must stop: it was cancelled, or it ran past the run time limit. Long
@@ -112,6 +165,8 @@ export interface EstimateInputs {
   series(id: string): StoredSeries;
   /** A loaded input run by id (those listed by `RunKind.runRefs`). */
   run(id: string): RunRecord;
+  /** A loaded gridded field by id (those listed by `RunKind.fieldRefs`; its loaded steps). */
+  field(id: string): LoadedField;
 }
 
 /** An analysis' chart, typed on its result. */
@@ -119,7 +174,7 @@ export interface KindChart<T> {
   /** True when the chart draws the run's input series too (the chart route loads them). */
   needsInputs?: boolean;
   /** The chart, or null to fall back to the generic chart of the run's outputs. */
-  build(run: RunRecord, result: T, inputs: StoredSeries[]): ChartSpec | null;
+  build(run: RunRecord, result: T, inputs: StoredSeries[]): ChartSpec | MapChartSpec | null;
 }
 
 /** The typed (parsed) result of an analysis. */
@@ -150,6 +205,11 @@ export interface RunKind<S extends z.ZodType = any, R extends z.ZodType = any> {
   request: S;
   /** Ids of runs the params refer to (loaded into the context), default none. */
   runRefs?(params: z.output<S>): string[];
+  /**
+   * Gridded fields the params use and the time span needed from each (loaded into the
+   * context after the series and runs, which `inputs` holds, so the span can follow them).
+   */
+  fieldRefs?(params: z.output<S>, inputs: RunContext): FieldRef[];
   /**
    * The run's computing time in seconds on one core of the reference machine, from a cost
    * model of its real work (points × grid × replicates ...; see api/runs/estimate.ts). The

@@ -1,17 +1,13 @@
 /**
- * The series and runs loaded for a run, looked up by id: what `compute` (through its
- * `RunContext`) and `estimateSeconds` read.
+ * The series, runs and gridded fields loaded for a run, looked up by id: what `compute`
+ * (through its `RunContext`) and `estimateSeconds` read.
  *
  * @module
  */
-import type { RunRecord, StoredSeries } from "../store/types.ts";
-import type { EstimateInputs } from "./kind.ts";
+import type { EstimateInputs, RunInputs } from "./kind.ts";
 
-/** Series and runs loaded for a run, by id. */
-export interface LoadedInputs {
-  series: Record<string, StoredSeries>;
-  runs: Record<string, RunRecord>;
-}
+/** Series, runs and fields loaded for a run, by id. */
+export type LoadedInputs = RunInputs;
 
 /**
  * Lookups of loaded inputs by id. Asking for one that was not loaded is a defect of the
@@ -28,6 +24,11 @@ export function loadedInputs(inputs: LoadedInputs): EstimateInputs {
       const r = inputs.runs[id];
       if (!r) throw new Error(`run ${id} was not loaded for this run`);
       return r;
+    },
+    field(id) {
+      const f = inputs.fields?.[id];
+      if (!f) throw new Error(`field ${id} was not loaded for this run`);
+      return f;
     },
   };
 }

@@ -3,24 +3,35 @@
  *
  * Synchronous runs are computed first and stored only when they succeed, so a rejected
  * request (422) leaves the store unchanged. Asynchronous runs (asked for with
- * `Prefer: respond-async`, or estimated to take longer than the configured threshold) are
- * stored as `queued` with their inputs, then computed in the background; progress and the
- * final status are published to subscribers (Server-Sent Events).
+ * `Prefer: respond-async`, or estimated to take longer than the configured threshold) have
+ * their inputs checked first (`preflight`: a request refused for its input is a 422 and is not
+ * stored either), are then stored as `queued` with their inputs, and computed in the
+ * background; progress and the final status are published to subscribers (Server-Sent Events).
  *
  * @module
  */
 import { uuidv7 } from "uuidv7";
-import type { RunRecord, Store, StoredSeries } from "../store/types.ts";
-import { CancelledError, InputProblem, type RunContext, type RunKind, type Task } from "./kind.ts";
+import type { HolderSpec, RunRecord, Store, StoredSeries, Viewer } from "../store/types.ts";
+import { DEFAULT_HOLDER } from "../store/common.ts";
+import {
+  CancelledError,
+  InputProblem,
+  type LoadedField,
+  type RunContext,
+  type RunInputs,
+  type RunKind,
+  type Task,
+} from "./kind.ts";
+import type { OutputSeries, RunResult } from "./kind.ts";
 import { StoppedError } from "../../core/stop_signal.ts";
 import { estimateRunSeconds } from "./estimate.ts";
 import { loadedInputs } from "./loaded_inputs.ts";
-import type { OutputSeries, RunResult } from "./kind.ts";
 import { SERIES_ID_PATTERN } from "../schemas/series_ref.ts";
 import type { InlineSeries } from "../schemas/series_ref.ts";
 import { ProblemError, toPointer } from "../problems.ts";
 import { canonicalJson, sha256Hex } from "../canonical.ts";
 import { toPlainJson } from "./json.ts";
+import { gatherInherited, type Lineage, withInherited } from "./inherit.ts";
 import { SERVICE_VERSION } from "../version.ts";
 import { taskTable } from "../analyses/derive.ts";
 import { RUN_KINDS } from "../analyses/registry.ts";
@@ -29,6 +40,7 @@ import { InProcessQueue } from "../queue/in_process.ts";
 import type { RunQueue } from "../queue/types.ts";
 import type { ChunkRouter } from "../queue/chunks.ts";
 import { TERMINAL } from "../store/types.ts";
+import { fieldMetaOf } from "../store/field_common.ts";
 
 /** How inline and output series become stored series (implemented over api/ingest). */
 export interface SeriesCodec {
@@ -55,7 +67,7 @@ export interface ComputeExecutor {
   compute(
     kind: RunKind,
     params: Record<string, unknown>,
-    inputs: { series: Record<string, StoredSeries>; runs: Record<string, RunRecord> },
+    inputs: RunInputs,
     hooks: ComputeHooks,
   ): Promise<RunResult>;
   /** Map a named task over inputs (used by in-thread compute too). */
@@ -82,7 +94,7 @@ export class InThreadExecutor implements ComputeExecutor {
   async compute(
     kind: RunKind,
     params: Record<string, unknown>,
-    inputs: { series: Record<string, StoredSeries>; runs: Record<string, RunRecord> },
+    inputs: RunInputs,
     hooks: ComputeHooks,
   ): Promise<RunResult> {
     hooks.onStart();
@@ -115,7 +127,7 @@ export class InThreadExecutor implements ComputeExecutor {
 
 /** Build the RunContext seen by compute. */
 export function makeContext(
-  inputs: { series: Record<string, StoredSeries>; runs: Record<string, RunRecord> },
+  inputs: RunInputs,
   hooks: { progress(f: number): void; isCancelled(): boolean },
   parallel: <I, O>(task: string, chunks: I[]) => Promise<O[]>,
 ): RunContext {
@@ -214,6 +226,14 @@ export async function resultDigest(result: unknown): Promise<string> {
   return await sha256Hex(canonicalJson(result));
 }
 
+/** Stops a preflight at the end of the input checks (the first progress report). */
+class InputsChecked extends Error {
+  constructor() {
+    super("input checks done");
+    this.name = "InputsChecked";
+  }
+}
+
 /**
  * A run this process computes: its stop flag (set by a cancel, a lost lease or the time
  * limit), and whether the time limit set it.
@@ -222,10 +242,33 @@ interface Active {
   cancelled: boolean;
   timedOut: boolean;
   started: number;
+  /** A final status was recorded (cancel, time limit, or the outcome): write no other. */
+  final: boolean;
 }
 
-/** Default wall-time limit of one run, seconds (`SUNLAG_RUN_WALL_SECONDS`). */
-export const DEFAULT_RUN_WALL_SECONDS = 3600;
+/** A run's place under its owner's quotas (api/limits/quotas.ts). */
+export interface RunTicket {
+  /** Resolves when the owner may start computing (its concurrent-runs quota). */
+  slot(): Promise<void>;
+  /** The run stopped after computing for `seconds` (0 when it never started). */
+  done(seconds: number): void;
+}
+
+/** Admits runs under per-owner quotas. */
+export interface RunAdmission {
+  /** Admit a run of `owner`; throws a 429 ProblemError when a quota is exceeded. */
+  admit(owner: string, mode: "sync" | "async"): RunTicket;
+}
+
+/** Who submits a run, and whether quotas apply. */
+export interface SubmitAccess {
+  /** Only inputs this viewer may see can be used; none given = any (internal use). */
+  viewer?: Viewer;
+  /** The run, its inline inputs and saved outputs are held by this holder. */
+  holder?: HolderSpec;
+  /** True when the owner is under quotas. */
+  limited?: boolean;
+}
 
 /** The problem of a run stopped by the wall-time limit. */
 export function timeLimitProblem(seconds: number): ProblemError {
@@ -279,6 +322,8 @@ export interface SubmitOutcome {
 export class RunService {
   /** Runs this process is computing. */
   readonly active = new Map<string, Active>();
+  /** Runs this process accepted and queued: their holder and quota ticket, until computed. */
+  readonly #accepted = new Map<string, { holder: HolderSpec; ticket: RunTicket | null }>();
   readonly transport: RunTransport;
 
   constructor(
@@ -288,8 +333,10 @@ export class RunService {
     readonly executor: ComputeExecutor,
     readonly options: {
       asyncSeconds: number;
-      /** Wall-time limit of one run, seconds. @default DEFAULT_RUN_WALL_SECONDS */
+      /** Wall-time limit of one run's computation, seconds. @default Infinity */
       wallSeconds?: number;
+      /** Per-owner run quotas; none = unlimited. */
+      admission?: RunAdmission;
     },
     transport?: Partial<RunTransport>,
   ) {
@@ -310,17 +357,19 @@ export class RunService {
     await this.transport.queue.work((id) => this.process(id));
   }
 
-  /** The wall-time limit of one run, seconds. */
-  get wallSeconds(): number {
-    return this.options.wallSeconds ?? DEFAULT_RUN_WALL_SECONDS;
+  get #wallMs(): number {
+    return (this.options.wallSeconds ?? Infinity) * 1000;
   }
 
   kindOf(name: string): RunKind | undefined {
     return this.kinds.find((k) => k.kind === name);
   }
 
-  /** Resolve inline series and load every referenced series and run. */
-  async prepare(kind: RunKind, params: Record<string, unknown>) {
+  /**
+   * Resolve inline series and load every referenced series and run. With a viewer, a series
+   * or run it may not see is reported exactly like one that is not stored.
+   */
+  async prepare(kind: RunKind, params: Record<string, unknown>, viewer?: Viewer) {
     const inline = new Map<string, StoredSeries>();
     const normalised = await extractInline(params, [], this.codec, inline) as Record<
       string,
@@ -330,13 +379,15 @@ export class RunService {
     const series: Record<string, StoredSeries> = {};
     const missing: { pointer: string; message: string }[] = [];
     for (const [id, pointer] of ids) {
-      const s = inline.get(id) ?? await this.store.getSeries(id);
+      const visible = inline.has(id) || !viewer || await this.store.seriesHolding(id, viewer);
+      const s = inline.get(id) ?? (visible ? await this.store.getSeries(id) : null);
       if (!s) missing.push({ pointer, message: `no stored series has id ${id}` });
       else series[id] = s;
     }
     const runs: Record<string, RunRecord> = {};
     for (const rid of kind.runRefs?.(normalised) ?? []) {
-      const r = await this.store.getRun(rid);
+      const visible = !viewer || await this.store.runHolding(rid, viewer);
+      const r = visible ? await this.store.getRun(rid) : null;
       if (!r) {
         missing.push({ pointer: findPointer(normalised, rid), message: `no run has id ${rid}` });
       } else if (r.status !== "succeeded") {
@@ -355,16 +406,84 @@ export class RunService {
         },
       );
     }
-    return { params: normalised, series, runs, inline };
+    const fields = await this.#loadFields(kind, normalised, { series, runs }, viewer);
+    return { params: normalised, series, runs, fields, inline };
+  }
+
+  /** Load the time steps each field reference needs (only the blocks that overlap). */
+  async #loadFields(
+    kind: RunKind,
+    params: Record<string, unknown>,
+    loaded: RunInputs,
+    viewer?: Viewer,
+  ): Promise<Record<string, LoadedField>> {
+    if (!kind.fieldRefs) return {};
+    const ctx = makeContext(loaded, { progress: () => {}, isCancelled: () => false }, () => {
+      throw new Error("fieldRefs cannot map tasks");
+    });
+    let refs;
+    try {
+      refs = kind.fieldRefs(params as never, ctx);
+    } catch (e) {
+      throw asProblem(e);
+    }
+    const out: Record<string, LoadedField> = {};
+    const errors: { pointer: string; message: string }[] = [];
+    for (const ref of refs) {
+      const visible = !viewer || await this.store.fieldHolding(ref.id, viewer);
+      const f = visible ? await this.store.getField(ref.id) : null;
+      if (!f) {
+        errors.push({ pointer: ref.pointer, message: `no stored field has id ${ref.id}` });
+        continue;
+      }
+      const from = ref.from ?? -Infinity, to = ref.to ?? Infinity;
+      let a = 0, b = f.n_time;
+      while (a < b && f.time[a] < from) a++;
+      while (b > a && f.time[b - 1] > to) b--;
+      if (ref.firstSteps !== undefined) b = Math.min(b, a + Math.max(1, ref.firstSteps));
+      if (b <= a) {
+        errors.push({
+          pointer: ref.spanPointer ?? ref.pointer,
+          message: `field ${ref.id} (${f.start.toFixed(3)}..${f.end.toFixed(3)}) has no time ` +
+            `step in the span the other inputs cover (${from.toFixed(3)}..${to.toFixed(3)})`,
+        });
+        continue;
+      }
+      const prev = out[ref.id];
+      if (prev && prev.stepStart <= a && prev.stepStart + prev.time.length >= b) continue;
+      if (prev) {
+        a = Math.min(a, prev.stepStart);
+        b = Math.max(b, prev.stepStart + prev.time.length);
+      }
+      out[ref.id] = {
+        meta: fieldMetaOf(f),
+        lat: f.lat,
+        lon: f.lon,
+        lat_bounds: f.lat_bounds,
+        lon_bounds: f.lon_bounds,
+        stepStart: a,
+        time: f.time.slice(a, b),
+        values: await this.store.readFieldSteps(ref.id, a, b),
+      };
+    }
+    if (errors.length) {
+      throw new ProblemError(
+        "validation",
+        `The request's gridded field cannot be used: ${errors[0].message}`,
+        { errors },
+      );
+    }
+    return out;
   }
 
   /** Create a run. */
   async submit(
     kind: RunKind,
     rawParams: Record<string, unknown>,
-    opts: { preferAsync: boolean },
+    opts: { preferAsync: boolean } & SubmitAccess,
   ): Promise<SubmitOutcome> {
-    const prep = await this.prepare(kind, rawParams);
+    const holder = opts.holder ?? DEFAULT_HOLDER;
+    const prep = await this.prepare(kind, rawParams, opts.viewer);
     const now = new Date().toISOString();
     const seed = typeof prep.params.seed === "number" ? prep.params.seed : null;
     const run: RunRecord = {
@@ -377,6 +496,7 @@ export class RunService {
       params: prep.params,
       input_series: Object.keys(prep.series).sort(),
       input_runs: Object.keys(prep.runs).sort(),
+      ...(Object.keys(prep.fields).length ? { input_fields: Object.keys(prep.fields).sort() } : {}),
       service_version: SERVICE_VERSION,
       algorithm_version: kind.algorithmVersion,
       seed,
@@ -387,53 +507,140 @@ export class RunService {
     };
     const estimate = estimateRunSeconds(kind, prep.params, prep);
     const isAsync = opts.preferAsync || estimate > this.options.asyncSeconds;
+    const admission = opts.limited ? this.options.admission : undefined;
+    const ticket = admission?.admit(holder.owner, isAsync ? "async" : "sync") ?? null;
     if (isAsync) {
-      for (const s of prep.inline.values()) await this.store.putSeries(s);
-      await this.store.putRun(run);
-      await this.transport.queue.enqueue(run.id);
+      // refused for its input: a 422 now, and nothing stored (as for a synchronous run)
+      try {
+        await this.preflight(kind, prep.params, prep);
+      } catch (e) {
+        ticket?.done(0);
+        throw e;
+      }
+      try {
+        for (const s of prep.inline.values()) await this.store.putSeries(s, holder);
+        await this.store.putRun(run, holder);
+        this.#accepted.set(run.id, { holder, ticket });
+        await this.transport.queue.enqueue(run.id);
+      } catch (e) {
+        this.#accepted.delete(run.id);
+        ticket?.done(0);
+        throw e;
+      }
       return { status: 202, run, saved_series: [] };
     }
-    const done = await this.computeRun(kind, run, prep);
+    let done: RunRecord;
+    const t0 = performance.now();
+    try {
+      await ticket?.slot();
+      done = await this.computeRun(kind, run, prep);
+    } finally {
+      ticket?.done((performance.now() - t0) / 1000);
+    }
     // Only a successful synchronous run is stored (with its inline inputs).
-    for (const s of prep.inline.values()) await this.store.putSeries(s);
-    await this.store.putRun(done);
-    const saved = await this.saveOutputs(kind, done);
+    for (const s of prep.inline.values()) await this.store.putSeries(s, holder);
+    await this.store.putRun(done, holder);
+    const saved = await this.saveOutputs(kind, done, holder);
     return { status: 201, run: done, saved_series: saved };
   }
 
   /**
-   * Compute a result from params and loaded inputs, without storing anything (a synchronous
-   * run, a replay). A computation still going at the wall-time limit is stopped and answered
-   * with a time-limit problem.
+   * Check a request's inputs before an asynchronous run is stored: run the analysis' compute
+   * in this thread up to its first progress report or parallel map, where by the contract of
+   * `RunContext.progress` its input checks are done (an analysis without either is cheap and
+   * runs to its end; the result is not kept). An input problem is thrown as the 422 the
+   * synchronous path gives; the request is then not stored.
+   */
+  async preflight(
+    kind: RunKind,
+    params: Record<string, unknown>,
+    inputs: { series: Record<string, StoredSeries>; runs: Record<string, RunRecord> },
+  ): Promise<void> {
+    const checked = () => {
+      throw new InputsChecked();
+    };
+    const ctx = makeContext(inputs, { progress: checked, isCancelled: () => false }, checked);
+    try {
+      await kind.compute(params, ctx);
+    } catch (e) {
+      if (e instanceof InputsChecked) return;
+      throw asProblem(e);
+    }
+  }
+
+  /**
+   * Compute a result from params and loaded inputs, without storing anything. The result
+   * carries the warnings and cautions of the runs it is built on (`inherited`), looked up in
+   * `lineage` (default: the store). A computation still going after the wall-time limit is
+   * asked to stop and answered with a time-limit problem (computed in this thread, it is
+   * refused once it returns).
    */
   async computeResult(
     kind: RunKind,
     params: Record<string, unknown>,
-    inputs: { series: Record<string, StoredSeries>; runs: Record<string, RunRecord> },
+    inputs: RunInputs,
+    lineage: Lineage = this.lineage(),
   ): Promise<{ result: Record<string, unknown>; digest: string }> {
     let result: RunResult;
-    const deadline = performance.now() + this.wallSeconds * 1000;
-    const late = () => performance.now() >= deadline;
+    let stop = false;
+    let timer: ReturnType<typeof setTimeout> | undefined;
+    const wallMs = this.#wallMs;
+    const t0 = performance.now();
     try {
-      result = await this.executor.compute(kind, params, inputs, {
+      const work = this.executor.compute(kind, params, inputs, {
         progress: () => {},
-        isCancelled: late,
+        // computed in this thread, no timer fires while a loop runs: the clock is read too
+        isCancelled: () => stop || performance.now() - t0 > wallMs,
         onStart: () => {},
       });
+      if (Number.isFinite(wallMs)) {
+        const late = new Promise<never>((_, reject) => {
+          timer = setTimeout(() => {
+            stop = true;
+            reject(timeLimitProblem(this.options.wallSeconds!));
+          }, wallMs);
+        });
+        work.catch(() => {});
+        result = await Promise.race([work, late]);
+      } else {
+        result = await work;
+      }
     } catch (e) {
-      if (isStopped(e) && late()) throw timeLimitProblem(this.wallSeconds);
+      if (isStopped(e) && performance.now() - t0 > wallMs) {
+        throw timeLimitProblem(this.options.wallSeconds!);
+      }
       throw asProblem(e);
+    } finally {
+      clearTimeout(timer);
     }
-    if (late()) throw timeLimitProblem(this.wallSeconds);
-    const plain = toPlainJson(result) as Record<string, unknown>;
+    if (performance.now() - t0 > wallMs) throw timeLimitProblem(this.options.wallSeconds!);
+    const plain = await this.finishResult(result, inputs, lineage);
     return { result: plain, digest: await resultDigest(plain) };
+  }
+
+  /** The stored form of a computed result: plain JSON with its inherited context. */
+  private async finishResult(
+    result: RunResult,
+    inputs: { series: Record<string, StoredSeries>; runs: Record<string, RunRecord> },
+    lineage: Lineage,
+  ): Promise<Record<string, unknown>> {
+    const plain = toPlainJson(result) as Record<string, unknown>;
+    return withInherited(plain, await gatherInherited(inputs, lineage));
+  }
+
+  /** The lineage of runs as the store holds it. */
+  lineage(): Lineage {
+    return {
+      run: (id) => this.store.getRun(id),
+      seriesOrigin: async (id) => (await this.store.getSeriesMeta(id))?.derived_from ?? null,
+    };
   }
 
   /** Compute without storing; returns the finished record or throws the input problem. */
   private async computeRun(
     kind: RunKind,
     run: RunRecord,
-    prep: { series: Record<string, StoredSeries>; runs: Record<string, RunRecord> },
+    prep: RunInputs,
   ): Promise<RunRecord> {
     const { result, digest } = await this.computeResult(kind, run.params, prep);
     return {
@@ -452,52 +659,92 @@ export class RunService {
    * left alone; one leased by a live worker elsewhere throws `LeaseHeldError` so the queue
    * delivers it again later. Every write is conditional on still holding the lease, so a
    * duplicated or recovered job never overwrites a newer state and writes its result once.
+   * The owner's quota ticket (when the run was accepted by this process) holds a concurrency
+   * slot while it computes; the wall-time limit fails it with its reason.
    */
   async process(runId: string): Promise<void> {
     const { store } = this;
-    const { events, holder } = this.transport;
-    const run = await store.claimRun(runId, holder, LEASE_SECONDS);
-    if (!run) {
-      const now = await store.getRun(runId);
-      if (!now || TERMINAL.has(now.status)) return;
-      throw new LeaseHeldError(runId);
+    const { holder: lessee } = this.transport;
+    const accepted = this.#accepted.get(runId);
+    this.#accepted.delete(runId);
+    const ticket = accepted?.ticket ?? null;
+    let startedAt = 0;
+    try {
+      await ticket?.slot();
+      const run = await store.claimRun(runId, lessee, LEASE_SECONDS);
+      if (!run) {
+        const now = await store.getRun(runId);
+        if (!now || TERMINAL.has(now.status)) return;
+        throw new LeaseHeldError(runId);
+      }
+      startedAt = Date.now();
+      await this.#processLeased(run, accepted?.holder ?? await this.#ownerOf(runId));
+    } finally {
+      ticket?.done(startedAt ? (Date.now() - startedAt) / 1000 : 0);
     }
-    const active: Active = { cancelled: false, timedOut: false, started: Date.now() };
+  }
+
+  /** The holder of a run accepted by another process (its owner and visibility). */
+  async #ownerOf(runId: string): Promise<HolderSpec> {
+    const h = await this.store.runHolding(runId, { owner: null, group: null, admin: true });
+    return h ? { owner: h.owner, visibility: h.visibility } : DEFAULT_HOLDER;
+  }
+
+  async #processLeased(run: RunRecord, holder: HolderSpec): Promise<void> {
+    const { store } = this;
+    const { events, holder: lessee } = this.transport;
+    const runId = run.id;
+    const active: Active = { cancelled: false, timedOut: false, started: Date.now(), final: false };
     this.active.set(runId, active);
     const stop = events.subscribe(runId, (e) => {
       if (e.type === "status" && e.status === "cancelled") active.cancelled = true;
     });
     const renew = setInterval(() => {
-      store.renewLease(runId, holder, LEASE_SECONDS).then((held) => {
+      store.renewLease(runId, lessee, LEASE_SECONDS).then((held) => {
         // Cancelled (the state left `running`) or taken over after a stall: stop computing.
         if (!held) active.cancelled = true;
       }, () => {});
     }, (LEASE_SECONDS * 1000) / 3);
     const publish = (e: RunEvent) => events.publish(e);
-    // The time limit: the run fails at once with its reason (a write conditional on the lease,
-    // so a run that ended meanwhile keeps its state) and its work is stopped like a cancel's.
-    const limit = setTimeout(() => {
-      active.timedOut = true;
-      active.cancelled = true;
-      this.#fail(runId, timeLimitProblem(this.wallSeconds), publish);
-    }, this.wallSeconds * 1000);
+    const fail = async (status: "failed" | "cancelled", error: Record<string, unknown> | null) => {
+      if (active.final) return;
+      active.final = true;
+      const written = await store.updateLeased(runId, lessee, {
+        status,
+        error,
+        eta_seconds: null,
+        updated_at: new Date().toISOString(),
+      }).catch(() => false);
+      if (written) publish({ type: "status", id: runId, status, progress: 0 });
+    };
+    const wallMs = this.#wallMs;
+    const limit = Number.isFinite(wallMs)
+      ? setTimeout(() => {
+        active.timedOut = true;
+        active.cancelled = true;
+        fail("failed", timeLimitProblem(this.options.wallSeconds!).problem).catch(() => {});
+      }, wallMs)
+      : undefined;
     try {
       const kind = this.kindOf(run.kind);
       if (!kind) throw new ProblemError("conflict", `run kind "${run.kind}" no longer exists`);
       const prep = await this.prepare(kind, run.params);
-      await this.#computeLeased(kind, run, prep, active, publish);
+      const t0 = performance.now();
+      // Computed in this thread, no timer fires while a loop runs: the clock is read too.
+      const overTime = () => {
+        if (!active.timedOut && performance.now() - t0 > wallMs) {
+          active.timedOut = true;
+          active.cancelled = true;
+        }
+        return active.timedOut;
+      };
+      await this.#computeLeased(kind, run, prep, active, publish, holder, overTime);
     } catch (e) {
       if (active.timedOut) {
-        await this.#fail(runId, timeLimitProblem(this.wallSeconds), publish);
-      } else if (active.cancelled || isStopped(e)) {
-        const written = await store.updateLeased(runId, holder, {
-          status: "cancelled",
-          eta_seconds: null,
-          updated_at: new Date().toISOString(),
-        }).catch(() => false);
-        if (written) publish({ type: "status", id: runId, status: "cancelled", progress: 0 });
+        await fail("failed", timeLimitProblem(this.options.wallSeconds!).problem);
       } else {
-        await this.#fail(runId, asProblem(e), publish);
+        const cancelled = active.cancelled || isStopped(e);
+        await fail(cancelled ? "cancelled" : "failed", cancelled ? null : asProblem(e).problem);
       }
     } finally {
       clearTimeout(limit);
@@ -508,44 +755,27 @@ export class RunService {
     }
   }
 
-  /** Record a leased run's failure with its problem (once: the write needs the lease). */
-  async #fail(runId: string, problem: ProblemError, publish: (e: RunEvent) => void) {
-    const written = await this.store.updateLeased(runId, this.transport.holder, {
-      status: "failed",
-      error: problem.problem,
-      eta_seconds: null,
-      updated_at: new Date().toISOString(),
-    }).catch(() => false);
-    if (written) publish({ type: "status", id: runId, status: "failed", progress: 0 });
-  }
-
   async #computeLeased(
     kind: RunKind,
     run: RunRecord,
-    prep: { series: Record<string, StoredSeries>; runs: Record<string, RunRecord> },
+    prep: RunInputs,
     active: Active,
     publish: (e: RunEvent) => void,
+    owner: HolderSpec,
+    overTime: () => boolean,
   ): Promise<void> {
     const { store } = this;
     const { holder } = this.transport;
     let lastWrite = 0;
     let startedAt = Date.now();
-    const deadline = active.started + this.wallSeconds * 1000;
-    // Computed in this thread, a run sees the time limit by the clock (no timer fires while a
-    // chunk computes); in a worker pool the flag set by the timer reaches it.
-    const mustStop = () => {
-      if (!active.cancelled && Date.now() >= deadline) {
-        active.timedOut = true;
-        active.cancelled = true;
-      }
-      return active.cancelled;
-    };
+    const mustStop = () => overTime() || active.cancelled;
     const result = await this.executor.compute(kind, run.params, prep, {
       onStart: () => {
         startedAt = Date.now();
         publish({ type: "status", id: run.id, status: "running", progress: 0 });
       },
       progress: (f) => {
+        if (active.final) return;
         const elapsed = (Date.now() - startedAt) / 1000;
         const eta = f > 0.01 ? Math.max(0, elapsed * (1 - f) / f) : null;
         publish({ type: "progress", id: run.id, status: "running", progress: f, eta_seconds: eta });
@@ -567,8 +797,10 @@ export class RunService {
         : undefined,
     });
     if (mustStop()) throw new CancelledError();
-    const plain = toPlainJson(result) as Record<string, unknown>;
+    const plain = await this.finishResult(result, prep, this.lineage());
     const digest = await resultDigest(plain);
+    if (active.final) return;
+    active.final = true;
     const written = await store.updateLeased(run.id, holder, {
       status: "succeeded",
       progress: 1,
@@ -579,30 +811,38 @@ export class RunService {
     });
     if (!written) return;
     const finished = await store.getRun(run.id);
-    if (finished) await this.saveOutputs(kind, finished);
+    if (finished) await this.saveOutputs(kind, finished, owner);
     publish({ type: "status", id: run.id, status: "succeeded", progress: 1 });
   }
 
   /** Store the kind's auto-saved outputs as series derived from the run. */
-  async saveOutputs(kind: RunKind, run: RunRecord): Promise<{ output: string; id: string }[]> {
+  async saveOutputs(
+    kind: RunKind,
+    run: RunRecord,
+    holder: HolderSpec = DEFAULT_HOLDER,
+  ): Promise<{ output: string; id: string }[]> {
     const saved: { output: string; id: string }[] = [];
     const outputs = (run.result?.outputs ?? {}) as Record<string, OutputSeries>;
     for (const name of kind.autoSave ?? []) {
       const o = outputs[name];
       if (!o) continue;
-      saved.push({ output: name, id: await this.saveOutput(run, name) });
+      saved.push({ output: name, id: await this.saveOutput(run, name, holder) });
     }
     return saved;
   }
 
-  /** Save one output of a finished run as a stored series; returns its id. */
-  async saveOutput(run: RunRecord, name: string): Promise<string> {
+  /** Save one output of a finished run as a stored series held by `holder`; returns its id. */
+  async saveOutput(
+    run: RunRecord,
+    name: string,
+    holder: HolderSpec = DEFAULT_HOLDER,
+  ): Promise<string> {
     const o = (run.result?.outputs as Record<string, OutputSeries> | undefined)?.[name];
     if (!o) {
       throw new ProblemError("not-found", `run ${run.id} has no output named "${name}"`);
     }
     const s = await this.codec.fromOutput(o, run.id);
-    await this.store.putSeries(s);
+    await this.store.putSeries(s, holder);
     return s.id;
   }
 
@@ -640,6 +880,10 @@ export class RunService {
         ? "The recomputed result is byte-identical (same RFC 8785 canonical JSON digest)."
         : versionChanged
         ? `The algorithm of "${run.kind}" changed since this run (${run.algorithm_version} → ${kind.algorithmVersion}); the results differ.`
+        : await onlyInheritedAdded(run.result, again.result)
+        ? "The recomputed result equals the stored one except for its `inherited` part (the " +
+          "warnings and cautions of the runs it is built on), which results carry since a " +
+          "later service version than the one that made this run."
         : "The recomputed result differs from the stored one although the algorithm version is unchanged.",
       result: again.result,
     };
@@ -679,6 +923,16 @@ export class RunService {
   async settle(): Promise<void> {
     await this.transport.queue.settle();
   }
+}
+
+/** True when `again` is `stored` plus an `inherited` part that `stored` lacks. */
+async function onlyInheritedAdded(
+  stored: Record<string, unknown> | null,
+  again: Record<string, unknown> | null,
+): Promise<boolean> {
+  if (!stored || !again || "inherited" in stored || !("inherited" in again)) return false;
+  const { inherited: _, ...rest } = again;
+  return await resultDigest(rest) === await resultDigest(stored);
 }
 
 function findPointer(params: unknown, needle: string): string {

@@ -33,7 +33,12 @@ export const ProblemSchema = z.object({
   detail: z.string(),
   instance: z.string().optional(),
   request_id: z.string().optional(),
-  errors: z.array(FieldErrorSchema).optional(),
+  errors: z.array(FieldErrorSchema).max(20).optional().openapi({
+    description: "At most 20 bad fields; `errors_omitted` counts the others",
+  }),
+  errors_omitted: z.number().int().optional().openapi({
+    description: "Field errors found beyond those listed in `errors`",
+  }),
 }).openapi("Problem", { description: "RFC 9457 problem details (application/problem+json)" });
 
 export const problemContent = {
@@ -44,11 +49,14 @@ export const problemContent = {
 export function problems(...codes: number[]) {
   const text: Record<number, string> = {
     400: "Malformed request (e.g. JSON that does not parse)",
-    404: "Not found",
+    401: "An API key is required (`Authorization: Bearer <key>`) or the one given is not valid",
+    403: "The key's role or the item's owner does not allow this",
+    404: "Not found (or not shared with you)",
     409: "Conflict with the current state",
     413: "Body over the configured limit",
     415: "Unsupported media type",
     422: "Invalid input; `errors` names each bad field",
+    429: "Rate limit or quota exceeded; `Retry-After` says when to try again",
     500: "Unexpected failure (the body carries the request id, never a stack trace)",
   };
   return Object.fromEntries(
@@ -87,6 +95,11 @@ export const RunStatusSchema = z.enum(["queued", "running", "succeeded", "failed
 
 export const RunSummarySchema = z.object({
   id: z.string().openapi({ description: "UUIDv7" }),
+  label: z.string().openapi({
+    description: "Short label that tells runs apart (the last 8 hex digits of the id, its " +
+      "random part; the first digits are the creation time, shared by runs made within a " +
+      "minute), as chart titles and CSV headers show it",
+  }),
   kind: z.string(),
   created_at: z.string(),
   updated_at: z.string(),

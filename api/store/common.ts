@@ -5,7 +5,20 @@
  *
  * @module
  */
-import type { RunRecord, RunStatus, RunSummary, SeriesMeta, StoredSeries } from "./types.ts";
+import type {
+  ApiKeyRecord,
+  HolderSpec,
+  Holding,
+  OwnerRecord,
+  Role,
+  RunRecord,
+  RunStatus,
+  RunSummary,
+  SeriesMeta,
+  StoredSeries,
+  Visibility,
+} from "./types.ts";
+import { LOCAL_OWNER, VISIBILITIES } from "./types.ts";
 
 /** One schema step. Versions are consecutive from 1; never edit a released step, add one. */
 export interface Migration {
@@ -210,7 +223,10 @@ export function encodeRunPatch(
   const out: [string, string | number | null][] = [];
   const p: Record<string, unknown> = { ...patch, updated_at: patch.updated_at ?? now };
   for (const [key, value] of Object.entries(p)) {
-    if (value === undefined || key === "input_series" || key === "input_runs") continue;
+    if (
+      value === undefined || key === "input_series" || key === "input_runs" ||
+      key === "input_fields"
+    ) continue;
     const enc = RUN_PATCH_COLUMNS[key];
     if (!enc) throw new RangeError(`Cannot update run ${id}: unknown field "${key}"`);
     out.push([key, enc(value)]);
@@ -241,4 +257,58 @@ export function interruptedProblem(reason: string): {
     status: 500,
     detail: reason,
   };
+}
+
+/** The first schema step after the original one: owners, keys and holdings. */
+export const TENANCY_MIGRATION_NAME = "owners, api keys, series and run holdings";
+
+/** Rank of a visibility, narrowest first. */
+export function visibilityRank(v: Visibility): number {
+  return VISIBILITIES.indexOf(v);
+}
+
+/** The default holder of writes that name none: the local owner, private. */
+export const DEFAULT_HOLDER: HolderSpec = { owner: LOCAL_OWNER, visibility: "private" };
+
+/** An owner from a row of `owners`. */
+export function toOwner(r: DbRow): OwnerRecord {
+  return {
+    id: text(r.id),
+    name: text(r.name),
+    role: text(r.role) as Role,
+    group: text(r.group_name),
+    created_at: text(r.created_at),
+  };
+}
+
+/** A key from a row of `api_keys`. */
+export function toApiKey(r: DbRow): ApiKeyRecord {
+  return {
+    id: text(r.id),
+    owner: text(r.owner_id),
+    hash: text(r.key_hash),
+    label: textOrNull(r.label),
+    role: textOrNull(r.role) as Role | null,
+    created_at: text(r.created_at),
+    expires_at: textOrNull(r.expires_at),
+    revoked_at: textOrNull(r.revoked_at),
+  };
+}
+
+/** A holding from a row with `h_owner`, `h_visibility`, `h_created` columns. */
+export function toHolding(r: DbRow): Holding {
+  return {
+    owner: text(r.h_owner),
+    visibility: text(r.h_visibility) as Visibility,
+    created_at: text(r.h_created),
+  };
+}
+
+/** @throws {RangeError} naming the field when a visibility or role is not one of the words. */
+export function checkVisibility(where: string, v: string): void {
+  if (!(VISIBILITIES as readonly string[]).includes(v)) {
+    throw new RangeError(
+      `Cannot ${where}: visibility must be private, group or public, got "${v}"`,
+    );
+  }
 }

@@ -36,7 +36,7 @@ export class DuplicateRunError extends Error {
 export class MissingInputError extends Error {
   constructor(
     readonly runId: string,
-    readonly inputKind: "series" | "run",
+    readonly inputKind: "series" | "run" | "field",
     readonly inputId: string,
   ) {
     super(`Cannot record run "${runId}": its input ${inputKind} "${inputId}" is not stored`);
@@ -52,5 +52,13 @@ export class SchemaMismatchError extends Error {
   constructor(message: string) {
     super(message);
     this.name = "SchemaMismatchError";
+  }
+}
+
+/** `putOwner` was given an id that is already taken. */
+export class DuplicateOwnerError extends Error {
+  constructor(readonly ownerId: string) {
+    super(`Cannot add owner: an owner with id "${ownerId}" already exists`);
+    this.name = "DuplicateOwnerError";
   }
 }

@@ -14,25 +14,39 @@
  *   compression (`STORAGE EXTERNAL`: random doubles do not compress, trying costs time),
  *   sent and read as base64 text.
  * - Times and JSON are kept as text, exactly as written, like the SQLite store.
+ * - Owners, keys and holdings as in the SQLite store (same tables, same upgrade step: rows
+ *   stored before owners existed go to the local owner, private).
  *
  * @module
  */
 import postgres from "postgres";
 import { Buffer } from "node:buffer";
 import type {
+  ApiKeyRecord,
+  HolderSpec,
+  Holding,
+  OwnerRecord,
   Page,
   RunRecord,
   RunStatus,
   RunSummary,
   SeriesMeta,
+  SeriesUsage,
   Store,
   StoredSeries,
+  Viewer,
+  Visibility,
 } from "./types.ts";
+import type { FieldDescription, FieldFinal, FieldMeta, FieldStaging } from "./field_types.ts";
 import { bytesLEToFloat64, float64ToBytesLE } from "./float64_blob.ts";
+import { FIELD_MIGRATION_NAME, POSTGRES_FIELD_SQL } from "./field_common.ts";
+import { PostgresFields } from "./postgres_fields.ts";
 import {
   checkPaging,
   checkSeries,
+  checkVisibility,
   type DbRow,
+  DEFAULT_HOLDER,
   encodeRunPatch,
   interruptedProblem,
   jsonOrNull,
@@ -43,11 +57,16 @@ import {
   runValues,
   SERIES_META_COLUMNS,
   seriesMetaValues,
+  TENANCY_MIGRATION_NAME,
   text,
+  toApiKey,
+  toHolding,
+  toOwner,
   toRunSummary,
   toSeriesMeta,
 } from "./common.ts";
 import {
+  DuplicateOwnerError,
   DuplicateRunError,
   MissingInputError,
   RunNotFoundError,
@@ -141,7 +160,77 @@ export const POSTGRES_MIGRATIONS: readonly Migration[] = [
       CREATE INDEX runs_open ON runs (status) WHERE status IN ('queued', 'running');
     `,
   },
+  {
+    version: 3,
+    name: TENANCY_MIGRATION_NAME,
+    // Everything stored before owners existed goes to the built-in local owner, private.
+    sql: `
+      CREATE TABLE owners (
+        id TEXT PRIMARY KEY,
+        name TEXT NOT NULL,
+        role TEXT NOT NULL CHECK (role IN ('reader', 'writer', 'admin')),
+        group_name TEXT NOT NULL,
+        created_at TEXT NOT NULL
+      );
+      INSERT INTO owners (id, name, role, group_name, created_at)
+        VALUES ('local', 'Local owner', 'admin', 'default',
+          to_char(now() AT TIME ZONE 'UTC', 'YYYY-MM-DD"T"HH24:MI:SS.MS"Z"'));
+
+      CREATE TABLE api_keys (
+        id TEXT PRIMARY KEY,
+        owner_id TEXT NOT NULL REFERENCES owners (id),
+        key_hash TEXT NOT NULL,
+        label TEXT,
+        role TEXT CHECK (role IS NULL OR role IN ('reader', 'writer', 'admin')),
+        created_at TEXT NOT NULL,
+        expires_at TEXT,
+        revoked_at TEXT
+      );
+      CREATE INDEX api_keys_by_owner ON api_keys (owner_id, created_at);
+
+      CREATE TABLE series_holdings (
+        seq BIGSERIAL PRIMARY KEY,
+        series_id TEXT NOT NULL REFERENCES series (id) ON DELETE CASCADE,
+        owner_id TEXT NOT NULL REFERENCES owners (id),
+        visibility TEXT NOT NULL CHECK (visibility IN ('private', 'group', 'public')),
+        created_at TEXT NOT NULL,
+        UNIQUE (series_id, owner_id)
+      );
+      CREATE INDEX series_holdings_by_owner ON series_holdings (owner_id);
+      INSERT INTO series_holdings (series_id, owner_id, visibility, created_at)
+        SELECT id, 'local', 'private', created_at FROM series ORDER BY seq;
+
+      CREATE TABLE run_holdings (
+        seq BIGSERIAL PRIMARY KEY,
+        run_id TEXT NOT NULL REFERENCES runs (id) ON DELETE CASCADE,
+        owner_id TEXT NOT NULL REFERENCES owners (id),
+        visibility TEXT NOT NULL CHECK (visibility IN ('private', 'group', 'public')),
+        created_at TEXT NOT NULL,
+        UNIQUE (run_id, owner_id)
+      );
+      CREATE INDEX run_holdings_by_owner ON run_holdings (owner_id);
+      INSERT INTO run_holdings (run_id, owner_id, visibility, created_at)
+        SELECT id, 'local', 'private', created_at FROM runs ORDER BY seq;
+    `,
+  },
+  { version: 4, name: FIELD_MIGRATION_NAME, sql: POSTGRES_FIELD_SQL },
 ];
+
+const API_KEY_COLUMNS = [
+  "id",
+  "owner_id",
+  "key_hash",
+  "label",
+  "role",
+  "created_at",
+  "expires_at",
+  "revoked_at",
+] as const;
+
+/** The owner and visibility fields of a holding, as listings show them. */
+function viewOf(h: Holding): { created_at: string; owner: string; visibility: Visibility } {
+  return { created_at: h.created_at, owner: h.owner, visibility: h.visibility };
+}
 
 /** Options of {@link openPostgresStore}. */
 export interface PostgresStoreOptions {
@@ -192,8 +281,34 @@ export class PostgresStore implements Store {
   #sql: Sql;
 
   /** Use {@link openPostgresStore}; the constructor expects a migrated database. */
+  #fields: PostgresFields;
+
   constructor(sql: Sql) {
     this.#sql = sql;
+    this.#fields = new PostgresFields(sql, {
+      visible: (tx, h, v) => this.#visible(tx, h, v),
+      pickOrder: (tx, h, v) => this.#pickOrder(tx, h, v),
+    });
+  }
+
+  /** The visibility test of a holding aliased `h` for a viewer (a query fragment). */
+  #visible(tx: Sql | Tx, h: string, v: Viewer) {
+    const col = (c: string) => tx.unsafe(`${h}.${c}`);
+    if (v.admin) return tx`TRUE`;
+    if (v.owner === null) return tx`${col("visibility")} = 'public'`;
+    return tx`(${col("owner_id")} = ${v.owner} OR ${col("visibility")} = 'public' OR
+      (${col("visibility")} = 'group' AND EXISTS (
+        SELECT 1 FROM owners o WHERE o.id = ${col("owner_id")} AND o.group_name = ${
+      v.group ?? ""
+    })))`;
+  }
+
+  /** The order in which a viewer's holding is chosen: its own, then the widest, the oldest. */
+  #pickOrder(tx: Sql | Tx, h: string, v: Viewer) {
+    const col = (c: string) => tx.unsafe(`${h}.${c}`);
+    return tx`ORDER BY (${col("owner_id")} = ${v.owner ?? ""}) DESC,
+      CASE ${col("visibility")} WHEN 'public' THEN 0 WHEN 'group' THEN 1 ELSE 2 END,
+      ${col("seq")}`;
   }
 
   /** True when the server answers `SELECT 1` within `timeoutMs` (default 2 s). */
@@ -208,22 +323,50 @@ export class PostgresStore implements Store {
     }
   }
 
-  async putSeries(s: StoredSeries): Promise<{ created: boolean; series: SeriesMeta }> {
+  async putSeries(
+    s: StoredSeries,
+    holder: HolderSpec = DEFAULT_HOLDER,
+  ): Promise<{ created: boolean; series: SeriesMeta }> {
     checkSeries(s);
-    return await this.#sql.begin(async (tx: Tx) => {
-      const inserted = await tx`
-        INSERT INTO series ${tx(seriesRow(s))} ON CONFLICT (id) DO NOTHING RETURNING id`;
-      if (inserted.length === 0) {
-        const [row] = await tx`
-          SELECT ${tx([...SERIES_META_COLUMNS])} FROM series WHERE id = ${s.id}`;
-        return { created: false, series: toSeriesMeta(row) };
-      }
-      await tx`
-        INSERT INTO series_points (series_id, time, value, uncertainty) VALUES (
-          ${s.id}, decode(${toBase64(s.time)}, 'base64'), decode(${toBase64(s.value)}, 'base64'),
-          decode(${s.uncertainty === null ? null : toBase64(s.uncertainty)}, 'base64'))`;
-      return { created: true, series: metaOf(s) };
-    });
+    checkVisibility(`store series ${s.id}`, holder.visibility);
+    const attempt = () =>
+      this.#sql.begin(async (tx: Tx) => {
+        const inserted = await tx`
+          INSERT INTO series ${tx(seriesRow(s))} ON CONFLICT (id) DO NOTHING RETURNING id`;
+        let meta: SeriesMeta = metaOf(s);
+        if (inserted.length === 0) {
+          const [row] = await tx`
+            SELECT ${tx([...SERIES_META_COLUMNS])} FROM series WHERE id = ${s.id} FOR KEY SHARE`;
+          meta = toSeriesMeta(row);
+        } else {
+          await tx`
+            INSERT INTO series_points (series_id, time, value, uncertainty) VALUES (
+              ${s.id}, decode(${toBase64(s.time)}, 'base64'),
+              decode(${toBase64(s.value)}, 'base64'),
+              decode(${s.uncertainty === null ? null : toBase64(s.uncertainty)}, 'base64'))`;
+        }
+        const added = await tx`
+          INSERT INTO series_holdings (series_id, owner_id, visibility, created_at)
+          VALUES (${s.id}, ${holder.owner}, ${holder.visibility}, ${s.created_at})
+          ON CONFLICT (series_id, owner_id) DO NOTHING RETURNING seq`;
+        if (added.length) {
+          return {
+            created: true,
+            series: { ...meta, ...viewOf({ ...holder, created_at: s.created_at }) },
+          };
+        }
+        const [held] = await tx`
+          SELECT owner_id AS h_owner, visibility AS h_visibility, created_at AS h_created
+          FROM series_holdings WHERE series_id = ${s.id} AND owner_id = ${holder.owner}`;
+        return { created: false, series: { ...meta, ...viewOf(toHolding(held)) } };
+      });
+    try {
+      return await attempt();
+    } catch (e) {
+      // The content's last holding was deleted between the two inserts: store it afresh.
+      if ((e as { code?: string })?.code === "23503") return await attempt();
+      throw e;
+    }
   }
 
   async getSeries(id: string): Promise<StoredSeries | null> {
@@ -250,16 +393,121 @@ export class PostgresStore implements Store {
   }
 
   async listSeries(
-    q: { quantity?: string; limit: number; offset: number },
+    q: { quantity?: string; limit: number; offset: number; viewer?: Viewer },
   ): Promise<Page<SeriesMeta>> {
     checkPaging("list series", q.limit, q.offset);
     return await this.#sql.begin("ISOLATION LEVEL REPEATABLE READ READ ONLY", async (tx: Tx) => {
-      const where = q.quantity === undefined ? tx`` : tx`WHERE quantity = ${q.quantity}`;
-      const [{ n }] = await tx`SELECT count(*) AS n FROM series ${where}`;
+      if (q.viewer === undefined) {
+        const where = q.quantity === undefined ? tx`` : tx`WHERE quantity = ${q.quantity}`;
+        const [{ n }] = await tx`SELECT count(*) AS n FROM series ${where}`;
+        const rows = await tx`
+          SELECT ${tx([...SERIES_META_COLUMNS])} FROM series ${where}
+          ORDER BY created_at DESC, seq DESC LIMIT ${q.limit} OFFSET ${q.offset}`;
+        return { items: rows.map((r) => toSeriesMeta(r)), total: Number(n) };
+      }
+      const v = q.viewer;
+      const cond = q.quantity === undefined ? tx`` : tx`AND s.quantity = ${q.quantity}`;
+      const [{ n }] = await tx`
+        SELECT count(*) AS n FROM series s WHERE EXISTS (
+          SELECT 1 FROM series_holdings h2 WHERE h2.series_id = s.id AND ${
+        this.#visible(tx, "h2", v)
+      }) ${cond}`;
       const rows = await tx`
-        SELECT ${tx([...SERIES_META_COLUMNS])} FROM series ${where}
-        ORDER BY created_at DESC, seq DESC LIMIT ${q.limit} OFFSET ${q.offset}`;
-      return { items: rows.map((r) => toSeriesMeta(r)), total: Number(n) };
+        SELECT ${tx(SERIES_META_COLUMNS.map((c) => "s." + c))},
+          h.owner_id AS h_owner, h.visibility AS h_visibility, h.created_at AS h_created
+        FROM series s JOIN series_holdings h ON h.seq = (
+          SELECT h2.seq FROM series_holdings h2 WHERE h2.series_id = s.id AND ${
+        this.#visible(tx, "h2", v)
+      }
+          ${this.#pickOrder(tx, "h2", v)} LIMIT 1)
+        WHERE TRUE ${cond}
+        ORDER BY h.created_at DESC, h.seq DESC LIMIT ${q.limit} OFFSET ${q.offset}`;
+      return {
+        items: rows.map((r) => ({ ...toSeriesMeta(r), ...viewOf(toHolding(r)) })),
+        total: Number(n),
+      };
+    });
+  }
+
+  async #holding(table: "series_holdings" | "run_holdings", id: string, v: Viewer) {
+    const key = this.#sql.unsafe(table === "series_holdings" ? "h.series_id" : "h.run_id");
+    const rows = await this.#sql`
+      SELECT h.owner_id AS h_owner, h.visibility AS h_visibility, h.created_at AS h_created
+      FROM ${this.#sql(table)} h WHERE ${key} = ${id} AND ${this.#visible(this.#sql, "h", v)}
+      ${this.#pickOrder(this.#sql, "h", v)} LIMIT 1`;
+    return rows.length ? toHolding(rows[0]) : null;
+  }
+
+  async seriesHolding(id: string, viewer: Viewer): Promise<Holding | null> {
+    return await this.#holding("series_holdings", id, viewer);
+  }
+
+  async runHolding(id: string, viewer: Viewer): Promise<Holding | null> {
+    return await this.#holding("run_holdings", id, viewer);
+  }
+
+  async setSeriesVisibility(id: string, owner: string, visibility: Visibility): Promise<boolean> {
+    return await this.#setVisibility("series_holdings", "series_id", id, owner, visibility);
+  }
+
+  async setRunVisibility(id: string, owner: string, visibility: Visibility): Promise<boolean> {
+    return await this.#setVisibility("run_holdings", "run_id", id, owner, visibility);
+  }
+
+  async #setVisibility(
+    table: string,
+    key: string,
+    id: string,
+    owner: string,
+    visibility: Visibility,
+  ): Promise<boolean> {
+    checkVisibility(`share ${id}`, visibility);
+    const res = await this.#sql`
+      UPDATE ${this.#sql(table)} SET visibility = ${visibility}
+      WHERE ${this.#sql(key)} = ${id} AND owner_id = ${owner}`;
+    return res.count > 0;
+  }
+
+  async #usage(tx: Sql | Tx, id: string, owner: string): Promise<SeriesUsage> {
+    const own = await tx`
+      SELECT DISTINCT r.id, r.created_at, r.seq
+      FROM run_input_series l JOIN runs r ON r.id = l.run_id
+      JOIN run_holdings h ON h.run_id = r.id AND h.owner_id = ${owner}
+      WHERE l.series_id = ${id} ORDER BY r.created_at DESC, r.seq DESC`;
+    const [{ n }] = await tx`
+      SELECT count(DISTINCT l.run_id) AS n FROM run_input_series l
+      WHERE l.series_id = ${id} AND NOT EXISTS (
+        SELECT 1 FROM run_holdings h WHERE h.run_id = l.run_id AND h.owner_id = ${owner})`;
+    return { own: own.map((r) => text(r.id)), others: Number(n) };
+  }
+
+  async seriesUsage(id: string, owner: string): Promise<SeriesUsage> {
+    return await this.#usage(this.#sql, id, owner);
+  }
+
+  async deleteSeriesHolding(
+    id: string,
+    owner: string,
+  ): Promise<"deleted" | "not_found" | "in_use"> {
+    return await this.#sql.begin(async (tx: Tx) => {
+      // Lock the content row first, as deleteSeries and putRun do, so the checks hold.
+      const found = await tx`SELECT id FROM series WHERE id = ${id} FOR UPDATE`;
+      if (found.length === 0) return "not_found" as const;
+      const mine = await tx`
+        SELECT 1 FROM series_holdings WHERE series_id = ${id} AND owner_id = ${owner}`;
+      if (mine.length === 0) return "not_found" as const;
+      const usage = await this.#usage(tx, id, owner);
+      if (usage.own.length) return "in_use" as const;
+      const others = await tx`
+        SELECT 1 FROM series_holdings WHERE series_id = ${id} AND owner_id <> ${owner} LIMIT 1`;
+      if (others.length) {
+        await tx`DELETE FROM series_holdings WHERE series_id = ${id} AND owner_id = ${owner}`;
+        return "deleted" as const;
+      }
+      if (usage.others > 0) return "in_use" as const;
+      await tx`DELETE FROM series_points WHERE series_id = ${id}`;
+      await tx`DELETE FROM series WHERE id = ${id}`;
+      return "deleted" as const;
     });
   }
 
@@ -326,13 +574,31 @@ export class PostgresStore implements Store {
    * @throws {DuplicateRunError} when the id is taken.
    * @throws {MissingInputError} when an input series or input run is not stored.
    */
-  async putRun(r: RunRecord): Promise<void> {
+  async putRun(r: RunRecord, holder: HolderSpec = DEFAULT_HOLDER): Promise<void> {
+    checkVisibility(`insert run ${r.id}`, holder.visibility);
     await this.#sql.begin(async (tx: Tx) => {
       await this.#checkInputs(tx, r.id, r.input_series, r.input_runs);
       const inserted = await tx`
         INSERT INTO runs ${tx(runRow(r))} ON CONFLICT (id) DO NOTHING RETURNING id`;
       if (inserted.length === 0) throw new DuplicateRunError(r.id);
       await this.#writeLinks(tx, r.id, r.input_series, r.input_runs);
+      await this.#fields.linkRun(tx, r.id, r.input_fields ?? []);
+      await tx`
+        INSERT INTO run_holdings (run_id, owner_id, visibility, created_at)
+        VALUES (${r.id}, ${holder.owner}, ${holder.visibility}, ${r.created_at})`;
+    });
+  }
+
+  async addRunHolding(id: string, holder: HolderSpec): Promise<boolean> {
+    checkVisibility(`hold run ${id}`, holder.visibility);
+    return await this.#sql.begin(async (tx: Tx) => {
+      const found = await tx`SELECT id FROM runs WHERE id = ${id} FOR KEY SHARE`;
+      if (found.length === 0) throw new RunNotFoundError(id);
+      const added = await tx`
+        INSERT INTO run_holdings (run_id, owner_id, visibility, created_at)
+        VALUES (${id}, ${holder.owner}, ${holder.visibility}, ${new Date().toISOString()})
+        ON CONFLICT (run_id, owner_id) DO NOTHING RETURNING seq`;
+      return added.length > 0;
     });
   }
 
@@ -392,8 +658,10 @@ export class PostgresStore implements Store {
       if (rows.length === 0) return null;
       const row: DbRow = rows[0];
       const links = (await this.#links(tx, [id])).get(id)!;
+      const fields = await this.#fields.runFields(tx, id);
       const record: RunRecord = {
         ...toRunSummary(row, links.series, links.runs),
+        ...(fields.length ? { input_fields: fields } : {}),
         params: JSON.parse(text(row.params)),
         result: jsonOrNull(row.result),
         error: jsonOrNull(row.error),
@@ -403,30 +671,53 @@ export class PostgresStore implements Store {
   }
 
   async listRuns(
-    q: { kind?: string; status?: RunStatus; limit: number; offset: number },
+    q: { kind?: string; status?: RunStatus; limit: number; offset: number; viewer?: Viewer },
   ): Promise<Page<RunSummary>> {
     checkPaging("list runs", q.limit, q.offset);
     return await this.#sql.begin("ISOLATION LEVEL REPEATABLE READ READ ONLY", async (tx: Tx) => {
-      const kind = q.kind === undefined ? tx`` : tx`AND kind = ${q.kind}`;
-      const status = q.status === undefined ? tx`` : tx`AND status = ${q.status}`;
-      const [{ n }] = await tx`SELECT count(*) AS n FROM runs WHERE TRUE ${kind} ${status}`;
-      const rows = await tx`
-        SELECT ${tx([...RUN_SUMMARY_COLUMNS])} FROM runs WHERE TRUE ${kind} ${status}
-        ORDER BY created_at DESC, seq DESC LIMIT ${q.limit} OFFSET ${q.offset}`;
+      const kind = q.kind === undefined ? tx`` : tx`AND r.kind = ${q.kind}`;
+      const status = q.status === undefined ? tx`` : tx`AND r.status = ${q.status}`;
+      const cols = tx(RUN_SUMMARY_COLUMNS.map((c) => "r." + c));
+      const v = q.viewer;
+      const [{ n }] = v === undefined
+        ? await tx`SELECT count(*) AS n FROM runs r WHERE TRUE ${kind} ${status}`
+        : await tx`
+          SELECT count(*) AS n FROM runs r WHERE EXISTS (
+            SELECT 1 FROM run_holdings h2 WHERE h2.run_id = r.id AND ${
+          this.#visible(tx, "h2", v)
+        }) ${kind} ${status}`;
+      const rows = v === undefined
+        ? await tx`
+          SELECT ${cols} FROM runs r WHERE TRUE ${kind} ${status}
+          ORDER BY r.created_at DESC, r.seq DESC LIMIT ${q.limit} OFFSET ${q.offset}`
+        : await tx`
+          SELECT ${cols},
+            h.owner_id AS h_owner, h.visibility AS h_visibility, h.created_at AS h_created
+          FROM runs r JOIN run_holdings h ON h.seq = (
+            SELECT h2.seq FROM run_holdings h2 WHERE h2.run_id = r.id AND ${
+          this.#visible(tx, "h2", v)
+        }
+            ${this.#pickOrder(tx, "h2", v)} LIMIT 1)
+          WHERE TRUE ${kind} ${status}
+          ORDER BY r.created_at DESC, r.seq DESC LIMIT ${q.limit} OFFSET ${q.offset}`;
       const links = await this.#links(tx, rows.map((r) => text(r.id)));
       const items = rows.map((r) => {
         const l = links.get(text(r.id))!;
-        return toRunSummary(r, l.series, l.runs);
+        const summary = toRunSummary(r, l.series, l.runs);
+        return v === undefined ? summary : { ...summary, ...viewOf(toHolding(r)) };
       });
       return { items, total: Number(n) };
     });
   }
 
-  async runsUsingSeries(id: string): Promise<string[]> {
+  async runsUsingSeries(id: string, viewer?: Viewer): Promise<string[]> {
+    const vis = viewer ? this.#visible(this.#sql, "h", viewer) : this.#sql`TRUE`;
     const rows = await this.#sql`
       SELECT DISTINCT r.id, r.created_at, r.seq
       FROM run_input_series l JOIN runs r ON r.id = l.run_id
-      WHERE l.series_id = ${id} ORDER BY r.created_at DESC, r.seq DESC`;
+      WHERE l.series_id = ${id} AND EXISTS (
+        SELECT 1 FROM run_holdings h WHERE h.run_id = r.id AND ${vis})
+      ORDER BY r.created_at DESC, r.seq DESC`;
     return rows.map((r) => text(r.id));
   }
 
@@ -492,6 +783,148 @@ export class PostgresStore implements Store {
          OR (status = 'running' AND (lease_expires IS NULL OR
            lease_expires < now() - make_interval(secs => ${opts.graceSeconds ?? 0})))`;
     return res.count;
+  }
+
+  async putOwner(o: OwnerRecord): Promise<void> {
+    const rows = await this.#sql`
+      INSERT INTO owners (id, name, role, group_name, created_at)
+      VALUES (${o.id}, ${o.name}, ${o.role}, ${o.group}, ${o.created_at})
+      ON CONFLICT (id) DO NOTHING RETURNING id`;
+    if (rows.length === 0) throw new DuplicateOwnerError(o.id);
+  }
+
+  async getOwner(id: string): Promise<OwnerRecord | null> {
+    const rows = await this.#sql`
+      SELECT id, name, role, group_name, created_at FROM owners WHERE id = ${id}`;
+    return rows.length ? toOwner(rows[0]) : null;
+  }
+
+  async listOwners(): Promise<OwnerRecord[]> {
+    const rows = await this.#sql`
+      SELECT id, name, role, group_name, created_at FROM owners ORDER BY created_at, id`;
+    return rows.map((r) => toOwner(r));
+  }
+
+  async putApiKey(k: ApiKeyRecord): Promise<void> {
+    await this.#sql.begin(async (tx: Tx) => {
+      const owner = await tx`SELECT id FROM owners WHERE id = ${k.owner} FOR KEY SHARE`;
+      if (owner.length === 0) {
+        throw new RangeError(`Cannot add key ${k.id}: no owner has id "${k.owner}"`);
+      }
+      const rows = await tx`
+        INSERT INTO api_keys ${
+        tx({
+          id: k.id,
+          owner_id: k.owner,
+          key_hash: k.hash,
+          label: k.label,
+          role: k.role,
+          created_at: k.created_at,
+          expires_at: k.expires_at,
+          revoked_at: k.revoked_at,
+        })
+      } ON CONFLICT (id) DO NOTHING RETURNING id`;
+      if (rows.length === 0) throw new RangeError(`Cannot add key ${k.id}: the id is taken`);
+    });
+  }
+
+  async getApiKey(id: string): Promise<ApiKeyRecord | null> {
+    const rows = await this.#sql`
+      SELECT ${this.#sql([...API_KEY_COLUMNS])} FROM api_keys WHERE id = ${id}`;
+    return rows.length ? toApiKey(rows[0]) : null;
+  }
+
+  async listApiKeys(owner?: string): Promise<ApiKeyRecord[]> {
+    const where = owner === undefined ? this.#sql`` : this.#sql`WHERE owner_id = ${owner}`;
+    const rows = await this.#sql`
+      SELECT ${this.#sql([...API_KEY_COLUMNS])} FROM api_keys ${where} ORDER BY created_at, id`;
+    return rows.map((r) => toApiKey(r));
+  }
+
+  async revokeApiKey(id: string, at: string): Promise<boolean> {
+    const res = await this.#sql`
+      UPDATE api_keys SET revoked_at = ${at} WHERE id = ${id} AND revoked_at IS NULL`;
+    return res.count > 0;
+  }
+
+  async storedBytes(owner: string): Promise<number> {
+    const [{ n }] = await this.#sql`
+      SELECT
+        COALESCE((SELECT sum(s.n) FROM series_holdings h JOIN series s ON s.id = h.series_id
+                  WHERE h.owner_id = ${owner}), 0) * 24 +
+        COALESCE((SELECT sum(octet_length(r.params) + COALESCE(octet_length(r.result), 0))
+                  FROM run_holdings h JOIN runs r ON r.id = h.run_id
+                  WHERE h.owner_id = ${owner}), 0) +
+        COALESCE((SELECT sum(f.n_time::bigint * f.n_lat * f.n_lon) FROM field_holdings h
+                  JOIN fields f ON f.id = h.field_id WHERE h.owner_id = ${owner}), 0) * 4 AS n`;
+    return Number(n);
+  }
+
+  beginField(f: FieldStaging): Promise<number> {
+    return this.#fields.begin(f);
+  }
+
+  putFieldBlock(
+    stage: number,
+    index: number,
+    tStart: number,
+    rows: number,
+    values: Float32Array,
+  ): Promise<void> {
+    return this.#fields.putBlock(stage, index, tStart, rows, values);
+  }
+
+  commitField(
+    stage: number,
+    id: string,
+    final?: FieldFinal,
+    holder?: HolderSpec,
+  ): Promise<{ created: boolean; field: FieldMeta }> {
+    return this.#fields.commit(stage, id, final, holder);
+  }
+
+  abortField(stage: number): Promise<void> {
+    return this.#fields.abort(stage);
+  }
+
+  dropStagedFields(olderThanSeconds: number): Promise<number> {
+    return this.#fields.dropStaged(olderThanSeconds);
+  }
+
+  getField(id: string, viewer?: Viewer): Promise<FieldDescription | null> {
+    return this.#fields.get(id, viewer);
+  }
+
+  listFields(q: { limit: number; offset: number; viewer?: Viewer }): Promise<Page<FieldMeta>> {
+    return this.#fields.list(q);
+  }
+
+  fieldHolding(id: string, viewer: Viewer): Promise<Holding | null> {
+    return this.#fields.holding(id, viewer);
+  }
+
+  setFieldVisibility(id: string, owner: string, visibility: Visibility): Promise<boolean> {
+    return this.#fields.setVisibility(id, owner, visibility);
+  }
+
+  deleteFieldHolding(id: string, owner: string): Promise<"deleted" | "not_found" | "in_use"> {
+    return this.#fields.deleteHolding(id, owner);
+  }
+
+  readFieldSteps(id: string, tStart: number, tEnd: number): Promise<Float32Array> {
+    return this.#fields.readSteps(id, tStart, tEnd);
+  }
+
+  readFieldCell(id: string, cell: number): Promise<Float32Array> {
+    return this.#fields.readCell(id, cell);
+  }
+
+  deleteField(id: string): Promise<"deleted" | "not_found" | "in_use"> {
+    return this.#fields.delete(id);
+  }
+
+  runsUsingField(id: string): Promise<string[]> {
+    return this.#fields.runsUsing(id);
   }
 
   /** Applied schema steps, oldest first. */

@@ -14,28 +14,48 @@
  *   `runsUsingSeries` and the in-use check of `deleteSeries` are index look-ups. Both link
  *   tables are foreign keys: a run whose inputs are not stored is refused
  *   (`MissingInputError`), and no delete can leave a run pointing at nothing.
+ * - Owners, API keys (hashes only) and holdings: `series_holdings` and `run_holdings` say who
+ *   holds each series or run and with what visibility, keyed by (content id, owner), so the
+ *   same content uploaded by two owners is stored once and neither learns of the other.
+ *   Reads for a viewer pick the holding it may see (its own first) in SQL, so listings page
+ *   correctly.
  *
  * The methods are async to honour the `Store` interface, but each one runs synchronously to
- * completion: no transaction is ever held open across an `await`.
+ * completion: no transaction is ever held open across an `await`. A file store writes large
+ * series in a worker with its own connection (api/store/sqlite_writer.ts), so the request
+ * thread is not held by a long write.
  *
  * @module
  */
 import { DatabaseSync, type SQLInputValue, type StatementSync } from "node:sqlite";
 import { dirname } from "node:path";
 import type {
+  ApiKeyRecord,
+  HolderSpec,
+  Holding,
+  OwnerRecord,
   Page,
   RunRecord,
   RunStatus,
   RunSummary,
   SeriesMeta,
+  SeriesUsage,
   Store,
   StoredSeries,
+  Viewer,
+  Visibility,
 } from "./types.ts";
+import type { FieldDescription, FieldFinal, FieldMeta, FieldStaging } from "./field_types.ts";
 import { bytesLEToFloat64, float64ToBytesLE } from "./float64_blob.ts";
+import { FIELD_MIGRATION_NAME, SQLITE_FIELD_SQL } from "./field_common.ts";
+import { SqliteFields } from "./sqlite_fields.ts";
 import { TERMINAL } from "./types.ts";
+import { OFFLOAD_POINTS, SqliteWriter } from "./sqlite_writer.ts";
 import {
   checkPaging,
   checkSeries,
+  checkVisibility,
+  DEFAULT_HOLDER,
   encodeRunPatch,
   interruptedProblem,
   jsonOrNull,
@@ -46,11 +66,16 @@ import {
   runValues,
   SERIES_META_COLUMNS,
   seriesMetaValues,
+  TENANCY_MIGRATION_NAME,
   text,
+  toApiKey,
+  toHolding,
+  toOwner,
   toRunSummary,
   toSeriesMeta,
 } from "./common.ts";
 import {
+  DuplicateOwnerError,
   DuplicateRunError,
   MissingInputError,
   RunNotFoundError,
@@ -140,7 +165,90 @@ export const SQLITE_MIGRATIONS: readonly Migration[] = [
       CREATE INDEX runs_open ON runs (status) WHERE status IN ('queued', 'running');
     `,
   },
+  {
+    version: 3,
+    name: TENANCY_MIGRATION_NAME,
+    // Everything stored before owners existed goes to the built-in local owner, private.
+    sql: `
+      CREATE TABLE owners (
+        id TEXT PRIMARY KEY,
+        name TEXT NOT NULL,
+        role TEXT NOT NULL CHECK (role IN ('reader', 'writer', 'admin')),
+        group_name TEXT NOT NULL,
+        created_at TEXT NOT NULL
+      );
+      INSERT INTO owners (id, name, role, group_name, created_at)
+        VALUES ('local', 'Local owner', 'admin', 'default', strftime('%Y-%m-%dT%H:%M:%fZ', 'now'));
+
+      CREATE TABLE api_keys (
+        id TEXT PRIMARY KEY,
+        owner_id TEXT NOT NULL REFERENCES owners (id),
+        key_hash TEXT NOT NULL,
+        label TEXT,
+        role TEXT CHECK (role IS NULL OR role IN ('reader', 'writer', 'admin')),
+        created_at TEXT NOT NULL,
+        expires_at TEXT,
+        revoked_at TEXT
+      );
+      CREATE INDEX api_keys_by_owner ON api_keys (owner_id, created_at);
+
+      CREATE TABLE series_holdings (
+        seq INTEGER PRIMARY KEY AUTOINCREMENT,
+        series_id TEXT NOT NULL REFERENCES series (id) ON DELETE CASCADE,
+        owner_id TEXT NOT NULL REFERENCES owners (id),
+        visibility TEXT NOT NULL CHECK (visibility IN ('private', 'group', 'public')),
+        created_at TEXT NOT NULL,
+        UNIQUE (series_id, owner_id)
+      );
+      CREATE INDEX series_holdings_by_owner ON series_holdings (owner_id);
+      INSERT INTO series_holdings (series_id, owner_id, visibility, created_at)
+        SELECT id, 'local', 'private', created_at FROM series ORDER BY seq;
+
+      CREATE TABLE run_holdings (
+        seq INTEGER PRIMARY KEY AUTOINCREMENT,
+        run_id TEXT NOT NULL REFERENCES runs (id) ON DELETE CASCADE,
+        owner_id TEXT NOT NULL REFERENCES owners (id),
+        visibility TEXT NOT NULL CHECK (visibility IN ('private', 'group', 'public')),
+        created_at TEXT NOT NULL,
+        UNIQUE (run_id, owner_id)
+      );
+      CREATE INDEX run_holdings_by_owner ON run_holdings (owner_id);
+      INSERT INTO run_holdings (run_id, owner_id, visibility, created_at)
+        SELECT id, 'local', 'private', created_at FROM runs ORDER BY seq;
+    `,
+  },
+  { version: 4, name: FIELD_MIGRATION_NAME, sql: SQLITE_FIELD_SQL },
 ];
+
+/** The visibility test of a holding row aliased `h` for a viewer, with its arguments. */
+export function visibleTo(h: string, v: Viewer): { sql: string; args: SQLInputValue[] } {
+  if (v.admin) return { sql: "1 = 1", args: [] };
+  if (v.owner === null) return { sql: `${h}.visibility = 'public'`, args: [] };
+  return {
+    sql: `(${h}.owner_id = ? OR ${h}.visibility = 'public' OR (${h}.visibility = 'group' AND
+      EXISTS (SELECT 1 FROM owners o WHERE o.id = ${h}.owner_id AND o.group_name = ?)))`,
+    args: [v.owner, v.group ?? ""],
+  };
+}
+
+/** The order in which a viewer's holding is chosen: its own, then the widest, then the oldest. */
+export function pickOrder(h: string, v: Viewer): { sql: string; args: SQLInputValue[] } {
+  return {
+    sql: `ORDER BY (${h}.owner_id = ?) DESC,
+      CASE ${h}.visibility WHEN 'public' THEN 0 WHEN 'group' THEN 1 ELSE 2 END, ${h}.seq`,
+    args: [v.owner ?? ""],
+  };
+}
+
+const API_KEY_COLUMNS = "id, owner_id, key_hash, label, role, created_at, expires_at, revoked_at";
+
+/** The owner and visibility fields of a holding, as listings show them. */
+function viewOf(h: Holding): { created_at: string; owner: string; visibility: Visibility } {
+  return { created_at: h.created_at, owner: h.owner, visibility: h.visibility };
+}
+
+const HOLDING_COLUMNS =
+  "h.owner_id AS h_owner, h.visibility AS h_visibility, h.created_at AS h_created";
 
 /** Options of {@link openSqliteStore}. */
 export interface SqliteStoreOptions {
@@ -153,10 +261,14 @@ export interface SqliteStoreOptions {
   busyTimeoutMs?: number;
   /** Schema steps to apply; tests use this to simulate other versions. @default SQLITE_MIGRATIONS */
   migrations?: readonly Migration[];
+  /**
+   * Write series of more than OFFLOAD_POINTS points in a worker with its own connection (file
+   * stores only; see api/store/sqlite_writer.ts). @default true
+   */
+  offload?: boolean;
 }
 
 const SERIES_META = SERIES_META_COLUMNS.join(", ");
-const RUN_SUMMARY = RUN_SUMMARY_COLUMNS.join(", ");
 const RUN_ALL = RUN_COLUMNS.join(", ");
 const marks = (n: number) => Array(n).fill("?").join(", ");
 
@@ -177,10 +289,16 @@ export class SqliteStore implements Store {
   #db: DatabaseSync;
   #stmts = new Map<string, StatementSync>();
 
+  #writer: SqliteWriter | null;
+
   /** Use {@link openSqliteStore}; the constructor expects a database already migrated. */
-  constructor(db: DatabaseSync, readonly path: string) {
+  constructor(db: DatabaseSync, readonly path: string, writer: SqliteWriter | null = null) {
     this.#db = db;
+    this.#writer = writer;
+    this.#fields = new SqliteFields(db, { visibleTo, pickOrder });
   }
+
+  #fields: SqliteFields;
 
   #stmt(sql: string): StatementSync {
     let s = this.#stmts.get(sql);
@@ -262,25 +380,51 @@ export class SqliteStore implements Store {
     }));
   }
 
-  putSeries(s: StoredSeries): Promise<{ created: boolean; series: SeriesMeta }> {
+  putSeries(
+    s: StoredSeries,
+    holder: HolderSpec = DEFAULT_HOLDER,
+  ): Promise<{ created: boolean; series: SeriesMeta }> {
+    if (this.#writer && s.n > OFFLOAD_POINTS) {
+      try {
+        checkSeries(s);
+        checkVisibility(`store series ${s.id}`, holder.visibility);
+      } catch (e) {
+        return Promise.reject(e);
+      }
+      return this.#writer.putSeries(s, holder);
+    }
     return settle(() => {
       checkSeries(s);
+      checkVisibility(`store series ${s.id}`, holder.visibility);
       const out = this.#write(() => {
         const existing = this.#stmt(`SELECT ${SERIES_META} FROM series WHERE id = ?`)
           .get(s.id) as Row | undefined;
-        if (existing) return { created: false, series: toSeriesMeta(existing) };
+        const meta = existing ? toSeriesMeta(existing) : metaOf(s);
+        if (!existing) {
+          this.#stmt(
+            `INSERT INTO series (${SERIES_META}) VALUES (${marks(SERIES_META_COLUMNS.length)})`,
+          ).run(...seriesMetaValues(s));
+          this.#stmt(
+            "INSERT INTO series_points (series_id, time, value, uncertainty) VALUES (?, ?, ?, ?)",
+          ).run(
+            s.id,
+            float64ToBytesLE(s.time),
+            float64ToBytesLE(s.value),
+            s.uncertainty === null ? null : float64ToBytesLE(s.uncertainty),
+          );
+        }
+        const held = this.#stmt(
+          `SELECT ${HOLDING_COLUMNS} FROM series_holdings h WHERE h.series_id = ? AND h.owner_id = ?`,
+        ).get(s.id, holder.owner) as Row | undefined;
+        if (held) return { created: false, series: { ...meta, ...viewOf(toHolding(held)) } };
         this.#stmt(
-          `INSERT INTO series (${SERIES_META}) VALUES (${marks(SERIES_META_COLUMNS.length)})`,
-        ).run(...seriesMetaValues(s));
-        this.#stmt(
-          "INSERT INTO series_points (series_id, time, value, uncertainty) VALUES (?, ?, ?, ?)",
-        ).run(
-          s.id,
-          float64ToBytesLE(s.time),
-          float64ToBytesLE(s.value),
-          s.uncertainty === null ? null : float64ToBytesLE(s.uncertainty),
-        );
-        return { created: true, series: metaOf(s) };
+          `INSERT INTO series_holdings (series_id, owner_id, visibility, created_at)
+           VALUES (?, ?, ?, ?)`,
+        ).run(s.id, holder.owner, holder.visibility, s.created_at);
+        return {
+          created: true,
+          series: { ...meta, ...viewOf({ ...holder, created_at: s.created_at }) },
+        };
       });
       return out;
     });
@@ -316,23 +460,143 @@ export class SqliteStore implements Store {
     });
   }
 
-  listSeries(q: { quantity?: string; limit: number; offset: number }): Promise<Page<SeriesMeta>> {
+  listSeries(
+    q: { quantity?: string; limit: number; offset: number; viewer?: Viewer },
+  ): Promise<Page<SeriesMeta>> {
     return settle(() => {
       checkPaging("list series", q.limit, q.offset);
       const page = this.#read(() => {
         const where = q.quantity === undefined ? "" : "WHERE quantity = ?";
         const args: SQLInputValue[] = q.quantity === undefined ? [] : [q.quantity];
+        if (q.viewer === undefined) {
+          const total = Number(
+            (this.#stmt(`SELECT count(*) AS n FROM series ${where}`).get(...args) as Row).n,
+          );
+          const rows = this.#stmt(
+            `SELECT ${SERIES_META} FROM series ${where}
+             ORDER BY created_at DESC, seq DESC LIMIT ? OFFSET ?`,
+          ).all(...args, q.limit, q.offset) as Row[];
+          return { items: rows.map(toSeriesMeta), total };
+        }
+        const vis = visibleTo("h2", q.viewer);
+        const order = pickOrder("h2", q.viewer);
+        const cond = q.quantity === undefined ? "" : "AND s.quantity = ?";
         const total = Number(
-          (this.#stmt(`SELECT count(*) AS n FROM series ${where}`).get(...args) as Row).n,
+          (this.#stmt(
+            `SELECT count(*) AS n FROM series s WHERE EXISTS (
+               SELECT 1 FROM series_holdings h2 WHERE h2.series_id = s.id AND ${vis.sql}) ${cond}`,
+          ).get(...vis.args, ...args) as Row).n,
         );
         const rows = this.#stmt(
-          `SELECT ${SERIES_META} FROM series ${where}
-           ORDER BY created_at DESC, seq DESC LIMIT ? OFFSET ?`,
-        ).all(...args, q.limit, q.offset) as Row[];
-        return { items: rows.map(toSeriesMeta), total };
+          `SELECT ${SERIES_META_COLUMNS.map((c) => "s." + c).join(", ")}, ${HOLDING_COLUMNS}
+           FROM series s JOIN series_holdings h ON h.seq = (
+             SELECT h2.seq FROM series_holdings h2 WHERE h2.series_id = s.id AND ${vis.sql}
+             ${order.sql} LIMIT 1)
+           WHERE 1 = 1 ${cond}
+           ORDER BY h.created_at DESC, h.seq DESC LIMIT ? OFFSET ?`,
+        ).all(...vis.args, ...order.args, ...args, q.limit, q.offset) as Row[];
+        return {
+          items: rows.map((r) => {
+            const hold = toHolding(r);
+            return { ...toSeriesMeta(r), ...viewOf(hold) };
+          }),
+          total,
+        };
       });
       return page;
     });
+  }
+
+  seriesHolding(id: string, viewer: Viewer): Promise<Holding | null> {
+    return settle(() => this.#holding("series_holdings", "series_id", id, viewer));
+  }
+
+  runHolding(id: string, viewer: Viewer): Promise<Holding | null> {
+    return settle(() => this.#holding("run_holdings", "run_id", id, viewer));
+  }
+
+  #holding(table: string, key: string, id: string, viewer: Viewer): Holding | null {
+    const vis = visibleTo("h", viewer);
+    const order = pickOrder("h", viewer);
+    const row = this.#stmt(
+      `SELECT ${HOLDING_COLUMNS} FROM ${table} h WHERE h.${key} = ? AND ${vis.sql}
+       ${order.sql} LIMIT 1`,
+    ).get(id, ...vis.args, ...order.args) as Row | undefined;
+    return row ? toHolding(row) : null;
+  }
+
+  setSeriesVisibility(id: string, owner: string, visibility: Visibility): Promise<boolean> {
+    return this.#setVisibility("series_holdings", "series_id", id, owner, visibility);
+  }
+
+  setRunVisibility(id: string, owner: string, visibility: Visibility): Promise<boolean> {
+    return this.#setVisibility("run_holdings", "run_id", id, owner, visibility);
+  }
+
+  #setVisibility(
+    table: string,
+    key: string,
+    id: string,
+    owner: string,
+    visibility: Visibility,
+  ): Promise<boolean> {
+    return settle(() => {
+      checkVisibility(`share ${id}`, visibility);
+      return this.#write(() =>
+        Number(
+          this.#stmt(`UPDATE ${table} SET visibility = ? WHERE ${key} = ? AND owner_id = ?`)
+            .run(visibility, id, owner).changes,
+        ) > 0
+      );
+    });
+  }
+
+  #usage(id: string, owner: string): SeriesUsage {
+    const own = this.#stmt(
+      `SELECT DISTINCT r.id AS id, r.created_at AS created_at, r.seq AS seq
+       FROM run_input_series l JOIN runs r ON r.id = l.run_id
+       JOIN run_holdings h ON h.run_id = r.id AND h.owner_id = ?
+       WHERE l.series_id = ? ORDER BY r.created_at DESC, r.seq DESC`,
+    ).all(owner, id) as Row[];
+    const others = Number(
+      (this.#stmt(
+        `SELECT count(DISTINCT l.run_id) AS n FROM run_input_series l
+         WHERE l.series_id = ? AND NOT EXISTS (
+           SELECT 1 FROM run_holdings h WHERE h.run_id = l.run_id AND h.owner_id = ?)`,
+      ).get(id, owner) as Row).n,
+    );
+    return { own: own.map((r) => text(r.id)), others };
+  }
+
+  seriesUsage(id: string, owner: string): Promise<SeriesUsage> {
+    return settle(() => this.#read(() => this.#usage(id, owner)));
+  }
+
+  deleteSeriesHolding(id: string, owner: string): Promise<"deleted" | "not_found" | "in_use"> {
+    return settle(() =>
+      this.#write((): "deleted" | "not_found" | "in_use" => {
+        const mine = this.#stmt(
+          "SELECT 1 AS one FROM series_holdings WHERE series_id = ? AND owner_id = ?",
+        );
+        if (!mine.get(id, owner)) return "not_found";
+        const usage = this.#usage(id, owner);
+        if (usage.own.length) return "in_use";
+        const others = this.#stmt(
+          "SELECT 1 AS one FROM series_holdings WHERE series_id = ? AND owner_id <> ? LIMIT 1",
+        ).get(id, owner);
+        if (others) {
+          this.#stmt("DELETE FROM series_holdings WHERE series_id = ? AND owner_id = ?").run(
+            id,
+            owner,
+          );
+          return "deleted";
+        }
+        if (usage.others > 0) return "in_use";
+        this.#stmt("DELETE FROM series_points WHERE series_id = ?").run(id);
+        this.#stmt("DELETE FROM series WHERE id = ?").run(id);
+        return "deleted";
+      })
+    );
   }
 
   deleteSeries(id: string): Promise<"deleted" | "not_found" | "in_use"> {
@@ -379,8 +643,9 @@ export class SqliteStore implements Store {
    * @throws {DuplicateRunError} when the id is taken.
    * @throws {MissingInputError} when an input series or input run is not stored.
    */
-  putRun(r: RunRecord): Promise<void> {
+  putRun(r: RunRecord, holder: HolderSpec = DEFAULT_HOLDER): Promise<void> {
     return settle(() => {
+      checkVisibility(`insert run ${r.id}`, holder.visibility);
       this.#write(() => {
         if (this.#stmt("SELECT 1 AS one FROM runs WHERE id = ?").get(r.id)) {
           throw new DuplicateRunError(r.id);
@@ -390,8 +655,28 @@ export class SqliteStore implements Store {
           `INSERT INTO runs (${RUN_ALL}) VALUES (${marks(RUN_COLUMNS.length)})`,
         ).run(...runValues(r));
         this.#writeLinks(r.id, r.input_series, r.input_runs);
+        if (r.input_fields?.length) this.#fields.linkRun(r.id, r.input_fields);
+        this.#stmt(
+          `INSERT INTO run_holdings (run_id, owner_id, visibility, created_at) VALUES (?, ?, ?, ?)`,
+        ).run(r.id, holder.owner, holder.visibility, r.created_at);
       });
       return undefined;
+    });
+  }
+
+  addRunHolding(id: string, holder: HolderSpec): Promise<boolean> {
+    return settle(() => {
+      checkVisibility(`hold run ${id}`, holder.visibility);
+      return this.#write(() => {
+        if (!this.#stmt("SELECT 1 AS one FROM runs WHERE id = ?").get(id)) {
+          throw new RunNotFoundError(id);
+        }
+        const res = this.#stmt(
+          `INSERT INTO run_holdings (run_id, owner_id, visibility, created_at)
+           VALUES (?, ?, ?, ?) ON CONFLICT (run_id, owner_id) DO NOTHING`,
+        ).run(id, holder.owner, holder.visibility, new Date().toISOString());
+        return Number(res.changes) > 0;
+      });
     });
   }
 
@@ -463,8 +748,10 @@ export class SqliteStore implements Store {
         | undefined;
       if (!row) return null;
       const links = this.#links([id]).get(id)!;
+      const fields = this.#fields.runFields(id);
       const record: RunRecord = {
         ...toRunSummary(row, links.series, links.runs),
+        ...(fields.length ? { input_fields: fields } : {}),
         params: JSON.parse(text(row.params)),
         result: jsonOrNull(row.result),
         error: jsonOrNull(row.error),
@@ -474,7 +761,7 @@ export class SqliteStore implements Store {
   }
 
   listRuns(
-    q: { kind?: string; status?: RunStatus; limit: number; offset: number },
+    q: { kind?: string; status?: RunStatus; limit: number; offset: number; viewer?: Viewer },
   ): Promise<Page<RunSummary>> {
     return settle(() => {
       checkPaging("list runs", q.limit, q.offset);
@@ -482,25 +769,49 @@ export class SqliteStore implements Store {
         const conds: string[] = [];
         const args: SQLInputValue[] = [];
         if (q.kind !== undefined) {
-          conds.push("kind = ?");
+          conds.push("r.kind = ?");
           args.push(q.kind);
         }
         if (q.status !== undefined) {
-          conds.push("status = ?");
+          conds.push("r.status = ?");
           args.push(q.status);
         }
-        const where = conds.length ? "WHERE " + conds.join(" AND ") : "";
-        const total = Number(
-          (this.#stmt(`SELECT count(*) AS n FROM runs ${where}`).get(...args) as Row).n,
-        );
-        const rows = this.#stmt(
-          `SELECT ${RUN_SUMMARY} FROM runs ${where}
-           ORDER BY created_at DESC, seq DESC LIMIT ? OFFSET ?`,
-        ).all(...args, q.limit, q.offset) as Row[];
+        const cols = RUN_SUMMARY_COLUMNS.map((c) => "r." + c).join(", ");
+        let total: number;
+        let rows: Row[];
+        if (q.viewer === undefined) {
+          const where = conds.length ? "WHERE " + conds.join(" AND ") : "";
+          total = Number(
+            (this.#stmt(`SELECT count(*) AS n FROM runs r ${where}`).get(...args) as Row).n,
+          );
+          rows = this.#stmt(
+            `SELECT ${cols} FROM runs r ${where}
+             ORDER BY r.created_at DESC, r.seq DESC LIMIT ? OFFSET ?`,
+          ).all(...args, q.limit, q.offset) as Row[];
+        } else {
+          const vis = visibleTo("h2", q.viewer);
+          const order = pickOrder("h2", q.viewer);
+          const more = conds.length ? "AND " + conds.join(" AND ") : "";
+          total = Number(
+            (this.#stmt(
+              `SELECT count(*) AS n FROM runs r WHERE EXISTS (
+                 SELECT 1 FROM run_holdings h2 WHERE h2.run_id = r.id AND ${vis.sql}) ${more}`,
+            ).get(...vis.args, ...args) as Row).n,
+          );
+          rows = this.#stmt(
+            `SELECT ${cols}, ${HOLDING_COLUMNS}
+             FROM runs r JOIN run_holdings h ON h.seq = (
+               SELECT h2.seq FROM run_holdings h2 WHERE h2.run_id = r.id AND ${vis.sql}
+               ${order.sql} LIMIT 1)
+             WHERE 1 = 1 ${more}
+             ORDER BY r.created_at DESC, r.seq DESC LIMIT ? OFFSET ?`,
+          ).all(...vis.args, ...order.args, ...args, q.limit, q.offset) as Row[];
+        }
         const links = this.#links(rows.map((r) => text(r.id)));
         const items = rows.map((r) => {
           const l = links.get(text(r.id))!;
-          return toRunSummary(r, l.series, l.runs);
+          const summary = toRunSummary(r, l.series, l.runs);
+          return q.viewer === undefined ? summary : { ...summary, ...viewOf(toHolding(r)) };
         });
         return { items, total };
       });
@@ -508,13 +819,16 @@ export class SqliteStore implements Store {
     });
   }
 
-  runsUsingSeries(id: string): Promise<string[]> {
+  runsUsingSeries(id: string, viewer?: Viewer): Promise<string[]> {
     return settle(() => {
+      const vis = viewer ? visibleTo("h", viewer) : { sql: "1 = 1", args: [] };
       const rows = this.#stmt(
         `SELECT DISTINCT r.id AS id, r.created_at AS created_at, r.seq AS seq
          FROM run_input_series l JOIN runs r ON r.id = l.run_id
-         WHERE l.series_id = ? ORDER BY r.created_at DESC, r.seq DESC`,
-      ).all(id) as Row[];
+         WHERE l.series_id = ? AND EXISTS (
+           SELECT 1 FROM run_holdings h WHERE h.run_id = r.id AND ${vis.sql})
+         ORDER BY r.created_at DESC, r.seq DESC`,
+      ).all(id, ...vis.args) as Row[];
       return rows.map((r) => text(r.id));
     });
   }
@@ -611,14 +925,179 @@ export class SqliteStore implements Store {
     });
   }
 
-  close(): Promise<void> {
+  putOwner(o: OwnerRecord): Promise<void> {
     return settle(() => {
-      if (this.#db.isOpen) {
-        this.#stmts.clear();
-        this.#db.close();
-      }
+      this.#write(() => {
+        if (this.#stmt("SELECT 1 AS one FROM owners WHERE id = ?").get(o.id)) {
+          throw new DuplicateOwnerError(o.id);
+        }
+        this.#stmt(
+          "INSERT INTO owners (id, name, role, group_name, created_at) VALUES (?, ?, ?, ?, ?)",
+        ).run(o.id, o.name, o.role, o.group, o.created_at);
+      });
       return undefined;
     });
+  }
+
+  getOwner(id: string): Promise<OwnerRecord | null> {
+    return settle(() => {
+      const row = this.#stmt(
+        "SELECT id, name, role, group_name, created_at FROM owners WHERE id = ?",
+      ).get(id) as Row | undefined;
+      return row ? toOwner(row) : null;
+    });
+  }
+
+  listOwners(): Promise<OwnerRecord[]> {
+    return settle(() =>
+      (this.#stmt(
+        "SELECT id, name, role, group_name, created_at FROM owners ORDER BY created_at, id",
+      ).all() as Row[]).map(toOwner)
+    );
+  }
+
+  putApiKey(k: ApiKeyRecord): Promise<void> {
+    return settle(() => {
+      this.#write(() => {
+        if (!this.#stmt("SELECT 1 AS one FROM owners WHERE id = ?").get(k.owner)) {
+          throw new RangeError(`Cannot add key ${k.id}: no owner has id "${k.owner}"`);
+        }
+        if (this.#stmt("SELECT 1 AS one FROM api_keys WHERE id = ?").get(k.id)) {
+          throw new RangeError(`Cannot add key ${k.id}: the id is taken`);
+        }
+        this.#stmt(
+          `INSERT INTO api_keys (${API_KEY_COLUMNS}) VALUES (?, ?, ?, ?, ?, ?, ?, ?)`,
+        ).run(k.id, k.owner, k.hash, k.label, k.role, k.created_at, k.expires_at, k.revoked_at);
+      });
+      return undefined;
+    });
+  }
+
+  getApiKey(id: string): Promise<ApiKeyRecord | null> {
+    return settle(() => {
+      const row = this.#stmt(`SELECT ${API_KEY_COLUMNS} FROM api_keys WHERE id = ?`).get(id) as
+        | Row
+        | undefined;
+      return row ? toApiKey(row) : null;
+    });
+  }
+
+  listApiKeys(owner?: string): Promise<ApiKeyRecord[]> {
+    return settle(() => {
+      const rows = owner === undefined
+        ? this.#stmt(`SELECT ${API_KEY_COLUMNS} FROM api_keys ORDER BY created_at, id`).all()
+        : this.#stmt(
+          `SELECT ${API_KEY_COLUMNS} FROM api_keys WHERE owner_id = ? ORDER BY created_at, id`,
+        ).all(owner);
+      return (rows as Row[]).map(toApiKey);
+    });
+  }
+
+  revokeApiKey(id: string, at: string): Promise<boolean> {
+    return settle(() =>
+      this.#write(() =>
+        Number(
+          this.#stmt("UPDATE api_keys SET revoked_at = ? WHERE id = ? AND revoked_at IS NULL")
+            .run(at, id).changes,
+        ) > 0
+      )
+    );
+  }
+
+  storedBytes(owner: string): Promise<number> {
+    return settle(() => {
+      const row = this.#read(() =>
+        this.#stmt(
+          `SELECT
+             COALESCE((SELECT sum(s.n) FROM series_holdings h JOIN series s ON s.id = h.series_id
+                       WHERE h.owner_id = ?), 0) * 24 +
+             COALESCE((SELECT sum(length(CAST(r.params AS BLOB)) +
+                              COALESCE(length(CAST(r.result AS BLOB)), 0))
+                       FROM run_holdings h JOIN runs r ON r.id = h.run_id
+                       WHERE h.owner_id = ?), 0) +
+             COALESCE((SELECT sum(f.n_time * f.n_lat * f.n_lon) FROM field_holdings h
+                       JOIN fields f ON f.id = h.field_id WHERE h.owner_id = ?), 0) * 4 AS n`,
+        ).get(owner, owner, owner) as Row
+      );
+      return Number(row.n);
+    });
+  }
+
+  beginField(f: FieldStaging): Promise<number> {
+    return settle(() => this.#fields.begin(f));
+  }
+
+  putFieldBlock(
+    stage: number,
+    index: number,
+    tStart: number,
+    rows: number,
+    values: Float32Array,
+  ): Promise<void> {
+    return settle(() => this.#fields.putBlock(stage, index, tStart, rows, values));
+  }
+
+  commitField(
+    stage: number,
+    id: string,
+    final?: FieldFinal,
+    holder?: HolderSpec,
+  ): Promise<{ created: boolean; field: FieldMeta }> {
+    return settle(() => this.#fields.commit(stage, id, final, holder));
+  }
+
+  abortField(stage: number): Promise<void> {
+    return settle(() => this.#fields.abort(stage));
+  }
+
+  dropStagedFields(olderThanSeconds: number): Promise<number> {
+    return settle(() => this.#fields.dropStaged(olderThanSeconds));
+  }
+
+  getField(id: string, viewer?: Viewer): Promise<FieldDescription | null> {
+    return settle(() => this.#fields.get(id, viewer));
+  }
+
+  listFields(q: { limit: number; offset: number; viewer?: Viewer }): Promise<Page<FieldMeta>> {
+    return settle(() => this.#fields.list(q));
+  }
+
+  fieldHolding(id: string, viewer: Viewer): Promise<Holding | null> {
+    return settle(() => this.#fields.holding(id, viewer));
+  }
+
+  setFieldVisibility(id: string, owner: string, visibility: Visibility): Promise<boolean> {
+    return settle(() => this.#fields.setVisibility(id, owner, visibility));
+  }
+
+  deleteFieldHolding(id: string, owner: string): Promise<"deleted" | "not_found" | "in_use"> {
+    return settle(() => this.#fields.deleteHolding(id, owner));
+  }
+
+  readFieldSteps(id: string, tStart: number, tEnd: number): Promise<Float32Array> {
+    return settle(() => this.#fields.readSteps(id, tStart, tEnd));
+  }
+
+  readFieldCell(id: string, cell: number): Promise<Float32Array> {
+    return settle(() => this.#fields.readCell(id, cell));
+  }
+
+  deleteField(id: string): Promise<"deleted" | "not_found" | "in_use"> {
+    return settle(() => this.#fields.delete(id));
+  }
+
+  runsUsingField(id: string): Promise<string[]> {
+    return settle(() => this.#fields.runsUsing(id));
+  }
+
+  async close(): Promise<void> {
+    await this.#writer?.close();
+    this.#writer = null;
+    if (this.#db.isOpen) {
+      this.#stmts.clear();
+      this.#fields.clear();
+      this.#db.close();
+    }
   }
 }
 
@@ -711,5 +1190,7 @@ export async function openSqliteStore(options: SqliteStoreOptions): Promise<Sqli
     db.close();
     throw e;
   }
-  return new SqliteStore(db, path);
+  const offload = path !== ":memory:" && (options.offload ?? true);
+  const writer = offload ? new SqliteWriter(path, options.busyTimeoutMs ?? 10_000) : null;
+  return new SqliteStore(db, path, writer);
 }

@@ -79,6 +79,18 @@ export function fmt(v) {
   return JSON.stringify(v);
 }
 
+/**
+ * The short label of a run, as chart titles and CSV headers show it: the last 8 hex digits of
+ * its UUIDv7 id (the random part; the first digits are the creation time). The same rule as
+ * `api/runs/label.ts` (test/api/ui_test.ts checks that they agree).
+ * @param {string} id
+ */
+export function runLabel(id) {
+  return /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/.test(id)
+    ? id.slice(-8)
+    : id;
+}
+
 /** @param {string} iso */
 export function when(iso) {
   if (!iso) return "—";

@@ -8,7 +8,7 @@
  *
  * @module
  */
-import { h, pretty, when } from "./dom.js";
+import { h, pretty, runLabel, when } from "./dom.js";
 import { deref, objectSchema } from "./service.js";
 
 /**
@@ -19,7 +19,8 @@ import { deref, objectSchema } from "./service.js";
  * @property {HTMLElement} input
  * @property {HTMLElement} wrap
  * @property {HTMLElement} error
- * @property {boolean} main Shown before "More options".
+ * @property {boolean} main Shown before "More options": a required field, or one of the
+ *   alternatives of a required choice.
  * @property {(v: unknown) => void} [set] Fill the control with a value.
  * @property {() => Field[]} [children] Fields inside (rows of an array of records).
  * @property {string[]} [itemKeys] Keys of each record, for an array of records.
@@ -35,7 +36,10 @@ function isSeriesRef(doc, s) {
   if (!s) return false;
   if (typeof s.$ref === "string" && /\/(SeriesRef|SeriesId)$/.test(s.$ref)) return true;
   const d = deref(doc, s);
-  if (d.type === "string" && typeof d.pattern === "string" && d.pattern.includes("sha256")) {
+  if (
+    d.type === "string" && typeof d.pattern === "string" && d.pattern.includes("sha256") &&
+    !d.pattern.includes("field:")
+  ) {
     return true;
   }
   const alts = d.anyOf ?? d.oneOf;
@@ -79,6 +83,7 @@ function seriesOptions(series, name) {
   /** @type {[RegExp, string[]][]} */
   const rules = [
     [/temp|climate|response|target/, ["temperature_anomaly", "temperature"]],
+    [/forcing/, ["radiative_forcing"]],
     [/tsi|irradiance|measured/, ["tsi"]],
     [/facul|mg/, ["facular_index"]],
     [/area/, ["sunspot_area"]],
@@ -92,7 +97,20 @@ function seriesOptions(series, name) {
     return i < 0 ? prefer.length : i;
   };
   // Among equals, the longer record first.
-  return [...series].sort((a, b) => rank(a) - rank(b) || (b.n ?? 0) - (a.n ?? 0));
+  const sorted = [...series].sort((a, b) => rank(a) - rank(b) || (b.n ?? 0) - (a.n ?? 0));
+  return { options: sorted, fits: (/** @type {any} */ s) => prefer.includes(s?.quantity) };
+}
+
+/**
+ * The required choices of an object schema: "give exactly one of these fields", published as
+ * `oneOf` (or `anyOf`) of `required` lists.
+ * @param {any} s
+ * @returns {string[][]}
+ */
+export function requiredChoices(s) {
+  const alts = s?.oneOf ?? s?.anyOf;
+  if (!Array.isArray(alts) || alts.some((a) => !Array.isArray(a?.required))) return [];
+  return [alts.map((/** @type {any} */ a) => a.required).flat()];
 }
 
 /**
@@ -100,7 +118,7 @@ function seriesOptions(series, name) {
  * @param {any} doc
  * @param {any} schema
  * @param {string} prefix JSON Pointer prefix.
- * @param {{ series: any[], runs: any[], preselect?: string }} ctx
+ * @param {{ series: any[], runs: any[], preselect?: string, fields?: any[], field?: string }} ctx
  * @param {boolean} [optional] The object itself is optional: none of its fields is required.
  * @returns {Field[]}
  */
@@ -108,6 +126,12 @@ export function buildFields(doc, schema, prefix, ctx, optional = false) {
   const s = objectSchema(doc, schema);
   const props = s.properties ?? {};
   const required = new Set(s.required ?? []);
+  // Alternatives of a required choice are shown with the required fields; the first one that
+  // has a fitting value is preselected (e.g. `solar` before `solar_run`).
+  const choices = optional ? [] : requiredChoices(s);
+  const choiceOf = (/** @type {string} */ name) => choices.find((c) => c.includes(name));
+  /** @type {Set<string[]>} */
+  const filled = new Set();
   /** @type {Field[]} */
   const fields = [];
   for (const [name, raw] of Object.entries(props)) {
@@ -117,7 +141,13 @@ export function buildFields(doc, schema, prefix, ctx, optional = false) {
     const p = deref(doc, inner);
     const dflt = outer.default ?? p.default;
     const isRequired = !optional && required.has(name) && dflt === undefined && !nullable;
-    const description = outer.description ?? p.description ?? "";
+    const choice = choiceOf(name);
+    const text = outer.description ?? p.description ?? "";
+    const description = choice
+      ? `${text}${text === "" ? "" : /[.!?]\s*$/.test(text) ? " " : ". "}Give one of: ${
+        choice.map(pretty).join(", ")
+      }.`
+      : text;
     const label = pretty(name);
     const error = h("span", { class: "field-error", id: `${id}-err` });
     /** @type {HTMLElement} */
@@ -133,11 +163,16 @@ export function buildFields(doc, schema, prefix, ctx, optional = false) {
     let note = "";
     let wide = false;
     if (isSeriesRef(doc, inner)) {
-      const opts = seriesOptions(
+      const ranked = seriesOptions(
         ctx.series,
         /^series$/i.test(name) ? `${name} ${description}` : name,
       );
+      const opts = ranked.options;
       let chosen = opts[0]?.id;
+      // the first alternative of a choice with a fitting series is selected, not "(none)"
+      const preselect = isRequired ||
+        (choice !== undefined && !filled.has(choice) && ranked.fits(opts[0]));
+      if (choice && preselect) filled.add(choice);
       if (
         ctx.preselect && ctx.series.some((x) => x.id === ctx.preselect) &&
         !fields.some((f) => f.input.dataset.series)
@@ -149,7 +184,7 @@ export function buildFields(doc, schema, prefix, ctx, optional = false) {
         opts.map((x) =>
           h(
             "option",
-            { value: x.id, selected: x.id === chosen && isRequired },
+            { value: x.id, selected: x.id === chosen && preselect },
             `${x.name} — ${x.quantity}, ${x.start_date}–${x.end_date}`,
           )
         ),
@@ -161,7 +196,7 @@ export function buildFields(doc, schema, prefix, ctx, optional = false) {
       input = h(
         "select",
         { id, multiple: true, size: String(Math.min(6, Math.max(3, ctx.series.length))) },
-        seriesOptions(ctx.series, name).map((x) =>
+        seriesOptions(ctx.series, name).options.map((x) =>
           h("option", { value: x.id }, `${x.name} — ${x.quantity}`)
         ),
       );
@@ -232,6 +267,25 @@ export function buildFields(doc, schema, prefix, ctx, optional = false) {
         return t === "" ? undefined : Number(t);
       };
       set = (v) => (/** @type {HTMLInputElement} */ (input).value = String(v ?? ""));
+    } else if (
+      p.type === "string" && typeof p.pattern === "string" && p.pattern.includes("field:")
+    ) {
+      // a stored gridded field: pick one of the fields the caller can see
+      const sel = /** @type {HTMLSelectElement} */ (h(
+        "select",
+        { id },
+        (ctx.fields ?? []).map((f) =>
+          h(
+            "option",
+            { value: f.id, selected: f.id === ctx.field },
+            `${f.name} (${f.n_lat} × ${f.n_lon})`,
+          )
+        ),
+      ));
+      input = sel;
+      wide = true;
+      read = () => (sel.value === "" ? undefined : sel.value);
+      set = (v) => (sel.value = String(v ?? ""));
     } else if (p.type === "string") {
       const runLike = /run|model/i.test(name) ||
         (typeof p.pattern === "string" && p.pattern.includes("0-9a-f-"));
@@ -251,7 +305,11 @@ export function buildFields(doc, schema, prefix, ctx, optional = false) {
           "datalist",
           { id: listId },
           ctx.runs.filter(want).map((r) =>
-            h("option", { value: r.id }, `${pretty(r.kind)} · ${when(r.created_at)}`)
+            h(
+              "option",
+              { value: r.id },
+              `${pretty(r.kind)} run ${runLabel(r.id)} · ${when(r.created_at)}`,
+            )
           ),
         );
         input = h("span", null, input, list);
@@ -330,7 +388,8 @@ export function buildFields(doc, schema, prefix, ctx, optional = false) {
       wide = true;
     } else if (p.type === "object" && p.properties && !prefix.includes("/", 1)) {
       const sub = buildFields(doc, p, pointer, ctx, !isRequired);
-      fields.push(...sub);
+      // the fields of an alternative of a required choice (e.g. a sinusoid) are shown too
+      fields.push(...sub.map((f) => (choice ? { ...f, main: true } : f)));
       continue;
     } else if (
       p.type === "array" && ["number", "integer", "string"].includes(deref(doc, p.items)?.type)
@@ -390,7 +449,7 @@ export function buildFields(doc, schema, prefix, ctx, optional = false) {
       input: /** @type {HTMLElement} */ (control),
       wrap,
       error,
-      main: isRequired,
+      main: isRequired || choice !== undefined,
       set,
       children,
       itemKeys,

@@ -7,12 +7,13 @@
  * text, never parsed as HTML; charts (SVG from the service) are parsed as XML and stripped of
  * scripts and event handlers before they are shown.
  *
- * Views (in the URL fragment): #/series, #/series/{id}, #/runs, #/runs/{id}, #/upload,
- * #/analyse.
+ * Views (in the URL fragment): #/series, #/series/{id}, #/fields, #/fields/{id} (fields.js),
+ * #/runs, #/runs/{id}, #/upload, #/analyse.
  *
  * @module
  */
 import { curlScript, pythonSnippet } from "./snippets.js";
+import { fieldList, fieldView, mapDownloads } from "./fields.js";
 import {
   append,
   badge,
@@ -23,11 +24,23 @@ import {
   isScalar,
   metaList,
   pretty,
+  runLabel,
   seg,
   table,
   when,
 } from "./dom.js";
-import { call, deref, objectSchema, openApi, problemBox, quantities } from "./service.js";
+import {
+  apiKey,
+  authFetch,
+  call,
+  deref,
+  objectSchema,
+  openApi,
+  problemBox,
+  quantities,
+  setApiKey,
+  whenUnauthorized,
+} from "./service.js";
 import { buildFields, collect, markFields, nonNull } from "./forms.js";
 
 /** @typedef {import("./snippets.js").RequestSpec} RequestSpec */
@@ -193,10 +206,12 @@ async function drawChart(box) {
   const path = box.dataset.src ?? "";
   const width = Math.max(320, Math.min(1000, Math.round((box.clientWidth || 800) - 18)));
   const height = Math.max(240, Math.round(width * (width < 500 ? 0.75 : 0.5)));
-  const url = `${path}?width=${width}&height=${height}&theme=${effectiveTheme()}`;
+  const url = `${path}${
+    path.includes("?") ? "&" : "?"
+  }width=${width}&height=${height}&theme=${effectiveTheme()}`;
   let res;
   try {
-    res = await fetch(url);
+    res = await authFetch(url);
   } catch (e) {
     box.replaceChildren(h("p", { class: "muted" }, `Chart unavailable: ${e}`));
     return;
@@ -220,6 +235,25 @@ async function drawChart(box) {
 }
 
 /**
+ * A download link's click with a key set: a plain link cannot send the key, so fetch the file
+ * with it and save that.
+ * @param {MouseEvent} e
+ */
+async function keyedDownload(e) {
+  if (!apiKey()) return;
+  e.preventDefault();
+  const a = /** @type {HTMLAnchorElement} */ (e.currentTarget);
+  const res = await authFetch(a.href);
+  if (!res.ok) return;
+  const url = URL.createObjectURL(await res.blob());
+  const tmp = h("a", { href: url, download: a.download || "download" });
+  document.body.append(tmp);
+  tmp.click();
+  tmp.remove();
+  setTimeout(() => URL.revokeObjectURL(url), 10_000);
+}
+
+/**
  * A chart box for a service chart path; drawn once attached.
  * @param {string} path
  * @param {string} label
@@ -238,6 +272,11 @@ function redrawCharts() {
   for (const el of document.querySelectorAll("figure.chart[data-src]")) {
     drawChart(/** @type {HTMLElement} */ (el));
   }
+}
+
+/** The shared pieces the views of fields.js draw with. */
+function ui() {
+  return { show, chart, pager, snippets, keyedDownload, pageSize };
 }
 
 // ---------------------------------------------------------------------------------------------
@@ -290,6 +329,8 @@ async function render(navigated = false) {
     else if (section === "series") await seriesList(gen, query);
     else if (section === "runs" && parts[1]) await runView(gen, parts[1]);
     else if (section === "runs") await runList(gen, query);
+    else if (section === "fields" && parts[1]) await fieldView(gen, parts[1], query, ui());
+    else if (section === "fields") await fieldList(gen, query, ui());
     else if (section === "upload") await uploadView(gen);
     else if (section === "analyse") await analyseView(gen, query);
     else {show(
@@ -478,7 +519,7 @@ async function seriesView(gen, id) {
         ? callout(
           "warn",
           "Warnings of the run that produced it",
-          h("ul", null, warnings.map((/** @type {string} */ w) => h("li", null, w))),
+          h("ul", null, warnings.map((/** @type {any} */ w) => h("li", null, w))),
         )
         : null,
       cautions.length
@@ -512,7 +553,12 @@ async function seriesView(gen, id) {
       ),
       h(
         "a",
-        { class: "button ghost", href: `${path}?format=csv`, download: "series.csv" },
+        {
+          class: "button ghost",
+          href: `${path}?format=csv`,
+          download: "series.csv",
+          onclick: keyedDownload,
+        },
         "Download CSV",
       ),
       h("a", { class: "button ghost", href: path }, "JSON"),
@@ -533,7 +579,12 @@ async function seriesView(gen, id) {
       ["Source", s.source],
       [
         "Derived from run",
-        s.derived_from ? h("a", { href: `#/runs/${s.derived_from}` }, s.derived_from) : null,
+        s.derived_from
+          ? h("a", { href: `#/runs/${s.derived_from}`, title: s.derived_from }, [
+            "run ",
+            h("code", null, runLabel(s.derived_from)),
+          ])
+          : null,
       ],
       ["Stored", when(s.created_at)],
     ]),
@@ -544,7 +595,11 @@ async function seriesView(gen, id) {
     h(
       "p",
       null,
-      h("a", { href: `${path}?format=csv`, download: "series.csv" }, "All points as CSV"),
+      h(
+        "a",
+        { href: `${path}?format=csv`, download: "series.csv", onclick: keyedDownload },
+        "All points as CSV",
+      ),
     ),
     snippets([req, csvReq, chartReq]).el,
   );
@@ -575,7 +630,8 @@ async function runList(gen, query) {
   const kinds = Object.keys(version.data?.algorithms ?? {}).sort();
   const items = /** @type {any[]} */ (r.data.items);
   const rows = items.map((run) => [
-    h("a", { href: `#/runs/${run.id}` }, pretty(run.kind)),
+    h("a", { href: `#/runs/${run.id}`, title: run.id }, h("code", null, runLabel(run.id))),
+    pretty(run.kind),
     badge(run.status),
     run.status === "running" ? `${Math.round(run.progress * 100)} %` : "",
     when(run.created_at),
@@ -606,13 +662,15 @@ async function runList(gen, query) {
       ),
       h("a", { class: "button", href: "#/analyse" }, "Start an analysis"),
     ),
-    items.length ? table(["Kind", "Status", "Progress", "Created", "Result digest"], rows) : h(
-      "p",
-      { class: "muted", id: "empty" },
-      "No runs yet. ",
-      h("a", { href: "#/analyse" }, "Start an analysis"),
-      ".",
-    ),
+    items.length
+      ? table(["Run", "Kind", "Status", "Progress", "Created", "Result digest"], rows)
+      : h(
+        "p",
+        { class: "muted", id: "empty" },
+        "No runs yet. ",
+        h("a", { href: "#/analyse" }, "Start an analysis"),
+        ".",
+      ),
     pager("#/runs", query, offset, r.data.total, items.length),
     snippets([req]).el,
   );
@@ -657,7 +715,7 @@ function resultParts(result) {
     }
   };
   for (const [k, v] of Object.entries(result)) {
-    if (k === "outputs" || k === "warnings" || k === "cautions") continue;
+    if (["outputs", "warnings", "cautions", "inherited"].includes(k)) continue;
     visit(k, v, 0);
   }
   return { scalars, tables };
@@ -743,7 +801,7 @@ function outputTable(runId, name, o) {
     h(
       "div",
       { class: "actions" },
-      h("a", { href, download: `${name}.csv` }, `All ${n} rows as CSV`),
+      h("a", { href, download: `${name}.csv`, onclick: keyedDownload }, `All ${n} rows as CSV`),
       saveButton(runId, name),
     ),
   );
@@ -811,8 +869,23 @@ async function runView(gen, id) {
   }
 
   const result = isObject(run.result) ? run.result : {};
-  const warnings = Array.isArray(result.warnings) ? result.warnings : [];
-  const cautions = Array.isArray(result.cautions) ? result.cautions : [];
+  // The run's own warnings and cautions, then those of the runs it is built on (linked).
+  const inherited = Array.isArray(result.inherited) ? result.inherited : [];
+  /** @param {"warning" | "caution"} level */
+  const fromRuns = (level) =>
+    inherited.filter((/** @type {any} */ n) => n.level === level).map((/** @type {any} */ n) => [
+      h("a", { href: `#/runs/${seg(n.run)}` }, `From ${pretty(n.kind)} run ${runLabel(n.run)}`),
+      ": ",
+      n.text,
+    ]);
+  const warnings = [
+    ...(Array.isArray(result.warnings) ? result.warnings : []),
+    ...fromRuns("warning"),
+  ];
+  const cautions = [
+    ...(Array.isArray(result.cautions) ? result.cautions : []),
+    ...fromRuns("caution"),
+  ];
   const outputs = isObject(result.outputs) ? Object.entries(result.outputs) : [];
   const { scalars, tables } = resultParts(result);
   if (run.status === "succeeded") {
@@ -859,7 +932,7 @@ async function runView(gen, id) {
       )
     ),
     ...(run.input_runs ?? []).map((/** @type {string} */ s) =>
-      h("a", { href: `#/runs/${s}` }, h("code", null, `run ${s}`))
+      h("a", { href: `#/runs/${s}`, title: s }, h("code", null, `run ${runLabel(s)}`))
     ),
   ];
 
@@ -867,7 +940,7 @@ async function runView(gen, id) {
     gen,
     `${pretty(run.kind)} run`,
     h("p", { class: "muted" }, h("a", { href: "#/runs" }, "← All runs")),
-    h("h1", null, `${pretty(run.kind)} run`),
+    h("h1", null, `${pretty(run.kind)} run ${runLabel(run.id)}`),
     statusLine,
     live,
     run.status === "failed" && run.error ? problemBox(run.error, "The run failed") : null,
@@ -878,19 +951,20 @@ async function runView(gen, id) {
       ? callout(
         "warn",
         "Warnings",
-        h("ul", null, warnings.map((/** @type {string} */ w) => h("li", null, w))),
+        h("ul", null, warnings.map((/** @type {any} */ w) => h("li", null, w))),
       )
       : null,
     cautions.length
       ? callout(
         "",
         "Cautions",
-        h("ul", { class: "cautions" }, cautions.map((/** @type {string} */ c) => h("li", null, c))),
+        h("ul", { class: "cautions" }, cautions.map((/** @type {any} */ c) => h("li", null, c))),
       )
       : null,
     run.status === "succeeded"
       ? chart(`${path}/chart.svg`, `Chart of the ${pretty(run.kind)} run`)
       : null,
+    run.status === "succeeded" && isObject(result.map) ? mapDownloads(run.id, ui()) : null,
     run.status === "succeeded" ? replayPanel(path) : null,
     scalars.length
       ? [
@@ -992,17 +1066,18 @@ function liveProgress(gen, run) {
       text.textContent = `${d.status ?? "running"} · ${Math.round(d.progress * 100)} %${eta}`;
     }
     if (FINAL.has(d.status)) {
-      es.close();
+      es?.close();
       finish();
     }
   };
-  const es = new EventSource(`/v1/runs/${run.id}/events`);
-  es.addEventListener("progress", onEvent);
-  es.addEventListener("status", onEvent);
+  // An EventSource cannot send the key: with a key, the page polls the run instead.
+  const es = apiKey() ? null : new EventSource(`/v1/runs/${run.id}/events`);
+  es?.addEventListener("progress", onEvent);
+  es?.addEventListener("status", onEvent);
   // If the stream drops, fall back to polling the run until it finishes.
-  es.onerror = () => {
+  const poller = () => {
     if (done) return;
-    es.close();
+    es?.close();
     const poll = setInterval(async () => {
       const r = await call({ method: "GET", path: `/v1/runs/${run.id}` });
       if (r.ok) onEvent(new MessageEvent("status", { data: JSON.stringify(r.data) }));
@@ -1013,9 +1088,11 @@ function liveProgress(gen, run) {
     }, 1000);
     cleanups.push(() => clearInterval(poll));
   };
+  if (es) es.onerror = poller;
+  else poller();
   cleanups.push(() => {
     done = true;
-    es.close();
+    es?.close();
   });
   return box;
 }
@@ -1084,11 +1161,12 @@ function replayPanel(path) {
 
 /** @param {number} gen @param {URLSearchParams} query */
 async function analyseView(gen, query) {
-  const [doc, indexRes, seriesRes, runsRes] = await Promise.all([
+  const [doc, indexRes, seriesRes, runsRes, fieldsRes] = await Promise.all([
     openApi(),
     call({ method: "GET", path: "/v1/analyses" }),
     call({ method: "GET", path: "/v1/series", query: { limit: 500 } }),
     call({ method: "GET", path: "/v1/runs", query: { limit: 200, status: "succeeded" } }),
+    call({ method: "GET", path: "/v1/fields", query: { limit: 200 } }),
   ]);
   const series = seriesRes.ok ? seriesRes.data.items : [];
   const runs = runsRes.ok ? runsRes.data.items : [];
@@ -1167,6 +1245,8 @@ async function analyseView(gen, query) {
     series,
     runs,
     preselect: query.get("series") ?? undefined,
+    fields: fieldsRes.ok ? fieldsRes.data.items : [],
+    field: query.get("field") ?? undefined,
   });
   const mainFields = fields.filter((f) => f.main);
   const moreFields = fields.filter((f) => !f.main);
@@ -1745,5 +1825,54 @@ matchMedia("(prefers-color-scheme: dark)").addEventListener(
   () => theme === "auto" && redrawCharts(),
 );
 
+// ---------------------------------------------------------------------------------------------
+// API key: asked for when the instance requires one, kept for this tab only
+
+const keyButton = /** @type {HTMLButtonElement} */ (document.getElementById("key"));
+const keyDialog = /** @type {HTMLDialogElement} */ (document.getElementById("key-dialog"));
+const keyForm = /** @type {HTMLFormElement} */ (document.getElementById("key-form"));
+const keyInput = /** @type {HTMLInputElement} */ (document.getElementById("key-input"));
+const keyMessage = /** @type {HTMLElement} */ (document.getElementById("key-message"));
+
+/** Show who the page acts as, from `GET /v1/me`. */
+async function showIdentity() {
+  const me = await call({ method: "GET", path: "/v1/me" });
+  if (!me.ok) {
+    keyButton.textContent = "API key…";
+    return me;
+  }
+  keyButton.hidden = !me.data.keys_required && !apiKey();
+  keyButton.textContent = me.data.owner ? `Key: ${me.data.owner} (${me.data.role})` : "API key…";
+  return me;
+}
+
+/** @param {string} message */
+function askForKey(message) {
+  keyMessage.textContent = message;
+  keyInput.value = "";
+  if (!keyDialog.open) keyDialog.showModal();
+}
+
+keyButton.addEventListener("click", () =>
+  askForKey(
+    apiKey()
+      ? "This tab uses a key. Give another, or clear the field to forget it."
+      : "This instance requires an API key for anything not public. Ask its admin for one.",
+  ));
+keyForm.addEventListener("submit", async (e) => {
+  e.preventDefault();
+  setApiKey(keyInput.value.trim());
+  keyDialog.close();
+  await showIdentity();
+  render(true);
+});
+document.getElementById("key-cancel")?.addEventListener("click", () => keyDialog.close());
+whenUnauthorized((detail) => askForKey(detail));
+
 addEventListener("hashchange", () => render(true));
+showIdentity().then((me) => {
+  if (me.ok && me.data.keys_required && !apiKey()) {
+    askForKey("This instance requires an API key; without one you see public items only.");
+  }
+});
 render();

@@ -16,6 +16,7 @@ import snippetsJs from "./snippets.js" with { type: "text" };
 import domJs from "./dom.js" with { type: "text" };
 import serviceJs from "./service.js" with { type: "text" };
 import formsJs from "./forms.js" with { type: "text" };
+import fieldsJs from "./fields.js" with { type: "text" };
 import icon from "./icon.svg" with { type: "text" };
 
 /** Content Security Policy of the page: only this origin; inline styles for chart SVGs. */
@@ -46,6 +47,7 @@ export const UI_ASSETS: readonly Asset[] = [
   { path: "/ui/dom.js", type: "text/javascript; charset=utf-8", body: domJs },
   { path: "/ui/service.js", type: "text/javascript; charset=utf-8", body: serviceJs },
   { path: "/ui/forms.js", type: "text/javascript; charset=utf-8", body: formsJs },
+  { path: "/ui/fields.js", type: "text/javascript; charset=utf-8", body: fieldsJs },
   { path: "/ui/icon.svg", type: "image/svg+xml", body: icon },
 ];
 

@@ -12,6 +12,70 @@ import { callout, fmt, h, table } from "./dom.js";
 
 /** @typedef {import("./snippets.js").RequestSpec} RequestSpec */
 
+const KEY_STORAGE = "sunlag-key";
+
+/**
+ * The API key the user gave this tab (kept in sessionStorage: it goes with the tab, never to
+ * another site, and is never put in a URL or a snippet), or "".
+ * @returns {string}
+ */
+export function apiKey() {
+  try {
+    return sessionStorage.getItem(KEY_STORAGE) ?? "";
+  } catch {
+    return "";
+  }
+}
+
+/**
+ * Remember (or with "" forget) the key for this tab.
+ * @param {string} key
+ */
+export function setApiKey(key) {
+  try {
+    if (key) sessionStorage.setItem(KEY_STORAGE, key);
+    else sessionStorage.removeItem(KEY_STORAGE);
+  } catch {
+    // storage unavailable: the key is not kept
+  }
+}
+
+/**
+ * Headers every request of the page carries: the key, when one is set, and a header that
+ * marks the request as the page's own (never a simple cross-site request).
+ * @returns {Record<string, string>}
+ */
+export function pageHeaders() {
+  const key = apiKey();
+  return {
+    "X-Requested-With": "sunlag-page",
+    ...(key ? { Authorization: `Bearer ${key}` } : {}),
+  };
+}
+
+/**
+ * `fetch` with the page's headers.
+ * @param {string} url
+ * @param {RequestInit} [init]
+ */
+export function authFetch(url, init = {}) {
+  return fetch(url, {
+    ...init,
+    headers: { ...pageHeaders(), ...(/** @type {Record<string, string>} */ (init.headers ?? {})) },
+  });
+}
+
+/** @type {((detail: string) => void) | null} */
+let onUnauthorized = null;
+
+/**
+ * Register what to do when the service answers 401 (the page asks for a key).
+ * @param {(detail: string) => void} fn
+ */
+export function whenUnauthorized(fn) {
+  onUnauthorized = fn;
+}
+
 /**
  * Make a request as described by `req`.
  * @param {RequestSpec} req
@@ -20,7 +84,7 @@ import { callout, fmt, h, table } from "./dom.js";
  */
 export async function call(req, extra = {}) {
   /** @type {Record<string, string>} */
-  const headers = { Accept: "application/json", ...(req.headers ?? {}) };
+  const headers = { Accept: "application/json", ...pageHeaders(), ...(req.headers ?? {}) };
   /** @type {string | undefined} */
   let body;
   if (req.json !== undefined) {
@@ -42,6 +106,7 @@ export async function call(req, extra = {}) {
   }
   const ct = res.headers.get("content-type") ?? "";
   const data = ct.includes("json") ? await res.json().catch(() => null) : await res.text();
+  if (res.status === 401) onUnauthorized?.(data?.detail ?? "This instance needs an API key.");
   return { status: res.status, ok: res.ok, data };
 }
 
@@ -49,7 +114,7 @@ export async function call(req, extra = {}) {
 let openApiDoc = null;
 /** The OpenAPI document (once per page load): forms are built from its schemas. */
 export function openApi() {
-  openApiDoc ??= fetch("/v1/openapi.json").then((r) => r.json()).catch(() => ({ paths: {} }));
+  openApiDoc ??= authFetch("/v1/openapi.json").then((r) => r.json()).catch(() => ({ paths: {} }));
   return openApiDoc;
 }
 

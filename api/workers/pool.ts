@@ -24,8 +24,7 @@
  *
  * @module
  */
-import type { RunRecord, StoredSeries } from "../store/types.ts";
-import type { RunKind, RunResult } from "../runs/kind.ts";
+import type { RunInputs, RunKind, RunResult } from "../runs/kind.ts";
 import { CancelledError, InputProblem } from "../runs/kind.ts";
 import { InputError } from "../../core/errors.ts";
 import type { ComputeExecutor, ComputeHooks } from "../runs/service.ts";
@@ -100,6 +99,22 @@ function revive(e: SerialisedError): Error {
   if (e.name === "InputError" && e.input) return new InputError(e.message, e.input);
   if (e.name === "CancelledError" || e.name === "StoppedError") return new CancelledError();
   return Object.assign(new Error(e.message), { name: e.name });
+}
+
+/**
+ * The inputs with each gridded field's values in a `SharedArrayBuffer` (one copy here): the
+ * worker reads them without a copy of its own, and a run sent again to a fresh worker (see
+ * `replace`) still has them, which a transferred buffer would not.
+ */
+function withSharedFields(inputs: RunInputs): RunInputs {
+  if (!inputs.fields) return inputs;
+  const fields: NonNullable<RunInputs["fields"]> = {};
+  for (const [id, f] of Object.entries(inputs.fields)) {
+    const shared = new Float32Array(new SharedArrayBuffer(f.values.byteLength));
+    shared.set(f.values);
+    fields[id] = { ...f, values: shared };
+  }
+  return { ...inputs, fields };
 }
 
 /** A job's load on its worker: 0 while it is a run waiting for its chunks. */
@@ -359,7 +374,7 @@ export class WorkerPool implements ComputeExecutor {
   compute(
     kind: RunKind,
     params: Record<string, unknown>,
-    inputs: { series: Record<string, StoredSeries>; runs: Record<string, RunRecord> },
+    inputs: RunInputs,
     hooks: ComputeHooks,
   ): Promise<RunResult> {
     const id = this.nextJob++;
@@ -375,7 +390,14 @@ export class WorkerPool implements ComputeExecutor {
       this.enqueue({
         id,
         type: "run",
-        message: { type: "run", job: id, kind: kind.kind, params, inputs, stop: control.flag },
+        message: {
+          type: "run",
+          job: id,
+          kind: kind.kind,
+          params,
+          inputs: withSharedFields(inputs),
+          stop: control.flag,
+        },
         transfer: [],
         transferred: false,
         control,

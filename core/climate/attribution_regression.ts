@@ -48,6 +48,12 @@ export interface AttributionOptions extends StopOptions {
   level?: number;
   /** Largest number of lag combinations searched exhaustively. @default 1000 */
   exhaustiveLimit?: number;
+  /**
+   * Index in y of the first fitted observation. @default the largest candidate lag (the
+   * common sample of every lag combination). A later start keeps the sample of another search
+   * whose lag ranges were wider (so AIC and p-values stay comparable with it).
+   */
+  firstIndex?: number;
 }
 
 /** Per-coefficient result. */
@@ -112,40 +118,29 @@ interface Fitted {
   fit: RegressionFit & { rho?: number; innovations?: Float64Array };
 }
 
+/** What the AIC lag search found (internal to this module). */
+interface LagSearch {
+  first: number;
+  n: number;
+  best: number[];
+  chosen: Fitted;
+  fitAt: (lags: number[]) => Fitted;
+  ranges: number[][];
+  search: "exhaustive" | "coordinate";
+  lagGrid: AttributionResult["lagGrid"];
+  /** Fits made so far. */
+  fits: () => number;
+}
+
 /**
- * Fit the attribution regression with lags chosen by AIC.
- *
- * @param y climate series (evenly spaced, finite)
- * @param regressors named regressors on the same axis with their lag ranges
- * @param options error model, HAC lags, level, exhaustive-search limit, and `shouldStop`
- *   (polled before each fit of the lag search)
- * @returns coefficients with intervals, lags, lag surface, contributions and diagnostics
- * @throws {InputError} on length mismatch, non-finite values, bad lag ranges or duplicate names
- *   (field `regressors` with the regressor's index, or `y`), fewer than 10 observations per
- *   coefficient (`y`), or regressors collinear at every lag (`regressors`, reason `collinear`)
- * @throws {StoppedError} when `options.shouldStop` answers true
- * @example
- * ```ts
- * import { attributionRegression } from "./attribution_regression.ts";
- * import assert from "node:assert/strict";
- * const n = 300;
- * const solar = Float64Array.from({ length: n }, (_, i) => Math.sin((2 * Math.PI * i) / 132));
- * const trend = Float64Array.from({ length: n }, (_, i) => i / n);
- * const y = Float64Array.from({ length: n }, (_, i) =>
- *   0.1 * (i >= 12 ? solar[i - 12] : 0) + 0.5 * trend[i] + 0.02 * Math.sin(i * 2.3));
- * const r = attributionRegression(y, [
- *   { name: "solar", values: solar, minLag: 0, maxLag: 24 },
- *   { name: "trend", values: trend, minLag: 0, maxLag: 0 },
- * ], { errors: "ols_hac" });
- * assert.equal(r.lags.solar, 12);
- * assert.ok(Math.abs(r.coefficients[1].estimate - 0.1) < 0.005);
- * ```
+ * The checks and the AIC lag search of {@link attributionRegression}: every lag combination
+ * (or a coordinate search), fitted on one common sample.
  */
-export function attributionRegression(
+function searchLagsByAic(
   y: Float64Array,
   regressors: readonly AttributionRegressor[],
-  options: AttributionOptions = {},
-): AttributionResult {
+  options: AttributionOptions,
+): LagSearch {
   const fn = "fit attribution regression";
   const errors = options.errors ?? "ar1";
   const level = options.level ?? 0.95;
@@ -205,13 +200,22 @@ export function attributionRegression(
       });
     }
   }
-  const first = maxLag, n = y.length - maxLag;
+  const first = options.firstIndex ?? maxLag;
+  if (!Number.isInteger(first) || first < maxLag || first >= y.length) {
+    throw new InputError(
+      `Cannot ${fn}: firstIndex must be an integer from the largest lag ${maxLag} to ${
+        y.length - 1
+      }, got ${first}`,
+      { field: "firstIndex", reason: "out_of_range", value: first },
+    );
+  }
+  const n = y.length - first;
   const p = regressors.length + 1;
   if (n < 10 * p) {
     throw new InputError(
       `Cannot ${fn}: ${p} coefficients need at least ${
         10 * p
-      } observations (10 per coefficient) after the largest lag ${maxLag}, got ${n}`,
+      } observations (10 per coefficient) after the first fitted index ${first}, got ${n}`,
       { field: "y", reason: "too_few_points", value: n },
     );
   }
@@ -299,6 +303,57 @@ export function attributionRegression(
       reason: "collinear",
     });
   }
+  return {
+    first,
+    n,
+    best,
+    chosen,
+    fitAt,
+    ranges,
+    search,
+    lagGrid,
+    fits: () => fits,
+  };
+}
+
+/**
+ * Fit the attribution regression with lags chosen by AIC.
+ *
+ * @param y climate series (evenly spaced, finite)
+ * @param regressors named regressors on the same axis with their lag ranges
+ * @param options error model, HAC lags, level, exhaustive-search limit, and `shouldStop`
+ *   (polled before each fit of the lag search)
+ * @returns coefficients with intervals, lags, lag surface, contributions and diagnostics
+ * @throws {InputError} on length mismatch, non-finite values, bad lag ranges or duplicate names
+ *   (field `regressors` with the regressor's index, or `y`), fewer than 10 observations per
+ *   coefficient (`y`), or regressors collinear at every lag (`regressors`, reason `collinear`)
+ * @throws {StoppedError} when `options.shouldStop` answers true
+ * @example
+ * ```ts
+ * import { attributionRegression } from "./attribution_regression.ts";
+ * import assert from "node:assert/strict";
+ * const n = 300;
+ * const solar = Float64Array.from({ length: n }, (_, i) => Math.sin((2 * Math.PI * i) / 132));
+ * const trend = Float64Array.from({ length: n }, (_, i) => i / n);
+ * const y = Float64Array.from({ length: n }, (_, i) =>
+ *   0.1 * (i >= 12 ? solar[i - 12] : 0) + 0.5 * trend[i] + 0.02 * Math.sin(i * 2.3));
+ * const r = attributionRegression(y, [
+ *   { name: "solar", values: solar, minLag: 0, maxLag: 24 },
+ *   { name: "trend", values: trend, minLag: 0, maxLag: 0 },
+ * ], { errors: "ols_hac" });
+ * assert.equal(r.lags.solar, 12);
+ * assert.ok(Math.abs(r.coefficients[1].estimate - 0.1) < 0.005);
+ * ```
+ */
+export function attributionRegression(
+  y: Float64Array,
+  regressors: readonly AttributionRegressor[],
+  options: AttributionOptions = {},
+): AttributionResult {
+  const errors = options.errors ?? "ar1";
+  const searched = searchLagsByAic(y, regressors, options);
+  const { first, n, best, chosen, fitAt, ranges, search, lagGrid } = searched;
+  const regNames = regressors.map((r) => r.name);
   const lagProfiles = ranges.map((rg, j) => {
     const aic = rg.map((l) => {
       const trial = best.slice();
@@ -410,7 +465,7 @@ export function attributionRegression(
     lags: Object.fromEntries(regNames.map((nm, j) => [nm, best[j]])),
     aic: chosen.aic,
     search,
-    fitsEvaluated: fits,
+    fitsEvaluated: searched.fits(),
     lagProfiles,
     lagGrid,
     residualRho: rho,
@@ -423,6 +478,55 @@ export function attributionRegression(
     residuals: fit.residuals,
     warnings,
   };
+}
+
+/**
+ * The two-sided p-value of one regressor's coefficient in the attribution regression, at the
+ * lags the AIC search of {@link attributionRegression} chooses (the same search, the same error
+ * model: Prais–Winsten t test for `ar1`, Newey–West for `ols_hac`), without the diagnostics.
+ * The statistic of the surrogate test that pays for the lag search
+ * (lag_search_surrogate_test.ts).
+ *
+ * @param y climate series
+ * @param regressors regressors with their lag ranges
+ * @param index which regressor's coefficient (0-based, in `regressors`)
+ * @param options as {@link attributionRegression}
+ * @returns the p-value and the chosen lag of that regressor
+ * @throws {InputError} as {@link attributionRegression}; `index` out of range (`index`)
+ * @example
+ * ```ts
+ * import { attributionRegression, pValueAfterLagSearch } from "./attribution_regression.ts";
+ * import assert from "node:assert/strict";
+ * const n = 200;
+ * const x = Float64Array.from({ length: n }, (_, i) => Math.sin(i / 7));
+ * const y = Float64Array.from({ length: n }, (_, i) => (i >= 3 ? x[i - 3] : 0) + Math.cos(i * 1.3));
+ * const regs = [{ name: "x", values: x, minLag: 0, maxLag: 6 }];
+ * const full = attributionRegression(y, regs, { errors: "ols_hac" });
+ * const p = pValueAfterLagSearch(y, regs, 0, { errors: "ols_hac" });
+ * assert.equal(p.lag, full.lags.x);
+ * assert.equal(p.pValue, full.coefficients[1].pValue);
+ * ```
+ */
+export function pValueAfterLagSearch(
+  y: Float64Array,
+  regressors: readonly AttributionRegressor[],
+  index: number,
+  options: AttributionOptions = {},
+): { pValue: number; lag: number } {
+  if (!Number.isInteger(index) || index < 0 || index >= regressors.length) {
+    throw new InputError(
+      `Cannot test attribution coefficient: index must be in 0..${
+        regressors.length - 1
+      }, got ${index}`,
+      { field: "index", reason: "out_of_range", value: index },
+    );
+  }
+  const { best, chosen } = searchLagsByAic(y, regressors, options);
+  const fit = chosen.fit;
+  const pValues = (options.errors ?? "ar1") === "ols_hac"
+    ? neweyWest(fit, options.hacLags === undefined ? {} : { maxLags: options.hacLags }).pValues
+    : fit.pValues;
+  return { pValue: pValues[index + 1], lag: best[index] };
 }
 
 function pearson(a: Float64Array, b: Float64Array): number {

@@ -14,5 +14,5 @@ export * from "./surrogate_lag_test.ts";
 export * from "./energy_balance.ts";
 export * from "./superposed_epoch.ts";
 export * from "./attribution_regression.ts";
-export * from "./inverse_dft_plan.ts";
 export * from "./polynomial_trend_residuals.ts";
+export * from "./lag_search_surrogate_test.ts";

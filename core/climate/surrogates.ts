@@ -28,6 +28,8 @@ for (let j = 0; j < TABLE_SIZE; j++) {
   SIN_TABLE[j] = Math.sin((2 * Math.PI * j) / TABLE_SIZE);
 }
 const STEP = (2 * Math.PI) / TABLE_SIZE;
+// reciprocals of the Taylor denominators: a product costs far less than a division
+const I6 = 1 / 6, I12 = 1 / 12, I20 = 1 / 20, I30 = 1 / 30, I42 = 1 / 42;
 
 /**
  * Fill `re[i], im[i]` (i in [0, count)) with cos θ, sin θ for θ = 2π u, u uniform from the
@@ -58,12 +60,13 @@ export function randomPhasors(
   re: Float64Array,
   im: Float64Array,
 ): void {
+  stream.fill(re, count);
   for (let i = 0; i < count; i++) {
-    const u = stream.uniform() * TABLE_SIZE;
+    const u = re[i] * TABLE_SIZE;
     const j = u | 0;
     const d = (u - j) * STEP, d2 = d * d;
-    const cd = 1 - (d2 / 2) * (1 - (d2 / 12) * (1 - d2 / 30));
-    const sd = d * (1 - (d2 / 6) * (1 - (d2 / 20) * (1 - d2 / 42)));
+    const cd = 1 - d2 * 0.5 * (1 - d2 * I12 * (1 - d2 * I30));
+    const sd = d * (1 - d2 * I6 * (1 - d2 * I20 * (1 - d2 * I42)));
     const cj = COS_TABLE[j], sj = SIN_TABLE[j];
     re[i] = cj * cd - sj * sd;
     im[i] = sj * cd + cj * sd;

@@ -66,21 +66,10 @@ export function weightedMovingAverage(
   if (!(total > 0)) throw new RangeError("Cannot smooth: kernel weights sum to zero");
   const h = (m - 1) / 2, n = values.length;
   const out = new Float64Array(n);
-  const x = Float64Array.from(values), w = Float64Array.from(weights);
+  const x = values instanceof Float64Array ? values : Float64Array.from(values);
+  const w = Float64Array.from(weights);
   if (maxMissing === 0) {
-    // complete windows only: a running count of missing samples finds them, and the sum
-    // needs no renormalisation (same numbers as the general loop, in one pass per point)
-    const missing = new Int32Array(n + 1);
-    for (let i = 0; i < n; i++) missing[i + 1] = missing[i] + (x[i] === x[i] ? 0 : 1);
-    for (let i = 0; i < n; i++) {
-      if (i - h < 0 || i + h >= n || missing[i + h + 1] - missing[i - h] > 0) {
-        out[i] = NaN;
-        continue;
-      }
-      let swx = 0;
-      for (let k = 0, j = i - h; k < m; k++, j++) swx += w[k] * x[j];
-      out[i] = swx / total;
-    }
+    completeWindows(x, w, total, out);
     return out;
   }
   // a tiny tolerance so that "exactly the allowed share" passes despite rounding
@@ -99,6 +88,77 @@ export function weightedMovingAverage(
     out[i] = total - sw <= allowedMissing && sw > 0 ? swx / sw : NaN;
   }
   return out;
+}
+
+/**
+ * {@link completeWindows} for 13 weights (the 13-month smoother): the window's samples are
+ * kept in local variables and shifted by one per output, so each output costs one load, and
+ * its sum is written out in the order of the general loop (identical numbers).
+ */
+function window13(x: Float64Array, w: Float64Array, total: number, out: Float64Array): void {
+  const n = x.length;
+  const [w0, w1, w2, w3, w4, w5, w6, w7, w8, w9, w10, w11, w12] = w;
+  for (let i = 6; i < n - 6; i++) {
+    if (out[i] !== 0) continue;
+    // a run of complete windows starts at i
+    let x0 = x[i - 6], x1 = x[i - 5], x2 = x[i - 4], x3 = x[i - 3], x4 = x[i - 2];
+    let x5 = x[i - 1], x6 = x[i], x7 = x[i + 1], x8 = x[i + 2], x9 = x[i + 3];
+    let x10 = x[i + 4], x11 = x[i + 5], x12 = x[i + 6];
+    for (; i < n - 6 && out[i] === 0; i++) {
+      out[i] = (0 + w0 * x0 + w1 * x1 + w2 * x2 + w3 * x3 + w4 * x4 + w5 * x5 + w6 * x6 +
+        w7 * x7 + w8 * x8 + w9 * x9 + w10 * x10 + w11 * x11 + w12 * x12) / total;
+      x0 = x1, x1 = x2, x2 = x3, x3 = x4, x4 = x5, x5 = x6, x6 = x7, x7 = x8, x8 = x9;
+      x9 = x10, x10 = x11, x11 = x12, x12 = i + 7 < n ? x[i + 7] : NaN;
+    }
+  }
+}
+
+/**
+ * The complete-windows case of {@link weightedMovingAverage}: out[i] = Σ_k w_k x_{i−h+k} / Σw
+ * where the window holds no NaN and lies inside the series, NaN elsewhere. A running count of
+ * missing samples finds the complete windows; four neighbouring outputs are summed in one
+ * loop (each in the order of the formula, so the numbers are those of the one-at-a-time loop)
+ * because a single sum is one chain of dependent additions. 13 weights have their own loop
+ * ({@link window13}). Written out for speed: 3,000 months with the 13-month kernel took 57 µs
+ * one window at a time, 30 µs four at a time and 27 µs with window13 (CPU time, shared 2-core
+ * machine; workload `cycles` of test/bench/peers).
+ */
+function completeWindows(x: Float64Array, w: Float64Array, total: number, out: Float64Array): void {
+  const n = x.length, m = w.length, h = (m - 1) / 2;
+  // out[i] = 0 marks a complete window, NaN an incomplete one
+  let missing = 0;
+  for (let j = 0; j < Math.min(n, h); j++) if (x[j] !== x[j]) missing++;
+  for (let i = 0; i < n; i++) {
+    const add = i + h, drop = i - h - 1;
+    if (add < n && x[add] !== x[add]) missing++;
+    if (drop >= 0 && x[drop] !== x[drop]) missing--;
+    out[i] = i - h < 0 || i + h >= n || missing > 0 ? NaN : 0;
+  }
+  if (m === 13) return window13(x, w, total, out);
+  for (let i = h; i < n - h;) {
+    if (i + 3 < n - h && out[i] === 0 && out[i + 1] === 0 && out[i + 2] === 0 && out[i + 3] === 0) {
+      let s0 = 0, s1 = 0, s2 = 0, s3 = 0;
+      for (let k = 0, j = i - h; k < m; k++, j++) {
+        const wk = w[k];
+        s0 += wk * x[j];
+        s1 += wk * x[j + 1];
+        s2 += wk * x[j + 2];
+        s3 += wk * x[j + 3];
+      }
+      out[i] = s0 / total;
+      out[i + 1] = s1 / total;
+      out[i + 2] = s2 / total;
+      out[i + 3] = s3 / total;
+      i += 4;
+      continue;
+    }
+    if (out[i] === 0) {
+      let swx = 0;
+      for (let k = 0, j = i - h; k < m; k++, j++) swx += w[k] * x[j];
+      out[i] = swx / total;
+    }
+    i++;
+  }
 }
 
 /**

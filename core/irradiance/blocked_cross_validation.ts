@@ -6,6 +6,13 @@
 import { InputError } from "../errors.ts";
 import type { RegressionFit } from "../stats/ordinary_least_squares.ts";
 
+const pool: Float64Array[] = [];
+/** Work array `i` of length n (a view of a pooled buffer that grows as needed). */
+function work(i: number, n: number): Float64Array {
+  if (!pool[i] || pool[i].length < n) pool[i] = new Float64Array(Math.max(n, 1024));
+  return pool[i].subarray(0, n);
+}
+
 /** Result of {@link blockedCrossValidation}. */
 export interface BlockedCrossValidation {
   folds: number;
@@ -62,13 +69,15 @@ export function blockedCrossValidation(
     const a = Math.floor((j * n) / k), b = Math.floor(((j + 1) * n) / k);
     blocks.push([a, b - 1]);
     const m = n - (b - a);
-    const trainCols = columns.map((c) => {
-      const out = new Float64Array(m);
+    // the training rows in pooled work arrays: the fit's result is read for its coefficients
+    // and dropped, so nothing kept refers to them (fresh arrays cost page faults per fold)
+    const trainCols = columns.map((c, q) => {
+      const out = work(q, m);
       out.set(c.subarray(0, a), 0);
       out.set(c.subarray(b), a);
       return out;
     });
-    const trainY = new Float64Array(m);
+    const trainY = work(columns.length, m);
     trainY.set(y.subarray(0, a), 0);
     trainY.set(y.subarray(b), a);
     const f = fit(trainCols, trainY);

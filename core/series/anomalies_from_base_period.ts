@@ -13,6 +13,13 @@ export interface AnomalyOptions {
    * calendar month (a climatology; for monthly or daily data). @default "mean"
    */
   climatology?: "mean" | "monthly";
+  /**
+   * Base-period values each base mean needs (each calendar month's, for the monthly
+   * climatology). With 1, a calendar month seen once in the base period gets anomalies that are
+   * all zero in that year; removing a seasonal cycle over a short overlap asks for 2 or more.
+   * @default 1
+   */
+  minCount?: number;
 }
 
 /** Anomalies and the baseline they were taken from. */
@@ -43,8 +50,9 @@ export interface Anomalies {
  * @param options climatology
  * @returns anomalies, baselines, base means and their counts
  * @throws {InputError} (field `base`) when the base period holds no data (or, for the monthly
- *   climatology, no data for some calendar month: `value` lists the months 1–12), or for
- *   malformed input (`series`, `climatology`)
+ *   climatology, no data for some calendar month: `value` lists the months 1–12; reason
+ *   `too_few_points` when a base mean has fewer than `minCount` values), or for malformed input
+ *   (`series`, `climatology`, `minCount`)
  * @example
  * ```ts
  * import { anomaliesFromBasePeriod } from "./anomalies_from_base_period.ts";
@@ -65,6 +73,13 @@ export function anomaliesFromBasePeriod(
   const { time, value } = series;
   const n = time.length;
   const mode = options.climatology ?? "mean";
+  const minCount = options.minCount ?? 1;
+  if (!Number.isInteger(minCount) || minCount < 1) {
+    throw new InputError(
+      `Cannot compute anomalies: minCount must be a positive integer, current value is ${minCount}`,
+      { field: "minCount", reason: "out_of_range", value: minCount },
+    );
+  }
   if (mode !== "mean" && mode !== "monthly") {
     throw new InputError(
       `Cannot compute anomalies: climatology must be mean or monthly, got ${mode}`,
@@ -118,6 +133,15 @@ export function anomaliesFromBasePeriod(
       `Cannot compute anomalies: the base period ${base.start}..${base.end} holds no data for ${names}; ` +
         `a monthly climatology needs every calendar month`,
       { field: "base", reason: "empty", value: empty.map((g) => g + 1) },
+    );
+  }
+  const few = [...count.keys()].filter((g) => count[g] < minCount);
+  if (few.length > 0) {
+    const what = mode === "monthly" ? few.map((g) => MONTHS[g]).join(", ") : "the base mean";
+    throw new InputError(
+      `Cannot compute anomalies: the base period ${base.start}..${base.end} holds fewer than ` +
+        `${minCount} values for ${what} (${few.map((g) => count[g]).join(", ")})`,
+      { field: "base", reason: "too_few_points", value: few.map((g) => g + 1) },
     );
   }
   const baseMeans = Float64Array.from(sum, (s, g) => s / count[g]);

@@ -297,3 +297,75 @@ function checkInt(v: number, name: string, lo: number, hi: number): number {
   }
   return v;
 }
+
+/**
+ * Means of a series in given calendar periods (by key, core/series/period_key.ts) with the
+ * coverage rule of {@link resampleMeans}: a monthly cell from daily values needs
+ * `minDaysPerMonth` of them, an annual cell from monthly values `minMonthsPerYear` (from
+ * daily values both, in two stages); a period failing its rule is NaN, never a mean of too few
+ * values. An input coarser than the periods (annual values for monthly cells) is not spread:
+ * each value lands in the one period holding its time, the others are NaN. Missing values
+ * (NaN) are no values: they count toward no period.
+ *
+ * @param series `{ time, value }`: decimal years strictly increasing, values (NaN missing)
+ * @param from resolution of the input (`irregular` for an uneven axis)
+ * @param to resolution of the keys
+ * @param keys period keys to read, any order
+ * @param options coverage thresholds (as {@link resampleMeans}; `from` is the argument)
+ * @returns means aligned with `keys`, NaN where a period is not covered
+ * @throws {InputError} as {@link resampleMeans}
+ * @example
+ * ```ts
+ * import { resampledAtPeriodKeys } from "./resample_means.ts";
+ * import { decimalYear } from "../time/mod.ts";
+ * import assert from "node:assert/strict";
+ * // 2012: 12 months; 2013: 9 months (January to September), short of 10
+ * const time = [...Array(21).keys()].map((i) => decimalYear(2012 + Math.floor(i / 12), (i % 12) + 1, 15));
+ * const v = resampledAtPeriodKeys({ time, value: time.map(() => 1) }, "monthly", "annual", [2012, 2013]);
+ * assert.equal(v[0], 1);
+ * assert.ok(Number.isNaN(v[1]));
+ * ```
+ */
+export function resampledAtPeriodKeys(
+  series: { time: ArrayLike<number>; value: ArrayLike<number> },
+  from: TimeResolution,
+  to: CalendarResolution,
+  keys: ArrayLike<number>,
+  options: Omit<ResampleOptions, "from" | "uncertainty"> = {},
+): Float64Array {
+  const out = new Float64Array(keys.length).fill(NaN);
+  const time: number[] = [], value: number[] = [];
+  for (let i = 0; i < series.time.length; i++) {
+    if (Number.isFinite(series.value[i])) time.push(series.time[i]), value.push(series.value[i]);
+  }
+  const n = time.length;
+  if (n === 0) return out;
+  const coarser = from !== "irregular" && RANK[from] > RANK[to];
+  if (n < 2 && !coarser && from !== to) {
+    // one point: resampleMeans needs two; the rule asks for more than one value unless a
+    // threshold of 1 was chosen
+    const need = from === "daily"
+      ? options.minDaysPerMonth ?? 20
+      : from === "monthly"
+      ? options.minMonthsPerYear ?? 10
+      : options.minPointsPerPeriod ?? 1;
+    if (need > 1 || (from === "daily" && to === "annual")) return out;
+  }
+  if (coarser || n < 2) {
+    // coarser input (or a single point): each value in the one period holding it
+    const at = new Map<number, number>();
+    for (let i = 0; i < n; i++) {
+      const k = periodKey(time[i], to);
+      if (!at.has(k)) at.set(k, value[i]);
+    }
+    for (let i = 0; i < keys.length; i++) out[i] = at.get(keys[i]) ?? NaN;
+    return out;
+  }
+  const m = resampleMeans({ time, value }, to, { ...options, from });
+  const k0 = periodKey(m.time[0], to);
+  for (let i = 0; i < keys.length; i++) {
+    const j = keys[i] - k0;
+    if (j >= 0 && j < m.value.length) out[i] = m.value[j];
+  }
+  return out;
+}

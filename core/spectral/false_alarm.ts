@@ -12,7 +12,7 @@ import { type StopOptions, throwIfStopped } from "../stop_signal.ts";
 /**
  * Number of independent frequencies of a Lomb–Scargle periodogram searched up to the Nyquist
  * frequency, from N points: M ≈ −6.362 + 1.193 N + 0.00098 N² (Horne & Baliunas 1986, ApJ 302,
- * 757, eq. 13; from memory per shared/SCIENCE.md §7, M). Their simulations used nearly even
+ * 757, eq. 13; the coefficients are from memory). Their simulations used nearly even
  * sampling; for a grid covering only part of the band it overstates M (conservative FAP).
  *
  * @param n number of data points, integer ≥ 6 (below that the fit gives M < 1)
@@ -22,7 +22,7 @@ import { type StopOptions, throwIfStopped } from "../stop_signal.ts";
  * ```ts
  * import { hornBaliunasFrequencies } from "./false_alarm.ts";
  * import assert from "node:assert/strict";
- * // SCIENCE.md §7 (D): N = 100 → M = 122.74
+ * // derived from Horne & Baliunas 1986 eq. 13: N = 100 → M = 122.74
  * assert.ok(Math.abs(hornBaliunasFrequencies(100) - 122.738) < 1e-9); // 122.74 rounded
  * ```
  */
@@ -49,7 +49,7 @@ export function hornBaliunasFrequencies(n: number): number {
  * ```ts
  * import { falseAlarmProbability } from "./false_alarm.ts";
  * import assert from "node:assert/strict";
- * // SCIENCE.md §7 (D): M = 122.74, z = 9.410 → FAP 0.01
+ * // derived from FAP(z) = 1 − (1 − e^−z)^M (Horne & Baliunas 1986): M = 122.74, z = 9.410 → 0.01
  * assert.ok(Math.abs(falseAlarmProbability(9.410, 122.74) - 0.01) < 1e-4);
  * ```
  */
@@ -80,7 +80,7 @@ export function falseAlarmProbability(z: number, m: number): number {
  * ```ts
  * import { powerAtFalseAlarm } from "./false_alarm.ts";
  * import assert from "node:assert/strict";
- * // SCIENCE.md §7 (D): N = 100 (M = 122.74) → z(0.01) = 9.410, z(0.05) = 7.780
+ * // derived from the same formula: N = 100 (M = 122.74) → z(0.01) = 9.410, z(0.05) = 7.780
  * assert.ok(Math.abs(powerAtFalseAlarm(0.01, 122.74) - 9.410) < 5e-4);
  * assert.ok(Math.abs(powerAtFalseAlarm(0.05, 122.74) - 7.780) < 5e-4);
  * ```

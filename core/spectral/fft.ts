@@ -1,19 +1,18 @@
 /**
- * Discrete Fourier transforms of real series of any length, on top of the maintained `fft.js`
- * package (radix-4 complex FFT, float64).
+ * Discrete Fourier transforms of real series of any length, on the mixed-radix engine of
+ * complex_dft_plan.ts.
  *
- * `fft.js` only handles power-of-two sizes; for any other length the transform is computed
- * with Bluestein's chirp-z algorithm (Bluestein 1970, IEEE Trans. Audio Electroacoust. 18,
- * 451), which rewrites a length-N DFT as a circular convolution of length M ≥ 2N − 1 (a power
- * of two) done with three `fft.js` transforms. No maintained float64 npm package offers
- * arbitrary-length transforms, hence this small wrapper.
+ * An even length N is transformed as N/2 complex points (even samples as real parts, odd
+ * samples as imaginary parts) followed by one O(N) split into the spectrum of the real series
+ * (Cooley, Lewis & Welch 1970, J. Sound Vib. 12, 315, "two for one" for real data); an odd
+ * length goes through the complex transform of length N.
  *
  * Convention (as numpy.fft): X[k] = Σ_{n=0}^{N−1} x[n] exp(−2πi k n / N), and the inverse
  * carries the 1/N factor.
  *
  * @module
  */
-import FFT from "fft.js";
+import { complexDftPlan } from "./complex_dft_plan.ts";
 
 /** The non-negative-frequency half of a real signal's DFT (k = 0 .. floor(N/2)). */
 export interface RealSpectrum {
@@ -23,83 +22,27 @@ export interface RealSpectrum {
   im: Float64Array;
 }
 
-const planCache = new Map<number, FFT>();
-
-function plan(size: number): FFT {
-  let p = planCache.get(size);
+/** Per even N: cos/sin(2πk/N) for k = 0..N/2 (the split) and two work buffers of N numbers. */
+interface RealPlan {
+  twiddle: Float64Array;
+  a: Float64Array;
+  b: Float64Array;
+}
+const realPlans = new Map<number, RealPlan>();
+function realPlan(n: number): RealPlan {
+  let p = realPlans.get(n);
   if (!p) {
-    p = new FFT(size);
-    if (planCache.size > 32) planCache.clear();
-    planCache.set(size, p);
+    const h = n / 2;
+    const twiddle = new Float64Array(2 * (h + 1));
+    for (let k = 0; k <= h; k++) {
+      twiddle[2 * k] = Math.cos((2 * Math.PI * k) / n);
+      twiddle[2 * k + 1] = Math.sin((2 * Math.PI * k) / n);
+    }
+    p = { twiddle, a: new Float64Array(n), b: new Float64Array(n) };
+    if (realPlans.size >= 32) realPlans.delete(realPlans.keys().next().value!);
+    realPlans.set(n, p);
   }
   return p;
-}
-
-function isPowerOfTwo(n: number): boolean {
-  return n >= 2 && (n & (n - 1)) === 0;
-}
-
-/**
- * Complex DFT of any length N ≥ 1 (forward, or inverse without the 1/N factor).
- * Input and output are interleaved [re0, im0, re1, im1, ...].
- */
-function complexDft(data: Float64Array, inverse: boolean): Float64Array {
-  const n = data.length / 2;
-  if (n === 1) return Float64Array.from(data);
-  if (isPowerOfTwo(n)) {
-    const f = plan(n);
-    const out = new Float64Array(2 * n);
-    if (inverse) {
-      // fft.js's inverseTransform divides by N; undo that here, the caller scales.
-      f.inverseTransform(out, data);
-      for (let i = 0; i < out.length; i++) out[i] *= n;
-    } else {
-      f.transform(out, data);
-    }
-    return out;
-  }
-  // Bluestein: X[k] = conj(w[k]) Σ_n (x[n] conj(w[n])) w[k−n], w[m] = exp(iπ m²/N) (forward).
-  const sign = inverse ? -1 : 1;
-  let m = 1;
-  while (m < 2 * n - 1) m <<= 1;
-  const f = plan(m);
-  const wr = new Float64Array(n), wi = new Float64Array(n);
-  for (let k = 0; k < n; k++) {
-    // k² mod 2N keeps the angle small and exact for large k
-    const k2 = (k * k) % (2 * n);
-    const ang = (Math.PI * k2) / n;
-    wr[k] = Math.cos(ang);
-    wi[k] = sign * Math.sin(ang);
-  }
-  const a = new Float64Array(2 * m), b = new Float64Array(2 * m);
-  for (let k = 0; k < n; k++) {
-    const xr = data[2 * k], xi = data[2 * k + 1];
-    // x · conj(w)
-    a[2 * k] = xr * wr[k] + xi * wi[k];
-    a[2 * k + 1] = xi * wr[k] - xr * wi[k];
-  }
-  b[0] = wr[0];
-  b[1] = wi[0];
-  for (let k = 1; k < n; k++) {
-    b[2 * k] = b[2 * (m - k)] = wr[k];
-    b[2 * k + 1] = b[2 * (m - k) + 1] = wi[k];
-  }
-  const fa = new Float64Array(2 * m), fb = new Float64Array(2 * m);
-  f.transform(fa, a);
-  f.transform(fb, b);
-  for (let k = 0; k < m; k++) {
-    const ar = fa[2 * k], ai = fa[2 * k + 1], br = fb[2 * k], bi = fb[2 * k + 1];
-    a[2 * k] = ar * br - ai * bi;
-    a[2 * k + 1] = ar * bi + ai * br;
-  }
-  f.inverseTransform(fa, a); // includes the 1/m of the convolution
-  const out = new Float64Array(2 * n);
-  for (let k = 0; k < n; k++) {
-    const cr = fa[2 * k], ci = fa[2 * k + 1];
-    out[2 * k] = cr * wr[k] + ci * wi[k];
-    out[2 * k + 1] = ci * wr[k] - cr * wi[k];
-  }
-  return out;
 }
 
 /**
@@ -123,20 +66,40 @@ function complexDft(data: Float64Array, inverse: boolean): Float64Array {
 export function realDft(x: ArrayLike<number>): RealSpectrum {
   const n = x.length;
   if (n < 1) throw new RangeError("Cannot compute DFT: needs at least 1 sample, got 0");
-  const data = new Float64Array(2 * n);
-  for (let i = 0; i < n; i++) {
-    const v = x[i];
-    if (!Number.isFinite(v)) {
-      throw new RangeError(`Cannot compute DFT: sample ${i} is not finite (${v})`);
-    }
-    data[2 * i] = v;
+  let bad = -1;
+  for (let i = 0; i < n; i++) if (!Number.isFinite(x[i])) bad = i;
+  if (bad >= 0) {
+    throw new RangeError(`Cannot compute DFT: sample ${bad} is not finite (${x[bad]})`);
   }
-  const out = complexDft(data, false);
   const h = Math.floor(n / 2) + 1;
   const re = new Float64Array(h), im = new Float64Array(h);
-  for (let k = 0; k < h; k++) {
-    re[k] = out[2 * k];
-    im[k] = out[2 * k + 1];
+  if (n % 2 === 1) {
+    const data = new Float64Array(2 * n), out = new Float64Array(2 * n);
+    for (let i = 0; i < n; i++) data[2 * i] = x[i];
+    complexDftPlan(n).forward(data, out);
+    for (let k = 0; k < h; k++) {
+      re[k] = out[2 * k];
+      im[k] = out[2 * k + 1];
+    }
+    return { re, im };
+  }
+  // z_j = x_2j + i x_2j+1, Z = DFT_{N/2}(z); X_k = E_k + e^{−2πik/N} O_k with
+  // E_k = (Z_k + conj Z_{N/2−k})/2 and O_k = (Z_k − conj Z_{N/2−k})/(2i)
+  const m = n / 2;
+  const { twiddle: tw, a: z, b: Z } = realPlan(n);
+  for (let i = 0; i < n; i++) z[i] = x[i];
+  complexDftPlan(m).forward(z, Z);
+  // k = 0 and k = N/2 from Z_0 alone: X_0 = Re Z_0 + Im Z_0, X_{N/2} = Re Z_0 − Im Z_0
+  re[0] = Z[0] + Z[1];
+  re[m] = Z[0] - Z[1];
+  for (let k = 1; k < m; k++) {
+    const b = 2 * (m - k);
+    const zr = Z[2 * k], zi = Z[2 * k + 1], cr = Z[b], ci = -Z[b + 1];
+    const er = 0.5 * (zr + cr), ei = 0.5 * (zi + ci);
+    const or = 0.5 * (zi - ci), oi = -0.5 * (zr - cr);
+    const wr = tw[2 * k], wi = -tw[2 * k + 1];
+    re[k] = er + or * wr - oi * wi;
+    im[k] = ei + or * wi + oi * wr;
   }
   return { re, im };
 }
@@ -165,19 +128,39 @@ export function inverseRealDft(spectrum: RealSpectrum, n: number): Float64Array 
       `Cannot invert DFT: spectrum length must be floor(n/2)+1 = ${h} for n = ${n}, got ${spectrum.re.length}`,
     );
   }
-  const data = new Float64Array(2 * n);
-  for (let k = 0; k < h; k++) {
-    data[2 * k] = spectrum.re[k];
-    data[2 * k + 1] = spectrum.im[k];
-  }
-  data[1] = 0;
-  if (n % 2 === 0) data[2 * (h - 1) + 1] = 0;
-  for (let k = h; k < n; k++) {
-    data[2 * k] = spectrum.re[n - k];
-    data[2 * k + 1] = -spectrum.im[n - k];
-  }
-  const out = complexDft(data, true);
+  const { re, im } = spectrum;
   const y = new Float64Array(n);
-  for (let i = 0; i < n; i++) y[i] = out[2 * i] / n;
+  if (n % 2 === 1 || n === 2) {
+    const data = new Float64Array(2 * n), out = new Float64Array(2 * n);
+    for (let k = 0; k < h; k++) {
+      data[2 * k] = re[k];
+      data[2 * k + 1] = im[k];
+    }
+    data[1] = 0;
+    if (n % 2 === 0) data[2 * (h - 1) + 1] = 0;
+    for (let k = h; k < n; k++) {
+      data[2 * k] = re[n - k];
+      data[2 * k + 1] = -im[n - k];
+    }
+    complexDftPlan(n).inverse(data, out);
+    for (let i = 0; i < n; i++) y[i] = out[2 * i] / n;
+    return y;
+  }
+  // the split run backwards: E_k = (X_k + conj X_{N/2−k})/2,
+  // O_k = (X_k − conj X_{N/2−k}) e^{2πik/N}/2, z = IDFT_{N/2}(E + iO) = (x_even + i x_odd)·N/2
+  const m = n / 2;
+  const { twiddle: tw, a: Z, b: z } = realPlan(n);
+  for (let k = 0; k < m; k++) {
+    const xr = re[k], xi = k === 0 ? 0 : im[k];
+    const cr = re[m - k], ci = m - k === m || m - k === 0 ? 0 : -im[m - k];
+    const er = 0.5 * (xr + cr), ei = 0.5 * (xi + ci);
+    const dr = 0.5 * (xr - cr), di = 0.5 * (xi - ci);
+    const wr = tw[2 * k], wi = tw[2 * k + 1];
+    const or = dr * wr - di * wi, oi = dr * wi + di * wr;
+    Z[2 * k] = er - oi;
+    Z[2 * k + 1] = ei + or;
+  }
+  complexDftPlan(m).inverse(Z, z);
+  for (let i = 0; i < n; i++) y[i] = z[i] / m;
   return y;
 }

@@ -3,6 +3,7 @@
  *
  * @module
  */
+export * from "./complex_dft_plan.ts";
 export * from "./fft.ts";
 export * from "./period_grid.ts";
 export * from "./lomb_scargle.ts";

@@ -139,14 +139,24 @@ export function householderR(
   const a = overwrite ? [...columns] : columns.map((c) => Float64Array.from(c));
   const qty = y ? (overwrite ? y : Float64Array.from(y)) : new Float64Array(0);
   const diag = new Float64Array(p);
+  // the scale of column k (max |a_k[i]|, i ≥ k): for k > 0 found while the previous
+  // reflection updates the column
+  let nextScale = 0;
+  for (let i = 0; i < n; i++) nextScale = Math.max(nextScale, Math.abs(a[0][i]));
+  const f = new Float64Array(p + 1);
   for (let k = 0; k < p; k++) {
     const ak = a[k];
     let norm = 0;
     // scaled 2-norm to avoid overflow
-    let scale = 0;
-    for (let i = k; i < n; i++) scale = Math.max(scale, Math.abs(ak[i]));
+    const scale = nextScale;
+    nextScale = 0;
+    const rest: Float64Array[] = a.slice(k + 1);
+    if (y) rest.push(qty);
     if (scale === 0) {
       diag[k] = 0;
+      if (k + 1 < p) {
+        for (let i = k + 1; i < n; i++) nextScale = Math.max(nextScale, Math.abs(a[k + 1][i]));
+      }
       continue;
     }
     for (let i = k; i < n; i++) {
@@ -160,20 +170,17 @@ export function householderR(
     ak[k] = x0 - alpha;
     const vtv = 2 * norm * (norm + Math.abs(x0));
     diag[k] = alpha;
-    if (vtv === 0) continue;
-    for (let j = k + 1; j < p; j++) {
-      const aj = a[j];
-      let s = 0;
-      for (let i = k; i < n; i++) s += ak[i] * aj[i];
-      const f = (2 * s) / vtv;
-      for (let i = k; i < n; i++) aj[i] -= f * ak[i];
+    if (vtv === 0) {
+      if (k + 1 < p) {
+        for (let i = k + 1; i < n; i++) nextScale = Math.max(nextScale, Math.abs(a[k + 1][i]));
+      }
+      continue;
     }
-    if (y) {
-      let s = 0;
-      for (let i = k; i < n; i++) s += ak[i] * qty[i];
-      const f = (2 * s) / vtv;
-      for (let i = k; i < n; i++) qty[i] -= f * ak[i];
-    }
+    // the reflection applied to every later column (and y): all dot products in one pass and
+    // all updates in one pass, each column's sums in the order of the one-column loops
+    dotProducts(ak, rest, k, n, f);
+    for (let j = 0; j < rest.length; j++) f[j] = (2 * f[j]) / vtv;
+    nextScale = applyReflection(ak, rest, k, n, f, k + 1 < p);
   }
   const r: number[][] = [];
   for (let i = 0; i < p; i++) {
@@ -183,4 +190,80 @@ export function householderR(
     r.push(row);
   }
   return { r, qty };
+}
+
+/** out[j] = Σ_{i ≥ k} v[i]·cols[j][i], two columns per pass. */
+function dotProducts(
+  v: Float64Array,
+  cols: Float64Array[],
+  k: number,
+  n: number,
+  out: Float64Array,
+): void {
+  let j = 0;
+  for (; j + 1 < cols.length; j += 2) {
+    const c0 = cols[j], c1 = cols[j + 1];
+    let s0 = 0, s1 = 0;
+    for (let i = k; i < n; i++) {
+      const vi = v[i];
+      s0 += vi * c0[i];
+      s1 += vi * c1[i];
+    }
+    out[j] = s0;
+    out[j + 1] = s1;
+  }
+  if (j < cols.length) {
+    const c0 = cols[j];
+    let s0 = 0;
+    for (let i = k; i < n; i++) s0 += v[i] * c0[i];
+    out[j] = s0;
+  }
+}
+
+/**
+ * cols[j][i] −= f[j]·v[i] for i ≥ k, two columns per pass; returns max |cols[0][i]| over
+ * i > k after the update when `scaleFirst` (the next column's scale), else 0.
+ */
+function applyReflection(
+  v: Float64Array,
+  cols: Float64Array[],
+  k: number,
+  n: number,
+  f: Float64Array,
+  scaleFirst: boolean,
+): number {
+  let scale = 0, j = 0;
+  for (; j + 1 < cols.length; j += 2) {
+    const c0 = cols[j], c1 = cols[j + 1], f0 = f[j], f1 = f[j + 1];
+    c0[k] -= f0 * v[k];
+    c1[k] -= f1 * v[k];
+    if (j === 0 && scaleFirst) {
+      for (let i = k + 1; i < n; i++) {
+        const vi = v[i];
+        const u = (c0[i] -= f0 * vi);
+        c1[i] -= f1 * vi;
+        const au = Math.abs(u);
+        if (au > scale) scale = au;
+      }
+    } else {
+      for (let i = k + 1; i < n; i++) {
+        const vi = v[i];
+        c0[i] -= f0 * vi;
+        c1[i] -= f1 * vi;
+      }
+    }
+  }
+  if (j < cols.length) {
+    const c0 = cols[j], f0 = f[j];
+    c0[k] -= f0 * v[k];
+    if (j === 0 && scaleFirst) {
+      for (let i = k + 1; i < n; i++) {
+        const au = Math.abs(c0[i] -= f0 * v[i]);
+        if (au > scale) scale = au;
+      }
+    } else {
+      for (let i = k + 1; i < n; i++) c0[i] -= f0 * v[i];
+    }
+  }
+  return scale;
 }

@@ -54,6 +54,13 @@ function rhoFromResiduals(e: Float64Array): number {
   return Math.max(-RHO_MAX, Math.min(RHO_MAX, r));
 }
 
+const pool: Float64Array[] = [];
+/** Work array `i` of length n (a view of a pooled buffer that grows as needed). */
+function work(i: number, n: number): Float64Array {
+  if (!pool[i] || pool[i].length < n) pool[i] = new Float64Array(Math.max(n, 1024));
+  return pool[i].subarray(0, n);
+}
+
 function transform(x: Float64Array, rho: number, out: Float64Array): Float64Array {
   out[0] = Math.sqrt(1 - rho * rho) * x[0];
   for (let t = 1; t < x.length; t++) out[t] = x[t] - rho * x[t - 1];
@@ -118,10 +125,16 @@ export function praisWinsten(
       value: n,
     });
   }
-  let qr = leastSquaresQr(design, y);
+  // work arrays from a pool kept between calls (fresh arrays of this size cost page faults
+  // that were a sixth of a 17,000-day calibration); nothing returned refers to them
+  const ys = work(0, n), e = work(1, n);
+  const xs = design.map((_, j) => work(2 + j, n));
+  // the first, ordinary least-squares fit, on copies (the QR overwrites its input)
+  design.forEach((c, j) => xs[j].set(c));
+  ys.set(y);
+  let qr = leastSquaresQr(xs, ys, true);
   const kappa = conditionNumberOfR(qr.r);
   let beta = qr.coefficients;
-  const e = new Float64Array(n);
   const resid = (b: number[]) => {
     for (let i = 0; i < n; i++) e[i] = y[i];
     for (let j = 0; j < p; j++) {
@@ -131,8 +144,6 @@ export function praisWinsten(
     return e;
   };
   let rho = rhoFromResiduals(resid(beta));
-  const ys = new Float64Array(n);
-  const xs = design.map(() => new Float64Array(n));
   let iterations = 0, change = Infinity, converged = false;
   while (iterations < maxIt) {
     transform(y, rho, ys);

@@ -1,6 +1,7 @@
 /**
  * Parse ISO 8601 times into decimal years, with the middle-of-period rule for reduced
- * precision (shared/SCIENCE.md §11; ISO 8601-1:2019 §5.2 "reduced precision").
+ * precision (ISO 8601-1:2019 §5.2 "reduced precision"; reading a reduced-precision date as
+ * the middle of its period is common practice for period means).
  *
  * @module
  */
@@ -48,7 +49,7 @@ const RE_INSTANT = new RegExp(
  *   may replace `T`; `24:00` means the end of the day): that instant, converted to UTC.
  *   A date-time without offset is read as UTC.
  *
- * - time intervals `start/end` and `start/duration` (ISO 8601 §5.5; SCIENCE.md §11, e.g.
+ * - time intervals `start/end` and `start/duration` (ISO 8601-1:2019 §5.5, e.g.
  *   `1996-08/P1M` for a monthly mean): the middle of the interval. The interval runs from the
  *   start of the period the start names to the end of the period the end names (so
  *   `1961/1990` is 30 whole years, as climatologists read it), or to start + duration, with

@@ -7,6 +7,9 @@
  * kind, layer type and layout branch (`chart_specs.ts`). A refactor of the renderer or of an
  * analysis therefore keeps its output byte-identical, or changes this file on purpose.
  *
+ * Every run chart is also checked to show each warning of its run (own and inherited) whole in
+ * its visible notes, at every size (a chart grows taller than asked rather than cut one).
+ *
  * After a deliberate change to a chart or a result, rewrite the snapshot file with
  * `SUNLAG_UPDATE_SNAPSHOTS=1 deno test -A test/api/chart_snapshots_test.ts` and say why in the
  * commit.
@@ -17,7 +20,9 @@ import { loadDemo } from "../../api/demo.ts";
 import { RUN_KINDS } from "../../api/analyses/registry.ts";
 import { renderChart } from "../../api/charts/chart.ts";
 import { rendererCases } from "./chart_specs.ts";
-import { AOD, AREA, ENSO, MG, SSN, TEMP, TSI, TSIM } from "./demo_ids.ts";
+import { runLabel } from "../../api/runs/label.ts";
+import { noteText, squash } from "./svg_text.ts";
+import { AOD, AREA, ENSO, FIELD, MG, SSN, TEMP, TSI, TSIM } from "./demo_ids.ts";
 
 const SNAPSHOTS = new URL("./chart_snapshots.json", import.meta.url);
 const UPDATE = Deno.env.get("SUNLAG_UPDATE_SNAPSHOTS") === "1";
@@ -35,7 +40,13 @@ const VARIANTS = [
  * cite those ids, so their digests are not pinned: `RUN_REFS`).
  */
 type Case = [string, string, (ids: Record<string, string>) => Record<string, unknown>];
-const RUN_REFS = new Set(["reconstructions", "forcing", "energy-balance", "composites"]);
+const RUN_REFS = new Set([
+  "reconstructions",
+  "forcing",
+  "energy-balance",
+  "composites",
+  "field-composites",
+]);
 const CASES: Case[] = [
   ["resampling", "/v1/resampling", () => ({ series: TEMP, to: "annual" })],
   ["anomalies", "/v1/anomalies", () => ({ series: TEMP, base: { start: "1961", end: "1990" } })],
@@ -150,6 +161,17 @@ const CASES: Case[] = [
     bootstrap: 200,
     random_sets: 200,
   })],
+  ["field-area-means", "/v1/field-area-means", () => ({ field: FIELD })],
+  ["solar-signal-maps", "/v1/solar-signal-maps", () => ({
+    field: FIELD,
+    solar: TSIM,
+    surrogates: 200,
+  })],
+  ["field-composites", "/v1/field-composites", (ids) => ({
+    field: FIELD,
+    cycle_run: ids.cycles,
+    random_sets: 200,
+  })],
 ];
 
 async function sha256(text: string): Promise<string> {
@@ -166,7 +188,7 @@ function normalise(svg: string, runIds: string[] = [], digest?: string): string 
   let s = prefix ? svg.replaceAll(`${prefix}-`, "chart-") : svg;
   if (digest) s = s.replaceAll(digest, "DIGEST");
   runIds.forEach((id, k) => {
-    s = s.replaceAll(id, `RUN-ID-${k}`).replaceAll(id.slice(0, 8), `RUN-${k}`);
+    s = s.replaceAll(id, `RUN-ID-${k}`).replaceAll(runLabel(id), `RUN-${k}`);
   });
   return s;
 }
@@ -176,14 +198,45 @@ async function chartHash(
   path: string,
   runIds?: string[],
   digest?: string,
+  run?: FinishedRun,
 ): Promise<string> {
   const res = await svc.get(path);
   const body = await res.text();
   assert.equal(res.status, 200, `${path}: ${body.slice(0, 400)}`);
+  if (run) assertWarningsWhole(body, run, path);
   return await sha256(normalise(body, runIds, digest));
 }
 
-async function finishedRun(svc: TestService, path: string, body: Record<string, unknown>) {
+/**
+ * Every warning of the run, its own and those it inherits, appears whole in the chart's
+ * visible notes (not only in its description), at every size.
+ */
+function assertWarningsWhole(svg: string, run: FinishedRun, path: string) {
+  const shown = noteText(svg);
+  const warnings = [
+    ...(run.result.warnings ?? []),
+    ...(run.result.inherited ?? []).filter((n) => n.level === "warning").map((n) => n.text),
+  ];
+  for (const w of warnings) {
+    assert.ok(shown.includes(squash(w)), `${path}: warning not shown whole: "${w}"`);
+  }
+  const h = Number(/<svg[^>]* height="([\d.]+)"/.exec(svg)?.[1]);
+  const asked = Number(new URL(path, "http://x").searchParams.get("height") ?? 400);
+  assert.ok(h >= asked, `${path}: height ${h} below the asked ${asked}`);
+}
+
+interface FinishedRun {
+  id: string;
+  kind: string;
+  result_digest: string;
+  result: { warnings?: string[]; inherited?: { level: string; text: string }[] };
+}
+
+async function finishedRun(
+  svc: TestService,
+  path: string,
+  body: Record<string, unknown>,
+): Promise<FinishedRun> {
   const res = await svc.post(path, body);
   let run = await res.json();
   assert.ok(res.status === 201 || res.status === 202, `${path}: ${JSON.stringify(run)}`);
@@ -192,7 +245,7 @@ async function finishedRun(svc: TestService, path: string, body: Record<string, 
     run = await (await svc.get(`/v1/runs/${run.id}`)).json();
   }
   assert.equal(run.status, "succeeded", `${path}: ${JSON.stringify(run.error)}`);
-  return run as { id: string; kind: string; result_digest: string };
+  return run as FinishedRun;
 }
 
 Deno.test("charts and results of the demo are byte-identical to their snapshots", async () => {
@@ -221,6 +274,7 @@ Deno.test("charts and results of the demo are byte-identical to their snapshots"
           `/v1/runs/${run.id}/chart.svg${v}`,
           [run.id, ...Object.values(ids)],
           run.result_digest,
+          run,
         );
       }
       if (name === "darkening") {

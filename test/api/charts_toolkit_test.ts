@@ -5,7 +5,7 @@
 import assert from "node:assert/strict";
 import fc from "fast-check";
 import { type ChartSpec, renderChart, type RenderOptions } from "../../api/charts/chart.ts";
-import { escapeXml, wrapText } from "../../api/charts/svg.ts";
+import { escapeXml, textWidth, wrapText } from "../../api/charts/svg.ts";
 import { numberLabel, yearTicks } from "../../api/charts/ticks.ts";
 import { decimateBand, decimateM4 } from "../../api/charts/decimate.ts";
 import { axisLabel, quantityLabel, unitsLabel } from "../../api/charts/labels.ts";
@@ -244,7 +244,13 @@ Deno.test("unitsLabel() and axisLabel() read UDUNITS strings", () => {
 
 Deno.test("escapeXml() and wrapText()", () => {
   assert.equal(escapeXml("<&>\"'"), "&lt;&amp;&gt;&quot;&apos;");
-  assert.deepEqual(wrapText("aaa bbb ccc", 10, 40), ["aaa bbb", "ccc"]);
+  assert.deepEqual(wrapText("xxx yyy zzz", 10, 40), ["xxx yyy", "zzz"]);
+  // a word wider than the line is kept whole, or cut to fit when asked
+  assert.deepEqual(wrapText("xxxxxxxxxx", 10, 40), ["xxxxxxxxxx"]);
+  assert.deepEqual(wrapText("xxxxxxxxxx", 10, 40, false, true), ["xxxxxx", "xxxx"]);
+  // run labels (8 hex digits) have one width whatever their digits, so layouts do not vary
+  assert.equal(textWidth("run 0123abcd", 12), textWidth("run ffffffff", 12));
+  assert.equal(textWidth("run 0123abcd", 12), textWidth("run 99999999", 12));
 });
 
 Deno.test("decimateM4() keeps the first, last, minimum and maximum of every pixel column", () => {

@@ -184,6 +184,14 @@ Deno.test("POST /v1/attributions recovers an invented solar sensitivity and lag"
     assert.equal(r.lag_surface.length, 3);
     assert.ok(run.result.outputs.contribution_solar.value.length === r.n);
     assert.ok(r.cautions.some((c: string) => /before 1978/.test(c)));
+    // a real response survives paying for the search over 13 solar lags: no surrogate of 100
+    // reaches its p-value
+    const ls = r.solar.lag_search_significance;
+    assert.equal(ls.method, "phase");
+    assert.equal(ls.lags_searched, 13);
+    assert.equal(ls.p_search, 1 / 101);
+    assert.equal(ls.p_naive, sc.p_value);
+    assert.match(ls.which_to_trust, /enso in `coefficients` are naive/);
   } finally {
     await svc.close();
   }
@@ -344,6 +352,7 @@ Deno.test("demo scenario: attribution recovers the solar sensitivity and lag; co
         { name: "enso", role: "enso", series: enso, min_lag: 0, max_lag: 6 },
         { name: "volcanic", role: "volcanic", series: aod, min_lag: 0, max_lag: 12 },
       ],
+      lag_search_test: "sidak",
     });
     const run = await res.json();
     assert.equal(res.status, 201, JSON.stringify(run).slice(0, 600));
@@ -458,6 +467,7 @@ Deno.test("lag correlations and attributions take the solar series from a forcin
     const at = await (await svc.post("/v1/attributions", {
       climate,
       regressors: [{ name: "solar", role: "solar", run: f.id, min_lag: 0, max_lag: 24 }],
+      surrogates: 100,
     })).json();
     assert.equal(at.status, "succeeded", JSON.stringify(at).slice(0, 300));
     assert.equal(at.result.solar.lag, 8);

@@ -148,13 +148,14 @@ for (const reader of READERS) {
         assert.ok(csv.includes("# interval: 95 % prediction interval"));
         assert.ok(/# caution: Reconstructions before the satellite era/.test(csv));
         const t = await reader.read(csv);
-        assert.deepEqual(t.columns, ["date", "decimal_year", "value", "lower", "upper"]);
+        // the same column vocabulary as a stored series' CSV (api/export/columns.ts)
+        assert.deepEqual(t.columns, ["time", "decimal_year", "value", "lower", "upper"]);
         assert.equal(t.rows, time.length);
         assert.deepEqual(t.values.decimal_year, time);
         assert.deepEqual(t.values.value, value);
         assert.deepEqual(t.values.lower, lower);
         assert.deepEqual(t.values.upper, upper);
-        assert.equal(t.values.date[0], "1996-01");
+        assert.equal(t.values.time[0], "1996-01");
         // Accept: text/csv gives the same bytes as ?format=csv
         const viaAccept = await svc.get(`/v1/runs/${run.id}/outputs/tsi`, { Accept: "text/csv" });
         assert.equal(await viaAccept.text(), csv);

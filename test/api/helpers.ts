@@ -11,6 +11,7 @@ import { openStoreFromSpec } from "../../api/store/mod.ts";
 import { InThreadExecutor } from "../../api/runs/service.ts";
 import { WorkerPool } from "../../api/workers/pool.ts";
 import type { ComputeExecutor } from "../../api/runs/service.ts";
+import type { RunKind } from "../../api/runs/kind.ts";
 import { randomStream } from "../../core/random/mod.ts";
 
 export interface TestService extends Service {
@@ -23,18 +24,19 @@ export interface TestService extends Service {
 
 /** A service over `sqlite::memory:` (or `store`), in-thread compute unless `workers` > 0. */
 export async function makeTestApp(
-  opts: { config?: Partial<Config>; workers?: number; store?: string } = {},
+  opts: { config?: Partial<Config>; workers?: number; store?: string; kinds?: RunKind[] } = {},
 ): Promise<TestService> {
   const config = testConfig({ ...opts.config, workers: opts.workers ?? 0 });
   const store = await openStoreFromSpec(opts.store ?? "sqlite::memory:");
   const pool = opts.workers ? new WorkerPool(opts.workers) : null;
   const executor: ComputeExecutor = pool ?? new InThreadExecutor();
-  const svc = createService({ store, config, executor });
+  const svc = createService({ store, config, executor, kinds: opts.kinds });
   return {
     ...svc,
     async close() {
       await svc.runs.settle();
       pool?.terminate();
+      svc.uploads.terminate();
       await store.close();
     },
     post: (path, body, headers = {}) =>
@@ -137,5 +139,7 @@ export function inventedAttributionRequest(
         max_lag: 6,
       },
     ],
+    // the fewest surrogates of the test that pays for the solar lag search (each repeats it)
+    surrogates: 100,
   };
 }

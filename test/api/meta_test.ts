@@ -81,6 +81,12 @@ Deno.test("GET /v1/analyses lists every registered analysis once, with schemas i
   // Featured analyses come first.
   const flags = items.map((i: { featured: boolean }) => i.featured);
   assert.deepEqual(flags, [...flags].sort((a: boolean, b: boolean) => Number(b) - Number(a)));
+  // ... and the three main questions are featured, so the page's "Main analyses" has them
+  assert.deepEqual(
+    items.filter((i: { featured: boolean }) => i.featured).map((i: { kind: string }) => i.kind)
+      .sort(),
+    ["cycles", "irradiance-reconstructions", "lag-correlations"],
+  );
   await svc.close();
 });
 

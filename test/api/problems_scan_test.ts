@@ -139,6 +139,12 @@ Deno.test("problems of bad requests name their field and speak to the user", asy
         regressors: [{ name: "solar", series: TSIM, role: "solar", max_lag: 3 }],
       }],
       ["/v1/composites", { series: TEMP, cycle_run: cycles.id, bootstrap: 50, random_sets: 50 }],
+      ["/v1/field-area-means", {
+        field: DEMO.FIELD,
+        region: { kind: "box", south: 0, north: 40, west: 20, east: 90 },
+      }],
+      ["/v1/solar-signal-maps", { field: DEMO.FIELD, solar: TSIM, max_lag: 6, surrogates: 99 }],
+      ["/v1/field-composites", { field: DEMO.FIELD, cycle_run: cycles.id, random_sets: 99 }],
     ];
     const kindOfPath = new Map(RUN_KINDS.map((k) => [k.path, k.kind]));
     const tiny = monthlySeries("two months", "sunspot_number", "1", 2000, 2, (i) => 10 + i, {

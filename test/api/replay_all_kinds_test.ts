@@ -10,7 +10,7 @@ import { RUN_KINDS } from "../../api/analyses/registry.ts";
 import { canonicalJson } from "../../api/canonical.ts";
 import { DEMO } from "./demo_inputs.ts";
 
-const { SSN, AREA, MG, TSI, TSIM, TEMP, ENSO, AOD } = DEMO;
+const { SSN, AREA, MG, TSI, TSIM, TEMP, ENSO, AOD, FIELD } = DEMO;
 
 Deno.test("replay: every run kind recomputes to the stored digest", async (t) => {
   const svc = await makeTestApp();
@@ -83,6 +83,22 @@ Deno.test("replay: every run kind recomputes to the stored digest", async (t) =>
       series: TEMP,
       cycle_run: runIds["/v1/cycles"],
       bootstrap: 200,
+      random_sets: 200,
+    })],
+    [
+      "/v1/field-area-means",
+      () => ({ field: FIELD, region: { kind: "band", south: 20, north: 60 } }),
+    ],
+    ["/v1/solar-signal-maps", () => ({
+      field: FIELD,
+      solar: TSIM,
+      controls: [{ name: "enso", series: ENSO }],
+      max_lag: 12,
+      surrogates: 200,
+    })],
+    ["/v1/field-composites", () => ({
+      field: FIELD,
+      cycle_run: runIds["/v1/cycles"],
       random_sets: 200,
     })],
   ];

@@ -169,7 +169,7 @@ Deno.test("runs: outputs as JSON and CSV, saved as a series with lineage; delete
   assert.match(csv, new RegExp(`# run_id: ${run.id}`));
   assert.match(csv, /# result_digest: sha256:[0-9a-f]{64}/);
   assert.match(csv, /# caution: test kind/);
-  assert.match(csv, /\ndate,decimal_year,value\n2000-01,/);
+  assert.match(csv, /\ntime,decimal_year,value\n2000-01,/);
   const saved = await svc.post(`/v1/runs/${run.id}/outputs/doubled/series`, {});
   assert.equal(saved.status, 201);
   const sid = (await saved.json()).id;

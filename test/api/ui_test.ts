@@ -14,6 +14,8 @@ import {
   queryString,
   shellQuote,
 } from "../../api/ui/snippets.js";
+import { runLabel as pageRunLabel } from "../../api/ui/dom.js";
+import { runLabel } from "../../api/runs/label.ts";
 
 Deno.test("registerUiRoutes() serves the page and its assets with types, CSP and ETags", async () => {
   const svc = await makeTestApp();
@@ -249,4 +251,16 @@ Deno.test("page colours meet WCAG 2.1 AA text contrast (4.5:1) in light and dark
   // The dark palette under prefers-color-scheme repeats the explicit dark one.
   const auto = palette(css, ':root:not([data-theme="light"])');
   assert.deepEqual(auto, palette(css, ':root[data-theme="dark"]'));
+});
+
+Deno.test("the page labels runs as charts and CSV headers do (api/runs/label.ts)", () => {
+  for (
+    const id of [
+      "01a2360b-1c2d-7e3f-8a4b-5c6d7e8f9a0b",
+      "01a2360b-0000-7000-8000-00000000ffff",
+      "not-a-run-id",
+      "",
+    ]
+  ) assert.equal(pageRunLabel(id), runLabel(id), id);
+  assert.equal(runLabel("01a2360b-1c2d-7e3f-8a4b-5c6d7e8f9a0b"), "7e8f9a0b");
 });

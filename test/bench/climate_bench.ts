@@ -1,6 +1,6 @@
 /**
  * deno bench for the solar–climate area (means per iteration; medians and the side-by-side
- * comparison with numpy/scipy are in climate_medians.ts):
+ * comparison with numpy/scipy are in test/bench/peers, `deno task bench:peers`):
  *
  *   deno bench -A test/bench/climate_bench.ts
  */

@@ -1,6 +1,6 @@
 /**
  * The benchmark cases of the solar–climate area, shared by climate_bench.ts and
- * climate_medians.ts: two 4,096-month series (invented AR(1) data, fixed seeds), lags
+ * test/bench/peers/workloads.ts: two 4,096-month series (invented AR(1) data, fixed seeds), lags
  * −120..120, linear detrend; and a 1,800-month attribution with 4 regressors whose lags are
  * searched over 0–24 months.
  *
@@ -17,14 +17,14 @@ import {
 
 export const N = 4096, MAX_LAG = 120, SURROGATES = 10_000;
 
-/** Preprocessed solar-like and climate-like series and the surrogate plan. */
-export function lagCase(): { x: Float64Array; y: Float64Array; plan: SurrogateLagPlan } {
-  const raw = ar1Surrogate(N, 0.95, 1, randomStream(101, 0));
+/** Preprocessed solar-like and climate-like series of n months and the surrogate plan. */
+export function lagCase(n = N): { x: Float64Array; y: Float64Array; plan: SurrogateLagPlan } {
+  const raw = ar1Surrogate(n, 0.95, 1, randomStream(101, 0));
   const x = preprocessSeries(
     raw.map((v, i) => v + Math.sin((2 * Math.PI * i) / 132)),
     { method: "linear" },
   );
-  const y = preprocessSeries(ar1Surrogate(N, 0.6, 1, randomStream(102, 0)), { method: "linear" });
+  const y = preprocessSeries(ar1Surrogate(n, 0.6, 1, randomStream(102, 0)), { method: "linear" });
   const plan = planSurrogateLagTest(x, y, {
     minLag: -MAX_LAG,
     maxLag: MAX_LAG,

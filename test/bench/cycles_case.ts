@@ -11,8 +11,8 @@
 export const MONTHS = 3600;
 export const PERIODS = 5000;
 
-export function activity(): Float64Array {
-  return Float64Array.from({ length: MONTHS }, (_, i) => {
+export function activity(months = MONTHS): Float64Array {
+  return Float64Array.from({ length: months }, (_, i) => {
     const cyc = 0.5 - 0.5 * Math.cos((2 * Math.PI * i) / 131);
     const amp = 120 + 60 * Math.sin((2 * Math.PI * i) / 1000);
     const noise = 15 * Math.sin(0.7331 * i) * Math.sin(1.913 * i + 0.4);
@@ -25,6 +25,6 @@ export function unevenTimes(): Float64Array {
 }
 
 /** Month mid-points of 1700-01 .. 1999-12 as decimal years (for the cycle table). */
-export function monthTimes(): Float64Array {
-  return Float64Array.from({ length: MONTHS }, (_, i) => 1700 + (i + 0.5) / 12);
+export function monthTimes(months = MONTHS): Float64Array {
+  return Float64Array.from({ length: months }, (_, i) => 1700 + (i + 0.5) / 12);
 }

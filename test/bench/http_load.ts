@@ -174,6 +174,7 @@ try {
       ["run_json", runUrl],
       ["run_chart_svg", `${runUrl}/chart.svg`],
       ["series_chart_svg", `${base}/v1/series/${spots}/chart.svg`],
+      ["series_csv", `${base}/v1/series/${spots}?format=csv`],
     ]
   ) {
     const { etag, bytes } = await probe(url);

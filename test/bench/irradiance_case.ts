@@ -1,15 +1,17 @@
 /**
- * The irradiance benchmark workload, shared by irradiance_bench.ts (deno bench) and
- * irradiance_medians.ts (side-by-side medians): calibrate a two-proxy model on 17,000 daily
+ * The irradiance benchmark workload, shared by irradiance_bench.ts (deno bench) and the
+ * side-by-side benchmarks (test/bench/peers): calibrate a two-proxy model on 17,000 daily
  * points (Prais–Winsten + 5-fold blocked CV) and reconstruct 153,000 daily points with 95 %
  * prediction intervals, the first half back-extended through sunspot mappings. The same work in
- * numpy: irradiance_numpy.py. Synthetic inputs (invented, seeded).
+ * numpy: `irradiance_job` in test/bench/peers/peer_side.py. Synthetic inputs (invented, seeded).
  */
 import {
   calibrateProxyModel,
   evaluateSunspotMapping,
   fitSunspotMapping,
+  type ProxyModelFit,
   reconstructFromProxies,
+  type Reconstruction,
 } from "../../core/irradiance/mod.ts";
 import { randomStream } from "../../core/random/mod.ts";
 
@@ -29,8 +31,12 @@ function synthetic(n: number, seed: number) {
   return { r, f, psi, y };
 }
 
-/** The two timed tasks, inputs prepared once. */
-export function irradianceCase(): { calibrate(): void; reconstruct(): void } {
+/** The two timed tasks, inputs prepared once, and the raw inputs (for the numpy peer). */
+export function irradianceCase(): {
+  calibrate(): ProxyModelFit;
+  reconstruct(): Reconstruction;
+  inputs: Record<string, Float64Array>;
+} {
   const cal = synthetic(17_000, 1);
   const terms = [
     { name: "f", role: "facular" as const, values: cal.f, quietLevel: 0.15 },
@@ -55,15 +61,24 @@ export function irradianceCase(): { calibrate(): void; reconstruct(): void } {
     backExtension: { residualSd: 0.3, rho: 0.9, stepDays: 1 },
   };
   return {
+    inputs: {
+      cal_r: cal.r,
+      cal_f: cal.f,
+      cal_psi: cal.psi,
+      cal_y: cal.y,
+      rec_r: rec.r,
+      rec_f: directF,
+      rec_psi: directP,
+    },
     calibrate() {
-      calibrateProxyModel(cal.y, terms, { method: "prais_winsten", folds: 5 });
+      return calibrateProxyModel(cal.y, terms, { method: "prais_winsten", folds: 5 });
     },
     reconstruct() {
       const vf = new Float64Array(N), pf = new Float64Array(N);
       const vp = new Float64Array(N), pp = new Float64Array(N);
       evaluateSunspotMapping(mapF, rec.r, vf, pf);
       evaluateSunspotMapping(mapP, rec.r, vp, pp);
-      reconstructFromProxies(model, {
+      return reconstructFromProxies(model, {
         days,
         direct: [directF, directP],
         mapped: [{ value: vf, paramVariance: pf }, { value: vp, paramVariance: pp }],

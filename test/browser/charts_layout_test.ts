@@ -194,6 +194,7 @@ async function charts(svc: TestService): Promise<[string, string][]> {
         max_lag: 6,
       },
     ],
+    surrogates: 100,
   });
   const out: [string, string][] = [];
   for (const q of ["", "?theme=dark", "?width=240&height=160", "?width=1600&height=300"]) {

@@ -6,7 +6,7 @@
  * @module
  */
 import { createService, type Service } from "../../api/app.ts";
-import { testConfig } from "../../api/config.ts";
+import { type Config, testConfig } from "../../api/config.ts";
 import { openStoreFromSpec } from "../../api/store/mod.ts";
 import { WorkerPool } from "../../api/workers/pool.ts";
 import { loadDemo } from "../../api/demo.ts";
@@ -20,12 +20,22 @@ export interface DemoService {
   close(): Promise<void>;
 }
 
-/** Start the service with the demo data on a free port of 127.0.0.1. */
-export async function startDemoService(port = 0): Promise<DemoService> {
+/**
+ * Start the service with the demo data on a free port of 127.0.0.1 (any port is an allowed
+ * `Host`); `config` overrides the test defaults (e.g. an admin key).
+ */
+export async function startDemoService(
+  port = 0,
+  config: Partial<Config> = {},
+): Promise<DemoService> {
   const store = await openStoreFromSpec("sqlite::memory:");
   const demoIds = await loadDemo(store);
   const pool = new WorkerPool(2);
-  const service = createService({ store, config: testConfig({ workers: 2 }), executor: pool });
+  const service = createService({
+    store,
+    config: testConfig({ workers: 2, allowedHosts: ["127.0.0.1", "localhost"], ...config }),
+    executor: pool,
+  });
   const server = Deno.serve(
     { hostname: "127.0.0.1", port, onListen: () => {} },
     service.app.fetch,

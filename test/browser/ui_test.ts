@@ -276,6 +276,51 @@ Deno.test({
       });
 
       await t.step(
+        "the Analyse form shows its required inputs; its defaults run, a refused run is not stored",
+        async () => {
+          const runsTotal = async () =>
+            (await (await fetch(`${svc.url}/v1/runs?limit=1`)).json()).total as number;
+          // the main analyses are offered first
+          await page.goto(`${svc.url}/#/analyse`);
+          await page.waitForSelector("#analysis-form");
+          const main = await page.locator("#analysis optgroup[label='Main analyses'] option")
+            .allInnerTexts();
+          assert.equal(main.length, 3, JSON.stringify(main));
+          await page.goto(`${svc.url}/#/analyse?kind=/v1/lag-correlations`);
+          await page.waitForSelector("#analysis-form");
+          // the solar input (one of solar, solar_run) is visible, not under "More options",
+          // and a fitting series is chosen
+          const shown = page.locator("#analysis-form > .grid #f_solar");
+          assert.equal(await shown.count(), 1);
+          assert.ok(await shown.isVisible());
+          assert.equal(await page.inputValue("#f_solar"), solar);
+          assert.ok(await page.locator("#analysis-form > .grid #f_solar_run").isVisible());
+          // refused for its input (no solar series at all): the field says why, nothing stored
+          const before = await runsTotal();
+          await page.selectOption("#f_solar", "");
+          await page.click("#analysis-form button[type=submit]");
+          await page.waitForSelector("#f_solar[aria-invalid=true]");
+          assert.match(
+            await page.locator("[data-pointer='/solar'] .field-error").innerText(),
+            /exactly one of solar/,
+          );
+          assert.equal(await runsTotal(), before);
+          // with the form's defaults the run succeeds
+          await page.goto(`${svc.url}/#/analyse?kind=/v1/lag-correlations&d=1`);
+          // the new form, with its defaults (the old one had "(none)" chosen)
+          await page.waitForFunction(() =>
+            (document.querySelector("#f_solar") as HTMLSelectElement | null)?.value !== "" &&
+            document.querySelector("#submit-status")?.textContent === ""
+          );
+          await page.click("#analysis-form button[type=submit]");
+          await page.waitForSelector("main [data-status=succeeded]", { timeout: RUN_TIMEOUT_MS });
+          assert.equal(await runsTotal(), before + 1);
+          const failed = await (await fetch(`${svc.url}/v1/runs?status=failed&limit=1`)).json();
+          assert.equal(failed.total, 0);
+        },
+      );
+
+      await t.step(
         "a lag-correlation run from the form reaches succeeded while its progress bar moves",
         async () => {
           // Size the run to last a few seconds on this machine, whatever its speed: after a
@@ -413,6 +458,11 @@ Deno.test({
         await page.locator("main .output button", { hasText: "Save as a stored series" }).first()
           .click();
         await page.click("text=Open the stored series");
+        // the run view had a heading and a chart too: wait for the series view itself
+        await page.waitForFunction(() => location.hash.startsWith("#/series/"));
+        await page.waitForFunction(() =>
+          (document.querySelector("main")?.textContent ?? "").includes("Derived from run")
+        );
         await page.waitForSelector("main h1");
         await page.locator("figure.chart svg").waitFor();
         const text = await page.locator("main").innerText();

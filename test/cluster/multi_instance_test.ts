@@ -198,6 +198,28 @@ Deno.test({
         },
       );
 
+      await t.step(
+        "a solar-signal map's surrogate chunks over two worker processes: in-process digest",
+        async () => {
+          const FIELD =
+            "field:sha256:9e638701b97f5a020c0525c24628808eb8c395b5e326730a4bd06c7f2e710b35";
+          const body = { field: FIELD, solar: TSIM, max_lag: 6, surrogates: 300, seed: 4 };
+          const local = await makeTestApp();
+          await loadDemo(local.store);
+          const res = await local.post("/v1/solar-signal-maps", body);
+          let here = await res.json();
+          await local.runs.settle();
+          here = await (await local.get(`/v1/runs/${here.id}`)).json();
+          await local.close();
+          const start = await post(`${a}/v1/solar-signal-maps`, body, { prefer: "respond-async" });
+          assert.equal(start.status, 202, JSON.stringify(start.body));
+          const done = await waitRun(a, start.body.id, (r) => TERMINAL.has(r.status), seen);
+          assert.equal(done.status, "succeeded", JSON.stringify(done.error));
+          assert.equal(done.result_digest, here.result_digest);
+          assert.deepEqual(done.input_fields, [FIELD]);
+        },
+      );
+
       await t.step("no terminal state ever changed", async () => {
         await new Promise((r) => setTimeout(r, 1000));
         for (const id of [...seen.keys()]) await waitRun(a, id, () => true, seen);

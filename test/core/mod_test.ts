@@ -1,5 +1,6 @@
 import assert from "node:assert/strict";
 import * as core from "../../core/mod.ts";
+import { tsSources } from "../source_files.ts";
 
 const SNAPSHOT = new URL("./mod_exports.json", import.meta.url);
 
@@ -18,25 +19,17 @@ Deno.test("core/mod.ts exports exactly the committed list (API changes are delib
 
 Deno.test("core/ is pure: no imports of api/, Hono, zod or I/O modules", async () => {
   const bad: string[] = [];
-  const walk = async (dir: URL) => {
-    for await (const e of Deno.readDir(dir)) {
-      const u = new URL(e.name + (e.isDirectory ? "/" : ""), dir);
-      if (e.isDirectory) await walk(u);
-      else if (e.name.endsWith(".ts")) {
-        const text = await Deno.readTextFile(u);
-        for (const m of text.matchAll(/^\s*(?:import|export)[^;]*?from\s+"([^"]+)"/gms)) {
-          const spec = m[1];
-          if (/\/api\/|^hono|^@hono|^zod|^node:(fs|http|net|sqlite|child_process)/.test(spec)) {
-            bad.push(`${u.pathname.split("/core/")[1]}: ${spec}`);
-          }
-        }
-        if (/\bDeno\.(readTextFile|writeTextFile|open|serve|Command|env)\b|\bfetch\(/.test(text)) {
-          bad.push(`${u.pathname.split("/core/")[1]}: uses I/O`);
-        }
+  for await (const [u, text] of tsSources(new URL("../../core/", import.meta.url))) {
+    for (const m of text.matchAll(/^\s*(?:import|export)[^;]*?from\s+"([^"]+)"/gms)) {
+      const spec = m[1];
+      if (/\/api\/|^hono|^@hono|^zod|^node:(fs|http|net|sqlite|child_process)/.test(spec)) {
+        bad.push(`${u.pathname.split("/core/")[1]}: ${spec}`);
       }
     }
-  };
-  await walk(new URL("../../core/", import.meta.url));
+    if (/\bDeno\.(readTextFile|writeTextFile|open|serve|Command|env)\b|\bfetch\(/.test(text)) {
+      bad.push(`${u.pathname.split("/core/")[1]}: uses I/O`);
+    }
+  }
   assert.deepEqual(bad, []);
 });
 

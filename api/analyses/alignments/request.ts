@@ -5,6 +5,7 @@
  */
 import { z } from "@hono/zod-openapi";
 import { SeriesRef } from "../../schemas/series_ref.ts";
+import { DEMO_SERIES } from "../../schemas/examples.ts";
 
 /** Most series in one alignment. */
 export const MAX_ALIGNED = 20;
@@ -25,6 +26,8 @@ export const AlignRequest = z.object({
   min_days_per_month: z.number().int().min(1).max(31).default(20),
   min_months_per_year: z.number().int().min(1).max(12).default(10),
   min_points_per_period: z.number().int().min(1).max(100_000).default(1),
-}).openapi("AlignRequest");
+}).openapi("AlignRequest", {
+  example: { series: [DEMO_SERIES.TEMP, DEMO_SERIES.ENSO], resolution: "annual" },
+});
 
 export type AlignParams = z.output<typeof AlignRequest>;

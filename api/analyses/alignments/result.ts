@@ -4,7 +4,7 @@
  * @module
  */
 import { z } from "@hono/zod-openapi";
-import { cautions, OutputSeriesSchema, warnings } from "../common/result_parts.ts";
+import { cautions, inherited, OutputSeriesSchema, warnings } from "../common/result_parts.ts";
 import { InputSummary } from "../common/input_summary.ts";
 
 export const AlignResult = z.object({
@@ -40,6 +40,7 @@ export const AlignResult = z.object({
   }),
   warnings,
   cautions,
+  inherited,
 }).openapi("AlignResult");
 
 /** The result as `compute` builds it. */

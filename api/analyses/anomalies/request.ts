@@ -5,6 +5,7 @@
  */
 import { z } from "@hono/zod-openapi";
 import { SeriesRef, TimeValue } from "../../schemas/series_ref.ts";
+import { DEMO_SERIES } from "../../schemas/examples.ts";
 
 const BaseBound = TimeValue.openapi({
   description: "ISO 8601 period (`1961`, `1961-01`, `1961-01-01`) or decimal year",
@@ -26,6 +27,8 @@ export const AnomalyRequest = z.object({
       "mean of each calendar month; `auto`: monthly for daily and monthly series, else mean",
     example: "auto",
   }),
-}).openapi("AnomalyRequest");
+}).openapi("AnomalyRequest", {
+  example: { series: DEMO_SERIES.TEMP, base: { start: "1961", end: "1990" } },
+});
 
 export type AnomalyParams = z.output<typeof AnomalyRequest>;

@@ -4,7 +4,7 @@
  * @module
  */
 import { z } from "@hono/zod-openapi";
-import { cautions, OutputSeriesSchema, warnings } from "../common/result_parts.ts";
+import { cautions, inherited, OutputSeriesSchema, warnings } from "../common/result_parts.ts";
 import { InputSummary } from "../common/input_summary.ts";
 
 export const AnomalyResult = z.object({
@@ -28,6 +28,7 @@ export const AnomalyResult = z.object({
   }),
   warnings,
   cautions,
+  inherited,
 }).openapi("AnomalyResult");
 
 /** The result as `compute` builds it. */

@@ -7,7 +7,7 @@
  */
 import type { KindChart } from "../../runs/kind.ts";
 import type { Layer } from "../../charts/chart.ts";
-import { runDescription, runNotes } from "../../charts/run_common.ts";
+import { runDescription, runNotes, runTitle } from "../../charts/run_common.ts";
 import { axisLabel, quantityLabel, unitsLabel } from "../../charts/labels.ts";
 import type { AttributionResultOut } from "./result.ts";
 
@@ -15,6 +15,36 @@ const PREFIX = "contribution_";
 
 function g3(v: number): string {
   return v.toPrecision(3);
+}
+
+/** p-value in a legend: "< 0.001" or three decimals. */
+function pText(p: number): string {
+  return p < 0.001 ? "< 0.001" : p.toFixed(3);
+}
+
+/** The solar p-values, saying which is naive and which pays for the lag search. */
+function solarPText(s: NonNullable<AttributionResultOut["solar"]>): string {
+  const l = s.lag_search_significance;
+  if (l.method === "fixed_lag") return `p ${pText(l.p_naive)}, lag fixed`;
+  const adjusted = l.method === "phase" ? l.p_search! : l.p_sidak;
+  return `p ${pText(adjusted)} paying for the lag search, ${
+    pText(l.p_naive)
+  } if the lag were fixed`;
+}
+
+/** The note on the solar p-values: naive, Monte Carlo over the search, Šidák bound. */
+function lagSearchNote(s: NonNullable<AttributionResultOut["solar"]>): string {
+  const l = s.lag_search_significance;
+  if (l.method === "fixed_lag") {
+    return `Solar p-value ${g3(l.p_naive)} at the fixed lag ${s.lag} ${s.lag_unit}.`;
+  }
+  return `Solar p-values: ${
+    l.p_search === null
+      ? ""
+      : `${
+        g3(l.p_search)
+      } paying for the AIC search over ${l.lags_searched} lags (${l.surrogates} phase surrogates); `
+  }Šidák bound ${g3(l.p_sidak)}; naive (chosen lag taken as fixed, too small) ${g3(l.p_naive)}.`;
 }
 
 /** The note on the solar regressor's sensitivity and max-minus-min response. */
@@ -35,11 +65,14 @@ export const attributionsChart: KindChart<AttributionResultOut> = {
       const c = r.coefficients.find((q) => q.name === name);
       const lagText = c?.lag ? `, lag ${c.lag} ${r.lag_unit}` : "";
       const p = c?.p_value;
+      const pLabel = r.solar && r.solar.regressor === name
+        ? ` (${solarPText(r.solar)})`
+        : p !== undefined
+        ? ` (p ${pText(p)})`
+        : "";
       layers.push({
         type: "line",
-        label: `${name}${lagText}${
-          p !== undefined ? ` (p ${p < 0.001 ? "< 0.001" : p.toFixed(3)})` : ""
-        }`,
+        label: `${name}${lagText}${pLabel}`,
         x: o.time,
         y: o.value,
         color: i,
@@ -47,9 +80,7 @@ export const attributionsChart: KindChart<AttributionResultOut> = {
     });
     const first = contributions[0][1];
     return {
-      title: `Contributions to ${first.name.replace(/^.* contribution to /, "")} · run ${
-        run.id.slice(0, 8)
-      }`,
+      title: runTitle(`Contributions to ${first.name.replace(/^.* contribution to /, "")}`, run),
       description: runDescription(
         run,
         `Contribution of each regressor (${
@@ -63,11 +94,10 @@ export const attributionsChart: KindChart<AttributionResultOut> = {
         }`,
       },
       layers,
-      notes: [
-        ...(r.solar ? [solarNote(r.solar)] : []),
+      ...runNotes(run, [
+        ...(r.solar ? [solarNote(r.solar), lagSearchNote(r.solar)] : []),
         `R² of the regression ${r.r_squared.toFixed(3)}; errors: ${r.errors}.`,
-        ...runNotes(run),
-      ],
+      ]),
     };
   },
 };

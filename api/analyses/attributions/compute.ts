@@ -5,17 +5,34 @@
  *
  * @module
  */
-import { InputProblem, type OutputSeries, type RunContext } from "../../runs/kind.ts";
+import {
+  CancelledError,
+  InputProblem,
+  type OutputSeries,
+  type RunContext,
+} from "../../runs/kind.ts";
 import type { StoredSeries } from "../../store/types.ts";
 import { refId } from "../../schemas/series_ref.ts";
 import {
   attributionRegression,
   type AttributionRegressor,
   type AttributionResult,
+  combineLagSearchChunks,
   cycleAmplitudeEstimate,
+  type LagSearchChunkInput,
+  type LagSearchChunkOutput,
+  planLagSearchTest,
+  sidakAdjusted,
 } from "../../../core/climate/mod.ts";
 import { type AnalysisAxis, analysisAxis } from "../common/analysis_axis.ts";
 import { solarCautions } from "../common/cautions.ts";
+import {
+  annualCycleLeft,
+  deseasonalisedQuantity,
+  seasonalAxis,
+  type SeasonalInput,
+} from "../common/seasonal_cycle.ts";
+import { LAG_SEARCH_CHUNK } from "./tasks.ts";
 import { withInputPointers } from "../common/input_problem.ts";
 import { solarSeriesFromRun } from "../common/solar_series_from_run.ts";
 import { undefinedAsNull } from "../common/undefined_as_null.ts";
@@ -111,6 +128,140 @@ function coreRegressors(p: AttributionParams, axis: AnalysisAxis): AttributionRe
   return regressors;
 }
 
+type LagSearchJson = NonNullable<AttributionResultIn["solar"]>["lag_search_significance"];
+
+/**
+ * The solar coefficient's p-value with and without paying for the AIC search of its lag: the
+ * naive one (the lag taken as fixed), the Šidák bound over the lags searched, and (with
+ * `lag_search_test: phase`) the Monte Carlo over the same search on phase surrogates of the
+ * solar regressor, in chunks mapped over the worker pool.
+ */
+async function lagSearchSignificance(
+  p: AttributionParams,
+  k: number,
+  y: Float64Array,
+  regressors: AttributionRegressor[],
+  fit: AttributionResult,
+  seasonalLeft: string[],
+  ctx: RunContext,
+): Promise<{ json: LagSearchJson; warnings: string[] }> {
+  const r = p.regressors[k];
+  const m = r.max_lag - r.min_lag + 1;
+  const naive = fit.coefficients[k + 1].pValue;
+  const sidak = sidakAdjusted(naive, m);
+  const others = p.regressors.filter((q, j) => j !== k && q.max_lag > q.min_lag);
+  const othersNote = others.length
+    ? ` The p-values of ${
+      others.map((q) => q.name).join(", ")
+    } in \`coefficients\` are naive: not adjusted for their own lag searches.`
+    : "";
+  let pSearch: number | null = null, threshold: number | null = null;
+  const method = m === 1 ? "fixed_lag" : p.lag_search_test;
+  if (method === "phase") {
+    const mc = await searchMonteCarlo(p, k, y, regressors, fit, ctx);
+    pSearch = mc.pValue;
+    threshold = mc.naiveThreshold05;
+  }
+  const g = (x: number) => x.toPrecision(2);
+  let text: string;
+  if (seasonalLeft.length > 0) {
+    text = `Trust none of the p-values here: the ${seasonalLeft.join(" and ")} series keeps a ` +
+      "strong annual cycle as analysed, which a regression on series without one cannot " +
+      "absorb and which no test here models (the surrogates of the solar regressor have no " +
+      "annual cycle). Remove it (deseasonalise: true) and read that run's search-adjusted " +
+      "p-value.";
+  } else if (method === "fixed_lag") {
+    text = `The solar lag was fixed (${r.min_lag}): there is no search to pay for, and ` +
+      `p_naive = ${g(naive)} is the coefficient's p-value under the ${p.errors} error model.`;
+  } else if (method === "phase") {
+    text = `Use p_search = ${g(pSearch!)}: it repeats the AIC search over the ${m} solar ` +
+      `lags (the other regressors at their chosen lags, the same sample) on ${p.surrogates} ` +
+      "phase surrogates of the solar regressor and so pays for choosing the lag." +
+      ` p_naive = ${g(naive)} treats the chosen lag as if it had been fixed ` +
+      "in advance and is too small after a search (the search also picks the lag whose " +
+      `regressor best absorbs slow noise). p_sidak = ${g(sidak)} treats the ${m} lags as ` +
+      "independent tests: conservative about the search alone, but it keeps the error " +
+      `model's assumptions, which the surrogates do not need (autocorrelation the ` +
+      `${p.errors} errors miss makes p_search larger than p_sidak).`;
+  } else {
+    text = `Use p_sidak = ${g(sidak)}: it treats the ${m} solar lags searched as ` +
+      "independent tests, conservative about the search (neighbouring lags are correlated) " +
+      `but resting on the ${p.errors} error model like p_naive = ${g(naive)}, which treats ` +
+      "the chosen lag as fixed and is too small after a search. lag_search_test: phase " +
+      "pays for the search with surrogates that keep the solar regressor's whole " +
+      "autocorrelation.";
+  }
+  const warnings: string[] = [];
+  const adjusted = pSearch ?? sidak;
+  if (method !== "fixed_lag" && naive < 0.05 && adjusted >= 0.05) {
+    warnings.push(
+      `the solar coefficient is significant only if its AIC-chosen lag (${
+        fit.lags[r.name]
+      }) is taken as fixed (p ${g(naive)}); paying for the search over ${m} lags, p = ${
+        g(adjusted)
+      } (${method === "phase" ? "Monte Carlo" : "Šidák bound"})`,
+    );
+  }
+  return {
+    json: {
+      lags_searched: m,
+      p_naive: naive,
+      p_search: pSearch,
+      p_sidak: sidak,
+      method,
+      surrogates: method === "phase" ? p.surrogates : null,
+      seed: method === "phase" ? p.seed : null,
+      naive_p_for_5_percent: threshold,
+      which_to_trust: text + othersNote,
+    },
+    warnings,
+  };
+}
+
+/** The Monte Carlo over the lag search, in a fixed split of chunks over the worker pool. */
+async function searchMonteCarlo(
+  p: AttributionParams,
+  k: number,
+  y: Float64Array,
+  regressors: AttributionRegressor[],
+  fit: AttributionResult,
+  ctx: RunContext,
+) {
+  // the other regressors stay at their chosen lags and the sample stays the fitted one: each
+  // surrogate searches the solar lag again, one fit per lag
+  const held = regressors.map((r, j) =>
+    j === k ? r : { ...r, minLag: fit.lags[r.name], maxLag: fit.lags[r.name] }
+  );
+  const plan = withInputPointers({ "*": "/regressors" }, () =>
+    planLagSearchTest(y, held, k, {
+      errors: p.errors,
+      hacLags: p.hac_lags,
+      seed: p.seed,
+      firstIndex: fit.firstIndex,
+    }));
+  // a fixed split for given parameters (the answer never depends on the pool size): up to 16
+  // chunks of at least 25 surrogates, in rounds of 8 so that progress moves and a cancel is
+  // seen between rounds
+  const per = Math.ceil(p.surrogates / Math.min(16, Math.ceil(p.surrogates / 25)));
+  const chunks: LagSearchChunkInput[] = [];
+  for (let s = 0; s < p.surrogates; s += per) {
+    chunks.push({ plan, start: s, end: Math.min(p.surrogates, s + per) });
+  }
+  const outs: LagSearchChunkOutput[] = [];
+  for (let c = 0; c < chunks.length; c += 8) {
+    if (ctx.cancelled()) throw new CancelledError();
+    outs.push(
+      ...await ctx.parallel<LagSearchChunkInput, LagSearchChunkOutput>(
+        LAG_SEARCH_CHUNK,
+        chunks.slice(c, c + 8),
+      ),
+    );
+    ctx.progress(0.1 + (0.85 * outs.length) / chunks.length);
+  }
+  if (ctx.cancelled()) throw new CancelledError();
+  return combineLagSearchChunks(fit.coefficients[k + 1].pValue, outs);
+}
+
 /** The solar sensitivity and the implied solar maximum-minus-minimum response. */
 function solarSummary(
   p: AttributionParams,
@@ -119,6 +270,7 @@ function solarSummary(
   axis: AnalysisAxis,
   climate: StoredSeries,
   solar: StoredSeries,
+  lagSearch: LagSearchJson,
 ): NonNullable<AttributionResultIn["solar"]> {
   const c = fit.coefficients[k + 1];
   const lag = fit.lags[p.regressors[k].name];
@@ -144,6 +296,7 @@ function solarSummary(
     max_minus_min_units: climate.units,
     max_minus_min_note: "sensitivity × peak-to-trough solar amplitude; the interval carries " +
       "the sensitivity's uncertainty only (the amplitude is taken as exact)",
+    lag_search_significance: lagSearch,
   };
 }
 
@@ -153,10 +306,11 @@ function outputs(
   fit: AttributionResult,
   climate: StoredSeries,
   time: number[],
+  deseasonalised: boolean,
 ): AttributionResultIn["outputs"] {
   const series = (name: string, v: Float64Array, description?: string): OutputSeries => ({
     name,
-    quantity: climate.quantity,
+    quantity: deseasonalisedQuantity(climate.quantity, deseasonalised),
     units: climate.units,
     time,
     value: Array.from(v),
@@ -178,21 +332,32 @@ function outputs(
 }
 
 /** Regress the climate series on the regressors, each at its AIC-chosen lag. */
-export function computeAttributions(
+export async function computeAttributions(
   p: AttributionParams,
   ctx: RunContext,
-): AttributionResultIn {
+): Promise<AttributionResultIn> {
   const climate = ctx.series(refId(p.climate));
   const { series, solarIndex } = regressorSeries(p, ctx);
-  const axis = analysisAxis(
+  const onAxis = analysisAxis(
     [climate, ...series],
     ["/climate", ...p.regressors.map((_, k) => sourcePointer(p, k))],
     p.resolution,
     p,
     10,
   );
+  const labels: SeasonalInput[] = [
+    { input: "climate", name: climate.name, quantity: climate.quantity },
+    ...p.regressors.map((r, k) => ({
+      input: r.name,
+      name: series[k].name,
+      quantity: series[k].quantity,
+    })),
+  ];
+  const { axis, seasonal } = seasonalAxis(onAxis, labels, p.deseasonalise);
+  const seasonalLeft = annualCycleLeft(axis.resolution, axis.time, axis.values, labels);
   checkSample(p, axis);
   const regressors = coreRegressors(p, axis);
+  ctx.progress(0.1); // inputs checked; the lag search and the regression follow
   const fit = withInputPointers({
     regressors: (e) =>
       e.index === undefined || e.index >= p.regressors.length
@@ -207,9 +372,19 @@ export function computeAttributions(
       hacLags: p.hac_lags,
       shouldStop: ctx.cancelled,
     }));
+  ctx.progress(0.1);
   const t0 = fit.firstIndex;
   const sampleTime = Array.from(axis.time.subarray(t0, t0 + fit.n));
   const unitsOf = (k: number) => (k < series.length ? series[k].units : "yr");
+  const lagSearch = solarIndex === null ? null : await lagSearchSignificance(
+    p,
+    solarIndex,
+    axis.values[0],
+    regressors,
+    fit,
+    seasonalLeft,
+    ctx,
+  );
   return {
     resolution: axis.resolution,
     lag_unit: axis.lagUnit,
@@ -251,11 +426,23 @@ export function computeAttributions(
       lags: fit.lagGrid.lags,
       aic: undefinedAsNull(fit.lagGrid.aic),
     },
-    solar: solarIndex === null
+    seasonal_cycle: seasonal.json,
+    solar: solarIndex === null || lagSearch === null
       ? null
-      : solarSummary(p, solarIndex, fit, axis, climate, series[solarIndex]),
-    outputs: outputs(regressors, fit, climate, sampleTime),
-    warnings: [...axis.warnings, ...fit.warnings],
+      : solarSummary(p, solarIndex, fit, axis, climate, series[solarIndex], lagSearch.json),
+    outputs: outputs(regressors, fit, climate, sampleTime, seasonal.json.deseasonalise),
+    warnings: [
+      ...axis.warnings,
+      ...seasonal.warnings,
+      ...(seasonalLeft.length
+        ? [
+          "an annual cycle remains in the analysed series: no p-value of this regression can " +
+          "be trusted; set deseasonalise to true",
+        ]
+        : []),
+      ...fit.warnings,
+      ...(lagSearch?.warnings ?? []),
+    ],
     cautions: [
       ...solarCautions(solarIndex === null ? [] : [series[solarIndex]]),
       "Coefficients measure association given the chosen regressors and lags; a missing or " +

@@ -7,6 +7,9 @@ import { z } from "@hono/zod-openapi";
 import { SeriesRef } from "../../schemas/series_ref.ts";
 import { AnalysisResolution, CoverageFields } from "../common/analysis_axis.ts";
 import { RunRef } from "../common/run_ref.ts";
+import { DeseasonaliseField } from "../common/seasonal_cycle.ts";
+import { DEMO_SERIES } from "../../schemas/examples.ts";
+import { oneOfFields } from "../common/alternatives.ts";
 
 export const MAX_REGRESSORS = 8;
 
@@ -33,7 +36,7 @@ const Regressor = z.object({
   max_lag: z.number().int().min(0).max(600).default(0).openapi({
     description: "Largest lag searched (equal to min_lag for a fixed lag)",
   }),
-}).openapi("AttributionRegressor");
+}).openapi("AttributionRegressor", oneOfFields("series", "run"));
 
 export const AttributionRequest = z.object({
   climate: SeriesRef,
@@ -54,6 +57,30 @@ export const AttributionRequest = z.object({
   }),
   resolution: AnalysisResolution,
   ...CoverageFields,
-}).openapi("AttributionRequest");
+  deseasonalise: DeseasonaliseField,
+  lag_search_test: z.enum(["phase", "sidak"]).default("phase").openapi({
+    description: "How the solar coefficient's p-value pays for choosing its lag by AIC over " +
+      "a range: `phase` = Monte Carlo repeating the same search on phase-randomised " +
+      "surrogates of the solar regressor (Ebisuzaki 1997), with the Šidák bound beside it; " +
+      "`sidak` = only the Šidák bound 1 − (1 − p)^m over the m lags searched (conservative " +
+      "about the search, instant, but resting on the error model). Nothing to pay for when the solar lag is fixed (min_lag = max_lag).",
+  }),
+  surrogates: z.number().int().min(100).max(10_000).default(500).openapi({
+    description: "Surrogates of the `phase` lag-search test (each repeats the whole lag search)",
+  }),
+  seed: z.number().int().min(0).max(4294967295).default(1).openapi({
+    description: "Seed of the surrogates' random streams",
+  }),
+}).openapi("AttributionRequest", {
+  example: {
+    climate: DEMO_SERIES.TEMP,
+    regressors: [
+      { name: "solar", series: DEMO_SERIES.TSIM, role: "solar", min_lag: 0, max_lag: 24 },
+      { name: "enso", series: DEMO_SERIES.ENSO, role: "enso", min_lag: 0, max_lag: 6 },
+      { name: "volcanic", series: DEMO_SERIES.AOD, role: "volcanic", min_lag: 0, max_lag: 12 },
+    ],
+    surrogates: 200,
+  },
+});
 
 export type AttributionParams = z.output<typeof AttributionRequest>;

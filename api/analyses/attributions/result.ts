@@ -4,7 +4,42 @@
  * @module
  */
 import { z } from "@hono/zod-openapi";
-import { cautions, OutputSeriesSchema, warnings } from "../common/result_parts.ts";
+import { cautions, inherited, OutputSeriesSchema, warnings } from "../common/result_parts.ts";
+import { SeasonalCycleSchema } from "../common/seasonal_cycle.ts";
+
+/** The solar coefficient's p-value, naive and paying for the search of its lag. */
+export const LagSearchSignificance = z.object({
+  lags_searched: z.number().int().openapi({
+    description: "Number of solar lags the AIC search chose from (1: a fixed lag)",
+  }),
+  p_naive: z.number().openapi({
+    description: "NAIVE: p-value of the solar coefficient at its chosen lag as if that lag had " +
+      "been fixed in advance (the `coefficients` table's p_value); too small after a search",
+  }),
+  p_search: z.number().nullable().openapi({
+    description: "PAYS FOR THE SEARCH: Monte Carlo p-value, (1 + #{surrogates with p* ≤ " +
+      "p_naive}) / (1 + surrogates), each surrogate repeating the AIC search of the solar lag " +
+      "(the other regressors at their chosen lags, the same sample) with a phase-randomised " +
+      "solar regressor; null with `sidak` or a fixed lag",
+  }),
+  p_sidak: z.number().openapi({
+    description: "Šidák bound 1 − (1 − p_naive)^m over the m lags searched: conservative " +
+      "about the search (neighbouring lags are correlated) but resting on the error model " +
+      "like p_naive, so it can be smaller than p_search when the errors are not AR(1)",
+  }),
+  method: z.enum(["phase", "sidak", "fixed_lag"]).openapi({
+    description: "Which adjustment was made: the Monte Carlo (`phase`), the bound only " +
+      "(`sidak`), or none needed (`fixed_lag`)",
+  }),
+  surrogates: z.number().int().nullable(),
+  seed: z.number().int().nullable(),
+  naive_p_for_5_percent: z.number().nullable().openapi({
+    description: "5th percentile of the surrogates' naive p-values: the naive p-value a " +
+      "result needs to be significant at 5 % once the search is paid for; null without the " +
+      "Monte Carlo",
+  }),
+  which_to_trust: z.string(),
+}).openapi("AttributionLagSearchSignificance");
 
 const LagUnit = z.enum(["months", "years"]);
 const Interval = z.tuple([z.number(), z.number()]);
@@ -32,6 +67,7 @@ export const AttributionResult = z.object({
   n: z.number().int().openapi({ description: "Observations fitted (after the largest lag)" }),
   start_period: z.string().openapi({ description: "ISO 8601 first period of the common axis" }),
   end_period: z.string().openapi({ description: "ISO 8601 last period of the common axis" }),
+  seasonal_cycle: SeasonalCycleSchema,
   first_fitted_time: z.number().openapi({
     description: "Decimal year of the first fitted observation",
   }),
@@ -100,6 +136,7 @@ export const AttributionResult = z.object({
     max_minus_min_ci: Interval,
     max_minus_min_units: z.string(),
     max_minus_min_note: z.string(),
+    lag_search_significance: LagSearchSignificance,
   }).nullable().openapi({ description: "null without a regressor of role `solar`" }),
   outputs: z.object({
     fitted: OutputSeriesSchema,
@@ -110,6 +147,7 @@ export const AttributionResult = z.object({
   }),
   warnings,
   cautions,
+  inherited,
 }).openapi("AttributionResult");
 
 /** The result as `compute` builds it. */

@@ -1,6 +1,7 @@
 /**
  * Pieces every analysis' result schema is built from: the series-like output, the warnings
- * and cautions every result carries, and number arrays with their null policy. A result
+ * and cautions every result carries (its own, and those it inherits from the runs it is built
+ * on), and number arrays with their null policy. A result
  * schema describes the stored JSON exactly: the tests parse every result with its schema and
  * require that nothing is stripped, so an undocumented field fails.
  *
@@ -52,6 +53,25 @@ export const warnings = z.array(z.string()).openapi({
 });
 export const cautions = z.array(z.string()).openapi({
   description: "Scientific cautions that hold for every result of this kind",
+});
+
+/** One warning or caution of a run this run is built on (`api/runs/inherit.ts`). */
+export const InheritedNote = z.object({
+  run: z.string().openapi({ description: "Id of the run the text comes from" }),
+  kind: z.string().openapi({ description: "Its analysis (run kind)" }),
+  level: z.enum(["warning", "caution"]),
+  text: z.string(),
+}).openapi("InheritedNote");
+
+/**
+ * The warnings and cautions of the runs this run is built on, added by the run machinery to
+ * every result (an analysis never sets it itself).
+ */
+export const inherited = z.array(InheritedNote).optional().openapi({
+  description: "The warnings and cautions of the runs this run is built on: its input runs " +
+    "and the runs that made its input series (`derived_from`), recursively. Each text once, " +
+    "from the nearest run that carries it; texts this result states itself are not repeated. " +
+    "Absent when there are none.",
 });
 
 /** Outputs by name. */

@@ -7,7 +7,7 @@
  */
 import type { KindChart } from "../../runs/kind.ts";
 import type { Layer } from "../../charts/chart.ts";
-import { runDescription, runNotes } from "../../charts/run_common.ts";
+import { runDescription, runNotes, runTitle } from "../../charts/run_common.ts";
 import { axisLabel, quantityLabel } from "../../charts/labels.ts";
 import type { CompositeResultOut } from "./result.ts";
 
@@ -49,19 +49,21 @@ export const compositesChart: KindChart<CompositeResultOut> = {
       });
     }
     return {
-      title: `Superposed epoch composite · run ${run.id.slice(0, 8)}`,
+      title: runTitle("Superposed epoch composite", run),
       description: runDescription(
         run,
-        `${o.name} against years from the epoch, over ${used} epochs, with a ${r.band}.`,
+        `${o.name} against years from the epoch, over ${used} epochs, with a ${r.band}.` +
+          (r.seasonal_cycle.deseasonalise
+            ? " Each calendar month's mean over the series was removed first."
+            : ""),
       ),
       x: { label: "Years from the epoch", kind: "linear" },
       y: { label: axisLabel(quantityLabel(o.quantity), o.units, o.quantity) },
       layers,
-      notes: [
+      ...runNotes(run, [
         "Family-wise p-value over the window against random epoch sets: " +
         `${r.p_family_wise.toPrecision(3)}.`,
-        ...runNotes(run),
-      ],
+      ]),
     };
   },
 };

@@ -5,7 +5,6 @@
  *
  * @module
  */
-import { z } from "@hono/zod-openapi";
 import { InputProblem, type RunContext } from "../../runs/kind.ts";
 import { refId } from "../../schemas/series_ref.ts";
 import type { StoredSeries } from "../../store/types.ts";
@@ -14,35 +13,15 @@ import { resampleMeans } from "../../../core/series/mod.ts";
 import { formatIsoTime, parseIsoTime } from "../../../core/time/mod.ts";
 import { CAUTION_CORRELATION, CAUTION_REVIEW } from "../common/cautions.ts";
 import { withInputPointers } from "../common/input_problem.ts";
+import {
+  annualCycleLeft,
+  deseasonalisedQuantity,
+  seasonalAdjustment,
+} from "../common/seasonal_cycle.ts";
 import { undefinedAsNull } from "../common/undefined_as_null.ts";
+import { cycleEpochs } from "../common/cycle_epochs.ts";
 import type { CompositeParams } from "./request.ts";
 import type { CompositeResultIn } from "./result.ts";
-
-/** A point of a cycle table (a cycle's start or maximum); anything else reads as absent. */
-const CyclePoint = z.object({ decimal_year: z.number(), provisional: z.boolean().optional() })
-  .nullish().catch(null);
-
-/** The part of a result holding a cycle table, as the cycles analysis stores it. */
-const CycleTable = z.object({
-  cycles: z.array(z.object({ start: CyclePoint, maximum: CyclePoint }).catch({})),
-});
-
-/** Decimal years of the cycle maxima (or starts, the minima) of a run with a cycle table. */
-function epochsFromRun(p: CompositeParams, ctx: RunContext, id: string): number[] {
-  // The cycles analysis does not publish its result schema yet: the table is read with the part
-  // of it this analysis needs (ctx.resultOf replaces this once it does).
-  const run = ctx.run(id);
-  const table = CycleTable.safeParse(run.result);
-  if (!table.success) {
-    throw new InputProblem("/cycle_run", `run ${run.id} (${run.kind}) has no cycle table`);
-  }
-  const out: number[] = [];
-  for (const c of table.data.cycles) {
-    const pt = p.cycle_epoch === "maximum" ? c.maximum : c.start;
-    if (pt && !pt.provisional) out.push(pt.decimal_year);
-  }
-  return out;
-}
 
 /** The epochs of the request as decimal years. */
 function epochDates(p: CompositeParams, ctx: RunContext): number[] {
@@ -59,11 +38,14 @@ function epochDates(p: CompositeParams, ctx: RunContext): number[] {
       }
     });
   }
-  if (p.cycle_run) return epochsFromRun(p, ctx, p.cycle_run);
+  if (p.cycle_run) return cycleEpochs(ctx, p.cycle_run, p.cycle_epoch, "/cycle_run");
   throw new InputProblem("/epoch_dates", "give epoch_dates or a cycle_run");
 }
 
-/** The series as calendar-period means on the composite's axis, with the trend removed. */
+/**
+ * The series as calendar-period means on the composite's axis, with its monthly climatology
+ * (when asked or by default) and the trend removed.
+ */
 function seriesOnAxis(p: CompositeParams, s: StoredSeries) {
   const to = p.resolution ?? (s.resolution === "annual" ? "annual" : "monthly");
   if (s.resolution === "annual" && to === "monthly") {
@@ -82,12 +64,16 @@ function seriesOnAxis(p: CompositeParams, s: StoredSeries) {
       minDaysPerMonth: p.min_days_per_month,
       minMonthsPerYear: p.min_months_per_year,
     }));
+  const label = { input: "climate", name: s.name, quantity: s.quantity };
+  const seasonal = seasonalAdjustment(to, grid.time, [grid.value], [label], p.deseasonalise);
   const degree = { none: null, mean: 0, linear: 1, quadratic: 2 } as const;
   const d = degree[p.preprocess];
+  const v = seasonal.values[0];
   const x = d === null
-    ? grid.value
-    : withInputPointers({ x: "/series" }, () => polynomialTrendResiduals(grid.value, d));
-  return { to, step: to === "monthly" ? 1 / 12 : 1, time: grid.time, x };
+    ? v
+    : withInputPointers({ x: "/series" }, () => polynomialTrendResiduals(v, d));
+  const left = annualCycleLeft(to, grid.time, [x], [label]).length > 0;
+  return { to, step: to === "monthly" ? 1 / 12 : 1, time: grid.time, x, seasonal, left };
 }
 
 /** The sample index of each epoch on the axis, and the dates that fall outside it. */
@@ -105,27 +91,40 @@ function epochIndices(dates: number[], time: Float64Array, step: number) {
 export function computeComposites(p: CompositeParams, ctx: RunContext): CompositeResultIn {
   const s = ctx.series(refId(p.series));
   const dates = epochDates(p, ctx);
-  const { to, step, time, x } = seriesOnAxis(p, s);
+  const { to, step, time, x, seasonal, left } = seriesOnAxis(p, s);
   const before = Math.round(p.before_years / step), after = Math.round(p.after_years / step);
   const epochIdx = epochIndices(dates, time, step);
   const epochs = p.cycle_run ? "/cycle_run" : "/epoch_dates";
-  const r = withInputPointers({
-    before: "/before_years",
-    after: "/after_years",
-    bootstrap: "/bootstrap",
-    randomSets: "/random_sets",
-    "*": epochs,
-  }, () =>
-    superposedEpoch(x, epochIdx.inside, {
-      before,
-      after,
-      preEpochBaseline: p.baseline === "pre_epoch",
-      bootstrap: p.bootstrap,
-      randomSets: p.random_sets,
-      seed: p.seed,
-      shouldStop: ctx.cancelled,
-    }));
-  const warnings: string[] = [];
+  const composite = (replicates: { bootstrap: number; randomSets: number }) =>
+    withInputPointers({
+      before: "/before_years",
+      after: "/after_years",
+      bootstrap: "/bootstrap",
+      randomSets: "/random_sets",
+      "*": epochs,
+    }, () =>
+      superposedEpoch(x, epochIdx.inside, {
+        before,
+        after,
+        preEpochBaseline: p.baseline === "pre_epoch",
+        ...replicates,
+        seed: p.seed,
+        shouldStop: ctx.cancelled,
+      }));
+  // One replicate each meets every input rule of the method (epochs whose window fits, room
+  // for random epochs) at negligible cost, before the progress report that ends the input
+  // checks (RunContext.progress): a request refused for its epochs is never stored.
+  composite({ bootstrap: 1, randomSets: 1 });
+  ctx.progress(0.1);
+  const r = composite({ bootstrap: p.bootstrap, randomSets: p.random_sets });
+  const warnings: string[] = [...seasonal.warnings];
+  if (left) {
+    warnings.push(
+      "an annual cycle remains in the analysed series: the composite mixes it with any solar " +
+        "signal and the p-values against random epochs cannot be trusted (random epochs fall " +
+        "in other calendar months); set deseasonalise to true",
+    );
+  }
   const droppedDates = [...epochIdx.outside, ...r.dropped.map((i) => time[i])];
   if (droppedDates.length) {
     warnings.push(
@@ -142,6 +141,7 @@ export function computeComposites(p: CompositeParams, ctx: RunContext): Composit
     epochs_dropped: droppedDates.map((d) => formatIsoTime(d, to)),
     min_spacing: r.minSpacing,
     window: { before, after },
+    seasonal_cycle: seasonal.json,
     preprocess: p.preprocess,
     baseline: p.baseline,
     offsets: r.offsets.map((o, j) => ({
@@ -160,7 +160,7 @@ export function computeComposites(p: CompositeParams, ctx: RunContext): Composit
     outputs: {
       composite: {
         name: `${s.name} composite around ${p.cycle_run ? `solar ${p.cycle_epoch}a` : "epochs"}`,
-        quantity: s.quantity,
+        quantity: deseasonalisedQuantity(s.quantity, seasonal.json.deseasonalise),
         units: s.units,
         // offsets as time in years from the epoch
         time: r.offsets.map((o) => o * step),
@@ -172,8 +172,10 @@ export function computeComposites(p: CompositeParams, ctx: RunContext): Composit
         description: "time axis: years from the epoch, not calendar years",
       },
       series_preprocessed: {
-        name: `${s.name} (${to}, ${p.preprocess} removed)`,
-        quantity: s.quantity,
+        name: `${s.name} (${to}, ${
+          seasonal.json.deseasonalise ? "monthly climatology and " : ""
+        }${p.preprocess} removed)`,
+        quantity: deseasonalisedQuantity(s.quantity, seasonal.json.deseasonalise),
         units: s.units,
         time: Array.from(time),
         // NaN marks a period that fails the coverage rule (documented null)

@@ -4,7 +4,8 @@
  * @module
  */
 import { z } from "@hono/zod-openapi";
-import { cautions, OutputSeriesSchema, warnings } from "../common/result_parts.ts";
+import { SeasonalCycleSchema } from "../common/seasonal_cycle.ts";
+import { cautions, inherited, OutputSeriesSchema, warnings } from "../common/result_parts.ts";
 
 const noEpochData = (what: string) =>
   z.number().nullable().openapi({
@@ -26,6 +27,7 @@ export const CompositeResult = z.object({
     before: z.number().int().openapi({ description: "Offsets before the epoch" }),
     after: z.number().int().openapi({ description: "Offsets after the epoch" }),
   }),
+  seasonal_cycle: SeasonalCycleSchema,
   preprocess: z.enum(["none", "mean", "linear", "quadratic"]),
   baseline: z.enum(["none", "pre_epoch"]),
   offsets: z.array(z.object({
@@ -55,6 +57,7 @@ export const CompositeResult = z.object({
   }),
   warnings,
   cautions,
+  inherited,
 }).openapi("CompositeResult");
 
 /** The result as `compute` builds it. */

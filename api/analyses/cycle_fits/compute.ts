@@ -138,6 +138,7 @@ export function computeCycleFits(params: CycleFitsParams, ctx: RunContext): Cycl
       { complete_cycles: 0 },
     );
   }
+  ctx.progress(0.1); // inputs checked; the fits follow
   const { fits } = withInputPointers(
     { "*": "/series" },
     () =>

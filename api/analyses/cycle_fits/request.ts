@@ -6,6 +6,7 @@
 import { z } from "@hono/zod-openapi";
 import { SeriesRef } from "../../schemas/series_ref.ts";
 import { CycleDetectionFields } from "../common/cycle_detection.ts";
+import { DEMO_SERIES } from "../../schemas/examples.ts";
 
 export const CycleFitsRequest = z.object({
   series: SeriesRef,
@@ -20,6 +21,8 @@ export const CycleFitsRequest = z.object({
       "(cycles overlap near minima), two passes; `none`: each cycle on its own",
     example: "backfit",
   }),
-}).openapi("CycleFitsRequest");
+}).openapi("CycleFitsRequest", {
+  example: { series: DEMO_SERIES.SSN, width: "free" },
+});
 
 export type CycleFitsParams = z.output<typeof CycleFitsRequest>;

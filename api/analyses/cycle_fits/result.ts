@@ -5,7 +5,7 @@
  */
 import { z } from "@hono/zod-openapi";
 import { SunspotInput } from "../common/sunspot_input.ts";
-import { cautions, outputs, warnings } from "../common/result_parts.ts";
+import { cautions, inherited, outputs, warnings } from "../common/result_parts.ts";
 
 const se = z.number().nullable();
 
@@ -100,6 +100,7 @@ export const CycleFitsResult = z.object({
   outputs: outputs(["fitted"]),
   warnings,
   cautions,
+  inherited,
 }).openapi("CycleFitsResult");
 
 /** The result as `compute` builds it. */

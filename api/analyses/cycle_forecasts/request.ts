@@ -6,6 +6,7 @@
 import { z } from "@hono/zod-openapi";
 import { SeriesRef } from "../../schemas/series_ref.ts";
 import { CycleDetectionFields } from "../common/cycle_detection.ts";
+import { DEMO_SERIES } from "../../schemas/examples.ts";
 
 export const CycleForecastsRequest = z.object({
   series: SeriesRef,
@@ -38,6 +39,8 @@ export const CycleForecastsRequest = z.object({
       "to the forecast",
     example: true,
   }),
-}).openapi("CycleForecastsRequest");
+}).openapi("CycleForecastsRequest", {
+  example: { series: DEMO_SERIES.SSN, replicates: 200, hindcast_replicates: 50, seed: 1 },
+});
 
 export type CycleForecastsParams = z.output<typeof CycleForecastsRequest>;

@@ -5,7 +5,7 @@
  */
 import { z } from "@hono/zod-openapi";
 import { SunspotInput } from "../common/sunspot_input.ts";
-import { cautions, outputs, warnings } from "../common/result_parts.ts";
+import { cautions, inherited, outputs, warnings } from "../common/result_parts.ts";
 import { CycleRowSchema } from "../common/cycle_row.ts";
 
 const pair = z.tuple([z.number(), z.number()]);
@@ -119,6 +119,7 @@ export const CycleForecastsResult = z.object({
   outputs: outputs(["forecast"]),
   warnings,
   cautions,
+  inherited,
 }).openapi("CycleForecastsResult");
 
 /** The result as `compute` builds it. */

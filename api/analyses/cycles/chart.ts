@@ -8,7 +8,7 @@
  */
 import type { KindChart } from "../../runs/kind.ts";
 import type { Layer } from "../../charts/chart.ts";
-import { inputBackdrop, runDescription, runNotes } from "../../charts/run_common.ts";
+import { inputBackdrop, runDescription, runNotes, runTitle } from "../../charts/run_common.ts";
 import { axisLabel, quantityLabel } from "../../charts/labels.ts";
 import type { CyclesResultOut } from "./result.ts";
 
@@ -77,7 +77,7 @@ export const cyclesChart: KindChart<CyclesResultOut> = {
       ...(prov.x.length ? [marker("provisional maximum", prov, "diamond", 4)] : []),
     ];
     return {
-      title: `Solar cycles${r.input.name ? ` of ${r.input.name}` : ""} · run ${run.id.slice(0, 8)}`,
+      title: runTitle(`Solar cycles${r.input.name ? ` of ${r.input.name}` : ""}`, run),
       description: runDescription(
         run,
         `Cycle table over the ${r.smoothing} series: ${r.cycles.length} cycles, ` +
@@ -89,7 +89,7 @@ export const cyclesChart: KindChart<CyclesResultOut> = {
         includeZero: true,
       },
       layers,
-      notes: [summaryNote(r), ...runNotes(run)],
+      ...runNotes(run, [summaryNote(r)]),
     };
   },
 };

@@ -19,6 +19,7 @@ export const cyclesKind = defineAnalysis({
   // version 1's two-pass formula in the last bits
   algorithmVersion: "2",
   tag: "Solar cycles",
+  featured: true,
   summary: "Cycle table, extrema and cycle phase of a sunspot series",
   description: "Finds the minima and maxima of the smoothed series (13-month smoothing by " +
     "default for monthly data; a minimum needs the given prominence and separation) and " +

@@ -5,7 +5,7 @@
  */
 import { z } from "@hono/zod-openapi";
 import { SunspotInput } from "../common/sunspot_input.ts";
-import { cautions, outputs, warnings } from "../common/result_parts.ts";
+import { cautions, inherited, outputs, warnings } from "../common/result_parts.ts";
 import { CycleRowSchema } from "../common/cycle_row.ts";
 import { SmoothingMethod } from "../common/smoothing_method.ts";
 
@@ -51,6 +51,7 @@ export const CyclesResult = z.object({
   outputs: outputs(["smoothed", "phase", "since_minimum", "cycle"]),
   warnings,
   cautions,
+  inherited,
 }).openapi("CyclesResult");
 
 /** The result as `compute` builds it. */

@@ -5,7 +5,6 @@
  *
  * @module
  */
-import { z } from "@hono/zod-openapi";
 import { InputProblem, type OutputSeries, type RunContext } from "../../runs/kind.ts";
 import { refId } from "../../schemas/series_ref.ts";
 import {
@@ -23,7 +22,7 @@ import {
 } from "../../../core/climate/mod.ts";
 import { CAUTION_REVIEW } from "../common/cautions.ts";
 import { withInputPointers } from "../common/input_problem.ts";
-import { OutputSeriesSchema } from "../common/result_parts.ts";
+import { forcing as forcingAnalysis } from "../forcing/mod.ts";
 import type { EnergyBalanceParams } from "./request.ts";
 import type { EnergyBalanceResultIn } from "./result.ts";
 
@@ -37,9 +36,6 @@ interface Forcing {
   /** Initial [surface, deep] temperatures (the steady state for a sinusoid). */
   initial: [number, number];
 }
-
-/** The part of a forcing run's result this analysis reads. */
-const ForcingOutput = z.object({ outputs: z.object({ forcing: OutputSeriesSchema }) });
 
 /** F₀ sin(2πt/P) on its sampling grid, started on the steady state. */
 function sinusoidForcing(
@@ -79,14 +75,7 @@ function sinusoidForcing(
 function forcingInput(p: EnergyBalanceParams, ctx: RunContext): Forcing {
   let o: { time: ArrayLike<number>; value: ArrayLike<number | null>; units: string; name: string };
   if (p.forcing_run) {
-    // The forcing analysis does not publish its result schema yet: its output is checked here
-    // against the shared output contract (ctx.resultOf replaces this once it does).
-    const run = ctx.run(p.forcing_run);
-    const parsed = ForcingOutput.safeParse(run.result);
-    if (!parsed.success) {
-      throw new InputProblem("/forcing_run", `run ${run.id} (${run.kind}) has no forcing output`);
-    }
-    o = parsed.data.outputs.forcing;
+    o = ctx.resultOf(forcingAnalysis, p.forcing_run, "/forcing_run").outputs.forcing;
   } else {
     const s = ctx.series(refId(p.forcing!));
     if (s.quantity !== "radiative_forcing") {
@@ -198,6 +187,7 @@ export function computeEnergyBalance(
     : twoBoxSinusoidResponse(params, period);
   const forcing = p.sinusoid ? sinusoidForcing(p, p.sinusoid, params) : forcingInput(p, ctx);
   const { time } = forcing;
+  ctx.progress(0.1); // inputs checked; the integration follows
   const { surface, deep } = response(p, params, forcing);
   const amp0 = p.sinusoid?.amplitude ?? null;
   const timeAxis = p.sinusoid ? { time_axis: "model_years" as const } : {};

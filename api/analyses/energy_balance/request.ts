@@ -6,6 +6,7 @@
 import { z } from "@hono/zod-openapi";
 import { SeriesRef } from "../../schemas/series_ref.ts";
 import { RunRef } from "../common/run_ref.ts";
+import { oneOfFields } from "../common/alternatives.ts";
 
 const Sinusoid = z.object({
   amplitude: z.number().positive().max(1000).default(0.08875).openapi({
@@ -50,6 +51,12 @@ export const EnergyBalanceRequest = z.object({
     description: "Two-box: exchange coefficient γ, W m-2 K-1 (default 0.7, Held et al. 2010, " +
       "from memory)",
   }),
-}).openapi("EnergyBalanceRequest");
+}).openapi("EnergyBalanceRequest", {
+  ...oneOfFields("forcing", "forcing_run", "sinusoid"),
+  example: {
+    model: "one_box",
+    sinusoid: { amplitude: 0.08875, period_years: 11, years: 110, steps_per_year: 365 },
+  },
+});
 
 export type EnergyBalanceParams = z.output<typeof EnergyBalanceRequest>;

@@ -4,7 +4,7 @@
  * @module
  */
 import { z } from "@hono/zod-openapi";
-import { cautions, OutputSeriesSchema, warnings } from "../common/result_parts.ts";
+import { cautions, inherited, OutputSeriesSchema, warnings } from "../common/result_parts.ts";
 
 export const EnergyBalanceResult = z.object({
   model: z.enum(["one_box", "two_box"]),
@@ -61,6 +61,7 @@ export const EnergyBalanceResult = z.object({
   }),
   warnings,
   cautions,
+  inherited,
 }).openapi("EnergyBalanceResult");
 
 /** The result as `compute` builds it. */

@@ -9,6 +9,8 @@ import { SeriesRef } from "../../schemas/series_ref.ts";
 import { PLANETARY_ALBEDO } from "../../../core/irradiance/mod.ts";
 import { PeriodInput, TimeInput } from "../common/time_period.ts";
 import { runRef } from "../common/run_ref.ts";
+import { DEMO_SERIES } from "../../schemas/examples.ts";
+import { oneOfFields } from "../common/alternatives.ts";
 
 const ForcingReference = z.discriminatedUnion("kind", [
   z.object({ kind: z.literal("period"), period: PeriodInput }),
@@ -40,6 +42,12 @@ export const ForcingRequest = z.object({
       message: "give exactly one of tsi (a series) or reconstruction (a run id)",
     });
   }
-}).openapi("ForcingRequest");
+}).openapi("ForcingRequest", {
+  ...oneOfFields("tsi", "reconstruction"),
+  example: {
+    tsi: DEMO_SERIES.TSIM,
+    reference: { kind: "period", period: { start: "1986", end: "1996" } },
+  },
+});
 
 export type ForcingParams = z.output<typeof ForcingRequest>;

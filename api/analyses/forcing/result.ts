@@ -4,7 +4,7 @@
  * @module
  */
 import { z } from "@hono/zod-openapi";
-import { cautions, OutputSeriesSchema, warnings } from "../common/result_parts.ts";
+import { cautions, inherited, OutputSeriesSchema, warnings } from "../common/result_parts.ts";
 
 export const ForcingResult = z.object({
   formula: z.string(),
@@ -27,6 +27,7 @@ export const ForcingResult = z.object({
   }),
   warnings,
   cautions,
+  inherited,
 }).openapi("ForcingResult");
 
 /** The result as `compute` builds it. */

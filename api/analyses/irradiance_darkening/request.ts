@@ -7,6 +7,8 @@
 import { z } from "@hono/zod-openapi";
 import { SeriesRef } from "../../schemas/series_ref.ts";
 import { TimeInput } from "../common/time_period.ts";
+import { DEMO_SERIES } from "../../schemas/examples.ts";
+import { oneOfFields } from "../common/alternatives.ts";
 
 export const SpotContrast = z.discriminatedUnion("kind", [
   z.object({
@@ -95,7 +97,10 @@ export const DarkeningRequest = z.object({
     same(p.latitude, ["groups", "position", "latitude"]);
     same(p.longitude, ["groups", "position", "longitude"]);
   }
-}).openapi("DarkeningRequest");
+}).openapi("DarkeningRequest", {
+  ...oneOfFields("groups", "total_area"),
+  example: { total_area: DEMO_SERIES.AREA, contrast: { kind: "constant", value: 0.32 } },
+});
 
 export type DarkeningParams = z.output<typeof DarkeningRequest>;
 export type SpotGroups = NonNullable<DarkeningParams["groups"]>;

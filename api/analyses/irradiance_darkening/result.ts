@@ -4,7 +4,7 @@
  * @module
  */
 import { z } from "@hono/zod-openapi";
-import { cautions, OutputSeriesSchema, warnings } from "../common/result_parts.ts";
+import { cautions, inherited, OutputSeriesSchema, warnings } from "../common/result_parts.ts";
 import { SpotContrast } from "./request.ts";
 
 export const DarkeningResult = z.object({
@@ -32,6 +32,7 @@ export const DarkeningResult = z.object({
   }),
   warnings,
   cautions,
+  inherited,
 }).openapi("DarkeningResult");
 
 /** The result as `compute` builds it. */

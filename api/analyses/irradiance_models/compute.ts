@@ -28,7 +28,7 @@ import {
   type PeriodMeansByKey,
   periodMeansByKey,
   periodOfKey,
-  seriesAtPeriodKeys,
+  resampledAtPeriodKeys,
 } from "../../../core/series/mod.ts";
 import type { CalendarResolution } from "../../../core/time/mod.ts";
 import { InputError } from "../../../core/errors.ts";
@@ -90,7 +90,8 @@ export function computeModel(params: ModelParams, ctx: RunContext): ModelResultI
         value: Array.from(fit.fitted),
         lower: Array.from(band.lower),
         upper: Array.from(band.upper),
-        interval: "fitted value ± t(0.975, df)·residual SD",
+        interval: "95 % band of a new measurement from the residual spread: fitted value ± " +
+          "t(0.975, df)·residual SD",
       },
       residuals: {
         name: "Calibration residuals",
@@ -176,7 +177,10 @@ function calibrationCells(params: ModelParams, ctx: RunContext): CalibrationCell
     : { start: -Infinity, end: Infinity };
   const tsiCells = cellMeansWithin(tsi, resolution, span);
   const termSeries = params.terms.map((t) => ctx.series(refId(t.series)));
-  const termAtTsi = termSeries.map((s) => seriesAtPeriodKeys(s, resolution, tsiCells.keys));
+  // the coverage rule of core/series: a monthly cell from daily values needs 20 of them
+  const termAtTsi = termSeries.map((s) =>
+    resampledAtPeriodKeys(s, s.resolution, resolution, tsiCells.keys)
+  );
   const use: number[] = [];
   for (let i = 0; i < tsiCells.keys.length; i++) {
     if (termAtTsi.every((v) => Number.isFinite(v[i]))) use.push(i);
@@ -299,7 +303,7 @@ function sunspotMappings(
   const res = calendarResolutionOf(ss, "/sunspot_number");
   const sc = cellMeansWithin(ss, res, calibration);
   const { choices, mapped } = fitMappings(params, cells.termSeries, res, sc);
-  const tsiAtS = seriesAtPeriodKeys(cells.tsi, res, sc.keys);
+  const tsiAtS = resampledAtPeriodKeys(cells.tsi, cells.tsi.resolution, res, sc.keys);
   let be;
   try {
     be = backExtensionResiduals(tsiAtS, mapped, fit);
@@ -341,7 +345,7 @@ function fitMappings(
   const choices: Record<string, SunspotMappingChoice> = {};
   const mapped = termSeries.map((s, k) => {
     const name = params.terms[k].name;
-    const f = seriesAtPeriodKeys(s, res, sc.keys);
+    const f = resampledAtPeriodKeys(s, s.resolution, res, sc.keys);
     const rr: number[] = [], ff: number[] = [];
     for (let i = 0; i < sc.keys.length; i++) {
       if (Number.isFinite(f[i]) && Number.isFinite(sc.mean[i])) rr.push(sc.mean[i]), ff.push(f[i]);

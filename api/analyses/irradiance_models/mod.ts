@@ -18,7 +18,12 @@ export const irradianceModels = defineAnalysis({
   path: "/v1/irradiance/models",
   // 4: the default quiet level F_Q is d3-array's quantile (R type 7, as before), whose
   // interpolation differs from the former hand-written one in the last bit.
-  algorithmVersion: "4",
+  // 5: proxies averaged into coarser cells follow the coverage rule of core/series (20 days
+  // for a monthly cell, 10 months for an annual one), and so do the annual means of the
+  // fitted cycle amplitude (a partial year at an end is no extremum).
+  // 6: both of the above (the coverage rule and the interval's level)
+  // 5 (another change): the fitted band's interval names its level (95 %)
+  algorithmVersion: "6",
   tag: "Irradiance",
   summary: "Calibrate a proxy-regression TSI model against a measured TSI record",
   description: "Fits TSI(t) = S_Q + Σ a_k·(F_k(t) − F_k,Q) − b·S_ref·PSI(t) (Foukal & Lean " +

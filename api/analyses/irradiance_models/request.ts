@@ -8,6 +8,7 @@
 import { z } from "@hono/zod-openapi";
 import { SeriesRef } from "../../schemas/series_ref.ts";
 import { PeriodInput } from "../common/time_period.ts";
+import { DEMO_SERIES } from "../../schemas/examples.ts";
 
 /** The roles a proxy term takes in the model. */
 export const ProxyRoleSchema = z.enum(["facular", "sunspot_darkening", "other"]).openapi({
@@ -57,6 +58,12 @@ export const ModelRequest = z.object({
     }
     names.add(t.name);
   });
-}).openapi("ModelRequest");
+}).openapi("ModelRequest", {
+  example: {
+    tsi: DEMO_SERIES.TSI,
+    sunspot_number: DEMO_SERIES.SSN,
+    terms: [{ name: "mg_ii", series: DEMO_SERIES.MG, role: "facular" }],
+  },
+});
 
 export type ModelParams = z.output<typeof ModelRequest>;

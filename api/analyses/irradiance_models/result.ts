@@ -8,6 +8,7 @@
 import { z } from "@hono/zod-openapi";
 import {
   cautions,
+  inherited,
   nums,
   numsOrNull,
   OutputSeriesSchema,
@@ -152,6 +153,7 @@ export const ModelResult = z.object({
   outputs: z.object({ fitted: OutputSeriesSchema, residuals: OutputSeriesSchema }),
   warnings,
   cautions,
+  inherited,
 }).openapi("ModelResult");
 
 /** The result as `compute` builds it. */

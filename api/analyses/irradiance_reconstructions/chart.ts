@@ -7,7 +7,7 @@
  */
 import type { KindChart } from "../../runs/kind.ts";
 import type { Layer } from "../../charts/chart.ts";
-import { runDescription, runNotes } from "../../charts/run_common.ts";
+import { runDescription, runNotes, runTitle } from "../../charts/run_common.ts";
 import { axisLabel, quantityLabel } from "../../charts/labels.ts";
 import type { ReconstructionResultOut } from "./result.ts";
 
@@ -71,9 +71,7 @@ export const reconstructionChart: KindChart<ReconstructionResultOut> = {
       }
     }
     return {
-      title: `Reconstructed total solar irradiance (${r.resolution} means) · run ${
-        run.id.slice(0, 8)
-      }`,
+      title: runTitle(`Reconstructed total solar irradiance (${r.resolution} means)`, run),
       description: runDescription(
         run,
         `Reconstructed TSI with its ${(r.level * 100).toFixed(0)} % prediction interval` +
@@ -83,7 +81,7 @@ export const reconstructionChart: KindChart<ReconstructionResultOut> = {
       x: { label: "Year", kind: "year" },
       y: { label: axisLabel(quantityLabel(o.quantity), o.units, o.quantity) },
       layers,
-      notes: runNotes(run),
+      ...runNotes(run),
     };
   },
 };

@@ -25,7 +25,12 @@ import {
   tsiCycleAmplitude,
   withSecularBackground,
 } from "../../../core/irradiance/mod.ts";
-import { periodKeyRange, periodSequence, seriesAtPeriodKeys } from "../../../core/series/mod.ts";
+import {
+  convertSunspotNumberVersion,
+  periodKeyRange,
+  periodSequence,
+  resampledAtPeriodKeys,
+} from "../../../core/series/mod.ts";
 import { normalQuantile } from "../../../core/stats/distributions.ts";
 import type { CalendarResolution, TimeResolution } from "../../../core/time/mod.ts";
 import { parsePeriod, type YearSpan } from "../common/time_period.ts";
@@ -33,10 +38,11 @@ import { withInputPointers } from "../common/input_problem.ts";
 import { requireSunspotVersion } from "../common/sunspot_series.ts";
 import {
   ASSESSMENT_CAUTION,
-  cycleAmplitudeWarning,
   PRE_SATELLITE_CAUTION,
   quietSunWarning,
 } from "../common/irradiance_notes.ts";
+import { applySunspotConversion } from "../../schemas/sunspot_conversion.ts";
+import { cycleAmplitudeCheck } from "./amplitude_check.ts";
 import { irradianceModels } from "../irradiance_models/mod.ts";
 import type { ModelResultOut } from "../irradiance_models/result.ts";
 import { mappingFromJson } from "../irradiance_models/mapping_json.ts";
@@ -64,6 +70,11 @@ interface SunspotInput {
   atCells: Float64Array;
   resolution: TimeResolution;
   conversion: string | null;
+  /**
+   * The yardstick of the amplitude check: the series on the model's version by the published
+   * time-dependent conversion (as given when the versions match), in the cells.
+   */
+  reference: { atCells: Float64Array; conversion: string };
   warnings: string[];
 }
 
@@ -78,7 +89,7 @@ export function computeReconstruction(
   const sunspot = params.sunspot_number === undefined
     ? null
     : sunspotInput(params, ctx, stored, cells);
-  const mapped = mappedProxies(stored, sunspot, cells.keys.length);
+  const mapped = mappedProxies(stored, sunspot?.atCells ?? null, cells.keys.length);
   if (!direct.some((d) => d.some(Number.isFinite)) && !sunspot?.atCells.some(Number.isFinite)) {
     throw new InputProblem(
       "/period",
@@ -104,11 +115,25 @@ export function computeReconstruction(
     );
   }
   const amp = tsiCycleAmplitude(cells.time, rec.value);
+  const check = cycleAmplitudeCheck(
+    cells.time,
+    proxyOnly.value,
+    proxyOnly.source,
+    amp,
+    sunspot && {
+      value: reconstructFromProxies(reconstructionModel(stored), {
+        days: cells.days,
+        direct: direct.map(() => new Float64Array(cells.keys.length).fill(NaN)),
+        mapped: mappedProxies(stored, sunspot.reference.atCells, cells.keys.length),
+      }, z).value,
+      conversion: sunspot.reference.conversion,
+    },
+  );
   const warnings = [
     ...(sunspot?.warnings ?? []),
     ...coverageWarnings(coverage.missing, cells, sunspot),
     ...extrapolationWarnings(stored, direct, sunspot, rec),
-    ...cycleAmplitudeWarning(amp.median),
+    ...check.warnings,
     ...quietSunWarning(stored.model.quiet_sun.value),
   ];
   return {
@@ -128,6 +153,7 @@ export function computeReconstruction(
     },
     source_segments: coverage.segments,
     cycle_amplitude: cycleAmplitudeJson(amp),
+    cycle_amplitude_check: check.json,
     outputs: { tsi: tsiOutput(params, cells, rec, scenario.label) },
     warnings,
     cautions: [...RECONSTRUCTION_CAUTIONS, `Background scenario: ${scenario.label}`],
@@ -144,14 +170,14 @@ const RECONSTRUCTION_CAUTIONS = [
 /** Each model term mapped from the cells' sunspot numbers (null without a sunspot series). */
 function mappedProxies(
   stored: ModelResultOut,
-  sunspot: SunspotInput | null,
+  sunspotAtCells: Float64Array | null,
   n: number,
 ): ReconstructionCells["mapped"] {
   return stored.model.terms.map((t) => {
-    if (!sunspot || !stored.mappings) return null;
+    if (!sunspotAtCells || !stored.mappings) return null;
     const value = new Float64Array(n), paramVariance = new Float64Array(n);
     const m = mappingFromJson(stored.mappings.terms[t.name].chosen);
-    evaluateSunspotMapping(m, sunspot.atCells, value, paramVariance);
+    evaluateSunspotMapping(m, sunspotAtCells, value, paramVariance);
     return { value, paramVariance };
   });
 }
@@ -220,7 +246,8 @@ function directProxies(
   return stored.model.terms.map((t) => {
     const p = params.proxies.find((q) => q.term === t.name);
     if (!p) return new Float64Array(cells.keys.length).fill(NaN);
-    return seriesAtPeriodKeys(ctx.series(refId(p.series)), cells.resolution, cells.keys);
+    const s = ctx.series(refId(p.series));
+    return cellMeans(s, s.resolution, cells);
   });
 }
 
@@ -241,34 +268,88 @@ function sunspotInput(
       { reason: "no_mappings" },
     );
   }
+  const target = mappings.sunspot_version;
   let value: ArrayLike<number> = ss.value;
   let conversion: string | null = null;
   const warnings: string[] = [];
-  if (version !== mappings.sunspot_version) {
+  if (version !== target) {
     if (!params.sunspot_conversion) {
       throw new InputProblem(
         "/sunspot_number",
-        `the sunspot series is version "${version}" but the model was calibrated with version "${mappings.sunspot_version}"; supply the matching version or a sunspot_conversion factor (e.g. version 1 → 2 before 1947 is about 1/0.6)`,
-        { reason: "version_mismatch", version, model_version: mappings.sunspot_version },
+        `the sunspot series is version "${version}" but the model was calibrated with version "${target}"; supply the matching version, or sunspot_conversion {"method": "published"} for the published time-dependent conversion between versions 1 and 2 (Clette et al. 2014; V2 ≈ V1/0.6 before 1947 and V1/(0.6 × 1.18) after), or a constant {"factor": f}`,
+        { reason: "version_mismatch", version, model_version: target },
       );
     }
-    const f = params.sunspot_conversion.factor;
-    value = ss.value.map((v) => v * f);
-    conversion = `sunspot version ${version} × ${f} → version ${mappings.sunspot_version}` +
-      (params.sunspot_conversion.note ? ` (${params.sunspot_conversion.note})` : "");
+    const c = applySunspotConversion(
+      ss,
+      version,
+      target,
+      params.sunspot_conversion,
+      "/sunspot_conversion",
+    );
+    value = c.value;
+    conversion = c.label;
+    warnings.push(...c.warnings);
   } else if (params.sunspot_conversion) {
     warnings.push(
       `sunspot_conversion was ignored: the series is already version ${version}, as the model.`,
     );
   }
   const series = { time: ss.time, value };
+  const atCells = cellMeans(series, ss.resolution, cells);
   return {
     series,
-    atCells: seriesAtPeriodKeys(series, cells.resolution, cells.keys),
+    atCells,
     resolution: ss.resolution,
     conversion,
+    reference: referenceSunspots(ss, version, target, conversion, atCells, cells),
     warnings,
   };
+}
+
+/**
+ * The sunspot series of the amplitude check's yardstick: on the model's version by the
+ * published time-dependent conversion, whatever the request chose; as given when the versions
+ * match; the request's own conversion between versions the published one does not cover.
+ */
+function referenceSunspots(
+  ss: { time: Float64Array; value: Float64Array; resolution: TimeResolution },
+  version: string,
+  target: string,
+  requested: string | null,
+  atCells: Float64Array,
+  cells: TargetCells,
+): SunspotInput["reference"] {
+  if (version === target) {
+    return { atCells, conversion: `as given (version ${version}, as the model)` };
+  }
+  const v12 = (v: string): v is "1" | "2" => v === "1" || v === "2";
+  if (!v12(version) || !v12(target)) {
+    return {
+      atCells,
+      conversion: `by the request's conversion (${requested}); no published conversion ` +
+        `between versions "${version}" and "${target}", so a wrong factor is not detected`,
+    };
+  }
+  const value = convertSunspotNumberVersion(ss.time, ss.value, version, target);
+  return {
+    atCells: cellMeans({ time: ss.time, value }, ss.resolution, cells),
+    conversion: `put on version ${target} by the published time-dependent conversion ` +
+      "(Clette et al. 2014; Clette & Lefèvre 2016)",
+  };
+}
+
+/**
+ * A series averaged into the cells with the coverage rule of core/series (a monthly cell from
+ * daily values needs 20 of them, an annual cell 10 covered months; a partial year at an end is
+ * no cell).
+ */
+function cellMeans(
+  series: { time: ArrayLike<number>; value: ArrayLike<number> },
+  from: TimeResolution,
+  cells: TargetCells,
+): Float64Array {
+  return resampledAtPeriodKeys(series, from, cells.resolution, cells.keys);
 }
 
 /** The stored model (and its back-extension residual process) as core reads it. */
@@ -329,10 +410,10 @@ function background(
       deltaTsi: bg.delta_tsi,
       calibrationPeriod: stored.model.calibration_period,
     }));
-  const atCells = seriesAtPeriodKeys(
+  const atCells = cellMeans(
     { time: sunspot.series.time, value: b.value },
-    cells.resolution,
-    cells.keys,
+    sunspot.resolution,
+    cells,
   );
   return {
     rec: withSecularBackground(rec, atCells),

@@ -19,8 +19,12 @@ export const irradianceReconstructions = defineAnalysis({
   path: "/v1/irradiance/reconstructions",
   // 3: a period ending on a cell boundary no longer gains an extra cell (2001-01..2001-12 is
   // 12 months, not 13); a cell whose background is missing has no SD either.
-  algorithmVersion: "3",
+  // 4: the published time-dependent sunspot-version conversion; the cycle-amplitude warning
+  // per cycle against what its sunspot amplitude implies; cells from daily or monthly inputs
+  // follow the coverage rule of core/series (a partial year at an end is no annual cell).
+  algorithmVersion: "4",
   tag: "Irradiance",
+  featured: true,
   summary: "Reconstruct TSI from a calibrated model, with prediction intervals",
   description: "Applies a model run to proxy series averaged into daily, monthly or annual " +
     "cells over a period. Prediction intervals combine the coefficient covariance with the " +
@@ -29,8 +33,12 @@ export const irradianceReconstructions = defineAnalysis({
     "its value is mapped from sunspot number with the model's fitted mapping; the band then " +
     "uses the residual process of the sunspot-only model and the mappings' parameter " +
     "uncertainty, so it widens where proxies are weaker. The sunspot series version must match " +
-    "the model's unless a conversion factor is given. An optional secular background scenario " +
-    "is added and labelled; the default is none.",
+    'the model\'s unless `sunspot_conversion` is given: `{"method": "published"}` for the ' +
+    "time-dependent conversion between versions 1 and 2, or a constant factor. Cells average " +
+    "their inputs with the coverage rule of resampling (20 days for a month, 10 months for a " +
+    "year). Each solar cycle's amplitude is checked against what its sunspot amplitude " +
+    "implies through the model. An optional secular background scenario is added and " +
+    "labelled; the default is none.",
   request: ReconstructionRequest,
   result: ReconstructionResult,
   runRefs: (p) => [p.model],

@@ -9,6 +9,8 @@ import { z } from "@hono/zod-openapi";
 import { SeriesRef } from "../../schemas/series_ref.ts";
 import { PeriodInput } from "../common/time_period.ts";
 import { runRef } from "../common/run_ref.ts";
+import { SunspotConversion } from "../../schemas/sunspot_conversion.ts";
+import { DEMO_SERIES, EXAMPLE_RUN_ID } from "../../schemas/examples.ts";
 
 const SecularBackgroundRequest = z.discriminatedUnion("kind", [
   z.object({ kind: z.literal("none") }),
@@ -41,14 +43,15 @@ export const ReconstructionRequest = z.object({
       "reconstruction back-extends from sunspot_number",
   }),
   sunspot_number: SeriesRef.optional().openapi({
-    description: "Sunspot-number series for back-extension; its version must match the model's",
+    description: "Sunspot-number series for back-extension; its version must match the " +
+      "model's unless `sunspot_conversion` is given",
   }),
-  sunspot_conversion: z.object({
-    factor: z.number().positive().max(10).openapi({
-      description: "Multiply the sunspot series by this to put it on the model's version",
-    }),
-    note: z.string().max(400).optional(),
-  }).optional(),
+  sunspot_conversion: SunspotConversion.optional().openapi({
+    description: "How to put the sunspot series on the model's version: " +
+      '`{"method": "published"}` (the time-dependent conversion between versions 1 and 2) ' +
+      'or a constant `{"factor": f}` (warned about when the series crosses 1849, 1868 or ' +
+      "1947, where the ratio of the versions changes)",
+  }),
   period: PeriodInput.openapi({
     description: "The cells are every day, month or year from the one holding the start to " +
       "the one holding the last instant before the end: ISO bounds name whole periods, so " +
@@ -67,6 +70,14 @@ export const ReconstructionRequest = z.object({
     }
     seen.add(p.term);
   });
-}).openapi("ReconstructionRequest");
+}).openapi("ReconstructionRequest", {
+  example: {
+    model: EXAMPLE_RUN_ID,
+    sunspot_number: DEMO_SERIES.SSN,
+    proxies: [{ term: "mg_ii", series: DEMO_SERIES.MG }],
+    period: { start: "1700", end: "2025" },
+    resolution: "annual",
+  },
+});
 
 export type ReconstructionParams = z.output<typeof ReconstructionRequest>;

@@ -4,8 +4,9 @@
  * @module
  */
 import { z } from "@hono/zod-openapi";
-import { cautions, OutputSeriesSchema, warnings } from "../common/result_parts.ts";
+import { cautions, inherited, OutputSeriesSchema, warnings } from "../common/result_parts.ts";
 import { TsiCycleAmplitudeSchema } from "../common/tsi_cycle_amplitude.ts";
+import { CycleAmplitudeCheckSchema } from "./amplitude_check.ts";
 
 const SourceCoverage = z.object({
   cells: z.number().int(),
@@ -36,7 +37,8 @@ export const ReconstructionResult = z.object({
     }),
   ]).openapi({ description: "The secular background scenario added, labelled" }),
   sunspot_conversion: z.string().nullable().openapi({
-    description: "How the sunspot series was converted to the model's version; null if not",
+    description: "How the sunspot series was converted to the model's version (the published " +
+      "time-dependent factors or a constant one), in words; null if not",
   }),
   coverage: z.object({
     cells: z.number().int(),
@@ -53,6 +55,11 @@ export const ReconstructionResult = z.object({
     cells: z.number().int(),
   })).openapi({ description: "Runs of consecutive cells of one source" }),
   cycle_amplitude: TsiCycleAmplitudeSchema,
+  cycle_amplitude_check: CycleAmplitudeCheckSchema.openapi({
+    description: "The cycle-amplitude plausibility check: each cycle against what its " +
+      "sunspot amplitude implies through the model (or, without a sunspot series, the " +
+      "satellite-era cycles against the measured range), and what was compared",
+  }),
   outputs: z.object({
     tsi: OutputSeriesSchema.openapi({
       description: "TSI per cell, W m-2, rounded to 1e-6; null where no proxy and no sunspot " +
@@ -61,6 +68,7 @@ export const ReconstructionResult = z.object({
   }),
   warnings,
   cautions,
+  inherited,
 }).openapi("ReconstructionResult");
 
 /** The result as `compute` builds it. */

@@ -8,8 +8,16 @@
  */
 import type { KindChart } from "../../runs/kind.ts";
 import type { Layer } from "../../charts/chart.ts";
-import { runDescription, runNotes } from "../../charts/run_common.ts";
+import { runDescription, runNotes, runTitle } from "../../charts/run_common.ts";
 import type { LagCorrelationResultOut } from "./result.ts";
+
+/** What was removed from both series before correlating, in words. */
+function preprocessing(r: LagCorrelationResultOut): string {
+  const trend = r.preprocess === "high_pass"
+    ? `variations slower than ${r.high_pass_cutoff_years} years`
+    : `the ${r.preprocess === "mean" ? "mean" : `${r.preprocess} trend`}`;
+  return r.seasonal_cycle.deseasonalise ? `the monthly climatology, then ${trend}` : trend;
+}
 
 function fmt(v: number | null, digits = 3): string {
   return v === null ? "n/a" : v.toPrecision(digits);
@@ -64,7 +72,7 @@ function layers(r: LagCorrelationResultOut): Layer[] {
     type: "points",
     label: `best lag ${r.best.lag} ${r.lag_unit}`,
     x: [r.best.lag],
-    y: [r.best.r],
+    y: [r.best[r.statistic]],
     marker: "diamond",
     size: 80,
     color: 3,
@@ -72,28 +80,66 @@ function layers(r: LagCorrelationResultOut): Layer[] {
   return out;
 }
 
+/** What was removed from both series before correlating, in words. */
+export function preprocessText(r: LagCorrelationResultOut): string {
+  switch (r.preprocess) {
+    case "mean":
+      return "mean removed";
+    case "linear":
+      return "linear trend removed";
+    case "quadratic":
+      return "quadratic trend removed";
+    case "high_pass":
+      return `variations slower than ${r.high_pass_cutoff_years} years removed (Gaussian high-pass)`;
+  }
+}
+
+/** A signed lag: "−36", "0", "+36". */
+function signed(k: number): string {
+  return k > 0 ? `+${k}` : k < 0 ? `−${-k}` : "0";
+}
+
+/** The lag window in words: "lags −36 to +36 months". */
+export function lagWindowText(r: LagCorrelationResultOut): string {
+  const lo = r.lags[0].lag, hi = r.lags[r.lags.length - 1].lag;
+  return `lags ${signed(lo)} to ${signed(hi)} ${r.lag_unit}`;
+}
+
+/** The best lag's r and p-values, naming the r the tests used. */
+function bestNote(r: LagCorrelationResultOut): string {
+  const b = r.best;
+  const rText = r.statistic === "r_full"
+    ? `r (ccf normalisation) = ${fmt(b.r_full)} (overlap r = ${fmt(b.r)})`
+    : `r = ${fmt(b.r)}`;
+  return `Best lag ${b.lag} ${r.lag_unit}: ${rText}, analytic p = ${fmt(b.p_analytic)}, ` +
+    `Monte Carlo p = ${fmt(b.p_monte_carlo)}, family-wise p = ${fmt(b.p_family_wise)}.`;
+}
+
 export const lagCorrelationChart: KindChart<LagCorrelationResultOut> = {
   build(run, r) {
     if (r.lags.length === 0) return null;
     const unit = r.lag_unit;
-    const b = r.best;
     const mc = r.monte_carlo;
+    const method = `${preprocessText(r)}, ${lagWindowText(r)}`;
     return {
-      title: `Lagged correlation of climate with solar · run ${run.id.slice(0, 8)}`,
+      title: runTitle(`Lagged correlation of climate with solar, ${method}`, run),
       description: runDescription(
         run,
         `Correlation at lags ${r.lags[0].lag} to ${r.lags[r.lags.length - 1].lag} ${unit}` +
-          (mc ? `, with ${mc.surrogates} ${mc.method} surrogates for significance.` : "."),
+          (mc ? `, with ${mc.surrogates} ${mc.method} surrogates for significance.` : ".") +
+          ` Removed before correlating: ${preprocessing(r)}.`,
       ),
       x: { label: `Lag (${unit}; > 0: climate follows solar)`, kind: "linear" },
       y: { label: "Correlation r" },
       layers: layers(r),
-      notes: [
-        `Best lag ${b.lag} ${unit}: r = ${fmt(b.r)}, analytic p = ${fmt(b.p_analytic)}, ` +
-        `Monte Carlo p = ${fmt(b.p_monte_carlo)}, family-wise p = ${fmt(b.p_family_wise)}.`,
-        `Sign convention: ${r.sign_convention}.`,
-        ...runNotes(run),
-      ],
+      ...runNotes(
+        run,
+        [bestNote(r), `Sign convention: ${r.sign_convention}.`],
+        [
+          `Both series: ${method} (> 0: climate follows solar); ${r.resolution} axis ` +
+          `${r.start_period} to ${r.end_period}, ${r.n} periods.`,
+        ],
+      ),
     };
   },
 };

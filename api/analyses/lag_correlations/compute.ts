@@ -21,6 +21,12 @@ import {
 } from "../../../core/climate/mod.ts";
 import { type AnalysisAxis, analysisAxis } from "../common/analysis_axis.ts";
 import { solarCautions } from "../common/cautions.ts";
+import {
+  annualCycleLeft,
+  deseasonalisedQuantity,
+  seasonalAxis,
+  type SeasonalInput,
+} from "../common/seasonal_cycle.ts";
 import { type FieldPointers, withInputPointers } from "../common/input_problem.ts";
 import { solarSeriesFromRun } from "../common/solar_series_from_run.ts";
 import type { LagCorrelationParams } from "./request.ts";
@@ -76,7 +82,7 @@ function inputs(p: LagCorrelationParams, ctx: RunContext): [StoredSeries, Stored
 }
 
 /** Both series with the requested trend or slow variations removed. */
-function preprocessed(p: LagCorrelationParams, axis: AnalysisAxis) {
+function preprocessed(p: LagCorrelationParams, axis: AnalysisAxis, deseasonalised: boolean) {
   if (p.preprocess === "high_pass" && p.high_pass_cutoff_years === undefined) {
     throw new InputProblem("/high_pass_cutoff_years", "preprocess high_pass needs a cutoff");
   }
@@ -89,7 +95,11 @@ function preprocessed(p: LagCorrelationParams, axis: AnalysisAxis) {
   for (const [k, name] of [[0, "solar"], [1, "climate"]] as const) {
     const v = axis.values[k];
     if (v.every((x) => x === v[0])) {
-      throw new InputProblem(`/${name}`, `the ${name} series is constant over the overlap`);
+      throw new InputProblem(
+        `/${name}`,
+        `the ${name} series is constant over the overlap` +
+          (deseasonalised ? " once its monthly climatology is removed" : ""),
+      );
     }
   }
   const [x, y] = (["/solar", "/climate"] as const).map((pointer, k) =>
@@ -149,8 +159,28 @@ async function monteCarlo(
   return combineSurrogateChunks(plan, outs);
 }
 
-/** Which p-values to trust, and a warning when the analytic and Monte Carlo ones disagree. */
-function verdict(best: LagRow, pMonteCarlo: number | null): { text: string; warning?: string } {
+/**
+ * Which p-values to trust, and a warning when the analytic and Monte Carlo ones disagree. Never
+ * recommends a p-value a known confounder can produce: with a strong annual cycle left in an
+ * input as analysed, none is trusted.
+ */
+function verdict(
+  best: LagRow,
+  pMonteCarlo: number | null,
+  seasonalLeft: string[],
+): { text: string; warning?: string } {
+  if (seasonalLeft.length > 0) {
+    return {
+      text: `Trust none of the p-values here: the ${seasonalLeft.join(" and ")} series keeps a ` +
+        "strong annual cycle as analysed. It dominates r at every lag; the analytic test's " +
+        "N_eff uses lag-1 autocorrelations that miss the 12-month periodicity, and the Monte " +
+        "Carlo p-value cannot be trusted either, because phase surrogates of a series without " +
+        "an annual cycle leave the confounder out of the null. Remove it (deseasonalise: true) " +
+        "and read the family-wise Monte Carlo p-value of that run.",
+      warning: "an annual cycle remains in the analysed series: the Monte Carlo p-values " +
+        "cannot be trusted (nor the analytic ones); set deseasonalise to true",
+    };
+  }
   if (pMonteCarlo === null) {
     return {
       text: "No Monte Carlo test was run: the analytic p-values assume AR(1)-like series " +
@@ -181,15 +211,46 @@ function verdict(best: LagRow, pMonteCarlo: number | null): { text: string; warn
   };
 }
 
+/**
+ * Warnings on where the best lag lies: at an edge of the window (the largest |r| may lie
+ * outside it, as the attributions warn for an edge lag), and at a negative lag (the climate
+ * series leads the solar one, which a response to the Sun cannot do).
+ */
+function bestLagWarnings(rows: LagRow[], bestIdx: number, unit: string): string[] {
+  const out: string[] = [];
+  const lag = rows[bestIdx].lag;
+  if (rows.length > 1 && (bestIdx === 0 || bestIdx === rows.length - 1)) {
+    out.push(
+      `the best lag (${lag} ${unit}) is at the ${bestIdx === 0 ? "lower" : "upper"} edge of ` +
+        `the lag window ${rows[0].lag} to ${rows[rows.length - 1].lag}: the largest |r| may ` +
+        "lie outside it, so this lag is a bound, not an estimate; widen the window to see",
+    );
+  }
+  if (lag < 0) {
+    out.push(
+      `the best lag is negative (${lag} ${unit}): the climate series leads the solar one, ` +
+        "which a response to the Sun cannot do; read it as chance, a shared slow variation " +
+        "or a common driver, not as a solar influence",
+    );
+  }
+  return out;
+}
+
 /** Correlate the climate series with the solar series over the lag window. */
 export async function computeLagCorrelations(
   p: LagCorrelationParams,
   ctx: RunContext,
 ): Promise<LagCorrelationResultIn> {
   const [solar, climate] = inputs(p, ctx);
-  const axis = analysisAxis([solar, climate], ["/solar", "/climate"], p.resolution, p, 10);
+  const onAxis = analysisAxis([solar, climate], ["/solar", "/climate"], p.resolution, p, 10);
+  const labels: SeasonalInput[] = [
+    { input: "solar", name: solar.name, quantity: solar.quantity },
+    { input: "climate", name: climate.name, quantity: climate.quantity },
+  ];
+  const { axis, seasonal } = seasonalAxis(onAxis, labels, p.deseasonalise);
+  const deseasonalised = seasonal.json.deseasonalise;
   const window = lagWindow(p, axis);
-  const series = preprocessed(p, axis);
+  const series = preprocessed(p, axis, deseasonalised);
   const rows = withInputPointers(
     pointersOf(window.windowPointer),
     () => laggedCorrelationTable(series.x, series.y, window, p.normalisation),
@@ -205,17 +266,20 @@ export async function computeLagCorrelations(
     : await monteCarlo({ ...p, significance: p.significance }, ctx, series, axis, window);
   ctx.progress(0.95);
   const best = rows[bestIdx];
-  const warnings = [...axis.warnings];
-  const trust = verdict(best, mc ? mc.pPerLag[bestIdx] : null);
+  const warnings = [...axis.warnings, ...seasonal.warnings];
+  const left = annualCycleLeft(axis.resolution, axis.time, [series.x, series.y], labels);
+  const trust = verdict(best, mc ? mc.pPerLag[bestIdx] : null, left);
   if (trust.warning) warnings.push(trust.warning);
+  warnings.push(...bestLagWarnings(rows, bestIdx, axis.lagUnit));
   if (best.n_eff < 10) {
     warnings.push(
       `only about ${best.n_eff.toFixed(1)} effectively independent pairs at the best lag`,
     );
   }
+  const removed = `${deseasonalised ? "monthly climatology and " : ""}${p.preprocess} removed`;
   const preprocessedOutput = (s: StoredSeries, v: Float64Array) => ({
-    name: `${s.name} (${axis.resolution}, ${p.preprocess} removed)`,
-    quantity: s.quantity,
+    name: `${s.name} (${axis.resolution}, ${removed})`,
+    quantity: deseasonalisedQuantity(s.quantity, deseasonalised),
     units: s.units,
     time: Array.from(axis.time),
     value: Array.from(v),
@@ -228,6 +292,7 @@ export async function computeLagCorrelations(
     n: axis.time.length,
     start_period: axis.start_period,
     end_period: axis.end_period,
+    seasonal_cycle: seasonal.json,
     preprocess: p.preprocess,
     high_pass_cutoff_years: p.high_pass_cutoff_years ?? null,
     normalisation: p.normalisation,
@@ -240,7 +305,9 @@ export async function computeLagCorrelations(
     })),
     best: {
       lag: best.lag,
-      r: stat(best),
+      // the same two r as the lag table; `statistic` says which one the tests use
+      r: best.r,
+      r_full: best.r_full,
       n: best.n,
       n_eff: best.n_eff,
       p_analytic: best.p_analytic,

@@ -7,6 +7,9 @@ import { z } from "@hono/zod-openapi";
 import { SeriesRef } from "../../schemas/series_ref.ts";
 import { AnalysisResolution, CoverageFields } from "../common/analysis_axis.ts";
 import { RunRef } from "../common/run_ref.ts";
+import { DeseasonaliseField } from "../common/seasonal_cycle.ts";
+import { DEMO_SERIES } from "../../schemas/examples.ts";
+import { oneOfFields } from "../common/alternatives.ts";
 
 /** Preprocessing applied to observations and surrogates alike. */
 export const PreprocessField = z.enum(["mean", "linear", "quadratic", "high_pass"]).openapi({
@@ -26,9 +29,11 @@ export const LagCorrelationRequest = z.object({
   climate: SeriesRef.openapi({ description: "Climate series (temperature anomaly, ...)" }),
   resolution: AnalysisResolution,
   ...CoverageFields,
+  deseasonalise: DeseasonaliseField,
   min_lag: z.number().int().min(-10_000).max(10_000).optional().openapi({
     description: "Smallest lag in samples (default −max_lag). Negative lags: the climate " +
       "series leads.",
+    example: -24,
   }),
   max_lag: z.number().int().min(0).max(10_000).optional().openapi({
     description: "Largest lag in samples (months or years of the common axis; default 36 " +
@@ -51,6 +56,16 @@ export const LagCorrelationRequest = z.object({
     description: "Number of surrogates (100 to 100,000)",
   }),
   seed: z.number().int().min(0).max(4294967295).default(1),
-}).openapi("LagCorrelationRequest");
+}).openapi("LagCorrelationRequest", {
+  ...oneOfFields("solar", "solar_run"),
+  example: {
+    solar: DEMO_SERIES.TSIM,
+    climate: DEMO_SERIES.TEMP,
+    min_lag: -24,
+    max_lag: 24,
+    surrogates: 1000,
+    seed: 42,
+  },
+});
 
 export type LagCorrelationParams = z.output<typeof LagCorrelationRequest>;

@@ -4,8 +4,9 @@
  * @module
  */
 import { z } from "@hono/zod-openapi";
-import { cautions, OutputSeriesSchema, warnings } from "../common/result_parts.ts";
+import { cautions, inherited, OutputSeriesSchema, warnings } from "../common/result_parts.ts";
 import { PreprocessField } from "./request.ts";
+import { SeasonalCycleSchema } from "../common/seasonal_cycle.ts";
 
 const nullWhenNeffSmall = (what: string, limit: number) =>
   z.number().nullable().openapi({
@@ -65,18 +66,26 @@ export const LagCorrelationResult = z.object({
   n: z.number().int().openapi({ description: "Periods on the common gap-free axis" }),
   start_period: z.string().openapi({ description: "ISO 8601 first period of the axis" }),
   end_period: z.string().openapi({ description: "ISO 8601 last period of the axis" }),
+  seasonal_cycle: SeasonalCycleSchema,
   preprocess: PreprocessField,
   high_pass_cutoff_years: z.number().nullable().openapi({
     description: "Cutoff of the high-pass, years; null for the other preprocessings",
   }),
   normalisation: z.enum(["overlap", "full"]),
   statistic: z.enum(["r", "r_full"]).openapi({
-    description: "Which r the tests, intervals and the best lag use",
+    description: "Which r the tests, intervals and the choice of the best lag use: `r` (the " +
+      "overlap Pearson r, normalisation `overlap`) or `r_full` (R's ccf normalisation, " +
+      "normalisation `full`). The lag table and `best` carry both, under the same names",
   }),
   lags: z.array(LagRow),
   best: z.object({
     lag: z.number().int().openapi({ description: "Lag with the largest |statistic|" }),
-    r: z.number().openapi({ description: "The statistic at the best lag" }),
+    r: z.number().openapi({
+      description: "Pearson r over the overlapping pairs at the best lag (the table's `r`)",
+    }),
+    r_full: z.number().openapi({
+      description: "r with R's ccf normalisation at the best lag (the table's `r_full`)",
+    }),
     n: z.number().int(),
     n_eff: z.number(),
     p_analytic: z.number().nullable().openapi({
@@ -107,6 +116,7 @@ export const LagCorrelationResult = z.object({
   }),
   warnings,
   cautions,
+  inherited,
 }).openapi("LagCorrelationResult");
 
 /** The result as `compute` builds it. */

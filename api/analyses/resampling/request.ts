@@ -5,6 +5,7 @@
  */
 import { z } from "@hono/zod-openapi";
 import { SeriesRef } from "../../schemas/series_ref.ts";
+import { DEMO_SERIES } from "../../schemas/examples.ts";
 
 export const ResampleRequest = z.object({
   series: SeriesRef,
@@ -31,6 +32,8 @@ export const ResampleRequest = z.object({
     description: "Points a period needs when the input is irregular",
     example: 1,
   }),
-}).openapi("ResampleRequest");
+}).openapi("ResampleRequest", {
+  example: { series: DEMO_SERIES.TEMP, to: "annual" },
+});
 
 export type ResampleParams = z.output<typeof ResampleRequest>;

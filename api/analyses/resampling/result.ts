@@ -4,7 +4,7 @@
  * @module
  */
 import { z } from "@hono/zod-openapi";
-import { cautions, OutputSeriesSchema, warnings } from "../common/result_parts.ts";
+import { cautions, inherited, OutputSeriesSchema, warnings } from "../common/result_parts.ts";
 import { InputSummary } from "../common/input_summary.ts";
 
 export const ResampleResult = z.object({
@@ -35,6 +35,7 @@ export const ResampleResult = z.object({
   }),
   warnings,
   cautions,
+  inherited,
 }).openapi("ResampleResult");
 
 /** The result as `compute` builds it. */

@@ -5,6 +5,7 @@
  */
 import { z } from "@hono/zod-openapi";
 import { SeriesRef } from "../../schemas/series_ref.ts";
+import { DEMO_SERIES } from "../../schemas/examples.ts";
 
 export const SmoothingRequest = z.object({
   series: SeriesRef,
@@ -29,6 +30,8 @@ export const SmoothingRequest = z.object({
       "windows only, so no value is biased by a gap",
     example: 0,
   }),
-}).openapi("SmoothingRequest");
+}).openapi("SmoothingRequest", {
+  example: { series: DEMO_SERIES.SSN, method: "13_month" },
+});
 
 export type SmoothingParams = z.output<typeof SmoothingRequest>;

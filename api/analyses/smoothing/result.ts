@@ -4,7 +4,7 @@
  * @module
  */
 import { z } from "@hono/zod-openapi";
-import { OutputSeriesSchema, warnings } from "../common/result_parts.ts";
+import { inherited, OutputSeriesSchema, warnings } from "../common/result_parts.ts";
 
 export const SmoothingResult = z.object({
   input: z.object({
@@ -33,6 +33,7 @@ export const SmoothingResult = z.object({
   defined: z.number().int().openapi({ description: "Number of defined smoothed values" }),
   outputs: z.object({ smoothed: OutputSeriesSchema }),
   warnings,
+  inherited,
 }).openapi("SmoothingResult");
 
 /** The result as `compute` builds it. */

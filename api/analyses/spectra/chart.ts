@@ -7,7 +7,7 @@
  */
 import type { KindChart } from "../../runs/kind.ts";
 import type { Layer } from "../../charts/chart.ts";
-import { runDescription, runNotes } from "../../charts/run_common.ts";
+import { runDescription, runNotes, runTitle } from "../../charts/run_common.ts";
 import type { SpectraResultOut } from "./result.ts";
 
 function pct(f: number): string {
@@ -76,7 +76,7 @@ export const spectraChart: KindChart<SpectraResultOut> = {
     const method = r.method === "fft" ? "Tapered FFT periodogram" : "Lomb–Scargle periodogram";
     const powerUnits = r.units.power;
     return {
-      title: `${method}${r.input.name ? ` of ${r.input.name}` : ""} · run ${run.id.slice(0, 8)}`,
+      title: runTitle(`${method}${r.input.name ? ` of ${r.input.name}` : ""}`, run),
       description: runDescription(
         run,
         `${method} against period, ${x.length} periods from ${x[0].toPrecision(3)} to ${
@@ -94,10 +94,7 @@ export const spectraChart: KindChart<SpectraResultOut> = {
         ...peaks.lines,
         ...peaks.points,
       ],
-      notes: [
-        ...(peaks.notes.length ? [`Peaks: ${peaks.notes.join("; ")}.`] : []),
-        ...runNotes(run),
-      ],
+      ...runNotes(run, peaks.notes.length ? [`Peaks: ${peaks.notes.join("; ")}.`] : []),
     };
   },
 };

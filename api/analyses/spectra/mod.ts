@@ -16,7 +16,8 @@ import { estimateSpectraSeconds } from "./estimate.ts";
 export const spectraKind = defineAnalysis({
   kind: "spectra",
   path: "/v1/spectra",
-  algorithmVersion: "1",
+  // 2: one mixed-radix FFT (the FFT periodogram changes in the last bits)
+  algorithmVersion: "2",
   tag: "Solar cycles",
   summary: "Periodogram, dominant periods and false-alarm probabilities",
   description: "Lomb–Scargle periodogram (Lomb 1976; Scargle 1982) of any series, gaps and " +

@@ -5,6 +5,7 @@
  */
 import { z } from "@hono/zod-openapi";
 import { SeriesRef } from "../../schemas/series_ref.ts";
+import { DEMO_SERIES } from "../../schemas/examples.ts";
 
 /** Largest period grid. */
 export const MAX_GRID = 200_000;
@@ -77,6 +78,8 @@ export const SpectraRequest = z.object({
     example: "constant",
   }),
   max_peaks: z.number().int().min(1).max(50).default(5),
-}).openapi("SpectraRequest");
+}).openapi("SpectraRequest", {
+  example: { series: DEMO_SERIES.SSN, method: "lomb_scargle", false_alarm: "horne_baliunas" },
+});
 
 export type SpectraParams = z.output<typeof SpectraRequest>;

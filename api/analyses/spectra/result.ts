@@ -5,7 +5,7 @@
  * @module
  */
 import { z } from "@hono/zod-openapi";
-import { cautions, nums, warnings } from "../common/result_parts.ts";
+import { cautions, inherited, nums, warnings } from "../common/result_parts.ts";
 
 const nullableNum = z.number().nullable();
 
@@ -98,6 +98,7 @@ const LombScargleResult = z.object({
   }),
   warnings,
   cautions,
+  inherited,
 }).openapi("LombScargleSpectrum");
 
 const FftResult = z.object({
@@ -117,6 +118,7 @@ const FftResult = z.object({
   false_alarm: z.null(),
   warnings,
   cautions,
+  inherited,
 }).openapi("FftSpectrum");
 
 export const SpectraResult = z.discriminatedUnion("method", [LombScargleResult, FftResult])

@@ -50,6 +50,7 @@ export function describeChart(
     }, ${yRangeText(p)}.`,
     drawn.summary.length ? `Drawn: ${drawn.summary.join("; ")}.` : "",
     drawn.anyVisible ? "" : "No data falls in the selected range.",
+    ...(spec.keep ?? []),
     ...(spec.notes ?? []),
     ...p.dropped,
   ].filter(Boolean).join(" ");

@@ -163,8 +163,8 @@ function defaultValueColumn(
     pointer: "/value",
     in: "query",
     message: `name the value column: ${rest.length} candidate columns (${
-      rest.map((k) => JSON.stringify(table.label(k))).join(", ")
-    })`,
+      rest.slice(0, 10).map((k) => JSON.stringify(table.label(k))).join(", ")
+    }${rest.length > 10 ? ", ..." : ""})`,
   });
   return null;
 }

@@ -68,6 +68,27 @@ export function splitLine(line: string, delimiter: string): string[] | null {
   return out;
 }
 
+/**
+ * Cells of a line without splitting it (one pass, no allocation); a quoted line is split
+ * properly (-1 when a quote is not closed).
+ */
+export function countCells(line: string, delimiter: string): number {
+  if (delimiter === " ") {
+    let n = 0, inCell = false;
+    for (let i = 0; i < line.length; i++) {
+      const c = line.charCodeAt(i);
+      const blank = c === 32 || c === 9 || c === 11 || c === 12 || c === 160;
+      if (!blank && !inCell) n++;
+      inCell = !blank;
+    }
+    return Math.max(n, 1);
+  }
+  if (line.includes('"')) return splitLine(line, delimiter)?.length ?? -1;
+  let n = 1;
+  for (let i = line.indexOf(delimiter); i >= 0; i = line.indexOf(delimiter, i + 1)) n++;
+  return n;
+}
+
 /** Choose the delimiter that splits the first rows most consistently into 2+ cells. */
 export function detectDelimiter(lines: Line[]): string | null {
   const sample = lines.slice(0, 100);
@@ -75,8 +96,7 @@ export function detectDelimiter(lines: Line[]): string | null {
   for (const d of ["\t", ";", ",", " "]) {
     const counts = new Map<number, number>();
     for (const l of sample) {
-      const c = splitLine(l.text, d);
-      const k = c === null ? -1 : c.length;
+      const k = countCells(l.text, d);
       counts.set(k, (counts.get(k) ?? 0) + 1);
     }
     let mode = 0, modeCount = 0;

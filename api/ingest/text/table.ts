@@ -5,7 +5,8 @@
  * @module
  */
 import type { IngestError } from "../types.ts";
-import { type DelimiterName, DELIMS, detectDelimiter, splitLine } from "./delimiter.ts";
+import { countCells, type DelimiterName, DELIMS, detectDelimiter, splitLine } from "./delimiter.ts";
+import { MAX_COLUMNS } from "../types.ts";
 import { looksLikeData } from "./cells.ts";
 import type { Line } from "./lines.ts";
 
@@ -74,6 +75,19 @@ export function openTable(
       row: lines[0].row,
       message:
         "cannot detect the delimiter: no comma, semicolon, tab or whitespace splits the rows into 2 or more columns; state it with delimiter=",
+    };
+  }
+  const firstWidth = countCells(lines[0].text, delimiter);
+  if (firstWidth > MAX_COLUMNS) {
+    const label = (Object.keys(DELIMS) as (keyof typeof DELIMS)[]).find((k) =>
+      DELIMS[k] === delimiter
+    );
+    return {
+      pointer: "",
+      in: "body",
+      row: lines[0].row,
+      message: `the table has ${firstWidth} columns (${label} separated); at most ` +
+        `${MAX_COLUMNS} are read: upload the time, value and uncertainty columns`,
     };
   }
   const cells = (k: number): string[] | null | "blank" => {

@@ -3,7 +3,14 @@ import postgres from "postgres";
 import { openPostgresStore, POSTGRES_MIGRATIONS } from "../../../api/store/postgres.ts";
 import { SchemaMismatchError } from "../../../api/store/errors.ts";
 import { openStoreFromSpec } from "../../../api/store/mod.ts";
-import { makeRun, makeSeries, type StoreBacking, storeSuite } from "./store_suite.ts";
+import {
+  assertUpgradedV1Rows,
+  makeRun,
+  makeSeries,
+  type StoreBacking,
+  storeSuite,
+  V1_ROWS_SQL,
+} from "./store_suite.ts";
 import { type PgServer, pgUnavailableReason, startPgServer } from "./pg_cluster.ts";
 
 const server = await startPgServer();
@@ -75,6 +82,30 @@ Deno.test({
       assert.equal((await newer.schemaVersions()).length, POSTGRES_MIGRATIONS.length + 1);
       await newer.close();
       await assert.rejects(() => openPostgresStore({ url }), SchemaMismatchError);
+    });
+  },
+});
+
+Deno.test({
+  name: "openPostgresStore() upgrades a store written before owners: the local owner holds all" +
+    suffix,
+  ignore,
+  async fn() {
+    await withDatabase(async (url) => {
+      await (await openPostgresStore({ url, migrations: POSTGRES_MIGRATIONS.slice(0, 1) }))
+        .close();
+      const sql = postgres(url, { max: 1, onnotice: () => {} });
+      try {
+        for (const q of V1_ROWS_SQL) await sql.unsafe(q);
+      } finally {
+        await sql.end();
+      }
+      const store = await openPostgresStore({ url });
+      try {
+        await assertUpgradedV1Rows(store);
+      } finally {
+        await store.close();
+      }
     });
   },
 });

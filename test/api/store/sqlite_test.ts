@@ -3,7 +3,13 @@ import { DatabaseSync } from "node:sqlite";
 import { join } from "node:path";
 import { openSqliteStore, SQLITE_MIGRATIONS, type SqliteStore } from "../../../api/store/sqlite.ts";
 import { SchemaMismatchError } from "../../../api/store/errors.ts";
-import { makeRun, makeSeries, storeSuite } from "./store_suite.ts";
+import {
+  assertUpgradedV1Rows,
+  makeRun,
+  makeSeries,
+  storeSuite,
+  V1_ROWS_SQL,
+} from "./store_suite.ts";
 
 storeSuite("SqliteStore (file)", async () => {
   const dir = await Deno.makeTempDir({ prefix: "sunlag-store-" });
@@ -95,6 +101,25 @@ Deno.test("openSqliteStore() applies only the steps a file is missing", async ()
     }
     // The newer file is refused by the older schema, and nothing is written to it.
     await assert.rejects(() => openSqliteStore({ path }), SchemaMismatchError);
+  });
+});
+
+Deno.test("openSqliteStore() upgrades a store written before owners: the local owner holds all", async () => {
+  await withDir(async (dir) => {
+    const path = join(dir, "v1.db");
+    await (await openSqliteStore({ path, migrations: SQLITE_MIGRATIONS.slice(0, 1) })).close();
+    const db = new DatabaseSync(path);
+    try {
+      for (const sql of V1_ROWS_SQL) db.exec(sql);
+    } finally {
+      db.close();
+    }
+    const store = await openSqliteStore({ path });
+    try {
+      await assertUpgradedV1Rows(store);
+    } finally {
+      await store.close();
+    }
   });
 });
 

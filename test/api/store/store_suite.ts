@@ -5,13 +5,22 @@
  * @module
  */
 import assert from "node:assert/strict";
-import type { RunRecord, RunStatus, Store, StoredSeries } from "../../../api/store/types.ts";
+import type {
+  RunRecord,
+  RunStatus,
+  Store,
+  StoredSeries,
+  Viewer,
+} from "../../../api/store/types.ts";
+import { LOCAL_OWNER } from "../../../api/store/types.ts";
 import {
+  DuplicateOwnerError,
   DuplicateRunError,
   MissingInputError,
   RunNotFoundError,
   TerminalRunError,
 } from "../../../api/store/errors.ts";
+import { fieldStoreSuite } from "./field_store_suite.ts";
 
 /** Where an adapter's data lives for one test. */
 export interface StoreBacking {
@@ -138,6 +147,38 @@ function isPlain(o: unknown): boolean {
   return typeof o === "object" && o !== null && Object.getPrototypeOf(o) === Object.prototype;
 }
 
+/**
+ * Rows as the first schema (before owners) held them, in plain SQL both adapters run: one
+ * series without points and one run using it. After the upgrade both belong to the local
+ * owner, privately.
+ */
+export const V1_ROWS_SQL: readonly string[] = [
+  `INSERT INTO series (id, name, quantity, units, resolution, n, start_time, end_time, created_at)
+   VALUES ('${seriesId("v1")}', 'old series', 'other', '1', 'annual', 0, 2000.5, 2000.5,
+     '2025-01-01T00:00:00.000Z')`,
+  `INSERT INTO runs (id, kind, created_at, updated_at, status, progress, params,
+     service_version, algorithm_version)
+   VALUES ('${makeRun("v1").id}', 'smoothing', '2025-01-02T00:00:00.000Z',
+     '2025-01-02T00:00:00.000Z', 'succeeded', 1, '{}', '0.1.0', '1')`,
+  `INSERT INTO run_input_series (run_id, position, series_id)
+   VALUES ('${makeRun("v1").id}', 0, '${seriesId("v1")}')`,
+];
+
+/** Check a store upgraded from the first schema with {@link V1_ROWS_SQL} in it. */
+export async function assertUpgradedV1Rows(store: Store): Promise<void> {
+  const local: Viewer = { owner: LOCAL_OWNER, group: "default", admin: false };
+  const other: Viewer = { owner: "someone", group: "default", admin: false };
+  assert.deepEqual(await store.seriesHolding(seriesId("v1"), local), {
+    owner: LOCAL_OWNER,
+    visibility: "private",
+    created_at: "2025-01-01T00:00:00.000Z",
+  });
+  assert.equal(await store.seriesHolding(seriesId("v1"), other), null);
+  assert.equal((await store.runHolding(makeRun("v1").id, local))!.visibility, "private");
+  assert.equal(await store.deleteSeriesHolding(seriesId("v1"), LOCAL_OWNER), "in_use");
+  assert.equal((await store.getOwner(LOCAL_OWNER))!.role, "admin");
+}
+
 /** How the suite's tests are registered for one adapter. */
 export interface StoreSuiteOptions {
   /** Register the tests as ignored (e.g. no server on this machine); say why in `name`. */
@@ -151,6 +192,8 @@ export function storeSuite(
   options: StoreSuiteOptions = {},
 ): void {
   /** Run `body` on a fresh backing and store, closing and disposing afterwards. */
+  fieldStoreSuite(name, makeBacking, options);
+
   function withStore(
     title: string,
     body: (store: Store, backing: StoreBacking, t: Deno.TestContext) => Promise<void>,
@@ -206,8 +249,13 @@ export function storeSuite(
       assert.ok(Object.is(got.value[0], -0), "-0 became +0");
       assert.ok(sameBits(got.uncertainty, s.uncertainty), "uncertainty differs");
       const { time: _t, value: _v, uncertainty: _u, ...meta } = got;
-      assert.deepEqual(meta, put.series);
-      assert.deepEqual(await store.getSeriesMeta(s.id), put.series);
+      assert.deepEqual(
+        { ...meta, owner: LOCAL_OWNER, visibility: "private" },
+        put.series,
+        "a write without a holder is held privately by the local owner",
+      );
+      const { owner: _o, visibility: _vis, ...putMeta } = put.series;
+      assert.deepEqual(await store.getSeriesMeta(s.id), putMeta);
       assert.ok(isPlain(got) && isPlain(put.series), "rows must be plain objects");
       assert.equal(got.n, edge.length);
       assert.equal(got.version, "2");
@@ -664,5 +712,250 @@ export function storeSuite(
     } finally {
       await again.close();
     }
+  });
+
+  // --- Owners, keys and holdings -------------------------------------------------------------
+
+  const viewer = (owner: string | null, group: string | null = "g1"): Viewer => ({
+    owner,
+    group: owner === null ? null : group,
+    admin: false,
+  });
+  const ADMIN: Viewer = { owner: LOCAL_OWNER, group: "default", admin: true };
+  const addOwners = async (store: Store) => {
+    for (const [id, group] of [["alice", "g1"], ["bob", "g1"], ["carol", "g2"]]) {
+      await store.putOwner({ id, name: id, role: "writer", group, created_at: at(0) });
+    }
+  };
+
+  withStore("the local owner exists in a new store, and owners are unique", async (store) => {
+    const local = await store.getOwner(LOCAL_OWNER);
+    assert.ok(local);
+    assert.equal(local.role, "admin");
+    await addOwners(store);
+    assert.deepEqual((await store.listOwners()).map((o) => o.id).sort(), [
+      "alice",
+      "bob",
+      "carol",
+      LOCAL_OWNER,
+    ]);
+    await assert.rejects(
+      () =>
+        store.putOwner({ id: "alice", name: "x", role: "reader", group: "g", created_at: at(1) }),
+      DuplicateOwnerError,
+    );
+    assert.deepEqual(await store.getOwner("alice"), {
+      id: "alice",
+      name: "alice",
+      role: "writer",
+      group: "g1",
+      created_at: at(0),
+    });
+    assert.equal(await store.getOwner("nobody"), null);
+  });
+
+  withStore(
+    "API keys are stored by id with their hash, listed, and revoked once",
+    async (store) => {
+      await addOwners(store);
+      const key = {
+        id: "k1",
+        owner: "alice",
+        hash: "ab".repeat(32),
+        label: "laptop",
+        role: null,
+        created_at: at(1),
+        expires_at: at(1000),
+        revoked_at: null,
+      };
+      await store.putApiKey(key);
+      await store.putApiKey({ ...key, id: "k2", owner: "bob", role: "reader", expires_at: null });
+      await assert.rejects(() => store.putApiKey({ ...key, id: "k3", owner: "ghost" }), RangeError);
+      await assert.rejects(() => store.putApiKey(key), RangeError);
+      assert.deepEqual(await store.getApiKey("k1"), key);
+      assert.equal(await store.getApiKey("k9"), null);
+      assert.deepEqual((await store.listApiKeys()).map((k) => k.id), ["k1", "k2"]);
+      assert.deepEqual((await store.listApiKeys("bob")).map((k) => k.id), ["k2"]);
+      assert.equal(await store.revokeApiKey("k1", at(5)), true);
+      assert.equal(await store.revokeApiKey("k1", at(6)), false, "revoked twice");
+      assert.equal(await store.revokeApiKey("k9", at(6)), false);
+      assert.equal((await store.getApiKey("k1"))!.revoked_at, at(5));
+    },
+  );
+
+  withStore("the same content held by two owners is one series and two holdings", async (s) => {
+    await addOwners(s);
+    const x = makeSeries("shared-content", { createdAt: at(1) });
+    const a = await s.putSeries(x, { owner: "alice", visibility: "private" });
+    const b = await s.putSeries({ ...x, created_at: at(9) }, {
+      owner: "carol",
+      visibility: "private",
+    });
+    // Each owner is told its copy is new, with its own time: nothing says the other holds it.
+    assert.equal(a.created, true);
+    assert.equal(b.created, true);
+    assert.equal(a.series.id, b.series.id);
+    assert.equal(a.series.created_at, at(1));
+    assert.equal(b.series.created_at, at(9));
+    assert.equal(b.series.owner, "carol");
+    const again = await s.putSeries(x, { owner: "carol", visibility: "public" });
+    assert.equal(again.created, false);
+    assert.equal(again.series.visibility, "private", "a repeated upload changed the visibility");
+    assert.equal((await s.listSeries({ limit: 10, offset: 0 })).total, 1);
+    for (const who of ["alice", "carol"]) {
+      const page = await s.listSeries({ limit: 10, offset: 0, viewer: viewer(who, "gx") });
+      assert.equal(page.total, 1);
+      assert.equal(page.items[0].owner, who);
+    }
+    assert.equal((await s.listSeries({ limit: 10, offset: 0, viewer: viewer("bob") })).total, 0);
+  });
+
+  withStore("visibility decides who lists and sees a series", async (store) => {
+    await addOwners(store);
+    const priv = makeSeries("v-private", { createdAt: at(1) });
+    const grp = makeSeries("v-group", { createdAt: at(2) });
+    const pub = makeSeries("v-public", { createdAt: at(3) });
+    await store.putSeries(priv, { owner: "alice", visibility: "private" });
+    await store.putSeries(grp, { owner: "alice", visibility: "group" });
+    await store.putSeries(pub, { owner: "alice", visibility: "public" });
+    const ids = async (v: Viewer) =>
+      (await store.listSeries({ limit: 10, offset: 0, viewer: v })).items.map((m) => m.id);
+    assert.deepEqual(await ids(viewer("alice")), [pub.id, grp.id, priv.id]);
+    assert.deepEqual(await ids(viewer("bob")), [pub.id, grp.id], "same group");
+    assert.deepEqual(await ids(viewer("carol", "g2")), [pub.id], "other group");
+    assert.deepEqual(await ids(viewer(null)), [pub.id], "anonymous");
+    assert.deepEqual(await ids(ADMIN), [pub.id, grp.id, priv.id], "admin");
+    const page = await store.listSeries({ limit: 1, offset: 1, viewer: viewer("bob") });
+    assert.deepEqual([page.total, page.items.map((m) => m.id)], [2, [grp.id]]);
+    const q = await store.listSeries({
+      quantity: "other",
+      limit: 10,
+      offset: 0,
+      viewer: viewer("bob"),
+    });
+    assert.equal(q.total, 0);
+    assert.equal(await store.seriesHolding(priv.id, viewer("bob")), null);
+    assert.equal(await store.seriesHolding(priv.id, viewer(null)), null);
+    assert.deepEqual(await store.seriesHolding(grp.id, viewer("bob")), {
+      owner: "alice",
+      visibility: "group",
+      created_at: at(2),
+    });
+    assert.equal(await store.seriesHolding(grp.id, viewer("carol", "g2")), null);
+    assert.ok(await store.seriesHolding(priv.id, ADMIN));
+    // The viewer's own holding is the one it sees, even beside a wider one.
+    await store.putSeries({ ...pub, created_at: at(7) }, { owner: "bob", visibility: "private" });
+    assert.deepEqual(await store.seriesHolding(pub.id, viewer("bob")), {
+      owner: "bob",
+      visibility: "private",
+      created_at: at(7),
+    });
+    assert.equal(await store.setSeriesVisibility(priv.id, "alice", "group"), true);
+    assert.equal(await store.setSeriesVisibility(priv.id, "bob", "public"), false, "not bob's");
+    assert.ok(await store.seriesHolding(priv.id, viewer("bob")));
+    await assert.rejects(() => store.setSeriesVisibility(priv.id, "alice", "world" as never));
+  });
+
+  withStore(
+    "deleteSeriesHolding() removes one holding; the content goes with the last",
+    async (s) => {
+      await addOwners(s);
+      const x = makeSeries("two-holders");
+      await s.putSeries(x, { owner: "alice", visibility: "private" });
+      await s.putSeries(x, { owner: "bob", visibility: "private" });
+      const r = makeRun("bob-uses", { inputSeries: [x.id] });
+      await s.putRun(r, { owner: "bob", visibility: "private" });
+      assert.deepEqual(await s.seriesUsage(x.id, "bob"), { own: [r.id], others: 0 });
+      assert.deepEqual(await s.seriesUsage(x.id, "alice"), { own: [], others: 1 });
+      assert.equal(await s.deleteSeriesHolding(x.id, "carol"), "not_found");
+      assert.equal(await s.deleteSeriesHolding(x.id, "bob"), "in_use", "bob's own run uses it");
+      // Alice's delete succeeds without telling her that bob holds or uses the same content.
+      assert.equal(await s.deleteSeriesHolding(x.id, "alice"), "deleted");
+      assert.equal(await s.seriesHolding(x.id, viewer("alice")), null);
+      assert.ok(await s.getSeries(x.id), "bob's copy went with alice's holding");
+      assert.equal(await s.deleteSeriesHolding(x.id, "alice"), "not_found");
+
+      const y = makeSeries("one-holder");
+      await s.putSeries(y, { owner: "alice", visibility: "group" });
+      const used = makeRun("bob-uses-shared", { inputSeries: [y.id] });
+      await s.putRun(used, { owner: "bob", visibility: "private" });
+      assert.equal(await s.deleteSeriesHolding(y.id, "alice"), "in_use", "a run still needs it");
+      const z = makeSeries("unused");
+      await s.putSeries(z, { owner: "alice", visibility: "private" });
+      assert.equal(await s.deleteSeriesHolding(z.id, "alice"), "deleted");
+      assert.equal(await s.getSeries(z.id), null, "the last holding took the content along");
+      assert.equal((await s.putSeries(z, { owner: "alice", visibility: "private" })).created, true);
+    },
+  );
+
+  withStore("deleteSeries() removes every holding with the content", async (store) => {
+    await addOwners(store);
+    const x = makeSeries("admin-delete");
+    await store.putSeries(x, { owner: "alice", visibility: "private" });
+    await store.putSeries(x, { owner: "bob", visibility: "public" });
+    assert.equal(await store.deleteSeries(x.id), "deleted");
+    assert.equal(await store.seriesHolding(x.id, ADMIN), null);
+    assert.equal((await store.listSeries({ limit: 5, offset: 0, viewer: ADMIN })).total, 0);
+  });
+
+  withStore("runs are listed and seen by visibility, and may gain holders", async (store) => {
+    await addOwners(store);
+    const x = makeSeries("run-input");
+    await store.putSeries(x, { owner: "alice", visibility: "group" });
+    const mine = makeRun("alice-private", { inputSeries: [x.id], createdAt: at(1) });
+    const shared = makeRun("alice-group", { inputSeries: [x.id], createdAt: at(2) });
+    const cited = makeRun("alice-public", { createdAt: at(3) });
+    await store.putRun(mine, { owner: "alice", visibility: "private" });
+    await store.putRun(shared, { owner: "alice", visibility: "group" });
+    await store.putRun(cited, { owner: "alice", visibility: "public" });
+    assert.deepEqual(await store.getRun(mine.id), mine, "holdings changed the record");
+    const ids = async (v: Viewer, kind?: string) =>
+      (await store.listRuns({ kind, limit: 10, offset: 0, viewer: v })).items.map((r) => r.id);
+    assert.deepEqual(await ids(viewer("alice")), [cited.id, shared.id, mine.id]);
+    assert.deepEqual(await ids(viewer("bob")), [cited.id, shared.id]);
+    assert.deepEqual(await ids(viewer("carol", "g2")), [cited.id]);
+    assert.deepEqual(await ids(viewer(null)), [cited.id]);
+    assert.deepEqual(await ids(viewer("bob"), "none"), []);
+    const page = await store.listRuns({ limit: 10, offset: 0, viewer: viewer("bob") });
+    assert.equal(page.total, 2);
+    assert.equal(page.items[1].owner, "alice");
+    assert.equal(page.items[1].visibility, "group");
+    assert.deepEqual(page.items[1].input_series, [x.id]);
+    assert.equal(await store.runHolding(mine.id, viewer("bob")), null);
+    assert.equal((await store.runHolding(mine.id, ADMIN))!.owner, "alice");
+    assert.deepEqual(await store.runsUsingSeries(x.id, viewer("bob")), [shared.id]);
+    assert.deepEqual((await store.runsUsingSeries(x.id)).sort(), [mine.id, shared.id].sort());
+    assert.equal(await store.setRunVisibility(mine.id, "bob", "public"), false);
+    assert.equal(await store.setRunVisibility(mine.id, "alice", "public"), true);
+    assert.ok(await store.runHolding(mine.id, viewer(null)));
+    assert.equal(
+      await store.addRunHolding(cited.id, { owner: "carol", visibility: "private" }),
+      true,
+    );
+    assert.equal(
+      await store.addRunHolding(cited.id, { owner: "carol", visibility: "public" }),
+      false,
+    );
+    assert.equal((await store.runHolding(cited.id, viewer("carol", "g2")))!.owner, "carol");
+    await assert.rejects(
+      () => store.addRunHolding(makeRun("ghost-run").id, { owner: "carol", visibility: "private" }),
+      RunNotFoundError,
+    );
+  });
+
+  withStore("storedBytes() counts the points and run texts an owner holds", async (store) => {
+    await addOwners(store);
+    assert.equal(await store.storedBytes("alice"), 0);
+    const x = makeSeries("bytes", { n: 100 });
+    await store.putSeries(x, { owner: "alice", visibility: "private" });
+    assert.equal(await store.storedBytes("alice"), 2400);
+    await store.putSeries(x, { owner: "bob", visibility: "private" });
+    assert.equal(await store.storedBytes("bob"), 2400, "shared content counts for each holder");
+    const r = makeRun("bytes-run", { inputSeries: [x.id] });
+    await store.putRun(r, { owner: "alice", visibility: "private" });
+    const runBytes = new TextEncoder().encode(JSON.stringify(r.params)).length +
+      new TextEncoder().encode(JSON.stringify(r.result)).length;
+    assert.equal(await store.storedBytes("alice"), 2400 + runBytes);
+    assert.equal(await store.storedBytes("carol"), 0);
   });
 }

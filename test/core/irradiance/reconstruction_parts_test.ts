@@ -75,6 +75,76 @@ Deno.test("reconstructFromProxies() back-extends with wider bands and leaves gap
   );
 });
 
+Deno.test("reconstructFromProxies() two-term path equals the formula cell by cell", () => {
+  // Var = xᵀΣx + Σ_k (β_k² + Σ_kk)·s_k²·v_k + σ²·f(m, ρ)/m, with the same rules for gaps, for
+  // 1 (general loop) and 2 terms (written-out loop) and days of varying length
+  const n = 400;
+  const days = Float64Array.from({ length: n }, (_, i) => [1, 1, 30, 31, 365][i % 5]);
+  const f = Float64Array.from({ length: n }, (_, i) => (i % 7 === 3 ? NaN : 0.15 + 1e-3 * i));
+  const psi = Float64Array.from({ length: n }, (_, i) => (i < 100 ? NaN : 1e-5 * (i % 13)));
+  const mf = Float64Array.from({ length: n }, (_, i) => (i % 11 === 0 ? NaN : 0.151 + 1e-3 * i));
+  const mp = Float64Array.from({ length: n }, (_, i) => 2e-5 * (i % 5));
+  const pv = Float64Array.from({ length: n }, (_, i) => 1e-9 * (1 + (i % 3)));
+  const model = {
+    coefficients: [1360.8, 135, 0.96],
+    covariance: [[1e-4, 2e-5, -1e-5], [2e-5, 4, 0.1], [-1e-5, 0.1, 0.02]],
+    terms: [
+      { role: "facular" as const, quietLevel: 0.15 },
+      { role: "sunspot_darkening" as const, quietLevel: 0 },
+    ],
+    psiReference: 1360.8,
+    residualSd: 0.15,
+    rho: 0.7,
+    stepDays: 1,
+    backExtension: { residualSd: 0.3, rho: 0.9, stepDays: 1 },
+  };
+  const r = reconstructFromProxies(model, {
+    days,
+    direct: [f, psi],
+    mapped: [{ value: mf, paramVariance: pv }, { value: mp, paramVariance: pv }],
+  }, 2);
+  const scale = [1, -1360.8], off = [0.15, 0];
+  const S = model.covariance, b = model.coefficients;
+  for (let i = 0; i < n; i++) {
+    const x = [1], vars = [];
+    let mapped = false, ok = true;
+    for (const [k, [d, m]] of [[f, mf], [psi, mp]].entries()) {
+      let v = d[i];
+      if (Number.isNaN(v)) {
+        if (Number.isNaN(m[i])) ok = false;
+        v = m[i];
+        mapped = true;
+        vars.push((b[k + 1] ** 2 + S[k + 1][k + 1]) * scale[k] ** 2 * pv[i]);
+      }
+      x.push(scale[k] * (v - off[k]));
+    }
+    if (!ok) {
+      assert.equal(r.source[i], 0);
+      assert.ok(Number.isNaN(r.value[i]) && Number.isNaN(r.sd[i]));
+      continue;
+    }
+    let q = 0;
+    for (let a = 0; a < 3; a++) for (let c = 0; c < 3; c++) q += x[a] * S[a][c] * x[c];
+    const [sdr, rho] = mapped ? [0.3, 0.9] : [0.15, 0.7];
+    const rv = sdr ** 2 * ar1MeanVarianceFactor(days[i], rho) / days[i];
+    const sd = Math.sqrt(q + vars.reduce((s, v) => s + v, 0) + rv);
+    const y = b[0] + b[1] * x[1] + b[2] * x[2];
+    assert.equal(r.source[i], mapped ? 2 : 1);
+    assert.ok(Math.abs(r.value[i] - y) < 1e-10, `value ${i}`);
+    assert.ok(Math.abs(r.sd[i] - sd) < 1e-12 * sd, `sd ${i}`);
+    assert.ok(Math.abs(r.upper[i] - (y + 2 * sd)) < 1e-10);
+  }
+  // without a back-extension model, mapped cells stay empty
+  const direct = reconstructFromProxies({ ...model, backExtension: null }, {
+    days,
+    direct: [f, psi],
+    mapped: [{ value: mf, paramVariance: pv }, { value: mp, paramVariance: pv }],
+  }, 2);
+  assert.equal(direct.source[0], 0);
+  assert.equal(direct.source[101], 0); // facular value mapped (101 mod 7 = 3)
+  assert.equal(direct.source[102], 1);
+});
+
 Deno.test("secularBackground() refuses periods without data and equal means", () => {
   const t = Array.from({ length: 100 }, (_, i) => 1900 + i + 0.5);
   const r = t.map(() => 50);

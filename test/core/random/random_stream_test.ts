@@ -25,3 +25,17 @@ Deno.test("randomStream() rejects bad seeds", () => {
   assert.throws(() => randomStream(1.5), RangeError);
   assert.throws(() => randomStream(1, 2 ** 32), RangeError);
 });
+
+Deno.test("randomStream().fill() gives the bits of as many uniform() calls", () => {
+  for (const [seed, index] of [[0, 0], [1, 7], [4294967295, 4294967295], [123456, 99]]) {
+    const a = randomStream(seed, index), b = randomStream(seed, index);
+    const out = new Float64Array(1000);
+    a.fill(out, 3);
+    a.fill(out.subarray(3), 997);
+    for (let i = 0; i < 1000; i++) assert.equal(out[i], b.uniform(), `${seed}/${index}: ${i}`);
+    // the stream goes on where fill stopped, for every kind of draw
+    assert.equal(a.uniform(), b.uniform());
+    assert.equal(a.normal(), b.normal());
+    assert.equal(a.int(0, 1000), b.int(0, 1000));
+  }
+});

@@ -1,0 +1,40 @@
+/**
+ * Oversized request heads get an RFC 9457 problem: 431 Request Header Fields Too Large
+ * (RFC 6585 §5) when the request line and headers together pass {@link MAX_HEAD_BYTES}.
+ *
+ * `Deno.serve` itself answers a head over 64 KiB with a bare `400` and no body before any
+ * application code runs, and has no setting for it; the bound here is lower, so every head
+ * between it and Deno's limit gets the problem document (measured: a 65,487-byte head passes
+ * Deno, 65,503 does not). Serving with `node:http` instead would give a hook for any size but
+ * measured 3.7x fewer requests per second on this machine (wrk, hello world: 35,600 against
+ * 132,700 req/s), so the service keeps `Deno.serve`.
+ *
+ * @module
+ */
+import type { MiddlewareHandler } from "hono";
+import { ProblemError } from "../problems.ts";
+
+/** Largest request head (request line plus header lines) answered normally, bytes. */
+export const MAX_HEAD_BYTES = 32 * 1024;
+
+/** Size of a request head as sent: request line, `name: value` lines, line ends. */
+export function headBytes(method: string, url: string, headers: Headers): number {
+  const u = new URL(url);
+  let n = method.length + u.pathname.length + u.search.length + 12;
+  for (const [k, v] of headers) n += k.length + v.length + 4;
+  return n + 2;
+}
+
+/** Refuse a request whose head is over {@link MAX_HEAD_BYTES} with a 431 problem. */
+export function headSizeLimit(max = MAX_HEAD_BYTES): MiddlewareHandler {
+  return async (c, next) => {
+    const n = headBytes(c.req.method, c.req.url, c.req.raw.headers);
+    if (n > max) {
+      throw new ProblemError(
+        "header-too-large",
+        `The request line and headers take ${n} bytes; at most ${max} are accepted`,
+      );
+    }
+    await next();
+  };
+}

@@ -1,0 +1,30 @@
+/**
+ * The series writer worker (see api/store/sqlite_writer.ts): `{ type: "open", path }`, then
+ * `{ type: "put", id, series, holder }` → `{ id, ok, value | error }`.
+ *
+ * @module
+ */
+/// <reference lib="deno.worker" />
+import { openSqliteStore, type SqliteStore } from "./sqlite.ts";
+
+let store: Promise<SqliteStore> | null = null;
+
+self.onmessage = async (e: MessageEvent) => {
+  const m = e.data;
+  if (m.type === "open") {
+    store = openSqliteStore({ path: m.path, busyTimeoutMs: m.busyTimeoutMs, offload: false });
+    return;
+  }
+  if (m.type === "put") {
+    try {
+      const value = await (await store!).putSeries(m.series, m.holder);
+      self.postMessage({ id: m.id, ok: true, value });
+    } catch (err) {
+      const error = {
+        name: (err as Error)?.name ?? "Error",
+        message: String((err as Error)?.message ?? err),
+      };
+      self.postMessage({ id: m.id, ok: false, error });
+    }
+  }
+};

@@ -1,0 +1,63 @@
+/**
+ * Side-by-side medians of a 150 MB NetCDF-4 field upload: sunlag's `POST /v1/fields` into a
+ * SQLite file store (field_upload_run.ts) against xarray's `open_dataset(...).load()` of the same
+ * file (field_upload_xarray.py), each in its own process, in interleaved rounds; wall and CPU
+ * time (the machine is shared: CPU time is the steadier figure) and peak resident memory. The file is written once by field_upload_make.py (Debian python3-netcdf4).
+ *
+ *   deno run -A test/bench/field_upload_medians.ts [rounds]
+ *
+ * @module
+ */
+import { median as d3Median } from "d3-array";
+
+const ROUNDS = Number(Deno.args[0] ?? 3);
+const DIR = new URL("../output/field_upload/", import.meta.url).pathname;
+const FILE = `${DIR}field150.nc`;
+const here = (f: string) => new URL(`./${f}`, import.meta.url).pathname;
+const median = (xs: number[]) => d3Median(xs) ?? NaN;
+
+type Row = { seconds: number; cpuSeconds: number; peakBytes: number };
+
+function run(cmd: string, args: string[]): Row {
+  const out = new Deno.Command(cmd, { args, stdout: "piped", stderr: "piped" }).outputSync();
+  if (!out.success) throw new Error(`${cmd}: ${new TextDecoder().decode(out.stderr)}`);
+  const lines = new TextDecoder().decode(out.stdout).trim().split("\n");
+  return JSON.parse(lines[lines.length - 1]);
+}
+
+await Deno.mkdir(DIR, { recursive: true });
+try {
+  await Deno.stat(FILE);
+} catch {
+  run("/usr/bin/python3", [here("field_upload_make.py"), FILE]);
+}
+const contenders: [string, () => Row][] = [
+  [
+    "sunlag POST /v1/fields",
+    () => run(Deno.execPath(), ["run", "-A", here("field_upload_run.ts"), FILE]),
+  ],
+  [
+    "xarray open_dataset().load()",
+    () => run("/usr/bin/python3", [here("field_upload_xarray.py"), FILE]),
+  ],
+];
+const rows = new Map(contenders.map(([n]) => [n, [] as Row[]]));
+const load0 = Deno.loadavg()[0];
+for (let r = 0; r < ROUNDS; r++) for (const [n, f] of contenders) rows.get(n)!.push(f());
+const [a, b] = contenders.map(([n]) => rows.get(n)!);
+console.log(JSON.stringify(
+  {
+    rounds: ROUNDS,
+    fileMiB: (await Deno.stat(FILE)).size / 2 ** 20,
+    loadAverage: [load0, Deno.loadavg()[0]],
+    contenders: Object.fromEntries([...rows].map(([n, rs]) => [n, {
+      medianSeconds: median(rs.map((x) => x.seconds)),
+      medianCpuSeconds: median(rs.map((x) => x.cpuSeconds)),
+      peakMiB: Math.max(...rs.map((x) => x.peakBytes)) / 2 ** 20,
+    }])),
+    ratioSunlagToXarray: median(a.map((x, i) => x.seconds / b[i].seconds)),
+    cpuRatioSunlagToXarray: median(a.map((x, i) => x.cpuSeconds / b[i].cpuSeconds)),
+  },
+  null,
+  2,
+));
