@@ -16,6 +16,11 @@
  * Estimates are one-core seconds: a run whose chunks spread over W workers finishes up to W
  * times sooner, which is still on the safe (asynchronous) side of the decision.
  *
+ * Beside its own cost model, a run built on other runs reads their warnings and cautions, and
+ * those of the runs they were built on (api/runs/inherit.ts): stored results parsed again,
+ * about {@link LINEAGE_SECONDS} per input run on the reference machine (measured on the
+ * demo's chains: a forcing run over a reconstruction, a model and a darkening run).
+ *
  * @module
  */
 import { InputProblem, type RunKind } from "./kind.ts";
@@ -24,6 +29,9 @@ import { lombScargle } from "../../core/spectral/lomb_scargle.ts";
 
 /** CPU seconds the reference workload takes on the reference machine. */
 export const REFERENCE_WORKLOAD_SECONDS = 0.022;
+
+/** Seconds to read the lineage of one input run (its stored ancestors' notes). */
+export const LINEAGE_SECONDS = 0.01;
 
 /** Bounds of the machine-speed factor. */
 const FACTOR_RANGE = [0.25, 20] as const;
@@ -135,7 +143,8 @@ export function estimateRunSeconds(
   if (!kind.estimateSeconds) return 0;
   let seconds: number;
   try {
-    seconds = kind.estimateSeconds(params as never, loadedInputs(inputs));
+    seconds = kind.estimateSeconds(params as never, loadedInputs(inputs)) +
+      LINEAGE_SECONDS * Object.keys(inputs.runs).length;
   } catch (e) {
     // a bad input gets its problem from the computation; anything else is a defect to log
     if (!(e instanceof InputProblem)) {
