@@ -17,7 +17,7 @@ import { WorkerPool } from "../../api/workers/pool.ts";
 import { loadDemo } from "../../api/demo.ts";
 import { DEMO } from "./demo_inputs.ts";
 
-const { SSN, TSIM, TEMP, ENSO, AOD } = DEMO;
+const { SSN, TSIM, TEMP, ENSO, AOD, FIELD } = DEMO;
 
 /** CPU seconds of this process so far (every thread). */
 function cpu(): number {
@@ -55,6 +55,13 @@ const cycles = await post("/v1/cycles", { series: SSN });
 /** A regressor of the attribution search: lags 0..300 months. */
 const wide = (name: string, series: string) => ({ name, series, min_lag: 0, max_lag: 300 });
 
+/** Monthly dates every `months` months from `start` (a decimal year) for `count` dates. */
+const everyMonths = (start: number, months: number, count: number) =>
+  Array.from({ length: count }, (_, k) => {
+    const m = Math.round(start * 12) + k * months;
+    return `${Math.floor(m / 12)}-${String((m % 12) + 1).padStart(2, "0")}`;
+  });
+
 /** Requests that keep two workers busy for far longer than the test waits. */
 const HEAVY: Record<string, [string, unknown]> = {
   "lag-correlations": ["/v1/lag-correlations", {
@@ -89,6 +96,19 @@ const HEAVY: Record<string, [string, unknown]> = {
     before_years: 20,
     after_years: 20,
     bootstrap: 100,
+    random_sets: 100_000,
+  }],
+  "solar-signal-maps": ["/v1/solar-signal-maps", {
+    field: FIELD,
+    solar: TSIM,
+    max_lag: 120,
+    surrogates: 100_000,
+  }],
+  "field-composites": ["/v1/field-composites", {
+    field: FIELD,
+    epoch_dates: everyMonths(1962, 6, 100),
+    contrast_dates: everyMonths(1962.25, 6, 100),
+    to_years: 1,
     random_sets: 100_000,
   }],
 };

@@ -7,6 +7,7 @@
  */
 import type { TestService } from "./helpers.ts";
 import { DEMO } from "./demo_inputs.ts";
+import { gridNetcdf } from "./fields/grid_file.ts";
 import { randomStream } from "../../core/random/mod.ts";
 import { RUN_KINDS } from "../../api/analyses/registry.ts";
 import type { RunKind } from "../../api/runs/kind.ts";
@@ -17,7 +18,7 @@ import {
   threadCpuSeconds,
 } from "../../api/runs/estimate.ts";
 
-const { SSN, AREA, MG, TSI, TSIM, TEMP, ENSO, AOD } = DEMO;
+const { SSN, AREA, MG, TSI, TSIM, TEMP, ENSO, AOD, FIELD } = DEMO;
 
 /** One request: the analysis' path, a label, and its body (from the ids of earlier runs). */
 export interface EstimateCase {
@@ -74,8 +75,46 @@ export function inventedMonthly(n: number, seed = 6) {
   };
 }
 
+/**
+ * An invented monthly field from 1960 on a grid of `step` degrees (cell centres), stored
+ * through `POST /v1/fields`: a planted 11-year cycle, a trend and noise; with `land`, only
+ * the cells of a band of longitudes have values (the rest missing, as a land-only field).
+ * Returns its id.
+ */
+export async function inventedField(
+  svc: TestService,
+  step: number,
+  months: number,
+  land = false,
+): Promise<string> {
+  const lat = Array.from({ length: 180 / step }, (_, i) => -90 + step / 2 + i * step);
+  const lon = Array.from({ length: 360 / step }, (_, i) => step / 2 + i * step);
+  const st = randomStream(17, step);
+  const cells = lat.length * lon.length;
+  const values = new Float32Array(months * cells);
+  for (let t = 0; t < months; t++) {
+    const cycle = Math.sin((2 * Math.PI * t) / 132);
+    for (let c = 0; c < cells; c++) {
+      const inLand = lon[c % lon.length] < 120;
+      values[t * cells + c] = land && !inLand
+        ? NaN
+        : 288 + 0.1 * cycle * Math.cos((c % 37) / 6) + 0.001 * t + 0.5 * st.normal();
+    }
+  }
+  const res = await svc.app.request("/v1/fields?quantity=temperature", {
+    method: "POST",
+    headers: { "content-type": "application/x-netcdf" },
+    body: gridNetcdf({ startYear: 1960, nTime: months, lat, lon, values }),
+  });
+  const body = await res.json();
+  if (res.status !== 201) throw new Error(`invented field: ${JSON.stringify(body)}`);
+  return body.field.id as string;
+}
+
 /** The cases, in dependency order (a model before the reconstructions that use it). */
 export async function estimateCases(svc: TestService): Promise<EstimateCase[]> {
+  const field5 = await inventedField(svc, 5, 600);
+  const land4 = await inventedField(svc, 4, 480, true);
   const ssn = (await svc.store.getSeries(SSN))!;
   const half = Math.floor(ssn.n / 2);
   const attribution = (solarLags: [number, number], volcLags: [number, number]) => ({
@@ -328,6 +367,50 @@ export async function estimateCases(svc: TestService): Promise<EstimateCase[]> {
       body: (r) => ({ series: TEMP, cycle_run: r.cycles, bootstrap: 2000, random_sets: 2000 }),
       ci: true,
     },
+    // gridded fields
+    {
+      path: "/v1/field-area-means",
+      label: "demo field, globe",
+      body: () => ({ field: FIELD }),
+      ci: true,
+    },
+    {
+      path: "/v1/field-area-means",
+      label: "5° field, 600 months, band",
+      body: () => ({ field: field5, region: { kind: "band", south: -30, north: 30 } }),
+    },
+    {
+      path: "/v1/solar-signal-maps",
+      label: "demo field, 200 surrogates",
+      body: () => ({ field: FIELD, solar: TSIM, surrogates: 200 }),
+      ci: true,
+    },
+    {
+      path: "/v1/solar-signal-maps",
+      label: "demo field, no surrogates",
+      body: () => ({ field: FIELD, solar: TSIM, surrogates: 0 }),
+    },
+    {
+      path: "/v1/solar-signal-maps",
+      label: "5° field, 600 months, 100 surrogates",
+      body: () => ({ field: field5, solar: TSIM, surrogates: 100 }),
+    },
+    {
+      path: "/v1/field-composites",
+      label: "demo field, 5 + 5 dates, 2,000 sets",
+      body: () => ({
+        field: FIELD,
+        epoch_dates: ["1969-03", "1980-01", "1991-01", "2001-06", "2014-04"],
+        contrast_dates: ["1964-10", "1976-03", "1986-09", "1996-08", "2008-12"],
+        random_sets: 2000,
+      }),
+      ci: true,
+    },
+    {
+      path: "/v1/field-composites",
+      label: "5° field, cycle table, 1,000 sets",
+      body: (r) => ({ field: field5, cycle_run: r.cycles, random_sets: 1000 }),
+    },
     // further cases for the calibration script (sizes and options the models were not fitted on)
     {
       path: "/v1/spectra",
@@ -427,6 +510,45 @@ export async function estimateCases(svc: TestService): Promise<EstimateCase[]> {
       path: "/v1/resampling",
       label: "monthly SSN → annual",
       body: () => ({ series: SSN, to: "annual" }),
+    },
+    {
+      path: "/v1/field-area-means",
+      label: "4° land field, 480 months, box",
+      body: () => ({
+        field: land4,
+        region: { kind: "box", south: 0, north: 60, west: 0, east: 90 },
+      }),
+    },
+    {
+      path: "/v1/solar-signal-maps",
+      label: "4° land field, lags 0–12, ENSO control, 300",
+      body: () => ({
+        field: land4,
+        solar: TSIM,
+        max_lag: 12,
+        controls: [{ name: "enso", series: ENSO }],
+        surrogates: 300,
+      }),
+    },
+    {
+      path: "/v1/solar-signal-maps",
+      label: "demo field, high-pass 30 yr, 200",
+      body: () => ({
+        field: FIELD,
+        solar: TSIM,
+        preprocess: "high_pass",
+        high_pass_cutoff_years: 30,
+        surrogates: 200,
+      }),
+    },
+    {
+      path: "/v1/field-composites",
+      label: "4° land field, 4 dates, 5,000 sets",
+      body: () => ({
+        field: land4,
+        epoch_dates: ["1969-03", "1980-01", "1991-01", "2001-06"],
+        random_sets: 5000,
+      }),
     },
   ];
 }

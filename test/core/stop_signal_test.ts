@@ -4,16 +4,27 @@
  */
 import assert from "node:assert/strict";
 import {
+  areaWeightedMean,
   attributionRegression,
+  fieldAreaWeights,
+  fieldCompositeChunk,
+  fieldSignificanceChunk,
+  fieldSignificanceTasks,
   fitCycleSequence,
   forecastCycle,
   hathawayShape,
   hindcastCaseTask,
+  lagSearchSurrogateChunk,
   lombScargle,
   lombScargleChunk,
   monteCarloMaximaChunk,
+  planFieldComposite,
+  planFieldSignificance,
+  planLagSearchTest,
   planSurrogateLagTest,
+  prepareFieldAnalysis,
   randomStream,
+  solarSignalMap,
   StoppedError,
   superposedEpoch,
   surrogateLagChunk,
@@ -153,4 +164,95 @@ Deno.test("superposedEpoch() stops before its next bootstrap replicate or random
     superposedEpoch(x, epochs, { ...options, shouldStop: () => false }),
     superposedEpoch(x, epochs, options),
   );
+});
+
+Deno.test("lagSearchSurrogateChunk() stops before its next surrogate and inside its lag search", () => {
+  const m = 240;
+  const x = Float64Array.from({ length: m }, (_, i) => Math.sin(i / 9) + 0.2 * Math.cos(i * 1.7));
+  const y = Float64Array.from({ length: m }, (_, i) => (i >= 3 ? x[i - 3] : 0) + Math.cos(i * 1.3));
+  const regs = [{ name: "x", values: x, minLag: 0, maxLag: 12 }];
+  const plan = planLagSearchTest(y, regs, 0, { errors: "ols_hac", seed: 2 });
+  // each surrogate polls once, then once per fit of its 13 lags
+  const probe = stopAfter(20);
+  assert.throws(() => lagSearchSurrogateChunk({ plan, start: 0, end: 50 }, probe), StoppedError);
+  assert.equal(probe.calls, 21);
+  const part = { plan, start: 0, end: 3 };
+  assert.deepEqual(
+    lagSearchSurrogateChunk(part, { shouldStop: () => false }),
+    lagSearchSurrogateChunk(part),
+  );
+});
+
+/** An invented field of `cells` cells on one latitude row, with a lagged response to x. */
+function fieldOf(cells: number, n: number) {
+  const r = randomStream(8);
+  const x = Float64Array.from({ length: n }, (_, t) => Math.sin((2 * Math.PI * t) / 132));
+  const values = new Float32Array(n * cells);
+  for (let t = 0; t < n; t++) {
+    for (let c = 0; c < cells; c++) {
+      values[t * cells + c] = (c % 3 === 0 && t >= 2 ? 0.3 * x[t - 2] : 0) + r.normal();
+    }
+  }
+  const lon = Float64Array.from({ length: cells }, (_, c) => (360 * c) / cells);
+  return { x, field: { values, nTime: n, lat: Float64Array.of(10), lon } };
+}
+
+Deno.test("prepareFieldAnalysis() and solarSignalMap() stop between blocks of cells", () => {
+  const { x, field } = fieldOf(200, 240);
+  const window = { minLag: 0, maxLag: 6 };
+  const early = stopAfter(2);
+  assert.throws(() => prepareFieldAnalysis(field, x, { ...window, ...early }), StoppedError);
+  assert.equal(early.calls, 3, "polled every 64 cells");
+  const inputs = prepareFieldAnalysis(field, x, window);
+  assert.deepEqual(
+    prepareFieldAnalysis(field, x, { ...window, shouldStop: () => false }),
+    inputs,
+  );
+  const probe = stopAfter(5);
+  assert.throws(() => solarSignalMap(inputs, probe), StoppedError);
+  assert.equal(probe.calls, 6, "polled every 16 cells");
+  assert.deepEqual(solarSignalMap(inputs, { shouldStop: () => false }), solarSignalMap(inputs));
+});
+
+Deno.test("fieldSignificanceChunk() stops before its next block of surrogates", () => {
+  const { x, field } = fieldOf(30, 240);
+  const inputs = prepareFieldAnalysis(field, x, { minLag: 0, maxLag: 6 });
+  const plan = planFieldSignificance(inputs, solarSignalMap(inputs), fieldAreaWeights(field), {
+    seed: 1,
+    surrogates: 100,
+  });
+  const [task] = fieldSignificanceTasks(plan, { surrogatesPerTask: 100 });
+  const probe = stopAfter(3);
+  assert.throws(() => fieldSignificanceChunk(task, undefined, probe), StoppedError);
+  assert.equal(probe.calls, 4, "polled every 8 surrogates");
+  const part = { ...task, surrogateEnd: 20 };
+  assert.deepEqual(
+    fieldSignificanceChunk(part, undefined, { shouldStop: () => false }),
+    fieldSignificanceChunk(part),
+  );
+});
+
+Deno.test("planFieldComposite() and fieldCompositeChunk() stop between cells and random sets", () => {
+  const { field } = fieldOf(150, 240);
+  const weights = fieldAreaWeights(field);
+  const options = { epochs: [20, 80, 140, 200], from: 0, to: 5, replicates: 200 };
+  const early = stopAfter(3);
+  assert.throws(() => planFieldComposite(field, weights, { ...options, ...early }), StoppedError);
+  const plan = planFieldComposite(field, weights, options);
+  const input = { plan, replicateStart: 0, replicateEnd: 200, cellStart: 0, cellEnd: 150 };
+  const probe = stopAfter(50);
+  assert.throws(() => fieldCompositeChunk(input, probe), StoppedError);
+  assert.equal(probe.calls, 51, "polled before every random set");
+  assert.deepEqual(
+    fieldCompositeChunk(input, { shouldStop: () => false }),
+    fieldCompositeChunk(input),
+  );
+});
+
+Deno.test("areaWeightedMean() stops between blocks of time steps", () => {
+  const { field } = fieldOf(10, 300);
+  const probe = stopAfter(2);
+  assert.throws(() => areaWeightedMean(field, probe), StoppedError);
+  assert.equal(probe.calls, 3, "polled every 64 steps");
+  assert.deepEqual(areaWeightedMean(field, { shouldStop: () => false }), areaWeightedMean(field));
 });

@@ -46,3 +46,25 @@ export function runOutputPoints(inputs: EstimateInputs, runId: unknown, output: 
     | undefined;
   return outputs?.[output]?.time?.length ?? 0;
 }
+
+/** The size of a loaded gridded field (the time steps loaded for the run). */
+export interface FieldSize {
+  /** Time steps loaded. */
+  steps: number;
+  /** Grid cells (latitudes × longitudes). */
+  cells: number;
+  /** Cells with a value at the first loaded step (e.g. the ocean of a sea-surface field). */
+  withData: number;
+}
+
+/** The size of the field a reference names, or null when there is none. */
+export function fieldSizeOf(inputs: EstimateInputs, ref: unknown): FieldSize | null {
+  if (typeof ref !== "string") return null;
+  const f = inputs.field(ref);
+  const cells = f.lat.length * f.lon.length;
+  let withData = 0;
+  for (let c = 0; c < Math.min(cells, f.values.length); c++) {
+    if (Number.isFinite(f.values[c])) withData++;
+  }
+  return { steps: f.time.length, cells, withData };
+}
