@@ -70,8 +70,15 @@ export interface ComputeExecutor {
     inputs: RunInputs,
     hooks: ComputeHooks,
   ): Promise<RunResult>;
-  /** Map a named task over inputs (used by in-thread compute too). */
-  parallel<I, O>(task: string, inputs: I[]): Promise<O[]>;
+  /**
+   * Map a named task over inputs (used by in-thread compute too). With `isCancelled`, the
+   * tasks' `shouldStop` turns true once it answers true (chunks of a run that may be stopped).
+   */
+  parallel<I, O>(
+    task: string,
+    inputs: I[],
+    options?: { isCancelled?: () => boolean },
+  ): Promise<O[]>;
 }
 
 export type { RunEvent } from "../queue/events.ts";
@@ -105,8 +112,12 @@ export class InThreadExecutor implements ComputeExecutor {
     );
     return await kind.compute(params, ctx);
   }
-  parallel<I, O>(task: string, inputs: I[]): Promise<O[]> {
-    return this.#map(task, inputs, () => false);
+  parallel<I, O>(
+    task: string,
+    inputs: I[],
+    options: { isCancelled?: () => boolean } = {},
+  ): Promise<O[]> {
+    return this.#map(task, inputs, options.isCancelled ?? (() => false));
   }
   async #map<I, O>(task: string, inputs: I[], shouldStop: () => boolean): Promise<O[]> {
     const fn = this.tasks[task];
@@ -348,12 +359,26 @@ export class RunService {
     };
   }
 
-  /** Take runs (and chunks of runs) from the queue and compute them here (worker role). */
+  /**
+   * Take runs (and chunks of runs) from the queue and compute them here (worker role). A chunk
+   * stops as its run's own work does: when a terminal status of its run is heard on the event
+   * bus (a cancel from any instance, the time limit, a failure), when this process computes
+   * the run and it must stop, or when the chunk router sees the run end.
+   */
   async startWorking(chunkConcurrency = 1): Promise<void> {
-    await this.transport.chunks?.work(
-      async (task, input) => (await this.executor.parallel(task, [input]))[0],
-      chunkConcurrency,
-    );
+    await this.transport.chunks?.work(async (task, input, chunk) => {
+      let ended = false;
+      const unsubscribe = this.transport.events.subscribe(chunk.runId, (e) => {
+        if (e.type === "status" && TERMINAL.has(e.status as never)) ended = true;
+      });
+      try {
+        const isCancelled = () =>
+          ended || chunk.shouldStop() || this.active.get(chunk.runId)?.cancelled === true;
+        return (await this.executor.parallel(task, [input], { isCancelled }))[0];
+      } finally {
+        unsubscribe();
+      }
+    }, chunkConcurrency);
     await this.transport.queue.work((id) => this.process(id));
   }
 

@@ -117,6 +117,11 @@ function withSharedFields(inputs: RunInputs): RunInputs {
   return { ...inputs, fields };
 }
 
+/** A fresh stop flag. */
+function newControl(): RunControl {
+  return { flag: new Int32Array(new SharedArrayBuffer(4)), stopped: false };
+}
+
 /** A job's load on its worker: 0 while it is a run waiting for its chunks. */
 const active = (j: Job) => j.pending.size === 0;
 
@@ -378,15 +383,9 @@ export class WorkerPool implements ComputeExecutor {
     hooks: ComputeHooks,
   ): Promise<RunResult> {
     const id = this.nextJob++;
-    const control: RunControl = {
-      flag: new Int32Array(new SharedArrayBuffer(4)),
-      stopped: false,
-    };
+    const control = newControl();
     return new Promise<RunResult>((resolve, reject) => {
-      const poll = setInterval(() => {
-        if (hooks.isCancelled()) this.stop(control);
-      }, STOP_POLL_MS);
-      const done = () => clearInterval(poll);
+      const done = this.watch(control, hooks.isCancelled);
       this.enqueue({
         id,
         type: "run",
@@ -422,8 +421,36 @@ export class WorkerPool implements ComputeExecutor {
     });
   }
 
-  parallel<I, O>(task: string, inputs: I[], options: { transfer?: boolean } = {}): Promise<O[]> {
-    return this.map(task, inputs, null, undefined, options.transfer ?? false);
+  /**
+   * Map a task over inputs in the pool. With `options.isCancelled` (chunks of a run computed
+   * for another process), the chunks get a stop flag of their own, raised when it answers
+   * true, and are stopped as a stopped run's work is.
+   */
+  parallel<I, O>(
+    task: string,
+    inputs: I[],
+    options: { transfer?: boolean; isCancelled?: () => boolean } = {},
+  ): Promise<O[]> {
+    const transfer = options.transfer ?? false;
+    if (!options.isCancelled) return this.map(task, inputs, null, undefined, transfer);
+    const control = newControl();
+    const done = this.watch(control, options.isCancelled);
+    const out = this.map<I, O>(task, inputs, control, undefined, transfer);
+    const end = () => {
+      done();
+      this.served.delete(control);
+    };
+    out.then(end, end);
+    return out;
+  }
+
+  /** Ask `isCancelled` every {@link STOP_POLL_MS} and stop the control's work when it says so;
+   * returns the function that ends the watch. */
+  private watch(control: RunControl, isCancelled: () => boolean): () => void {
+    const poll = setInterval(() => {
+      if (isCancelled()) this.stop(control);
+    }, STOP_POLL_MS);
+    return () => clearInterval(poll);
   }
 
   /**
