@@ -167,6 +167,8 @@ export interface EstimateInputs {
   run(id: string): RunRecord;
   /** A loaded gridded field by id (those listed by `RunKind.fieldRefs`; its loaded steps). */
   field(id: string): LoadedField;
+  /** The result of a loaded input run, typed (as `RunContext.resultOf`). */
+  resultOf<K extends RunKind>(kind: K, id: string, pointer: string): ResultOf<K>;
 }
 
 /** An analysis' chart, typed on its result. */

@@ -145,33 +145,6 @@ export function makeContext(
   let reported = 0;
   return {
     ...loadedInputs(inputs),
-    resultOf(kind, id, pointer) {
-      const r = inputs.runs[id];
-      if (!r) throw new InputProblem(pointer, `run ${id} was not loaded`);
-      if (r.kind !== kind.kind) {
-        throw new InputProblem(
-          pointer,
-          `run ${id} is a ${r.kind} run; a ${kind.kind} run is needed`,
-          {
-            kind: r.kind,
-          },
-        );
-      }
-      if (r.status !== "succeeded" || r.result === null) {
-        throw new InputProblem(pointer, `run ${id} has no result (status ${r.status})`, {
-          status: r.status,
-        });
-      }
-      const parsed = kind.result.safeParse(r.result);
-      if (!parsed.success) {
-        throw new InputProblem(
-          pointer,
-          `run ${id} holds a ${kind.kind} result of an older shape; replay it or make a new one`,
-          { algorithm_version: r.algorithm_version },
-        );
-      }
-      return parsed.data;
-    },
     // Progress never goes back (a kind may report 0.05 + 0.9·k/n, then 0.95, and float
     // rounding makes the second smaller than the first).
     progress: (f) => hooks.progress(reported = Math.max(reported, Math.min(1, Math.max(0, f)))),

@@ -38,15 +38,6 @@ export function commonAxisLength(series: StoredSeries[], requested?: string): nu
   return Math.max(0, Math.round((end - start) * perYear(resolution)) + 1);
 }
 
-/** The series of a request's output that another run holds (its number of points), or 0. */
-export function runOutputPoints(inputs: EstimateInputs, runId: unknown, output: string): number {
-  if (typeof runId !== "string") return 0;
-  const outputs = inputs.run(runId).result?.outputs as
-    | Record<string, { time?: unknown[] }>
-    | undefined;
-  return outputs?.[output]?.time?.length ?? 0;
-}
-
 /** The size of a loaded gridded field (the time steps loaded for the run). */
 export interface FieldSize {
   /** Time steps loaded. */

@@ -25,6 +25,7 @@ export function estimateLagCorrelationsSeconds(
   const lags = maxLag - (p.min_lag ?? -maxLag) + 1;
   const table = 0.005 + 1.5e-7 * n * lags;
   if (p.significance === "none") return table;
-  const slow = p.preprocess === "high_pass" || p.significance === "ar1" ? 10 : 1;
+  // the time-domain path (high-pass filter, or AR(1) surrogates): more transforms each
+  const slow = p.preprocess === "high_pass" ? 2.7 : p.significance === "ar1" ? 1.5 : 1;
   return table + p.surrogates * PER_SURROGATE * slow * n * Math.log2(n);
 }
