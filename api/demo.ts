@@ -39,6 +39,8 @@ export interface DemoFileEntry {
   time_column: string;
   value_column: string;
   uncertainty_column?: string;
+  /** For a band of the spectral record: its bounds in nm. */
+  band_nm?: { lower: number; upper: number };
   upload: {
     name: string;
     quantity: string;
@@ -134,7 +136,8 @@ export async function loadDemoFields(store: Store, dir: URL = DEMO_DIR): Promise
 /**
  * Store every demo series and field, and return the series ids in manifest order (the fields'
  * ids come from {@link loadDemoFields}). Idempotent: what is already present (same content,
- * same id) is left as it is.
+ * same id) is left as it is. The band series of the spectral record are stored first, so
+ * listings (newest first) open with the demo's main series.
  *
  * @param store the store to fill (normally an empty one)
  * @returns the stored series ids
@@ -142,12 +145,18 @@ export async function loadDemoFields(store: Store, dir: URL = DEMO_DIR): Promise
 export async function loadDemo(
   store: Store,
 ): Promise<string[]> {
-  const ids: string[] = [];
-  for (const { series } of await readDemoSeries()) {
+  const entries = await demoFileEntries();
+  const read = await readDemoSeries();
+  // the 32 band series of the spectral record first, so that listings (newest first) open
+  // with the demo's main series
+  const order = read.map((_, i) => i);
+  order.sort((a, b) => Number(!entries[a].band_nm) - Number(!entries[b].band_nm));
+  for (const i of order) {
+    // stamped when stored (the time it means), so the listing's order is the storing order
+    const series = { ...read[i].series, created_at: new Date().toISOString() };
     // Public: on a shared instance every owner may try the demo.
     await store.putSeries(series, { owner: LOCAL_OWNER, visibility: "public" });
-    ids.push(series.id);
   }
   await loadDemoFields(store);
-  return ids;
+  return read.map((r) => r.series.id);
 }

@@ -17,6 +17,7 @@ export type InputErrorReason =
   | "length_mismatch"
   | "not_regular"
   | "no_overlap"
+  | "overlap"
   | "constant"
   | "collinear"
   | "unsupported"

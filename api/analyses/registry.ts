@@ -22,6 +22,8 @@ import { irradianceDarkening } from "./irradiance_darkening/mod.ts";
 import { irradianceModels } from "./irradiance_models/mod.ts";
 import { irradianceReconstructions } from "./irradiance_reconstructions/mod.ts";
 import { forcing } from "./forcing/mod.ts";
+import { spectralIrradianceModels } from "./spectral_irradiance_models/mod.ts";
+import { spectralIrradianceReconstructions } from "./spectral_irradiance_reconstructions/mod.ts";
 import { solarSignalMapKind } from "./solar_signal_maps/mod.ts";
 import { fieldAreaMeanKind } from "./field_area_means/mod.ts";
 import { fieldCompositeKind } from "./field_composites/mod.ts";
@@ -42,6 +44,8 @@ export const RUN_KINDS: readonly RunKind[] = [
   irradianceDarkening,
   irradianceModels,
   irradianceReconstructions,
+  spectralIrradianceModels,
+  spectralIrradianceReconstructions,
   forcing,
   fieldAreaMeanKind,
   solarSignalMapKind,

@@ -12,6 +12,8 @@ const QUANTITY_LABELS: Record<string, string> = {
   facular_index: "Facular index",
   radio_flux: "Radio flux",
   tsi: "Total solar irradiance",
+  spectral_irradiance: "Spectral solar irradiance",
+  band_irradiance: "Band solar irradiance",
   temperature: "Temperature",
   temperature_anomaly: "Temperature anomaly",
   enso_index: "ENSO index",

@@ -18,17 +18,27 @@ export function chartNeedsInputs(kind: RunKind | undefined): boolean {
   return kind?.chart?.needsInputs === true;
 }
 
-/** The chart spec of a finished run: its analysis' chart when it fits, else the generic one. */
+/** The names of the other views an analysis' chart offers (`?view=`), besides the default. */
+export function chartViews(kind: RunKind | undefined): string[] {
+  return Object.keys(kind?.chart?.views ?? {});
+}
+
+/**
+ * The chart spec of a finished run: its analysis' chart (or the named view of it) when it
+ * fits, else the generic one.
+ */
 export function runChartSpec(
   run: RunRecord,
   kind: RunKind | undefined,
   inputs: StoredSeries[] = [],
+  view?: string,
 ): ChartSpec | MapChartSpec {
   if (kind?.chart) {
     // A stored result of an older shape (before an algorithm change) gets the generic chart.
     const parsed = kind.result.safeParse(run.result);
     if (parsed.success) {
-      const spec = kind.chart.build(run, parsed.data, inputs);
+      const build = view === undefined ? kind.chart.build : kind.chart.views?.[view]?.build;
+      const spec = build?.(run, parsed.data, inputs);
       if (spec) return spec;
     }
   }

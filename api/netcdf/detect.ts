@@ -9,7 +9,11 @@
 import { NetcdfError } from "./errors.ts";
 
 /** The NetCDF formats sunlag reads. */
-export type NetcdfFormat = "netcdf3_classic" | "netcdf3_64bit_offset" | "netcdf4";
+export type NetcdfFormat =
+  | "netcdf3_classic"
+  | "netcdf3_64bit_offset"
+  | "netcdf4"
+  | "zarr_v2_zip";
 
 const HDF5 = [0x89, 0x48, 0x44, 0x46, 0x0d, 0x0a, 0x1a, 0x0a];
 
@@ -57,6 +61,6 @@ export async function detectNetcdfFormat(
   throw new NetcdfError(
     "not_netcdf",
     `The body is not a NetCDF file: it starts with bytes ${first || "(none)"}, not "CDF\\x01", ` +
-      '"CDF\\x02" (NetCDF-3) or the HDF5 signature (NetCDF-4)',
+      '"CDF\\x02" (NetCDF-3), the HDF5 signature (NetCDF-4) or "PK\\x03\\x04" (a zipped Zarr store)',
   );
 }

@@ -28,6 +28,8 @@ import { checkMeta, ErrorList, finish, type SeriesMetaInput } from "../ingest/no
 import type { IngestResult } from "../ingest/types.ts";
 import { SERVICE_VERSION } from "../version.ts";
 import { describePlacement } from "./cf_time_axis.ts";
+import { buildSpectrumDataset } from "./spectrum_dataset.ts";
+import type { SpectrumBlockIn } from "../analyses/common/spectrum_block.ts";
 import { listCfVariables } from "./cf_variables.ts";
 import { readCfSeries } from "./cf_series.ts";
 import { NetcdfError } from "./errors.ts";
@@ -228,6 +230,27 @@ export async function seriesNetcdfResponse(
   );
 }
 
+/** The provenance of a file written from a run's result (`what` names the part written). */
+function runProvenance(run: RunRecord, title: string, what: string, calendar: string): Provenance {
+  // the run's own warnings and cautions, then those of the runs it is built on
+  const notes = noteLinesOf(run.result);
+  return {
+    title: `${title} (sunlag run ${run.id}, ${run.kind})`,
+    history: [
+      `${run.created_at}: sunlag ${run.service_version} ran ${run.kind} (algorithm ${run.algorithm_version}) as run ${run.id}`,
+      `sunlag ${SERVICE_VERSION}: ${what} written as NetCDF-CF on the ${calendar} calendar`,
+    ],
+    references: [
+      `sunlag run ${run.id}: /v1/runs/${run.id} (parameters, inputs, versions, seed, result digest); replay with POST /v1/runs/${run.id}/replay`,
+    ],
+    runId: run.id,
+    resultDigest: `sha256:${run.result_digest ?? ""}`,
+    dateCreated: run.created_at,
+    warnings: notes.warnings,
+    cautions: notes.cautions,
+  };
+}
+
 /**
  * `GET /v1/runs/{id}/outputs/{name}?format=netcdf[&calendar=...]`: one output as NetCDF-CF,
  * with the run's id, result digest, warnings and cautions in the global attributes. An
@@ -242,6 +265,7 @@ export function runOutputNetcdfResponse(
   name: string,
   o: OutputSeries,
   ensemble?: EnsembleSource,
+  attributes: [string, string][] = [],
 ): Response {
   const calendar = calendarOf(c);
   if (o.time_axis && o.time_axis !== "decimal_year") {
@@ -255,23 +279,7 @@ export function runOutputNetcdfResponse(
   const etag = `"run-${run.id}-${run.result_digest}-${name}-netcdf-${calendar}-${SERVICE_VERSION}"`;
   const nm = notModified(c, etag);
   if (nm) return nm;
-  // the run's own warnings and cautions, then those of the runs it is built on
-  const notes = noteLinesOf(run.result);
-  const prov: Provenance = {
-    title: `${o.name} (sunlag run ${run.id}, ${run.kind})`,
-    history: [
-      `${run.created_at}: sunlag ${run.service_version} ran ${run.kind} (algorithm ${run.algorithm_version}) as run ${run.id}`,
-      `sunlag ${SERVICE_VERSION}: output "${name}" written as NetCDF-CF on the ${calendar} calendar`,
-    ],
-    references: [
-      `sunlag run ${run.id}: /v1/runs/${run.id} (parameters, inputs, versions, seed, result digest); replay with POST /v1/runs/${run.id}/replay`,
-    ],
-    runId: run.id,
-    resultDigest: `sha256:${run.result_digest ?? ""}`,
-    dateCreated: run.created_at,
-    warnings: notes.warnings,
-    cautions: notes.cautions,
-  };
+  const prov = { ...runProvenance(run, o.name, `output "${name}"`, calendar), attributes };
   const s: SeriesLike = {
     name: o.name,
     quantity: o.quantity,
@@ -289,6 +297,31 @@ export function runOutputNetcdfResponse(
     () => buildSeriesDataset(s, prov, { calendar, ensemble }),
     etag,
     fileName([run.id, name, calendar]),
+  );
+}
+
+/**
+ * `GET /v1/runs/{id}/spectrum?format=netcdf[&calendar=...]`: a run's spectrum over time as
+ * NetCDF-CF with a `wavelength` coordinate and `wavelength_bnds` (api/netcdf/spectrum_dataset.ts).
+ *
+ * @throws {ProblemError} 422 for a calendar that cannot hold the spectrum's resolution
+ */
+export function runSpectrumNetcdfResponse(
+  c: Context,
+  run: RunRecord,
+  s: SpectrumBlockIn,
+): Response {
+  const calendar = calendarOf(c);
+  const etag =
+    `"run-${run.id}-${run.result_digest}-spectrum-netcdf-${calendar}-${SERVICE_VERSION}"`;
+  const nm = notModified(c, etag);
+  if (nm) return nm;
+  const prov = runProvenance(run, s.name, "spectrum", calendar);
+  return respond(
+    c,
+    () => buildSpectrumDataset(s, prov, calendar),
+    etag,
+    fileName([run.id, "spectrum", calendar]),
   );
 }
 
@@ -313,11 +346,38 @@ export const VariableQuery = z.string().min(1).max(200).optional().openapi({
   example: "tsi",
 });
 
-function candidates(src: NetcdfSource): string[] {
+/**
+ * The one data variable along time with `others` more dimensions (0: a series, 1: a spectral
+ * record), or a 422 at /variable listing them when there is none or several.
+ */
+export function onlyTimeDataVariable(src: NetcdfSource, others: 0 | 1): string {
+  const found = timeDataVariables(src, others);
+  if (found.length === 1) return found[0];
+  const what = others === 0 ? "series" : "spectral record (time and one wavelength dimension)";
+  throw new ProblemError(
+    "validation",
+    found.length === 0
+      ? `The file has no variable along a CF time coordinate that could be a ${what}`
+      : `The file has ${found.length} variables that could be a ${what}: name one with variable= (${
+        found.slice(0, 20).join(", ")
+      })`,
+    {
+      errors: [{ pointer: "/variable", in: "query", message: "required: choose one" }],
+      variables: found.slice(0, 50),
+    },
+  );
+}
+
+/**
+ * Data variables along a CF time coordinate with `others` more dimensions longer than 1 (0
+ * for series, 1 for spectral records), uncertainty variables left out.
+ */
+export function timeDataVariables(src: NetcdfSource, others: 0 | 1 = 0): string[] {
   return listCfVariables(src.header)
     .filter((v) =>
       v.role === "data" && v.time_dimension !== null &&
-      v.shape.filter((n, i) => n !== 1 || v.dimensions[i] === v.time_dimension).length === 1 &&
+      v.shape.filter((n, i) => n !== 1 && v.dimensions[i] !== v.time_dimension).length ===
+        others &&
       !/standard_error$/.test(v.standard_name ?? "")
     )
     .map((v) => v.name);
@@ -360,25 +420,7 @@ export async function ingestNetcdfUpload(c: Context, limitBytes: number): Promis
       limitBytes,
       (path) =>
         withNetcdf(path, async (src) => {
-          let name = q.variable;
-          if (name === undefined) {
-            const found = candidates(src);
-            if (found.length !== 1) {
-              throw new ProblemError(
-                "validation",
-                found.length === 0
-                  ? "The file has no variable along a CF time coordinate that could be a series"
-                  : `The file has ${found.length} series variables: name one with variable= (${
-                    found.slice(0, 20).join(", ")
-                  })`,
-                {
-                  errors: [{ pointer: "/variable", in: "query", message: "required: choose one" }],
-                  variables: found.slice(0, 50),
-                },
-              );
-            }
-            name = found[0];
-          }
+          const name = q.variable ?? onlyTimeDataVariable(src, 0);
           const s = await readCfSeries(src, name, { uncertainty: q.uncertainty });
           return toNormalised(src, s, name, q);
         }),

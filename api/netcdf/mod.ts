@@ -33,6 +33,7 @@ export { type CfGrid, type CfGridBlock, describeCfGrid, readCfGridBlocks } from 
 export {
   buildSeriesDataset,
   CF_CONVENTIONS,
+  type CfTimeAxisVariables,
   cfVariableName,
   type EnsembleSource,
   type Provenance,
@@ -40,7 +41,9 @@ export {
   type SeriesLike,
   STANDING_CAUTIONS,
   TIME_REFERENCE,
+  timeAxisOf,
 } from "./series_dataset.ts";
+export { buildSpectrumDataset, SPECTRAL_IRRADIANCE_STANDARD_NAME } from "./spectrum_dataset.ts";
 export {
   CalendarQuery,
   cfTimeProblem,
@@ -49,6 +52,7 @@ export {
   NETCDF_MEDIA_TYPE,
   netcdfProblem,
   runOutputNetcdfResponse,
+  runSpectrumNetcdfResponse,
   seriesNetcdfResponse,
   wantsNetcdf,
 } from "./http.ts";

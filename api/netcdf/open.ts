@@ -10,9 +10,11 @@ import { NetcdfError } from "./errors.ts";
 import { openNetcdf3 } from "./netcdf3_source.ts";
 import { openNetcdf4 } from "./netcdf4_source.ts";
 import type { NetcdfSource } from "./source.ts";
+import { isZip, openZarrZip } from "./zarr_zip_source.ts";
 
 /**
- * Open a NetCDF-3 (classic, 64-bit offset) or NetCDF-4/HDF5 file.
+ * Open a NetCDF-3 (classic, 64-bit offset) or NetCDF-4/HDF5 file, or a zipped Zarr v2 store
+ * (read through the same interface, `zarr_zip_source.ts`).
  *
  * @param path the file
  * @returns the open source (close it when done)
@@ -29,6 +31,10 @@ export async function openNetcdf(path: string): Promise<NetcdfSource> {
       const n = await file.read(head.subarray(at));
       if (n === null) break;
       at += n;
+    }
+    if (isZip(head.subarray(0, at))) {
+      file.close();
+      return await openZarrZip(path);
     }
     const format = await detectNetcdfFormat(head.subarray(0, at), size, async (offset) => {
       const b = new Uint8Array(8);

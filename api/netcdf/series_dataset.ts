@@ -70,6 +70,8 @@ export interface Provenance {
   dateCreated?: string;
   warnings: string[];
   cautions: string[];
+  /** Further global text attributes (name, value), e.g. what an uncertainty band contains. */
+  attributes?: [string, string][];
 }
 
 /** Options of {@link buildSeriesDataset}. */
@@ -108,6 +110,73 @@ function column(xs: ArrayLike<number | null>, kept: Int32Array): Float64Array {
   });
 }
 
+/** The CF time axis of a dataset: the placed axis, its variables and dimensions. */
+export interface CfTimeAxisVariables {
+  axis: ReturnType<typeof calendarAxis>;
+  /** True for period means (with `time_bnds`). */
+  bounded: boolean;
+  /** The `cell_methods` of data on this axis: "time: mean" or "time: point". */
+  period: string;
+  /** `time` and, for period means, `time_bnds`. */
+  variables: NetcdfWriteVariable[];
+  /** `time` and, for period means, `bnds`. */
+  dimensions: { name: string; size: number }[];
+}
+
+/**
+ * The `time` coordinate (days since 1850-01-01 on `calendar`, `axis: T`) and, for period
+ * means, its `time_bnds`, for decimal-year times placed on the calendar by `calendarAxis`.
+ *
+ * @throws {CfTimeError} when the calendar cannot hold the resolution
+ */
+export function timeAxisOf(
+  time: ArrayLike<number>,
+  resolution: TimeResolution | undefined,
+  calendar: CfCalendar,
+): CfTimeAxisVariables {
+  const res = resolution ?? (time.length >= 2 ? inferResolution(time) : "irregular");
+  const axis = calendarAxis(time, res, calendar);
+  const refDay = cfDayNumber(
+    calendar,
+    TIME_REFERENCE.year,
+    TIME_REFERENCE.month,
+    TIME_REFERENCE.day,
+  );
+  const n = axis.kept.length;
+  const bounded = axis.start !== null;
+  const variables: NetcdfWriteVariable[] = [{
+    name: "time",
+    type: "double",
+    dimensions: ["time"],
+    attributes: [
+      ncText("standard_name", "time"),
+      ncText("long_name", "time"),
+      ncText("units", "days since 1850-01-01 00:00:00"),
+      ncText("calendar", calendar),
+      ncText("axis", "T"),
+      ...(bounded ? [ncText("bounds", "time_bnds")] : []),
+    ],
+    data: Float64Array.from(axis.time, (d) => d - refDay),
+  }];
+  const dimensions = [{ name: "time", size: n }];
+  if (bounded) {
+    const b = new Float64Array(2 * n);
+    for (let k = 0; k < n; k++) {
+      b[2 * k] = axis.start![k] - refDay;
+      b[2 * k + 1] = axis.end![k] - refDay;
+    }
+    variables.push({ name: "time_bnds", type: "double", dimensions: ["time", "bnds"], data: b });
+    dimensions.push({ name: "bnds", size: 2 });
+  }
+  return {
+    axis,
+    bounded,
+    period: bounded ? "time: mean" : "time: point",
+    variables,
+    dimensions,
+  };
+}
+
 /**
  * Build the CF dataset of a series on a calendar.
  *
@@ -123,47 +192,15 @@ export function buildSeriesDataset(
   options: SeriesDatasetOptions = {},
 ): { dataset: NetcdfWriteDataset; method: string; dropped: number[] } {
   const calendar = options.calendar ?? "standard";
-  const resolution = s.resolution ?? (s.time.length >= 2 ? inferResolution(s.time) : "irregular");
-  const axis = calendarAxis(s.time, resolution, calendar);
-  const refDay = cfDayNumber(
-    calendar,
-    TIME_REFERENCE.year,
-    TIME_REFERENCE.month,
-    TIME_REFERENCE.day,
-  );
+  const t = timeAxisOf(s.time, s.resolution, calendar);
+  const { axis, period } = t;
   const n = axis.kept.length;
-  const bounded = axis.start !== null;
-  const units = "days since 1850-01-01 00:00:00";
   const taken = new Set(["time", "time_bnds", "bnds", "realization"]);
   const name = options.variable ??
     cfVariableName(s.quantity === "other" ? s.name : s.quantity, taken);
   taken.add(name);
   const sn = cfStandardName(s.quantity);
-  const period = bounded ? "time: mean" : "time: point";
-
-  const vars: NetcdfWriteVariable[] = [];
-  vars.push({
-    name: "time",
-    type: "double",
-    dimensions: ["time"],
-    attributes: [
-      ncText("standard_name", "time"),
-      ncText("long_name", "time"),
-      ncText("units", units),
-      ncText("calendar", calendar),
-      ncText("axis", "T"),
-      ...(bounded ? [ncText("bounds", "time_bnds")] : []),
-    ],
-    data: Float64Array.from(axis.time, (d) => d - refDay),
-  });
-  if (bounded) {
-    const b = new Float64Array(2 * n);
-    for (let k = 0; k < n; k++) {
-      b[2 * k] = axis.start![k] - refDay;
-      b[2 * k + 1] = axis.end![k] - refDay;
-    }
-    vars.push({ name: "time_bnds", type: "double", dimensions: ["time", "bnds"], data: b });
-  }
+  const vars: NetcdfWriteVariable[] = [...t.variables];
   const ancillary: string[] = [];
   const extra: NetcdfWriteVariable[] = [];
   const fill = ncNumber("_FillValue", "double", NaN);
@@ -203,8 +240,7 @@ export function buildSeriesDataset(
       data: column(arr, axis.kept),
     });
   }
-  const dims = [{ name: "time", size: n }];
-  if (bounded) dims.push({ name: "bnds", size: 2 });
+  const dims = [...t.dimensions];
   const ens = options.ensemble;
   if (ens) {
     const e = cfVariableName(`${name}_realizations`, taken);
@@ -294,5 +330,6 @@ export function provenanceAttributes(
     ...(prov.dateCreated ? [ncText("date_created", prov.dateCreated)] : []),
     ncText("warnings", prov.warnings.length ? prov.warnings.join("\n") : "none"),
     ncText("cautions", prov.cautions.length ? prov.cautions.join("\n") : "none"),
+    ...(prov.attributes ?? []).map(([k, v]) => ncText(k, v)),
   ];
 }

@@ -25,7 +25,7 @@ import { renderChart, type RenderOptions } from "../charts/chart.ts";
 import { shortHash } from "../charts/svg.ts";
 import { renderAnyChart } from "../charts/map_chart.ts";
 import { seriesChartSpec } from "../charts/series_chart.ts";
-import { chartNeedsInputs, runChartSpec } from "../charts/run_charts.ts";
+import { chartNeedsInputs, chartViews, runChartSpec } from "../charts/run_charts.ts";
 import { SERVICE_VERSION } from "../version.ts";
 import type { RunKind } from "../runs/kind.ts";
 import { kindByName } from "../analyses/derive.ts";
@@ -70,6 +70,15 @@ export const ChartQuery = z.object({
   theme: z.enum(["light", "dark"]).default("light"),
   from: timeParam("start", "Start"),
   to: timeParam("end", "End"),
+});
+
+/** The run chart's query: the common one plus the analysis' chart view. */
+export const RunChartQuery = ChartQuery.extend({
+  view: z.string().regex(/^[a-z][a-z0-9_]{0,39}$/, "a view name in snake_case").optional()
+    .openapi({
+      description: "Another chart of the run, where its analysis offers one (e.g. " +
+        "`variability` for spectral reconstructions); default: the analysis' main chart",
+    }),
 });
 
 type ChartQueryOut = z.output<typeof ChartQuery>;
@@ -180,7 +189,7 @@ export function registerChartRoutes(
         params: z.object({
           id: RunIdString.openapi({ param: { name: "id", in: "path" } }),
         }),
-        query: ChartQuery,
+        query: RunChartQuery,
       },
       responses: {
         200: { description: "The chart", content: svgContent },
@@ -191,12 +200,14 @@ export function registerChartRoutes(
     // deno-lint-ignore no-explicit-any
     (async (c: any) => {
       const id: string = c.req.valid("param").id;
-      const opts = renderOptions(c.req.valid("query"));
-      // A succeeded run never changes: its chart is found by run id and query alone, once the
-      // caller is known to see the run. The inputs it draws are those the caller may see.
+      const query = c.req.valid("query");
+      const opts = renderOptions(query);
+      const view: string | undefined = query.view;
+      // A succeeded run never changes: its chart is found by run id, query and view alone, once
+      // the caller is known to see the run. The inputs it draws are those the caller may see.
       const principal = principalOf(c);
       const holding = await mustSeeRun(store, principal, id);
-      const key = `run-${id}-${optionsKey(opts)}`;
+      const key = `run-${id}-${optionsKey(opts)}-${view ?? ""}`;
       const viewer = viewerOf(principal);
       let rep = cache.get(key);
       for (const sid of rep?.requires ?? []) {
@@ -214,9 +225,20 @@ export function registerChartRoutes(
             { "Cache-Control": "no-store" },
           );
         }
-        const etag = etagFor(`run-${run.id}-${run.result_digest}`, opts);
+        const etag = etagFor(`run-${run.id}-${run.result_digest}${view ? `-${view}` : ""}`, opts);
         const inputs: StoredSeries[] = [];
         const kind = kindByName(deps.kinds, run.kind);
+        if (view !== undefined && !chartViews(kind).includes(view)) {
+          const views = chartViews(kind);
+          throw new ProblemError(
+            "validation",
+            `Runs of kind ${run.kind} have no chart view "${view}"` +
+              (views.length
+                ? `; views: ${views.join(", ")}`
+                : "; they have only the default chart"),
+            { errors: [{ pointer: "/view", in: "query", message: "unknown chart view" }] },
+          );
+        }
         if (chartNeedsInputs(kind)) {
           for (const sid of run.input_series.slice(0, 4)) {
             if (!(await store.seriesHolding(sid, viewer))) {
@@ -227,7 +249,7 @@ export function registerChartRoutes(
             if (s && s.n <= 500_000) inputs.push(s);
           }
         }
-        const svg = renderAnyChart(runChartSpec(run, kind, inputs), {
+        const svg = renderAnyChart(runChartSpec(run, kind, inputs, view), {
           ...opts,
           idPrefix: "r" + shortHash(etag),
         });

@@ -12,6 +12,7 @@ import type { App } from "../app_env.ts";
 import type { Config } from "../config.ts";
 import type { FieldDescription, FieldMeta, Store } from "../store/types.ts";
 import { FIELD_ID_PATTERN } from "../store/field_types.ts";
+import { DEMO_FIELD } from "../schemas/examples.ts";
 import { fieldMetaOf } from "../store/field_common.ts";
 import { ProblemError } from "../problems.ts";
 import { PageQuery, pageSchema, problems, SeriesMetaSchema } from "../schemas/common.ts";
@@ -44,7 +45,7 @@ import { SERVICE_VERSION } from "../version.ts";
 const FieldIdParam = z.object({
   id: z.string().regex(FIELD_ID_PATTERN, "must be a field id: field:sha256:<64 hex>").openapi({
     param: { name: "id", in: "path" },
-    example: "field:sha256:…",
+    example: DEMO_FIELD,
   }),
 });
 
@@ -228,6 +229,9 @@ function cellSeriesInput(
   };
 }
 
+/** Media types of a zipped Zarr store. */
+const ZIP_TYPES = new Set(["application/zip", "application/x-zip-compressed"]);
+
 /** How a field upload's body is limited and read (for the route and for tests). */
 export async function uploadField(
   c: Context,
@@ -237,10 +241,10 @@ export async function uploadField(
   const limitBytes = config.fieldLimitBytes;
   const principal = principalOf(c);
   const ct = (c.req.header("content-type") ?? "").split(";")[0].trim().toLowerCase();
-  if (!isNetcdfMediaType(ct) && ct !== "application/octet-stream") {
+  if (!isNetcdfMediaType(ct) && !ZIP_TYPES.has(ct) && ct !== "application/octet-stream") {
     throw new ProblemError(
       "unsupported-media-type",
-      `Upload a field as ${NETCDF_MEDIA_TYPE} (NetCDF-3 or NetCDF-4/HDF5); the request said "${
+      `Upload a field as ${NETCDF_MEDIA_TYPE} (NetCDF-3 or NetCDF-4/HDF5) or application/zip (a zipped Zarr v2 store); the request said "${
         ct || "(no Content-Type)"
       }"`,
       {},
@@ -308,9 +312,11 @@ export function registerFieldRoutes(app: App, deps: { store: Store; config: Conf
       method: "post",
       path: "/v1/fields",
       tags: ["Fields"],
-      summary: "Upload a gridded field (NetCDF-CF, (time, latitude, longitude))",
+      summary: "Upload a gridded field (NetCDF-CF or zipped Zarr, (time, latitude, longitude))",
       description: "The body is a NetCDF-3 (classic or 64-bit offset) or NetCDF-4/HDF5 file " +
-        "(zlib-compressed and chunked variables are fine), streamed to a temporary file: the JSON " +
+        "(zlib-compressed and chunked variables are fine), or a Zarr v2 store as xarray writes " +
+        "it, zipped (`to_zarr(zarr.storage.ZipStore(...))`; Blosc, zlib or gzip chunks; sent as " +
+        "application/zip), streamed to a temporary file: the JSON " +
         "body limit does not apply, the field size limit does (SUNLAG_FIELD_LIMIT_MB, default " +
         "200). The variable is decoded as xarray would (time on its CF calendar: standard, " +
         "gregorian, proleptic_gregorian, noleap/365_day, all_leap/366_day, 360_day, julian; " +
@@ -324,6 +330,7 @@ export function registerFieldRoutes(app: App, deps: { store: Store; config: Conf
           required: true,
           content: {
             [NETCDF_MEDIA_TYPE]: { schema: z.string().openapi({ format: "binary" }) },
+            "application/zip": { schema: z.string().openapi({ format: "binary" }) },
           },
         },
       },

@@ -4,6 +4,8 @@
  *
  * @module
  */
+import { ensembleSourceOf } from "../analyses/common/ensemble_members.ts";
+import { bandAttributes } from "../analyses/common/uncertainty_band.ts";
 import { runLabel } from "../runs/label.ts";
 import { createRoute, z } from "@hono/zod-openapi";
 import { streamSSE } from "hono/streaming";
@@ -306,7 +308,18 @@ export function registerRunRoutes(
             (names.length ? `; outputs: ${names.join(", ")}` : "; it has no series outputs"),
         );
       }
-      if (wantsNetcdf(c)) return runOutputNetcdfResponse(c, run, name, o);
+      if (wantsNetcdf(c)) {
+        // an output with ensemble members carries them on a realization dimension, and the
+        // band's statement of what it contains as global attributes
+        return runOutputNetcdfResponse(
+          c,
+          run,
+          name,
+          o,
+          ensembleSourceOf(run.result, name),
+          bandAttributes(run.result),
+        );
+      }
       const csv = wantsCsv(c);
       const etag = `"run-${run.id}-${run.result_digest}-${name}-${csv ? "csv" : "json"}"`;
       const nm = notModified(c, etag, shared);

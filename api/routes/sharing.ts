@@ -88,251 +88,216 @@ async function shareClosure(
   while (queue.length) {
     const run = await store.getRun(queue.shift()!);
     if (!run) continue;
-    for (const sid of run.input_series) {
-      if (seen.has(sid)) continue;
-      seen.add(sid);
-      const h = await store.seriesHolding(sid, ownView);
-      if (h?.owner === owner) {
-        if (visibilityRank(h.visibility) < visibilityRank(visibility)) plan.series.push(sid);
-      } else if (!(await store.seriesHolding(sid, reach))) {
-        throw new ProblemError(
-          "conflict",
-          `Run ${id} uses series ${sid}, which its owner shares less widely than ${visibility}; ` +
-            "ask them to share it first",
-          { input: sid },
-        );
-      }
-    }
-    for (const fid of run.input_fields ?? []) {
-      if (seen.has(fid)) continue;
-      seen.add(fid);
-      const h = await store.fieldHolding(fid, ownView);
-      if (h?.owner === owner) {
-        if (visibilityRank(h.visibility) < visibilityRank(visibility)) plan.fields.push(fid);
-      } else if (!(await store.fieldHolding(fid, reach))) {
-        throw new ProblemError(
-          "conflict",
-          `Run ${id} uses field ${fid}, which its owner shares less widely than ${visibility}; ` +
-            "ask them to share it first",
-          { input: fid },
-        );
-      }
-    }
-    for (const rid of run.input_runs) {
-      if (seen.has(rid)) continue;
-      seen.add(rid);
-      const h = await store.runHolding(rid, ownView);
-      if (h?.owner === owner) {
-        if (visibilityRank(h.visibility) < visibilityRank(visibility)) plan.runs.push(rid);
-        queue.push(rid);
-      } else if (!(await store.runHolding(rid, reach))) {
-        throw new ProblemError(
-          "conflict",
-          `Run ${id} uses run ${rid}, which its owner shares less widely than ${visibility}; ` +
-            "ask them to share it first",
-          { input: rid },
-        );
+    // Series, then fields, then runs (whose own inputs are followed in turn).
+    const inputs = [
+      { ids: run.input_series, noun: "series", plan: plan.series, holding: store.seriesHolding },
+      {
+        ids: run.input_fields ?? [],
+        noun: "field",
+        plan: plan.fields,
+        holding: store.fieldHolding,
+      },
+      { ids: run.input_runs, noun: "run", plan: plan.runs, holding: store.runHolding },
+    ];
+    for (const { ids, noun, plan: raise, holding } of inputs) {
+      for (const input of ids) {
+        if (seen.has(input)) continue;
+        seen.add(input);
+        const h = await holding.call(store, input, ownView);
+        if (h?.owner === owner) {
+          if (visibilityRank(h.visibility) < visibilityRank(visibility)) raise.push(input);
+          if (noun === "run") queue.push(input);
+        } else if (!(await holding.call(store, input, reach))) {
+          throw new ProblemError(
+            "conflict",
+            `Run ${id} uses ${noun} ${input}, which its owner shares less widely than ` +
+              `${visibility}; ask them to share it first`,
+            { input },
+          );
+        }
       }
     }
   }
   return plan;
 }
 
-export function registerSharingRoutes(app: App, deps: { store: Store }): void {
-  const { store } = deps;
-  const SeriesParam = z.object({ id: SeriesId.openapi({ param: { name: "id", in: "path" } }) });
-  const RunParam = z.object({ id: RunIdString.openapi({ param: { name: "id", in: "path" } }) });
-  const answer = { content: { "application/json": { schema: Sharing } } };
+/** One kind of shared item: where its sharing lives, who may see and change it, and how. */
+interface SharedKind {
+  /** The item's path, e.g. "/v1/series/{id}". */
+  path: string;
+  /** Its id in the path. */
+  id: z.ZodType<string>;
+  /** Summaries and description of GET and PUT `{path}/sharing`. */
+  getSummary: string;
+  putSummary: string;
+  putDescription: string;
+  /** The holding through which the caller sees the item (404 if none). */
+  see: (store: Store, p: Principal, id: string) => Promise<Holding>;
+  /** The caller's own holding of the item (403/404 otherwise). */
+  hold: (store: Store, p: Principal, id: string, action: string) => Promise<Holding>;
+  /** Check that the change is allowed (409 otherwise), then store it. */
+  share: (store: Store, id: string, h: Holding, visibility: Visibility) => Promise<void>;
+}
 
-  app.openapi(
-    createRoute({
-      method: "get",
-      path: "/v1/series/{id}/sharing",
-      tags: ["Sharing"],
-      summary: "Who holds this series and who may see it (the copy you see)",
-      request: { params: SeriesParam },
-      responses: { 200: { description: "The holding", ...answer }, ...problems(404, 422) },
-    }),
-    async (c) => {
-      const id = c.req.valid("param").id;
-      const p = principalOf(c);
-      c.header("Cache-Control", "no-store");
-      return c.json(view(id, await mustSeeSeries(store, p, id), p), 200);
-    },
-  );
-
-  app.openapi(
-    createRoute({
-      method: "put",
-      path: "/v1/series/{id}/sharing",
-      tags: ["Sharing"],
-      summary: "Share your series with your group or everyone, or make it private again",
-      description: "Refused (409) when it would hide the series from runs that use it: " +
-        "another owner's runs, or your own runs shared more widely.",
-      middleware: [requireJson()] as const,
-      request: {
-        params: SeriesParam,
-        body: { required: true, content: { "application/json": { schema: ShareRequest } } },
-      },
-      responses: {
-        200: { description: "The holding after the change", ...answer },
-        ...problems(401, 403, 404, 409, 415, 422),
-      },
-    }),
-    async (c) => {
-      const id = c.req.valid("param").id;
-      const { visibility } = c.req.valid("json");
-      const p = principalOf(c);
-      const h = await mustHoldSeries(store, p, id, "share");
-      if (visibilityRank(visibility) < visibilityRank(h.visibility)) {
-        const usage = await store.seriesUsage(id, h.owner);
-        if (usage.others > 0) {
-          throw new ProblemError(
-            "conflict",
-            `Series ${id} is used by ${usage.others} run(s) of owners it was shared with; it ` +
-              "stays shared so they can be replayed",
-          );
-        }
-        const ownView: Viewer = { owner: h.owner, group: null, admin: false };
-        for (const rid of usage.own.slice(0, 1000)) {
-          const rh = await store.runHolding(rid, ownView);
-          if (rh && visibilityRank(rh.visibility) > visibilityRank(visibility)) {
-            throw new ProblemError(
-              "conflict",
-              `Series ${id} is an input of run ${rid}, which is ${rh.visibility}; the series ` +
-                `stays at least ${rh.visibility}`,
-              { runs: [rid] },
-            );
-          }
-        }
-      }
-      await store.setSeriesVisibility(id, h.owner, visibility);
-      return c.json(view(id, { ...h, visibility }, p), 200);
-    },
-  );
-
-  const FieldParam = z.object({
-    id: FieldId.openapi({ param: { name: "id", in: "path" } }),
-  });
-
-  app.openapi(
-    createRoute({
-      method: "get",
-      path: "/v1/fields/{id}/sharing",
-      tags: ["Sharing"],
-      summary: "Who holds this gridded field and who may see it (the copy you see)",
-      request: { params: FieldParam },
-      responses: { 200: { description: "The holding", ...answer }, ...problems(404, 422) },
-    }),
-    async (c) => {
-      const id = c.req.valid("param").id;
-      const p = principalOf(c);
-      c.header("Cache-Control", "no-store");
-      return c.json(view(id, await mustSeeField(store, p, id), p), 200);
-    },
-  );
-
-  app.openapi(
-    createRoute({
-      method: "put",
-      path: "/v1/fields/{id}/sharing",
-      tags: ["Sharing"],
-      summary: "Share your gridded field with your group or everyone, or make it private again",
-      description: "Refused (409) when it would hide the field from a run that uses it.",
-      middleware: [requireJson()] as const,
-      request: {
-        params: FieldParam,
-        body: { required: true, content: { "application/json": { schema: ShareRequest } } },
-      },
-      responses: {
-        200: { description: "The holding after the change", ...answer },
-        ...problems(401, 403, 404, 409, 415, 422),
-      },
-    }),
-    async (c) => {
-      const id = c.req.valid("param").id;
-      const { visibility } = c.req.valid("json");
-      const p = principalOf(c);
-      const h = await mustHoldField(store, p, id, "share");
-      if (visibilityRank(visibility) < visibilityRank(h.visibility)) {
-        const users = await store.runsUsingField(id);
-        if (users.length > 0) {
-          throw new ProblemError(
-            "conflict",
-            `Field ${id} is an input of ${users.length} run(s); it stays ${h.visibility} so ` +
-              "they can be replayed",
-          );
-        }
-      }
-      await store.setFieldVisibility(id, h.owner, visibility);
-      return c.json(view(id, { ...h, visibility }, p), 200);
-    },
-  );
-
-  app.openapi(
-    createRoute({
-      method: "get",
-      path: "/v1/runs/{id}/sharing",
-      tags: ["Sharing"],
-      summary: "Who holds this run and who may see it (the copy you see)",
-      request: { params: RunParam },
-      responses: { 200: { description: "The holding", ...answer }, ...problems(404, 422) },
-    }),
-    async (c) => {
-      const id = c.req.valid("param").id;
-      const p = principalOf(c);
-      c.header("Cache-Control", "no-store");
-      return c.json(view(id, await mustSeeRun(store, p, id), p), 200);
-    },
-  );
-
-  app.openapi(
-    createRoute({
-      method: "put",
-      path: "/v1/runs/{id}/sharing",
-      tags: ["Sharing"],
-      summary: "Share your run (and what it needs) with your group or everyone",
-      description: "Your own inputs of the run (series and runs, all the way down) are shared " +
-        "at least as widely, so whoever sees the run can fetch, chart, replay and bundle it. " +
-        "A public run must have succeeded and stays public: it may be cited.",
-      middleware: [requireJson()] as const,
-      request: {
-        params: RunParam,
-        body: { required: true, content: { "application/json": { schema: ShareRequest } } },
-      },
-      responses: {
-        200: { description: "The holding after the change", ...answer },
-        ...problems(401, 403, 404, 409, 415, 422),
-      },
-    }),
-    async (c) => {
-      const id = c.req.valid("param").id;
-      const { visibility } = c.req.valid("json");
-      const p = principalOf(c);
-      const h = await mustHoldRun(store, p, id, "share");
-      if (h.visibility === "public" && visibility !== "public") {
+/** A series made less visible must stay visible to every run that uses it. */
+async function shareSeries(store: Store, id: string, h: Holding, visibility: Visibility) {
+  if (visibilityRank(visibility) < visibilityRank(h.visibility)) {
+    const usage = await store.seriesUsage(id, h.owner);
+    if (usage.others > 0) {
+      throw new ProblemError(
+        "conflict",
+        `Series ${id} is used by ${usage.others} run(s) of owners it was shared with; it ` +
+          "stays shared so they can be replayed",
+      );
+    }
+    const ownView: Viewer = { owner: h.owner, group: null, admin: false };
+    for (const rid of usage.own.slice(0, 1000)) {
+      const rh = await store.runHolding(rid, ownView);
+      if (rh && visibilityRank(rh.visibility) > visibilityRank(visibility)) {
         throw new ProblemError(
           "conflict",
-          `Run ${id} is public and stays public: a public run may be cited`,
+          `Series ${id} is an input of run ${rid}, which is ${rh.visibility}; the series ` +
+            `stays at least ${rh.visibility}`,
+          { runs: [rid] },
         );
       }
-      if (visibility === "public") {
-        const run = await store.getRun(id);
-        if (run?.status !== "succeeded") {
-          throw new ProblemError(
-            "conflict",
-            `Run ${id} has status ${run?.status}; only a succeeded run can be made public`,
-          );
-        }
-      }
-      if (visibilityRank(visibility) > visibilityRank(h.visibility)) {
-        const plan = await shareClosure(store, h.owner, id, visibility);
-        for (const sid of plan.series) await store.setSeriesVisibility(sid, h.owner, visibility);
-        for (const rid of plan.runs) await store.setRunVisibility(rid, h.owner, visibility);
-        for (const fid of plan.fields) await store.setFieldVisibility(fid, h.owner, visibility);
-      }
-      await store.setRunVisibility(id, h.owner, visibility);
+    }
+  }
+  await store.setSeriesVisibility(id, h.owner, visibility);
+}
+
+/** A field made less visible must not be an input of any run. */
+async function shareField(store: Store, id: string, h: Holding, visibility: Visibility) {
+  if (visibilityRank(visibility) < visibilityRank(h.visibility)) {
+    const users = await store.runsUsingField(id);
+    if (users.length > 0) {
+      throw new ProblemError(
+        "conflict",
+        `Field ${id} is an input of ${users.length} run(s); it stays ${h.visibility} so ` +
+          "they can be replayed",
+      );
+    }
+  }
+  await store.setFieldVisibility(id, h.owner, visibility);
+}
+
+/**
+ * A public run stays public and must have succeeded; a run shared more widely raises its
+ * owner's inputs with it.
+ */
+async function shareRun(store: Store, id: string, h: Holding, visibility: Visibility) {
+  if (h.visibility === "public" && visibility !== "public") {
+    throw new ProblemError(
+      "conflict",
+      `Run ${id} is public and stays public: a public run may be cited`,
+    );
+  }
+  if (visibility === "public") {
+    const run = await store.getRun(id);
+    if (run?.status !== "succeeded") {
+      throw new ProblemError(
+        "conflict",
+        `Run ${id} has status ${run?.status}; only a succeeded run can be made public`,
+      );
+    }
+  }
+  if (visibilityRank(visibility) > visibilityRank(h.visibility)) {
+    const plan = await shareClosure(store, h.owner, id, visibility);
+    for (const sid of plan.series) await store.setSeriesVisibility(sid, h.owner, visibility);
+    for (const rid of plan.runs) await store.setRunVisibility(rid, h.owner, visibility);
+    for (const fid of plan.fields) await store.setFieldVisibility(fid, h.owner, visibility);
+  }
+  await store.setRunVisibility(id, h.owner, visibility);
+}
+
+/** Series, gridded fields and runs, in the order their routes are published. */
+const SHARED_KINDS: readonly SharedKind[] = [
+  {
+    path: "/v1/series/{id}",
+    id: SeriesId,
+    getSummary: "Who holds this series and who may see it (the copy you see)",
+    putSummary: "Share your series with your group or everyone, or make it private again",
+    putDescription: "Refused (409) when it would hide the series from runs that use it: " +
+      "another owner's runs, or your own runs shared more widely.",
+    see: mustSeeSeries,
+    hold: mustHoldSeries,
+    share: shareSeries,
+  },
+  {
+    path: "/v1/fields/{id}",
+    id: FieldId,
+    getSummary: "Who holds this gridded field and who may see it (the copy you see)",
+    putSummary: "Share your gridded field with your group or everyone, or make it private again",
+    putDescription: "Refused (409) when it would hide the field from a run that uses it.",
+    see: mustSeeField,
+    hold: mustHoldField,
+    share: shareField,
+  },
+  {
+    path: "/v1/runs/{id}",
+    id: RunIdString,
+    getSummary: "Who holds this run and who may see it (the copy you see)",
+    putSummary: "Share your run (and what it needs) with your group or everyone",
+    putDescription: "Your own inputs of the run (series and runs, all the way down) are shared " +
+      "at least as widely, so whoever sees the run can fetch, chart, replay and bundle it. " +
+      "A public run must have succeeded and stays public: it may be cited.",
+    see: mustSeeRun,
+    hold: mustHoldRun,
+    share: shareRun,
+  },
+];
+
+const answer = { content: { "application/json": { schema: Sharing } } };
+
+/** GET and PUT `{path}/sharing` for one kind of shared item. */
+function registerSharing(app: App, store: Store, kind: SharedKind): void {
+  const params = z.object({ id: kind.id.openapi({ param: { name: "id", in: "path" } }) });
+  const path = `${kind.path}/sharing`;
+  app.openapi(
+    createRoute({
+      method: "get",
+      path,
+      tags: ["Sharing"],
+      summary: kind.getSummary,
+      request: { params },
+      responses: { 200: { description: "The holding", ...answer }, ...problems(404, 422) },
+    }),
+    async (c) => {
+      const id = c.req.valid("param").id;
+      const p = principalOf(c);
+      c.header("Cache-Control", "no-store");
+      return c.json(view(id, await kind.see(store, p, id), p), 200);
+    },
+  );
+  app.openapi(
+    createRoute({
+      method: "put",
+      path,
+      tags: ["Sharing"],
+      summary: kind.putSummary,
+      description: kind.putDescription,
+      middleware: [requireJson()] as const,
+      request: {
+        params,
+        body: { required: true, content: { "application/json": { schema: ShareRequest } } },
+      },
+      responses: {
+        200: { description: "The holding after the change", ...answer },
+        ...problems(401, 403, 404, 409, 415, 422),
+      },
+    }),
+    async (c) => {
+      const id = c.req.valid("param").id;
+      const { visibility } = c.req.valid("json");
+      const p = principalOf(c);
+      const h = await kind.hold(store, p, id, "share");
+      await kind.share(store, id, h, visibility);
       return c.json(view(id, { ...h, visibility }, p), 200);
     },
   );
+}
+
+/** GET and PUT `/sharing` of series, gridded fields and runs. */
+export function registerSharingRoutes(app: App, deps: { store: Store }): void {
+  for (const kind of SHARED_KINDS) registerSharing(app, deps.store, kind);
 }

@@ -177,6 +177,14 @@ export interface KindChart<T> {
   needsInputs?: boolean;
   /** The chart, or null to fall back to the generic chart of the run's outputs. */
   build(run: RunRecord, result: T, inputs: StoredSeries[]): ChartSpec | MapChartSpec | null;
+  /**
+   * Other charts of the same result, chosen with `?view=<name>` on the chart route (names in
+   * snake_case); null from `build` means the result has nothing to draw in that view.
+   */
+  views?: Record<string, {
+    description: string;
+    build(run: RunRecord, result: T, inputs: StoredSeries[]): ChartSpec | MapChartSpec | null;
+  }>;
 }
 
 /** The typed (parsed) result of an analysis. */

@@ -552,7 +552,7 @@ export class RunService {
   async preflight(
     kind: RunKind,
     params: Record<string, unknown>,
-    inputs: { series: Record<string, StoredSeries>; runs: Record<string, RunRecord> },
+    inputs: RunInputs,
   ): Promise<void> {
     const checked = () => {
       throw new InputsChecked();

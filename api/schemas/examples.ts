@@ -44,3 +44,31 @@ export const DEMO_FIELD =
  * variant bits set), which no run ever has.
  */
 export const EXAMPLE_RUN_ID = "00000000-0000-7000-8000-000000000000";
+
+/**
+ * Four bands of the demo spectral record (200–220, 300–320, 500–525 and 1400–1600 nm) with
+ * their series' content ids, as a spectral model request takes them
+ * (fixtures/demo/spectral_bands.json has all 32).
+ */
+export const DEMO_SPECTRAL_BANDS = [
+  {
+    lower: 200,
+    upper: 220,
+    series: "sha256:b989ef8e13c3dce25198aaf9155f57dba2253578507d2fadc1fb0b8f0b063905",
+  },
+  {
+    lower: 300,
+    upper: 320,
+    series: "sha256:4e17ecd16fade0f65dff51c4bc4c06609ec7962eb9281768d6dab86bf1d6fccc",
+  },
+  {
+    lower: 500,
+    upper: 525,
+    series: "sha256:e5d8a5fcccb0ef089a35e811816e075c87e815990ea0c875cd07689ab46276fb",
+  },
+  {
+    lower: 1400,
+    upper: 1600,
+    series: "sha256:1f52459e170206d5818e5d69511952de300e4359e0936cdddaa270a4f74fc977",
+  },
+] as const;

@@ -114,346 +114,535 @@ export function requiredChoices(s) {
 }
 
 /**
+ * @typedef {object} Control The input of one field and how to read and fill it.
+ * @property {HTMLElement} input
+ * @property {() => unknown} read
+ * @property {(v: unknown) => void} [set]
+ * @property {() => Field[]} [children]
+ * @property {string[]} [itemKeys]
+ * @property {string} [note] Added to the hint.
+ * @property {boolean} [wide]
+ */
+
+/**
+ * @typedef {object} Prop One property of an object schema, as a field sees it.
+ * @property {any} doc
+ * @property {{ series: any[], runs: any[], preselect?: string, fields?: any[], field?: string }} ctx
+ * @property {string} name
+ * @property {string} pointer
+ * @property {string} id
+ * @property {any} inner The schema without its null alternative.
+ * @property {any} p The dereferenced schema.
+ * @property {any} outer The schema as written (description, default, example).
+ * @property {unknown} dflt
+ * @property {boolean} isRequired
+ * @property {string[] | undefined} choice The required choice the property is one of.
+ * @property {string} description
+ */
+
+/**
+ * A series picker; the first alternative of a choice with a fitting series is selected, not
+ * "(none)", and the series the view was opened with is chosen for the first picker.
+ * @param {Prop} c
+ * @param {Set<string[]>} filled Choices that already have a preselected alternative.
+ * @param {Field[]} fields The fields built so far.
+ * @returns {Control}
+ */
+function seriesControl(c, filled, fields) {
+  const { ctx, name, id, isRequired, choice } = c;
+  const ranked = seriesOptions(
+    ctx.series,
+    /^series$/i.test(name) ? `${name} ${c.description}` : name,
+  );
+  const opts = ranked.options;
+  let chosen = opts[0]?.id;
+  const preselect = isRequired ||
+    (choice !== undefined && !filled.has(choice) && ranked.fits(opts[0]));
+  if (choice && preselect) filled.add(choice);
+  if (
+    ctx.preselect && ctx.series.some((x) => x.id === ctx.preselect) &&
+    !fields.some((f) => f.input.dataset.series)
+  ) chosen = ctx.preselect;
+  const input = /** @type {HTMLSelectElement} */ (h(
+    "select",
+    { id, "data-series": "true" },
+    isRequired ? null : h("option", { value: "" }, "(none)"),
+    opts.map((x) =>
+      h(
+        "option",
+        { value: x.id, selected: x.id === chosen && preselect },
+        `${x.name} — ${x.quantity}, ${x.start_date}–${x.end_date}`,
+      )
+    ),
+  ));
+  return { input, read: () => input.value || undefined, set: selectSetter(input), wide: true };
+}
+
+/**
+ * Several series, chosen in a multiple select.
+ * @param {Prop} c
+ * @returns {Control}
+ */
+function seriesListControl(c) {
+  const { ctx, id, name } = c;
+  const input = /** @type {HTMLSelectElement} */ (h(
+    "select",
+    { id, multiple: true, size: String(Math.min(6, Math.max(3, ctx.series.length))) },
+    seriesOptions(ctx.series, name).options.map((x) =>
+      h("option", { value: x.id }, `${x.name} — ${x.quantity}`)
+    ),
+  ));
+  const read = () => {
+    const v = [...input.selectedOptions].map((o) => o.value);
+    return v.length ? v : undefined;
+  };
+  return { input, read, note: " Hold Ctrl (⌘ on a Mac) or Shift to choose several.", wide: true };
+}
+
+/**
+ * One of an enumeration's values; the default is left out of the request.
+ * @param {Prop} c
+ * @returns {Control}
+ */
+function enumControl(c) {
+  const { id, p, dflt, isRequired } = c;
+  const input = /** @type {HTMLSelectElement} */ (h(
+    "select",
+    { id },
+    dflt === undefined
+      ? h("option", { value: "" }, isRequired ? "choose…" : "(service default)")
+      : null,
+    p.enum.map((/** @type {unknown} */ v) =>
+      h("option", { value: String(v), selected: v === dflt }, String(v))
+    ),
+  ));
+  const read = () => {
+    const v = input.value;
+    if (v === "") return undefined;
+    const match = p.enum.find((/** @type {unknown} */ e) => String(e) === v);
+    return match === dflt && !isRequired ? undefined : match;
+  };
+  return { input, read, set: selectSetter(input) };
+}
+
+/**
+ * The alternatives of a schema that are all strings or numbers, or none.
+ * @param {any} doc
+ * @param {any} p
+ * @returns {any[] | null}
+ */
+function scalarAlternatives(doc, p) {
+  const alts = p.anyOf ?? p.oneOf;
+  return Array.isArray(alts) &&
+      alts.every((/** @type {any} */ a) =>
+        ["string", "number", "integer"].includes(deref(doc, a).type)
+      )
+    ? alts
+    : null;
+}
+
+/**
+ * A time or a number written either way (e.g. "1996-08" or 1996.6): one text box.
+ * @param {Prop} c
+ * @param {any[]} alts
+ * @returns {Control}
+ */
+function eitherControl(c, alts) {
+  const { doc, id, p, outer, dflt } = c;
+  const input = /** @type {HTMLInputElement} */ (h("input", {
+    id,
+    type: "text",
+    autocomplete: "off",
+    placeholder: dflt !== undefined ? String(dflt) : (p.example ?? outer.example ?? ""),
+  }));
+  const numeric = alts.some((/** @type {any} */ a) =>
+    ["number", "integer"].includes(deref(doc, a).type)
+  );
+  const read = () => {
+    const t = input.value.trim();
+    if (t === "") return undefined;
+    return numeric && /^[-+]?\d+(\.\d+)?$/.test(t) && !/^\d{4}$/.test(t) ? Number(t) : t;
+  };
+  return { input, read, set: (v) => (input.value = String(v ?? "")) };
+}
+
+/**
+ * A check box; the default is left out of the request.
+ * @param {Prop} c
+ * @returns {Control}
+ */
+function booleanControl(c) {
+  const input = /** @type {HTMLInputElement} */ (h("input", {
+    id: c.id,
+    type: "checkbox",
+    checked: c.dflt === true,
+  }));
+  const read = () => (c.dflt !== undefined && input.checked === c.dflt ? undefined : input.checked);
+  return { input, read };
+}
+
+/**
+ * A number box with the schema's bounds.
+ * @param {Prop} c
+ * @returns {Control}
+ */
+function numberControl(c) {
+  const { id, p, dflt } = c;
+  const input = /** @type {HTMLInputElement} */ (h("input", {
+    id,
+    type: "number",
+    step: p.type === "integer" ? "1" : "any",
+    min: p.minimum ?? p.exclusiveMinimum,
+    max: p.maximum ?? p.exclusiveMaximum,
+    placeholder: dflt !== undefined ? String(dflt) : "",
+    inputmode: "decimal",
+  }));
+  const read = () => {
+    const t = input.value.trim();
+    return t === "" ? undefined : Number(t);
+  };
+  return { input, read, set: (v) => (input.value = String(v ?? "")) };
+}
+
+/**
+ * A stored gridded field: pick one of the fields the caller can see.
+ * @param {Prop} c
+ * @returns {Control}
+ */
+function gridFieldControl(c) {
+  const sel = /** @type {HTMLSelectElement} */ (h(
+    "select",
+    { id: c.id },
+    (c.ctx.fields ?? []).map((f) =>
+      h(
+        "option",
+        { value: f.id, selected: f.id === c.ctx.field },
+        `${f.name} (${f.n_lat} × ${f.n_lon})`,
+      )
+    ),
+  ));
+  return {
+    input: sel,
+    wide: true,
+    read: () => (sel.value === "" ? undefined : sel.value),
+    set: (v) => (sel.value = String(v ?? "")),
+  };
+}
+
+/**
+ * The caller's runs offered for a run id (model runs for a model), and the first of them.
+ * @param {Prop} c
+ * @param {string} listId
+ */
+function runChoices(c, listId) {
+  const want = c.name.toLowerCase().includes("model")
+    ? (/** @type {any} */ r) => /model/.test(r.kind)
+    : () => true;
+  const list = h(
+    "datalist",
+    { id: listId },
+    c.ctx.runs.filter(want).map((r) =>
+      h(
+        "option",
+        { value: r.id },
+        `${pretty(r.kind)} run ${runLabel(r.id)} · ${when(r.created_at)}`,
+      )
+    ),
+  );
+  return { list, first: c.ctx.runs.find(want) };
+}
+
+/**
+ * A text box; for a run id, with the caller's runs offered (and the first filled in when
+ * the field is required).
+ * @param {Prop} c
+ * @returns {Control}
+ */
+function textControl(c) {
+  const { id, p, dflt, name } = c;
+  const runLike = /run|model/i.test(name) ||
+    (typeof p.pattern === "string" && p.pattern.includes("0-9a-f-"));
+  const listId = `${id}-runs`;
+  const el = /** @type {HTMLInputElement} */ (h("input", {
+    id,
+    type: "text",
+    placeholder: dflt !== undefined ? String(dflt) : "",
+    list: runLike ? listId : null,
+    autocomplete: "off",
+  }));
+  /** @type {HTMLElement} */
+  let input = el;
+  if (runLike) {
+    const { list, first } = runChoices(c, listId);
+    input = h("span", null, el, list);
+    if (first && c.isRequired) el.value = first.id;
+  }
+  return {
+    input,
+    wide: runLike,
+    read: () => (el.value.trim() === "" ? undefined : el.value.trim()),
+    set: (v) => (el.value = v === undefined || v === null ? "" : String(v)),
+  };
+}
+
+/**
+ * An array of records (e.g. model terms): one small fieldset per record, with buttons to add
+ * a record and remove the last (within the schema's minItems and maxItems).
+ * @param {Prop} c
+ * @returns {Control}
+ */
+function recordsControl(c) {
+  const { doc, ctx, name, pointer, id, p } = c;
+  const item = deref(doc, p.items);
+  const min = Math.max(1, p.minItems ?? 1);
+  const max = p.maxItems ?? 50;
+  const noun = pretty(name).replace(/(ie)?s$/, (m) => (m === "ies" ? "y" : ""));
+  const rowsBox = h("div", { class: "rows" });
+  /** @type {Field[][]} */
+  const rows = [];
+  const changed = () => rowsBox.dispatchEvent(new Event("change", { bubbles: true }));
+  const button = (
+    /** @type {() => void} */ f,
+    /** @type {string} */ text,
+  ) => /** @type {HTMLButtonElement} */ (h("button", {
+    type: "button",
+    class: "ghost",
+    onclick: () => (f(), changed()),
+  }, text));
+  const add = button(() => addRow(), `Add ${noun.toLowerCase()}`);
+  const remove = button(() => removeRow(), "Remove the last");
+  const sync = () => {
+    add.disabled = rows.length >= max;
+    remove.disabled = rows.length <= min;
+  };
+  const addRow = () => {
+    const i = rows.length;
+    const sub = buildFields(doc, item, `${pointer}/${i}`, { ...ctx, preselect: undefined });
+    rows.push(sub);
+    rowsBox.append(h(
+      "fieldset",
+      { class: "row" },
+      h("legend", null, `${noun} ${i + 1}`),
+      h("div", { class: "grid" }, sub.map((f) => f.wrap)),
+    ));
+    sync();
+  };
+  const removeRow = () => {
+    if (rows.length <= min) return;
+    rows.pop();
+    rowsBox.lastElementChild?.remove();
+    sync();
+  };
+  for (let i = 0; i < min; i++) addRow();
+  /** @param {unknown} v */
+  const set = (v) => {
+    if (!Array.isArray(v)) return;
+    while (rows.length < Math.min(max, v.length)) addRow();
+    while (rows.length > Math.max(min, v.length)) removeRow();
+    rows.forEach((sub, i) => {
+      for (const f of sub) {
+        const key = f.pointer.slice(`${pointer}/${i}/`.length);
+        if (v[i] && v[i][key] !== undefined) f.set?.(v[i][key]);
+      }
+    });
+  };
+  return {
+    input: h("div", { id, tabindex: "-1" }, rowsBox, h("div", { class: "actions" }, add, remove)),
+    read: () => rows.map((sub, i) => collect(sub, `${pointer}/${i}`)),
+    set,
+    children: () => rows.flat(),
+    itemKeys: Object.keys(item.properties),
+    wide: true,
+  };
+}
+
+/**
+ * A list of numbers or strings, comma- or space-separated.
+ * @param {Prop} c
+ * @returns {Control}
+ */
+function listControl(c) {
+  const it = deref(c.doc, c.p.items).type;
+  const input = /** @type {HTMLInputElement} */ (h("input", {
+    id: c.id,
+    type: "text",
+    placeholder: Array.isArray(c.dflt) ? c.dflt.join(", ") : "comma-separated",
+  }));
+  const read = () => {
+    const t = input.value.trim();
+    if (t === "") return undefined;
+    const parts = t.split(/[,\s]+/).filter(Boolean);
+    return it === "string" ? parts : parts.map(Number);
+  };
+  return { input, read };
+}
+
+/**
+ * Anything else, written as JSON (sent as text when it does not parse).
+ * @param {Prop} c
+ * @returns {Control}
+ */
+function jsonControl(c) {
+  const input = /** @type {HTMLTextAreaElement} */ (h("textarea", {
+    id: c.id,
+    rows: "3",
+    placeholder: c.dflt !== undefined ? JSON.stringify(c.dflt) : "JSON",
+  }));
+  const read = () => {
+    const t = input.value.trim();
+    if (t === "") return undefined;
+    try {
+      return JSON.parse(t);
+    } catch {
+      return t;
+    }
+  };
+  return { input, read, wide: true };
+}
+
+/**
+ * The control for a property by its schema, or null for a nested object (whose own
+ * properties become fields).
+ * @param {Prop} c
+ * @param {string} prefix
+ * @param {Set<string[]>} filled
+ * @param {Field[]} fields
+ * @returns {Control | null}
+ */
+function controlFor(c, prefix, filled, fields) {
+  const { doc, inner, p } = c;
+  const alts = scalarAlternatives(doc, p);
+  if (isSeriesRef(doc, inner)) return seriesControl(c, filled, fields);
+  if (p.type === "array" && isSeriesRef(doc, p.items)) return seriesListControl(c);
+  if (Array.isArray(p.enum)) return enumControl(c);
+  if (alts) return eitherControl(c, alts);
+  if (p.type === "boolean") return booleanControl(c);
+  if (p.type === "number" || p.type === "integer") return numberControl(c);
+  if (p.type === "string" && typeof p.pattern === "string" && p.pattern.includes("field:")) {
+    return gridFieldControl(c);
+  }
+  if (p.type === "string") return textControl(c);
+  if (p.type === "array" && deref(doc, p.items)?.properties) return recordsControl(c);
+  if (p.type === "object" && p.properties && !prefix.includes("/", 1)) return null;
+  if (p.type === "array" && ["number", "integer", "string"].includes(deref(doc, p.items)?.type)) {
+    return listControl(c);
+  }
+  return jsonControl(c);
+}
+
+/**
+ * A property as the form sees it: its pointer and id, schema, default, whether it is
+ * required, the required choice it belongs to, and its description (naming that choice).
+ * @param {any} doc
+ * @param {Prop["ctx"]} ctx
+ * @param {string} name
+ * @param {any} raw
+ * @param {string} prefix
+ * @param {boolean} required
+ * @param {string[] | undefined} choice
+ * @returns {Prop}
+ */
+function propOf(doc, ctx, name, raw, prefix, required, choice) {
+  const pointer = `${prefix}/${name}`;
+  const { schema: inner, nullable, outer } = nonNull(doc, raw);
+  const p = deref(doc, inner);
+  const dflt = outer.default ?? p.default;
+  const text = outer.description ?? p.description ?? "";
+  const description = choice
+    ? `${text}${text === "" ? "" : /[.!?]\s*$/.test(text) ? " " : ". "}Give one of: ${
+      choice.map(pretty).join(", ")
+    }.`
+    : text;
+  return {
+    doc,
+    ctx,
+    name,
+    pointer,
+    id: "f" + pointer.replace(/[^\w]/g, "_"),
+    inner,
+    p,
+    outer,
+    dflt,
+    isRequired: required && dflt === undefined && !nullable,
+    choice,
+    description,
+  };
+}
+
+/**
+ * The field of a property around its control: label, hint (with the default), error line.
+ * @param {Prop} c
+ * @param {Control} control
+ * @returns {Field}
+ */
+function fieldOf(c, control) {
+  const { id, p, dflt, isRequired, pointer } = c;
+  const label = pretty(c.name);
+  const { input } = control;
+  const error = h("span", { class: "field-error", id: `${id}-err` });
+  const el = p.type === "array" && control.itemKeys
+    ? input
+    : input.querySelector?.("input, select, textarea") ?? input;
+  el.setAttribute("aria-describedby", `${id}-hint ${id}-err`);
+  if (isRequired) el.setAttribute("aria-required", "true");
+  const wrap = h(
+    "div",
+    { class: control.wide ? "field wide" : "field", "data-pointer": pointer },
+    p.type === "boolean"
+      ? h("label", { for: id }, input, " ", label)
+      : [h("label", { for: id }, label, isRequired ? " *" : ""), input],
+    h(
+      "span",
+      { class: "hint", id: `${id}-hint` },
+      c.description + (control.note ?? "") +
+        (dflt !== undefined && p.type !== "boolean" ? ` (default ${JSON.stringify(dflt)})` : ""),
+    ),
+    error,
+  );
+  return {
+    pointer,
+    label,
+    read: control.read,
+    input: /** @type {HTMLElement} */ (el),
+    wrap,
+    error,
+    main: isRequired || c.choice !== undefined,
+    set: control.set,
+    children: control.children,
+    itemKeys: control.itemKeys,
+  };
+}
+
+/**
  * Build form fields for the properties of an object schema.
  * @param {any} doc
  * @param {any} schema
  * @param {string} prefix JSON Pointer prefix.
- * @param {{ series: any[], runs: any[], preselect?: string, fields?: any[], field?: string }} ctx
+ * @param {Prop["ctx"]} ctx
  * @param {boolean} [optional] The object itself is optional: none of its fields is required.
  * @returns {Field[]}
  */
 export function buildFields(doc, schema, prefix, ctx, optional = false) {
   const s = objectSchema(doc, schema);
-  const props = s.properties ?? {};
   const required = new Set(s.required ?? []);
   // Alternatives of a required choice are shown with the required fields; the first one that
   // has a fitting value is preselected (e.g. `solar` before `solar_run`).
   const choices = optional ? [] : requiredChoices(s);
-  const choiceOf = (/** @type {string} */ name) => choices.find((c) => c.includes(name));
   /** @type {Set<string[]>} */
   const filled = new Set();
   /** @type {Field[]} */
   const fields = [];
-  for (const [name, raw] of Object.entries(props)) {
-    const pointer = `${prefix}/${name}`;
-    const id = "f" + pointer.replace(/[^\w]/g, "_");
-    const { schema: inner, nullable, outer } = nonNull(doc, raw);
-    const p = deref(doc, inner);
-    const dflt = outer.default ?? p.default;
-    const isRequired = !optional && required.has(name) && dflt === undefined && !nullable;
-    const choice = choiceOf(name);
-    const text = outer.description ?? p.description ?? "";
-    const description = choice
-      ? `${text}${text === "" ? "" : /[.!?]\s*$/.test(text) ? " " : ". "}Give one of: ${
-        choice.map(pretty).join(", ")
-      }.`
-      : text;
-    const label = pretty(name);
-    const error = h("span", { class: "field-error", id: `${id}-err` });
-    /** @type {HTMLElement} */
-    let input;
-    /** @type {() => unknown} */
-    let read;
-    /** @type {((v: unknown) => void) | undefined} */
-    let set;
-    /** @type {(() => Field[]) | undefined} */
-    let children;
-    /** @type {string[] | undefined} */
-    let itemKeys;
-    let note = "";
-    let wide = false;
-    if (isSeriesRef(doc, inner)) {
-      const ranked = seriesOptions(
-        ctx.series,
-        /^series$/i.test(name) ? `${name} ${description}` : name,
-      );
-      const opts = ranked.options;
-      let chosen = opts[0]?.id;
-      // the first alternative of a choice with a fitting series is selected, not "(none)"
-      const preselect = isRequired ||
-        (choice !== undefined && !filled.has(choice) && ranked.fits(opts[0]));
-      if (choice && preselect) filled.add(choice);
-      if (
-        ctx.preselect && ctx.series.some((x) => x.id === ctx.preselect) &&
-        !fields.some((f) => f.input.dataset.series)
-      ) chosen = ctx.preselect;
-      input = h(
-        "select",
-        { id, "data-series": "true" },
-        isRequired ? null : h("option", { value: "" }, "(none)"),
-        opts.map((x) =>
-          h(
-            "option",
-            { value: x.id, selected: x.id === chosen && preselect },
-            `${x.name} — ${x.quantity}, ${x.start_date}–${x.end_date}`,
-          )
-        ),
-      );
-      read = () => /** @type {HTMLSelectElement} */ (input).value || undefined;
-      set = selectSetter(/** @type {HTMLSelectElement} */ (input));
-      wide = true;
-    } else if (p.type === "array" && isSeriesRef(doc, p.items)) {
-      input = h(
-        "select",
-        { id, multiple: true, size: String(Math.min(6, Math.max(3, ctx.series.length))) },
-        seriesOptions(ctx.series, name).options.map((x) =>
-          h("option", { value: x.id }, `${x.name} — ${x.quantity}`)
-        ),
-      );
-      read = () => {
-        const v = [.../** @type {HTMLSelectElement} */ (input).selectedOptions].map((o) => o.value);
-        return v.length ? v : undefined;
-      };
-      note = " Hold Ctrl (⌘ on a Mac) or Shift to choose several.";
-      wide = true;
-    } else if (Array.isArray(p.enum)) {
-      input = h(
-        "select",
-        { id },
-        dflt === undefined
-          ? h("option", { value: "" }, isRequired ? "choose…" : "(service default)")
-          : null,
-        p.enum.map((/** @type {unknown} */ v) =>
-          h("option", { value: String(v), selected: v === dflt }, String(v))
-        ),
-      );
-      set = selectSetter(/** @type {HTMLSelectElement} */ (input));
-      read = () => {
-        const v = /** @type {HTMLSelectElement} */ (input).value;
-        if (v === "") return undefined;
-        const match = p.enum.find((/** @type {unknown} */ e) => String(e) === v);
-        return match === dflt && !isRequired ? undefined : match;
-      };
-    } else if (
-      Array.isArray(p.anyOf ?? p.oneOf) &&
-      (p.anyOf ?? p.oneOf).every((/** @type {any} */ a) =>
-        ["string", "number", "integer"].includes(deref(doc, a).type)
-      )
-    ) {
-      // A time or a number written either way (e.g. "1996-08" or 1996.6): one text box.
-      input = h("input", {
-        id,
-        type: "text",
-        autocomplete: "off",
-        placeholder: dflt !== undefined ? String(dflt) : (p.example ?? outer.example ?? ""),
-      });
-      const numeric = (p.anyOf ?? p.oneOf).some((/** @type {any} */ a) =>
-        ["number", "integer"].includes(deref(doc, a).type)
-      );
-      read = () => {
-        const t = /** @type {HTMLInputElement} */ (input).value.trim();
-        if (t === "") return undefined;
-        return numeric && /^[-+]?\d+(\.\d+)?$/.test(t) && !/^\d{4}$/.test(t) ? Number(t) : t;
-      };
-      set = (v) => (/** @type {HTMLInputElement} */ (input).value = String(v ?? ""));
-    } else if (p.type === "boolean") {
-      input = h("input", { id, type: "checkbox", checked: dflt === true });
-      read = () => {
-        const v = /** @type {HTMLInputElement} */ (input).checked;
-        return dflt !== undefined && v === dflt ? undefined : v;
-      };
-    } else if (p.type === "number" || p.type === "integer") {
-      input = h("input", {
-        id,
-        type: "number",
-        step: p.type === "integer" ? "1" : "any",
-        min: p.minimum ?? p.exclusiveMinimum,
-        max: p.maximum ?? p.exclusiveMaximum,
-        placeholder: dflt !== undefined ? String(dflt) : "",
-        inputmode: "decimal",
-      });
-      read = () => {
-        const t = /** @type {HTMLInputElement} */ (input).value.trim();
-        return t === "" ? undefined : Number(t);
-      };
-      set = (v) => (/** @type {HTMLInputElement} */ (input).value = String(v ?? ""));
-    } else if (
-      p.type === "string" && typeof p.pattern === "string" && p.pattern.includes("field:")
-    ) {
-      // a stored gridded field: pick one of the fields the caller can see
-      const sel = /** @type {HTMLSelectElement} */ (h(
-        "select",
-        { id },
-        (ctx.fields ?? []).map((f) =>
-          h(
-            "option",
-            { value: f.id, selected: f.id === ctx.field },
-            `${f.name} (${f.n_lat} × ${f.n_lon})`,
-          )
-        ),
-      ));
-      input = sel;
-      wide = true;
-      read = () => (sel.value === "" ? undefined : sel.value);
-      set = (v) => (sel.value = String(v ?? ""));
-    } else if (p.type === "string") {
-      const runLike = /run|model/i.test(name) ||
-        (typeof p.pattern === "string" && p.pattern.includes("0-9a-f-"));
-      const listId = `${id}-runs`;
-      input = h("input", {
-        id,
-        type: "text",
-        placeholder: dflt !== undefined ? String(dflt) : "",
-        list: runLike ? listId : null,
-        autocomplete: "off",
-      });
-      if (runLike) {
-        const want = name.toLowerCase().includes("model")
-          ? (/** @type {any} */ r) => /model/.test(r.kind)
-          : () => true;
-        const list = h(
-          "datalist",
-          { id: listId },
-          ctx.runs.filter(want).map((r) =>
-            h(
-              "option",
-              { value: r.id },
-              `${pretty(r.kind)} run ${runLabel(r.id)} · ${when(r.created_at)}`,
-            )
-          ),
-        );
-        input = h("span", null, input, list);
-        const first = ctx.runs.find(want);
-        if (first && isRequired) {
-          /** @type {HTMLInputElement} */ (input.firstChild).value = first.id;
-        }
-      }
-      const el = /** @type {HTMLInputElement} */ (runLike ? input.firstChild : input);
-      if (runLike) wide = true;
-      read = () => (el.value.trim() === "" ? undefined : el.value.trim());
-      set = (v) => (el.value = v === undefined || v === null ? "" : String(v));
-    } else if (p.type === "array" && deref(doc, p.items)?.properties) {
-      // An array of records (e.g. model terms): one small fieldset per record.
-      const item = deref(doc, p.items);
-      const min = Math.max(1, p.minItems ?? 1);
-      const max = p.maxItems ?? 50;
-      const noun = pretty(name).replace(/(ie)?s$/, (m) => (m === "ies" ? "y" : ""));
-      const rowsBox = h("div", { class: "rows" });
-      /** @type {Field[][]} */
-      const rows = [];
-      const changed = () => rowsBox.dispatchEvent(new Event("change", { bubbles: true }));
-      const add = /** @type {HTMLButtonElement} */ (h("button", {
-        type: "button",
-        class: "ghost",
-        onclick: () => (addRow(), changed()),
-      }, `Add ${noun.toLowerCase()}`));
-      const remove = /** @type {HTMLButtonElement} */ (h("button", {
-        type: "button",
-        class: "ghost",
-        onclick: () => (removeRow(), changed()),
-      }, "Remove the last"));
-      const sync = () => {
-        add.disabled = rows.length >= max;
-        remove.disabled = rows.length <= min;
-      };
-      const addRow = () => {
-        const i = rows.length;
-        const sub = buildFields(doc, item, `${pointer}/${i}`, { ...ctx, preselect: undefined });
-        rows.push(sub);
-        rowsBox.append(h(
-          "fieldset",
-          { class: "row" },
-          h("legend", null, `${noun} ${i + 1}`),
-          h("div", { class: "grid" }, sub.map((f) => f.wrap)),
-        ));
-        sync();
-      };
-      const removeRow = () => {
-        if (rows.length <= min) return;
-        rows.pop();
-        rowsBox.lastElementChild?.remove();
-        sync();
-      };
-      for (let i = 0; i < min; i++) addRow();
-      input = h(
-        "div",
-        { id, tabindex: "-1" },
-        rowsBox,
-        h("div", { class: "actions" }, add, remove),
-      );
-      read = () => rows.map((sub, i) => collect(sub, `${pointer}/${i}`));
-      set = (v) => {
-        if (!Array.isArray(v)) return;
-        while (rows.length < Math.min(max, v.length)) addRow();
-        while (rows.length > Math.max(min, v.length)) removeRow();
-        rows.forEach((sub, i) => {
-          for (const f of sub) {
-            const key = f.pointer.slice(`${pointer}/${i}/`.length);
-            if (v[i] && v[i][key] !== undefined) f.set?.(v[i][key]);
-          }
-        });
-      };
-      children = () => rows.flat();
-      itemKeys = Object.keys(item.properties);
-      wide = true;
-    } else if (p.type === "object" && p.properties && !prefix.includes("/", 1)) {
-      const sub = buildFields(doc, p, pointer, ctx, !isRequired);
-      // the fields of an alternative of a required choice (e.g. a sinusoid) are shown too
-      fields.push(...sub.map((f) => (choice ? { ...f, main: true } : f)));
+  for (const [name, raw] of Object.entries(s.properties ?? {})) {
+    const choice = choices.find((ch) => ch.includes(name));
+    const c = propOf(doc, ctx, name, raw, prefix, !optional && required.has(name), choice);
+    const control = controlFor(c, prefix, filled, fields);
+    if (control) {
+      fields.push(fieldOf(c, control));
       continue;
-    } else if (
-      p.type === "array" && ["number", "integer", "string"].includes(deref(doc, p.items)?.type)
-    ) {
-      const it = deref(doc, p.items).type;
-      input = h("input", {
-        id,
-        type: "text",
-        placeholder: Array.isArray(dflt) ? dflt.join(", ") : "comma-separated",
-      });
-      read = () => {
-        const t = /** @type {HTMLInputElement} */ (input).value.trim();
-        if (t === "") return undefined;
-        const parts = t.split(/[,\s]+/).filter(Boolean);
-        return it === "string" ? parts : parts.map(Number);
-      };
-    } else {
-      input = h("textarea", {
-        id,
-        rows: "3",
-        placeholder: dflt !== undefined ? JSON.stringify(dflt) : "JSON",
-      });
-      read = () => {
-        const t = /** @type {HTMLTextAreaElement} */ (input).value.trim();
-        if (t === "") return undefined;
-        try {
-          return JSON.parse(t);
-        } catch {
-          return t;
-        }
-      };
-      wide = true;
     }
-    const control = p.type === "array" && itemKeys
-      ? input
-      : input.querySelector?.("input, select, textarea") ?? input;
-    control.setAttribute("aria-describedby", `${id}-hint ${id}-err`);
-    if (isRequired) control.setAttribute("aria-required", "true");
-    const wrap = h(
-      "div",
-      { class: wide ? "field wide" : "field", "data-pointer": pointer },
-      p.type === "boolean"
-        ? h("label", { for: id }, input, " ", label)
-        : [h("label", { for: id }, label, isRequired ? " *" : ""), input],
-      h(
-        "span",
-        { class: "hint", id: `${id}-hint` },
-        description + note +
-          (dflt !== undefined && p.type !== "boolean" ? ` (default ${JSON.stringify(dflt)})` : ""),
-      ),
-      error,
-    );
-    fields.push({
-      pointer,
-      label,
-      read,
-      input: /** @type {HTMLElement} */ (control),
-      wrap,
-      error,
-      main: isRequired || choice !== undefined,
-      set,
-      children,
-      itemKeys,
-    });
+    const sub = buildFields(doc, c.p, c.pointer, ctx, !c.isRequired);
+    // the fields of an alternative of a required choice (e.g. a sinusoid) are shown too
+    fields.push(...sub.map((f) => (choice ? { ...f, main: true } : f)));
   }
   return fields;
 }

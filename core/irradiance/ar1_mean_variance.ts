@@ -11,7 +11,8 @@ import { InputError } from "../errors.ts";
  * f = 1 + 2[ρ/(1 − ρ) − ρ(1 − ρ^m)/(m(1 − ρ)²)] (the standard result for the mean of a
  * stationary series, e.g. Wilks 2011, Statistical Methods in the Atmospheric Sciences, 3rd
  * ed., §5.2.4, here in its exact finite-m form). Non-integer m (a month of 30.44 days) uses the
- * same expression; m ≤ 1 gives 1.
+ * same expression, with ρ^m read as sign(ρ)^round(m)·|ρ|^m for negative ρ ({@link ar1Power});
+ * m ≤ 1 gives 1.
  *
  * @param m number of values averaged (≥ 0)
  * @param rho lag-1 autocorrelation in (−1, 1)
@@ -42,6 +43,29 @@ export function ar1MeanVarianceFactor(m: number, rho: number): number {
   }
   if (m <= 1 || rho === 0) return 1;
   const a = rho / (1 - rho);
-  const b = (rho * (1 - Math.pow(rho, m))) / (m * (1 - rho) * (1 - rho));
+  const b = (rho * (1 - ar1Power(rho, m))) / (m * (1 - rho) * (1 - rho));
   return 1 + 2 * (a - b);
+}
+
+/**
+ * ρ^m for an AR(1) coefficient and a possibly non-integer number of steps m ≥ 0: the plain
+ * power for ρ ≥ 0; for negative ρ, sign(ρ)^round(m)·|ρ|^m, which agrees with ρ^m at integer m
+ * and stays finite between them (a real power of a negative number is not defined).
+ *
+ * @param rho lag-1 autocorrelation in (−1, 1)
+ * @param m steps, ≥ 0
+ * @returns the correlation after m steps
+ * @example
+ * ```ts
+ * import { ar1Power } from "./ar1_mean_variance.ts";
+ * import assert from "node:assert/strict";
+ * assert.equal(ar1Power(0.5, 2), 0.25);
+ * assert.equal(ar1Power(-0.5, 3), -0.125);
+ * assert.ok(Number.isFinite(ar1Power(-0.5, 2.5)));
+ * ```
+ */
+export function ar1Power(rho: number, m: number): number {
+  if (rho >= 0) return Math.pow(rho, m);
+  const p = Math.pow(-rho, m);
+  return Math.round(m) % 2 === 0 ? p : -p;
 }

@@ -11,13 +11,13 @@
  *
  * @module
  */
-import { CholeskyDecomposition, Matrix } from "ml-matrix";
 import { sum } from "d3-array";
 import { InputError } from "../errors.ts";
 import type { RandomStream } from "../random/mod.ts";
 import { residualLag1 } from "../stats/residual_lag1.ts";
 import { evaluateProxyModel, type ProxyModelTerms } from "./proxy_model_evaluation.ts";
-import { evaluateSunspotMapping, type SunspotProxyMapping } from "./sunspot_proxy_mapping.ts";
+import { choleskyLower, drawMultivariateNormal } from "../stats/multivariate_normal.ts";
+import { sunspotMappingValues, type SunspotProxyMapping } from "./sunspot_proxy_mapping.ts";
 
 /** Fewest overlap cells the residual process is estimated from. */
 export const MIN_BACK_EXTENSION_CELLS = 4;
@@ -106,15 +106,90 @@ export interface DrawMappedProxyOptions {
 }
 
 /**
+ * The lower Cholesky factor of a mapping's parameter covariance, for
+ * {@link drawSunspotMappingCoefficients} (computed once, used for every member).
+ *
+ * @param mapping the fitted mapping
+ * @returns L with Σ = LLᵀ
+ * @throws {InputError} (field `mapping`) when the covariance is not finite (an unidentified R0)
+ *   or not positive definite
+ * @example
+ * ```ts
+ * import { mappingCholesky } from "./back_extension.ts";
+ * import { fitLinearSunspotMapping } from "./sunspot_proxy_mapping.ts";
+ * import assert from "node:assert/strict";
+ * const m = fitLinearSunspotMapping([0, 50, 100, 150], [0.15, 0.1551, 0.1599, 0.165]);
+ * const L = mappingCholesky(m);
+ * assert.ok(Math.abs(L[0][0] ** 2 - m.covariance[0][0]) < 1e-18);
+ * ```
+ */
+export function mappingCholesky(mapping: SunspotProxyMapping): number[][] {
+  const S = mapping.covariance, p = mapping.coefficients.length;
+  if (!S.every((row) => row.length === p && row.every(Number.isFinite))) {
+    throw new InputError(
+      "Cannot draw a mapped proxy: the mapping's parameter covariance is not finite (an unidentified R0?)",
+      { field: "mapping", reason: "invalid" },
+    );
+  }
+  try {
+    return choleskyLower(S);
+  } catch (e) {
+    if (!(e instanceof InputError)) throw e;
+    throw new InputError(
+      "Cannot draw a mapped proxy: the mapping's parameter covariance is not positive definite",
+      { field: "mapping", reason: "invalid" },
+    );
+  }
+}
+
+/**
+ * One draw of a mapping's parameters from their normal approximation N(ĉ, Σ) (the
+ * Gauss–Newton covariance; Bates & Watts 1988, Nonlinear Regression Analysis, §2.3):
+ * c = ĉ + Lz ({@link drawMultivariateNormal}); a saturating draw with R0 ≤ 0 (no such mapping)
+ * is redrawn.
+ *
+ * @param mapping the fitted mapping
+ * @param lower its factor from {@link mappingCholesky}
+ * @param stream a seeded random stream (p normal draws per attempt)
+ * @param maxRedraws redraws allowed @default 100
+ * @returns the drawn coefficients
+ * @throws {InputError} (field `mapping`) when no admissible R0 was drawn
+ * @example
+ * ```ts
+ * import { drawSunspotMappingCoefficients, mappingCholesky } from "./back_extension.ts";
+ * import { fitLinearSunspotMapping } from "./sunspot_proxy_mapping.ts";
+ * import { randomStream } from "../random/mod.ts";
+ * import assert from "node:assert/strict";
+ * const m = fitLinearSunspotMapping([0, 50, 100, 150], [0.15, 0.1551, 0.1599, 0.165]);
+ * const c = drawSunspotMappingCoefficients(m, mappingCholesky(m), randomStream(1));
+ * assert.ok(Math.abs(c[1] - m.coefficients[1]) < 10 * m.standardErrors[1]);
+ * ```
+ */
+export function drawSunspotMappingCoefficients(
+  mapping: SunspotProxyMapping,
+  lower: readonly (readonly number[])[],
+  stream: RandomStream,
+  maxRedraws = 100,
+): number[] {
+  for (let attempt = 0; attempt <= maxRedraws; attempt++) {
+    const drawn = drawMultivariateNormal(mapping.coefficients, lower, stream);
+    if (mapping.form === "saturating" && !(drawn[2] > 0)) continue;
+    return drawn;
+  }
+  throw new InputError(
+    `Cannot draw a mapped proxy: no draw with R0 > 0 in ${maxRedraws + 1} attempts`,
+    { field: "mapping", reason: "invalid" },
+  );
+}
+
+/**
  * One realisation of a proxy back-extended from sunspot number, for ensembles: the mapping's
- * parameters are drawn once from their normal approximation N(ĉ, Σ) (the Gauss–Newton
- * covariance; Bates & Watts 1988, Nonlinear Regression Analysis, §2.3) by the Cholesky
- * factor Σ = LLᵀ, c = ĉ + Lz with z standard normal from `stream`, and the mapping is evaluated
- * at every cell with those parameters, so a member's error is shared by all its cells as the
- * mapping error is. Over many members the mean and variance of each cell approach the mapped
- * value and its delta-method variance ({@link evaluateSunspotMapping}); exactly so for the
- * linear form. A saturating draw with R0 ≤ 0 (no such mapping) is redrawn. Call it once per
- * member with that member's seeded stream.
+ * parameters are drawn once ({@link drawSunspotMappingCoefficients}) and the mapping is
+ * evaluated at every cell with them ({@link sunspotMappingValues}), so a member's error is
+ * shared by all its cells as the mapping error is. Over many members the mean and variance of
+ * each cell approach the mapped value and its delta-method variance (`evaluateSunspotMapping`
+ * in ./sunspot_proxy_mapping.ts); exactly so for the linear form. Call it once per member
+ * with that member's seeded stream.
  *
  * @param mapping the fitted mapping
  * @param sunspot sunspot number per cell (NaN gives NaN)
@@ -142,39 +217,11 @@ export function drawMappedProxy(
   stream: RandomStream,
   options: DrawMappedProxyOptions = {},
 ): Float64Array {
-  const c = mapping.coefficients, S = mapping.covariance, p = c.length;
-  if (!S.every((row) => row.length === p && row.every(Number.isFinite))) {
-    throw new InputError(
-      "Cannot draw a mapped proxy: the mapping's parameter covariance is not finite (an unidentified R0?)",
-      { field: "mapping", reason: "invalid" },
-    );
-  }
-  const sym = new Matrix(S.map((row, a) => row.map((v, b) => (v + S[b][a]) / 2)));
-  const chol = new CholeskyDecomposition(sym);
-  if (!chol.isPositiveDefinite()) {
-    throw new InputError(
-      "Cannot draw a mapped proxy: the mapping's parameter covariance is not positive definite",
-      { field: "mapping", reason: "invalid" },
-    );
-  }
-  const L = chol.lowerTriangularMatrix.to2DArray();
-  const maxRedraws = options.maxRedraws ?? 100;
-  for (let attempt = 0; attempt <= maxRedraws; attempt++) {
-    const z = Array.from({ length: p }, () => stream.normal());
-    const drawn = c.map((v, a) => v + L[a].reduce((s, l, b) => s + l * z[b], 0));
-    if (mapping.form === "saturating" && !(drawn[2] > 0)) continue;
-    const value = new Float64Array(sunspot.length), pv = new Float64Array(sunspot.length);
-    const zero = drawn.map(() => drawn.map(() => 0));
-    evaluateSunspotMapping(
-      { ...mapping, coefficients: drawn, covariance: zero },
-      sunspot,
-      value,
-      pv,
-    );
-    return value;
-  }
-  throw new InputError(
-    `Cannot draw a mapped proxy: no draw with R0 > 0 in ${maxRedraws + 1} attempts`,
-    { field: "mapping", reason: "invalid" },
+  const c = drawSunspotMappingCoefficients(
+    mapping,
+    mappingCholesky(mapping),
+    stream,
+    options.maxRedraws ?? 100,
   );
+  return sunspotMappingValues(mapping.form, c, sunspot, new Float64Array(sunspot.length));
 }

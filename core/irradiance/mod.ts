@@ -3,7 +3,10 @@
  * sunspot-number → proxy mappings, proxy-model evaluation and calibration with blocked
  * cross-validation, reconstruction with prediction intervals, back-extension with its
  * residual process, extrapolation checks, the optional secular background scenario,
- * radiative forcing and cycle-amplitude checks. Calendar cells are core/series periods.
+ * radiative forcing and cycle-amplitude checks; spectral irradiance by wavelength band (band
+ * checks and integration weights, blackbody coverage, per-band models and their integrals,
+ * per-band cycle variability, and the difference from a TSI model). Calendar cells are
+ * core/series periods.
  *
  * @module
  */
@@ -20,3 +23,14 @@ export * from "./extrapolation_checks.ts";
 export * from "./secular_background.ts";
 export * from "./radiative_forcing.ts";
 export * from "./cycle_amplitude.ts";
+export * from "./wavelength_bands.ts";
+export * from "./blackbody_band_fraction.ts";
+export * from "./spectral_band_models.ts";
+export * from "./band_cycle_variability.ts";
+export * from "./reconstruction_difference.ts";
+export * from "./ar1_cell_means.ts";
+export * from "./sunspot_number_uncertainty.ts";
+export * from "./reconstruction_error_model.ts";
+export * from "./proxy_reconstruction_errors.ts";
+export * from "./reconstruction_ensemble.ts";
+export * from "./variance_by_period.ts";

@@ -132,6 +132,60 @@ export function calibrateProxyModel(
 ): ProxyModelFit {
   const method = options.method ?? "prais_winsten";
   const folds = options.folds ?? 5;
+  const design = proxyDesign(tsi.length, terms, options);
+  const fitter = proxyModelFitter(method, design.names);
+  const fit = fitter(design.columns, tsi);
+  const n = tsi.length;
+  const cv = folds > 0 && Math.floor(n / 2) >= folds
+    ? blockedCrossValidation(design.columns, tsi, folds, fitter)
+    : null;
+  return proxyModelFit(design, method, fit, cv, tsi);
+}
+
+/** The regressors of a proxy model on its calibration points (result of {@link proxyDesign}). */
+export interface ProxyDesign {
+  /** One regressor column per term (intercept not included), {@link proxyRegressor} values. */
+  columns: Float64Array[];
+  terms: ProxyModelFit["terms"];
+  /** Term names in column order. */
+  names: string[];
+  psiReference: number;
+  /** Collinearity condition number of the columns (centred, unit length). */
+  collinearity: number;
+}
+
+/**
+ * The regressor columns of TSI(t) = S_Q + Σ a_k (F_k − F_k,Q) − b·S_ref·PSI(t) on n
+ * calibration points: F_k − F_k,Q for a facular or other term (F_k,Q given or the 1st
+ * percentile, {@link quietLevelOf}), −S_ref·PSI for the darkening term, and their
+ * collinearity (Belsley, Kuh & Welsch 1980 condition number of the centred, unit-length
+ * columns). Shared by one-record calibration ({@link calibrateProxyModel}) and the calibration
+ * of many records on the same proxies (core/irradiance/spectral_band_models.ts).
+ *
+ * @param n number of calibration points (the response's length)
+ * @param terms proxy terms aligned with the response
+ * @param options the `psiReference` and `maxConditionNumber` of {@link CalibrationOptions}
+ * @returns {@link ProxyDesign}
+ * @throws {CollinearProxiesError} for collinear proxies; {@link InputError} for no terms
+ *   (field `terms`), a term not of length n (`terms`, index of the term) or fewer points than
+ *   coefficients + 2 (`tsi`)
+ * @example
+ * ```ts
+ * import { proxyDesign } from "./proxy_model.ts";
+ * import assert from "node:assert/strict";
+ * const d = proxyDesign(5, [
+ *   { name: "mg", role: "facular", values: Float64Array.of(0.15, 0.16, 0.15, 0.17, 0.16), quietLevel: 0.15 },
+ *   { name: "psi", role: "sunspot_darkening", values: Float64Array.of(0, 1e-4, 3e-4, 2e-4, 0) },
+ * ]);
+ * assert.ok(Math.abs(d.columns[0][1] - 0.01) < 1e-15);
+ * assert.ok(Math.abs(d.columns[1][1] + 0.13608) < 1e-12); // −1360.8 × 1e-4
+ * ```
+ */
+export function proxyDesign(
+  n: number,
+  terms: ProxyTerm[],
+  options: Pick<CalibrationOptions, "psiReference" | "maxConditionNumber"> = {},
+): ProxyDesign {
   const psiRef = options.psiReference ?? 1360.8;
   const maxCond = options.maxConditionNumber ?? 1000;
   if (terms.length === 0) {
@@ -140,7 +194,6 @@ export function calibrateProxyModel(
       reason: "empty",
     });
   }
-  const n = tsi.length;
   const p = terms.length + 1;
   if (n < p + 2) {
     throw new InputError(
@@ -150,7 +203,7 @@ export function calibrateProxyModel(
       { field: "tsi", reason: "too_few_points", value: n },
     );
   }
-  const cols: Float64Array[] = [];
+  const columns: Float64Array[] = [];
   const termInfo: ProxyModelFit["terms"] = [];
   for (const [k, t] of terms.entries()) {
     if (t.values.length !== n) {
@@ -168,25 +221,80 @@ export function calibrateProxyModel(
       if (v > hi) hi = v;
       c[i] = proxyRegressor(t.role, q, psiRef, v);
     }
-    cols.push(c);
+    columns.push(c);
     termInfo.push({ name: t.name, role: t.role, quietLevel: q, min: lo, max: hi });
   }
-  const collinearity = collinearityConditionNumber(cols);
+  const collinearity = collinearityConditionNumber(columns);
   if (!(collinearity <= maxCond)) throw new CollinearProxiesError(collinearity, maxCond);
-  const names = terms.map((t) => t.name);
-  const fitter = (c: Float64Array[], y: Float64Array): RegressionFit =>
+  return {
+    columns,
+    terms: termInfo,
+    names: terms.map((t) => t.name),
+    psiReference: psiRef,
+    collinearity,
+  };
+}
+
+/**
+ * The regression a calibration uses: ordinary least squares, or regression with AR(1)
+ * errors by iterated Prais–Winsten, with the intercept and the term names.
+ *
+ * @param method "ols" or "prais_winsten"
+ * @param names term names (coefficient names after "intercept")
+ * @returns a fitter of (columns, y)
+ * @example
+ * ```ts
+ * import { proxyModelFitter } from "./proxy_model.ts";
+ * import assert from "node:assert/strict";
+ * const fit = proxyModelFitter("ols", ["x"])([Float64Array.of(0, 1, 2, 3)], Float64Array.of(1, 3, 5, 7));
+ * assert.ok(Math.abs(fit.coefficients[1] - 2) < 1e-12);
+ * ```
+ */
+export function proxyModelFitter(
+  method: "ols" | "prais_winsten",
+  names: string[],
+): (columns: Float64Array[], y: Float64Array) => RegressionFit {
+  return (c, y) =>
     method === "ols" ? ordinaryLeastSquares(c, y, { names }) : praisWinsten(c, y, { names });
-  const fit = fitter(cols, tsi);
+}
+
+/**
+ * Assemble a {@link ProxyModelFit} from the design, the regression fitted on it and its
+ * cross-validation: the quiet-Sun level (the intercept), the AR(1) coefficient of the errors
+ * (Prais–Winsten ρ, or the residual lag-1 for OLS) and the marginal residual SD (σ for OLS,
+ * σ_u/√(1 − ρ²) for the AR(1) innovations of Prais–Winsten).
+ *
+ * @param design the regressors ({@link proxyDesign})
+ * @param method the estimator the fit used
+ * @param fit the regression fitted on `design.columns` and `y`
+ * @param cv its blocked cross-validation, or null
+ * @param y the response, for the fitted values
+ * @returns {@link ProxyModelFit}
+ * @example
+ * ```ts
+ * import { proxyDesign, proxyModelFit, proxyModelFitter } from "./proxy_model.ts";
+ * import assert from "node:assert/strict";
+ * const f = Float64Array.of(0.15, 0.16, 0.17, 0.16, 0.15, 0.18);
+ * const y = f.map((v, i) => 1360.8 + 135 * (v - 0.15) + (i % 2 ? 0.01 : -0.01));
+ * const d = proxyDesign(6, [{ name: "mg", role: "facular", values: f, quietLevel: 0.15 }]);
+ * const m = proxyModelFit(d, "ols", proxyModelFitter("ols", d.names)(d.columns, y), null, y);
+ * assert.ok(Math.abs(m.quietSun.value - 1360.8) < 0.05);
+ * ```
+ */
+export function proxyModelFit(
+  design: ProxyDesign,
+  method: "ols" | "prais_winsten",
+  fit: RegressionFit,
+  cv: BlockedCrossValidation | null,
+  y: Float64Array,
+): ProxyModelFit {
   const rho = "rho" in fit ? (fit as { rho: number }).rho : fit.residualLag1;
   const residualSd = method === "ols" ? fit.sigma : fit.sigma / Math.sqrt(1 - rho * rho);
-  const cv = folds > 0 && Math.floor(n / 2) >= folds
-    ? blockedCrossValidation(cols, tsi, folds, fitter)
-    : null;
   return {
     method,
     names: fit.names,
-    terms: termInfo,
-    psiReference: psiRef,
+    terms: design.terms,
+    psiReference: design.psiReference,
     coefficients: fit.coefficients,
     covariance: fit.covariance,
     standardErrors: fit.standardErrors,
@@ -198,7 +306,7 @@ export function calibrateProxyModel(
       lower: fit.lower[0],
       upper: fit.upper[0],
     },
-    n,
+    n: y.length,
     dfResidual: fit.dfResidual,
     rSquared: fit.rSquared,
     adjRSquared: fit.adjRSquared,
@@ -210,10 +318,10 @@ export function calibrateProxyModel(
     residualSd,
     converged: "converged" in fit ? (fit as { converged: boolean }).converged : true,
     iterations: "iterations" in fit ? (fit as { iterations: number }).iterations : 0,
-    collinearity,
+    collinearity: design.collinearity,
     crossValidation: cv,
     residuals: fit.residuals,
-    fitted: tsi.map((y, i) => y - fit.residuals[i]),
+    fitted: y.map((v, i) => v - fit.residuals[i]),
   };
 }
 

@@ -1,11 +1,21 @@
 /**
- * TSI reconstruction from a calibrated proxy model, with prediction intervals.
+ * TSI reconstruction from a calibrated proxy model, with prediction intervals from its
+ * linearised error model (core/irradiance/reconstruction_error_model.ts).
  *
  * @module
  */
 import { InputError } from "../errors.ts";
-import { ar1MeanVarianceFactor } from "./ar1_mean_variance.ts";
-import { proxyRegressor, proxyRegressorScale, type ProxyRole } from "./proxy_model_evaluation.ts";
+import { proxyRegressor, type ProxyRole } from "./proxy_model_evaluation.ts";
+import type { SunspotProxyMapping } from "./sunspot_proxy_mapping.ts";
+import { sunspotMappingValues } from "./sunspot_proxy_mapping.ts";
+import type { SunspotCellUncertainty } from "./sunspot_number_uncertainty.ts";
+import {
+  ERROR_SOURCES,
+  errorModelVariance,
+  type ErrorSource,
+  type ReconstructionErrorModel,
+} from "./reconstruction_error_model.ts";
+import { proxyReconstructionErrorModel } from "./proxy_reconstruction_errors.ts";
 
 /** The parts of a calibrated model a reconstruction needs. */
 export interface ReconstructionModel {
@@ -25,18 +35,121 @@ export interface ReconstructionModel {
   backExtension: { residualSd: number; rho: number; stepDays: number } | null;
 }
 
-/** Proxy values per target cell. */
+/** Proxy values per target cell, and what back-extension needs. */
 export interface ReconstructionCells {
   /** Length of each cell in days. */
   days: Float64Array;
   /** Direct proxy values per term (cell means), NaN where the proxy has no value. */
   direct: Float64Array[];
-  /** Values mapped from sunspot number per term, with parameter variance; null = no mapping. */
-  mapped: ({ value: Float64Array; paramVariance: Float64Array } | null)[];
+  /** Per term, its sunspot-number → proxy mapping; null = the term is not back-extended. */
+  mappings: (SunspotProxyMapping | null)[];
+  /** Sunspot number per cell on the mappings' version (NaN where missing); null without one. */
+  sunspot: Float64Array | null;
+  /** The uncertainty of the cells' sunspot numbers; null or absent = taken as exact. */
+  sunspotUncertainty?: SunspotCellUncertainty | null;
 }
 
 /** Source of a reconstructed value. */
 export const SOURCE_NONE = 0, SOURCE_DIRECT = 1, SOURCE_BACK_EXTENDED = 2;
+
+/** The proxy values a reconstruction uses (result of {@link reconstructionDesign}). */
+export interface ReconstructionDesign {
+  /** 0 = no value, 1 = every proxy direct, 2 = some proxy mapped from sunspot number. */
+  source: Uint8Array;
+  /** Per term, the proxy value used in each cell (NaN where the cell has no value). */
+  values: Float64Array[];
+  /** Per term, 1 where its value was mapped from sunspot number. */
+  mapped: Uint8Array[];
+}
+
+function checkCells(model: ReconstructionModel, cells: ReconstructionCells): void {
+  const K = model.terms.length, n = cells.days.length;
+  if (cells.direct.length !== K || cells.mappings.length !== K) {
+    throw new InputError(
+      `Cannot reconstruct: model has ${K} terms, cells have ${cells.direct.length}`,
+      { field: "cells", reason: "length_mismatch", value: cells.direct.length },
+    );
+  }
+  const arrays = [...cells.direct, ...(cells.sunspot ? [cells.sunspot] : [])];
+  const u = cells.sunspotUncertainty;
+  if (u) arrays.push(u.correlated, u.independent);
+  if (arrays.some((a) => a.length !== n)) {
+    throw new InputError(`Cannot reconstruct: every per-cell array must have ${n} cells`, {
+      field: "cells",
+      reason: "length_mismatch",
+    });
+  }
+  if (model.coefficients.length !== K + 1) {
+    throw new InputError("Cannot reconstruct: coefficients do not match the terms", {
+      field: "model",
+      reason: "length_mismatch",
+      value: model.coefficients.length,
+    });
+  }
+}
+
+/**
+ * Which proxy value each cell uses: a term's direct value where it has one, else its value
+ * mapped from the cell's sunspot number; a cell with a term that has neither, or with a mapped
+ * term but no back-extension residual process in the model, has no value.
+ *
+ * @param model {@link ReconstructionModel}
+ * @param cells {@link ReconstructionCells}
+ * @returns {@link ReconstructionDesign}
+ * @throws {InputError} (field `cells`) when the cells do not match the model's terms, (field
+ *   `model`) when the coefficients do not
+ * @example
+ * ```ts
+ * import { reconstructionDesign } from "./proxy_reconstruction.ts";
+ * import { fitLinearSunspotMapping } from "./sunspot_proxy_mapping.ts";
+ * import assert from "node:assert/strict";
+ * const m = fitLinearSunspotMapping([0, 50, 100, 150], [0.15, 0.155, 0.16, 0.165]);
+ * const d = reconstructionDesign({
+ *   coefficients: [1360.8, 135], covariance: [[1e-4, 0], [0, 1]],
+ *   terms: [{ role: "facular", quietLevel: 0.15 }], psiReference: 1360.8,
+ *   residualSd: 0.15, rho: 0.7, stepDays: 1,
+ *   backExtension: { residualSd: 0.1, rho: 0.5, stepDays: 30 },
+ * }, {
+ *   days: Float64Array.of(31, 31), direct: [Float64Array.of(NaN, 0.16)], mappings: [m],
+ *   sunspot: Float64Array.of(100, 100),
+ * });
+ * assert.deepEqual([...d.source], [2, 1]);
+ * assert.ok(Math.abs(d.values[0][0] - 0.16) < 1e-12);
+ * ```
+ */
+export function reconstructionDesign(
+  model: ReconstructionModel,
+  cells: ReconstructionCells,
+): ReconstructionDesign {
+  checkCells(model, cells);
+  const K = model.terms.length, n = cells.days.length;
+  const source = new Uint8Array(n).fill(SOURCE_DIRECT);
+  const values = cells.direct.map((d) => Float64Array.from(d));
+  const mapped = cells.direct.map(() => new Uint8Array(n));
+  for (let k = 0; k < K; k++) {
+    const m = cells.mappings[k];
+    const viaMap = m && cells.sunspot
+      ? sunspotMappingValues(m.form, m.coefficients, cells.sunspot, new Float64Array(n))
+      : null;
+    for (let i = 0; i < n; i++) {
+      if (Number.isFinite(values[k][i])) continue;
+      if (viaMap && Number.isFinite(viaMap[i])) {
+        values[k][i] = viaMap[i];
+        mapped[k][i] = 1;
+        if (source[i] === SOURCE_DIRECT) source[i] = SOURCE_BACK_EXTENDED;
+      } else source[i] = SOURCE_NONE;
+    }
+  }
+  for (let i = 0; i < n; i++) {
+    if (source[i] === SOURCE_BACK_EXTENDED && !model.backExtension) source[i] = SOURCE_NONE;
+    if (source[i] !== SOURCE_NONE) continue;
+    for (let k = 0; k < K; k++) {
+      values[k][i] = NaN;
+      mapped[k][i] = 0;
+    }
+  }
+  return { source, values, mapped };
+}
 
 /** Result of {@link reconstructFromProxies}. */
 export interface Reconstruction {
@@ -47,29 +160,35 @@ export interface Reconstruction {
   upper: Float64Array;
   /** 0 = no value, 1 = all proxies direct, 2 = some proxy mapped from sunspot number. */
   source: Uint8Array;
+  /** The predictive variance of each cell by source, W² m-4 (NaN where no value). */
+  components: Record<ErrorSource, Float64Array>;
+  /** The linearised error model the variances come from. */
+  errorModel: ReconstructionErrorModel;
+  /** The proxy values used. */
+  design: ReconstructionDesign;
 }
 
 /**
  * Reconstruct TSI per cell: ŷ = xᵀβ with x the cell's regressors (intercept, F_k − F_k,Q,
- * −S_ref·PSI; core/irradiance/proxy_model_evaluation.ts), and the predictive variance
+ * −S_ref·PSI; core/irradiance/proxy_model_evaluation.ts) from the values of
+ * {@link reconstructionDesign}, and the predictive variance of the linearised error model
+ * (core/irradiance/proxy_reconstruction_errors.ts), by source:
  *
- *   Var = xᵀΣ_β x + Σ_k (β_k² + Σ_β,kk)·s_k²·v_k + σ_e²·f(m, ρ)/m
+ *   Var = xᵀΣ_β x                        (calibration coefficients)
+ *       + σ_e²·f(m, ρ)/m                 (residual process of the direct or back-extended model)
+ *       + Σ_k β_k²·s_k²·g_kᵀΣ_k g_k        (mapping parameters, mapped terms)
+ *       + (Σ_k β_k·s_k·dF_k/dR)²·σ_R²      (the sunspot number's own error, mapped terms)
  *
- * where v_k is the parameter variance of a mapped proxy (0 for direct values), s_k its
- * regressor scale (1, or S_ref for PSI), σ_e and ρ the residual SD and lag-1 autocorrelation
- * (of the direct model, or of the sunspot-only model where any proxy is mapped), m the number
- * of residual time steps in the cell and f the AR(1) variance factor of a mean of m values
- * (see {@link ar1MeanVarianceFactor}). The interval is ŷ ± z·√Var with z the two-sided
- * quantile given (e.g. t(0.975, df)). Mapped and direct parameter uncertainties are treated as
- * independent; the residual terms are estimated directly, so they carry the correlation
- * between the proxies' mapping errors.
+ * with s_k the regressor scale (1, or −S_ref for PSI), m the residual steps in the cell and f
+ * the AR(1) variance factor of a mean of m values. The interval is ŷ ± z·√Var with z the
+ * two-sided quantile given (e.g. t(0.975, df)).
  *
  * @param model {@link ReconstructionModel}
  * @param cells {@link ReconstructionCells}
  * @param z quantile for the interval (1.96 for 95 % normal)
  * @returns {@link Reconstruction}; cells without proxies get NaN
- * @throws {InputError} (field `cells`) when the cells do not match the model's terms, (field
- *   `model`) when the coefficients do not
+ * @throws {InputError} as {@link reconstructionDesign}; (field `mapping`) when a mapping's
+ *   covariance cannot be factored
  * @example
  * ```ts
  * import { reconstructFromProxies } from "./proxy_reconstruction.ts";
@@ -78,7 +197,10 @@ export interface Reconstruction {
  *   coefficients: [1360.8, 135], covariance: [[1e-4, 0], [0, 1]],
  *   terms: [{ role: "facular", quietLevel: 0.15 }], psiReference: 1360.8,
  *   residualSd: 0.15, rho: 0.7, stepDays: 1, backExtension: null,
- * }, { days: Float64Array.of(1, 31), direct: [Float64Array.of(0.16, 0.16)], mapped: [null] }, 1.96);
+ * }, {
+ *   days: Float64Array.of(1, 31), direct: [Float64Array.of(0.16, 0.16)], mappings: [null],
+ *   sunspot: null,
+ * }, 1.96);
  * assert.ok(Math.abs(r.value[0] - (1360.8 + 1.35)) < 1e-9);
  * assert.ok(r.sd[1] < r.sd[0]); // a monthly mean is less uncertain than a day
  * ```
@@ -88,86 +210,113 @@ export function reconstructFromProxies(
   cells: ReconstructionCells,
   z: number,
 ): Reconstruction {
-  const K = model.terms.length;
-  if (cells.direct.length !== K || cells.mapped.length !== K) {
-    throw new InputError(
-      `Cannot reconstruct: model has ${K} terms, cells have ${cells.direct.length}`,
-      { field: "cells", reason: "length_mismatch", value: cells.direct.length },
-    );
-  }
-  if (model.coefficients.length !== K + 1) {
-    throw new InputError("Cannot reconstruct: coefficients do not match the terms", {
-      field: "model",
+  return reconstructWithDesign(model, cells, reconstructionDesign(model, cells), z);
+}
+
+/**
+ * {@link reconstructFromProxies} for several models on the same terms (the bands of a spectral
+ * model, and their integrals), over the same cells: which proxy value each cell uses
+ * ({@link reconstructionDesign}) is decided once and shared by every model with the same
+ * back-extension availability. Each result equals what {@link reconstructFromProxies} gives
+ * for that model alone, bit for bit.
+ *
+ * @param models the models: same term roles, quiet levels and S_ref
+ * @param cells {@link ReconstructionCells}
+ * @param z per model, the quantile for its interval
+ * @returns one {@link Reconstruction} per model
+ * @throws {InputError} as {@link reconstructFromProxies}; (field `models`) when the models'
+ *   terms differ, (field `z`) when there is not one quantile per model
+ * @example
+ * ```ts
+ * import { reconstructFromProxiesMany } from "./proxy_reconstruction.ts";
+ * import assert from "node:assert/strict";
+ * const band = (c: number, a: number) => ({
+ *   coefficients: [c, a], covariance: [[1e-6, 0], [0, 1e-2]],
+ *   terms: [{ role: "facular" as const, quietLevel: 0.15 }], psiReference: 1360.8,
+ *   residualSd: 0.01, rho: 0.5, stepDays: 1, backExtension: null,
+ * });
+ * const [uv, vis] = reconstructFromProxiesMany([band(0.5, 20), band(1.8, 2)], {
+ *   days: Float64Array.of(31), direct: [Float64Array.of(0.16)], mappings: [null], sunspot: null,
+ * }, [1.96, 1.96]);
+ * assert.ok(Math.abs(uv.value[0] - 0.7) < 1e-12 && Math.abs(vis.value[0] - 1.82) < 1e-12);
+ * ```
+ */
+export function reconstructFromProxiesMany(
+  models: readonly ReconstructionModel[],
+  cells: ReconstructionCells,
+  z: readonly number[],
+): Reconstruction[] {
+  if (z.length !== models.length) {
+    throw new InputError(`Cannot reconstruct: ${z.length} quantiles for ${models.length} models`, {
+      field: "z",
       reason: "length_mismatch",
-      value: model.coefficients.length,
+      value: z.length,
     });
   }
-  const n = cells.days.length;
-  const beta = model.coefficients, S = model.covariance;
-  const scale = model.terms.map((t) => proxyRegressorScale(t.role, model.psiReference));
+  const first = models[0];
+  models.forEach((model, j) => {
+    const same = model.psiReference === first.psiReference &&
+      model.terms.length === first.terms.length &&
+      model.terms.every((t, k) =>
+        t.role === first.terms[k].role && t.quietLevel === first.terms[k].quietLevel
+      );
+    if (!same) {
+      throw new InputError(
+        `Cannot reconstruct together: model ${j} has other terms than model 0`,
+        { field: "models", reason: "invalid", index: j },
+      );
+    }
+  });
+  // the design depends on a model only through its terms and whether it can back-extend
+  const designs = new Map<boolean, ReconstructionDesign>();
+  return models.map((model, j) => {
+    checkCells(model, cells);
+    const key = model.backExtension !== null;
+    let design = designs.get(key);
+    if (!design) designs.set(key, design = reconstructionDesign(model, cells));
+    return reconstructWithDesign(model, cells, design, z[j]);
+  });
+}
+
+function reconstructWithDesign(
+  model: ReconstructionModel,
+  cells: ReconstructionCells,
+  design: ReconstructionDesign,
+  z: number,
+): Reconstruction {
+  const K = model.terms.length, n = cells.days.length;
+  const beta = model.coefficients;
+  const errorModel = proxyReconstructionErrorModel(model, cells, design);
+  const v = errorModelVariance(errorModel);
   const value = new Float64Array(n), sd = new Float64Array(n);
   const lower = new Float64Array(n), upper = new Float64Array(n);
-  const source = new Uint8Array(n);
-  const x = new Float64Array(K + 1);
-  const stepDays = model.stepDays, be = model.backExtension;
-  // the AR(1) factor per distinct cell length (daily/monthly/annual cells have few lengths)
-  const caches = [new Map<number, number>(), new Map<number, number>()];
-  const residVar = (which: 0 | 1, days: number, sdr: number, rho: number, step: number) => {
-    let f = caches[which].get(days);
-    if (f === undefined) {
-      const m = Math.max(1, days / step);
-      f = ar1MeanVarianceFactor(m, rho) / m;
-      caches[which].set(days, f);
-    }
-    return sdr * sdr * f;
-  };
+  const components = Object.fromEntries(
+    ERROR_SOURCES.map((s) => [s, new Float64Array(n)]),
+  ) as Record<ErrorSource, Float64Array>;
   for (let i = 0; i < n; i++) {
-    x[0] = 1;
-    let mappedVar = 0, anyMapped = false, ok = true;
-    for (let k = 0; k < K; k++) {
-      let v = cells.direct[k][i];
-      if (!Number.isFinite(v)) {
-        const m = cells.mapped[k];
-        if (!m || !Number.isFinite(m.value[i])) {
-          ok = false;
-          break;
-        }
-        v = m.value[i];
-        anyMapped = true;
-        const s = scale[k];
-        mappedVar += (beta[k + 1] * beta[k + 1] + S[k + 1][k + 1]) * s * s * m.paramVariance[i];
-      }
-      const t = model.terms[k];
-      x[k + 1] = proxyRegressor(t.role, t.quietLevel, model.psiReference, v);
-    }
-    if (!ok || (anyMapped && !be)) {
+    if (design.source[i] === SOURCE_NONE) {
       value[i] =
         sd[i] =
         lower[i] =
         upper[i] =
           NaN;
-      source[i] = SOURCE_NONE;
+      for (const s of ERROR_SOURCES) components[s][i] = NaN;
       continue;
     }
-    let y = 0, q = 0;
-    for (let a = 0; a <= K; a++) {
-      y += beta[a] * x[a];
-      const Sa = S[a];
-      let r = 0;
-      for (let b = 0; b <= K; b++) r += Sa[b] * x[b];
-      q += x[a] * r;
+    let y = beta[0];
+    for (let k = 0; k < K; k++) {
+      const t = model.terms[k];
+      y += beta[k + 1] *
+        proxyRegressor(t.role, t.quietLevel, model.psiReference, design.values[k][i]);
     }
-    const rv = anyMapped
-      ? residVar(1, cells.days[i], be!.residualSd, be!.rho, be!.stepDays)
-      : residVar(0, cells.days[i], model.residualSd, model.rho, stepDays);
-    const s = Math.sqrt(Math.max(0, q) + mappedVar + rv);
+    const s = Math.sqrt(v.total[i]);
     value[i] = y;
     sd[i] = s;
     lower[i] = y - z * s;
     upper[i] = y + z * s;
-    source[i] = anyMapped ? SOURCE_BACK_EXTENDED : SOURCE_DIRECT;
+    for (const src of ERROR_SOURCES) components[src][i] = v.bySource[src][i];
   }
-  return { value, sd, lower, upper, source };
+  return { value, sd, lower, upper, source: design.source, components, errorModel, design };
 }
 
 /** Names of the source codes, in code order. */

@@ -5,6 +5,10 @@
  */
 import { InputError } from "../errors.ts";
 import { normalQuantile } from "../stats/distributions.ts";
+import {
+  differenceFromMeanVariance,
+  type ReconstructionErrorModel,
+} from "./reconstruction_error_model.ts";
 
 /** Planetary albedo used by default (IPCC AR6 WG1 §7.3.4.4). */
 export const PLANETARY_ALBEDO = 0.29;
@@ -46,7 +50,7 @@ export function radiativeForcing(deltaTsi: number, albedo = PLANETARY_ALBEDO): n
 
 /** Result of {@link forcingSeries}. */
 export interface ForcingSeries {
-  /** Mean TSI over the reference period, W m-2, its standard error, and the points used. */
+  /** Mean TSI over the reference period, W m-2, the SD of that mean, and the points used. */
   referenceTsi: number;
   referenceSd: number | null;
   referencePoints: number;
@@ -56,20 +60,82 @@ export interface ForcingSeries {
 }
 
 /**
+ * The errors of the TSI a forcing is computed from: none; one-sigma uncertainties of points
+ * whose errors are independent of each other (all a stored series can say); or a linearised
+ * error model with the covariances between points (a reconstruction's,
+ * core/irradiance/reconstruction_error_model.ts).
+ */
+export type ForcingErrors =
+  | null
+  | { kind: "independent"; sd: ArrayLike<number> }
+  | { kind: "error_model"; model: ReconstructionErrorModel };
+
+/**
+ * The reference points of a forcing: those in [start, end) with a finite TSI.
+ *
+ * @param time decimal years
+ * @param tsi TSI, W m-2 (NaN for missing)
+ * @param reference `{ start, end }` decimal years, end exclusive
+ * @returns 1 at the reference points
+ * @throws {InputError} (field `reference`, reason `no_overlap`) when there is none; (field
+ *   `tsi`) when the lengths differ
+ * @example
+ * ```ts
+ * import { referencePoints } from "./radiative_forcing.ts";
+ * import assert from "node:assert/strict";
+ * const r = referencePoints([2000.5, 2001.5, 2002.5], [1361, NaN, 1361], { start: 2000, end: 2002 });
+ * assert.deepEqual([...r], [1, 0, 0]);
+ * ```
+ */
+export function referencePoints(
+  time: ArrayLike<number>,
+  tsi: ArrayLike<number>,
+  reference: { start: number; end: number },
+): Uint8Array {
+  const n = time.length;
+  if (tsi.length !== n) {
+    throw new InputError("Cannot compute forcing series: time and tsi differ in length", {
+      field: "tsi",
+      reason: "length_mismatch",
+    });
+  }
+  const out = new Uint8Array(n);
+  let count = 0;
+  for (let i = 0; i < n; i++) {
+    if (time[i] >= reference.start && time[i] < reference.end && Number.isFinite(tsi[i])) {
+      out[i] = 1;
+      count++;
+    }
+  }
+  if (count === 0) {
+    throw new InputError(
+      `Cannot compute forcing series: the reference period [${reference.start}, ${reference.end}) holds no TSI value`,
+      { field: "reference", reason: "no_overlap", value: [reference.start, reference.end] },
+    );
+  }
+  return out;
+}
+
+/**
  * A forcing series relative to a reference period: ΔF(t) = (TSI(t) − T̄_ref)(1 − α)/4 with
- * T̄_ref the mean TSI of the points in [start, end). With a one-sigma uncertainty σ(t) per
- * point, σ_F(t) = (1 − α)/4 · √(σ(t)² + σ_ref²), where σ_ref is the mean σ over the reference
- * period: the errors inside the reference period are taken as fully correlated, an upper
- * bound (reconstruction errors are strongly autocorrelated), and independent of σ(t).
+ * T̄_ref the mean TSI of the {@link referencePoints}. Its one-sigma uncertainty is
+ * (1 − α)/4·√Var(x_t − m̄) with Var(x_t − m̄) = Var(x_t) + Var(m̄) − 2·Cov(x_t, m̄) (the
+ * variance of a difference, e.g. Bevington & Robinson 2003, §3.2):
+ *
+ * - independent point errors σ_t: Var(m̄) = Σ_ref σ²/n², Cov(x_t, m̄) = σ_t²/n inside the
+ *   reference and 0 outside;
+ * - an error model: the covariances it implies
+ *   (core/irradiance/reconstruction_error_model.ts `differenceFromMeanVariance`), so errors
+ *   shared with the reference (the quiet-Sun level) cancel.
  *
  * @param time decimal years
  * @param tsi TSI, W m-2 (NaN points are skipped in the reference mean and give NaN)
- * @param sd one-sigma TSI uncertainty per point, or null
+ * @param errors {@link ForcingErrors}; an array is read as independent one-sigma errors
  * @param reference `{ start, end }` decimal years, end exclusive
  * @param albedo planetary albedo @default 0.29
  * @returns {@link ForcingSeries}
- * @throws {InputError} (field `reference`, reason `no_overlap`) when the reference period holds
- *   no finite TSI; (field `tsi` or `sd`) when lengths differ; as {@link radiativeForcing}
+ * @throws {InputError} as {@link referencePoints}; (field `sd` or `errorModel`) when the
+ *   errors do not cover every point; as {@link radiativeForcing}
  * @example
  * ```ts
  * import { forcingSeries } from "./radiative_forcing.ts";
@@ -83,43 +149,110 @@ export interface ForcingSeries {
 export function forcingSeries(
   time: ArrayLike<number>,
   tsi: ArrayLike<number>,
-  sd: ArrayLike<number> | null,
+  errors: ForcingErrors | ArrayLike<number>,
   reference: { start: number; end: number },
   albedo = PLANETARY_ALBEDO,
 ): ForcingSeries {
   const n = time.length;
-  if (tsi.length !== n || (sd && sd.length !== n)) {
-    throw new InputError("Cannot compute forcing series: time, tsi and sd differ in length", {
-      field: tsi.length !== n ? "tsi" : "sd",
-      reason: "length_mismatch",
-    });
-  }
-  let sum = 0, count = 0, sdSum = 0, sdCount = 0;
-  for (let i = 0; i < n; i++) {
-    if (time[i] >= reference.start && time[i] < reference.end && Number.isFinite(tsi[i])) {
-      sum += tsi[i];
-      count++;
-      if (sd && Number.isFinite(sd[i])) (sdSum += sd[i]), sdCount++;
-    }
-  }
-  if (count === 0) {
-    throw new InputError(
-      `Cannot compute forcing series: the reference period [${reference.start}, ${reference.end}) holds no TSI value`,
-      { field: "reference", reason: "no_overlap", value: [reference.start, reference.end] },
-    );
-  }
+  const inRef = referencePoints(time, tsi, reference);
+  const e: ForcingErrors = errors === null || "kind" in errors
+    ? errors as ForcingErrors
+    : { kind: "independent", sd: errors as ArrayLike<number> };
+  let sum = 0, count = 0;
+  for (let i = 0; i < n; i++) if (inRef[i]) (sum += tsi[i]), count++;
   const ref = sum / count;
-  const refSd = sd && sdCount > 0 ? sdSum / sdCount : null;
   const k = radiativeForcing(1, albedo);
   const value = new Float64Array(n);
-  const out = sd ? new Float64Array(n) : null;
-  for (let i = 0; i < n; i++) {
-    value[i] = Number.isFinite(tsi[i]) ? (tsi[i] - ref) * k : NaN;
-    if (out && sd) {
-      out[i] = Number.isFinite(sd[i]) ? k * Math.sqrt(sd[i] * sd[i] + (refSd ?? 0) ** 2) : NaN;
+  for (let i = 0; i < n; i++) value[i] = Number.isFinite(tsi[i]) ? (tsi[i] - ref) * k : NaN;
+  if (e === null) {
+    return { referenceTsi: ref, referenceSd: null, referencePoints: count, value, sd: null };
+  }
+  const sd = new Float64Array(n);
+  let refVar: number;
+  if (e.kind === "independent") {
+    if (e.sd.length !== n) {
+      throw new InputError("Cannot compute forcing series: time and sd differ in length", {
+        field: "sd",
+        reason: "length_mismatch",
+      });
+    }
+    let sq = 0;
+    for (let i = 0; i < n; i++) if (inRef[i]) sq += Number.isFinite(e.sd[i]) ? e.sd[i] ** 2 : 0;
+    refVar = sq / (count * count);
+    for (let i = 0; i < n; i++) {
+      const s2 = e.sd[i] * e.sd[i];
+      const v = s2 + refVar - (inRef[i] ? (2 * s2) / count : 0);
+      sd[i] = Number.isFinite(tsi[i]) ? k * Math.sqrt(Math.max(0, v)) : NaN;
+    }
+  } else {
+    if (e.model.cells !== n) {
+      throw new InputError(
+        `Cannot compute forcing series: the error model has ${e.model.cells} cells for ${n} points`,
+        { field: "errorModel", reason: "length_mismatch", value: e.model.cells },
+      );
+    }
+    const d = differenceFromMeanVariance(e.model, inRef);
+    refVar = d.meanVariance;
+    for (let i = 0; i < n; i++) {
+      sd[i] = Number.isFinite(tsi[i]) ? k * Math.sqrt(d.variance[i]) : NaN;
     }
   }
-  return { referenceTsi: ref, referenceSd: refSd, referencePoints: count, value, sd: out };
+  return {
+    referenceTsi: ref,
+    referenceSd: Math.sqrt(refVar),
+    referencePoints: count,
+    value,
+    sd,
+  };
+}
+
+/**
+ * Forcing members: each member of a TSI ensemble relative to its own reference mean,
+ * ΔF_m(t) = (TSI_m(t) − T̄_ref,m)(1 − α)/4, so the reference's uncertainty and its covariance
+ * with every point are carried member by member.
+ *
+ * @param time decimal years (n points)
+ * @param members count × n values, member-major (NaN for missing)
+ * @param count members
+ * @param reference `{ start, end }`
+ * @param albedo @default 0.29
+ * @returns count × n forcing values, member-major
+ * @throws {InputError} (field `members`) when its length is not count × n; as
+ *   {@link referencePoints} for the first member
+ * @example
+ * ```ts
+ * import { forcingMembers } from "./radiative_forcing.ts";
+ * import assert from "node:assert/strict";
+ * const f = forcingMembers([2000.5, 2001.5], Float64Array.of(1361, 1362, 1360, 1360.5), 2,
+ *   { start: 2000, end: 2001 });
+ * assert.ok(Math.abs(f[1] - 0.1775) < 1e-12 && Math.abs(f[3] - 0.5 * 0.1775) < 1e-12);
+ * ```
+ */
+export function forcingMembers(
+  time: ArrayLike<number>,
+  members: Float64Array,
+  count: number,
+  reference: { start: number; end: number },
+  albedo = PLANETARY_ALBEDO,
+): Float64Array {
+  const n = time.length;
+  if (members.length !== count * n) {
+    throw new InputError(
+      `Cannot compute forcing members: ${members.length} values are not ${count} members of ${n}`,
+      { field: "members", reason: "length_mismatch", value: members.length },
+    );
+  }
+  const k = radiativeForcing(1, albedo);
+  const out = new Float64Array(count * n);
+  for (let m = 0; m < count; m++) {
+    const x = members.subarray(m * n, (m + 1) * n);
+    const inRef = referencePoints(time, x, reference);
+    let sum = 0, c = 0;
+    for (let i = 0; i < n; i++) if (inRef[i]) (sum += x[i]), c++;
+    const ref = sum / c;
+    for (let i = 0; i < n; i++) out[m * n + i] = Number.isFinite(x[i]) ? (x[i] - ref) * k : NaN;
+  }
+  return out;
 }
 
 /** A two-sided normal interval (result of {@link forcingInterval}). */

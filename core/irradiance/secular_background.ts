@@ -173,10 +173,12 @@ export function secularBackground(
  * assert.ok(Number.isNaN(b.sd[1]) && b.source[1] === 0);
  * ```
  */
-export function withSecularBackground(
-  rec: Reconstruction,
+export function withSecularBackground<
+  R extends Pick<Reconstruction, "value" | "sd" | "lower" | "upper" | "source">,
+>(
+  rec: R,
   background: ArrayLike<number>,
-): Reconstruction {
+): R {
   const n = rec.value.length;
   if (background.length !== n) {
     throw new InputError(
@@ -184,7 +186,8 @@ export function withSecularBackground(
       { field: "background", reason: "length_mismatch", value: background.length },
     );
   }
-  const out: Reconstruction = {
+  const out: R = {
+    ...rec,
     value: Float64Array.from(rec.value),
     sd: Float64Array.from(rec.sd),
     lower: Float64Array.from(rec.lower),

@@ -346,23 +346,113 @@ export function evaluateSunspotMapping(
   paramVariance: Float64Array,
 ): void {
   const c = m.coefficients, S = m.covariance;
+  sunspotMappingValues(m.form, c, r, value);
   if (m.form === "linear") {
     const s00 = S[0][0], s01 = S[0][1], s11 = S[1][1];
     for (let i = 0; i < r.length; i++) {
       const x = r[i];
-      value[i] = c[0] + c[1] * x;
       paramVariance[i] = s00 + 2 * x * s01 + x * x * s11;
     }
     return;
   }
-  const r0 = c[2];
+  const g = [1, 0, 0];
   for (let i = 0; i < r.length; i++) {
-    const x = r[i] / r0, e = Math.exp(-x);
-    const z = r0 * -Math.expm1(-x);
-    const g = [1, z, c[1] * (-Math.expm1(-x) - x * e)];
-    value[i] = c[0] + c[1] * z;
+    saturatingGradient(c, r[i], g);
     let v = 0;
     for (let a = 0; a < 3; a++) for (let b = 0; b < 3; b++) v += g[a] * S[a][b] * g[b];
     paramVariance[i] = v;
   }
+}
+
+/** ∂F/∂(c0, c1, R0) of the saturating form at R, into `g`. */
+function saturatingGradient(c: readonly number[], r: number, g: number[]): void {
+  const r0 = c[2], x = r / r0, e = Math.exp(-x);
+  g[0] = 1;
+  g[1] = r0 * -Math.expm1(-x);
+  g[2] = c[1] * (-Math.expm1(-x) - x * e);
+}
+
+/**
+ * The proxy values of a mapping form with the given coefficients: F = c0 + c1·R (linear) or
+ * F = c0 + c1·R0·(1 − exp(−R/R0)) (saturating), as {@link evaluateSunspotMapping} computes them
+ * for the fitted coefficients. Ensembles call it with drawn coefficients.
+ *
+ * @param form "linear" or "saturating"
+ * @param coefficients [c0, c1] or [c0, c1, R0]
+ * @param r sunspot numbers (NaN gives NaN)
+ * @param out output array (same length as `r`)
+ * @returns `out`
+ * @example
+ * ```ts
+ * import { sunspotMappingValues } from "./sunspot_proxy_mapping.ts";
+ * import assert from "node:assert/strict";
+ * const v = sunspotMappingValues("linear", [0.15, 1e-4], [0, 100], new Float64Array(2));
+ * assert.deepEqual([...v], [0.15, 0.15 + 1e-2]);
+ * ```
+ */
+export function sunspotMappingValues(
+  form: SunspotProxyMapping["form"],
+  coefficients: readonly number[],
+  r: ArrayLike<number>,
+  out: Float64Array,
+): Float64Array {
+  const c0 = coefficients[0], c1 = coefficients[1];
+  if (form === "linear") {
+    for (let i = 0; i < r.length; i++) out[i] = c0 + c1 * r[i];
+    return out;
+  }
+  const r0 = coefficients[2];
+  for (let i = 0; i < r.length; i++) out[i] = c0 + c1 * (r0 * -Math.expm1(-(r[i] / r0)));
+  return out;
+}
+
+/** Derivatives of a mapping (result of {@link sunspotMappingDerivatives}). */
+export interface SunspotMappingDerivatives {
+  /** dF/dR at each sunspot number (proxy units per unit of sunspot number). */
+  slope: Float64Array;
+  /** ∂F/∂c per parameter (in the order of `names`), each per sunspot number. */
+  gradient: Float64Array[];
+}
+
+/**
+ * The derivatives of a fitted mapping at sunspot numbers, for first-order (delta-method) error
+ * propagation: dF/dR (c1, or c1·exp(−R/R0)) carries an error of the sunspot number into the
+ * proxy, and ∂F/∂c an error of the parameters (gᵀΣg is the variance
+ * {@link evaluateSunspotMapping} reports).
+ *
+ * @param m a fitted mapping
+ * @param r sunspot numbers
+ * @returns {@link SunspotMappingDerivatives}
+ * @example
+ * ```ts
+ * import { fitLinearSunspotMapping, sunspotMappingDerivatives } from "./sunspot_proxy_mapping.ts";
+ * import assert from "node:assert/strict";
+ * const m = fitLinearSunspotMapping([0, 50, 100, 150], [0.15, 0.155, 0.16, 0.165]);
+ * const d = sunspotMappingDerivatives(m, [80]);
+ * assert.ok(Math.abs(d.slope[0] - 1e-4) < 1e-12);
+ * assert.deepEqual([...d.gradient[1]], [80]); // ∂F/∂c1 = R
+ * ```
+ */
+export function sunspotMappingDerivatives(
+  m: SunspotProxyMapping,
+  r: ArrayLike<number>,
+): SunspotMappingDerivatives {
+  const n = r.length, c = m.coefficients;
+  const slope = new Float64Array(n);
+  const gradient = c.map(() => new Float64Array(n));
+  if (m.form === "linear") {
+    for (let i = 0; i < n; i++) {
+      slope[i] = c[1];
+      gradient[0][i] = 1;
+      gradient[1][i] = r[i];
+    }
+    return { slope, gradient };
+  }
+  const g = [1, 0, 0];
+  for (let i = 0; i < n; i++) {
+    slope[i] = c[1] * Math.exp(-r[i] / c[2]);
+    saturatingGradient(c, r[i], g);
+    for (let a = 0; a < 3; a++) gradient[a][i] = g[a];
+  }
+  return { slope, gradient };
 }

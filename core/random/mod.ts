@@ -4,3 +4,4 @@
  * @module
  */
 export * from "./random_stream.ts";
+export * from "./ziggurat_normal.ts";

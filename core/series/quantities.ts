@@ -14,6 +14,8 @@ export const QUANTITIES = [
   "facular_index",
   "radio_flux",
   "tsi",
+  "spectral_irradiance",
+  "band_irradiance",
   "temperature",
   "temperature_anomaly",
   "enso_index",
@@ -34,6 +36,14 @@ export const QUANTITY_UNITS: Record<Quantity, { canonical: string; aliases: stri
   // solar flux units: 1 sfu = 1e-22 W m-2 Hz-1
   radio_flux: { canonical: "1e-22 W m-2 Hz-1", aliases: ["sfu", "SFU", "10-22 W m-2 Hz-1"] },
   tsi: { canonical: "W m-2", aliases: ["W/m2", "W m^-2", "W/m^2"] },
+  // solar irradiance per unit wavelength in a band (band mean), W m-2 nm-1; other scales of the
+  // same dimension are converted (SPECTRAL_IRRADIANCE_SCALES)
+  spectral_irradiance: {
+    canonical: "W m-2 nm-1",
+    aliases: ["W/m2/nm", "W m^-2 nm^-1", "W/(m2 nm)", "W/m^2/nm", "W m-2 nm^-1"],
+  },
+  // solar irradiance integrated over a wavelength band, W m-2 (the band's share of TSI)
+  band_irradiance: { canonical: "W m-2", aliases: ["W/m2", "W m^-2", "W/m^2"] },
   temperature: { canonical: "K", aliases: [] },
   temperature_anomaly: { canonical: "K", aliases: [] },
   // sea-surface temperature anomaly indices are often given in K or degC (a difference)
@@ -41,6 +51,21 @@ export const QUANTITY_UNITS: Record<Quantity, { canonical: string; aliases: stri
   aerosol_optical_depth: { canonical: "1", aliases: [""] },
   radiative_forcing: { canonical: "W m-2", aliases: ["W/m2", "W m^-2", "W/m^2"] },
   other: null,
+};
+
+/**
+ * Units of spectral irradiance other than W m-2 nm-1, with the factor that converts a value in
+ * them to W m-2 nm-1 (exact SI prefixes: 1 m = 1e9 nm, 1 µm = 1e3 nm, 1 mW = 1e-3 W). The CF
+ * canonical unit of `solar_irradiance_per_unit_wavelength` is W m-2 m-1 (= W m-3).
+ */
+export const SPECTRAL_IRRADIANCE_SCALES: Readonly<Record<string, number>> = {
+  "mW m-2 nm-1": 1e-3,
+  "mW/m2/nm": 1e-3,
+  "W m-2 um-1": 1e-3,
+  "W m-2 µm-1": 1e-3,
+  "W/m2/um": 1e-3,
+  "W m-2 m-1": 1e-9,
+  "W m-3": 1e-9,
 };
 
 /** Quantities that count as sunspot activity for analyses that need one. */
@@ -148,7 +173,9 @@ function temperatureConversion(
  * Temperatures (`temperature`) are accepted in kelvin, degrees Celsius or degrees Fahrenheit
  * in the usual spellings (`degC`, `°C`, `Celsius`, `degF`, `°F`, `F`, `degree_Celsius`...)
  * and converted to K; temperature differences (`temperature_anomaly`) in °C are the same
- * number of K and in °F 5/9 as many.
+ * number of K and in °F 5/9 as many. Spectral irradiance (`spectral_irradiance`) in mW m-2
+ * nm-1, W m-2 µm-1 or W m-2 m-1 (W m-3) is converted to W m-2 nm-1
+ * ({@link SPECTRAL_IRRADIANCE_SCALES}).
  *
  * @param quantity one of {@link QUANTITIES}
  * @param units a unit string (UDUNITS spelling, or a common alias listed for the quantity)
@@ -162,6 +189,8 @@ function temperatureConversion(
  * // 32 °F is the ice point, 273.15 K
  * assert.equal((32 - r.conversion.zero) * r.conversion.scale + r.conversion.offset, 273.15);
  * assert.deepEqual(unitsForQuantity("tsi", "W/m2"), { ok: true, units: "W m-2", conversion: null });
+ * const s = unitsForQuantity("spectral_irradiance", "W m-3");
+ * assert.ok(s.ok && s.conversion && s.conversion.scale === 1e-9); // 1 W m-3 = 1e-9 W m-2 nm-1
  * ```
  */
 export function unitsForQuantity(
@@ -174,6 +203,21 @@ export function unitsForQuantity(
   if (u === spec.canonical || spec.aliases.includes(u)) {
     return { ok: true, units: spec.canonical, conversion: null };
   }
+  const scale = quantity === "spectral_irradiance" ? SPECTRAL_IRRADIANCE_SCALES[u] : undefined;
+  if (scale !== undefined) {
+    return {
+      ok: true,
+      units: spec.canonical,
+      conversion: {
+        from: u,
+        to: spec.canonical,
+        zero: 0,
+        scale,
+        offset: 0,
+        formula: `W m-2 nm-1 = ${u} × ${scale}`,
+      },
+    };
+  }
   const t = temperatureScale(u);
   if (t !== null && (quantity === "temperature" || quantity === "temperature_anomaly")) {
     const conversion = temperatureConversion(u, t, quantity === "temperature_anomaly");
@@ -183,6 +227,10 @@ export function unitsForQuantity(
     .join(", ");
   const temps = quantity === "temperature" || quantity === "temperature_anomaly"
     ? ", or degrees Celsius or Fahrenheit (degC, °C, degF, °F), converted to K"
+    : quantity === "spectral_irradiance"
+    ? `, or ${
+      Object.keys(SPECTRAL_IRRADIANCE_SCALES).map((a) => `"${a}"`).join(", ")
+    }, converted to W m-2 nm-1`
     : "";
   return {
     ok: false,

@@ -23,6 +23,16 @@ export interface LeastSquaresQr {
   xtxInverse: number[][];
 }
 
+/** Result of {@link leastSquaresQrMany}: one coefficient vector per response. */
+export interface LeastSquaresQrMany {
+  /** Coefficients per response, each one per column. */
+  coefficients: number[][];
+  /** Upper-triangular R (p×p, rows), with X = QR. Its singular values are those of X. */
+  r: number[][];
+  /** (XᵀX)⁻¹ = R⁻¹R⁻ᵀ (p×p, rows). */
+  xtxInverse: number[][];
+}
+
 /**
  * Solve min ‖y − Xβ‖₂ by Householder QR.
  *
@@ -49,14 +59,47 @@ export function leastSquaresQr(
   y: Float64Array,
   overwrite = false,
 ): LeastSquaresQr {
+  const m = leastSquaresQrMany(columns, [y], overwrite);
+  return { coefficients: m.coefficients[0], r: m.r, xtxInverse: m.xtxInverse };
+}
+
+/**
+ * Solve min ‖y_k − Xβ_k‖₂ for several responses y_k with one design X: X is factorised once
+ * by Householder QR and every reflector is applied to each response (the multiple
+ * right-hand-side least squares of Golub & Van Loan 2013, Matrix Computations, 4th ed.,
+ * §5.3), so m responses cost one factorisation plus m cheap applications. Each β_k equals
+ * what {@link leastSquaresQr} gives for y_k alone, bit for bit.
+ *
+ * @param columns the design X as columns, each of length n (n ≥ p)
+ * @param ys responses, each of length n (may be empty: then only R and (XᵀX)⁻¹)
+ * @param overwrite factorise `columns` and `ys` in place @default false
+ * @returns coefficients per response, R and (XᵀX)⁻¹
+ * @throws {InputError} as {@link leastSquaresQr} (field `ys` with the index of a response of
+ *   the wrong length)
+ * @example
+ * ```ts
+ * import { leastSquaresQrMany } from "./least_squares_qr.ts";
+ * import assert from "node:assert/strict";
+ * const one = Float64Array.of(1, 1, 1, 1), x = Float64Array.of(0, 1, 2, 3);
+ * const fit = leastSquaresQrMany([one, x], [Float64Array.of(1, 3, 5, 7), Float64Array.of(0, 0, 0, 3)]);
+ * assert.ok(Math.abs(fit.coefficients[0][1] - 2) < 1e-12);
+ * assert.ok(Math.abs(fit.coefficients[1][1] - 0.9) < 1e-12); // R: coef(lm(c(0,0,0,3) ~ 0:3))
+ * ```
+ */
+export function leastSquaresQrMany(
+  columns: readonly Float64Array[],
+  ys: readonly Float64Array[],
+  overwrite = false,
+): LeastSquaresQrMany {
   const p = columns.length;
-  const n = y.length;
   if (p === 0) {
     throw new InputError("Cannot solve least squares: the design has no columns", {
       field: "columns",
       reason: "empty",
     });
   }
+  // the row count: the response's when there is one (as the one-response form always said)
+  const n = ys.length > 0 ? ys[0].length : columns[0].length;
   for (let j = 0; j < p; j++) {
     if (columns[j].length !== n) {
       throw new InputError(
@@ -65,6 +108,14 @@ export function leastSquaresQr(
       );
     }
   }
+  ys.forEach((y, k) => {
+    if (y.length !== n) {
+      throw new InputError(
+        `Cannot solve least squares: response ${k} has length ${y.length}, the columns have ${n}`,
+        { field: ys.length === 1 ? "y" : "ys", reason: "length_mismatch", index: k },
+      );
+    }
+  });
   if (n < p) {
     throw new InputError(`Cannot solve least squares: needs at least ${p} rows, got ${n}`, {
       field: "y",
@@ -72,25 +123,33 @@ export function leastSquaresQr(
       value: n,
     });
   }
-  const { r, qty } = householderR(columns, y, overwrite);
-  const diag = r.map((row, i) => row[i]);
+  const { r, qtys } = householderRMany(columns, ys, overwrite);
   let maxDiag = 0;
-  for (let i = 0; i < p; i++) maxDiag = Math.max(maxDiag, Math.abs(diag[i]));
+  for (let i = 0; i < p; i++) maxDiag = Math.max(maxDiag, Math.abs(r[i][i]));
   for (let i = 0; i < p; i++) {
-    if (!(Math.abs(diag[i]) > 1e-10 * maxDiag)) {
+    if (!(Math.abs(r[i][i]) > 1e-10 * maxDiag)) {
       throw new InputError(
         `Cannot solve least squares: the design is rank deficient (column ${i} is collinear with the columns before it)`,
         { field: "columns", reason: "collinear", index: i },
       );
     }
   }
-  // back substitution R β = (Qᵀy)[0..p)
-  const beta = new Array<number>(p).fill(0);
-  for (let i = p - 1; i >= 0; i--) {
-    let s = qty[i];
-    for (let j = i + 1; j < p; j++) s -= r[i][j] * beta[j];
-    beta[i] = s / r[i][i];
-  }
+  // back substitution R β = (Qᵀy)[0..p) for each response
+  const coefficients = qtys.map((qty) => {
+    const beta = new Array<number>(p).fill(0);
+    for (let i = p - 1; i >= 0; i--) {
+      let s = qty[i];
+      for (let j = i + 1; j < p; j++) s -= r[i][j] * beta[j];
+      beta[i] = s / r[i][i];
+    }
+    return beta;
+  });
+  return { coefficients, r, xtxInverse: xtxInverseOfR(r) };
+}
+
+/** (XᵀX)⁻¹ = R⁻¹R⁻ᵀ from the upper-triangular R of X = QR (full rank). */
+function xtxInverseOfR(r: number[][]): number[][] {
+  const p = r.length;
   // R⁻¹ (upper triangular), then (XᵀX)⁻¹ = R⁻¹ R⁻ᵀ
   const rinv: number[][] = Array.from({ length: p }, () => new Array<number>(p).fill(0));
   for (let j = 0; j < p; j++) {
@@ -110,7 +169,7 @@ export function leastSquaresQr(
       xtxInverse[j][i] = s;
     }
   }
-  return { coefficients: beta, r, xtxInverse };
+  return xtxInverse;
 }
 
 /**
@@ -134,24 +193,37 @@ export function householderR(
   y?: Float64Array,
   overwrite = false,
 ): { r: number[][]; qty: Float64Array } {
+  const { r, qtys } = householderRMany(columns, y ? [y] : [], overwrite);
+  return { r, qty: y ? qtys[0] : new Float64Array(0) };
+}
+
+/**
+ * {@link householderR} for several right-hand sides: each reflection is applied to the later
+ * columns and every response in the same fused passes, each column's sums in the order of the
+ * one-column loops (so each response's Qᵀy is what it would be alone).
+ */
+function householderRMany(
+  columns: readonly Float64Array[],
+  ys: readonly Float64Array[],
+  overwrite: boolean,
+): { r: number[][]; qtys: Float64Array[] } {
   const p = columns.length;
   const n = columns[0].length;
   const a = overwrite ? [...columns] : columns.map((c) => Float64Array.from(c));
-  const qty = y ? (overwrite ? y : Float64Array.from(y)) : new Float64Array(0);
+  const qtys = overwrite ? [...ys] : ys.map((y) => Float64Array.from(y));
   const diag = new Float64Array(p);
   // the scale of column k (max |a_k[i]|, i ≥ k): for k > 0 found while the previous
   // reflection updates the column
   let nextScale = 0;
   for (let i = 0; i < n; i++) nextScale = Math.max(nextScale, Math.abs(a[0][i]));
-  const f = new Float64Array(p + 1);
+  const f = new Float64Array(p + qtys.length);
   for (let k = 0; k < p; k++) {
     const ak = a[k];
     let norm = 0;
     // scaled 2-norm to avoid overflow
     const scale = nextScale;
     nextScale = 0;
-    const rest: Float64Array[] = a.slice(k + 1);
-    if (y) rest.push(qty);
+    const rest: Float64Array[] = [...a.slice(k + 1), ...qtys];
     if (scale === 0) {
       diag[k] = 0;
       if (k + 1 < p) {
@@ -189,7 +261,7 @@ export function householderR(
     for (let j = i + 1; j < p; j++) row[j] = a[j][i];
     r.push(row);
   }
-  return { r, qty };
+  return { r, qtys };
 }
 
 /** out[j] = Σ_{i ≥ k} v[i]·cols[j][i], two columns per pass. */

@@ -12,9 +12,13 @@ export * from "./condition_number.ts";
 export {
   type OlsOptions,
   ordinaryLeastSquares,
+  ordinaryLeastSquaresMany,
   type RegressionFit,
 } from "./ordinary_least_squares.ts";
 export * from "./prais_winsten.ts";
 export * from "./newey_west.ts";
 export * from "./residual_lag1.ts";
+export * from "./multivariate_normal.ts";
+export * from "./ensemble_summary.ts";
 export * from "./coefficient_of_determination.ts";
+export * from "./residual_cross_correlation.ts";

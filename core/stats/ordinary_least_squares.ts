@@ -4,7 +4,7 @@
  * @module
  */
 import { residualLag1 } from "./residual_lag1.ts";
-import { leastSquaresQr } from "./least_squares_qr.ts";
+import { leastSquaresQrMany } from "./least_squares_qr.ts";
 import { conditionNumberOfR } from "./condition_number.ts";
 import { tCdf, tQuantile } from "./distributions.ts";
 import { InputError } from "../errors.ts";
@@ -325,47 +325,95 @@ export function ordinaryLeastSquares(
   y: Float64Array,
   options: OlsOptions = {},
 ): RegressionFit {
+  return ordinaryLeastSquaresMany(columns, [y], options)[0];
+}
+
+/**
+ * {@link ordinaryLeastSquares} for several responses with one design (multivariate
+ * regression with common regressors, fitted equation by equation: with identical regressors
+ * the equation-by-equation OLS estimates are the efficient ones, Zellner 1962, J. Am. Stat.
+ * Assoc. 57, 348): the design is factorised once ({@link leastSquaresQrMany}) and each
+ * response gets the full set of statistics. Each fit equals `ordinaryLeastSquares(columns, y_k)`
+ * bit for bit; the design arrays are shared between the fits.
+ *
+ * @param columns regressors as columns (each of length n)
+ * @param ys responses, each of length n (at least one)
+ * @param options {@link OlsOptions}
+ * @returns one {@link RegressionFit} per response
+ * @throws {InputError} as {@link ordinaryLeastSquares} (field `ys` with the index of a
+ *   response that is not finite or of the wrong length, `y` when there is only one)
+ * @example
+ * ```ts
+ * import { ordinaryLeastSquaresMany } from "./ordinary_least_squares.ts";
+ * import assert from "node:assert/strict";
+ * const x = Float64Array.of(1, 2, 3, 4, 5);
+ * const [a, b] = ordinaryLeastSquaresMany([x], [
+ *   Float64Array.of(2.1, 3.9, 6.2, 7.8, 10.1),
+ *   Float64Array.of(1, 1, 2, 2, 3),
+ * ]);
+ * assert.ok(Math.abs(a.coefficients[1] - 1.99) < 1e-10); // R: coef(lm(y ~ x))
+ * assert.ok(Math.abs(b.coefficients[1] - 0.5) < 1e-10);
+ * ```
+ */
+export function ordinaryLeastSquaresMany(
+  columns: readonly Float64Array[],
+  ys: readonly Float64Array[],
+  options: OlsOptions = {},
+): RegressionFit[] {
   const intercept = options.intercept ?? true;
   const level = options.level ?? 0.95;
-  const { design, names } = buildDesign(
-    "fit ordinary least squares",
-    columns,
-    y,
-    intercept,
-    options.names,
-  );
-  const n = y.length, p = design.length;
-  const qr = leastSquaresQr(design, y);
-  const beta = qr.coefficients;
-  const st = fitStatistics(design, y, beta, intercept, level);
+  const fn = "fit ordinary least squares";
+  if (ys.length === 0) {
+    throw new InputError(`Cannot ${fn}: no response given`, { field: "ys", reason: "empty" });
+  }
+  const { design, names } = buildDesign(fn, columns, ys[0], intercept, options.names);
+  const n = ys[0].length, p = design.length;
+  ys.forEach((y, k) => {
+    if (k === 0) return;
+    if (y.length !== n) {
+      throw new InputError(`Cannot ${fn}: response ${k} has length ${y.length}, not ${n}`, {
+        field: "ys",
+        reason: "length_mismatch",
+        index: k,
+      });
+    }
+    assertFinite(fn, `response ${k}`, y, { field: "ys", index: k });
+  });
+  const qr = leastSquaresQrMany(design, ys);
+  const conditionNumber = conditionNumberOfR(qr.r);
   const df = n - p;
-  const s2 = st.rss / df;
-  const covariance = qr.xtxInverse.map((row) => row.map((v) => v * s2));
-  const inf = coefficientInference(beta, covariance, df, st.tcrit);
-  const logLikelihood = 0.5 * (-n * (Math.log(2 * Math.PI) + 1 - Math.log(n) + Math.log(st.rss)));
-  return {
-    method: "ols",
-    names,
-    n,
-    p,
-    dfResidual: df,
-    intercept,
-    coefficients: beta,
-    covariance,
-    ...inf,
-    level,
-    sigma: Math.sqrt(s2),
-    residualRms: st.residualRms,
-    rss: st.rss,
-    rSquared: st.rSquared,
-    adjRSquared: st.adjRSquared,
-    logLikelihood,
-    aic: -2 * logLikelihood + 2 * (p + 1),
-    bic: -2 * logLikelihood + Math.log(n) * (p + 1),
-    residualLag1: st.residualLag1,
-    conditionNumber: conditionNumberOfR(qr.r),
-    fitted: st.fitted,
-    residuals: st.residuals,
-    design,
-  };
+  return ys.map((y, k) => {
+    const beta = qr.coefficients[k];
+    const st = fitStatistics(design, y, beta, intercept, level);
+    const s2 = st.rss / df;
+    const covariance = qr.xtxInverse.map((row) => row.map((v) => v * s2));
+    const inf = coefficientInference(beta, covariance, df, st.tcrit);
+    const logLikelihood = 0.5 *
+      (-n * (Math.log(2 * Math.PI) + 1 - Math.log(n) + Math.log(st.rss)));
+    return {
+      method: "ols",
+      names,
+      n,
+      p,
+      dfResidual: df,
+      intercept,
+      coefficients: beta,
+      covariance,
+      ...inf,
+      level,
+      sigma: Math.sqrt(s2),
+      residualRms: st.residualRms,
+      rss: st.rss,
+      rSquared: st.rSquared,
+      adjRSquared: st.adjRSquared,
+      logLikelihood,
+      aic: -2 * logLikelihood + 2 * (p + 1),
+      bic: -2 * logLikelihood + Math.log(n) * (p + 1),
+      residualLag1: st.residualLag1,
+      conditionNumber,
+      fitted: st.fitted,
+      residuals: st.residuals,
+      design,
+    };
+  });
 }

@@ -46,7 +46,13 @@ const RUN_REFS = new Set([
   "energy-balance",
   "composites",
   "field-composites",
+  "spectral-models",
+  "spectral-reconstructions",
 ]);
+/** The demo spectral record's bands with their series ids (fixtures/demo/spectral_bands.json). */
+const SPECTRAL_BANDS = JSON.parse(
+  await Deno.readTextFile(new URL("../../fixtures/demo/spectral_bands.json", import.meta.url)),
+);
 const CASES: Case[] = [
   ["resampling", "/v1/resampling", () => ({ series: TEMP, to: "annual" })],
   ["anomalies", "/v1/anomalies", () => ({ series: TEMP, base: { start: "1961", end: "1990" } })],
@@ -171,6 +177,20 @@ const CASES: Case[] = [
     field: FIELD,
     cycle_run: ids.cycles,
     random_sets: 200,
+  })],
+  // last, so the run ids of the cases above keep their places in the normalisation
+  ["spectral-models", "/v1/irradiance/spectral-models", (ids) => ({
+    tsi_model: ids.models,
+    sunspot_number: SSN,
+    proxies: [{ term: "mg_ii", series: MG }, { term: "psi", series: ids.psi }],
+    bands: SPECTRAL_BANDS,
+  })],
+  ["spectral-reconstructions", "/v1/irradiance/spectral-reconstructions", (ids) => ({
+    model: ids["spectral-models"],
+    sunspot_number: SSN,
+    resolution: "annual",
+    period: { start: "1700", end: "2025" },
+    proxies: [{ term: "mg_ii", series: MG }, { term: "psi", series: ids.psi }],
   })],
 ];
 

@@ -4,9 +4,8 @@
  *
  * @module
  */
-import { DEMO_SERIES } from "../../api/schemas/examples.ts";
+import { DEMO_FIELD, DEMO_SERIES } from "../../api/schemas/examples.ts";
 
 export const { SSN, AREA, MG, TSI, TSIM, TEMP, ENSO, AOD } = DEMO_SERIES;
 /** The demo's gridded field (monthly 10° air temperature; a field id, not a series id). */
-export const FIELD =
-  "field:sha256:9e638701b97f5a020c0525c24628808eb8c395b5e326730a4bd06c7f2e710b35";
+export const FIELD = DEMO_FIELD;

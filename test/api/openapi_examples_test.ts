@@ -22,6 +22,8 @@ type Json = any;
 /** Runs whose examples feed the placeholder of others: kind whose run stands in, by field. */
 const UPSTREAM: Record<string, Record<string, string>> = {
   "irradiance-reconstructions": { model: "irradiance-models" },
+  "spectral-irradiance-models": { tsi_model: "irradiance-models" },
+  "spectral-irradiance-reconstructions": { model: "spectral-irradiance-models" },
 };
 
 /** Every (pointer, value) of a JSON value. */

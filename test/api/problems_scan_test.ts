@@ -113,6 +113,12 @@ Deno.test("problems of bad requests name their field and speak to the user", asy
     const reference = { kind: "period", period: { start: "1986", end: "1996" } };
     const forcing = await run("/v1/forcing", { reconstruction: rec.id, reference });
     const cycles = await run("/v1/cycles", { series: SSN });
+    const bands = JSON.parse(
+      await Deno.readTextFile(new URL("../../fixtures/demo/spectral_bands.json", import.meta.url)),
+    ).slice(0, 6);
+    const proxies = [{ term: "mg_ii", series: DEMO.MG }, { term: "psi", series: psi }];
+    const spectralModel = { tsi_model: model.id, sunspot_number: SSN, proxies, bands };
+    const spectral = await run("/v1/irradiance/spectral-models", spectralModel);
 
     const valid: [string, Record<string, unknown>][] = [
       ["/v1/resampling", { series: TEMP, to: "annual" }],
@@ -130,6 +136,15 @@ Deno.test("problems of bad requests name their field and speak to the user", asy
         sunspot_number: SSN,
         resolution: "annual",
         period: { start: "1900", end: "2025" },
+      }],
+      ["/v1/irradiance/spectral-models", spectralModel],
+      ["/v1/irradiance/spectral-reconstructions", {
+        model: spectral.id,
+        sunspot_number: SSN,
+        proxies,
+        resolution: "annual",
+        period: { start: "1900", end: "2025" },
+        ranges: [{ lower: 200, upper: 300 }],
       }],
       ["/v1/forcing", { reconstruction: rec.id, reference }],
       ["/v1/energy-balance", { forcing_run: forcing.id }],

@@ -11,6 +11,10 @@ import { canonicalJson } from "../../api/canonical.ts";
 import { DEMO } from "./demo_inputs.ts";
 
 const { SSN, AREA, MG, TSI, TSIM, TEMP, ENSO, AOD, FIELD } = DEMO;
+/** The demo spectral record's bands with their series ids (fixtures/demo/spectral_bands.json). */
+const SPECTRAL_BANDS = JSON.parse(
+  await Deno.readTextFile(new URL("../../fixtures/demo/spectral_bands.json", import.meta.url)),
+);
 
 Deno.test("replay: every run kind recomputes to the stored digest", async (t) => {
   const svc = await makeTestApp();
@@ -64,6 +68,21 @@ Deno.test("replay: every run kind recomputes to the stored digest", async (t) =>
       resolution: "annual",
       period: { start: "1700", end: "2025" },
       proxies: [{ term: "mg_ii", series: MG }, { term: "psi", series: runIds.psi }],
+    })],
+    ["/v1/irradiance/spectral-models", () => ({
+      tsi_model: runIds["/v1/irradiance/models"],
+      sunspot_number: SSN,
+      proxies: [{ term: "mg_ii", series: MG }, { term: "psi", series: runIds.psi }],
+      bands: SPECTRAL_BANDS,
+      ranges: [{ lower: 200, upper: 400 }],
+    })],
+    ["/v1/irradiance/spectral-reconstructions", () => ({
+      model: runIds["/v1/irradiance/spectral-models"],
+      sunspot_number: SSN,
+      resolution: "annual",
+      period: { start: "1900", end: "2025" },
+      proxies: [{ term: "mg_ii", series: MG }, { term: "psi", series: runIds.psi }],
+      ranges: [{ lower: 200, upper: 400 }],
     })],
     ["/v1/forcing", () => ({
       reconstruction: runIds["/v1/irradiance/reconstructions"],

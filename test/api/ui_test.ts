@@ -16,6 +16,7 @@ import {
 } from "../../api/ui/snippets.js";
 import { runLabel as pageRunLabel } from "../../api/ui/dom.js";
 import { runLabel } from "../../api/runs/label.ts";
+import { jsSources } from "../source_files.ts";
 
 Deno.test("registerUiRoutes() serves the page and its assets with types, CSP and ETags", async () => {
   const svc = await makeTestApp();
@@ -67,17 +68,25 @@ Deno.test("the page's scripts set text from the service as text, never as HTML",
   }
 });
 
-Deno.test("every module the page imports is served", () => {
+Deno.test("every module the page imports is served, and every module of api/ui is", async () => {
   const served = new Set(UI_ASSETS.map((a) => a.path));
   let imports = 0;
   for (const a of UI_ASSETS.filter((x) => x.path.endsWith(".js"))) {
-    for (const [, spec] of a.body.matchAll(/^import [^;]*? from "(\.\/[\w.]+)";/gms)) {
-      assert.ok(served.has("/ui/" + spec.slice(2)), `${a.path} imports ${spec}`);
+    for (const [, spec] of a.body.matchAll(/^import [^;]*? from "(\.\.?\/[\w./]+)";/gms)) {
+      // Resolved as the browser does, against the importing module's URL.
+      const target = new URL(spec, "http://page" + a.path).pathname;
+      assert.ok(served.has(target), `${a.path} imports ${spec}`);
       imports++;
     }
   }
-  // page.js imports four modules, service.js and forms.js two each.
-  assert.ok(imports >= 8, `only ${imports} imports found`);
+  // page.js imports ten modules, the upload view six.
+  assert.ok(imports >= 16, `only ${imports} imports found`);
+  // A module added to api/ui but not to UI_ASSETS would be a 404 in the browser.
+  const dir = new URL("../../api/ui/", import.meta.url);
+  for await (const [url] of jsSources(dir)) {
+    const path = "/ui/" + url.pathname.slice(dir.pathname.length);
+    assert.ok(served.has(path), `${path} is not served`);
+  }
 });
 
 Deno.test("shellQuote() survives a real POSIX shell for awkward strings", async (t) => {

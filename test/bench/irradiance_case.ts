@@ -7,7 +7,6 @@
  */
 import {
   calibrateProxyModel,
-  evaluateSunspotMapping,
   fitSunspotMapping,
   type ProxyModelFit,
   reconstructFromProxies,
@@ -74,14 +73,11 @@ export function irradianceCase(): {
       return calibrateProxyModel(cal.y, terms, { method: "prais_winsten", folds: 5 });
     },
     reconstruct() {
-      const vf = new Float64Array(N), pf = new Float64Array(N);
-      const vp = new Float64Array(N), pp = new Float64Array(N);
-      evaluateSunspotMapping(mapF, rec.r, vf, pf);
-      evaluateSunspotMapping(mapP, rec.r, vp, pp);
       return reconstructFromProxies(model, {
         days,
         direct: [directF, directP],
-        mapped: [{ value: vf, paramVariance: pf }, { value: vp, paramVariance: pp }],
+        mappings: [mapF, mapP],
+        sunspot: rec.r,
       }, 1.96);
     },
   };

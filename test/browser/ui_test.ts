@@ -119,7 +119,8 @@ Deno.test({
         await page.goto(`${svc.url}/`);
         await page.waitForSelector("main table tbody tr");
         const rows = await page.locator("main table tbody tr").count();
-        assert.equal(rows, svc.demoIds.length);
+        // the first page: 20 rows of the demo's series (its 32 spectral bands come last)
+        assert.equal(rows, Math.min(svc.demoIds.length, 20));
         assert.match(
           await page.locator("main").innerText(),
           /SYNTHETIC Quorvanne monthly sunspot number/,

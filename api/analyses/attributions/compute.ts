@@ -35,6 +35,8 @@ import {
 import { LAG_SEARCH_CHUNK } from "./tasks.ts";
 import { withInputPointers } from "../common/input_problem.ts";
 import { solarSeriesFromRun } from "../common/solar_series_from_run.ts";
+import { solarEnsembleFromRun } from "../common/solar_ensemble.ts";
+import { attributionEnsembleSpread } from "./ensemble_spread.ts";
 import { undefinedAsNull } from "../common/undefined_as_null.ts";
 import type { AttributionParams } from "./request.ts";
 import type { AttributionResultIn } from "./result.ts";
@@ -274,8 +276,7 @@ function solarSummary(
 ): NonNullable<AttributionResultIn["solar"]> {
   const c = fit.coefficients[k + 1];
   const lag = fit.lags[p.regressors[k].name];
-  const t0 = fit.firstIndex;
-  const xs = axis.values[k + 1].subarray(t0 - lag, t0 - lag + fit.n);
+  const xs = solarSample(p, k, fit, axis);
   const amp = p.solar_cycle_amplitude ??
     withInputPointers({ "*": sourcePointer(p, k) }, () => cycleAmplitudeEstimate(xs));
   return {
@@ -331,13 +332,13 @@ function outputs(
   };
 }
 
-/** Regress the climate series on the regressors, each at its AIC-chosen lag. */
-export async function computeAttributions(
+/** The common axis, its seasonal step, the checks and the regression for given series. */
+function regress(
   p: AttributionParams,
+  climate: StoredSeries,
+  series: StoredSeries[],
   ctx: RunContext,
-): Promise<AttributionResultIn> {
-  const climate = ctx.series(refId(p.climate));
-  const { series, solarIndex } = regressorSeries(p, ctx);
+) {
   const onAxis = analysisAxis(
     [climate, ...series],
     ["/climate", ...p.regressors.map((_, k) => sourcePointer(p, k))],
@@ -354,10 +355,8 @@ export async function computeAttributions(
     })),
   ];
   const { axis, seasonal } = seasonalAxis(onAxis, labels, p.deseasonalise);
-  const seasonalLeft = annualCycleLeft(axis.resolution, axis.time, axis.values, labels);
   checkSample(p, axis);
   const regressors = coreRegressors(p, axis);
-  ctx.progress(0.1); // inputs checked; the lag search and the regression follow
   const fit = withInputPointers({
     regressors: (e) =>
       e.index === undefined || e.index >= p.regressors.length
@@ -372,6 +371,42 @@ export async function computeAttributions(
       hacLags: p.hac_lags,
       shouldStop: ctx.cancelled,
     }));
+  return { axis, labels, seasonal, regressors, fit };
+}
+
+/** The solar regressor's values over the fitted sample, at its chosen lag. */
+function solarSample(p: AttributionParams, k: number, fit: AttributionResult, axis: AnalysisAxis) {
+  const lag = fit.lags[p.regressors[k].name];
+  const t0 = fit.firstIndex;
+  return axis.values[k + 1].subarray(t0 - lag, t0 - lag + fit.n);
+}
+
+/** Regress the climate series on the regressors, each at its AIC-chosen lag. */
+export async function computeAttributions(
+  p: AttributionParams,
+  ctx: RunContext,
+): Promise<AttributionResultIn> {
+  const climate = ctx.series(refId(p.climate));
+  const { series, solarIndex } = regressorSeries(p, ctx);
+  const { axis, labels, seasonal, regressors, fit } = regress(p, climate, series, ctx);
+  ctx.progress(0.1); // inputs checked and the regression fitted; the lag search test follows
+  const seasonalLeft = annualCycleLeft(axis.resolution, axis.time, axis.values, labels);
+  const solarRun = solarIndex === null ? undefined : p.regressors[solarIndex].run;
+  const ensemble = solarRun
+    ? solarEnsembleFromRun(ctx, solarRun, series[solarIndex!], sourcePointer(p, solarIndex!))
+    : null;
+  // every member through the same axis, seasonal step, lag search and regression
+  const spread = ensemble
+    ? attributionEnsembleSpread(ctx, ensemble, solarIndex!, p.regressors[solarIndex!].name, (s) => {
+      const r = regress(p, climate, s, ctx);
+      const amplitude = p.solar_cycle_amplitude ??
+        withInputPointers(
+          { "*": sourcePointer(p, solarIndex!) },
+          () => cycleAmplitudeEstimate(solarSample(p, solarIndex!, r.fit, r.axis)),
+        );
+      return { fit: r.fit, amplitude };
+    }, series)
+    : null;
   ctx.progress(0.1);
   const t0 = fit.firstIndex;
   const sampleTime = Array.from(axis.time.subarray(t0, t0 + fit.n));
@@ -431,6 +466,8 @@ export async function computeAttributions(
       ? null
       : solarSummary(p, solarIndex, fit, axis, climate, series[solarIndex], lagSearch.json),
     outputs: outputs(regressors, fit, climate, sampleTime, seasonal.json.deseasonalise),
+    // present only when the solar regressor has an ensemble, so other results keep their shape
+    ...(spread ? { ensemble_spread: spread } : {}),
     warnings: [
       ...axis.warnings,
       ...seasonal.warnings,

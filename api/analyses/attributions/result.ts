@@ -4,6 +4,7 @@
  * @module
  */
 import { z } from "@hono/zod-openapi";
+import { AttributionEnsembleSpread } from "./ensemble_spread.ts";
 import { cautions, inherited, OutputSeriesSchema, warnings } from "../common/result_parts.ts";
 import { SeasonalCycleSchema } from "../common/seasonal_cycle.ts";
 
@@ -138,6 +139,10 @@ export const AttributionResult = z.object({
     max_minus_min_note: z.string(),
     lag_search_significance: LagSearchSignificance,
   }).nullable().openapi({ description: "null without a regressor of role `solar`" }),
+  ensemble_spread: AttributionEnsembleSpread.optional().openapi({
+    description: "Present when the solar regressor is a run with an ensemble: the regression " +
+      "repeated for every member",
+  }),
   outputs: z.object({
     fitted: OutputSeriesSchema,
     residuals: OutputSeriesSchema,

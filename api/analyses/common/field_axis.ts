@@ -25,6 +25,24 @@ export interface FieldOnAxis {
   steps: [number, number];
 }
 
+/**
+ * A loaded field as core's GriddedField (a view, no copy): its loaded steps, or `nTime` steps
+ * of `values` when given, with the cell bounds when the field has both.
+ */
+export function griddedFieldOf(
+  f: LoadedField,
+  values: Float32Array = f.values,
+  nTime = f.time.length,
+): GriddedField {
+  return {
+    values,
+    nTime,
+    lat: f.lat,
+    lon: f.lon,
+    ...(f.lat_bounds && f.lon_bounds ? { latBounds: f.lat_bounds, lonBounds: f.lon_bounds } : {}),
+  };
+}
+
 /** The calendar resolution of a field's axis, or a problem at `pointer`. */
 export function fieldResolution(f: LoadedField, pointer: string): "monthly" | "annual" {
   const r = f.meta.resolution;
@@ -98,13 +116,7 @@ export function fieldOnAxis(
   const cells = f.lat.length * f.lon.length;
   return {
     axis: { ...axis, values: axis.values.slice(0, -1) },
-    field: {
-      values: f.values.subarray(a * cells, (a + n) * cells),
-      nTime: n,
-      lat: f.lat,
-      lon: f.lon,
-      ...(f.lat_bounds && f.lon_bounds ? { latBounds: f.lat_bounds, lonBounds: f.lon_bounds } : {}),
-    },
+    field: griddedFieldOf(f, f.values.subarray(a * cells, (a + n) * cells), n),
     steps: [f.stepStart + a, f.stepStart + a + n],
   };
 }

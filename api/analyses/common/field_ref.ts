@@ -8,6 +8,7 @@
  */
 import { z } from "@hono/zod-openapi";
 import { FIELD_ID_PATTERN } from "../../store/field_types.ts";
+import { DEMO_FIELD } from "../../schemas/examples.ts";
 
 /** The id of a stored field, as a request field. */
 export const FieldId = z.string().regex(
@@ -19,6 +20,6 @@ export const FieldId = z.string().regex(
 export function fieldRef(description: string) {
   return FieldId.openapi({
     description,
-    example: "field:sha256:9b2f4c1e0d7a5b3c8e6f1a2d4c7b9e0f3a5d8c1b6e4f7a2c9d0b3e5f8a1c4d7e",
+    example: DEMO_FIELD,
   });
 }

@@ -22,7 +22,10 @@ import {
 } from "../../../core/climate/mod.ts";
 import { CAUTION_REVIEW } from "../common/cautions.ts";
 import { withInputPointers } from "../common/input_problem.ts";
+import { checkStoredMembers, memberBand, membersJson } from "../common/ensemble_members.ts";
+import { bandCaution, type UncertaintyBand } from "../common/uncertainty_band.ts";
 import { forcing as forcingAnalysis } from "../forcing/mod.ts";
+import type { ForcingResultOut } from "../forcing/result.ts";
 import type { EnergyBalanceParams } from "./request.ts";
 import type { EnergyBalanceResultIn } from "./result.ts";
 
@@ -35,6 +38,9 @@ interface Forcing {
   skipped: number;
   /** Initial [surface, deep] temperatures (the steady state for a sinusoid). */
   initial: [number, number];
+  /** A forcing run's members at the same points (member-major), its seed and band. */
+  ensemble: { members: Float64Array; realizations: number; seed: number } | null;
+  band: UncertaintyBand | null;
 }
 
 /** F₀ sin(2πt/P) on its sampling grid, started on the steady state. */
@@ -65,6 +71,8 @@ function sinusoidForcing(
     value: time.map((t) => sn.amplitude * Math.sin(w * t)),
     name: `sinusoidal forcing ${sn.amplitude} W m-2, ${sn.period_years} yr`,
     skipped: 0,
+    ensemble: null,
+    band: null,
     initial: p.model === "one_box"
       ? [oneBoxSinusoidStart(params, sn.period_years, sn.amplitude), 0]
       : twoBoxSinusoidStart(params, sn.period_years, sn.amplitude),
@@ -74,8 +82,10 @@ function sinusoidForcing(
 /** A forcing series or a forcing run's `forcing` output, in W m-2, without its gaps. */
 function forcingInput(p: EnergyBalanceParams, ctx: RunContext): Forcing {
   let o: { time: ArrayLike<number>; value: ArrayLike<number | null>; units: string; name: string };
+  let run: ForcingResultOut | null = null;
   if (p.forcing_run) {
-    o = ctx.resultOf(forcingAnalysis, p.forcing_run, "/forcing_run").outputs.forcing;
+    run = ctx.resultOf(forcingAnalysis, p.forcing_run, "/forcing_run");
+    o = run.outputs.forcing;
   } else {
     const s = ctx.series(refId(p.forcing!));
     if (s.quantity !== "radiative_forcing") {
@@ -92,21 +102,64 @@ function forcingInput(p: EnergyBalanceParams, ctx: RunContext): Forcing {
       `forcing must be in W m-2, got ${o.units}`,
     );
   }
-  const t: number[] = [], f: number[] = [];
+  const keep: number[] = [];
   for (let i = 0; i < o.time.length; i++) {
     const v = o.value[i];
-    if (v !== null && Number.isFinite(v)) {
-      t.push(o.time[i]);
-      f.push(v);
-    }
+    if (v !== null && Number.isFinite(v)) keep.push(i);
   }
-  if (t.length < 2) throw new InputProblem("/forcing", "the forcing has fewer than 2 values");
+  if (keep.length < 2) throw new InputProblem("/forcing", "the forcing has fewer than 2 values");
+  const e = run?.ensemble ?? null;
+  if (e) checkStoredMembers(e, o.time.length, "/forcing_run", p.forcing_run!);
+  const n = keep.length;
   return {
-    time: Float64Array.from(t),
-    value: Float64Array.from(f),
+    time: Float64Array.from(keep, (i) => o.time[i]),
+    value: Float64Array.from(keep, (i) => o.value[i] as number),
     name: o.name,
-    skipped: o.time.length - t.length,
+    skipped: o.time.length - n,
     initial: [0, 0],
+    ensemble: e
+      ? {
+        members: Float64Array.from(
+          { length: e.realizations * n },
+          (_, k) => e.members[Math.floor(k / n)][keep[k % n]] ?? NaN,
+        ),
+        realizations: e.realizations,
+        seed: e.seed,
+      }
+      : null,
+    band: run?.band ?? null,
+  };
+}
+
+/** The surface response to every member of the forcing's ensemble, and its band. */
+function memberResponses(
+  p: EnergyBalanceParams,
+  params: TwoBoxParameters,
+  f: Forcing,
+  central: Float64Array,
+) {
+  const e = f.ensemble!, n = f.time.length;
+  const members = new Float64Array(e.realizations * n);
+  withInputPointers({ "*": "/forcing_run" }, () => {
+    for (let m = 0; m < e.realizations; m++) {
+      const fm = e.members.subarray(m * n, (m + 1) * n);
+      const t = p.model === "one_box"
+        ? oneBoxResponse(f.time, fm, params, 0)
+        : twoBoxResponse(f.time, fm, params, [0, 0]).surface;
+      members.set(t, m * n);
+    }
+  });
+  if (!members.every(Number.isFinite)) {
+    throw new InputProblem("/forcing_run", "a member's response is not finite");
+  }
+  const b = memberBand(central, members, e.realizations, 0.95, "responses to forcing members");
+  return {
+    members,
+    uncertainty: b.sd,
+    lower: b.lower,
+    upper: b.upper,
+    interval: b.interval,
+    method: b.method,
   };
 }
 
@@ -191,6 +244,8 @@ export function computeEnergyBalance(
   const { surface, deep } = response(p, params, forcing);
   const amp0 = p.sinusoid?.amplitude ?? null;
   const timeAxis = p.sinusoid ? { time_axis: "model_years" as const } : {};
+  const spread = forcing.ensemble ? memberResponses(p, params, forcing, surface) : null;
+  const band = spread && forcing.band ? { ...forcing.band, method: spread.method } : null;
   const outputs: { temperature: OutputSeries; deep_temperature?: OutputSeries } = {
     temperature: {
       name: `${p.model === "one_box" ? "one-box" : "two-box"} response to ${forcing.name}`,
@@ -199,6 +254,14 @@ export function computeEnergyBalance(
       time: Array.from(time),
       ...timeAxis,
       value: Array.from(surface),
+      ...(spread
+        ? {
+          uncertainty: Array.from(spread.uncertainty),
+          lower: Array.from(spread.lower),
+          upper: Array.from(spread.upper),
+          interval: spread.interval,
+        }
+        : {}),
       description: "Mixed-layer temperature response, K, relative to the initial state",
     },
   };
@@ -238,6 +301,20 @@ export function computeEnergyBalance(
     },
     sinusoid_numerical: p.sinusoid ? measuredSinusoid(p.sinusoid, time, surface, analytic) : null,
     outputs,
+    // present only with a forcing ensemble, so results without one keep their shape
+    ...(spread && band
+      ? {
+        band,
+        ensemble: {
+          output: "temperature",
+          realizations: forcing.ensemble!.realizations,
+          seed: forcing.ensemble!.seed,
+          units: "K",
+          rounding: 1e-6,
+          members: membersJson(spread.members, forcing.ensemble!.realizations, 1e-6),
+        },
+      }
+      : {}),
     warnings: forcing.skipped > 0
       ? [
         `${forcing.skipped} forcing value(s) missing: the forcing is taken as linear across the gaps`,
@@ -247,6 +324,12 @@ export function computeEnergyBalance(
       "An energy-balance model is a deliberately simple description of the climate system; " +
       "its response depends on the assumed heat capacity and feedback.",
       CAUTION_REVIEW,
+      ...(band
+        ? [
+          bandCaution(band, "The response's uncertainty band") +
+          " The heat capacity and feedback are taken as exact.",
+        ]
+        : []),
     ],
   };
 }

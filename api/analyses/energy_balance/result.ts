@@ -4,6 +4,8 @@
  * @module
  */
 import { z } from "@hono/zod-openapi";
+import { UncertaintyBandSchema } from "../common/uncertainty_band.ts";
+import { EnsembleSchema } from "../common/ensemble_members.ts";
 import { cautions, inherited, OutputSeriesSchema, warnings } from "../common/result_parts.ts";
 
 export const EnergyBalanceResult = z.object({
@@ -56,8 +58,17 @@ export const EnergyBalanceResult = z.object({
     temperature: OutputSeriesSchema,
     deep_temperature: OutputSeriesSchema.optional(),
   }).openapi({
-    description: "`temperature`: the surface (mixed-layer) response; `deep_temperature`: the " +
-      "deep ocean's, two-box only",
+    description: "`temperature`: the surface (mixed-layer) response, with the band of the " +
+      "responses to the forcing's members when the forcing run has an ensemble; " +
+      "`deep_temperature`: the deep ocean's, two-box only",
+  }),
+  band: UncertaintyBandSchema.optional().openapi({
+    description: "What the response's band contains (the forcing's statement, passed on); " +
+      "present only with a forcing ensemble",
+  }),
+  ensemble: EnsembleSchema.optional().openapi({
+    description: "Surface response to each member of the forcing run's ensemble (K, rounded to " +
+      "1e-6); present only when the forcing run has one",
   }),
   warnings,
   cautions,

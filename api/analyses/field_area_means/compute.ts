@@ -16,6 +16,7 @@ import {
 } from "../../../core/field/mod.ts";
 import { CAUTION_REVIEW } from "../common/cautions.ts";
 import { withInputPointers } from "../common/input_problem.ts";
+import { griddedFieldOf } from "../common/field_axis.ts";
 import { undefinedAsNull } from "../common/undefined_as_null.ts";
 import type { FieldAreaMeanParams } from "./request.ts";
 import type { FieldAreaMeanResultIn } from "./result.ts";
@@ -54,13 +55,7 @@ export function computeFieldAreaMean(
   ctx: RunContext,
 ): FieldAreaMeanResultIn {
   const f = ctx.field(p.field);
-  const field: GriddedField = {
-    values: f.values,
-    nTime: f.time.length,
-    lat: f.lat,
-    lon: f.lon,
-    ...(f.lat_bounds && f.lon_bounds ? { latBounds: f.lat_bounds, lonBounds: f.lon_bounds } : {}),
-  };
+  const field: GriddedField = griddedFieldOf(f);
   const fromBounds = p.weights === "auto" && f.lat_bounds !== null && f.lon_bounds !== null;
   const weights = fromBounds ? fieldAreaWeights(field) : cosLatitudeWeights(f.lat, f.lon.length);
   const m = withInputPointers(

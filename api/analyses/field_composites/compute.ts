@@ -22,7 +22,8 @@ import { formatIsoTime, parseIsoTime } from "../../../core/time/mod.ts";
 import { CAUTION_CORRELATION, CAUTION_REVIEW } from "../common/cautions.ts";
 import { withInputPointers } from "../common/input_problem.ts";
 import { cycleEpochs } from "../common/cycle_epochs.ts";
-import { fieldResolution } from "../common/field_axis.ts";
+import { fieldResolution, griddedFieldOf } from "../common/field_axis.ts";
+import { fdrPart, nullPart } from "../common/field_significance.ts";
 import { CAUTION_MANY_CELLS, mapGrid, mapVariable } from "../common/map_result.ts";
 import type { FieldCompositeParams } from "./request.ts";
 import type { FieldCompositeResultIn } from "./result.ts";
@@ -117,13 +118,7 @@ export async function computeFieldComposite(
   if (to < from) {
     throw new InputProblem("/to_years", "the window must end at least one step after from_years");
   }
-  const field: GriddedField = {
-    values: f.values,
-    nTime: f.time.length,
-    lat: f.lat,
-    lon: f.lon,
-    ...(f.lat_bounds && f.lon_bounds ? { latBounds: f.lat_bounds, lonBounds: f.lon_bounds } : {}),
-  };
+  const field: GriddedField = griddedFieldOf(f);
   const weights = fieldAreaWeights(field);
   const seasonal = p.deseasonalise && resolution === "monthly";
   const epochsPointer = p.cycle_run ? "/cycle_run" : "/epoch_dates";
@@ -225,16 +220,10 @@ export async function computeFieldComposite(
         `significant: false discovery rate ≤ ${fdr.alphaFdr} (Benjamini–Hochberg)`,
     },
     field_significance: {
-      fdr: {
-        alpha_global: fdr.alphaGlobal,
-        alpha_fdr: fdr.alphaFdr,
-        p_used: "p of the local t test",
-        p_threshold: fdr.pThreshold,
-        cells_tested: fdr.tested,
-        cells_significant: fdr.count,
-        area_fraction: fdr.areaFraction,
-        field_significant: fdr.fieldSignificant,
-      },
+      fdr: fdrPart(
+        fdr,
+        "p of the local t test",
+      ),
       monte_carlo: mc
         ? {
           random_sets: mc.replicates,
@@ -245,18 +234,7 @@ export async function computeFieldComposite(
             "statistic: area-weighted fraction of cells with |t| at least the critical value",
           observed_fraction: mc.observedFraction[0],
           p_field: mc.pField,
-          null: {
-            mean: mc.nullBest.mean,
-            sd: mc.nullBest.sd,
-            q50: mc.nullBest.q50,
-            q90: mc.nullBest.q90,
-            q95: mc.nullBest.q95,
-            q99: mc.nullBest.q99,
-            max: mc.nullBest.max,
-            zero_fraction: mc.nullBest.zeroFraction,
-            histogram: mc.nullBest.histogram,
-            bimodality: Number.isFinite(mc.nullBest.bimodality) ? mc.nullBest.bimodality : null,
-          },
+          null: nullPart(mc.nullBest),
         }
         : null,
     },

@@ -14,14 +14,19 @@ import { estimateForcingSeconds } from "./estimate.ts";
 export const forcing = defineAnalysis({
   kind: "forcing",
   path: "/v1/forcing",
-  algorithmVersion: "2",
+  // 3: σ_F from Var(x_t − m̄) with the reference mean's covariance (a reconstruction's error
+  // model, or independent point errors of a series) instead of an upper bound; ensembles.
+  algorithmVersion: "3",
   tag: "Irradiance",
   summary: "Solar radiative forcing ΔF = ΔTSI·(1 − α)/4 relative to a reference period",
   description: "Converts TSI to radiative forcing relative to the mean TSI of a reference " +
     "period (a period, or a window around a cycle minimum), with albedo α = 0.29 by default " +
-    "(IPCC AR6 WG1 §7.3.4.4). The one-sigma uncertainty of a reconstruction is carried: " +
-    "σ_F = (1 − α)/4·√(σ(t)² + σ_ref²), σ_ref the mean σ in the reference period (errors " +
-    "there taken as fully correlated, an upper bound).",
+    "(IPCC AR6 WG1 §7.3.4.4). The uncertainty is that of the difference from the reference " +
+    "mean, σ_F = (1 − α)/4·√(Var(x_t) + Var(m̄) − 2Cov(x_t, m̄)): from a reconstruction's " +
+    "error model (so the quiet-Sun level's error, shared with the reference, cancels), or " +
+    "from a series' uncertainties taken as independent. A reconstruction with an ensemble " +
+    "gives one forcing member per member, each against its own reference mean, and the band " +
+    "of those members; the reconstruction's statement of what its band contains is passed on.",
   request: ForcingRequest,
   result: ForcingResult,
   runRefs: (p) => (p.reconstruction ? [p.reconstruction] : []),

@@ -26,10 +26,10 @@ import {
 import {
   meanPeriodDays,
   type PeriodMeansByKey,
-  periodMeansByKey,
   periodOfKey,
   resampledAtPeriodKeys,
 } from "../../../core/series/mod.ts";
+import { cellMeansWithin, proxiesAtCells } from "../common/proxy_cells.ts";
 import type { CalendarResolution } from "../../../core/time/mod.ts";
 import { InputError } from "../../../core/errors.ts";
 import { parsePeriod, type YearSpan } from "../common/time_period.ts";
@@ -159,15 +159,6 @@ function alternativeJson(
   };
 }
 
-/** Means of a series per cell, over its points inside a span (decimal years, end exclusive). */
-function cellMeansWithin(s: StoredSeries, r: CalendarResolution, span: YearSpan): PeriodMeansByKey {
-  const inside = (t: number) => t >= span.start && t < span.end;
-  return periodMeansByKey({
-    time: s.time.filter(inside),
-    value: s.value.filter((_, i) => inside(s.time[i])),
-  }, r);
-}
-
 /** The cells of the TSI record (in the requested period) where every proxy has a value. */
 function calibrationCells(params: ModelParams, ctx: RunContext): CalibrationCells {
   const tsi = requireQuantity(ctx.series(refId(params.tsi)), "tsi", "/tsi");
@@ -177,14 +168,11 @@ function calibrationCells(params: ModelParams, ctx: RunContext): CalibrationCell
     : { start: -Infinity, end: Infinity };
   const tsiCells = cellMeansWithin(tsi, resolution, span);
   const termSeries = params.terms.map((t) => ctx.series(refId(t.series)));
-  // the coverage rule of core/series: a monthly cell from daily values needs 20 of them
-  const termAtTsi = termSeries.map((s) =>
-    resampledAtPeriodKeys(s, s.resolution, resolution, tsiCells.keys)
+  const { values: termAtTsi, complete: use } = proxiesAtCells(
+    termSeries,
+    resolution,
+    tsiCells.keys,
   );
-  const use: number[] = [];
-  for (let i = 0; i < tsiCells.keys.length; i++) {
-    if (termAtTsi.every((v) => Number.isFinite(v[i]))) use.push(i);
-  }
   if (use.length === 0) {
     throw new InputProblem(
       "/terms",

@@ -1,7 +1,9 @@
 /**
- * Chart of the "irradiance-reconstructions" analysis: reconstructed TSI with its prediction
- * interval, drawn solid where every proxy was observed and dashed where proxies were mapped
- * from sunspot number (back-extension), with the boundary between the two marked.
+ * Chart of the "irradiance-reconstructions" analysis: reconstructed TSI with its band (the
+ * ensemble's when members were drawn, else the analytic one), a few ensemble members as thin
+ * lines, the central curve solid where every proxy was observed and dashed where proxies were
+ * mapped from sunspot number (back-extension), the boundary between the two marked, and notes
+ * naming the sources the band contains and those it leaves out.
  *
  * @module
  */
@@ -10,6 +12,9 @@ import type { Layer } from "../../charts/chart.ts";
 import { runDescription, runNotes, runTitle } from "../../charts/run_common.ts";
 import { axisLabel, quantityLabel } from "../../charts/labels.ts";
 import type { ReconstructionResultOut } from "./result.ts";
+
+/** Ensemble members drawn as thin lines (enough to show their texture, few enough to read). */
+const SHOWN_MEMBERS = 5;
 
 export const reconstructionChart: KindChart<ReconstructionResultOut> = {
   build(run, r) {
@@ -42,6 +47,17 @@ export const reconstructionChart: KindChart<ReconstructionResultOut> = {
         color: 0,
       });
     }
+    const members = r.ensemble?.members.slice(0, SHOWN_MEMBERS) ?? [];
+    members.forEach((y, m) =>
+      layers.push({
+        type: "line",
+        ...(m === 0 ? { label: `${members.length} of ${r.ensemble!.realizations} members` } : {}),
+        x: o.time,
+        y,
+        color: "muted",
+        width: 0.6,
+      })
+    );
     layers.push({
       type: "line",
       label: anyBack ? "TSI from observed proxies" : "Reconstructed TSI",
@@ -74,14 +90,22 @@ export const reconstructionChart: KindChart<ReconstructionResultOut> = {
       title: runTitle(`Reconstructed total solar irradiance (${r.resolution} means)`, run),
       description: runDescription(
         run,
-        `Reconstructed TSI with its ${(r.level * 100).toFixed(0)} % prediction interval` +
+        `Reconstructed TSI with its ${(r.level * 100).toFixed(0)} % band (${
+          r.band.method.replaceAll("_", " ")
+        }; sources in the band: ${r.band.included.map((s) => s.source).join(", ")})` +
+          `${members.length ? `, ${members.length} ensemble members as thin lines` : ""}` +
           `${anyBack ? "; dashed where proxies were mapped from sunspot number" : ""}.` +
           ` ${r.scenario.label}`,
       ),
       x: { label: "Year", kind: "year" },
       y: { label: axisLabel(quantityLabel(o.quantity), o.units, o.quantity) },
       layers,
-      ...runNotes(run),
+      // what the band holds is read with the band: never shortened
+      ...runNotes(run, [], [
+        `Band: ${r.band.included.map((s) => s.source).join(", ")} uncertainty. Not in the band: ${
+          r.band.not_included.map((t) => t.split(" (")[0]).join("; ")
+        }.`,
+      ]),
     };
   },
 };

@@ -29,6 +29,8 @@ import {
 } from "../common/seasonal_cycle.ts";
 import { type FieldPointers, withInputPointers } from "../common/input_problem.ts";
 import { solarSeriesFromRun } from "../common/solar_series_from_run.ts";
+import { solarEnsembleFromRun } from "../common/solar_ensemble.ts";
+import { lagEnsembleSpread } from "./ensemble_spread.ts";
 import type { LagCorrelationParams } from "./request.ts";
 import type { LagCorrelationResultIn } from "./result.ts";
 import { SURROGATE_LAG_CHUNK } from "./tasks.ts";
@@ -266,6 +268,19 @@ export async function computeLagCorrelations(
     : await monteCarlo({ ...p, significance: p.significance }, ctx, series, axis, window);
   ctx.progress(0.95);
   const best = rows[bestIdx];
+  const ensemble = p.solar_run ? solarEnsembleFromRun(ctx, p.solar_run, solar, "/solar_run") : null;
+  // every member through the same axis, seasonal step and preprocessing as the central series
+  const spread = ensemble
+    ? lagEnsembleSpread(
+      p,
+      ctx,
+      ensemble,
+      climate,
+      window,
+      (a) => preprocessed(p, seasonalAxis(a, labels, p.deseasonalise).axis, deseasonalised),
+      bestIdx,
+    )
+    : null;
   const warnings = [...axis.warnings, ...seasonal.warnings];
   const left = annualCycleLeft(axis.resolution, axis.time, [series.x, series.y], labels);
   const trust = verdict(best, mc ? mc.pPerLag[bestIdx] : null, left);
@@ -330,6 +345,8 @@ export async function computeLagCorrelations(
       solar_preprocessed: preprocessedOutput(solar, series.x),
       climate_preprocessed: preprocessedOutput(climate, series.y),
     },
+    // present only when the solar input has an ensemble, so other results keep their shape
+    ...(spread ? { ensemble_spread: spread } : {}),
     warnings,
     cautions: solarCautions([solar]),
   };

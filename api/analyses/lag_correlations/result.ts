@@ -6,6 +6,7 @@
 import { z } from "@hono/zod-openapi";
 import { cautions, inherited, OutputSeriesSchema, warnings } from "../common/result_parts.ts";
 import { PreprocessField } from "./request.ts";
+import { LagEnsembleSpread } from "./ensemble_spread.ts";
 import { SeasonalCycleSchema } from "../common/seasonal_cycle.ts";
 
 const nullWhenNeffSmall = (what: string, limit: number) =>
@@ -107,6 +108,9 @@ export const LagCorrelationResult = z.object({
     }),
     p_value_rule: z.string(),
   }).nullable().openapi({ description: "null when no Monte Carlo test was run" }),
+  ensemble_spread: LagEnsembleSpread.optional().openapi({
+    description: "Present when solar_run has an ensemble: the answer repeated for every member",
+  }),
   which_to_trust: z.string().openapi({
     description: "Which p-values to rely on for this result, and why",
   }),

@@ -33,6 +33,7 @@ import { solarCautions } from "../common/cautions.ts";
 import { withInputPointers } from "../common/input_problem.ts";
 import { solarSeriesFromRun } from "../common/solar_series_from_run.ts";
 import { fieldOnAxis } from "../common/field_axis.ts";
+import { fdrPart, nullPart } from "../common/field_significance.ts";
 import { CAUTION_MANY_CELLS, mapGrid, type MapPart, mapVariable } from "../common/map_result.ts";
 import type { SolarSignalMapParams } from "./request.ts";
 import type { SolarSignalMapResultIn } from "./result.ts";
@@ -350,16 +351,10 @@ export async function computeSolarSignalMap(
       }
       : null,
     field_significance: {
-      fdr: {
-        alpha_global: fdr.alphaGlobal,
-        alpha_fdr: fdr.alphaFdr,
-        p_used: "p_bonferroni: the best lag's analytic p times the number of lags (at most 1)",
-        p_threshold: fdr.pThreshold,
-        cells_tested: fdr.tested,
-        cells_significant: fdr.count,
-        area_fraction: fdr.areaFraction,
-        field_significant: fdr.fieldSignificant,
-      },
+      fdr: fdrPart(
+        fdr,
+        "p_bonferroni: the best lag's analytic p times the number of lags (at most 1)",
+      ),
       monte_carlo: mc
         ? {
           surrogates: mc.replicates,
@@ -372,18 +367,7 @@ export async function computeSolarSignalMap(
           observed_best: mc.observedBest,
           best_lag: map.lags[mc.observedBestIndex],
           p_field: mc.pField,
-          null_best: {
-            mean: mc.nullBest.mean,
-            sd: mc.nullBest.sd,
-            q50: mc.nullBest.q50,
-            q90: mc.nullBest.q90,
-            q95: mc.nullBest.q95,
-            q99: mc.nullBest.q99,
-            max: mc.nullBest.max,
-            zero_fraction: mc.nullBest.zeroFraction,
-            histogram: mc.nullBest.histogram,
-            bimodality: Number.isFinite(mc.nullBest.bimodality) ? mc.nullBest.bimodality : null,
-          },
+          null_best: nullPart(mc.nullBest),
         }
         : null,
     },

@@ -199,8 +199,9 @@ def irradiance_job():
         X = np.column_stack([np.ones_like(f), f - 0.15, -1360.8 * p])
         yhat = X @ beta
         q = ((X @ cov) * X).sum(axis=1)
-        mv = np.where(miss_f, (beta[1] ** 2 + cov[1, 1]) * pf, 0.0)
-        mv += np.where(miss_p, (beta[2] ** 2 + cov[2, 2]) * 1360.8**2 * pp, 0.0)
+        # first order (delta method), as sunlag's error model since reconstructions v5
+        mv = np.where(miss_f, beta[1] ** 2 * pf, 0.0)
+        mv += np.where(miss_p, beta[2] ** 2 * 1360.8**2 * pp, 0.0)
         rv = np.where(miss_f | miss_p, sd_b**2, sd0**2)  # one-day cells: AR(1) factor 1
         s = np.sqrt(q + mv + rv)
         return yhat, s, yhat - 1.96 * s, yhat + 1.96 * s

@@ -43,7 +43,7 @@ Deno.test("the proxy model is evaluated once: calibration, reconstruction and ba
       stepDays: 1,
       backExtension: null,
     },
-    { days: new Float64Array(n).fill(1), direct: [f, psi], mapped: [null, null] },
+    { days: new Float64Array(n).fill(1), direct: [f, psi], mappings: [null, null], sunspot: null },
     1.96,
   );
   assert.deepEqual(Array.from(rec.value), Array.from(yhat));

@@ -86,7 +86,8 @@ Deno.test("calibrateProxyModel() OLS intervals are too narrow for AR(1) errors; 
     const daily = reconstructFromProxies(model, {
       days: new Float64Array(300).fill(1),
       direct: [test.f, test.psi],
-      mapped: [null, null],
+      mappings: [null, null],
+      sunspot: null,
     }, z);
     for (let t = 0; t < 300; t += 10) {
       dayTotal++;
@@ -100,7 +101,8 @@ Deno.test("calibrateProxyModel() OLS intervals are too narrow for AR(1) errors; 
       const r = reconstructFromProxies(model, {
         days: Float64Array.of(30),
         direct: [Float64Array.of(mf), Float64Array.of(mp)],
-        mapped: [null, null],
+        mappings: [null, null],
+        sunspot: null,
       }, z);
       monthTotal++;
       if (r.lower[0] <= my && my <= r.upper[0]) monthHits++;
@@ -174,7 +176,8 @@ Deno.test("tsiCycleAmplitude() of the demo's daily model values is within the pu
   }, {
     days: new Float64Array(d.tsi.length).fill(1),
     direct: [d.facular, psi],
-    mapped: [null, null],
+    mappings: [null, null],
+    sunspot: null,
   }, 1.96);
   const amp = tsiCycleAmplitude(d.time, r.value);
   assert.ok(amp.median !== null && amp.median >= 0.9 && amp.median <= 1.6, `amp ${amp.median}`);

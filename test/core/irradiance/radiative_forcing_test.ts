@@ -28,8 +28,11 @@ Deno.test("forcingSeries() references the period mean and carries uncertainty", 
   assert.equal(f.referencePoints, 2);
   assert.ok(Math.abs(f.value[2] - 0.9 * 0.1775) < 1e-12);
   assert.ok(Number.isNaN(f.value[3]));
-  // σ_F = 0.1775 √(σ² + σ_ref²), σ_ref = mean σ in the reference = 0.2
-  assert.ok(Math.abs(f.sd![2] - 0.1775 * Math.sqrt(0.04 + 0.04)) < 1e-12);
+  // independent errors: Var(x − m̄) = σ² + Σσ_ref²/n² − 2σ²/n inside the reference
+  const refVar = (0.01 + 0.09) / 4;
+  assert.ok(Math.abs(f.referenceSd! - Math.sqrt(refVar)) < 1e-12);
+  assert.ok(Math.abs(f.sd![2] - 0.1775 * Math.sqrt(0.04 + refVar)) < 1e-12);
+  assert.ok(Math.abs(f.sd![0] - 0.1775 * Math.sqrt(0.01 + refVar - 0.01)) < 1e-12);
   assert.throws(
     () => forcingSeries(t, tsi, null, { start: 1900, end: 1910 }),
     (e) => e instanceof InputError && e.field === "reference" && e.reason === "no_overlap",

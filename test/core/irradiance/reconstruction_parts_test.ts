@@ -2,6 +2,7 @@ import assert from "node:assert/strict";
 import {
   ar1MeanVarianceFactor,
   blockedCrossValidation,
+  fitLinearSunspotMapping,
   reconstructFromProxies,
   secularBackground,
   tsiCycleAmplitude,
@@ -52,39 +53,57 @@ Deno.test("reconstructFromProxies() back-extends with wider bands and leaves gap
     stepDays: 1,
     backExtension: { residualSd: 0.3, rho: 0.9, stepDays: 30.436875 },
   };
+  // F = 0.15 + 1e-4·R exactly at R = 100 → 0.16, with parameter covariance diag(1e-8, 1e-12)
+  const mapping = {
+    ...fitLinearSunspotMapping([0, 50, 100, 150], [0.15, 0.155, 0.16, 0.165]),
+    covariance: [[1e-8, 0], [0, 1e-12]],
+  };
   const r = reconstructFromProxies(model, {
     days: Float64Array.of(30, 30, 30),
     direct: [Float64Array.of(0.16, NaN, NaN)],
-    mapped: [{
-      value: Float64Array.of(0.16, 0.16, NaN),
-      paramVariance: Float64Array.of(0, 1e-8, 0),
-    }],
+    mappings: [mapping],
+    sunspot: Float64Array.of(100, 100, NaN),
   }, 1.96);
   assert.deepEqual([...r.source], [1, 2, 0]);
-  assert.equal(r.value[0], r.value[1]);
+  assert.ok(Math.abs(r.value[0] - r.value[1]) < 1e-9);
   assert.ok(r.sd[1] > r.sd[0]);
   assert.ok(Number.isNaN(r.value[2]));
   // hand check of the direct monthly variance: xᵀΣx + σ²f(30, ρ)/30
   const q = 1e-4 + 0.01 ** 2 * 4;
   const v = q + 0.15 ** 2 * ar1MeanVarianceFactor(30, 0.7) / 30;
   assert.ok(Math.abs(r.sd[0] - Math.sqrt(v)) < 1e-12);
+  // and of the mapped cell: xᵀΣx + β²·gᵀΣ_c g + σ_B²f(m, ρ_B)/m, g = (1, R), m = 30/30.44 → 1
+  const vb = q + 135 ** 2 * (1e-8 + 100 ** 2 * 1e-12) + 0.3 ** 2;
+  assert.ok(Math.abs(r.sd[1] - Math.sqrt(vb)) < 1e-12, `${r.sd[1]} vs ${Math.sqrt(vb)}`);
+  assert.ok(Math.abs(r.components.mapping[1] - 135 ** 2 * 2e-8) < 1e-15);
+  assert.ok(Math.abs(r.components.residual[1] - 0.09) < 1e-15);
+  assert.equal(r.components.input[1], 0);
   assert.throws(
     () =>
-      reconstructFromProxies(model, { days: new Float64Array(1), direct: [], mapped: [] }, 1.96),
+      reconstructFromProxies(
+        model,
+        { days: new Float64Array(1), direct: [], mappings: [], sunspot: null },
+        1.96,
+      ),
     (e) => e instanceof InputError && e.field === "cells" && e.reason === "length_mismatch",
   );
 });
 
 Deno.test("reconstructFromProxies() two-term path equals the formula cell by cell", () => {
-  // Var = xᵀΣx + Σ_k (β_k² + Σ_kk)·s_k²·v_k + σ²·f(m, ρ)/m, with the same rules for gaps, for
-  // 1 (general loop) and 2 terms (written-out loop) and days of varying length
+  // first order (delta method): Var = xᵀΣx + Σ_k β_k²·s_k²·gᵀΣ_c g + σ²·f(m, ρ)/m, with the same
+  // rules for gaps, for two terms and days of varying length; mapped values c0 + c1·R
   const n = 400;
   const days = Float64Array.from({ length: n }, (_, i) => [1, 1, 30, 31, 365][i % 5]);
   const f = Float64Array.from({ length: n }, (_, i) => (i % 7 === 3 ? NaN : 0.15 + 1e-3 * i));
   const psi = Float64Array.from({ length: n }, (_, i) => (i < 100 ? NaN : 1e-5 * (i % 13)));
-  const mf = Float64Array.from({ length: n }, (_, i) => (i % 11 === 0 ? NaN : 0.151 + 1e-3 * i));
-  const mp = Float64Array.from({ length: n }, (_, i) => 2e-5 * (i % 5));
-  const pv = Float64Array.from({ length: n }, (_, i) => 1e-9 * (1 + (i % 3)));
+  const r = Float64Array.from({ length: n }, (_, i) => (i % 11 === 0 ? NaN : 20 + (i % 150)));
+  const linear = (c: number[], cov: number[][]) => ({
+    ...fitLinearSunspotMapping([0, 50, 100, 150], [1, 2, 3, 4]),
+    coefficients: c,
+    covariance: cov,
+  });
+  const mapF = linear([0.151, 6.5e-5], [[1e-9, -2e-12], [-2e-12, 1e-13]]);
+  const mapP = linear([0, 2.5e-6], [[4e-12, 0], [0, 1e-16]]);
   const model = {
     coefficients: [1360.8, 135, 0.96],
     covariance: [[1e-4, 2e-5, -1e-5], [2e-5, 4, 0.1], [-1e-5, 0.1, 0.02]],
@@ -98,29 +117,28 @@ Deno.test("reconstructFromProxies() two-term path equals the formula cell by cel
     stepDays: 1,
     backExtension: { residualSd: 0.3, rho: 0.9, stepDays: 1 },
   };
-  const r = reconstructFromProxies(model, {
-    days,
-    direct: [f, psi],
-    mapped: [{ value: mf, paramVariance: pv }, { value: mp, paramVariance: pv }],
-  }, 2);
+  const cells = { days, direct: [f, psi], mappings: [mapF, mapP], sunspot: r };
+  const rec = reconstructFromProxies(model, cells, 2);
   const scale = [1, -1360.8], off = [0.15, 0];
   const S = model.covariance, b = model.coefficients;
   for (let i = 0; i < n; i++) {
     const x = [1], vars = [];
     let mapped = false, ok = true;
-    for (const [k, [d, m]] of [[f, mf], [psi, mp]].entries()) {
-      let v = d[i];
+    for (const [k, [d, m]] of [[f, mapF], [psi, mapP]].entries()) {
+      let v = (d as Float64Array)[i];
       if (Number.isNaN(v)) {
-        if (Number.isNaN(m[i])) ok = false;
-        v = m[i];
+        const mm = m as typeof mapF, R = r[i];
+        if (Number.isNaN(R)) ok = false;
+        v = mm.coefficients[0] + mm.coefficients[1] * R;
         mapped = true;
-        vars.push((b[k + 1] ** 2 + S[k + 1][k + 1]) * scale[k] ** 2 * pv[i]);
+        const C = mm.covariance;
+        vars.push(b[k + 1] ** 2 * scale[k] ** 2 * (C[0][0] + 2 * R * C[0][1] + R * R * C[1][1]));
       }
       x.push(scale[k] * (v - off[k]));
     }
     if (!ok) {
-      assert.equal(r.source[i], 0);
-      assert.ok(Number.isNaN(r.value[i]) && Number.isNaN(r.sd[i]));
+      assert.equal(rec.source[i], 0);
+      assert.ok(Number.isNaN(rec.value[i]) && Number.isNaN(rec.sd[i]));
       continue;
     }
     let q = 0;
@@ -129,17 +147,13 @@ Deno.test("reconstructFromProxies() two-term path equals the formula cell by cel
     const rv = sdr ** 2 * ar1MeanVarianceFactor(days[i], rho) / days[i];
     const sd = Math.sqrt(q + vars.reduce((s, v) => s + v, 0) + rv);
     const y = b[0] + b[1] * x[1] + b[2] * x[2];
-    assert.equal(r.source[i], mapped ? 2 : 1);
-    assert.ok(Math.abs(r.value[i] - y) < 1e-10, `value ${i}`);
-    assert.ok(Math.abs(r.sd[i] - sd) < 1e-12 * sd, `sd ${i}`);
-    assert.ok(Math.abs(r.upper[i] - (y + 2 * sd)) < 1e-10);
+    assert.equal(rec.source[i], mapped ? 2 : 1);
+    assert.ok(Math.abs(rec.value[i] - y) < 1e-10, `value ${i}`);
+    assert.ok(Math.abs(rec.sd[i] - sd) < 1e-12 * sd, `sd ${i}: ${rec.sd[i]} vs ${sd}`);
+    assert.ok(Math.abs(rec.upper[i] - (y + 2 * sd)) < 1e-10);
   }
   // without a back-extension model, mapped cells stay empty
-  const direct = reconstructFromProxies({ ...model, backExtension: null }, {
-    days,
-    direct: [f, psi],
-    mapped: [{ value: mf, paramVariance: pv }, { value: mp, paramVariance: pv }],
-  }, 2);
+  const direct = reconstructFromProxies({ ...model, backExtension: null }, cells, 2);
   assert.equal(direct.source[0], 0);
   assert.equal(direct.source[101], 0); // facular value mapped (101 mod 7 = 3)
   assert.equal(direct.source[102], 1);
