@@ -11,6 +11,7 @@ import {
   fieldSignificanceChunk,
   fieldSignificanceTasks,
   fitCycleSequence,
+  forcingMembers,
   forecastCycle,
   hathawayShape,
   hindcastCaseTask,
@@ -24,6 +25,8 @@ import {
   planSurrogateLagTest,
   prepareFieldAnalysis,
   randomStream,
+  reconstructionEnsembleChunk,
+  reconstructionEnsemblePlan,
   solarSignalMap,
   StoppedError,
   superposedEpoch,
@@ -255,4 +258,51 @@ Deno.test("areaWeightedMean() stops between blocks of time steps", () => {
   assert.throws(() => areaWeightedMean(field, probe), StoppedError);
   assert.equal(probe.calls, 3, "polled every 64 steps");
   assert.deepEqual(areaWeightedMean(field, { shouldStop: () => false }), areaWeightedMean(field));
+});
+
+/** A plan of 300 daily cells with a facular term, as in drawReconstructionMembers' example. */
+function ensemblePlan() {
+  const cells = 300;
+  return reconstructionEnsemblePlan({
+    coefficients: [1360.8, 135],
+    covariance: [[1e-4, 0], [0, 1]],
+    terms: [{ role: "facular", quietLevel: 0.15 }],
+    psiReference: 1360.8,
+    residualSd: 0.15,
+    rho: 0.7,
+    stepDays: 1,
+    backExtension: null,
+  }, {
+    days: new Float64Array(cells).fill(1),
+    direct: [Float64Array.from({ length: cells }, (_, i) => 0.15 + 0.01 * Math.sin(i / 20))],
+    mappings: [null],
+    sunspot: null,
+  });
+}
+
+Deno.test("reconstructionEnsembleChunk() polls before every member and stops; the members are unchanged", () => {
+  const input = { plan: ensemblePlan(), seed: 9, first: 40, count: 100 };
+  const probe = stopAfter(30);
+  assert.throws(() => reconstructionEnsembleChunk(input, probe), StoppedError);
+  assert.equal(probe.calls, 31, "polled before every member");
+  assert.deepEqual(
+    reconstructionEnsembleChunk(input, { shouldStop: () => false }),
+    reconstructionEnsembleChunk(input),
+  );
+});
+
+Deno.test("forcingMembers() polls before every member and stops; the members are unchanged", () => {
+  const count = 50, t = Float64Array.from({ length: 120 }, (_, i) => 1990 + (i + 0.5) / 12);
+  const members = Float64Array.from(
+    { length: count * t.length },
+    (_, k) => 1361 + 0.5 * Math.sin(k / 7) + 0.001 * Math.floor(k / t.length),
+  );
+  const ref = { start: 1992, end: 1995 };
+  const probe = stopAfter(10);
+  assert.throws(() => forcingMembers(t, members, count, ref, 0.29, probe), StoppedError);
+  assert.equal(probe.calls, 11, "polled before every member");
+  assert.deepEqual(
+    forcingMembers(t, members, count, ref, 0.29, { shouldStop: () => false }),
+    forcingMembers(t, members, count, ref),
+  );
 });
