@@ -27,7 +27,8 @@ Deno.test("estimates: measured / estimated time within [1/3, 3] for every kind",
     const rows: Measured[] = [];
     const factor = measureMachineSpeedFactor();
     for (const c of await estimateCases(svc)) {
-      if (c.ci) rows.push(await measureCase(svc, c, runs, 2, factor));
+      if (!c.ci) continue; // the others (and the runs they store) are the calibration script's
+      rows.push(await measureCase(svc, c, runs, 2, factor));
       await storeCase(svc, c, runs);
     }
     console.log(

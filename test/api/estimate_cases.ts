@@ -20,6 +20,11 @@ import {
 
 const { SSN, AREA, MG, TSI, TSIM, TEMP, ENSO, AOD, FIELD } = DEMO;
 
+/** The demo's 32-band monthly spectral record (fixtures/demo/spectral_bands.json). */
+const SPECTRAL_BANDS: { lower: number; upper: number; series: string }[] = JSON.parse(
+  await Deno.readTextFile(new URL("../../fixtures/demo/spectral_bands.json", import.meta.url)),
+);
+
 /** One request: the analysis' path, a label, and its body (from the ids of earlier runs). */
 export interface EstimateCase {
   path: string;
@@ -124,6 +129,20 @@ export async function estimateCases(svc: TestService): Promise<EstimateCase[]> {
       { name: "enso", series: ENSO, role: "enso", max_lag: 3 },
       { name: "volc", series: AOD, role: "volcanic", min_lag: volcLags[0], max_lag: volcLags[1] },
     ],
+  });
+  const reconstruction = (r: Record<string, string>, resolution: string, start: string) => ({
+    model: r.model,
+    sunspot_number: SSN,
+    resolution,
+    period: { start, end: "2025" },
+    proxies: [{ term: "mg_ii", series: MG }, { term: "psi", series: r.psi }],
+  });
+  const spectralModel = (r: Record<string, string>, bands: typeof SPECTRAL_BANDS) => ({
+    tsi_model: r.model,
+    sunspot_number: SSN,
+    proxies: [{ term: "mg_ii", series: MG }, { term: "psi", series: r.psi }],
+    bands,
+    ranges: [{ lower: 200, upper: 400 }],
   });
   return [
     // time-axis utilities
@@ -310,6 +329,101 @@ export async function estimateCases(svc: TestService): Promise<EstimateCase[]> {
       }),
       ci: true,
       saveAs: "forcing",
+    },
+    {
+      path: "/v1/irradiance/reconstructions",
+      label: "annual 1700–2025, 200 members",
+      body: (r) => ({ ...reconstruction(r, "annual", "1700"), realizations: 200 }),
+      ci: true,
+      saveAs: "reconstruction_ensemble",
+    },
+    {
+      path: "/v1/irradiance/reconstructions",
+      label: "monthly 1700–2025, 100 members",
+      body: (r) => ({ ...reconstruction(r, "monthly", "1700"), realizations: 100 }),
+      saveAs: "reconstruction_ensemble_monthly",
+    },
+    {
+      path: "/v1/irradiance/reconstructions",
+      label: "annual 1700–2025, 1,000 members",
+      body: (r) => ({ ...reconstruction(r, "annual", "1700"), realizations: 1000 }),
+    },
+    {
+      path: "/v1/irradiance/reconstructions",
+      label: "monthly 1900–2025, 500 members",
+      body: (r) => ({ ...reconstruction(r, "monthly", "1900"), realizations: 500 }),
+    },
+    {
+      path: "/v1/forcing",
+      label: "annual, 200 members",
+      body: (r) => ({
+        reconstruction: r.reconstruction_ensemble,
+        reference: { kind: "period", period: { start: "1986", end: "1996" } },
+      }),
+      ci: true,
+      saveAs: "forcing_ensemble",
+    },
+    {
+      path: "/v1/forcing",
+      label: "monthly, 100 members",
+      body: (r) => ({
+        reconstruction: r.reconstruction_ensemble_monthly,
+        reference: { kind: "period", period: { start: "1986", end: "1996" } },
+      }),
+      saveAs: "forcing_ensemble_monthly",
+    },
+    {
+      path: "/v1/energy-balance",
+      label: "forcing run, 200 members",
+      body: (r) => ({ forcing_run: r.forcing_ensemble }),
+      ci: true,
+    },
+    {
+      path: "/v1/energy-balance",
+      label: "two-box, monthly forcing, 100 members",
+      body: (r) => ({ model: "two_box", forcing_run: r.forcing_ensemble_monthly }),
+    },
+    // spectral irradiance
+    {
+      path: "/v1/irradiance/spectral-models",
+      label: "32 demo bands",
+      body: (r) => spectralModel(r, SPECTRAL_BANDS),
+      ci: true,
+      saveAs: "spectral",
+    },
+    {
+      path: "/v1/irradiance/spectral-models",
+      label: "32 demo bands, OLS",
+      body: (r) => ({ ...spectralModel(r, SPECTRAL_BANDS), method: "ols" }),
+    },
+    {
+      path: "/v1/irradiance/spectral-models",
+      label: "8 bands, no cross-validation",
+      body: (r) => ({ ...spectralModel(r, SPECTRAL_BANDS.slice(0, 8)), folds: 0 }),
+    },
+    {
+      path: "/v1/irradiance/spectral-models",
+      label: "16 bands, 10 folds, no sunspots",
+      body: (r) => {
+        const { sunspot_number: _, ...rest } = spectralModel(r, SPECTRAL_BANDS.slice(8, 24));
+        return { ...rest, folds: 10 };
+      },
+    },
+    {
+      path: "/v1/irradiance/spectral-reconstructions",
+      label: "annual 1700–2025",
+      body: (r) => ({ ...reconstruction(r, "annual", "1700"), model: r.spectral }),
+      ci: true,
+    },
+    {
+      path: "/v1/irradiance/spectral-reconstructions",
+      label: "monthly 1700–2025",
+      body: (r) => ({ ...reconstruction(r, "monthly", "1700"), model: r.spectral }),
+    },
+    {
+      path: "/v1/irradiance/spectral-reconstructions",
+      label: "daily 1980–2025",
+      body: (r) => ({ ...reconstruction(r, "daily", "1980"), model: r.spectral }),
     },
     // climate
     {

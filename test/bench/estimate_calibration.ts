@@ -10,13 +10,14 @@ import { makeTestApp } from "../api/helpers.ts";
 import { loadDemo } from "../../api/demo.ts";
 import { estimateCases, measureCase, storeCase } from "../api/estimate_cases.ts";
 
-const filter = Deno.args[0] ?? "";
+const filters = Deno.args.length ? Deno.args : [""];
+const matches = (path: string) => filters.some((f) => path.includes(f));
 const svc = await makeTestApp({ config: { asyncSeconds: 1e9 } });
 await loadDemo(svc.store);
 const runs: Record<string, string> = {};
 const rows: string[] = [];
 for (const c of await estimateCases(svc)) {
-  const wanted = c.path.includes(filter) || c.saveAs;
+  const wanted = matches(c.path) || c.saveAs;
   if (wanted) {
     const m = await measureCase(svc, c, runs, 3);
     const row = [
@@ -28,7 +29,7 @@ for (const c of await estimateCases(svc)) {
       (m.measured / m.estimate).toFixed(2).padStart(6),
       m.factor.toFixed(2).padStart(6),
     ].join(" ");
-    if (c.path.includes(filter)) {
+    if (matches(c.path)) {
       rows.push(row);
       console.log(row);
     }
