@@ -17,7 +17,7 @@ import { WorkerPool } from "../../api/workers/pool.ts";
 import { loadDemo } from "../../api/demo.ts";
 import { DEMO } from "./demo_inputs.ts";
 
-const { SSN, TSIM, TEMP, ENSO, AOD, FIELD } = DEMO;
+const { SSN, TSIM, TEMP, ENSO, AOD, FIELD, AREA, TSI, MG } = DEMO;
 
 /** CPU seconds of this process so far (every thread). */
 function cpu(): number {
@@ -51,6 +51,21 @@ const post = async (path: string, body: unknown, headers: Record<string, string>
   return { status: res.status, body: await res.json() };
 };
 const cycles = await post("/v1/cycles", { series: SSN });
+/** The demo's proxy model, through its darkening run and saved PSI (for reconstructions). */
+async function demoModel(): Promise<{ model: string; psi: string }> {
+  const darkening = await post("/v1/irradiance/darkening", { total_area: AREA });
+  const psi = (await post(`/v1/runs/${darkening.body.id}/outputs/psi/series`, {})).body.id;
+  const model = await post("/v1/irradiance/models", {
+    tsi: TSI,
+    sunspot_number: SSN,
+    terms: [
+      { name: "mg_ii", series: MG, role: "facular" },
+      { name: "psi", series: psi, role: "sunspot_darkening" },
+    ],
+  });
+  return { model: model.body.id, psi };
+}
+const irradiance = await demoModel();
 
 /** A regressor of the attribution search: lags 0..300 months. */
 const wide = (name: string, series: string) => ({ name, series, min_lag: 0, max_lag: 300 });
@@ -89,6 +104,14 @@ const HEAVY: Record<string, [string, unknown]> = {
       wide("volcanic", AOD),
       wide("sunspots", SSN),
     ],
+  }],
+  "irradiance-reconstructions": ["/v1/irradiance/reconstructions", {
+    model: irradiance.model,
+    sunspot_number: SSN,
+    proxies: [{ term: "mg_ii", series: MG }, { term: "psi", series: irradiance.psi }],
+    resolution: "monthly",
+    period: { start: "1700", end: "2025" },
+    realizations: 1000,
   }],
   "composites": ["/v1/composites", {
     series: SSN,

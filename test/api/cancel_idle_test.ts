@@ -2,7 +2,8 @@
  * Cancel stops work, for every analysis that can be heavy: a heavy run of each (lag
  * correlations with 100,000 high-passed surrogates, spectra with 10,000 Monte Carlo
  * replicates, cycle forecasts with 5,000 replicates and 2,000 per hindcast case, an
- * attribution searching 301 lags of four regressors, composites with 100,000 random sets, a
+ * attribution searching 301 lags of four regressors, a monthly reconstruction back to 1700
+ * with 1,000 ensemble members, composites with 100,000 random sets, a
  * solar-signal map of the demo field over 121 lags with 100,000 surrogates, a field composite
  * of 100 + 100 epochs with 100,000 random sets) is cancelled once the workers are busy, and the process' CPU must go idle, and the worker pool
  * empty, within a second, by the analyses' own checks (no worker replaced). Measured in a child
@@ -37,6 +38,7 @@ Deno.test("cancel: the CPU goes idle within a second of the cancel, for every he
       "spectra",
       "cycle-forecasts",
       "attributions",
+      "irradiance-reconstructions",
       "composites",
       "solar-signal-maps",
       "field-composites",

@@ -6,6 +6,7 @@ import assert from "node:assert/strict";
 import {
   areaWeightedMean,
   attributionRegression,
+  ensembleSummary,
   fieldAreaWeights,
   fieldCompositeChunk,
   fieldSignificanceChunk,
@@ -304,5 +305,17 @@ Deno.test("forcingMembers() polls before every member and stops; the members are
   assert.deepEqual(
     forcingMembers(t, members, count, ref, 0.29, { shouldStop: () => false }),
     forcingMembers(t, members, count, ref),
+  );
+});
+
+Deno.test("ensembleSummary() polls every 64 points and stops; the summary is unchanged", () => {
+  const count = 30, n = 500;
+  const members = Float64Array.from({ length: count * n }, (_, k) => Math.sin(k * 0.37));
+  const probe = stopAfter(2);
+  assert.throws(() => ensembleSummary(members, count, 0.9, probe), StoppedError);
+  assert.equal(probe.calls, 3, "polled every 64 points");
+  assert.deepEqual(
+    ensembleSummary(members, count, 0.9, { shouldStop: () => false }),
+    ensembleSummary(members, count, 0.9),
   );
 });

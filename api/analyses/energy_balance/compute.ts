@@ -159,7 +159,9 @@ function memberResponses(
   if (!members.every(Number.isFinite)) {
     throw new InputProblem("/forcing_run", "a member's response is not finite");
   }
-  const b = memberBand(central, members, e.realizations, 0.95, "responses to forcing members");
+  const b = memberBand(central, members, e.realizations, 0.95, "responses to forcing members", {
+    shouldStop: ctx.cancelled,
+  });
   return {
     members,
     uncertainty: b.sd,

@@ -82,6 +82,7 @@ export function computeForcing(params: ForcingParams, ctx: RunContext): ForcingR
       ens.realizations,
       0.95,
       "members, each against its own reference mean",
+      { shouldStop: ctx.cancelled },
     );
     out.uncertainty = undefinedAsNull(b.sd);
     out.lower = undefinedAsNull(b.lower);
