@@ -32,11 +32,11 @@ Deno.test("estimates: measured / estimated time within [1/3, 3] for every kind",
       await storeCase(svc, c, runs);
     }
     console.log(
-      "kind                         request                             measured  estimate  ratio",
+      "kind                                 request                             measured  estimate  ratio",
     );
     for (const r of rows) {
       console.log(
-        `${r.kind.padEnd(28)} ${r.label.padEnd(35)} ${r.measured.toFixed(4).padStart(8)} s ` +
+        `${r.kind.padEnd(36)} ${r.label.padEnd(35)} ${r.measured.toFixed(4).padStart(8)} s ` +
           `${r.estimate.toFixed(4).padStart(8)} s ${
             (r.measured / r.estimate).toFixed(2).padStart(6)
           }`,

@@ -21,7 +21,7 @@ for (const c of await estimateCases(svc)) {
   if (wanted) {
     const m = await measureCase(svc, c, runs, 3);
     const row = [
-      m.kind.padEnd(28),
+      m.kind.padEnd(36),
       m.label.padEnd(36),
       m.measured.toFixed(4).padStart(9),
       (m.measured / m.factor).toFixed(4).padStart(9),
