@@ -19,7 +19,7 @@
  * | `SUNLAG_ADMIN_KEY` | (unset) | the instance's admin key (32+ characters); when set, every call needs a key |
  * | `SUNLAG_OPEN_NETWORK` | `0` | `1` serves a non-loopback address without keys (everyone is the local admin) |
  * | `SUNLAG_ALLOWED_HOSTS` | the bind address with its port | `Host` values served (`host` or `host:port`), or `*` |
- * | `SUNLAG_RUN_WALL_SECONDS` | `3600` | a run still computing after this fails with its reason |
+ * | `SUNLAG_RUN_WALL_SECONDS` | `3600` | a run still computing after this fails with its reason (at most a week) |
  * | `SUNLAG_QUOTA_CONCURRENT_RUNS` | `4` | runs one owner computes at once (more wait, queued) |
  * | `SUNLAG_QUOTA_QUEUED_RUNS` | `20` | runs one owner may have waiting |
  * | `SUNLAG_QUOTA_COMPUTE_SECONDS` | `3600` | compute seconds one owner may use per hour |
@@ -158,7 +158,7 @@ export function readConfig(env: Record<string, string | undefined>): Config {
     allowedHosts: env.SUNLAG_ALLOWED_HOSTS
       ? list(env.SUNLAG_ALLOWED_HOSTS).map((h) => h.toLowerCase())
       : defaultAllowedHosts(host, port),
-    runWallSeconds: num(env, "SUNLAG_RUN_WALL_SECONDS", 3600, 1),
+    runWallSeconds: Math.min(num(env, "SUNLAG_RUN_WALL_SECONDS", 3600, 1), 7 * 86400),
     quotas: {
       concurrentRuns: Math.floor(num(env, "SUNLAG_QUOTA_CONCURRENT_RUNS", 4, 1)),
       queuedRuns: Math.floor(num(env, "SUNLAG_QUOTA_QUEUED_RUNS", 20, 0)),

@@ -19,6 +19,7 @@ import { loadDemo } from "./demo.ts";
 import { openTransport } from "./queue/mod.ts";
 import { RUN_KINDS } from "./analyses/registry.ts";
 import { seriesCodec } from "./series_codec.ts";
+import { machineSpeedFactor } from "./runs/estimate.ts";
 
 const t0 = performance.now();
 const config = readConfig(Deno.env.toObject());
@@ -61,6 +62,8 @@ function warmWorkers(): void {
     );
   });
 }
+// the estimates' machine-speed factor, measured now rather than on the first request
+const speedFactor = Math.round(machineSpeedFactor() * 100) / 100;
 
 if (config.role === "worker") {
   const runs = new RunService(store, RUN_KINDS, seriesCodec, executor, {
@@ -97,6 +100,7 @@ if (config.role === "worker") {
         queue: transport.queue.engine,
         store: store.kind,
         workers: config.workers,
+        speed_factor: speedFactor,
         keys_required: config.adminKey !== null,
         allowed_hosts: config.allowedHosts,
         startup_ms: Math.round(performance.now() - t0),

@@ -12,5 +12,6 @@ export * from "./stats/mod.ts";
 export * from "./climate/mod.ts";
 export * from "./irradiance/mod.ts";
 export * from "./errors.ts";
+export * from "./stop_signal.ts";
 export * from "./cf/mod.ts";
 export * from "./field/mod.ts";

@@ -8,7 +8,10 @@
  * A chunk job is idempotent: a chunk whose worker died is computed again by another and only
  * the first output is kept. Chunks of a run that ended (cancelled, failed, taken over) are
  * skipped; their rows are removed when the run's holder finishes or gives up, including the
- * rows a dead holder left behind.
+ * rows a dead holder left behind. A chunk being computed when its run ends is stopped: the
+ * worker's `local` function gets a `shouldStop` that turns true when the run is no longer
+ * running or the chunk's row is gone (checked every {@link CHUNK_CHECK_MS}), beside the
+ * cancel it hears on the event bus (RunService.startWorking), and its output is not written.
  *
  * @module
  */
@@ -21,6 +24,22 @@ import { CancelledError } from "../runs/kind.ts";
 /** Queue of chunk jobs. */
 export const CHUNK_QUEUE = "sunlag-chunks";
 
+/** How often a computing chunk checks in the database that its run still runs, ms. */
+export const CHUNK_CHECK_MS = 500;
+
+/** The run a chunk belongs to, and whether the chunk must stop (its run ended). */
+export interface ChunkControl {
+  runId: string;
+  shouldStop(): boolean;
+}
+
+/** Computes one chunk in this process: its task, its input, and its control. */
+export type LocalChunkCompute = (
+  task: string,
+  input: unknown,
+  chunk: ChunkControl,
+) => Promise<unknown>;
+
 /** Maps a task over chunks somewhere (the run's `ctx.parallel`). */
 export interface ChunkRouter {
   map<I, O>(
@@ -32,9 +51,7 @@ export interface ChunkRouter {
   /** Forget every chunk of a run (its holder finished, or took it over from a dead one). */
   release(runId: string): Promise<void>;
   /** Compute chunk jobs here with `local` (worker role). */
-  work(local: (task: string, input: unknown) => Promise<unknown>, concurrency: number): Promise<
-    void
-  >;
+  work(local: LocalChunkCompute, concurrency: number): Promise<void>;
 }
 
 export class PgChunkRouter implements ChunkRouter {
@@ -105,10 +122,7 @@ export class PgChunkRouter implements ChunkRouter {
     await this.sql`DELETE FROM sunlag_chunks WHERE run_id = ${runId}`.catch(() => {});
   }
 
-  async work(
-    local: (task: string, input: unknown) => Promise<unknown>,
-    concurrency: number,
-  ): Promise<void> {
+  async work(local: LocalChunkCompute, concurrency: number): Promise<void> {
     await this.boss.work<{ chunk: string }>(
       CHUNK_QUEUE,
       {
@@ -124,19 +138,32 @@ export class PgChunkRouter implements ChunkRouter {
     );
   }
 
-  async #compute(id: string, local: (task: string, input: unknown) => Promise<unknown>) {
+  async #compute(id: string, local: LocalChunkCompute) {
     const [row] = await this.sql`
-      SELECT c.task, c.input, c.output IS NOT NULL AS done, r.status
+      SELECT c.run_id, c.task, c.input, c.output IS NOT NULL AS done, r.status
       FROM sunlag_chunks c LEFT JOIN runs r ON r.id = c.run_id WHERE c.id = ${id}`;
     // Gone (the batch finished or was abandoned), already computed, or its run ended.
     if (!row || row.done || row.status !== "running") return;
+    let ended = false;
+    const check = setInterval(() => {
+      this.sql`
+        SELECT r.status FROM sunlag_chunks c JOIN runs r ON r.id = c.run_id WHERE c.id = ${id}`
+        .then(([now]) => {
+          if (!now || now.status !== "running") ended = true;
+        }, () => {});
+    }, CHUNK_CHECK_MS);
+    const control: ChunkControl = { runId: row.run_id as string, shouldStop: () => ended };
     try {
-      const output = await local(row.task, deserialize(row.input as Uint8Array));
+      const output = await local(row.task, deserialize(row.input as Uint8Array), control);
       await this.sql`UPDATE sunlag_chunks SET output = ${Buffer.from(serialize(output))}
         WHERE id = ${id} AND output IS NULL`;
     } catch (e) {
+      // stopped because its run ended: nobody waits for this chunk any more
+      if (e instanceof CancelledError || (e as Error)?.name === "CancelledError") return;
       await this.sql`UPDATE sunlag_chunks SET error = ${String((e as Error)?.message ?? e)}
         WHERE id = ${id} AND output IS NULL`;
+    } finally {
+      clearInterval(check);
     }
   }
 

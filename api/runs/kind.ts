@@ -11,6 +11,7 @@
 import type { z } from "@hono/zod-openapi";
 import type { FieldMeta, RunRecord, StoredSeries } from "../store/types.ts";
 import type { ChartSpec } from "../charts/chart.ts";
+import type { StopOptions } from "../../core/stop_signal.ts";
 import type { MapChartSpec } from "../charts/map_chart.ts";
 
 /** A series-like part of a result; fetchable as JSON/CSV and savable as a stored series. */
@@ -114,7 +115,13 @@ export interface RunContext {
    * that may take long.
    */
   progress(fraction: number): void;
-  /** True once the run was cancelled; long loops should check and throw `new CancelledError()`. */
+  /**
+   * True once the run must stop: it was cancelled, or it ran past the run time limit. Long
+   * loops check it and throw `new CancelledError()`; core functions with long loops take it
+   * as their `shouldStop` option (core/stop_signal.ts), and their `StoppedError` counts as a
+   * cancellation. In a worker it reads a flag shared with the pool, so it turns true while
+   * the computation runs.
+   */
   cancelled(): boolean;
   /**
    * Map a worker task (declared in an analysis' `tasks`) over chunks of work, on the
@@ -143,9 +150,26 @@ export class InputProblem extends Error {
   }
 }
 
-/** A named pure worker task: structured-clonable input and output (typed arrays transferred). */
+/**
+ * A named pure worker task: structured-clonable input and output (typed arrays transferred).
+ * The second argument carries `shouldStop`, which turns true when the run that asked for the
+ * task is cancelled or out of time: a task with a long loop polls it (core functions take it
+ * as their `StopOptions`) so that the worker is free again within milliseconds.
+ */
 // deno-lint-ignore no-explicit-any
-export type Task = (input: any) => any;
+export type Task = (input: any, control?: StopOptions) => any;
+
+/** What an estimate may look at: the loaded inputs of the run (their sizes, their times). */
+export interface EstimateInputs {
+  /** A loaded input series by id (every series id found in params). */
+  series(id: string): StoredSeries;
+  /** A loaded input run by id (those listed by `RunKind.runRefs`). */
+  run(id: string): RunRecord;
+  /** A loaded gridded field by id (those listed by `RunKind.fieldRefs`; its loaded steps). */
+  field(id: string): LoadedField;
+  /** The result of a loaded input run, typed (as `RunContext.resultOf`). */
+  resultOf<K extends RunKind>(kind: K, id: string, pointer: string): ResultOf<K>;
+}
 
 /** An analysis' chart, typed on its result. */
 export interface KindChart<T> {
@@ -196,8 +220,14 @@ export interface RunKind<S extends z.ZodType = any, R extends z.ZodType = any> {
    * context after the series and runs, which `inputs` holds, so the span can follow them).
    */
   fieldRefs?(params: z.output<S>, inputs: RunContext): FieldRef[];
-  /** Rough work estimate in seconds, used to decide asynchronous execution. */
-  estimateSeconds?(params: z.output<S>): number;
+  /**
+   * The run's computing time in seconds on one core of the reference machine, from a cost
+   * model of its real work (points × grid × replicates ...; see api/runs/estimate.ts). The
+   * service scales it by the measured speed of the machine and runs a request asynchronously
+   * (cancellable) when the result exceeds `SUNLAG_ASYNC_SECONDS`. Tested against measured
+   * times to within a factor of three.
+   */
+  estimateSeconds?(params: z.output<S>, inputs: EstimateInputs): number;
   /** Names of outputs saved automatically as new series with lineage. */
   autoSave?: string[];
   /**

@@ -23,6 +23,9 @@ import {
   type Task,
 } from "./kind.ts";
 import type { OutputSeries, RunResult } from "./kind.ts";
+import { StoppedError } from "../../core/stop_signal.ts";
+import { estimateRunSeconds } from "./estimate.ts";
+import { loadedInputs } from "./loaded_inputs.ts";
 import { SERIES_ID_PATTERN } from "../schemas/series_ref.ts";
 import type { InlineSeries } from "../schemas/series_ref.ts";
 import { ProblemError, toPointer } from "../problems.ts";
@@ -68,13 +71,28 @@ export interface ComputeExecutor {
     inputs: RunInputs,
     hooks: ComputeHooks,
   ): Promise<RunResult>;
-  /** Map a named task over inputs (used by in-thread compute too). */
-  parallel<I, O>(task: string, inputs: I[]): Promise<O[]>;
+  /**
+   * Map a named task over inputs (used by in-thread compute too). With `isCancelled`, the
+   * tasks' `shouldStop` turns true once it answers true (chunks of a run that may be stopped).
+   */
+  parallel<I, O>(
+    task: string,
+    inputs: I[],
+    options?: { isCancelled?: () => boolean },
+  ): Promise<O[]>;
 }
 
 export type { RunEvent } from "../queue/events.ts";
 
-/** Runs compute in this thread (tests, `SUNLAG_WORKERS=0`). */
+/** Longest stretch of chunks an in-thread run computes before it lets other work in, ms. */
+const IN_THREAD_SLICE_MS = 20;
+
+/**
+ * Runs compute in this thread (tests, `SUNLAG_WORKERS=0`). Chunks are computed one by one: a
+ * run asked to stop is stopped before its next chunk (a cancel can only arrive between chunks,
+ * since nothing else runs in this thread meanwhile; the time limit is seen inside a chunk too),
+ * and the thread is handed back to other requests every {@link IN_THREAD_SLICE_MS} ms.
+ */
 export class InThreadExecutor implements ComputeExecutor {
   private readonly tasks: Record<string, Task>;
   /** `kinds`: the analyses whose worker tasks this executor can run (default: the registry). */
@@ -91,14 +109,31 @@ export class InThreadExecutor implements ComputeExecutor {
     const ctx = makeContext(
       inputs,
       hooks,
-      hooks.scatter ?? ((task, chunks) => this.parallel(task, chunks)),
+      hooks.scatter ?? ((task, chunks) => this.#map(task, chunks, () => hooks.isCancelled())),
     );
     return await kind.compute(params, ctx);
   }
-  parallel<I, O>(task: string, inputs: I[]): Promise<O[]> {
+  parallel<I, O>(
+    task: string,
+    inputs: I[],
+    options: { isCancelled?: () => boolean } = {},
+  ): Promise<O[]> {
+    return this.#map(task, inputs, options.isCancelled ?? (() => false));
+  }
+  async #map<I, O>(task: string, inputs: I[], shouldStop: () => boolean): Promise<O[]> {
     const fn = this.tasks[task];
     if (!fn) throw new Error(`unknown worker task "${task}"`);
-    return Promise.resolve(inputs.map((i) => fn(i) as O));
+    const out: O[] = [];
+    let slice = performance.now();
+    for (const input of inputs) {
+      if (shouldStop()) throw new CancelledError();
+      out.push(fn(input, { shouldStop }) as O);
+      if (performance.now() - slice > IN_THREAD_SLICE_MS) {
+        await new Promise((r) => setTimeout(r, 0));
+        slice = performance.now();
+      }
+    }
+    return out;
   }
 }
 
@@ -110,49 +145,7 @@ export function makeContext(
 ): RunContext {
   let reported = 0;
   return {
-    series(id) {
-      const s = inputs.series[id];
-      // a kind asking for a series its request does not name is a defect, not bad input
-      if (!s) throw new Error(`series ${id} was not loaded for this run`);
-      return s;
-    },
-    run(id) {
-      const r = inputs.runs[id];
-      if (!r) throw new Error(`run ${id} was not loaded for this run`);
-      return r;
-    },
-    field(id) {
-      const f = inputs.fields?.[id];
-      if (!f) throw new Error(`field ${id} was not loaded for this run`);
-      return f;
-    },
-    resultOf(kind, id, pointer) {
-      const r = inputs.runs[id];
-      if (!r) throw new InputProblem(pointer, `run ${id} was not loaded`);
-      if (r.kind !== kind.kind) {
-        throw new InputProblem(
-          pointer,
-          `run ${id} is a ${r.kind} run; a ${kind.kind} run is needed`,
-          {
-            kind: r.kind,
-          },
-        );
-      }
-      if (r.status !== "succeeded" || r.result === null) {
-        throw new InputProblem(pointer, `run ${id} has no result (status ${r.status})`, {
-          status: r.status,
-        });
-      }
-      const parsed = kind.result.safeParse(r.result);
-      if (!parsed.success) {
-        throw new InputProblem(
-          pointer,
-          `run ${id} holds a ${kind.kind} result of an older shape; replay it or make a new one`,
-          { algorithm_version: r.algorithm_version },
-        );
-      }
-      return parsed.data;
-    },
+    ...loadedInputs(inputs),
     // Progress never goes back (a kind may report 0.05 + 0.9·k/n, then 0.95, and float
     // rounding makes the second smaller than the first).
     progress: (f) => hooks.progress(reported = Math.max(reported, Math.min(1, Math.max(0, f)))),
@@ -226,9 +219,13 @@ class InputsChecked extends Error {
   }
 }
 
-/** A run this process computes: its stop flag (set by a cancel or a lost lease). */
+/**
+ * A run this process computes: its stop flag (set by a cancel, a lost lease or the time
+ * limit), and whether the time limit set it.
+ */
 interface Active {
   cancelled: boolean;
+  timedOut: boolean;
   started: number;
   /** A final status was recorded (cancel, time limit, or the outcome): write no other. */
   final: boolean;
@@ -265,7 +262,14 @@ export function timeLimitProblem(seconds: number): ProblemError {
     `The run was still computing after the wall-time limit of ${seconds} s ` +
       "(SUNLAG_RUN_WALL_SECONDS) and was stopped; ask for less work (fewer surrogates, a " +
       "shorter period or a coarser grid)",
+    { limit_seconds: seconds },
   );
+}
+
+/** True for the errors of a computation that stopped on request (api or core). */
+function isStopped(e: unknown): boolean {
+  return e instanceof CancelledError || e instanceof StoppedError ||
+    (e as { name?: string })?.name === "StoppedError";
 }
 
 /** Seconds a worker's lease on a run lasts without renewal (renewed every third of it). */
@@ -329,12 +333,26 @@ export class RunService {
     };
   }
 
-  /** Take runs (and chunks of runs) from the queue and compute them here (worker role). */
+  /**
+   * Take runs (and chunks of runs) from the queue and compute them here (worker role). A chunk
+   * stops as its run's own work does: when a terminal status of its run is heard on the event
+   * bus (a cancel from any instance, the time limit, a failure), when this process computes
+   * the run and it must stop, or when the chunk router sees the run end.
+   */
   async startWorking(chunkConcurrency = 1): Promise<void> {
-    await this.transport.chunks?.work(
-      async (task, input) => (await this.executor.parallel(task, [input]))[0],
-      chunkConcurrency,
-    );
+    await this.transport.chunks?.work(async (task, input, chunk) => {
+      let ended = false;
+      const unsubscribe = this.transport.events.subscribe(chunk.runId, (e) => {
+        if (e.type === "status" && TERMINAL.has(e.status as never)) ended = true;
+      });
+      try {
+        const isCancelled = () =>
+          ended || chunk.shouldStop() || this.active.get(chunk.runId)?.cancelled === true;
+        return (await this.executor.parallel(task, [input], { isCancelled }))[0];
+      } finally {
+        unsubscribe();
+      }
+    }, chunkConcurrency);
     await this.transport.queue.work((id) => this.process(id));
   }
 
@@ -486,7 +504,7 @@ export class RunService {
       error: null,
       eta_seconds: null,
     };
-    const estimate = kind.estimateSeconds?.(prep.params as never) ?? 0;
+    const estimate = estimateRunSeconds(kind, prep.params, prep);
     const isAsync = opts.preferAsync || estimate > this.options.asyncSeconds;
     const admission = opts.limited ? this.options.admission : undefined;
     const ticket = admission?.admit(holder.owner, isAsync ? "async" : "sync") ?? null;
@@ -570,7 +588,8 @@ export class RunService {
     try {
       const work = this.executor.compute(kind, params, inputs, {
         progress: () => {},
-        isCancelled: () => stop,
+        // computed in this thread, no timer fires while a loop runs: the clock is read too
+        isCancelled: () => stop || performance.now() - t0 > wallMs,
         onStart: () => {},
       });
       if (Number.isFinite(wallMs)) {
@@ -586,6 +605,9 @@ export class RunService {
         result = await work;
       }
     } catch (e) {
+      if (isStopped(e) && performance.now() - t0 > wallMs) {
+        throw timeLimitProblem(this.options.wallSeconds!);
+      }
       throw asProblem(e);
     } finally {
       clearTimeout(timer);
@@ -680,7 +702,7 @@ export class RunService {
     const { store } = this;
     const { events, holder: lessee } = this.transport;
     const runId = run.id;
-    const active: Active = { cancelled: false, started: Date.now(), final: false };
+    const active: Active = { cancelled: false, timedOut: false, started: Date.now(), final: false };
     this.active.set(runId, active);
     const stop = events.subscribe(runId, (e) => {
       if (e.type === "status" && e.status === "cancelled") active.cancelled = true;
@@ -706,6 +728,7 @@ export class RunService {
     const wallMs = this.#wallMs;
     const limit = Number.isFinite(wallMs)
       ? setTimeout(() => {
+        active.timedOut = true;
         active.cancelled = true;
         fail("failed", timeLimitProblem(this.options.wallSeconds!).problem).catch(() => {});
       }, wallMs)
@@ -715,19 +738,20 @@ export class RunService {
       if (!kind) throw new ProblemError("conflict", `run kind "${run.kind}" no longer exists`);
       const prep = await this.prepare(kind, run.params);
       const t0 = performance.now();
-      await this.#computeLeased(kind, run, prep, active, publish, holder, () => {
-        // Computed in this thread, the timer could not fire before the computation returned.
-        if (performance.now() - t0 > wallMs) {
+      // Computed in this thread, no timer fires while a loop runs: the clock is read too.
+      const overTime = () => {
+        if (!active.timedOut && performance.now() - t0 > wallMs) {
+          active.timedOut = true;
           active.cancelled = true;
-          return timeLimitProblem(this.options.wallSeconds!);
         }
-        return null;
-      });
+        return active.timedOut;
+      };
+      await this.#computeLeased(kind, run, prep, active, publish, holder, overTime);
     } catch (e) {
-      if (e instanceof ProblemError && e.problem.type?.toString().endsWith("time-limit")) {
-        await fail("failed", e.problem);
+      if (active.timedOut) {
+        await fail("failed", timeLimitProblem(this.options.wallSeconds!).problem);
       } else {
-        const cancelled = active.cancelled || e instanceof CancelledError;
+        const cancelled = active.cancelled || isStopped(e);
         await fail(cancelled ? "cancelled" : "failed", cancelled ? null : asProblem(e).problem);
       }
     } finally {
@@ -746,12 +770,13 @@ export class RunService {
     active: Active,
     publish: (e: RunEvent) => void,
     owner: HolderSpec,
-    overTime: () => ProblemError | null,
+    overTime: () => boolean,
   ): Promise<void> {
     const { store } = this;
     const { holder } = this.transport;
     let lastWrite = 0;
     let startedAt = Date.now();
+    const mustStop = () => overTime() || active.cancelled;
     const result = await this.executor.compute(kind, run.params, prep, {
       onStart: () => {
         startedAt = Date.now();
@@ -774,14 +799,12 @@ export class RunService {
           }, () => {});
         }
       },
-      isCancelled: () => active.cancelled,
+      isCancelled: mustStop,
       scatter: this.transport.chunks
-        ? (task, chunks) => this.transport.chunks!.map(run.id, task, chunks, () => active.cancelled)
+        ? (task, chunks) => this.transport.chunks!.map(run.id, task, chunks, mustStop)
         : undefined,
     });
-    const late = overTime();
-    if (late) throw late;
-    if (active.cancelled) throw new CancelledError();
+    if (mustStop()) throw new CancelledError();
     const plain = await this.finishResult(result, prep, this.lineage());
     const { digest } = canonicalResult(plain);
     if (active.final) return;
@@ -963,7 +986,7 @@ export function asProblem(e: unknown): ProblemError {
         `name the field at fault (logged with this request id): ${(e as Error).message}`,
     );
   }
-  if (e instanceof CancelledError) return new ProblemError("conflict", "run cancelled");
+  if (isStopped(e)) return new ProblemError("conflict", "run cancelled");
   console.error(e);
   return new ProblemError(
     "internal",

@@ -14,7 +14,13 @@ export interface SerialisedError {
   input?: InputErrorDetail;
 }
 
-const EXPECTED = new Set(["InputProblem", "RangeError", "InputError", "CancelledError"]);
+const EXPECTED = new Set([
+  "InputProblem",
+  "RangeError",
+  "InputError",
+  "CancelledError",
+  "StoppedError",
+]);
 
 /** Keep the fields the run machinery maps to problems (name, message, pointer, extra, and a
  * core InputError's field, reason, index and value). */

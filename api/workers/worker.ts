@@ -2,16 +2,22 @@
  * A compute worker: runs whole run-kind computations and named tasks off the request thread.
  * Messages (structured clone; typed-array buffers in task results are transferred):
  *
- * - in  `{ type: "run", job, kind, params, inputs }` → out `started`, `progress`, `parallel`
- *   (a request to map a task over chunks on the pool), then `done` or `error`
- * - in  `{ type: "task", job, task, input }` → out `done` or `error`
+ * - in  `{ type: "run", job, kind, params, inputs, stop }` → out `started`, `progress`,
+ *   `parallel` (a request to map a task over chunks on the pool), then `done` or `error`
+ * - in  `{ type: "task", job, task, input, stop? }` → out `done` or `error`
  * - in  `{ type: "warm", job }` → out `done` with the warm-up's timings (api/workers/warm_up.ts)
- * - in  `{ type: "cancel", job }`; in `{ type: "parallel-result", job, req, results | error }`
+ * - in  `{ type: "parallel-result", req, results | error }`
+ * - out `{ type: "ready" }` once the analyses are loaded
+ *
+ * `stop` is an `Int32Array` over a `SharedArrayBuffer` of the run: the pool sets its first
+ * element when the run is cancelled or out of time. A message cannot reach a worker that is
+ * busy in a loop, but this flag can: `ctx.cancelled()` and a task's `shouldStop` read it, so
+ * the loops that poll them stop within milliseconds.
  *
  * @module
  */
 /// <reference lib="deno.worker" />
-import type { RunKind, Task } from "../runs/kind.ts";
+import { CancelledError, type RunKind, type Task } from "../runs/kind.ts";
 import { makeContext } from "../runs/service.ts";
 import { taskTable } from "../analyses/derive.ts";
 import { serialiseError, transferablesOf } from "./messages.ts";
@@ -28,16 +34,19 @@ const registry: Promise<{ kinds: readonly RunKind[]; tasks: Record<string, Task>
   tasks: taskTable(m.RUN_KINDS),
 }));
 
-const cancelled = new Set<number>();
+// the pool knows from here on that this worker computes what it is given
+registry.then(() => self.postMessage({ type: "ready" }));
+
 const waiting = new Map<number, { resolve(v: unknown[]): void; reject(e: unknown): void }>();
 let nextReq = 1;
 
+/** The stop test of a shared flag (never, without one). */
+function stopTest(stop: Int32Array | undefined): () => boolean {
+  return stop ? () => Atomics.load(stop, 0) !== 0 : () => false;
+}
+
 self.onmessage = async (e: MessageEvent) => {
   const m = e.data;
-  if (m.type === "cancel") {
-    cancelled.add(m.job);
-    return;
-  }
   if (m.type === "parallel-result") {
     const w = waiting.get(m.req);
     waiting.delete(m.req);
@@ -54,7 +63,10 @@ self.onmessage = async (e: MessageEvent) => {
     try {
       const fn = tasks[m.task];
       if (!fn) throw new Error(`unknown worker task "${m.task}"`);
-      const result = fn(m.input);
+      const shouldStop = stopTest(m.stop);
+      // stopped while this worker was starting or busy: do not begin
+      if (shouldStop()) throw new CancelledError();
+      const result = fn(m.input, { shouldStop });
       self.postMessage({ type: "done", job: m.job, result }, transferablesOf(result));
     } catch (err) {
       self.postMessage({ type: "error", job: m.job, error: serialiseError(err) });
@@ -67,6 +79,7 @@ self.onmessage = async (e: MessageEvent) => {
     try {
       const kind = kinds.find((k) => k.kind === m.kind);
       if (!kind) throw new Error(`unknown run kind "${m.kind}"`);
+      if (stopTest(m.stop)()) throw new CancelledError();
       let last = 0;
       const ctx = makeContext(m.inputs, {
         progress: (f) => {
@@ -76,7 +89,7 @@ self.onmessage = async (e: MessageEvent) => {
             self.postMessage({ type: "progress", job, fraction: f });
           }
         },
-        isCancelled: () => cancelled.has(job),
+        isCancelled: stopTest(m.stop),
       }, (task, chunks) =>
         new Promise((resolve, reject) => {
           const req = nextReq++;
@@ -87,8 +100,6 @@ self.onmessage = async (e: MessageEvent) => {
       self.postMessage({ type: "done", job, result });
     } catch (err) {
       self.postMessage({ type: "error", job, error: serialiseError(err) });
-    } finally {
-      cancelled.delete(job);
     }
   }
 };

@@ -23,6 +23,7 @@ import { praisWinsten } from "../stats/prais_winsten.ts";
 import { neweyWest } from "../stats/newey_west.ts";
 import { collinearityConditionNumber } from "../stats/condition_number.ts";
 import { InputError } from "../errors.ts";
+import { type StopOptions, throwIfStopped } from "../stop_signal.ts";
 
 /** One regressor of {@link attributionRegression}. */
 export interface AttributionRegressor {
@@ -38,7 +39,7 @@ export interface AttributionRegressor {
 export type AttributionErrors = "ar1" | "ols_hac";
 
 /** Options of {@link attributionRegression}. */
-export interface AttributionOptions {
+export interface AttributionOptions extends StopOptions {
   /** @default "ar1" */
   errors?: AttributionErrors;
   /** Newey–West truncation lag for `ols_hac`. @default Newey & West 1994 rule */
@@ -226,6 +227,7 @@ function searchLagsByAic(
     const key = lags.join(",");
     const hit = cache.get(key);
     if (hit) return hit;
+    throwIfStopped(options, fn);
     const cols = regressors.map((r, j) => lagged(r.values, lags[j], first, n));
     fits++;
     let out: Fitted;
@@ -319,11 +321,13 @@ function searchLagsByAic(
  *
  * @param y climate series (evenly spaced, finite)
  * @param regressors named regressors on the same axis with their lag ranges
- * @param options error model, HAC lags, level, exhaustive-search limit
+ * @param options error model, HAC lags, level, exhaustive-search limit, and `shouldStop`
+ *   (polled before each fit of the lag search)
  * @returns coefficients with intervals, lags, lag surface, contributions and diagnostics
  * @throws {InputError} on length mismatch, non-finite values, bad lag ranges or duplicate names
  *   (field `regressors` with the regressor's index, or `y`), fewer than 10 observations per
  *   coefficient (`y`), or regressors collinear at every lag (`regressors`, reason `collinear`)
+ * @throws {StoppedError} when `options.shouldStop` answers true
  * @example
  * ```ts
  * import { attributionRegression } from "./attribution_regression.ts";

@@ -26,6 +26,7 @@
 import { randomStream } from "../random/random_stream.ts";
 import { inverseRealDft } from "../spectral/fft.ts";
 import { InputError } from "../errors.ts";
+import { type StopOptions, throwIfStopped } from "../stop_signal.ts";
 import {
   type AttributionOptions,
   type AttributionRegressor,
@@ -127,7 +128,10 @@ export function planLagSearchTest(
  * (no fit) records p = 1 (never as extreme as an observation).
  *
  * @param input the plan and the index range
+ * @param control `shouldStop`, polled before each surrogate and each fit of its lag search
+ *   (not part of the input: a worker passes its own)
  * @returns the surrogates' p-values in index order
+ * @throws {StoppedError} when `control.shouldStop` answers true
  * @example
  * ```ts
  * import { lagSearchSurrogateChunk, planLagSearchTest } from "./lag_search_surrogate_test.ts";
@@ -143,19 +147,24 @@ export function planLagSearchTest(
  * assert.ok(all.every((p) => p > 0 && p <= 1));
  * ```
  */
-export function lagSearchSurrogateChunk(input: LagSearchChunkInput): LagSearchChunkOutput {
+export function lagSearchSurrogateChunk(
+  input: LagSearchChunkInput,
+  control: StopOptions = {},
+): LagSearchChunkOutput {
   const { plan, start, end } = input;
   const n = plan.y.length;
   const out = new Float64Array(Math.max(0, end - start));
   const regressors = plan.regressors.slice();
+  const options = { ...plan.options, shouldStop: control.shouldStop };
   for (let i = start; i < end; i++) {
+    throwIfStopped(control, "run lag-search surrogate test");
     const spec = phaseRandomisedSpectrum(plan.amplitudes, n, randomStream(plan.seed, i));
     const s = inverseRealDft(spec, n);
     for (let t = 0; t < n; t++) s[t] += plan.mean;
     regressors[plan.tested] = { ...plan.regressors[plan.tested], values: s };
     let p = 1;
     try {
-      p = pValueAfterLagSearch(plan.y, regressors, plan.tested, plan.options).pValue;
+      p = pValueAfterLagSearch(plan.y, regressors, plan.tested, options).pValue;
     } catch (e) {
       if (!(e instanceof InputError && e.reason === "collinear")) throw e;
     }

@@ -20,9 +20,10 @@
 import { quantileSorted } from "d3-array";
 import { type RandomStream, randomStream } from "../random/random_stream.ts";
 import { InputError } from "../errors.ts";
+import { type StopOptions, throwIfStopped } from "../stop_signal.ts";
 
 /** Options of {@link superposedEpoch}. */
-export interface SuperposedEpochOptions {
+export interface SuperposedEpochOptions extends StopOptions {
   /** Samples before the epoch in the window. */
   before: number;
   /** Samples after the epoch. */
@@ -150,6 +151,8 @@ export function randomSpacedEpochs(
  * @throws {InputError} when the window is invalid (field `before`/`after`), fewer than 2
  *   epochs fit inside the series or there is no room for random epochs (`epochIndices`), or
  *   counts are not positive integers (`bootstrap`/`randomSets`)
+ * @throws {StoppedError} when `options.shouldStop` answers true (polled before each bootstrap
+ *   replicate and each random set)
  * @example
  * ```ts
  * import { superposedEpoch } from "./superposed_epoch.ts";
@@ -233,6 +236,7 @@ export function superposedEpoch(
   const bc = new Float64Array(w), bn = new Float64Array(w);
   const pick = new Array<number>(K);
   for (let b = 0; b < B; b++) {
+    throwIfStopped(options, fn);
     const st = randomStream(options.seed, 2 * b);
     for (let i = 0; i < K; i++) pick[i] = used[st.int(0, K - 1)];
     compositeOf(x, pick, before, after, baseline, bc, bn);
@@ -266,6 +270,7 @@ export function superposedEpoch(
   let famEx = 0;
   const rnd = new Array<number>(K);
   for (let r = 0; r < R; r++) {
+    throwIfStopped(options, fn);
     const st = randomStream(options.seed, 2 * r + 1);
     randomSpacedEpochs(st, K, lo, hi, g, rnd);
     compositeOf(x, rnd, before, after, baseline, bc, bn);

@@ -31,6 +31,7 @@
  *
  * @module
  */
+import { type StopOptions, throwIfStopped } from "../stop_signal.ts";
 import { type RandomStream, randomStream } from "../random/random_stream.ts";
 import { inverseRealDft, realDft } from "../spectral/fft.ts";
 import type { CorrelationNormalisation, LagWindow } from "./lagged_correlation.ts";
@@ -477,7 +478,10 @@ function timeDomainSurrogate(
  * `deno task bench:peers`.
  *
  * @param input plan and index range
+ * @param control `shouldStop`, polled before each surrogate (not part of the input: a worker
+ *   passes its own)
  * @returns per-lag exceedance counts, per-surrogate max |r|, per-lag Σr and Σr²
+ * @throws {StoppedError} when `control.shouldStop` answers true
  * @example
  * ```ts
  * import { planSurrogateLagTest, surrogateLagChunk } from "./surrogate_lag_test.ts";
@@ -491,7 +495,10 @@ function timeDomainSurrogate(
  * assert.deepEqual([...whole.maxAbs], [...a.maxAbs, ...b.maxAbs]);
  * ```
  */
-export function surrogateLagChunk(input: SurrogateChunkInput): SurrogateChunkOutput {
+export function surrogateLagChunk(
+  input: SurrogateChunkInput,
+  control: StopOptions = {},
+): SurrogateChunkOutput {
   const { plan, start, end } = input;
   const n = plan.n, nl = plan.maxLag - plan.minLag + 1;
   const exceed = new Float64Array(nl), sum = new Float64Array(nl), sumSq = new Float64Array(nl);
@@ -527,6 +534,7 @@ export function surrogateLagChunk(input: SurrogateChunkInput): SurrogateChunkOut
   const tol = 1e-12;
   const overlap = plan.normalisation === "overlap";
   for (let idx = start; idx < end; idx++) {
+    throwIfStopped(control, "run surrogate lag test");
     const stream = randomStream(seed, idx);
     if (fixed) phaseSurrogate(plan, fixed, stream, work, idft, L, sums);
     else timeDomainSurrogate(plan, stream, L, sums);

@@ -4,6 +4,7 @@
  *
  * @module
  */
+import { type StopOptions, throwIfStopped } from "../stop_signal.ts";
 import { InputError } from "../errors.ts";
 import { quantileSorted } from "d3-array";
 import { randomStream } from "../random/random_stream.ts";
@@ -16,7 +17,8 @@ import {
 } from "./cycle_shape_fit.ts";
 
 /** Options of {@link forecastCycle}. */
-export interface CycleForecastOptions extends Pick<HathawayFitOptions, "amplitudeScale"> {
+export interface CycleForecastOptions
+  extends Pick<HathawayFitOptions, "amplitudeScale">, StopOptions {
   /** Seed of the bootstrap streams (replicate r uses randomStream(seed, r)). */
   seed: number;
   /** Decimal years at which to give the forecast curve and band. */
@@ -101,10 +103,12 @@ export interface CycleForecast {
  *
  * @param time decimal years of the observed months of the cycle (from its starting minimum)
  * @param value observed values, finite
- * @param options seed, curve times, replicates, block length, level, width model
+ * @param options seed, curve times, replicates, block length, level, width model, and
+ *   `shouldStop` (polled before each replicate)
  * @returns the forecast
  * @throws {InputError} for fewer than 12 points (field `time`), bad options (`replicates` < 20,
  *   `blockLength` not in [1, n], `level` outside (0, 1)), or as {@link fitHathawayCycle}
+ * @throws {StoppedError} when `options.shouldStop` answers true
  * @example
  * ```ts
  * import { forecastCycle } from "./cycle_forecast.ts";
@@ -212,6 +216,7 @@ export function forecastCycle(
   const ystar = new Float64Array(n);
   let failed = 0;
   for (let r = 0; r < B; r++) {
+    throwIfStopped(options, fn);
     const rng = randomStream(options.seed, r);
     for (let i = 0; i < n;) {
       const s = rng.int(0, n - L);

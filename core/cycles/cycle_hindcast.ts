@@ -4,6 +4,7 @@
  *
  * @module
  */
+import type { StopOptions } from "../stop_signal.ts";
 import { InputError } from "../errors.ts";
 import { mixSeed } from "../random/random_stream.ts";
 import { type CycleForecastOptions, forecastCycle } from "./cycle_forecast.ts";
@@ -220,6 +221,7 @@ export interface HindcastCaseInput {
  * worker task takes.
  *
  * @param input cycle, months used, case index and forecast options
+ * @param control `shouldStop` (not part of the input: a worker passes its own)
  * @returns the case or null
  * @example
  * ```ts
@@ -229,6 +231,12 @@ export interface HindcastCaseInput {
  * assert.equal(hindcastCaseTask({ cycle, monthsUsed: 1, caseIndex: 0, options: { seed: 1 } }), null);
  * ```
  */
-export function hindcastCaseTask(input: HindcastCaseInput): HindcastCase | null {
-  return hindcastCase(input.cycle, input.monthsUsed, input.caseIndex, input.options);
+export function hindcastCaseTask(
+  input: HindcastCaseInput,
+  control: StopOptions = {},
+): HindcastCase | null {
+  return hindcastCase(input.cycle, input.monthsUsed, input.caseIndex, {
+    ...input.options,
+    shouldStop: control.shouldStop,
+  });
 }

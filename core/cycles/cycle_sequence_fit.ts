@@ -4,6 +4,7 @@
  * @module
  */
 import { InputError } from "../errors.ts";
+import { type StopOptions, throwIfStopped } from "../stop_signal.ts";
 import { fitHathawayCycle, type HathawayFit, type HathawayFitOptions } from "./cycle_shape_fit.ts";
 import { hathawayCurve } from "./cycle_shape_fit.ts";
 
@@ -14,7 +15,7 @@ export interface CycleWindow {
 }
 
 /** Options of {@link fitCycleSequence}. */
-export interface CycleSequenceOptions extends Omit<HathawayFitOptions, "start"> {
+export interface CycleSequenceOptions extends Omit<HathawayFitOptions, "start">, StopOptions {
   /**
    * Backfitting passes after the first, independent, fits; 0 fits every cycle on its own.
    * @default 2
@@ -36,10 +37,12 @@ export interface CycleSequenceOptions extends Omit<HathawayFitOptions, "start"> 
  * @param time decimal years of the series
  * @param value values (NaN = missing)
  * @param windows consecutive cycle windows in time order
- * @param options width model, amplitude scale, passes
+ * @param options width model, amplitude scale, passes, and `shouldStop` (polled before each
+ *   fit)
  * @returns one fit per window (its `fitted` values refer to the window's non-missing points);
  *   `independent` holds the first-pass fits, which use no data outside their window
  * @throws {InputError} as {@link fitHathawayCycle}, or for a window out of range
+ * @throws {StoppedError} when `options.shouldStop` answers true
  * @example
  * ```ts
  * import { fitCycleSequence } from "./cycle_sequence_fit.ts";
@@ -89,12 +92,15 @@ export function fitCycleSequence(
     return { t, v };
   });
   const base = { width: options.width, amplitudeScale: options.amplitudeScale };
-  const independent = pts.map((p) =>
-    fitHathawayCycle(p.t, p.v, { ...base, maxIterations: options.maxIterations })
-  );
+  const fn = "fit cycle sequence";
+  const independent = pts.map((p) => {
+    throwIfStopped(options, fn);
+    return fitHathawayCycle(p.t, p.v, { ...base, maxIterations: options.maxIterations });
+  });
   let fits = independent.slice();
   for (let pass = 0; pass < passes; pass++) {
     fits = pts.map((p, k) => {
+      throwIfStopped(options, fn);
       const y = p.v.slice();
       for (const j of [k - 1, k + 1]) {
         if (j < 0 || j >= fits.length) continue;

@@ -15,9 +15,10 @@
 import { checkGriddedField, type GriddedField } from "./gridded_field.ts";
 import { fieldAreaWeights } from "./area_weights.ts";
 import { type AreaRegion, regionMembership } from "./area_region.ts";
+import { type StopOptions, throwIfStopped } from "../stop_signal.ts";
 
 /** Options of {@link areaWeightedMean}. */
-export interface AreaMeanOptions {
+export interface AreaMeanOptions extends StopOptions {
   /** Region averaged over. @default { kind: "globe" } */
   region?: AreaRegion;
   /** One non-negative weight per cell. @default fieldAreaWeights(field) */
@@ -53,10 +54,11 @@ export interface AreaMeanSeries {
  * Cost O(nTime · nCells).
  *
  * @param field the field; NaN (or ±Infinity) marks a missing value
- * @param options region, weights, coverage rule
+ * @param options region, weights, coverage rule, and `shouldStop` (polled every 64 steps)
  * @returns mean, coverage and which steps meet the rule
  * @throws {RangeError} on a malformed field or region, weights of the wrong length or
  *   negative/non-finite, a region of zero weight, or minCoverage outside [0, 1]
+ * @throws {StoppedError} when `options.shouldStop` answers true
  * @example
  * ```ts
  * import { areaWeightedMean } from "./area_weighted_mean.ts";
@@ -105,6 +107,7 @@ export function areaWeightedMean(
   const mean = new Float64Array(T), coverage = new Float64Array(T), defined = new Uint8Array(T);
   let undefinedSteps = 0;
   for (let t = 0; t < T; t++) {
+    if (t % 64 === 0) throwIfStopped(options, fn);
     const row = t * nCells;
     let s = 0, ws = 0;
     for (let q = 0; q < cellIdx.length; q++) {

@@ -27,6 +27,7 @@ import { overlapRange } from "../climate/lagged_correlation.ts";
 import { type PreprocessOptions, preprocessSeries } from "../climate/preprocess_series.ts";
 import { leastSquaresQr } from "../stats/least_squares_qr.ts";
 import { checkGriddedField, type GriddedField } from "./gridded_field.ts";
+import { type StopOptions, throwIfStopped } from "../stop_signal.ts";
 
 /** A control regressor of the per-cell regression, on the field's time axis. */
 export interface FieldControl {
@@ -36,7 +37,7 @@ export interface FieldControl {
 }
 
 /** Options of {@link prepareFieldAnalysis}. */
-export interface FieldAnalysisOptions extends LagWindow {
+export interface FieldAnalysisOptions extends LagWindow, StopOptions {
   /** Trend removal applied to the predictor, the controls and every cell. @default { method: "mean" } */
   preprocess?: PreprocessOptions;
   /** Remove the mean of each phase t mod P from every cell first (P = 12 for monthly data). */
@@ -147,11 +148,13 @@ function orthonormalBasis(columns: Float64Array[], m: number, lag: number): Floa
  *
  * @param field the field (NaN = missing)
  * @param predictor the solar series on the field's time axis, one finite value per step
- * @param options lag window, preprocessing, deseasonalising, controls
+ * @param options lag window, preprocessing, deseasonalising, controls, and `shouldStop` (polled
+ *   every 64 cells of the preprocessing)
  * @returns the prepared inputs
  * @throws {RangeError} on a malformed field, a predictor or control of the wrong length or with
  *   non-finite values, a bad lag window (fewer than q + 4 overlapping pairs at the largest lag),
  *   collinear controls, a bad seasonal period, or no cell without missing values
+ * @throws {StoppedError} when `options.shouldStop` answers true
  * @example
  * ```ts
  * import { prepareFieldAnalysis } from "./field_analysis_inputs.ts";
@@ -251,7 +254,7 @@ export function prepareFieldAnalysis(
     const cols = [new Float64Array(m).fill(1), ...controlSeries.map((z) => z.slice(a + k, b + k))];
     bases.push(orthonormalBasis(cols, m, k));
   }
-  const prepared = preprocessFieldCells(field, preprocess, seasonalPeriod);
+  const prepared = preprocessFieldCells(field, preprocess, seasonalPeriod, options);
   warnings.push(...prepared.warnings);
   return {
     n,
@@ -290,8 +293,10 @@ export interface PreprocessedCells {
  * @param field the field
  * @param preprocess trend removal per cell
  * @param seasonalPeriod samples per seasonal cycle, or 0 for none
+ * @param control `shouldStop`, polled every 64 cells
  * @returns the cells taken in and their preprocessed values
  * @throws {RangeError} when every cell has a missing value, or as preprocessSeries
+ * @throws {StoppedError} when `control.shouldStop` answers true
  * @example
  * ```ts
  * import { preprocessFieldCells } from "./field_analysis_inputs.ts";
@@ -308,6 +313,7 @@ export function preprocessFieldCells(
   field: GriddedField,
   preprocess: PreprocessOptions,
   seasonalPeriod: number,
+  control: StopOptions = {},
 ): PreprocessedCells {
   const gridCells = checkGriddedField("preprocess field", field);
   const n = field.nTime;
@@ -342,6 +348,7 @@ export function preprocessFieldCells(
   const y = new Float32Array(n * nc);
   const col = new Float64Array(n);
   for (let i = 0; i < nc; i++) {
+    if (i % 64 === 0) throwIfStopped(control, "preprocess field");
     const c = keep[i];
     for (let t = 0; t < n; t++) col[t] = vals[t * gridCells + c];
     if (seasonalPeriod) removeSeasonalMeans(col, seasonalPeriod);

@@ -29,6 +29,7 @@ import { randomSpacedEpochs } from "../climate/superposed_epoch.ts";
 import type { PreprocessOptions } from "../climate/preprocess_series.ts";
 import type { GriddedField } from "./gridded_field.ts";
 import { preprocessFieldCells } from "./field_analysis_inputs.ts";
+import { type StopOptions, throwIfStopped } from "../stop_signal.ts";
 import {
   checkMonteCarloSettings,
   combineFieldMonteCarlo,
@@ -39,7 +40,7 @@ import {
 } from "./field_monte_carlo_summary.ts";
 
 /** Options of {@link planFieldComposite}. */
-export interface FieldCompositeOptions {
+export interface FieldCompositeOptions extends StopOptions {
   /** Time-step index of each epoch of the first set (e.g. cycle maxima). */
   epochs: readonly number[];
   /** Second set (e.g. minima): the map is first − second. */
@@ -163,10 +164,12 @@ function compositeT(
  *
  * @param field the field (cells with a missing value are left out)
  * @param weights area weight per grid cell (e.g. fieldAreaWeights)
- * @param options epochs, window, preprocessing, Monte Carlo settings
+ * @param options epochs, window, preprocessing, Monte Carlo settings, and `shouldStop` (polled
+ *   every 64 cells)
  * @returns the plan, with the observed map in `observed`
  * @throws {RangeError} on a malformed field, bad window, non-integer epochs, fewer than 2
  *   epochs (per set) whose window fits, no room for random epoch sets, or bad settings
+ * @throws {StoppedError} when `options.shouldStop` answers true
  * @example
  * ```ts
  * import { planFieldComposite } from "./field_composite.ts";
@@ -201,6 +204,7 @@ export function planFieldComposite(
     field,
     options.preprocess ?? { method: "mean" },
     options.seasonalPeriod ?? 0,
+    options,
   );
   const n = field.nTime, gridCells = prepared.status.length;
   if (weights.length !== gridCells) {
@@ -253,6 +257,7 @@ export function planFieldComposite(
   const windowMeans = new Float64Array(P * C);
   const prefix = new Float64Array(n + 1);
   for (let i = 0; i < C; i++) {
+    if (i % 64 === 0) throwIfStopped(options, fn);
     for (let t = 0; t < n; t++) prefix[t + 1] = prefix[t] + prepared.y[t * nc + cols[i]];
     for (let p = 0; p < P; p++) {
       const e = lo + p;
@@ -320,8 +325,11 @@ export function planFieldComposite(
  * `field.composite_chunk`).
  *
  * @param input plan and ranges
+ * @param control `shouldStop`, polled before each random epoch set (not part of the input: a
+ *   worker passes its own)
  * @returns integer tallies for combineFieldMonteCarlo
  * @throws {RangeError} on ranges outside the plan
+ * @throws {StoppedError} when `control.shouldStop` answers true
  * @example
  * ```ts
  * import { fieldCompositeChunk, planFieldComposite } from "./field_composite.ts";
@@ -334,7 +342,10 @@ export function planFieldComposite(
  * assert.equal(t.units.length, 30);
  * ```
  */
-export function fieldCompositeChunk(input: FieldCompositeChunkInput): FieldChunkTally {
+export function fieldCompositeChunk(
+  input: FieldCompositeChunkInput,
+  control: StopOptions = {},
+): FieldChunkTally {
   const { plan, replicateStart: r0, replicateEnd: r1, cellStart, cellEnd } = input;
   const fn = "run composite chunk";
   if (
@@ -354,6 +365,7 @@ export function fieldCompositeChunk(input: FieldCompositeChunkInput): FieldChunk
   const units = new Float64Array(r1 - r0), exceed = new Uint32Array(cellEnd - cellStart);
   const set1: number[] = [], set2: number[] = [];
   for (let r = r0; r < r1; r++) {
+    throwIfStopped(control, fn);
     const st = randomStream(plan.seed, r);
     randomSpacedEpochs(st, plan.count1, plan.lo, plan.hi, plan.spacing1, set1);
     if (plan.count2 > 0) randomSpacedEpochs(st, plan.count2, plan.lo, plan.hi, plan.spacing2, set2);

@@ -38,6 +38,7 @@ import { type PreprocessOptions, preprocessSeries } from "../climate/preprocess_
 import { type FieldAnalysisInputs, predictorResidual } from "./field_analysis_inputs.ts";
 import type { SolarSignalMap } from "./solar_signal_map.ts";
 import { type Float32ProductEngine, wasmFloat32Product } from "./float32_matrix_product.ts";
+import { type StopOptions, throwIfStopped } from "../stop_signal.ts";
 import {
   checkMonteCarloSettings,
   combineFieldMonteCarlo,
@@ -321,8 +322,11 @@ const SURROGATE_BLOCK = 8;
  *
  * @param input plan and ranges (the plan must hold the cells)
  * @param engine matrix product engine @default wasmFloat32Product()
+ * @param control `shouldStop`, polled before each block of 8 surrogates (not part of the
+ *   input: a worker passes its own)
  * @returns integer tallies for the reducer
  * @throws {RangeError} on ranges outside the plan
+ * @throws {StoppedError} when `control.shouldStop` answers true
  * @example
  * ```ts
  * import { prepareFieldAnalysis } from "./field_analysis_inputs.ts";
@@ -343,6 +347,7 @@ const SURROGATE_BLOCK = 8;
 export function fieldSignificanceChunk(
   input: FieldSignificanceChunkInput,
   engine: Float32ProductEngine = wasmFloat32Product(),
+  control: StopOptions = {},
 ): FieldChunkTally {
   const { plan, surrogateStart: s0, surrogateEnd: s1, cellStart, cellEnd } = input;
   const fn = "run field significance chunk";
@@ -391,6 +396,7 @@ export function fieldSignificanceChunk(
     return s * s;
   };
   for (let blockStart = s0; blockStart < s1; blockStart += SURROGATE_BLOCK) {
+    throwIfStopped(control, fn);
     const blockEnd = Math.min(s1, blockStart + SURROGATE_BLOCK);
     const rows = (blockEnd - blockStart) * L;
     a64.fill(0, 0, rows * n);

@@ -30,6 +30,7 @@
  * @module
  */
 import { lag1Autocorrelation } from "../climate/lag1_autocorrelation.ts";
+import { type StopOptions, throwIfStopped } from "../stop_signal.ts";
 import { brethertonEffectiveSampleSize } from "../climate/effective_sample_size.ts";
 import { correlationTTest } from "../climate/correlation_tests.ts";
 import { overlapRange } from "../climate/lagged_correlation.ts";
@@ -102,8 +103,10 @@ function cellStatistics(size: number): CellStatistics {
  * Cost O(cells · lags · N · (q + 4)) plus one t distribution evaluation per cell and lag.
  *
  * @param inputs from prepareFieldAnalysis
+ * @param options `shouldStop`, polled every 16 cells
  * @returns per-lag and best-lag statistics per cell
  * @throws {RangeError} when the predictor is constant over an overlap
+ * @throws {StoppedError} when `options.shouldStop` answers true
  * @example
  * ```ts
  * import { prepareFieldAnalysis } from "./field_analysis_inputs.ts";
@@ -124,7 +127,10 @@ function cellStatistics(size: number): CellStatistics {
  * assert.ok(map.best.p[0] < 1e-6 && map.best.p[1] > 0.01);
  * ```
  */
-export function solarSignalMap(inputs: FieldAnalysisInputs): SolarSignalMap {
+export function solarSignalMap(
+  inputs: FieldAnalysisInputs,
+  options: StopOptions = {},
+): SolarSignalMap {
   const { n, minLag, maxLag, gridCells, cells } = inputs;
   const L = maxLag - minLag + 1;
   const q = inputs.controlNames.length;
@@ -160,6 +166,7 @@ export function solarSignalMap(inputs: FieldAnalysisInputs): SolarSignalMap {
   const row = { r: 0, slope: 0, se: 0, seEff: 0, t: 0, p: 0, nEff: 0, r1: 0 };
   const keys = ["r", "slope", "slopeSe", "slopeSeEffective", "t", "p", "nEff", "r1Field"] as const;
   for (let i = 0; i < nc; i++) {
+    if (i % 16 === 0) throwIfStopped(options, "compute solar-signal map");
     const c = cells[i];
     for (let t = 0; t < n; t++) col[t] = inputs.y[t * nc + i];
     let bestJ = -1, bestAbs = -1;

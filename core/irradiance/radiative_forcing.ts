@@ -4,6 +4,7 @@
  * @module
  */
 import { InputError } from "../errors.ts";
+import { type StopOptions, throwIfStopped } from "../stop_signal.ts";
 import { normalQuantile } from "../stats/distributions.ts";
 import {
   differenceFromMeanVariance,
@@ -216,9 +217,11 @@ export function forcingSeries(
  * @param count members
  * @param reference `{ start, end }`
  * @param albedo @default 0.29
+ * @param options `shouldStop`, polled before every member
  * @returns count × n forcing values, member-major
  * @throws {InputError} (field `members`) when its length is not count × n; as
  *   {@link referencePoints} for the first member
+ * @throws {StoppedError} when `shouldStop` answers true
  * @example
  * ```ts
  * import { forcingMembers } from "./radiative_forcing.ts";
@@ -234,6 +237,7 @@ export function forcingMembers(
   count: number,
   reference: { start: number; end: number },
   albedo = PLANETARY_ALBEDO,
+  options: StopOptions = {},
 ): Float64Array {
   const n = time.length;
   if (members.length !== count * n) {
@@ -245,6 +249,7 @@ export function forcingMembers(
   const k = radiativeForcing(1, albedo);
   const out = new Float64Array(count * n);
   for (let m = 0; m < count; m++) {
+    throwIfStopped(options, "compute forcing members");
     const x = members.subarray(m * n, (m + 1) * n);
     const inRef = referencePoints(time, x, reference);
     let sum = 0, c = 0;

@@ -21,6 +21,7 @@
  * @module
  */
 import { InputError } from "../errors.ts";
+import { type StopOptions, throwIfStopped } from "../stop_signal.ts";
 import { type RandomStream, randomStream } from "../random/mod.ts";
 import { choleskyLower, drawMultivariateNormal } from "../stats/multivariate_normal.ts";
 import { proxyRegressorScale } from "./proxy_model_evaluation.ts";
@@ -298,10 +299,12 @@ function bulkNormals(plan: ReconstructionEnsemblePlan): number {
  * @param seed the ensemble's seed, an integer in [0, 2^32)
  * @param first index of the first member (≥ 0)
  * @param count members to draw (≥ 0)
+ * @param options `shouldStop`, polled before every member
  * @returns count × cells values, member by member (member-major), W m-2; NaN where a cell has
  *   no value
  * @throws {InputError} (field `first` or `count`) when not non-negative integers or beyond
  *   2^32 members; (field `mapping`) when a saturating mapping has no admissible draw
+ * @throws {StoppedError} when `shouldStop` answers true
  * @example
  * ```ts
  * import { drawReconstructionMembers, reconstructionEnsemblePlan } from "./reconstruction_ensemble.ts";
@@ -323,6 +326,7 @@ export function drawReconstructionMembers(
   seed: number,
   first: number,
   count: number,
+  options: StopOptions = {},
 ): Float64Array {
   for (const [field, v] of [["first", first], ["count", count]] as const) {
     if (!Number.isInteger(v) || v < 0 || first + count > 2 ** 32) {
@@ -341,6 +345,7 @@ export function drawReconstructionMembers(
     e: new Float64Array(n),
   };
   for (let m = 0; m < count; m++) {
+    throwIfStopped(options, "draw ensemble members");
     drawMember(plan, randomStream(seed, first + m), out.subarray(m * n, (m + 1) * n), scratch);
   }
   return out;
@@ -358,7 +363,9 @@ export interface ReconstructionEnsembleChunk {
  * One chunk of members as a worker task: {@link drawReconstructionMembers} of its input.
  *
  * @param input the plan, seed and member range
+ * @param control `shouldStop`, polled before every member
  * @returns the members, member-major
+ * @throws {StoppedError} when `shouldStop` answers true
  * @example
  * ```ts
  * import { reconstructionEnsembleChunk, reconstructionEnsemblePlan } from "./reconstruction_ensemble.ts";
@@ -371,6 +378,9 @@ export interface ReconstructionEnsembleChunk {
  * assert.equal(reconstructionEnsembleChunk({ plan, seed: 1, first: 0, count: 2 }).length, 2);
  * ```
  */
-export function reconstructionEnsembleChunk(input: ReconstructionEnsembleChunk): Float64Array {
-  return drawReconstructionMembers(input.plan, input.seed, input.first, input.count);
+export function reconstructionEnsembleChunk(
+  input: ReconstructionEnsembleChunk,
+  control: StopOptions = {},
+): Float64Array {
+  return drawReconstructionMembers(input.plan, input.seed, input.first, input.count, control);
 }

@@ -7,6 +7,7 @@
  */
 import { randomStream } from "../random/random_stream.ts";
 import { lombScargle, type LombScargleNormalization } from "./lomb_scargle.ts";
+import { type StopOptions, throwIfStopped } from "../stop_signal.ts";
 
 /**
  * Number of independent frequencies of a Lomb–Scargle periodogram searched up to the Nyquist
@@ -98,7 +99,7 @@ export function powerAtFalseAlarm(fap: number, m: number): number {
 }
 
 /** Options of {@link monteCarloPeakMaxima}. */
-export interface MonteCarloFapOptions {
+export interface MonteCarloFapOptions extends StopOptions {
   /** Seed of the random streams (replicate r uses stream (seed, r)). */
   seed: number;
   /** Number of replicates, integer ≥ 1. */
@@ -174,9 +175,11 @@ export function ar1Persistence(time: ArrayLike<number>, value: ArrayLike<number>
  * @param time sample times
  * @param value sample values
  * @param frequency the grid searched
- * @param options seed, replicate count, normalisation
+ * @param options seed, replicate count, normalisation, `shouldStop` (polled before each
+ *   replicate and inside its periodogram)
  * @returns the maximum power of each replicate, in replicate order
  * @throws {RangeError} as {@link lombScargle}, or when replicates is not an integer ≥ 1
+ * @throws {StoppedError} when `options.shouldStop` answers true
  * @example
  * ```ts
  * import { monteCarloPeakMaxima } from "./false_alarm.ts";
@@ -266,6 +269,7 @@ export function monteCarloPeriodogramNull(
     sd = Math.sqrt(sd / (n - 1));
   }
   for (let r = 0; r < replicates; r++) {
+    throwIfStopped(options, "run Monte Carlo false-alarm test");
     const rng = randomStream(seed, first + r);
     if (red) {
       let prev = 0;
@@ -284,7 +288,10 @@ export function monteCarloPeriodogramNull(
         y[j] = tmp;
       }
     }
-    const p = lombScargle(time, y, frequency, { normalization: options.normalization });
+    const p = lombScargle(time, y, frequency, {
+      normalization: options.normalization,
+      shouldStop: options.shouldStop,
+    });
     let m = 0;
     for (let k = 0; k < p.length; k++) if (p[k] > m) m = p[k];
     out[r] = m;
@@ -332,6 +339,7 @@ export interface MonteCarloMaximaInput extends MonteCarloFapOptions {
  * shape a worker task takes (replicates split into chunks by `firstReplicate`).
  *
  * @param input data, grid, seed, replicate range and probed indices
+ * @param control `shouldStop` (not part of the input: a worker passes its own)
  * @returns maxima (and probed powers) of the chunk's replicates
  * @example
  * ```ts
@@ -344,6 +352,12 @@ export interface MonteCarloMaximaInput extends MonteCarloFapOptions {
  * assert.equal(m.maxima.length, 3);
  * ```
  */
-export function monteCarloMaximaChunk(input: MonteCarloMaximaInput): MonteCarloNull {
-  return monteCarloPeriodogramNull(input.time, input.value, input.frequency, input);
+export function monteCarloMaximaChunk(
+  input: MonteCarloMaximaInput,
+  control: StopOptions = {},
+): MonteCarloNull {
+  return monteCarloPeriodogramNull(input.time, input.value, input.frequency, {
+    ...input,
+    shouldStop: control.shouldStop,
+  });
 }

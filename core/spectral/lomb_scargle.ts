@@ -4,11 +4,13 @@
  * @module
  */
 
+import { type StopOptions, throwIfStopped } from "../stop_signal.ts";
+
 /** Normalisation of the Lomb–Scargle power. */
 export type LombScargleNormalization = "horne_baliunas" | "psd" | "standard";
 
 /** Options of {@link lombScargle}. */
-export interface LombScargleOptions {
+export interface LombScargleOptions extends StopOptions {
   /**
    * - "horne_baliunas": P / σ² with σ² = Σ(y − ȳ)²/(N − 1) (Horne & Baliunas 1986, eq. 1):
    *   exponentially distributed for Gaussian white noise, so the false-alarm probability
@@ -51,7 +53,7 @@ function isUniform(f: ArrayLike<number>): boolean {
  *
  * Edge cases: where Σsin² ω(t−τ) vanishes (e.g. the Nyquist frequency of even sampling, where
  * every sin ω(t−τ) is 0) that term is 0, not NaN. A constant series has no power to
- * normalise: RangeError.
+ * normalise: RangeError. `shouldStop` is polled every 64 frequencies.
  *
  * @param time sample times (e.g. decimal years), finite, any order, ≥ 3 points
  * @param value sample values, finite, same length
@@ -60,6 +62,7 @@ function isUniform(f: ArrayLike<number>): boolean {
  * @returns power at each frequency
  * @throws {RangeError} for fewer than 3 points, length mismatch, non-finite input, a constant
  *   series, or a non-positive frequency
+ * @throws {StoppedError} when `options.shouldStop` answers true
  * @example
  * ```ts
  * import { lombScargle } from "./lomb_scargle.ts";
@@ -140,6 +143,7 @@ export function lombScargle(
     }
   }
   for (let k = 0; k < K; k++) {
+    if (k % 64 === 0) throwIfStopped(options, "compute Lomb-Scargle periodogram");
     if (!uniform || k % 64 === 0) {
       const w = TWO_PI * (uniform ? frequency[0] + k * df : frequency[k]);
       for (let i = 0; i < n; i++) {
@@ -194,6 +198,8 @@ export interface LombScargleChunkInput extends LombScargleOptions {
  * workers.
  *
  * @param input data, frequencies of the chunk, normalisation
+ * @param control `shouldStop`, polled as {@link lombScargle} does (not part of the input: a
+ *   worker passes its own)
  * @returns power at the chunk's frequencies
  * @example
  * ```ts
@@ -204,6 +210,12 @@ export interface LombScargleChunkInput extends LombScargleOptions {
  * assert.deepEqual(lombScargleChunk({ time, value, frequency }), lombScargle(time, value, frequency));
  * ```
  */
-export function lombScargleChunk(input: LombScargleChunkInput): Float64Array {
-  return lombScargle(input.time, input.value, input.frequency, input);
+export function lombScargleChunk(
+  input: LombScargleChunkInput,
+  control: StopOptions = {},
+): Float64Array {
+  return lombScargle(input.time, input.value, input.frequency, {
+    normalization: input.normalization,
+    shouldStop: control.shouldStop,
+  });
 }

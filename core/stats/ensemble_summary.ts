@@ -5,6 +5,7 @@
  */
 import { quantileSorted } from "d3-array";
 import { InputError } from "../errors.ts";
+import { type StopOptions, throwIfStopped } from "../stop_signal.ts";
 
 /** Mean, SD and a central interval per point (result of {@link ensembleSummary}). */
 export interface EnsembleSummary {
@@ -25,9 +26,11 @@ export interface EnsembleSummary {
  * @param members count × n values, member-major
  * @param count number of members (≥ 1)
  * @param level central interval, in (0, 1) @default 0.95
+ * @param options `shouldStop`, polled every 64 points
  * @returns {@link EnsembleSummary}
  * @throws {InputError} (field `members`) when its length is not a multiple of count; (field
  *   `count` or `level`) when out of range
+ * @throws {StoppedError} when `shouldStop` answers true
  * @example
  * ```ts
  * import { ensembleSummary } from "./ensemble_summary.ts";
@@ -43,6 +46,7 @@ export function ensembleSummary(
   members: Float64Array,
   count: number,
   level = 0.95,
+  options: StopOptions = {},
 ): EnsembleSummary {
   if (!Number.isInteger(count) || count < 1) {
     throw new InputError(`Cannot summarise an ensemble: count must be ≥ 1, got ${count}`, {
@@ -71,6 +75,7 @@ export function ensembleSummary(
   const col = new Float64Array(count);
   const pLo = (1 - level) / 2, pHi = 1 - pLo;
   for (let i = 0; i < n; i++) {
+    if ((i & 63) === 0) throwIfStopped(options, "summarise an ensemble");
     let s = 0, ok = true;
     for (let m = 0; m < count; m++) {
       const v = members[m * n + i];

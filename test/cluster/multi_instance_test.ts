@@ -59,6 +59,26 @@ async function waitRun(
   }
 }
 
+/** CPU seconds a process has used so far (Linux `/proc/<pid>/stat`, user + system). */
+function processCpuSeconds(pid: number): number {
+  try {
+    const stat = Deno.readTextFileSync(`/proc/${pid}/stat`);
+    const fields = stat.slice(stat.lastIndexOf(")") + 2).split(" ");
+    // utime and stime are fields 14 and 15 of the file (12 and 13 after the name), in ticks
+    return (Number(fields[11]) + Number(fields[12])) / 100;
+  } catch {
+    return 0; // gone
+  }
+}
+
+/** Cores the processes use together over the next `ms` milliseconds. */
+async function coresUsed(pids: number[], ms: number): Promise<number> {
+  const c0 = pids.reduce((s, p) => s + processCpuSeconds(p), 0), t0 = performance.now();
+  await new Promise((r) => setTimeout(r, ms));
+  const c1 = pids.reduce((s, p) => s + processCpuSeconds(p), 0);
+  return (c1 - c0) / ((performance.now() - t0) / 1000);
+}
+
 /** Once terminal, a run's status never changes again. */
 function assertTerminalStable(seen: Map<string, string[]>) {
   for (const [id, list] of seen) {
@@ -183,7 +203,8 @@ Deno.test({
             seed: 9,
             periods: { min: 5, max: 20, count: 200 },
           };
-          const local = await makeTestApp();
+          // computed synchronously here (estimated at a few seconds, it would be queued)
+          const local = await makeTestApp({ config: { asyncSeconds: 1e6 } });
           await loadDemo(local.store);
           const here = await (await local.post("/v1/spectra", body)).json();
           await local.close();
@@ -216,6 +237,52 @@ Deno.test({
           assert.equal(done.status, "succeeded", JSON.stringify(done.error));
           assert.equal(done.result_digest, here.result_digest);
           assert.deepEqual(done.input_fields, [FIELD]);
+        },
+      );
+
+      await t.step(
+        "a cancel reaches the chunks on every worker process: their CPU goes idle within a second",
+        async () => {
+          const FIELD =
+            "field:sha256:9e638701b97f5a020c0525c24628808eb8c395b5e326730a4bd06c7f2e710b35";
+          // chunks of 250 surrogates over 121 lags: a few seconds each
+          const body = { field: FIELD, solar: TSIM, max_lag: 120, surrogates: 100_000, seed: 2 };
+          const start = await post(`${a}/v1/solar-signal-maps`, body, { prefer: "respond-async" });
+          assert.equal(start.status, 202, JSON.stringify(start.body));
+          const id = start.body.id;
+          const pids = cluster.workers.map((w) => w.pid)
+            .filter((pid) => processCpuSeconds(pid) > 0);
+          // chunks handed out, and both worker processes computing
+          const t0 = Date.now();
+          let busy = 0;
+          while (Date.now() - t0 < 60_000) {
+            const [c] = await db`SELECT count(*) AS n FROM sunlag_chunks WHERE run_id = ${id}`;
+            if (Number(c.n) > 0) {
+              busy = await coresUsed(pids, 500);
+              if (busy > 0.3) break;
+            } else await new Promise((r) => setTimeout(r, 50));
+          }
+          assert.ok(busy > 0.3, `the workers were computing chunks (${busy.toFixed(2)} cores)`);
+          // from the other API instance (B was restarted above: the latest one)
+          const other = cluster.apis.at(-1)!.url!;
+          const cancel = await post(`${other}/v1/runs/${id}/cancel`, {});
+          assert.equal(cancel.status, 200);
+          const tc = performance.now();
+          let idleAfter = Infinity;
+          while (performance.now() - tc < 5000) {
+            const at = performance.now() - tc;
+            if (await coresUsed(pids, 300) < 0.1) {
+              idleAfter = at;
+              break;
+            }
+          }
+          console.log(
+            `${pids.length} worker processes at ${busy.toFixed(2)} cores; idle ` +
+              `${idleAfter.toFixed(0)} ms after the cancel`,
+          );
+          assert.ok(idleAfter <= 1000, `idle ${idleAfter.toFixed(0)} ms after the cancel`);
+          const after = await waitRun(a, id, (r) => TERMINAL.has(r.status), seen);
+          assert.equal(after.status, "cancelled");
         },
       );
 

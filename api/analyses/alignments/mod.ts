@@ -8,6 +8,7 @@ import { defineAnalysis } from "../../runs/kind.ts";
 import { AlignRequest, MAX_ALIGNED } from "./request.ts";
 import { AlignResult } from "./result.ts";
 import { computeAlignments } from "./compute.ts";
+import { estimateAlignmentsSeconds } from "./estimate.ts";
 
 export const alignKind = defineAnalysis({
   kind: "alignments",
@@ -23,6 +24,6 @@ export const alignKind = defineAnalysis({
   request: AlignRequest,
   result: AlignResult,
   autoSave: Array.from({ length: MAX_ALIGNED }, (_, k) => `aligned_${k}`),
-  estimateSeconds: () => 0.2,
+  estimateSeconds: estimateAlignmentsSeconds,
   compute: computeAlignments,
 });

@@ -8,6 +8,7 @@ import { defineAnalysis } from "../../runs/kind.ts";
 import { AnomalyRequest } from "./request.ts";
 import { AnomalyResult } from "./result.ts";
 import { computeAnomalies } from "./compute.ts";
+import { estimateAnomaliesSeconds } from "./estimate.ts";
 
 export const anomalyKind = defineAnalysis({
   kind: "anomalies",
@@ -23,6 +24,6 @@ export const anomalyKind = defineAnalysis({
   request: AnomalyRequest,
   result: AnomalyResult,
   autoSave: ["anomalies"],
-  estimateSeconds: () => 0.1,
+  estimateSeconds: estimateAnomaliesSeconds,
   compute: computeAnomalies,
 });

@@ -333,7 +333,12 @@ function outputs(
 }
 
 /** The common axis, its seasonal step, the checks and the regression for given series. */
-function regress(p: AttributionParams, climate: StoredSeries, series: StoredSeries[]) {
+function regress(
+  p: AttributionParams,
+  climate: StoredSeries,
+  series: StoredSeries[],
+  ctx: RunContext,
+) {
   const onAxis = analysisAxis(
     [climate, ...series],
     ["/climate", ...p.regressors.map((_, k) => sourcePointer(p, k))],
@@ -364,6 +369,7 @@ function regress(p: AttributionParams, climate: StoredSeries, series: StoredSeri
     attributionRegression(axis.values[0], regressors, {
       errors: p.errors,
       hacLags: p.hac_lags,
+      shouldStop: ctx.cancelled,
     }));
   return { axis, labels, seasonal, regressors, fit };
 }
@@ -382,7 +388,7 @@ export async function computeAttributions(
 ): Promise<AttributionResultIn> {
   const climate = ctx.series(refId(p.climate));
   const { series, solarIndex } = regressorSeries(p, ctx);
-  const { axis, labels, seasonal, regressors, fit } = regress(p, climate, series);
+  const { axis, labels, seasonal, regressors, fit } = regress(p, climate, series, ctx);
   ctx.progress(0.1); // inputs checked and the regression fitted; the lag search test follows
   const seasonalLeft = annualCycleLeft(axis.resolution, axis.time, axis.values, labels);
   const solarRun = solarIndex === null ? undefined : p.regressors[solarIndex].run;
@@ -392,7 +398,7 @@ export async function computeAttributions(
   // every member through the same axis, seasonal step, lag search and regression
   const spread = ensemble
     ? attributionEnsembleSpread(ctx, ensemble, solarIndex!, p.regressors[solarIndex!].name, (s) => {
-      const r = regress(p, climate, s);
+      const r = regress(p, climate, s, ctx);
       const amplitude = p.solar_cycle_amplitude ??
         withInputPointers(
           { "*": sourcePointer(p, solarIndex!) },

@@ -10,6 +10,7 @@ import { AttributionRequest } from "./request.ts";
 import { AttributionResult } from "./result.ts";
 import { computeAttributions } from "./compute.ts";
 import { attributionsChart } from "./chart.ts";
+import { estimateAttributionsSeconds } from "./estimate.ts";
 import { attributionTasks } from "./tasks.ts";
 
 export const attributionKind = defineAnalysis({
@@ -34,19 +35,7 @@ export const attributionKind = defineAnalysis({
   request: AttributionRequest,
   result: AttributionResult,
   runRefs: (p) => p.regressors.flatMap((r) => (r.run ? [r.run] : [])),
-  estimateSeconds(p) {
-    const ranges = p.regressors.map((r) => r.max_lag - r.min_lag + 1);
-    const search = 0.02 * ranges.reduce((s, m) => s + m, 0);
-    const solar = p.regressors.find((r) => r.role === "solar");
-    if (!solar || solar.max_lag === solar.min_lag || p.lag_search_test !== "phase") {
-      return 0.1 + search;
-    }
-    // each surrogate searches the solar lag again: about 0.4 ms per Prais–Winsten fit of 240
-    // months, 0.1 ms with OLS (measured on one core here), over two cores
-    const fits = solar.max_lag - solar.min_lag + 1;
-    const perFit = p.errors === "ar1" ? 0.4e-3 : 0.1e-3;
-    return 0.1 + search + (p.surrogates * fits * perFit) / 2;
-  },
+  estimateSeconds: estimateAttributionsSeconds,
   compute: computeAttributions,
   chart: attributionsChart,
   tasks: attributionTasks,

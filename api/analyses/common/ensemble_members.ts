@@ -8,6 +8,7 @@
 import { z } from "@hono/zod-openapi";
 import { InputProblem } from "../../runs/kind.ts";
 import { ensembleSummary, normalQuantile } from "../../../core/stats/mod.ts";
+import type { StopOptions } from "../../../core/stop_signal.ts";
 
 /**
  * Most member values (members × points) a JSON result may hold: 1,000 members of an annual
@@ -138,6 +139,7 @@ export interface MemberBand {
  * @param count members
  * @param level central interval @default 0.95
  * @param what how the members are named in `interval` @default "ensemble members"
+ * @param options `shouldStop` (the run's `ctx.cancelled`), polled every 64 points
  */
 export function memberBand(
   central: ArrayLike<number>,
@@ -145,8 +147,9 @@ export function memberBand(
   count: number,
   level = 0.95,
   what = "ensemble members",
+  options: StopOptions = {},
 ): MemberBand {
-  const s = ensembleSummary(members, count, level);
+  const s = ensembleSummary(members, count, level, options);
   const pct = level === 0.95 ? "95 %" : `${(level * 100).toFixed(1)} %`;
   if (count >= MIN_MEMBERS_FOR_QUANTILES) {
     return {

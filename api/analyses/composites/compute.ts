@@ -109,6 +109,7 @@ export function computeComposites(p: CompositeParams, ctx: RunContext): Composit
         preEpochBaseline: p.baseline === "pre_epoch",
         ...replicates,
         seed: p.seed,
+        shouldStop: ctx.cancelled,
       }));
   // One replicate each meets every input rule of the method (epochs whose window fits, room
   // for random epochs) at negligible cost, before the progress report that ends the input

@@ -10,6 +10,7 @@ import { CompositeRequest } from "./request.ts";
 import { CompositeResult } from "./result.ts";
 import { computeComposites } from "./compute.ts";
 import { compositesChart } from "./chart.ts";
+import { estimateCompositesSeconds } from "./estimate.ts";
 
 export const compositeKind = defineAnalysis({
   kind: "composites",
@@ -28,8 +29,7 @@ export const compositeKind = defineAnalysis({
   request: CompositeRequest,
   result: CompositeResult,
   runRefs: (p) => (p.cycle_run ? [p.cycle_run] : []),
-  estimateSeconds: (p) =>
-    0.05 + (p.bootstrap + p.random_sets) * 2e-5 * (p.before_years + p.after_years),
+  estimateSeconds: estimateCompositesSeconds,
   compute: computeComposites,
   chart: compositesChart,
 });

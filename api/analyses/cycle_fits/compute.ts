@@ -146,6 +146,7 @@ export function computeCycleFits(params: CycleFitsParams, ctx: RunContext): Cycl
         width: params.width,
         amplitudeScale: an.amplitudeScale,
         passes: params.overlap === "backfit" ? 2 : 0,
+        shouldStop: ctx.cancelled,
       }),
   );
   const opts = { res: grid.resolution, units: s.units, width: params.width };

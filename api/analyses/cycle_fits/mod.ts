@@ -10,6 +10,7 @@ import { defineAnalysis } from "../../runs/kind.ts";
 import { CycleFitsRequest } from "./request.ts";
 import { CycleFitsResult } from "./result.ts";
 import { computeCycleFits } from "./compute.ts";
+import { estimateCycleFitsSeconds } from "./estimate.ts";
 
 export const cycleFitsKind = defineAnalysis({
   kind: "cycle-fits",
@@ -27,6 +28,6 @@ export const cycleFitsKind = defineAnalysis({
     "evaluated on the version 1 scale (0.6 × the values).",
   request: CycleFitsRequest,
   result: CycleFitsResult,
-  estimateSeconds: () => 1,
+  estimateSeconds: estimateCycleFitsSeconds,
   compute: computeCycleFits,
 });

@@ -34,6 +34,7 @@ import { CAUTION_CYCLE_REVIEW, CAUTION_SCALE } from "../common/cycle_cautions.ts
 import { cycleRowJson } from "../common/cycle_row.ts";
 import { sunspotInput } from "../common/sunspot_input.ts";
 import { withInputPointers } from "../common/input_problem.ts";
+import { parallelInRounds } from "../common/parallel_rounds.ts";
 import type { CycleForecastsParams } from "./request.ts";
 import type { CycleForecastsResultIn, HindcastSetIn } from "./result.ts";
 
@@ -100,9 +101,11 @@ async function hindcasts(
       options,
     })),
   ];
-  const outs = await ctx.parallel<HindcastCaseInput, HindcastCase | null>(
+  const outs = await parallelInRounds<HindcastCaseInput, HindcastCase | null>(
+    ctx,
     "cycles.hindcast_case",
     inputs,
+    { progress: [0.2, 0.95] },
   );
   const done = (c: HindcastCase | null): c is HindcastCase => c !== null;
   return {
@@ -257,6 +260,7 @@ function forecastInProgress(
   obs: ReturnType<typeof cycleInProgress>,
   past: { rows: CycleRow[]; windows: CycleWindow[] },
   params: CycleForecastsParams,
+  stop: () => boolean,
 ) {
   const { grid } = an;
   const fitOpts = { width: params.width, amplitudeScale: an.amplitudeScale };
@@ -264,7 +268,12 @@ function forecastInProgress(
   const independent: HathawayFit[] = past.rows.length
     ? withInputPointers(
       { "*": "/series" },
-      () => fitCycleSequence(grid.time, grid.value, past.windows, { ...fitOpts, passes: 0 }),
+      () =>
+        fitCycleSequence(grid.time, grid.value, past.windows, {
+          ...fitOpts,
+          passes: 0,
+          shouldStop: stop,
+        }),
     )
       .independent
     : [];
@@ -282,7 +291,13 @@ function forecastInProgress(
     : undefined;
   const fc = withInputPointers(
     { "*": "/series" },
-    () => forecastCycle(obs.time, obs.value, { ...options, curveTime, previousCycle }),
+    () =>
+      forecastCycle(obs.time, obs.value, {
+        ...options,
+        curveTime,
+        previousCycle,
+        shouldStop: stop,
+      }),
   );
   return { fc, independent, lengths, curveTime, options };
 }
@@ -326,7 +341,7 @@ export async function computeCycleForecasts(
   const { grid, series: s } = an;
   const obs = cycleInProgress(grid, an.rows);
   const complete = completeCycleWindows(grid, an.rows);
-  const f = forecastInProgress(an, obs, complete, params);
+  const f = forecastInProgress(an, obs, complete, params, ctx.cancelled);
   ctx.progress(0.2);
   const overlap = params.previous_cycle_overlap;
   const past = pastCycles(

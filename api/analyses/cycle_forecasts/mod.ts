@@ -11,6 +11,7 @@ import { CycleForecastsResult } from "./result.ts";
 import { computeCycleForecasts } from "./compute.ts";
 import { cycleForecastsChart } from "./chart.ts";
 import { cycleForecastsTasks } from "./tasks.ts";
+import { estimateCycleForecastsSeconds } from "./estimate.ts";
 
 export const cycleForecastsKind = defineAnalysis({
   kind: "cycle-forecasts",
@@ -32,7 +33,7 @@ export const cycleForecastsKind = defineAnalysis({
     "of the past cycles in the series.",
   request: CycleForecastsRequest,
   result: CycleForecastsResult,
-  estimateSeconds: (p) => (p.replicates + 2 * 25 * p.hindcast_replicates) * 0.001,
+  estimateSeconds: estimateCycleForecastsSeconds,
   compute: computeCycleForecasts,
   chart: cycleForecastsChart,
   tasks: cycleForecastsTasks,

@@ -10,6 +10,7 @@ import { CyclesRequest } from "./request.ts";
 import { CyclesResult } from "./result.ts";
 import { computeCycles } from "./compute.ts";
 import { cyclesChart } from "./chart.ts";
+import { estimateCyclesSeconds } from "./estimate.ts";
 
 export const cyclesKind = defineAnalysis({
   kind: "cycles",
@@ -31,7 +32,7 @@ export const cyclesKind = defineAnalysis({
     "null in the cycle in progress) and years since the latest minimum.",
   request: CyclesRequest,
   result: CyclesResult,
-  estimateSeconds: () => 0.1,
+  estimateSeconds: estimateCyclesSeconds,
   compute: computeCycles,
   chart: cyclesChart,
 });

@@ -5,7 +5,12 @@
  *
  * @module
  */
-import { InputProblem, type OutputSeries, type RunContext } from "../../runs/kind.ts";
+import {
+  CancelledError,
+  InputProblem,
+  type OutputSeries,
+  type RunContext,
+} from "../../runs/kind.ts";
 import { refId } from "../../schemas/series_ref.ts";
 import {
   fitSinusoid,
@@ -137,11 +142,13 @@ function memberResponses(
   params: TwoBoxParameters,
   f: Forcing,
   central: Float64Array,
+  ctx: RunContext,
 ) {
   const e = f.ensemble!, n = f.time.length;
   const members = new Float64Array(e.realizations * n);
   withInputPointers({ "*": "/forcing_run" }, () => {
     for (let m = 0; m < e.realizations; m++) {
+      if (ctx.cancelled()) throw new CancelledError();
       const fm = e.members.subarray(m * n, (m + 1) * n);
       const t = p.model === "one_box"
         ? oneBoxResponse(f.time, fm, params, 0)
@@ -152,7 +159,9 @@ function memberResponses(
   if (!members.every(Number.isFinite)) {
     throw new InputProblem("/forcing_run", "a member's response is not finite");
   }
-  const b = memberBand(central, members, e.realizations, 0.95, "responses to forcing members");
+  const b = memberBand(central, members, e.realizations, 0.95, "responses to forcing members", {
+    shouldStop: ctx.cancelled,
+  });
   return {
     members,
     uncertainty: b.sd,
@@ -244,7 +253,7 @@ export function computeEnergyBalance(
   const { surface, deep } = response(p, params, forcing);
   const amp0 = p.sinusoid?.amplitude ?? null;
   const timeAxis = p.sinusoid ? { time_axis: "model_years" as const } : {};
-  const spread = forcing.ensemble ? memberResponses(p, params, forcing, surface) : null;
+  const spread = forcing.ensemble ? memberResponses(p, params, forcing, surface, ctx) : null;
   const band = spread && forcing.band ? { ...forcing.band, method: spread.method } : null;
   const outputs: { temperature: OutputSeries; deep_temperature?: OutputSeries } = {
     temperature: {

@@ -9,6 +9,7 @@ import { defineAnalysis } from "../../runs/kind.ts";
 import { EnergyBalanceRequest } from "./request.ts";
 import { EnergyBalanceResult } from "./result.ts";
 import { computeEnergyBalance } from "./compute.ts";
+import { estimateEnergyBalanceSeconds } from "./estimate.ts";
 
 export const energyBalanceKind = defineAnalysis({
   kind: "energy-balance",
@@ -25,7 +26,6 @@ export const energyBalanceKind = defineAnalysis({
   request: EnergyBalanceRequest,
   result: EnergyBalanceResult,
   runRefs: (p) => (p.forcing_run ? [p.forcing_run] : []),
-  estimateSeconds: (p) =>
-    0.05 + (p.sinusoid ? p.sinusoid.years * p.sinusoid.steps_per_year * 2e-7 : 0.05),
+  estimateSeconds: estimateEnergyBalanceSeconds,
   compute: computeEnergyBalance,
 });

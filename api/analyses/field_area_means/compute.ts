@@ -65,6 +65,7 @@ export function computeFieldAreaMean(
         region: region(p, ctx, f.lat.length * f.lon.length),
         weights,
         minCoverage: p.min_coverage,
+        shouldStop: ctx.cancelled,
       }),
   );
   const where = describeRegion(p.region);

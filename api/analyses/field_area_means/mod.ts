@@ -10,6 +10,7 @@ import type { FieldRef } from "../../runs/kind.ts";
 import { FieldAreaMeanRequest } from "./request.ts";
 import { FieldAreaMeanResult } from "./result.ts";
 import { computeFieldAreaMean } from "./compute.ts";
+import { estimateFieldAreaMeansSeconds } from "./estimate.ts";
 
 export const fieldAreaMeanKind = defineAnalysis({
   kind: "field-area-means",
@@ -33,5 +34,6 @@ export const fieldAreaMeanKind = defineAnalysis({
     }
     return refs;
   },
+  estimateSeconds: estimateFieldAreaMeansSeconds,
   compute: computeFieldAreaMean,
 });

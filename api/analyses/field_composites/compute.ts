@@ -133,6 +133,7 @@ export async function computeFieldComposite(
       seed: p.seed,
       replicates: Math.max(1, p.random_sets),
       alphaLocal: p.alpha_local,
+      shouldStop: ctx.cancelled,
     }));
   ctx.progress(0.15);
   const obs = plan.observed;

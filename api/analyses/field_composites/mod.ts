@@ -11,6 +11,7 @@ import { FieldCompositeResult } from "./result.ts";
 import { computeFieldComposite } from "./compute.ts";
 import { fieldCompositeChart } from "./chart.ts";
 import { fieldCompositeTasks } from "./tasks.ts";
+import { estimateFieldCompositesSeconds } from "./estimate.ts";
 
 export const fieldCompositeKind = defineAnalysis({
   kind: "field-composites",
@@ -29,7 +30,7 @@ export const fieldCompositeKind = defineAnalysis({
   result: FieldCompositeResult,
   runRefs: (p) => (p.cycle_run ? [p.cycle_run] : []),
   fieldRefs: (p) => [{ id: p.field, pointer: "/field" }],
-  estimateSeconds: (p) => 0.3 + p.random_sets * 2e-3,
+  estimateSeconds: estimateFieldCompositesSeconds,
   compute: computeFieldComposite,
   chart: fieldCompositeChart,
   tasks: fieldCompositeTasks,

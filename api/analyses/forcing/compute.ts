@@ -71,7 +71,10 @@ export function computeForcing(params: ForcingParams, ctx: RunContext): ForcingR
   if (ens) {
     const fm = withInputPointers(
       { "*": pointer },
-      () => forcingMembers(input.time, ens.members, ens.realizations, span, params.albedo),
+      () =>
+        forcingMembers(input.time, ens.members, ens.realizations, span, params.albedo, {
+          shouldStop: ctx.cancelled,
+        }),
     );
     const b = memberBand(
       f.value,
@@ -79,6 +82,7 @@ export function computeForcing(params: ForcingParams, ctx: RunContext): ForcingR
       ens.realizations,
       0.95,
       "members, each against its own reference mean",
+      { shouldStop: ctx.cancelled },
     );
     out.uncertainty = undefinedAsNull(b.sd);
     out.lower = undefinedAsNull(b.lower);

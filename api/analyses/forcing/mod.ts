@@ -9,6 +9,7 @@ import { defineAnalysis } from "../../runs/kind.ts";
 import { ForcingRequest } from "./request.ts";
 import { ForcingResult } from "./result.ts";
 import { computeForcing } from "./compute.ts";
+import { estimateForcingSeconds } from "./estimate.ts";
 
 export const forcing = defineAnalysis({
   kind: "forcing",
@@ -29,5 +30,6 @@ export const forcing = defineAnalysis({
   request: ForcingRequest,
   result: ForcingResult,
   runRefs: (p) => (p.reconstruction ? [p.reconstruction] : []),
+  estimateSeconds: estimateForcingSeconds,
   compute: computeForcing,
 });

@@ -9,6 +9,7 @@ import { defineAnalysis } from "../../runs/kind.ts";
 import { DarkeningRequest } from "./request.ts";
 import { DarkeningResult } from "./result.ts";
 import { computeDarkening } from "./compute.ts";
+import { estimateDarkeningSeconds } from "./estimate.ts";
 
 export const irradianceDarkening = defineAnalysis({
   kind: "irradiance-darkening",
@@ -24,6 +25,6 @@ export const irradianceDarkening = defineAnalysis({
   request: DarkeningRequest,
   result: DarkeningResult,
   autoSave: ["psi", "darkening"],
-  estimateSeconds: (p) => (p.groups?.time.length ?? 0) / 2e6,
+  estimateSeconds: estimateDarkeningSeconds,
   compute: computeDarkening,
 });

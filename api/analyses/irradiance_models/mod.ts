@@ -11,6 +11,7 @@ import { ModelRequest } from "./request.ts";
 import { ModelResult } from "./result.ts";
 import { computeModel } from "./compute.ts";
 import { modelChart } from "./chart.ts";
+import { estimateModelSeconds } from "./estimate.ts";
 
 export const irradianceModels = defineAnalysis({
   kind: "irradiance-models",
@@ -36,7 +37,7 @@ export const irradianceModels = defineAnalysis({
     "with honest uncertainty.",
   request: ModelRequest,
   result: ModelResult,
-  estimateSeconds: () => 0.2,
+  estimateSeconds: estimateModelSeconds,
   compute: computeModel,
   chart: modelChart,
 });

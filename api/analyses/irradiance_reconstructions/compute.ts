@@ -115,7 +115,11 @@ export async function computeReconstruction(
       background: atCells,
     })
     : null;
-  const members = ens ? memberBand(rec.value, ens.members, ens.realizations, params.level) : null;
+  const members = ens
+    ? memberBand(rec.value, ens.members, ens.realizations, params.level, undefined, {
+      shouldStop: ctx.cancelled,
+    })
+    : null;
   const band = reconstructionBand(params, rec, sunspot, scenario.kind !== "none");
   const amp = tsiCycleAmplitude(cells.time, rec.value);
   const check = cycleAmplitudeCheck(

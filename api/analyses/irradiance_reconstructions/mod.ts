@@ -12,6 +12,7 @@ import { ReconstructionRequest } from "./request.ts";
 import { ReconstructionResult } from "./result.ts";
 import { computeReconstruction } from "./compute.ts";
 import { reconstructionChart } from "./chart.ts";
+import { estimateReconstructionSeconds } from "./estimate.ts";
 import { reconstructionTasks } from "./tasks.ts";
 
 export const irradianceReconstructions = defineAnalysis({
@@ -50,9 +51,7 @@ export const irradianceReconstructions = defineAnalysis({
   request: ReconstructionRequest,
   result: ReconstructionResult,
   runRefs: (p) => [p.model],
-  estimateSeconds: (p) =>
-    (p.resolution === "daily" ? 0.5 : 0.1) +
-    p.realizations * (p.resolution === "daily" ? 2e-3 : p.resolution === "monthly" ? 1e-4 : 1e-5),
+  estimateSeconds: estimateReconstructionSeconds,
   compute: computeReconstruction,
   chart: reconstructionChart,
   tasks: reconstructionTasks,

@@ -11,6 +11,7 @@ import { LagCorrelationResult } from "./result.ts";
 import { computeLagCorrelations } from "./compute.ts";
 import { lagCorrelationChart } from "./chart.ts";
 import { lagCorrelationTasks } from "./tasks.ts";
+import { estimateLagCorrelationsSeconds } from "./estimate.ts";
 
 export const lagCorrelationKind = defineAnalysis({
   kind: "lag-correlations",
@@ -38,12 +39,7 @@ export const lagCorrelationKind = defineAnalysis({
   request: LagCorrelationRequest,
   result: LagCorrelationResult,
   runRefs: (p) => (p.solar_run ? [p.solar_run] : []),
-  estimateSeconds(p) {
-    if (p.significance === "none") return 0.05;
-    const hp = p.preprocess === "high_pass" ? 20 : 1;
-    // about 0.1 ms per surrogate of 4096 months over 241 lags on one core (test/bench)
-    return 0.05 + (p.surrogates * 0.12e-3 * hp * ((p.max_lag ?? 36) + 60)) / 300;
-  },
+  estimateSeconds: estimateLagCorrelationsSeconds,
   compute: computeLagCorrelations,
   chart: lagCorrelationChart,
   tasks: lagCorrelationTasks,

@@ -8,6 +8,7 @@ import { defineAnalysis } from "../../runs/kind.ts";
 import { ResampleRequest } from "./request.ts";
 import { ResampleResult } from "./result.ts";
 import { computeResampling } from "./compute.ts";
+import { estimateResamplingSeconds } from "./estimate.ts";
 
 export const resampleKind = defineAnalysis({
   kind: "resampling",
@@ -24,6 +25,6 @@ export const resampleKind = defineAnalysis({
   request: ResampleRequest,
   result: ResampleResult,
   autoSave: ["resampled"],
-  estimateSeconds: () => 0.1,
+  estimateSeconds: estimateResamplingSeconds,
   compute: computeResampling,
 });

@@ -10,6 +10,7 @@ import { SmoothingRequest } from "./request.ts";
 import { SmoothingResult } from "./result.ts";
 import { computeSmoothing } from "./compute.ts";
 import { smoothingChart } from "./chart.ts";
+import { estimateSmoothingSeconds } from "./estimate.ts";
 
 export const smoothingKind = defineAnalysis({
   kind: "smoothing",
@@ -26,7 +27,7 @@ export const smoothingKind = defineAnalysis({
   request: SmoothingRequest,
   result: SmoothingResult,
   autoSave: ["smoothed"],
-  estimateSeconds: () => 0.1,
+  estimateSeconds: estimateSmoothingSeconds,
   compute: computeSmoothing,
   chart: smoothingChart,
 });

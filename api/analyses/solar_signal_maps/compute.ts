@@ -117,6 +117,7 @@ function prepare(p: SolarSignalMapParams, ctx: RunContext) {
         seasonalPeriod: seasonal ? 12 : 0,
         controls: p.controls.map((c, k) => ({ name: c.name, values: axis.values[k + 1] })),
         trendControl: p.trend_control,
+        shouldStop: ctx.cancelled,
       }),
   );
   return { solar, on, inputs, seasonal };
@@ -283,7 +284,10 @@ export async function computeSolarSignalMap(
   const { solar, on, inputs, seasonal } = prepare(p, ctx);
   const f = ctx.field(p.field);
   ctx.progress(0.05);
-  const map = withInputPointers({ "*": "/field" }, () => solarSignalMap(inputs));
+  const map = withInputPointers(
+    { "*": "/field" },
+    () => solarSignalMap(inputs, { shouldStop: ctx.cancelled }),
+  );
   ctx.progress(0.15);
   const field: GriddedField = on.field;
   const weights = fieldAreaWeights(field);

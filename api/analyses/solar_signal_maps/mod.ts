@@ -13,6 +13,7 @@ import { SolarSignalMapResult } from "./result.ts";
 import { computeSolarSignalMap, predictorOf } from "./compute.ts";
 import { solarSignalMapChart } from "./chart.ts";
 import { solarSignalMapTasks } from "./tasks.ts";
+import { estimateSolarSignalMapsSeconds } from "./estimate.ts";
 
 export const solarSignalMapKind = defineAnalysis({
   kind: "solar-signal-maps",
@@ -47,12 +48,7 @@ export const solarSignalMapKind = defineAnalysis({
       spanPointer: p.solar_run ? "/solar_run" : "/solar",
     }];
   },
-  estimateSeconds(p) {
-    // about 35 GFLOP/s per core for the surrogate products on two cores (core/field); the
-    // field's size is not known here, so a 5° monthly field of 50 years is assumed
-    const lags = (p.max_lag ?? 24) - p.min_lag + 1;
-    return 0.5 + (2592 * 600 * lags * p.surrogates * 2) / 5e10;
-  },
+  estimateSeconds: estimateSolarSignalMapsSeconds,
   compute: computeSolarSignalMap,
   chart: solarSignalMapChart,
   tasks: solarSignalMapTasks,

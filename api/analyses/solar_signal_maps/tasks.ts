@@ -13,5 +13,6 @@ import type { FieldSignificanceChunkInput } from "../../../core/field/mod.ts";
 export const FIELD_SIGNIFICANCE_CHUNK = "field.significance_chunk";
 
 export const solarSignalMapTasks: Record<string, Task> = {
-  [FIELD_SIGNIFICANCE_CHUNK]: (input: FieldSignificanceChunkInput) => fieldSignificanceChunk(input),
+  [FIELD_SIGNIFICANCE_CHUNK]: (input: FieldSignificanceChunkInput, control) =>
+    fieldSignificanceChunk(input, undefined, control),
 };

@@ -30,6 +30,7 @@ import {
   type SpectralPeak,
 } from "../../../core/spectral/mod.ts";
 import { activityGrid } from "../common/activity_grid.ts";
+import { parallelInRounds } from "../common/parallel_rounds.ts";
 import { undefinedAsNull } from "../common/undefined_as_null.ts";
 import { MAX_GRID, type SpectraParams } from "./request.ts";
 import type { PeakIn, SpectraResultIn } from "./result.ts";
@@ -38,8 +39,15 @@ import type { PeakIn, SpectraResultIn } from "./result.ts";
 const PARALLEL_WORK = 4_000_000;
 /** Frequencies per parallel chunk (fixed: results must not depend on the worker count). */
 const LS_CHUNK = 1024;
-/** Monte Carlo replicates per parallel chunk (fixed, likewise). */
+/** Most Monte Carlo replicates per parallel chunk. */
 const MC_CHUNK = 25;
+/**
+ * Points × frequencies × replicates of one Monte Carlo chunk at most (about 0.1 s on one core;
+ * one replicate at least): a worker is free for other runs that often. Each replicate draws
+ * from its own stream and the chunks' maxima are joined in order, so the split does not change
+ * the numbers.
+ */
+const MC_CHUNK_WORK = 3e7;
 
 const CAUTIONS = [
   "The analytic (Horne & Baliunas) and permutation false-alarm probabilities test against " +
@@ -174,6 +182,21 @@ function lombScargleGrid(p: SpectraParams, time: Float64Array) {
   return { frequency, min: lo, max: hi, spacing: p.periods.spacing };
 }
 
+/**
+ * The size of a Lomb–Scargle request's work (for its cost model): finite samples, grid points,
+ * and whether the grid is even in frequency (the periodogram's fast path); a 422 as the
+ * computation would give one.
+ */
+export function lombScargleWork(p: SpectraParams, s: StoredSeries) {
+  const { time } = samples(s);
+  const g = lombScargleGrid(p, time);
+  return {
+    points: time.length,
+    grid: g.frequency.length,
+    even: p.period_list === undefined && p.periods.spacing === "frequency",
+  };
+}
+
 /** Warnings on periods the sampling does not resolve. */
 function gridWarnings(g: { min: number; max: number }, time: Float64Array): string[] {
   const warnings: string[] = [];
@@ -195,7 +218,7 @@ function gridWarnings(g: { min: number; max: number }, time: Float64Array): stri
 /**
  * The Lomb–Scargle power on the grid; large grids are split into fixed chunks of frequencies
  * (the same split whatever the number of workers, so the numbers do not depend on it) and
- * computed in parallel.
+ * computed in parallel, in rounds (a cancel is seen between them, and inside a chunk).
  */
 async function periodogram(
   p: SpectraParams,
@@ -206,7 +229,10 @@ async function periodogram(
 ): Promise<Float64Array> {
   const K = frequency.length;
   if (time.length * K < PARALLEL_WORK) {
-    return lombScargle(time, value, frequency, { normalization: p.normalization });
+    return lombScargle(time, value, frequency, {
+      normalization: p.normalization,
+      shouldStop: ctx.cancelled,
+    });
   }
   const chunks: LombScargleChunkInput[] = [];
   for (let k0 = 0; k0 < K; k0 += LS_CHUNK) {
@@ -217,9 +243,11 @@ async function periodogram(
       normalization: p.normalization,
     });
   }
-  const parts = await ctx.parallel<LombScargleChunkInput, Float64Array>(
+  const parts = await parallelInRounds<LombScargleChunkInput, Float64Array>(
+    ctx,
     "spectral.lomb_scargle_chunk",
     chunks,
+    { progress: [0, 0.1] },
   );
   const power = new Float64Array(K);
   let o = 0;
@@ -230,7 +258,7 @@ async function periodogram(
   return power;
 }
 
-/** The Monte Carlo null in fixed chunks of replicates, probed at the peaks, combined. */
+/** The Monte Carlo null in chunks of replicates, probed at the peaks, combined. */
 async function monteCarlo(
   p: SpectraParams,
   data: { time: Float64Array; value: Float64Array; frequency: Float64Array },
@@ -238,21 +266,25 @@ async function monteCarlo(
   ctx: RunContext,
 ): Promise<MonteCarloPeakTests> {
   const probe = peaks.map((q) => q.index);
+  const perReplicate = data.time.length * data.frequency.length;
+  const per = Math.max(1, Math.min(MC_CHUNK, Math.floor(MC_CHUNK_WORK / perReplicate)));
   const inputs: MonteCarloMaximaInput[] = [];
-  for (let r0 = 0; r0 < p.replicates; r0 += MC_CHUNK) {
+  for (let r0 = 0; r0 < p.replicates; r0 += per) {
     inputs.push({
       ...data,
       seed: p.seed,
-      replicates: Math.min(MC_CHUNK, p.replicates - r0),
+      replicates: Math.min(per, p.replicates - r0),
       firstReplicate: r0,
       normalization: p.normalization,
       null: p.monte_carlo_null,
       probe,
     });
   }
-  const outs = await ctx.parallel<MonteCarloMaximaInput, MonteCarloNull>(
+  const outs = await parallelInRounds<MonteCarloMaximaInput, MonteCarloNull>(
+    ctx,
     "spectral.monte_carlo_maxima",
     inputs,
+    { progress: [0.1, 0.95] },
   );
   return combineMonteCarloNull(outs, peaks.map((q) => q.power));
 }

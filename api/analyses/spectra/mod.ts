@@ -11,6 +11,7 @@ import { SpectraResult } from "./result.ts";
 import { computeSpectra } from "./compute.ts";
 import { spectraChart } from "./chart.ts";
 import { spectraTasks } from "./tasks.ts";
+import { estimateSpectraSeconds } from "./estimate.ts";
 
 export const spectraKind = defineAnalysis({
   kind: "spectra",
@@ -28,11 +29,7 @@ export const spectraKind = defineAnalysis({
     "cycles per year.",
   request: SpectraRequest,
   result: SpectraResult,
-  estimateSeconds(p) {
-    const grid = p.period_list?.length ?? p.periods.count ?? 5000;
-    const mc = p.false_alarm === "horne_baliunas" || p.method === "fft" ? 0 : p.replicates;
-    return (3600 * grid * (1 + mc)) / 1e9;
-  },
+  estimateSeconds: estimateSpectraSeconds,
   compute: computeSpectra,
   chart: spectraChart,
   tasks: spectraTasks,

@@ -9,6 +9,7 @@
  * @module
  */
 import { defineAnalysis } from "../../runs/kind.ts";
+import { estimateSpectralModelSeconds } from "./estimate.ts";
 import { SpectralModelRequest } from "./request.ts";
 import { SpectralModelResult } from "./result.ts";
 import { computeSpectralModel } from "./compute.ts";
@@ -38,7 +39,7 @@ export const spectralIrradianceModels = defineAnalysis({
   request: SpectralModelRequest,
   result: SpectralModelResult,
   runRefs: (p) => [p.tsi_model],
-  estimateSeconds: (p) => 0.1 + 0.01 * p.bands.length,
+  estimateSeconds: estimateSpectralModelSeconds,
   compute: computeSpectralModel,
   chart: spectralModelChart,
   tasks: spectralModelTasks,

@@ -1,11 +1,14 @@
 /**
  * Worker task of the "spectral-irradiance-models" analysis: the calibration of a chunk of
  * bands (core/irradiance/spectral_band_models.ts), mapped over the pool with `ctx.parallel`.
- * The cross-band correlation is computed afterwards from every chunk's residuals.
+ * The cross-band correlation is computed afterwards from every chunk's residuals. A stop
+ * request is obeyed between bands (Prais–Winsten with cross-validation costs milliseconds per
+ * band); least squares fits the chunk at once, on its one factorisation.
  *
  * @module
  */
 import type { Task } from "../../runs/kind.ts";
+import { type StopOptions, throwIfStopped } from "../../../core/stop_signal.ts";
 import {
   type BandCalibrationOptions,
   type BandModels,
@@ -26,19 +29,41 @@ export interface BandFitsChunk {
   options: BandCalibrationOptions;
 }
 
-/** Calibrate one chunk of bands (no cross-correlation: that needs every band). */
-export function bandFitsChunk(input: BandFitsChunk): BandModels {
+/**
+ * Calibrate one chunk of bands (no cross-correlation: that needs every band); band by band
+ * unless the estimator is least squares, polling `control.shouldStop` before each. Each band's
+ * fit depends on its own record and the common design only, so the numbers are the same.
+ */
+export function bandFitsChunk(input: BandFitsChunk, control: StopOptions = {}): BandModels {
+  const options = { ...input.options, crossCorrelation: false };
+  const per = input.options.method === "ols" ? input.bands.length : 1;
+  const parts: BandModels[] = [];
+  for (let b = 0; b < input.bands.length; b += per) {
+    throwIfStopped(control, "calibrate band models");
+    const block = input.bands.slice(b, b + per);
+    parts.push(
+      bandNumbered(() => calibrateBandModels(block, input.terms, options), input.offset + b),
+    );
+  }
+  return {
+    fits: parts.flatMap((p) => p.fits),
+    cells: parts.flatMap((p) => p.cells),
+    residuals: parts.flatMap((p) => p.residuals),
+    correlation: null,
+    quietLevels: parts[0].quietLevels,
+  };
+}
+
+/** Run `fit`, a band error in it renumbered by the index of its first band among all. */
+function bandNumbered(fit: () => BandModels, first: number): BandModels {
   try {
-    return calibrateBandModels(input.bands, input.terms, {
-      ...input.options,
-      crossCorrelation: false,
-    });
+    return fit();
   } catch (e) {
     if (e instanceof InputError && e.field === "bands" && e.index !== undefined) {
-      throw new InputError(e.message.replace(/band \d+/g, `band ${e.index + input.offset}`), {
+      throw new InputError(e.message.replace(/band \d+/g, `band ${e.index + first}`), {
         field: "bands",
         reason: e.reason,
-        index: e.index + input.offset,
+        index: e.index + first,
         value: e.value,
       });
     }

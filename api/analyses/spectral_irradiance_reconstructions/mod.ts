@@ -7,6 +7,7 @@
  * @module
  */
 import { defineAnalysis } from "../../runs/kind.ts";
+import { estimateSpectralReconstructionSeconds } from "./estimate.ts";
 import { SpectralReconstructionRequest } from "./request.ts";
 import { SpectralReconstructionResult } from "./result.ts";
 import { computeSpectralReconstruction } from "./compute.ts";
@@ -33,7 +34,7 @@ export const spectralIrradianceReconstructions = defineAnalysis({
   request: SpectralReconstructionRequest,
   result: SpectralReconstructionResult,
   runRefs: (p) => [p.model],
-  estimateSeconds: (p) => (p.resolution === "daily" ? 1.5 : 0.3),
+  estimateSeconds: estimateSpectralReconstructionSeconds,
   compute: computeSpectralReconstruction,
   chart: spectralReconstructionChart,
 });
