@@ -23,8 +23,13 @@ export interface DrawnEnsemble {
   realizations: number;
 }
 
-/** Members per chunk: up to 8 chunks, so the pool is busy and progress moves between rounds. */
-function chunkSizes(realizations: number): [number, number][] {
+/**
+ * Members per chunk: up to 8 chunks, so the pool is busy and progress moves between rounds.
+ *
+ * @param realizations the members of the ensemble (≥ 1)
+ * @returns [first member, count] of each chunk, in order
+ */
+export function chunkSizes(realizations: number): [number, number][] {
   const per = Math.ceil(realizations / Math.min(8, realizations));
   const out: [number, number][] = [];
   for (let a = 0; a < realizations; a += per) out.push([a, Math.min(per, realizations - a)]);
