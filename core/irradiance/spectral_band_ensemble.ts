@@ -331,7 +331,12 @@ interface Scratch {
   v: Float64Array;
 }
 
-/** Write the bands' residual process into `out` (cells × B) at its active cells. */
+/**
+ * Write the bands' residual process into `out` (cells × B) at its active cells. The
+ * innovations L·z of four cells are formed together (each factor entry read once for four
+ * products: about twice as fast in V8 as one cell at a time), with the same arithmetic per
+ * cell, so the numbers do not depend on the blocking.
+ */
 function drawBandProcess(
   p: BandProcessPlan,
   B: number,
@@ -340,20 +345,45 @@ function drawBandProcess(
   s: Scratch,
 ): void {
   const { cells, kind, sd, lag, innovation } = p;
-  const u = s.u, z = s.zb;
-  for (let j = 0; j < cells.length; j++) {
-    stream.fillNormal(z);
-    const L = j === 0 ? p.lowerStart : p.lowerStep;
-    const o = kind[j] * B, at = cells[j] * B;
+  const u = s.u, z = s.zb, m = cells.length;
+  const step = (j: number, a: number, e: number) => {
+    const o = kind[j] * B + a;
+    const ua = lag[o] * u[a] + innovation[o] * e;
+    u[a] = ua;
+    out[cells[j] * B + a] = sd[o] * ua;
+  };
+  const single = (j: number, L: Float64Array) => {
+    stream.fillNormal(z, 0, B);
     for (let a = 0; a < B; a++) {
       const row = a * B;
       let e = 0;
       for (let c = 0; c <= a; c++) e += L[row + c] * z[c];
-      const ua = lag[o + a] * u[a] + innovation[o + a] * e;
-      u[a] = ua;
-      out[at + a] = sd[o + a] * ua;
+      step(j, a, e);
+    }
+  };
+  if (m === 0) return;
+  single(0, p.lowerStart); // the stationary start
+  let j = 1;
+  const L = p.lowerStep;
+  for (; j + 4 <= m; j += 4) {
+    stream.fillNormal(z);
+    for (let a = 0; a < B; a++) {
+      const row = a * B;
+      let e0 = 0, e1 = 0, e2 = 0, e3 = 0;
+      for (let c = 0; c <= a; c++) {
+        const l = L[row + c];
+        e0 += l * z[c];
+        e1 += l * z[B + c];
+        e2 += l * z[2 * B + c];
+        e3 += l * z[3 * B + c];
+      }
+      step(j, a, e0);
+      step(j + 1, a, e1);
+      step(j + 2, a, e2);
+      step(j + 3, a, e3);
     }
   }
+  for (; j < m; j++) single(j, L);
 }
 
 /** Draw one member into `out` (cells × B, cell-major). */
@@ -505,7 +535,7 @@ export function drawSpectralBandMembers(
     zc: new Float64Array((K + 1) * B),
     r: plan.sunspot ? new Float64Array(n) : null,
     u: new Float64Array(B),
-    zb: new Float64Array(B),
+    zb: new Float64Array(4 * B),
     beta: new Float64Array(B * (K + 1)),
     slope: new Float64Array(B * K),
     base: new Float64Array(B),
