@@ -212,6 +212,33 @@ Deno.test("spectral ensembles: bands and integrals from jointly drawn members, i
       }
     });
 
+    await t.step("an integral's NetCDF output carries its members", async () => {
+      const res = await svc.get(`/v1/runs/${rec.id}/outputs/range_200_400?format=netcdf`);
+      assert.equal(res.status, 200, await res.clone().text());
+      const bytes = new Uint8Array(await res.arrayBuffer());
+      if (!HAS_XARRAY) return;
+      const dir = await Deno.makeTempDir({ prefix: "sunlag-ssi-int-" });
+      try {
+        await Deno.writeFile(`${dir}/range.nc`, bytes);
+        const out = await new Deno.Command("/usr/bin/python3", {
+          args: [
+            "-c",
+            "import sys, json, xarray as xr\nwith xr.open_dataset(sys.argv[1]) as ds:\n" +
+            "    v = [k for k in ds.data_vars if k.endswith('_realizations')][0]\n" +
+            "    print(json.dumps({'dims': list(ds[v].dims), 'm5': float(ds[v].values[5, 40])}))",
+            `${dir}/range.nc`,
+          ],
+        }).output();
+        assert.ok(out.success, new TextDecoder().decode(out.stderr));
+        const x = JSON.parse(new TextDecoder().decode(out.stdout));
+        assert.deepEqual(x.dims, ["realization", "time"]);
+        const want = memberValues(r.outputs.range_200_400.value, e.outputs.range_200_400, 5)[40];
+        assert.ok(Math.abs(x.m5 - want) <= 1e-7 * Math.abs(want), `${x.m5} vs ${want}`);
+      } finally {
+        await Deno.remove(dir, { recursive: true });
+      }
+    });
+
     await t.step(
       "too many member values: a problem naming the fields, nothing stored",
       async () => {

@@ -102,15 +102,47 @@ export function ensembleSourceOf(
   // checked by shape rather than parsed with the schema: a stored result was validated when it
   // was made, and parsing millions of member values again would dominate a download
   const e = (result as { ensemble?: unknown } | null)?.ensemble as
-    | { output?: unknown; realizations?: unknown; members?: unknown }
+    | { output?: unknown; realizations?: unknown; members?: unknown; outputs?: unknown }
     | null
     | undefined;
+  if (e && e.outputs && typeof e.outputs === "object") return offsetSourceOf(result, name);
   if (!e || e.output !== name || !Array.isArray(e.members)) return undefined;
   const rows = e.members as unknown[];
   if (rows.length !== e.realizations || !rows.every(Array.isArray)) return undefined;
   return {
     members: rows.length,
     member: (k) => Float64Array.from(rows[k] as (number | null)[], (v) => v ?? NaN),
+  };
+}
+
+/**
+ * Members stored as integer offsets from an output's central values (`ensemble.outputs[name]`
+ * = { step, offsets }, as a spectral reconstruction stores its integrals): member k at point i
+ * is value[i] + offsets[k][i] × step.
+ */
+function offsetSourceOf(
+  result: unknown,
+  name: string,
+): { members: number; member(k: number): ArrayLike<number> } | undefined {
+  const r = result as {
+    ensemble: { realizations?: unknown; outputs: Record<string, unknown> };
+    outputs?: Record<string, { value?: unknown }>;
+  };
+  const m = r.ensemble.outputs[name] as { step?: unknown; offsets?: unknown } | undefined;
+  const central = r.outputs?.[name]?.value;
+  if (!m || typeof m.step !== "number" || !Array.isArray(m.offsets) || !Array.isArray(central)) {
+    return undefined;
+  }
+  const rows = m.offsets as (number | null)[][], step = m.step;
+  if (rows.length !== r.ensemble.realizations) return undefined;
+  const c = central as (number | null)[];
+  return {
+    members: rows.length,
+    member: (k) =>
+      Float64Array.from(c, (v, i) => {
+        const o = rows[k][i];
+        return v === null || o === null ? NaN : v + o * step;
+      }),
   };
 }
 
