@@ -20,7 +20,6 @@ import {
   bandMembers,
   type BandValueKind,
   differenceModel,
-  type ErrorSource,
   integrateBandMembers,
   integrateBandModels,
   predictionQuantile,
@@ -62,7 +61,11 @@ import {
   memberBand,
   MIN_MEMBERS_FOR_QUANTILES,
 } from "../common/ensemble_members.ts";
-import { bandCaution, type UncertaintyBand, uncertaintyBand } from "../common/uncertainty_band.ts";
+import {
+  bandCaution,
+  proxyReconstructionBand,
+  type UncertaintyBand,
+} from "../common/uncertainty_band.ts";
 import { normalQuantile } from "../../../core/stats/mod.ts";
 import {
   type DrawnSpectralEnsemble,
@@ -557,18 +560,16 @@ function spectralBand(
   sunspot: SunspotInput | null,
 ): UncertaintyBand {
   const back = reference.source.includes(SOURCE_BACK_EXTENDED);
-  const included: ErrorSource[] = ["calibration", "residual"];
-  if (back) included.push("mapping");
-  if (back && sunspot?.errors.cells) included.push("input");
-  const method = params.realizations >= MIN_MEMBERS_FOR_QUANTILES
-    ? "ensemble_quantiles"
-    : params.realizations > 0
-    ? "ensemble_sd"
-    : "analytic";
-  return uncertaintyBand(method, included, [
-    ...(back ? sunspot?.errors.notIncluded ?? [] : []),
-    "the uncertainty of the spectral record's own calibration (its absolute scale per band)",
-  ]);
+  return proxyReconstructionBand(
+    params.realizations,
+    back,
+    Boolean(sunspot?.errors.cells),
+    MIN_MEMBERS_FOR_QUANTILES,
+    [
+      ...(back ? sunspot?.errors.notIncluded ?? [] : []),
+      "the uncertainty of the spectral record's own calibration (its absolute scale per band)",
+    ],
+  );
 }
 
 /** Warnings of a small ensemble, and what its draw had to adjust. */

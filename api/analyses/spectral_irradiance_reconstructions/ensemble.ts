@@ -8,7 +8,7 @@
  * @module
  */
 import { z } from "@hono/zod-openapi";
-import { CancelledError, type RunContext } from "../../runs/kind.ts";
+import type { RunContext } from "../../runs/kind.ts";
 import {
   type BandCorrelations,
   type ReconstructionCells,
@@ -16,8 +16,8 @@ import {
   type SpectralBandEnsembleChunk,
   spectralBandEnsemblePlan,
 } from "../../../core/irradiance/mod.ts";
-import { inputProblem, withInputPointers } from "../common/input_problem.ts";
-import { chunkSizes } from "../irradiance_reconstructions/ensemble.ts";
+import { withInputPointers } from "../common/input_problem.ts";
+import { drawMembersOnPool } from "../common/ensemble_members.ts";
 import { SPECTRAL_ENSEMBLE_CHUNK } from "./tasks.ts";
 
 /** Members of a drawn spectral ensemble. */
@@ -31,8 +31,7 @@ export interface DrawnSpectralEnsemble {
 }
 
 /**
- * Draw the members of every band on the pool, in rounds of 4 chunks so that a cancel is seen
- * between rounds; progress moves from 0.1 to 0.9.
+ * Draw the members of every band on the pool (common/ensemble_members.ts `drawMembersOnPool`).
  *
  * @param ctx the run context (its pool, progress and cancel flag)
  * @param models per band, its model
@@ -51,33 +50,19 @@ export async function drawSpectralEnsemble(
     { "*": "/model" },
     () => spectralBandEnsemblePlan(models, cells, correlations),
   );
-  const per = plan.cells * plan.bands, N = options.realizations;
-  const chunks: SpectralBandEnsembleChunk[] = chunkSizes(N).map(([first, count]) => ({
-    plan,
-    seed: options.seed,
-    first,
-    count,
-  }));
-  const members = new Float64Array(N * per);
-  let done = 0;
-  for (let c = 0; c < chunks.length; c += 4) {
-    const round = chunks.slice(c, c + 4);
-    let outs: Float64Array[];
-    try {
-      outs = await ctx.parallel<SpectralBandEnsembleChunk, Float64Array>(
-        SPECTRAL_ENSEMBLE_CHUNK,
-        round,
-      );
-    } catch (e) {
-      // a saturating mapping without an admissible draw is a property of the model run
-      throw inputProblem(e, { "*": "/model" });
-    }
-    outs.forEach((o, j) => members.set(o, round[j].first * per));
-    done += round.reduce((s, r) => s + r.count, 0);
-    if (ctx.cancelled()) throw new CancelledError();
-    ctx.progress(0.1 + (0.8 * done) / N);
-  }
-  return { members, realizations: N, bands: plan.bands, adjusted: plan.adjusted };
+  const members = await drawMembersOnPool<SpectralBandEnsembleChunk>(
+    ctx,
+    SPECTRAL_ENSEMBLE_CHUNK,
+    options.realizations,
+    plan.cells * plan.bands,
+    (first, count) => ({ plan, seed: options.seed, first, count }),
+  );
+  return {
+    members,
+    realizations: options.realizations,
+    bands: plan.bands,
+    adjusted: plan.adjusted,
+  };
 }
 
 const Offsets = z.array(z.array(z.number().int().nullable()));
