@@ -34,7 +34,12 @@ export function spectrumToCsv(run: RunRecord, s: SpectrumBlockIn): string {
     meta("quantity", s.quantity),
     meta("units", `${s.units} (every band); band bounds in nm, lower included, upper excluded`),
     "# time: decimal_year on the proleptic Gregorian calendar; date is ISO 8601",
-    meta("interval", `${s.interval}: lower/upper = value ∓ quantile × uncertainty`),
+    meta(
+      "interval",
+      s.lower
+        ? `${s.interval}: lower/upper as stored (not symmetric about the value)`
+        : `${s.interval}: lower/upper = value ∓ quantile × uncertainty`,
+    ),
     meta("description", s.description),
     ...warnings.map((w) => meta("warning", w)),
     ...cautions.map((c) => meta("caution", c)),
@@ -46,9 +51,18 @@ export function spectrumToCsv(run: RunRecord, s: SpectrumBlockIn): string {
   for (let i = 0; i < s.time.length; i++) {
     for (let b = 0; b < s.bands.length; b++) {
       const v = s.value[b][i], u = s.uncertainty[b][i], q = s.interval_quantiles[b];
-      // bounds to the values' 9 significant digits (no float noise in the file)
-      const lo = v === null || u === null ? null : Number((v - q * u).toPrecision(9));
-      const hi = v === null || u === null ? null : Number((v + q * u).toPrecision(9));
+      // bounds as stored (an ensemble's quantiles), else to the values' 9 significant digits
+      // (no float noise in the file)
+      const lo = s.lower
+        ? s.lower[b][i]
+        : v === null || u === null
+        ? null
+        : Number((v - q * u).toPrecision(9));
+      const hi = s.upper
+        ? s.upper[b][i]
+        : v === null || u === null
+        ? null
+        : Number((v + q * u).toPrecision(9));
       lines.push(
         `${dates[i]},${s.time[i]},${s.bands[b].lower},${s.bands[b].upper},${cell(v)},${cell(u)},${
           cell(lo)

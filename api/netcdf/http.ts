@@ -29,6 +29,7 @@ import type { IngestResult } from "../ingest/types.ts";
 import { SERVICE_VERSION } from "../version.ts";
 import { describePlacement } from "./cf_time_axis.ts";
 import { buildSpectrumDataset } from "./spectrum_dataset.ts";
+import { spectrumEnsembleSourceOf } from "../analyses/spectral_irradiance_reconstructions/ensemble.ts";
 import type { SpectrumBlockIn } from "../analyses/common/spectrum_block.ts";
 import { listCfVariables } from "./cf_variables.ts";
 import { readCfSeries } from "./cf_series.ts";
@@ -319,7 +320,7 @@ export function runSpectrumNetcdfResponse(
   const prov = runProvenance(run, s.name, "spectrum", calendar);
   return respond(
     c,
-    () => buildSpectrumDataset(s, prov, calendar),
+    () => buildSpectrumDataset(s, prov, calendar, spectrumEnsembleSourceOf(run.result, s)),
     etag,
     fileName([run.id, "spectrum", calendar]),
   );

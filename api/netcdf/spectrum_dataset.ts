@@ -12,6 +12,11 @@
  *   UDUNITS converts; W m-2 for irradiance over each band, no standard name), `cell_methods`
  *   "time: mean wavelength: mean" for band means, and the one-sigma uncertainty as an
  *   ancillary variable;
+ * - the interval's bounds as `<name>_lower`/`<name>_upper` when they are not value ± quantile ×
+ *   uncertainty (an ensemble's quantiles);
+ * - optionally the ensemble: `<name>_realizations` (realization, time, wavelength) as float,
+ *   written one member at a time, with the `realization` coordinate (standard name
+ *   `realization`, common practice for ensembles in CF files);
  * - the provenance, warnings and cautions of every file sunlag writes.
  *
  * @module
@@ -25,12 +30,21 @@ import { type Provenance, provenanceAttributes, timeAxisOf } from "./series_data
 /** CF standard name of band-mean spectral irradiance (from memory). */
 export const SPECTRAL_IRRADIANCE_STANDARD_NAME = "solar_irradiance_per_unit_wavelength";
 
+/** Members of a spectral ensemble, streamed one at a time. */
+export interface SpectrumEnsembleSource {
+  /** Number of members (the `realization` dimension). */
+  members: number;
+  /** Member `k` (0-based): per band, its values on the spectrum's time axis. */
+  member(k: number): ArrayLike<number>[];
+}
+
 /**
  * Build the CF dataset of a spectrum on a calendar.
  *
  * @param s the spectrum (bands in nm, values per band and time)
  * @param prov provenance for the global attributes
  * @param calendar target calendar (default standard)
+ * @param ensemble members of every band, when the run has them
  * @returns the dataset, the calendar-conversion text and the input time indices dropped
  * @throws {CfTimeError} when the calendar cannot hold the spectrum's resolution
  */
@@ -38,6 +52,7 @@ export function buildSpectrumDataset(
   s: SpectrumBlockIn,
   prov: Provenance,
   calendar: CfCalendar = "standard",
+  ensemble?: SpectrumEnsembleSource,
 ): { dataset: NetcdfWriteDataset; method: string; dropped: number[] } {
   const t = timeAxisOf(s.time, undefined, calendar);
   const kept = t.axis.kept, n = kept.length, m = s.bands.length;
@@ -99,7 +114,11 @@ export function buildSpectrumDataset(
             perNm
               ? "Band mean per nm: the irradiance of a band is the value times its width."
               : "Irradiance integrated over each band."
-          } The ${s.interval} of band k is value ± interval_quantile[k] × uncertainty.`,
+          } ${
+            s.lower
+              ? `The ${s.interval} of each band is [${name}_lower, ${name}_upper].`
+              : `The ${s.interval} of band k is value ± interval_quantile[k] × uncertainty.`
+          }`,
         ),
       ],
       data: rows(s.value),
@@ -130,7 +149,62 @@ export function buildSpectrumDataset(
       data: Float64Array.from(s.interval_quantiles),
     },
   ];
+  for (const [key, arr] of [["lower", s.lower], ["upper", s.upper]] as const) {
+    if (!arr) continue;
+    variables.push({
+      name: `${name}_${key}`,
+      type: "double",
+      dimensions: ["time", "wavelength"],
+      attributes: [
+        fill,
+        ncText("long_name", `${key} bound of the ${s.interval} of ${s.name}`),
+        ncText("units", s.units),
+        ncText("cell_methods", cellMethods),
+      ],
+      data: rows(arr),
+    });
+  }
   const dimensions = [...t.dimensions, { name: "wavelength", size: m }];
+  if (ensemble) {
+    dimensions.push({ name: "realization", size: ensemble.members });
+    variables.push({
+      name: "realization",
+      type: "int",
+      dimensions: ["realization"],
+      attributes: [ncText("standard_name", "realization"), ncText("long_name", "ensemble member")],
+      data: Int32Array.from({ length: ensemble.members }, (_, k) => k + 1),
+    }, {
+      name: `${name}_realizations`,
+      type: "float",
+      dimensions: ["realization", "time", "wavelength"],
+      attributes: [
+        ncNumber("_FillValue", "float", NaN),
+        ncText("long_name", `${s.name}: ensemble members`),
+        ncText("units", s.units),
+        ...(perNm ? [ncText("standard_name", SPECTRAL_IRRADIANCE_STANDARD_NAME)] : []),
+        ncText("cell_methods", cellMethods),
+        ncText(
+          "comment",
+          "Members drawn jointly across bands: a member of an integral over wavelength is the " +
+            "weighted sum of that member's bands.",
+        ),
+      ],
+      data: {
+        rows: ensemble.members,
+        row: (k) => {
+          const member = ensemble.member(k);
+          const out = new Float32Array(n * m);
+          for (let i = 0; i < n; i++) {
+            for (let b = 0; b < m; b++) {
+              const v = member[b][kept[i]];
+              out[i * m + b] = Number.isFinite(v) ? v : NaN;
+            }
+          }
+          return out;
+        },
+      },
+    });
+  }
   if (!dimensions.some((d) => d.name === "bnds")) dimensions.push({ name: "bnds", size: 2 });
   return {
     dataset: {

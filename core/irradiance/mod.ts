@@ -34,3 +34,4 @@ export * from "./reconstruction_error_model.ts";
 export * from "./proxy_reconstruction_errors.ts";
 export * from "./reconstruction_ensemble.ts";
 export * from "./variance_by_period.ts";
+export * from "./spectral_band_ensemble.ts";

@@ -193,8 +193,32 @@ function cellsOf(source: Uint8Array, code: number): Int32Array {
   return Int32Array.from(out);
 }
 
-/** Add a draw of a planned process to `out` at its active cells, from normals `z[at..]`. */
-function addProcess(p: PlannedProcess, z: Float64Array, at: number, out: Float64Array): number {
+/**
+ * Add a draw of a planned process to `out` at its active cells, from the standard normals
+ * `z[at..]`: u_j = lag_j·u_{j−1} + innovation_j·z_j, out[cell_j] += sd_j·u_j.
+ *
+ * @param p the planned process (its active cells, SDs and chained lag-1 correlations)
+ * @param z standard normals, at least `at` + active cells long
+ * @param at index of the first normal used
+ * @param out values per cell, added to
+ * @returns the index of the first normal not used
+ * @example
+ * ```ts
+ * import { addPlannedProcess } from "./reconstruction_ensemble.ts";
+ * import assert from "node:assert/strict";
+ * const p = { cells: Int32Array.of(1, 2), sd: Float64Array.of(2, 2),
+ *   lag: Float64Array.of(0, 0.6), innovation: Float64Array.of(1, 0.8) };
+ * const out = new Float64Array(3);
+ * assert.equal(addPlannedProcess(p, Float64Array.of(9, 1, 1), 1, out), 3);
+ * assert.deepEqual([...out], [0, 2, 2 * (0.6 + 0.8)]);
+ * ```
+ */
+export function addPlannedProcess(
+  p: PlannedProcess,
+  z: Float64Array,
+  at: number,
+  out: Float64Array,
+): number {
   const { cells, sd, lag, innovation } = p, m = cells.length;
   let u = 0;
   for (let j = 0; j < m; j++) {
@@ -229,16 +253,16 @@ function drawMember(
   const R = scratch.r;
   if (R && plan.sunspot) {
     R.fill(0);
-    if (plan.inputCorrelated) at = addProcess(plan.inputCorrelated, z, at, R);
-    if (plan.inputIndependent) at = addProcess(plan.inputIndependent, z, at, R);
+    if (plan.inputCorrelated) at = addPlannedProcess(plan.inputCorrelated, z, at, R);
+    if (plan.inputIndependent) at = addPlannedProcess(plan.inputIndependent, z, at, R);
     const s = plan.sunspot;
     for (let i = 0; i < n; i++) {
       const v = s[i] + R[i];
       R[i] = v > 0 ? v : 0;
     }
   }
-  at = addProcess(plan.residualDirect, z, at, e);
-  if (plan.residualBack) addProcess(plan.residualBack, z, at, e);
+  at = addPlannedProcess(plan.residualDirect, z, at, e);
+  if (plan.residualBack) addPlannedProcess(plan.residualBack, z, at, e);
   let base = beta[0];
   const slope = new Float64Array(K);
   for (let k = 0; k < K; k++) {

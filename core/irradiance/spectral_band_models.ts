@@ -434,8 +434,22 @@ export function integrateBandModels(
   };
 }
 
-/** The symmetric positive semi-definite square root of a covariance matrix. */
-function symmetricSquareRoot(s: number[][]): number[][] {
+/**
+ * The symmetric positive semi-definite square root S^½ of a covariance matrix (S^½S^½ = S),
+ * by eigen-decomposition S = VΛVᵀ, S^½ = VΛ^½Vᵀ with negative rounding eigenvalues taken as
+ * 0 (e.g. Higham 2008, Functions of Matrices, §6.1); S is symmetrised first.
+ *
+ * @param s p × p covariance matrix
+ * @returns S^½ as p rows of p numbers
+ * @example
+ * ```ts
+ * import { symmetricSquareRoot } from "./spectral_band_models.ts";
+ * import assert from "node:assert/strict";
+ * const r = symmetricSquareRoot([[5, 4], [4, 5]]); // [[2, 1], [1, 2]]² = [[5, 4], [4, 5]]
+ * assert.ok(Math.abs(r[0][0] - 2) < 1e-12 && Math.abs(r[0][1] - 1) < 1e-12);
+ * ```
+ */
+export function symmetricSquareRoot(s: readonly (readonly number[])[]): number[][] {
   const p = s.length;
   const sym = new Matrix(s.map((row, a) => row.map((v, b) => (v + s[b][a]) / 2)));
   const e = new EigenvalueDecomposition(sym, { assumeSymmetric: true });

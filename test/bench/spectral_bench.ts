@@ -3,6 +3,7 @@
  * test/bench/spectral_numpy.py; side by side: test/bench/spectral_medians.ts.
  */
 import { spectralCase } from "./spectral_case.ts";
+import { drawSpectralBandMembers } from "../../core/irradiance/mod.ts";
 
 const work = spectralCase();
 
@@ -14,4 +15,9 @@ Deno.bench("calibrate 100 bands × 17,000 days, Prais–Winsten + 5-fold CV + co
 });
 Deno.bench("reconstruct 100 bands × 119,000 days + integral, 95 % intervals", () => {
   work.reconstruct();
+});
+
+const plan = work.plan();
+Deno.bench("one ensemble member of 100 bands × 119,000 days (correlated across bands)", () => {
+  drawSpectralBandMembers(plan, 1, 0, 1);
 });

@@ -10,6 +10,14 @@ Calibrate 100 band models on 17,000 days on the regressors [1, F - 0.15, -1360.8
 Reconstruct 119,000 days: X @ B for all bands, the quadratic forms x' S_b x by einsum,
 mapped-proxy variance (the first half back-extended through linear sunspot mappings), AR(1)
 residual variance, 95 % bounds; plus the integral over all bands with the correlated errors.
+Ensemble: 100 realisations of that reconstruction (the draw of
+core/irradiance/spectral_band_ensemble.ts): per member the coefficients of all bands,
+correlated across bands (xi = L_r z per coefficient, beta_b = beta_hat_b + S_b^1/2 xi_b, one
+einsum), the two linear mappings' parameters and the sunspot number's independent error
+(sigma = 0.1 R + 2) once for all bands, the direct and back-extended residual processes as
+AR(1) per band (scipy.signal.lfilter per band: the bands' rho differ) driven by innovations
+correlated across bands (one matmul Z @ L_C.T through OpenBLAS), streamed member by member into
+per-day, per-band sums and squares and the integral's.
 
 Run: /usr/bin/python3 test/bench/spectral_numpy.py [--rounds R] [--json]
 Prints the median time (ms) of each task over R rounds (after one warm-up), the peak resident
@@ -26,7 +34,7 @@ import time
 import numpy as np
 from scipy.signal import lfilter
 
-BANDS, CAL, REC = 100, 17_000, 119_000
+BANDS, CAL, REC, REALIZATIONS = 100, 17_000, 119_000, 100
 
 
 def proxies(n, rng):
@@ -170,6 +178,61 @@ def reconstruct(B, cov, sd, rho, r2, f2, p2, half, mapF, mapP, corr, weights):
     return value, s, value - 1.96 * s, value + 1.96 * s
 
 
+def ar1_rows(E, lag, u0):
+    """AR(1) along each row of E (bands x time) with its own lag, innovations E scaled by
+    sqrt(1 - lag^2), started from u0 (the stationary first value)."""
+    out = np.empty((E.shape[0], E.shape[1] + 1))
+    out[:, 0] = u0
+    c = np.sqrt(1 - lag ** 2)
+    for b in range(E.shape[0]):
+        out[b, 1:], _ = lfilter([c[b]], [1, -lag[b]], E[b], zi=[lag[b] * u0[b]])
+    return out
+
+
+def ensemble(B, cov, sd, rho, r2, f2, p2, half, maps, corr, weights, seed=1):
+    rng = np.random.default_rng(seed)
+    n = len(r2)
+    p = B.shape[0]
+    l0 = corr[0]
+    Lr = np.linalg.cholesky(l0)
+    roots = sqrtm_sym(cov)                                    # bands x p x p
+    be_sd, be_rho = 3 * sd, np.full(BANDS, 0.9)
+
+    def innovation_factor(lag):
+        c = np.sqrt(1 - lag ** 2)
+        C = l0 * (1 - np.outer(lag, lag)) / np.outer(c, c)
+        np.fill_diagonal(C, 1)
+        return np.linalg.cholesky(C)
+
+    Ld, Lb = innovation_factor(rho), innovation_factor(be_rho)
+    (cF, sF), (cP, sP) = maps
+    LF, LP = np.linalg.cholesky(sF), np.linalg.cholesky(sP)
+    r_sd = 0.1 * r2[:half] + 2
+    total = np.zeros((n, BANDS))
+    sq = np.zeros((n, BANDS))
+    isum = np.zeros(n)
+    isq = np.zeros(n)
+    for _ in range(REALIZATIONS):
+        xi = rng.standard_normal((p, BANDS)) @ Lr.T           # p x bands, correlated across bands
+        beta = B + np.einsum("bij,jb->ib", roots, xi)         # p x bands
+        a = cF + LF @ rng.standard_normal(2)
+        c = cP + LP @ rng.standard_normal(2)
+        R = np.maximum(r2[:half] + r_sd * rng.standard_normal(half), 0)
+        f = np.concatenate([a[0] + a[1] * R, f2[half:]])
+        q = np.concatenate([c[0] + c[1] * R, p2[half:]])
+        Y = design(f, q) @ beta                               # days x bands
+        for lo, hi, s, lag, L in ((half, n, sd, rho, Ld), (0, half, be_sd, be_rho, Lb)):
+            u0 = Lr @ rng.standard_normal(BANDS)
+            E = L @ rng.standard_normal((BANDS, hi - lo - 1))  # bands x days
+            Y[lo:hi] += (s[:, None] * ar1_rows(E, lag, u0)).T
+        total += Y
+        sq += Y * Y
+        I = Y @ weights
+        isum += I
+        isq += I * I
+    return total, sq, isum, isq
+
+
 def main():
     rounds = int(sys.argv[sys.argv.index("--rounds") + 1]) if "--rounds" in sys.argv else 5
     rng = np.random.default_rng(1)
@@ -193,6 +256,7 @@ def main():
         "calibrate_prais_winsten": lambda: calibrate_pw(X, Y),
         "reconstruct": lambda: reconstruct(B, cov, sd, rho, r2, f2, p2, REC // 2, maps[0],
                                            maps[1], corr, weights),
+        "ensemble": lambda: ensemble(B, cov, sd, rho, r2, f2, p2, REC // 2, maps, corr, weights),
     }
     if "--serve" in sys.argv:
         print(json.dumps({"ready": True, "numpy": np.__version__}), flush=True)

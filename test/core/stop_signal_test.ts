@@ -29,6 +29,8 @@ import {
   reconstructionEnsembleChunk,
   reconstructionEnsemblePlan,
   solarSignalMap,
+  spectralBandEnsembleChunk,
+  spectralBandEnsemblePlan,
   StoppedError,
   superposedEpoch,
   surrogateLagChunk,
@@ -317,5 +319,34 @@ Deno.test("ensembleSummary() polls every 64 points and stops; the summary is unc
   assert.deepEqual(
     ensembleSummary(members, count, 0.9, { shouldStop: () => false }),
     ensembleSummary(members, count, 0.9),
+  );
+});
+
+Deno.test("spectralBandEnsembleChunk() polls before every member and stops; the members are unchanged", () => {
+  const band = (c: number) => ({
+    coefficients: [c, 10],
+    covariance: [[1e-6, 0], [0, 1e-2]],
+    terms: [{ role: "facular" as const, quietLevel: 0.15 }],
+    psiReference: 1360.8,
+    residualSd: 0.01,
+    rho: 0.5,
+    stepDays: 1,
+    backExtension: null,
+  });
+  const r = [[1, 0.6], [0.6, 1]];
+  const cells = 50;
+  const plan = spectralBandEnsemblePlan([band(0.5), band(1.8)], {
+    days: new Float64Array(cells).fill(1),
+    direct: [Float64Array.from({ length: cells }, (_, i) => 0.15 + 0.01 * Math.sin(i / 5))],
+    mappings: [null],
+    sunspot: null,
+  }, { residual: { lag0: r, lag1: r }, backExtension: null });
+  const input = { plan, seed: 4, first: 10, count: 40 };
+  const probe = stopAfter(12);
+  assert.throws(() => spectralBandEnsembleChunk(input, probe), StoppedError);
+  assert.equal(probe.calls, 13, "polled before every member");
+  assert.deepEqual(
+    spectralBandEnsembleChunk(input, { shouldStop: () => false }),
+    spectralBandEnsembleChunk(input),
   );
 });

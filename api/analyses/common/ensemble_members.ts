@@ -6,7 +6,8 @@
  * @module
  */
 import { z } from "@hono/zod-openapi";
-import { InputProblem } from "../../runs/kind.ts";
+import { CancelledError, InputProblem, type RunContext } from "../../runs/kind.ts";
+import { inputProblem } from "./input_problem.ts";
 import { ensembleSummary, normalQuantile } from "../../../core/stats/mod.ts";
 import type { StopOptions } from "../../../core/stop_signal.ts";
 
@@ -103,15 +104,47 @@ export function ensembleSourceOf(
   // checked by shape rather than parsed with the schema: a stored result was validated when it
   // was made, and parsing millions of member values again would dominate a download
   const e = (result as { ensemble?: unknown } | null)?.ensemble as
-    | { output?: unknown; realizations?: unknown; members?: unknown }
+    | { output?: unknown; realizations?: unknown; members?: unknown; outputs?: unknown }
     | null
     | undefined;
+  if (e && e.outputs && typeof e.outputs === "object") return offsetSourceOf(result, name);
   if (!e || e.output !== name || !Array.isArray(e.members)) return undefined;
   const rows = e.members as unknown[];
   if (rows.length !== e.realizations || !rows.every(Array.isArray)) return undefined;
   return {
     members: rows.length,
     member: (k) => Float64Array.from(rows[k] as (number | null)[], (v) => v ?? NaN),
+  };
+}
+
+/**
+ * Members stored as integer offsets from an output's central values (`ensemble.outputs[name]`
+ * = { step, offsets }, as a spectral reconstruction stores its integrals): member k at point i
+ * is value[i] + offsets[k][i] × step.
+ */
+function offsetSourceOf(
+  result: unknown,
+  name: string,
+): { members: number; member(k: number): ArrayLike<number> } | undefined {
+  const r = result as {
+    ensemble: { realizations?: unknown; outputs: Record<string, unknown> };
+    outputs?: Record<string, { value?: unknown }>;
+  };
+  const m = r.ensemble.outputs[name] as { step?: unknown; offsets?: unknown } | undefined;
+  const central = r.outputs?.[name]?.value;
+  if (!m || typeof m.step !== "number" || !Array.isArray(m.offsets) || !Array.isArray(central)) {
+    return undefined;
+  }
+  const rows = m.offsets as (number | null)[][], step = m.step;
+  if (rows.length !== r.ensemble.realizations) return undefined;
+  const c = central as (number | null)[];
+  return {
+    members: rows.length,
+    member: (k) =>
+      Float64Array.from(c, (v, i) => {
+        const o = rows[k][i];
+        return v === null || o === null ? NaN : v + o * step;
+      }),
   };
 }
 
@@ -191,4 +224,58 @@ export function checkStoredMembers(
       `run ${runId} holds an ensemble whose members do not match its output's time axis`,
     );
   }
+}
+
+/**
+ * Members per chunk: up to 8 chunks, so the pool is busy and progress moves between rounds.
+ *
+ * @param realizations the members of the ensemble (≥ 1)
+ * @returns [first member, count] of each chunk, in order
+ */
+export function chunkSizes(realizations: number): [number, number][] {
+  const per = Math.ceil(realizations / Math.min(8, realizations));
+  const out: [number, number][] = [];
+  for (let a = 0; a < realizations; a += per) out.push([a, Math.min(per, realizations - a)]);
+  return out;
+}
+
+/**
+ * Draw an ensemble's members in chunks on the worker pool (`ctx.parallel` of `task`), in
+ * rounds of 4 chunks so that a cancel is seen between rounds, progress moving from 0.1 to 0.9.
+ * A member's values depend only on its index (core draws member m from the stream (seed, m)),
+ * so neither the chunking nor the number of workers changes a bit.
+ *
+ * @param ctx the run context (its pool, progress and cancel flag)
+ * @param task the worker task drawing one chunk (its output: count × perMember values)
+ * @param realizations members
+ * @param perMember values per member
+ * @param chunk the task's input for members first .. first + count − 1
+ * @returns realizations × perMember values, member-major
+ * @throws {InputProblem} at /model when a chunk fails for an input reason (e.g. a saturating
+ *   mapping without an admissible draw: a property of the model run); {CancelledError}
+ */
+export async function drawMembersOnPool<C extends { first: number; count: number }>(
+  ctx: RunContext,
+  task: string,
+  realizations: number,
+  perMember: number,
+  chunk: (first: number, count: number) => C,
+): Promise<Float64Array> {
+  const chunks = chunkSizes(realizations).map(([first, count]) => chunk(first, count));
+  const members = new Float64Array(realizations * perMember);
+  let done = 0;
+  for (let c = 0; c < chunks.length; c += 4) {
+    const round = chunks.slice(c, c + 4);
+    let outs: Float64Array[];
+    try {
+      outs = await ctx.parallel<C, Float64Array>(task, round);
+    } catch (e) {
+      throw inputProblem(e, { "*": "/model" });
+    }
+    outs.forEach((o, j) => members.set(o, round[j].first * perMember));
+    done += round.reduce((s, r) => s + r.count, 0);
+    if (ctx.cancelled()) throw new CancelledError();
+    ctx.progress(0.1 + (0.8 * done) / realizations);
+  }
+  return members;
 }

@@ -31,7 +31,15 @@ export const SpectrumBlock = z.object({
   }),
   interval: z.string().openapi({ description: 'e.g. "95 % prediction interval"' }),
   interval_quantiles: nums.openapi({
-    description: "Per band, the multiplier of `uncertainty` for the interval's bounds",
+    description: "Per band, the multiplier of `uncertainty` for the interval's bounds (when " +
+      "`lower`/`upper` are absent)",
+  }),
+  lower: z.array(numsOrNull).optional().openapi({
+    description: "Per band, the interval's lower bound at each time, when the interval is not " +
+      "value ± quantile × uncertainty (an ensemble's quantiles)",
+  }),
+  upper: z.array(numsOrNull).optional().openapi({
+    description: "Per band, the interval's upper bound at each time (with `lower`)",
   }),
   description: z.string(),
 }).openapi("SpectrumOverTime");

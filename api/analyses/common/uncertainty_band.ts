@@ -100,3 +100,33 @@ export function bandAttributes(result: unknown): [string, string][] {
     ["uncertainty_sources_not_included", band.not_included.join("\n")],
   ];
 }
+
+/**
+ * The band of a proxy reconstruction (TSI or spectral): calibration and residual always, the
+ * mappings where some cell was back-extended, the sunspot number's own error where it was
+ * propagated; the method from the number of members (quantiles from
+ * `minMembersForQuantiles`, ± z·SD below, analytic without members).
+ *
+ * @param realizations ensemble members (0 = analytic)
+ * @param backExtended some cell was back-extended
+ * @param inputErrors the sunspot number's own error was propagated
+ * @param minMembersForQuantiles members from which the band is the members' quantiles
+ * @param extraNotIncluded sources the band leaves out besides the standard ones
+ */
+export function proxyReconstructionBand(
+  realizations: number,
+  backExtended: boolean,
+  inputErrors: boolean,
+  minMembersForQuantiles: number,
+  extraNotIncluded: readonly string[] = [],
+): UncertaintyBand {
+  const included: ErrorSource[] = ["calibration", "residual"];
+  if (backExtended) included.push("mapping");
+  if (backExtended && inputErrors) included.push("input");
+  const method = realizations >= minMembersForQuantiles
+    ? "ensemble_quantiles"
+    : realizations > 0
+    ? "ensemble_sd"
+    : "analytic";
+  return uncertaintyBand(method, included, extraNotIncluded);
+}

@@ -58,7 +58,11 @@ import {
   membersJson,
   MIN_MEMBERS_FOR_QUANTILES,
 } from "../common/ensemble_members.ts";
-import { bandCaution, type UncertaintyBand, uncertaintyBand } from "../common/uncertainty_band.ts";
+import {
+  bandCaution,
+  proxyReconstructionBand,
+  type UncertaintyBand,
+} from "../common/uncertainty_band.ts";
 import { drawEnsemble } from "./ensemble.ts";
 
 /** Most cells a reconstruction may have. */
@@ -199,20 +203,18 @@ function reconstructionBand(
   withScenario: boolean,
 ): UncertaintyBand {
   const back = rec.source.includes(SOURCE_BACK_EXTENDED);
-  const included: ErrorSource[] = ["calibration", "residual"];
-  if (back) included.push("mapping");
-  if (back && sunspot?.errors.cells) included.push("input");
-  const method = params.realizations >= MIN_MEMBERS_FOR_QUANTILES
-    ? "ensemble_quantiles"
-    : params.realizations > 0
-    ? "ensemble_sd"
-    : "analytic";
-  return uncertaintyBand(method, included, [
-    ...(back ? sunspot?.errors.notIncluded ?? [] : []),
-    ...(withScenario
-      ? ["the uncertainty of the secular background scenario (a labelled choice)"]
-      : []),
-  ]);
+  return proxyReconstructionBand(
+    params.realizations,
+    back,
+    Boolean(sunspot?.errors.cells),
+    MIN_MEMBERS_FOR_QUANTILES,
+    [
+      ...(back ? sunspot?.errors.notIncluded ?? [] : []),
+      ...(withScenario
+        ? ["the uncertainty of the secular background scenario (a labelled choice)"]
+        : []),
+    ],
+  );
 }
 
 /** Mean variance by source over blocks of years, with the ensemble's beside it. */

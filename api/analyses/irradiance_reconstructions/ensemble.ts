@@ -6,14 +6,15 @@
  *
  * @module
  */
-import { CancelledError, type RunContext } from "../../runs/kind.ts";
+import type { RunContext } from "../../runs/kind.ts";
 import {
   type ReconstructionCells,
   type ReconstructionEnsembleChunk,
   reconstructionEnsemblePlan,
   type ReconstructionModel,
 } from "../../../core/irradiance/mod.ts";
-import { inputProblem, withInputPointers } from "../common/input_problem.ts";
+import { withInputPointers } from "../common/input_problem.ts";
+import { drawMembersOnPool } from "../common/ensemble_members.ts";
 import { RECONSTRUCTION_ENSEMBLE_CHUNK } from "./tasks.ts";
 
 /** Members of a drawn ensemble. */
@@ -21,14 +22,6 @@ export interface DrawnEnsemble {
   /** realizations × cells, member-major, W m-2 (NaN where the cell has no value). */
   members: Float64Array;
   realizations: number;
-}
-
-/** Members per chunk: up to 8 chunks, so the pool is busy and progress moves between rounds. */
-function chunkSizes(realizations: number): [number, number][] {
-  const per = Math.ceil(realizations / Math.min(8, realizations));
-  const out: [number, number][] = [];
-  for (let a = 0; a < realizations; a += per) out.push([a, Math.min(per, realizations - a)]);
-  return out;
 }
 
 /**
@@ -55,32 +48,13 @@ export async function drawEnsemble(
     () => reconstructionEnsemblePlan(model, cells),
   );
   const n = plan.cells, N = options.realizations;
-  const chunks: ReconstructionEnsembleChunk[] = chunkSizes(N).map(([first, count]) => ({
-    plan,
-    seed: options.seed,
-    first,
-    count,
-  }));
-  const members = new Float64Array(N * n);
-  let done = 0;
-  // in rounds of 4 chunks, so that a cancel is seen between rounds
-  for (let c = 0; c < chunks.length; c += 4) {
-    const round = chunks.slice(c, c + 4);
-    let outs: Float64Array[];
-    try {
-      outs = await ctx.parallel<ReconstructionEnsembleChunk, Float64Array>(
-        RECONSTRUCTION_ENSEMBLE_CHUNK,
-        round,
-      );
-    } catch (e) {
-      // a saturating mapping without an admissible draw is a property of the model run
-      throw inputProblem(e, { "*": "/model" });
-    }
-    outs.forEach((o, j) => members.set(o, round[j].first * n));
-    done += round.reduce((s, r) => s + r.count, 0);
-    if (ctx.cancelled()) throw new CancelledError();
-    ctx.progress(0.1 + (0.8 * done) / N);
-  }
+  const members = await drawMembersOnPool<ReconstructionEnsembleChunk>(
+    ctx,
+    RECONSTRUCTION_ENSEMBLE_CHUNK,
+    N,
+    n,
+    (first, count) => ({ plan, seed: options.seed, first, count }),
+  );
   const bg = options.background;
   if (bg) {
     for (let m = 0; m < N; m++) {

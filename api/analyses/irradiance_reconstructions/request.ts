@@ -37,7 +37,7 @@ const SecularBackgroundRequest = z.discriminatedUnion("kind", [
 ]).openapi("SecularBackground");
 
 /** Cells of a period at a resolution, or null when the period does not parse (compute says why). */
-function periodCells(
+export function periodCells(
   period: { start: string | number; end: string | number },
   resolution: "daily" | "monthly" | "annual",
 ): number | null {

@@ -5,16 +5,22 @@
  * integrals over the covered range and the requested ranges with the cross-band correlation
  * (core/irradiance/spectral_band_models.ts), the TSI reconstruction of the same proxies and
  * the integral's difference from it (reconstruction_difference.ts), and the cycle variability
- * per band (band_cycle_variability.ts).
+ * per band (band_cycle_variability.ts); with `realizations`, the members of every band drawn
+ * jointly on the pool (./ensemble.ts, core/irradiance/spectral_band_ensemble.ts), the members of
+ * each integral as weighted sums of the bands', and every band and integral's interval from its
+ * members (common/ensemble_members.ts).
  *
  * @module
  */
 import { InputProblem, type RunContext } from "../../runs/kind.ts";
 import {
+  type BandCorrelations,
   bandCycleVariability,
   bandIrradianceFactor,
+  bandMembers,
   type BandValueKind,
   differenceModel,
+  integrateBandMembers,
   integrateBandModels,
   predictionQuantile,
   reconstructFromProxies,
@@ -23,6 +29,7 @@ import {
   type ReconstructionCells,
   reconstructionCoverage,
   type ReconstructionModel,
+  SOURCE_BACK_EXTENDED,
   summariseDifference,
   type WavelengthBand,
 } from "../../../core/irradiance/mod.ts";
@@ -48,6 +55,24 @@ import { spectralIrradianceModels } from "../spectral_irradiance_models/mod.ts";
 import type { SpectralModelResultOut } from "../spectral_irradiance_models/result.ts";
 import type { SpectralReconstructionParams } from "./request.ts";
 import type { SpectralReconstructionResultIn } from "./result.ts";
+import {
+  checkEnsembleSize,
+  type MemberBand,
+  memberBand,
+  MIN_MEMBERS_FOR_QUANTILES,
+} from "../common/ensemble_members.ts";
+import {
+  bandCaution,
+  proxyReconstructionBand,
+  type UncertaintyBand,
+} from "../common/uncertainty_band.ts";
+import { normalQuantile } from "../../../core/stats/mod.ts";
+import {
+  type DrawnSpectralEnsemble,
+  drawSpectralEnsemble,
+  memberOffsets,
+  type SpectralEnsembleJson,
+} from "./ensemble.ts";
 
 type Result = SpectralReconstructionResultIn;
 
@@ -61,16 +86,27 @@ interface SpectralModel {
   bands: WavelengthBand[];
   kind: BandValueKind;
   models: ReconstructionModel[];
+  /** The bands' residual correlations; null when the model has none. */
+  correlations: BandCorrelations | null;
 }
 
 /** Reconstruct every band, the integrals and the comparison with TSI over the period. */
-export function computeSpectralReconstruction(
+export async function computeSpectralReconstruction(
   params: SpectralReconstructionParams,
   ctx: RunContext,
-): Result {
+): Promise<Result> {
   const model = spectralModel(ctx.resultOf(spectralIrradianceModels, params.model, "/model"));
   const maxCells = Math.floor(MAX_BAND_VALUES / model.bands.length);
   const cells = targetCells(params, maxCells);
+  if (params.realizations > 0) {
+    // every band's members and each integral's (the covered range and the requested ranges)
+    const series = model.bands.length + (model.stored.correlation ? 1 + params.ranges.length : 0);
+    checkEnsembleSize(params.realizations, cells.keys.length * series, [
+      "/realizations",
+      "/period",
+      "/resolution",
+    ]);
+  }
   const direct = directProxies(params, ctx, model.tsi, cells);
   const sunspot = params.sunspot_number === undefined ? null : sunspotInput(
     params,
@@ -100,12 +136,33 @@ export function computeSpectralReconstruction(
       { reason: "no_overlap" },
     );
   }
+  const chart = chartBands(params, model.bands);
+  ctx.progress(0.1);
+  const ens = params.realizations > 0
+    ? await drawSpectralEnsemble(ctx, model.models, input, model.correlations, params)
+    : null;
+  const bandBands = ens
+    ? bands.map((r, b) =>
+      memberBand(r.value, bandMembers(ens.members, ens.bands, b), ens.realizations, params.level)
+    )
+    : null;
+  const integralMembers = (weights: ArrayLike<number>) =>
+    ens ? integrateBandMembers(ens.members, ens.bands, weights) : null;
   const outputs: Record<string, OutputSeries> = { tsi: tsiOutput(params, cells, tsi) };
+  const integralBands: Record<string, { members: Float64Array; band: MemberBand }> = {};
   if (integral) {
-    outputs.integral = integral.covered.output(cells);
-    for (const r of integral.ranges) outputs[r.name] = r.output(cells);
+    for (const r of [integral.covered, ...integral.ranges]) {
+      const m = integralMembers(r.weights);
+      const band = m
+        ? memberBand(r.rec.value, m, ens!.realizations, params.level, "ensemble members")
+        : null;
+      if (m && band) integralBands[r.name] = { members: m, band };
+      outputs[r.name] = r.output(cells, band);
+    }
     outputs.integral_minus_tsi = integral.difference(cells, tsi);
   }
+  const spectrum = spectrumBlock(params, model, cells, bands, bandBands);
+  const band = spectralBand(params, reference, sunspot);
   return {
     model: params.model,
     tsi_model: model.stored.tsi_model.run,
@@ -116,13 +173,16 @@ export function computeSpectralReconstruction(
     sunspot_uncertainty: sunspot?.errors.json ?? null,
     coverage: coverageJson(coverage),
     source_segments: coverage.segments,
-    spectrum: spectrumBlock(params, model, cells, bands),
+    spectrum,
     ranges: integral?.ranges.map((r) => r.json) ?? [],
     consistency: integral ? integral.consistency(cells, tsi) : null,
     variability: variability(model, cells, bands, tsi),
-    chart_bands: chartBands(params, model.bands),
+    chart_bands: chart,
     outputs,
+    band,
+    ensemble: ens ? ensembleJson(params, ens, spectrum, bandBands!, outputs, integralBands) : null,
     warnings: [
+      ...ensembleWarnings(params, ens),
       ...(sunspot?.warnings ?? []),
       ...coverageWarnings(coverage.missing, cells, sunspot),
       ...extrapolationWarnings(model.tsi, direct, sunspot, reference),
@@ -134,7 +194,8 @@ export function computeSpectralReconstruction(
     cautions: [
       PRE_SATELLITE_CAUTION,
       "A sum over bands is not TSI unless they cover the whole spectrum; nothing outside the bands is invented.",
-      "Band sensitivities come from a short spectral record, so bands are more model-dependent back in time than TSI; uncertainty is analytic (no ensemble yet), integrals include the bands' error correlation.",
+      "Band sensitivities come from a short spectral record, so bands are more model-dependent back in time than TSI; integrals include the bands' error correlation (analytically, or through members drawn jointly across bands).",
+      bandCaution(band),
       ASSESSMENT_CAUTION,
     ],
   };
@@ -150,9 +211,18 @@ function spectralModel(stored: SpectralModelResultOut): SpectralModel {
     role: t.role,
     quietLevel: t.quiet_level,
   }));
+  const corr = stored.correlation;
   return {
     stored,
     tsi,
+    correlations: corr
+      ? {
+        residual: { lag0: corr.residual_lag0, lag1: corr.residual_lag1 },
+        backExtension: corr.back_extension_lag0 && corr.back_extension_lag1
+          ? { lag0: corr.back_extension_lag0, lag1: corr.back_extension_lag1 }
+          : null,
+      }
+      : null,
     bands: stored.bands.map((b) => b.band),
     kind: stored.value_kind,
     models: stored.bands.map((b) => ({
@@ -190,8 +260,8 @@ function integrals(
   model: SpectralModel,
   input: ReconstructionCells,
 ) {
-  const corr = model.stored.correlation;
-  if (!corr) {
+  const correlations = model.correlations;
+  if (!correlations) {
     if (params.ranges.length) {
       throw new InputProblem(
         "/ranges",
@@ -201,12 +271,6 @@ function integrals(
     }
     return null;
   }
-  const correlations = {
-    residual: { lag0: corr.residual_lag0, lag1: corr.residual_lag1 },
-    backExtension: corr.back_extension_lag0 && corr.back_extension_lag1
-      ? { lag0: corr.back_extension_lag0, lag1: corr.back_extension_lag1 }
-      : null,
-  };
   const minDf = Math.min(...model.stored.bands.map((b) => b.df_residual));
   const z = predictionQuantile(params.level, minDf);
   const of = (range: WavelengthBand, pointer: string, name: string, title: string) => {
@@ -217,9 +281,10 @@ function integrals(
       name,
       model: m,
       rec,
+      weights: w.weights,
       json: { output: name, range, covered_nm: w.coveredWidth, missing: w.missing },
-      output: (cells: TargetCells): OutputSeries =>
-        irradianceOutput(params, cells, rec, title, w.missing),
+      output: (cells: TargetCells, band: MemberBand | null): OutputSeries =>
+        irradianceOutput(params, cells, rec, title, w.missing, band),
     };
   };
   const cover = model.stored.integral_check?.coverage ??
@@ -362,12 +427,13 @@ function irradianceOutput(
   rec: Reconstruction,
   name: string,
   missing: [number, number][],
+  band: MemberBand | null = null,
 ): OutputSeries {
   return {
     name,
     quantity: "band_irradiance",
     units: "W m-2",
-    ...reconstructionOutputParts(cells, rec, params.level),
+    ...reconstructionOutputParts(cells, rec, params.level, band),
     description:
       `Spectral model run ${params.model}, ${cells.resolution} means, values rounded to 1e-6 W m-2${
         missing.length
@@ -383,9 +449,32 @@ function spectrumBlock(
   model: SpectralModel,
   cells: TargetCells,
   bands: Reconstruction[],
+  members: MemberBand[] | null,
 ): Result["spectrum"] {
   const units = model.stored.units;
   const digits = (x: ArrayLike<number>) => significant(x, 9);
+  // an ensemble's band where the central value exists
+  const gap = (x: Float64Array, b: number) =>
+    x.map((v, i) => (Number.isFinite(bands[b].value[i]) ? v : NaN));
+  if (members) {
+    return {
+      name: "Reconstructed spectral irradiance",
+      quantity: model.stored.quantity,
+      units,
+      bands: model.bands,
+      time: Array.from(cells.time),
+      value: bands.map((r) => digits(r.value)),
+      uncertainty: members.map((m, b) => digits(gap(m.sd, b))),
+      interval: members[0].interval,
+      interval_quantiles: members.map(() => normalQuantile(1 - (1 - params.level) / 2)),
+      lower: members.map((m, b) => digits(gap(m.lower, b))),
+      upper: members.map((m, b) => digits(gap(m.upper, b))),
+      description:
+        `Spectral model run ${params.model}, ${cells.resolution} means, ${units} per band, 9 significant digits; uncertainty = the members' SD, lower/upper = the ${
+          members[0].interval
+        }`,
+    };
+  }
   return {
     name: "Reconstructed spectral irradiance",
     quantity: model.stored.quantity,
@@ -462,4 +551,67 @@ function backExtensionWarning(model: SpectralModel, sunspot: SunspotInput | null
 /** Band values to irradiance factors (exported for the spectrum route's integrals). */
 export function bandFactors(bands: WavelengthBand[], kind: BandValueKind): number[] {
   return bands.map((b) => bandIrradianceFactor(b, kind));
+}
+
+/** What the bands' intervals are made of and what they leave out. */
+function spectralBand(
+  params: SpectralReconstructionParams,
+  reference: Reconstruction,
+  sunspot: SunspotInput | null,
+): UncertaintyBand {
+  const back = reference.source.includes(SOURCE_BACK_EXTENDED);
+  return proxyReconstructionBand(
+    params.realizations,
+    back,
+    Boolean(sunspot?.errors.cells),
+    MIN_MEMBERS_FOR_QUANTILES,
+    [
+      ...(back ? sunspot?.errors.notIncluded ?? [] : []),
+      "the uncertainty of the spectral record's own calibration (its absolute scale per band)",
+    ],
+  );
+}
+
+/** Warnings of a small ensemble, and what its draw had to adjust. */
+function ensembleWarnings(
+  params: SpectralReconstructionParams,
+  ens: DrawnSpectralEnsemble | null,
+): string[] {
+  if (!ens) return [];
+  return [
+    ...(ens.realizations < MIN_MEMBERS_FOR_QUANTILES
+      ? [
+        `The bands rest on ${ens.realizations} members: each is the value ± ${
+          normalQuantile(1 - (1 - params.level) / 2).toFixed(3)
+        } × the members' SD; ask for 100 or more realizations for quantiles of the members.`,
+      ]
+      : []),
+    ...ens.adjusted.map((a) => `Ensemble: ${a}.`),
+  ];
+}
+
+/** The members in their compact stored form: offsets from each stored central value. */
+function ensembleJson(
+  params: SpectralReconstructionParams,
+  ens: DrawnSpectralEnsemble,
+  spectrum: Result["spectrum"],
+  bandBands: MemberBand[],
+  outputs: Record<string, OutputSeries>,
+  integrals: Record<string, { members: Float64Array; band: MemberBand }>,
+): SpectralEnsembleJson {
+  const N = ens.realizations;
+  return {
+    realizations: N,
+    seed: params.seed,
+    bands: bandBands.map((b, k) =>
+      memberOffsets(spectrum.value[k], bandMembers(ens.members, ens.bands, k), N, b.sd)
+    ),
+    outputs: Object.fromEntries(
+      Object.entries(integrals).map(([name, x]) => [
+        name,
+        memberOffsets(outputs[name].value as (number | null)[], x.members, N, x.band.sd),
+      ]),
+    ),
+    adjusted: ens.adjusted,
+  };
 }

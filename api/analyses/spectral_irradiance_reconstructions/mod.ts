@@ -12,11 +12,14 @@ import { SpectralReconstructionRequest } from "./request.ts";
 import { SpectralReconstructionResult } from "./result.ts";
 import { computeSpectralReconstruction } from "./compute.ts";
 import { spectralReconstructionChart } from "./chart.ts";
+import { spectralReconstructionTasks } from "./tasks.ts";
 
 export const spectralIrradianceReconstructions = defineAnalysis({
   kind: "spectral-irradiance-reconstructions",
   path: "/v1/irradiance/spectral-reconstructions",
-  algorithmVersion: "1",
+  // 2: the result states what its intervals contain (`band`) and the caution no longer says
+  // "no ensemble yet"; the numbers without realizations are unchanged. Optional ensembles.
+  algorithmVersion: "2",
   tag: "Irradiance",
   summary: "Reconstruct spectral solar irradiance per band and over wavelength ranges",
   description: "Applies a spectral model run to proxy series averaged into daily, monthly or " +
@@ -29,12 +32,17 @@ export const spectralIrradianceReconstructions = defineAnalysis({
     "cell with the TSI reconstruction of the same proxies (the difference and its uncertainty " +
     "from both models' coefficients), with the spectral coverage stated. The spectrum is " +
     "served per band by GET /v1/runs/{id}/spectrum as JSON, long-form CSV or NetCDF-CF (a " +
-    "wavelength coordinate with wavelength_bnds, on any model calendar). Uncertainty is " +
-    "analytic (no ensemble of realisations yet).",
+    "wavelength coordinate with wavelength_bnds, on any model calendar). With `realizations` " +
+    "the run draws seeded members of every band jointly (the sunspot number's error and the " +
+    "mapping parameters shared by all bands, the calibration coefficients and residual " +
+    "processes correlated across bands), integrals as the weighted sums of each member's " +
+    "bands, and reports the ensemble's band; the NetCDF spectrum then carries the members on " +
+    "a realization dimension.",
   request: SpectralReconstructionRequest,
   result: SpectralReconstructionResult,
   runRefs: (p) => [p.model],
   estimateSeconds: estimateSpectralReconstructionSeconds,
   compute: computeSpectralReconstruction,
   chart: spectralReconstructionChart,
+  tasks: spectralReconstructionTasks,
 });

@@ -2,7 +2,8 @@
  * Result of the "spectral-irradiance-reconstructions" analysis: the spectrum per band over
  * the period with its uncertainty, the integral over the covered range and over the requested
  * ranges, the TSI reconstruction of the same proxies and the integral's difference from it,
- * relative cycle variability per band, and where the values come from.
+ * relative cycle variability per band, where the values come from, what the intervals contain,
+ * and with `realizations` the members of every band and integral.
  *
  * @module
  */
@@ -11,6 +12,8 @@ import { cautions, inherited, OutputSeriesSchema, warnings } from "../common/res
 import { BandBounds, SpectrumBlock } from "../common/spectrum_block.ts";
 import { SpectralCoverageJson } from "../spectral_irradiance_models/result.ts";
 import { SunspotUncertaintySchema } from "../common/sunspot_errors.ts";
+import { UncertaintyBandSchema } from "../common/uncertainty_band.ts";
+import { SpectralEnsembleSchema } from "./ensemble.ts";
 
 const SourceCoverage = z.object({
   cells: z.number().int(),
@@ -101,6 +104,14 @@ export const SpectralReconstructionResult = z.object({
   outputs: z.record(z.string(), OutputSeriesSchema).openapi({
     description: "integral (the covered range, W m-2), range_<lower>_<upper> per requested " +
       "range, tsi (the TSI reconstruction of the same proxies) and integral_minus_tsi",
+  }),
+  band: UncertaintyBandSchema.openapi({
+    description: "What the intervals of the bands and integrals contain and what they do not " +
+      "(the TSI output keeps its analytic interval)",
+  }),
+  ensemble: SpectralEnsembleSchema.nullable().openapi({
+    description: "The members of every band and integral (offsets from the central values); " +
+      "null with realizations 0",
   }),
   warnings,
   cautions,
