@@ -29,7 +29,9 @@ await Deno.mkdir(DIR, { recursive: true });
 try {
   await Deno.stat(FILE);
 } catch {
-  run("/usr/bin/python3", [here("field_upload_make.py"), FILE]);
+  const made = new Deno.Command("/usr/bin/python3", { args: [here("field_upload_make.py"), FILE] })
+    .outputSync();
+  if (!made.success) throw new Error(new TextDecoder().decode(made.stderr));
 }
 const contenders: [string, () => Row][] = [
   [
