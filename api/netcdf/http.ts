@@ -152,8 +152,25 @@ function respond(
   } catch (e) {
     throw asProblem(e, "query");
   }
-  const layout = planNetcdf3(built.dataset);
-  const chunks = netcdf3Chunks(built.dataset);
+  return netcdfStreamResponse(c, built.dataset, name, {
+    "Vary": "Accept",
+    ...immutableHeaders(etag),
+  });
+}
+
+/**
+ * A 200 response streaming a NetCDF-3 file a member at a time (`netcdf3Chunks`), with its
+ * exact `Content-Length` from the planned layout, as an attachment named `name`; `headers`
+ * adds the caching headers.
+ */
+export function netcdfStreamResponse(
+  c: Context,
+  dataset: Parameters<typeof planNetcdf3>[0],
+  name: string,
+  headers: Record<string, string>,
+): Response {
+  const layout = planNetcdf3(dataset);
+  const chunks = netcdf3Chunks(dataset);
   const body = new ReadableStream<Uint8Array>({
     pull(ctl) {
       const r = chunks.next();
@@ -167,9 +184,8 @@ function respond(
       "Content-Type": NETCDF_MEDIA_TYPE,
       "Content-Length": String(layout.totalBytes),
       "Content-Disposition": `attachment; filename="${name}"`,
-      "Vary": "Accept",
       "X-Request-Id": c.get("requestId" as never) ?? "",
-      ...immutableHeaders(etag),
+      ...headers,
     },
   });
 }

@@ -38,3 +38,8 @@ export function notModified(c: Context, etag: string, shared = true): Response |
   }
   return null;
 }
+
+/** Set the headers of {@link immutableHeaders} on the response being built. */
+export function setImmutableHeaders(c: Context, etag: string, shared = true): void {
+  for (const [k, v] of Object.entries(immutableHeaders(etag, shared))) c.header(k, v);
+}

@@ -21,7 +21,7 @@ import { CfTimeError } from "../../core/time/mod.ts";
 import { ingestJson, seriesToCsv } from "../ingest/mod.ts";
 import { storedFromNormalised } from "../series_codec.ts";
 import { wantsCsv } from "./format.ts";
-import { immutableHeaders, notModified } from "./cache.ts";
+import { notModified, setImmutableHeaders } from "./cache.ts";
 import { withNetcdf, withTempUpload } from "../netcdf/open.ts";
 import { NetcdfError } from "../netcdf/errors.ts";
 import {
@@ -442,7 +442,7 @@ export function registerFieldRoutes(app: App, deps: { store: Store; config: Conf
       const nm = notModified(c, etag, shared);
       if (nm) return nm;
       const values = await store.readFieldCell(id, cell.cell);
-      for (const [k, v] of Object.entries(immutableHeaders(etag, shared))) c.header(k, v);
+      setImmutableHeaders(c, etag, shared);
       c.header("Vary", "Accept");
       const s = cellSeriesInput(f, values, cell);
       const res = f.resolution;
@@ -586,7 +586,7 @@ export function registerFieldRoutes(app: App, deps: { store: Store; config: Conf
       const nm = notModified(c, etag, shared);
       if (nm) return nm;
       const v = await store.readFieldSteps(id, k, k + 1);
-      for (const [h, x] of Object.entries(immutableHeaders(etag, shared))) c.header(h, x);
+      setImmutableHeaders(c, etag, shared);
       c.header("Vary", "Accept");
       const res = f.resolution === "irregular" ? "daily" : f.resolution;
       if (csv) {
@@ -667,7 +667,7 @@ export function registerFieldRoutes(app: App, deps: { store: Store; config: Conf
           `Time step ${k + 1} of ${f.n_time}; ${f.info.calendar} calendar in the uploaded file.`,
         ],
       }, { width: q.width, height: q.height, theme: q.theme });
-      for (const [h, x] of Object.entries(immutableHeaders(etag, shared))) c.header(h, x);
+      setImmutableHeaders(c, etag, shared);
       c.header("Content-Type", "image/svg+xml; charset=utf-8");
       c.header("X-Content-Type-Options", "nosniff");
       c.header("Content-Security-Policy", "default-src 'none'; style-src 'unsafe-inline'; sandbox");

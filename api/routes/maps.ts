@@ -12,12 +12,11 @@ import type { App } from "../app_env.ts";
 import type { RunRecord, Store } from "../store/types.ts";
 import { ProblemError } from "../problems.ts";
 import { problems } from "../schemas/common.ts";
-import { immutableHeaders, notModified } from "./cache.ts";
+import { immutableHeaders, notModified, setImmutableHeaders } from "./cache.ts";
 import { type MapPart, MapPartSchema } from "../analyses/common/map_result.ts";
-import { netcdf3Chunks, planNetcdf3 } from "../../core/cf/netcdf3_write.ts";
 import { ncText } from "../../core/cf/netcdf_model.ts";
 import { buildMapDataset, type LagMaps } from "../netcdf/map_dataset.ts";
-import { NETCDF_CONTENT, NETCDF_MEDIA_TYPE } from "../netcdf/http.ts";
+import { NETCDF_CONTENT, netcdfStreamResponse } from "../netcdf/http.ts";
 import type { Provenance } from "../netcdf/series_dataset.ts";
 import { SERVICE_VERSION } from "../version.ts";
 import { principalOf } from "../auth/authenticate.ts";
@@ -141,25 +140,7 @@ function netcdfResponse(
     ? [ncText("field_significance", JSON.stringify(g.field_significance))]
     : [];
   const ds = buildMapDataset(g.map, provenance(run, g), extra, lagMaps);
-  const layout = planNetcdf3(ds);
-  const chunks = netcdf3Chunks(ds);
-  const body = new ReadableStream<Uint8Array>({
-    pull(ctl) {
-      const r = chunks.next();
-      if (r.done) ctl.close();
-      else ctl.enqueue(r.value);
-    },
-  });
-  return new Response(body, {
-    status: 200,
-    headers: {
-      "Content-Type": NETCDF_MEDIA_TYPE,
-      "Content-Length": String(layout.totalBytes),
-      "Content-Disposition": `attachment; filename="${run.id}_map.nc"`,
-      "X-Request-Id": c.get("requestId" as never) ?? "",
-      ...immutableHeaders(etag, shared),
-    },
-  });
+  return netcdfStreamResponse(c, ds, `${run.id}_map.nc`, immutableHeaders(etag, shared));
 }
 
 export function registerMapRoutes(app: App, deps: { store: Store }): void {
@@ -204,7 +185,7 @@ export function registerMapRoutes(app: App, deps: { store: Store }): void {
       const nm = notModified(c, etag, shared);
       if (nm) return nm;
       if (format === "netcdf") return netcdfResponse(c, run, g, etag, shared);
-      for (const [k, v] of Object.entries(immutableHeaders(etag, shared))) c.header(k, v);
+      setImmutableHeaders(c, etag, shared);
       if (format === "csv") {
         c.header("Content-Type", "text/csv; charset=utf-8");
         c.header("Content-Disposition", `attachment; filename="${run.id}_map.csv"`);

@@ -31,7 +31,7 @@ import {
 } from "../schemas/common.ts";
 import { outputToCsv } from "../export/csv.ts";
 import { wantsCsv } from "./format.ts";
-import { immutableHeaders, notModified } from "./cache.ts";
+import { notModified, setImmutableHeaders } from "./cache.ts";
 import { ImmutableCache, serveRepresentation } from "./immutable_cache.ts";
 import {
   CalendarQuery,
@@ -151,7 +151,7 @@ export function registerRunRoutes(
         }
         const nm = notModified(c, etag, shared);
         if (nm) return nm;
-        for (const [k, v] of Object.entries(immutableHeaders(etag, shared))) c.header(k, v);
+        setImmutableHeaders(c, etag, shared);
       } else {
         c.header("Cache-Control", "no-store");
       }
@@ -342,7 +342,7 @@ export function registerRunRoutes(
       const etag = `"run-${run.id}-${run.result_digest}-${name}-${csv ? "csv" : "json"}"`;
       const nm = notModified(c, etag, shared);
       if (nm) return nm;
-      for (const [k, v] of Object.entries(immutableHeaders(etag, shared))) c.header(k, v);
+      setImmutableHeaders(c, etag, shared);
       c.header("Vary", "Accept");
       if (csv) {
         c.header("Content-Type", "text/csv; charset=utf-8");

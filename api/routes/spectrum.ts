@@ -16,7 +16,7 @@ import { RunIdString } from "../schemas/ids.ts";
 import { ProblemError } from "../problems.ts";
 import { problems } from "../schemas/common.ts";
 import { wantsCsv } from "./format.ts";
-import { immutableHeaders, notModified } from "./cache.ts";
+import { notModified, setImmutableHeaders } from "./cache.ts";
 import { SpectrumBlock } from "../analyses/common/spectrum_block.ts";
 import { spectrumToCsv } from "../export/spectrum_csv.ts";
 import {
@@ -89,7 +89,7 @@ export function registerSpectrumRoutes(
       const etag = `"run-${run.id}-${run.result_digest}-spectrum-${csv ? "csv" : "json"}"`;
       const nm = notModified(c, etag, shared);
       if (nm) return nm;
-      for (const [k, v] of Object.entries(immutableHeaders(etag, shared))) c.header(k, v);
+      setImmutableHeaders(c, etag, shared);
       c.header("Vary", "Accept");
       if (csv) {
         c.header("Content-Type", "text/csv; charset=utf-8");
