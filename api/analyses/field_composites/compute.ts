@@ -6,7 +6,7 @@
  *
  * @module
  */
-import { CancelledError, InputProblem, type RunContext } from "../../runs/kind.ts";
+import { InputProblem, type RunContext } from "../../runs/kind.ts";
 import {
   combineFieldMonteCarlo,
   fieldAreaWeights,
@@ -20,6 +20,7 @@ import {
 } from "../../../core/field/mod.ts";
 import { formatIsoTime, parseIsoTime } from "../../../core/time/mod.ts";
 import { CAUTION_CORRELATION, CAUTION_REVIEW } from "../common/cautions.ts";
+import { parallelInRounds } from "../common/parallel_rounds.ts";
 import { withInputPointers } from "../common/input_problem.ts";
 import { cycleEpochs } from "../common/cycle_epochs.ts";
 import { fieldResolution, griddedFieldOf } from "../common/field_axis.ts";
@@ -89,17 +90,12 @@ async function monteCarlo(
       cellEnd: plan.cellCount,
     });
   }
-  const tallies: FieldChunkTally[] = [];
-  for (let k = 0; k < tasks.length; k += 4) {
-    if (ctx.cancelled()) throw new CancelledError();
-    tallies.push(
-      ...await ctx.parallel<FieldCompositeChunkInput, FieldChunkTally>(
-        FIELD_COMPOSITE_CHUNK,
-        tasks.slice(k, k + 4),
-      ),
-    );
-    ctx.progress(0.2 + (0.75 * tallies.length) / tasks.length);
-  }
+  const tallies = await parallelInRounds<FieldCompositeChunkInput, FieldChunkTally>(
+    ctx,
+    FIELD_COMPOSITE_CHUNK,
+    tasks,
+    { round: 4, progress: [0.2, 0.95] },
+  );
   return combineFieldMonteCarlo(plan, tallies);
 }
 

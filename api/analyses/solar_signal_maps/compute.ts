@@ -7,7 +7,7 @@
  *
  * @module
  */
-import { CancelledError, InputProblem, type RunContext } from "../../runs/kind.ts";
+import { InputProblem, type RunContext } from "../../runs/kind.ts";
 import type { StoredSeries } from "../../store/types.ts";
 import { refId } from "../../schemas/series_ref.ts";
 import {
@@ -30,6 +30,7 @@ import {
 } from "../../../core/field/mod.ts";
 import type { PreprocessOptions } from "../../../core/climate/mod.ts";
 import { solarCautions } from "../common/cautions.ts";
+import { parallelInRounds } from "../common/parallel_rounds.ts";
 import { withInputPointers } from "../common/input_problem.ts";
 import { solarSeriesFromRun } from "../common/solar_series_from_run.ts";
 import { fieldOnAxis } from "../common/field_axis.ts";
@@ -146,17 +147,12 @@ async function monteCarlo(
   const surrogatesPerTask = Math.min(250, Math.max(25, Math.ceil(p.surrogates / 16)));
   const cellsPerTask = Math.max(1, Math.floor(2_000_000 / inputs.n));
   const tasks = fieldSignificanceTasks(plan, { surrogatesPerTask, cellsPerTask });
-  const tallies: FieldChunkTally[] = [];
-  for (let k = 0; k < tasks.length; k += 4) {
-    if (ctx.cancelled()) throw new CancelledError();
-    tallies.push(
-      ...await ctx.parallel<FieldSignificanceChunkInput, FieldChunkTally>(
-        FIELD_SIGNIFICANCE_CHUNK,
-        tasks.slice(k, k + 4),
-      ),
-    );
-    ctx.progress(0.2 + (0.75 * tallies.length) / tasks.length);
-  }
+  const tallies = await parallelInRounds<FieldSignificanceChunkInput, FieldChunkTally>(
+    ctx,
+    FIELD_SIGNIFICANCE_CHUNK,
+    tasks,
+    { round: 4, progress: [0.2, 0.95] },
+  );
   return combineFieldMonteCarlo(plan, tallies);
 }
 
