@@ -80,6 +80,7 @@ export function ar1CellMeans(
   const out = { sd: new Float64Array(n), lag1: new Float64Array(n) };
   const varOf = new Map<number, number>();
   const steps = (d: number) => Math.max(1, d / stepDays);
+  let lastD0 = NaN, lastD = NaN, lastLag = 0;
   const geometric = (m: number) => (rho === 0 ? 1 : (1 - ar1Power(rho, m)) / (1 - rho));
   for (let i = 0; i < n; i++) {
     const d = days[i];
@@ -100,6 +101,11 @@ export function ar1CellMeans(
     out.sd[i] = Math.sqrt(v);
     if (i === 0 || v === 0) continue;
     const d0 = days[i - 1];
+    // cells come in runs of equal lengths (days, months): the same pair gives the same lag
+    if (d0 === lastD0 && d === lastD) {
+      out.lag1[i] = lastLag;
+      continue;
+    }
     let r: number;
     if (d0 < stepDays && d < stepDays) {
       r = rho > 0 ? Math.pow(rho, (d0 + d) / 2 / stepDays) : 0;
@@ -108,7 +114,9 @@ export function ar1CellMeans(
       const cov = (sd * sd * geometric(m0) * rho * geometric(m1)) / (m0 * m1);
       r = cov / (out.sd[i - 1] * out.sd[i]);
     }
-    out.lag1[i] = Math.max(-1, Math.min(1, r));
+    out.lag1[i] = lastLag = Math.max(-1, Math.min(1, r));
+    lastD0 = d0;
+    lastD = d;
   }
   return out;
 }
