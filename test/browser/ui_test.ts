@@ -288,7 +288,9 @@ Deno.test({
             .allInnerTexts();
           assert.equal(main.length, 3, JSON.stringify(main));
           await page.goto(`${svc.url}/#/analyse?kind=/v1/lag-correlations`);
-          await page.waitForSelector("#analysis-form");
+          // a hash change: the previous form stays until the new one is drawn, so wait for
+          // the lag-correlation form's own solar input
+          await page.waitForSelector("#analysis-form #f_solar");
           // the solar input (one of solar, solar_run) is visible, not under "More options",
           // and a fitting series is chosen
           const shown = page.locator("#analysis-form > .grid #f_solar");
@@ -347,7 +349,9 @@ Deno.test({
           const surrogates = surrogatesFor(3);
 
           await page.goto(`${svc.url}/#/analyse?kind=/v1/lag-correlations`);
-          await page.waitForSelector("#analysis-form");
+          // a hash change: the previous form stays until the new one is drawn, so wait for
+          // the lag-correlation form's own solar input
+          await page.waitForSelector("#analysis-form #f_solar");
           await page.selectOption("#f_solar", solar);
           await page.selectOption("#f_climate", climate);
           await openMoreOptions(page);
