@@ -65,15 +65,15 @@ Deno.test("API1:2023 Broken Object Level Authorization", async (t) => {
 
 Deno.test("API2:2023 Broken Authentication", async (t) => {
   await withInstance(async (svc) => {
-    const alice = await svc.owner("alice");
+    const analyst_a = await svc.owner("analyst_a");
     await t.step(
       "attack: call without a key, with a forged key, with a malformed header",
       async () => {
         await assertProblem(await svc.anonymous.post("/v1/series", smallSeries("x")), 401);
-        const forged = alice.key.slice(0, -4) + "AAAA";
-        await assertProblem(await caller(svc, "alice", forged).get("/v1/series"), 401);
+        const forged = analyst_a.key.slice(0, -4) + "AAAA";
+        await assertProblem(await caller(svc, "analyst_a", forged).get("/v1/series"), 401);
         const malformed = await svc.app.request("/v1/series", {
-          headers: { Authorization: `Token ${alice.key}` },
+          headers: { Authorization: `Token ${analyst_a.key}` },
         });
         await assertProblem(malformed, 401);
       },
@@ -81,38 +81,38 @@ Deno.test("API2:2023 Broken Authentication", async (t) => {
     await t.step(
       "attack: read keys from the store: only SHA-256 hashes of the secrets",
       async () => {
-        const [rec] = await svc.store.listApiKeys("alice");
-        const secret = parseApiKey(alice.key)!.secret;
+        const [rec] = await svc.store.listApiKeys("analyst_a");
+        const secret = parseApiKey(analyst_a.key)!.secret;
         assert.equal(rec.hash, createHash("sha256").update(secret).digest("hex"));
         assert.ok(!JSON.stringify(rec).includes(secret));
       },
     );
     await t.step("attack: reuse a revoked key", async () => {
-      const [rec] = await svc.store.listApiKeys("alice");
+      const [rec] = await svc.store.listApiKeys("analyst_a");
       assert.equal((await svc.admin.del(`/v1/admin/keys/${rec.id}`)).status, 204);
-      await assertProblem(await alice.get("/v1/series"), 401);
+      await assertProblem(await analyst_a.get("/v1/series"), 401);
     });
   });
 });
 
 Deno.test("API3:2023 Broken Object Property Level Authorization", async (t) => {
   await withInstance(async (svc) => {
-    const alice = await svc.owner("alice");
-    await svc.owner("bob");
+    const analyst_a = await svc.owner("analyst_a");
+    await svc.owner("analyst_b");
     await t.step("attack: set the owner or visibility through an upload body", async () => {
-      const res = await alice.post("/v1/series", {
+      const res = await analyst_a.post("/v1/series", {
         ...smallSeries("mass"),
-        owner: "bob",
+        owner: "analyst_b",
         visibility: "public",
       });
       const body = await res.json();
-      assert.equal(body.series.owner, "alice");
+      assert.equal(body.series.owner, "analyst_a");
       assert.equal(body.series.visibility, "private");
       await assertProblem(await svc.anonymous.get(`/v1/series/${body.series.id}`), 404);
     });
     await t.step("attack: set a run's status, result or digest in the request", async () => {
-      const sid = await upload(alice, smallSeries("props"));
-      const res = await alice.post("/v1/test-mean", {
+      const sid = await upload(analyst_a, smallSeries("props"));
+      const res = await analyst_a.post("/v1/test-mean", {
         series: sid,
         status: "succeeded",
         result_digest: "0".repeat(64),
@@ -134,15 +134,15 @@ Deno.test("API3:2023 Broken Object Property Level Authorization", async (t) => {
 
 Deno.test("API4:2023 Unrestricted Resource Consumption", async (t) => {
   await withInstance(async (svc) => {
-    const alice = await svc.owner("alice");
+    const analyst_a = await svc.owner("analyst_a");
     await t.step("attack: a body over the limit", async () => {
-      const res = await alice.post("/v1/series", { pad: "x".repeat(300_000) });
+      const res = await analyst_a.post("/v1/series", { pad: "x".repeat(300_000) });
       await assertProblem(res, 413);
     });
     await t.step("attack: a flood of requests", async () => {
       let refused: Response | null = null;
       for (let i = 0; i < 10 && !refused; i++) {
-        const r = await alice.get("/v1/version");
+        const r = await analyst_a.get("/v1/version");
         if (r.status === 429) refused = r;
         else await r.body?.cancel();
       }
@@ -164,19 +164,19 @@ Deno.test("API4:2023 Unrestricted Resource Consumption", async (t) => {
     },
   });
   await withInstance(async (svc) => {
-    const alice = await svc.owner("alice");
+    const analyst_a = await svc.owner("analyst_a");
     await t.step("attack: a run that never ends is stopped at the wall-time limit", async () => {
-      const sid = await upload(alice, smallSeries("long"));
+      const sid = await upload(analyst_a, smallSeries("long"));
       const slow = { series: sid, replicates: 100, spin_ms: 2000 };
-      const res = await alice.post("/v1/test-mean", slow, { Prefer: "respond-async" });
+      const res = await analyst_a.post("/v1/test-mean", slow, { Prefer: "respond-async" });
       const id = (await res.json()).id;
       await svc.runs.settle();
-      assert.equal((await (await alice.get(`/v1/runs/${id}`)).json()).status, "failed");
+      assert.equal((await (await analyst_a.get(`/v1/runs/${id}`)).json()).status, "failed");
     });
     await t.step("attack: many unknown fields to make the error huge", async () => {
       const body: Record<string, number> = {};
       for (let i = 0; i < 50_000; i++) body[`k${i}`] = i;
-      const res = await alice.post("/v1/test-mean", body);
+      const res = await analyst_a.post("/v1/test-mean", body);
       const text = await res.clone().text();
       await assertProblem(res, 422);
       assert.ok(text.length < 8_000);
@@ -213,14 +213,14 @@ Deno.test("API6:2023 Unrestricted Access to Sensitive Business Flows", async (t)
   // The sensitive flows of sunlag: publishing a citable run (it can never be taken back) and
   // minting keys. Both need the right holder or role; computation needs an account.
   await withInstance(async (svc) => {
-    const alice = await svc.owner("alice");
-    const bob = await svc.owner("bob");
-    const sid = await upload(alice, smallSeries("pub"));
-    const run = await (await alice.post("/v1/test-mean", { series: sid })).json();
-    await alice.put(`/v1/runs/${run.id}/sharing`, { visibility: "group" });
+    const analyst_a = await svc.owner("analyst_a");
+    const analyst_b = await svc.owner("analyst_b");
+    const sid = await upload(analyst_a, smallSeries("pub"));
+    const run = await (await analyst_a.post("/v1/test-mean", { series: sid })).json();
+    await analyst_a.put(`/v1/runs/${run.id}/sharing`, { visibility: "group" });
     await t.step("attack: publish someone else's run to make it citable", async () => {
       await assertProblem(
-        await bob.put(`/v1/runs/${run.id}/sharing`, { visibility: "public" }),
+        await analyst_b.put(`/v1/runs/${run.id}/sharing`, { visibility: "public" }),
         403,
       );
     });
@@ -228,9 +228,9 @@ Deno.test("API6:2023 Unrestricted Access to Sensitive Business Flows", async (t)
       await assertProblem(await svc.anonymous.post("/v1/test-mean", { series: sid }), 401);
     });
     await t.step("attack: unpublish a cited run", async () => {
-      await alice.put(`/v1/runs/${run.id}/sharing`, { visibility: "public" });
+      await analyst_a.put(`/v1/runs/${run.id}/sharing`, { visibility: "public" });
       await assertProblem(
-        await alice.put(`/v1/runs/${run.id}/sharing`, { visibility: "private" }),
+        await analyst_a.put(`/v1/runs/${run.id}/sharing`, { visibility: "private" }),
         409,
       );
     });
@@ -241,9 +241,9 @@ Deno.test("API7:2023 Server Side Request Forgery", async (t) => {
   // Not applicable by design: sunlag never fetches a URL a client names. Series come in the
   // request body (JSON, text, a bundle), never by reference to a remote address.
   await withInstance(async (svc) => {
-    const alice = await svc.owner("alice");
+    const analyst_a = await svc.owner("analyst_a");
     await t.step("attack: name a cloud metadata URL as a series", async () => {
-      const res = await alice.post("/v1/test-mean", {
+      const res = await analyst_a.post("/v1/test-mean", {
         series: "http://169.254.169.254/latest/meta-data/",
       });
       await assertProblem(res, 422);
@@ -325,24 +325,25 @@ Deno.test("API9:2023 Improper Inventory Management", async (t) => {
 Deno.test("API10:2023 Unsafe Consumption of APIs", async (t) => {
   // What sunlag consumes from elsewhere: bundles exported by other instances.
   await withInstance(async (svc) => {
-    const alice = await svc.owner("alice");
-    const run = await (await alice.post("/v1/test-mean", { series: smallSeries("b10") })).json();
-    const bundle = await (await alice.get(`/v1/runs/${run.id}/bundle`)).json();
+    const analyst_a = await svc.owner("analyst_a");
+    const run = await (await analyst_a.post("/v1/test-mean", { series: smallSeries("b10") }))
+      .json();
+    const bundle = await (await analyst_a.get(`/v1/runs/${run.id}/bundle`)).json();
     await t.step("attack: header injection through a bundled run id", async () => {
       const x = structuredClone(bundle);
       x.run.id = `${run.id}"; filename=evil.sh\r\nSet-Cookie: a=b`;
-      await assertProblem(await alice.post("/v1/bundles", x), 422);
+      await assertProblem(await analyst_a.post("/v1/bundles", x), 422);
     });
     await t.step("attack: a tampered result is not stored", async () => {
       const x = structuredClone(bundle);
       x.run.result.mean = 1e9;
-      const answer = await (await alice.post("/v1/bundles", x)).json();
+      const answer = await (await analyst_a.post("/v1/bundles", x)).json();
       assert.deepEqual([answer.verified, answer.stored], [false, false]);
     });
     await t.step("attack: a lying lineage or date is refused", async () => {
       const x = structuredClone(bundle);
       x.run.updated_at = "tomorrow";
-      await assertProblem(await alice.post("/v1/bundles", x), 422);
+      await assertProblem(await analyst_a.post("/v1/bundles", x), 422);
     });
   });
 });

@@ -30,14 +30,14 @@ Deno.test("quotas: the request rate of an owner is a token bucket; 429 with Retr
     config: { quotas: quotas({ ratePerSecond: 0.5, rateBurst: 3 }) },
   });
   try {
-    const alice = await svc.owner("alice");
-    for (let i = 0; i < 3; i++) assert.equal((await alice.get("/v1/series")).status, 200);
-    const refused = await alice.get("/v1/series");
+    const analyst_a = await svc.owner("analyst_a");
+    for (let i = 0; i < 3; i++) assert.equal((await analyst_a.get("/v1/series")).status, 200);
+    const refused = await analyst_a.get("/v1/series");
     await assertQuota(refused, /SUNLAG_RATE_PER_SECOND/);
     assert.equal(refused.headers.get("retry-after"), "2", "one token per 2 s");
     // Another owner has its own bucket; anonymous callers share one per address.
-    const bob = await svc.owner("bob");
-    assert.equal((await bob.get("/v1/series")).status, 200);
+    const analyst_b = await svc.owner("analyst_b");
+    assert.equal((await analyst_b.get("/v1/series")).status, 200);
     for (let i = 0; i < 3; i++) await svc.anonymous.get("/v1/health");
     await assertQuota(await svc.anonymous.get("/v1/health"), /Too many requests/);
     // Admins are not limited.
@@ -65,13 +65,13 @@ Deno.test("quotas: runs computing at once and runs waiting", async () => {
     config: { quotas: quotas({ concurrentRuns: 1, queuedRuns: 1 }) },
   });
   try {
-    const alice = await svc.owner("alice");
-    const sid = await upload(alice, smallSeries("q"));
+    const analyst_a = await svc.owner("analyst_a");
+    const sid = await upload(analyst_a, smallSeries("q"));
     const slow = { series: sid, replicates: 50, spin_ms: 1500 };
     // Two synchronous runs at once: the second is refused while the first computes.
     const [a, b] = await Promise.all([
-      alice.post("/v1/test-mean", { ...slow, spin_ms: 600 }),
-      alice.post("/v1/test-mean", { ...slow, spin_ms: 600 }),
+      analyst_a.post("/v1/test-mean", { ...slow, spin_ms: 600 }),
+      analyst_a.post("/v1/test-mean", { ...slow, spin_ms: 600 }),
     ]);
     const statuses = [a.status, b.status].sort();
     assert.deepEqual(statuses, [201, 429]);
@@ -79,22 +79,25 @@ Deno.test("quotas: runs computing at once and runs waiting", async () => {
     await (a.status === 201 ? a : b).body?.cancel();
     // Asynchronous runs: one computes, one waits, the third is refused.
     const async = { Prefer: "respond-async" };
-    const r1 = await alice.post("/v1/test-mean", slow, async);
-    const r2 = await alice.post("/v1/test-mean", slow, async);
+    const r1 = await analyst_a.post("/v1/test-mean", slow, async);
+    const r2 = await analyst_a.post("/v1/test-mean", slow, async);
     assert.equal(r1.status, 202);
     assert.equal(r2.status, 202);
-    assert.deepEqual(svc.quotas.counts("alice"), { running: 1, queued: 1 });
-    await assertQuota(await alice.post("/v1/test-mean", slow, async), /SUNLAG_QUOTA_QUEUED_RUNS/);
+    assert.deepEqual(svc.quotas.counts("analyst_a"), { running: 1, queued: 1 });
+    await assertQuota(
+      await analyst_a.post("/v1/test-mean", slow, async),
+      /SUNLAG_QUOTA_QUEUED_RUNS/,
+    );
     // Cancelling the waiting one frees its place without computing it.
     const id2 = (await r2.json()).id;
-    assert.equal((await alice.post(`/v1/runs/${id2}/cancel`)).status, 200);
+    assert.equal((await analyst_a.post(`/v1/runs/${id2}/cancel`)).status, 200);
     await svc.runs.settle();
-    assert.deepEqual(svc.quotas.counts("alice"), { running: 0, queued: 0 });
+    assert.deepEqual(svc.quotas.counts("analyst_a"), { running: 0, queued: 0 });
     assert.equal(
-      (await (await alice.get(`/v1/runs/${(await r1.json()).id}`)).json()).status,
+      (await (await analyst_a.get(`/v1/runs/${(await r1.json()).id}`)).json()).status,
       "succeeded",
     );
-    const usage = await (await svc.admin.get("/v1/admin/owners/alice/usage")).json();
+    const usage = await (await svc.admin.get("/v1/admin/owners/analyst_a/usage")).json();
     assert.ok(usage.compute_seconds_last_hour > 0);
     assert.ok(usage.stored_bytes > 0);
   } finally {
@@ -108,18 +111,22 @@ Deno.test("quotas: compute seconds per hour", async () => {
     config: { quotas: quotas({ computeSecondsPerHour: 0.05 }) },
   });
   try {
-    const alice = await svc.owner("alice");
-    const sid = await upload(alice, smallSeries("c"));
-    assert.equal((await alice.post("/v1/test-mean", { series: sid, spin_ms: 200 })).status, 201);
+    const analyst_a = await svc.owner("analyst_a");
+    const sid = await upload(analyst_a, smallSeries("c"));
+    assert.equal(
+      (await analyst_a.post("/v1/test-mean", { series: sid, spin_ms: 200 })).status,
+      201,
+    );
     const body = await assertQuota(
-      await alice.post("/v1/test-mean", { series: sid }),
+      await analyst_a.post("/v1/test-mean", { series: sid }),
       /SUNLAG_QUOTA_COMPUTE_SECONDS/,
     );
     assert.ok(body.retry_after_seconds > 3000, "the hour must pass");
     // Another owner's budget is its own.
-    const bob = await svc.owner("bob");
+    const analyst_b = await svc.owner("analyst_b");
     assert.equal(
-      (await bob.post("/v1/test-mean", { series: await upload(bob, smallSeries("b")) })).status,
+      (await analyst_b.post("/v1/test-mean", { series: await upload(analyst_b, smallSeries("b")) }))
+        .status,
       201,
     );
   } finally {
@@ -133,13 +140,13 @@ Deno.test("quotas: bytes held", async () => {
     config: { quotas: quotas({ storedBytes: 2000 }) },
   });
   try {
-    const alice = await svc.owner("alice");
-    await upload(alice, smallSeries("fits", 48)); // 48 points x 24 bytes = 1152
+    const analyst_a = await svc.owner("analyst_a");
+    await upload(analyst_a, smallSeries("fits", 48)); // 48 points x 24 bytes = 1152
     await assertQuota(
-      await alice.post("/v1/series", smallSeries("too-much", 48)),
+      await analyst_a.post("/v1/series", smallSeries("too-much", 48)),
       /SUNLAG_QUOTA_STORED_MB/,
     );
-    assert.equal((await (await alice.get("/v1/series")).json()).total, 1, "nothing stored");
+    assert.equal((await (await analyst_a.get("/v1/series")).json()).total, 1, "nothing stored");
   } finally {
     await svc.close();
   }
@@ -148,21 +155,31 @@ Deno.test("quotas: bytes held", async () => {
 Deno.test("limits: a run past the wall-time limit fails with its reason (async and sync)", async () => {
   const svc = await sharedInstance({ kinds: KINDS, config: { runWallSeconds: 0.3 } });
   try {
-    const alice = await svc.owner("alice");
-    const sid = await upload(alice, smallSeries("w"));
-    const res = await alice.post("/v1/test-mean", { series: sid, replicates: 200, spin_ms: 3000 });
+    const analyst_a = await svc.owner("analyst_a");
+    const sid = await upload(analyst_a, smallSeries("w"));
+    const res = await analyst_a.post("/v1/test-mean", {
+      series: sid,
+      replicates: 200,
+      spin_ms: 3000,
+    });
     assert.equal(res.status, 202);
     const id = (await res.json()).id;
     await svc.runs.settle();
-    const run = await (await alice.get(`/v1/runs/${id}`)).json();
+    const run = await (await analyst_a.get(`/v1/runs/${id}`)).json();
     assert.equal(run.status, "failed");
     assert.equal(run.error.type, "https://sunlag.invalid/problems/time-limit");
     assert.match(run.error.detail, /wall-time limit of 0.3 s/);
-    const sync = await alice.post("/v1/test-mean", { series: sid, replicates: 200, spin_ms: 1500 });
+    const sync = await analyst_a.post("/v1/test-mean", {
+      series: sid,
+      replicates: 200,
+      // short enough to stay synchronous (estimate 0.8 s × the measured machine-speed factor,
+      // which exceeds 1 on a loaded machine), long enough to pass the 0.3 s limit
+      spin_ms: 800,
+    });
     const problem = await assertProblem(sync, 422);
     assert.match(problem.type, /time-limit/);
     assert.equal(
-      (await (await alice.get("/v1/runs")).json()).total,
+      (await (await analyst_a.get("/v1/runs")).json()).total,
       1,
       "the sync run was not stored",
     );

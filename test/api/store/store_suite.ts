@@ -723,7 +723,7 @@ export function storeSuite(
   });
   const ADMIN: Viewer = { owner: LOCAL_OWNER, group: "default", admin: true };
   const addOwners = async (store: Store) => {
-    for (const [id, group] of [["alice", "g1"], ["bob", "g1"], ["carol", "g2"]]) {
+    for (const [id, group] of [["analyst_a", "g1"], ["analyst_b", "g1"], ["analyst_c", "g2"]]) {
       await store.putOwner({ id, name: id, role: "writer", group, created_at: at(0) });
     }
   };
@@ -734,19 +734,25 @@ export function storeSuite(
     assert.equal(local.role, "admin");
     await addOwners(store);
     assert.deepEqual((await store.listOwners()).map((o) => o.id).sort(), [
-      "alice",
-      "bob",
-      "carol",
+      "analyst_a",
+      "analyst_b",
+      "analyst_c",
       LOCAL_OWNER,
     ]);
     await assert.rejects(
       () =>
-        store.putOwner({ id: "alice", name: "x", role: "reader", group: "g", created_at: at(1) }),
+        store.putOwner({
+          id: "analyst_a",
+          name: "x",
+          role: "reader",
+          group: "g",
+          created_at: at(1),
+        }),
       DuplicateOwnerError,
     );
-    assert.deepEqual(await store.getOwner("alice"), {
-      id: "alice",
-      name: "alice",
+    assert.deepEqual(await store.getOwner("analyst_a"), {
+      id: "analyst_a",
+      name: "analyst_a",
       role: "writer",
       group: "g1",
       created_at: at(0),
@@ -760,7 +766,7 @@ export function storeSuite(
       await addOwners(store);
       const key = {
         id: "k1",
-        owner: "alice",
+        owner: "analyst_a",
         hash: "ab".repeat(32),
         label: "laptop",
         role: null,
@@ -769,13 +775,19 @@ export function storeSuite(
         revoked_at: null,
       };
       await store.putApiKey(key);
-      await store.putApiKey({ ...key, id: "k2", owner: "bob", role: "reader", expires_at: null });
+      await store.putApiKey({
+        ...key,
+        id: "k2",
+        owner: "analyst_b",
+        role: "reader",
+        expires_at: null,
+      });
       await assert.rejects(() => store.putApiKey({ ...key, id: "k3", owner: "ghost" }), RangeError);
       await assert.rejects(() => store.putApiKey(key), RangeError);
       assert.deepEqual(await store.getApiKey("k1"), key);
       assert.equal(await store.getApiKey("k9"), null);
       assert.deepEqual((await store.listApiKeys()).map((k) => k.id), ["k1", "k2"]);
-      assert.deepEqual((await store.listApiKeys("bob")).map((k) => k.id), ["k2"]);
+      assert.deepEqual((await store.listApiKeys("analyst_b")).map((k) => k.id), ["k2"]);
       assert.equal(await store.revokeApiKey("k1", at(5)), true);
       assert.equal(await store.revokeApiKey("k1", at(6)), false, "revoked twice");
       assert.equal(await store.revokeApiKey("k9", at(6)), false);
@@ -786,9 +798,9 @@ export function storeSuite(
   withStore("the same content held by two owners is one series and two holdings", async (s) => {
     await addOwners(s);
     const x = makeSeries("shared-content", { createdAt: at(1) });
-    const a = await s.putSeries(x, { owner: "alice", visibility: "private" });
+    const a = await s.putSeries(x, { owner: "analyst_a", visibility: "private" });
     const b = await s.putSeries({ ...x, created_at: at(9) }, {
-      owner: "carol",
+      owner: "analyst_c",
       visibility: "private",
     });
     // Each owner is told its copy is new, with its own time: nothing says the other holds it.
@@ -797,17 +809,20 @@ export function storeSuite(
     assert.equal(a.series.id, b.series.id);
     assert.equal(a.series.created_at, at(1));
     assert.equal(b.series.created_at, at(9));
-    assert.equal(b.series.owner, "carol");
-    const again = await s.putSeries(x, { owner: "carol", visibility: "public" });
+    assert.equal(b.series.owner, "analyst_c");
+    const again = await s.putSeries(x, { owner: "analyst_c", visibility: "public" });
     assert.equal(again.created, false);
     assert.equal(again.series.visibility, "private", "a repeated upload changed the visibility");
     assert.equal((await s.listSeries({ limit: 10, offset: 0 })).total, 1);
-    for (const who of ["alice", "carol"]) {
+    for (const who of ["analyst_a", "analyst_c"]) {
       const page = await s.listSeries({ limit: 10, offset: 0, viewer: viewer(who, "gx") });
       assert.equal(page.total, 1);
       assert.equal(page.items[0].owner, who);
     }
-    assert.equal((await s.listSeries({ limit: 10, offset: 0, viewer: viewer("bob") })).total, 0);
+    assert.equal(
+      (await s.listSeries({ limit: 10, offset: 0, viewer: viewer("analyst_b") })).total,
+      0,
+    );
   });
 
   withStore("visibility decides who lists and sees a series", async (store) => {
@@ -815,45 +830,52 @@ export function storeSuite(
     const priv = makeSeries("v-private", { createdAt: at(1) });
     const grp = makeSeries("v-group", { createdAt: at(2) });
     const pub = makeSeries("v-public", { createdAt: at(3) });
-    await store.putSeries(priv, { owner: "alice", visibility: "private" });
-    await store.putSeries(grp, { owner: "alice", visibility: "group" });
-    await store.putSeries(pub, { owner: "alice", visibility: "public" });
+    await store.putSeries(priv, { owner: "analyst_a", visibility: "private" });
+    await store.putSeries(grp, { owner: "analyst_a", visibility: "group" });
+    await store.putSeries(pub, { owner: "analyst_a", visibility: "public" });
     const ids = async (v: Viewer) =>
       (await store.listSeries({ limit: 10, offset: 0, viewer: v })).items.map((m) => m.id);
-    assert.deepEqual(await ids(viewer("alice")), [pub.id, grp.id, priv.id]);
-    assert.deepEqual(await ids(viewer("bob")), [pub.id, grp.id], "same group");
-    assert.deepEqual(await ids(viewer("carol", "g2")), [pub.id], "other group");
+    assert.deepEqual(await ids(viewer("analyst_a")), [pub.id, grp.id, priv.id]);
+    assert.deepEqual(await ids(viewer("analyst_b")), [pub.id, grp.id], "same group");
+    assert.deepEqual(await ids(viewer("analyst_c", "g2")), [pub.id], "other group");
     assert.deepEqual(await ids(viewer(null)), [pub.id], "anonymous");
     assert.deepEqual(await ids(ADMIN), [pub.id, grp.id, priv.id], "admin");
-    const page = await store.listSeries({ limit: 1, offset: 1, viewer: viewer("bob") });
+    const page = await store.listSeries({ limit: 1, offset: 1, viewer: viewer("analyst_b") });
     assert.deepEqual([page.total, page.items.map((m) => m.id)], [2, [grp.id]]);
     const q = await store.listSeries({
       quantity: "other",
       limit: 10,
       offset: 0,
-      viewer: viewer("bob"),
+      viewer: viewer("analyst_b"),
     });
     assert.equal(q.total, 0);
-    assert.equal(await store.seriesHolding(priv.id, viewer("bob")), null);
+    assert.equal(await store.seriesHolding(priv.id, viewer("analyst_b")), null);
     assert.equal(await store.seriesHolding(priv.id, viewer(null)), null);
-    assert.deepEqual(await store.seriesHolding(grp.id, viewer("bob")), {
-      owner: "alice",
+    assert.deepEqual(await store.seriesHolding(grp.id, viewer("analyst_b")), {
+      owner: "analyst_a",
       visibility: "group",
       created_at: at(2),
     });
-    assert.equal(await store.seriesHolding(grp.id, viewer("carol", "g2")), null);
+    assert.equal(await store.seriesHolding(grp.id, viewer("analyst_c", "g2")), null);
     assert.ok(await store.seriesHolding(priv.id, ADMIN));
     // The viewer's own holding is the one it sees, even beside a wider one.
-    await store.putSeries({ ...pub, created_at: at(7) }, { owner: "bob", visibility: "private" });
-    assert.deepEqual(await store.seriesHolding(pub.id, viewer("bob")), {
-      owner: "bob",
+    await store.putSeries({ ...pub, created_at: at(7) }, {
+      owner: "analyst_b",
+      visibility: "private",
+    });
+    assert.deepEqual(await store.seriesHolding(pub.id, viewer("analyst_b")), {
+      owner: "analyst_b",
       visibility: "private",
       created_at: at(7),
     });
-    assert.equal(await store.setSeriesVisibility(priv.id, "alice", "group"), true);
-    assert.equal(await store.setSeriesVisibility(priv.id, "bob", "public"), false, "not bob's");
-    assert.ok(await store.seriesHolding(priv.id, viewer("bob")));
-    await assert.rejects(() => store.setSeriesVisibility(priv.id, "alice", "world" as never));
+    assert.equal(await store.setSeriesVisibility(priv.id, "analyst_a", "group"), true);
+    assert.equal(
+      await store.setSeriesVisibility(priv.id, "analyst_b", "public"),
+      false,
+      "not analyst_b's",
+    );
+    assert.ok(await store.seriesHolding(priv.id, viewer("analyst_b")));
+    await assert.rejects(() => store.setSeriesVisibility(priv.id, "analyst_a", "world" as never));
   });
 
   withStore(
@@ -861,38 +883,49 @@ export function storeSuite(
     async (s) => {
       await addOwners(s);
       const x = makeSeries("two-holders");
-      await s.putSeries(x, { owner: "alice", visibility: "private" });
-      await s.putSeries(x, { owner: "bob", visibility: "private" });
-      const r = makeRun("bob-uses", { inputSeries: [x.id] });
-      await s.putRun(r, { owner: "bob", visibility: "private" });
-      assert.deepEqual(await s.seriesUsage(x.id, "bob"), { own: [r.id], others: 0 });
-      assert.deepEqual(await s.seriesUsage(x.id, "alice"), { own: [], others: 1 });
-      assert.equal(await s.deleteSeriesHolding(x.id, "carol"), "not_found");
-      assert.equal(await s.deleteSeriesHolding(x.id, "bob"), "in_use", "bob's own run uses it");
-      // Alice's delete succeeds without telling her that bob holds or uses the same content.
-      assert.equal(await s.deleteSeriesHolding(x.id, "alice"), "deleted");
-      assert.equal(await s.seriesHolding(x.id, viewer("alice")), null);
-      assert.ok(await s.getSeries(x.id), "bob's copy went with alice's holding");
-      assert.equal(await s.deleteSeriesHolding(x.id, "alice"), "not_found");
+      await s.putSeries(x, { owner: "analyst_a", visibility: "private" });
+      await s.putSeries(x, { owner: "analyst_b", visibility: "private" });
+      const r = makeRun("analyst_b-uses", { inputSeries: [x.id] });
+      await s.putRun(r, { owner: "analyst_b", visibility: "private" });
+      assert.deepEqual(await s.seriesUsage(x.id, "analyst_b"), { own: [r.id], others: 0 });
+      assert.deepEqual(await s.seriesUsage(x.id, "analyst_a"), { own: [], others: 1 });
+      assert.equal(await s.deleteSeriesHolding(x.id, "analyst_c"), "not_found");
+      assert.equal(
+        await s.deleteSeriesHolding(x.id, "analyst_b"),
+        "in_use",
+        "analyst_b's own run uses it",
+      );
+      // Analyst A's delete succeeds without telling her that analyst_b holds or uses the same content.
+      assert.equal(await s.deleteSeriesHolding(x.id, "analyst_a"), "deleted");
+      assert.equal(await s.seriesHolding(x.id, viewer("analyst_a")), null);
+      assert.ok(await s.getSeries(x.id), "analyst_b's copy went with analyst_a's holding");
+      assert.equal(await s.deleteSeriesHolding(x.id, "analyst_a"), "not_found");
 
       const y = makeSeries("one-holder");
-      await s.putSeries(y, { owner: "alice", visibility: "group" });
-      const used = makeRun("bob-uses-shared", { inputSeries: [y.id] });
-      await s.putRun(used, { owner: "bob", visibility: "private" });
-      assert.equal(await s.deleteSeriesHolding(y.id, "alice"), "in_use", "a run still needs it");
+      await s.putSeries(y, { owner: "analyst_a", visibility: "group" });
+      const used = makeRun("analyst_b-uses-shared", { inputSeries: [y.id] });
+      await s.putRun(used, { owner: "analyst_b", visibility: "private" });
+      assert.equal(
+        await s.deleteSeriesHolding(y.id, "analyst_a"),
+        "in_use",
+        "a run still needs it",
+      );
       const z = makeSeries("unused");
-      await s.putSeries(z, { owner: "alice", visibility: "private" });
-      assert.equal(await s.deleteSeriesHolding(z.id, "alice"), "deleted");
+      await s.putSeries(z, { owner: "analyst_a", visibility: "private" });
+      assert.equal(await s.deleteSeriesHolding(z.id, "analyst_a"), "deleted");
       assert.equal(await s.getSeries(z.id), null, "the last holding took the content along");
-      assert.equal((await s.putSeries(z, { owner: "alice", visibility: "private" })).created, true);
+      assert.equal(
+        (await s.putSeries(z, { owner: "analyst_a", visibility: "private" })).created,
+        true,
+      );
     },
   );
 
   withStore("deleteSeries() removes every holding with the content", async (store) => {
     await addOwners(store);
     const x = makeSeries("admin-delete");
-    await store.putSeries(x, { owner: "alice", visibility: "private" });
-    await store.putSeries(x, { owner: "bob", visibility: "public" });
+    await store.putSeries(x, { owner: "analyst_a", visibility: "private" });
+    await store.putSeries(x, { owner: "analyst_b", visibility: "public" });
     assert.equal(await store.deleteSeries(x.id), "deleted");
     assert.equal(await store.seriesHolding(x.id, ADMIN), null);
     assert.equal((await store.listSeries({ limit: 5, offset: 0, viewer: ADMIN })).total, 0);
@@ -901,61 +934,66 @@ export function storeSuite(
   withStore("runs are listed and seen by visibility, and may gain holders", async (store) => {
     await addOwners(store);
     const x = makeSeries("run-input");
-    await store.putSeries(x, { owner: "alice", visibility: "group" });
-    const mine = makeRun("alice-private", { inputSeries: [x.id], createdAt: at(1) });
-    const shared = makeRun("alice-group", { inputSeries: [x.id], createdAt: at(2) });
-    const cited = makeRun("alice-public", { createdAt: at(3) });
-    await store.putRun(mine, { owner: "alice", visibility: "private" });
-    await store.putRun(shared, { owner: "alice", visibility: "group" });
-    await store.putRun(cited, { owner: "alice", visibility: "public" });
+    await store.putSeries(x, { owner: "analyst_a", visibility: "group" });
+    const mine = makeRun("analyst_a-private", { inputSeries: [x.id], createdAt: at(1) });
+    const shared = makeRun("analyst_a-group", { inputSeries: [x.id], createdAt: at(2) });
+    const cited = makeRun("analyst_a-public", { createdAt: at(3) });
+    await store.putRun(mine, { owner: "analyst_a", visibility: "private" });
+    await store.putRun(shared, { owner: "analyst_a", visibility: "group" });
+    await store.putRun(cited, { owner: "analyst_a", visibility: "public" });
     assert.deepEqual(await store.getRun(mine.id), mine, "holdings changed the record");
     const ids = async (v: Viewer, kind?: string) =>
       (await store.listRuns({ kind, limit: 10, offset: 0, viewer: v })).items.map((r) => r.id);
-    assert.deepEqual(await ids(viewer("alice")), [cited.id, shared.id, mine.id]);
-    assert.deepEqual(await ids(viewer("bob")), [cited.id, shared.id]);
-    assert.deepEqual(await ids(viewer("carol", "g2")), [cited.id]);
+    assert.deepEqual(await ids(viewer("analyst_a")), [cited.id, shared.id, mine.id]);
+    assert.deepEqual(await ids(viewer("analyst_b")), [cited.id, shared.id]);
+    assert.deepEqual(await ids(viewer("analyst_c", "g2")), [cited.id]);
     assert.deepEqual(await ids(viewer(null)), [cited.id]);
-    assert.deepEqual(await ids(viewer("bob"), "none"), []);
-    const page = await store.listRuns({ limit: 10, offset: 0, viewer: viewer("bob") });
+    assert.deepEqual(await ids(viewer("analyst_b"), "none"), []);
+    const page = await store.listRuns({ limit: 10, offset: 0, viewer: viewer("analyst_b") });
     assert.equal(page.total, 2);
-    assert.equal(page.items[1].owner, "alice");
+    assert.equal(page.items[1].owner, "analyst_a");
     assert.equal(page.items[1].visibility, "group");
     assert.deepEqual(page.items[1].input_series, [x.id]);
-    assert.equal(await store.runHolding(mine.id, viewer("bob")), null);
-    assert.equal((await store.runHolding(mine.id, ADMIN))!.owner, "alice");
-    assert.deepEqual(await store.runsUsingSeries(x.id, viewer("bob")), [shared.id]);
+    assert.equal(await store.runHolding(mine.id, viewer("analyst_b")), null);
+    assert.equal((await store.runHolding(mine.id, ADMIN))!.owner, "analyst_a");
+    assert.deepEqual(await store.runsUsingSeries(x.id, viewer("analyst_b")), [shared.id]);
     assert.deepEqual((await store.runsUsingSeries(x.id)).sort(), [mine.id, shared.id].sort());
-    assert.equal(await store.setRunVisibility(mine.id, "bob", "public"), false);
-    assert.equal(await store.setRunVisibility(mine.id, "alice", "public"), true);
+    assert.equal(await store.setRunVisibility(mine.id, "analyst_b", "public"), false);
+    assert.equal(await store.setRunVisibility(mine.id, "analyst_a", "public"), true);
     assert.ok(await store.runHolding(mine.id, viewer(null)));
     assert.equal(
-      await store.addRunHolding(cited.id, { owner: "carol", visibility: "private" }),
+      await store.addRunHolding(cited.id, { owner: "analyst_c", visibility: "private" }),
       true,
     );
     assert.equal(
-      await store.addRunHolding(cited.id, { owner: "carol", visibility: "public" }),
+      await store.addRunHolding(cited.id, { owner: "analyst_c", visibility: "public" }),
       false,
     );
-    assert.equal((await store.runHolding(cited.id, viewer("carol", "g2")))!.owner, "carol");
+    assert.equal((await store.runHolding(cited.id, viewer("analyst_c", "g2")))!.owner, "analyst_c");
     await assert.rejects(
-      () => store.addRunHolding(makeRun("ghost-run").id, { owner: "carol", visibility: "private" }),
+      () =>
+        store.addRunHolding(makeRun("ghost-run").id, { owner: "analyst_c", visibility: "private" }),
       RunNotFoundError,
     );
   });
 
   withStore("storedBytes() counts the points and run texts an owner holds", async (store) => {
     await addOwners(store);
-    assert.equal(await store.storedBytes("alice"), 0);
+    assert.equal(await store.storedBytes("analyst_a"), 0);
     const x = makeSeries("bytes", { n: 100 });
-    await store.putSeries(x, { owner: "alice", visibility: "private" });
-    assert.equal(await store.storedBytes("alice"), 2400);
-    await store.putSeries(x, { owner: "bob", visibility: "private" });
-    assert.equal(await store.storedBytes("bob"), 2400, "shared content counts for each holder");
+    await store.putSeries(x, { owner: "analyst_a", visibility: "private" });
+    assert.equal(await store.storedBytes("analyst_a"), 2400);
+    await store.putSeries(x, { owner: "analyst_b", visibility: "private" });
+    assert.equal(
+      await store.storedBytes("analyst_b"),
+      2400,
+      "shared content counts for each holder",
+    );
     const r = makeRun("bytes-run", { inputSeries: [x.id] });
-    await store.putRun(r, { owner: "alice", visibility: "private" });
+    await store.putRun(r, { owner: "analyst_a", visibility: "private" });
     const runBytes = new TextEncoder().encode(JSON.stringify(r.params)).length +
       new TextEncoder().encode(JSON.stringify(r.result)).length;
-    assert.equal(await store.storedBytes("alice"), 2400 + runBytes);
-    assert.equal(await store.storedBytes("carol"), 0);
+    assert.equal(await store.storedBytes("analyst_a"), 2400 + runBytes);
+    assert.equal(await store.storedBytes("analyst_c"), 0);
   });
 }
