@@ -83,7 +83,8 @@ export function defaultCycleProminence(value: ArrayLike<number>): number {
  *
  * Edge cases: NaN values (undefined ends of a smoothing, gaps) are skipped; a minimum at the
  * first or last defined point is never reported (the series may continue to fall). Fewer than
- * 3 defined points give no extrema. Cost O(N·K) for K candidates.
+ * 3 defined points give no extrema. Cost O(N): both climbs of every point come from one
+ * monotone-stack pass each way ({@link climbHeights}).
  *
  * @param time decimal years, increasing, same length as value
  * @param value smoothed values (NaN = undefined)
@@ -120,18 +121,21 @@ export function findCycleExtrema(
       { field: "minSeparation", reason: "out_of_range", value: sep },
     );
   }
-  // defined points only
-  const idx: number[] = [];
-  for (let i = 0; i < value.length; i++) if (Number.isFinite(value[i])) idx.push(i);
-  const n = idx.length;
-  if (n < 3) return [];
-  const v = idx.map((i) => value[i]);
-  let lo = Infinity, hi = -Infinity;
-  for (const x of v) {
-    if (x < lo) lo = x;
-    if (x > hi) hi = x;
+  // defined points only (typed arrays: no per-point objects), and their range
+  const idx = new Int32Array(value.length);
+  const v = new Float64Array(value.length);
+  let n = 0, lo = Infinity, hi = -Infinity;
+  for (let i = 0; i < value.length; i++) {
+    const x = value[i];
+    if (Number.isFinite(x)) {
+      idx[n] = i;
+      v[n++] = x;
+      if (x < lo) lo = x;
+      if (x > hi) hi = x;
+    }
   }
-  const prom = options.prominence ?? defaultCycleProminence(v);
+  if (n < 3) return [];
+  const prom = options.prominence ?? 0.1 * (hi - lo); // defaultCycleProminence(v)
   if (options.prominence !== undefined && !(Number.isFinite(prom) && prom > 0)) {
     throw new InputError(
       `Cannot find cycle extrema: prominence must be a positive finite number, current value is ${prom}`,
@@ -140,7 +144,9 @@ export function findCycleExtrema(
   }
   if (!(hi > lo)) return [];
 
-  // local minima candidates (plateaus: the middle sample)
+  // local minima candidates (plateaus: the middle sample), with their prominence from the
+  // two climbs of {@link climbHeights}
+  const { left, right } = climbHeights(v.subarray(0, n));
   const cands: { k: number; prom: number }[] = [];
   for (let k = 1; k < n - 1;) {
     if (v[k] < v[k - 1]) {
@@ -148,11 +154,7 @@ export function findCycleExtrema(
       while (e + 1 < n && v[e + 1] === v[k]) e++;
       if (e + 1 < n && v[e + 1] > v[k]) {
         const mid = (k + e) >> 1;
-        // prominence: climb until a strictly lower point on each side
-        let left = v[k], right = v[k];
-        for (let j = k - 1; j >= 0 && v[j] >= v[k]; j--) if (v[j] > left) left = v[j];
-        for (let j = e + 1; j < n && v[j] >= v[k]; j++) if (v[j] > right) right = v[j];
-        cands.push({ k: mid, prom: Math.min(left, right) - v[k] });
+        cands.push({ k: mid, prom: Math.min(left[k], right[k]) - v[k] });
       }
       k = e + 1;
     } else k++;
@@ -205,4 +207,63 @@ export function findCycleExtrema(
     }
   }
   return out;
+}
+
+/**
+ * The two climbs of every point of a series, the heights that define a minimum's prominence:
+ * `left[k]` = max v[j0 + 1 .. k], where j0 is the nearest index before k with v[j0] < v[k]
+ * (−1 when there is none), and `right[k]` = max v[k .. j1 − 1], where j1 is the nearest index
+ * after k with v[j1] < v[k] (n when there is none).
+ *
+ * Method: the "all nearest smaller values" stack (Berkman, Schieber & Vishkin 1993, J.
+ * Algorithms 14, 344), the same monotone-wedge idea as Lemire's streaming maximum–minimum
+ * filter (Lemire 2006, Nordic J. Computing 13, 328): the stack holds the indices whose value is
+ * below everything after them, each with the maximum of the stretch it closes; a new point
+ * pops the entries not strictly below it and takes the largest of their maxima. Each index is
+ * pushed and popped once per direction: O(N) where climbing from each candidate is O(N·K).
+ * Written by hand: no maintained JS library offers it over typed arrays.
+ *
+ * @param v finite values
+ * @returns the left and right climbs, same units as v, at the points that are not strictly
+ *   inside a monotone run (every local minimum is among them; 0 elsewhere)
+ */
+function climbHeights(v: Float64Array): { left: Float64Array; right: Float64Array } {
+  const n = v.length;
+  const left = new Float64Array(n), right = new Float64Array(n);
+  // A point strictly inside a monotone run never bounds or tops a climb of a point kept here
+  // (its lower neighbour is nearer, its higher neighbour is higher), so the stack runs over
+  // the ends, the turning points and the plateau edges only (a tenth of the points of a
+  // smoothed monthly record).
+  const turn = new Int32Array(n);
+  let m = 0;
+  turn[m++] = 0;
+  for (let k = 1; k < n - 1; k++) {
+    const a = v[k - 1], x = v[k], b = v[k + 1];
+    if (!((a < x && x < b) || (a > x && x > b))) turn[m++] = k;
+  }
+  if (n > 1) turn[m++] = n - 1;
+  const stack = new Int32Array(m);
+  let top = 0;
+  for (let t = 0; t < m; t++) {
+    const k = turn[t], x = v[k];
+    let h = x;
+    while (top > 0 && v[stack[top - 1]] >= x) {
+      const s = left[stack[--top]];
+      if (s > h) h = s;
+    }
+    left[k] = h;
+    stack[top++] = k;
+  }
+  top = 0;
+  for (let t = m - 1; t >= 0; t--) {
+    const k = turn[t], x = v[k];
+    let h = x;
+    while (top > 0 && v[stack[top - 1]] >= x) {
+      const s = right[stack[--top]];
+      if (s > h) h = s;
+    }
+    right[k] = h;
+    stack[top++] = k;
+  }
+  return { left, right };
 }
