@@ -5,7 +5,7 @@
  * @module
  */
 import { InputError } from "../errors.ts";
-import { proxyRegressor, type ProxyRole } from "./proxy_model_evaluation.ts";
+import type { ProxyRole } from "./proxy_model_evaluation.ts";
 import type { SunspotProxyMapping } from "./sunspot_proxy_mapping.ts";
 import { sunspotMappingValues } from "./sunspot_proxy_mapping.ts";
 import type { SunspotCellUncertainty } from "./sunspot_number_uncertainty.ts";
@@ -15,7 +15,7 @@ import {
   type ErrorSource,
   type ReconstructionErrorModel,
 } from "./reconstruction_error_model.ts";
-import { proxyReconstructionErrorModel } from "./proxy_reconstruction_errors.ts";
+import { designRegressors, proxyReconstructionErrorModel } from "./proxy_reconstruction_errors.ts";
 
 /** The parts of a calibrated model a reconstruction needs. */
 export interface ReconstructionModel {
@@ -124,7 +124,7 @@ export function reconstructionDesign(
   checkCells(model, cells);
   const K = model.terms.length, n = cells.days.length;
   const source = new Uint8Array(n).fill(SOURCE_DIRECT);
-  const values = cells.direct.map((d) => Float64Array.from(d));
+  const values = cells.direct.map((d) => new Float64Array(d));
   const mapped = cells.direct.map(() => new Uint8Array(n));
   for (let k = 0; k < K; k++) {
     const m = cells.mappings[k];
@@ -286,37 +286,38 @@ function reconstructWithDesign(
 ): Reconstruction {
   const K = model.terms.length, n = cells.days.length;
   const beta = model.coefficients;
-  const errorModel = proxyReconstructionErrorModel(model, cells, design);
+  // the regressors are computed once, for the values and for the calibration loadings
+  const x = designRegressors(model, design);
+  const errorModel = proxyReconstructionErrorModel(model, cells, design, x);
   const v = errorModelVariance(errorModel);
   const value = new Float64Array(n), sd = new Float64Array(n);
   const lower = new Float64Array(n), upper = new Float64Array(n);
-  const components = Object.fromEntries(
-    ERROR_SOURCES.map((s) => [s, new Float64Array(n)]),
-  ) as Record<ErrorSource, Float64Array>;
+  // the variances by source are the result's components (NaN where a cell has no value)
+  const components = v.bySource;
+  const bySource = ERROR_SOURCES.map((s) => components[s]);
+  const total = v.total, source = design.source;
+  // ŷ = β₀ + Σ_k β_k·x_k, added term by term in that order, one pass per term
+  value.fill(beta[0]);
+  for (let k = 0; k < K; k++) {
+    const b = beta[k + 1], xk = x[k];
+    for (let i = 0; i < n; i++) value[i] += b * xk[i];
+  }
   for (let i = 0; i < n; i++) {
-    if (design.source[i] === SOURCE_NONE) {
+    if (source[i] === SOURCE_NONE) {
       value[i] =
         sd[i] =
         lower[i] =
         upper[i] =
           NaN;
-      for (const s of ERROR_SOURCES) components[s][i] = NaN;
+      for (const c of bySource) c[i] = NaN;
       continue;
     }
-    let y = beta[0];
-    for (let k = 0; k < K; k++) {
-      const t = model.terms[k];
-      y += beta[k + 1] *
-        proxyRegressor(t.role, t.quietLevel, model.psiReference, design.values[k][i]);
-    }
-    const s = Math.sqrt(v.total[i]);
-    value[i] = y;
+    const y = value[i], s = Math.sqrt(total[i]);
     sd[i] = s;
     lower[i] = y - z * s;
     upper[i] = y + z * s;
-    for (const src of ERROR_SOURCES) components[src][i] = v.bySource[src][i];
   }
-  return { value, sd, lower, upper, source: design.source, components, errorModel, design };
+  return { value, sd, lower, upper, source, components, errorModel, design };
 }
 
 /** Names of the source codes, in code order. */

@@ -6,7 +6,7 @@
  * @module
  */
 import { choleskyLower } from "../stats/multivariate_normal.ts";
-import { proxyRegressor, proxyRegressorScale } from "./proxy_model_evaluation.ts";
+import { proxyRegressorColumn, proxyRegressorScale } from "./proxy_model_evaluation.ts";
 import { sunspotMappingDerivatives } from "./sunspot_proxy_mapping.ts";
 import { mappingCholesky } from "./back_extension.ts";
 import { ar1CellMeans } from "./ar1_cell_means.ts";
@@ -67,6 +67,33 @@ export function sunspotSensitivity(
 }
 
 /**
+ * The regressors of the values a reconstruction uses: per term, its regressor in every cell
+ * ({@link proxyRegressorColumn}; NaN where the cell has no value).
+ *
+ * @param model the calibrated model (terms and S_ref)
+ * @param design the values used ({@link reconstructionDesign} in ./proxy_reconstruction.ts)
+ * @returns one column per term
+ * @example
+ * ```ts
+ * import { designRegressors } from "./proxy_reconstruction_errors.ts";
+ * import assert from "node:assert/strict";
+ * const x = designRegressors(
+ *   { terms: [{ role: "facular", quietLevel: 0.15 }], psiReference: 1360.8 },
+ *   { source: Uint8Array.of(1), values: [Float64Array.of(0.16)], mapped: [Uint8Array.of(0)] },
+ * );
+ * assert.ok(Math.abs(x[0][0] - 0.01) < 1e-15);
+ * ```
+ */
+export function designRegressors(
+  model: Pick<ReconstructionModel, "terms" | "psiReference">,
+  design: ReconstructionDesign,
+): Float64Array[] {
+  return model.terms.map((t, k) =>
+    proxyRegressorColumn(t.role, t.quietLevel, model.psiReference, design.values[k])
+  );
+}
+
+/**
  * The error model of a reconstruction, part by part (see
  * core/irradiance/reconstruction_error_model.ts for the form):
  *
@@ -84,6 +111,7 @@ export function sunspotSensitivity(
  * @param model the calibrated model
  * @param cells the cells
  * @param design the values used
+ * @param regressors per term, the regressor in each cell (default: {@link designRegressors})
  * @returns the {@link ReconstructionErrorModel}
  * @throws {InputError} (field `covariance` or `mapping`) when a covariance cannot be factored;
  *   (fields of ar1CellMeans) for an invalid residual process
@@ -107,51 +135,38 @@ export function proxyReconstructionErrorModel(
   model: ReconstructionModel,
   cells: ReconstructionCells,
   design: ReconstructionDesign,
+  regressors: readonly Float64Array[] = designRegressors(model, design),
 ): ReconstructionErrorModel {
   const n = cells.days.length, K = model.terms.length;
   const { source } = design;
   const factors: ErrorFactor[] = [];
   const processes: ErrorProcess[] = [];
-  // calibration: loadings Lᵀx
+  // calibration: loadings Lᵀx, x = (1, x_1, …, x_K): column j is 0 + Σ_{a ≥ j} x_a·L[a][j],
+  // added in that order (x_0 = 1 contributes L[0][0] itself), one pass per term over the cells
   const L = choleskyLower(model.covariance);
-  const x = new Float64Array(K + 1);
-  const cal = Array.from({ length: K + 1 }, () => new Float64Array(n));
-  for (let i = 0; i < n; i++) {
-    if (!source[i]) continue;
-    x[0] = 1;
-    for (let k = 0; k < K; k++) {
-      const t = model.terms[k];
-      x[k + 1] = proxyRegressor(t.role, t.quietLevel, model.psiReference, design.values[k][i]);
-    }
-    for (let j = 0; j <= K; j++) {
-      let s = 0;
-      for (let a = j; a <= K; a++) s += x[a] * L[a][j];
-      cal[j][i] = s;
-    }
-  }
-  cal.forEach((loading, j) =>
+  for (let j = 0; j <= K; j++) {
+    const loading = new Float64Array(n);
+    if (j === 0) loading.fill(0 + L[0][0]);
+    for (let a = Math.max(1, j); a <= K; a++) addScaled(loading, regressors[a - 1], L[a][j]);
+    for (let i = 0; i < n; i++) if (!source[i]) loading[i] = 0;
     factors.push({
       source: "calibration",
       label: `calibration coefficients, direction ${j + 1}`,
       loading,
-    })
-  );
-  // mappings: loadings β_k·s_k·Lᵀg
+    });
+  }
+  // mappings: loadings β_k·s_k·Lᵀg, Lᵀg summed as above
   model.terms.forEach((t, k) => {
-    const m = cells.mappings[k];
-    if (!m || !cells.sunspot || !design.mapped[k].includes(1)) return;
+    const m = cells.mappings[k], mapped = design.mapped[k];
+    if (!m || !cells.sunspot || !mapped.includes(1)) return;
     const Lc = mappingCholesky(m);
     const g = sunspotMappingDerivatives(m, cells.sunspot).gradient;
     const f = model.coefficients[k + 1] * proxyRegressorScale(t.role, model.psiReference);
     const p = m.coefficients.length;
     for (let j = 0; j < p; j++) {
       const loading = new Float64Array(n);
-      for (let i = 0; i < n; i++) {
-        if (!design.mapped[k][i]) continue;
-        let s = 0;
-        for (let a = j; a < p; a++) s += g[a][i] * Lc[a][j];
-        loading[i] = f * s;
-      }
+      for (let a = j; a < p; a++) addScaled(loading, g[a], Lc[a][j]);
+      for (let i = 0; i < n; i++) loading[i] = mapped[i] ? f * loading[i] : 0;
       factors.push({
         source: "mapping",
         label: `mapping of term ${k + 1} (${m.form}), parameter direction ${j + 1}`,
@@ -168,8 +183,8 @@ export function proxyReconstructionErrorModel(
     label: string,
   ) => {
     const cm = ar1CellMeans(cells.days, sd, rho, stepDays);
-    const loading = new Float64Array(n);
-    for (let i = 0; i < n; i++) if (source[i] === which) loading[i] = cm.sd[i];
+    const loading = cm.sd; // kept on this source's cells only
+    for (let i = 0; i < n; i++) if (source[i] !== which) loading[i] = 0;
     processes.push({ source: "residual", label, loading, lag1: cm.lag1 });
   };
   residual(
@@ -215,4 +230,9 @@ export function proxyReconstructionErrorModel(
     });
   }
   return { cells: n, factors, processes };
+}
+
+/** out[i] += x[i]·c for every i (one step of a sum kept in cell order). */
+function addScaled(out: Float64Array, x: Float64Array, c: number): void {
+  for (let i = 0; i < out.length; i++) out[i] += x[i] * c;
 }

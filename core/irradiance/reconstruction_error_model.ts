@@ -98,14 +98,12 @@ export function errorModelVariance(
     ERROR_SOURCES.map((s) => [s, new Float64Array(n)]),
   ) as Record<ErrorSource, Float64Array>;
   for (const part of [...em.factors, ...em.processes]) {
-    const out = bySource[part.source], l = part.loading;
-    for (let i = 0; i < n; i++) out[i] += l[i] * l[i];
+    addSquares(bySource[part.source], part.loading);
   }
+  // Σ over the sources in ERROR_SOURCES order, as ((0 + calibration) + residual) + …
   const total = new Float64Array(n);
-  for (const s of ERROR_SOURCES) {
-    const v = bySource[s];
-    for (let i = 0; i < n; i++) total[i] += v[i];
-  }
+  const { calibration, residual, mapping, input } = bySource;
+  for (let i = 0; i < n; i++) total[i] = 0 + calibration[i] + residual[i] + mapping[i] + input[i];
   return { total, bySource };
 }
 
@@ -211,4 +209,9 @@ export function differenceFromMeanVariance(
     variance[i] = Math.max(0, variance[i] + meanVariance - 2 * covariance[i]);
   }
   return { variance, meanVariance, covariance, count };
+}
+
+/** out[i] += l[i]² for every i. */
+function addSquares(out: Float64Array, l: Float64Array): void {
+  for (let i = 0; i < out.length; i++) out[i] += l[i] * l[i];
 }
