@@ -142,35 +142,37 @@ export function proxyReconstructionErrorModel(
   const factors: ErrorFactor[] = [];
   const processes: ErrorProcess[] = [];
   // calibration: loadings Lᵀx, x = (1, x_1, …, x_K): column j is 0 + Σ_{a ≥ j} x_a·L[a][j],
-  // added in that order (x_0 = 1 contributes L[0][0] itself), one pass per term over the cells
+  // added in that order (x_0 = 1 contributes L[0][0] itself), on the cells with a value
   const L = choleskyLower(model.covariance);
   for (let j = 0; j <= K; j++) {
-    const loading = new Float64Array(n);
-    if (j === 0) loading.fill(0 + L[0][0]);
-    for (let a = Math.max(1, j); a <= K; a++) addScaled(loading, regressors[a - 1], L[a][j]);
-    for (let i = 0; i < n; i++) if (!source[i]) loading[i] = 0;
+    const terms = regressors.slice(Math.max(1, j) - 1);
+    const weights = terms.map((_, a) => L[Math.max(1, j) + a][j]);
     factors.push({
       source: "calibration",
       label: `calibration coefficients, direction ${j + 1}`,
-      loading,
+      loading: maskedCombination(n, j === 0 ? 0 + L[0][0] : 0, terms, weights, source, 1),
     });
   }
-  // mappings: loadings β_k·s_k·Lᵀg, Lᵀg summed as above
+  // mappings: loadings β_k·s_k·Lᵀg, Lᵀg summed as above, on the cells where term k was mapped
   model.terms.forEach((t, k) => {
     const m = cells.mappings[k], mapped = design.mapped[k];
     if (!m || !cells.sunspot || !mapped.includes(1)) return;
     const Lc = mappingCholesky(m);
-    const g = sunspotMappingDerivatives(m, cells.sunspot).gradient;
     const f = model.coefficients[k + 1] * proxyRegressorScale(t.role, model.psiReference);
     const p = m.coefficients.length;
+    // the gradient of a linear mapping is (1, R): its constant column enters as the initial
+    // term (0 + 1·Lc[0][0]) rather than as a column of ones
+    const linear = m.form === "linear";
+    const g = linear ? [cells.sunspot] : sunspotMappingDerivatives(m, cells.sunspot).gradient;
     for (let j = 0; j < p; j++) {
-      const loading = new Float64Array(n);
-      for (let a = j; a < p; a++) addScaled(loading, g[a], Lc[a][j]);
-      for (let i = 0; i < n; i++) loading[i] = mapped[i] ? f * loading[i] : 0;
+      const init = linear && j === 0 ? 0 + Lc[0][0] : 0;
+      const from = linear ? Math.max(1, j) : j;
+      const terms = g.slice(linear ? from - 1 : from);
+      const weights = terms.map((_, a) => Lc[from + a][j]);
       factors.push({
         source: "mapping",
         label: `mapping of term ${k + 1} (${m.form}), parameter direction ${j + 1}`,
-        loading,
+        loading: maskedCombination(n, init, terms, weights, mapped, f),
       });
     }
   });
@@ -232,7 +234,30 @@ export function proxyReconstructionErrorModel(
   return { cells: n, factors, processes };
 }
 
-/** out[i] += x[i]·c for every i (one step of a sum kept in cell order). */
-function addScaled(out: Float64Array, x: Float64Array, c: number): void {
-  for (let i = 0; i < out.length; i++) out[i] += x[i] * c;
+/** Cells per block of {@link maskedCombination} (a few columns of 2,048 doubles stay in cache). */
+const BLOCK = 2048;
+
+/**
+ * out[i] = scale·(init + x_0[i]·c_0 + x_1[i]·c_1 + …), added in that order, where mask[i] ≠ 0,
+ * and 0 elsewhere; computed in blocks of cells so that each column is read once.
+ */
+function maskedCombination(
+  n: number,
+  init: number,
+  xs: readonly Float64Array[],
+  cs: readonly number[],
+  mask: Uint8Array,
+  scale: number,
+): Float64Array {
+  const out = new Float64Array(n);
+  for (let i0 = 0; i0 < n; i0 += BLOCK) {
+    const i1 = Math.min(n, i0 + BLOCK);
+    out.fill(init, i0, i1);
+    for (let a = 0; a < xs.length; a++) {
+      const x = xs[a], c = cs[a];
+      for (let i = i0; i < i1; i++) out[i] += x[i] * c;
+    }
+    for (let i = i0; i < i1; i++) out[i] = mask[i] ? scale * out[i] : 0;
+  }
+  return out;
 }

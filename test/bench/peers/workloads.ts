@@ -97,6 +97,12 @@ async function lagJob(n: number, dir: string): Promise<Job> {
   };
 }
 
+function mean(a: Float64Array): number {
+  let s = 0;
+  for (let i = 0; i < a.length; i++) s += a[i];
+  return s / a.length;
+}
+
 async function irradianceJob(dir: string): Promise<Job> {
   const work = irradianceCase();
   await writeInputs(dir, work.inputs);
@@ -117,7 +123,7 @@ async function irradianceJob(dir: string): Promise<Job> {
         mean_value: v / rec.value.length,
         mean_sd: s / rec.sd.length,
         mean_variance: Object.fromEntries(
-          Object.entries(rec.components).map(([k, c]) => [k, c.reduce((a, b) => a + b) / c.length]),
+          Object.entries(rec.components).map(([k, c]) => [k, mean(c)]),
         ),
         loadings: rec.errorModel.factors.length,
         processes: rec.errorModel.processes.length,
