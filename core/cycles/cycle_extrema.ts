@@ -121,19 +121,28 @@ export function findCycleExtrema(
       { field: "minSeparation", reason: "out_of_range", value: sep },
     );
   }
-  // defined points only (typed arrays: no per-point objects), and their range
+  // defined points only (typed arrays: no per-point objects), their range, and their turning
+  // points: the ends and every point not strictly inside a monotone run (turning points and
+  // plateau samples; every local minimum's first sample is one), found as the next point comes
   const idx = new Int32Array(value.length);
   const v = new Float64Array(value.length);
-  let n = 0, lo = Infinity, hi = -Infinity;
+  const turn = new Int32Array(value.length);
+  let n = 0, m = 0, lo = Infinity, hi = -Infinity;
   for (let i = 0; i < value.length; i++) {
     const x = value[i];
-    if (Number.isFinite(x)) {
-      idx[n] = i;
-      v[n++] = x;
-      if (x < lo) lo = x;
-      if (x > hi) hi = x;
+    if (!Number.isFinite(x)) continue;
+    idx[n] = i;
+    v[n] = x;
+    if (x < lo) lo = x;
+    if (x > hi) hi = x;
+    if (n === 0) turn[m++] = 0;
+    else if (n >= 2) {
+      const a = v[n - 2], b = v[n - 1];
+      if (!((a < b && b < x) || (a > b && b > x))) turn[m++] = n - 1;
     }
+    n++;
   }
+  if (n > 1) turn[m++] = n - 1;
   if (n < 3) return [];
   const prom = options.prominence ?? 0.1 * (hi - lo); // defaultCycleProminence(v)
   if (options.prominence !== undefined && !(Number.isFinite(prom) && prom > 0)) {
@@ -145,19 +154,18 @@ export function findCycleExtrema(
   if (!(hi > lo)) return [];
 
   // local minima candidates (plateaus: the middle sample), with their prominence from the
-  // two climbs of {@link climbHeights}
-  const { left, right } = climbHeights(v.subarray(0, n));
+  // two climbs of {@link climbHeights}; every candidate's first sample is a turning point
+  const turns = turn.subarray(0, m);
+  const { left, right } = climbHeights(v, turns);
   const cands: { k: number; prom: number }[] = [];
-  for (let k = 1; k < n - 1;) {
-    if (v[k] < v[k - 1]) {
-      let e = k;
-      while (e + 1 < n && v[e + 1] === v[k]) e++;
-      if (e + 1 < n && v[e + 1] > v[k]) {
-        const mid = (k + e) >> 1;
-        cands.push({ k: mid, prom: Math.min(left[k], right[k]) - v[k] });
-      }
-      k = e + 1;
-    } else k++;
+  for (let t = 0; t < turns.length; t++) {
+    const k = turns[t];
+    if (k < 1 || k >= n - 1 || !(v[k] < v[k - 1])) continue;
+    let e = k;
+    while (e + 1 < n && v[e + 1] === v[k]) e++;
+    if (e + 1 < n && v[e + 1] > v[k]) {
+      cands.push({ k: (k + e) >> 1, prom: Math.min(left[t], right[t]) - v[k] });
+    }
   }
   const strong = cands.filter((c) => c.prom >= prom);
   strong.sort((a, b) => v[a.k] - v[b.k] || a.k - b.k);
@@ -210,60 +218,54 @@ export function findCycleExtrema(
 }
 
 /**
- * The two climbs of every point of a series, the heights that define a minimum's prominence:
- * `left[k]` = max v[j0 + 1 .. k], where j0 is the nearest index before k with v[j0] < v[k]
- * (−1 when there is none), and `right[k]` = max v[k .. j1 − 1], where j1 is the nearest index
- * after k with v[j1] < v[k] (n when there is none).
+ * The two climbs of the points of a series that matter for prominences, the turning points
+ * (the ends, and every point not strictly inside a monotone run): `left[t]` = max v[j0 + 1 .. k] for k = turns[t], where j0 is the
+ * nearest index before k with v[j0] < v[k] (−1 when there is none), and `right[t]` =
+ * max v[k .. j1 − 1], where j1 is the nearest index after k with v[j1] < v[k] (n when there is
+ * none). A point strictly inside a monotone run never bounds or tops such a climb (its lower
+ * neighbour is nearer, its higher neighbour is higher), so the turning points suffice: a tenth
+ * of the points of a smoothed monthly record.
  *
  * Method: the "all nearest smaller values" stack (Berkman, Schieber & Vishkin 1993, J.
  * Algorithms 14, 344), the same monotone-wedge idea as Lemire's streaming maximum–minimum
- * filter (Lemire 2006, Nordic J. Computing 13, 328): the stack holds the indices whose value is
+ * filter (Lemire 2006, Nordic J. Computing 13, 328): the stack holds the points whose value is
  * below everything after them, each with the maximum of the stretch it closes; a new point
- * pops the entries not strictly below it and takes the largest of their maxima. Each index is
+ * pops the entries not strictly below it and takes the largest of their maxima. Each point is
  * pushed and popped once per direction: O(N) where climbing from each candidate is O(N·K).
  * Written by hand: no maintained JS library offers it over typed arrays.
  *
  * @param v finite values
- * @returns the left and right climbs, same units as v, at the points that are not strictly
- *   inside a monotone run (every local minimum is among them; 0 elsewhere)
+ * @param turns indices into v of its turning points, increasing
+ * @returns the left and right climbs at each turning point, same units as v
  */
-function climbHeights(v: Float64Array): { left: Float64Array; right: Float64Array } {
-  const n = v.length;
-  const left = new Float64Array(n), right = new Float64Array(n);
-  // A point strictly inside a monotone run never bounds or tops a climb of a point kept here
-  // (its lower neighbour is nearer, its higher neighbour is higher), so the stack runs over
-  // the ends, the turning points and the plateau edges only (a tenth of the points of a
-  // smoothed monthly record).
-  const turn = new Int32Array(n);
-  let m = 0;
-  turn[m++] = 0;
-  for (let k = 1; k < n - 1; k++) {
-    const a = v[k - 1], x = v[k], b = v[k + 1];
-    if (!((a < x && x < b) || (a > x && x > b))) turn[m++] = k;
-  }
-  if (n > 1) turn[m++] = n - 1;
-  const stack = new Int32Array(m);
+function climbHeights(
+  v: Float64Array,
+  turns: Int32Array,
+): { left: Float64Array; right: Float64Array } {
+  const m = turns.length;
+  const left = new Float64Array(m), right = new Float64Array(m);
+  const stack = new Int32Array(m); // positions in turns
   let top = 0;
   for (let t = 0; t < m; t++) {
-    const k = turn[t], x = v[k];
+    const x = v[turns[t]];
     let h = x;
-    while (top > 0 && v[stack[top - 1]] >= x) {
+    while (top > 0 && v[turns[stack[top - 1]]] >= x) {
       const s = left[stack[--top]];
       if (s > h) h = s;
     }
-    left[k] = h;
-    stack[top++] = k;
+    left[t] = h;
+    stack[top++] = t;
   }
   top = 0;
   for (let t = m - 1; t >= 0; t--) {
-    const k = turn[t], x = v[k];
+    const x = v[turns[t]];
     let h = x;
-    while (top > 0 && v[stack[top - 1]] >= x) {
+    while (top > 0 && v[turns[stack[top - 1]]] >= x) {
       const s = right[stack[--top]];
       if (s > h) h = s;
     }
-    right[k] = h;
-    stack[top++] = k;
+    right[t] = h;
+    stack[top++] = t;
   }
   return { left, right };
 }
