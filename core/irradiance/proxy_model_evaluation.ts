@@ -58,7 +58,8 @@ export function proxyRegressor(
  * @param quietLevel F_Q (ignored for the darkening term)
  * @param psiReference S_ref, W m-2
  * @param values the proxy values (NaN stays NaN)
- * @returns the regressors, one per value
+ * @param out where to write the regressors (length ≥ values.length) @default a new array
+ * @returns `out`: the regressors, one per value
  * @example
  * ```ts
  * import { proxyRegressorColumn } from "./proxy_model_evaluation.ts";
@@ -73,8 +74,9 @@ export function proxyRegressorColumn(
   quietLevel: number,
   psiReference: number,
   values: ArrayLike<number>,
+  out: Float64Array = new Float64Array(values.length),
 ): Float64Array {
-  const n = values.length, out = new Float64Array(n);
+  const n = values.length;
   if (role === "sunspot_darkening") {
     const s = -psiReference;
     for (let i = 0; i < n; i++) out[i] = s * values[i];

@@ -5,7 +5,8 @@
  * @module
  */
 import { InputError } from "../errors.ts";
-import type { ProxyRole } from "./proxy_model_evaluation.ts";
+import { proxyRegressorColumn, type ProxyRole } from "./proxy_model_evaluation.ts";
+import { workArrays } from "../stats/work_arrays.ts";
 import type { SunspotProxyMapping } from "./sunspot_proxy_mapping.ts";
 import { sunspotMappingValues } from "./sunspot_proxy_mapping.ts";
 import type { SunspotCellUncertainty } from "./sunspot_number_uncertainty.ts";
@@ -15,7 +16,7 @@ import {
   type ErrorSource,
   type ReconstructionErrorModel,
 } from "./reconstruction_error_model.ts";
-import { designRegressors, proxyReconstructionErrorModel } from "./proxy_reconstruction_errors.ts";
+import { proxyReconstructionErrorModel } from "./proxy_reconstruction_errors.ts";
 
 /** The parts of a calibrated model a reconstruction needs. */
 export interface ReconstructionModel {
@@ -48,6 +49,12 @@ export interface ReconstructionCells {
   /** The uncertainty of the cells' sunspot numbers; null or absent = taken as exact. */
   sunspotUncertainty?: SunspotCellUncertainty | null;
 }
+
+/**
+ * Scratch arrays of reconstructions: per term, its values mapped from sunspot number (index k)
+ * and its regressors (index K + k); temporaries only, never part of a result.
+ */
+const work = workArrays();
 
 /** Source of a reconstructed value. */
 export const SOURCE_NONE = 0, SOURCE_DIRECT = 1, SOURCE_BACK_EXTENDED = 2;
@@ -129,7 +136,7 @@ export function reconstructionDesign(
   for (let k = 0; k < K; k++) {
     const m = cells.mappings[k];
     const viaMap = m && cells.sunspot
-      ? sunspotMappingValues(m.form, m.coefficients, cells.sunspot, new Float64Array(n))
+      ? sunspotMappingValues(m.form, m.coefficients, cells.sunspot, work(k, n))
       : null;
     for (let i = 0; i < n; i++) {
       if (Number.isFinite(values[k][i])) continue;
@@ -286,8 +293,11 @@ function reconstructWithDesign(
 ): Reconstruction {
   const K = model.terms.length, n = cells.days.length;
   const beta = model.coefficients;
-  // the regressors are computed once, for the values and for the calibration loadings
-  const x = designRegressors(model, design);
+  // the regressors are computed once, for the values and for the calibration loadings, into
+  // scratch arrays (nothing returned refers to them)
+  const x = model.terms.map((t, k) =>
+    proxyRegressorColumn(t.role, t.quietLevel, model.psiReference, design.values[k], work(K + k, n))
+  );
   const errorModel = proxyReconstructionErrorModel(model, cells, design, x);
   const v = errorModelVariance(errorModel);
   const value = new Float64Array(n), sd = new Float64Array(n);
