@@ -83,7 +83,8 @@ export function defaultCycleProminence(value: ArrayLike<number>): number {
  *
  * Edge cases: NaN values (undefined ends of a smoothing, gaps) are skipped; a minimum at the
  * first or last defined point is never reported (the series may continue to fall). Fewer than
- * 3 defined points give no extrema. Cost O(N·K) for K candidates.
+ * 3 defined points give no extrema. Cost O(N): both climbs of every point come from one
+ * monotone-stack pass each way ({@link climbHeights}).
  *
  * @param time decimal years, increasing, same length as value
  * @param value smoothed values (NaN = undefined)
@@ -120,18 +121,30 @@ export function findCycleExtrema(
       { field: "minSeparation", reason: "out_of_range", value: sep },
     );
   }
-  // defined points only
-  const idx: number[] = [];
-  for (let i = 0; i < value.length; i++) if (Number.isFinite(value[i])) idx.push(i);
-  const n = idx.length;
-  if (n < 3) return [];
-  const v = idx.map((i) => value[i]);
-  let lo = Infinity, hi = -Infinity;
-  for (const x of v) {
+  // defined points only (typed arrays: no per-point objects), their range, and their turning
+  // points: the ends and every point not strictly inside a monotone run (turning points and
+  // plateau samples; every local minimum's first sample is one), found as the next point comes
+  const idx = new Int32Array(value.length);
+  const v = new Float64Array(value.length);
+  const turn = new Int32Array(value.length);
+  let n = 0, m = 0, lo = Infinity, hi = -Infinity;
+  for (let i = 0; i < value.length; i++) {
+    const x = value[i];
+    if (!Number.isFinite(x)) continue;
+    idx[n] = i;
+    v[n] = x;
     if (x < lo) lo = x;
     if (x > hi) hi = x;
+    if (n === 0) turn[m++] = 0;
+    else if (n >= 2) {
+      const a = v[n - 2], b = v[n - 1];
+      if (!((a < b && b < x) || (a > b && b > x))) turn[m++] = n - 1;
+    }
+    n++;
   }
-  const prom = options.prominence ?? defaultCycleProminence(v);
+  if (n > 1) turn[m++] = n - 1;
+  if (n < 3) return [];
+  const prom = options.prominence ?? 0.1 * (hi - lo); // defaultCycleProminence(v)
   if (options.prominence !== undefined && !(Number.isFinite(prom) && prom > 0)) {
     throw new InputError(
       `Cannot find cycle extrema: prominence must be a positive finite number, current value is ${prom}`,
@@ -140,22 +153,19 @@ export function findCycleExtrema(
   }
   if (!(hi > lo)) return [];
 
-  // local minima candidates (plateaus: the middle sample)
+  // local minima candidates (plateaus: the middle sample), with their prominence from the
+  // two climbs of {@link climbHeights}; every candidate's first sample is a turning point
+  const turns = turn.subarray(0, m);
+  const { left, right } = climbHeights(v, turns);
   const cands: { k: number; prom: number }[] = [];
-  for (let k = 1; k < n - 1;) {
-    if (v[k] < v[k - 1]) {
-      let e = k;
-      while (e + 1 < n && v[e + 1] === v[k]) e++;
-      if (e + 1 < n && v[e + 1] > v[k]) {
-        const mid = (k + e) >> 1;
-        // prominence: climb until a strictly lower point on each side
-        let left = v[k], right = v[k];
-        for (let j = k - 1; j >= 0 && v[j] >= v[k]; j--) if (v[j] > left) left = v[j];
-        for (let j = e + 1; j < n && v[j] >= v[k]; j++) if (v[j] > right) right = v[j];
-        cands.push({ k: mid, prom: Math.min(left, right) - v[k] });
-      }
-      k = e + 1;
-    } else k++;
+  for (let t = 0; t < turns.length; t++) {
+    const k = turns[t];
+    if (k < 1 || k >= n - 1 || !(v[k] < v[k - 1])) continue;
+    let e = k;
+    while (e + 1 < n && v[e + 1] === v[k]) e++;
+    if (e + 1 < n && v[e + 1] > v[k]) {
+      cands.push({ k: (k + e) >> 1, prom: Math.min(left[t], right[t]) - v[k] });
+    }
   }
   const strong = cands.filter((c) => c.prom >= prom);
   strong.sort((a, b) => v[a.k] - v[b.k] || a.k - b.k);
@@ -205,4 +215,57 @@ export function findCycleExtrema(
     }
   }
   return out;
+}
+
+/**
+ * The two climbs of the points of a series that matter for prominences, the turning points
+ * (the ends, and every point not strictly inside a monotone run): `left[t]` = max v[j0 + 1 .. k] for k = turns[t], where j0 is the
+ * nearest index before k with v[j0] < v[k] (−1 when there is none), and `right[t]` =
+ * max v[k .. j1 − 1], where j1 is the nearest index after k with v[j1] < v[k] (n when there is
+ * none). A point strictly inside a monotone run never bounds or tops such a climb (its lower
+ * neighbour is nearer, its higher neighbour is higher), so the turning points suffice: a tenth
+ * of the points of a smoothed monthly record.
+ *
+ * Method: the "all nearest smaller values" stack (Berkman, Schieber & Vishkin 1993, J.
+ * Algorithms 14, 344), the same monotone-wedge idea as Lemire's streaming maximum–minimum
+ * filter (Lemire 2006, Nordic J. Computing 13, 328): the stack holds the points whose value is
+ * below everything after them, each with the maximum of the stretch it closes; a new point
+ * pops the entries not strictly below it and takes the largest of their maxima. Each point is
+ * pushed and popped once per direction: O(N) where climbing from each candidate is O(N·K).
+ * Written by hand: no maintained JS library offers it over typed arrays.
+ *
+ * @param v finite values
+ * @param turns indices into v of its turning points, increasing
+ * @returns the left and right climbs at each turning point, same units as v
+ */
+function climbHeights(
+  v: Float64Array,
+  turns: Int32Array,
+): { left: Float64Array; right: Float64Array } {
+  const m = turns.length;
+  const left = new Float64Array(m), right = new Float64Array(m);
+  const stack = new Int32Array(m); // positions in turns
+  let top = 0;
+  for (let t = 0; t < m; t++) {
+    const x = v[turns[t]];
+    let h = x;
+    while (top > 0 && v[turns[stack[top - 1]]] >= x) {
+      const s = left[stack[--top]];
+      if (s > h) h = s;
+    }
+    left[t] = h;
+    stack[top++] = t;
+  }
+  top = 0;
+  for (let t = m - 1; t >= 0; t--) {
+    const x = v[turns[t]];
+    let h = x;
+    while (top > 0 && v[turns[stack[top - 1]]] >= x) {
+      const s = right[stack[--top]];
+      if (s > h) h = s;
+    }
+    right[t] = h;
+    stack[top++] = t;
+  }
+  return { left, right };
 }

@@ -78,44 +78,56 @@ export function ar1CellMeans(
   }
   const n = days.length;
   const out = { sd: new Float64Array(n), lag1: new Float64Array(n) };
+  const sdOut = out.sd, lagOut = out.lag1;
   const varOf = new Map<number, number>();
   const steps = (d: number) => Math.max(1, d / stepDays);
   let lastD0 = NaN, lastD = NaN, lastLag = 0;
+  let lastDays = NaN, lastVar = NaN, lastSd = NaN;
   const geometric = (m: number) => (rho === 0 ? 1 : (1 - ar1Power(rho, m)) / (1 - rho));
+  let d0 = NaN;
   for (let i = 0; i < n; i++) {
     const d = days[i];
-    if (!(d > 0) || !Number.isFinite(d)) {
-      throw new InputError(`Cannot average an AR(1) process: cell ${i} has ${d} days`, {
-        field: "days",
-        reason: "out_of_range",
-        index: i,
-        value: d,
-      });
+    // runs of equal cell lengths (days, months) reuse the previous cell's variance and SD
+    let v: number, s: number;
+    if (d === lastDays) v = lastVar, s = lastSd;
+    else {
+      if (!(d > 0) || !Number.isFinite(d)) {
+        throw new InputError(`Cannot average an AR(1) process: cell ${i} has ${d} days`, {
+          field: "days",
+          reason: "out_of_range",
+          index: i,
+          value: d,
+        });
+      }
+      let cached = varOf.get(d);
+      if (cached === undefined) {
+        const m = steps(d);
+        cached = (sd * sd * ar1MeanVarianceFactor(m, rho)) / m;
+        varOf.set(d, cached);
+      }
+      v = lastVar = cached;
+      s = lastSd = Math.sqrt(v);
+      lastDays = d;
     }
-    let v = varOf.get(d);
-    if (v === undefined) {
-      const m = steps(d);
-      v = (sd * sd * ar1MeanVarianceFactor(m, rho)) / m;
-      varOf.set(d, v);
-    }
-    out.sd[i] = Math.sqrt(v);
+    sdOut[i] = s;
+    const prev = d0;
+    d0 = d;
     if (i === 0 || v === 0) continue;
-    const d0 = days[i - 1];
-    // cells come in runs of equal lengths (days, months): the same pair gives the same lag
-    if (d0 === lastD0 && d === lastD) {
-      out.lag1[i] = lastLag;
+    // ... and the same pair of lengths gives the same lag-1 correlation
+    if (prev === lastD0 && d === lastD) {
+      lagOut[i] = lastLag;
       continue;
     }
     let r: number;
-    if (d0 < stepDays && d < stepDays) {
-      r = rho > 0 ? Math.pow(rho, (d0 + d) / 2 / stepDays) : 0;
+    if (prev < stepDays && d < stepDays) {
+      r = rho > 0 ? Math.pow(rho, (prev + d) / 2 / stepDays) : 0;
     } else {
-      const m0 = steps(d0), m1 = steps(d);
+      const m0 = steps(prev), m1 = steps(d);
       const cov = (sd * sd * geometric(m0) * rho * geometric(m1)) / (m0 * m1);
-      r = cov / (out.sd[i - 1] * out.sd[i]);
+      r = cov / (sdOut[i - 1] * s);
     }
-    out.lag1[i] = lastLag = Math.max(-1, Math.min(1, r));
-    lastD0 = d0;
+    lagOut[i] = lastLag = Math.max(-1, Math.min(1, r));
+    lastD0 = prev;
     lastD = d;
   }
   return out;

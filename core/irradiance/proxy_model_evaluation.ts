@@ -51,6 +51,40 @@ export function proxyRegressor(
 }
 
 /**
+ * {@link proxyRegressor} over a whole column of proxy values (one term, many cells), the role
+ * decided once: the same numbers as calling it per value.
+ *
+ * @param role the term's role
+ * @param quietLevel F_Q (ignored for the darkening term)
+ * @param psiReference S_ref, W m-2
+ * @param values the proxy values (NaN stays NaN)
+ * @param out where to write the regressors (length ≥ values.length) @default a new array
+ * @returns `out`: the regressors, one per value
+ * @example
+ * ```ts
+ * import { proxyRegressorColumn } from "./proxy_model_evaluation.ts";
+ * import assert from "node:assert/strict";
+ * const x = proxyRegressorColumn("sunspot_darkening", 0, 1360.8, Float64Array.of(1e-3, NaN));
+ * assert.equal(x[0], -1.3608);
+ * assert.ok(Number.isNaN(x[1]));
+ * ```
+ */
+export function proxyRegressorColumn(
+  role: ProxyRole,
+  quietLevel: number,
+  psiReference: number,
+  values: ArrayLike<number>,
+  out: Float64Array = new Float64Array(values.length),
+): Float64Array {
+  const n = values.length;
+  if (role === "sunspot_darkening") {
+    const s = -psiReference;
+    for (let i = 0; i < n; i++) out[i] = s * values[i];
+  } else for (let i = 0; i < n; i++) out[i] = values[i] - quietLevel;
+  return out;
+}
+
+/**
  * dx/dF of a term's regressor: 1 for a facular or other term, −S_ref for the darkening term
  * (the factor that carries a proxy's variance into the regressor's).
  *

@@ -5,7 +5,8 @@
  * @module
  */
 import { InputError } from "../errors.ts";
-import { proxyRegressor, type ProxyRole } from "./proxy_model_evaluation.ts";
+import { proxyRegressorColumn, type ProxyRole } from "./proxy_model_evaluation.ts";
+import { workArrays } from "../stats/work_arrays.ts";
 import type { SunspotProxyMapping } from "./sunspot_proxy_mapping.ts";
 import { sunspotMappingValues } from "./sunspot_proxy_mapping.ts";
 import type { SunspotCellUncertainty } from "./sunspot_number_uncertainty.ts";
@@ -48,6 +49,12 @@ export interface ReconstructionCells {
   /** The uncertainty of the cells' sunspot numbers; null or absent = taken as exact. */
   sunspotUncertainty?: SunspotCellUncertainty | null;
 }
+
+/**
+ * Scratch arrays of reconstructions: per term, its values mapped from sunspot number (index k)
+ * and its regressors (index K + k); temporaries only, never part of a result.
+ */
+const work = workArrays();
 
 /** Source of a reconstructed value. */
 export const SOURCE_NONE = 0, SOURCE_DIRECT = 1, SOURCE_BACK_EXTENDED = 2;
@@ -124,12 +131,12 @@ export function reconstructionDesign(
   checkCells(model, cells);
   const K = model.terms.length, n = cells.days.length;
   const source = new Uint8Array(n).fill(SOURCE_DIRECT);
-  const values = cells.direct.map((d) => Float64Array.from(d));
+  const values = cells.direct.map((d) => new Float64Array(d));
   const mapped = cells.direct.map(() => new Uint8Array(n));
   for (let k = 0; k < K; k++) {
     const m = cells.mappings[k];
     const viaMap = m && cells.sunspot
-      ? sunspotMappingValues(m.form, m.coefficients, cells.sunspot, new Float64Array(n))
+      ? sunspotMappingValues(m.form, m.coefficients, cells.sunspot, work(k, n))
       : null;
     for (let i = 0; i < n; i++) {
       if (Number.isFinite(values[k][i])) continue;
@@ -286,37 +293,41 @@ function reconstructWithDesign(
 ): Reconstruction {
   const K = model.terms.length, n = cells.days.length;
   const beta = model.coefficients;
-  const errorModel = proxyReconstructionErrorModel(model, cells, design);
+  // the regressors are computed once, for the values and for the calibration loadings, into
+  // scratch arrays (nothing returned refers to them)
+  const x = model.terms.map((t, k) =>
+    proxyRegressorColumn(t.role, t.quietLevel, model.psiReference, design.values[k], work(K + k, n))
+  );
+  const errorModel = proxyReconstructionErrorModel(model, cells, design, x);
   const v = errorModelVariance(errorModel);
   const value = new Float64Array(n), sd = new Float64Array(n);
   const lower = new Float64Array(n), upper = new Float64Array(n);
-  const components = Object.fromEntries(
-    ERROR_SOURCES.map((s) => [s, new Float64Array(n)]),
-  ) as Record<ErrorSource, Float64Array>;
+  // the variances by source are the result's components (NaN where a cell has no value)
+  const components = v.bySource;
+  const bySource = ERROR_SOURCES.map((s) => components[s]);
+  const total = v.total, source = design.source;
+  // ŷ = β₀ + Σ_k β_k·x_k, added term by term in that order, one pass per term
+  value.fill(beta[0]);
+  for (let k = 0; k < K; k++) {
+    const b = beta[k + 1], xk = x[k];
+    for (let i = 0; i < n; i++) value[i] += b * xk[i];
+  }
   for (let i = 0; i < n; i++) {
-    if (design.source[i] === SOURCE_NONE) {
+    if (source[i] === SOURCE_NONE) {
       value[i] =
         sd[i] =
         lower[i] =
         upper[i] =
           NaN;
-      for (const s of ERROR_SOURCES) components[s][i] = NaN;
+      for (const c of bySource) c[i] = NaN;
       continue;
     }
-    let y = beta[0];
-    for (let k = 0; k < K; k++) {
-      const t = model.terms[k];
-      y += beta[k + 1] *
-        proxyRegressor(t.role, t.quietLevel, model.psiReference, design.values[k][i]);
-    }
-    const s = Math.sqrt(v.total[i]);
-    value[i] = y;
+    const y = value[i], s = Math.sqrt(total[i]);
     sd[i] = s;
     lower[i] = y - z * s;
     upper[i] = y + z * s;
-    for (const src of ERROR_SOURCES) components[src][i] = v.bySource[src][i];
   }
-  return { value, sd, lower, upper, source: design.source, components, errorModel, design };
+  return { value, sd, lower, upper, source, components, errorModel, design };
 }
 
 /** Names of the source codes, in code order. */

@@ -6,7 +6,7 @@
  * @module
  */
 import { choleskyLower } from "../stats/multivariate_normal.ts";
-import { proxyRegressor, proxyRegressorScale } from "./proxy_model_evaluation.ts";
+import { proxyRegressorColumn, proxyRegressorScale } from "./proxy_model_evaluation.ts";
 import { sunspotMappingDerivatives } from "./sunspot_proxy_mapping.ts";
 import { mappingCholesky } from "./back_extension.ts";
 import { ar1CellMeans } from "./ar1_cell_means.ts";
@@ -67,6 +67,33 @@ export function sunspotSensitivity(
 }
 
 /**
+ * The regressors of the values a reconstruction uses: per term, its regressor in every cell
+ * ({@link proxyRegressorColumn}; NaN where the cell has no value).
+ *
+ * @param model the calibrated model (terms and S_ref)
+ * @param design the values used ({@link reconstructionDesign} in ./proxy_reconstruction.ts)
+ * @returns one column per term
+ * @example
+ * ```ts
+ * import { designRegressors } from "./proxy_reconstruction_errors.ts";
+ * import assert from "node:assert/strict";
+ * const x = designRegressors(
+ *   { terms: [{ role: "facular", quietLevel: 0.15 }], psiReference: 1360.8 },
+ *   { source: Uint8Array.of(1), values: [Float64Array.of(0.16)], mapped: [Uint8Array.of(0)] },
+ * );
+ * assert.ok(Math.abs(x[0][0] - 0.01) < 1e-15);
+ * ```
+ */
+export function designRegressors(
+  model: Pick<ReconstructionModel, "terms" | "psiReference">,
+  design: ReconstructionDesign,
+): Float64Array[] {
+  return model.terms.map((t, k) =>
+    proxyRegressorColumn(t.role, t.quietLevel, model.psiReference, design.values[k])
+  );
+}
+
+/**
  * The error model of a reconstruction, part by part (see
  * core/irradiance/reconstruction_error_model.ts for the form):
  *
@@ -84,6 +111,7 @@ export function sunspotSensitivity(
  * @param model the calibrated model
  * @param cells the cells
  * @param design the values used
+ * @param regressors per term, the regressor in each cell (default: {@link designRegressors})
  * @returns the {@link ReconstructionErrorModel}
  * @throws {InputError} (field `covariance` or `mapping`) when a covariance cannot be factored;
  *   (fields of ar1CellMeans) for an invalid residual process
@@ -107,55 +135,44 @@ export function proxyReconstructionErrorModel(
   model: ReconstructionModel,
   cells: ReconstructionCells,
   design: ReconstructionDesign,
+  regressors: readonly Float64Array[] = designRegressors(model, design),
 ): ReconstructionErrorModel {
   const n = cells.days.length, K = model.terms.length;
   const { source } = design;
   const factors: ErrorFactor[] = [];
   const processes: ErrorProcess[] = [];
-  // calibration: loadings Lᵀx
+  // calibration: loadings Lᵀx, x = (1, x_1, …, x_K): column j is 0 + Σ_{a ≥ j} x_a·L[a][j],
+  // added in that order (x_0 = 1 contributes L[0][0] itself), on the cells with a value
   const L = choleskyLower(model.covariance);
-  const x = new Float64Array(K + 1);
-  const cal = Array.from({ length: K + 1 }, () => new Float64Array(n));
-  for (let i = 0; i < n; i++) {
-    if (!source[i]) continue;
-    x[0] = 1;
-    for (let k = 0; k < K; k++) {
-      const t = model.terms[k];
-      x[k + 1] = proxyRegressor(t.role, t.quietLevel, model.psiReference, design.values[k][i]);
-    }
-    for (let j = 0; j <= K; j++) {
-      let s = 0;
-      for (let a = j; a <= K; a++) s += x[a] * L[a][j];
-      cal[j][i] = s;
-    }
-  }
-  cal.forEach((loading, j) =>
+  for (let j = 0; j <= K; j++) {
+    const terms = regressors.slice(Math.max(1, j) - 1);
+    const weights = terms.map((_, a) => L[Math.max(1, j) + a][j]);
     factors.push({
       source: "calibration",
       label: `calibration coefficients, direction ${j + 1}`,
-      loading,
-    })
-  );
-  // mappings: loadings β_k·s_k·Lᵀg
+      loading: maskedCombination(n, j === 0 ? 0 + L[0][0] : 0, terms, weights, source, 1),
+    });
+  }
+  // mappings: loadings β_k·s_k·Lᵀg, Lᵀg summed as above, on the cells where term k was mapped
   model.terms.forEach((t, k) => {
-    const m = cells.mappings[k];
-    if (!m || !cells.sunspot || !design.mapped[k].includes(1)) return;
+    const m = cells.mappings[k], mapped = design.mapped[k];
+    if (!m || !cells.sunspot || !mapped.includes(1)) return;
     const Lc = mappingCholesky(m);
-    const g = sunspotMappingDerivatives(m, cells.sunspot).gradient;
     const f = model.coefficients[k + 1] * proxyRegressorScale(t.role, model.psiReference);
     const p = m.coefficients.length;
+    // the gradient of a linear mapping is (1, R): its constant column enters as the initial
+    // term (0 + 1·Lc[0][0]) rather than as a column of ones
+    const linear = m.form === "linear";
+    const g = linear ? [cells.sunspot] : sunspotMappingDerivatives(m, cells.sunspot).gradient;
     for (let j = 0; j < p; j++) {
-      const loading = new Float64Array(n);
-      for (let i = 0; i < n; i++) {
-        if (!design.mapped[k][i]) continue;
-        let s = 0;
-        for (let a = j; a < p; a++) s += g[a][i] * Lc[a][j];
-        loading[i] = f * s;
-      }
+      const init = linear && j === 0 ? 0 + Lc[0][0] : 0;
+      const from = linear ? Math.max(1, j) : j;
+      const terms = g.slice(linear ? from - 1 : from);
+      const weights = terms.map((_, a) => Lc[from + a][j]);
       factors.push({
         source: "mapping",
         label: `mapping of term ${k + 1} (${m.form}), parameter direction ${j + 1}`,
-        loading,
+        loading: maskedCombination(n, init, terms, weights, mapped, f),
       });
     }
   });
@@ -168,8 +185,8 @@ export function proxyReconstructionErrorModel(
     label: string,
   ) => {
     const cm = ar1CellMeans(cells.days, sd, rho, stepDays);
-    const loading = new Float64Array(n);
-    for (let i = 0; i < n; i++) if (source[i] === which) loading[i] = cm.sd[i];
+    const loading = cm.sd; // kept on this source's cells only
+    for (let i = 0; i < n; i++) if (source[i] !== which) loading[i] = 0;
     processes.push({ source: "residual", label, loading, lag1: cm.lag1 });
   };
   residual(
@@ -215,4 +232,32 @@ export function proxyReconstructionErrorModel(
     });
   }
   return { cells: n, factors, processes };
+}
+
+/** Cells per block of {@link maskedCombination} (a few columns of 2,048 doubles stay in cache). */
+const BLOCK = 2048;
+
+/**
+ * out[i] = scale·(init + x_0[i]·c_0 + x_1[i]·c_1 + …), added in that order, where mask[i] ≠ 0,
+ * and 0 elsewhere; computed in blocks of cells so that each column is read once.
+ */
+function maskedCombination(
+  n: number,
+  init: number,
+  xs: readonly Float64Array[],
+  cs: readonly number[],
+  mask: Uint8Array,
+  scale: number,
+): Float64Array {
+  const out = new Float64Array(n);
+  for (let i0 = 0; i0 < n; i0 += BLOCK) {
+    const i1 = Math.min(n, i0 + BLOCK);
+    out.fill(init, i0, i1);
+    for (let a = 0; a < xs.length; a++) {
+      const x = xs[a], c = cs[a];
+      for (let i = i0; i < i1; i++) out[i] += x[i] * c;
+    }
+    for (let i = i0; i < i1; i++) out[i] = mask[i] ? scale * out[i] : 0;
+  }
+  return out;
 }

@@ -21,6 +21,9 @@
  */
 import { InputError } from "../errors.ts";
 
+/** Cells per block of the variance sums (8 loadings of 2,048 doubles fit a 256 kB cache). */
+const BLOCK = 2048;
+
 /** The sources of uncertainty of a reconstruction, in the order results list them. */
 export const ERROR_SOURCES = ["calibration", "residual", "mapping", "input"] as const;
 /** One source of uncertainty. */
@@ -97,14 +100,25 @@ export function errorModelVariance(
   const bySource = Object.fromEntries(
     ERROR_SOURCES.map((s) => [s, new Float64Array(n)]),
   ) as Record<ErrorSource, Float64Array>;
-  for (const part of [...em.factors, ...em.processes]) {
-    const out = bySource[part.source], l = part.loading;
-    for (let i = 0; i < n; i++) out[i] += l[i] * l[i];
-  }
+  // each source's loadings in model order; cells in blocks that stay in cache while every
+  // loading of the block is squared and added (one read of each loading and one write of each
+  // sum, where a pass per loading re-reads and re-writes the sums)
+  const parts = [...em.factors, ...em.processes];
+  const groups = ERROR_SOURCES.map((s) =>
+    parts.filter((p) => p.source === s).map((p) => p.loading)
+  );
   const total = new Float64Array(n);
-  for (const s of ERROR_SOURCES) {
-    const v = bySource[s];
-    for (let i = 0; i < n; i++) total[i] += v[i];
+  const { calibration, residual, mapping, input } = bySource;
+  for (let i0 = 0; i0 < n; i0 += BLOCK) {
+    const i1 = Math.min(n, i0 + BLOCK);
+    for (let g = 0; g < groups.length; g++) {
+      const out = bySource[ERROR_SOURCES[g]];
+      for (const l of groups[g]) for (let i = i0; i < i1; i++) out[i] += l[i] * l[i];
+    }
+    // Σ over the sources in ERROR_SOURCES order, as ((0 + calibration) + residual) + …
+    for (let i = i0; i < i1; i++) {
+      total[i] = 0 + calibration[i] + residual[i] + mapping[i] + input[i];
+    }
   }
   return { total, bySource };
 }

@@ -22,3 +22,4 @@ export * from "./multivariate_normal.ts";
 export * from "./ensemble_summary.ts";
 export * from "./coefficient_of_determination.ts";
 export * from "./residual_cross_correlation.ts";
+export * from "./work_arrays.ts";

@@ -12,6 +12,7 @@ import {
   fitStatistics,
   type RegressionFit,
 } from "./ordinary_least_squares.ts";
+import { workArrays } from "./work_arrays.ts";
 
 /** Options for {@link praisWinsten}. */
 export interface PraisWinstenOptions {
@@ -54,12 +55,8 @@ function rhoFromResiduals(e: Float64Array): number {
   return Math.max(-RHO_MAX, Math.min(RHO_MAX, r));
 }
 
-const pool: Float64Array[] = [];
 /** Work array `i` of length n (a view of a pooled buffer that grows as needed). */
-function work(i: number, n: number): Float64Array {
-  if (!pool[i] || pool[i].length < n) pool[i] = new Float64Array(Math.max(n, 1024));
-  return pool[i].subarray(0, n);
-}
+const work = workArrays();
 
 function transform(x: Float64Array, rho: number, out: Float64Array): Float64Array {
   out[0] = Math.sqrt(1 - rho * rho) * x[0];

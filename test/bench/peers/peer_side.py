@@ -22,6 +22,7 @@ import scipy
 import scipy.fft as sf
 from scipy.ndimage import minimum_filter1d
 from scipy.signal import find_peaks
+from scipy.stats import t as tdist
 
 NAME, DIR = sys.argv[1], sys.argv[2]
 
@@ -120,18 +121,55 @@ def lag_job():
 
 
 # --- (b) proxy-model calibration and reconstruction ------------------------------------------
+#
+# What both sides compute, per repetition (the numbers sunlag's calibrateProxyModel and
+# reconstructFromProxies return for this workload, so that neither side does less):
+#  - calibration on 17,000 days: iterated Prais-Winsten of TSI on (1, F - F_Q, -S_ref*PSI),
+#    its coefficient covariance, standard errors, t values, two-sided p values and 95 %
+#    intervals (Student t), R^2, adjusted R^2, residual RMS, AR(1)-Gaussian log-likelihood,
+#    AIC, BIC, residual lag-1, fitted values, residuals and innovations, the collinearity
+#    condition number, and 5-fold blocked cross-validation (every fold a full fit with the same
+#    statistics) with the overall and per-fold RMSE;
+#  - reconstruction of 153,000 days (the first half with F and PSI mapped from sunspot number)
+#    with its first-order error model: the proxy values used and which were mapped, the source
+#    of each day; the calibration loadings L^T x (Sigma_beta = L L^T, three per day); per mapped
+#    term the mapping loadings beta_k s_k Lc^T g (two per day each); the residual processes of
+#    the direct and of the back-extended model as AR(1) cell means (SD and lag-1 correlation
+#    per cell, Wilks 2011 sec. 5.2.4 for the mean of m AR(1) steps); the variance of each day by
+#    source (calibration, residual, mapping, input) and in total; the value, the one-sigma SD
+#    and the 95 % interval.
+
+
+def fit_statistics(X, y, beta, s2_innov, rho, cov, innov):
+    """The statistics sunlag's praisWinsten returns beside beta (R^2 etc. on the original
+    scale, inference from the transformed-scale covariance)."""
+    n, p = X.shape
+    fitted = X @ beta
+    resid = y - fitted
+    rss = resid @ resid
+    yc = y - y.mean()
+    r2 = 1 - rss / (yc @ yc)
+    se = np.sqrt(np.maximum(0, np.diag(cov)))
+    tval = beta / se
+    df = n - p
+    tcrit = tdist.ppf(0.975, df)
+    s2ml = (innov @ innov) / n
+    loglik = -0.5 * n * (np.log(2 * np.pi) + np.log(s2ml) + 1) + 0.5 * np.log(1 - rho * rho)
+    return {"se": se, "t": tval, "p": 2 * tdist.cdf(-np.abs(tval), df),
+            "lower": beta - tcrit * se, "upper": beta + tcrit * se, "r2": r2,
+            "adj_r2": 1 - (1 - r2) * (n - 1) / df, "rms": np.sqrt(rss / n),
+            "aic": -2 * loglik + 2 * (p + 2), "bic": -2 * loglik + np.log(n) * (p + 2),
+            "lag1": (resid[1:] @ resid[:-1]) / (resid @ resid), "fitted": fitted,
+            "residuals": resid, "innovations": innov, "sigma": np.sqrt(s2_innov)}
+
 
 def prais_winsten(X, y, tol=1e-8, maxit=100):
     """Iterated Prais-Winsten (rho from the residuals' lag-1 regression, first row scaled)."""
-    def transformed(rho):
-        k = np.sqrt(1 - rho * rho)
-        Xs = np.empty_like(X)
-        Xs[0] = k * X[0]
-        np.subtract(X[1:], rho * X[:-1], out=Xs[1:])
-        ys = np.empty_like(y)
-        ys[0] = k * y[0]
-        np.subtract(y[1:], rho * y[:-1], out=ys[1:])
-        return Xs, ys
+    def transformed(rho, A):
+        out = np.empty_like(A)
+        out[0] = np.sqrt(1 - rho * rho) * A[0]
+        np.subtract(A[1:], rho * A[:-1], out=out[1:])
+        return out
 
     def lag1(e):
         return np.dot(e[1:], e[:-1]) / np.dot(e[:-1], e[:-1])
@@ -139,43 +177,74 @@ def prais_winsten(X, y, tol=1e-8, maxit=100):
     beta = np.linalg.lstsq(X, y, rcond=None)[0]
     rho = lag1(y - X @ beta)
     for _ in range(maxit):
-        Xs, ys = transformed(rho)
-        beta = np.linalg.lstsq(Xs, ys, rcond=None)[0]
+        beta = np.linalg.lstsq(transformed(rho, X), transformed(rho, y), rcond=None)[0]
         new = lag1(y - X @ beta)
         done = abs(new - rho) < tol
         rho = new
         if done:
             break
-    Xs, ys = transformed(rho)
+    Xs, ys = transformed(rho, X), transformed(rho, y)
     Q, R = np.linalg.qr(Xs)
     beta = np.linalg.solve(R, Q.T @ ys)
-    u = ys - Xs @ beta
-    s2 = u @ u / (len(y) - X.shape[1])
+    innov = transformed(rho, y - X @ beta)
+    s2 = innov @ innov / (len(y) - X.shape[1])
     Rinv = np.linalg.inv(R)
-    return beta, s2 * (Rinv @ Rinv.T), rho, np.sqrt(s2)
+    cov = s2 * (Rinv @ Rinv.T)
+    return beta, cov, rho, fit_statistics(X, y, beta, s2, rho, cov, innov)
 
 
 def calibrate(f, psi, y, folds=5):
     X = np.column_stack([np.ones_like(y), f - 0.15, -1360.8 * psi])
     Z = X[:, 1:] - X[:, 1:].mean(axis=0)
     cond = np.linalg.cond(Z / np.linalg.norm(Z, axis=0))
-    beta, cov, rho, sigma = prais_winsten(X, y)
+    beta, cov, rho, st = prais_winsten(X, y)
     n = len(y)
-    sse = 0.0
+    fold_sse = []
     for j in range(folds):
         a, b = j * n // folds, (j + 1) * n // folds
         keep = np.ones(n, dtype=bool)
         keep[a:b] = False
         bj = prais_winsten(X[keep], y[keep])[0]
-        sse += np.sum((y[a:b] - X[a:b] @ bj) ** 2)
-    return beta, cov, rho, sigma / np.sqrt(1 - rho * rho), np.sqrt(sse / n), cond
+        e = y[a:b] - X[a:b] @ bj
+        fold_sse.append(e @ e)
+    fold_rmse = [np.sqrt(s / ((j + 1) * n // folds - j * n // folds))
+                 for j, s in enumerate(fold_sse)]
+    cv = np.sqrt(sum(fold_sse) / n) if folds else None
+    return beta, cov, rho, st["sigma"] / np.sqrt(1 - rho * rho), cv, cond, st, fold_rmse
+
+
+def ar1_cell_means(days, sd, rho, step):
+    """SD of the mean of each cell of an AR(1) process (m = max(1, days/step) steps, variance
+    sd^2 f(m, rho)/m) and the correlation of adjacent cell means (covariance
+    sd^2 S(m0) rho S(m1)/(m0 m1), S(m) = (1 - rho^m)/(1 - rho); cells both shorter than a step:
+    rho^(mean length/step)), for rho > 0 as in this workload. Powers and the variance factor
+    are evaluated only where they differ from the one-step case (masks), as one would write it."""
+    m = np.maximum(1.0, days / step)
+    long = m > 1
+    rm = np.full_like(m, rho)
+    np.power(rho, m, out=rm, where=long)
+    f = np.ones_like(m)
+    if long.any():
+        ml, rl = m[long], rm[long]
+        f[long] = 1 + 2 * (rho / (1 - rho) - rho * (1 - rl) / (ml * (1 - rho) ** 2))
+    s = sd * np.sqrt(f / m)
+    geo = (1 - rm) / (1 - rho)
+    r = sd * sd * rho * geo[:-1] * geo[1:] / (m[:-1] * m[1:] * s[:-1] * s[1:])
+    short = (days[:-1] < step) & (days[1:] < step)
+    if short.any():
+        r[short] = rho ** ((days[:-1][short] + days[1:][short]) / 2 / step)
+    lag1 = np.empty_like(s)
+    lag1[0] = 0.0
+    np.clip(r, -1, 1, out=lag1[1:])
+    return s, lag1
 
 
 def irradiance_job():
     cal = {k: load(f"cal_{k}") for k in ("r", "f", "psi", "y")}
     rr, df, dp = load("rec_r"), load("rec_f"), load("rec_psi")
+    days = np.ones_like(rr)
     # untimed set-up, as on the sunlag side: the model and the two sunspot mappings
-    beta0, cov0, rho0, sd0, _, _ = calibrate(cal["f"], cal["psi"], cal["y"], folds=0)
+    beta0, cov0, rho0, sd0, _, _, _, _ = calibrate(cal["f"], cal["psi"], cal["y"], folds=0)
     A = np.column_stack([np.ones_like(cal["r"]), cal["r"]])
     iAA = np.linalg.inv(A.T @ A)
 
@@ -185,32 +254,40 @@ def irradiance_job():
 
     mapF, mapP = mapping(cal["f"]), mapping(cal["psi"])
     sd_b, rho_b = 0.3, 0.9
-    miss_f, miss_p = np.isnan(df), np.isnan(dp)
 
     def reconstruct(beta, cov):
-        def mapped(mp):
-            c, S = mp
-            return c[0] + c[1] * rr, S[0, 0] + 2 * rr * S[0, 1] + rr * rr * S[1, 1]
-
-        vf, pf = mapped(mapF)
-        vp, pp = mapped(mapP)
-        f = np.where(miss_f, vf, df)
-        p = np.where(miss_p, vp, dp)
+        G = np.column_stack([np.ones_like(rr), rr])  # dF/dc of a linear mapping c0 + c1 R
+        mf, mp = np.isnan(df), np.isnan(dp)
+        f = np.where(mf, G @ mapF[0], df)
+        p = np.where(mp, G @ mapP[0], dp)
+        source = np.where(mf | mp, 2, 1).astype(np.uint8)  # every day has R or both proxies
         X = np.column_stack([np.ones_like(f), f - 0.15, -1360.8 * p])
-        yhat = X @ beta
-        q = ((X @ cov) * X).sum(axis=1)
-        # first order (delta method), as sunlag's error model since reconstructions v5
-        mv = np.where(miss_f, beta[1] ** 2 * pf, 0.0)
-        mv += np.where(miss_p, beta[2] ** 2 * 1360.8**2 * pp, 0.0)
-        rv = np.where(miss_f | miss_p, sd_b**2, sd0**2)  # one-day cells: AR(1) factor 1
-        s = np.sqrt(q + mv + rv)
-        return yhat, s, yhat - 1.96 * s, yhat + 1.96 * s
+        value = X @ beta
+        cal_load = X @ np.linalg.cholesky(cov)  # columns: L^T x per day
+        map_f = (G @ np.linalg.cholesky(mapF[1])) * (beta[1] * mf)[:, None]
+        map_p = (G @ np.linalg.cholesky(mapP[1])) * (beta[2] * -1360.8 * mp)[:, None]
+        s_d, lag_d = ar1_cell_means(days, sd0, rho0, 1.0)
+        s_b, lag_b = ar1_cell_means(days, sd_b, rho_b, 1.0)
+        res_d = np.where(source == 1, s_d, 0.0)
+        res_b = np.where(source == 2, s_b, 0.0)
+        var = {"calibration": np.einsum("ij,ij->i", cal_load, cal_load),
+               "residual": res_d * res_d + res_b * res_b,
+               "mapping": np.einsum("ij,ij->i", map_f, map_f) + np.einsum("ij,ij->i", map_p, map_p),
+               "input": np.zeros_like(value)}
+        total = var["calibration"] + var["residual"] + var["mapping"] + var["input"]
+        sd = np.sqrt(total)
+        return {"value": value, "sd": sd, "lower": value - 1.96 * sd, "upper": value + 1.96 * sd,
+                "components": var, "source": source, "values": (f, p), "mapped": (mf, mp),
+                "loadings": (cal_load, map_f, map_p), "processes": ((res_d, lag_d), (res_b, lag_b))}
 
     def run():
-        beta, cov, rho, _, cv, _ = calibrate(cal["f"], cal["psi"], cal["y"])
-        yhat, s, _, _ = reconstruct(beta0, cov0)
+        beta, cov, rho, _, cv, _, _, _ = calibrate(cal["f"], cal["psi"], cal["y"])
+        rec = reconstruct(beta0, cov0)
         return {"coefficients": beta.tolist(), "rho": float(rho), "cv_rmse": float(cv),
-                "mean_value": float(yhat.mean()), "mean_sd": float(s.mean())}
+                "mean_value": float(rec["value"].mean()), "mean_sd": float(rec["sd"].mean()),
+                "mean_variance": {k: float(v.mean()) for k, v in rec["components"].items()},
+                "loadings": len(rec["loadings"][0][0]) + len(rec["loadings"][1][0])
+                + len(rec["loadings"][2][0]), "processes": len(rec["processes"])}
 
     return 5, run
 

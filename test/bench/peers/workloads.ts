@@ -9,7 +9,10 @@
  *   family-wise p-values, null spread and per-lag 95 % thresholds;
  * - `irradiance`: calibrate a two-proxy model on 17,000 days (Prais–Winsten + 5-fold blocked
  *   cross-validation) and reconstruct 153,000 days with 95 % prediction intervals, half of
- *   them back-extended through sunspot mappings (test/bench/irradiance_case.ts);
+ *   them back-extended through sunspot mappings (test/bench/irradiance_case.ts), with
+ *   everything the core call returns: the linearised error model (calibration and mapping
+ *   loadings, residual processes) and the variance by source; the peer computes the same
+ *   (listed in peer_side.py);
  * - `cycles`: 13-month smoothing of 3,000 months and the cycle minima and maxima.
  *
  * @module
@@ -94,6 +97,12 @@ async function lagJob(n: number, dir: string): Promise<Job> {
   };
 }
 
+function mean(a: Float64Array): number {
+  let s = 0;
+  for (let i = 0; i < a.length; i++) s += a[i];
+  return s / a.length;
+}
+
 async function irradianceJob(dir: string): Promise<Job> {
   const work = irradianceCase();
   await writeInputs(dir, work.inputs);
@@ -113,6 +122,11 @@ async function irradianceJob(dir: string): Promise<Job> {
         cv_rmse: fit.crossValidation?.rmse,
         mean_value: v / rec.value.length,
         mean_sd: s / rec.sd.length,
+        mean_variance: Object.fromEntries(
+          Object.entries(rec.components).map(([k, c]) => [k, mean(c)]),
+        ),
+        loadings: rec.errorModel.factors.length,
+        processes: rec.errorModel.processes.length,
       };
     },
   };
