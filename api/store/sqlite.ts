@@ -654,7 +654,7 @@ export class SqliteStore implements Store {
         this.#checkInputs(r.id, r.input_series, r.input_runs);
         this.#stmt(
           `INSERT INTO runs (${RUN_ALL}) VALUES (${marks(RUN_COLUMNS.length)})`,
-        ).run(...runValues(r));
+        ).run(...runValues(r, "bytes"));
         this.#writeLinks(r.id, r.input_series, r.input_runs);
         if (r.input_fields?.length) this.#fields.linkRun(r.id, r.input_fields);
         this.#stmt(
@@ -692,7 +692,7 @@ export class SqliteStore implements Store {
     patch: Partial<Omit<RunRecord, "id" | "kind" | "created_at">>,
   ): Promise<void> {
     return settle(() => {
-      const cols = encodeRunPatch(id, patch, new Date().toISOString());
+      const cols = encodeRunPatch(id, patch, new Date().toISOString(), "bytes");
       const sets = cols.map(([c]) => `${c} = ?`);
       const args = cols.map(([, v]) => v);
       this.#write(() => {
@@ -874,7 +874,7 @@ export class SqliteStore implements Store {
     patch: Partial<Omit<RunRecord, "id" | "kind" | "created_at">>,
   ): Promise<boolean> {
     return settle(() => {
-      const cols = encodeRunPatch(id, patch, new Date().toISOString());
+      const cols = encodeRunPatch(id, patch, new Date().toISOString(), "bytes");
       const sets = cols.map(([c]) => `${c} = ?`);
       const args = cols.map(([, v]) => v);
       const ended = patch.status !== undefined && TERMINAL.has(patch.status);
