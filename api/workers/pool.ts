@@ -23,8 +23,8 @@
  *   of the analyses polls the flag.
  *
  * Memory: a worker that has just finished a run with a very large result (a daily
- * reconstruction over centuries: tens of MB of JSON) holds a heap grown to build it, which V8
- * keeps; once idle it is replaced by a fresh, warmed-up worker, so the process returns that
+ * reconstruction over a millennium: about 100 MB of JSON) holds a heap grown to build it, which
+ * V8 keeps; once idle it is replaced by a fresh, warmed-up worker, so the process returns that
  * memory instead of keeping one such heap per worker.
  *
  * @module
@@ -41,8 +41,14 @@ import { type SerialisedError, transferablesOf } from "./messages.ts";
 /** Default time a stopped run's work may keep a worker busy before the worker is replaced. */
 export const STOP_GRACE_MS = 1000;
 
-/** A worker that finished a run with a result at least this large (bytes) is recycled. */
-export const RECYCLE_RESULT_BYTES = 16 * 1024 * 1024;
+/**
+ * A worker that finished a run with a result at least this large (bytes) is recycled. Not
+ * lower: a fresh worker has not optimised the code of the run that grew it, and a 38 MB
+ * daily reconstruction (153,000 days) ran 1.20 × slower through HTTP when every such run
+ * recycled its worker (test/bench/http_runs_ab.ts, 6 interleaved rounds, load 3.7–3.9), while
+ * resident memory after a sequence of them stayed at 1.05 × one run's peak without recycling.
+ */
+export const RECYCLE_RESULT_BYTES = 64 * 1024 * 1024;
 /** How often a running computation's hooks are asked whether it must stop. */
 const STOP_POLL_MS = 50;
 
