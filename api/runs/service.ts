@@ -593,7 +593,9 @@ export class RunService {
    * carries the warnings and cautions of the runs it is built on (`inherited`), looked up in
    * `lineage` (default: the store). A computation still going after the wall-time limit is
    * asked to stop and answered with a time-limit problem (computed in this thread, it is
-   * refused once it returns).
+   * refused once it returns). The result is finished where it was computed (api/runs/finish.ts)
+   * and comes back as its canonical bytes, parsed here only if a field of it is read; `saved`
+   * holds the outputs the kind saves as series.
    */
   async computeResult(
     kind: RunKind,
