@@ -22,10 +22,10 @@
  *   back at once, but only the cooperative checks free the CPU, which is why every long loop
  *   of the analyses polls the flag.
  *
- * Memory: a worker that has just finished a run with a very large result (a daily
- * reconstruction over a millennium: about 100 MB of JSON) holds a heap grown to build it, which
- * V8 keeps; once idle it is replaced by a fresh, warmed-up worker, so the process returns that
- * memory instead of keeping one such heap per worker.
+ * Memory: a worker that has finished a run with a very large result (a daily reconstruction
+ * over centuries: tens of MB of JSON) holds a heap grown to build it, which V8 keeps; once it
+ * has been idle for a few seconds it is replaced by a fresh, warmed-up worker, so the process
+ * returns that memory instead of keeping one such heap per worker.
  *
  * @module
  */
@@ -41,14 +41,17 @@ import { type SerialisedError, transferablesOf } from "./messages.ts";
 /** Default time a stopped run's work may keep a worker busy before the worker is replaced. */
 export const STOP_GRACE_MS = 1000;
 
+/** A worker that finished a run with a result at least this large (bytes) is recycled. */
+export const RECYCLE_RESULT_BYTES = 16 * 1024 * 1024;
+
 /**
- * A worker that finished a run with a result at least this large (bytes) is recycled. Not
- * lower: a fresh worker has not optimised the code of the run that grew it, and a 38 MB
- * daily reconstruction (153,000 days) ran 1.20 × slower through HTTP when every such run
- * recycled its worker (test/bench/http_runs_ab.ts, 6 interleaved rounds, load 3.7–3.9), while
- * resident memory after a sequence of them stayed at 1.05 × one run's peak without recycling.
+ * How long such a worker must stay idle before it is recycled, ms. A fresh worker has not
+ * optimised the code of the run that grew it: recycling after every 38 MB daily reconstruction
+ * made back-to-back ones 1.20 × slower through HTTP (test/bench/http_runs_ab.ts, 6 interleaved
+ * rounds, load 3.7–3.9), so a burst of large runs keeps its workers and the memory is returned
+ * once the burst pauses.
  */
-export const RECYCLE_RESULT_BYTES = 64 * 1024 * 1024;
+export const RECYCLE_IDLE_MS = 5000;
 /** How often a running computation's hooks are asked whether it must stop. */
 const STOP_POLL_MS = 50;
 
@@ -63,6 +66,8 @@ interface Slot {
   ready: boolean;
   /** Replace the worker by a fresh one once it is idle (it built a very large result). */
   recycle?: boolean;
+  /** The pending recycling of an idle worker (cleared when it is given a job). */
+  recycleTimer?: ReturnType<typeof setTimeout>;
 }
 
 /** One run's stop flag, shared with every worker computing for it. */
@@ -165,6 +170,7 @@ export class WorkerPool implements ComputeExecutor {
   private replaced = 0;
   readonly graceMs: number;
   readonly recycleBytes: number;
+  readonly recycleIdleMs: number;
   /** Workers replaced by fresh ones after a very large result. */
   recycled = 0;
 
@@ -173,12 +179,13 @@ export class WorkerPool implements ComputeExecutor {
    * registry); an app built with other analyses passes its own. `options.graceMs`: how long a
    * stopped run's work may keep a worker busy before the worker is replaced.
    * `options.recycleBytes`: a worker that finished a run whose finished result is at least
-   * this many bytes is replaced once idle (default {@link RECYCLE_RESULT_BYTES}).
+   * this many bytes is replaced once idle for `options.recycleIdleMs` (defaults
+   * {@link RECYCLE_RESULT_BYTES}, {@link RECYCLE_IDLE_MS}).
    */
   constructor(
     readonly size: number,
     readonly registry: string = new URL("../analyses/registry.ts", import.meta.url).href,
-    options: { graceMs?: number; recycleBytes?: number } = {},
+    options: { graceMs?: number; recycleBytes?: number; recycleIdleMs?: number } = {},
   ) {
     if (!Number.isInteger(size) || size < 1) {
       throw new RangeError(
@@ -187,6 +194,7 @@ export class WorkerPool implements ComputeExecutor {
     }
     this.graceMs = options.graceMs ?? STOP_GRACE_MS;
     this.recycleBytes = options.recycleBytes ?? RECYCLE_RESULT_BYTES;
+    this.recycleIdleMs = options.recycleIdleMs ?? RECYCLE_IDLE_MS;
     for (let i = 0; i < size; i++) {
       const slot: Slot = {
         index: i,
@@ -279,6 +287,8 @@ export class WorkerPool implements ComputeExecutor {
       slot.jobs.add(job);
       // a transferred buffer is gone from this side: such a job cannot be sent twice
       job.transferred = job.transfer.length > 0;
+      // given work: not recycled now (again once idle)
+      this.cancelRecycling(slot);
       slot.worker.postMessage(job.message, job.transfer);
     }
   }
@@ -332,13 +342,14 @@ export class WorkerPool implements ComputeExecutor {
           slot.recycle = true;
         }
         this.finish(job, () => job.resolve(m.result));
-        if (slot.recycle && slot.jobs.size === 0) this.recycle(slot);
         this.pump();
+        this.recycleWhenIdle(slot);
         return;
       }
       case "error":
         this.finish(job, () => job.reject(revive(m.error as SerialisedError)));
         this.pump();
+        this.recycleWhenIdle(slot);
         return;
     }
   }
@@ -586,6 +597,25 @@ export class WorkerPool implements ComputeExecutor {
       if (job.control?.stopped) this.finish(job, () => job.reject(new CancelledError()));
       else this.requeue(job);
     }
+  }
+
+  /** Recycle a marked slot once it has been idle for `recycleIdleMs`. */
+  private recycleWhenIdle(slot: Slot): void {
+    if (!slot.recycle || slot.jobs.size > 0 || slot.recycleTimer || this.terminated) return;
+    const timer = setTimeout(() => {
+      this.timers.delete(timer);
+      slot.recycleTimer = undefined;
+      if (slot.recycle && slot.jobs.size === 0 && !this.terminated) this.recycle(slot);
+    }, this.recycleIdleMs);
+    slot.recycleTimer = timer;
+    this.timers.add(timer);
+  }
+
+  private cancelRecycling(slot: Slot): void {
+    if (!slot.recycleTimer) return;
+    clearTimeout(slot.recycleTimer);
+    this.timers.delete(slot.recycleTimer);
+    slot.recycleTimer = undefined;
   }
 
   /** Replace an idle slot's worker by a fresh one, warmed up before it takes work. */
