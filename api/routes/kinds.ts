@@ -12,7 +12,7 @@ import { problems, RunSchema } from "../schemas/common.ts";
 import { requireJson } from "./media.ts";
 import { findUnknownFields } from "./unknown_fields.ts";
 import { ProblemError } from "../problems.ts";
-import { runViewJson } from "./runs.ts";
+import { runViewBytes } from "./runs.ts";
 import type { Store } from "../store/types.ts";
 import type { Config } from "../config.ts";
 import { principalOf } from "../auth/authenticate.ts";
@@ -97,7 +97,7 @@ export function registerKindRoutes(
       c.header("Location", `/v1/runs/${outcome.run.id}`);
       if (outcome.status === 202) c.header("Preference-Applied", "respond-async");
       // the result's one serialisation, spliced into the run's JSON
-      return c.body(runViewJson(outcome.run, { saved_series: outcome.saved_series }), {
+      return c.body(runViewBytes(outcome.run, { saved_series: outcome.saved_series }), {
         status: outcome.status,
         headers: { "Content-Type": "application/json" },
       });

@@ -7,7 +7,7 @@
 import { ensembleSourceOf } from "../analyses/common/ensemble_members.ts";
 import { bandAttributes } from "../analyses/common/uncertainty_band.ts";
 import { runLabel } from "../runs/label.ts";
-import { resultTextOf } from "../store/result_text.ts";
+import { resultBytesOf } from "../store/result_text.ts";
 import { createRoute, z } from "@hono/zod-openapi";
 import { streamSSE } from "hono/streaming";
 import type { App } from "../app_env.ts";
@@ -51,18 +51,29 @@ export function runView(r: RunRecord) {
 const RESULT_SLOT = `result-slot-${crypto.randomUUID()}`;
 
 /**
- * The JSON text of a run's public view (plus `extra` members): the result's text is the one
- * made when it was computed or read from the store (api/store/result_text.ts), spliced in
- * where the result goes rather than serialised again.
+ * The JSON of a run's public view (plus `extra` members) as UTF-8 bytes: the result's bytes
+ * are the ones made when it was computed or read from the store (api/store/result_text.ts),
+ * spliced in where the result goes rather than serialised again (one copy of them, no string).
  */
-export function runViewJson(r: RunRecord, extra: Record<string, unknown> = {}): string {
-  const text = resultTextOf(r.result);
-  if (text === undefined) return JSON.stringify({ ...runView(r), ...extra });
+export function runViewBytes(
+  r: RunRecord,
+  extra: Record<string, unknown> = {},
+): Uint8Array<ArrayBuffer> {
+  const bytes = resultBytesOf(r.result);
+  if (bytes === undefined) return encoder.encode(JSON.stringify({ ...runView(r), ...extra }));
   const shell = JSON.stringify({ ...runView(r), result: RESULT_SLOT, ...extra });
   const slot = `"result":"${RESULT_SLOT}"`;
   const at = shell.indexOf(slot);
-  return shell.slice(0, at) + `"result":` + text + shell.slice(at + slot.length);
+  const head = encoder.encode(shell.slice(0, at) + `"result":`);
+  const tail = encoder.encode(shell.slice(at + slot.length));
+  const out = new Uint8Array(head.length + bytes.length + tail.length);
+  out.set(head, 0);
+  out.set(bytes, head.length);
+  out.set(tail, head.length + bytes.length);
+  return out;
 }
+
+const encoder = new TextEncoder();
 
 const RunId = RunIdParam;
 
@@ -143,7 +154,7 @@ export function registerRunRoutes(
         if (run.status === "succeeded") {
           const rep = {
             etag,
-            body: new TextEncoder().encode(runViewJson(run)),
+            body: runViewBytes(run),
             headers: { "Content-Type": "application/json" },
           };
           runCache.set(run.id, rep);

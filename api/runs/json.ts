@@ -82,7 +82,7 @@ function walk(value: unknown, path: (string | number)[], keys: Set<string>): unk
   if (typeof value === "object") {
     const out: Record<string, unknown> = {};
     // RFC 8785 order (UTF-16 code units, the default sort): JSON.stringify of the result is
-    // then its canonical JSON (api/runs/result_text.ts)
+    // then its canonical JSON (api/store/result_text.ts)
     for (const k of Object.keys(value as object).sort()) {
       // the same keys repeat in every row of a table: test each spelling once
       if (!keys.has(k)) {

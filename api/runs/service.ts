@@ -30,9 +30,9 @@ import { SERIES_ID_PATTERN } from "../schemas/series_ref.ts";
 import type { InlineSeries } from "../schemas/series_ref.ts";
 import { ProblemError, toPointer } from "../problems.ts";
 import { canonicalJson, sha256Hex } from "../canonical.ts";
-import { toPlainJson } from "./json.ts";
-import { canonicalResult } from "../store/result_text.ts";
-import { gatherInherited, type Lineage, withInherited } from "./inherit.ts";
+import { lazyResult } from "../store/result_text.ts";
+import { gatherInherited, type InheritedNote, type Lineage } from "./inherit.ts";
+import { type FinishedResult, finishResult } from "./finish.ts";
 import { SERVICE_VERSION } from "../version.ts";
 import { taskTable } from "../analyses/derive.ts";
 import { RUN_KINDS } from "../analyses/registry.ts";
@@ -71,6 +71,17 @@ export interface ComputeExecutor {
     inputs: RunInputs,
     hooks: ComputeHooks,
   ): Promise<RunResult>;
+  /**
+   * Compute, then finish the result where it was computed (api/runs/finish.ts): plain JSON
+   * with the inherited `notes`, its canonical bytes and digest, and the auto-saved outputs.
+   */
+  computeFinished(
+    kind: RunKind,
+    params: Record<string, unknown>,
+    inputs: RunInputs,
+    hooks: ComputeHooks,
+    notes: InheritedNote[],
+  ): Promise<FinishedResult>;
   /**
    * Map a named task over inputs (used by in-thread compute too). With `isCancelled`, the
    * tasks' `shouldStop` turns true once it answers true (chunks of a run that may be stopped).
@@ -112,6 +123,15 @@ export class InThreadExecutor implements ComputeExecutor {
       hooks.scatter ?? ((task, chunks) => this.#map(task, chunks, () => hooks.isCancelled())),
     );
     return await kind.compute(params, ctx);
+  }
+  async computeFinished(
+    kind: RunKind,
+    params: Record<string, unknown>,
+    inputs: RunInputs,
+    hooks: ComputeHooks,
+    notes: InheritedNote[],
+  ): Promise<FinishedResult> {
+    return finishResult(await this.compute(kind, params, inputs, hooks), notes, kind.autoSave);
   }
   parallel<I, O>(
     task: string,
@@ -528,18 +548,19 @@ export class RunService {
       }
       return { status: 202, run, saved_series: [] };
     }
-    let done: RunRecord;
+    let computed: { done: RunRecord; outputs: Record<string, unknown> };
     const t0 = performance.now();
     try {
       await ticket?.slot();
-      done = await this.computeRun(kind, run, prep);
+      computed = await this.computeRun(kind, run, prep);
     } finally {
       ticket?.done((performance.now() - t0) / 1000);
     }
+    const { done, outputs } = computed;
     // Only a successful synchronous run is stored (with its inline inputs).
     for (const s of prep.inline.values()) await this.store.putSeries(s, holder);
     await this.store.putRun(done, holder);
-    const saved = await this.saveOutputs(kind, done, holder);
+    const saved = await this.saveOutputs(kind, done, holder, outputs);
     return { status: 201, run: done, saved_series: saved };
   }
 
@@ -572,26 +593,29 @@ export class RunService {
    * carries the warnings and cautions of the runs it is built on (`inherited`), looked up in
    * `lineage` (default: the store). A computation still going after the wall-time limit is
    * asked to stop and answered with a time-limit problem (computed in this thread, it is
-   * refused once it returns).
+   * refused once it returns). The result is finished where it was computed (api/runs/finish.ts)
+   * and comes back as its canonical bytes, parsed here only if a field of it is read; `saved`
+   * holds the outputs the kind saves as series.
    */
   async computeResult(
     kind: RunKind,
     params: Record<string, unknown>,
     inputs: RunInputs,
     lineage: Lineage = this.lineage(),
-  ): Promise<{ result: Record<string, unknown>; digest: string }> {
-    let result: RunResult;
+  ): Promise<{ result: Record<string, unknown>; digest: string; saved: Record<string, unknown> }> {
+    let result: FinishedResult;
     let stop = false;
     let timer: ReturnType<typeof setTimeout> | undefined;
     const wallMs = this.#wallMs;
     const t0 = performance.now();
+    const notes = await gatherInherited(inputs, lineage);
     try {
-      const work = this.executor.compute(kind, params, inputs, {
+      const work = this.executor.computeFinished(kind, params, inputs, {
         progress: () => {},
         // computed in this thread, no timer fires while a loop runs: the clock is read too
         isCancelled: () => stop || performance.now() - t0 > wallMs,
         onStart: () => {},
-      });
+      }, notes);
       if (Number.isFinite(wallMs)) {
         const late = new Promise<never>((_, reject) => {
           timer = setTimeout(() => {
@@ -613,27 +637,7 @@ export class RunService {
       clearTimeout(timer);
     }
     if (performance.now() - t0 > wallMs) throw timeLimitProblem(this.options.wallSeconds!);
-    const plain = await this.finishResult(result, inputs, lineage);
-    return { result: plain, digest: canonicalResult(plain).digest };
-  }
-
-  /**
-   * The stored form of a computed result: plain JSON with its inherited context, every
-   * object's keys in RFC 8785 order (so that its one serialisation is its canonical JSON).
-   */
-  private async finishResult(
-    result: RunResult,
-    inputs: { series: Record<string, StoredSeries>; runs: Record<string, RunRecord> },
-    lineage: Lineage,
-  ): Promise<Record<string, unknown>> {
-    const plain = toPlainJson(result) as Record<string, unknown>;
-    const full = withInherited(plain, await gatherInherited(inputs, lineage));
-    if (full === plain) return plain;
-    // the inherited part is small: sort it, then the top level with it
-    const withNotes: Record<string, unknown> = { ...plain, inherited: toPlainJson(full.inherited) };
-    const sorted: Record<string, unknown> = {};
-    for (const k of Object.keys(withNotes).sort()) sorted[k] = withNotes[k];
-    return sorted;
+    return { result: lazyResult(result.bytes), digest: result.digest, saved: result.saved };
   }
 
   /** The lineage of runs as the store holds it. */
@@ -649,9 +653,9 @@ export class RunService {
     kind: RunKind,
     run: RunRecord,
     prep: RunInputs,
-  ): Promise<RunRecord> {
-    const { result, digest } = await this.computeResult(kind, run.params, prep);
-    return {
+  ): Promise<{ done: RunRecord; outputs: Record<string, unknown> }> {
+    const { result, digest, saved } = await this.computeResult(kind, run.params, prep);
+    const done: RunRecord = {
       ...run,
       status: "succeeded",
       progress: 1,
@@ -660,6 +664,7 @@ export class RunService {
       result_digest: digest,
       eta_seconds: null,
     };
+    return { done, outputs: saved };
   }
 
   /**
@@ -777,7 +782,8 @@ export class RunService {
     let lastWrite = 0;
     let startedAt = Date.now();
     const mustStop = () => overTime() || active.cancelled;
-    const result = await this.executor.compute(kind, run.params, prep, {
+    const notes = await gatherInherited(prep, this.lineage());
+    const finishedResult = await this.executor.computeFinished(kind, run.params, prep, {
       onStart: () => {
         startedAt = Date.now();
         publish({ type: "status", id: run.id, status: "running", progress: 0 });
@@ -803,23 +809,23 @@ export class RunService {
       scatter: this.transport.chunks
         ? (task, chunks) => this.transport.chunks!.map(run.id, task, chunks, mustStop)
         : undefined,
-    });
+    }, notes);
     if (mustStop()) throw new CancelledError();
-    const plain = await this.finishResult(result, prep, this.lineage());
-    const { digest } = canonicalResult(plain);
+    const { digest, saved: outputs } = finishedResult;
+    const result = lazyResult(finishedResult.bytes);
     if (active.final) return;
     active.final = true;
     const written = await store.updateLeased(run.id, holder, {
       status: "succeeded",
       progress: 1,
-      result: plain,
+      result,
       result_digest: digest,
       eta_seconds: null,
       updated_at: new Date().toISOString(),
     });
     if (!written) return;
     const finished = await store.getRun(run.id);
-    if (finished) await this.saveOutputs(kind, finished, owner);
+    if (finished) await this.saveOutputs(kind, finished, owner, outputs);
     publish({ type: "status", id: run.id, status: "succeeded", progress: 1 });
   }
 
@@ -828,13 +834,15 @@ export class RunService {
     kind: RunKind,
     run: RunRecord,
     holder: HolderSpec = DEFAULT_HOLDER,
+    outputs?: Record<string, unknown>,
   ): Promise<{ output: string; id: string }[]> {
     const saved: { output: string; id: string }[] = [];
-    const outputs = (run.result?.outputs ?? {}) as Record<string, OutputSeries>;
+    // the auto-saved outputs as the compute finished them, else read from the result
+    const from = (outputs ?? run.result?.outputs ?? {}) as Record<string, OutputSeries>;
     for (const name of kind.autoSave ?? []) {
-      const o = outputs[name];
+      const o = from[name];
       if (!o) continue;
-      saved.push({ output: name, id: await this.saveOutput(run, name, holder) });
+      saved.push({ output: name, id: await this.saveOutput(run, name, holder, o) });
     }
     return saved;
   }
@@ -844,8 +852,9 @@ export class RunService {
     run: RunRecord,
     name: string,
     holder: HolderSpec = DEFAULT_HOLDER,
+    output?: OutputSeries,
   ): Promise<string> {
-    const o = (run.result?.outputs as Record<string, OutputSeries> | undefined)?.[name];
+    const o = output ?? (run.result?.outputs as Record<string, OutputSeries> | undefined)?.[name];
     if (!o) {
       throw new ProblemError("not-found", `run ${run.id} has no output named "${name}"`);
     }
@@ -872,7 +881,7 @@ export class RunService {
       );
     }
     const prep = await this.prepare(kind, reparsed.data as Record<string, unknown>);
-    const again = await this.computeRun(kind, run, prep);
+    const { done: again } = await this.computeRun(kind, run, prep);
     const identical = again.result_digest === run.result_digest;
     const versionChanged = kind.algorithmVersion !== run.algorithm_version;
     return {

@@ -19,7 +19,7 @@ import type {
   Visibility,
 } from "./types.ts";
 import { LOCAL_OWNER, VISIBILITIES } from "./types.ts";
-import { resultJson } from "./result_text.ts";
+import { resultBytes, resultJson } from "./result_text.ts";
 
 /** One schema step. Versions are consecutive from 1; never edit a released step, add one. */
 export interface Migration {
@@ -145,8 +145,26 @@ export function toRunSummary(r: DbRow, inputSeries: string[], inputRuns: string[
   };
 }
 
-/** The values of {@link RUN_COLUMNS} for a run, in that order (JSON fields as text). */
-export function runValues(r: RunRecord): (string | number | null)[] {
+/** A column value: SQLite binds bytes as a BLOB. */
+export type ColumnValue = string | number | null | Uint8Array<ArrayBuffer>;
+
+/**
+ * How a result is written: its canonical JSON as UTF-8 bytes (a BLOB: no text copy of a large
+ * result is made) or as text (a TEXT column).
+ */
+export type ResultForm = "bytes" | "text";
+
+function resultColumn(v: unknown, form: ResultForm): ColumnValue {
+  if (v === null) return null;
+  const r = v as Record<string, unknown>;
+  return form === "bytes" ? resultBytes(r) : resultJson(r);
+}
+
+/**
+ * The values of {@link RUN_COLUMNS} for a run, in that order (JSON fields as text; the result
+ * in the given form).
+ */
+export function runValues(r: RunRecord, form: ResultForm = "text"): ColumnValue[] {
   return [
     r.id,
     r.kind,
@@ -160,7 +178,7 @@ export function runValues(r: RunRecord): (string | number | null)[] {
     r.result_digest,
     r.eta_seconds,
     JSON.stringify(r.params),
-    r.result === null ? null : resultJson(r.result),
+    resultColumn(r.result, form),
     r.error === null ? null : JSON.stringify(r.error),
   ];
 }
@@ -196,7 +214,7 @@ export function checkSeries(s: StoredSeries): void {
 }
 
 /** Run fields `updateRun` may change, with how each value is written to its column. */
-const RUN_PATCH_COLUMNS: Record<string, (v: unknown) => string | number | null> = {
+const RUN_PATCH_COLUMNS: Record<string, (v: unknown) => ColumnValue> = {
   updated_at: (v) => String(v),
   status: (v) => String(v),
   progress: (v) => Number(v),
@@ -204,7 +222,7 @@ const RUN_PATCH_COLUMNS: Record<string, (v: unknown) => string | number | null> 
   service_version: (v) => String(v),
   algorithm_version: (v) => String(v),
   seed: (v) => (v === null ? null : Number(v)),
-  result: (v) => (v === null ? null : resultJson(v as Record<string, unknown>)),
+  result: (v) => resultColumn(v, "text"),
   result_digest: (v) => (v === null ? null : String(v)),
   error: (v) => (v === null ? null : JSON.stringify(v)),
   eta_seconds: (v) => (v === null ? null : Number(v)),
@@ -220,8 +238,9 @@ export function encodeRunPatch(
   id: string,
   patch: Partial<Omit<RunRecord, "id" | "kind" | "created_at">>,
   now: string,
-): [column: string, value: string | number | null][] {
-  const out: [string, string | number | null][] = [];
+  form: ResultForm = "text",
+): [column: string, value: ColumnValue][] {
+  const out: [string, ColumnValue][] = [];
   const p: Record<string, unknown> = { ...patch, updated_at: patch.updated_at ?? now };
   for (const [key, value] of Object.entries(p)) {
     if (
@@ -230,7 +249,7 @@ export function encodeRunPatch(
     ) continue;
     const enc = RUN_PATCH_COLUMNS[key];
     if (!enc) throw new RangeError(`Cannot update run ${id}: unknown field "${key}"`);
-    out.push([key, enc(value)]);
+    out.push([key, key === "result" ? resultColumn(value, form) : enc(value)]);
   }
   return out;
 }

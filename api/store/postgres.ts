@@ -257,7 +257,8 @@ function seriesRow(s: SeriesMeta): Record<string, string | number | null> {
 }
 
 function runRow(r: RunRecord): Record<string, string | number | null> {
-  const values = runValues(r);
+  // the result as text (its column is TEXT): no value here is bytes
+  const values = runValues(r, "text") as (string | number | null)[];
   return Object.fromEntries(RUN_COLUMNS.map((c, i) => [c, values[i]]));
 }
 

@@ -248,6 +248,9 @@ function viewOf(h: Holding): { created_at: string; owner: string; visibility: Vi
   return { created_at: h.created_at, owner: h.owner, visibility: h.visibility };
 }
 
+/** Most access-check answers a store remembers between changes of its database. */
+const MAX_REMEMBERED_HOLDINGS = 10_000;
+
 const HOLDING_COLUMNS =
   "h.owner_id AS h_owner, h.visibility AS h_visibility, h.created_at AS h_created";
 
@@ -289,6 +292,9 @@ export class SqliteStore implements Store {
   readonly kind = "sqlite";
   #db: DatabaseSync;
   #stmts = new Map<string, StatementSync>();
+  /** Access-check answers since the database last changed (see `#holding`). */
+  #holdings = new Map<string, Holding | null>();
+  #holdingsVersion = "";
 
   #writer: SqliteWriter | null;
 
@@ -516,14 +522,38 @@ export class SqliteStore implements Store {
     return settle(() => this.#holding("run_holdings", "run_id", id, viewer));
   }
 
+  /**
+   * The holding through which `viewer` sees an item: every GET and 304 asks, so answers are
+   * remembered until the database changes in any way. `total_changes()` counts this
+   * connection's writes and `data_version` changes when another connection commits (another
+   * process, the series writer), so a visibility, holding or group change anywhere is seen by
+   * the next check. Asking for both is one statement on no table (a few µs); the visibility
+   * query it saves joins holdings and owners.
+   */
   #holding(table: string, key: string, id: string, viewer: Viewer): Holding | null {
+    const v = this.#stmt(
+      "SELECT total_changes() AS t, data_version AS d FROM pragma_data_version",
+    ).get() as Row;
+    const version = `${v.t}:${v.d}`;
+    if (version !== this.#holdingsVersion) {
+      this.#holdings.clear();
+      this.#holdingsVersion = version;
+    }
+    const k = `${table}\u0000${id}\u0000${viewer.admin ? 1 : 0}\u0000${viewer.owner ?? ""}\u0000${
+      viewer.group ?? ""
+    }`;
+    const hit = this.#holdings.get(k);
+    if (hit !== undefined) return hit && { ...hit };
     const vis = visibleTo("h", viewer);
     const order = pickOrder("h", viewer);
     const row = this.#stmt(
       `SELECT ${HOLDING_COLUMNS} FROM ${table} h WHERE h.${key} = ? AND ${vis.sql}
        ${order.sql} LIMIT 1`,
     ).get(id, ...vis.args, ...order.args) as Row | undefined;
-    return row ? toHolding(row) : null;
+    const found = row ? toHolding(row) : null;
+    if (this.#holdings.size >= MAX_REMEMBERED_HOLDINGS) this.#holdings.clear();
+    this.#holdings.set(k, found && { ...found });
+    return found;
   }
 
   setSeriesVisibility(id: string, owner: string, visibility: Visibility): Promise<boolean> {
@@ -654,7 +684,7 @@ export class SqliteStore implements Store {
         this.#checkInputs(r.id, r.input_series, r.input_runs);
         this.#stmt(
           `INSERT INTO runs (${RUN_ALL}) VALUES (${marks(RUN_COLUMNS.length)})`,
-        ).run(...runValues(r));
+        ).run(...runValues(r, "bytes"));
         this.#writeLinks(r.id, r.input_series, r.input_runs);
         if (r.input_fields?.length) this.#fields.linkRun(r.id, r.input_fields);
         this.#stmt(
@@ -692,7 +722,7 @@ export class SqliteStore implements Store {
     patch: Partial<Omit<RunRecord, "id" | "kind" | "created_at">>,
   ): Promise<void> {
     return settle(() => {
-      const cols = encodeRunPatch(id, patch, new Date().toISOString());
+      const cols = encodeRunPatch(id, patch, new Date().toISOString(), "bytes");
       const sets = cols.map(([c]) => `${c} = ?`);
       const args = cols.map(([, v]) => v);
       this.#write(() => {
@@ -874,7 +904,7 @@ export class SqliteStore implements Store {
     patch: Partial<Omit<RunRecord, "id" | "kind" | "created_at">>,
   ): Promise<boolean> {
     return settle(() => {
-      const cols = encodeRunPatch(id, patch, new Date().toISOString());
+      const cols = encodeRunPatch(id, patch, new Date().toISOString(), "bytes");
       const sets = cols.map(([c]) => `${c} = ?`);
       const args = cols.map(([, v]) => v);
       const ended = patch.status !== undefined && TERMINAL.has(patch.status);

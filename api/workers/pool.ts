@@ -22,16 +22,36 @@
  *   back at once, but only the cooperative checks free the CPU, which is why every long loop
  *   of the analyses polls the flag.
  *
+ * Memory: a worker that has finished a run with a very large result (a daily reconstruction
+ * over centuries: tens of MB of JSON) holds a heap grown to build it, which V8 keeps; once it
+ * has been idle for a few seconds it is replaced by a fresh, warmed-up worker, so the process
+ * returns that memory instead of keeping one such heap per worker.
+ *
  * @module
  */
 import type { RunInputs, RunKind, RunResult } from "../runs/kind.ts";
 import { CancelledError, InputProblem } from "../runs/kind.ts";
 import { InputError } from "../../core/errors.ts";
 import type { ComputeExecutor, ComputeHooks } from "../runs/service.ts";
+import type { FinishedResult } from "../runs/finish.ts";
+import type { InheritedNote } from "../runs/inherit.ts";
+import { plainResult } from "../store/result_text.ts";
 import { type SerialisedError, transferablesOf } from "./messages.ts";
 
 /** Default time a stopped run's work may keep a worker busy before the worker is replaced. */
 export const STOP_GRACE_MS = 1000;
+
+/** A worker that finished a run with a result at least this large (bytes) is recycled. */
+export const RECYCLE_RESULT_BYTES = 16 * 1024 * 1024;
+
+/**
+ * How long such a worker must stay idle before it is recycled, ms. A fresh worker has not
+ * optimised the code of the run that grew it: recycling after every 38 MB daily reconstruction
+ * made back-to-back ones 1.20 × slower through HTTP (test/bench/http_runs_ab.ts, 6 interleaved
+ * rounds, load 3.7–3.9), so a burst of large runs keeps its workers and the memory is returned
+ * once the burst pauses.
+ */
+export const RECYCLE_IDLE_MS = 5000;
 /** How often a running computation's hooks are asked whether it must stop. */
 const STOP_POLL_MS = 50;
 
@@ -44,6 +64,10 @@ interface Slot {
   dead: boolean;
   /** The worker has loaded the analyses (before that, nothing posted to it has begun). */
   ready: boolean;
+  /** Replace the worker by a fresh one once it is idle (it built a very large result). */
+  recycle?: boolean;
+  /** The pending recycling of an idle worker (cleared when it is given a job). */
+  recycleTimer?: ReturnType<typeof setTimeout>;
 }
 
 /** One run's stop flag, shared with every worker computing for it. */
@@ -107,6 +131,13 @@ function revive(e: SerialisedError): Error {
  * `replace`) still has them, which a transferred buffer would not.
  */
 function withSharedFields(inputs: RunInputs): RunInputs {
+  // a result read from the store is parsed on first use (api/store/result_text.ts): parse it
+  // here, since the object standing for it cannot be cloned
+  const runs: RunInputs["runs"] = {};
+  for (const [id, r] of Object.entries(inputs.runs)) {
+    runs[id] = { ...r, result: plainResult(r.result) };
+  }
+  inputs = { ...inputs, runs };
   if (!inputs.fields) return inputs;
   const fields: NonNullable<RunInputs["fields"]> = {};
   for (const [id, f] of Object.entries(inputs.fields)) {
@@ -138,16 +169,23 @@ export class WorkerPool implements ComputeExecutor {
   private terminated = false;
   private replaced = 0;
   readonly graceMs: number;
+  readonly recycleBytes: number;
+  readonly recycleIdleMs: number;
+  /** Workers replaced by fresh ones after a very large result. */
+  recycled = 0;
 
   /**
    * `registry`: URL of the module whose `RUN_KINDS` the workers serve (default: the service's
    * registry); an app built with other analyses passes its own. `options.graceMs`: how long a
    * stopped run's work may keep a worker busy before the worker is replaced.
+   * `options.recycleBytes`: a worker that finished a run whose finished result is at least
+   * this many bytes is replaced once idle for `options.recycleIdleMs` (defaults
+   * {@link RECYCLE_RESULT_BYTES}, {@link RECYCLE_IDLE_MS}).
    */
   constructor(
     readonly size: number,
     readonly registry: string = new URL("../analyses/registry.ts", import.meta.url).href,
-    options: { graceMs?: number } = {},
+    options: { graceMs?: number; recycleBytes?: number; recycleIdleMs?: number } = {},
   ) {
     if (!Number.isInteger(size) || size < 1) {
       throw new RangeError(
@@ -155,6 +193,8 @@ export class WorkerPool implements ComputeExecutor {
       );
     }
     this.graceMs = options.graceMs ?? STOP_GRACE_MS;
+    this.recycleBytes = options.recycleBytes ?? RECYCLE_RESULT_BYTES;
+    this.recycleIdleMs = options.recycleIdleMs ?? RECYCLE_IDLE_MS;
     for (let i = 0; i < size; i++) {
       const slot: Slot = {
         index: i,
@@ -247,6 +287,8 @@ export class WorkerPool implements ComputeExecutor {
       slot.jobs.add(job);
       // a transferred buffer is gone from this side: such a job cannot be sent twice
       job.transferred = job.transfer.length > 0;
+      // given work: not recycled now (again once idle)
+      this.cancelRecycling(slot);
       slot.worker.postMessage(job.message, job.transfer);
     }
   }
@@ -292,13 +334,22 @@ export class WorkerPool implements ComputeExecutor {
       case "parallel":
         this.serveParallel(slot, job, m);
         return;
-      case "done":
+      case "done": {
+        const bytes = (m.result as { bytes?: unknown } | undefined)?.bytes;
+        if (
+          job.type === "run" && bytes instanceof Uint8Array && bytes.length >= this.recycleBytes
+        ) {
+          slot.recycle = true;
+        }
         this.finish(job, () => job.resolve(m.result));
         this.pump();
+        this.recycleWhenIdle(slot);
         return;
+      }
       case "error":
         this.finish(job, () => job.reject(revive(m.error as SerialisedError)));
         this.pump();
+        this.recycleWhenIdle(slot);
         return;
     }
   }
@@ -382,9 +433,36 @@ export class WorkerPool implements ComputeExecutor {
     inputs: RunInputs,
     hooks: ComputeHooks,
   ): Promise<RunResult> {
+    return this.run<RunResult>(kind, params, inputs, hooks, null);
+  }
+
+  /**
+   * Compute, then finish the result in the worker (plain JSON, inherited notes, canonical
+   * bytes and digest): only the bytes (transferred) and the auto-saved outputs come back.
+   */
+  computeFinished(
+    kind: RunKind,
+    params: Record<string, unknown>,
+    inputs: RunInputs,
+    hooks: ComputeHooks,
+    notes: InheritedNote[],
+  ): Promise<FinishedResult> {
+    return this.run<FinishedResult>(kind, params, inputs, hooks, {
+      notes,
+      autoSave: kind.autoSave ?? [],
+    });
+  }
+
+  private run<T>(
+    kind: RunKind,
+    params: Record<string, unknown>,
+    inputs: RunInputs,
+    hooks: ComputeHooks,
+    finish: { notes: InheritedNote[]; autoSave: string[] } | null,
+  ): Promise<T> {
     const id = this.nextJob++;
     const control = newControl();
-    return new Promise<RunResult>((resolve, reject) => {
+    return new Promise<T>((resolve, reject) => {
       const done = this.watch(control, hooks.isCancelled);
       this.enqueue({
         id,
@@ -396,6 +474,7 @@ export class WorkerPool implements ComputeExecutor {
           params,
           inputs: withSharedFields(inputs),
           stop: control.flag,
+          finish,
         },
         transfer: [],
         transferred: false,
@@ -407,7 +486,7 @@ export class WorkerPool implements ComputeExecutor {
         progress: 0,
         resolve: (v) => {
           done();
-          resolve(v as RunResult);
+          resolve(v as T);
         },
         reject: (e) => {
           done();
@@ -520,6 +599,37 @@ export class WorkerPool implements ComputeExecutor {
     }
   }
 
+  /** Recycle a marked slot once it has been idle for `recycleIdleMs`. */
+  private recycleWhenIdle(slot: Slot): void {
+    if (!slot.recycle || slot.jobs.size > 0 || slot.recycleTimer || this.terminated) return;
+    const timer = setTimeout(() => {
+      this.timers.delete(timer);
+      slot.recycleTimer = undefined;
+      if (slot.recycle && slot.jobs.size === 0 && !this.terminated) this.recycle(slot);
+    }, this.recycleIdleMs);
+    slot.recycleTimer = timer;
+    this.timers.add(timer);
+  }
+
+  private cancelRecycling(slot: Slot): void {
+    if (!slot.recycleTimer) return;
+    clearTimeout(slot.recycleTimer);
+    this.timers.delete(slot.recycleTimer);
+    slot.recycleTimer = undefined;
+  }
+
+  /** Replace an idle slot's worker by a fresh one, warmed up before it takes work. */
+  private recycle(slot: Slot): void {
+    slot.recycle = false;
+    slot.worker.terminate();
+    this.recycled++;
+    slot.worker = this.spawn(slot.index);
+    slot.dead = false;
+    slot.ready = false;
+    this.attach(slot);
+    this.warmSlot(slot);
+  }
+
   /** Send a job again (a run from its start; its chunks not yet started are dropped). */
   private requeue(job: Job): void {
     if (job.transferred) {
@@ -564,32 +674,33 @@ export class WorkerPool implements ComputeExecutor {
    * worker's timings (and errors, which never reject).
    */
   warmUp(): Promise<unknown[]> {
-    return Promise.all(
-      this.slots.filter((s) => !s.dead).map((slot) =>
-        new Promise<unknown>((resolve) => {
-          const id = this.nextJob++;
-          const job: Job = {
-            id,
-            type: "task",
-            message: { type: "warm", job: id },
-            transfer: [],
-            transferred: false,
-            control: null,
-            slot,
-            pending: new Set(),
-            attempt: 0,
-            started: false,
-            progress: 0,
-            resolve,
-            reject: (e) => resolve({ error: e }),
-          };
-          // posted to this very worker (not through the queue): it is busy until warm
-          this.jobs.set(id, job);
-          slot.jobs.add(job);
-          slot.worker.postMessage(job.message);
-        })
-      ),
-    );
+    return Promise.all(this.slots.filter((s) => !s.dead).map((slot) => this.warmSlot(slot)));
+  }
+
+  /** Warm one worker up; it is busy (takes no other job) until warm. */
+  private warmSlot(slot: Slot): Promise<unknown> {
+    return new Promise<unknown>((resolve) => {
+      const id = this.nextJob++;
+      const job: Job = {
+        id,
+        type: "task",
+        message: { type: "warm", job: id },
+        transfer: [],
+        transferred: false,
+        control: null,
+        slot,
+        pending: new Set(),
+        attempt: 0,
+        started: false,
+        progress: 0,
+        resolve,
+        reject: (e) => resolve({ error: e }),
+      };
+      // posted to this very worker (not through the queue): it is busy until warm
+      this.jobs.set(id, job);
+      slot.jobs.add(job);
+      slot.worker.postMessage(job.message);
+    });
   }
 
   /** Stop every worker; pending jobs are rejected. */

@@ -2,8 +2,10 @@
  * A compute worker: runs whole run-kind computations and named tasks off the request thread.
  * Messages (structured clone; typed-array buffers in task results are transferred):
  *
- * - in  `{ type: "run", job, kind, params, inputs, stop }` → out `started`, `progress`,
- *   `parallel` (a request to map a task over chunks on the pool), then `done` or `error`
+ * - in  `{ type: "run", job, kind, params, inputs, stop, finish }` → out `started`, `progress`,
+ *   `parallel` (a request to map a task over chunks on the pool), then `done` or `error`;
+ *   with `finish` (`{ notes, autoSave }`), `done` carries the finished result
+ *   (api/runs/finish.ts: canonical bytes, transferred, digest and auto-saved outputs)
  * - in  `{ type: "task", job, task, input, stop? }` → out `done` or `error`
  * - in  `{ type: "warm", job }` → out `done` with the warm-up's timings (api/workers/warm_up.ts)
  * - in  `{ type: "parallel-result", req, results | error }`
@@ -22,6 +24,7 @@ import { makeContext } from "../runs/service.ts";
 import { taskTable } from "../analyses/derive.ts";
 import { serialiseError, transferablesOf } from "./messages.ts";
 import { warmUp } from "./warm_up.ts";
+import { finishResult } from "../runs/finish.ts";
 
 /**
  * The analyses come from the registry module the pool names in the worker's `name` (a module
@@ -97,7 +100,13 @@ self.onmessage = async (e: MessageEvent) => {
           self.postMessage({ type: "parallel", job, req, task, chunks });
         }));
       const result = await kind.compute(m.params, ctx);
-      self.postMessage({ type: "done", job, result });
+      if (m.finish) {
+        // finished here: only the canonical bytes cross (transferred), never the object graph
+        const finished = finishResult(result, m.finish.notes, m.finish.autoSave);
+        self.postMessage({ type: "done", job, result: finished }, [finished.bytes.buffer]);
+      } else {
+        self.postMessage({ type: "done", job, result });
+      }
     } catch (err) {
       self.postMessage({ type: "error", job, error: serialiseError(err) });
     }

@@ -407,26 +407,28 @@ export function reconstructionOutputParts(
     null,
 ) {
   const pct = level === 0.95 ? "95 %" : `${(level * 100).toFixed(1)} %`;
-  const gap = (a: ArrayLike<number>) =>
-    Float64Array.from(a, (v, i) => (Number.isFinite(rec.value[i]) ? v : NaN));
   return {
     time: Array.from(cells.time),
     value: micro(rec.value),
-    uncertainty: micro(gap(members?.sd ?? rec.sd)),
-    lower: micro(gap(members?.lower ?? rec.lower)),
-    upper: micro(gap(members?.upper ?? rec.upper)),
+    uncertainty: micro(members?.sd ?? rec.sd, rec.value),
+    lower: micro(members?.lower ?? rec.lower, rec.value),
+    upper: micro(members?.upper ?? rec.upper, rec.value),
     interval: members?.interval ?? `${pct} prediction interval`,
   };
 }
 
 /**
  * Round to 1e-6 (W m-2 for irradiance: far below any interval width, and a third shorter in
- * JSON); null where the cell has no value.
+ * JSON); null where the cell has no value (NaN in `x`, or, given `gaps`, not finite there).
+ * One loop, no intermediate array: a daily reconstruction has hundreds of thousands of cells.
  */
-export function micro(x: ArrayLike<number>): (number | null)[] {
+export function micro(x: ArrayLike<number>, gaps?: ArrayLike<number>): (number | null)[] {
   const out = new Array<number | null>(x.length);
   for (let i = 0; i < x.length; i++) {
-    out[i] = Number.isNaN(x[i]) ? null : Math.round(x[i] * 1e6) / 1e6;
+    const v = x[i];
+    out[i] = Number.isNaN(v) || (gaps !== undefined && !Number.isFinite(gaps[i]))
+      ? null
+      : Math.round(v * 1e6) / 1e6;
   }
   return out;
 }

@@ -224,11 +224,19 @@ function varianceBlocks(
   rec: Reconstruction,
   members: MemberBand | null,
 ): ReconstructionResultIn["variance_by_period"] {
-  const none = (i: number) => rec.source[i] === SOURCE_NONE;
+  const src = rec.source;
+  // plain loops: a typed array's map with a closure is several times slower on 10^5 cells
+  const mask = (a: Float64Array, square: boolean) => {
+    const out = new Float64Array(a.length);
+    for (let i = 0; i < a.length; i++) {
+      out[i] = src[i] === SOURCE_NONE ? NaN : square ? a[i] * a[i] : a[i];
+    }
+    return out;
+  };
   const masked = Object.fromEntries(
-    ERROR_SOURCES.map((s) => [s, rec.components[s].map((v, i) => (none(i) ? NaN : v))]),
+    ERROR_SOURCES.map((s) => [s, mask(rec.components[s], false)]),
   ) as Record<ErrorSource, Float64Array>;
-  const ensVar = members ? members.sd.map((v, i) => (none(i) ? NaN : v * v)) : null;
+  const ensVar = members ? mask(members.sd, true) : null;
   return varianceByPeriod(cells.time, masked, params.variance_block_years, ensVar).map((b) => ({
     start: b.start,
     end: b.end,
@@ -243,8 +251,14 @@ function varianceBlocks(
 
 /** The error model as stored: loadings rounded to 1e-9 W m-2, zero where a cell has no value. */
 function errorModelJson(rec: Reconstruction): ReconstructionResultIn["error_model"] {
-  const r9 = (a: Float64Array) =>
-    Array.from(a, (v, i) => (rec.source[i] === SOURCE_NONE ? 0 : Math.round(v * 1e9) / 1e9));
+  const src = rec.source;
+  const r9 = (a: Float64Array) => {
+    const out = new Array<number>(a.length);
+    for (let i = 0; i < a.length; i++) {
+      out[i] = src[i] === SOURCE_NONE ? 0 : Math.round(a[i] * 1e9) / 1e9;
+    }
+    return out;
+  };
   return {
     description: "e(t) = Σ_j loading_j(t)·z_j + Σ_p loading_p(t)·u_p(t): z_j independent " +
       "standard normals shared by all cells, u_p unit-variance processes with corr(u_p(t), " +
