@@ -110,18 +110,25 @@ export interface FieldSignificanceChunkInput {
 function criticalTTable(alpha: number): (df: number) => number {
   const STEPS = 4096, H = 1 / 3 / STEPS;
   const p = 1 - alpha / 2;
-  const nodes = new Float64Array(STEPS + 3);
-  // nodes at u = (i − 1)·H for i = 0..STEPS+2 (u = −H mirrors the first step, unused at u < 0)
-  for (let i = 1; i < nodes.length; i++) {
-    const u = (i - 1) * H;
-    nodes[i] = u === 0 ? normalQuantile(p) : tQuantile(p, 1 / u);
-  }
-  nodes[0] = 2 * nodes[1] - nodes[2];
+  // nodes at u = (i − 1)·H for i = 0..STEPS+2 (u = −H mirrors the first step, unused at u < 0),
+  // each evaluated when first needed (a map's df span only a few hundred of them)
+  const nodes = new Float64Array(STEPS + 3).fill(NaN);
+  const node = (i: number): number => {
+    if (Number.isNaN(nodes[i])) {
+      const u = (i - 1) * H;
+      nodes[i] = i === 0
+        ? 2 * node(1) - node(2)
+        : u === 0
+        ? normalQuantile(p)
+        : tQuantile(p, 1 / u);
+    }
+    return nodes[i];
+  };
   return (df: number) => {
     if (df < 3) return tQuantile(p, df);
     const x = 1 / df / H, i = Math.min(STEPS - 1, Math.floor(x)), f = x - i;
     // points i − 1, i, i + 1, i + 2 at u-steps i−1..i+2 are nodes[i..i+3]
-    const y0 = nodes[i], y1 = nodes[i + 1], y2 = nodes[i + 2], y3 = nodes[i + 3];
+    const y0 = node(i), y1 = node(i + 1), y2 = node(i + 2), y3 = node(i + 3);
     return (
       (-f * (f - 1) * (f - 2) / 6) * y0 + ((f + 1) * (f - 1) * (f - 2) / 2) * y1 +
       (-(f + 1) * f * (f - 2) / 2) * y2 + ((f + 1) * f * (f - 1) / 6) * y3
