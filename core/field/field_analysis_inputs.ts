@@ -486,3 +486,41 @@ export function predictorResidual(
   }
   return removeBasis(out, basis, m, g0);
 }
+
+/**
+ * The inputs restricted to the cells [start, end) of `inputs.cells` (a block of the map for a
+ * worker: the block's field columns only; everything else is shared).
+ *
+ * @param inputs prepared inputs
+ * @param start first cell (index into inputs.cells)
+ * @param end one past the last
+ * @returns the block's inputs
+ * @throws {RangeError} when [start, end) is not a non-empty range of the cells
+ * @example
+ * ```ts
+ * import { prepareFieldAnalysis, sliceFieldAnalysisInputs } from "./field_analysis_inputs.ts";
+ * import assert from "node:assert/strict";
+ * const n = 12;
+ * const values = Float32Array.from({ length: n * 3 }, (_, i) => Math.sin(i));
+ * const field = { values, nTime: n, lat: Float64Array.of(0), lon: Float64Array.of(0, 120, 240) };
+ * const x = Float64Array.from({ length: n }, (_, t) => Math.cos(t));
+ * const part = sliceFieldAnalysisInputs(prepareFieldAnalysis(field, x, { minLag: 0, maxLag: 1 }), 1, 3);
+ * assert.deepEqual(Array.from(part.cells), [1, 2]);
+ * assert.equal(part.y.length, 2 * n);
+ * ```
+ */
+export function sliceFieldAnalysisInputs(
+  inputs: FieldAnalysisInputs,
+  start: number,
+  end: number,
+): FieldAnalysisInputs {
+  const nc = inputs.cells.length, n = inputs.n;
+  if (
+    !(Number.isInteger(start) && Number.isInteger(end) && 0 <= start && start < end && end <= nc)
+  ) {
+    throw new RangeError(`Cannot slice field inputs: cells ${start}..${end} outside 0..${nc}`);
+  }
+  const cb = end - start, y = new Float32Array(n * cb);
+  for (let t = 0; t < n; t++) y.set(inputs.y.subarray(t * nc + start, t * nc + end), t * cb);
+  return { ...inputs, cells: inputs.cells.slice(start, end), y };
+}
