@@ -384,8 +384,8 @@ function exactCov2(st: BandState, row: number, cc: number, j: number): number {
 
 /**
  * Settle a cell the threshold pass listed as within a band (local_test_tally.ts) by the exact
- * recomputation: returns its weight units when significant, and sets its flag when it reaches
- * the cell's observed best |r|.
+ * recomputation: returns its weight units when significant, and sets its flag (word 2·cc of
+ * `flags`) when it reaches the cell's observed best |r|.
  */
 function settleBand(
   st: BandState,
@@ -393,7 +393,7 @@ function settleBand(
   row: number,
   cc: number,
   j: number,
-  flags: Uint8Array,
+  flags: Int32Array,
 ): number {
   const sx = st.sxx[row], o = j * st.cb + cc, v2 = v * v;
   let u = 0;
@@ -401,9 +401,9 @@ function settleBand(
     st.rechecked++;
     if (exactCov2(st, row, cc, j) >= st.sigExact[o] * sx) u = st.w[cc];
   }
-  if (flags[cc] === 0 && !(v2 >= st.exHi[o] * sx) && v2 > st.exLo[o] * sx) {
+  if (flags[2 * cc] === 0 && !(v2 >= st.exHi[o] * sx) && v2 > st.exLo[o] * sx) {
     st.rechecked++;
-    if (exactCov2(st, row, cc, j) >= st.exExact[o] * sx) flags[cc] = 1;
+    if (exactCov2(st, row, cc, j) >= st.exExact[o] * sx) flags[2 * cc] = 1;
   }
   return u;
 }
@@ -523,7 +523,7 @@ export function fieldSignificanceChunk(
         }
         units[(blockStart + ii - s0) * L + j] = u;
       }
-      for (let cc = 0; cc < cb; cc++) exceed[cc] += flags[cc];
+      for (let cc = 0; cc < cb; cc++) if (flags[2 * cc] !== 0) exceed[cc]++;
     }
   }
   const rechecked = st.rechecked;

@@ -74,6 +74,21 @@ export const wasmOp = {
   v128Load32Splat: (offset: number) => [0xfd, 0x09, 2, ...uleb(offset)],
   v128Store: (offset: number) => [0xfd, 0x0b, 4, ...uleb(offset)],
   v128Zero: [0xfd, 0x0c, ...new Array<number>(16).fill(0)],
+  /** v128.load64_zero (alignment 2^3): two f32 (or one f64) into the low half, zeros above. */
+  v128Load64Zero: (offset: number) => [0xfd, ...uleb(0x5d), 3, ...uleb(offset)],
+  f64x2Splat: [0xfd, ...uleb(0x14)],
+  i32x4ExtractLane: (lane: number) => [0xfd, ...uleb(0x1b), lane],
+  f64x2ExtractLane: (lane: number) => [0xfd, ...uleb(0x21), lane],
+  f64x2Gt: [0xfd, ...uleb(0x4a)],
+  f64x2Ge: [0xfd, ...uleb(0x4c)],
+  v128And: [0xfd, ...uleb(0x4e)],
+  /** v128.andnot a b = a & ~b */
+  v128AndNot: [0xfd, ...uleb(0x4f)],
+  v128Or: [0xfd, ...uleb(0x50)],
+  f64x2PromoteLowF32x4: [0xfd, ...uleb(0x5f)],
+  i64x2Eq: [0xfd, ...uleb(0xd6)],
+  f64x2Add: [0xfd, ...uleb(0xf0)],
+  f64x2Mul: [0xfd, ...uleb(0xf2)],
   f32x4Add: [0xfd, ...uleb(228)],
   f32x4Mul: [0xfd, ...uleb(230)],
 };
