@@ -28,6 +28,21 @@ export interface PreprocessOptions {
   cutoffSamples?: number;
 }
 
+/** The last basis built by {@link sharedPolynomialBasis}, read only. */
+let lastBasis: { n: number; degree: number; basis: Float64Array[] } | null = null;
+
+/**
+ * polynomialBasis(n, degree), built once for a run of calls with the same n and degree (a map
+ * preprocesses thousands of cells, and a Monte Carlo test thousands of surrogates, of one
+ * length). The arrays are shared: callers only read them.
+ */
+function sharedPolynomialBasis(n: number, degree: number): Float64Array[] {
+  if (lastBasis === null || lastBasis.n !== n || lastBasis.degree !== degree) {
+    lastBasis = { n, degree, basis: polynomialBasis(n, degree) };
+  }
+  return lastBasis.basis;
+}
+
 /**
  * Orthonormal basis of polynomials of degree 0..`degree` on the sample index 0..n−1
  * (modified Gram–Schmidt on centred, scaled monomials).
@@ -267,7 +282,7 @@ export function preprocessSeries(x: Float64Array, options: PreprocessOptions = {
       });
     }
     const out = gaussianHighPass(x, options.cutoffSamples);
-    removeProjection(out, polynomialBasis(out.length, 0));
+    removeProjection(out, sharedPolynomialBasis(out.length, 0));
     return out;
   }
   const degree = method === "mean" ? 0 : method === "linear" ? 1 : method === "quadratic" ? 2 : -1;
@@ -279,6 +294,6 @@ export function preprocessSeries(x: Float64Array, options: PreprocessOptions = {
     });
   }
   const out = Float64Array.from(x);
-  removeProjection(out, polynomialBasis(out.length, degree));
+  removeProjection(out, sharedPolynomialBasis(out.length, degree));
   return out;
 }

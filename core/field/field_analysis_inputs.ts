@@ -361,18 +361,32 @@ export function preprocessFieldCells(
 /**
  * Remove from `out[0..m)` its projection on an orthonormal basis stored column-major (modified
  * Gram–Schmidt order, as preprocess_series.ts's removeProjection on a flat basis) and return
- * the residual sum of squares.
+ * the residual sum of squares. `g0`, when given, is Σ basis₀·out summed by the caller in the
+ * same order (the callers fuse it into their copy loop; the last subtraction is fused with the
+ * sum of squares: fewer passes, the same operations in the same order).
  */
-function removeBasis(out: Float64Array, basis: Float64Array, m: number): number {
+function removeBasis(out: Float64Array, basis: Float64Array, m: number, g0?: number): number {
   const p = basis.length / m;
+  let s = 0;
+  if (p === 0) {
+    for (let t = 0; t < m; t++) s += out[t] * out[t];
+    return s;
+  }
   for (let i = 0; i < p; i++) {
     let g = 0;
     const o = i * m;
-    for (let t = 0; t < m; t++) g += basis[o + t] * out[t];
-    for (let t = 0; t < m; t++) out[t] -= g * basis[o + t];
+    if (i === 0 && g0 !== undefined) g = g0;
+    else for (let t = 0; t < m; t++) g += basis[o + t] * out[t];
+    if (i < p - 1) {
+      for (let t = 0; t < m; t++) out[t] -= g * basis[o + t];
+    } else {
+      for (let t = 0; t < m; t++) {
+        const v = out[t] - g * basis[o + t];
+        out[t] = v;
+        s += v * v;
+      }
+    }
   }
-  let s = 0;
-  for (let t = 0; t < m; t++) s += out[t] * out[t];
   return s;
 }
 
@@ -411,7 +425,17 @@ export function segmentSums(
   const [a, b] = overlapRange(inputs.n, k);
   const m = b - a, off = a + k;
   const basis = inputs.bases[j];
-  let segSs = 0, sxy = 0;
+  let segSs = 0, sxy = 0, g0 = 0;
+  if (basis.length > 0) {
+    for (let t = 0; t < m; t++) {
+      const v = column[off + t];
+      out[t] = v;
+      segSs += v * v;
+      sxy += xr[t] * v;
+      g0 += basis[t] * v;
+    }
+    return { sxy, syy: removeBasis(out, basis, m, g0), segSs };
+  }
   for (let t = 0; t < m; t++) {
     const v = column[off + t];
     out[t] = v;
@@ -449,7 +473,54 @@ export function predictorResidual(
 ): number {
   const k = inputs.minLag + j;
   const [a, b] = overlapRange(inputs.n, k);
-  const m = b - a;
-  for (let t = 0; t < m; t++) out[t] = x[a + t];
-  return removeBasis(out, inputs.bases[j], m);
+  const m = b - a, basis = inputs.bases[j];
+  if (basis.length === 0) {
+    for (let t = 0; t < m; t++) out[t] = x[a + t];
+    return removeBasis(out, basis, m);
+  }
+  let g0 = 0;
+  for (let t = 0; t < m; t++) {
+    const v = x[a + t];
+    out[t] = v;
+    g0 += basis[t] * v;
+  }
+  return removeBasis(out, basis, m, g0);
+}
+
+/**
+ * The inputs restricted to the cells [start, end) of `inputs.cells` (a block of the map for a
+ * worker: the block's field columns only; everything else is shared).
+ *
+ * @param inputs prepared inputs
+ * @param start first cell (index into inputs.cells)
+ * @param end one past the last
+ * @returns the block's inputs
+ * @throws {RangeError} when [start, end) is not a non-empty range of the cells
+ * @example
+ * ```ts
+ * import { prepareFieldAnalysis, sliceFieldAnalysisInputs } from "./field_analysis_inputs.ts";
+ * import assert from "node:assert/strict";
+ * const n = 12;
+ * const values = Float32Array.from({ length: n * 3 }, (_, i) => Math.sin(i));
+ * const field = { values, nTime: n, lat: Float64Array.of(0), lon: Float64Array.of(0, 120, 240) };
+ * const x = Float64Array.from({ length: n }, (_, t) => Math.cos(t));
+ * const part = sliceFieldAnalysisInputs(prepareFieldAnalysis(field, x, { minLag: 0, maxLag: 1 }), 1, 3);
+ * assert.deepEqual(Array.from(part.cells), [1, 2]);
+ * assert.equal(part.y.length, 2 * n);
+ * ```
+ */
+export function sliceFieldAnalysisInputs(
+  inputs: FieldAnalysisInputs,
+  start: number,
+  end: number,
+): FieldAnalysisInputs {
+  const nc = inputs.cells.length, n = inputs.n;
+  if (
+    !(Number.isInteger(start) && Number.isInteger(end) && 0 <= start && start < end && end <= nc)
+  ) {
+    throw new RangeError(`Cannot slice field inputs: cells ${start}..${end} outside 0..${nc}`);
+  }
+  const cb = end - start, y = new Float32Array(n * cb);
+  for (let t = 0; t < n; t++) y.set(inputs.y.subarray(t * nc + start, t * nc + end), t * cb);
+  return { ...inputs, cells: inputs.cells.slice(start, end), y };
 }

@@ -18,8 +18,9 @@
  * (surrogate × lag) with all cells are one float32 matrix product (float32_matrix_product.ts).
  * A float32 dot product of n terms is within γ_n‖a‖‖y‖ of the exact one (γ_n = nu/(1 − nu),
  * u = 2⁻²⁴; Higham 2002, Accuracy and Stability of Numerical Algorithms, 2nd ed., eq. 3.5),
- * so every comparison farther than that from its threshold is decided from the float32 value,
- * and the few within are recomputed in float64. Decisions are therefore those of the float64
+ * so every comparison farther than that from its threshold is decided from the float32 value
+ * (a branch-free WebAssembly pass over each product row, local_test_tally.ts), and the few
+ * within are recomputed in float64. Decisions are therefore those of the float64
  * computation whatever the engine (WebAssembly SIMD, plain JS, a BLAS) or the chunking.
  *
  * Chunks: surrogate i always draws from `randomStream(seed, i)`; a chunk task
@@ -38,6 +39,7 @@ import { type PreprocessOptions, preprocessSeries } from "../climate/preprocess_
 import { type FieldAnalysisInputs, predictorResidual } from "./field_analysis_inputs.ts";
 import type { SolarSignalMap } from "./solar_signal_map.ts";
 import { type Float32ProductEngine, wasmFloat32Product } from "./float32_matrix_product.ts";
+import { localTestTally } from "./local_test_tally.ts";
 import { type StopOptions, throwIfStopped } from "../stop_signal.ts";
 import {
   checkMonteCarloSettings,
@@ -108,18 +110,25 @@ export interface FieldSignificanceChunkInput {
 function criticalTTable(alpha: number): (df: number) => number {
   const STEPS = 4096, H = 1 / 3 / STEPS;
   const p = 1 - alpha / 2;
-  const nodes = new Float64Array(STEPS + 3);
-  // nodes at u = (i − 1)·H for i = 0..STEPS+2 (u = −H mirrors the first step, unused at u < 0)
-  for (let i = 1; i < nodes.length; i++) {
-    const u = (i - 1) * H;
-    nodes[i] = u === 0 ? normalQuantile(p) : tQuantile(p, 1 / u);
-  }
-  nodes[0] = 2 * nodes[1] - nodes[2];
+  // nodes at u = (i − 1)·H for i = 0..STEPS+2 (u = −H mirrors the first step, unused at u < 0),
+  // each evaluated when first needed (a map's df span only a few hundred of them)
+  const nodes = new Float64Array(STEPS + 3).fill(NaN);
+  const node = (i: number): number => {
+    if (Number.isNaN(nodes[i])) {
+      const u = (i - 1) * H;
+      nodes[i] = i === 0
+        ? 2 * node(1) - node(2)
+        : u === 0
+        ? normalQuantile(p)
+        : tQuantile(p, 1 / u);
+    }
+    return nodes[i];
+  };
   return (df: number) => {
     if (df < 3) return tQuantile(p, df);
     const x = 1 / df / H, i = Math.min(STEPS - 1, Math.floor(x)), f = x - i;
     // points i − 1, i, i + 1, i + 2 at u-steps i−1..i+2 are nodes[i..i+3]
-    const y0 = nodes[i], y1 = nodes[i + 1], y2 = nodes[i + 2], y3 = nodes[i + 3];
+    const y0 = node(i), y1 = node(i + 1), y2 = node(i + 2), y3 = node(i + 3);
     return (
       (-f * (f - 1) * (f - 2) / 6) * y0 + ((f + 1) * (f - 1) * (f - 2) / 2) * y1 +
       (-(f + 1) * f * (f - 2) / 2) * y2 + ((f + 1) * f * (f - 1) / 6) * y3
@@ -313,6 +322,92 @@ export function sliceFieldSignificancePlan(
   };
 }
 
+/** Columns [off, off + cb) of a time-major n × held matrix, time-major. */
+function sliceColumns(y: Float32Array, n: number, held: number, off: number, cb: number) {
+  const out = new Float32Array(n * cb);
+  for (let t = 0; t < n; t++) out.set(y.subarray(t * held + off, t * held + off + cb), t * cb);
+  return out;
+}
+
+/** Lag-major rows [off, off + cb) of a lag-major L × held array. */
+function sliceLags<A extends Float32Array | Float64Array>(
+  a: A,
+  L: number,
+  held: number,
+  off: number,
+  cb: number,
+): A {
+  if (off === 0 && cb === held) return a;
+  const out = new (a.constructor as new (n: number) => A)(L * cb);
+  for (let j = 0; j < L; j++) out.set(a.subarray(j * held + off, j * held + off + cb), j * cb);
+  return out;
+}
+
+/** State of a chunk's exact recomputations (see {@link settleBand}). */
+interface BandState {
+  plan: FieldSignificancePlan;
+  cb: number;
+  ranges: [number, number][];
+  /** The block's surrogate rows in float64 and their Σx̃². */
+  a64: Float64Array;
+  sxx: Float64Array;
+  /** Chunk field, time-major, and its cell-major copy (made at the first recomputation). */
+  yb: Float32Array;
+  ybT: Float32Array | null;
+  /** Chunk bounds (lag-major, chunk cells), and the chunk's weight units. */
+  sigHi: Float32Array;
+  sigLo: Float32Array;
+  exHi: Float32Array;
+  exLo: Float32Array;
+  sigExact: Float64Array;
+  exExact: Float64Array;
+  w: Float64Array;
+  rechecked: number;
+}
+
+/** Exact (float64) cov² of one surrogate row with one chunk cell at lag index j. */
+function exactCov2(st: BandState, row: number, cc: number, j: number): number {
+  const n = st.plan.n, cb = st.cb;
+  if (st.ybT === null) {
+    // cell-major copy: a time-major column is one cache line a step
+    const ybT = new Float32Array(n * cb), yb = st.yb;
+    for (let t = 0; t < n; t++) for (let c = 0; c < cb; c++) ybT[c * n + t] = yb[t * cb + c];
+    st.ybT = ybT;
+  }
+  const [a, b] = st.ranges[j];
+  const k = st.plan.minLag + j, a64 = st.a64, ybT = st.ybT;
+  let s = 0;
+  const ra = row * n, ca = cc * n;
+  for (let t = a + k; t < b + k; t++) s += a64[ra + t] * ybT[ca + t];
+  return s * s;
+}
+
+/**
+ * Settle a cell the threshold pass listed as within a band (local_test_tally.ts) by the exact
+ * recomputation: returns its weight units when significant, and sets its flag (word 2·cc of
+ * `flags`) when it reaches the cell's observed best |r|.
+ */
+function settleBand(
+  st: BandState,
+  v: number,
+  row: number,
+  cc: number,
+  j: number,
+  flags: Int32Array,
+): number {
+  const sx = st.sxx[row], o = j * st.cb + cc, v2 = v * v;
+  let u = 0;
+  if (!(v2 >= st.sigHi[o] * sx) && v2 > st.sigLo[o] * sx) {
+    st.rechecked++;
+    if (exactCov2(st, row, cc, j) >= st.sigExact[o] * sx) u = st.w[cc];
+  }
+  if (flags[2 * cc] === 0 && !(v2 >= st.exHi[o] * sx) && v2 > st.exLo[o] * sx) {
+    st.rechecked++;
+    if (exactCov2(st, row, cc, j) >= st.exExact[o] * sx) flags[2 * cc] = 1;
+  }
+  return u;
+}
+
 /** Surrogates per matrix product inside a chunk (rows = this × lags). */
 const SURROGATE_BLOCK = 8;
 
@@ -368,37 +463,38 @@ export function fieldSignificanceChunk(
     );
   }
   const n = plan.n, L = plan.lagCount, cb = cellEnd - cellStart;
-  // the block's field columns, time-major
-  const yb = new Float32Array(n * cb);
-  for (let t = 0; t < n; t++) yb.set(plan.y.subarray(t * held + off, t * held + off + cb), t * cb);
+  // the block's field columns, time-major (the plan's own array when the chunk has all its cells)
+  const yb = off === 0 && cb === held ? plan.y : sliceColumns(plan.y, n, held, off, cb);
   engine.setRight(yb, n, cb);
-  // cell-major copy for the exact recomputations (a time-major column is one cache line a step)
-  const ybT = new Float32Array(n * cb);
-  for (let t = 0; t < n; t++) for (let cc = 0; cc < cb; cc++) ybT[cc * n + t] = yb[t * cb + cc];
   const ranges = Array.from({ length: L }, (_, j) => overlapRange(n, plan.minLag + j));
   const units = new Float64Array((s1 - s0) * L);
   const exceed = new Uint32Array(cb);
-  const flag = new Uint8Array(SURROGATE_BLOCK * cb);
-  const { sigHi, sigLo, exHi, exLo } = plan;
-  const rowsMax = SURROGATE_BLOCK * L;
-  const a32 = new Float32Array(rowsMax * n);
-  const a64 = new Float64Array(rowsMax * n);
-  const sxx = new Float64Array(rowsMax);
-  const res = new Float64Array(n);
-  const w = plan.weightUnits;
-  let rechecked = 0;
-  const exact = (row: number, cc: number, j: number): number => {
-    const [a, b] = ranges[j];
-    const k = plan.minLag + j;
-    let s = 0;
-    const ra = row * n, ca = cc * n;
-    for (let t = a + k; t < b + k; t++) s += a64[ra + t] * ybT[ca + t];
-    return s * s;
+  const cut = <A extends Float32Array | Float64Array>(x: A) => sliceLags(x, L, held, off, cb);
+  const st: BandState = {
+    plan,
+    cb,
+    ranges,
+    a64: new Float64Array(SURROGATE_BLOCK * L * n),
+    sxx: new Float64Array(SURROGATE_BLOCK * L),
+    yb,
+    ybT: null,
+    sigHi: cut(plan.sigHi),
+    sigLo: cut(plan.sigLo),
+    exHi: cut(plan.exHi),
+    exLo: cut(plan.exLo),
+    sigExact: cut(plan.sigExact),
+    exExact: cut(plan.exExact),
+    w: plan.weightUnits.slice(cellStart, cellEnd),
+    rechecked: 0,
   };
+  const pass = localTestTally(st, st.w, SURROGATE_BLOCK);
+  const a32 = new Float32Array(SURROGATE_BLOCK * L * n);
+  const res = new Float64Array(n);
+  const { a64, sxx } = st;
   for (let blockStart = s0; blockStart < s1; blockStart += SURROGATE_BLOCK) {
     throwIfStopped(control, fn);
     const blockEnd = Math.min(s1, blockStart + SURROGATE_BLOCK);
-    const rows = (blockEnd - blockStart) * L;
+    const nb = blockEnd - blockStart, rows = nb * L;
     a64.fill(0, 0, rows * n);
     for (let i = blockStart; i < blockEnd; i++) {
       const spec = phaseRandomisedSpectrum(plan.amplitude, n, randomStream(plan.seed, i));
@@ -407,43 +503,30 @@ export function fieldSignificanceChunk(
         const row = (i - blockStart) * L + j;
         sxx[row] = predictorResidual(plan, j, s, res);
         const [a, b] = ranges[j];
-        const dst = row * n + a + plan.minLag + j;
-        for (let t = 0; t < b - a; t++) a64[dst + t] = res[t];
+        a64.set(res.subarray(0, b - a), row * n + a + plan.minLag + j);
       }
     }
     for (let i = 0; i < rows * n; i++) a32[i] = a64[i];
     const { c, ldc } = engine.multiply(a32, rows);
-    // lag outer, surrogate inner: a lag's thresholds are read once per block of surrogates
-    const nb = blockEnd - blockStart;
-    flag.fill(0, 0, nb * cb);
-    for (let j = 0; j < L; j++) {
-      const tb = j * held + off;
-      for (let ii = 0; ii < nb; ii++) {
-        const row = ii * L + j, sx = sxx[row], base = row * ldc, fb = ii * cb;
-        let u = 0;
-        for (let cc = 0; cc < cb; cc++) {
-          const v = c[base + cc], v2 = v * v, o = tb + cc;
-          let sig = v2 >= sigHi[o] * sx;
-          if (!sig && v2 > sigLo[o] * sx) {
-            rechecked++;
-            sig = exact(row, cc, j) >= plan.sigExact[o] * sx;
-          }
-          if (sig) u += w[cellStart + cc];
-          if (flag[fb + cc] === 0) {
-            if (v2 >= exHi[o] * sx) flag[fb + cc] = 1;
-            else if (v2 > exLo[o] * sx) {
-              rechecked++;
-              if (exact(row, cc, j) >= plan.exExact[o] * sx) flag[fb + cc] = 1;
-            }
+    pass.setProducts(c, rows, ldc);
+    for (let ii = 0; ii < nb; ii++) {
+      const flags = pass.flags(ii);
+      for (let j = 0; j < L; j++) {
+        const row = ii * L + j;
+        let { units: u, banded } = pass.row(row, j, ii, sxx[row]);
+        if (banded > 0) {
+          const listed = pass.listed();
+          for (let q = 0; q < banded; q++) {
+            const cc = listed[q];
+            u += settleBand(st, c[row * ldc + cc], row, cc, j, flags);
           }
         }
         units[(blockStart + ii - s0) * L + j] = u;
       }
-    }
-    for (let ii = 0; ii < nb; ii++) {
-      for (let cc = 0; cc < cb; cc++) exceed[cc] += flag[ii * cb + cc];
+      for (let cc = 0; cc < cb; cc++) if (flags[2 * cc] !== 0) exceed[cc]++;
     }
   }
+  const rechecked = st.rechecked;
   return {
     replicateStart: s0,
     replicateEnd: s1,

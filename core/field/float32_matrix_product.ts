@@ -20,9 +20,8 @@
  * relaxed-SIMD fused multiply-add gained about 10 % and is not used (its rounding differs
  * between machines).
  *
- * The module is emitted from the listing below by a small assembler (a few opcodes of the
- * WebAssembly 2.0 binary format, §5), so the kernel is read and changed here, not as opaque
- * bytes. In WAT terms the kernel is:
+ * The module is emitted from the listing below by a small assembler (wasm_module_builder.ts),
+ * so the kernel is read and changed here, not as opaque bytes. In WAT terms the kernel is:
  *
  * ```wat
  * (func $tile (param $ap i32) (param $bp i32) (param $cp i32) (param $k i32)
@@ -41,6 +40,8 @@
  *
  * @module
  */
+
+import { wasmModule, wasmOp as op, wasmType } from "./wasm_module_builder.ts";
 
 /** C = A·B with a fixed right-hand matrix. */
 export interface Float32ProductEngine {
@@ -66,55 +67,6 @@ const NV = 3;
 const NR = 4 * NV;
 /** Panels per kernel call, so a block of B stays in the L2 cache. */
 const PANEL_GROUP = 16;
-
-function uleb(n: number): number[] {
-  const out: number[] = [];
-  do {
-    let b = n & 0x7f;
-    n >>>= 7;
-    if (n) b |= 0x80;
-    out.push(b);
-  } while (n);
-  return out;
-}
-
-function sleb(n: number): number[] {
-  const out: number[] = [];
-  for (;;) {
-    const b = n & 0x7f;
-    n >>= 7;
-    if ((n === 0 && !(b & 0x40)) || (n === -1 && (b & 0x40))) {
-      out.push(b);
-      return out;
-    }
-    out.push(b | 0x80);
-  }
-}
-
-/** The instructions used, by their WAT names (WebAssembly 2.0 binary opcodes). */
-const op = {
-  localGet: (i: number) => [0x20, ...uleb(i)],
-  localSet: (i: number) => [0x21, ...uleb(i)],
-  localTee: (i: number) => [0x22, ...uleb(i)],
-  i32Const: (v: number) => [0x41, ...sleb(v)],
-  i32Add: [0x6a],
-  i32Mul: [0x6c],
-  i32Eq: [0x46],
-  i32Ne: [0x47],
-  block: [0x02, 0x40],
-  loop: [0x03, 0x40],
-  end: [0x0b],
-  br: (depth: number) => [0x0c, depth],
-  brIf: (depth: number) => [0x0d, depth],
-  /** v128.load with alignment 2^4 and a byte offset. */
-  v128Load: (offset: number) => [0xfd, 0x00, 4, ...uleb(offset)],
-  /** v128.load32_splat (alignment 2^2): four copies of one f32. */
-  v128Load32Splat: (offset: number) => [0xfd, 0x09, 2, ...uleb(offset)],
-  v128Store: (offset: number) => [0xfd, 0x0b, 4, ...uleb(offset)],
-  v128Zero: [0xfd, 0x0c, ...new Array<number>(16).fill(0)],
-  f32x4Add: [0xfd, ...uleb(228)],
-  f32x4Mul: [0xfd, ...uleb(230)],
-};
 
 /**
  * The kernel module's bytes (see the module documentation for its listing).
@@ -165,37 +117,14 @@ export function float32KernelModule(): Uint8Array<ArrayBuffer> {
   emit(op.localGet(10), op.i32Const(NR * 4), op.i32Add, op.localSet(10));
   emit(op.localGet(8), op.i32Const(1), op.i32Add, op.localSet(8), op.br(0));
   emit(op.end, op.end);
-  const locals = [[5, 0x7f], [MR * NV + NV + 1, 0x7b]];
-  const body = [
-    ...uleb(locals.length),
-    ...locals.flatMap(([count, type]) => [...uleb(count), type]),
-    ...code,
-    0x0b,
-  ];
-  const name = (s: string) => {
-    const b = [...new TextEncoder().encode(s)];
-    return [...uleb(b.length), ...b];
-  };
-  const section = (id: number, items: number[][]) => {
-    const content = [...uleb(items.length), ...items.flat()];
-    return [id, ...uleb(content.length), ...content];
-  };
-  const i32 = 0x7f;
-  return new Uint8Array([
-    0x00,
-    0x61,
-    0x73,
-    0x6d,
-    1,
-    0,
-    0,
-    0,
-    ...section(1, [[0x60, 6, i32, i32, i32, i32, i32, i32, 0]]), // type (i32 × 6) → ()
-    ...section(2, [[...name("env"), ...name("memory"), 0x02, 0x00, 1]]), // memory, min 1 page
-    ...section(3, [[0]]), // function 0 has type 0
-    ...section(7, [[...name("tile"), 0x00, 0]]), // export "tile" = function 0
-    ...section(10, [[...uleb(body.length), ...body]]),
-  ]);
+  const i32 = wasmType.i32;
+  return wasmModule({
+    name: "tile",
+    params: [i32, i32, i32, i32, i32, i32],
+    results: [],
+    locals: [[5, i32], [MR * NV + NV + 1, wasmType.v128]],
+    code,
+  });
 }
 
 let kernelModule: WebAssembly.Module | null = null;

@@ -98,6 +98,251 @@ function cellStatistics(size: number): CellStatistics {
 }
 
 /**
+ * The predictor's side of every lag of a map: overlap sizes n_k, residuals x̃ over the
+ * overlaps, Σx̃² and r₁ of x̃ (what every cell of the map shares).
+ *
+ * @param inputs from prepareFieldAnalysis
+ * @returns per lag: `nn` (n_k), `r1x`, `sxx`, `xr`
+ * @throws {RangeError} when the predictor is constant (given the controls) over an overlap
+ * @example
+ * ```ts
+ * import { prepareFieldAnalysis } from "./field_analysis_inputs.ts";
+ * import { mapPredictorPart } from "./solar_signal_map.ts";
+ * import assert from "node:assert/strict";
+ * const n = 40;
+ * const x = Float64Array.from({ length: n }, (_, t) => Math.sin(t / 3));
+ * const field = { values: new Float32Array(n).map((_, t) => t % 5), nTime: n, lat: Float64Array.of(0), lon: Float64Array.of(0) };
+ * const p = mapPredictorPart(prepareFieldAnalysis(field, x, { minLag: 0, maxLag: 2 }));
+ * assert.deepEqual(Array.from(p.nn), [40, 39, 38]);
+ * ```
+ */
+export function mapPredictorPart(inputs: FieldAnalysisInputs): {
+  nn: Int32Array;
+  r1x: Float64Array;
+  sxx: Float64Array;
+  xr: Float64Array[];
+} {
+  const { n, minLag, maxLag } = inputs;
+  const L = maxLag - minLag + 1;
+  const nn = new Int32Array(L), r1x = new Float64Array(L), sxx = new Float64Array(L);
+  const xr: Float64Array[] = [];
+  for (let j = 0; j < L; j++) {
+    const [a, b] = overlapRange(n, minLag + j);
+    nn[j] = b - a;
+    const v = new Float64Array(b - a);
+    sxx[j] = predictorResidual(inputs, j, inputs.x, v);
+    if (!(sxx[j] > 0)) {
+      throw new RangeError(
+        `Cannot compute solar-signal map: the predictor is constant (given the controls) over the overlap at lag ${
+          minLag + j
+        }`,
+      );
+    }
+    r1x[j] = lag1Autocorrelation(v);
+    xr.push(v);
+  }
+  return { nn, r1x, sxx, xr };
+}
+
+/**
+ * The statistics of the cells of a block (see {@link solarSignalMapCells}), before they are
+ * placed on the grid by {@link assembleSolarSignalMap}.
+ */
+export interface SolarSignalMapCells {
+  /** Grid index of each cell of the block. */
+  cells: Int32Array;
+  /** Per lag × block cell (lag-major: j · cells.length + i). */
+  perLag: CellStatistics;
+  residualSs: Float64Array;
+  segmentSs: Float64Array;
+  /** Per block cell: index of the best lag, or −2 when constant over an overlap. */
+  bestLag: Int32Array;
+  /** Cell-lags whose N_eff − 2 − q ≤ 0. */
+  untestable: number;
+}
+
+/**
+ * Per-cell statistics of every cell of `inputs` (all of them, or a block made by
+ * sliceFieldAnalysisInputs for a worker), to be placed by {@link assembleSolarSignalMap}.
+ *
+ * @param inputs from prepareFieldAnalysis (or a block of it)
+ * @param options `shouldStop`, polled every 16 cells
+ * @returns the block's statistics
+ * @throws {RangeError} when the predictor is constant over an overlap
+ * @throws {StoppedError} when `options.shouldStop` answers true
+ * @example
+ * ```ts
+ * import { prepareFieldAnalysis, sliceFieldAnalysisInputs } from "./field_analysis_inputs.ts";
+ * import { assembleSolarSignalMap, solarSignalMap, solarSignalMapCells } from "./solar_signal_map.ts";
+ * import assert from "node:assert/strict";
+ * const n = 60;
+ * const x = Float64Array.from({ length: n }, (_, t) => Math.sin(t / 3) + Math.cos(2.2 * t));
+ * const values = Float32Array.from({ length: n * 4 }, (_, i) => Math.sin(i * 0.77));
+ * const field = { values, nTime: n, lat: Float64Array.of(0), lon: Float64Array.of(0, 90, 180, 270) };
+ * const inputs = prepareFieldAnalysis(field, x, { minLag: 0, maxLag: 2 });
+ * const blocks = [[0, 3], [3, 4]].map(([a, b]) => solarSignalMapCells(sliceFieldAnalysisInputs(inputs, a, b)));
+ * assert.deepEqual(assembleSolarSignalMap(inputs, blocks), solarSignalMap(inputs));
+ * ```
+ */
+export function solarSignalMapCells(
+  inputs: FieldAnalysisInputs,
+  options: StopOptions = {},
+): SolarSignalMapCells {
+  const { n, minLag, maxLag, cells } = inputs;
+  const L = maxLag - minLag + 1;
+  const q = inputs.controlNames.length;
+  const nc = cells.length;
+  const { nn, r1x, sxx, xr } = mapPredictorPart(inputs);
+  const perLag = cellStatistics(L * nc);
+  const residualSs = new Float64Array(L * nc).fill(NaN);
+  const segmentSs = new Float64Array(L * nc).fill(NaN);
+  const bestLag = new Int32Array(nc);
+  const col = new Float64Array(n), res = new Float64Array(n);
+  let untestable = 0;
+  const row = { r: 0, slope: 0, se: 0, seEff: 0, t: 0, p: 0, nEff: 0, r1: 0 };
+  for (let i = 0; i < nc; i++) {
+    if (i % 16 === 0) throwIfStopped(options, "compute solar-signal map");
+    for (let t = 0; t < n; t++) col[t] = inputs.y[t * nc + i];
+    let bestJ = -1, bestAbs = -1;
+    for (let j = 0; j < L; j++) {
+      const s = segmentSums(inputs, j, col, xr[j], res);
+      const m = nn[j];
+      if (!(s.syy > 1e-24 * s.segSs) || !(s.syy > 0)) {
+        bestJ = -2;
+        break;
+      }
+      const r = Math.max(-1, Math.min(1, s.sxy / Math.sqrt(sxx[j] * s.syy)));
+      const slope = s.sxy / sxx[j];
+      const dfOls = m - 2 - q;
+      const rss = Math.max(0, s.syy - slope * s.sxy);
+      const se = Math.sqrt(rss / dfOls / sxx[j]);
+      const r1y = lag1Autocorrelation(res, 0, m);
+      const nEff = brethertonEffectiveSampleSize(m, r1x[j], r1y);
+      const df = nEff - 2 - q;
+      row.r = r;
+      row.slope = slope;
+      row.se = se;
+      row.nEff = nEff;
+      row.r1 = r1y;
+      if (df > 0) {
+        const tt = correlationTTest(r, nEff - q);
+        row.t = tt.t;
+        row.p = tt.p;
+        row.seEff = se * Math.sqrt(dfOls / df);
+      } else {
+        row.t = row.p = row.seEff = NaN;
+        untestable++;
+      }
+      const o = j * nc + i;
+      perLag.r[o] = row.r;
+      perLag.slope[o] = row.slope;
+      perLag.slopeSe[o] = row.se;
+      perLag.slopeSeEffective[o] = row.seEff;
+      perLag.t[o] = row.t;
+      perLag.p[o] = row.p;
+      perLag.nEff[o] = row.nEff;
+      perLag.r1Field[o] = row.r1;
+      residualSs[o] = s.syy;
+      segmentSs[o] = s.segSs;
+      if (Math.abs(r) > bestAbs) {
+        bestAbs = Math.abs(r);
+        bestJ = j;
+      }
+    }
+    bestLag[i] = bestJ;
+  }
+  return { cells: Int32Array.from(cells), perLag, residualSs, segmentSs, bestLag, untestable };
+}
+
+const KEYS = ["r", "slope", "slopeSe", "slopeSeEffective", "t", "p", "nEff", "r1Field"] as const;
+
+/**
+ * The map of `inputs` from the statistics of its cells, computed in one block or several
+ * ({@link solarSignalMapCells}); the same numbers however the cells were split.
+ *
+ * @param inputs the inputs the blocks were cut from
+ * @param blocks blocks covering the cells of `inputs` (in any order)
+ * @returns the map
+ * @throws {RangeError} when the predictor is constant over an overlap
+ * @example
+ * ```ts
+ * import { prepareFieldAnalysis } from "./field_analysis_inputs.ts";
+ * import { assembleSolarSignalMap, solarSignalMapCells } from "./solar_signal_map.ts";
+ * import assert from "node:assert/strict";
+ * const n = 60;
+ * const x = Float64Array.from({ length: n }, (_, t) => Math.sin(t / 3) + Math.cos(2.2 * t));
+ * const values = Float32Array.from({ length: n * 2 }, (_, i) => Math.sin(i * 0.77));
+ * const field = { values, nTime: n, lat: Float64Array.of(0), lon: Float64Array.of(0, 180) };
+ * const inputs = prepareFieldAnalysis(field, x, { minLag: 0, maxLag: 2 });
+ * const map = assembleSolarSignalMap(inputs, [solarSignalMapCells(inputs)]);
+ * assert.equal(map.best.r.length, 2);
+ * ```
+ */
+export function assembleSolarSignalMap(
+  inputs: FieldAnalysisInputs,
+  blocks: SolarSignalMapCells[],
+): SolarSignalMap {
+  const { minLag, maxLag, gridCells } = inputs;
+  const L = maxLag - minLag + 1;
+  const { nn, r1x } = mapPredictorPart(inputs);
+  const status = Uint8Array.from(inputs.status);
+  const perLag = cellStatistics(L * gridCells);
+  const residualSs = new Float64Array(L * gridCells).fill(NaN);
+  const segmentSs = new Float64Array(L * gridCells).fill(NaN);
+  const best = {
+    ...cellStatistics(gridCells),
+    lag: new Float64Array(gridCells).fill(NaN),
+    pBestBonferroni: new Float64Array(gridCells).fill(NaN),
+  };
+  let untestable = 0, constant = 0;
+  for (const block of blocks) {
+    untestable += block.untestable;
+    const nb = block.cells.length;
+    for (let i = 0; i < nb; i++) {
+      const c = block.cells[i], bestJ = block.bestLag[i];
+      if (bestJ === -2) {
+        status[c] = CELL_CONSTANT;
+        constant++;
+        continue;
+      }
+      for (let j = 0; j < L; j++) {
+        const from = j * nb + i, to = j * gridCells + c;
+        for (const k of KEYS) perLag[k][to] = block.perLag[k][from];
+        residualSs[to] = block.residualSs[from];
+        segmentSs[to] = block.segmentSs[from];
+      }
+      for (const k of KEYS) best[k][c] = perLag[k][bestJ * gridCells + c];
+      best.lag[c] = minLag + bestJ;
+      best.pBestBonferroni[c] = Math.min(1, L * best.p[c]);
+    }
+  }
+  const warnings = [...inputs.warnings];
+  if (constant > 0) {
+    warnings.push(
+      `${constant} cells are constant over an overlap (after preprocessing and controls) and are left out of the map.`,
+    );
+  }
+  if (untestable > 0) {
+    warnings.push(
+      `${untestable} cell-lags have an effective sample size too small for the t test (N_eff − 2 − q ≤ 0): their p is not defined.`,
+    );
+  }
+  return {
+    lags: Array.from({ length: L }, (_, j) => minLag + j),
+    gridCells,
+    status,
+    n: nn,
+    r1Predictor: r1x,
+    controls: inputs.controlNames.length,
+    perLag,
+    residualSs,
+    segmentSs,
+    best,
+    warnings,
+  };
+}
+
+/**
  * Compute the solar-signal map of prepared inputs (see the module documentation).
  *
  * Cost O(cells · lags · N · (q + 4)) plus one t distribution evaluation per cell and lag.
@@ -131,125 +376,5 @@ export function solarSignalMap(
   inputs: FieldAnalysisInputs,
   options: StopOptions = {},
 ): SolarSignalMap {
-  const { n, minLag, maxLag, gridCells, cells } = inputs;
-  const L = maxLag - minLag + 1;
-  const q = inputs.controlNames.length;
-  const nc = cells.length;
-  const status = Uint8Array.from(inputs.status);
-  const nn = new Int32Array(L), r1x = new Float64Array(L), sxx = new Float64Array(L);
-  const xr: Float64Array[] = [];
-  for (let j = 0; j < L; j++) {
-    const [a, b] = overlapRange(n, minLag + j);
-    nn[j] = b - a;
-    const v = new Float64Array(b - a);
-    sxx[j] = predictorResidual(inputs, j, inputs.x, v);
-    if (!(sxx[j] > 0)) {
-      throw new RangeError(
-        `Cannot compute solar-signal map: the predictor is constant (given the controls) over the overlap at lag ${
-          minLag + j
-        }`,
-      );
-    }
-    r1x[j] = lag1Autocorrelation(v);
-    xr.push(v);
-  }
-  const perLag = cellStatistics(L * gridCells);
-  const residualSs = new Float64Array(L * gridCells).fill(NaN);
-  const segmentSs = new Float64Array(L * gridCells).fill(NaN);
-  const best = {
-    ...cellStatistics(gridCells),
-    lag: new Float64Array(gridCells).fill(NaN),
-    pBestBonferroni: new Float64Array(gridCells).fill(NaN),
-  };
-  const col = new Float64Array(n), res = new Float64Array(n);
-  let untestable = 0, constant = 0;
-  const row = { r: 0, slope: 0, se: 0, seEff: 0, t: 0, p: 0, nEff: 0, r1: 0 };
-  const keys = ["r", "slope", "slopeSe", "slopeSeEffective", "t", "p", "nEff", "r1Field"] as const;
-  for (let i = 0; i < nc; i++) {
-    if (i % 16 === 0) throwIfStopped(options, "compute solar-signal map");
-    const c = cells[i];
-    for (let t = 0; t < n; t++) col[t] = inputs.y[t * nc + i];
-    let bestJ = -1, bestAbs = -1;
-    for (let j = 0; j < L; j++) {
-      const s = segmentSums(inputs, j, col, xr[j], res);
-      const m = nn[j];
-      if (!(s.syy > 1e-24 * s.segSs) || !(s.syy > 0)) {
-        bestJ = -2;
-        break;
-      }
-      const r = Math.max(-1, Math.min(1, s.sxy / Math.sqrt(sxx[j] * s.syy)));
-      const slope = s.sxy / sxx[j];
-      const dfOls = m - 2 - q;
-      const rss = Math.max(0, s.syy - slope * s.sxy);
-      const se = Math.sqrt(rss / dfOls / sxx[j]);
-      const r1y = lag1Autocorrelation(res, 0, m);
-      const nEff = brethertonEffectiveSampleSize(m, r1x[j], r1y);
-      const df = nEff - 2 - q;
-      row.r = r;
-      row.slope = slope;
-      row.se = se;
-      row.nEff = nEff;
-      row.r1 = r1y;
-      if (df > 0) {
-        const tt = correlationTTest(r, nEff - q);
-        row.t = tt.t;
-        row.p = tt.p;
-        row.seEff = se * Math.sqrt(dfOls / df);
-      } else {
-        row.t = row.p = row.seEff = NaN;
-        untestable++;
-      }
-      const o = j * gridCells + c;
-      perLag.r[o] = row.r;
-      perLag.slope[o] = row.slope;
-      perLag.slopeSe[o] = row.se;
-      perLag.slopeSeEffective[o] = row.seEff;
-      perLag.t[o] = row.t;
-      perLag.p[o] = row.p;
-      perLag.nEff[o] = row.nEff;
-      perLag.r1Field[o] = row.r1;
-      residualSs[o] = s.syy;
-      segmentSs[o] = s.segSs;
-      if (Math.abs(r) > bestAbs) {
-        bestAbs = Math.abs(r);
-        bestJ = j;
-      }
-    }
-    if (bestJ === -2) {
-      status[c] = CELL_CONSTANT;
-      constant++;
-      for (let j = 0; j < L; j++) {
-        for (const k of keys) perLag[k][j * gridCells + c] = NaN;
-        residualSs[j * gridCells + c] = segmentSs[j * gridCells + c] = NaN;
-      }
-      continue;
-    }
-    for (const k of keys) best[k][c] = perLag[k][bestJ * gridCells + c];
-    best.lag[c] = minLag + bestJ;
-    best.pBestBonferroni[c] = Math.min(1, L * best.p[c]);
-  }
-  const warnings = [...inputs.warnings];
-  if (constant > 0) {
-    warnings.push(
-      `${constant} cells are constant over an overlap (after preprocessing and controls) and are left out of the map.`,
-    );
-  }
-  if (untestable > 0) {
-    warnings.push(
-      `${untestable} cell-lags have an effective sample size too small for the t test (N_eff − 2 − q ≤ 0): their p is not defined.`,
-    );
-  }
-  return {
-    lags: Array.from({ length: L }, (_, j) => minLag + j),
-    gridCells,
-    status,
-    n: nn,
-    r1Predictor: r1x,
-    controls: q,
-    perLag,
-    residualSs,
-    segmentSs,
-    best,
-    warnings,
-  };
+  return assembleSolarSignalMap(inputs, [solarSignalMapCells(inputs, options)]);
 }

@@ -6,20 +6,26 @@
  *
  *   deno run -A test/bench/field_run.ts [wasm2 | wasm1 | blas]
  *
- * wasm2: the surrogate chunks on 2 Web Workers (the pool is started before the clock, as the
- * service keeps its pool); wasm1: one thread; blas: one thread with OpenBLAS sgemm through FFI
+ * wasm2: the map's cell blocks and the surrogate chunks on 2 Web Workers, split as the service
+ * splits them for the map (the pool is started before the clock, as the service keeps its pool); wasm1: one thread; blas: one thread with OpenBLAS sgemm through FFI
  * (OpenBLAS runs its own 2 threads).
  *
  * @module
  */
 import {
+  assembleSolarSignalMap,
   combineFieldMonteCarlo,
+  type FieldAnalysisInputs,
   type FieldChunkTally,
   fieldSignificanceChunk,
   fieldSignificanceTasks,
+  mapPredictorPart,
   planFieldSignificance,
   prepareFieldAnalysis,
+  sliceFieldAnalysisInputs,
+  type SolarSignalMap,
   solarSignalMap,
+  type SolarSignalMapCells,
   wasmFloat32Product,
 } from "../../core/field/mod.ts";
 import { fieldCase, MAX_LAG, SEED, SURROGATES } from "./field_case.ts";
@@ -45,8 +51,8 @@ const blas = variant === "blas" ? blasFloat32Product() : null;
 if (variant === "blas" && !blas) throw new Error("OpenBLAS could not be loaded");
 const engine = blas ?? wasmFloat32Product();
 
-async function onWorkers(tasks: ReturnType<typeof fieldSignificanceTasks>) {
-  const out: FieldChunkTally[] = [];
+async function onWorkers<O>(tasks: unknown[]): Promise<O[]> {
+  const out: O[] = [];
   let next = 0;
   await Promise.all(pool.map((w) =>
     new Promise<void>((resolve) => {
@@ -73,18 +79,35 @@ if (pool.length > 0) {
     surrogates: 2,
   });
   await onWorkers(fieldSignificanceTasks(p, { surrogatesPerTask: 1 }));
+  await mapOf(small);
+}
+
+/** The map, in blocks of cells on the pool as the service splits it (wasm2), else in one. */
+async function mapOf(inputs: FieldAnalysisInputs): Promise<SolarSignalMap> {
+  if (pool.length === 0) return solarSignalMap(inputs);
+  const nc = inputs.cells.length;
+  const size = Math.ceil(nc / Math.max(1, Math.min(8, Math.floor(nc / 256))));
+  const blocks = [];
+  for (let i = 0; i < nc; i += size) {
+    blocks.push({
+      kind: "map",
+      inputs: sliceFieldAnalysisInputs(inputs, i, Math.min(nc, i + size)),
+    });
+  }
+  mapPredictorPart(inputs);
+  return assembleSolarSignalMap(inputs, await onWorkers<SolarSignalMapCells>(blocks));
 }
 
 const t0 = performance.now();
 const inputs = prepareFieldAnalysis(field, x, { minLag: 0, maxLag: MAX_LAG });
 const t1 = performance.now();
-const map = solarSignalMap(inputs);
+const map = await mapOf(inputs);
 const t2 = performance.now();
 const plan = planFieldSignificance(inputs, map, weights, { seed: SEED, surrogates: SURROGATES });
 const t3 = performance.now();
 const tasks = fieldSignificanceTasks(plan, { surrogatesPerTask: PER_TASK });
 const tallies = pool.length > 0
-  ? await onWorkers(tasks)
+  ? await onWorkers<FieldChunkTally>(tasks)
   : tasks.map((t) => fieldSignificanceChunk(t, engine));
 const result = combineFieldMonteCarlo(plan, tallies);
 const t4 = performance.now();

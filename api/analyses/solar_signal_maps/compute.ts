@@ -1,6 +1,7 @@
 /**
  * Adapter of the "solar-signal-maps" analysis: the field and the solar series (and controls)
- * on one calendar axis, the per-cell map from core (core/field/solar_signal_map.ts), field
+ * on one calendar axis, the per-cell map from core (core/field/solar_signal_map.ts, blocks of
+ * cells on the workers), field
  * significance by the false discovery rate (false_discovery_rate.ts) and by Monte Carlo with
  * the same phase surrogate of the solar series against every cell, chunked over the workers
  * (field_significance_monte_carlo.ts), and the result with its map part.
@@ -11,6 +12,7 @@ import { InputProblem, type RunContext } from "../../runs/kind.ts";
 import type { StoredSeries } from "../../store/types.ts";
 import { refId } from "../../schemas/series_ref.ts";
 import {
+  assembleSolarSignalMap,
   CELL_ANALYSED,
   CELL_CONSTANT,
   CELL_MISSING,
@@ -23,10 +25,12 @@ import {
   type FieldSignificanceChunkInput,
   fieldSignificanceTasks,
   type GriddedField,
+  mapPredictorPart,
   planFieldSignificance,
   prepareFieldAnalysis,
+  sliceFieldAnalysisInputs,
   type SolarSignalMap,
-  solarSignalMap,
+  type SolarSignalMapCells,
 } from "../../../core/field/mod.ts";
 import type { PreprocessOptions } from "../../../core/climate/mod.ts";
 import { solarCautions } from "../common/cautions.ts";
@@ -38,7 +42,7 @@ import { fdrPart, nullPart } from "../common/field_significance.ts";
 import { CAUTION_MANY_CELLS, mapGrid, type MapPart, mapVariable } from "../common/map_result.ts";
 import type { SolarSignalMapParams } from "./request.ts";
 import type { SolarSignalMapResultIn } from "./result.ts";
-import { FIELD_SIGNIFICANCE_CHUNK } from "./tasks.ts";
+import { FIELD_MAP_CELLS, FIELD_SIGNIFICANCE_CHUNK } from "./tasks.ts";
 
 /** The predictor series of the request. */
 export function predictorOf(p: SolarSignalMapParams, ctx: RunContext): StoredSeries {
@@ -122,6 +126,28 @@ function prepare(p: SolarSignalMapParams, ctx: RunContext) {
       }),
   );
   return { solar, on, inputs, seasonal };
+}
+
+/**
+ * The map, its cells in blocks on the workers (at most 8 blocks of at least 256 cells); the
+ * numbers do not depend on the split (assembleSolarSignalMap).
+ */
+async function mapOnWorkers(ctx: RunContext, inputs: FieldAnalysisInputs): Promise<SolarSignalMap> {
+  withInputPointers({ "*": "/field" }, () => mapPredictorPart(inputs));
+  const nc = inputs.cells.length;
+  const blocks = Math.max(1, Math.min(8, Math.floor(nc / 256)));
+  const size = Math.ceil(nc / blocks);
+  const slices: FieldAnalysisInputs[] = [];
+  for (let i = 0; i < nc; i += size) {
+    slices.push(sliceFieldAnalysisInputs(inputs, i, Math.min(nc, i + size)));
+  }
+  const parts = await parallelInRounds<FieldAnalysisInputs, SolarSignalMapCells>(
+    ctx,
+    FIELD_MAP_CELLS,
+    slices,
+    { progress: [0.05, 0.15] },
+  );
+  return assembleSolarSignalMap(inputs, parts);
 }
 
 /** The Monte Carlo field significance, as chunk tasks on the workers (order-independent). */
@@ -280,10 +306,7 @@ export async function computeSolarSignalMap(
   const { solar, on, inputs, seasonal } = prepare(p, ctx);
   const f = ctx.field(p.field);
   ctx.progress(0.05);
-  const map = withInputPointers(
-    { "*": "/field" },
-    () => solarSignalMap(inputs, { shouldStop: ctx.cancelled }),
-  );
+  const map = await mapOnWorkers(ctx, inputs);
   ctx.progress(0.15);
   const field: GriddedField = on.field;
   const weights = fieldAreaWeights(field);
