@@ -489,12 +489,15 @@ function drawBandMember(
  * @param seed the ensemble's seed, an integer in [0, 2^32)
  * @param first index of the first member (≥ 0)
  * @param count members to draw (≥ 0)
- * @param options `shouldStop`, polled before every member (a stop throws StoppedError, core/stop_signal.ts)
- * @returns count × cells × bands values (member, then cell, then band: value of band b at cell
+ * @param options `shouldStop`, polled before every member (a stop throws StoppedError,
+ *   core/stop_signal.ts); `into`, an array of count × cells × bands values to write the members
+ *   into instead of a new one (a caller that streams members one at a time reuses one buffer)
+ * @returns count × cells × bands values (`into` when given) (member, then cell, then band: value of band b at cell
  *   i of member m at [(m·cells + i)·bands + b]), in the bands' units; NaN where a cell has no
  *   value
  * @throws {InputError} (field `first` or `count`) when not non-negative integers or beyond
- *   2^32 members; (field `mapping`) when a saturating mapping has no admissible draw
+ *   2^32 members; (field `into`) when `into` does not hold count × cells × bands values;
+ *   (field `mapping`) when a saturating mapping has no admissible draw
  * @example
  * ```ts
  * import { drawSpectralBandMembers, spectralBandEnsemblePlan } from "./spectral_band_ensemble.ts";
@@ -519,7 +522,7 @@ export function drawSpectralBandMembers(
   seed: number,
   first: number,
   count: number,
-  options: StopOptions = {},
+  options: SpectralDrawOptions = {},
 ): Float64Array {
   for (const [field, v] of [["first", first], ["count", count]] as const) {
     if (!Number.isInteger(v) || v < 0 || first + count > 2 ** 32) {
@@ -532,7 +535,14 @@ export function drawSpectralBandMembers(
   const B = plan.bands, n = plan.cells, K = plan.termScale.length;
   const inputCells = (plan.inputCorrelated?.cells.length ?? 0) +
     (plan.inputIndependent?.cells.length ?? 0);
-  const out = new Float64Array(count * n * B);
+  const into = options.into;
+  if (into && into.length !== count * n * B) {
+    throw new InputError(
+      `Cannot draw spectral members: into holds ${into.length} values, not ${count} × ${n} × ${B}`,
+      { field: "into", reason: "length_mismatch", value: into.length },
+    );
+  }
+  const out = into ?? new Float64Array(count * n * B);
   const s: Scratch = {
     z: new Float64Array(inputCells),
     zc: new Float64Array((K + 1) * B),
@@ -558,6 +568,12 @@ export function drawSpectralBandMembers(
     );
   }
   return out;
+}
+
+/** Options of {@link drawSpectralBandMembers}. */
+export interface SpectralDrawOptions extends StopOptions {
+  /** Where to write the members (count × cells × bands values) @default a new array */
+  into?: Float64Array;
 }
 
 /** Input of the worker task {@link spectralBandEnsembleChunk}. */

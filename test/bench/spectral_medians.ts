@@ -63,7 +63,13 @@ const ready = await readLine();
 const work = spectralCase();
 const pool = only && !only.includes("ensemble_workers") ? null : new WorkerPool(2);
 let rss = 0;
-const sample = () => (rss = Math.max(rss, Deno.memoryUsage().rss));
+/** Largest RSS seen after each task (the process's: it includes what earlier tasks left). */
+const rssAfter: Record<string, number> = {};
+const sample = (task?: string) => {
+  const now = Deno.memoryUsage().rss;
+  rss = Math.max(rss, now);
+  if (task) rssAfter[task] = Math.max(rssAfter[task] ?? 0, now);
+};
 /** The ensemble on the pool: one member per chunk, one chunk in flight per worker. */
 async function ensembleOnWorkers(): Promise<MemberSums> {
   const plan = work.plan(), sums = new MemberSums(work.weights);
@@ -77,7 +83,7 @@ async function ensembleOnWorkers(): Promise<MemberSums> {
       chunks,
     );
     for (const o of outs) sums.add(o);
-    sample();
+    sample("ensemble_workers");
   }
   return sums;
 }
@@ -104,7 +110,7 @@ for (let r = 0; r < rounds; r++) {
     const out = await run[k]();
     times[k].deno.push(performance.now() - t0);
     if (out instanceof MemberSums) sd = [out.sd(1000, 30), out.sd(100_000, 30)];
-    sample();
+    sample(k);
     // one numpy ensemble per round serves both ensemble tasks
     const peer = PEER[k] ?? k;
     if (PEER[k] && TASKS.some(([x]) => x === peer)) continue;
@@ -133,6 +139,8 @@ for (const [k, label] of TASKS) {
 console.log(
   `peak RSS: deno ${(rss / 1e6).toFixed(0)} MB (main thread and workers), numpy ${
     peak.toFixed(0)
+  } MB; deno after each task: ${
+    TASKS.map(([k]) => `${k} ${((rssAfter[k] ?? NaN) / 1e6).toFixed(0)}`).join(", ")
   } MB`,
 );
 if (sd) {
