@@ -2,9 +2,9 @@
  * Side-by-side medians of the spectral workload (spectral_case.ts) and its numpy twin
  * (spectral_numpy.py), interleaved: in each round every task runs once here and once in a
  * numpy process that stays up (`--serve`), so both see the same machine load. Prints medians,
- * minima, the Deno/numpy ratio of the medians, and peak resident memory (Deno: the largest
- * RSS seen after a task; numpy: ru_maxrss) and the load average before and after (the 2 cores
- * may be shared). The ensemble (100 realisations of 100 bands × 119,000 days) runs in this
+ * minima, the Deno/numpy ratio of the medians and of each round, and peak resident memory
+ * (Deno: the largest RSS seen after a task; numpy: ru_maxrss) and the load average before and
+ * after (the 2 cores may be shared). The ensemble (100 realisations of 100 bands × 119,000 days) runs in this
  * thread (`ensemble`) and on a pool of 2 Web Workers (`ensemble_workers`, the path a run's
  * `ctx.parallel` takes: one member per chunk, one chunk in flight per worker); both are
  * compared with the one numpy ensemble.
@@ -133,7 +133,9 @@ for (const [k, label] of TASKS) {
   console.log(
     `${label}: deno median ${ms(median(d))} ms (min ${ms(min(d))}), numpy median ${
       ms(median(n))
-    } ms (min ${ms(min(n))}), ratio ${(median(d)! / median(n)!).toFixed(2)}`,
+    } ms (min ${ms(min(n))}), ratio ${(median(d)! / median(n)!).toFixed(2)}; per round ${
+      d.map((x, r) => (x / n[r]).toFixed(2)).join(" ")
+    }`,
   );
 }
 console.log(
