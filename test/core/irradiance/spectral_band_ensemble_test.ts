@@ -142,7 +142,7 @@ Deno.test("drawSpectralBandMembers() writes into a reused buffer the same number
   }
   assert.throws(
     () => drawSpectralBandMembers(plan, 42, 0, 2, { into }),
-    (e: InputError) => e.field === "into",
+    (e) => e instanceof InputError && e.field === "into",
   );
 });
 
