@@ -34,4 +34,5 @@ export * from "./reconstruction_error_model.ts";
 export * from "./proxy_reconstruction_errors.ts";
 export * from "./reconstruction_ensemble.ts";
 export * from "./variance_by_period.ts";
+export * from "./lower_triangular_mixing.ts";
 export * from "./spectral_band_ensemble.ts";

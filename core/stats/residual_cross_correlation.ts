@@ -108,15 +108,20 @@ export function residualCrossCorrelation(
       );
     }
   });
-  const common: number[] = [];
-  for (let t = 0; t < len; t++) {
-    let ok = true;
-    for (let i = 0; i < m && ok; i++) ok = Number.isFinite(residuals[i][t]);
-    if (ok) common.push(t);
+  // series by series (each read in order), not point by point across the series
+  const usable = new Uint8Array(len).fill(1);
+  for (const r of residuals) {
+    for (let t = 0; t < len; t++) if (!Number.isFinite(r[t])) usable[t] = 0;
   }
+  const common: number[] = [];
+  for (let t = 0; t < len; t++) if (usable[t]) common.push(t);
   const n = common.length;
   if (n < Math.max(2, minPoints)) return null;
-  const e = residuals.map((r) => Float64Array.from(common, (t) => r[t]));
+  const e = residuals.map((r) => {
+    const x = new Float64Array(n);
+    for (let j = 0; j < n; j++) x[j] = r[common[j]];
+    return x;
+  });
   const g0 = gramMatrix(e);
   const s = e.map((x) => {
     const out = new Float64Array(n - 1);

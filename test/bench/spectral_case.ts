@@ -148,10 +148,13 @@ export function spectralCase() {
   return {
     weights,
     plan,
-    /** 100 members in this thread, one at a time, into running sums. */
+    /** 100 members in this thread, one at a time into one reused buffer, into running sums. */
     ensemble(): MemberSums {
       const p = plan(), sums = new MemberSums(weights);
-      for (let m = 0; m < REALIZATIONS; m++) sums.add(drawSpectralBandMembers(p, 1, m, 1));
+      const into = new Float64Array(p.cells * p.bands);
+      for (let m = 0; m < REALIZATIONS; m++) {
+        sums.add(drawSpectralBandMembers(p, 1, m, 1, { into }));
+      }
       return sums;
     },
     calibrateOls: (): BandModels => calibrate("ols"),

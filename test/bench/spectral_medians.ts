@@ -2,9 +2,9 @@
  * Side-by-side medians of the spectral workload (spectral_case.ts) and its numpy twin
  * (spectral_numpy.py), interleaved: in each round every task runs once here and once in a
  * numpy process that stays up (`--serve`), so both see the same machine load. Prints medians,
- * minima, the Deno/numpy ratio of the medians, and peak resident memory (Deno: the largest
- * RSS seen after a task; numpy: ru_maxrss) and the load average before and after (the 2 cores
- * may be shared). The ensemble (100 realisations of 100 bands × 119,000 days) runs in this
+ * minima, the Deno/numpy ratio of the medians and of each round, and peak resident memory
+ * (Deno: the largest RSS seen after a task; numpy: ru_maxrss) and the load average before and
+ * after (the 2 cores may be shared). The ensemble (100 realisations of 100 bands × 119,000 days) runs in this
  * thread (`ensemble`) and on a pool of 2 Web Workers (`ensemble_workers`, the path a run's
  * `ctx.parallel` takes: one member per chunk, one chunk in flight per worker); both are
  * compared with the one numpy ensemble.
@@ -63,7 +63,13 @@ const ready = await readLine();
 const work = spectralCase();
 const pool = only && !only.includes("ensemble_workers") ? null : new WorkerPool(2);
 let rss = 0;
-const sample = () => (rss = Math.max(rss, Deno.memoryUsage().rss));
+/** Largest RSS seen after each task (the process's: it includes what earlier tasks left). */
+const rssAfter: Record<string, number> = {};
+const sample = (task?: string) => {
+  const now = Deno.memoryUsage().rss;
+  rss = Math.max(rss, now);
+  if (task) rssAfter[task] = Math.max(rssAfter[task] ?? 0, now);
+};
 /** The ensemble on the pool: one member per chunk, one chunk in flight per worker. */
 async function ensembleOnWorkers(): Promise<MemberSums> {
   const plan = work.plan(), sums = new MemberSums(work.weights);
@@ -77,7 +83,7 @@ async function ensembleOnWorkers(): Promise<MemberSums> {
       chunks,
     );
     for (const o of outs) sums.add(o);
-    sample();
+    sample("ensemble_workers");
   }
   return sums;
 }
@@ -104,7 +110,7 @@ for (let r = 0; r < rounds; r++) {
     const out = await run[k]();
     times[k].deno.push(performance.now() - t0);
     if (out instanceof MemberSums) sd = [out.sd(1000, 30), out.sd(100_000, 30)];
-    sample();
+    sample(k);
     // one numpy ensemble per round serves both ensemble tasks
     const peer = PEER[k] ?? k;
     if (PEER[k] && TASKS.some(([x]) => x === peer)) continue;
@@ -127,12 +133,16 @@ for (const [k, label] of TASKS) {
   console.log(
     `${label}: deno median ${ms(median(d))} ms (min ${ms(min(d))}), numpy median ${
       ms(median(n))
-    } ms (min ${ms(min(n))}), ratio ${(median(d)! / median(n)!).toFixed(2)}`,
+    } ms (min ${ms(min(n))}), ratio ${(median(d)! / median(n)!).toFixed(2)}; per round ${
+      d.map((x, r) => (x / n[r]).toFixed(2)).join(" ")
+    }`,
   );
 }
 console.log(
   `peak RSS: deno ${(rss / 1e6).toFixed(0)} MB (main thread and workers), numpy ${
     peak.toFixed(0)
+  } MB; deno after each task: ${
+    TASKS.map(([k]) => `${k} ${((rssAfter[k] ?? NaN) / 1e6).toFixed(0)}`).join(", ")
   } MB`,
 );
 if (sd) {

@@ -16,6 +16,7 @@ import {
 } from "../../../core/irradiance/mod.ts";
 import { ensembleSummary } from "../../../core/stats/mod.ts";
 import { randomStream } from "../../../core/random/mod.ts";
+import { InputError } from "../../../core/errors.ts";
 import { periodSequence } from "../../../core/series/mod.ts";
 
 const YEAR = 365.2425;
@@ -128,6 +129,21 @@ Deno.test("drawSpectralBandMembers() does not depend on how the members are chun
   // a plan survives structured cloning (what a worker receives) with the same draws
   assert.deepEqual(drawSpectralBandMembers(structuredClone(plan), 42, 0, 9), whole);
   assert.deepEqual(plan.adjusted, []);
+});
+
+Deno.test("drawSpectralBandMembers() writes into a reused buffer the same numbers", () => {
+  const { models, correlations, cells } = calibrated(world(3));
+  const plan = spectralBandEnsemblePlan(models, cells, correlations);
+  const into = new Float64Array(plan.cells * B).fill(123); // stale values are overwritten
+  for (const m of [0, 4]) {
+    const got = drawSpectralBandMembers(plan, 42, m, 1, { into });
+    assert.equal(got, into);
+    assert.deepEqual(got, drawSpectralBandMembers(plan, 42, m, 1));
+  }
+  assert.throws(
+    () => drawSpectralBandMembers(plan, 42, 0, 2, { into }),
+    (e) => e instanceof InputError && e.field === "into",
+  );
 });
 
 Deno.test("spectral members: mean and SD equal the analytic band, per band and for an integral", () => {
