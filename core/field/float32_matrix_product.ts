@@ -20,7 +20,7 @@
  * relaxed-SIMD fused multiply-add gained about 10 % and is not used (its rounding differs
  * between machines).
  *
- * The module is emitted from the listing below by a small assembler (wasm_module_builder.ts),
+ * The module is emitted from the listing below by a small assembler (core/wasm/module_builder.ts),
  * so the kernel is read and changed here, not as opaque bytes. In WAT terms the kernel is:
  *
  * ```wat
@@ -41,7 +41,7 @@
  * @module
  */
 
-import { wasmModule, wasmOp as op, wasmType } from "./wasm_module_builder.ts";
+import { wasmModule, wasmOp as op, wasmType } from "../wasm/module_builder.ts";
 
 /** C = A·B with a fixed right-hand matrix. */
 export interface Float32ProductEngine {

@@ -33,7 +33,7 @@
  *
  * @module
  */
-import { wasmModule, wasmOp as op, wasmType } from "./wasm_module_builder.ts";
+import { wasmModule, wasmOp as op, wasmType } from "../wasm/module_builder.ts";
 
 /** The tally module's bytes (see the module documentation). */
 function tallyModule(): Uint8Array<ArrayBuffer> {

@@ -47,60 +47,10 @@
  *
  * @module
  */
+import { wasmModule, wasmOp as op, wasmType } from "../wasm/module_builder.ts";
 
 /** Rows of L per panel (4 f64x2 vectors). */
 const ROWS = 8;
-
-function uleb(n: number): number[] {
-  const out: number[] = [];
-  do {
-    let b = n & 0x7f;
-    n >>>= 7;
-    if (n) b |= 0x80;
-    out.push(b);
-  } while (n);
-  return out;
-}
-
-function sleb(n: number): number[] {
-  const out: number[] = [];
-  for (;;) {
-    const b = n & 0x7f;
-    n >>= 7;
-    if ((n === 0 && !(b & 0x40)) || (n === -1 && (b & 0x40))) {
-      out.push(b);
-      return out;
-    }
-    out.push(b | 0x80);
-  }
-}
-
-/** The instructions used, by their WAT names (WebAssembly 2.0 binary opcodes). */
-const op = {
-  localGet: (i: number) => [0x20, ...uleb(i)],
-  localSet: (i: number) => [0x21, ...uleb(i)],
-  localTee: (i: number) => [0x22, ...uleb(i)],
-  i32Const: (v: number) => [0x41, ...sleb(v)],
-  i32Add: [0x6a],
-  i32Mul: [0x6c],
-  i32Eq: [0x46],
-  i32Ne: [0x47],
-  i32LtU: [0x49],
-  select: [0x1b],
-  block: [0x02, 0x40],
-  loop: [0x03, 0x40],
-  end: [0x0b],
-  br: (depth: number) => [0x0c, depth],
-  brIf: (depth: number) => [0x0d, depth],
-  /** v128.load with alignment 2^4 and a byte offset. */
-  v128Load: (offset: number) => [0xfd, 0x00, 4, ...uleb(offset)],
-  /** v128.load64_splat (alignment 2^3): two copies of one f64. */
-  v128Load64Splat: (offset: number) => [0xfd, 0x0a, 3, ...uleb(offset)],
-  v128Store: (offset: number) => [0xfd, 0x0b, 4, ...uleb(offset)],
-  v128Zero: [0xfd, 0x0c, ...new Array<number>(16).fill(0)],
-  f64x2Add: [0xfd, ...uleb(240)],
-  f64x2Mul: [0xfd, ...uleb(242)],
-};
 
 /**
  * The kernel module's bytes (see the module documentation for its listing).
@@ -170,30 +120,14 @@ export function lowerTriangularMixingModule(): Uint8Array<ArrayBuffer> {
   emit(op.localSet(LPANEL));
   emit(op.localGet(Q), op.i32Const(1), op.i32Add, op.localSet(Q), op.br(0));
   emit(op.end, op.end);
-  const locals = [[8, 0x7f], [2 * V + V + 2, 0x7b]];
-  const body = [
-    ...uleb(locals.length),
-    ...locals.flatMap(([count, type]) => [...uleb(count), type]),
-    ...code,
-    0x0b,
-  ];
-  const name = (s: string) => {
-    const b = [...new TextEncoder().encode(s)];
-    return [...uleb(b.length), ...b];
-  };
-  const section = (id: number, items: number[][]) => {
-    const content = [...uleb(items.length), ...items.flat()];
-    return [id, ...uleb(content.length), ...content];
-  };
-  const i32 = 0x7f;
-  return new Uint8Array([
-    ...[0x00, 0x61, 0x73, 0x6d, 1, 0, 0, 0],
-    ...section(1, [[0x60, 7, ...new Array<number>(7).fill(i32), 0]]), // type (i32 × 7) → ()
-    ...section(2, [[...name("env"), ...name("memory"), 0x02, 0x00, 1]]), // memory, min 1 page
-    ...section(3, [[0]]), // function 0 has type 0
-    ...section(7, [[...name("mix"), 0x00, 0]]), // export "mix" = function 0
-    ...section(10, [[...uleb(body.length), ...body]]),
-  ]);
+  const i32 = wasmType.i32;
+  return wasmModule({
+    name: "mix",
+    params: new Array<number>(7).fill(i32),
+    results: [],
+    locals: [[8, i32], [2 * V + V + 2, wasmType.v128]],
+    code,
+  });
 }
 
 /** Innovations of a block of days: write z, then mix. */

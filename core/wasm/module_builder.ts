@@ -1,8 +1,9 @@
 /**
- * A minimal WebAssembly assembler for the hand-written kernels of this folder (the float32
- * matrix product and the local-test tally): the few opcodes they use, by their WAT names, and
- * a one-function module importing `env.memory` (WebAssembly 2.0 binary format, §5). Kernels
- * are thus read and changed as listings, not as opaque bytes.
+ * A minimal WebAssembly assembler for the hand-written kernels of core (the float32 matrix
+ * product and the local-test tally of the field significance test, the lower-triangular mixing
+ * of spectral ensembles): the few opcodes they use, by their WAT names, and a one-function
+ * module importing `env.memory` (WebAssembly 2.0 binary format, §5). Kernels are thus read and
+ * changed as listings, not as opaque bytes.
  *
  * @module
  */
@@ -50,6 +51,7 @@ export const wasmOp = {
   i32Eq: [0x46],
   i32Ne: [0x47],
   i32Eqz: [0x45],
+  i32LtU: [0x49],
   f64Add: [0xa0],
   f64Mul: [0xa2],
   f64Gt: [0x64],
@@ -72,6 +74,8 @@ export const wasmOp = {
   v128Load: (offset: number) => [0xfd, 0x00, 4, ...uleb(offset)],
   /** v128.load32_splat (alignment 2^2): four copies of one f32. */
   v128Load32Splat: (offset: number) => [0xfd, 0x09, 2, ...uleb(offset)],
+  /** v128.load64_splat (alignment 2^3): two copies of one f64. */
+  v128Load64Splat: (offset: number) => [0xfd, 0x0a, 3, ...uleb(offset)],
   v128Store: (offset: number) => [0xfd, 0x0b, 4, ...uleb(offset)],
   v128Zero: [0xfd, 0x0c, ...new Array<number>(16).fill(0)],
   /** v128.load64_zero (alignment 2^3): two f32 (or one f64) into the low half, zeros above. */
@@ -113,7 +117,7 @@ export interface WasmFunction {
  * @returns the module's bytes
  * @example
  * ```ts
- * import { wasmModule, wasmOp, wasmType } from "./wasm_module_builder.ts";
+ * import { wasmModule, wasmOp, wasmType } from "./module_builder.ts";
  * import assert from "node:assert/strict";
  * const bytes = wasmModule({
  *   name: "twice",
