@@ -160,7 +160,9 @@ export const FIELD_COORD_COLUMNS = ["time", "lat", "lon", "lat_bounds", "lon_bou
 const LITTLE_ENDIAN = new Uint8Array(new Float32Array([1]).buffer)[3] === 0x3f;
 
 /**
- * Float32 values as little-endian bytes (a copy).
+ * Float32 values as little-endian bytes. On a little-endian machine the bytes are a view of the
+ * same memory, not a copy: use them before the values change (the stores bind or encode them at
+ * once, the upload hashes them).
  *
  * @example
  * ```ts
@@ -172,7 +174,8 @@ const LITTLE_ENDIAN = new Uint8Array(new Float32Array([1]).buffer)[3] === 0x3f;
  */
 export function float32ToBytesLE(values: Float32Array): Uint8Array {
   if (LITTLE_ENDIAN) {
-    return new Uint8Array(values.buffer, values.byteOffset, values.byteLength).slice();
+    // a copy here cost 0.1 s of a 150 MB upload's main thread
+    return new Uint8Array(values.buffer, values.byteOffset, values.byteLength);
   }
   const out = new Uint8Array(values.length * 4);
   const view = new DataView(out.buffer);

@@ -1065,6 +1065,8 @@ export class SqliteStore implements Store {
     rows: number,
     values: Float32Array,
   ): Promise<void> {
+    // a file store writes blocks in its writer worker (sqlite_writer.ts), off the request thread
+    if (this.#writer) return this.#writer.putFieldBlock(stage, index, tStart, rows, values);
     return settle(() => this.#fields.putBlock(stage, index, tStart, rows, values));
   }
 

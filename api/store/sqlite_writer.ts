@@ -5,7 +5,8 @@
  * therefore hands series above {@link OFFLOAD_POINTS} points to a Web Worker holding its own
  * connection to the same file (WAL lets readers go on meanwhile; writers take turns through
  * `BEGIN IMMEDIATE` and the busy timeout). The same `SqliteStore.putSeries` runs there, so the
- * result is the same as in the calling thread.
+ * result is the same as in the calling thread. A field upload's blocks (4 MiB each) go the same
+ * way, so the request thread hashes one block while the worker writes the one before.
  *
  * @module
  */
@@ -15,11 +16,20 @@ import type { HolderSpec, SeriesMeta, StoredSeries } from "./types.ts";
 export const OFFLOAD_POINTS = 50_000;
 
 type Pending = {
-  resolve(v: { created: boolean; series: SeriesMeta }): void;
+  // deno-lint-ignore no-explicit-any
+  resolve(v: any): void;
   reject(e: Error): void;
 };
 
-/** A worker that writes large series to the SQLite file at `path`. */
+/** The worker's error as the class it had (RangeError, TypeError), else an Error of that name. */
+function rebuildError(e: { name: string; message: string }): Error {
+  const Kind = e.name === "RangeError" ? RangeError : e.name === "TypeError" ? TypeError : Error;
+  const out = new Kind(e.message);
+  if (out.name !== e.name) out.name = e.name;
+  return out;
+}
+
+/** A worker that writes large series and field blocks to the SQLite file at `path`. */
 export class SqliteWriter {
   #worker: Worker | null = null;
   #pending = new Map<number, Pending>();
@@ -35,19 +45,19 @@ export class SqliteWriter {
       const m = e.data as {
         id: number;
         ok: boolean;
-        value?: { created: boolean; series: SeriesMeta };
+        value?: unknown;
         error?: { name: string; message: string };
       };
       const p = this.#pending.get(m.id);
       this.#pending.delete(m.id);
       if (!p) return;
       if (m.ok) p.resolve(m.value!);
-      else p.reject(Object.assign(new Error(m.error!.message), { name: m.error!.name }));
+      else p.reject(rebuildError(m.error!));
     };
     w.onerror = (e) => {
       e.preventDefault();
       for (const p of this.#pending.values()) {
-        p.reject(new Error(`series writer failed: ${e.message}`));
+        p.reject(new Error(`SQLite writer failed: ${e.message}`));
       }
       this.#pending.clear();
       w.terminate();
@@ -57,17 +67,36 @@ export class SqliteWriter {
     return w;
   }
 
+  #send<T>(message: Record<string, unknown>): Promise<T> {
+    this.#worker ??= this.#start();
+    const id = this.#next++;
+    return new Promise((resolve, reject) => {
+      this.#pending.set(id, { resolve, reject });
+      this.#worker!.postMessage({ ...message, id });
+    });
+  }
+
   /** Write `s` for `holder` in the worker (the arrays are copied, the caller keeps its own). */
   putSeries(
     s: StoredSeries,
     holder: HolderSpec,
   ): Promise<{ created: boolean; series: SeriesMeta }> {
-    this.#worker ??= this.#start();
-    const id = this.#next++;
-    return new Promise((resolve, reject) => {
-      this.#pending.set(id, { resolve, reject });
-      this.#worker!.postMessage({ type: "put", id, series: s, holder });
-    });
+    return this.#send({ type: "put", series: s, holder });
+  }
+
+  /**
+   * Write one block of a staged field in the worker (`SqliteStore.putFieldBlock` there; the
+   * values are copied). An upload's blocks then go to the file while the request thread hashes
+   * the next one and the NetCDF reader decodes the one after.
+   */
+  putFieldBlock(
+    stage: number,
+    index: number,
+    tStart: number,
+    rows: number,
+    values: Float32Array,
+  ): Promise<void> {
+    return this.#send({ type: "field-block", stage, index, tStart, rows, values });
   }
 
   /** Stop the worker (after the writes in flight). */

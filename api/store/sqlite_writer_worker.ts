@@ -1,6 +1,7 @@
 /**
  * The series writer worker (see api/store/sqlite_writer.ts): `{ type: "open", path }`, then
- * `{ type: "put", id, series, holder }` → `{ id, ok, value | error }`.
+ * `{ type: "put", id, series, holder }` or
+ * `{ type: "field-block", id, stage, index, tStart, rows, values }` → `{ id, ok, value | error }`.
  *
  * @module
  */
@@ -15,9 +16,12 @@ self.onmessage = async (e: MessageEvent) => {
     store = openSqliteStore({ path: m.path, busyTimeoutMs: m.busyTimeoutMs, offload: false });
     return;
   }
-  if (m.type === "put") {
+  if (m.type === "put" || m.type === "field-block") {
     try {
-      const value = await (await store!).putSeries(m.series, m.holder);
+      const s = await store!;
+      const value = m.type === "put"
+        ? await s.putSeries(m.series, m.holder)
+        : await s.putFieldBlock(m.stage, m.index, m.tStart, m.rows, m.values);
       self.postMessage({ id: m.id, ok: true, value });
     } catch (err) {
       const error = {
