@@ -885,22 +885,22 @@ export function storeSuite(
       const other = b.shared ? await b.open() : store;
       try {
         const x = makeSeries("seen-at-once");
-        await store.putSeries(x, { owner: "alice", visibility: "public" });
+        await store.putSeries(x, { owner: "analyst_a", visibility: "public" });
         const r = makeRun("seen-at-once", { inputSeries: [x.id] });
-        await store.putRun(r, { owner: "alice", visibility: "public" });
+        await store.putRun(r, { owner: "analyst_a", visibility: "public" });
         for (let k = 0; k < 2; k++) {
           // asked twice: a remembered answer must not outlive the change
           assert.ok(await store.seriesHolding(x.id, viewer(null)));
-          assert.ok(await store.runHolding(r.id, viewer("carol", "g2")));
+          assert.ok(await store.runHolding(r.id, viewer("analyst_c", "g2")));
         }
-        assert.equal(await other.setSeriesVisibility(x.id, "alice", "private"), true);
-        assert.equal(await other.setRunVisibility(r.id, "alice", "group"), true);
+        assert.equal(await other.setSeriesVisibility(x.id, "analyst_a", "private"), true);
+        assert.equal(await other.setRunVisibility(r.id, "analyst_a", "group"), true);
         assert.equal(await store.seriesHolding(x.id, viewer(null)), null);
-        assert.equal(await store.runHolding(r.id, viewer("carol", "g2")), null);
-        assert.ok(await store.runHolding(r.id, viewer("bob")));
-        assert.equal(await store.setRunVisibility(r.id, "alice", "private"), true);
-        assert.equal(await store.runHolding(r.id, viewer("bob")), null);
-        assert.equal(await store.setSeriesVisibility(x.id, "alice", "public"), true);
+        assert.equal(await store.runHolding(r.id, viewer("analyst_c", "g2")), null);
+        assert.ok(await store.runHolding(r.id, viewer("analyst_b")));
+        assert.equal(await store.setRunVisibility(r.id, "analyst_a", "private"), true);
+        assert.equal(await store.runHolding(r.id, viewer("analyst_b")), null);
+        assert.equal(await store.setSeriesVisibility(x.id, "analyst_a", "public"), true);
         assert.ok(await store.seriesHolding(x.id, viewer(null)));
       } finally {
         if (other !== store) await other.close();
