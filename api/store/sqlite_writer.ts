@@ -32,6 +32,10 @@ export class SqliteWriter {
       type: "module",
     });
     w.onmessage = (e) => {
+      if (e.data?.type === "checkpointed") {
+        this.#checkpointQueued = false;
+        return;
+      }
       const m = e.data as {
         id: number;
         ok: boolean;
@@ -50,6 +54,7 @@ export class SqliteWriter {
         p.reject(new Error(`series writer failed: ${e.message}`));
       }
       this.#pending.clear();
+      this.#checkpointQueued = false;
       w.terminate();
       this.#worker = null;
     };
@@ -69,6 +74,19 @@ export class SqliteWriter {
       this.#worker!.postMessage({ type: "put", id, series: s, holder });
     });
   }
+
+  /**
+   * Ask the worker to checkpoint the WAL (PASSIVE) after a large commit on another connection
+   * (see `SqliteStore`); requests already queued coalesce into one.
+   */
+  checkpoint(): void {
+    if (this.#checkpointQueued) return;
+    this.#checkpointQueued = true;
+    this.#worker ??= this.#start();
+    this.#worker.postMessage({ type: "checkpoint" });
+  }
+
+  #checkpointQueued = false;
 
   /** Stop the worker (after the writes in flight). */
   async close(): Promise<void> {

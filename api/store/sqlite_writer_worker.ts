@@ -1,6 +1,7 @@
 /**
  * The series writer worker (see api/store/sqlite_writer.ts): `{ type: "open", path }`, then
- * `{ type: "put", id, series, holder }` → `{ id, ok, value | error }`.
+ * `{ type: "put", id, series, holder }` → `{ id, ok, value | error }`; `{ type: "checkpoint" }`
+ * → `{ type: "checkpointed" }` (a PASSIVE WAL checkpoint; a failure is left to the next one).
  *
  * @module
  */
@@ -13,6 +14,15 @@ self.onmessage = async (e: MessageEvent) => {
   const m = e.data;
   if (m.type === "open") {
     store = openSqliteStore({ path: m.path, busyTimeoutMs: m.busyTimeoutMs, offload: false });
+    return;
+  }
+  if (m.type === "checkpoint") {
+    try {
+      (await store!).checkpointWal();
+    } catch {
+      // busy or closing: the next commit's automatic checkpoint does it
+    }
+    self.postMessage({ type: "checkpointed" });
     return;
   }
   if (m.type === "put") {
