@@ -8,9 +8,10 @@
  * @module
  */
 import type { RunResult } from "./kind.ts";
-import { toPlainJson } from "./json.ts";
+import { createHash } from "node:crypto";
+import { canonicalJsonBytes, toPlainJson } from "./json.ts";
 import { type InheritedNote, withInherited } from "./inherit.ts";
-import { type CanonicalBytes, canonicalBytes } from "../store/result_text.ts";
+import type { CanonicalBytes } from "../store/result_text.ts";
 
 /** A finished result: its canonical bytes and digest, and the outputs to save as series. */
 export interface FinishedResult extends CanonicalBytes {
@@ -51,9 +52,10 @@ export function finishResult(
   notes: InheritedNote[],
   autoSave: readonly string[] = [],
 ): FinishedResult {
-  const plain = finishPlain(result, notes);
-  const outputs = (plain.outputs ?? {}) as Record<string, unknown>;
+  // the bytes of JSON.stringify(finishPlain(result, notes)), written without the plain copy
+  const bytes = canonicalJsonBytes(withInherited(result, notes));
+  const outputs = (result.outputs ?? {}) as Record<string, unknown>;
   const saved: Record<string, unknown> = {};
-  for (const name of autoSave) if (outputs[name]) saved[name] = outputs[name];
-  return { ...canonicalBytes(plain), saved };
+  for (const name of autoSave) if (outputs[name]) saved[name] = toPlainJson(outputs[name]);
+  return { bytes, digest: createHash("sha256").update(bytes).digest("hex"), saved };
 }

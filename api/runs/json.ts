@@ -117,3 +117,167 @@ function walk(value: unknown, path: (string | number)[], keys: Set<string>): unk
 export function toPlainJson(value: unknown): unknown {
   return walk(value, [], new Set());
 }
+
+/**
+ * A growable UTF-8 byte buffer fed with strings: small pieces are joined and encoded together,
+ * a large piece (an array of numbers: one-byte text) is encoded at once with `encodeInto`, so no
+ * string of the whole result is ever built (V8 would make it two bytes per character as soon as
+ * one non-Latin-1 character appears, and encode all of it again).
+ */
+class Utf8Sink {
+  #buf = new Uint8Array(1 << 16);
+  #len = 0;
+  #parts: string[] = [];
+  #pending = 0;
+  static #encoder = new TextEncoder();
+
+  push(s: string): void {
+    this.#parts.push(s);
+    this.#pending += s.length;
+    if (this.#pending > 1 << 15) this.flush();
+  }
+
+  /** Append a large piece: pending pieces first, then this one without copying it. */
+  pushLarge(s: string): void {
+    this.flush();
+    this.#encode(s);
+  }
+
+  flush(): void {
+    if (this.#parts.length === 0) return;
+    const s = this.#parts.length === 1 ? this.#parts[0] : this.#parts.join("");
+    this.#parts = [];
+    this.#pending = 0;
+    this.#encode(s);
+  }
+
+  #encode(s: string): void {
+    // room for one byte per UTF-16 unit first (all of a number array); grow while it does not fit
+    this.#reserve(s.length);
+    let r = Utf8Sink.#encoder.encodeInto(s, this.#buf.subarray(this.#len));
+    this.#len += r.written;
+    let rest = s;
+    while (r.read < rest.length) {
+      rest = rest.slice(r.read);
+      this.#reserve(rest.length * 3);
+      r = Utf8Sink.#encoder.encodeInto(rest, this.#buf.subarray(this.#len));
+      this.#len += r.written;
+    }
+  }
+
+  #reserve(n: number): void {
+    if (this.#len + n <= this.#buf.length) return;
+    let size = this.#buf.length * 2;
+    while (size < this.#len + n) size *= 2;
+    const next = new Uint8Array(size);
+    next.set(this.#buf.subarray(0, this.#len));
+    this.#buf = next;
+  }
+
+  /** The bytes written, in an ArrayBuffer of their own length. */
+  bytes(): Uint8Array<ArrayBuffer> {
+    this.flush();
+    return new Uint8Array(this.#buf.buffer.transfer(this.#len));
+  }
+}
+
+/** Arrays at least this long are checked, then serialised by one `JSON.stringify` call. */
+const LARGE = 256;
+
+function writeArrayLike(
+  a: ArrayLike<unknown>,
+  path: (string | number)[],
+  keys: Set<string>,
+  sink: Utf8Sink,
+): void {
+  // primitives only (the common case: numbers): check each, then one native stringify
+  let flat = true;
+  for (let i = 0; i < a.length; i++) {
+    const v = a[i];
+    if (typeof v === "number") {
+      if (v - v !== 0) fail(v, [...path, i]);
+    } else if (typeof v === "string") {
+      if (!v.isWellFormed()) badString([...path, i]);
+    } else if (v !== null && typeof v !== "boolean" && v !== undefined) {
+      flat = false;
+      break;
+    }
+  }
+  // an own toJSON would be called by JSON.stringify, not by the plain copy
+  if (flat && !("toJSON" in a)) {
+    // JSON.stringify writes -0 as 0 and a hole or undefined in an array as null, as the plain
+    // copy would hold them; a typed array is copied to an Array first (it would be an object)
+    const text = JSON.stringify(Array.isArray(a) ? a : Array.from(a));
+    if (a.length >= LARGE) sink.pushLarge(text);
+    else sink.push(text);
+    return;
+  }
+  sink.push("[");
+  for (let i = 0; i < a.length; i++) {
+    if (i > 0) sink.push(",");
+    const v = a[i];
+    if (v === undefined) {
+      sink.push("null");
+      continue;
+    }
+    path.push(i);
+    write(v, path, keys, sink);
+    path.pop();
+  }
+  sink.push("]");
+}
+
+function write(value: unknown, path: (string | number)[], keys: Set<string>, sink: Utf8Sink) {
+  if (typeof value === "string") {
+    sink.push(JSON.stringify(value.isWellFormed() ? value : badString(path)));
+  } else if (value === null) sink.push("null");
+  else if (typeof value === "boolean") sink.push(value ? "true" : "false");
+  else if (typeof value === "number") sink.push(JSON.stringify(plainNumber(value, path)));
+  else if (ArrayBuffer.isView(value) && !(value instanceof DataView)) {
+    writeArrayLike(value as unknown as ArrayLike<number>, path, keys, sink);
+  } else if (Array.isArray(value)) writeArrayLike(value, path, keys, sink);
+  else if (typeof value === "object") {
+    sink.push("{");
+    let first = true;
+    for (const k of Object.keys(value as object).sort()) {
+      if (!keys.has(k)) {
+        if (!SNAKE_CASE_KEY.test(k)) badKey(k, path);
+        keys.add(k);
+      }
+      const v = (value as Record<string, unknown>)[k];
+      if (v === undefined) continue;
+      sink.push(first ? JSON.stringify(k) + ":" : "," + JSON.stringify(k) + ":");
+      first = false;
+      path.push(k);
+      write(v, path, keys, sink);
+      path.pop();
+    }
+    sink.push("}");
+  } else fail(value, path);
+}
+
+/**
+ * The UTF-8 bytes of `JSON.stringify(toPlainJson(value))` (RFC 8785 canonical JSON of a
+ * result, see api/store/result_text.ts), written in one pass without the plain copy or a string
+ * of the whole: the same checks and errors as {@link toPlainJson}, and arrays of primitives
+ * serialised by the native `JSON.stringify`, so every number is formatted exactly as there.
+ * A 153,000-day reconstruction (38 MB): about half the time of copy, stringify and encode
+ * (test/bench/http_peers.ts).
+ *
+ * @throws {Error} as {@link toPlainJson}
+ * @example
+ * ```ts
+ * import { canonicalJsonBytes, toPlainJson } from "./json.ts";
+ * import assert from "node:assert/strict";
+ * const v = { b: Float64Array.of(1, -0, 2.5e-7), a: [{ y: "é", x: undefined }, null, -0] };
+ * const text = new TextDecoder().decode(canonicalJsonBytes(v));
+ * assert.equal(text, JSON.stringify(toPlainJson(v)));
+ * assert.equal(text, '{"a":[{"y":"é"},null,0],"b":[1,0,2.5e-7]}');
+ * ```
+ */
+export function canonicalJsonBytes(value: unknown): Uint8Array<ArrayBuffer> {
+  const sink = new Utf8Sink();
+  if (value === undefined) fail(value, []);
+  write(value, [], new Set(), sink);
+  return sink.bytes();
+}

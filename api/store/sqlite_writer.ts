@@ -42,6 +42,10 @@ export class SqliteWriter {
       type: "module",
     });
     w.onmessage = (e) => {
+      if (e.data?.type === "checkpointed") {
+        this.#checkpointQueued = false;
+        return;
+      }
       const m = e.data as {
         id: number;
         ok: boolean;
@@ -60,6 +64,7 @@ export class SqliteWriter {
         p.reject(new Error(`SQLite writer failed: ${e.message}`));
       }
       this.#pending.clear();
+      this.#checkpointQueued = false;
       w.terminate();
       this.#worker = null;
     };
@@ -98,6 +103,19 @@ export class SqliteWriter {
   ): Promise<void> {
     return this.#send({ type: "field-block", stage, index, tStart, rows, values });
   }
+
+  /**
+   * Ask the worker to checkpoint the WAL (PASSIVE) after a large commit on another connection
+   * (see `SqliteStore`); requests already queued coalesce into one.
+   */
+  checkpoint(): void {
+    if (this.#checkpointQueued) return;
+    this.#checkpointQueued = true;
+    this.#worker ??= this.#start();
+    this.#worker.postMessage({ type: "checkpoint" });
+  }
+
+  #checkpointQueued = false;
 
   /** Stop the worker (after the writes in flight). */
   async close(): Promise<void> {

@@ -1,7 +1,9 @@
 /**
  * The series writer worker (see api/store/sqlite_writer.ts): `{ type: "open", path }`, then
  * `{ type: "put", id, series, holder }` or
- * `{ type: "field-block", id, stage, index, tStart, rows, values }` → `{ id, ok, value | error }`.
+ * `{ type: "field-block", id, stage, index, tStart, rows, values }` → `{ id, ok, value | error }`;
+ * `{ type: "checkpoint" }` → `{ type: "checkpointed" }` (a PASSIVE WAL checkpoint; a failure is
+ * left to the next one).
  *
  * @module
  */
@@ -14,6 +16,15 @@ self.onmessage = async (e: MessageEvent) => {
   const m = e.data;
   if (m.type === "open") {
     store = openSqliteStore({ path: m.path, busyTimeoutMs: m.busyTimeoutMs, offload: false });
+    return;
+  }
+  if (m.type === "checkpoint") {
+    try {
+      (await store!).checkpointWal();
+    } catch {
+      // busy or closing: the next commit's automatic checkpoint does it
+    }
+    self.postMessage({ type: "checkpointed" });
     return;
   }
   if (m.type === "put" || m.type === "field-block") {

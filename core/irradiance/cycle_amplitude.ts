@@ -105,6 +105,12 @@ export interface CycleAmplitudeCheckOptions {
   floor?: number;
   /** Years either side for an extremum, as {@link tsiCycleAmplitude}. @default 3 */
   halfWindow?: number;
+  /**
+   * The series' cycles when the caller already has them: `tsiCycleAmplitude(time, value,
+   * halfWindow)` of the same arrays (not checked), so they are not found twice.
+   * @default computed here
+   */
+  amplitude?: TsiCycleAmplitude;
 }
 
 /** One cycle of {@link cycleAmplitudesAgainstReference}. */
@@ -187,7 +193,8 @@ export function cycleAmplitudesAgainstReference(
   }
   const ref = annualMeans(time, reference);
   const at = new Map(ref.years.map((y, i) => [y, ref.mean[i]]));
-  return tsiCycleAmplitude(time, value, options.halfWindow).cycles.map((c) => {
+  const own = options.amplitude ?? tsiCycleAmplitude(time, value, options.halfWindow);
+  return own.cycles.map((c) => {
     const hi = at.get(c.maximumYear), lo = at.get(c.minimumYear);
     const expected = hi === undefined || lo === undefined ? null : hi - lo;
     const ratio = expected === null || expected <= 0 ? null : c.amplitude / expected;

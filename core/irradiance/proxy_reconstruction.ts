@@ -221,6 +221,59 @@ export function reconstructFromProxies(
 }
 
 /**
+ * The values ŷ = xᵀβ of {@link reconstructFromProxies} alone, without the error model or the
+ * interval: for a reconstruction used only as a yardstick (the cycle amplitudes that the
+ * model's sunspot mappings imply). Same design, regressors and sums in the same order, so the
+ * values equal `reconstructFromProxies(model, cells, z).value` bit for bit; NaN where a cell
+ * has no value. About a third of the full reconstruction's time on daily cells.
+ *
+ * @param model {@link ReconstructionModel}
+ * @param cells {@link ReconstructionCells}
+ * @returns ŷ per cell, W m-2 (NaN without a value)
+ * @throws {InputError} as {@link reconstructionDesign}
+ * @example
+ * ```ts
+ * import { reconstructedValues, reconstructFromProxies } from "./proxy_reconstruction.ts";
+ * import assert from "node:assert/strict";
+ * const model = {
+ *   coefficients: [1360.8, 135], covariance: [[1e-4, 0], [0, 1]],
+ *   terms: [{ role: "facular" as const, quietLevel: 0.15 }], psiReference: 1360.8,
+ *   residualSd: 0.15, rho: 0.7, stepDays: 1, backExtension: null,
+ * };
+ * const cells = {
+ *   days: Float64Array.of(1, 31, 1), direct: [Float64Array.of(0.16, NaN, 0.17)],
+ *   mappings: [null], sunspot: null,
+ * };
+ * const v = reconstructedValues(model, cells);
+ * assert.deepEqual(v, reconstructFromProxies(model, cells, 1.96).value);
+ * assert.ok(Number.isNaN(v[1]));
+ * ```
+ */
+export function reconstructedValues(
+  model: ReconstructionModel,
+  cells: ReconstructionCells,
+): Float64Array {
+  const design = reconstructionDesign(model, cells);
+  const K = model.terms.length, n = cells.days.length;
+  const beta = model.coefficients, source = design.source;
+  const value = new Float64Array(n).fill(beta[0]);
+  for (let k = 0; k < K; k++) {
+    const t = model.terms[k];
+    const xk = proxyRegressorColumn(
+      t.role,
+      t.quietLevel,
+      model.psiReference,
+      design.values[k],
+      work(K + k, n),
+    );
+    const b = beta[k + 1];
+    for (let i = 0; i < n; i++) value[i] += b * xk[i];
+  }
+  for (let i = 0; i < n; i++) if (source[i] === SOURCE_NONE) value[i] = NaN;
+  return value;
+}
+
+/**
  * {@link reconstructFromProxies} for several models on the same terms (the bands of a spectral
  * model, and their integrals), over the same cells: which proxy value each cell uses
  * ({@link reconstructionDesign}) is decided once and shared by every model with the same

@@ -9,7 +9,7 @@ import { join } from "node:path";
 import fc from "fast-check";
 import postgres from "postgres";
 import { canonicalJson, sha256Hex } from "../../api/canonical.ts";
-import { toPlainJson } from "../../api/runs/json.ts";
+import { canonicalJsonBytes, toPlainJson } from "../../api/runs/json.ts";
 import { canonicalResult, resultTextOf } from "../../api/store/result_text.ts";
 import { makeTestApp, monthlySeries, uploadSeries } from "./helpers.ts";
 import * as DEMO from "./demo_ids.ts";
@@ -43,6 +43,53 @@ Deno.test("toPlainJson(): JSON.stringify of its value is RFC 8785 canonical JSON
   // ECMAScript number forms RFC 8785 §3.2.2.3 lists (Appendix B)
   const nums = { a: [1e21, 1e-7, -0, 333333333.33333329, 4.5e-324, 9007199254740992] };
   assert.equal(canonicalResult(toPlainJson(nums) as never).text, canonicalJson(nums));
+});
+
+Deno.test("canonicalJsonBytes() writes the bytes of JSON.stringify(toPlainJson(x)), or its error", async (t) => {
+  const same = (x: unknown) => {
+    const bytes = canonicalJsonBytes(x);
+    assert.equal(bytes.byteLength, bytes.buffer.byteLength, "bytes in a buffer of their own");
+    assert.equal(new TextDecoder().decode(bytes), JSON.stringify(toPlainJson(x)));
+  };
+  await t.step("random JSON values (RFC 8785 §3.2, checked against canonicalize)", () => {
+    fc.assert(
+      fc.property(json, (x) => {
+        same(x);
+        assert.equal(new TextDecoder().decode(canonicalJsonBytes(x)), canonicalJson(x));
+      }),
+      { numRuns: 300 },
+    );
+  });
+  await t.step("typed arrays, -0, holes, undefined, long arrays of numbers and strings", () => {
+    const long = Float64Array.from({ length: 5000 }, (_, i) => (i % 7 === 0 ? -0 : i / 3e7));
+    same({ a: long, b: Int16Array.of(-3, 0, 7), c: [1, , undefined, -0], d: undefined });
+    same({ e: Array.from({ length: 3000 }, (_, i) => `s${i} é ☀ 😀`), f: [[1, 2], { g: null }] });
+    same({ h: Array.from({ length: 300 }, (_, i) => ({ k: i, v: [i, "é"] })) });
+    // a large piece that does not fit the buffer's first growth, with multi-byte characters
+    same({ i: Array.from({ length: 40000 }, (_, i) => (i % 2 ? "€😀" : i * 1.5e-9)) });
+  });
+  await t.step("the same errors as toPlainJson", () => {
+    const bad = [
+      { x: [1, NaN] },
+      { y: Float32Array.of(1, Infinity) },
+      { z: [{ w: -Infinity }] },
+      { rSquared: 1 },
+      { s: ["a", "b\uD800"] },
+      { f: [() => 1] },
+      { n: BigInt64Array.of(1n) },
+      { big: Array.from({ length: 1000 }, (_, i) => (i === 999 ? NaN : i)) },
+    ];
+    for (const x of bad) {
+      let expected = "";
+      try {
+        toPlainJson(x);
+      } catch (e) {
+        expected = (e as Error).message;
+      }
+      assert.ok(expected, JSON.stringify(Object.keys(x)));
+      assert.throws(() => canonicalJsonBytes(x), { message: expected });
+    }
+  });
 });
 
 Deno.test("toPlainJson() refuses a lone surrogate as RFC 8785 does", () => {

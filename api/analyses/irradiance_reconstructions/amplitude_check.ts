@@ -93,6 +93,8 @@ export type CycleAmplitudeCheckJson = z.input<typeof CycleAmplitudeCheckSchema>;
  * @param amplitude the cycles of the reported reconstruction (tsiCycleAmplitude)
  * @param yardstick per cell, the TSI the model's mappings give from the reference sunspot
  *   series, and how that series was converted; null without a sunspot series
+ * @param sameSeries whether `amplitude` is of `value` itself (no background scenario), so its
+ *   cycles are not found again
  */
 export function cycleAmplitudeCheck(
   time: Float64Array,
@@ -100,12 +102,14 @@ export function cycleAmplitudeCheck(
   source: Uint8Array,
   amplitude: TsiCycleAmplitude,
   yardstick: { value: Float64Array; conversion: string } | null,
+  sameSeries = false,
 ): { json: CycleAmplitudeCheckJson; warnings: string[] } {
   const fromSunspots = backExtendedYears(time, source);
   const cycles: (CycleAmplitudeCheck & { fromSunspots: boolean; judged: boolean })[] = yardstick
     ? cycleAmplitudesAgainstReference(time, value, yardstick.value, {
       tolerance: TOLERANCE,
       floor: FLOOR,
+      amplitude: sameSeries ? amplitude : undefined,
     }).map((c) => {
       const from = fromSunspots.has(c.minimumYear) && fromSunspots.has(c.maximumYear);
       return { ...c, fromSunspots: from, judged: from && c.expected !== null };

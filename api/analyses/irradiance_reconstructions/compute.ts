@@ -13,6 +13,7 @@ import {
   ERROR_SOURCES,
   type ErrorSource,
   predictionQuantile,
+  reconstructedValues,
   reconstructFromProxies,
   type Reconstruction,
   reconstructionCoverage,
@@ -132,14 +133,16 @@ export async function computeReconstruction(
     proxyOnly.source,
     amp,
     sunspot && {
-      value: reconstructFromProxies(model, {
+      // values only: the yardstick's intervals are never used
+      value: reconstructedValues(model, {
         days: cells.days,
         direct: direct.map(() => new Float64Array(cells.keys.length).fill(NaN)),
         mappings: coreCells.mappings,
         sunspot: sunspot.reference.atCells,
-      }, z).value,
+      }),
       conversion: sunspot.reference.conversion,
     },
+    rec === proxyOnly,
   );
   const warnings = [
     ...(sunspot?.warnings ?? []),

@@ -3,6 +3,7 @@ import postgres from "postgres";
 import { openPostgresStore, POSTGRES_MIGRATIONS } from "../../../api/store/postgres.ts";
 import { SchemaMismatchError } from "../../../api/store/errors.ts";
 import { openStoreFromSpec } from "../../../api/store/mod.ts";
+import { lazyResult, resultBytesOf, resultTextOf } from "../../../api/store/result_text.ts";
 import {
   assertUpgradedV1Rows,
   makeRun,
@@ -103,6 +104,66 @@ Deno.test({
       const store = await openPostgresStore({ url });
       try {
         await assertUpgradedV1Rows(store);
+      } finally {
+        await store.close();
+      }
+    });
+  },
+});
+
+Deno.test({
+  name: "openPostgresStore() keeps results stored as text readable as the same bytes" + suffix,
+  ignore,
+  async fn() {
+    // Before step 5 the result column was TEXT; the step converts each row to the UTF-8 bytes of
+    // its text, which are the canonical bytes the service hashed and served.
+    await withDatabase(async (url) => {
+      const before = POSTGRES_MIGRATIONS.findIndex((m) => m.name === "run results as bytes");
+      assert.ok(before > 0);
+      const old = await openPostgresStore({
+        url,
+        migrations: POSTGRES_MIGRATIONS.slice(0, before),
+      });
+      const text = '{"label":"été ☀ 𝛼","values":[1,null,2.5e-7]}';
+      const run = { ...makeRun("text-result"), result: JSON.parse(text) };
+      try {
+        const sql = postgres(url, { max: 1, onnotice: () => {} });
+        try {
+          const type = await sql`SELECT data_type FROM information_schema.columns
+            WHERE table_name = 'runs' AND column_name = 'result'`;
+          assert.equal(type[0].data_type, "text");
+          await sql`INSERT INTO runs (id, kind, created_at, updated_at, status, progress, params,
+              service_version, algorithm_version, result, result_digest)
+            VALUES (${run.id}, ${run.kind}, ${run.created_at}, ${run.updated_at}, 'succeeded', 1,
+              '{}', '0.1.0', '1', ${text}, ${"0".repeat(64)})`;
+        } finally {
+          await sql.end();
+        }
+      } finally {
+        await old.close();
+      }
+      const store = await openPostgresStore({ url });
+      try {
+        const got = await store.getRun(run.id);
+        assert.equal(resultTextOf(got!.result), text);
+        assert.deepEqual(resultBytesOf(got!.result), new TextEncoder().encode(text));
+        assert.deepEqual(got!.result, JSON.parse(text));
+        // a result written now is stored as those bytes, byte for byte
+        const again = {
+          ...makeRun("bytes-result"),
+          result: lazyResult(new TextEncoder().encode(text)),
+        };
+        await store.putRun(again);
+        assert.equal(resultTextOf((await store.getRun(again.id))!.result), text);
+        const sql = postgres(url, { max: 1, onnotice: () => {} });
+        try {
+          const rows = await sql`SELECT id, convert_from(result, 'UTF8') AS t,
+              pg_column_compression(result) AS c FROM runs
+            WHERE id IN ${sql([run.id, again.id])} ORDER BY id`;
+          assert.deepEqual(rows.map((r) => r.t), [text, text]);
+        } finally {
+          await sql.end();
+        }
       } finally {
         await store.close();
       }

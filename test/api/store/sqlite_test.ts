@@ -3,6 +3,7 @@ import { DatabaseSync } from "node:sqlite";
 import { join } from "node:path";
 import { openSqliteStore, SQLITE_MIGRATIONS, type SqliteStore } from "../../../api/store/sqlite.ts";
 import { SchemaMismatchError } from "../../../api/store/errors.ts";
+import { lazyResult, resultBytesOf, resultTextOf } from "../../../api/store/result_text.ts";
 import {
   assertUpgradedV1Rows,
   makeRun,
@@ -289,4 +290,34 @@ Deno.test("SqliteStore: two processes writing to one file at once never fail wit
       await store.close();
     }
   });
+});
+
+Deno.test("SqliteStore: a large result is committed without the WAL checkpoint, which the writer worker makes", async () => {
+  const dir = await Deno.makeTempDir({ prefix: "sunlag-store-" });
+  const path = join(dir, "sunlag.db");
+  const text = JSON.stringify({ values: Array.from({ length: 600_000 }, (_, i) => i / 7) });
+  const bytes = new TextEncoder().encode(text);
+  assert.ok(bytes.length > 8 << 20);
+  const run = { ...makeRun("large-result"), result: lazyResult(bytes) };
+  let store = await openSqliteStore({ path });
+  try {
+    await store.putRun(run);
+    assert.equal(resultTextOf((await store.getRun(run.id))!.result), text);
+    // the database file receives the pages only by a checkpoint: the writer's, after the commit
+    const until = Date.now() + 20_000;
+    while (Deno.statSync(path).size < bytes.length && Date.now() < until) {
+      await new Promise((r) => setTimeout(r, 50));
+    }
+    assert.ok(Deno.statSync(path).size >= bytes.length, "the WAL was checkpointed");
+  } finally {
+    await store.close();
+  }
+  store = await openSqliteStore({ path });
+  try {
+    assert.deepEqual(resultBytesOf((await store.getRun(run.id))!.result), bytes);
+    assert.equal(await store.integrityCheck(), "ok");
+  } finally {
+    await store.close();
+    await Deno.remove(dir, { recursive: true });
+  }
 });
