@@ -94,7 +94,7 @@ Deno.test("forcing from a spectral reconstruction's integral, with its members",
         full_coverage: false,
       });
       assert.match(f.result.formula, /ΔS·\(1 − α\)\/4, S the 200–400 nm integral/);
-      assert.match(f.result.reference.label, /^mean the 200–400 nm integral over/);
+      assert.match(f.result.reference.label, /^mean of the 200–400 nm integral over/);
       // member k of the forcing is (S_k − mean S_k over the reference)(1 − α)/4 of member k of
       // the integral (IPCC AR6 WG1 §7.3.4.4), to the 1 μW m-2 rounding of stored members
       const fm = membersFromJson(f.result.ensemble.members);

@@ -45,8 +45,10 @@ interface TsiInput {
   /** The reconstruction's band statement, or null for a series. */
   band: UncertaintyBand | null;
   source: string;
-  /** How labels name the quantity: "TSI", or "the 200–400 nm integral". */
+  /** How the quantity is named: "TSI", or "the 200–400 nm integral". */
   words: string;
+  /** How the reference label names its mean: "mean TSI", "mean of the 200–400 nm integral". */
+  mean: string;
   /** For a spectral integral: what it spans, and the caution that it is not TSI. */
   spectral: { json: SpectralSourceJson; caution: string } | null;
 }
@@ -57,7 +59,7 @@ const MEMBER_ROUNDING = 1e-6;
 /** ΔF relative to the reference, with its uncertainty when the TSI has one. */
 export function computeForcing(params: ForcingParams, ctx: RunContext): ForcingResultIn {
   const input = tsiInput(params, ctx);
-  const { span, label, pointer } = reference(params, input.words);
+  const { span, label, pointer } = reference(params, input.mean);
   const f = withInputPointers(
     { albedo: "/albedo", "*": pointer },
     () => forcingSeries(input.time, input.tsi, input.errors, span, params.albedo),
@@ -187,6 +189,7 @@ function tsiInput(params: ForcingParams, ctx: RunContext): TsiInput {
       band: r.band,
       source: `reconstruction run ${params.reconstruction}`,
       words: "TSI",
+      mean: "mean TSI",
       spectral: null,
     };
   }
@@ -201,6 +204,7 @@ function tsiInput(params: ForcingParams, ctx: RunContext): TsiInput {
       band: x.band,
       source: `spectral reconstruction run ${run}, output ${output}`,
       words: x.words,
+      mean: `mean of ${x.words}`,
       spectral: { json: x.spectral, caution: x.caution },
     };
   }
@@ -213,6 +217,7 @@ function tsiInput(params: ForcingParams, ctx: RunContext): TsiInput {
     band: null,
     source: `series ${s.id}`,
     words: "TSI",
+    mean: "mean TSI",
     spectral: null,
   };
 }
@@ -220,23 +225,21 @@ function tsiInput(params: ForcingParams, ctx: RunContext): TsiInput {
 /** The reference span, its label, and the pointer of its field. */
 function reference(
   params: ForcingParams,
-  words: string,
+  mean: string,
 ): { span: YearSpan; label: string; pointer: string } {
   const ref = params.reference;
   if (ref.kind === "period") {
     const span = parsePeriod(ref.period, "/reference/period");
     return {
       span,
-      label: `mean ${words} over [${span.start.toFixed(4)}, ${span.end.toFixed(4)})`,
+      label: `${mean} over [${span.start.toFixed(4)}, ${span.end.toFixed(4)})`,
       pointer: "/reference/period",
     };
   }
   const t = timeBound(ref.time, "middle", "/reference/time");
   return {
     span: { start: t - ref.half_width_years, end: t + ref.half_width_years },
-    label: `mean ${words} within ±${ref.half_width_years} yr of the cycle minimum at ${
-      t.toFixed(3)
-    }`,
+    label: `${mean} within ±${ref.half_width_years} yr of the cycle minimum at ${t.toFixed(3)}`,
     pointer: "/reference/time",
   };
 }
