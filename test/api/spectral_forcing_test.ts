@@ -76,6 +76,10 @@ Deno.test("forcing from a spectral reconstruction's integral, with its members",
 
     await t.step("one forcing member per member, with the spectral run's band statement", () => {
       assert.deepEqual(fo.time, r.outputs.range_200_400.time);
+      assert.equal(
+        fo.name,
+        "Solar radiative forcing of the 200–400 nm integral (not TSI: that range's variation only)",
+      );
       assert.equal(f.result.ensemble.realizations, M);
       assert.equal(f.result.ensemble.seed, 11);
       assert.equal(f.result.band.method, "ensemble_quantiles");
@@ -267,6 +271,15 @@ Deno.test("forcing from a spectral reconstruction's integral, with its members",
       assert.equal(p.errors[0].pointer, "/spectral_reconstruction/run");
       assert.match(p.errors[0].message, /has status cancelled; only succeeded runs can be used/);
       assert.equal(await runs(), before);
+    });
+
+    await t.step("an energy-balance run takes it, member by member", async () => {
+      const eb = await created(svc, "/v1/energy-balance", { forcing_run: f.id });
+      assert.equal(eb.result.ensemble.realizations, M);
+      assert.ok(
+        (eb.result.inherited ?? []).some((x: { text: string }) => x.text === f.result.cautions[0]),
+        "the not-TSI caution reaches the response",
+      );
     });
 
     await t.step("replay gives the same bytes", async () => {

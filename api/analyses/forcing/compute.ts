@@ -65,7 +65,11 @@ export function computeForcing(params: ForcingParams, ctx: RunContext): ForcingR
     () => forcingSeries(input.time, input.tsi, input.errors, span, params.albedo),
   );
   const out: OutputSeries = {
-    name: "Solar radiative forcing",
+    name: input.spectral
+      ? `Solar radiative forcing of ${input.words}${
+        input.spectral.json.full_coverage ? "" : " (not TSI: that range's variation only)"
+      }`
+      : "Solar radiative forcing",
     quantity: "radiative_forcing",
     units: "W m-2",
     time: Array.from(input.time),
