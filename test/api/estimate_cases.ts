@@ -425,6 +425,27 @@ export async function estimateCases(svc: TestService): Promise<EstimateCase[]> {
       label: "daily 1980–2025",
       body: (r) => ({ ...reconstruction(r, "daily", "1980"), model: r.spectral }),
     },
+    {
+      path: "/v1/irradiance/spectral-reconstructions",
+      label: "annual 1850–2025, 100 members",
+      body: (r) => ({
+        ...reconstruction(r, "annual", "1850"),
+        model: r.spectral,
+        ranges: [{ lower: 200, upper: 400 }],
+        realizations: 100,
+      }),
+      ci: true,
+      saveAs: "spectral_ensemble",
+    },
+    {
+      path: "/v1/forcing",
+      label: "spectral 200–400 nm, 100 members",
+      body: (r) => ({
+        spectral_reconstruction: { run: r.spectral_ensemble, output: "range_200_400" },
+        reference: { kind: "period", period: { start: "1986", end: "1996" } },
+      }),
+      ci: true,
+    },
     // climate
     {
       path: "/v1/energy-balance",

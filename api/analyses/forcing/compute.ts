@@ -1,6 +1,7 @@
 /**
  * Adapter of the "forcing" analysis: the TSI (a series, or a reconstruction run's output with
- * its error model and ensemble), the reference, and core's ΔF = ΔTSI·(1 − α)/4 with its
+ * its error model and ensemble) or a spectral reconstruction run's integral (with its
+ * ensemble; spectral_input.ts), the reference, and core's ΔF = ΔTSI·(1 − α)/4 with its
  * uncertainty (core/irradiance/radiative_forcing.ts): member by member against each member's
  * own reference mean when the reconstruction has an ensemble, else from the reconstruction's
  * error model (the reference mean's variance and its covariance with each cell included).
@@ -32,6 +33,7 @@ import { irradianceReconstructions } from "../irradiance_reconstructions/mod.ts"
 import type { ReconstructionResultOut } from "../irradiance_reconstructions/result.ts";
 import type { ForcingParams } from "./request.ts";
 import type { ForcingResultIn } from "./result.ts";
+import { spectralIntegralInput, type SpectralSourceJson } from "./spectral_input.ts";
 
 /** The TSI to convert, with what is known of its errors. */
 interface TsiInput {
@@ -43,6 +45,12 @@ interface TsiInput {
   /** The reconstruction's band statement, or null for a series. */
   band: UncertaintyBand | null;
   source: string;
+  /** How the quantity is named: "TSI", or "the 200–400 nm integral". */
+  words: string;
+  /** How the reference label names its mean: "mean TSI", "mean of the 200–400 nm integral". */
+  mean: string;
+  /** For a spectral integral: what it spans, and the caution that it is not TSI. */
+  spectral: { json: SpectralSourceJson; caution: string } | null;
 }
 
 /** Forcing members are rounded to 1 μW m-2. */
@@ -51,19 +59,25 @@ const MEMBER_ROUNDING = 1e-6;
 /** ΔF relative to the reference, with its uncertainty when the TSI has one. */
 export function computeForcing(params: ForcingParams, ctx: RunContext): ForcingResultIn {
   const input = tsiInput(params, ctx);
-  const { span, label, pointer } = reference(params);
+  const { span, label, pointer } = reference(params, input.mean);
   const f = withInputPointers(
     { albedo: "/albedo", "*": pointer },
     () => forcingSeries(input.time, input.tsi, input.errors, span, params.albedo),
   );
   const out: OutputSeries = {
-    name: "Solar radiative forcing",
+    name: input.spectral
+      ? `Solar radiative forcing of ${input.words}${
+        input.spectral.json.full_coverage ? "" : " (not TSI: that range's variation only)"
+      }`
+      : "Solar radiative forcing",
     quantity: "radiative_forcing",
     units: "W m-2",
     time: Array.from(input.time),
     value: undefinedAsNull(f.value),
-    description:
-      `ΔF = (TSI − TSI_ref)(1 − ${params.albedo})/4, TSI_ref the ${label}; from ${input.source}`,
+    description: input.spectral
+      ? `ΔF = (S − S_ref)(1 − ${params.albedo})/4, S ${input.words} (not TSI unless the ` +
+        `range covers the spectrum), S_ref the ${label}; from ${input.source}`
+      : `ΔF = (TSI − TSI_ref)(1 − ${params.albedo})/4, TSI_ref the ${label}; from ${input.source}`,
   };
   const ens = input.ensemble;
   let band: UncertaintyBand | null = null;
@@ -111,7 +125,7 @@ export function computeForcing(params: ForcingParams, ctx: RunContext): ForcingR
       ]);
   }
   return {
-    formula: "ΔF = ΔTSI·(1 − α)/4",
+    formula: input.spectral ? `ΔF = ΔS·(1 − α)/4, S ${input.words} (W m-2)` : "ΔF = ΔTSI·(1 − α)/4",
     albedo: params.albedo,
     reference: { ...span, label, tsi: f.referenceTsi, points: f.referencePoints },
     reference_sd: f.referenceSd,
@@ -123,13 +137,20 @@ export function computeForcing(params: ForcingParams, ctx: RunContext): ForcingR
       ? "analytic: Var(x_t − m̄) with the series' uncertainties taken as independent between points"
       : "none: the TSI input carries no uncertainty",
     source: input.source,
+    ...(input.spectral ? { spectral: input.spectral.json } : {}),
     band,
     outputs: { forcing: out },
     ensemble: members,
-    warnings: input.errors || ens
-      ? []
+    warnings: input.errors || ens ? [] : input.spectral
+      ? [
+        `Spectral reconstruction run ${input.spectral.json.run} has no ensemble, so the forcing ` +
+        "has no uncertainty: its analytic band does not store how the integral's errors " +
+        "correlate over time, which the difference from the reference mean needs. Ask the " +
+        "spectral reconstruction for realizations to carry its members.",
+      ]
       : ["The TSI input carries no uncertainty, so the forcing has none."],
     cautions: [
+      ...(input.spectral ? [input.spectral.caution] : []),
       "This is the instantaneous top-of-atmosphere solar forcing; it is not an attribution of any climate change to the Sun.",
       ASSESSMENT_CAUTION,
       ...(band ? [bandCaution(band, `The forcing's uncertainty band`)] : []),
@@ -171,6 +192,24 @@ function tsiInput(params: ForcingParams, ctx: RunContext): TsiInput {
         : null,
       band: r.band,
       source: `reconstruction run ${params.reconstruction}`,
+      words: "TSI",
+      mean: "mean TSI",
+      spectral: null,
+    };
+  }
+  if (params.spectral_reconstruction) {
+    const { run, output } = params.spectral_reconstruction;
+    const x = spectralIntegralInput(ctx, run, output);
+    return {
+      time: x.time,
+      tsi: x.value,
+      errors: null,
+      ensemble: x.ensemble,
+      band: x.band,
+      source: `spectral reconstruction run ${run}, output ${output}`,
+      words: x.words,
+      mean: `mean of ${x.words}`,
+      spectral: { json: x.spectral, caution: x.caution },
     };
   }
   const s = requireQuantity(ctx.series(refId(params.tsi!)), "tsi", "/tsi");
@@ -181,24 +220,30 @@ function tsiInput(params: ForcingParams, ctx: RunContext): TsiInput {
     ensemble: null,
     band: null,
     source: `series ${s.id}`,
+    words: "TSI",
+    mean: "mean TSI",
+    spectral: null,
   };
 }
 
 /** The reference span, its label, and the pointer of its field. */
-function reference(params: ForcingParams): { span: YearSpan; label: string; pointer: string } {
+function reference(
+  params: ForcingParams,
+  mean: string,
+): { span: YearSpan; label: string; pointer: string } {
   const ref = params.reference;
   if (ref.kind === "period") {
     const span = parsePeriod(ref.period, "/reference/period");
     return {
       span,
-      label: `mean TSI over [${span.start.toFixed(4)}, ${span.end.toFixed(4)})`,
+      label: `${mean} over [${span.start.toFixed(4)}, ${span.end.toFixed(4)})`,
       pointer: "/reference/period",
     };
   }
   const t = timeBound(ref.time, "middle", "/reference/time");
   return {
     span: { start: t - ref.half_width_years, end: t + ref.half_width_years },
-    label: `mean TSI within ±${ref.half_width_years} yr of the cycle minimum at ${t.toFixed(3)}`,
+    label: `${mean} within ±${ref.half_width_years} yr of the cycle minimum at ${t.toFixed(3)}`,
     pointer: "/reference/time",
   };
 }

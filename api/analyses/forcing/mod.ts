@@ -1,6 +1,7 @@
 /**
  * Analysis "forcing": solar radiative forcing ΔF = ΔTSI·(1 − α)/4 relative to a stated
- * reference period, from a TSI series or a reconstruction run
+ * reference period, from a TSI series, a reconstruction run or a spectral reconstruction run's
+ * integral
  * (core/irradiance/radiative_forcing.ts).
  *
  * @module
@@ -26,10 +27,19 @@ export const forcing = defineAnalysis({
     "error model (so the quiet-Sun level's error, shared with the reference, cancels), or " +
     "from a series' uncertainties taken as independent. A reconstruction with an ensemble " +
     "gives one forcing member per member, each against its own reference mean, and the band " +
-    "of those members; the reconstruction's statement of what its band contains is passed on.",
+    "of those members; the reconstruction's statement of what its band contains is passed on. A spectral " +
+    "reconstruction run's integral (over the covered range or a requested range) is converted " +
+    "the same way, member by member when the run has an ensemble; a band integral over part " +
+    "of the spectrum is not TSI, and the result states the range and that the rest of the " +
+    "spectrum's variation is not included.",
   request: ForcingRequest,
   result: ForcingResult,
-  runRefs: (p) => (p.reconstruction ? [p.reconstruction] : []),
+  runRefs: (p) =>
+    p.reconstruction
+      ? [p.reconstruction]
+      : p.spectral_reconstruction
+      ? [p.spectral_reconstruction.run]
+      : [],
   estimateSeconds: estimateForcingSeconds,
   compute: computeForcing,
 });

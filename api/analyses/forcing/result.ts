@@ -26,6 +26,23 @@ export const ForcingResult = z.object({
     description: "How the forcing's uncertainty was computed",
   }),
   source: z.string().openapi({ description: "The series or run the TSI came from" }),
+  spectral: z.object({
+    run: z.string().openapi({ description: "Id of the spectral reconstruction run" }),
+    output: z.string().openapi({ description: "The integral used (its output name)" }),
+    lower: z.number().openapi({ description: "Shortest wavelength of the range, nm" }),
+    upper: z.number().openapi({ description: "Longest wavelength of the range, nm" }),
+    covered_nm: z.number().openapi({ description: "Width of the range covered by bands, nm" }),
+    missing: z.array(z.tuple([z.number(), z.number()])).openapi({
+      description: "Parts of the range no band covers, nm (left out, not invented)",
+    }),
+    full_coverage: z.boolean().openapi({
+      description: "True when the range holds the spectral model's whole integral and that " +
+        "covers at least 99 % of a 5772 K blackbody: only then does the integral stand for TSI",
+    }),
+  }).optional().openapi({
+    description: "Present when the input is a spectral reconstruction's integral: the forcing " +
+      "is that of the range's variation only (the rest of the spectrum is not included)",
+  }),
   band: UncertaintyBandSchema.nullable().openapi({
     description: "What the forcing's interval contains and leaves out (a reconstruction's " +
       "statement, passed on); null without uncertainty",
