@@ -16,7 +16,10 @@ import {
   type ErrorSource,
   type ReconstructionErrorModel,
 } from "./reconstruction_error_model.ts";
-import { proxyReconstructionErrorModel } from "./proxy_reconstruction_errors.ts";
+import {
+  proxyReconstructionErrorModel,
+  proxyReconstructionVariance,
+} from "./proxy_reconstruction_errors.ts";
 
 /** The parts of a calibrated model a reconstruction needs. */
 export interface ReconstructionModel {
@@ -176,6 +179,23 @@ export interface Reconstruction {
 }
 
 /**
+ * A {@link Reconstruction} without its error model and per-source variances: what
+ * `reconstructFromProxiesMany(models, cells, z, { errorModel: false })` returns.
+ */
+export type LeanReconstruction = Omit<Reconstruction, "components" | "errorModel">;
+
+/** Options of {@link reconstructFromProxiesMany}. */
+export interface ReconstructionOptions {
+  /**
+   * Keep each result's linearised error model and its variances by source; false computes
+   * the total variance block by block without keeping either (values, SDs and intervals
+   * unchanged, bit for bit; a fraction of the memory).
+   * @default true
+   */
+  errorModel?: boolean;
+}
+
+/**
  * Reconstruct TSI per cell: ŷ = xᵀβ with x the cell's regressors (intercept, F_k − F_k,Q,
  * −S_ref·PSI; core/irradiance/proxy_model_evaluation.ts) from the values of
  * {@link reconstructionDesign}, and the predictive variance of the linearised error model
@@ -278,12 +298,18 @@ export function reconstructedValues(
  * model, and their integrals), over the same cells: which proxy value each cell uses
  * ({@link reconstructionDesign}) is decided once and shared by every model with the same
  * back-extension availability. Each result equals what {@link reconstructFromProxies} gives
- * for that model alone, bit for bit.
+ * for that model alone, bit for bit. With `{ errorModel: false }` each result leaves out the
+ * error model and the variances by source ({@link LeanReconstruction}): the total variance is
+ * summed a block of cells at a time (core/irradiance/proxy_reconstruction_errors.ts,
+ * `proxyReconstructionVariance`) with the same operations, so values, SDs and intervals are
+ * the same bit for bit, without keeping about 15 arrays of one value per cell per model.
  *
  * @param models the models: same term roles, quiet levels and S_ref
  * @param cells {@link ReconstructionCells}
  * @param z per model, the quantile for its interval
- * @returns one {@link Reconstruction} per model
+ * @param options {@link ReconstructionOptions}
+ * @returns one {@link Reconstruction} per model ({@link LeanReconstruction} with
+ *   `errorModel: false`)
  * @throws {InputError} as {@link reconstructFromProxies}; (field `models`) when the models'
  *   terms differ, (field `z`) when there is not one quantile per model
  * @example
@@ -299,13 +325,31 @@ export function reconstructedValues(
  *   days: Float64Array.of(31), direct: [Float64Array.of(0.16)], mappings: [null], sunspot: null,
  * }, [1.96, 1.96]);
  * assert.ok(Math.abs(uv.value[0] - 0.7) < 1e-12 && Math.abs(vis.value[0] - 1.82) < 1e-12);
+ * const [lean] = reconstructFromProxiesMany([band(0.5, 20)], {
+ *   days: Float64Array.of(31), direct: [Float64Array.of(0.16)], mappings: [null], sunspot: null,
+ * }, [1.96], { errorModel: false });
+ * assert.equal(lean.sd[0], uv.sd[0]);
+ * assert.ok(!("errorModel" in lean));
  * ```
  */
 export function reconstructFromProxiesMany(
   models: readonly ReconstructionModel[],
   cells: ReconstructionCells,
   z: readonly number[],
-): Reconstruction[] {
+  options?: ReconstructionOptions & { errorModel?: true },
+): Reconstruction[];
+export function reconstructFromProxiesMany(
+  models: readonly ReconstructionModel[],
+  cells: ReconstructionCells,
+  z: readonly number[],
+  options: ReconstructionOptions,
+): LeanReconstruction[];
+export function reconstructFromProxiesMany(
+  models: readonly ReconstructionModel[],
+  cells: ReconstructionCells,
+  z: readonly number[],
+  options: ReconstructionOptions = {},
+): LeanReconstruction[] {
   if (z.length !== models.length) {
     throw new InputError(`Cannot reconstruct: ${z.length} quantiles for ${models.length} models`, {
       field: "z",
@@ -334,7 +378,9 @@ export function reconstructFromProxiesMany(
     const key = model.backExtension !== null;
     let design = designs.get(key);
     if (!design) designs.set(key, design = reconstructionDesign(model, cells));
-    return reconstructWithDesign(model, cells, design, z[j]);
+    return options.errorModel === false
+      ? reconstructLean(model, cells, design, z[j])
+      : reconstructWithDesign(model, cells, design, z[j]);
   });
 }
 
@@ -344,21 +390,60 @@ function reconstructWithDesign(
   design: ReconstructionDesign,
   z: number,
 ): Reconstruction {
-  const K = model.terms.length, n = cells.days.length;
-  const beta = model.coefficients;
   // the regressors are computed once, for the values and for the calibration loadings, into
   // scratch arrays (nothing returned refers to them)
-  const x = model.terms.map((t, k) =>
-    proxyRegressorColumn(t.role, t.quietLevel, model.psiReference, design.values[k], work(K + k, n))
-  );
+  const x = designColumns(model, design, cells.days.length);
   const errorModel = proxyReconstructionErrorModel(model, cells, design, x);
   const v = errorModelVariance(errorModel);
-  const value = new Float64Array(n), sd = new Float64Array(n);
-  const lower = new Float64Array(n), upper = new Float64Array(n);
   // the variances by source are the result's components (NaN where a cell has no value)
   const components = v.bySource;
+  const rec = valuesAndIntervals(model, design, x, v.total, z);
   const bySource = ERROR_SOURCES.map((s) => components[s]);
-  const total = v.total, source = design.source;
+  const source = design.source, n = source.length;
+  for (let i = 0; i < n; i++) {
+    if (source[i] === SOURCE_NONE) { for (const c of bySource) c[i] = NaN; }
+  }
+  const { value, sd, lower, upper } = rec;
+  return { value, sd, lower, upper, source, components, errorModel, design };
+}
+
+/** {@link reconstructWithDesign} without keeping the error model or the variances by source. */
+function reconstructLean(
+  model: ReconstructionModel,
+  cells: ReconstructionCells,
+  design: ReconstructionDesign,
+  z: number,
+): LeanReconstruction {
+  const x = designColumns(model, design, cells.days.length);
+  const total = proxyReconstructionVariance(model, cells, design, x);
+  return valuesAndIntervals(model, design, x, total, z);
+}
+
+/** Per term, its regressor in each cell, in scratch arrays. */
+function designColumns(
+  model: ReconstructionModel,
+  design: ReconstructionDesign,
+  n: number,
+): Float64Array[] {
+  const K = model.terms.length;
+  return model.terms.map((t, k) =>
+    proxyRegressorColumn(t.role, t.quietLevel, model.psiReference, design.values[k], work(K + k, n))
+  );
+}
+
+/** ŷ = xᵀβ, its SD √Var and its interval ŷ ± z·SD per cell (NaN where no value). */
+function valuesAndIntervals(
+  model: ReconstructionModel,
+  design: ReconstructionDesign,
+  x: readonly Float64Array[],
+  total: Float64Array,
+  z: number,
+): LeanReconstruction {
+  const K = model.terms.length, n = design.source.length;
+  const beta = model.coefficients;
+  const value = new Float64Array(n), sd = new Float64Array(n);
+  const lower = new Float64Array(n), upper = new Float64Array(n);
+  const source = design.source;
   // ŷ = β₀ + Σ_k β_k·x_k, added term by term in that order, one pass per term
   value.fill(beta[0]);
   for (let k = 0; k < K; k++) {
@@ -372,7 +457,6 @@ function reconstructWithDesign(
         lower[i] =
         upper[i] =
           NaN;
-      for (const c of bySource) c[i] = NaN;
       continue;
     }
     const y = value[i], s = Math.sqrt(total[i]);
@@ -380,7 +464,7 @@ function reconstructWithDesign(
     lower[i] = y - z * s;
     upper[i] = y + z * s;
   }
-  return { value, sd, lower, upper, source, components, errorModel, design };
+  return { value, sd, lower, upper, source, design };
 }
 
 /** Names of the source codes, in code order. */

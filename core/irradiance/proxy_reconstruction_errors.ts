@@ -9,12 +9,14 @@ import { choleskyLower } from "../stats/multivariate_normal.ts";
 import { proxyRegressorColumn, proxyRegressorScale } from "./proxy_model_evaluation.ts";
 import { sunspotMappingDerivatives } from "./sunspot_proxy_mapping.ts";
 import { mappingCholesky } from "./back_extension.ts";
-import { ar1CellMeans } from "./ar1_cell_means.ts";
+import { type Ar1CellMeans, ar1CellMeans } from "./ar1_cell_means.ts";
 import { scaleErrorLag1 } from "./sunspot_number_uncertainty.ts";
-import type {
-  ErrorFactor,
-  ErrorProcess,
-  ReconstructionErrorModel,
+import {
+  ERROR_SOURCES,
+  type ErrorFactor,
+  type ErrorProcess,
+  type ErrorSource,
+  type ReconstructionErrorModel,
 } from "./reconstruction_error_model.ts";
 import {
   type ReconstructionCells,
@@ -137,20 +139,119 @@ export function proxyReconstructionErrorModel(
   design: ReconstructionDesign,
   regressors: readonly Float64Array[] = designRegressors(model, design),
 ): ReconstructionErrorModel {
-  const n = cells.days.length, K = model.terms.length;
-  const { source } = design;
+  const n = cells.days.length;
   const factors: ErrorFactor[] = [];
   const processes: ErrorProcess[] = [];
+  for (const part of errorParts(model, cells, design, regressors)) {
+    // a process's full lag-1 correlations first: its loading blocks may then reuse them
+    const lag1 = part.lag1?.();
+    const loading = new Float64Array(n);
+    for (let i0 = 0; i0 < n; i0 += BLOCK) {
+      const i1 = Math.min(n, i0 + BLOCK);
+      part.block(loading.subarray(i0, i1), i0, i1);
+    }
+    if (lag1) processes.push({ source: part.source, label: part.label, loading, lag1 });
+    else factors.push({ source: part.source, label: part.label, loading });
+  }
+  return { cells: n, factors, processes };
+}
+
+/**
+ * The total predictive variance of each cell under the error model of
+ * {@link proxyReconstructionErrorModel}, without keeping it: the loadings are computed a block
+ * of cells at a time into scratch arrays, squared and summed by source and then over the
+ * sources, with the same operations in the same order as
+ * `errorModelVariance(proxyReconstructionErrorModel(...)).total`, so the result equals it bit
+ * for bit, with a few blocks of memory in place of the model's loadings (K + 1 calibration
+ * factors, the mappings' factors and up to four processes, each one value per cell).
+ *
+ * @param model the calibrated model
+ * @param cells the cells
+ * @param design the values used
+ * @param regressors per term, the regressor in each cell (default: {@link designRegressors})
+ * @returns Var per cell, W² m-4 (0 where the cell has no value)
+ * @throws {InputError} as {@link proxyReconstructionErrorModel}
+ * @example
+ * ```ts
+ * import {
+ *   proxyReconstructionErrorModel,
+ *   proxyReconstructionVariance,
+ * } from "./proxy_reconstruction_errors.ts";
+ * import { errorModelVariance } from "./reconstruction_error_model.ts";
+ * import assert from "node:assert/strict";
+ * const model = { coefficients: [1360.8, 135], covariance: [[1e-4, 0], [0, 1]],
+ *   terms: [{ role: "facular" as const, quietLevel: 0.15 }], psiReference: 1360.8,
+ *   residualSd: 0.15, rho: 0.6, stepDays: 1, backExtension: null };
+ * const cells = { days: Float64Array.of(1, 31), direct: [Float64Array.of(0.16, 0.17)],
+ *   mappings: [null], sunspot: null };
+ * const design = { source: Uint8Array.of(1, 1), values: [Float64Array.of(0.16, 0.17)],
+ *   mapped: [Uint8Array.of(0, 0)] };
+ * const full = errorModelVariance(proxyReconstructionErrorModel(model, cells, design)).total;
+ * assert.deepEqual(proxyReconstructionVariance(model, cells, design), full);
+ * ```
+ */
+export function proxyReconstructionVariance(
+  model: ReconstructionModel,
+  cells: ReconstructionCells,
+  design: ReconstructionDesign,
+  regressors: readonly Float64Array[] = designRegressors(model, design),
+): Float64Array {
+  const n = cells.days.length;
+  const parts = errorParts(model, cells, design, regressors);
+  // each source's parts in model order, as errorModelVariance sums them
+  const groups = ERROR_SOURCES.map((s) => parts.filter((p) => p.source === s));
+  const sums = ERROR_SOURCES.map(() => new Float64Array(BLOCK));
+  const [calibration, residual, mapping, input] = sums;
+  const loading = new Float64Array(BLOCK), total = new Float64Array(n);
+  for (let i0 = 0; i0 < n; i0 += BLOCK) {
+    const i1 = Math.min(n, i0 + BLOCK), m = i1 - i0;
+    for (let g = 0; g < groups.length; g++) {
+      const out = sums[g];
+      out.fill(0, 0, m);
+      for (const part of groups[g]) {
+        part.block(loading, i0, i1);
+        for (let i = 0; i < m; i++) out[i] += loading[i] * loading[i];
+      }
+    }
+    for (let i = 0; i < m; i++) {
+      total[i0 + i] = 0 + calibration[i] + residual[i] + mapping[i] + input[i];
+    }
+  }
+  return total;
+}
+
+/**
+ * One part of the error model, computed on demand: its loading on cells [i0, i1) written to
+ * out[0 … i1 − i0), and for a process its lag-1 correlations over every cell.
+ */
+interface ErrorPart {
+  source: ErrorSource;
+  label: string;
+  block(out: Float64Array, i0: number, i1: number): void;
+  lag1?: () => Float64Array;
+}
+
+/** The parts of {@link proxyReconstructionErrorModel}, factors first, in model order. */
+function errorParts(
+  model: ReconstructionModel,
+  cells: ReconstructionCells,
+  design: ReconstructionDesign,
+  regressors: readonly Float64Array[],
+): ErrorPart[] {
+  const n = cells.days.length, K = model.terms.length;
+  const { source } = design;
+  const parts: ErrorPart[] = [];
   // calibration: loadings Lᵀx, x = (1, x_1, …, x_K): column j is 0 + Σ_{a ≥ j} x_a·L[a][j],
   // added in that order (x_0 = 1 contributes L[0][0] itself), on the cells with a value
   const L = choleskyLower(model.covariance);
   for (let j = 0; j <= K; j++) {
     const terms = regressors.slice(Math.max(1, j) - 1);
     const weights = terms.map((_, a) => L[Math.max(1, j) + a][j]);
-    factors.push({
+    const init = j === 0 ? 0 + L[0][0] : 0;
+    parts.push({
       source: "calibration",
       label: `calibration coefficients, direction ${j + 1}`,
-      loading: maskedCombination(n, j === 0 ? 0 + L[0][0] : 0, terms, weights, source, 1),
+      block: (out, i0, i1) => maskedCombination(out, i0, i1, init, terms, weights, source, 1),
     });
   }
   // mappings: loadings β_k·s_k·Lᵀg, Lᵀg summed as above, on the cells where term k was mapped
@@ -169,14 +270,14 @@ export function proxyReconstructionErrorModel(
       const from = linear ? Math.max(1, j) : j;
       const terms = g.slice(linear ? from - 1 : from);
       const weights = terms.map((_, a) => Lc[from + a][j]);
-      factors.push({
+      parts.push({
         source: "mapping",
         label: `mapping of term ${k + 1} (${m.form}), parameter direction ${j + 1}`,
-        loading: maskedCombination(n, init, terms, weights, mapped, f),
+        block: (out, i0, i1) => maskedCombination(out, i0, i1, init, terms, weights, mapped, f),
       });
     }
   });
-  // residual processes
+  // residual processes: cell means of AR(1) processes, kept on their source's cells only
   const residual = (
     which: number,
     sd: number,
@@ -184,10 +285,20 @@ export function proxyReconstructionErrorModel(
     stepDays: number,
     label: string,
   ) => {
-    const cm = ar1CellMeans(cells.days, sd, rho, stepDays);
-    const loading = cm.sd; // kept on this source's cells only
-    for (let i = 0; i < n; i++) if (source[i] !== which) loading[i] = 0;
-    processes.push({ source: "residual", label, loading, lag1: cm.lag1 });
+    // the process's parameters are checked now, as for the whole model
+    ar1CellMeans(cells.days.subarray(0, 0), sd, rho, stepDays);
+    let whole: Ar1CellMeans | null = null;
+    parts.push({
+      source: "residual",
+      label,
+      lag1: () => (whole ??= ar1CellMeans(cells.days, sd, rho, stepDays)).lag1,
+      block: (out, i0, i1) => {
+        // a cell's SD depends on its own length only: the block's equals the whole's
+        const s = whole?.sd.subarray(i0, i1) ??
+          blockCellMeanSd(cells.days, i0, i1, sd, rho, stepDays);
+        for (let i = i0; i < i1; i++) out[i - i0] = source[i] === which ? s[i - i0] : 0;
+      },
+    });
   };
   residual(
     SOURCE_DIRECT,
@@ -210,54 +321,78 @@ export function proxyReconstructionErrorModel(
   const u = cells.sunspotUncertainty;
   if (u && source.includes(SOURCE_BACK_EXTENDED)) {
     const sens = sunspotSensitivity(model, cells, design);
-    const correlated = new Float64Array(n), independent = new Float64Array(n);
-    const lag1 = scaleErrorLag1(cells.days, u.correlationYears);
-    for (let i = 0; i < n; i++) {
-      if (source[i] !== SOURCE_BACK_EXTENDED || sens[i] === 0) continue;
-      const c = u.correlated[i], d = u.independent[i];
-      correlated[i] = Number.isFinite(c) ? sens[i] * c : 0;
-      independent[i] = Number.isFinite(d) ? sens[i] * d : 0;
-    }
-    processes.push({
-      source: "input",
-      label: "sunspot number: error correlated over decades (scale)",
-      loading: correlated,
-      lag1,
-    });
-    processes.push({
-      source: "input",
-      label: "sunspot number: error independent between values",
-      loading: independent,
-      lag1: new Float64Array(n),
-    });
+    const input = (values: Float64Array, label: string, lag1: () => Float64Array) =>
+      parts.push({
+        source: "input",
+        label,
+        lag1,
+        block: (out, i0, i1) => {
+          for (let i = i0; i < i1; i++) {
+            const c = values[i];
+            out[i - i0] = source[i] !== SOURCE_BACK_EXTENDED || sens[i] === 0
+              ? 0
+              : Number.isFinite(c)
+              ? sens[i] * c
+              : 0;
+          }
+        },
+      });
+    input(
+      u.correlated,
+      "sunspot number: error correlated over decades (scale)",
+      () => scaleErrorLag1(cells.days, u.correlationYears),
+    );
+    input(
+      u.independent,
+      "sunspot number: error independent between values",
+      () => new Float64Array(n),
+    );
   }
-  return { cells: n, factors, processes };
+  return parts;
 }
 
-/** Cells per block of {@link maskedCombination} (a few columns of 2,048 doubles stay in cache). */
+/**
+ * The SDs of {@link ar1CellMeans} on cells [i0, i1); an invalid cell length is reported as the
+ * whole series reports it (with its index in the series).
+ */
+function blockCellMeanSd(
+  days: Float64Array,
+  i0: number,
+  i1: number,
+  sd: number,
+  rho: number,
+  stepDays: number,
+): Float64Array {
+  try {
+    return ar1CellMeans(days.subarray(i0, i1), sd, rho, stepDays).sd;
+  } catch (e) {
+    ar1CellMeans(days, sd, rho, stepDays);
+    throw e;
+  }
+}
+
+/** Cells per block of the loadings (a few columns of 2,048 doubles stay in cache). */
 const BLOCK = 2048;
 
 /**
- * out[i] = scale·(init + x_0[i]·c_0 + x_1[i]·c_1 + …), added in that order, where mask[i] ≠ 0,
- * and 0 elsewhere; computed in blocks of cells so that each column is read once.
+ * out[i − i0] = scale·(init + x_0[i]·c_0 + x_1[i]·c_1 + …), added in that order, where
+ * mask[i] ≠ 0, and 0 elsewhere, for the cells i of one block [i0, i1).
  */
 function maskedCombination(
-  n: number,
+  out: Float64Array,
+  i0: number,
+  i1: number,
   init: number,
   xs: readonly Float64Array[],
   cs: readonly number[],
   mask: Uint8Array,
   scale: number,
-): Float64Array {
-  const out = new Float64Array(n);
-  for (let i0 = 0; i0 < n; i0 += BLOCK) {
-    const i1 = Math.min(n, i0 + BLOCK);
-    out.fill(init, i0, i1);
-    for (let a = 0; a < xs.length; a++) {
-      const x = xs[a], c = cs[a];
-      for (let i = i0; i < i1; i++) out[i] += x[i] * c;
-    }
-    for (let i = i0; i < i1; i++) out[i] = mask[i] ? scale * out[i] : 0;
+): void {
+  const m = i1 - i0;
+  out.fill(init, 0, m);
+  for (let a = 0; a < xs.length; a++) {
+    const x = xs[a], c = cs[a];
+    for (let i = 0; i < m; i++) out[i] += x[i0 + i] * c;
   }
-  return out;
+  for (let i = 0; i < m; i++) out[i] = mask[i0 + i] ? scale * out[i] : 0;
 }

@@ -5,7 +5,8 @@
  * or Prais–Winsten per band; 5-fold blocked cross-validation; the cross-band residual
  * correlation), then reconstruct 119,000 days (1700–2025) for every band with 95 % prediction
  * intervals, the first half back-extended through linear sunspot mappings, plus the integral
- * over all bands with the correlation of their errors; and the ensemble: 100 realisations of
+ * over all bands with the correlation of their errors (values, SDs and intervals only, as the
+ * spectral reconstruction keeps them: no per-band error model); and the ensemble: 100 realisations of
  * the 119,000-day reconstruction of every band (core/irradiance/spectral_band_ensemble.ts:
  * coefficients and residual processes correlated across bands, the mappings' parameters and
  * the sunspot number's error, σ = 0.1·R + 2 on the back-extended half, shared by all bands),
@@ -169,6 +170,7 @@ export function spectralCase() {
         [...models, integral],
         cells,
         models.map(() => 1.96).concat(1.96),
+        { errorModel: false },
       );
     },
   };

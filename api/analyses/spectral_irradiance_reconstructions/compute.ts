@@ -22,6 +22,7 @@ import {
   differenceModel,
   integrateBandMembers,
   integrateBandModels,
+  type LeanReconstruction,
   predictionQuantile,
   reconstructFromProxies,
   reconstructFromProxiesMany,
@@ -120,6 +121,8 @@ export async function computeSpectralReconstruction(
     model.models,
     input,
     model.stored.bands.map((b) => predictionQuantile(params.level, b.df_residual)),
+    // the bands' values and intervals only: their error models are not read here
+    { errorModel: false },
   );
   const tsi = reconstructFromProxies(
     reconstructionModel(model.tsi),
@@ -448,7 +451,7 @@ function spectrumBlock(
   params: SpectralReconstructionParams,
   model: SpectralModel,
   cells: TargetCells,
-  bands: Reconstruction[],
+  bands: LeanReconstruction[],
   members: MemberBand[] | null,
 ): Result["spectrum"] {
   const units = model.stored.units;
@@ -507,7 +510,7 @@ function significant(x: ArrayLike<number>, n: number): (number | null)[] {
 function variability(
   model: SpectralModel,
   cells: TargetCells,
-  bands: Reconstruction[],
+  bands: LeanReconstruction[],
   tsi: Reconstruction,
 ): Result["variability"] {
   const v = bandCycleVariability(cells.time, bands.map((r) => r.value), tsi.value);
@@ -556,7 +559,7 @@ export function bandFactors(bands: WavelengthBand[], kind: BandValueKind): numbe
 /** What the bands' intervals are made of and what they leave out. */
 function spectralBand(
   params: SpectralReconstructionParams,
-  reference: Reconstruction,
+  reference: LeanReconstruction,
   sunspot: SunspotInput | null,
 ): UncertaintyBand {
   const back = reference.source.includes(SOURCE_BACK_EXTENDED);
