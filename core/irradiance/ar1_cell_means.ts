@@ -56,26 +56,7 @@ export function ar1CellMeans(
   rho: number,
   stepDays: number,
 ): Ar1CellMeans {
-  if (!(sd >= 0) || !Number.isFinite(sd)) {
-    throw new InputError(`Cannot average an AR(1) process: sd must be ≥ 0, got ${sd}`, {
-      field: "sd",
-      reason: "out_of_range",
-      value: sd,
-    });
-  }
-  if (!(rho > -1 && rho < 1)) {
-    throw new InputError(`Cannot average an AR(1) process: rho must be in (-1, 1), got ${rho}`, {
-      field: "rho",
-      reason: "out_of_range",
-      value: rho,
-    });
-  }
-  if (!(stepDays > 0) || !Number.isFinite(stepDays)) {
-    throw new InputError(
-      `Cannot average an AR(1) process: stepDays must be > 0, got ${stepDays}`,
-      { field: "stepDays", reason: "out_of_range", value: stepDays },
-    );
-  }
+  checkAr1(sd, rho, stepDays);
   const n = days.length;
   const out = { sd: new Float64Array(n), lag1: new Float64Array(n) };
   const sdOut = out.sd, lagOut = out.lag1;
@@ -92,17 +73,11 @@ export function ar1CellMeans(
     if (d === lastDays) v = lastVar, s = lastSd;
     else {
       if (!(d > 0) || !Number.isFinite(d)) {
-        throw new InputError(`Cannot average an AR(1) process: cell ${i} has ${d} days`, {
-          field: "days",
-          reason: "out_of_range",
-          index: i,
-          value: d,
-        });
+        throw badCell(i, d);
       }
       let cached = varOf.get(d);
       if (cached === undefined) {
-        const m = steps(d);
-        cached = (sd * sd * ar1MeanVarianceFactor(m, rho)) / m;
+        cached = cellMeanVariance(d, sd, rho, stepDays);
         varOf.set(d, cached);
       }
       v = lastVar = cached;
@@ -131,4 +106,83 @@ export function ar1CellMeans(
     lastD = d;
   }
   return out;
+}
+
+/**
+ * The SDs alone of {@link ar1CellMeans} (each cell's, which depends on its length only), the
+ * same numbers bit for bit, without the lag-1 correlations: for a variance computed a block of
+ * cells at a time (core/irradiance/proxy_reconstruction_errors.ts).
+ *
+ * @param days length of each cell in days (> 0)
+ * @param sd σ, the marginal SD of the process (≥ 0)
+ * @param rho ρ in (−1, 1)
+ * @param stepDays the process' step in days (> 0)
+ * @param into where to write the SDs (default: a new array of `days.length`)
+ * @returns `into`, the SD of each cell's mean
+ * @throws {InputError} as {@link ar1CellMeans} (the index of a bad cell is its index in `days`)
+ * @example
+ * ```ts
+ * import { ar1CellMeans, ar1CellMeanSd } from "./ar1_cell_means.ts";
+ * import assert from "node:assert/strict";
+ * const days = Float64Array.of(31, 28, 31, 1);
+ * assert.deepEqual(ar1CellMeanSd(days, 0.2, 0.6, 1), ar1CellMeans(days, 0.2, 0.6, 1).sd);
+ * ```
+ */
+export function ar1CellMeanSd(
+  days: ArrayLike<number>,
+  sd: number,
+  rho: number,
+  stepDays: number,
+  into: Float64Array = new Float64Array(days.length),
+): Float64Array {
+  checkAr1(sd, rho, stepDays);
+  let lastDays = NaN, lastSd = NaN;
+  for (let i = 0; i < days.length; i++) {
+    const d = days[i];
+    if (d !== lastDays) {
+      if (!(d > 0) || !Number.isFinite(d)) throw badCell(i, d);
+      lastSd = Math.sqrt(cellMeanVariance(d, sd, rho, stepDays));
+      lastDays = d;
+    }
+    into[i] = lastSd;
+  }
+  return into;
+}
+
+/** σ²·f(m, ρ)/m for a cell of d days, m = max(1, d/step) steps. */
+function cellMeanVariance(d: number, sd: number, rho: number, stepDays: number): number {
+  const m = Math.max(1, d / stepDays);
+  return (sd * sd * ar1MeanVarianceFactor(m, rho)) / m;
+}
+
+function badCell(i: number, d: number): InputError {
+  return new InputError(`Cannot average an AR(1) process: cell ${i} has ${d} days`, {
+    field: "days",
+    reason: "out_of_range",
+    index: i,
+    value: d,
+  });
+}
+
+function checkAr1(sd: number, rho: number, stepDays: number): void {
+  if (!(sd >= 0) || !Number.isFinite(sd)) {
+    throw new InputError(`Cannot average an AR(1) process: sd must be ≥ 0, got ${sd}`, {
+      field: "sd",
+      reason: "out_of_range",
+      value: sd,
+    });
+  }
+  if (!(rho > -1 && rho < 1)) {
+    throw new InputError(`Cannot average an AR(1) process: rho must be in (-1, 1), got ${rho}`, {
+      field: "rho",
+      reason: "out_of_range",
+      value: rho,
+    });
+  }
+  if (!(stepDays > 0) || !Number.isFinite(stepDays)) {
+    throw new InputError(
+      `Cannot average an AR(1) process: stepDays must be > 0, got ${stepDays}`,
+      { field: "stepDays", reason: "out_of_range", value: stepDays },
+    );
+  }
 }

@@ -9,7 +9,7 @@ import { choleskyLower } from "../stats/multivariate_normal.ts";
 import { proxyRegressorColumn, proxyRegressorScale } from "./proxy_model_evaluation.ts";
 import { sunspotMappingDerivatives } from "./sunspot_proxy_mapping.ts";
 import { mappingCholesky } from "./back_extension.ts";
-import { type Ar1CellMeans, ar1CellMeans } from "./ar1_cell_means.ts";
+import { type Ar1CellMeans, ar1CellMeans, ar1CellMeanSd } from "./ar1_cell_means.ts";
 import { scaleErrorLag1 } from "./sunspot_number_uncertainty.ts";
 import {
   ERROR_SOURCES,
@@ -286,7 +286,7 @@ function errorParts(
     label: string,
   ) => {
     // the process's parameters are checked now, as for the whole model
-    ar1CellMeans(cells.days.subarray(0, 0), sd, rho, stepDays);
+    ar1CellMeanSd(cells.days.subarray(0, 0), sd, rho, stepDays);
     let whole: Ar1CellMeans | null = null;
     parts.push({
       source: "residual",
@@ -294,9 +294,9 @@ function errorParts(
       lag1: () => (whole ??= ar1CellMeans(cells.days, sd, rho, stepDays)).lag1,
       block: (out, i0, i1) => {
         // a cell's SD depends on its own length only: the block's equals the whole's
-        const s = whole?.sd.subarray(i0, i1) ??
-          blockCellMeanSd(cells.days, i0, i1, sd, rho, stepDays);
-        for (let i = i0; i < i1; i++) out[i - i0] = source[i] === which ? s[i - i0] : 0;
+        if (whole) out.set(whole.sd.subarray(i0, i1));
+        else blockCellMeanSd(cells.days, i0, i1, sd, rho, stepDays, out);
+        for (let i = i0; i < i1; i++) if (source[i] !== which) out[i - i0] = 0;
       },
     });
   };
@@ -352,8 +352,8 @@ function errorParts(
 }
 
 /**
- * The SDs of {@link ar1CellMeans} on cells [i0, i1); an invalid cell length is reported as the
- * whole series reports it (with its index in the series).
+ * The SDs of {@link ar1CellMeanSd} on cells [i0, i1) into out[0 … i1 − i0); an invalid cell
+ * length is reported as the whole series reports it (with its index in the series).
  */
 function blockCellMeanSd(
   days: Float64Array,
@@ -362,11 +362,12 @@ function blockCellMeanSd(
   sd: number,
   rho: number,
   stepDays: number,
-): Float64Array {
+  out: Float64Array,
+): void {
   try {
-    return ar1CellMeans(days.subarray(i0, i1), sd, rho, stepDays).sd;
+    ar1CellMeanSd(days.subarray(i0, i1), sd, rho, stepDays, out);
   } catch (e) {
-    ar1CellMeans(days, sd, rho, stepDays);
+    ar1CellMeanSd(days, sd, rho, stepDays);
     throw e;
   }
 }
@@ -389,6 +390,22 @@ function maskedCombination(
   scale: number,
 ): void {
   const m = i1 - i0;
+  // one and two columns (the usual terms and mapping parameters) in one pass per cell; the
+  // operations on each cell are the same as the general passes below
+  if (xs.length === 1) {
+    const x = xs[0], c = cs[0];
+    for (let i = 0; i < m; i++) {
+      out[i] = mask[i0 + i] ? scale * (init + x[i0 + i] * c) : 0;
+    }
+    return;
+  }
+  if (xs.length === 2) {
+    const x = xs[0], c = cs[0], y = xs[1], d = cs[1];
+    for (let i = 0; i < m; i++) {
+      out[i] = mask[i0 + i] ? scale * (init + x[i0 + i] * c + y[i0 + i] * d) : 0;
+    }
+    return;
+  }
   out.fill(init, 0, m);
   for (let a = 0; a < xs.length; a++) {
     const x = xs[a], c = cs[a];
