@@ -146,8 +146,12 @@ export function calibrateBandModels(
       })
     );
   const residuals = fits.map((f, b) => {
-    const r = new Float64Array(n).fill(NaN);
-    cells[b].forEach((i, j) => (r[i] = f.residuals[j]));
+    const r = new Float64Array(n), c = cells[b], e = f.residuals;
+    if (c.length === n) r.set(e);
+    else {
+      r.fill(NaN);
+      for (let j = 0; j < c.length; j++) r[c[j]] = e[j];
+    }
     return r;
   });
   const correlation = options.crossCorrelation === false
@@ -180,15 +184,16 @@ function usableCells(y: ArrayLike<number>, n: number, p: number, b: number): Int
       { field: "bands", reason: "length_mismatch", index: b, value: y.length },
     );
   }
-  const idx: number[] = [];
-  let lo = Infinity, hi = -Infinity;
+  const all = new Int32Array(n);
+  let count = 0, lo = Infinity, hi = -Infinity;
   for (let i = 0; i < n; i++) {
     const v = y[i];
     if (!Number.isFinite(v)) continue;
-    idx.push(i);
+    all[count++] = i;
     if (v < lo) lo = v;
     if (v > hi) hi = v;
   }
+  const idx = count === n ? all : all.slice(0, count);
   if (idx.length < p + 2) {
     throw new InputError(
       `Cannot calibrate band models: band ${b} has ${idx.length} cells with a value and every proxy; the model has ${p} coefficients and needs at least ${
@@ -208,7 +213,7 @@ function usableCells(y: ArrayLike<number>, n: number, p: number, b: number): Int
       { field: "bands", reason: "constant", index: b, value: lo },
     );
   }
-  return Int32Array.from(idx);
+  return idx;
 }
 
 /** Run f; an InputError about the response ("tsi") is re-addressed to band b. */
