@@ -162,9 +162,11 @@ export function calibrateBandModels(
 
 /** OLS fits of every band on the one design, and their cross-validation, factorised once. */
 function sharedOlsFits(design: ProxyDesign, ys: Float64Array[], folds: number): ProxyModelFit[] {
-  // the folds need only coefficients: one factorisation per fold, no fit statistics
+  // the folds need only coefficients: one factorisation per fold, no fit statistics; it
+  // works in place on the fold's training copies (work arrays the folds refill and never
+  // read back), which saves copying every band per fold
   const coefficientsOnly = (c: Float64Array[], y: Float64Array[]) =>
-    leastSquaresQrMany([new Float64Array(y[0].length).fill(1), ...c], y).coefficients.map(
+    leastSquaresQrMany([new Float64Array(y[0].length).fill(1), ...c], y, true).coefficients.map(
       (coefficients) => ({ coefficients, intercept: true }),
     );
   const n = ys[0].length;
