@@ -118,15 +118,18 @@ export function blockedCrossValidationMany(
     };
     const trainCols = columns.map((c, q) => cut(c, q));
     const fits = fitMany(trainCols, ys.map((y, r) => cut(y, columns.length + r)));
+    // the predictions column by column (each in the order of the columns, as one at a time)
+    const pred = new Float64Array(b - a);
     ys.forEach((y, r) => {
       const beta = fits[r].coefficients;
       const off = fits[r].intercept ? 1 : 0;
-      let s = 0;
-      for (let i = a; i < b; i++) {
-        let pred = off ? beta[0] : 0;
-        for (let c = 0; c < columns.length; c++) pred += beta[c + off] * columns[c][i];
-        s += (y[i] - pred) ** 2;
+      pred.fill(off ? beta[0] : 0);
+      for (let c = 0; c < columns.length; c++) {
+        const x = columns[c], bc = beta[c + off];
+        for (let i = a; i < b; i++) pred[i - a] += bc * x[i];
       }
+      let s = 0;
+      for (let i = a; i < b; i++) s += (y[i] - pred[i - a]) ** 2;
       sse[r] += s;
       foldRmse[r].push(Math.sqrt(s / (b - a)));
     });

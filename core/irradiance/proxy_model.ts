@@ -290,6 +290,8 @@ export function proxyModelFit(
 ): ProxyModelFit {
   const rho = "rho" in fit ? (fit as { rho: number }).rho : fit.residualLag1;
   const residualSd = method === "ols" ? fit.sigma : fit.sigma / Math.sqrt(1 - rho * rho);
+  const fitted = new Float64Array(y.length), e = fit.residuals;
+  for (let i = 0; i < y.length; i++) fitted[i] = y[i] - e[i];
   return {
     method,
     names: fit.names,
@@ -321,7 +323,7 @@ export function proxyModelFit(
     collinearity: design.collinearity,
     crossValidation: cv,
     residuals: fit.residuals,
-    fitted: y.map((v, i) => v - fit.residuals[i]),
+    fitted,
   };
 }
 

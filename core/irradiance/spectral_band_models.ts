@@ -146,8 +146,12 @@ export function calibrateBandModels(
       })
     );
   const residuals = fits.map((f, b) => {
-    const r = new Float64Array(n).fill(NaN);
-    cells[b].forEach((i, j) => (r[i] = f.residuals[j]));
+    const r = new Float64Array(n), c = cells[b], e = f.residuals;
+    if (c.length === n) r.set(e);
+    else {
+      r.fill(NaN);
+      for (let j = 0; j < c.length; j++) r[c[j]] = e[j];
+    }
     return r;
   });
   const correlation = options.crossCorrelation === false
@@ -158,9 +162,11 @@ export function calibrateBandModels(
 
 /** OLS fits of every band on the one design, and their cross-validation, factorised once. */
 function sharedOlsFits(design: ProxyDesign, ys: Float64Array[], folds: number): ProxyModelFit[] {
-  // the folds need only coefficients: one factorisation per fold, no fit statistics
+  // the folds need only coefficients: one factorisation per fold, no fit statistics; it
+  // works in place on the fold's training copies (work arrays the folds refill and never
+  // read back), which saves copying every band per fold
   const coefficientsOnly = (c: Float64Array[], y: Float64Array[]) =>
-    leastSquaresQrMany([new Float64Array(y[0].length).fill(1), ...c], y).coefficients.map(
+    leastSquaresQrMany([new Float64Array(y[0].length).fill(1), ...c], y, true).coefficients.map(
       (coefficients) => ({ coefficients, intercept: true }),
     );
   const n = ys[0].length;
@@ -180,15 +186,16 @@ function usableCells(y: ArrayLike<number>, n: number, p: number, b: number): Int
       { field: "bands", reason: "length_mismatch", index: b, value: y.length },
     );
   }
-  const idx: number[] = [];
-  let lo = Infinity, hi = -Infinity;
+  const all = new Int32Array(n);
+  let count = 0, lo = Infinity, hi = -Infinity;
   for (let i = 0; i < n; i++) {
     const v = y[i];
     if (!Number.isFinite(v)) continue;
-    idx.push(i);
+    all[count++] = i;
     if (v < lo) lo = v;
     if (v > hi) hi = v;
   }
+  const idx = count === n ? all : all.slice(0, count);
   if (idx.length < p + 2) {
     throw new InputError(
       `Cannot calibrate band models: band ${b} has ${idx.length} cells with a value and every proxy; the model has ${p} coefficients and needs at least ${
@@ -208,7 +215,7 @@ function usableCells(y: ArrayLike<number>, n: number, p: number, b: number): Int
       { field: "bands", reason: "constant", index: b, value: lo },
     );
   }
-  return Int32Array.from(idx);
+  return idx;
 }
 
 /** Run f; an InputError about the response ("tsi") is re-addressed to band b. */

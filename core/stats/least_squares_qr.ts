@@ -198,9 +198,12 @@ export function householderR(
 }
 
 /**
- * {@link householderR} for several right-hand sides: each reflection is applied to the later
- * columns and every response in the same fused passes, each column's sums in the order of the
- * one-column loops (so each response's Qᵀy is what it would be alone).
+ * {@link householderR} for several right-hand sides: the design is factorised first (each
+ * reflection applied to the later columns in fused passes), then all reflections are applied
+ * to two responses at a time while they are in the processor's cache, each column's sums in
+ * the order of the one-column loops (so each response's Qᵀy is what it would be alone, bit
+ * for bit), rather than each reflection to every response in turn, which streams all the
+ * responses from memory twice per reflection.
  */
 function householderRMany(
   columns: readonly Float64Array[],
@@ -216,14 +219,16 @@ function householderRMany(
   // reflection updates the column
   let nextScale = 0;
   for (let i = 0; i < n; i++) nextScale = Math.max(nextScale, Math.abs(a[0][i]));
-  const f = new Float64Array(p + qtys.length);
+  const f = new Float64Array(p);
+  // per reflection, vᵀv (0: no reflection)
+  const vtvs = new Float64Array(p);
   for (let k = 0; k < p; k++) {
     const ak = a[k];
     let norm = 0;
     // scaled 2-norm to avoid overflow
     const scale = nextScale;
     nextScale = 0;
-    const rest: Float64Array[] = [...a.slice(k + 1), ...qtys];
+    const rest: Float64Array[] = a.slice(k + 1);
     if (scale === 0) {
       diag[k] = 0;
       if (k + 1 < p) {
@@ -242,6 +247,7 @@ function householderRMany(
     ak[k] = x0 - alpha;
     const vtv = 2 * norm * (norm + Math.abs(x0));
     diag[k] = alpha;
+    vtvs[k] = vtv;
     if (vtv === 0) {
       if (k + 1 < p) {
         for (let i = k + 1; i < n; i++) nextScale = Math.max(nextScale, Math.abs(a[k + 1][i]));
@@ -253,6 +259,19 @@ function householderRMany(
     dotProducts(ak, rest, k, n, f);
     for (let j = 0; j < rest.length; j++) f[j] = (2 * f[j]) / vtv;
     nextScale = applyReflection(ak, rest, k, n, f, k + 1 < p);
+  }
+  // Qᵀy: every reflection (v_k in a[k][k..n)) applied to two responses at a time, while they
+  // are in the processor's cache
+  const pair = new Float64Array(2);
+  for (let r = 0; r < qtys.length; r += 2) {
+    const ys2 = qtys.slice(r, r + 2);
+    for (let k = 0; k < p; k++) {
+      const vtv = vtvs[k];
+      if (vtv === 0) continue;
+      dotProducts(a[k], ys2, k, n, pair);
+      for (let j = 0; j < ys2.length; j++) pair[j] = (2 * pair[j]) / vtv;
+      applyReflection(a[k], ys2, k, n, pair, false);
+    }
   }
   const r: number[][] = [];
   for (let i = 0; i < p; i++) {

@@ -21,5 +21,6 @@ export * from "./residual_lag1.ts";
 export * from "./multivariate_normal.ts";
 export * from "./ensemble_summary.ts";
 export * from "./coefficient_of_determination.ts";
+export * from "./gram_matrix.ts";
 export * from "./residual_cross_correlation.ts";
 export * from "./work_arrays.ts";

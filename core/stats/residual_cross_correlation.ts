@@ -5,6 +5,7 @@
  * @module
  */
 import { InputError } from "../errors.ts";
+import { gramMatrix } from "./gram_matrix.ts";
 
 /** Result of {@link residualCrossCorrelation}. */
 export interface ResidualCrossCorrelation {
@@ -17,51 +18,6 @@ export interface ResidualCrossCorrelation {
   lag1: number[][];
   /** Number of common points used. */
   n: number;
-}
-
-/**
- * The Gram matrix G_ij = Σ_t a_i(t) a_j(t) of m columns of length n (symmetric), four columns
- * of the lower triangle at a time so each pass over a_i serves four products.
- *
- * @param columns m columns of equal length
- * @returns G (m×m rows)
- * @example
- * ```ts
- * import { gramMatrix } from "./residual_cross_correlation.ts";
- * import assert from "node:assert/strict";
- * assert.deepEqual(gramMatrix([Float64Array.of(1, 2), Float64Array.of(3, 4)]), [[5, 11], [11, 25]]);
- * ```
- */
-export function gramMatrix(columns: readonly Float64Array[]): number[][] {
-  const m = columns.length;
-  const g: number[][] = Array.from({ length: m }, () => new Array<number>(m).fill(0));
-  const n = m === 0 ? 0 : columns[0].length;
-  for (let i = 0; i < m; i++) {
-    const a = columns[i];
-    let j = 0;
-    for (; j + 3 <= i; j += 4) {
-      const b0 = columns[j], b1 = columns[j + 1], b2 = columns[j + 2], b3 = columns[j + 3];
-      let s0 = 0, s1 = 0, s2 = 0, s3 = 0;
-      for (let t = 0; t < n; t++) {
-        const v = a[t];
-        s0 += v * b0[t];
-        s1 += v * b1[t];
-        s2 += v * b2[t];
-        s3 += v * b3[t];
-      }
-      g[i][j] = g[j][i] = s0;
-      g[i][j + 1] = g[j + 1][i] = s1;
-      g[i][j + 2] = g[j + 2][i] = s2;
-      g[i][j + 3] = g[j + 3][i] = s3;
-    }
-    for (; j <= i; j++) {
-      const b = columns[j];
-      let s = 0;
-      for (let t = 0; t < n; t++) s += a[t] * b[t];
-      g[i][j] = g[j][i] = s;
-    }
-  }
-  return g;
 }
 
 /**
@@ -113,11 +69,13 @@ export function residualCrossCorrelation(
   for (const r of residuals) {
     for (let t = 0; t < len; t++) if (!Number.isFinite(r[t])) usable[t] = 0;
   }
-  const common: number[] = [];
-  for (let t = 0; t < len; t++) if (usable[t]) common.push(t);
-  const n = common.length;
+  const common = new Int32Array(len);
+  let n = 0;
+  for (let t = 0; t < len; t++) if (usable[t]) common[n++] = t;
   if (n < Math.max(2, minPoints)) return null;
   const e = residuals.map((r) => {
+    // every point common: the series itself (read only)
+    if (n === len && r instanceof Float64Array) return r;
     const x = new Float64Array(n);
     for (let j = 0; j < n; j++) x[j] = r[common[j]];
     return x;
