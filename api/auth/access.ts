@@ -6,7 +6,7 @@
  *
  * @module
  */
-import type { Holding, Store } from "../store/types.ts";
+import type { Holding, HoldingRef, Store, Viewer } from "../store/types.ts";
 import { ProblemError } from "../problems.ts";
 import { type Principal, viewerOf } from "./principal.ts";
 
@@ -15,6 +15,23 @@ export async function mustSeeSeries(store: Store, p: Principal, id: string): Pro
   const h = await store.seriesHolding(id, viewerOf(p));
   if (!h) throw new ProblemError("not-found", `No series has id ${id}`);
   return h;
+}
+
+/**
+ * The holdings through which `viewer` sees several items, in order (null where it sees none):
+ * one access check where the store answers several at once, else one per item.
+ */
+export function holdingsOf(
+  store: Store,
+  items: readonly HoldingRef[],
+  viewer: Viewer,
+): Promise<(Holding | null)[]> {
+  if (store.holdings) return store.holdings(items, viewer);
+  return Promise.all(
+    items.map((it) =>
+      it.kind === "run" ? store.runHolding(it.id, viewer) : store.seriesHolding(it.id, viewer)
+    ),
+  );
 }
 
 /** The holding through which the caller sees the run; 404 when it sees none. */

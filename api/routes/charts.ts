@@ -12,7 +12,7 @@ import type { Store, StoredSeries } from "../store/types.ts";
 import { ProblemError } from "../problems.ts";
 import { principalOf } from "../auth/authenticate.ts";
 import { viewerOf } from "../auth/principal.ts";
-import { mustSeeRun, mustSeeSeries, sharedCacheable } from "../auth/access.ts";
+import { holdingsOf, mustSeeSeries, sharedCacheable } from "../auth/access.ts";
 import { RunIdString } from "../schemas/ids.ts";
 import { problems } from "../schemas/common.ts";
 import {
@@ -205,14 +205,15 @@ export function registerChartRoutes(
       const view: string | undefined = query.view;
       // A succeeded run never changes: its chart is found by run id, query and view alone, once
       // the caller is known to see the run. The inputs it draws are those the caller may see.
+      // One access check asks for the run and for the inputs drawn into its cached chart.
       const principal = principalOf(c);
-      const holding = await mustSeeRun(store, principal, id);
       const key = `run-${id}-${optionsKey(opts)}-${view ?? ""}`;
       const viewer = viewerOf(principal);
       let rep = cache.get(key);
-      for (const sid of rep?.requires ?? []) {
-        if (!(await store.seriesHolding(sid, viewer))) rep = undefined;
-      }
+      const held = await holdingsOf(store, [{ kind: "run", id }, ...(rep?.requires ?? [])], viewer);
+      const holding = held[0];
+      if (!holding) throw new ProblemError("not-found", `No run has id ${id}`);
+      for (let i = 1; i < held.length; i++) if (!held[i]) rep = undefined;
       let cacheable = true;
       if (!rep) {
         const run = await store.getRun(id);
@@ -253,7 +254,10 @@ export function registerChartRoutes(
           ...opts,
           idPrefix: "r" + shortHash(etag),
         });
-        rep = { ...svgRepresentation(svg, etag), requires: inputs.map((s) => s.id) };
+        rep = {
+          ...svgRepresentation(svg, etag),
+          requires: inputs.map((s) => ({ kind: "series", id: s.id })),
+        };
         if (cacheable) cache.set(key, rep);
       }
       return serveRepresentation(c, rep, sharedCacheable(principalOf(c), holding));

@@ -15,6 +15,7 @@
  */
 import type { Context } from "hono";
 import { immutableHeaders } from "./cache.ts";
+import type { HoldingRef } from "../store/types.ts";
 
 export interface CachedRepresentation {
   /** Strong entity tag, quoted. */
@@ -26,8 +27,13 @@ export interface CachedRepresentation {
   gzip?: Promise<Uint8Array<ArrayBuffer>>;
   /** Told the size of the gzip-coded body once it is made (set by the cache holding it). */
   onGzip?: (bytes: number) => void;
-  /** Series drawn into it: served from the cache only to callers who may see them all. */
-  requires?: string[];
+  /**
+   * Series drawn into it, as the items of one access check (`holdingsOf`): served from the
+   * cache only to callers who may see them all.
+   */
+  requires?: HoldingRef[];
+  /** Response headers of each variant, made on first use (see `serveRepresentation`). */
+  variantHeaders?: Record<string, string>[];
 }
 
 /** Bodies smaller than this are sent as they are. */
@@ -144,21 +150,41 @@ export async function serveRepresentation(
   const requestId = (c.get("requestId" as never) as string | undefined) ?? "";
   const gz = r.body.byteLength >= GZIP_MIN_BYTES && acceptsGzip(c.req.header("accept-encoding"));
   const etag = gz ? gzipTag(r.etag) : r.etag;
-  const vary = [r.headers.Vary, r.body.byteLength >= GZIP_MIN_BYTES ? "Accept-Encoding" : ""]
-    .filter(Boolean).join(", ");
-  const common: Record<string, string> = {
-    ...immutableHeaders(etag, shared),
-    "X-Request-Id": requestId,
-    ...(vary ? { Vary: vary } : {}),
-  };
-  if (matchesIfNoneMatch(c, etag)) return new Response(null, { status: 304, headers: common });
-  if (!gz) return new Response(r.body, { status: 200, headers: { ...r.headers, ...common } });
+  const notModified = matchesIfNoneMatch(c, etag);
+  // a copy of the variant's headers made once: the same keys in the same order, so V8 clones
+  // it in one step; only the request id differs from one response to the next
+  const headers = { ...headersOf(r, gz, shared, notModified) };
+  headers["X-Request-Id"] = requestId;
+  if (notModified) return new Response(null, { status: 304, headers });
+  if (!gz) return new Response(r.body, { status: 200, headers });
   if (!r.gzip) {
     r.gzip = gzipBytes(r.body);
     r.gzip.then((g) => r.onGzip?.(g.byteLength), () => {});
   }
-  return new Response(await r.gzip, {
-    status: 200,
-    headers: { ...r.headers, ...common, "Content-Encoding": "gzip" },
-  });
+  return new Response(await r.gzip, { status: 200, headers });
+}
+
+/**
+ * The headers of one variant of a representation (gzip-coded or not, shared or not, 304 or
+ * 200), with an empty `X-Request-Id` in its place, made on first use and kept with it.
+ */
+function headersOf(
+  r: CachedRepresentation,
+  gz: boolean,
+  shared: boolean,
+  notModified: boolean,
+): Record<string, string> {
+  const i = (gz ? 4 : 0) | (shared ? 2 : 0) | (notModified ? 1 : 0);
+  const made = (r.variantHeaders ??= [])[i];
+  if (made) return made;
+  const vary = [r.headers.Vary, r.body.byteLength >= GZIP_MIN_BYTES ? "Accept-Encoding" : ""]
+    .filter(Boolean).join(", ");
+  const common: Record<string, string> = {
+    ...immutableHeaders(gz ? gzipTag(r.etag) : r.etag, shared),
+    "X-Request-Id": "",
+    ...(vary ? { Vary: vary } : {}),
+  };
+  return r.variantHeaders[i] = notModified
+    ? common
+    : { ...r.headers, ...common, ...(gz ? { "Content-Encoding": "gzip" } : {}) };
 }

@@ -33,6 +33,7 @@ import type {
   ApiKeyRecord,
   HolderSpec,
   Holding,
+  HoldingRef,
   OwnerRecord,
   Page,
   RunRecord,
@@ -554,15 +555,32 @@ export class SqliteStore implements Store {
     return settle(() => this.#holding("run_holdings", "run_id", id, viewer));
   }
 
+  holdings(items: readonly HoldingRef[], viewer: Viewer): Promise<(Holding | null)[]> {
+    return settle(() => {
+      this.#checkHoldingsVersion();
+      return items.map((it) =>
+        it.kind === "run"
+          ? this.#remembered("run_holdings", "run_id", it.id, viewer)
+          : this.#remembered("series_holdings", "series_id", it.id, viewer)
+      );
+    });
+  }
+
   /**
    * The holding through which `viewer` sees an item: every GET and 304 asks, so answers are
    * remembered until the database changes in any way. `total_changes()` counts this
    * connection's writes and `data_version` changes when another connection commits (another
    * process, the series writer), so a visibility, holding or group change anywhere is seen by
    * the next check. Asking for both is one statement on no table (a few µs); the visibility
-   * query it saves joins holdings and owners.
+   * query it saves joins holdings and owners. `holdings` asks it once for several items.
    */
   #holding(table: string, key: string, id: string, viewer: Viewer): Holding | null {
+    this.#checkHoldingsVersion();
+    return this.#remembered(table, key, id, viewer);
+  }
+
+  /** Forget remembered holdings when the database changed since the last check. */
+  #checkHoldingsVersion(): void {
     const v = this.#stmt(
       "SELECT total_changes() AS t, data_version AS d FROM pragma_data_version",
     ).get() as Row;
@@ -571,6 +589,10 @@ export class SqliteStore implements Store {
       this.#holdings.clear();
       this.#holdingsVersion = version;
     }
+  }
+
+  /** The holding, from what is remembered since the last version check or else queried. */
+  #remembered(table: string, key: string, id: string, viewer: Viewer): Holding | null {
     const k = `${table}\u0000${id}\u0000${viewer.admin ? 1 : 0}\u0000${viewer.owner ?? ""}\u0000${
       viewer.group ?? ""
     }`;

@@ -32,6 +32,12 @@ export interface Viewer {
 }
 
 /** One owner's claim on a series or run: who holds it, who may see it, since when. */
+/** An item whose holding is asked for: a run or a series, by id. */
+export interface HoldingRef {
+  kind: "run" | "series";
+  id: string;
+}
+
 export interface Holding {
   owner: string;
   visibility: Visibility;
@@ -219,6 +225,12 @@ export interface Store extends FieldStore {
   getRun(id: string): Promise<RunRecord | null>;
   /** The holding through which `viewer` sees the run (its own first), or null. */
   runHolding(id: string, viewer: Viewer): Promise<Holding | null>;
+  /**
+   * The holdings through which `viewer` sees several items, in order (null where it sees
+   * none), answered as one access check: what `runHolding`/`seriesHolding` answer one by one.
+   * Optional: callers fall back to one check per item (see `api/auth/access.ts`).
+   */
+  holdings?(items: readonly HoldingRef[], viewer: Viewer): Promise<(Holding | null)[]>;
   /** Change the visibility of `owner`'s holding of a run; false when it holds none. */
   setRunVisibility(id: string, owner: string, visibility: Visibility): Promise<boolean>;
   /** Newest first; with a viewer, only the runs it may see. */

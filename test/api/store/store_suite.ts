@@ -21,6 +21,7 @@ import {
   TerminalRunError,
 } from "../../../api/store/errors.ts";
 import { fieldStoreSuite } from "./field_store_suite.ts";
+import { holdingsOf } from "../../../api/auth/access.ts";
 
 /** Where an adapter's data lives for one test. */
 export interface StoreBacking {
@@ -902,6 +903,53 @@ export function storeSuite(
         assert.equal(await store.runHolding(r.id, viewer("analyst_b")), null);
         assert.equal(await store.setSeriesVisibility(x.id, "analyst_a", "public"), true);
         assert.ok(await store.seriesHolding(x.id, viewer(null)));
+      } finally {
+        if (other !== store) await other.close();
+      }
+    },
+  );
+
+  withStore(
+    "holdingsOf() answers a run and series together as one by one, and sees changes at once",
+    async (store, b) => {
+      await addOwners(store);
+      const other = b.shared ? await b.open() : store;
+      try {
+        const x = makeSeries("together-x"), y = makeSeries("together-y");
+        await store.putSeries(x, { owner: "analyst_a", visibility: "public" });
+        await store.putSeries(y, { owner: "analyst_a", visibility: "private" });
+        const r = makeRun("together", { inputSeries: [x.id, y.id] });
+        await store.putRun(r, { owner: "analyst_a", visibility: "group" });
+        const items = [
+          { kind: "run", id: r.id },
+          { kind: "series", id: x.id },
+          { kind: "series", id: y.id },
+          { kind: "series", id: seriesId("nobody-holds") },
+        ] as const;
+        for (const v of [viewer("analyst_a"), viewer("analyst_b"), viewer(null), ADMIN]) {
+          const oneByOne = [
+            await store.runHolding(r.id, v),
+            await store.seriesHolding(x.id, v),
+            await store.seriesHolding(y.id, v),
+            null,
+          ];
+          assert.deepEqual(await holdingsOf(store, items, v), oneByOne);
+        }
+        assert.deepEqual(
+          (await holdingsOf(store, items, viewer("analyst_b"))).map((h) => h !== null),
+          [true, true, false, false],
+        );
+        assert.equal(await other.setSeriesVisibility(x.id, "analyst_a", "private"), true);
+        assert.equal(await other.setRunVisibility(r.id, "analyst_a", "private"), true);
+        assert.deepEqual(
+          (await holdingsOf(store, items, viewer("analyst_b"))).map((h) => h !== null),
+          [false, false, false, false],
+        );
+        assert.equal(await store.setSeriesVisibility(y.id, "analyst_a", "public"), true);
+        assert.deepEqual(
+          (await holdingsOf(store, items, viewer(null))).map((h) => h !== null),
+          [false, false, true, false],
+        );
       } finally {
         if (other !== store) await other.close();
       }
