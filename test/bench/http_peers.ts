@@ -23,8 +23,7 @@
  *
  * @module
  */
-import { demoFileEntries } from "../../api/demo.ts";
-import { periodKeyRange, periodSequence } from "../../core/series/mod.ts";
+import { dailySpots, demoIds, months3000 } from "./http_bench_inputs.ts";
 import { makeTestApp, type TestService } from "../api/helpers.ts";
 import { RUN_KINDS } from "../../api/analyses/registry.ts";
 import { makeContext } from "../../api/runs/service.ts";
@@ -171,53 +170,7 @@ async function post(base: string, path: string, body: unknown, headers = {}) {
   return json;
 }
 
-/** Demo ids by file name, from the committed demo (content ids are stable). */
-async function demoIds(base: string): Promise<Record<string, string>> {
-  const entries = await demoFileEntries();
-  const list = await (await fetch(`${base}/v1/series?limit=200`)).json();
-  const out: Record<string, string> = {};
-  for (const e of entries) {
-    const hit = list.items.find((s: { name: string }) => s.name === e.upload.name);
-    if (hit) out[e.file] = hit.id;
-  }
-  return out;
-}
-
 // ---- request bodies -------------------------------------------------------------------------
-
-/** 3,000 months of an invented activity record (as test/bench/cycles_case.ts). */
-function months3000() {
-  const time: string[] = [], value: number[] = [];
-  for (let i = 0; i < 3000; i++) {
-    time.push(`${1750 + Math.floor(i / 12)}-${String((i % 12) + 1).padStart(2, "0")}`);
-    const cyc = 0.5 - 0.5 * Math.cos((2 * Math.PI * i) / 131);
-    const amp = 120 + 60 * Math.sin((2 * Math.PI * i) / 1000);
-    value.push(Math.max(0, amp * cyc ** 1.5 + 15 * Math.sin(0.7331 * i) * Math.sin(1.913 * i)));
-  }
-  return {
-    name: "bench months",
-    quantity: "sunspot_number",
-    units: "1",
-    version: "2",
-    time,
-    value,
-  };
-}
-
-/** Synthetic (invented) daily sunspot numbers 1610–2029 with an 11-year cycle. */
-function dailySpots(phase = 0) {
-  const days = periodKeyRange(1610, 2030, "daily");
-  const time = Array.from(periodSequence(days.first, days.last, "daily").middle);
-  const value = time.map((t) => Math.max(0, 100 * (1 + Math.sin((2 * Math.PI * t) / 11 + phase))));
-  return {
-    name: `bench daily sunspots ${phase}`,
-    quantity: "sunspot_number",
-    units: "1",
-    version: "2",
-    time,
-    value,
-  };
-}
 
 interface ReconstructionInputs {
   model: Record<string, unknown>;

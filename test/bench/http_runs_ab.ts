@@ -10,8 +10,8 @@
  *
  * @module
  */
-import { periodKeyRange, periodSequence } from "../../core/series/mod.ts";
-import { demoFileEntries } from "../../api/demo.ts";
+import { dailySpots, demoIds, months3000 } from "./http_bench_inputs.ts";
+import { spawnService } from "./spawn_service.ts";
 import { sha256Hex } from "../../api/canonical.ts";
 
 const args = Deno.args;
@@ -28,37 +28,17 @@ const median = (xs: number[]) => {
   return a.length % 2 ? a[(a.length - 1) / 2] : (a[a.length / 2 - 1] + a[a.length / 2]) / 2;
 };
 
+/** The service of checkout `root` as `deno task start` runs it, on a SQLite file of its own. */
 async function start(root: string, port: number) {
   const dir = await Deno.makeTempDir({ prefix: "sunlag-ab-" });
-  const child = new Deno.Command(Deno.execPath(), {
-    args: ["run", "-A", "api/main.ts"],
-    cwd: root,
-    env: {
-      PORT: String(port),
-      HOST: "127.0.0.1",
-      SUNLAG_STORE: `sqlite:${dir}/sunlag.db`,
-      SUNLAG_LOG: "0",
-    },
-    stdout: "null",
-    stderr: "inherit",
-  }).spawn();
-  const base = `http://127.0.0.1:${port}`;
-  for (let k = 0; k < 1200; k++) {
-    try {
-      const r = await fetch(`${base}/v1/health`);
-      await r.body?.cancel();
-      if (r.ok) break;
-    } catch {
-      // not up yet
-    }
-    await new Promise((r) => setTimeout(r, 100));
-  }
+  const svc = await spawnService(root, port, {
+    HOST: "127.0.0.1",
+    SUNLAG_STORE: `sqlite:${dir}/sunlag.db`,
+  });
   return {
-    base,
-    pid: child.pid,
+    ...svc,
     async stop() {
-      child.kill("SIGTERM");
-      await child.status;
+      await svc.stop();
       await Deno.remove(dir, { recursive: true });
     },
   };
@@ -77,41 +57,11 @@ async function post(base: string, path: string, body: unknown) {
   return { ms, json: JSON.parse(text) };
 }
 
-/** Demo series ids by file name (the committed demo: the same content ids in both). */
-async function ids(base: string): Promise<Record<string, string>> {
-  const entries = await demoFileEntries();
-  const list = await (await fetch(`${base}/v1/series?limit=200`)).json();
-  const out: Record<string, string> = {};
-  for (const e of entries) {
-    const hit = list.items.find((s: { name: string }) => s.name === e.upload.name);
-    if (hit) out[e.file] = hit.id;
-  }
-  return out;
-}
-
-function months3000() {
-  const time: string[] = [], value: number[] = [];
-  for (let i = 0; i < 3000; i++) {
-    time.push(`${1750 + Math.floor(i / 12)}-${String((i % 12) + 1).padStart(2, "0")}`);
-    const cyc = 0.5 - 0.5 * Math.cos((2 * Math.PI * i) / 131);
-    const amp = 120 + 60 * Math.sin((2 * Math.PI * i) / 1000);
-    value.push(Math.max(0, amp * cyc ** 1.5 + 15 * Math.sin(0.7331 * i) * Math.sin(1.913 * i)));
-  }
-  return { name: "ab months", quantity: "sunspot_number", units: "1", version: "2", time, value };
-}
-
-function dailySpots() {
-  const days = periodKeyRange(1610, 2030, "daily");
-  const time = Array.from(periodSequence(days.first, days.last, "daily").middle);
-  const value = time.map((t) => Math.max(0, 100 * (1 + Math.sin((2 * Math.PI * t) / 11))));
-  return { name: "ab daily", quantity: "sunspot_number", units: "1", version: "2", time, value };
-}
-
 /** The requests of one service: a cycles body and a reconstruction body. */
 async function bodies(base: string) {
-  const by = await ids(base);
-  const cyc = (await post(base, "/v1/series", months3000())).json.series.id;
-  const spots = (await post(base, "/v1/series", dailySpots())).json.series.id;
+  const by = await demoIds(base);
+  const cyc = (await post(base, "/v1/series", months3000("ab months"))).json.series.id;
+  const spots = (await post(base, "/v1/series", dailySpots(0, "ab daily"))).json.series.id;
   const area = by["sunspot_area_daily.csv"], fac = by["facular_index_daily.csv"];
   const tsi = by["tsi_daily.csv"];
   const dark = (await post(base, "/v1/irradiance/darkening", { total_area: area })).json;
