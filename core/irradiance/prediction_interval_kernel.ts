@@ -1,8 +1,8 @@
 /**
  * The per-cell arithmetic of a reconstruction's prediction interval
- * (./proxy_reconstruction.ts): the total predictive variance Var = Σ over the error model's
- * parts of their squared loadings, summed by source (core/irradiance/reconstruction_error_model.ts),
- * the value ŷ = β₀ + Σ_k β_k·x_k, the SD √Var and the bounds ŷ ∓ z·SD, a block of cells at a
+ * (./proxy_reconstruction.ts): the total predictive variance Var, the sum over the error
+ * model's parts of their squared loadings by source (./reconstruction_error_model.ts), the
+ * value ŷ = β₀ + Σ_k β_k·x_k, the SD √Var and the bounds ŷ ∓ z·SD, a block of cells at a
  * time, in WebAssembly SIMD (128-bit f64x2 lanes over pairs of cells).
  *
  * Every number is computed with the operations of the plain TypeScript path
@@ -10,211 +10,192 @@
  * intervals of ./proxy_reconstruction.ts), in the same order, with a rounded product then a
  * rounded sum (IEEE 754 binary64, no fused multiply-add; the square root is correctly rounded
  * in both), so the results are bit-identical to that path and the same on every machine:
- * - a loading that is a linear combination of columns, l = s·(c₀ + Σ_a x_a·c_a) summed in the
- *   order of a, is +0 where its mask is 0 (a bitwise and with the mask's all-ones lanes), and
- *   its square is added to its source's sum, which starts at +0;
- * - any other loading (residual processes, the sunspot number's error, curved mappings) is
- *   computed in TypeScript into the kernel's memory and squared and added there;
+ * - a loading that is a linear combination of whole-series columns, l = s·(c₀ + Σ_a x_a·c_a)
+ *   summed in the order of a, is +0 where its mask is 0 (a bitwise and with the mask's
+ *   all-ones lanes), and its square is added to its source's sum, which starts at +0;
+ * - any other loading (curved mappings, the sunspot number's error, residual processes on
+ *   cells of unequal lengths) is computed in TypeScript a block at a time and enters as a
+ *   one-column part (0 + l·1)·1 = l;
  * - Var = 0 + calibration + residual + mapping + input; cells without a value (mask 0) get
  *   the quiet NaN 0x7ff8000000000000, as TypeScript writes `NaN`.
  *
- * Written by hand because no maintained npm package offers these fused float64 passes in
- * WebAssembly, and the plain path writes and re-reads about 25 arrays per cell block. Measured
- * on the 2-core test machine (Deno 2.9.6, 101 band models × 119,000 daily cells, one thread,
- * test/bench/spectral_case.ts): see the commit adding this kernel and the README's speed lines.
- *
- * The three functions are emitted from the listings below by a small assembler
- * (core/wasm/module_builder.ts). In WAT terms, with $t the byte offset of a pair of cells in
- * the block and $off the block's byte offset in the whole series:
+ * One module is emitted per shape of model (how many parts of how many columns per source,
+ * how many regressors; the bands of one spectral model share it) by a small assembler
+ * (core/wasm/module_builder.ts), with every part unrolled. In WAT terms, with $t the byte
+ * offset of a pair of cells in the block:
  *
  * ```wat
- * (func $combine (param $out $table $ncols $coefs i32) (param $init $scale f64)
- *                (param $mask $off $end i32)
+ * (func $cells (param $fp i32) (param $ip i32) (param $end i32)
+ *   read c₀, s, c_a of every part, β and z from $fp into f64x2 registers (splat), and the
+ *   block addresses of every part's mask and columns, the cell mask, the regressors and the
+ *   outputs from $ip into locals
  *   loop over t < $end (16 bytes per pair):
- *     acc = f64x2.splat $init
- *     loop over columns a < $ncols:
- *       acc = f64x2.add (acc, f64x2.mul (v128.load (i32.load ($table + 4a) + $off + t),
- *                                        v128.load64_splat ($coefs + 8a)))
- *     l = v128.and (f64x2.mul (f64x2.splat $scale, acc), v128.load ($mask + $off + t))
- *     v128.store ($out + t) (f64x2.add (v128.load ($out + t), f64x2.mul (l, l)))
- * )
- * (func $square (param $out $src $end i32)
- *   loop over t < $end: $out[t] = f64x2.add ($out[t], f64x2.mul ($src[t], $src[t]))
- * )
- * (func $finish (param $sums $stride $table $nterms $beta $mask $off i32) (param $z f64)
- *               (param $outp $end i32)
- *   loop over t < $end:
- *     var = 0 + sums[0][t] + sums[1][t] + sums[2][t] + sums[3][t]   ;; $stride bytes apart
- *     v = v128.load64_splat $beta; then v = v + β_{k+1}·x_k for k < $nterms (table as above)
- *     s = f64x2.sqrt var; m = v128.load ($mask + $off + t)
- *     out[0..3][t] = v128.bitselect ((v, s, v − z·s, v + z·s), NaN, m)
+ *     for each source g:  S_g = 0
+ *       for each part:    acc = c₀; acc = f64x2.add (acc, f64x2.mul (v128.load (x_a + t), c_a))…
+ *                         l = v128.and (f64x2.mul (s, acc), v128.load (mask + t))
+ *                         S_g = f64x2.add (S_g, f64x2.mul (l, l))
+ *     var = 0 + S_0 + S_1 + S_2 + S_3;  v = β₀ + β₁·x₁ + …;  sd = f64x2.sqrt var
+ *     store v, sd, v − z·sd, v + z·sd (v128.bitselect with NaN where the cell mask is 0)
  * )
  * ```
+ *
+ * Written by hand because no maintained npm package offers these fused float64 passes in
+ * WebAssembly (the plain path writes and re-reads about 25 arrays per block of cells), and a
+ * BLAS would round differently on different machines. Measured on the 2-core test machine
+ * (Deno 2.9.6, 101 band models × 119,000 daily cells of test/bench/spectral_case.ts, one
+ * thread, medians of 8 runs under load 3): 307 ms against 810 ms for the plain path, the same
+ * numbers bit for bit (SHA-256 of every value, SD and bound).
  *
  * @module
  */
 import { wasmModule, wasmOp as op, wasmType } from "../wasm/module_builder.ts";
 
-const { i32, f64, v128 } = wasmType;
+const { i32, v128 } = wasmType;
 /** The quiet NaN JavaScript writes for `NaN` (0x7ff8000000000000), little-endian. */
 const NAN_BYTES = [0, 0, 0, 0, 0, 0, 0xf8, 0x7f];
 
-/** Code that leaves the address `i32.load(table + a) + off + t` on the stack. */
-const columnAddress = (table: number, a: number, off: number, t: number) => [
-  ...op.localGet(table),
-  ...op.localGet(a),
-  ...op.i32Add,
-  ...op.i32Load(0),
-  ...op.localGet(off),
-  ...op.i32Add,
-  ...op.localGet(t),
-  ...op.i32Add,
-];
-
-/** `combine`: the squared masked linear combination added to a sum (see the listing). */
-function combineModule(): Uint8Array<ArrayBuffer> {
-  const [OUT, TABLE, NCOLS, COEFS, INIT, SCALE, MASK, OFF, END, T, A, TEND, ACC, L, SI, SS] = Array
-    .from({ length: 16 }, (_, i) => i);
-  const code: number[] = [];
-  const emit = (...parts: number[][]) => {
-    for (const p of parts) code.push(...p);
-  };
-  emit(op.localGet(INIT), op.f64x2Splat, op.localSet(SI));
-  emit(op.localGet(SCALE), op.f64x2Splat, op.localSet(SS));
-  emit(op.localGet(NCOLS), op.i32Const(4), op.i32Mul, op.localSet(TEND));
-  emit(op.i32Const(0), op.localSet(T));
-  emit(op.block, op.loop); // over pairs of cells
-  emit(op.localGet(T), op.localGet(END), op.i32Eq, op.brIf(1));
-  emit(op.localGet(SI), op.localSet(ACC), op.i32Const(0), op.localSet(A));
-  emit(op.block, op.loop); // over columns
-  emit(op.localGet(A), op.localGet(TEND), op.i32Eq, op.brIf(1));
-  emit(op.localGet(ACC), columnAddress(TABLE, A, OFF, T), op.v128Load(0));
-  emit(op.localGet(COEFS), op.localGet(A), op.localGet(A), op.i32Add, op.i32Add);
-  emit(op.v128Load64Splat(0), op.f64x2Mul, op.f64x2Add, op.localSet(ACC));
-  emit(op.localGet(A), op.i32Const(4), op.i32Add, op.localSet(A), op.br(0));
-  emit(op.end, op.end);
-  emit(op.localGet(SS), op.localGet(ACC), op.f64x2Mul);
-  emit(op.localGet(MASK), op.localGet(OFF), op.i32Add, op.localGet(T), op.i32Add);
-  emit(op.v128Load(0), op.v128And, op.localSet(L));
-  emit(op.localGet(OUT), op.localGet(T), op.i32Add);
-  emit(op.localGet(OUT), op.localGet(T), op.i32Add, op.v128Load(0));
-  emit(op.localGet(L), op.localGet(L), op.f64x2Mul, op.f64x2Add, op.v128Store(0));
-  emit(op.localGet(T), op.i32Const(16), op.i32Add, op.localSet(T), op.br(0));
-  emit(op.end, op.end);
-  return wasmModule({
-    name: "combine",
-    params: [i32, i32, i32, i32, f64, f64, i32, i32, i32],
-    results: [],
-    locals: [[3, i32], [4, v128]],
-    code,
-  });
-}
-
-/** `square`: a loading computed elsewhere, squared and added to a sum. */
-function squareModule(): Uint8Array<ArrayBuffer> {
-  const [OUT, SRC, END, T, X] = [0, 1, 2, 3, 4];
-  const code: number[] = [];
-  const emit = (...parts: number[][]) => {
-    for (const p of parts) code.push(...p);
-  };
-  emit(op.i32Const(0), op.localSet(T));
-  emit(op.block, op.loop);
-  emit(op.localGet(T), op.localGet(END), op.i32Eq, op.brIf(1));
-  emit(op.localGet(SRC), op.localGet(T), op.i32Add, op.v128Load(0), op.localSet(X));
-  emit(op.localGet(OUT), op.localGet(T), op.i32Add);
-  emit(op.localGet(OUT), op.localGet(T), op.i32Add, op.v128Load(0));
-  emit(op.localGet(X), op.localGet(X), op.f64x2Mul, op.f64x2Add, op.v128Store(0));
-  emit(op.localGet(T), op.i32Const(16), op.i32Add, op.localSet(T), op.br(0));
-  emit(op.end, op.end);
-  return wasmModule({
-    name: "square",
-    params: [i32, i32, i32],
-    results: [],
-    locals: [[1, i32], [1, v128]],
-    code,
-  });
-}
-
-/** `finish`: the total variance, the value, the SD and the bounds (see the listing). */
-function finishModule(): Uint8Array<ArrayBuffer> {
-  const [SUMS, STRIDE, TABLE, NTERMS, BETA, MASK, OFF, Z, OUTP, END] = Array.from(
-    { length: 10 },
-    (_, i) => i,
-  );
-  const [T, A, TEND, V, S, SZ, NAN, M, VAR] = Array.from({ length: 9 }, (_, i) => 10 + i);
-  const code: number[] = [];
-  const emit = (...parts: number[][]) => {
-    for (const p of parts) code.push(...p);
-  };
-  /** address base + k·stride + t */
-  const at = (base: number, k: number) => {
-    const c = [...op.localGet(base)];
-    for (let j = 0; j < k; j++) c.push(...op.localGet(STRIDE), ...op.i32Add);
-    c.push(...op.localGet(T), ...op.i32Add);
-    return c;
-  };
-  emit(op.localGet(Z), op.f64x2Splat, op.localSet(SZ));
-  emit(op.v128ConstF64x2(NAN_BYTES), op.localSet(NAN));
-  emit(op.localGet(NTERMS), op.i32Const(4), op.i32Mul, op.localSet(TEND));
-  emit(op.i32Const(0), op.localSet(T));
-  emit(op.block, op.loop); // over pairs of cells
-  emit(op.localGet(T), op.localGet(END), op.i32Eq, op.brIf(1));
-  emit(op.v128Zero);
-  for (let g = 0; g < 4; g++) emit(at(SUMS, g), op.v128Load(0), op.f64x2Add);
-  emit(op.localSet(VAR));
-  emit(op.localGet(BETA), op.v128Load64Splat(0), op.localSet(V), op.i32Const(0), op.localSet(A));
-  emit(op.block, op.loop); // over terms
-  emit(op.localGet(A), op.localGet(TEND), op.i32Eq, op.brIf(1));
-  emit(op.localGet(V));
-  emit(op.localGet(BETA), op.localGet(A), op.localGet(A), op.i32Add, op.i32Add);
-  emit(op.v128Load64Splat(8), columnAddress(TABLE, A, OFF, T), op.v128Load(0));
-  emit(op.f64x2Mul, op.f64x2Add, op.localSet(V));
-  emit(op.localGet(A), op.i32Const(4), op.i32Add, op.localSet(A), op.br(0));
-  emit(op.end, op.end);
-  emit(op.localGet(VAR), op.f64x2Sqrt, op.localSet(S));
-  emit(op.localGet(MASK), op.localGet(OFF), op.i32Add, op.localGet(T), op.i32Add);
-  emit(op.v128Load(0), op.localSet(M));
-  const store = (k: number, value: number[]) =>
-    emit(at(OUTP, k), value, op.localGet(NAN), op.localGet(M), op.v128Bitselect, op.v128Store(0));
-  store(0, op.localGet(V));
-  store(1, op.localGet(S));
-  const zs = [...op.localGet(SZ), ...op.localGet(S), ...op.f64x2Mul];
-  store(2, [...op.localGet(V), ...zs, ...op.f64x2Sub]);
-  store(3, [...op.localGet(V), ...zs, ...op.f64x2Add]);
-  emit(op.localGet(T), op.i32Const(16), op.i32Add, op.localSet(T), op.br(0));
-  emit(op.end, op.end);
-  return wasmModule({
-    name: "finish",
-    params: [i32, i32, i32, i32, i32, i32, i32, f64, i32, i32],
-    results: [],
-    locals: [[3, i32], [6, v128]],
-    code,
-  });
+/**
+ * The shape of one model's kernel: per source (calibration, residual, mapping, input), the
+ * number of columns of each of its parts in model order (a part computed in TypeScript counts
+ * as one column: its loading, with c₀ = 0, c = 1, s = 1 and a mask of ones, which gives the
+ * loading itself), and the number of regressors.
+ */
+export interface PredictionShape {
+  parts: number[][];
+  terms: number;
 }
 
 /**
- * The kernel modules' bytes (see the module documentation for their listings).
+ * The kernel module for one shape (see the listing in the module documentation): every
+ * constant (c₀, s, c_a of each part, β, z) is read once per call into a register, the column,
+ * mask and output addresses into locals, and each pair of cells runs the parts straight
+ * through, so the four sums stay in registers.
  *
- * @returns three WebAssembly modules importing `env.memory`, exporting `combine`, `square`
- *   and `finish`
+ * Memory read at call time: from `fp`, per part c₀, s, c_0 … (f64), then β_0 … β_K, z; from
+ * `ip`, per part the mask's and the columns' addresses of the block (i32), then the cell mask,
+ * the regressors and the output's address (value, SD, lower, upper, `PREDICTION_BLOCK`
+ * values apart).
+ *
+ * @param shape {@link PredictionShape}
+ * @returns a WebAssembly module importing `env.memory` and exporting `cells(fp, ip, end)`
  * @example
  * ```ts
- * import { predictionIntervalModules } from "./prediction_interval_kernel.ts";
+ * import { predictionIntervalModule } from "./prediction_interval_kernel.ts";
  * import assert from "node:assert/strict";
- * const m = predictionIntervalModules();
- * assert.ok(WebAssembly.validate(m.combine) && WebAssembly.validate(m.square));
- * assert.ok(WebAssembly.validate(m.finish));
+ * assert.ok(WebAssembly.validate(predictionIntervalModule({ parts: [[2, 2, 1], [0], [1], []], terms: 2 })));
  * ```
  */
-export function predictionIntervalModules(): Record<
-  "combine" | "square" | "finish",
-  Uint8Array<ArrayBuffer>
-> {
-  return { combine: combineModule(), square: squareModule(), finish: finishModule() };
+export function predictionIntervalModule(shape: PredictionShape): Uint8Array<ArrayBuffer> {
+  const FP = 0, IP = 1, END = 2, T = 3;
+  let nI32 = 0, nV = 0;
+  const i32Local = () => 4 + nI32++;
+  const vLocal = () => {
+    const k = nV++;
+    return k;
+  };
+  // locals are numbered after all i32 locals are known: collect first, number later
+  type Part = { init: number; scale: number; cs: number[]; mask: number; cols: number[] };
+  const parts: Part[][] = shape.parts.map((g) =>
+    g.map((ncols) => ({
+      init: vLocal(),
+      scale: vLocal(),
+      cs: Array.from({ length: ncols }, vLocal),
+      mask: i32Local(),
+      cols: Array.from({ length: ncols }, i32Local),
+    }))
+  );
+  const betas = Array.from({ length: shape.terms + 1 }, vLocal);
+  const zv = vLocal(), acc = vLocal(), l = vLocal(), nan = vLocal(), v = vLocal(), sd = vLocal();
+  const m = vLocal(), variance = vLocal();
+  const sums = [vLocal(), vLocal(), vLocal(), vLocal()];
+  const cellMask = i32Local(), outp = i32Local();
+  const xs = Array.from({ length: shape.terms }, i32Local);
+  const V0 = 4 + nI32; // first v128 local
+  const vl = (k: number) => V0 + k;
+  const code: number[] = [];
+  const emit = (...ps: number[][]) => {
+    for (const p of ps) code.push(...p);
+  };
+  // constants and addresses
+  let f = 0, i = 0;
+  const f64At = (local: number) =>
+    emit(op.localGet(FP), op.v128Load64Splat(8 * f++), op.localSet(vl(local)));
+  const i32At = (local: number) => emit(op.localGet(IP), op.i32Load(4 * i++), op.localSet(local));
+  for (const g of parts) {
+    for (const p of g) {
+      f64At(p.init);
+      f64At(p.scale);
+      p.cs.forEach(f64At);
+      i32At(p.mask);
+      p.cols.forEach(i32At);
+    }
+  }
+  betas.forEach(f64At);
+  f64At(zv);
+  i32At(cellMask);
+  xs.forEach(i32At);
+  i32At(outp);
+  emit(op.v128ConstF64x2(NAN_BYTES), op.localSet(vl(nan)));
+  emit(op.i32Const(0), op.localSet(T));
+  emit(op.block, op.loop); // over pairs of cells
+  emit(op.localGet(T), op.localGet(END), op.i32Eq, op.brIf(1));
+  const load = (ptr: number) => emit(op.localGet(ptr), op.localGet(T), op.i32Add, op.v128Load(0));
+  parts.forEach((g, gi) => {
+    const S = vl(sums[gi]);
+    emit(op.v128Zero, op.localSet(S));
+    for (const p of g) {
+      // acc = c₀ + x_0·c_0 + x_1·c_1 + …
+      emit(op.localGet(vl(p.init)), op.localSet(vl(acc)));
+      p.cols.forEach((col, a) => {
+        emit(op.localGet(vl(acc)));
+        load(col);
+        emit(op.localGet(vl(p.cs[a])), op.f64x2Mul, op.f64x2Add, op.localSet(vl(acc)));
+      });
+      // l = (s·acc) & mask; S = S + l·l
+      emit(op.localGet(vl(p.scale)), op.localGet(vl(acc)), op.f64x2Mul);
+      load(p.mask);
+      emit(op.v128And, op.localSet(vl(l)));
+      emit(op.localGet(S), op.localGet(vl(l)), op.localGet(vl(l)), op.f64x2Mul, op.f64x2Add);
+      emit(op.localSet(S));
+    }
+  });
+  // Var = 0 + S_calibration + S_residual + S_mapping + S_input
+  emit(op.v128Zero);
+  for (const S of sums) emit(op.localGet(vl(S)), op.f64x2Add);
+  emit(op.localSet(vl(variance)));
+  // ŷ = β₀ + β₁·x₁ + …
+  emit(op.localGet(vl(betas[0])), op.localSet(vl(v)));
+  xs.forEach((x, k) => {
+    emit(op.localGet(vl(v)), op.localGet(vl(betas[k + 1])));
+    load(x);
+    emit(op.f64x2Mul, op.f64x2Add, op.localSet(vl(v)));
+  });
+  emit(op.localGet(vl(variance)), op.f64x2Sqrt, op.localSet(vl(sd)));
+  load(cellMask);
+  emit(op.localSet(vl(m)));
+  const store = (k: number, value: number[]) => {
+    emit(op.localGet(outp), op.localGet(T), op.i32Add, value);
+    emit(op.localGet(vl(nan)), op.localGet(vl(m)), op.v128Bitselect, op.v128Store(k * BLOCK_BYTES));
+  };
+  const zs = [...op.localGet(vl(zv)), ...op.localGet(vl(sd)), ...op.f64x2Mul];
+  store(0, op.localGet(vl(v)));
+  store(1, op.localGet(vl(sd)));
+  store(2, [...op.localGet(vl(v)), ...zs, ...op.f64x2Sub]);
+  store(3, [...op.localGet(vl(v)), ...zs, ...op.f64x2Add]);
+  emit(op.localGet(T), op.i32Const(16), op.i32Add, op.localSet(T), op.br(0));
+  emit(op.end, op.end);
+  return wasmModule({
+    name: "cells",
+    params: [i32, i32, i32],
+    results: [],
+    locals: [[1 + nI32, i32], [nV, v128]],
+    code,
+  });
 }
 
-/** Cells per block (the block's sums and outputs stay in the processor's cache). */
+/** Cells per block (the block's outputs and loadings stay in the processor's cache). */
 export const PREDICTION_BLOCK = 2048;
+const BLOCK_BYTES = PREDICTION_BLOCK * 8;
 
 /** A linear loading: s·(c₀ + Σ_a x_a·c_a) where mask ≠ 0, else 0. */
 export interface LinearLoading {
@@ -225,38 +206,40 @@ export interface LinearLoading {
   scale: number;
 }
 
+/** The four outputs of a reconstruction. */
+export interface PredictionOutputs {
+  value: Float64Array;
+  sd: Float64Array;
+  lower: Float64Array;
+  upper: Float64Array;
+}
+
 /**
- * The kernel with its own memory: whole-series columns and masks copied in once (and reused by
- * every model that reads the same arrays), a block's four source sums, one scratch loading and
- * the block's four outputs.
+ * The kernel with its own memory: whole-series columns and masks copied in once (and reused
+ * by every model that reads the same arrays), the loadings computed in TypeScript, and the
+ * block's four outputs.
  */
 export interface PredictionIntervalKernel {
-  /** Whether `combine` can read these arrays (columns and mask copied in, or copyable). */
-  register(part: LinearLoading): void;
-  /** Zero the four source sums of a block. */
-  clear(): void;
-  /** Add a linear loading's squares on cells [i0, i0 + m) to source sum g. */
-  combine(g: number, part: LinearLoading, i0: number, m: number): void;
-  /** Where a loading computed in TypeScript goes (PREDICTION_BLOCK values). */
-  scratch(): Float64Array;
-  /** Add the scratch loading's squares (m cells) to source sum g. */
-  square(g: number, m: number): void;
   /**
-   * Var, ŷ = β₀ + Σ β_k·x_k, √Var and ŷ ∓ z·√Var on cells [i0, i0 + m) into the outputs
-   * at i0; NaN where mask = 0.
+   * Bind one model: per source, its parts in model order (null: a loading computed in
+   * TypeScript into `scratch(j)`, j counting the null parts from 0), the regressors, β, the
+   * cells with a value (mask ≠ 0) and the interval's quantile.
    */
-  finish(
+  bind(
+    groups: readonly (LinearLoading | null)[][],
     xs: readonly Float64Array[],
     beta: readonly number[],
     mask: Uint8Array,
     z: number,
-    i0: number,
-    m: number,
-    out: { value: Float64Array; sd: Float64Array; lower: Float64Array; upper: Float64Array },
   ): void;
+  /** Where the bound model's j-th TypeScript loading of a block goes (PREDICTION_BLOCK values). */
+  scratch(j: number): Float64Array;
+  /** Var, ŷ, √Var and ŷ ∓ z·√Var of the bound model on cells [i0, i0 + m) into out at i0. */
+  cells(i0: number, m: number, out: PredictionOutputs): void;
 }
 
-let modules: Record<"combine" | "square" | "finish", WebAssembly.Module> | null | undefined;
+let kernelsOk: boolean | undefined;
+const shapes = new Map<string, WebAssembly.Module>();
 
 /**
  * A new kernel for series of n cells, or null where WebAssembly SIMD is missing (the caller
@@ -270,13 +253,11 @@ let modules: Record<"combine" | "square" | "finish", WebAssembly.Module> | null 
  * import assert from "node:assert/strict";
  * const k = predictionIntervalKernel(3)!;
  * const x = Float64Array.of(1, 2, 3), mask = Uint8Array.of(1, 1, 0);
- * const part = { init: 0.5, xs: [x], cs: [2], mask, scale: 1 };
- * k.register(part);
- * k.clear();
- * k.combine(0, part, 0, 3); // calibration: (0.5 + 2x)²
+ * // one calibration part (0.5 + 2x) and no other source
+ * k.bind([[{ init: 0.5, xs: [x], cs: [2], mask, scale: 1 }], [], [], []], [x], [1, 10], mask, 2);
  * const out = { value: new Float64Array(3), sd: new Float64Array(3),
  *   lower: new Float64Array(3), upper: new Float64Array(3) };
- * k.finish([x], [1, 10], mask, 2, 0, 3, out);
+ * k.cells(0, 3, out);
  * assert.deepEqual([...out.value.subarray(0, 2)], [11, 21]);
  * assert.deepEqual([...out.sd.subarray(0, 2)], [2.5, 4.5]);
  * assert.deepEqual([...out.lower.subarray(0, 2)], [6, 12]);
@@ -284,33 +265,22 @@ let modules: Record<"combine" | "square" | "finish", WebAssembly.Module> | null 
  * ```
  */
 export function predictionIntervalKernel(n: number): PredictionIntervalKernel | null {
-  if (modules === undefined) {
-    const b = predictionIntervalModules();
-    const ok = typeof WebAssembly === "object" && WebAssembly.validate(b.combine) &&
-      WebAssembly.validate(b.square) && WebAssembly.validate(b.finish);
-    modules = ok
-      ? {
-        combine: new WebAssembly.Module(b.combine),
-        square: new WebAssembly.Module(b.square),
-        finish: new WebAssembly.Module(b.finish),
-      }
-      : null;
+  if (kernelsOk === undefined) {
+    kernelsOk = typeof WebAssembly === "object" &&
+      WebAssembly.validate(predictionIntervalModule({ parts: [[1], [0], [], []], terms: 1 }));
   }
-  if (!modules) return null;
-  const B = PREDICTION_BLOCK, blockBytes = B * 8;
-  // fixed region: 4 sums, 1 scratch loading, 4 outputs, a table of 64 column addresses and
-  // 64 coefficients; then whole-series columns and masks, n + 1 values each (the last pair of
-  // an odd series reads one value past its end)
-  const SUMS = 0, SCRATCH = 4 * blockBytes, OUTP = 5 * blockBytes, TABLE = 9 * blockBytes;
-  const COEFS = TABLE + 256, FIXED = COEFS + 512;
+  if (!kernelsOk) return null;
+  const B = PREDICTION_BLOCK, MAX_SCRATCH = 16;
+  // fixed region: outputs (4 blocks), ones (one block), TypeScript loadings (16 blocks),
+  // constants (f64) and addresses (i32); then whole-series columns and masks, n + 1 values
+  // each (the last pair of an odd series reads one value past its end)
+  const OUTP = 0, ONES = 4 * BLOCK_BYTES, SCRATCH = 5 * BLOCK_BYTES;
+  const FP = SCRATCH + MAX_SCRATCH * BLOCK_BYTES, F_SLOTS = 1024, IP = FP + 8 * F_SLOTS;
+  const I_SLOTS = 1024, FIXED = IP + 4 * I_SLOTS;
   const columnBytes = Math.ceil(((n + 1) * 8) / 16) * 16;
   let top = FIXED;
-  const memory = new WebAssembly.Memory({ initial: Math.ceil(FIXED / 65536) + 1 });
-  const inst = (m: WebAssembly.Module) =>
-    new WebAssembly.Instance(m, { env: { memory } }).exports as Record<string, CallableFunction>;
-  const combine = inst(modules.combine).combine as (...a: number[]) => void;
-  const square = inst(modules.square).square as (...a: number[]) => void;
-  const finish = inst(modules.finish).finish as (...a: number[]) => void;
+  const memory = new WebAssembly.Memory({ initial: Math.ceil(FIXED / 65536) });
+  new Int32Array(memory.buffer, ONES, 2 * B).fill(-1);
   const columns = new Map<Float64Array, number>();
   const masks = new Map<Uint8Array, number>();
   const reserve = (): number => {
@@ -341,47 +311,66 @@ export function predictionIntervalKernel(n: number): PredictionIntervalKernel | 
     }
     return at;
   };
-  const table = (xs: readonly Float64Array[], cs: readonly number[] | null) => {
-    if (xs.length > 64) throw new RangeError(`${xs.length} columns, at most 64`);
-    const t = new Int32Array(memory.buffer, TABLE, 64);
-    xs.forEach((x, a) => (t[a] = column(x)));
-    if (cs) new Float64Array(memory.buffer, COEFS, 64).set(cs);
+  // the bound model: its kernel, the address slots rebased per block (slot, series address)
+  let run: ((fp: number, ip: number, end: number) => void) | null = null;
+  let rebase: number[] = [];
+  let fs: Float64Array = new Float64Array(0), is: Int32Array = new Int32Array(0);
+  let out4: Float64Array = new Float64Array(0);
+  const views = () => {
+    fs = new Float64Array(memory.buffer, FP, F_SLOTS);
+    is = new Int32Array(memory.buffer, IP, I_SLOTS);
+    out4 = new Float64Array(memory.buffer, OUTP, 4 * B);
   };
-  const pairs = (m: number) => Math.ceil(m / 2) * 16;
   return {
-    register(part) {
-      part.xs.forEach(column);
-      maskAt(part.mask);
+    bind(groups, xs, beta, mask, z) {
+      const shape: PredictionShape = {
+        parts: groups.map((g) => g.map((p) => (p ? p.xs.length : 1))),
+        terms: xs.length,
+      };
+      // addresses first: the memory may grow
+      const address: (readonly [number, boolean])[] = []; // [address, rebased per block]
+      const consts: number[] = [];
+      let scratchUsed = 0;
+      for (const g of groups) {
+        for (const p of g) {
+          if (p) {
+            consts.push(p.init, p.scale, ...p.cs);
+            address.push([maskAt(p.mask), true], ...p.xs.map((x) => [column(x), true] as const));
+          } else {
+            if (scratchUsed === MAX_SCRATCH) throw new RangeError("too many loadings");
+            consts.push(0, 1, 1);
+            address.push([ONES, false], [SCRATCH + BLOCK_BYTES * scratchUsed++, false]);
+          }
+        }
+      }
+      consts.push(...beta.slice(0, xs.length + 1), z);
+      address.push([maskAt(mask), true], ...xs.map((x) => [column(x), true] as const));
+      address.push([OUTP, false]);
+      if (consts.length > F_SLOTS || address.length > I_SLOTS) {
+        throw new RangeError("too many parts for the kernel");
+      }
+      views();
+      fs.set(consts);
+      rebase = [];
+      address.forEach(([a, r], k) => {
+        is[k] = a;
+        if (r) rebase.push(k, a);
+      });
+      const key = JSON.stringify(shape);
+      let module = shapes.get(key);
+      if (!module) {
+        shapes.set(key, module = new WebAssembly.Module(predictionIntervalModule(shape)));
+      }
+      run = new WebAssembly.Instance(module, { env: { memory } }).exports.cells as typeof run;
     },
-    clear() {
-      new Float64Array(memory.buffer, SUMS, 4 * B).fill(0);
-    },
-    combine(g, part, i0, m) {
-      table(part.xs, part.cs);
-      combine(
-        SUMS + g * blockBytes,
-        TABLE,
-        part.xs.length,
-        COEFS,
-        part.init,
-        part.scale,
-        maskAt(part.mask),
-        i0 * 8,
-        pairs(m),
-      );
-    },
-    scratch: () => new Float64Array(memory.buffer, SCRATCH, B),
-    square(g, m) {
-      square(SUMS + g * blockBytes, SCRATCH, pairs(m));
-    },
-    finish(xs, beta, mask, z, i0, m, out) {
-      table(xs, beta);
-      finish(SUMS, blockBytes, TABLE, xs.length, COEFS, maskAt(mask), i0 * 8, z, OUTP, pairs(m));
-      const o = new Float64Array(memory.buffer, OUTP, 4 * B);
-      out.value.set(o.subarray(0, m), i0);
-      out.sd.set(o.subarray(B, B + m), i0);
-      out.lower.set(o.subarray(2 * B, 2 * B + m), i0);
-      out.upper.set(o.subarray(3 * B, 3 * B + m), i0);
+    scratch: (j) => new Float64Array(memory.buffer, SCRATCH + BLOCK_BYTES * j, B),
+    cells(i0, m, out) {
+      for (let k = 0; k < rebase.length; k += 2) is[rebase[k]] = rebase[k + 1] + 8 * i0;
+      run!(FP, IP, Math.ceil(m / 2) * 16);
+      out.value.set(out4.subarray(0, m), i0);
+      out.sd.set(out4.subarray(B, B + m), i0);
+      out.lower.set(out4.subarray(2 * B, 2 * B + m), i0);
+      out.upper.set(out4.subarray(3 * B, 3 * B + m), i0);
     },
   };
 }

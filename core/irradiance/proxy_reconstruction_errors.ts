@@ -280,30 +280,26 @@ export function proxyReconstructionOnKernel(
   const parts = errorParts(model, cells, design, regressors, shared);
   // each source's parts in model order, as errorModelVariance sums them
   const groups = ERROR_SOURCES.map((s) => parts.filter((p) => p.source === s));
-  // every column and mask goes into the kernel's memory before a block's scratch is used
-  for (const p of parts) if (p.linear) kernel.register(p.linear);
   const beta = model.coefficients;
-  kernel.register({ init: 0, xs: regressors, cs: [], mask: design.source, scale: 1 });
+  kernel.bind(
+    groups.map((g) => g.map((p) => p.linear ?? null)),
+    regressors,
+    beta,
+    design.source,
+    z,
+  );
   const out = {
     value: new Float64Array(n),
     sd: new Float64Array(n),
     lower: new Float64Array(n),
     upper: new Float64Array(n),
   };
-  const scratch = kernel.scratch();
+  const js = groups.flat().filter((p) => !p.linear);
+  const scratch = js.map((_, j) => kernel.scratch(j));
   for (let i0 = 0; i0 < n; i0 += BLOCK) {
     const i1 = Math.min(n, i0 + BLOCK), m = i1 - i0;
-    kernel.clear();
-    for (let g = 0; g < groups.length; g++) {
-      for (const part of groups[g]) {
-        if (part.linear) kernel.combine(g, part.linear, i0, m);
-        else {
-          part.block(scratch, i0, i1);
-          kernel.square(g, m);
-        }
-      }
-    }
-    kernel.finish(regressors, beta, design.source, z, i0, m, out);
+    js.forEach((p, j) => p.block(scratch[j], i0, i1));
+    kernel.cells(i0, m, out);
   }
   return out;
 }

@@ -151,3 +151,30 @@ Deno.test("proxyReconstructionVariance() reports a bad cell length and a bad pro
   assert.match(e2, /rho must be in/);
   assert.equal(message(() => proxyReconstructionVariance(rho, cells, d0)), e2);
 });
+
+Deno.test("reconstructFromProxiesMany() with errorModel: false on daily cells (one length, odd count, linear mappings) gives the full path's numbers bit for bit", () => {
+  // the kernel's column-free residual loadings and its linear mapping loadings, a partial
+  // last block of odd length, cells without any value, and a band that cannot back-extend
+  const { models, cells } = bandCase();
+  const n = 6_145;
+  const r = cells.sunspot!.slice(0, n);
+  const calR = Array.from({ length: 60 }, (_, i) => 4 * i);
+  const mapP = fitLinearSunspotMapping(calR, calR.map((x) => 1e-4 * x + 1e-6 * Math.sin(x)));
+  const daily: ReconstructionCells = {
+    days: new Float64Array(n).fill(1),
+    direct: cells.direct.map((a) => a.slice(0, n).map((v, i) => (i >= 3_001 ? v : NaN))),
+    mappings: [cells.mappings[0], mapP],
+    sunspot: r,
+  };
+  const z = models.map((_, b) => 1.96 + 0.01 * b);
+  const full = reconstructFromProxiesMany(models, daily, z);
+  const lean = reconstructFromProxiesMany(models, daily, z, { errorModel: false });
+  assert.deepEqual([...new Set(lean[0].source)].sort(), [0, 1, 2]);
+  assert.ok(full[0].errorModel.factors.every((f) => f.source !== "input"));
+  lean.forEach((l, b) => {
+    for (const key of ["value", "sd", "lower", "upper"] as const) {
+      assert.ok(sameBytes(l[key], full[b][key]), `band ${b}: ${key} differs`);
+    }
+    assert.ok(l.sd.some((x) => x > 0));
+  });
+});
