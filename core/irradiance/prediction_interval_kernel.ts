@@ -43,8 +43,9 @@
  * WebAssembly (the plain path writes and re-reads about 25 arrays per block of cells), and a
  * BLAS would round differently on different machines. Measured on the 2-core test machine
  * (Deno 2.9.6, 101 band models × 119,000 daily cells of test/bench/spectral_case.ts, one
- * thread, medians of 8 runs under load 3): 307 ms against 810 ms for the plain path, the same
- * numbers bit for bit (SHA-256 of every value, SD and bound).
+ * thread, 7 rounds alternating with the plain path, load average 6–7 from other jobs): median
+ * 632 ms against 1,509 ms (0.42; per round 0.35–0.46), the same numbers bit for bit (one
+ * SHA-256 over every value, SD and bound).
  *
  * @module
  */
