@@ -225,6 +225,9 @@ export interface PredictionIntervalKernel {
    * Bind one model: per source, its parts in model order (null: a loading computed in
    * TypeScript into `scratch(j)`, j counting the null parts from 0), the regressors, β, the
    * cells with a value (mask ≠ 0) and the interval's quantile.
+   * @returns false (nothing bound) when the model has more parts than the kernel holds (more
+   *   than 16 TypeScript loadings, or more than 1,024 constants or addresses): the caller
+   *   then uses the plain path
    */
   bind(
     groups: readonly (LinearLoading | null)[][],
@@ -232,7 +235,7 @@ export interface PredictionIntervalKernel {
     beta: readonly number[],
     mask: Uint8Array,
     z: number,
-  ): void;
+  ): boolean;
   /** Where the bound model's j-th TypeScript loading of a block goes (PREDICTION_BLOCK values). */
   scratch(j: number): Float64Array;
   /** Var, ŷ, √Var and ŷ ∓ z·√Var of the bound model on cells [i0, i0 + m) into out at i0. */
@@ -255,7 +258,7 @@ const shapes = new Map<string, WebAssembly.Module>();
  * const k = predictionIntervalKernel(3)!;
  * const x = Float64Array.of(1, 2, 3), mask = Uint8Array.of(1, 1, 0);
  * // one calibration part (0.5 + 2x) and no other source
- * k.bind([[{ init: 0.5, xs: [x], cs: [2], mask, scale: 1 }], [], [], []], [x], [1, 10], mask, 2);
+ * assert.ok(k.bind([[{ init: 0.5, xs: [x], cs: [2], mask, scale: 1 }], [], [], []], [x], [1, 10], mask, 2));
  * const out = { value: new Float64Array(3), sd: new Float64Array(3),
  *   lower: new Float64Array(3), upper: new Float64Array(3) };
  * k.cells(0, 3, out);
@@ -313,7 +316,8 @@ export function predictionIntervalKernel(n: number): PredictionIntervalKernel | 
     return at;
   };
   // the bound model: its kernel, the address slots rebased per block (slot, series address)
-  let run: ((fp: number, ip: number, end: number) => void) | null = null;
+  type Cells = (fp: number, ip: number, end: number) => void;
+  let run: Cells | null = null;
   let rebase: number[] = [];
   let fs: Float64Array = new Float64Array(0), is: Int32Array = new Int32Array(0);
   let out4: Float64Array = new Float64Array(0);
@@ -324,6 +328,16 @@ export function predictionIntervalKernel(n: number): PredictionIntervalKernel | 
   };
   return {
     bind(groups, xs, beta, mask, z) {
+      run = null;
+      let jsParts = 0, nConsts = xs.length + 2, nAddresses = xs.length + 2;
+      for (const g of groups) {
+        for (const p of g) {
+          jsParts += p ? 0 : 1;
+          nConsts += p ? 2 + p.xs.length : 3;
+          nAddresses += p ? 1 + p.xs.length : 2;
+        }
+      }
+      if (jsParts > MAX_SCRATCH || nConsts > F_SLOTS || nAddresses > I_SLOTS) return false;
       const shape: PredictionShape = {
         parts: groups.map((g) => g.map((p) => (p ? p.xs.length : 1))),
         terms: xs.length,
@@ -338,7 +352,6 @@ export function predictionIntervalKernel(n: number): PredictionIntervalKernel | 
             consts.push(p.init, p.scale, ...p.cs);
             address.push([maskAt(p.mask), true], ...p.xs.map((x) => [column(x), true] as const));
           } else {
-            if (scratchUsed === MAX_SCRATCH) throw new RangeError("too many loadings");
             consts.push(0, 1, 1);
             address.push([ONES, false], [SCRATCH + BLOCK_BYTES * scratchUsed++, false]);
           }
@@ -347,9 +360,6 @@ export function predictionIntervalKernel(n: number): PredictionIntervalKernel | 
       consts.push(...beta.slice(0, xs.length + 1), z);
       address.push([maskAt(mask), true], ...xs.map((x) => [column(x), true] as const));
       address.push([OUTP, false]);
-      if (consts.length > F_SLOTS || address.length > I_SLOTS) {
-        throw new RangeError("too many parts for the kernel");
-      }
       views();
       fs.set(consts);
       rebase = [];
@@ -362,7 +372,8 @@ export function predictionIntervalKernel(n: number): PredictionIntervalKernel | 
       if (!module) {
         shapes.set(key, module = new WebAssembly.Module(predictionIntervalModule(shape)));
       }
-      run = new WebAssembly.Instance(module, { env: { memory } }).exports.cells as typeof run;
+      run = new WebAssembly.Instance(module, { env: { memory } }).exports.cells as Cells;
+      return true;
     },
     scratch: (j) => new Float64Array(memory.buffer, SCRATCH + BLOCK_BYTES * j, B),
     cells(i0, m, out) {

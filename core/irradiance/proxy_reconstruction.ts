@@ -391,7 +391,9 @@ export function reconstructFromProxiesMany(
     let x = regressors.get(design);
     if (!x) regressors.set(design, x = designRegressors(model, design));
     const rec = proxyReconstructionOnKernel(kernel, model, cells, design, x, z[j]);
-    return { ...rec, source: design.source, design };
+    return rec
+      ? { ...rec, source: design.source, design }
+      : reconstructLean(model, cells, design, z[j]);
   });
 }
 

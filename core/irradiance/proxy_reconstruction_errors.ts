@@ -239,7 +239,8 @@ export function proxyReconstructionVariance(
  * @param design the values used
  * @param regressors per term, the regressor in each cell ({@link designRegressors})
  * @param z the interval's quantile
- * @returns value, SD, lower and upper bound per cell (NaN where the cell has no value)
+ * @returns value, SD, lower and upper bound per cell (NaN where the cell has no value); null
+ *   when the model has more parts than the kernel holds (then use the plain path)
  * @throws {InputError} as {@link proxyReconstructionErrorModel}
  * @example
  * ```ts
@@ -257,7 +258,7 @@ export function proxyReconstructionVariance(
  * const k = predictionIntervalKernel(3);
  * if (k) {
  *   const r = proxyReconstructionOnKernel(k, model, cells, design,
- *     designRegressors(model, design), 1.96);
+ *     designRegressors(model, design), 1.96)!;
  *   const plain = reconstructFromProxies(model, cells, 1.96);
  *   assert.deepEqual([r.value, r.sd, r.upper], [plain.value, plain.sd, plain.upper]);
  * }
@@ -270,7 +271,7 @@ export function proxyReconstructionOnKernel(
   design: ReconstructionDesign,
   regressors: readonly Float64Array[],
   z: number,
-): { value: Float64Array; sd: Float64Array; lower: Float64Array; upper: Float64Array } {
+): { value: Float64Array; sd: Float64Array; lower: Float64Array; upper: Float64Array } | null {
   const n = cells.days.length;
   let shared = sharedByKernel.get(kernel);
   if (!shared || shared.days !== cells.days || shared.source !== design.source) {
@@ -281,13 +282,14 @@ export function proxyReconstructionOnKernel(
   // each source's parts in model order, as errorModelVariance sums them
   const groups = ERROR_SOURCES.map((s) => parts.filter((p) => p.source === s));
   const beta = model.coefficients;
-  kernel.bind(
+  const bound = kernel.bind(
     groups.map((g) => g.map((p) => p.linear ?? null)),
     regressors,
     beta,
     design.source,
     z,
   );
+  if (!bound) return null;
   const out = {
     value: new Float64Array(n),
     sd: new Float64Array(n),

@@ -3,6 +3,7 @@ import {
   errorModelVariance,
   fitLinearSunspotMapping,
   fitSaturatingSunspotMapping,
+  predictionIntervalKernel,
   proxyReconstructionErrorModel,
   proxyReconstructionVariance,
   reconstructFromProxies,
@@ -177,4 +178,45 @@ Deno.test("reconstructFromProxiesMany() with errorModel: false on daily cells (o
     }
     assert.ok(l.sd.some((x) => x > 0));
   });
+});
+
+Deno.test("reconstructFromProxiesMany() with errorModel: false on one cell and on none", () => {
+  const { models, cells } = bandCase();
+  for (const n of [1, 0]) {
+    const c: ReconstructionCells = {
+      days: cells.days.slice(4_000, 4_000 + n),
+      direct: cells.direct.map((a) => a.slice(4_000, 4_000 + n)),
+      mappings: cells.mappings,
+      sunspot: cells.sunspot!.slice(4_000, 4_000 + n),
+    };
+    const z = models.map(() => 1.96);
+    const full = reconstructFromProxiesMany(models, c, z);
+    const lean = reconstructFromProxiesMany(models, c, z, { errorModel: false });
+    lean.forEach((l, b) => {
+      assert.equal(l.value.length, n);
+      for (const key of ["value", "sd", "lower", "upper"] as const) {
+        assert.ok(sameBytes(l[key], full[b][key]), `${n} cells, band ${b}: ${key} differs`);
+      }
+    });
+  }
+});
+
+Deno.test("predictionIntervalKernel() declines a model with more loadings than it holds", () => {
+  const n = 5, mask = new Uint8Array(n).fill(1), x = new Float64Array(n).fill(2);
+  const k = predictionIntervalKernel(n);
+  if (!k) return; // without WebAssembly SIMD the plain path runs anyway
+  const out = () => ({
+    value: new Float64Array(n),
+    sd: new Float64Array(n),
+    lower: new Float64Array(n),
+    upper: new Float64Array(n),
+  });
+  assert.equal(k.bind([Array(17).fill(null), [], [], []], [x], [1, 1], mask, 1.96), false);
+  // 16 loadings computed in TypeScript: each enters as itself, squared
+  assert.equal(k.bind([Array(16).fill(null), [], [], []], [x], [1, 1], mask, 1.96), true);
+  for (let j = 0; j < 16; j++) k.scratch(j).fill(j === 3 ? 3 : j === 7 ? 4 : 0);
+  const o = out();
+  k.cells(0, n, o);
+  assert.deepEqual([...o.value], [3, 3, 3, 3, 3]);
+  assert.deepEqual([...o.sd], [5, 5, 5, 5, 5]);
 });
