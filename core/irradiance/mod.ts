@@ -32,6 +32,7 @@ export * from "./ar1_cell_means.ts";
 export * from "./sunspot_number_uncertainty.ts";
 export * from "./reconstruction_error_model.ts";
 export * from "./proxy_reconstruction_errors.ts";
+export * from "./prediction_interval_kernel.ts";
 export * from "./reconstruction_ensemble.ts";
 export * from "./variance_by_period.ts";
 export * from "./lower_triangular_mixing.ts";

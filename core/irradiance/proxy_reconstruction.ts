@@ -17,9 +17,12 @@ import {
   type ReconstructionErrorModel,
 } from "./reconstruction_error_model.ts";
 import {
+  designRegressors,
   proxyReconstructionErrorModel,
+  proxyReconstructionOnKernel,
   proxyReconstructionVariance,
 } from "./proxy_reconstruction_errors.ts";
+import { predictionIntervalKernel } from "./prediction_interval_kernel.ts";
 
 /** The parts of a calibrated model a reconstruction needs. */
 export interface ReconstructionModel {
@@ -373,14 +376,24 @@ export function reconstructFromProxiesMany(
   });
   // the design depends on a model only through its terms and whether it can back-extend
   const designs = new Map<boolean, ReconstructionDesign>();
+  // the lean path's kernel, and the regressors of each design, shared by every model
+  const kernel = options.errorModel === false && models.length
+    ? predictionIntervalKernel(cells.days.length)
+    : null;
+  const regressors = new Map<ReconstructionDesign, Float64Array[]>();
   return models.map((model, j) => {
     checkCells(model, cells);
     const key = model.backExtension !== null;
     let design = designs.get(key);
     if (!design) designs.set(key, design = reconstructionDesign(model, cells));
-    return options.errorModel === false
-      ? reconstructLean(model, cells, design, z[j])
-      : reconstructWithDesign(model, cells, design, z[j]);
+    if (options.errorModel !== false) return reconstructWithDesign(model, cells, design, z[j]);
+    if (!kernel) return reconstructLean(model, cells, design, z[j]);
+    let x = regressors.get(design);
+    if (!x) regressors.set(design, x = designRegressors(model, design));
+    const rec = proxyReconstructionOnKernel(kernel, model, cells, design, x, z[j]);
+    return rec
+      ? { ...rec, source: design.source, design }
+      : reconstructLean(model, cells, design, z[j]);
   });
 }
 

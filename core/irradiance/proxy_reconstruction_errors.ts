@@ -12,6 +12,11 @@ import { mappingCholesky } from "./back_extension.ts";
 import { type Ar1CellMeans, ar1CellMeans, ar1CellMeanSd } from "./ar1_cell_means.ts";
 import { scaleErrorLag1 } from "./sunspot_number_uncertainty.ts";
 import {
+  type LinearLoading,
+  PREDICTION_BLOCK,
+  type PredictionIntervalKernel,
+} from "./prediction_interval_kernel.ts";
+import {
   ERROR_SOURCES,
   type ErrorFactor,
   type ErrorProcess,
@@ -221,6 +226,119 @@ export function proxyReconstructionVariance(
 }
 
 /**
+ * The values ŷ = xᵀβ, SDs √Var and intervals ŷ ∓ z·√Var of a reconstruction, on the
+ * prediction-interval kernel (./prediction_interval_kernel.ts): the variance of
+ * {@link proxyReconstructionVariance} and the values of `reconstructFromProxies`
+ * (./proxy_reconstruction.ts) with the same operations in the same order, bit for bit, a block
+ * of cells at a time in WebAssembly SIMD. Regressor arrays passed for several models (the
+ * bands of one spectral model) are copied into the kernel once.
+ *
+ * @param kernel a kernel for `cells.days.length` cells
+ * @param model the calibrated model
+ * @param cells the cells
+ * @param design the values used
+ * @param regressors per term, the regressor in each cell ({@link designRegressors})
+ * @param z the interval's quantile
+ * @returns value, SD, lower and upper bound per cell (NaN where the cell has no value); null
+ *   when the model has more parts than the kernel holds (then use the plain path)
+ * @throws {InputError} as {@link proxyReconstructionErrorModel}
+ * @example
+ * ```ts
+ * import { designRegressors, proxyReconstructionOnKernel } from "./proxy_reconstruction_errors.ts";
+ * import { predictionIntervalKernel } from "./prediction_interval_kernel.ts";
+ * import { reconstructFromProxies } from "./proxy_reconstruction.ts";
+ * import assert from "node:assert/strict";
+ * const model = { coefficients: [1360.8, 135], covariance: [[1e-4, 0], [0, 1]],
+ *   terms: [{ role: "facular" as const, quietLevel: 0.15 }], psiReference: 1360.8,
+ *   residualSd: 0.15, rho: 0.6, stepDays: 1, backExtension: null };
+ * const cells = { days: Float64Array.of(1, 31, 1), direct: [Float64Array.of(0.16, 0.17, NaN)],
+ *   mappings: [null], sunspot: null };
+ * const design = { source: Uint8Array.of(1, 1, 0), values: [Float64Array.of(0.16, 0.17, NaN)],
+ *   mapped: [Uint8Array.of(0, 0, 0)] };
+ * const k = predictionIntervalKernel(3);
+ * if (k) {
+ *   const r = proxyReconstructionOnKernel(k, model, cells, design,
+ *     designRegressors(model, design), 1.96)!;
+ *   const plain = reconstructFromProxies(model, cells, 1.96);
+ *   assert.deepEqual([r.value, r.sd, r.upper], [plain.value, plain.sd, plain.upper]);
+ * }
+ * ```
+ */
+export function proxyReconstructionOnKernel(
+  kernel: PredictionIntervalKernel,
+  model: ReconstructionModel,
+  cells: ReconstructionCells,
+  design: ReconstructionDesign,
+  regressors: readonly Float64Array[],
+  z: number,
+): { value: Float64Array; sd: Float64Array; lower: Float64Array; upper: Float64Array } | null {
+  const n = cells.days.length;
+  let shared = sharedByKernel.get(kernel);
+  if (!shared || shared.days !== cells.days || shared.source !== design.source) {
+    shared = sharedCells(cells.days, design.source);
+    sharedByKernel.set(kernel, shared);
+  }
+  const parts = errorParts(model, cells, design, regressors, shared);
+  // each source's parts in model order, as errorModelVariance sums them
+  const groups = ERROR_SOURCES.map((s) => parts.filter((p) => p.source === s));
+  const beta = model.coefficients;
+  const bound = kernel.bind(
+    groups.map((g) => g.map((p) => p.linear ?? null)),
+    regressors,
+    beta,
+    design.source,
+    z,
+  );
+  if (!bound) return null;
+  const out = {
+    value: new Float64Array(n),
+    sd: new Float64Array(n),
+    lower: new Float64Array(n),
+    upper: new Float64Array(n),
+  };
+  const js = groups.flat().filter((p) => !p.linear);
+  const scratch = js.map((_, j) => kernel.scratch(j));
+  for (let i0 = 0; i0 < n; i0 += BLOCK) {
+    const i1 = Math.min(n, i0 + BLOCK), m = i1 - i0;
+    js.forEach((p, j) => p.block(scratch[j], i0, i1));
+    kernel.cells(i0, m, out);
+  }
+  return out;
+}
+
+/**
+ * What the parts of every model on the same cells and design share: the cells' common length
+ * in days (NaN when they differ) and, per source code, the mask of its cells.
+ */
+interface SharedCells {
+  days: Float64Array;
+  source: Uint8Array;
+  uniformDays: number;
+  sourceMask(which: number): Uint8Array;
+}
+
+function sharedCells(days: Float64Array, source: Uint8Array): SharedCells {
+  let uniformDays = days.length ? days[0] : NaN;
+  for (let i = 1; i < days.length && uniformDays === uniformDays; i++) {
+    if (days[i] !== uniformDays) uniformDays = NaN;
+  }
+  const masks = new Map<number, Uint8Array>();
+  return {
+    days,
+    source,
+    uniformDays,
+    sourceMask(which) {
+      let m = masks.get(which);
+      if (!m) masks.set(which, m = source.map((s) => (s === which ? 1 : 0)));
+      return m;
+    },
+  };
+}
+
+/** The cells shared by the models of one kernel (its latest cells and design). */
+const sharedByKernel = new WeakMap<PredictionIntervalKernel, SharedCells>();
+
+/**
  * One part of the error model, computed on demand: its loading on cells [i0, i1) written to
  * out[0 … i1 − i0), and for a process its lag-1 correlations over every cell.
  */
@@ -229,6 +347,8 @@ interface ErrorPart {
   label: string;
   block(out: Float64Array, i0: number, i1: number): void;
   lag1?: () => Float64Array;
+  /** The loading as a linear combination of whole-series columns, when it is one. */
+  linear?: LinearLoading;
 }
 
 /** The parts of {@link proxyReconstructionErrorModel}, factors first, in model order. */
@@ -237,6 +357,7 @@ function errorParts(
   cells: ReconstructionCells,
   design: ReconstructionDesign,
   regressors: readonly Float64Array[],
+  shared?: SharedCells,
 ): ErrorPart[] {
   const n = cells.days.length, K = model.terms.length;
   const { source } = design;
@@ -252,6 +373,7 @@ function errorParts(
       source: "calibration",
       label: `calibration coefficients, direction ${j + 1}`,
       block: (out, i0, i1) => maskedCombination(out, i0, i1, init, terms, weights, source, 1),
+      linear: { init, xs: terms, cs: weights, mask: source, scale: 1 },
     });
   }
   // mappings: loadings β_k·s_k·Lᵀg, Lᵀg summed as above, on the cells where term k was mapped
@@ -274,6 +396,8 @@ function errorParts(
         source: "mapping",
         label: `mapping of term ${k + 1} (${m.form}), parameter direction ${j + 1}`,
         block: (out, i0, i1) => maskedCombination(out, i0, i1, init, terms, weights, mapped, f),
+        // a linear mapping's columns (the sunspot numbers) are the same for every model
+        linear: linear ? { init, xs: terms, cs: weights, mask: mapped, scale: f } : undefined,
       });
     }
   });
@@ -288,9 +412,18 @@ function errorParts(
     // the process's parameters are checked now, as for the whole model
     ar1CellMeanSd(cells.days.subarray(0, 0), sd, rho, stepDays);
     let whole: Ar1CellMeans | null = null;
+    // cells of one length have one SD: the loading is that SD on the source's cells (a
+    // linear loading without columns, 1·(SD) = SD), computed as the blocks would compute it
+    let linear: LinearLoading | undefined;
+    if (shared && n > 0 && shared.uniformDays === shared.uniformDays) {
+      const sd1 = new Float64Array(1);
+      blockCellMeanSd(cells.days, 0, 1, sd, rho, stepDays, sd1);
+      linear = { init: sd1[0], xs: [], cs: [], mask: shared.sourceMask(which), scale: 1 };
+    }
     parts.push({
       source: "residual",
       label,
+      linear,
       lag1: () => (whole ??= ar1CellMeans(cells.days, sd, rho, stepDays)).lag1,
       block: (out, i0, i1) => {
         // a cell's SD depends on its own length only: the block's equals the whole's
@@ -373,7 +506,7 @@ function blockCellMeanSd(
 }
 
 /** Cells per block of the loadings (a few columns of 2,048 doubles stay in cache). */
-const BLOCK = 2048;
+const BLOCK = PREDICTION_BLOCK;
 
 /**
  * out[i − i0] = scale·(init + x_0[i]·c_0 + x_1[i]·c_1 + …), added in that order, where

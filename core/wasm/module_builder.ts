@@ -1,7 +1,7 @@
 /**
  * A minimal WebAssembly assembler for the hand-written kernels of core (the float32 matrix
  * product and the local-test tally of the field significance test, the lower-triangular mixing
- * of spectral ensembles): the few opcodes they use, by their WAT names, and a one-function
+ * of spectral ensembles, the prediction intervals of reconstructions): the few opcodes they use, by their WAT names, and a one-function
  * module importing `env.memory` (WebAssembly 2.0 binary format, §5). Kernels are thus read and
  * changed as listings, not as opaque bytes.
  *
@@ -78,6 +78,8 @@ export const wasmOp = {
   v128Load64Splat: (offset: number) => [0xfd, 0x0a, 3, ...uleb(offset)],
   v128Store: (offset: number) => [0xfd, 0x0b, 4, ...uleb(offset)],
   v128Zero: [0xfd, 0x0c, ...new Array<number>(16).fill(0)],
+  /** v128.const of two f64 lanes given by their bytes (little-endian, 8 per lane). */
+  v128ConstF64x2: (lane: readonly number[]) => [0xfd, 0x0c, ...lane, ...lane],
   /** v128.load64_zero (alignment 2^3): two f32 (or one f64) into the low half, zeros above. */
   v128Load64Zero: (offset: number) => [0xfd, ...uleb(0x5d), 3, ...uleb(offset)],
   f64x2Splat: [0xfd, ...uleb(0x14)],
@@ -89,9 +91,13 @@ export const wasmOp = {
   /** v128.andnot a b = a & ~b */
   v128AndNot: [0xfd, ...uleb(0x4f)],
   v128Or: [0xfd, ...uleb(0x50)],
+  /** v128.bitselect a b c = (a & c) | (b & ~c) */
+  v128Bitselect: [0xfd, ...uleb(0x52)],
   f64x2PromoteLowF32x4: [0xfd, ...uleb(0x5f)],
   i64x2Eq: [0xfd, ...uleb(0xd6)],
+  f64x2Sqrt: [0xfd, ...uleb(0xef)],
   f64x2Add: [0xfd, ...uleb(0xf0)],
+  f64x2Sub: [0xfd, ...uleb(0xf1)],
   f64x2Mul: [0xfd, ...uleb(0xf2)],
   f32x4Add: [0xfd, ...uleb(228)],
   f32x4Mul: [0xfd, ...uleb(230)],

@@ -3,6 +3,7 @@ import {
   errorModelVariance,
   fitLinearSunspotMapping,
   fitSaturatingSunspotMapping,
+  predictionIntervalKernel,
   proxyReconstructionErrorModel,
   proxyReconstructionVariance,
   reconstructFromProxies,
@@ -150,4 +151,72 @@ Deno.test("proxyReconstructionVariance() reports a bad cell length and a bad pro
   const e2 = message(() => proxyReconstructionErrorModel(rho, cells, d0));
   assert.match(e2, /rho must be in/);
   assert.equal(message(() => proxyReconstructionVariance(rho, cells, d0)), e2);
+});
+
+Deno.test("reconstructFromProxiesMany() with errorModel: false on daily cells (one length, odd count, linear mappings) gives the full path's numbers bit for bit", () => {
+  // the kernel's column-free residual loadings and its linear mapping loadings, a partial
+  // last block of odd length, cells without any value, and a band that cannot back-extend
+  const { models, cells } = bandCase();
+  const n = 6_145;
+  const r = cells.sunspot!.slice(0, n);
+  const calR = Array.from({ length: 60 }, (_, i) => 4 * i);
+  const mapP = fitLinearSunspotMapping(calR, calR.map((x) => 1e-4 * x + 1e-6 * Math.sin(x)));
+  const daily: ReconstructionCells = {
+    days: new Float64Array(n).fill(1),
+    direct: cells.direct.map((a) => a.slice(0, n).map((v, i) => (i >= 3_001 ? v : NaN))),
+    mappings: [cells.mappings[0], mapP],
+    sunspot: r,
+  };
+  const z = models.map((_, b) => 1.96 + 0.01 * b);
+  const full = reconstructFromProxiesMany(models, daily, z);
+  const lean = reconstructFromProxiesMany(models, daily, z, { errorModel: false });
+  assert.deepEqual([...new Set(lean[0].source)].sort(), [0, 1, 2]);
+  assert.ok(full[0].errorModel.factors.every((f) => f.source !== "input"));
+  lean.forEach((l, b) => {
+    for (const key of ["value", "sd", "lower", "upper"] as const) {
+      assert.ok(sameBytes(l[key], full[b][key]), `band ${b}: ${key} differs`);
+    }
+    assert.ok(l.sd.some((x) => x > 0));
+  });
+});
+
+Deno.test("reconstructFromProxiesMany() with errorModel: false on one cell and on none", () => {
+  const { models, cells } = bandCase();
+  for (const n of [1, 0]) {
+    const c: ReconstructionCells = {
+      days: cells.days.slice(4_000, 4_000 + n),
+      direct: cells.direct.map((a) => a.slice(4_000, 4_000 + n)),
+      mappings: cells.mappings,
+      sunspot: cells.sunspot!.slice(4_000, 4_000 + n),
+    };
+    const z = models.map(() => 1.96);
+    const full = reconstructFromProxiesMany(models, c, z);
+    const lean = reconstructFromProxiesMany(models, c, z, { errorModel: false });
+    lean.forEach((l, b) => {
+      assert.equal(l.value.length, n);
+      for (const key of ["value", "sd", "lower", "upper"] as const) {
+        assert.ok(sameBytes(l[key], full[b][key]), `${n} cells, band ${b}: ${key} differs`);
+      }
+    });
+  }
+});
+
+Deno.test("predictionIntervalKernel() declines a model with more loadings than it holds", () => {
+  const n = 5, mask = new Uint8Array(n).fill(1), x = new Float64Array(n).fill(2);
+  const k = predictionIntervalKernel(n);
+  if (!k) return; // without WebAssembly SIMD the plain path runs anyway
+  const out = () => ({
+    value: new Float64Array(n),
+    sd: new Float64Array(n),
+    lower: new Float64Array(n),
+    upper: new Float64Array(n),
+  });
+  assert.equal(k.bind([Array(17).fill(null), [], [], []], [x], [1, 1], mask, 1.96), false);
+  // 16 loadings computed in TypeScript: each enters as itself, squared
+  assert.equal(k.bind([Array(16).fill(null), [], [], []], [x], [1, 1], mask, 1.96), true);
+  for (let j = 0; j < 16; j++) k.scratch(j).fill(j === 3 ? 3 : j === 7 ? 4 : 0);
+  const o = out();
+  k.cells(0, n, o);
+  assert.deepEqual([...o.value], [3, 3, 3, 3, 3]);
+  assert.deepEqual([...o.sd], [5, 5, 5, 5, 5]);
 });
