@@ -20,6 +20,7 @@ import { openTransport } from "./queue/mod.ts";
 import { RUN_KINDS } from "./analyses/registry.ts";
 import { seriesCodec } from "./series_codec.ts";
 import { machineSpeedFactor } from "./runs/estimate.ts";
+import { setProductEngineSetting } from "./workers/openblas_product.ts";
 
 const t0 = performance.now();
 const config = readConfig(Deno.env.toObject());
@@ -48,7 +49,11 @@ if (config.demo && config.role !== "worker") {
   }
 }
 
-const pool = config.workers > 0 ? new WorkerPool(config.workers) : null;
+// the product engine of the field-significance chunks, here (in-thread compute) and in workers
+setProductEngineSetting(config.blas);
+const pool = config.workers > 0
+  ? new WorkerPool(config.workers, undefined, { blas: config.blas })
+  : null;
 const executor = pool ?? new InThreadExecutor();
 /**
  * Warm the compute workers up (api/workers/warm_up.ts) in the background once this process
