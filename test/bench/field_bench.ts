@@ -63,6 +63,19 @@ Deno.bench({
     fieldSignificanceChunk(chunk, blas!);
   },
 });
+// everything of a chunk but the product (surrogate rows, float32 copy, threshold pass): an
+// engine whose products are all zero (then nothing is significant or in a band)
+const zeros = new Float32Array(rows * plan.cellCount);
+const zero = {
+  name: "zero",
+  setRight() {},
+  multiply: () => ({ c: zeros, ldc: plan.cellCount }),
+};
+Deno.bench("field significance chunk: 25 surrogates × 2,592 cells × 25 lags, zero products", {
+  group: "chunk",
+}, () => {
+  fieldSignificanceChunk(chunk, zero);
+});
 Deno.bench("solar-signal map: 2,592 cells × 25 lags × 600 months", () => {
   solarSignalMap(inputs);
 });
