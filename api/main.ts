@@ -20,7 +20,7 @@ import { openTransport } from "./queue/mod.ts";
 import { RUN_KINDS } from "./analyses/registry.ts";
 import { seriesCodec } from "./series_codec.ts";
 import { machineSpeedFactor } from "./runs/estimate.ts";
-import { setProductEngineSetting } from "./workers/openblas_product.ts";
+import { productEngine, setProductEngineSetting } from "./workers/openblas_product.ts";
 
 const t0 = performance.now();
 const config = readConfig(Deno.env.toObject());
@@ -49,8 +49,10 @@ if (config.demo && config.role !== "worker") {
   }
 }
 
-// the product engine of the field-significance chunks, here (in-thread compute) and in workers
+// the product engine of the field-significance chunks, here (in-thread compute) and in workers;
+// loaded here too, so that a native library stays mapped while workers come and go
 setProductEngineSetting(config.blas);
+const productEngineName = productEngine().name;
 const pool = config.workers > 0
   ? new WorkerPool(config.workers, undefined, { blas: config.blas })
   : null;
@@ -82,6 +84,7 @@ if (config.role === "worker") {
     queue: transport.queue.engine,
     store: store.kind,
     workers: config.workers,
+    product_engine: productEngineName,
     startup_ms: Math.round(performance.now() - t0),
   }));
   warmWorkers();
@@ -105,6 +108,7 @@ if (config.role === "worker") {
         queue: transport.queue.engine,
         store: store.kind,
         workers: config.workers,
+        product_engine: productEngineName,
         speed_factor: speedFactor,
         keys_required: config.adminKey !== null,
         allowed_hosts: config.allowedHosts,
