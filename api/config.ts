@@ -27,6 +27,7 @@
  * | `SUNLAG_RATE_PER_SECOND` | `20` | requests per second per owner (anonymous: per address), token bucket |
  * | `SUNLAG_RATE_BURST` | `100` | bucket size of the request rate |
  * | `SUNLAG_INGEST_WORKERS` | `1` | Web Workers that parse and hash large uploads (`0` = in-thread) |
+ * | `SUNLAG_BLAS` | `auto` | `auto`: the field-significance products use the system's OpenBLAS where it loads (else WebAssembly); `off`: always WebAssembly. Results are identical either way |
  *
  * Quotas and the request rate apply to owners that are not admins and to anonymous callers;
  * the single-user tool (the built-in local owner, an admin) is never limited by them.
@@ -61,6 +62,8 @@ export interface Config {
   quotas: Quotas;
   /** Web Workers for parsing and hashing large uploads (0 = in the request thread). */
   ingestWorkers: number;
+  /** Use the system's OpenBLAS for the field-significance products where it loads. */
+  blas: "auto" | "off";
 }
 
 /** Per-owner limits (owners that are not admins, and anonymous callers). */
@@ -168,6 +171,7 @@ export function readConfig(env: Record<string, string | undefined>): Config {
       rateBurst: Math.max(1, Math.floor(num(env, "SUNLAG_RATE_BURST", 100, 1))),
     },
     ingestWorkers: Math.floor(num(env, "SUNLAG_INGEST_WORKERS", 1, 0)),
+    blas: readBlas(env.SUNLAG_BLAS),
   };
 }
 
@@ -184,6 +188,12 @@ function adminKey(raw: string | undefined): string | null {
     );
   }
   return raw;
+}
+
+function readBlas(raw: string | undefined): Config["blas"] {
+  if (raw === undefined || raw === "") return "auto";
+  if (raw === "auto" || raw === "off") return raw;
+  throw new RangeError(`Cannot read configuration: SUNLAG_BLAS must be auto or off, got "${raw}"`);
 }
 
 function readRole(raw: string | undefined): Config["role"] {

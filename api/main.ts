@@ -20,6 +20,7 @@ import { openTransport } from "./queue/mod.ts";
 import { RUN_KINDS } from "./analyses/registry.ts";
 import { seriesCodec } from "./series_codec.ts";
 import { machineSpeedFactor } from "./runs/estimate.ts";
+import { productEngine, setProductEngineSetting } from "./workers/openblas_product.ts";
 
 const t0 = performance.now();
 const config = readConfig(Deno.env.toObject());
@@ -48,7 +49,13 @@ if (config.demo && config.role !== "worker") {
   }
 }
 
-const pool = config.workers > 0 ? new WorkerPool(config.workers) : null;
+// the product engine of the field-significance chunks, here (in-thread compute) and in workers;
+// loaded here too, so that a native library stays mapped while workers come and go
+setProductEngineSetting(config.blas);
+const productEngineName = productEngine().name;
+const pool = config.workers > 0
+  ? new WorkerPool(config.workers, undefined, { blas: config.blas })
+  : null;
 const executor = pool ?? new InThreadExecutor();
 /**
  * Warm the compute workers up (api/workers/warm_up.ts) in the background once this process
@@ -77,6 +84,7 @@ if (config.role === "worker") {
     queue: transport.queue.engine,
     store: store.kind,
     workers: config.workers,
+    product_engine: productEngineName,
     startup_ms: Math.round(performance.now() - t0),
   }));
   warmWorkers();
@@ -100,6 +108,7 @@ if (config.role === "worker") {
         queue: transport.queue.engine,
         store: store.kind,
         workers: config.workers,
+        product_engine: productEngineName,
         speed_factor: speedFactor,
         keys_required: config.adminKey !== null,
         allowed_hosts: config.allowedHosts,

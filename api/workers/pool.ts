@@ -37,6 +37,7 @@ import type { FinishedResult } from "../runs/finish.ts";
 import type { InheritedNote } from "../runs/inherit.ts";
 import { plainResult } from "../store/result_text.ts";
 import { type SerialisedError, transferablesOf } from "./messages.ts";
+import type { BlasSetting } from "./openblas_product.ts";
 
 /** Default time a stopped run's work may keep a worker busy before the worker is replaced. */
 export const STOP_GRACE_MS = 1000;
@@ -171,6 +172,8 @@ export class WorkerPool implements ComputeExecutor {
   readonly graceMs: number;
   readonly recycleBytes: number;
   readonly recycleIdleMs: number;
+  /** Whether the workers may use OpenBLAS for float32 products (api/workers/openblas_product.ts). */
+  readonly blas: BlasSetting;
   /** Workers replaced by fresh ones after a very large result. */
   recycled = 0;
 
@@ -180,12 +183,18 @@ export class WorkerPool implements ComputeExecutor {
    * stopped run's work may keep a worker busy before the worker is replaced.
    * `options.recycleBytes`: a worker that finished a run whose finished result is at least
    * this many bytes is replaced once idle for `options.recycleIdleMs` (defaults
-   * {@link RECYCLE_RESULT_BYTES}, {@link RECYCLE_IDLE_MS}).
+   * {@link RECYCLE_RESULT_BYTES}, {@link RECYCLE_IDLE_MS}). `options.blas`: the product
+   * engine setting each worker is given first (default `auto`).
    */
   constructor(
     readonly size: number,
     readonly registry: string = new URL("../analyses/registry.ts", import.meta.url).href,
-    options: { graceMs?: number; recycleBytes?: number; recycleIdleMs?: number } = {},
+    options: {
+      graceMs?: number;
+      recycleBytes?: number;
+      recycleIdleMs?: number;
+      blas?: BlasSetting;
+    } = {},
   ) {
     if (!Number.isInteger(size) || size < 1) {
       throw new RangeError(
@@ -195,6 +204,7 @@ export class WorkerPool implements ComputeExecutor {
     this.graceMs = options.graceMs ?? STOP_GRACE_MS;
     this.recycleBytes = options.recycleBytes ?? RECYCLE_RESULT_BYTES;
     this.recycleIdleMs = options.recycleIdleMs ?? RECYCLE_IDLE_MS;
+    this.blas = options.blas ?? "auto";
     for (let i = 0; i < size; i++) {
       const slot: Slot = {
         index: i,
@@ -210,10 +220,13 @@ export class WorkerPool implements ComputeExecutor {
 
   /** Start one worker (overridable in tests). */
   protected spawn(_index: number): Worker {
-    return new Worker(new URL("./worker.ts", import.meta.url).href, {
+    const worker = new Worker(new URL("./worker.ts", import.meta.url).href, {
       type: "module",
       name: this.registry,
     });
+    // the worker's settings come first, before any job
+    worker.postMessage({ type: "configure", blas: this.blas });
+    return worker;
   }
 
   /**

@@ -7,7 +7,10 @@
  *   with `finish` (`{ notes, autoSave }`), `done` carries the finished result
  *   (api/runs/finish.ts: canonical bytes, transferred, digest and auto-saved outputs)
  * - in  `{ type: "task", job, task, input, stop? }` → out `done` or `error`
+ * - in  `{ type: "configure", blas }` (the pool's first message) → no answer: the product engine
+ *   setting of the field-significance chunks (api/workers/openblas_product.ts)
  * - in  `{ type: "warm", job }` → out `done` with the warm-up's timings (api/workers/warm_up.ts)
+ *   and the product engine this worker uses
  * - in  `{ type: "parallel-result", req, results | error }`
  * - out `{ type: "ready" }` once the analyses are loaded
  *
@@ -25,6 +28,7 @@ import { taskTable } from "../analyses/derive.ts";
 import { serialiseError, transferablesOf } from "./messages.ts";
 import { warmUp } from "./warm_up.ts";
 import { finishResult } from "../runs/finish.ts";
+import { productEngine, setProductEngineSetting } from "./openblas_product.ts";
 
 /**
  * The analyses come from the registry module the pool names in the worker's `name` (a module
@@ -50,6 +54,10 @@ function stopTest(stop: Int32Array | undefined): () => boolean {
 
 self.onmessage = async (e: MessageEvent) => {
   const m = e.data;
+  if (m.type === "configure") {
+    setProductEngineSetting(m.blas === "off" ? "off" : "auto");
+    return;
+  }
   if (m.type === "parallel-result") {
     const w = waiting.get(m.req);
     waiting.delete(m.req);
@@ -59,7 +67,10 @@ self.onmessage = async (e: MessageEvent) => {
   }
   const { kinds, tasks } = await registry;
   if (m.type === "warm") {
-    self.postMessage({ type: "done", job: m.job, result: await warmUp(kinds, tasks) });
+    const timings = await warmUp(kinds, tasks);
+    // the engine is loaded now rather than in the first run (it is not part of any result)
+    const result = { ...timings, product_engine: productEngine().name };
+    self.postMessage({ type: "done", job: m.job, result });
     return;
   }
   if (m.type === "task") {

@@ -9,8 +9,9 @@
  *   a 4 × 12 register tile accumulated over the whole time axis.
  * - {@link jsFloat32Product}: the same product in plain TypeScript (a reference for tests and
  *   a fallback where WebAssembly is missing).
- * A BLAS `sgemm` (e.g. OpenBLAS through Deno's FFI, outside core) can implement the same
- * interface.
+ * A BLAS `sgemm` implements the same interface outside core (the service's OpenBLAS engine
+ * through Deno's FFI: api/workers/openblas_product.ts); the field-significance decisions do
+ * not depend on which engine computes the products.
  *
  * Written by hand because no maintained npm package offers a float32 GEMM in WebAssembly
  * SIMD, and the plain-JS loop below is 16–36 times slower (same shapes, same machine).

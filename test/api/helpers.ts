@@ -10,6 +10,7 @@ import { type Config, testConfig } from "../../api/config.ts";
 import { openStoreFromSpec } from "../../api/store/mod.ts";
 import { InThreadExecutor } from "../../api/runs/service.ts";
 import { WorkerPool } from "../../api/workers/pool.ts";
+import { setProductEngineSetting } from "../../api/workers/openblas_product.ts";
 import type { ComputeExecutor } from "../../api/runs/service.ts";
 import type { RunKind } from "../../api/runs/kind.ts";
 import { randomStream } from "../../core/random/mod.ts";
@@ -28,7 +29,8 @@ export async function makeTestApp(
 ): Promise<TestService> {
   const config = testConfig({ ...opts.config, workers: opts.workers ?? 0 });
   const store = await openStoreFromSpec(opts.store ?? "sqlite::memory:");
-  const pool = opts.workers ? new WorkerPool(opts.workers) : null;
+  setProductEngineSetting(config.blas);
+  const pool = opts.workers ? new WorkerPool(opts.workers, undefined, { blas: config.blas }) : null;
   const executor: ComputeExecutor = pool ?? new InThreadExecutor();
   const svc = createService({ store, config, executor, kinds: opts.kinds });
   return {

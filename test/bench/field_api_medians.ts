@@ -1,8 +1,9 @@
 /**
  * Side-by-side medians of the field-significance workload (field_case.ts: 5° field, 600 months,
  * lags 0..24, 1,000 surrogates) through the API (field_api_run.ts: upload, then `POST
- * /v1/solar-signal-maps` on 2 Web Workers), the same test called on core directly
- * (field_run.ts wasm2), and the numpy peer as a researcher writes it (field_numpy.py, float64),
+ * /v1/solar-signal-maps` on 2 Web Workers, with `SUNLAG_BLAS=auto`, OpenBLAS where it loads, and
+ * `off`, WebAssembly), the same test called on core directly with the service's chunk task
+ * (field_run.ts blas2), and the numpy peer as a researcher writes it (field_numpy.py, float64),
  * each in its own process, in interleaved rounds; peak resident memory of each.
  *
  *   deno run -A test/bench/field_api_medians.ts [rounds]
@@ -22,6 +23,7 @@ interface Run {
   peakBytes: number;
   pField: number;
   observedBest: number;
+  resultDigest?: string;
 }
 
 function run(cmd: string, args: string[]): Run {
@@ -34,8 +36,9 @@ function run(cmd: string, args: string[]): Run {
 await writeFieldCase(DIR);
 const deno = Deno.execPath();
 const contenders: [string, () => Run][] = [
-  ["sunlag API, 2 workers", () => run(deno, ["run", "-A", here("field_api_run.ts")])],
-  ["sunlag core, 2 workers", () => run(deno, ["run", "-A", here("field_run.ts"), "wasm2"])],
+  ["sunlag API, 2 workers", () => run(deno, ["run", "-A", here("field_api_run.ts"), "auto"])],
+  ["sunlag core, 2 workers", () => run(deno, ["run", "-A", here("field_run.ts"), "blas2"])],
+  ["sunlag API off, 2 workers", () => run(deno, ["run", "-A", here("field_api_run.ts"), "off"])],
   ["numpy float64", () => run("/usr/bin/python3", [here("field_numpy.py"), DIR, "float64"])],
 ];
 const rows = new Map(contenders.map(([n]) => [n, [] as Run[]]));
@@ -52,9 +55,15 @@ console.log(JSON.stringify(
       peakMiB: Math.max(...rs.map((x) => x.peakBytes)) / 2 ** 20,
       pField: rs[0].pField,
       observedBest: rs[0].observedBest,
+      seconds: rs.map((x) => +x.seconds.toFixed(3)),
+      resultDigests: [...new Set(rs.map((x) => x.resultDigest))],
     }])),
     ratioApiToCore: median(api.map((x, i) => x.seconds / core[i].seconds)),
     ratioApiToNumpy: median(api.map((x, i) => x.seconds / np[i].seconds)),
+    ratioApiToNumpyPerRound: api.map((x, i) => +(x.seconds / np[i].seconds).toFixed(3)),
+    ratioApiToApiOff: median(
+      api.map((x, i) => x.seconds / rows.get("sunlag API off, 2 workers")![i].seconds),
+    ),
   },
   null,
   2,

@@ -7,7 +7,9 @@
  * stored result; the upload timed apart), peak resident memory, and the result's field
  * significance (to compare with field_run.ts and the numpy peer).
  *
- *   deno run -A test/bench/field_api_run.ts
+ *   deno run -A test/bench/field_api_run.ts [auto | off]
+ *
+ * The argument is the service's `SUNLAG_BLAS` (default auto: OpenBLAS where it loads).
  *
  * @module
  */
@@ -69,10 +71,11 @@ const nc = encodeNetcdf3({
 });
 
 const store = await openSqliteStore({ path: ":memory:" });
-const pool = new WorkerPool(2);
+const blas = Deno.args[0] === "off" ? "off" : "auto";
+const pool = new WorkerPool(2, undefined, { blas });
 const { app, runs } = createService({
   store,
-  config: testConfig({ workers: 2 }),
+  config: testConfig({ workers: 2, blas }),
   executor: pool,
 });
 const t0 = performance.now();
@@ -125,7 +128,8 @@ const run = await (await app.request(`/v1/runs/${id}`)).json();
 if (run.status !== "succeeded") throw new Error(JSON.stringify(run.error));
 const mc = run.result.field_significance.monte_carlo;
 console.log(JSON.stringify({
-  variant: "api",
+  variant: `api ${blas}`,
+  resultDigest: run.result_digest,
   seconds,
   uploadSeconds,
   stages: { upload: uploadSeconds },

@@ -3,15 +3,17 @@
  * field_case.ts (5° field, 2,592 cells, 600 months, lags 0..24, 1,000 surrogates, best-lag
  * statistic), whole test from the field in memory, peak resident memory of each process:
  *
- * - sunlag, WebAssembly SIMD float32 kernel on 2 Web Workers (field_run.ts wasm2)
- * - sunlag, the same in one thread (wasm1)
- * - sunlag, one thread with OpenBLAS sgemm through Deno's FFI (blas; where the library exists)
+ * - sunlag on 2 Web Workers through the service's chunk task with its default engine: OpenBLAS
+ *   sgemm through Deno's FFI, one OpenBLAS thread per worker (field_run.ts blas2; where the
+ *   library exists, else the WebAssembly engine is the production path);
+ * - the same with `SUNLAG_BLAS=off`, the WebAssembly SIMD float32 kernel (wasm2);
+ * - the same as blas2 with OpenBLAS's own thread count (blas2-default-threads);
  * - numpy/scipy as a researcher writes it (field_numpy.py), numpy's default float64 and a
  *   float32 variant, with OPENBLAS_CORETYPE and OPENBLAS_L2_SIZE unset for numpy alone.
  *
  * Every contender runs in its own process, in interleaved rounds (the machine is shared and
  * its load changes from minute to minute); medians per contender, and the median of the
- * per-round ratios.
+ * per-round ratios. The sunlag variants must print the same result SHA-256.
  *
  *   deno run -A test/bench/field_medians.ts [rounds]
  *
@@ -34,6 +36,7 @@ interface Run {
   nullQ95: number;
   stages: Record<string, number>;
   engine?: string;
+  resultSha256?: string;
   versions?: Record<string, string>;
 }
 
@@ -68,13 +71,15 @@ const hasBlas = (() => {
 })();
 
 await writeFieldCase(DIR);
+const PROD = hasBlas ? "sunlag OpenBLAS, 2 workers" : "sunlag wasm, 2 workers";
+const sunlag = (variant: string) => () => run(deno, ["run", "-A", here("field_run.ts"), variant]);
 const contenders: [string, () => Run][] = [
-  ["sunlag wasm, 2 workers", () => run(deno, ["run", "-A", here("field_run.ts"), "wasm2"])],
+  ...(hasBlas ? [[PROD, sunlag("blas2")] as [string, () => Run]] : []),
   ["numpy float64", () => run("/usr/bin/python3", [here("field_numpy.py"), DIR, "float64"], pyEnv)],
   ["numpy float32", () => run("/usr/bin/python3", [here("field_numpy.py"), DIR, "float32"], pyEnv)],
-  ["sunlag wasm, 1 thread", () => run(deno, ["run", "-A", here("field_run.ts"), "wasm1"])],
+  ["sunlag wasm, 2 workers", sunlag("wasm2")],
   ...(hasBlas
-    ? [["sunlag OpenBLAS FFI", () => run(deno, ["run", "-A", here("field_run.ts"), "blas"])] as [
+    ? [["sunlag OpenBLAS default threads, 2 workers", sunlag("blas2-default-threads")] as [
       string,
       () => Run,
     ]]
@@ -87,11 +92,19 @@ for (let r = 0; r < ROUNDS; r++) {
 }
 const load1 = Deno.loadavg()[0];
 
-const ours = runs.get("sunlag wasm, 2 workers")!, np64 = runs.get("numpy float64")!;
-const np32 = runs.get("numpy float32")!;
+const ours = runs.get(PROD)!, np64 = runs.get("numpy float64")!;
+const np32 = runs.get("numpy float32")!, wasm2 = runs.get("sunlag wasm, 2 workers")!;
+const ratio = (xs: Run[], ys: Run[]) => median(xs.map((r, i) => r.seconds / ys[i].seconds));
+const perRound = (xs: Run[], ys: Run[]) =>
+  xs.map((r, i) => +(r.seconds / ys[i].seconds).toFixed(3));
 // the observed statistic is deterministic: sunlag and numpy float64 must agree on it
 const maxDiff = Math.max(
   ...ours[0].observedFraction.map((v, j) => Math.abs(v - np64[0].observedFraction[j])),
+);
+const digests = new Set(
+  [...runs].filter(([n]) => n.startsWith("sunlag")).flatMap(([, rs]) =>
+    rs.map((r) => r.resultSha256)
+  ),
 );
 const summary = {
   rounds: ROUNDS,
@@ -100,6 +113,7 @@ const summary = {
   contenders: Object.fromEntries(
     [...runs].map(([name, rs]) => [name, {
       medianSeconds: median(rs.map((r) => r.seconds)),
+      seconds: rs.map((r) => +r.seconds.toFixed(3)),
       stages: Object.fromEntries(
         Object.keys(rs[0].stages).map((k) => [k, median(rs.map((r) => r.stages[k]))]),
       ),
@@ -110,15 +124,22 @@ const summary = {
       engine: rs[0].engine,
     }]),
   ),
-  ratioWasm2ToNumpy64: median(ours.map((r, i) => r.seconds / np64[i].seconds)),
-  ratioWasm2ToNumpy32: median(ours.map((r, i) => r.seconds / np32[i].seconds)),
+  production: PROD,
+  ratioToNumpy64: ratio(ours, np64),
+  ratioToNumpy64PerRound: perRound(ours, np64),
+  ratioToNumpy32: ratio(ours, np32),
+  ratioToNumpy32PerRound: perRound(ours, np32),
+  ratioToWasm2: ratio(ours, wasm2),
+  ratioWasm2ToNumpy64: ratio(wasm2, np64),
   ...(hasBlas
     ? {
-      ratioBlasToNumpy64: median(
-        runs.get("sunlag OpenBLAS FFI")!.map((r, i) => r.seconds / np64[i].seconds),
+      ratioDefaultThreadsToOneThread: ratio(
+        runs.get("sunlag OpenBLAS default threads, 2 workers")!,
+        ours,
       ),
     }
     : {}),
+  sunlagResultSha256: [...digests],
   observedFractionMaxDiffVsNumpy64: maxDiff,
 };
 await Deno.writeTextFile(
@@ -131,18 +152,27 @@ console.log(
 );
 for (const [name, c] of Object.entries(summary.contenders)) {
   console.log(
-    `  ${name.padEnd(24)} ${c.medianSeconds.toFixed(2)} s   peak ${c.peakMiB.toFixed(0)} MiB   p ${
+    `  ${name.padEnd(44)} ${c.medianSeconds.toFixed(2)} s   peak ${c.peakMiB.toFixed(0)} MiB   p ${
       c.pField.toFixed(4)
     }`,
   );
 }
 console.log(
-  `  ratio sunlag (2 workers) / numpy float64: ${summary.ratioWasm2ToNumpy64.toFixed(2)}`,
+  `  ${PROD} / numpy float64: ${summary.ratioToNumpy64.toFixed(2)} (rounds ${
+    summary.ratioToNumpy64PerRound.join(", ")
+  })`,
 );
 console.log(
-  `  ratio sunlag (2 workers) / numpy float32: ${summary.ratioWasm2ToNumpy32.toFixed(2)}`,
+  `  ${PROD} / numpy float32: ${summary.ratioToNumpy32.toFixed(2)} (rounds ${
+    summary.ratioToNumpy32PerRound.join(", ")
+  })`,
 );
+console.log(`  ${PROD} / sunlag wasm: ${summary.ratioToWasm2.toFixed(2)}`);
+console.log(`  sunlag wasm / numpy float64: ${summary.ratioWasm2ToNumpy64.toFixed(2)}`);
 if (hasBlas) {
-  console.log(`  ratio sunlag OpenBLAS / numpy float64: ${summary.ratioBlasToNumpy64!.toFixed(2)}`);
+  console.log(
+    `  OpenBLAS default threads / 1 thread: ${summary.ratioDefaultThreadsToOneThread!.toFixed(2)}`,
+  );
 }
+console.log(`  sunlag result SHA-256: ${summary.sunlagResultSha256.join(", ")}`);
 console.log(`  observed fractions, max |sunlag − numpy float64|: ${maxDiff.toExponential(1)}`);

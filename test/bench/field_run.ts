@@ -4,11 +4,16 @@
  * plan, surrogates × cells, reducer) and per stage, the process's peak resident memory, and
  * the results (to compare with the numpy peer).
  *
- *   deno run -A test/bench/field_run.ts [wasm2 | wasm1 | blas]
+ *   deno run -A test/bench/field_run.ts [blas2 | wasm2 | blas2-default-threads | wasm1 | blas]
  *
- * wasm2: the map's cell blocks and the surrogate chunks on 2 Web Workers, split as the service
- * splits them for the map (the pool is started before the clock, as the service keeps its pool); wasm1: one thread; blas: one thread with OpenBLAS sgemm through FFI
- * (OpenBLAS runs its own 2 threads).
+ * blas2: the map's cell blocks and the surrogate chunks on 2 Web Workers, split as the service
+ * splits them for the map (the pool is started before the clock, as the service keeps its
+ * pool), each chunk through the service's task with its default engine (OpenBLAS sgemm through
+ * FFI, one OpenBLAS thread per worker; api/workers/openblas_product.ts); wasm2: the same with
+ * `SUNLAG_BLAS=off` (WebAssembly SIMD); blas2-default-threads: 2 workers with OpenBLAS's own
+ * thread count; wasm1: one thread, WebAssembly; blas: one thread with OpenBLAS running its own
+ * threads. The printed `resultSha256` (SHA-256 of the combined result) must be the same for
+ * every variant.
  *
  * @module
  */
@@ -29,9 +34,14 @@ import {
   wasmFloat32Product,
 } from "../../core/field/mod.ts";
 import { fieldCase, MAX_LAG, SEED, SURROGATES } from "./field_case.ts";
-import { blasFloat32Product } from "./blas_ffi_product.ts";
+import { openBlasFloat32Product } from "../../api/workers/openblas_product.ts";
 
-const variant = Deno.args[0] ?? "wasm2";
+const variant = Deno.args[0] ?? "blas2";
+const WORKER_ENGINE: Record<string, string> = {
+  blas2: "auto",
+  wasm2: "off",
+  "blas2-default-threads": "auto-default-threads",
+};
 const PER_TASK = 125;
 const { field, x, weights } = fieldCase();
 
@@ -41,13 +51,17 @@ function peakRss(): number {
   return kb * 1024;
 }
 
-const pool = variant === "wasm2"
+const pool = variant in WORKER_ENGINE
   ? Array.from(
     { length: 2 },
-    () => new Worker(new URL("./field_worker.ts", import.meta.url).href, { type: "module" }),
+    () =>
+      new Worker(new URL("./field_worker.ts", import.meta.url).href, {
+        type: "module",
+        name: WORKER_ENGINE[variant],
+      }),
   )
   : [];
-const blas = variant === "blas" ? blasFloat32Product() : null;
+const blas = variant === "blas" ? openBlasFloat32Product({ threads: "default" }) : null;
 if (variant === "blas" && !blas) throw new Error("OpenBLAS could not be loaded");
 const engine = blas ?? wasmFloat32Product();
 
@@ -111,11 +125,20 @@ const tallies = pool.length > 0
   : tasks.map((t) => fieldSignificanceChunk(t, engine));
 const result = combineFieldMonteCarlo(plan, tallies);
 const t4 = performance.now();
+const peakBytes = peakRss();
 pool.forEach((w) => w.terminate());
 
+const canonical = JSON.stringify(
+  result,
+  (_, v) => (ArrayBuffer.isView(v) ? Array.from(v as Float64Array) : v),
+);
+const digest = await crypto.subtle.digest("SHA-256", new TextEncoder().encode(canonical));
+const probe = openBlasFloat32Product({ threads: "default" });
 console.log(JSON.stringify({
   variant,
-  engine: blas ? `${blas.name} (${blas.core})` : engine.name,
+  engine: WORKER_ENGINE[variant] ?? (blas ? `${blas.name} (${blas.core})` : engine.name),
+  openblasCore: probe?.core ?? null,
+  resultSha256: Array.from(new Uint8Array(digest), (b) => b.toString(16).padStart(2, "0")).join(""),
   seconds: (t4 - t0) / 1000,
   stages: {
     prepare: (t1 - t0) / 1000,
@@ -123,7 +146,7 @@ console.log(JSON.stringify({
     plan: (t3 - t2) / 1000,
     surrogates: (t4 - t3) / 1000,
   },
-  peakBytes: peakRss(),
+  peakBytes,
   pField: result.pField,
   observedFraction: result.observedFraction,
   observedBest: result.observedBest,

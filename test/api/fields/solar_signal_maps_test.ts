@@ -14,6 +14,7 @@ import {
   uploadSeries,
 } from "../helpers.ts";
 import { gridNetcdf } from "./grid_file.ts";
+import { openBlasFloat32Product, productEngine } from "../../../api/workers/openblas_product.ts";
 
 const ref = JSON.parse(
   await Deno.readTextFile(new URL("../../../fixtures/field/reference.json", import.meta.url)),
@@ -207,6 +208,33 @@ Deno.test("solar-signal-maps: the Monte Carlo test gives the same digest on 1 th
     await a.close();
     await b.close();
   }
+});
+
+Deno.test("solar-signal-maps: the Monte Carlo digest is the same with SUNLAG_BLAS=off and auto", async () => {
+  const body = (ids: { field: string; solar: string }) => ({
+    field: ids.field,
+    solar: ids.solar,
+    min_lag: 0,
+    max_lag: 3,
+    surrogates: 199,
+    seed: 8,
+  });
+  const digest = async (blas: "off" | "auto", workers: number, engine: string) => {
+    const svc = await makeTestApp({ config: { blas }, workers });
+    try {
+      const run = await runMap(svc, body(await setUp(svc)));
+      // in-thread runs use this thread's engine: the one the configuration asked for
+      if (workers === 0) assert.equal(productEngine().name, engine);
+      return run.result_digest as string;
+    } finally {
+      await svc.close();
+    }
+  };
+  const blas = openBlasFloat32Product() ? "openblas-sgemm" : "wasm-simd-f32";
+  const off = await digest("off", 0, "wasm-simd-f32");
+  assert.equal(await digest("auto", 0, blas), off);
+  assert.equal(await digest("auto", 2, blas), off);
+  assert.equal(await digest("off", 2, "wasm-simd-f32"), off);
 });
 
 Deno.test("solar-signal-maps: a field with no time overlap, and a field a run uses, answer problems", async () => {
