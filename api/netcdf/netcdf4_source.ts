@@ -10,7 +10,8 @@
  * has a deadline; a request that passes it (a damaged file can make the library loop) or a
  * worker that dies (the library can abort on a damaged file) fails its requests with a
  * `NetcdfError` and the worker is replaced on the next request. A worker starts on first use
- * (about 0.1 s to load the WebAssembly module), or earlier through {@link warmNetcdf4}.
+ * (loading the WebAssembly module takes about 0.3 s of CPU), or earlier through
+ * {@link warmNetcdf4}.
  *
  * @module
  */
@@ -28,12 +29,14 @@ import {
 export const NETCDF4_TIMEOUT_SECONDS = { open: 20, read: 120 };
 
 /**
- * Reader workers: two where the machine has two cores or more (a 150 MB NetCDF-4 field's blocks
- * then decode two at a time; test/bench/field_upload_medians.ts), else one. Change it before
- * the first read (tests, benchmarks).
+ * Reader workers: one per two cores, at most two. On a 2-core machine one: a second reader
+ * decoded blocks in parallel but competed with the upload's hashing and SQLite writer for the
+ * same two cores, and no upload of the 150 MB benchmark field was measurably faster with it
+ * (test/bench/field_upload_run.ts --readers=2), while it holds a second WebAssembly heap.
+ * Change it before the first read (tests, benchmarks).
  */
 export const NETCDF4_POOL = {
-  readers: Math.max(1, Math.min(2, navigator.hardwareConcurrency || 1)),
+  readers: Math.max(1, Math.min(2, Math.floor((navigator.hardwareConcurrency || 1) / 2))),
 };
 
 interface Pending {
@@ -134,9 +137,8 @@ function worker(slot: number): H5Worker {
 }
 
 /**
- * Start the reader workers now, so that loading the WebAssembly module overlaps with other
- * work (an upload calls this when its first bytes show the HDF5 signature, while the rest of
- * the body is still being written to disk).
+ * Start the reader workers now (benchmarks, or a service that wants its first NetCDF-4 read
+ * without the wait of loading the WebAssembly module, about 0.3 s of CPU per worker).
  *
  * @returns resolves when they are ready (or failed: the next read starts new ones)
  */
