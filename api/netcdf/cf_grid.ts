@@ -179,8 +179,10 @@ export async function* readCfGridBlocks(
     const { start, n, raw } = inFlight.shift()!;
     const stored = await raw;
     request();
-    // float32 as stored decodes in place (the block is this reader's own copy)
-    const values = stored instanceof Float32Array ? stored : new Float32Array(n * per);
+    // Decoded into a new array even when stored as float32: decoding in place saved about
+    // 70 ms of CPU on a 150 MB field but raised the upload's peak memory by about 110 MiB
+    // (buffers transferred from the NetCDF-4 worker are collected later than ones made here).
+    const values = new Float32Array(n * per);
     cfMaskAndScale(stored, v.type, packing, values);
     yield { start, rows: n, values };
   }

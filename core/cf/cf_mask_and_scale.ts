@@ -146,8 +146,7 @@ function plan(type: NetcdfType, a: CfPackingAttributes): Plan {
  * @param raw the stored values (any numeric array: Int16Array, Float32Array, number[] ...)
  * @param type their NetCDF type
  * @param attributes the variable's attributes
- * @param into optional output of `raw.length` to fill (a Float32Array rounds float64 results);
- *   it may be `raw` itself (each value is read before it is written)
+ * @param into optional output of `raw.length` to fill (a Float32Array rounds float64 results)
  * @returns the decoded values and their type (`float32` values are exact in the Float64Array)
  * @throws {RangeError} when `into` has the wrong length
  * @example
@@ -185,8 +184,7 @@ export function cfMaskAndScale(
   const s = scale === undefined ? undefined : f32 ? Math.fround(scale) : scale;
   const o = offset === undefined ? undefined : f32 ? Math.fround(offset) : offset;
   if (nf === 0 && s === undefined && o === undefined && !unsignedBits && !signedBits) {
-    // nothing to decode: a typed-array copy (rounds only into a Float32Array), none in place
-    if (out !== raw) out.set(raw);
+    out.set(raw); // nothing to decode: a typed-array copy (rounds only into a Float32Array)
     return { values: out, type: p.out };
   }
   const uMod = unsignedBits ? 2 ** unsignedBits : 0;
