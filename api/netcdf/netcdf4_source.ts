@@ -137,8 +137,9 @@ function worker(slot: number): H5Worker {
 }
 
 /**
- * Start the reader workers now (benchmarks, or a service that wants its first NetCDF-4 read
- * without the wait of loading the WebAssembly module, about 0.3 s of CPU per worker).
+ * Start the reader workers now, so that loading the WebAssembly module (about 0.3 s of CPU per
+ * worker) overlaps with other work: an upload calls this when its first bytes show the HDF5
+ * signature, while the rest of the body is still being written to disk.
  *
  * @returns resolves when they are ready (or failed: the next read starts new ones)
  */
