@@ -1,7 +1,7 @@
 /**
  * Where a field upload's time goes: each stage of `POST /v1/fields` run alone, one after the
- * other, on the benchmark file (field_upload_make.py): the body copied to a temporary file,
- * open and describe, the NetCDF-4 reads (the h5wasm worker, blocks as the upload reads them),
+ * other, on the benchmark file (field_upload_make.py): the body copied to a temporary file
+ * (the HDF5 reader loads meanwhile, as in the upload), open and describe, the NetCDF-4 reads (the h5wasm worker, blocks as the upload reads them),
  * the CF decode (mask and unpack), the missing-value check, SHA-256, and the SQLite block
  * writes (with `synchronous = FULL`, in this thread, as the store's writer worker does them). Wall
  * and CPU milliseconds of each (CPU of the whole process: the stages run one at a time). The
