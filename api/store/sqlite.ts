@@ -420,6 +420,7 @@ export class SqliteStore implements Store {
     busy_timeout: number;
     synchronous: number;
     foreign_keys: number;
+    wal_autocheckpoint: number;
   } {
     const one = (pragma: string) => {
       const row = this.#db.prepare(`PRAGMA ${pragma}`).get() as Row;
@@ -430,6 +431,7 @@ export class SqliteStore implements Store {
       busy_timeout: Number(one("busy_timeout")),
       synchronous: Number(one("synchronous")),
       foreign_keys: Number(one("foreign_keys")),
+      wal_autocheckpoint: Number(one("wal_autocheckpoint")),
     };
   }
 
