@@ -30,9 +30,10 @@ export const NETCDF4_TIMEOUT_SECONDS = { open: 20, read: 120 };
 
 /**
  * Reader workers: one per two cores, at most two. On a 2-core machine one: a second reader
- * decoded blocks in parallel but competed with the upload's hashing and SQLite writer for the
- * same two cores, and no upload of the 150 MB benchmark field was measurably faster with it
- * (test/bench/field_upload_run.ts --readers=2), while it holds a second WebAssembly heap.
+ * decodes blocks in parallel but competes with the upload's hashing and SQLite writer for the
+ * same two cores; uploads of the 150 MB benchmark field were not measurably faster with it (9
+ * alternating rounds of test/bench/field_upload_run.ts --readers=1 and 2: median wall-time ratio
+ * 1.06, from 0.53 to 1.26) and took 0.2 to 0.3 s more CPU and about 65 MiB more peak memory.
  * Change it before the first read (tests, benchmarks).
  */
 export const NETCDF4_POOL = {
