@@ -205,6 +205,48 @@ function staging(grid: CfGrid, src: NetcdfSource, q: FieldUploadParams): FieldSt
   };
 }
 
+/**
+ * Check one block of decoded values before it is hashed and stored: every NaN is rewritten as
+ * the one canonical quiet NaN (so the content id does not depend on the NaN payloads a file
+ * held), missing values are counted, the finite range is taken, and an infinite value is
+ * refused (CF marks missing data with `_FillValue`/`missing_value`, not with infinities).
+ *
+ * @param v the block's values (changed in place: NaN made canonical)
+ * @param variable the variable's name (for the message)
+ * @param start the block's first time step (for the message)
+ * @param per values per time step
+ * @returns the count of missing values and the least and greatest finite values (±Infinity
+ *   when none)
+ * @throws {NetcdfError} `bad_coordinate` at the first infinite value
+ */
+export function checkFieldValues(
+  v: Float32Array,
+  variable: string,
+  start: number,
+  per: number,
+): { missing: number; min: number; max: number } {
+  let missing = 0, min = Infinity, max = -Infinity;
+  for (let i = 0; i < v.length; i++) {
+    const x = v[i];
+    if (x !== x) {
+      v[i] = NaN; // one NaN bit pattern, whatever the file held
+      missing++;
+    } else if (!Number.isFinite(x)) {
+      throw new NetcdfError(
+        "bad_coordinate",
+        `Variable "${variable}" holds an infinite value at time step ${
+          start + Math.floor(i / per)
+        }; mark missing values with _FillValue or missing_value`,
+        { variable: variable },
+      );
+    } else {
+      if (x < min) min = x;
+      if (x > max) max = x;
+    }
+  }
+  return { missing, min, max };
+}
+
 /** Let pending promise steps (and I/O callbacks) run before the caller goes on. */
 function macrotask(): Promise<void> {
   return new Promise((resolve) => setTimeout(resolve, 0));
@@ -266,24 +308,10 @@ export async function storeNetcdfField(
       await macrotask();
       const b = step.value;
       const v = b.values;
-      for (let i = 0; i < v.length; i++) {
-        const x = v[i];
-        if (x !== x) {
-          v[i] = NaN; // one NaN bit pattern, whatever the file held
-          missing++;
-        } else if (!Number.isFinite(x)) {
-          throw new NetcdfError(
-            "bad_coordinate",
-            `Variable "${grid.variable}" holds an infinite value at time step ${
-              b.start + Math.floor(i / (meta.n_lat * meta.n_lon))
-            }; mark missing values with _FillValue or missing_value`,
-            { variable: grid.variable },
-          );
-        } else {
-          if (x < min) min = x;
-          if (x > max) max = x;
-        }
-      }
+      const seen = checkFieldValues(v, grid.variable, b.start, meta.n_lat * meta.n_lon);
+      missing += seen.missing;
+      if (seen.min < min) min = seen.min;
+      if (seen.max > max) max = seen.max;
       hash.update(float32ToBytesLE(v));
       await writing;
       writing = store.putFieldBlock(stage, block++, b.start, b.rows, v);

@@ -19,7 +19,7 @@ import {
 import { type CfPlacedTimeAxis, placeCfTimeAxis, readCfTimeAxis } from "./cf_time_axis.ts";
 import { packingOf, timeDimensionOf } from "./cf_variables.ts";
 import { NetcdfError, shown } from "./errors.ts";
-import { type NetcdfSource, variableOf } from "./source.ts";
+import { type NetcdfSource, type StoredValues, variableOf } from "./source.ts";
 
 /** A gridded variable: its axes and how its values decode. */
 export interface CfGrid {
@@ -144,8 +144,9 @@ export interface CfGridBlock {
 }
 
 /**
- * Read a grid in blocks of time steps, decoded to float32. Only one block (stored and decoded)
- * is in memory at a time.
+ * Read a grid in blocks of time steps, decoded to float32. Blocks are read ahead, as many at
+ * once as the source reads in parallel (`concurrentReads`, one by default), so at most that
+ * many blocks, plus the one handed out, are in memory.
  *
  * @param src the open file
  * @param grid the grid (from {@link describeCfGrid})
@@ -162,11 +163,27 @@ export async function* readCfGridBlocks(
   const per = ny * nx;
   const rows = Math.max(1, Math.floor(rowsPerBlock ?? (4 * 1024 * 1024) / Math.max(per, 1)));
   const packing = packingOf(v);
-  for (let start = 0; start < nt; start += rows) {
-    const n = Math.min(rows, nt - start);
-    const raw = await src.read(grid.variable, start, n);
+  const depth = Math.max(1, src.concurrentReads ?? 1);
+  const inFlight: { start: number; n: number; raw: Promise<StoredValues> }[] = [];
+  let next = 0;
+  const request = () => {
+    if (next >= nt) return;
+    const n = Math.min(rows, nt - next);
+    const raw = src.read(grid.variable, next, n);
+    raw.catch(() => undefined); // awaited in order below; later ones are dropped on a failure
+    inFlight.push({ start: next, n, raw });
+    next += n;
+  };
+  while (inFlight.length < depth && next < nt) request();
+  while (inFlight.length) {
+    const { start, n, raw } = inFlight.shift()!;
+    const stored = await raw;
+    request();
+    // Decoded into a new array even when stored as float32: decoding in place saved about
+    // 70 ms of CPU on a 150 MB field but raised the upload's peak memory by about 110 MiB
+    // (buffers transferred from the NetCDF-4 worker are collected later than ones made here).
     const values = new Float32Array(n * per);
-    cfMaskAndScale(raw, v.type, packing, values);
+    cfMaskAndScale(stored, v.type, packing, values);
     yield { start, rows: n, values };
   }
 }

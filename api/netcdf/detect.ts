@@ -18,6 +18,21 @@ export type NetcdfFormat =
 const HDF5 = [0x89, 0x48, 0x44, 0x46, 0x0d, 0x0a, 0x1a, 0x0a];
 
 /**
+ * Whether bytes begin with the HDF5 signature (a NetCDF-4 file without a user block).
+ *
+ * @example
+ * ```ts
+ * import { startsWithHdf5 } from "./detect.ts";
+ * import assert from "node:assert/strict";
+ * assert.equal(startsWithHdf5(Uint8Array.of(0x89, 0x48, 0x44, 0x46, 0x0d, 0x0a, 0x1a, 0x0a)), true);
+ * assert.equal(startsWithHdf5(new TextEncoder().encode("CDF\x01")), false);
+ * ```
+ */
+export function startsWithHdf5(head: Uint8Array): boolean {
+  return head.length >= 8 && HDF5.every((x, i) => head[i] === x);
+}
+
+/**
  * The format of a file from its first bytes.
  *
  * @param head the file's first bytes (at least 8; pass more to find an HDF5 user block)

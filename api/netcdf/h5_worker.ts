@@ -206,9 +206,10 @@ self.onmessage = (e: MessageEvent) => {
         self.postMessage({ id: m.id, ok: false, error: "corrupt" });
         return;
       }
-      let h;
+      let h = null;
       try {
-        h = header(f);
+        // a file opened again in a second worker (for parallel reads) needs no header
+        if (m.header) h = header(f);
       } catch (err) {
         try {
           f.close();

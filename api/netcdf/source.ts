@@ -39,9 +39,15 @@ export interface NetcdfSource {
   readonly header: NetcdfHeader;
   /**
    * The stored values of a variable in row-major order: all of them, or `rows` rows starting
-   * at row `start` of its first dimension (every other dimension whole).
+   * at row `start` of its first dimension (every other dimension whole). The array is the
+   * caller's own (a fresh copy): it may be changed in place.
    */
   read(name: string, start?: number, rows?: number): Promise<StoredValues>;
+  /**
+   * How many reads may usefully be in flight at once (NetCDF-4: its reader workers decode
+   * blocks in parallel); absent means one.
+   */
+  readonly concurrentReads?: number;
   close(): Promise<void>;
 }
 

@@ -348,13 +348,38 @@ export class SqliteStore implements Store {
   #writeResult<T>(result: unknown, fn: () => T): T {
     const size = result ? resultBytesOf(result as object)?.length ?? 0 : 0;
     if (size < DEFERRED_CHECKPOINT_BYTES || !this.#writer) return this.#write(fn);
-    this.#db.exec("PRAGMA wal_autocheckpoint = 0");
     try {
-      return this.#write(fn);
+      return this.#withoutAutoCheckpoint(() => this.#write(fn));
     } finally {
-      this.#db.exec(`PRAGMA wal_autocheckpoint = ${WAL_AUTOCHECKPOINT_PAGES}`);
       this.#writer.checkpoint();
     }
+  }
+
+  /**
+   * Run `fn` (its own write transactions) with the automatic WAL checkpoint off, then turn it
+   * back on unless a field upload is in progress (see {@link SqliteStore.beginField}).
+   */
+  #withoutAutoCheckpoint<T>(fn: () => T): T {
+    this.#db.exec("PRAGMA wal_autocheckpoint = 0");
+    try {
+      return fn();
+    } finally {
+      if (this.#uploading.size === 0) {
+        this.#db.exec(`PRAGMA wal_autocheckpoint = ${WAL_AUTOCHECKPOINT_PAGES}`);
+      }
+    }
+  }
+
+  /** Field uploads in progress on a file store: staged, not yet committed or aborted. */
+  #uploading = new Set<number>();
+
+  /** An upload is over: the writer worker checkpoints what the WAL holds (PASSIVE). */
+  #endUpload(stage: number): void {
+    if (!this.#uploading.delete(stage)) return;
+    if (this.#uploading.size === 0) {
+      this.#db.exec(`PRAGMA wal_autocheckpoint = ${WAL_AUTOCHECKPOINT_PAGES}`);
+    }
+    this.#writer?.checkpoint();
   }
 
   /** Run `fn` in one write transaction taken with BEGIN IMMEDIATE. */
@@ -395,6 +420,7 @@ export class SqliteStore implements Store {
     busy_timeout: number;
     synchronous: number;
     foreign_keys: number;
+    wal_autocheckpoint: number;
   } {
     const one = (pragma: string) => {
       const row = this.#db.prepare(`PRAGMA ${pragma}`).get() as Row;
@@ -405,6 +431,7 @@ export class SqliteStore implements Store {
       busy_timeout: Number(one("busy_timeout")),
       synchronous: Number(one("synchronous")),
       foreign_keys: Number(one("foreign_keys")),
+      wal_autocheckpoint: Number(one("wal_autocheckpoint")),
     };
   }
 
@@ -1107,8 +1134,25 @@ export class SqliteStore implements Store {
     });
   }
 
+  /**
+   * Stage a field. On a file store, its blocks are then committed by the writer worker (WAL
+   * written and synced, `synchronous = FULL`, each block durable) without the automatic
+   * checkpoint, which would copy every block a second time, into the database file, and fsync
+   * it, in the writer's path; and this connection's commits skip it too until the upload ends,
+   * so that no request here copies an upload's blocks. When the field is committed or aborted
+   * the writer checkpoints once, off the request path (PASSIVE: it never waits for readers or
+   * writers). Measured on 38 blocks of 4 MiB: the commits took about 60 % as long without the
+   * automatic checkpoint (test/bench/sqlite_field_blocks.ts).
+   */
   beginField(f: FieldStaging): Promise<number> {
-    return settle(() => this.#fields.begin(f));
+    return settle(() => {
+      const stage = this.#fields.begin(f);
+      if (this.#writer) {
+        this.#uploading.add(stage);
+        this.#db.exec("PRAGMA wal_autocheckpoint = 0");
+      }
+      return stage;
+    });
   }
 
   putFieldBlock(
@@ -1120,7 +1164,10 @@ export class SqliteStore implements Store {
   ): Promise<void> {
     // a file store writes blocks in its writer worker (sqlite_writer.ts), off the request thread
     if (this.#writer) return this.#writer.putFieldBlock(stage, index, tStart, rows, values);
-    return settle(() => this.#fields.putBlock(stage, index, tStart, rows, values));
+    // the WAL keeps the blocks until the field's commit checkpoints (see beginField)
+    return settle(() =>
+      this.#withoutAutoCheckpoint(() => this.#fields.putBlock(stage, index, tStart, rows, values))
+    );
   }
 
   commitField(
@@ -1129,11 +1176,23 @@ export class SqliteStore implements Store {
     final?: FieldFinal,
     holder?: HolderSpec,
   ): Promise<{ created: boolean; field: FieldMeta }> {
-    return settle(() => this.#fields.commit(stage, id, final, holder));
+    // (see beginField) without a writer, the commit's automatic checkpoint copies the blocks
+    if (!this.#writer) return settle(() => this.#fields.commit(stage, id, final, holder));
+    return settle(() => {
+      const done = this.#withoutAutoCheckpoint(() => this.#fields.commit(stage, id, final, holder));
+      this.#endUpload(stage);
+      return done;
+    });
   }
 
   abortField(stage: number): Promise<void> {
-    return settle(() => this.#fields.abort(stage));
+    return settle(() => {
+      try {
+        this.#fields.abort(stage);
+      } finally {
+        this.#endUpload(stage);
+      }
+    });
   }
 
   dropStagedFields(olderThanSeconds: number): Promise<number> {

@@ -4,13 +4,20 @@
  * file (field_upload_xarray.py), each in its own process, in interleaved rounds; wall and CPU
  * time (the machine is shared: CPU time is the steadier figure) and peak resident memory. The file is written once by field_upload_make.py (Debian python3-netcdf4).
  *
- *   deno run -A test/bench/field_upload_medians.ts [rounds]
+ *   deno run -A test/bench/field_upload_medians.ts [rounds] [--before DIR]
+ *
+ * Contenders: the first upload of a fresh process (the HDF5 reader loads during it), xarray,
+ * the same upload with the reader already loaded (`--warm`: xarray's import is outside its
+ * clock too), and with --before, the upload of another checkout, all in the same rounds.
  *
  * @module
  */
 import { median as d3Median } from "d3-array";
 
-const ROUNDS = Number(Deno.args[0] ?? 3);
+const ROUNDS = Number(Deno.args.find((a) => /^\d+$/.test(a)) ?? 3);
+const at = Deno.args.indexOf("--before");
+/** Another checkout (e.g. `git archive main | tar -x -C DIR`) measured in the same rounds. */
+const BEFORE = at >= 0 ? Deno.args[at + 1] : null;
 const DIR = new URL("../output/field_upload/", import.meta.url).pathname;
 const FILE = `${DIR}field150.nc`;
 const here = (f: string) => new URL(`./${f}`, import.meta.url).pathname;
@@ -42,11 +49,29 @@ const contenders: [string, () => Row][] = [
     "xarray open_dataset().load()",
     () => run("/usr/bin/python3", [here("field_upload_xarray.py"), FILE]),
   ],
+  [
+    "sunlag POST /v1/fields, HDF5 reader loaded",
+    () => run(Deno.execPath(), ["run", "-A", here("field_upload_run.ts"), FILE, "--warm"]),
+  ],
 ];
+if (BEFORE) {
+  contenders.push([
+    `sunlag POST /v1/fields (${BEFORE})`,
+    () =>
+      run(Deno.execPath(), [
+        "run",
+        "-A",
+        `${BEFORE}/test/bench/field_upload_run.ts`,
+        FILE,
+      ]),
+  ]);
+}
 const rows = new Map(contenders.map(([n]) => [n, [] as Row[]]));
 const load0 = Deno.loadavg()[0];
 for (let r = 0; r < ROUNDS; r++) for (const [n, f] of contenders) rows.get(n)!.push(f());
-const [a, b] = contenders.map(([n]) => rows.get(n)!);
+const [a, b, ...others] = contenders.map(([n]) => rows.get(n)!);
+const ratio = (xs: Row[], key: "seconds" | "cpuSeconds") =>
+  median(xs.map((x, i) => x[key] / b[i][key]));
 console.log(JSON.stringify(
   {
     rounds: ROUNDS,
@@ -57,8 +82,19 @@ console.log(JSON.stringify(
       medianCpuSeconds: median(rs.map((x) => x.cpuSeconds)),
       peakMiB: Math.max(...rs.map((x) => x.peakBytes)) / 2 ** 20,
     }])),
-    ratioSunlagToXarray: median(a.map((x, i) => x.seconds / b[i].seconds)),
-    cpuRatioSunlagToXarray: median(a.map((x, i) => x.cpuSeconds / b[i].cpuSeconds)),
+    // medians of the per-round ratios to xarray (first: the cold sunlag upload)
+    ratioSunlagToXarray: ratio(a, "seconds"),
+    cpuRatioSunlagToXarray: ratio(a, "cpuSeconds"),
+    ratiosToXarray: Object.fromEntries(
+      contenders.slice(2).map(([n], i) => [n, {
+        seconds: ratio(others[i], "seconds"),
+        cpuSeconds: ratio(others[i], "cpuSeconds"),
+      }]),
+    ),
+    perRound: Object.fromEntries([...rows].map(([n, rs]) => [
+      n,
+      rs.map((x) => [+x.seconds.toFixed(3), +x.cpuSeconds.toFixed(3)]),
+    ])),
   },
   null,
   2,

@@ -4,7 +4,10 @@
  * blocks. Prints one JSON line: wall and CPU seconds (all threads, the HDF5 worker included),
  * the process's peak resident memory (VmHWM), the stored field's shape.
  *
- *   deno run -A test/bench/field_upload_run.ts FILE
+ *   deno run -A test/bench/field_upload_run.ts FILE [--warm] [--readers=N]
+ *
+ * Without --warm the clock includes loading the HDF5 reader (the first NetCDF-4 upload of a
+ * fresh process; it loads while the body is written to a temporary file).
  *
  * @module
  */
@@ -13,9 +16,16 @@ import { testConfig } from "../../api/config.ts";
 import { openSqliteStore } from "../../api/store/sqlite.ts";
 import { InThreadExecutor } from "../../api/runs/service.ts";
 import { stopNetcdf4Worker } from "../../api/netcdf/mod.ts";
+import { NETCDF4_POOL, warmNetcdf4 } from "../../api/netcdf/netcdf4_source.ts";
 import process from "node:process";
 
-const file = Deno.args[0];
+const [file, ...flags] = Deno.args;
+const flag = (name: string) => flags.find((f) => f.startsWith(`--${name}=`))?.split("=")[1];
+// NetCDF-4 reader workers (default: the service's)
+if (flag("readers")) NETCDF4_POOL.readers = Number(flag("readers"));
+// --warm: the readers loaded before the clock starts, as in a service after its first
+// NetCDF-4 read (the peer's `import xarray` is outside its clock too)
+if (flags.includes("--warm")) await warmNetcdf4();
 const dir = await Deno.makeTempDir({ prefix: "sunlag-upload-bench-" });
 const store = await openSqliteStore({ path: `${dir}/store.db` });
 const { app } = createService({

@@ -48,6 +48,7 @@ Deno.test("openSqliteStore() sets WAL, busy timeout, full sync and foreign keys"
       busy_timeout: 4321,
       synchronous: 2,
       foreign_keys: 1,
+      wal_autocheckpoint: 1000,
     });
     await store.close();
     // WAL is a property of the file: a fresh connection sees it too.

@@ -9,7 +9,7 @@ import assert from "node:assert/strict";
 import { openSqliteStore } from "../../../api/store/sqlite.ts";
 import { OFFLOAD_POINTS } from "../../../api/store/sqlite_writer.ts";
 import { makeSeries } from "./store_suite.ts";
-import { storeField } from "./field_store_suite.ts";
+import { fieldId, makeFieldStaging, storeField } from "./field_store_suite.ts";
 
 Deno.test("SqliteWriter: large series and field blocks written in the worker read back exactly; errors keep their class", async (t) => {
   const dir = await Deno.makeTempDir({ prefix: "sunlag-writer-" });
@@ -46,6 +46,52 @@ Deno.test("SqliteWriter: large series and field blocks written in the worker rea
     );
   } finally {
     await store.close();
+    await Deno.remove(dir, { recursive: true });
+  }
+});
+
+Deno.test("SqliteStore: a field upload runs without the automatic WAL checkpoint until its last concurrent upload is committed or aborted", async () => {
+  const dir = await Deno.makeTempDir({ prefix: "sunlag-writer-" });
+  const store = await openSqliteStore({ path: `${dir}/store.db` });
+  const memory = await openSqliteStore({ path: ":memory:" });
+  const auto = (s = store) => s.settings().wal_autocheckpoint;
+  const blocks = async (s: typeof store, stage: number, label: string) => {
+    const { staging, values } = makeFieldStaging(label, { nTime: 5, blockRows: 2 });
+    const per = staging.n_lat * staging.n_lon;
+    for (let b = 0, t = 0; t < 5; b++, t += 2) {
+      const rows = Math.min(2, 5 - t);
+      await s.putFieldBlock(stage, b, t, rows, values.slice(t * per, (t + rows) * per));
+    }
+  };
+  try {
+    assert.equal(auto(), 1000);
+    const a = await store.beginField(makeFieldStaging("a", { nTime: 5, blockRows: 2 }).staging);
+    assert.equal(auto(), 0);
+    const b = await store.beginField(makeFieldStaging("b", { nTime: 5, blockRows: 2 }).staging);
+    await blocks(store, a, "a");
+    await blocks(store, b, "b");
+    await store.commitField(a, fieldId("a"));
+    assert.equal(auto(), 0, "another upload is still in progress");
+    await store.abortField(b);
+    assert.equal(auto(), 1000);
+    // a failed commit (a block missing), then the abort that follows it
+    const c = await store.beginField(makeFieldStaging("c", { nTime: 5, blockRows: 2 }).staging);
+    await assert.rejects(() => store.commitField(c, fieldId("c")), RangeError);
+    assert.equal(auto(), 0);
+    await store.abortField(c);
+    assert.equal(auto(), 1000);
+    assert.ok(await store.getField(fieldId("a")));
+    assert.equal(await store.getField(fieldId("b")), null);
+    assert.equal(await store.dropStagedFields(-1), 0);
+    // without a writer worker (in memory), commits checkpoint as usual
+    const m = await memory.beginField(makeFieldStaging("m", { nTime: 5, blockRows: 2 }).staging);
+    assert.equal(auto(memory), 1000);
+    await blocks(memory, m, "m");
+    await memory.commitField(m, fieldId("m"));
+    assert.equal(auto(memory), 1000);
+  } finally {
+    await store.close();
+    await memory.close();
     await Deno.remove(dir, { recursive: true });
   }
 });
