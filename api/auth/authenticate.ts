@@ -75,15 +75,20 @@ export function authenticate(deps: { store: Store; adminKey: string | null }): M
     // the new one from what it kept for the old (RFC 9110 §12.5.5).
     if (deps.adminKey !== null) {
       try {
-        const vary = c.res.headers.get("vary");
-        if (!vary || !/\bauthorization\b/i.test(vary)) {
-          c.res.headers.set("Vary", vary ? `${vary}, Authorization` : "Authorization");
-        }
+        addAuthorizationVary(c.res.headers);
       } catch {
         // a response with immutable headers (none of the service's own)
       }
     }
   };
+}
+
+/** Add `Authorization` to the `Vary` of response headers `h` unless it is there. */
+export function addAuthorizationVary(h: Headers): void {
+  const vary = h.get("vary");
+  if (!vary || !/\bauthorization\b/i.test(vary)) {
+    h.set("Vary", vary ? `${vary}, Authorization` : "Authorization");
+  }
 }
 
 /** The principal of a request; anonymous when no middleware set one (fails closed). */

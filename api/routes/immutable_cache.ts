@@ -13,8 +13,7 @@
  *
  * @module
  */
-import type { Context } from "hono";
-import { immutableHeaders } from "./cache.ts";
+import { immutableHeaders, type RequestView } from "./cache.ts";
 import type { HoldingRef } from "../store/types.ts";
 
 export interface CachedRepresentation {
@@ -128,7 +127,7 @@ export class ImmutableCache {
  * True when `If-None-Match` lists `etag` (or `*`). If-None-Match uses the weak comparison
  * (RFC 9110 §13.1.2), so `W/"x"` (as a compressing proxy may rewrite a tag) matches `"x"`.
  */
-export function matchesIfNoneMatch(c: Context, etag: string): boolean {
+export function matchesIfNoneMatch(c: RequestView, etag: string): boolean {
   const inm = c.req.header("if-none-match");
   if (!inm) return false;
   return inm.split(",").some((t) => {
@@ -143,11 +142,11 @@ export function matchesIfNoneMatch(c: Context, etag: string): boolean {
  * public) keeps it out of shared caches.
  */
 export async function serveRepresentation(
-  c: Context,
+  c: RequestView,
   r: CachedRepresentation,
   shared = true,
 ): Promise<Response> {
-  const requestId = (c.get("requestId" as never) as string | undefined) ?? "";
+  const requestId = c.get("requestId") ?? "";
   const gz = r.body.byteLength >= GZIP_MIN_BYTES && acceptsGzip(c.req.header("accept-encoding"));
   const etag = gz ? gzipTag(r.etag) : r.etag;
   const notModified = matchesIfNoneMatch(c, etag);
