@@ -188,7 +188,12 @@ export function withHotGets(deps: HotPathDeps, full: Fetch): Fetch {
       },
       get: () => id,
     };
-    let res = await m.handler({ view, principal, params: m.params, search });
+    let res: Response | null;
+    try {
+      res = await m.handler({ view, principal, params: m.params, search });
+    } catch {
+      res = null; // the store failed: the full path answers with its problem
+    }
     if (!res) return full(req, info);
     if (isLimited(principal)) {
       const key = principal.owner !== null ? `owner:${principal.owner}` : `addr:${addrOf(info)}`;
