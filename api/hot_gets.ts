@@ -27,7 +27,8 @@ import type { RequestView } from "./routes/cache.ts";
 import { hostAllowed } from "./security/host_check.ts";
 import { headBytesOf, MAX_HEAD_BYTES } from "./security/head_size.ts";
 import { type CorsHeaders, corsSimpleHeaders } from "./security/cors.ts";
-import { addAuthorizationVary, principalForToken } from "./auth/authenticate.ts";
+import { addAuthorizationVary, BEARER, principalForToken } from "./auth/authenticate.ts";
+import { bucketKey } from "./limits/rate_limit.ts";
 import { ANONYMOUS, isLimited, LOCAL_PRINCIPAL, type Principal } from "./auth/principal.ts";
 import { requiredRole } from "./auth/authorise.ts";
 import type { TokenBuckets } from "./limits/token_bucket.ts";
@@ -172,7 +173,7 @@ export function withHotGets(deps: HotPathDeps, full: Fetch): Fetch {
     let principal: Principal;
     if (auth === null) principal = deps.adminKey === null ? LOCAL_PRINCIPAL : ANONYMOUS;
     else {
-      const k = /^Bearer +([\x21-\x7e]{1,512})\s*$/i.exec(auth);
+      const k = BEARER.exec(auth);
       if (!k) return full(req, info);
       try {
         principal = await principalForToken(deps.store, deps.adminKey, k[1]);
@@ -196,9 +197,8 @@ export function withHotGets(deps: HotPathDeps, full: Fetch): Fetch {
     }
     if (!res) return full(req, info);
     if (isLimited(principal)) {
-      const key = principal.owner !== null ? `owner:${principal.owner}` : `addr:${addrOf(info)}`;
       // refused: the full path takes (and refuses) the token again and answers 429
-      if (!deps.buckets.take(key).ok) return full(req, info);
+      if (!deps.buckets.take(bucketKey(principal, info)).ok) return full(req, info);
     }
     const cors = deps.corsOrigins.length
       ? corsSimpleHeaders(deps.corsOrigins, headers.get("origin") ?? "")
@@ -215,12 +215,6 @@ export function withHotGets(deps: HotPathDeps, full: Fetch): Fetch {
     if (method !== "GET" && method !== "HEAD") return full(req, info);
     return hot(req, info, method);
   };
-}
-
-/** The client's address under `Deno.serve`, as api/limits/rate_limit.ts reads it. */
-function addrOf(info: unknown): string {
-  return (info as { remoteAddr?: { hostname?: string } } | undefined)?.remoteAddr?.hostname ??
-    "unknown";
 }
 
 /** The headers the CORS and authentication middleware add to a response, in their order. */

@@ -55,6 +55,9 @@ export async function principalForToken(
   };
 }
 
+/** An `Authorization` header with a bearer token; the token is the first group. */
+export const BEARER = /^Bearer +([\x21-\x7e]{1,512})\s*$/i;
+
 /** Set `principal` on every request (see the module documentation). */
 export function authenticate(deps: { store: Store; adminKey: string | null }): MiddlewareHandler {
   return async (c, next) => {
@@ -63,7 +66,7 @@ export function authenticate(deps: { store: Store; adminKey: string | null }): M
     if (header === undefined) {
       p = deps.adminKey === null ? LOCAL_PRINCIPAL : ANONYMOUS;
     } else {
-      const m = /^Bearer +([\x21-\x7e]{1,512})\s*$/i.exec(header);
+      const m = BEARER.exec(header);
       if (!m) {
         throw refused('The Authorization header must be "Bearer <API key>"', "invalid_request");
       }
