@@ -571,8 +571,9 @@ export class SqliteStore implements Store {
    * remembered until the database changes in any way. `total_changes()` counts this
    * connection's writes and `data_version` changes when another connection commits (another
    * process, the series writer), so a visibility, holding or group change anywhere is seen by
-   * the next check. Asking for both is one statement on no table (a few µs); the visibility
-   * query it saves joins holdings and owners. `holdings` asks it once for several items.
+   * the next check. Asking for both takes two statements on no table (a few µs); the
+   * visibility query they save joins holdings and owners. `holdings` asks once for several
+   * items.
    */
   #holding(table: string, key: string, id: string, viewer: Viewer): Holding | null {
     this.#checkHoldingsVersion();
