@@ -10,7 +10,6 @@ import { OpenAPIHono } from "@hono/zod-openapi";
 import type { Context } from "hono";
 import { HTTPException } from "hono/http-exception";
 import { bodyLimit } from "hono/body-limit";
-import { uuidv7 } from "uuidv7";
 import type { Config } from "./config.ts";
 import type { Store } from "./store/types.ts";
 import { type Problem, ProblemError, problemResponse, zodFieldErrors } from "./problems.ts";
@@ -48,6 +47,7 @@ import { RunQuotas } from "./limits/quotas.ts";
 import { registerAdminRoutes } from "./routes/admin.ts";
 import { UploadPool } from "./ingest/upload.ts";
 import { registerSharingRoutes } from "./routes/sharing.ts";
+import { HotGets, requestIdFrom, withHotGets } from "./hot_gets.ts";
 
 export interface AppDeps {
   store: Store;
@@ -61,6 +61,11 @@ export interface AppDeps {
    * also computes the queued runs in this process.
    */
   role?: "api" | "all";
+  /**
+   * Answer GETs of cached immutable representations ahead of the middleware chain
+   * (api/hot_gets.ts; default true). Off, every request takes the full path.
+   */
+  hotGets?: boolean;
 }
 
 export interface Service {
@@ -71,6 +76,8 @@ export interface Service {
   quotas: RunQuotas;
   /** Workers that read uploads; `terminate()` them when the service stops. */
   uploads: UploadPool;
+  /** The fast path's handlers for cached GETs (api/hot_gets.ts). */
+  hot: HotGets;
 }
 
 const TARGET_NAMES: Record<string, "body" | "query" | "path" | "header"> = {
@@ -118,25 +125,29 @@ export function createService(deps: AppDeps): Service {
     },
   });
 
-  // Request id and one JSON log line per request.
-  app.use("*", async (c, next) => {
-    const incoming = c.req.header("x-request-id");
-    const id = incoming && /^[\w.-]{1,100}$/.test(incoming) ? incoming : uuidv7();
-    c.set("requestId", id);
-    const t0 = performance.now();
-    await next();
-    c.res.headers.set("X-Request-Id", id);
-    metrics.observe(c.req.method, c.res.status, (performance.now() - t0) / 1000);
+  /** Count an answered request in the metrics, and log it. */
+  const finish = (method: string, path: string, status: number, t0: number, id: string) => {
+    metrics.observe(method, status, (performance.now() - t0) / 1000);
     if (config.log) {
       console.log(JSON.stringify({
         time: new Date().toISOString(),
         request_id: id,
-        method: c.req.method,
-        path: c.req.path,
-        status: c.res.status,
+        method,
+        path,
+        status,
         ms: Math.round((performance.now() - t0) * 100) / 100,
       }));
     }
+  };
+
+  // Request id and one JSON log line per request.
+  app.use("*", async (c, next) => {
+    const id = requestIdFrom(c.req.header("x-request-id"));
+    c.set("requestId", id);
+    const t0 = performance.now();
+    await next();
+    c.res.headers.set("X-Request-Id", id);
+    finish(c.req.method, c.req.path, c.res.status, t0, id);
   });
 
   app.use("*", hostCheck(config.allowedHosts));
@@ -145,7 +156,8 @@ export function createService(deps: AppDeps): Service {
   if (cors) app.use("*", cors);
   app.use("*", crossSiteGuard());
   app.use("*", authenticate({ store, adminKey: config.adminKey }));
-  app.use("*", rateLimit(new TokenBuckets(config.quotas.ratePerSecond, config.quotas.rateBurst)));
+  const buckets = new TokenBuckets(config.quotas.ratePerSecond, config.quotas.rateBurst);
+  app.use("*", rateLimit(buckets));
   app.use("*", authorise());
 
   const jsonLimit = bodyLimit({
@@ -172,12 +184,14 @@ export function createService(deps: AppDeps): Service {
   registerUiRoutes(app);
   const uploads = new UploadPool(config.ingestWorkers);
   registerSpectralUploadRoutes(app, { store, config });
-  registerSeriesRoutes(app, { store, config, uploads });
+  // GETs of cached immutable representations, answered ahead of the middleware chain
+  const hot = new HotGets();
+  registerSeriesRoutes(app, { store, config, uploads, hot });
   registerFieldRoutes(app, { store, config });
   registerMapRoutes(app, { store });
-  registerRunRoutes(app, { store, runs, config });
+  registerRunRoutes(app, { store, runs, config, hot });
   registerSpectrumRoutes(app, { store, config });
-  registerChartRoutes(app, { store, kinds });
+  registerChartRoutes(app, { store, kinds, hot });
   registerBundleRoutes(app, { store, runs, config });
   registerKindRoutes(app, { runs, kinds, store, config });
   registerSharingRoutes(app, { store });
@@ -258,5 +272,17 @@ export function createService(deps: AppDeps): Service {
     } as Problem);
   });
 
-  return { app, runs, store, config, quotas, uploads };
+  if (deps.hotGets !== false) {
+    app.fetch = withHotGets({
+      hot,
+      store,
+      adminKey: config.adminKey,
+      allowedHosts: config.allowedHosts,
+      corsOrigins: config.corsOrigins,
+      buckets,
+      finish,
+    }, app.fetch) as typeof app.fetch;
+  }
+
+  return { app, runs, store, config, quotas, uploads, hot };
 }

@@ -55,6 +55,9 @@ export async function principalForToken(
   };
 }
 
+/** An `Authorization` header with a bearer token; the token is the first group. */
+export const BEARER = /^Bearer +([\x21-\x7e]{1,512})\s*$/i;
+
 /** Set `principal` on every request (see the module documentation). */
 export function authenticate(deps: { store: Store; adminKey: string | null }): MiddlewareHandler {
   return async (c, next) => {
@@ -63,7 +66,7 @@ export function authenticate(deps: { store: Store; adminKey: string | null }): M
     if (header === undefined) {
       p = deps.adminKey === null ? LOCAL_PRINCIPAL : ANONYMOUS;
     } else {
-      const m = /^Bearer +([\x21-\x7e]{1,512})\s*$/i.exec(header);
+      const m = BEARER.exec(header);
       if (!m) {
         throw refused('The Authorization header must be "Bearer <API key>"', "invalid_request");
       }
@@ -75,15 +78,20 @@ export function authenticate(deps: { store: Store; adminKey: string | null }): M
     // the new one from what it kept for the old (RFC 9110 §12.5.5).
     if (deps.adminKey !== null) {
       try {
-        const vary = c.res.headers.get("vary");
-        if (!vary || !/\bauthorization\b/i.test(vary)) {
-          c.res.headers.set("Vary", vary ? `${vary}, Authorization` : "Authorization");
-        }
+        addAuthorizationVary(c.res.headers);
       } catch {
         // a response with immutable headers (none of the service's own)
       }
     }
   };
+}
+
+/** Add `Authorization` to the `Vary` of response headers `h` unless it is there. */
+export function addAuthorizationVary(h: Headers): void {
+  const vary = h.get("vary");
+  if (!vary || !/\bauthorization\b/i.test(vary)) {
+    h.set("Vary", vary ? `${vary}, Authorization` : "Authorization");
+  }
 }
 
 /** The principal of a request; anonymous when no middleware set one (fails closed). */

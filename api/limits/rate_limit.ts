@@ -8,13 +8,23 @@
 import type { Context, MiddlewareHandler } from "hono";
 import { ProblemError } from "../problems.ts";
 import { principalOf } from "../auth/authenticate.ts";
-import { isLimited } from "../auth/principal.ts";
+import { isLimited, type Principal } from "../auth/principal.ts";
 import type { TokenBuckets } from "./token_bucket.ts";
 
 /** The client's address under `Deno.serve` (its handler info is Hono's `c.env`). */
 export function clientAddress(c: Context): string {
-  const info = c.env as { remoteAddr?: { hostname?: string } } | undefined;
-  return info?.remoteAddr?.hostname ?? "unknown";
+  return addressOf(c.env);
+}
+
+/** The client's address in `Deno.serve`'s handler info, or "unknown". */
+export function addressOf(info: unknown): string {
+  return (info as { remoteAddr?: { hostname?: string } } | undefined)?.remoteAddr?.hostname ??
+    "unknown";
+}
+
+/** The bucket of a caller: its owner's, or its address's when anonymous. */
+export function bucketKey(p: Principal, info: unknown): string {
+  return p.owner !== null ? `owner:${p.owner}` : `addr:${addressOf(info)}`;
 }
 
 /** Limit each caller to the buckets' rate (see the module documentation). */
@@ -22,8 +32,7 @@ export function rateLimit(buckets: TokenBuckets): MiddlewareHandler {
   return async (c, next) => {
     const p = principalOf(c);
     if (isLimited(p) && c.req.method !== "OPTIONS") {
-      const key = p.owner !== null ? `owner:${p.owner}` : `addr:${clientAddress(c)}`;
-      const t = buckets.take(key);
+      const t = buckets.take(bucketKey(p, c.env));
       if (!t.ok) {
         throw new ProblemError(
           "rate-limited",

@@ -8,6 +8,7 @@
  * @module
  */
 import type { Context } from "hono";
+import type { RequestView } from "../routes/cache.ts";
 import { z } from "@hono/zod-openapi";
 import { netcdf3Chunks, planNetcdf3 } from "../../core/cf/netcdf3_write.ts";
 import { attributeText } from "../../core/cf/netcdf_model.ts";
@@ -75,7 +76,7 @@ export const NETCDF_CONTENT = {
  *
  * @throws {ProblemError} 422 naming `calendar`
  */
-export function wantsNetcdf(c: Context): boolean {
+export function wantsNetcdf(c: RequestView): boolean {
   const f = c.req.query("format");
   const accept = (c.req.header("accept") ?? "").toLowerCase();
   const yes = f ? f.toLowerCase() === "netcdf" : /application\/(x-)?netcdf/.test(accept) &&

@@ -29,6 +29,7 @@ import { chartNeedsInputs, chartViews, runChartSpec } from "../charts/run_charts
 import { SERVICE_VERSION } from "../version.ts";
 import type { RunKind } from "../runs/kind.ts";
 import { kindByName } from "../analyses/derive.ts";
+import { type HotGets, QueryMemo } from "../hot_gets.ts";
 
 /** Bump when the drawing of a chart changes for the same data and query. */
 export const CHART_VERSION = "1";
@@ -107,6 +108,16 @@ function etagFor(resource: string, o: RenderOptions): string {
   return `"chart-${resource}-${optionsKey(o)}-s${SERVICE_VERSION}-c${CHART_VERSION}"`;
 }
 
+/** The tag, and cache key, of a series chart. */
+function seriesChartTag(id: string, o: RenderOptions): string {
+  return etagFor(`series-${id.replace(/^sha256:/, "")}`, o);
+}
+
+/** The cache key of a run chart (found by run id, query and view alone). */
+function runChartKey(id: string, o: RenderOptions, view: string | undefined): string {
+  return `run-${id}-${optionsKey(o)}-${view ?? ""}`;
+}
+
 const SVG_HEADERS = {
   "Content-Type": "image/svg+xml; charset=utf-8",
   "X-Content-Type-Options": "nosniff",
@@ -129,10 +140,33 @@ const svgContent = { "image/svg+xml": { schema: z.string().openapi({ format: "bi
  */
 export function registerChartRoutes(
   app: App,
-  deps: { store: Store; kinds: readonly RunKind[]; cache?: ImmutableCache },
+  deps: { store: Store; kinds: readonly RunKind[]; cache?: ImmutableCache; hot?: HotGets },
 ): void {
   const { store } = deps;
   const cache = deps.cache ?? new ImmutableCache();
+  // Query strings the routes validated, and the charts they cached: served ahead of the
+  // middleware (api/hot_gets.ts) after the same access checks.
+  const seriesQueries = new QueryMemo<RenderOptions>();
+  const runQueries = new QueryMemo<{ opts: RenderOptions; view: string | undefined }>();
+  deps.hot?.add("/v1/series/:id/chart.svg", async ({ view, principal, params: [id], search }) => {
+    const opts = seriesQueries.get(search);
+    const rep = opts && cache.get(seriesChartTag(id, opts));
+    if (!rep) return null;
+    const holding = await store.seriesHolding(id, viewerOf(principal));
+    return holding && serveRepresentation(view, rep, sharedCacheable(principal, holding));
+  });
+  deps.hot?.add("/v1/runs/:id/chart.svg", async ({ view, principal, params: [id], search }) => {
+    const q = runQueries.get(search);
+    const rep = q && cache.get(runChartKey(id, q.opts, q.view));
+    if (!rep) return null;
+    const held = await holdingsOf(
+      store,
+      [{ kind: "run", id }, ...(rep.requires ?? [])],
+      viewerOf(principal),
+    );
+    if (held.some((h) => !h)) return null;
+    return serveRepresentation(view, rep, sharedCacheable(principal, held[0]!));
+  });
 
   app.openapi(
     createRoute({
@@ -160,7 +194,8 @@ export function registerChartRoutes(
     (async (c: any) => {
       const id: string = c.req.valid("param").id;
       const opts = renderOptions(c.req.valid("query"));
-      const etag = etagFor(`series-${id.replace(/^sha256:/, "")}`, opts);
+      seriesQueries.remember(c.req.url, opts);
+      const etag = seriesChartTag(id, opts);
       const holding = await mustSeeSeries(store, principalOf(c), id);
       let rep = cache.get(etag);
       if (!rep) {
@@ -203,11 +238,12 @@ export function registerChartRoutes(
       const query = c.req.valid("query");
       const opts = renderOptions(query);
       const view: string | undefined = query.view;
+      runQueries.remember(c.req.url, { opts, view });
       // A succeeded run never changes: its chart is found by run id, query and view alone, once
       // the caller is known to see the run. The inputs it draws are those the caller may see.
       // One access check asks for the run and for the inputs drawn into its cached chart.
       const principal = principalOf(c);
-      const key = `run-${id}-${optionsKey(opts)}-${view ?? ""}`;
+      const key = runChartKey(id, opts, view);
       const viewer = viewerOf(principal);
       let rep = cache.get(key);
       const held = await holdingsOf(store, [{ kind: "run", id }, ...(rep?.requires ?? [])], viewer);

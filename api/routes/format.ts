@@ -3,10 +3,10 @@
  *
  * @module
  */
-import type { Context } from "hono";
+import type { RequestView } from "./cache.ts";
 
 /** True when the client asked for CSV. */
-export function wantsCsv(c: Context): boolean {
+export function wantsCsv(c: RequestView): boolean {
   const f = c.req.query("format");
   if (f) return f.toLowerCase() === "csv";
   const accept = (c.req.header("accept") ?? "").toLowerCase();

@@ -33,6 +33,7 @@ import { outputToCsv } from "../export/csv.ts";
 import { wantsCsv } from "./format.ts";
 import { notModified, setImmutableHeaders } from "./cache.ts";
 import { ImmutableCache, serveRepresentation } from "./immutable_cache.ts";
+import type { HotGets } from "../hot_gets.ts";
 import {
   CalendarQuery,
   NETCDF_CONTENT,
@@ -85,10 +86,18 @@ async function mustGetRun(store: Store, id: string): Promise<RunRecord> {
 
 export function registerRunRoutes(
   app: App,
-  deps: { store: Store; runs: RunService; config?: Config },
+  deps: { store: Store; runs: RunService; config?: Config; hot?: HotGets },
 ): void {
   const { store, runs } = deps;
   const runCache = new ImmutableCache();
+  // A succeeded run's JSON from the cache, ahead of the middleware (api/hot_gets.ts); the
+  // route takes no query, so any query string is served as it is here.
+  deps.hot?.add("/v1/runs/:id", async ({ view, principal, params: [id] }) => {
+    const hit = runCache.get(id);
+    if (!hit) return null;
+    const holding = await store.runHolding(id, viewerOf(principal));
+    return holding && serveRepresentation(view, hit, sharedCacheable(principal, holding));
+  });
   // The kinds this service offers (the registry, or the kinds injected into the app).
   const kindNames = runs.kinds.map((k) => k.kind).sort() as [string, ...string[]];
   const KindFilter = z.enum(kindNames, {

@@ -26,7 +26,9 @@ import { QUANTITIES } from "../../core/series/quantities.ts";
 import { formatIsoTime } from "../../core/time/mod.ts";
 import { seriesToCsv } from "../ingest/mod.ts";
 import { wantsCsv } from "./format.ts";
-import { notModified } from "./cache.ts";
+import { notModified, type RequestView } from "./cache.ts";
+import { type HotGets, QueryMemo } from "../hot_gets.ts";
+import type { Principal } from "../auth/principal.ts";
 import { ImmutableCache, serveRepresentation } from "./immutable_cache.ts";
 import {
   CalendarQuery,
@@ -100,10 +102,45 @@ const textBody = z.string().openapi({ example: "time,value\n2001-01,80.2\n2001-0
 
 export function registerSeriesRoutes(
   app: App,
-  deps: { store: Store; config: Config; uploads?: UploadPool },
+  deps: { store: Store; config: Config; uploads?: UploadPool; hot?: HotGets },
 ): void {
   const representations = new ImmutableCache();
   const { store } = deps;
+  // A series as JSON or CSV (and its 304) ahead of the middleware (api/hot_gets.ts), for
+  // query strings the route validated; NetCDF always takes the full path.
+  const queries = new QueryMemo<{ format?: string; calendar?: string }>();
+  deps.hot?.add("/v1/series/:id", async ({ view, principal, params: [id], search }) => {
+    const q = queries.get(search);
+    if (!q || q.calendar !== undefined || q.format === "netcdf") return null;
+    const c: RequestView = {
+      ...view,
+      req: { ...view.req, query: (n) => n === "format" ? q.format : undefined },
+    };
+    if (wantsNetcdf(c)) return null;
+    const holding = await store.seriesHolding(id, viewerOf(principal));
+    return holding && fromCache(c, id, holding, principal);
+  });
+
+  /**
+   * The 304, or the cached JSON or CSV, of series `id` seen through `holding`; null when it
+   * is not cached.
+   */
+  function fromCache(
+    c: RequestView,
+    id: string,
+    holding: Holding,
+    principal: Principal,
+  ): Response | Promise<Response> | null {
+    const csv = wantsCsv(c);
+    const etag = `"${id}${csv ? "-csv" : ""}"`;
+    const shared = sharedCacheable(principal, holding);
+    const nm = notModified(c, etag, shared);
+    if (nm) return nm;
+    // A series never changes: its CSV (and its JSON for one holding, whose dates it shows)
+    // are formatted once and served as stored bytes.
+    const hit = representations.get(csv ? `${id}-csv` : `${id}-json-${JSON.stringify(holding)}`);
+    return hit ? serveRepresentation(c, hit, shared) : null;
+  }
   const uploads = deps.uploads ?? new UploadPool(0);
   // The JSON body is documented by reference and read by the handler (in a worker), not by
   // the route's validator on the request thread.
@@ -263,19 +300,16 @@ export function registerSeriesRoutes(
     // deno-lint-ignore no-explicit-any
     (async (c: any) => {
       const id = c.req.valid("param").id;
+      queries.remember(c.req.url, c.req.valid("query"));
       // Visibility first (cheap), then a 304 without reading the points.
       const holding = await mustSeeSeries(store, principalOf(c), id);
       if (wantsNetcdf(c)) return await seriesNetcdfResponse(c, store, id);
+      const cached = fromCache(c, id, holding, principalOf(c));
+      if (cached) return await cached;
       const csv = wantsCsv(c);
       const etag = `"${id}${csv ? "-csv" : ""}"`;
       const shared = sharedCacheable(principalOf(c), holding);
-      const nm = notModified(c, etag, shared);
-      if (nm) return nm;
-      // A series never changes: its CSV (and its JSON for one holding, whose dates it shows)
-      // are formatted once and served as stored bytes.
       const key = csv ? `${id}-csv` : `${id}-json-${JSON.stringify(holding)}`;
-      const hit = representations.get(key);
-      if (hit) return await serveRepresentation(c, hit, shared);
       const s = await store.getSeries(id);
       if (!s) throw new ProblemError("not-found", `No series has id ${id}`);
       const rep = {

@@ -47,3 +47,29 @@ export function corsPolicy(origins: readonly string[]): MiddlewareHandler | null
     maxAge: 600,
   });
 }
+
+/** The headers CORS adds to a response to a request that is not a preflight. */
+export interface CorsHeaders {
+  /** Set on the response (before the route answers, so they win over the route's own). */
+  before: [string, string][];
+  /** Whether `Vary: Origin` is appended once the route answered. */
+  varyOrigin: boolean;
+}
+
+/**
+ * What the policy of {@link corsPolicy} adds to the response to a GET or HEAD from `origin`
+ * ("" when the request has none), for the fast path of cached GETs (api/hot_gets.ts), which
+ * answers without the middleware: the same as `hono/cors` with these options (its
+ * `Access-Control-Allow-Origin`, `Access-Control-Expose-Headers` and, for a list of origins,
+ * `Vary: Origin`), checked side by side in test/api/hot_gets_test.ts.
+ */
+export function corsSimpleHeaders(origins: readonly string[], origin: string): CorsHeaders {
+  const any = origins.includes("*");
+  const allow = any ? "*" : origins.includes(origin) ? origin : null;
+  const before: [string, string][] = [];
+  if (allow) before.push(["Access-Control-Allow-Origin", allow]);
+  before.push(["Access-Control-Expose-Headers", EXPOSE_TEXT]);
+  return { before, varyOrigin: !any };
+}
+
+const EXPOSE_TEXT = EXPOSE.join(",");

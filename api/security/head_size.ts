@@ -20,7 +20,12 @@ export const MAX_HEAD_BYTES = 32 * 1024;
 /** Size of a request head as sent: request line, `name: value` lines, line ends. */
 export function headBytes(method: string, url: string, headers: Headers): number {
   const u = new URL(url);
-  let n = method.length + u.pathname.length + u.search.length + 12;
+  return headBytesOf(method, u.pathname.length + u.search.length, headers);
+}
+
+/** As {@link headBytes}, given the length of the request target (path and query). */
+export function headBytesOf(method: string, target: number, headers: Headers): number {
+  let n = method.length + target + 12;
   for (const [k, v] of headers) n += k.length + v.length + 4;
   return n + 2;
 }

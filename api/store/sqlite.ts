@@ -598,20 +598,24 @@ export class SqliteStore implements Store {
    * remembered until the database changes in any way. `total_changes()` counts this
    * connection's writes and `data_version` changes when another connection commits (another
    * process, the series writer), so a visibility, holding or group change anywhere is seen by
-   * the next check. Asking for both is one statement on no table (a few µs); the visibility
-   * query it saves joins holdings and owners. `holdings` asks it once for several items.
+   * the next check. Asking for both takes two statements on no table (a few µs); the
+   * visibility query they save joins holdings and owners. `holdings` asks once for several
+   * items.
    */
   #holding(table: string, key: string, id: string, viewer: Viewer): Holding | null {
     this.#checkHoldingsVersion();
     return this.#remembered(table, key, id, viewer);
   }
 
-  /** Forget remembered holdings when the database changed since the last check. */
+  /**
+   * Forget remembered holdings when the database changed since the last check. Two statements:
+   * `PRAGMA data_version` and `total_changes()` apart take 5.8 µs where one statement over the
+   * `pragma_data_version` table took 9.6 µs (100,000 calls each, load 5.9).
+   */
   #checkHoldingsVersion(): void {
-    const v = this.#stmt(
-      "SELECT total_changes() AS t, data_version AS d FROM pragma_data_version",
-    ).get() as Row;
-    const version = `${v.t}:${v.d}`;
+    const d = this.#stmt("PRAGMA data_version").get() as Row;
+    const t = this.#stmt("SELECT total_changes() AS t").get() as Row;
+    const version = `${t.t}:${d.data_version}`;
     if (version !== this.#holdingsVersion) {
       this.#holdings.clear();
       this.#holdingsVersion = version;

@@ -45,12 +45,18 @@ Deno.test("ImmutableCache counts a gzip-coded copy in its budget once it is made
   assert.equal(res.headers.get("etag"), '"a-gzip"');
   const gz = new Uint8Array(await res.arrayBuffer());
   assert.equal(gunzipSync(gz).toString(), text);
-  assert.equal(cache.bytes, 4400 + gz.byteLength, "the gzip copy is counted");
+  assert.equal(
+    cache.bytes,
+    4400 + 2 * gz.byteLength,
+    "the gzip copy and the ready response made of it are counted",
+  );
+  await (await app.request("/")).arrayBuffer();
+  assert.equal(cache.bytes, 2 * 4400 + 2 * gz.byteLength, "the identity ready response too");
   // a second entry that overflows the budget evicts the first with its gzip copy
   cache.set("b", { etag: '"b"', body: new Uint8Array(6000), headers: {} });
   assert.equal(cache.get("a"), undefined);
   assert.equal(cache.bytes, 6000);
   // a gzip copy made for an entry no longer cached is not counted
-  rep.onGzip?.(100);
+  rep.onExtraBytes?.(100);
   assert.equal(cache.bytes, 6000);
 });

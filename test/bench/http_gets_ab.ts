@@ -6,7 +6,8 @@
  * rounds alternating A and B, with the hello-world (12 bytes, and as many bytes as each body)
  * in every round. Both serve copies of one database (A made the run, then stopped, and both
  * start on a copy), so both must answer with the same bytes and ETags, which is checked.
- * Prints medians, per-round B/A ratios, ratios to the hello-world and the load average.
+ * Prints medians, per-round B/A ratios, ratios to the hello-world, median p99 latencies and the
+ * load average.
  * Use it to compare a change with the commit before it (`git archive <commit> | tar -x -C DIR`,
  * with node_modules linked in).
  *
@@ -74,14 +75,22 @@ async function start(root: string, port: number, dir: string) {
   };
 }
 
-async function wrk(url: string, headers: Record<string, string> = {}, seconds = SECONDS) {
-  const a = ["-t2", "-c50", `-d${seconds}s`, "--timeout", "5s"];
+/** Requests per second of one wrk run; its 99th percentile latency (ms) goes to `p99s`. */
+async function wrk(
+  url: string,
+  headers: Record<string, string> = {},
+  seconds = SECONDS,
+  p99s?: number[],
+) {
+  const a = ["-t2", "-c50", `-d${seconds}s`, "--timeout", "5s", "--latency"];
   for (const [k, v] of Object.entries(headers)) a.push("-H", `${k}: ${v}`);
   a.push(url);
   const out = await new Deno.Command("wrk", { args: a, stdout: "piped" }).output();
   const text = new TextDecoder().decode(out.stdout);
   const bad = Number(/Non-2xx or 3xx responses:\s+(\d+)/.exec(text)?.[1] ?? 0);
   if (!out.success || bad) throw new Error(`wrk ${url}: ${text}`);
+  const p99 = /^\s*99%\s+([\d.]+)(us|ms|s)\s*$/m.exec(text);
+  if (p99 && p99s) p99s.push(Number(p99[1]) * ({ us: 1e-3, ms: 1, s: 1e3 }[p99[2]] ?? NaN));
   return Number(/Requests\/sec:\s+([\d.]+)/.exec(text)?.[1] ?? NaN);
 }
 
@@ -183,14 +192,22 @@ try {
     await wrk(...c.b, 2);
   }
   const rps: Record<string, { a: number[]; b: number[]; same: number[] }> = {};
+  const p99: Record<string, { a: number[]; b: number[]; same: number[] }> = {};
   const helloRps: number[] = [];
-  for (const c of chosen) rps[c.name] = { a: [], b: [], same: [] };
+  for (const c of chosen) {
+    rps[c.name] = { a: [], b: [], same: [] };
+    p99[c.name] = { a: [], b: [], same: [] };
+  }
   for (let k = 0; k < ROUNDS; k++) {
     helloRps.push(await wrk(helloUrl));
     for (const c of chosen) {
       const order = k % 2 ? ["b", "a"] as const : ["a", "b"] as const;
-      for (const w of order) rps[c.name][w].push(await wrk(...c[w]));
-      rps[c.name].same.push(await wrk(`${helloUrl}bytes/${c.bytes}`));
+      for (const w of order) {
+        rps[c.name][w].push(await wrk(...c[w], SECONDS, p99[c.name][w]));
+      }
+      rps[c.name].same.push(
+        await wrk(`${helloUrl}bytes/${c.bytes}`, {}, SECONDS, p99[c.name].same),
+      );
     }
   }
   const h = median(helloRps);
@@ -209,7 +226,9 @@ try {
         (ma / h).toFixed(3)
       } B ${(mb / h).toFixed(3)}; same-bytes hello ${ms.toFixed(0)}: A ${(ma / ms).toFixed(2)} B ${
         (mb / ms).toFixed(2)
-      }`,
+      }; p99 latency (median) A ${median(p99[c.name].a).toFixed(1)} ms, B ${
+        median(p99[c.name].b).toFixed(1)
+      } ms, same-bytes hello ${median(p99[c.name].same).toFixed(1)} ms`,
     );
   }
   console.log(`load average at start ${loadStart}, at end ${load()}`);
