@@ -46,6 +46,15 @@ const SeriesIdParam = z.object({
 });
 
 /**
+ * The strong ETag of a series' CSV or JSON. The CSV is the same bytes for every holder; the
+ * JSON shows the holding's `created_at`, so two holders' JSON are different representations
+ * and get different tags (RFC 9110 §8.8.3: a strong tag names one sequence of bytes).
+ */
+function seriesTag(id: string, csv: boolean, holding: Holding): string {
+  return csv ? `"${id}-csv"` : `"${id}-json-${holding.created_at}"`;
+}
+
+/**
  * Metadata with ISO dates beside the decimal years, and the holding the caller sees it
  * through (owner, visibility, and that holding's creation time) when given.
  */
@@ -132,7 +141,7 @@ export function registerSeriesRoutes(
     principal: Principal,
   ): Response | Promise<Response> | null {
     const csv = wantsCsv(c);
-    const etag = `"${id}${csv ? "-csv" : ""}"`;
+    const etag = seriesTag(id, csv, holding);
     const shared = sharedCacheable(principal, holding);
     const nm = notModified(c, etag, shared);
     if (nm) return nm;
@@ -307,7 +316,7 @@ export function registerSeriesRoutes(
       const cached = fromCache(c, id, holding, principalOf(c));
       if (cached) return await cached;
       const csv = wantsCsv(c);
-      const etag = `"${id}${csv ? "-csv" : ""}"`;
+      const etag = seriesTag(id, csv, holding);
       const shared = sharedCacheable(principalOf(c), holding);
       const key = csv ? `${id}-csv` : `${id}-json-${JSON.stringify(holding)}`;
       const s = await store.getSeries(id);

@@ -120,6 +120,8 @@ Deno.test("tenancy: the same content keeps one id and tells no owner about the o
     const first = await analyst_a.post("/v1/series", content);
     assert.equal(first.status, 201);
     const a = await first.json();
+    // creation times are kept to the millisecond: make them differ
+    await new Promise((r) => setTimeout(r, 5));
     const second = await analyst_b.post("/v1/series", content);
     // Analyst B is told his upload is new (201, created), with his own creation time.
     assert.equal(second.status, 201);
@@ -130,6 +132,23 @@ Deno.test("tenancy: the same content keeps one id and tells no owner about the o
     const again = await analyst_b.post("/v1/series", content);
     assert.equal(again.status, 200, "his own repeat is 200");
     assert.equal((await svc.store.listSeries({ limit: 10, offset: 0 })).total, 1, "stored once");
+    // Each holder's JSON shows its own creation time: two representations, two strong ETags
+    // (RFC 9110 §8.8.3); the CSV is the same bytes for both, with one tag.
+    const jsonA = await analyst_a.get(`/v1/series/${a.series.id}`);
+    const jsonB = await analyst_b.get(`/v1/series/${a.series.id}`);
+    const [bytesA, bytesB] = [await jsonA.text(), await jsonB.text()];
+    assert.notEqual(a.series.created_at, b.series.created_at, "uploaded at different times");
+    assert.notEqual(bytesA, bytesB);
+    assert.notEqual(jsonA.headers.get("etag"), jsonB.headers.get("etag"));
+    const crossed = await analyst_b.get(`/v1/series/${a.series.id}`, {
+      "If-None-Match": jsonA.headers.get("etag")!,
+    });
+    assert.equal(crossed.status, 200, "her tag does not validate his representation");
+    await crossed.body?.cancel();
+    const csvA = await analyst_a.get(`/v1/series/${a.series.id}?format=csv`);
+    const csvB = await analyst_b.get(`/v1/series/${a.series.id}?format=csv`);
+    assert.equal(await csvA.text(), await csvB.text());
+    assert.equal(csvA.headers.get("etag"), csvB.headers.get("etag"));
     // Analyst A deletes hers: analyst_b's copy stays, and neither learns of the other.
     assert.equal((await analyst_a.del(`/v1/series/${a.series.id}`)).status, 204);
     await assertProblem(await analyst_a.get(`/v1/series/${a.series.id}`), 404);
