@@ -9,11 +9,9 @@
  */
 import assert from "node:assert/strict";
 import { openSqliteStore } from "../../../api/store/sqlite.ts";
-import { BLOCK_VALUES, storeNetcdfField } from "../../../api/fields/ingest.ts";
-import { withNetcdf, withTempUpload } from "../../../api/netcdf/open.ts";
+import { BLOCK_VALUES } from "../../../api/fields/ingest.ts";
 import { NetcdfError } from "../../../api/netcdf/errors.ts";
-import type { Store } from "../../../api/store/types.ts";
-import { gridNetcdf } from "./grid_file.ts";
+import { gridNetcdf, uploadTasField } from "./grid_file.ts";
 
 const NT = 200, LAT = 90, LON = 180;
 const lat = Array.from({ length: LAT }, (_, i) => -89 + 2 * i);
@@ -35,13 +33,7 @@ function values(bad?: number): Float32Array {
   return v;
 }
 
-function upload(store: Store, bytes: Uint8Array) {
-  return withTempUpload(
-    bytes,
-    1e9,
-    (path) => withNetcdf(path, (src) => storeNetcdfField(src, store, { variable: "tas" })),
-  );
-}
+const upload = uploadTasField;
 
 Deno.test("storeNetcdfField() pipelines blocks into a SQLite file store: same id, same values, nothing left from a failure", async (t) => {
   assert.ok(NT * LAT * LON > 3 * BLOCK_VALUES, "the field spans several blocks");

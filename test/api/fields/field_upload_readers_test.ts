@@ -11,11 +11,9 @@
  */
 import assert from "node:assert/strict";
 import { openSqliteStore } from "../../../api/store/sqlite.ts";
-import { BLOCK_VALUES, storeNetcdfField } from "../../../api/fields/ingest.ts";
-import { withNetcdf, withTempUpload } from "../../../api/netcdf/open.ts";
+import { BLOCK_VALUES } from "../../../api/fields/ingest.ts";
 import { NETCDF4_POOL, stopNetcdf4Worker } from "../../../api/netcdf/netcdf4_source.ts";
-import type { Store } from "../../../api/store/types.ts";
-import { gridNetcdf } from "./grid_file.ts";
+import { gridNetcdf, uploadTasField } from "./grid_file.ts";
 
 const NT = 400, LAT = 90, LON = 180;
 const lat = Array.from({ length: LAT }, (_, i) => -89 + 2 * i);
@@ -38,13 +36,7 @@ function values(): Float32Array {
   return v;
 }
 
-function upload(store: Store, bytes: Uint8Array) {
-  return withTempUpload(
-    bytes,
-    1e9,
-    (path) => withNetcdf(path, (src) => storeNetcdfField(src, store, { variable: "tas" })),
-  );
-}
+const upload = uploadTasField;
 
 async function toNetcdf4(classic: Uint8Array): Promise<Uint8Array> {
   const dir = await Deno.makeTempDir({ prefix: "sunlag-readers-" });

@@ -6,6 +6,9 @@
  */
 import { encodeNetcdf3, type NetcdfWriteVariable } from "../../../core/cf/netcdf3_write.ts";
 import { ncNumber, ncText } from "../../../core/cf/netcdf_model.ts";
+import { storeNetcdfField } from "../../../api/fields/ingest.ts";
+import { withNetcdf, withTempUpload } from "../../../api/netcdf/open.ts";
+import type { Store } from "../../../api/store/types.ts";
 
 /** Options of {@link gridNetcdf}. */
 export interface GridFileOptions {
@@ -91,4 +94,13 @@ export function gridNetcdf(o: GridFileOptions): Uint8Array<ArrayBuffer> {
     attributes: [ncText("Conventions", "CF-1.10"), ncText("title", "constructed test field")],
     variables: vars,
   }));
+}
+
+/** Store the NetCDF `bytes` (variable `tas`) as a field through the upload path. */
+export function uploadTasField(store: Store, bytes: Uint8Array) {
+  return withTempUpload(
+    bytes,
+    1e9,
+    (path) => withNetcdf(path, (src) => storeNetcdfField(src, store, { variable: "tas" })),
+  );
 }

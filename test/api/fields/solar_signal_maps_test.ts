@@ -175,15 +175,13 @@ Deno.test("solar-signal-maps: the FDR mask at one lag is statsmodels' fdr_bh; co
   }
 });
 
+/** A small Monte Carlo map request (lags 0–3, 199 surrogates) on the set-up inputs. */
+function monteCarloBody(ids: { field: string; solar: string }, seed: number) {
+  return { field: ids.field, solar: ids.solar, min_lag: 0, max_lag: 3, surrogates: 199, seed };
+}
+
 Deno.test("solar-signal-maps: the Monte Carlo test gives the same digest on 1 thread and on 2 workers, and replays", async () => {
-  const body = (ids: { field: string; solar: string }) => ({
-    field: ids.field,
-    solar: ids.solar,
-    min_lag: 0,
-    max_lag: 3,
-    surrogates: 199,
-    seed: 5,
-  });
+  const body = (ids: { field: string; solar: string }) => monteCarloBody(ids, 5);
   const a = await makeTestApp();
   const b = await makeTestApp({ workers: 2 });
   try {
@@ -211,14 +209,7 @@ Deno.test("solar-signal-maps: the Monte Carlo test gives the same digest on 1 th
 });
 
 Deno.test("solar-signal-maps: the Monte Carlo digest is the same with SUNLAG_BLAS=off and auto", async () => {
-  const body = (ids: { field: string; solar: string }) => ({
-    field: ids.field,
-    solar: ids.solar,
-    min_lag: 0,
-    max_lag: 3,
-    surrogates: 199,
-    seed: 8,
-  });
+  const body = (ids: { field: string; solar: string }) => monteCarloBody(ids, 8);
   const digest = async (blas: "off" | "auto", workers: number, engine: string) => {
     const svc = await makeTestApp({ config: { blas }, workers });
     try {
