@@ -17,7 +17,6 @@ import {
   CancelledError,
   InputProblem,
   type LoadedField,
-  type RunContext,
   type RunInputs,
   type RunKind,
   type Task,
@@ -25,7 +24,8 @@ import {
 import type { OutputSeries, RunResult } from "./kind.ts";
 import { StoppedError } from "../../core/stop_signal.ts";
 import { estimateRunSeconds } from "./estimate.ts";
-import { loadedInputs } from "./loaded_inputs.ts";
+import { makeContext } from "./context.ts";
+export { makeContext };
 import { SERIES_ID_PATTERN } from "../schemas/series_ref.ts";
 import type { InlineSeries } from "../schemas/series_ref.ts";
 import { ProblemError, toPointer } from "../problems.ts";
@@ -155,23 +155,6 @@ export class InThreadExecutor implements ComputeExecutor {
     }
     return out;
   }
-}
-
-/** Build the RunContext seen by compute. */
-export function makeContext(
-  inputs: RunInputs,
-  hooks: { progress(f: number): void; isCancelled(): boolean },
-  parallel: <I, O>(task: string, chunks: I[]) => Promise<O[]>,
-): RunContext {
-  let reported = 0;
-  return {
-    ...loadedInputs(inputs),
-    // Progress never goes back (a kind may report 0.05 + 0.9·k/n, then 0.95, and float
-    // rounding makes the second smaller than the first).
-    progress: (f) => hooks.progress(reported = Math.max(reported, Math.min(1, Math.max(0, f)))),
-    cancelled: () => hooks.isCancelled(),
-    parallel: (task, chunks) => parallel(task, chunks),
-  };
 }
 
 function isInlineSeries(v: unknown): v is InlineSeries {

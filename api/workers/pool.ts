@@ -65,6 +65,10 @@ interface Slot {
   dead: boolean;
   /** The worker has loaded the analyses (before that, nothing posted to it has begun). */
   ready: boolean;
+  /** When the slot's current worker was started (`performance.now()`). */
+  startedAt?: number;
+  /** Milliseconds from the start of the slot's current worker to its `ready` message. */
+  readyMs?: number;
   /** Replace the worker by a fresh one once it is idle (it built a very large result). */
   recycle?: boolean;
   /** The pending recycling of an idle worker (cleared when it is given a job). */
@@ -106,7 +110,7 @@ interface Job {
 /** What the pool is doing (tests, metrics). */
 export interface PoolStats {
   workers: number;
-  /** Workers that have loaded the analyses. */
+  /** Workers that have loaded their analyses (with the service's registry: the warm-up's). */
   ready: number;
   /** Workers computing something (not only holding runs that wait for their chunks). */
   busy: number;
@@ -236,6 +240,8 @@ export class WorkerPool implements ComputeExecutor {
    */
   private attach(slot: Slot): void {
     const worker = slot.worker;
+    slot.startedAt = performance.now();
+    slot.readyMs = undefined;
     worker.onmessage = (e) => {
       if (slot.worker === worker) this.onMessage(slot, e.data);
     };
@@ -326,6 +332,7 @@ export class WorkerPool implements ComputeExecutor {
   private onMessage(slot: Slot, m: Record<string, unknown>) {
     if (m.type === "ready") {
       slot.ready = true;
+      slot.readyMs = Math.round(performance.now() - (slot.startedAt ?? 0));
       return;
     }
     const job = this.jobs.get(m.job as number);
@@ -404,6 +411,7 @@ export class WorkerPool implements ComputeExecutor {
     transfer: boolean,
   ): Promise<O[]> {
     if (control?.stopped) return Promise.reject(new CancelledError());
+    const kind = parent?.job.message.kind;
     const batch: Job[] = [];
     const all = Promise.all(inputs.map((input) =>
       new Promise<O>((resolve, reject) => {
@@ -411,7 +419,8 @@ export class WorkerPool implements ComputeExecutor {
         const job: Job = {
           id,
           type: "task",
-          message: { type: "task", job: id, task, input, stop: control?.flag },
+          // with the analysis whose chunk it is: a worker that has not loaded it loads only it
+          message: { type: "task", job: id, task, input, stop: control?.flag, kind },
           transfer: transfer ? transferablesOf(input) : [],
           transferred: false,
           control,
@@ -684,7 +693,8 @@ export class WorkerPool implements ComputeExecutor {
    * Warm every worker up (a small run of the hot analyses, api/workers/warm_up.ts) so that
    * the first user's run does not pay for compiling their code. Does not block: call it after
    * the pool is made; a run sent meanwhile waits for its worker's warm-up. Resolves with each
-   * worker's timings (and errors, which never reject).
+   * worker's timings (and errors, which never reject), and `ready_ms`: the milliseconds from
+   * the worker's start to its `ready` message (loading its modules).
    */
   warmUp(): Promise<unknown[]> {
     return Promise.all(this.slots.filter((s) => !s.dead).map((slot) => this.warmSlot(slot)));
@@ -706,8 +716,9 @@ export class WorkerPool implements ComputeExecutor {
         attempt: 0,
         started: false,
         progress: 0,
-        resolve,
-        reject: (e) => resolve({ error: e }),
+        // with the time the worker took to load its modules (`ready_ms`)
+        resolve: (r) => resolve({ ...(r as object), ready_ms: slot.readyMs ?? null }),
+        reject: (e) => resolve({ error: e, ready_ms: slot.readyMs ?? null }),
       };
       // posted to this very worker (not through the queue): it is busy until warm
       this.jobs.set(id, job);

@@ -9,7 +9,7 @@
  * @module
  */
 import type { RunKind, Task } from "../runs/kind.ts";
-import { makeContext } from "../runs/service.ts";
+import { makeContext } from "../runs/context.ts";
 import type { StoredSeries } from "../store/types.ts";
 
 /** Invented monthly series of `n` months from 1900 (an 11-year cycle and a lagged echo). */
@@ -48,6 +48,9 @@ const REQUESTS: Record<string, Record<string, unknown>> = {
   "lag-correlations": { solar: SOLAR, climate: CLIMATE, max_lag: 24, surrogates: 200, seed: 1 },
   cycles: { series: SOLAR },
 };
+
+/** The analyses the warm-up runs (a worker loads them first). */
+export const WARM_UP_KINDS: readonly string[] = Object.keys(REQUESTS);
 
 /**
  * Run the warm-up requests in this thread (chunks of a parallel map too).
