@@ -48,6 +48,7 @@ import { registerAdminRoutes } from "./routes/admin.ts";
 import { UploadPool } from "./ingest/upload.ts";
 import { registerSharingRoutes } from "./routes/sharing.ts";
 import { HotGets, requestIdFrom, withHotGets } from "./hot_gets.ts";
+import { headResponse } from "./head_length.ts";
 
 export interface AppDeps {
   store: Store;
@@ -148,6 +149,11 @@ export function createService(deps: AppDeps): Service {
     await next();
     c.res.headers.set("X-Request-Id", id);
     finish(c.req.method, c.req.path, c.res.status, t0, id);
+  });
+  // HEAD: the GET's headers with the length of the body it would send (api/head_length.ts)
+  app.use("*", async (c, next) => {
+    await next();
+    if (c.req.method === "HEAD") c.res = await headResponse(c.res);
   });
 
   app.use("*", hostCheck(config.allowedHosts));

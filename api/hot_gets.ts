@@ -34,6 +34,7 @@ import { bucketKey } from "./limits/rate_limit.ts";
 import { ANONYMOUS, isLimited, LOCAL_PRINCIPAL, type Principal } from "./auth/principal.ts";
 import { requiredRole } from "./auth/authorise.ts";
 import type { TokenBuckets } from "./limits/token_bucket.ts";
+import { headResponse } from "./head_length.ts";
 
 /** The request id of a request: the client's `X-Request-Id` when it is sane, else a UUIDv7. */
 export function requestIdFrom(incoming: string | null | undefined): string {
@@ -206,7 +207,7 @@ export function withHotGets(deps: HotPathDeps, full: Fetch): Fetch {
       ? corsSimpleHeaders(deps.corsOrigins, headers.get("origin") ?? "")
       : null;
     if (deps.adminKey !== null || cors) res = decorate(res, cors, deps.adminKey !== null);
-    if (method === "HEAD") res = new Response(null, res);
+    if (method === "HEAD") res = await headResponse(res);
     deps.finish(method, path, res.status, t0, id);
     deps.hot.served++;
     return res;
