@@ -14,7 +14,7 @@
  *
  * @module
  */
-import { demoIds } from "./http_bench_inputs.ts";
+import { demoIds, firstRunLag } from "./http_bench_inputs.ts";
 
 const args = Deno.args;
 const opt = (name: string, dflt: number) => {
@@ -146,13 +146,7 @@ for (let round = 0; round < ROUNDS; round++) {
         f.health_ms.push(Math.round(s.healthMs));
         if (late) await new Promise((r) => setTimeout(r, 5000));
         const ids = await demoIds(s.base);
-        const body = {
-          solar: ids["sunspot_number_monthly.csv"],
-          climate: ids["temperature_anomaly_monthly.csv"],
-          max_lag: 36,
-          surrogates: 1000,
-          seed: 1,
-        };
+        const body = firstRunLag(ids);
         const first = Math.round(await timedPost(s.base, body));
         if (late) f.first_ms_5s_after_health.push(first);
         else {

@@ -32,6 +32,20 @@ export function months3000(name = "bench months") {
   return { name, quantity: "sunspot_number", units: "1", version: "2", time, value };
 }
 
+/**
+ * The "first heavy run" of the start-up benches: a lag correlation of the demo's monthly
+ * sunspot numbers and temperature anomalies, lags ±36, 1,000 surrogates.
+ */
+export function firstRunLag(ids: Record<string, string>) {
+  return {
+    solar: ids["sunspot_number_monthly.csv"],
+    climate: ids["temperature_anomaly_monthly.csv"],
+    max_lag: 36,
+    surrogates: 1000,
+    seed: 1,
+  };
+}
+
 /** Synthetic (invented) daily sunspot numbers 1610–2029 with an 11-year cycle. */
 export function dailySpots(phase = 0, name = `bench daily sunspots ${phase}`) {
   const days = periodKeyRange(1610, 2030, "daily");

@@ -23,7 +23,7 @@
  *
  * @module
  */
-import { dailySpots, demoIds, months3000 } from "./http_bench_inputs.ts";
+import { dailySpots, demoIds, firstRunLag, months3000 } from "./http_bench_inputs.ts";
 import { makeTestApp, type TestService } from "../api/helpers.ts";
 import { RUN_KINDS } from "../../api/analyses/registry.ts";
 import { makeContext } from "../../api/runs/service.ts";
@@ -274,13 +274,7 @@ if (want("first")) {
       // the last start: the first run 5 s after the health check answers
       if (k === 3) await new Promise((r) => setTimeout(r, 5000));
       const ids = await demoIds(s.base);
-      const body = {
-        solar: ids["sunspot_number_monthly.csv"],
-        climate: ids["temperature_anomaly_monthly.csv"],
-        max_lag: 36,
-        surrogates: 1000,
-        seed: 1,
-      };
+      const body = firstRunLag(ids);
       const first = (await timedPost(s.base, "/v1/lag-correlations", body)).ms;
       if (k === 3) late.push(first);
       else firsts.push(first);
