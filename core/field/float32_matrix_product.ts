@@ -42,7 +42,7 @@
  * @module
  */
 
-import { wasmModule, wasmOp as op, wasmType } from "../wasm/module_builder.ts";
+import { kernelFunction, wasmModule, wasmOp as op, wasmType } from "../wasm/module_builder.ts";
 
 /** C = A·B with a fixed right-hand matrix. */
 export interface Float32ProductEngine {
@@ -148,14 +148,9 @@ let kernelModule: WebAssembly.Module | null = null;
 export function wasmFloat32Product(): Float32ProductEngine {
   kernelModule ??= new WebAssembly.Module(float32KernelModule());
   const memory = new WebAssembly.Memory({ initial: 1 });
-  const tile = new WebAssembly.Instance(kernelModule, { env: { memory } }).exports.tile as (
-    ap: number,
-    bp: number,
-    cp: number,
-    k: number,
-    panels: number,
-    ldc: number,
-  ) => void;
+  const tile = kernelFunction<
+    (ap: number, bp: number, cp: number, k: number, panels: number, ldc: number) => void
+  >(kernelModule, memory, "tile");
   let k = 0, n = 0, panels = 0, bBytes = 0;
   let bPacked: Float32Array | null = null;
   const ensure = (bytes: number) => {

@@ -33,7 +33,7 @@
  *
  * @module
  */
-import { wasmModule, wasmOp as op, wasmType } from "../wasm/module_builder.ts";
+import { kernelFunction, wasmModule, wasmOp as op, wasmType } from "../wasm/module_builder.ts";
 
 /** The tally module's bytes (see the module documentation). */
 function tallyModule(): Uint8Array<ArrayBuffer> {
@@ -166,9 +166,7 @@ export function localTestTally(
   }
   compiled ??= new WebAssembly.Module(tallyModule());
   const memory = new WebAssembly.Memory({ initial: 1 });
-  const tally = new WebAssembly.Instance(compiled, { env: { memory } }).exports.tally as (
-    ...args: number[]
-  ) => number;
+  const tally = kernelFunction<(...args: number[]) => number>(compiled, memory, "tally");
   // cells padded to an even count (two per f64x2); the padding cell has weight 0 and infinite
   // bounds, so it is never significant, flagged or listed
   const cp = cells + (cells & 1), lc = lags * cp;

@@ -47,7 +47,13 @@
  *
  * @module
  */
-import { wasmModule, wasmOp as op, wasmType } from "../wasm/module_builder.ts";
+import {
+  compileKernelOrNull,
+  kernelFunction,
+  wasmModule,
+  wasmOp as op,
+  wasmType,
+} from "../wasm/module_builder.ts";
 
 /** Rows of L per panel (4 f64x2 vectors). */
 const ROWS = 8;
@@ -250,12 +256,7 @@ export function lowerTriangularMixer(
   maxDays = 64,
 ): LowerTriangularMixer {
   checkFactor(lower, order, maxDays);
-  if (kernelModule === undefined) {
-    const bytes = lowerTriangularMixingModule();
-    kernelModule = typeof WebAssembly === "object" && WebAssembly.validate(bytes)
-      ? new WebAssembly.Module(bytes)
-      : null;
-  }
+  if (kernelModule === undefined) kernelModule = compileKernelOrNull(lowerTriangularMixingModule());
   if (!kernelModule) return mixLowerTriangularJs(lower, order, maxDays);
   const B = order, panels = Math.ceil(B / ROWS), stride = panels * ROWS;
   const pairs = Math.ceil(maxDays / 2);
@@ -265,15 +266,17 @@ export function lowerTriangularMixer(
   const zOff = packedLength * 8, eOff = zOff + 2 * pairs * B * 8;
   const bytes = eOff + 2 * pairs * stride * 8;
   const memory = new WebAssembly.Memory({ initial: Math.ceil(bytes / 65536) });
-  const mix = new WebAssembly.Instance(kernelModule, { env: { memory } }).exports.mix as (
-    lp: number,
-    zp: number,
-    ep: number,
-    pairs: number,
-    zs: number,
-    es: number,
-    panels: number,
-  ) => void;
+  const mix = kernelFunction<
+    (
+      lp: number,
+      zp: number,
+      ep: number,
+      pairs: number,
+      zs: number,
+      es: number,
+      panels: number,
+    ) => void
+  >(kernelModule, memory, "mix");
   const packed = new Float64Array(memory.buffer, 0, packedLength);
   let at = 0;
   for (let q = 0; q < panels; q++) {

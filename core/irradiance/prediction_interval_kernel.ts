@@ -49,7 +49,7 @@
  *
  * @module
  */
-import { wasmModule, wasmOp as op, wasmType } from "../wasm/module_builder.ts";
+import { kernelFunction, wasmModule, wasmOp as op, wasmType } from "../wasm/module_builder.ts";
 
 const { i32, v128 } = wasmType;
 /** The quiet NaN JavaScript writes for `NaN` (0x7ff8000000000000), little-endian. */
@@ -372,7 +372,7 @@ export function predictionIntervalKernel(n: number): PredictionIntervalKernel | 
       if (!module) {
         shapes.set(key, module = new WebAssembly.Module(predictionIntervalModule(shape)));
       }
-      run = new WebAssembly.Instance(module, { env: { memory } }).exports.cells as Cells;
+      run = kernelFunction<Cells>(module, memory, "cells");
       return true;
     },
     scratch: (j) => new Float64Array(memory.buffer, SCRATCH + BLOCK_BYTES * j, B),

@@ -42,7 +42,13 @@
  *
  * @module
  */
-import { wasmModule, wasmOp as op, wasmType } from "../wasm/module_builder.ts";
+import {
+  compileKernelOrNull,
+  kernelFunction,
+  wasmModule,
+  wasmOp as op,
+  wasmType,
+} from "../wasm/module_builder.ts";
 
 /** Columns of G per panel (4 f64x2 vectors). */
 const COLS = 8;
@@ -194,17 +200,11 @@ type GramKernel = (pp: number, gp: number, n: number, rs: number, rows: number) 
 
 /** The instance, its memory grown to at least `bytes`; null without WebAssembly SIMD. */
 function gramKernel(bytes: number): { memory: WebAssembly.Memory; gram: GramKernel } | null {
-  if (kernelModule === undefined) {
-    const b = gramMatrixModule();
-    kernelModule = typeof WebAssembly === "object" && WebAssembly.validate(b)
-      ? new WebAssembly.Module(b)
-      : null;
-  }
+  if (kernelModule === undefined) kernelModule = compileKernelOrNull(gramMatrixModule());
   if (!kernelModule) return null;
   if (!kernel) {
     const memory = new WebAssembly.Memory({ initial: Math.ceil(bytes / 65536) });
-    const gram = new WebAssembly.Instance(kernelModule, { env: { memory } }).exports
-      .gram as GramKernel;
+    const gram = kernelFunction<GramKernel>(kernelModule, memory, "gram");
     kernel = { memory, gram };
   }
   const have = kernel.memory.buffer.byteLength;

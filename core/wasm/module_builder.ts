@@ -169,3 +169,54 @@ export function wasmModule(fn: WasmFunction): Uint8Array<ArrayBuffer> {
     ...section(10, [[...uleb(body.length), ...body]]),
   ]);
 }
+
+/**
+ * The compiled module of `bytes`, or null where this runtime has no WebAssembly or rejects the
+ * module (e.g. no SIMD); the kernels then take their plain path.
+ *
+ * @param bytes a module from {@link wasmModule}
+ * @returns the module, or null
+ * @example
+ * ```ts
+ * import { compileKernelOrNull } from "./module_builder.ts";
+ * import assert from "node:assert/strict";
+ * assert.equal(compileKernelOrNull(new Uint8Array([1, 2, 3])), null);
+ * ```
+ */
+export function compileKernelOrNull(bytes: Uint8Array<ArrayBuffer>): WebAssembly.Module | null {
+  return typeof WebAssembly === "object" && WebAssembly.validate(bytes)
+    ? new WebAssembly.Module(bytes)
+    : null;
+}
+
+/**
+ * Instantiate a kernel module from {@link wasmModule} on `memory` (its `env.memory` import)
+ * and return its one exported function.
+ *
+ * @param module the compiled kernel
+ * @param memory the memory it works in
+ * @param name the exported function's name
+ * @returns the function
+ * @example
+ * ```ts
+ * import { kernelFunction, wasmModule, wasmOp, wasmType } from "./module_builder.ts";
+ * import assert from "node:assert/strict";
+ * const bytes = wasmModule({
+ *   name: "one",
+ *   params: [],
+ *   results: [wasmType.i32],
+ *   locals: [],
+ *   code: [...wasmOp.i32Const(1)],
+ * });
+ * const memory = new WebAssembly.Memory({ initial: 1 });
+ * const one = kernelFunction<() => number>(new WebAssembly.Module(bytes), memory, "one");
+ * assert.equal(one(), 1);
+ * ```
+ */
+export function kernelFunction<F>(
+  module: WebAssembly.Module,
+  memory: WebAssembly.Memory,
+  name: string,
+): F {
+  return new WebAssembly.Instance(module, { env: { memory } }).exports[name] as F;
+}
