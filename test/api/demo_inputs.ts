@@ -9,6 +9,8 @@ import assert from "node:assert/strict";
 import type { TestService } from "./helpers.ts";
 import { DEMO_SERIES } from "../../api/schemas/examples.ts";
 import { FIELD } from "./demo_ids.ts";
+import { loadDemo } from "../../api/demo.ts";
+import { RUN_KINDS } from "../../api/analyses/registry.ts";
 
 /** Content ids of the demo series loaded by `loadDemo` (api/schemas/examples.ts), and the field. */
 export const DEMO = { ...DEMO_SERIES, FIELD } as const;
@@ -37,4 +39,38 @@ export async function demoIrradianceModel(svc: TestService) {
   const psi: string = (await created(`/v1/runs/${darkening.id}/outputs/psi/series`, {})).id;
   const model = await created("/v1/irradiance/models", demoModelRequest(psi));
   return { darkening, psi, model };
+}
+
+/** The demo's spectral bands (fixtures/demo/spectral_bands.json, invented). */
+export const DEMO_BANDS = JSON.parse(
+  await Deno.readTextFile(new URL("../../fixtures/demo/spectral_bands.json", import.meta.url)),
+);
+
+/** POST a run that must be created synchronously (201) with a result its kind's schema accepts. */
+export async function createdRun(svc: TestService, path: string, body: unknown) {
+  const res = await svc.post(path, body);
+  const json = await res.json();
+  assert.equal(res.status, 201, `${path}: ${JSON.stringify(json).slice(0, 600)}`);
+  const kind = RUN_KINDS.find((k) => k.kind === json.kind)!;
+  const parsed = kind.result.safeParse(json.result);
+  assert.ok(parsed.success, `${path}: result schema ${JSON.stringify(parsed.error?.issues)}`);
+  return json;
+}
+
+/**
+ * The demo loaded and its chain up to a spectral model of the demo bands; `extra` adds request
+ * members (e.g. `ranges`).
+ */
+export async function demoSpectralModel(svc: TestService, extra: Record<string, unknown> = {}) {
+  await loadDemo(svc.store);
+  const { psi, model } = await demoIrradianceModel(svc);
+  const proxies = [{ term: "mg_ii", series: DEMO.MG }, { term: "psi", series: psi }];
+  const spectral = await createdRun(svc, "/v1/irradiance/spectral-models", {
+    tsi_model: model.id,
+    sunspot_number: DEMO.SSN,
+    proxies,
+    bands: DEMO_BANDS,
+    ...extra,
+  });
+  return { psi, model, proxies, spectral };
 }

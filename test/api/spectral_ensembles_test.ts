@@ -5,14 +5,9 @@
  * `realization` dimension, read back by Debian's python3-xarray), and the size limit.
  */
 import assert from "node:assert/strict";
-import { assertProblem, makeTestApp, type TestService } from "./helpers.ts";
-import { loadDemo } from "../../api/demo.ts";
-import { DEMO, demoIrradianceModel } from "./demo_inputs.ts";
-import { RUN_KINDS } from "../../api/analyses/registry.ts";
+import { assertProblem, makeTestApp } from "./helpers.ts";
+import { createdRun, DEMO, demoSpectralModel } from "./demo_inputs.ts";
 import { memberValues } from "../../api/analyses/spectral_irradiance_reconstructions/ensemble.ts";
-
-const demoDir = new URL("../../fixtures/demo/", import.meta.url);
-const BANDS = JSON.parse(await Deno.readTextFile(new URL("spectral_bands.json", demoDir)));
 
 /** Debian's python3-xarray (with netCDF4 and cftime) for reading NetCDF back. */
 const HAS_XARRAY = (() => {
@@ -45,28 +40,10 @@ with xr.open_dataset(sys.argv[1], use_cftime=True) as ds:
     }))
 `;
 
-async function created(svc: TestService, path: string, body: unknown) {
-  const res = await svc.post(path, body);
-  const json = await res.json();
-  assert.equal(res.status, 201, `${path}: ${JSON.stringify(json).slice(0, 600)}`);
-  const kind = RUN_KINDS.find((k) => k.kind === json.kind)!;
-  const parsed = kind.result.safeParse(json.result);
-  assert.ok(parsed.success, `${path}: result schema ${JSON.stringify(parsed.error?.issues)}`);
-  return json;
-}
-
 Deno.test("spectral ensembles: bands and integrals from jointly drawn members, in JSON, CSV and NetCDF", async (t) => {
   const svc = await makeTestApp();
   try {
-    await loadDemo(svc.store);
-    const { psi, model } = await demoIrradianceModel(svc);
-    const proxies = [{ term: "mg_ii", series: DEMO.MG }, { term: "psi", series: psi }];
-    const spectral = await created(svc, "/v1/irradiance/spectral-models", {
-      tsi_model: model.id,
-      sunspot_number: DEMO.SSN,
-      proxies,
-      bands: BANDS,
-    });
+    const { proxies, spectral } = await demoSpectralModel(svc);
     const request = {
       model: spectral.id,
       sunspot_number: DEMO.SSN,
@@ -75,10 +52,10 @@ Deno.test("spectral ensembles: bands and integrals from jointly drawn members, i
       resolution: "annual",
       ranges: [{ lower: 200, upper: 400 }],
     };
-    const analytic = (await created(svc, "/v1/irradiance/spectral-reconstructions", request))
+    const analytic = (await createdRun(svc, "/v1/irradiance/spectral-reconstructions", request))
       .result;
     const M = 100;
-    const rec = await created(svc, "/v1/irradiance/spectral-reconstructions", {
+    const rec = await createdRun(svc, "/v1/irradiance/spectral-reconstructions", {
       ...request,
       realizations: M,
       seed: 7,
@@ -150,14 +127,14 @@ Deno.test("spectral ensembles: bands and integrals from jointly drawn members, i
     });
 
     await t.step("the same seed gives the same members", async () => {
-      const again = await created(svc, "/v1/irradiance/spectral-reconstructions", {
+      const again = await createdRun(svc, "/v1/irradiance/spectral-reconstructions", {
         ...request,
         realizations: M,
         seed: 7,
       });
       assert.notEqual(again.id, rec.id, "a second run, not the stored one");
       assert.equal(again.result_digest, rec.result_digest);
-      const other = await created(svc, "/v1/irradiance/spectral-reconstructions", {
+      const other = await createdRun(svc, "/v1/irradiance/spectral-reconstructions", {
         ...request,
         realizations: 2,
         seed: 8,

@@ -6,26 +6,11 @@
  * result, CSV, NetCDF and chart; bad input as problems with nothing stored.
  */
 import assert from "node:assert/strict";
-import { assertProblem, makeTestApp, type TestService, uploadSeries } from "./helpers.ts";
-import { loadDemo } from "../../api/demo.ts";
-import { DEMO, demoIrradianceModel } from "./demo_inputs.ts";
-import { RUN_KINDS } from "../../api/analyses/registry.ts";
+import { assertProblem, makeTestApp, uploadSeries } from "./helpers.ts";
+import { createdRun, DEMO, demoSpectralModel } from "./demo_inputs.ts";
 import { memberValues } from "../../api/analyses/spectral_irradiance_reconstructions/ensemble.ts";
 import { membersFromJson } from "../../api/analyses/common/ensemble_members.ts";
 import { noteText, squash } from "./svg_text.ts";
-
-const demoDir = new URL("../../fixtures/demo/", import.meta.url);
-const BANDS = JSON.parse(await Deno.readTextFile(new URL("spectral_bands.json", demoDir)));
-
-async function created(svc: TestService, path: string, body: unknown) {
-  const res = await svc.post(path, body);
-  const json = await res.json();
-  assert.equal(res.status, 201, `${path}: ${JSON.stringify(json).slice(0, 600)}`);
-  const kind = RUN_KINDS.find((k) => k.kind === json.kind)!;
-  const parsed = kind.result.safeParse(json.result);
-  assert.ok(parsed.success, `${path}: result schema ${JSON.stringify(parsed.error?.issues)}`);
-  return json;
-}
 
 /** The values of an output uploaded as an annual TSI series (ISO years: stored mid-year). */
 function asSeries(name: string, time: number[], value: ArrayLike<number | null>) {
@@ -41,15 +26,7 @@ function asSeries(name: string, time: number[], value: ArrayLike<number | null>)
 Deno.test("forcing from a spectral reconstruction's integral, with its members", async (t) => {
   const svc = await makeTestApp();
   try {
-    await loadDemo(svc.store);
-    const { psi, model } = await demoIrradianceModel(svc);
-    const proxies = [{ term: "mg_ii", series: DEMO.MG }, { term: "psi", series: psi }];
-    const spectral = await created(svc, "/v1/irradiance/spectral-models", {
-      tsi_model: model.id,
-      sunspot_number: DEMO.SSN,
-      proxies,
-      bands: BANDS,
-    });
+    const { model, proxies, spectral } = await demoSpectralModel(svc);
     const request = {
       model: spectral.id,
       sunspot_number: DEMO.SSN,
@@ -59,15 +36,15 @@ Deno.test("forcing from a spectral reconstruction's integral, with its members",
       ranges: [{ lower: 200, upper: 400 }],
     };
     const M = 100;
-    const rec = await created(svc, "/v1/irradiance/spectral-reconstructions", {
+    const rec = await createdRun(svc, "/v1/irradiance/spectral-reconstructions", {
       ...request,
       realizations: M,
       seed: 11,
     });
-    const plain = await created(svc, "/v1/irradiance/spectral-reconstructions", request);
+    const plain = await createdRun(svc, "/v1/irradiance/spectral-reconstructions", request);
     const r = rec.result;
     const reference = { kind: "period", period: { start: "1986", end: "1996" } };
-    const f = await created(svc, "/v1/forcing", {
+    const f = await createdRun(svc, "/v1/forcing", {
       spectral_reconstruction: { run: rec.id, output: "range_200_400" },
       reference,
     });
@@ -132,7 +109,7 @@ Deno.test("forcing from a spectral reconstruction's integral, with its members",
     await t.step(
       "the covered-range integral: its span, and the caution matches coverage",
       async () => {
-        const g = await created(svc, "/v1/forcing", {
+        const g = await createdRun(svc, "/v1/forcing", {
           spectral_reconstruction: { run: rec.id },
           reference,
         });
@@ -152,7 +129,7 @@ Deno.test("forcing from a spectral reconstruction's integral, with its members",
     await t.step("the same numbers as the integral's values uploaded as a TSI series", async () => {
       const o = r.outputs.range_200_400;
       const series = await uploadSeries(svc, asSeries("integral 200-400", o.time, o.value));
-      const viaSeries = await created(svc, "/v1/forcing", { tsi: series, reference });
+      const viaSeries = await createdRun(svc, "/v1/forcing", { tsi: series, reference });
       const sv = viaSeries.result.outputs.forcing;
       assert.deepEqual(sv.time, fo.time);
       assert.deepEqual(sv.value, fo.value);
@@ -162,7 +139,7 @@ Deno.test("forcing from a spectral reconstruction's integral, with its members",
       const k = 7;
       const s = memberValues(o.value, r.ensemble.outputs.range_200_400, k);
       const mid = await uploadSeries(svc, asSeries("member 8", o.time, s));
-      const viaMember = await created(svc, "/v1/forcing", { tsi: mid, reference });
+      const viaMember = await createdRun(svc, "/v1/forcing", { tsi: mid, reference });
       const fm = membersFromJson(f.result.ensemble.members);
       viaMember.result.outputs.forcing.value.forEach((v: number, i: number) => {
         assert.ok(Math.abs(v - fm[k * n + i]) <= 1e-6, `cell ${i}: ${v} vs ${fm[k * n + i]}`);
@@ -170,7 +147,7 @@ Deno.test("forcing from a spectral reconstruction's integral, with its members",
     });
 
     await t.step("without an ensemble: the central values, no σ, and a warning", async () => {
-      const p = await created(svc, "/v1/forcing", {
+      const p = await createdRun(svc, "/v1/forcing", {
         spectral_reconstruction: { run: plain.id, output: "range_200_400" },
         reference,
       });
@@ -274,7 +251,7 @@ Deno.test("forcing from a spectral reconstruction's integral, with its members",
     });
 
     await t.step("an energy-balance run takes it, member by member", async () => {
-      const eb = await created(svc, "/v1/energy-balance", { forcing_run: f.id });
+      const eb = await createdRun(svc, "/v1/energy-balance", { forcing_run: f.id });
       assert.equal(eb.result.ensemble.realizations, M);
       assert.ok(
         (eb.result.inherited ?? []).some((x: { text: string }) => x.text === f.result.cautions[0]),

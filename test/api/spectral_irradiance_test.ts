@@ -5,10 +5,15 @@
  * on a constructed spectrum whose bands add up exactly to a TSI record, and bad input.
  */
 import assert from "node:assert/strict";
-import { assertProblem, makeTestApp, type TestService } from "./helpers.ts";
+import { assertProblem, makeTestApp } from "./helpers.ts";
 import { loadDemo } from "../../api/demo.ts";
-import { DEMO, demoIrradianceModel } from "./demo_inputs.ts";
-import { RUN_KINDS } from "../../api/analyses/registry.ts";
+import {
+  createdRun,
+  DEMO,
+  DEMO_BANDS,
+  demoIrradianceModel,
+  demoSpectralModel,
+} from "./demo_inputs.ts";
 import { blackbodyBandFraction } from "../../core/irradiance/mod.ts";
 import { randomStream } from "../../core/random/mod.ts";
 import { DEMO_SPECTRAL_BANDS } from "../../api/schemas/examples.ts";
@@ -48,36 +53,12 @@ with xr.open_dataset(sys.argv[1], use_cftime=True) as ds:
         "years": [d.year for d in ds.time.values],
     }))
 `;
-const BANDS = JSON.parse(await Deno.readTextFile(new URL("spectral_bands.json", demoDir)));
+const BANDS = DEMO_BANDS;
 const TRUTH = JSON.parse(await Deno.readTextFile(new URL("manifest.json", demoDir))).truth;
-
-async function created(svc: TestService, path: string, body: unknown) {
-  const res = await svc.post(path, body);
-  const json = await res.json();
-  assert.equal(res.status, 201, `${path}: ${JSON.stringify(json).slice(0, 600)}`);
-  const kind = RUN_KINDS.find((k) => k.kind === json.kind)!;
-  assert.ok(kind.result.safeParse(json.result).success, `${path}: result schema`);
-  return json;
-}
-
-/** The demo chain up to the spectral model. */
-async function demoSpectralModel(svc: TestService) {
-  await loadDemo(svc.store);
-  const { psi, model } = await demoIrradianceModel(svc);
-  const proxies = [{ term: "mg_ii", series: DEMO.MG }, { term: "psi", series: psi }];
-  const spectral = await created(svc, "/v1/irradiance/spectral-models", {
-    tsi_model: model.id,
-    sunspot_number: DEMO.SSN,
-    proxies,
-    bands: BANDS,
-    ranges: [{ lower: 200, upper: 400 }],
-  });
-  return { psi, model, proxies, spectral };
-}
 
 Deno.test("spectral models on the demo record recover the true band parameters", async (t) => {
   const svc = await makeTestApp();
-  const { spectral } = await demoSpectralModel(svc);
+  const { spectral } = await demoSpectralModel(svc, { ranges: [{ lower: 200, upper: 400 }] });
   const r = spectral.result;
   const truth = TRUTH.spectral;
   await t.step(
@@ -166,8 +147,8 @@ Deno.test("spectral models on the demo record recover the true band parameters",
 
 Deno.test("spectral reconstruction back to 1700: bands, integrals, the TSI comparison, CSV and charts", async (t) => {
   const svc = await makeTestApp();
-  const { spectral, psi } = await demoSpectralModel(svc);
-  const rec = await created(svc, "/v1/irradiance/spectral-reconstructions", {
+  const { spectral, psi } = await demoSpectralModel(svc, { ranges: [{ lower: 200, upper: 400 }] });
+  const rec = await createdRun(svc, "/v1/irradiance/spectral-reconstructions", {
     model: spectral.id,
     sunspot_number: DEMO.SSN,
     proxies: [{ term: "mg_ii", series: DEMO.MG }, { term: "psi", series: psi }],
@@ -350,7 +331,7 @@ Deno.test("the integral check on bands that add up exactly to the TSI record", a
   const psi = series("constructed PSI", "other", "1", c.psi);
   for (const method of ["ols", "prais_winsten"] as const) {
     await t.step(method, async () => {
-      const model = await created(svc, "/v1/irradiance/models", {
+      const model = await createdRun(svc, "/v1/irradiance/models", {
         tsi: series("constructed TSI", "tsi", "W m-2", c.tsi),
         terms: [
           { name: "mg", series: mg, role: "facular" },
@@ -358,7 +339,7 @@ Deno.test("the integral check on bands that add up exactly to the TSI record", a
         ],
         method,
       });
-      const spectral = await created(svc, "/v1/irradiance/spectral-models", {
+      const spectral = await createdRun(svc, "/v1/irradiance/spectral-models", {
         tsi_model: model.id,
         proxies: [{ term: "mg", series: mg }, { term: "psi", series: psi }],
         bands: c.bands.map((b) => ({
@@ -379,7 +360,7 @@ Deno.test("the integral check on bands that add up exactly to the TSI record", a
           : 0.5 * row.difference_se;
         assert.ok(Math.abs(row.difference) <= tol, `${method} ${row.name}: ${row.difference}`);
       }
-      const rec = await created(svc, "/v1/irradiance/spectral-reconstructions", {
+      const rec = await createdRun(svc, "/v1/irradiance/spectral-reconstructions", {
         model: spectral.id,
         proxies: [{ term: "mg", series: mg }, { term: "psi", series: psi }],
         period: { start: "2000-01", end: "2019-12" },
