@@ -52,6 +52,7 @@ import { FIELD_MIGRATION_NAME, SQLITE_FIELD_SQL } from "./field_common.ts";
 import { SqliteFields } from "./sqlite_fields.ts";
 import { TERMINAL } from "./types.ts";
 import { OFFLOAD_POINTS, SqliteWriter } from "./sqlite_writer.ts";
+import { countWrite, sharedWriteCounter, writesOf } from "./sqlite_changes.ts";
 import {
   checkPaging,
   checkSeries,
@@ -270,6 +271,16 @@ export interface SqliteStoreOptions {
    * @default 10000
    */
   busyTimeoutMs?: number;
+  /**
+   * The write counter shared with this process's other connections to the file (a worker
+   * passes the one it was given); by default this thread's counter for the file.
+   */
+  writeCounter?: Int32Array;
+  /**
+   * How often, at most, access checks read `PRAGMA data_version` to see writes made by another
+   * process or program (this process's own connections are counted at once), ms. @default 1
+   */
+  outsideCheckMs?: number;
   /** Schema steps to apply; tests use this to simulate other versions. @default SQLITE_MIGRATIONS */
   migrations?: readonly Migration[];
   /**
@@ -278,6 +289,9 @@ export interface SqliteStoreOptions {
    */
   offload?: boolean;
 }
+
+/** How often access checks read `PRAGMA data_version`, at most, ms (see `#checkHoldingsVersion`). */
+const OUTSIDE_CHECK_MS = 1;
 
 const SERIES_META = SERIES_META_COLUMNS.join(", ");
 const RUN_ALL = RUN_COLUMNS.join(", ");
@@ -306,10 +320,18 @@ export class SqliteStore implements Store {
   #writer: SqliteWriter | null;
 
   /** Use {@link openSqliteStore}; the constructor expects a database already migrated. */
-  constructor(db: DatabaseSync, readonly path: string, writer: SqliteWriter | null = null) {
+  constructor(
+    db: DatabaseSync,
+    readonly path: string,
+    writer: SqliteWriter | null = null,
+    counter: Int32Array = new Int32Array(new SharedArrayBuffer(4)),
+    outsideCheckMs = OUTSIDE_CHECK_MS,
+  ) {
     this.#db = db;
     this.#writer = writer;
-    this.#fields = new SqliteFields(db, { visibleTo, pickOrder }, () => this.#writesEnded++);
+    this.#writes = counter;
+    this.#outsideCheckMs = outsideCheckMs;
+    this.#fields = new SqliteFields(db, { visibleTo, pickOrder }, () => countWrite(counter));
   }
 
   #fields: SqliteFields;
@@ -334,7 +356,7 @@ export class SqliteStore implements Store {
       if (this.#db.isTransaction) this.#db.exec("ROLLBACK");
       throw e;
     } finally {
-      if (begin !== "BEGIN") this.#writesEnded++;
+      if (begin !== "BEGIN") countWrite(this.#writes);
     }
   }
 
@@ -609,33 +631,31 @@ export class SqliteStore implements Store {
     return this.#remembered(table, key, id, viewer);
   }
 
-  /** Write transactions of this connection ended (committed or rolled back) so far. */
-  #writesEnded = 0;
-  /** `PRAGMA data_version` as last read, and whether that read is still current. */
+  /** Write transactions ended on this process's connections to the file (sqlite_changes.ts). */
+  #writes: Int32Array;
+  /** `PRAGMA data_version` as last read, when (performance.now()), and how often it is read. */
   #dataVersion = 0;
-  #dataVersionCurrent = false;
+  #dataVersionAt = -Infinity;
+  #outsideCheckMs: number;
 
   /**
    * Forget remembered holdings when the database changed since the last check.
    *
-   * This connection's own writes are counted in JavaScript, so they are seen at once, by a check
-   * in the same synchronous run as the write. Other connections' commits are seen through
-   * `PRAGMA data_version`, read at most once per microtask checkpoint: the read is current until
-   * the microtasks queued so far have run, and every event (a request, a worker's message, a
-   * timer) reaches this thread only after that. A request that reaches the service after
-   * another connection committed is therefore checked by a read made after the commit: the
-   * event loop takes in requests only between checkpoints, and it took this one in after the
-   * commit. Requests taken in together are concurrent, and are checked against one read, as if
-   * they had arrived at once. Under load that one read serves a batch of requests; it took
-   * 2.5 µs, and a second statement for `total_changes()` as many again, on every request.
+   * Every connection this process opens on the file (this one, another store's, the series
+   * writer's in its worker) counts its write transactions in one shared counter
+   * (api/store/sqlite_changes.ts), so any change made through sunlag in this process is seen by
+   * the next check, with one atomic load. A SQLite file is served by one process; writes by
+   * another program or process are seen through `PRAGMA data_version`, read when the last read
+   * is {@link SqliteStoreOptions.outsideCheckMs} (1 ms) old or more. That statement takes the
+   * WAL's read lock: read on every request it halved the requests per second of a cached 304.
    */
   #checkHoldingsVersion(): void {
-    if (!this.#dataVersionCurrent) {
+    const now = performance.now();
+    if (now - this.#dataVersionAt >= this.#outsideCheckMs) {
       this.#dataVersion = Number((this.#stmt("PRAGMA data_version").get() as Row).data_version);
-      this.#dataVersionCurrent = true;
-      queueMicrotask(() => this.#dataVersionCurrent = false);
+      this.#dataVersionAt = now;
     }
-    const version = `${this.#writesEnded}:${this.#dataVersion}`;
+    const version = `${writesOf(this.#writes)}:${this.#dataVersion}`;
     if (version !== this.#holdingsVersion) {
       this.#holdings.clear();
       this.#holdingsVersion = version;
@@ -1359,7 +1379,19 @@ export async function openSqliteStore(options: SqliteStoreOptions): Promise<Sqli
     db.close();
     throw e;
   }
+  const counter = options.writeCounter ??
+    (path === ":memory:"
+      ? new Int32Array(new SharedArrayBuffer(4))
+      : sharedWriteCounter(Deno.realPathSync(path)));
   const offload = path !== ":memory:" && (options.offload ?? true);
-  const writer = offload ? new SqliteWriter(path, options.busyTimeoutMs ?? 10_000) : null;
-  return new SqliteStore(db, path, writer);
+  const writer = offload
+    ? new SqliteWriter(path, options.busyTimeoutMs ?? 10_000, counter.buffer as SharedArrayBuffer)
+    : null;
+  return new SqliteStore(
+    db,
+    path,
+    writer,
+    counter,
+    options.outsideCheckMs ?? OUTSIDE_CHECK_MS,
+  );
 }
