@@ -125,10 +125,24 @@ export class HotGets {
   add(pattern: string, handler: HotHandler): void {
     const segments = pattern.split("/").map((s) => s.startsWith(":") ? null : s);
     this.#routes.push({ segments, handler });
+    this.#matched.clear();
   }
+
+  /** Paths matched lately, with their answer (bounded: the table starts again when full). */
+  readonly #matched = new Map<string, { handler: HotHandler; params: string[] } | null>();
 
   /** The handler and parameters for `path`, or null. */
   match(path: string): { handler: HotHandler; params: string[] } | null {
+    let m = this.#matched.get(path);
+    if (m === undefined) {
+      m = this.#match(path);
+      if (this.#matched.size >= 1024) this.#matched.clear();
+      this.#matched.set(path, m);
+    }
+    return m;
+  }
+
+  #match(path: string): { handler: HotHandler; params: string[] } | null {
     const parts = path.split("/");
     outer: for (const r of this.#routes) {
       if (r.segments.length !== parts.length) continue;

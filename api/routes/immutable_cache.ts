@@ -87,17 +87,23 @@ export class ImmutableCache {
 
   get(key: string): CachedRepresentation | undefined {
     const v = this.#map.get(key);
-    if (v) {
+    // most recently used last (a Map keeps insertion order); already there when asked again
+    if (v && key !== this.#newest) {
       this.#map.delete(key);
       this.#map.set(key, v);
+      this.#newest = key;
     }
     return v;
   }
+
+  /** The key last moved to the end of the map (most recently used), if it still is. */
+  #newest: string | null = null;
 
   set(key: string, v: CachedRepresentation): void {
     if (v.body.byteLength > this.maxEntryBytes) return;
     this.#drop(key);
     this.#map.set(key, v);
+    this.#newest = key;
     this.#sizes.set(key, v.body.byteLength);
     this.#bytes += v.body.byteLength;
     v.onExtraBytes = (n) => {
@@ -112,6 +118,7 @@ export class ImmutableCache {
 
   #drop(key: string): void {
     if (!this.#map.has(key)) return;
+    if (key === this.#newest) this.#newest = null;
     this.#bytes -= this.#sizes.get(key)!;
     this.#map.delete(key);
     this.#sizes.delete(key);
