@@ -67,6 +67,15 @@ export function requestUuidv7(now = Date.now()): string {
 /** The time part of the last request id, and its millisecond. */
 let prefix = "", prefixMs = -1;
 
+/**
+ * `f(x)`: at once when `x` is a value, once it resolves when it is a promise. The fast path's
+ * steps answer at once where they can (a cached response, an embedded store), as each promise
+ * and `await` costs a turn of the microtask queue.
+ */
+export function whenReady<T, U>(x: T | Promise<T>, f: (v: T) => U): U | Promise<Awaited<U>> {
+  return x instanceof Promise ? x.then(f) as Promise<Awaited<U>> : f(x);
+}
+
 /** What a hot handler gets: the request's headers, the caller, path parameters, query. */
 export interface HotRequest {
   /** Headers, the validated query's members, and the request id. */
@@ -192,7 +201,7 @@ export function withHotGets(deps: HotPathDeps, full: Fetch): Fetch {
     return ok;
   };
 
-  async function hot(req: Request, info: unknown, method: string): Promise<Response> {
+  function hot(req: Request, info: unknown, method: string): Response | Promise<Response> {
     const t0 = performance.now();
     const url = req.url;
     // the path as Hono's router sees it (hono/utils/url getPath), when it needs no decoding
@@ -212,18 +221,22 @@ export function withHotGets(deps: HotPathDeps, full: Fetch): Fetch {
       headers.has("content-encoding") ||
       headBytesOf(method, path.length + search.length, headers) > MAX_HEAD_BYTES
     ) return full(req, info);
+    const at: Answering = { req, info, method, t0, path, search, match: m };
     const auth = headers.get("authorization");
-    let principal: Principal;
-    if (auth === null) principal = deps.adminKey === null ? LOCAL_PRINCIPAL : ANONYMOUS;
-    else {
-      const k = BEARER.exec(auth);
-      if (!k) return full(req, info);
-      try {
-        principal = await principalForToken(deps.store, deps.adminKey, k[1]);
-      } catch {
-        return full(req, info);
-      }
+    if (auth === null) {
+      return answer(at, deps.adminKey === null ? LOCAL_PRINCIPAL : ANONYMOUS);
     }
+    const k = BEARER.exec(auth);
+    if (!k) return full(req, info);
+    return principalForToken(deps.store, deps.adminKey, k[1]).then(
+      (principal) => answer(at, principal),
+      () => full(req, info),
+    );
+  }
+
+  /** The cached answer to an authenticated request, or the full path's. */
+  function answer(at: Answering, principal: Principal): Response | Promise<Response> {
+    const headers = at.req.headers;
     const id = requestIdFrom(headers.get("x-request-id"));
     const view: RequestView = {
       req: {
@@ -232,25 +245,41 @@ export function withHotGets(deps: HotPathDeps, full: Fetch): Fetch {
       },
       get: () => id,
     };
-    let res: Response | null;
+    let res: Response | null | Promise<Response | null>;
     try {
-      res = await m.handler({ view, principal, params: m.params, search });
+      res = at.match.handler({ view, principal, params: at.match.params, search: at.search });
     } catch {
-      res = null; // the store failed: the full path answers with its problem
+      return full(at.req, at.info); // the store failed: the full path answers with its problem
     }
+    if (res instanceof Promise) {
+      return res.then((r) => send(at, principal, id, r), () => full(at.req, at.info));
+    }
+    return send(at, principal, id, res);
+  }
+
+  /** Send `res` after the rate limit, with the middleware's headers; counted and logged. */
+  function send(
+    at: Answering,
+    principal: Principal,
+    id: string,
+    res: Response | null,
+  ): Response | Promise<Response> {
+    const { req, info, method, path, t0 } = at;
     if (!res) return full(req, info);
     if (isLimited(principal)) {
       // refused: the full path takes (and refuses) the token again and answers 429
       if (!deps.buckets.take(bucketKey(principal, info)).ok) return full(req, info);
     }
     const cors = deps.corsOrigins.length
-      ? corsSimpleHeaders(deps.corsOrigins, headers.get("origin") ?? "")
+      ? corsSimpleHeaders(deps.corsOrigins, req.headers.get("origin") ?? "")
       : null;
     if (deps.adminKey !== null || cors) res = decorate(res, cors, deps.adminKey !== null);
-    if (method === "HEAD") res = await headResponse(res);
-    deps.finish(method, path, res.status, t0, id);
-    deps.hot.served++;
-    return res;
+    const done = (r: Response) => {
+      deps.finish(method, path, r.status, t0, id);
+      deps.hot.served++;
+      return r;
+    };
+    return method === "HEAD" ? headResponse(res).then(done) : done(res);
   }
 
   return (req, info) => {
@@ -258,6 +287,18 @@ export function withHotGets(deps: HotPathDeps, full: Fetch): Fetch {
     if (method !== "GET" && method !== "HEAD") return full(req, info);
     return hot(req, info, method);
   };
+}
+
+/** A request on its way through the fast path. */
+interface Answering {
+  req: Request;
+  info: unknown;
+  method: string;
+  /** performance.now() when it came in */
+  t0: number;
+  path: string;
+  search: string;
+  match: { handler: HotHandler; params: string[] };
 }
 
 /** The headers the CORS and authentication middleware add to a response, in their order. */

@@ -12,13 +12,14 @@ import type { Store, StoredSeries } from "../store/types.ts";
 import { ProblemError } from "../problems.ts";
 import { principalOf } from "../auth/authenticate.ts";
 import { viewerOf } from "../auth/principal.ts";
-import { holdingsOf, mustSeeSeries, sharedCacheable } from "../auth/access.ts";
+import { holdingsNowOf, holdingsOf, mustSeeSeries, sharedCacheable } from "../auth/access.ts";
 import { RunIdString } from "../schemas/ids.ts";
 import { problems } from "../schemas/common.ts";
 import {
   type CachedRepresentation,
   ImmutableCache,
   serveRepresentation,
+  serveRepresentationNow,
 } from "./immutable_cache.ts";
 import { parseIsoTime } from "../../core/time/mod.ts";
 import { renderChart, type RenderOptions } from "../charts/chart.ts";
@@ -29,7 +30,7 @@ import { chartNeedsInputs, chartViews, runChartSpec } from "../charts/run_charts
 import { SERVICE_VERSION } from "../version.ts";
 import type { RunKind } from "../runs/kind.ts";
 import { kindByName } from "../analyses/derive.ts";
-import { type HotGets, QueryMemo } from "../hot_gets.ts";
+import { type HotGets, QueryMemo, whenReady } from "../hot_gets.ts";
 
 /** Bump when the drawing of a chart changes for the same data and query. */
 export const CHART_VERSION = "1";
@@ -148,24 +149,35 @@ export function registerChartRoutes(
   // middleware (api/hot_gets.ts) after the same access checks.
   const seriesQueries = new QueryMemo<RenderOptions>();
   const runQueries = new QueryMemo<{ opts: RenderOptions; view: string | undefined }>();
-  deps.hot?.add("/v1/series/:id/chart.svg", async ({ view, principal, params: [id], search }) => {
+  deps.hot?.add("/v1/series/:id/chart.svg", ({ view, principal, params: [id], search }) => {
     const opts = seriesQueries.get(search);
     const rep = opts && cache.get(seriesChartTag(id, opts));
     if (!rep) return null;
-    const holding = await store.seriesHolding(id, viewerOf(principal));
-    return holding && serveRepresentation(view, rep, sharedCacheable(principal, holding));
+    return whenReady(
+      holdingsNowOf(store, [{ kind: "series", id }], viewerOf(principal)),
+      ([holding]) => {
+        if (!holding) return null;
+        const shared = sharedCacheable(principal, holding);
+        return serveRepresentationNow(view, rep, shared) ?? serveRepresentation(view, rep, shared);
+      },
+    );
   });
-  deps.hot?.add("/v1/runs/:id/chart.svg", async ({ view, principal, params: [id], search }) => {
+  deps.hot?.add("/v1/runs/:id/chart.svg", ({ view, principal, params: [id], search }) => {
     const q = runQueries.get(search);
     const rep = q && cache.get(runChartKey(id, q.opts, q.view));
     if (!rep) return null;
-    const held = await holdingsOf(
-      store,
-      [{ kind: "run", id }, ...(rep.requires ?? [])],
-      viewerOf(principal),
+    return whenReady(
+      holdingsNowOf(
+        store,
+        [{ kind: "run", id }, ...(rep.requires ?? [])],
+        viewerOf(principal),
+      ),
+      (held) => {
+        if (held.some((h) => !h)) return null;
+        const shared = sharedCacheable(principal, held[0]!);
+        return serveRepresentationNow(view, rep, shared) ?? serveRepresentation(view, rep, shared);
+      },
     );
-    if (held.some((h) => !h)) return null;
-    return serveRepresentation(view, rep, sharedCacheable(principal, held[0]!));
   });
 
   app.openapi(

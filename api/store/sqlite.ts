@@ -607,14 +607,16 @@ export class SqliteStore implements Store {
   }
 
   holdings(items: readonly HoldingRef[], viewer: Viewer): Promise<(Holding | null)[]> {
-    return settle(() => {
-      this.#checkHoldingsVersion();
-      return items.map((it) =>
-        it.kind === "run"
-          ? this.#remembered("run_holdings", "run_id", it.id, viewer)
-          : this.#remembered("series_holdings", "series_id", it.id, viewer)
-      );
-    });
+    return settle(() => this.holdingsNow(items, viewer));
+  }
+
+  holdingsNow(items: readonly HoldingRef[], viewer: Viewer): (Holding | null)[] {
+    this.#checkHoldingsVersion();
+    return items.map((it) =>
+      it.kind === "run"
+        ? this.#remembered("run_holdings", "run_id", it.id, viewer)
+        : this.#remembered("series_holdings", "series_id", it.id, viewer)
+    );
   }
 
   /**
