@@ -12,14 +12,14 @@ import type { Store, StoredSeries } from "../store/types.ts";
 import { ProblemError } from "../problems.ts";
 import { principalOf } from "../auth/authenticate.ts";
 import { viewerOf } from "../auth/principal.ts";
-import { holdingsNowOf, holdingsOf, mustSeeSeries, sharedCacheable } from "../auth/access.ts";
+import { holdingsOf, mustSeeSeries, sharedCacheable } from "../auth/access.ts";
 import { RunIdString } from "../schemas/ids.ts";
 import { problems } from "../schemas/common.ts";
 import {
   type CachedRepresentation,
   ImmutableCache,
+  serveCachedIfSeen,
   serveRepresentation,
-  serveRepresentationNow,
 } from "./immutable_cache.ts";
 import { parseIsoTime } from "../../core/time/mod.ts";
 import { renderChart, type RenderOptions } from "../charts/chart.ts";
@@ -30,7 +30,7 @@ import { chartNeedsInputs, chartViews, runChartSpec } from "../charts/run_charts
 import { SERVICE_VERSION } from "../version.ts";
 import type { RunKind } from "../runs/kind.ts";
 import { kindByName } from "../analyses/derive.ts";
-import { type HotGets, QueryMemo, whenReady } from "../hot_gets.ts";
+import { type HotGets, QueryMemo } from "../hot_gets.ts";
 
 /** Bump when the drawing of a chart changes for the same data and query. */
 export const CHART_VERSION = "1";
@@ -153,31 +153,14 @@ export function registerChartRoutes(
     const opts = seriesQueries.get(search);
     const rep = opts && cache.get(seriesChartTag(id, opts));
     if (!rep) return null;
-    return whenReady(
-      holdingsNowOf(store, [{ kind: "series", id }], viewerOf(principal)),
-      ([holding]) => {
-        if (!holding) return null;
-        const shared = sharedCacheable(principal, holding);
-        return serveRepresentationNow(view, rep, shared) ?? serveRepresentation(view, rep, shared);
-      },
-    );
+    return serveCachedIfSeen(store, [{ kind: "series", id }], principal, view, rep);
   });
   deps.hot?.add("/v1/runs/:id/chart.svg", ({ view, principal, params: [id], search }) => {
     const q = runQueries.get(search);
     const rep = q && cache.get(runChartKey(id, q.opts, q.view));
     if (!rep) return null;
-    return whenReady(
-      holdingsNowOf(
-        store,
-        [{ kind: "run", id }, ...(rep.requires ?? [])],
-        viewerOf(principal),
-      ),
-      (held) => {
-        if (held.some((h) => !h)) return null;
-        const shared = sharedCacheable(principal, held[0]!);
-        return serveRepresentationNow(view, rep, shared) ?? serveRepresentation(view, rep, shared);
-      },
-    );
+    const items = [{ kind: "run" as const, id }, ...(rep.requires ?? [])];
+    return serveCachedIfSeen(store, items, principal, view, rep);
   });
 
   app.openapi(

@@ -14,7 +14,10 @@
  * @module
  */
 import { immutableHeaders, PRIVATE_IMMUTABLE, type RequestView } from "./cache.ts";
-import type { HoldingRef } from "../store/types.ts";
+import type { HoldingRef, Store } from "../store/types.ts";
+import { holdingsNowOf, sharedCacheable } from "../auth/access.ts";
+import { type Principal, viewerOf } from "../auth/principal.ts";
+import { whenReady } from "../hot_gets.ts";
 
 export interface CachedRepresentation {
   /** Strong entity tag, quoted. */
@@ -242,4 +245,23 @@ function headersOf(
   return notModified
     ? common
     : { ...r.headers, ...common, ...(gz ? { "Content-Encoding": "gzip" } : {}) };
+}
+
+/**
+ * A fast-path answer (api/hot_gets.ts) with cached representation `r`, when the caller sees
+ * every item in `items` (the first one's holding decides whether shared caches may keep it);
+ * null when it does not, so that the full path answers. At once where the store answers at once.
+ */
+export function serveCachedIfSeen(
+  store: Store,
+  items: readonly HoldingRef[],
+  principal: Principal,
+  view: RequestView,
+  r: CachedRepresentation,
+): Response | null | Promise<Response | null> {
+  return whenReady(holdingsNowOf(store, items, viewerOf(principal)), (held) => {
+    if (held.some((h) => !h)) return null;
+    const shared = sharedCacheable(principal, held[0]!);
+    return serveRepresentationNow(view, r, shared) ?? serveRepresentation(view, r, shared);
+  });
 }

@@ -19,7 +19,7 @@ import { RunIdParam } from "../schemas/ids.ts";
 import type { Config } from "../config.ts";
 import { principalOf } from "../auth/authenticate.ts";
 import { holderOf, isLimited, viewerOf } from "../auth/principal.ts";
-import { holdingsNowOf, mustHoldRun, mustSeeRun, sharedCacheable } from "../auth/access.ts";
+import { mustHoldRun, mustSeeRun, sharedCacheable } from "../auth/access.ts";
 import { checkStorage } from "../limits/quotas.ts";
 import {
   PageQuery,
@@ -32,8 +32,8 @@ import {
 import { outputToCsv } from "../export/csv.ts";
 import { wantsCsv } from "./format.ts";
 import { notModified, setImmutableHeaders } from "./cache.ts";
-import { ImmutableCache, serveRepresentation, serveRepresentationNow } from "./immutable_cache.ts";
-import { type HotGets, whenReady } from "../hot_gets.ts";
+import { ImmutableCache, serveCachedIfSeen, serveRepresentation } from "./immutable_cache.ts";
+import type { HotGets } from "../hot_gets.ts";
 import {
   CalendarQuery,
   NETCDF_CONTENT,
@@ -95,14 +95,7 @@ export function registerRunRoutes(
   deps.hot?.add("/v1/runs/:id", ({ view, principal, params: [id] }) => {
     const hit = runCache.get(id);
     if (!hit) return null;
-    return whenReady(
-      holdingsNowOf(store, [{ kind: "run", id }], viewerOf(principal)),
-      ([holding]) => {
-        if (!holding) return null;
-        const shared = sharedCacheable(principal, holding);
-        return serveRepresentationNow(view, hit, shared) ?? serveRepresentation(view, hit, shared);
-      },
-    );
+    return serveCachedIfSeen(store, [{ kind: "run", id }], principal, view, hit);
   });
   // The kinds this service offers (the registry, or the kinds injected into the app).
   const kindNames = runs.kinds.map((k) => k.kind).sort() as [string, ...string[]];
