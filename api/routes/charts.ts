@@ -18,6 +18,7 @@ import { problems } from "../schemas/common.ts";
 import {
   type CachedRepresentation,
   ImmutableCache,
+  serveCachedIfSeen,
   serveRepresentation,
 } from "./immutable_cache.ts";
 import { parseIsoTime } from "../../core/time/mod.ts";
@@ -148,24 +149,18 @@ export function registerChartRoutes(
   // middleware (api/hot_gets.ts) after the same access checks.
   const seriesQueries = new QueryMemo<RenderOptions>();
   const runQueries = new QueryMemo<{ opts: RenderOptions; view: string | undefined }>();
-  deps.hot?.add("/v1/series/:id/chart.svg", async ({ view, principal, params: [id], search }) => {
+  deps.hot?.add("/v1/series/:id/chart.svg", ({ view, principal, params: [id], search }) => {
     const opts = seriesQueries.get(search);
     const rep = opts && cache.get(seriesChartTag(id, opts));
     if (!rep) return null;
-    const holding = await store.seriesHolding(id, viewerOf(principal));
-    return holding && serveRepresentation(view, rep, sharedCacheable(principal, holding));
+    return serveCachedIfSeen(store, [{ kind: "series", id }], principal, view, rep);
   });
-  deps.hot?.add("/v1/runs/:id/chart.svg", async ({ view, principal, params: [id], search }) => {
+  deps.hot?.add("/v1/runs/:id/chart.svg", ({ view, principal, params: [id], search }) => {
     const q = runQueries.get(search);
     const rep = q && cache.get(runChartKey(id, q.opts, q.view));
     if (!rep) return null;
-    const held = await holdingsOf(
-      store,
-      [{ kind: "run", id }, ...(rep.requires ?? [])],
-      viewerOf(principal),
-    );
-    if (held.some((h) => !h)) return null;
-    return serveRepresentation(view, rep, sharedCacheable(principal, held[0]!));
+    const items = [{ kind: "run" as const, id }, ...(rep.requires ?? [])];
+    return serveCachedIfSeen(store, items, principal, view, rep);
   });
 
   app.openapi(

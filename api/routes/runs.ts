@@ -32,7 +32,7 @@ import {
 import { outputToCsv } from "../export/csv.ts";
 import { wantsCsv } from "./format.ts";
 import { notModified, setImmutableHeaders } from "./cache.ts";
-import { ImmutableCache, serveRepresentation } from "./immutable_cache.ts";
+import { ImmutableCache, serveCachedIfSeen, serveRepresentation } from "./immutable_cache.ts";
 import type { HotGets } from "../hot_gets.ts";
 import {
   CalendarQuery,
@@ -92,11 +92,10 @@ export function registerRunRoutes(
   const runCache = new ImmutableCache();
   // A succeeded run's JSON from the cache, ahead of the middleware (api/hot_gets.ts); the
   // route takes no query, so any query string is served as it is here.
-  deps.hot?.add("/v1/runs/:id", async ({ view, principal, params: [id] }) => {
+  deps.hot?.add("/v1/runs/:id", ({ view, principal, params: [id] }) => {
     const hit = runCache.get(id);
     if (!hit) return null;
-    const holding = await store.runHolding(id, viewerOf(principal));
-    return holding && serveRepresentation(view, hit, sharedCacheable(principal, holding));
+    return serveCachedIfSeen(store, [{ kind: "run", id }], principal, view, hit);
   });
   // The kinds this service offers (the registry, or the kinds injected into the app).
   const kindNames = runs.kinds.map((k) => k.kind).sort() as [string, ...string[]];

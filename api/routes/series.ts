@@ -11,7 +11,7 @@ import type { Holding, SeriesMeta, Store, StoredSeries } from "../store/types.ts
 import { ProblemError } from "../problems.ts";
 import { principalOf } from "../auth/authenticate.ts";
 import { holderOf, isLimited, viewerOf } from "../auth/principal.ts";
-import { mustSeeSeries, sharedCacheable } from "../auth/access.ts";
+import { holdingsNowOf, mustSeeSeries, sharedCacheable } from "../auth/access.ts";
 import { checkStorage } from "../limits/quotas.ts";
 import { toUploadOutcome, UploadPool } from "../ingest/upload.ts";
 import {
@@ -27,9 +27,9 @@ import { formatIsoTime } from "../../core/time/mod.ts";
 import { seriesToCsv } from "../ingest/mod.ts";
 import { wantsCsv } from "./format.ts";
 import { notModified, type RequestView } from "./cache.ts";
-import { type HotGets, QueryMemo } from "../hot_gets.ts";
+import { type HotGets, QueryMemo, whenReady } from "../hot_gets.ts";
 import type { Principal } from "../auth/principal.ts";
-import { ImmutableCache, serveRepresentation } from "./immutable_cache.ts";
+import { ImmutableCache, serveRepresentation, serveRepresentationNow } from "./immutable_cache.ts";
 import {
   CalendarQuery,
   ingestNetcdfUpload,
@@ -118,7 +118,7 @@ export function registerSeriesRoutes(
   // A series as JSON or CSV (and its 304) ahead of the middleware (api/hot_gets.ts), for
   // query strings the route validated; NetCDF always takes the full path.
   const queries = new QueryMemo<{ format?: string; calendar?: string }>();
-  deps.hot?.add("/v1/series/:id", async ({ view, principal, params: [id], search }) => {
+  deps.hot?.add("/v1/series/:id", ({ view, principal, params: [id], search }) => {
     const q = queries.get(search);
     if (!q || q.calendar !== undefined || q.format === "netcdf") return null;
     const c: RequestView = {
@@ -126,8 +126,10 @@ export function registerSeriesRoutes(
       req: { ...view.req, query: (n) => n === "format" ? q.format : undefined },
     };
     if (wantsNetcdf(c)) return null;
-    const holding = await store.seriesHolding(id, viewerOf(principal));
-    return holding && fromCache(c, id, holding, principal);
+    return whenReady(
+      holdingsNowOf(store, [{ kind: "series", id }], viewerOf(principal)),
+      ([holding]) => holding && fromCache(c, id, holding, principal),
+    );
   });
 
   /**
@@ -148,7 +150,9 @@ export function registerSeriesRoutes(
     // A series never changes: its CSV (and its JSON for one holding, whose dates it shows)
     // are formatted once and served as stored bytes.
     const hit = representations.get(csv ? `${id}-csv` : `${id}-json-${JSON.stringify(holding)}`);
-    return hit ? serveRepresentation(c, hit, shared) : null;
+    return hit
+      ? serveRepresentationNow(c, hit, shared) ?? serveRepresentation(c, hit, shared)
+      : null;
   }
   const uploads = deps.uploads ?? new UploadPool(0);
   // The JSON body is documented by reference and read by the handler (in a worker), not by

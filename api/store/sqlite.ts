@@ -52,6 +52,7 @@ import { FIELD_MIGRATION_NAME, SQLITE_FIELD_SQL } from "./field_common.ts";
 import { SqliteFields } from "./sqlite_fields.ts";
 import { TERMINAL } from "./types.ts";
 import { OFFLOAD_POINTS, SqliteWriter } from "./sqlite_writer.ts";
+import { countWrite, sharedWriteCounter, writesOf } from "./sqlite_changes.ts";
 import {
   checkPaging,
   checkSeries,
@@ -270,6 +271,16 @@ export interface SqliteStoreOptions {
    * @default 10000
    */
   busyTimeoutMs?: number;
+  /**
+   * The write counter shared with this process's other connections to the file (a worker
+   * passes the one it was given); by default this thread's counter for the file.
+   */
+  writeCounter?: Int32Array;
+  /**
+   * How often, at most, access checks read `PRAGMA data_version` to see writes made by another
+   * process or program (this process's own connections are counted at once), ms. @default 1
+   */
+  outsideCheckMs?: number;
   /** Schema steps to apply; tests use this to simulate other versions. @default SQLITE_MIGRATIONS */
   migrations?: readonly Migration[];
   /**
@@ -278,6 +289,9 @@ export interface SqliteStoreOptions {
    */
   offload?: boolean;
 }
+
+/** How often access checks read `PRAGMA data_version`, at most, ms (see `#checkHoldingsVersion`). */
+const OUTSIDE_CHECK_MS = 1;
 
 const SERIES_META = SERIES_META_COLUMNS.join(", ");
 const RUN_ALL = RUN_COLUMNS.join(", ");
@@ -306,10 +320,18 @@ export class SqliteStore implements Store {
   #writer: SqliteWriter | null;
 
   /** Use {@link openSqliteStore}; the constructor expects a database already migrated. */
-  constructor(db: DatabaseSync, readonly path: string, writer: SqliteWriter | null = null) {
+  constructor(
+    db: DatabaseSync,
+    readonly path: string,
+    writer: SqliteWriter | null = null,
+    counter: Int32Array = new Int32Array(new SharedArrayBuffer(4)),
+    outsideCheckMs = OUTSIDE_CHECK_MS,
+  ) {
     this.#db = db;
     this.#writer = writer;
-    this.#fields = new SqliteFields(db, { visibleTo, pickOrder });
+    this.#writes = counter;
+    this.#outsideCheckMs = outsideCheckMs;
+    this.#fields = new SqliteFields(db, { visibleTo, pickOrder }, () => countWrite(counter));
   }
 
   #fields: SqliteFields;
@@ -333,6 +355,8 @@ export class SqliteStore implements Store {
     } catch (e) {
       if (this.#db.isTransaction) this.#db.exec("ROLLBACK");
       throw e;
+    } finally {
+      if (begin !== "BEGIN") countWrite(this.#writes);
     }
   }
 
@@ -583,23 +607,25 @@ export class SqliteStore implements Store {
   }
 
   holdings(items: readonly HoldingRef[], viewer: Viewer): Promise<(Holding | null)[]> {
-    return settle(() => {
-      this.#checkHoldingsVersion();
-      return items.map((it) =>
-        it.kind === "run"
-          ? this.#remembered("run_holdings", "run_id", it.id, viewer)
-          : this.#remembered("series_holdings", "series_id", it.id, viewer)
-      );
-    });
+    return settle(() => this.holdingsNow(items, viewer));
+  }
+
+  holdingsNow(items: readonly HoldingRef[], viewer: Viewer): (Holding | null)[] {
+    this.#checkHoldingsVersion();
+    return items.map((it) =>
+      it.kind === "run"
+        ? this.#remembered("run_holdings", "run_id", it.id, viewer)
+        : this.#remembered("series_holdings", "series_id", it.id, viewer)
+    );
   }
 
   /**
    * The holding through which `viewer` sees an item: every GET and 304 asks, so answers are
-   * remembered until the database changes in any way. `total_changes()` counts this
-   * connection's writes and `data_version` changes when another connection commits (another
-   * process, the series writer), so a visibility, holding or group change anywhere is seen by
-   * the next check. Asking for both takes two statements on no table (a few µs); the
-   * visibility query they save joins holdings and owners. `holdings` asks once for several
+   * remembered until the database changes in any way: this connection's writes are counted as
+   * its write transactions end ({@link #writesEnded}), and `PRAGMA data_version` changes when
+   * another connection commits (another process, the series writer), so a visibility, holding
+   * or group change anywhere is seen by the next check (see {@link #checkHoldingsVersion}). The
+   * visibility query this saves joins holdings and owners. `holdings` asks once for several
    * items.
    */
   #holding(table: string, key: string, id: string, viewer: Viewer): Holding | null {
@@ -607,15 +633,31 @@ export class SqliteStore implements Store {
     return this.#remembered(table, key, id, viewer);
   }
 
+  /** Write transactions ended on this process's connections to the file (sqlite_changes.ts). */
+  #writes: Int32Array;
+  /** `PRAGMA data_version` as last read, when (performance.now()), and how often it is read. */
+  #dataVersion = 0;
+  #dataVersionAt = -Infinity;
+  #outsideCheckMs: number;
+
   /**
-   * Forget remembered holdings when the database changed since the last check. Two statements:
-   * `PRAGMA data_version` and `total_changes()` apart take 5.8 µs where one statement over the
-   * `pragma_data_version` table took 9.6 µs (100,000 calls each, load 5.9).
+   * Forget remembered holdings when the database changed since the last check.
+   *
+   * Every connection this process opens on the file (this one, another store's, the series
+   * writer's in its worker) counts its write transactions in one shared counter
+   * (api/store/sqlite_changes.ts), so any change made through sunlag in this process is seen by
+   * the next check, with one atomic load. A SQLite file is served by one process; writes by
+   * another program or process are seen through `PRAGMA data_version`, read when the last read
+   * is {@link SqliteStoreOptions.outsideCheckMs} (1 ms) old or more. That statement takes the
+   * WAL's read lock: read on every request it halved the requests per second of a cached 304.
    */
   #checkHoldingsVersion(): void {
-    const d = this.#stmt("PRAGMA data_version").get() as Row;
-    const t = this.#stmt("SELECT total_changes() AS t").get() as Row;
-    const version = `${t.t}:${d.data_version}`;
+    const now = performance.now();
+    if (now - this.#dataVersionAt >= this.#outsideCheckMs) {
+      this.#dataVersion = Number((this.#stmt("PRAGMA data_version").get() as Row).data_version);
+      this.#dataVersionAt = now;
+    }
+    const version = `${writesOf(this.#writes)}:${this.#dataVersion}`;
     if (version !== this.#holdingsVersion) {
       this.#holdings.clear();
       this.#holdingsVersion = version;
@@ -1339,7 +1381,19 @@ export async function openSqliteStore(options: SqliteStoreOptions): Promise<Sqli
     db.close();
     throw e;
   }
+  const counter = options.writeCounter ??
+    (path === ":memory:"
+      ? new Int32Array(new SharedArrayBuffer(4))
+      : sharedWriteCounter(Deno.realPathSync(path)));
   const offload = path !== ":memory:" && (options.offload ?? true);
-  const writer = offload ? new SqliteWriter(path, options.busyTimeoutMs ?? 10_000) : null;
-  return new SqliteStore(db, path, writer);
+  const writer = offload
+    ? new SqliteWriter(path, options.busyTimeoutMs ?? 10_000, counter.buffer as SharedArrayBuffer)
+    : null;
+  return new SqliteStore(
+    db,
+    path,
+    writer,
+    counter,
+    options.outsideCheckMs ?? OUTSIDE_CHECK_MS,
+  );
 }

@@ -43,7 +43,15 @@ export interface HoldingSql {
 /** The field tables of one SQLite connection. */
 export class SqliteFields {
   #stmts = new Map<string, StatementSync>();
-  constructor(private readonly db: DatabaseSync, private readonly holdings: HoldingSql) {}
+  /**
+   * @param onWriteEnd called as each write transaction ends, committed or rolled back (the
+   *   store's access-check answers are remembered until then)
+   */
+  constructor(
+    private readonly db: DatabaseSync,
+    private readonly holdings: HoldingSql,
+    private readonly onWriteEnd: () => void = () => {},
+  ) {}
 
   /** The join to the holding a viewer sees (or, without a viewer, the oldest). */
   #pick(v: Viewer | undefined): { sql: string; args: SQLInputValue[] } {
@@ -80,6 +88,8 @@ export class SqliteFields {
     } catch (e) {
       if (this.db.isTransaction) this.db.exec("ROLLBACK");
       throw e;
+    } finally {
+      if (begin !== "BEGIN") this.onWriteEnd();
     }
   }
 

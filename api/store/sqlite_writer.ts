@@ -35,7 +35,15 @@ export class SqliteWriter {
   #pending = new Map<number, Pending>();
   #next = 1;
 
-  constructor(readonly path: string, readonly busyTimeoutMs: number) {}
+  /**
+   * @param writeCounter the buffer of the file's write counter in the opening thread
+   *   (api/store/sqlite_changes.ts): the worker's connection counts its writes there
+   */
+  constructor(
+    readonly path: string,
+    readonly busyTimeoutMs: number,
+    readonly writeCounter: SharedArrayBuffer = new SharedArrayBuffer(4),
+  ) {}
 
   #start(): Worker {
     const w = new Worker(new URL("./sqlite_writer_worker.ts", import.meta.url).href, {
@@ -68,7 +76,12 @@ export class SqliteWriter {
       w.terminate();
       this.#worker = null;
     };
-    w.postMessage({ type: "open", path: this.path, busyTimeoutMs: this.busyTimeoutMs });
+    w.postMessage({
+      type: "open",
+      path: this.path,
+      busyTimeoutMs: this.busyTimeoutMs,
+      writeCounter: this.writeCounter,
+    });
     return w;
   }
 

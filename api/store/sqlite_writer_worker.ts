@@ -1,5 +1,6 @@
 /**
- * The series writer worker (see api/store/sqlite_writer.ts): `{ type: "open", path }`, then
+ * The series writer worker (see api/store/sqlite_writer.ts): `{ type: "open", path,
+ * busyTimeoutMs, writeCounter }`, then
  * `{ type: "put", id, series, holder }` or
  * `{ type: "field-block", id, stage, index, tStart, rows, values }` → `{ id, ok, value | error }`;
  * `{ type: "checkpoint" }` → `{ type: "checkpointed" }` (a PASSIVE WAL checkpoint; a failure is
@@ -15,7 +16,13 @@ let store: Promise<SqliteStore> | null = null;
 self.onmessage = async (e: MessageEvent) => {
   const m = e.data;
   if (m.type === "open") {
-    store = openSqliteStore({ path: m.path, busyTimeoutMs: m.busyTimeoutMs, offload: false });
+    store = openSqliteStore({
+      path: m.path,
+      busyTimeoutMs: m.busyTimeoutMs,
+      offload: false,
+      // its writes are counted where the request thread's access checks look
+      writeCounter: new Int32Array(m.writeCounter),
+    });
     return;
   }
   if (m.type === "checkpoint") {

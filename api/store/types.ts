@@ -231,6 +231,11 @@ export interface Store extends FieldStore {
    * Optional: callers fall back to one check per item (see `api/auth/access.ts`).
    */
   holdings?(items: readonly HoldingRef[], viewer: Viewer): Promise<(Holding | null)[]>;
+  /**
+   * What `holdings` answers, at once, where the store can answer without waiting (an embedded
+   * database); it throws where `holdings` would reject. Optional.
+   */
+  holdingsNow?(items: readonly HoldingRef[], viewer: Viewer): (Holding | null)[];
   /** Change the visibility of `owner`'s holding of a run; false when it holds none. */
   setRunVisibility(id: string, owner: string, visibility: Visibility): Promise<boolean>;
   /** Newest first; with a viewer, only the runs it may see. */
