@@ -8,8 +8,8 @@
  * with and without `Accept-Encoding: gzip` and `If-None-Match`, and status, headers (but `Date`
  * and the request id) and the SHA-256 of the bytes are compared. Then, rounds alternating A and
  * B: the latency of single sequential requests (medians of 15 a round), and wrk (2 threads, 50
- * connections) beside a Hono hello-world. Prints medians, per-round B/A ratios and the load
- * average.
+ * connections) beside a Hono hello-world, each wrk run followed by a wait until the service has
+ * answered what wrk left queued. Prints medians, per-round B/A ratios and the load average.
  *
  * Use it to compare a change with the commit before it (`git archive <commit> | tar -x -C DIR`,
  * with node_modules linked in).
@@ -166,6 +166,19 @@ async function wrk(url: string, seconds = SECONDS) {
   return Number(/Requests\/sec:\s+([\d.]+)/.exec(text)?.[1] ?? NaN);
 }
 
+/**
+ * Wait until the service at `base` is idle again: a service that makes each answer anew is
+ * still answering the requests wrk left queued when it stopped, which would be counted against
+ * the next case. Idle: three health checks in a row answered within 10 ms.
+ */
+async function drained(base: string) {
+  for (let ok = 0, k = 0; ok < 3 && k < 2000; k++) {
+    const t0 = performance.now();
+    await (await fetch(`${base}/v1/health`)).body?.cancel();
+    ok = performance.now() - t0 < 10 ? ok + 1 : 0;
+  }
+}
+
 /** Milliseconds of one GET read to its end. */
 async function once(url: string) {
   const t0 = performance.now();
@@ -266,13 +279,17 @@ try {
     for (const [name, path] of paths) {
       rps[name] = { a: [], b: [] };
       await wrk(a.base + path, 1);
+      await drained(a.base);
       await wrk(b.base + path, 1);
+      await drained(b.base);
     }
     for (let k = 0; k < ROUNDS; k++) {
       helloRps.push(await wrk(helloUrl));
       for (const [name, path] of paths) {
         for (const w of k % 2 ? ["b", "a"] as const : ["a", "b"] as const) {
-          rps[name][w].push(await wrk((w === "a" ? a.base : b.base) + path));
+          const base = w === "a" ? a.base : b.base;
+          rps[name][w].push(await wrk(base + path));
+          await drained(base);
         }
       }
     }
