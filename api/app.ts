@@ -48,6 +48,7 @@ import { registerAdminRoutes } from "./routes/admin.ts";
 import { UploadPool } from "./ingest/upload.ts";
 import { registerSharingRoutes } from "./routes/sharing.ts";
 import { HotGets, requestIdFrom, withHotGets } from "./hot_gets.ts";
+import { ImmutableCache } from "./routes/immutable_cache.ts";
 import { headResponse } from "./head_length.ts";
 
 export interface AppDeps {
@@ -195,9 +196,14 @@ export function createService(deps: AppDeps): Service {
   const hot = new HotGets();
   registerSeriesRoutes(app, { store, config, uploads, hot });
   registerFieldRoutes(app, { store, config });
-  registerMapRoutes(app, { store });
-  registerRunRoutes(app, { store, runs, config, hot });
-  registerSpectrumRoutes(app, { store, config });
+  // Downloads of succeeded runs (outputs, maps, spectra; JSON, CSV, NetCDF), made once. One
+  // entry may be up to 16 MiB: the demo's monthly spectrum since 1700 is a 10.6 MB CSV, which
+  // takes about 0.5 s to write (test/bench/http_downloads_ab.ts); larger files are made again
+  // on every request (NetCDF streamed), as before.
+  const downloads = new ImmutableCache(64 * 1024 * 1024, 16 * 1024 * 1024);
+  registerMapRoutes(app, { store, hot, downloads });
+  registerRunRoutes(app, { store, runs, config, hot, downloads });
+  registerSpectrumRoutes(app, { store, config, hot, downloads });
   registerChartRoutes(app, { store, kinds, hot });
   registerBundleRoutes(app, { store, runs, config });
   registerKindRoutes(app, { runs, kinds, store, config });

@@ -10,7 +10,7 @@
 import type { Context } from "hono";
 import type { RequestView } from "../routes/cache.ts";
 import { z } from "@hono/zod-openapi";
-import { netcdf3Chunks, planNetcdf3 } from "../../core/cf/netcdf3_write.ts";
+import { encodeNetcdf3, netcdf3Chunks, planNetcdf3 } from "../../core/cf/netcdf3_write.ts";
 import { attributeText } from "../../core/cf/netcdf_model.ts";
 import { quantityOfStandardName } from "../../core/cf/cf_standard_names.ts";
 import {
@@ -25,6 +25,12 @@ import type { RunRecord, Store, StoredSeries } from "../store/types.ts";
 import type { OutputSeries } from "../runs/kind.ts";
 import { noteLinesOf } from "../runs/inherit.ts";
 import { immutableHeaders, notModified } from "../routes/cache.ts";
+import {
+  type CachedRepresentation,
+  identityRepresentation,
+  type ImmutableCache,
+  serveRepresentation,
+} from "../routes/immutable_cache.ts";
 import { checkMeta, ErrorList, finish, type SeriesMetaInput } from "../ingest/normalise.ts";
 import type { IngestResult } from "../ingest/types.ts";
 import { SERVICE_VERSION } from "../version.ts";
@@ -91,7 +97,12 @@ export function wantsNetcdf(c: RequestView): boolean {
   return yes;
 }
 
-function calendarOf(c: Context): CfCalendar {
+/**
+ * The CF calendar a NetCDF download asks for (`calendar`, default standard).
+ *
+ * @throws {ProblemError} 422 naming `calendar`
+ */
+export function calendarOf(c: RequestView): CfCalendar {
   try {
     return parseCfCalendar(c.req.query("calendar"));
   } catch (e) {
@@ -141,21 +152,56 @@ function fileName(parts: string[]): string {
   return parts.join("_").replace(/[^A-Za-z0-9_.-]+/g, "-").slice(0, 120) + ".nc";
 }
 
+/**
+ * Where a NetCDF answer of a finished run is kept once written: `key` in `cache`, when the
+ * file fits the cache's bound on one entry (larger files are streamed on every request).
+ */
+export interface NetcdfKeep {
+  cache: ImmutableCache;
+  key: string;
+}
+
 function respond(
   c: Context,
   build: () => ReturnType<typeof buildSeriesDataset>,
   etag: string,
   name: string,
-): Response {
+  keep?: NetcdfKeep,
+): Response | Promise<Response> {
   let built;
   try {
     built = build();
   } catch (e) {
     throw asProblem(e, "query");
   }
-  return netcdfStreamResponse(c, built.dataset, name, {
-    "Vary": "Accept",
-    ...immutableHeaders(etag),
+  const headers = { "Vary": "Accept" };
+  const rep = keep && netcdfRepresentation(built.dataset, name, etag, headers, keep.cache);
+  if (rep) {
+    keep.cache.set(keep.key, rep);
+    return serveRepresentation(c, rep, true);
+  }
+  return netcdfStreamResponse(c, built.dataset, name, { ...headers, ...immutableHeaders(etag) });
+}
+
+/**
+ * A NetCDF-3 file written whole as a cached representation with the headers its streamed
+ * response has (`netcdfStreamResponse`, the caching headers aside); null when the planned file
+ * is larger than `cache` keeps in one entry.
+ */
+export function netcdfRepresentation(
+  dataset: Parameters<typeof planNetcdf3>[0],
+  name: string,
+  etag: string,
+  headers: Record<string, string>,
+  cache: ImmutableCache,
+): CachedRepresentation | null {
+  const total = planNetcdf3(dataset).totalBytes;
+  if (total > cache.maxEntryBytes) return null;
+  return identityRepresentation(etag, encodeNetcdf3(dataset) as Uint8Array<ArrayBuffer>, {
+    "Content-Type": NETCDF_MEDIA_TYPE,
+    "Content-Length": String(total),
+    "Content-Disposition": `attachment; filename="${name}"`,
+    ...headers,
   });
 }
 
@@ -284,7 +330,8 @@ export function runOutputNetcdfResponse(
   o: OutputSeries,
   ensemble?: EnsembleSource,
   attributes: [string, string][] = [],
-): Response {
+  keep?: NetcdfKeep,
+): Response | Promise<Response> {
   const calendar = calendarOf(c);
   if (o.time_axis && o.time_axis !== "decimal_year") {
     throw new ProblemError(
@@ -315,6 +362,7 @@ export function runOutputNetcdfResponse(
     () => buildSeriesDataset(s, prov, { calendar, ensemble }),
     etag,
     fileName([run.id, name, calendar]),
+    keep,
   );
 }
 
@@ -328,7 +376,8 @@ export function runSpectrumNetcdfResponse(
   c: Context,
   run: RunRecord,
   s: SpectrumBlockIn,
-): Response {
+  keep?: NetcdfKeep,
+): Response | Promise<Response> {
   const calendar = calendarOf(c);
   const etag =
     `"run-${run.id}-${run.result_digest}-spectrum-netcdf-${calendar}-${SERVICE_VERSION}"`;
@@ -340,6 +389,7 @@ export function runSpectrumNetcdfResponse(
     () => buildSpectrumDataset(s, prov, calendar, spectrumEnsembleSourceOf(run.result, s)),
     etag,
     fileName([run.id, "spectrum", calendar]),
+    keep,
   );
 }
 

@@ -20,6 +20,17 @@ export interface RequestView {
 }
 
 /**
+ * `view` with the query members of `query` (the fast path's view has none): a query string
+ * a route validated before, as it parsed it.
+ */
+export function withQuery(
+  view: RequestView,
+  query: Record<string, string | undefined>,
+): RequestView {
+  return { ...view, req: { ...view.req, query: (name) => query[name] } };
+}
+
+/**
  * Cache-Control of an immutable representation that only some callers may see (a private or
  * group item): browsers keep it, shared caches do not (RFC 9111 §5.2.2.7).
  */

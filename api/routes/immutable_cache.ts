@@ -13,7 +13,7 @@
  *
  * @module
  */
-import { immutableHeaders, PRIVATE_IMMUTABLE, type RequestView } from "./cache.ts";
+import { immutableHeaders, notModified, PRIVATE_IMMUTABLE, type RequestView } from "./cache.ts";
 import type { HoldingRef, Store } from "../store/types.ts";
 import { holdingsNowOf, sharedCacheable } from "../auth/access.ts";
 import { type Principal, viewerOf } from "../auth/principal.ts";
@@ -39,6 +39,11 @@ export interface CachedRepresentation {
   requires?: HoldingRef[];
   /** A ready response of each variant, made on first use (see `serveRepresentation`). */
   ready?: (Response | undefined)[];
+  /**
+   * Served only as it is: never gzip-coded, and without `Vary: Accept-Encoding` (for
+   * representations whose routes have always answered that way).
+   */
+  identityOnly?: boolean;
 }
 
 /** Bodies smaller than this are sent as they are. */
@@ -179,7 +184,7 @@ export function serveRepresentationNow(
   shared = true,
 ): Response | null {
   if (!r.ready) return null;
-  const gz = r.body.byteLength >= GZIP_MIN_BYTES && acceptsGzip(c.req.header("accept-encoding"));
+  const gz = compressible(r) && acceptsGzip(c.req.header("accept-encoding"));
   const notModified = matchesIfNoneMatch(c, gz ? gzipTag(r.etag) : r.etag);
   const ready = r.ready[(gz ? 2 : 0) | (notModified ? 1 : 0)];
   return ready ? cloneFor(c, ready, shared) : null;
@@ -199,7 +204,7 @@ async function makeVariant(
   r: CachedRepresentation,
   shared: boolean,
 ): Promise<Response> {
-  const gz = r.body.byteLength >= GZIP_MIN_BYTES && acceptsGzip(c.req.header("accept-encoding"));
+  const gz = compressible(r) && acceptsGzip(c.req.header("accept-encoding"));
   const notModified = matchesIfNoneMatch(c, gz ? gzipTag(r.etag) : r.etag);
   const i = (gz ? 2 : 0) | (notModified ? 1 : 0);
   let ready = r.ready?.[i];
@@ -226,6 +231,36 @@ async function makeVariant(
   return cloneFor(c, ready, shared);
 }
 
+/** True when a gzip-coded variant of `r` is offered. */
+function compressible(r: CachedRepresentation): boolean {
+  return !r.identityOnly && r.body.byteLength >= GZIP_MIN_BYTES;
+}
+
+/**
+ * A representation served only as it is (see `identityOnly`): `text` as UTF-8, or bytes.
+ * `headers` are those of the representation (Content-Type and the like), not the cache headers.
+ */
+export function identityRepresentation(
+  etag: string,
+  content: string | Uint8Array<ArrayBuffer>,
+  headers: Record<string, string>,
+): CachedRepresentation {
+  const body = typeof content === "string" ? new TextEncoder().encode(content) : content;
+  return { etag, body, headers, identityOnly: true };
+}
+
+/**
+ * A cached representation as routes that check `If-None-Match` with `notModified` first
+ * answer it: their 304 (cache headers and request id only), else the stored bytes.
+ */
+export function serveStored(
+  c: RequestView,
+  r: CachedRepresentation,
+  shared: boolean,
+): Response | Promise<Response> {
+  return notModified(c, r.etag, shared) ?? serveRepresentation(c, r, shared);
+}
+
 /**
  * The headers of one variant of a representation (gzip-coded or not, 304 or 200) as a shared
  * cache may keep it, with an empty `X-Request-Id` in its place.
@@ -235,7 +270,7 @@ function headersOf(
   gz: boolean,
   notModified: boolean,
 ): Record<string, string> {
-  const vary = [r.headers.Vary, r.body.byteLength >= GZIP_MIN_BYTES ? "Accept-Encoding" : ""]
+  const vary = [r.headers.Vary, compressible(r) ? "Accept-Encoding" : ""]
     .filter(Boolean).join(", ");
   const common: Record<string, string> = {
     ...immutableHeaders(gz ? gzipTag(r.etag) : r.etag, true),

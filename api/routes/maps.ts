@@ -12,14 +12,23 @@ import type { App } from "../app_env.ts";
 import type { RunRecord, Store } from "../store/types.ts";
 import { ProblemError } from "../problems.ts";
 import { problems } from "../schemas/common.ts";
-import { immutableHeaders, notModified, setImmutableHeaders } from "./cache.ts";
+import { immutableHeaders, notModified } from "./cache.ts";
+import {
+  type CachedRepresentation,
+  identityRepresentation,
+  ImmutableCache,
+  serveRepresentation,
+  serveStored,
+} from "./immutable_cache.ts";
+import { type HotGets, QueryMemo } from "../hot_gets.ts";
 import { type MapPart, MapPartSchema } from "../analyses/common/map_result.ts";
 import { ncText } from "../../core/cf/netcdf_model.ts";
 import { buildMapDataset, type LagMaps } from "../netcdf/map_dataset.ts";
-import { NETCDF_CONTENT, netcdfStreamResponse } from "../netcdf/http.ts";
+import { NETCDF_CONTENT, netcdfRepresentation, netcdfStreamResponse } from "../netcdf/http.ts";
 import type { Provenance } from "../netcdf/series_dataset.ts";
 import { SERVICE_VERSION } from "../version.ts";
 import { principalOf } from "../auth/authenticate.ts";
+import { viewerOf } from "../auth/principal.ts";
 import { mustSeeRun, sharedCacheable } from "../auth/access.ts";
 
 /** The parts of a gridded result the downloads read. */
@@ -113,14 +122,8 @@ export function mapCsv(run: RunRecord, g: Gridded): string {
   return out.join("\n") + "\n";
 }
 
-/** The NetCDF-CF response of a run's map, streamed. */
-function netcdfResponse(
-  c: Context,
-  run: RunRecord,
-  g: Gridded,
-  etag: string,
-  shared: boolean,
-): Response {
+/** The NetCDF-CF dataset of a run's map. */
+function mapDataset(run: RunRecord, g: Gridded) {
   const lagMaps: LagMaps | null = g.lag_maps
     ? {
       lags: g.lag_maps.lags,
@@ -139,11 +142,51 @@ function netcdfResponse(
   const extra = g.field_significance !== undefined
     ? [ncText("field_significance", JSON.stringify(g.field_significance))]
     : [];
-  const ds = buildMapDataset(g.map, provenance(run, g), extra, lagMaps);
-  return netcdfStreamResponse(c, ds, `${run.id}_map.nc`, immutableHeaders(etag, shared));
+  return buildMapDataset(g.map, provenance(run, g), extra, lagMaps);
 }
 
-export function registerMapRoutes(app: App, deps: { store: Store }): void {
+/**
+ * The representation of a run's map in `format`, made once (JSON, CSV, and NetCDF-CF when it
+ * fits `cache`'s bound on one entry); null for a NetCDF file larger than that.
+ */
+function mapRepresentation(
+  run: RunRecord,
+  g: Gridded,
+  format: "json" | "csv" | "netcdf",
+  etag: string,
+  cache: ImmutableCache,
+): CachedRepresentation | null {
+  if (format === "netcdf") {
+    return netcdfRepresentation(mapDataset(run, g), `${run.id}_map.nc`, etag, {}, cache);
+  }
+  if (format === "csv") {
+    return identityRepresentation(etag, mapCsv(run, g), {
+      "Content-Type": "text/csv; charset=utf-8",
+      "Content-Disposition": `attachment; filename="${run.id}_map.csv"`,
+    });
+  }
+  return identityRepresentation(etag, JSON.stringify(g.map), {
+    "Content-Type": "application/json",
+  });
+}
+
+export function registerMapRoutes(
+  app: App,
+  deps: { store: Store; hot?: HotGets; downloads?: ImmutableCache },
+): void {
+  const { store } = deps;
+  const downloads = deps.downloads ?? new ImmutableCache();
+  const key = (id: string, format: string) => `map/${id}/${format}`;
+  // A succeeded run's map (and its 304) from the cache, ahead of the middleware, for query
+  // strings the route validated.
+  const queries = new QueryMemo<{ format: string }>();
+  deps.hot?.add("/v1/runs/:id/map", async ({ view, principal, params: [id], search }) => {
+    const q = queries.get(search);
+    const hit = q && downloads.get(key(id, q.format));
+    if (!hit) return null;
+    const holding = await store.runHolding(id, viewerOf(principal));
+    return holding && serveStored(view, hit, sharedCacheable(principal, holding));
+  });
   app.openapi(
     createRoute({
       method: "get",
@@ -180,18 +223,29 @@ export function registerMapRoutes(app: App, deps: { store: Store }): void {
     (async (c: any) => {
       const id: string = c.req.valid("param").id;
       const format: "json" | "csv" | "netcdf" = c.req.valid("query").format;
-      const { run, g, shared } = await mapOf(c, deps.store, id);
+      queries.remember(c.req.url, { format });
+      const principal = principalOf(c);
+      const hit = downloads.get(key(id, format));
+      if (hit) {
+        // a succeeded run's map never changes: served as made, once the caller may see it
+        const holding = await mustSeeRun(store, principal, id);
+        return serveStored(c, hit, sharedCacheable(principal, holding));
+      }
+      const { run, g, shared } = await mapOf(c, store, id);
       const etag = `"map-${run.id}-${run.result_digest}-${format}-${SERVICE_VERSION}"`;
       const nm = notModified(c, etag, shared);
       if (nm) return nm;
-      if (format === "netcdf") return netcdfResponse(c, run, g, etag, shared);
-      setImmutableHeaders(c, etag, shared);
-      if (format === "csv") {
-        c.header("Content-Type", "text/csv; charset=utf-8");
-        c.header("Content-Disposition", `attachment; filename="${run.id}_map.csv"`);
-        return c.body(mapCsv(run, g));
+      const rep = mapRepresentation(run, g, format, etag, downloads);
+      if (!rep) {
+        return netcdfStreamResponse(
+          c,
+          mapDataset(run, g),
+          `${run.id}_map.nc`,
+          immutableHeaders(etag, shared),
+        );
       }
-      return c.json(g.map);
+      downloads.set(key(id, format), rep);
+      return serveRepresentation(c, rep, shared);
     }) as never,
   );
 }

@@ -31,10 +31,17 @@ import {
 } from "../schemas/common.ts";
 import { outputToCsv } from "../export/csv.ts";
 import { wantsCsv } from "./format.ts";
-import { notModified, setImmutableHeaders } from "./cache.ts";
-import { ImmutableCache, serveCachedIfSeen, serveRepresentation } from "./immutable_cache.ts";
-import type { HotGets } from "../hot_gets.ts";
+import { notModified, type RequestView, setImmutableHeaders, withQuery } from "./cache.ts";
 import {
+  identityRepresentation,
+  ImmutableCache,
+  serveCachedIfSeen,
+  serveRepresentation,
+  serveStored,
+} from "./immutable_cache.ts";
+import { type HotGets, QueryMemo } from "../hot_gets.ts";
+import {
+  calendarOf,
   CalendarQuery,
   NETCDF_CONTENT,
   runOutputNetcdfResponse,
@@ -78,6 +85,24 @@ const encoder = new TextEncoder();
 
 const RunId = RunIdParam;
 
+/** The cache key of an output download, and whether it is NetCDF (`wantsNetcdf`). */
+function outputKey(c: RequestView, id: string, name: string) {
+  if (wantsNetcdf(c)) {
+    return { key: `output/${id}/${name}/netcdf/${calendarOf(c)}`, netcdf: true, format: "netcdf" };
+  }
+  const format = wantsCsv(c) ? "csv" : "json";
+  return { key: `output/${id}/${name}/${format}`, netcdf: false, format };
+}
+
+/** `outputKey`, or null where it refuses the query (answered in the route's order). */
+function tryOutputKey(c: RequestView, id: string, name: string) {
+  try {
+    return outputKey(c, id, name);
+  } catch {
+    return null;
+  }
+}
+
 async function mustGetRun(store: Store, id: string): Promise<RunRecord> {
   const r = await store.getRun(id);
   if (!r) throw new ProblemError("not-found", `No run has id ${id}`);
@@ -86,10 +111,34 @@ async function mustGetRun(store: Store, id: string): Promise<RunRecord> {
 
 export function registerRunRoutes(
   app: App,
-  deps: { store: Store; runs: RunService; config?: Config; hot?: HotGets },
+  deps: {
+    store: Store;
+    runs: RunService;
+    config?: Config;
+    hot?: HotGets;
+    /** Where downloads of succeeded runs are kept once made (api/routes/immutable_cache.ts). */
+    downloads?: ImmutableCache;
+  },
 ): void {
   const { store, runs } = deps;
   const runCache = new ImmutableCache();
+  const downloads = deps.downloads ?? new ImmutableCache();
+  // A succeeded run's outputs as JSON, CSV or NetCDF (and their 304s) from the cache, ahead
+  // of the middleware, for query strings the route validated.
+  const outputQueries = new QueryMemo<{ format?: string; calendar?: string }>();
+  deps.hot?.add(
+    "/v1/runs/:id/outputs/:name",
+    async ({ view, principal, params: [id, name], search }) => {
+      const q = outputQueries.get(search);
+      if (!q) return null;
+      const c = withQuery(view, q);
+      const key = outputKey(c, id, name);
+      const hit = downloads.get(key.key);
+      if (!hit) return null;
+      const holding = await store.runHolding(id, viewerOf(principal));
+      return holding && serveStored(c, hit, key.netcdf || sharedCacheable(principal, holding));
+    },
+  );
   // A succeeded run's JSON from the cache, ahead of the middleware (api/hot_gets.ts); the
   // route takes no query, so any query string is served as it is here.
   deps.hot?.add("/v1/runs/:id", ({ view, principal, params: [id] }) => {
@@ -333,8 +382,13 @@ export function registerRunRoutes(
     // deno-lint-ignore no-explicit-any
     (async (c: any) => {
       const { id, name } = c.req.valid("param");
+      outputQueries.remember(c.req.url, c.req.valid("query"));
       const holding = await mustSeeRun(store, principalOf(c), id);
       const shared = sharedCacheable(principalOf(c), holding);
+      // NetCDF downloads have always said `public` (api/netcdf/http.ts)
+      const cached = tryOutputKey(c, id, name);
+      const hit = cached && downloads.get(cached.key);
+      if (hit) return serveStored(c, hit, cached.netcdf || shared);
       const run = await mustGetRun(store, id);
       const o = (run.result?.outputs as Record<string, OutputSeries> | undefined)?.[name];
       if (!o) {
@@ -345,7 +399,10 @@ export function registerRunRoutes(
             (names.length ? `; outputs: ${names.join(", ")}` : "; it has no series outputs"),
         );
       }
-      if (wantsNetcdf(c)) {
+      // a succeeded run never changes: its outputs are written once and kept (bounded)
+      const keep = run.status === "succeeded";
+      const key = outputKey(c, id, name);
+      if (key.netcdf) {
         // an output with ensemble members carries them on a realization dimension, and the
         // band's statement of what it contains as global attributes
         return runOutputNetcdfResponse(
@@ -355,26 +412,27 @@ export function registerRunRoutes(
           o,
           ensembleSourceOf(run.result, name),
           bandAttributes(run.result),
+          keep ? { cache: downloads, key: key.key } : undefined,
         );
       }
-      const csv = wantsCsv(c);
+      const csv = key.format === "csv";
       const etag = `"run-${run.id}-${run.result_digest}-${name}-${csv ? "csv" : "json"}"`;
       const nm = notModified(c, etag, shared);
       if (nm) return nm;
-      setImmutableHeaders(c, etag, shared);
-      c.header("Vary", "Accept");
-      if (csv) {
-        c.header("Content-Type", "text/csv; charset=utf-8");
-        return c.body(outputToCsv(run, name, o));
-      }
-      return c.json({
-        run_id: run.id,
-        result_digest: run.result_digest,
-        warnings: run.result?.warnings ?? [],
-        cautions: run.result?.cautions ?? [],
-        ...(run.result?.inherited ? { inherited: run.result.inherited } : {}),
-        ...o,
-      });
+      const rep = identityRepresentation(
+        etag,
+        csv ? outputToCsv(run, name, o) : JSON.stringify({
+          run_id: run.id,
+          result_digest: run.result_digest,
+          warnings: run.result?.warnings ?? [],
+          cautions: run.result?.cautions ?? [],
+          ...(run.result?.inherited ? { inherited: run.result.inherited } : {}),
+          ...o,
+        }),
+        { "Content-Type": csv ? "text/csv; charset=utf-8" : "application/json", Vary: "Accept" },
+      );
+      if (keep) downloads.set(key.key, rep);
+      return serveRepresentation(c, rep, shared);
     }) as never,
   );
 

@@ -16,21 +16,50 @@ import { RunIdString } from "../schemas/ids.ts";
 import { ProblemError } from "../problems.ts";
 import { problems } from "../schemas/common.ts";
 import { wantsCsv } from "./format.ts";
-import { notModified, setImmutableHeaders } from "./cache.ts";
+import { notModified, type RequestView, withQuery } from "./cache.ts";
+import {
+  identityRepresentation,
+  ImmutableCache,
+  serveRepresentation,
+  serveStored,
+} from "./immutable_cache.ts";
+import { type HotGets, QueryMemo } from "../hot_gets.ts";
+import { viewerOf } from "../auth/principal.ts";
 import { SpectrumBlock } from "../analyses/common/spectrum_block.ts";
 import { spectrumToCsv } from "../export/spectrum_csv.ts";
 import {
+  calendarOf,
   CalendarQuery,
   NETCDF_CONTENT,
   runSpectrumNetcdfResponse,
   wantsNetcdf,
 } from "../netcdf/http.ts";
 
+/** The cache key of a spectrum download, and whether it is NetCDF (`wantsNetcdf`). */
+function spectrumKey(c: RequestView, id: string) {
+  if (wantsNetcdf(c)) return { key: `spectrum/${id}/netcdf/${calendarOf(c)}`, netcdf: true };
+  return { key: `spectrum/${id}/${wantsCsv(c) ? "csv" : "json"}`, netcdf: false };
+}
+
 export function registerSpectrumRoutes(
   app: App,
-  deps: { store: Store; config?: Config },
+  deps: { store: Store; config?: Config; hot?: HotGets; downloads?: ImmutableCache },
 ): void {
   const { store } = deps;
+  const downloads = deps.downloads ?? new ImmutableCache();
+  // A succeeded run's spectrum as JSON, CSV or NetCDF (and their 304s) from the cache, ahead
+  // of the middleware, for query strings the route validated.
+  const queries = new QueryMemo<{ format?: string; calendar?: string }>();
+  deps.hot?.add("/v1/runs/:id/spectrum", async ({ view, principal, params: [id], search }) => {
+    const q = queries.get(search);
+    if (!q) return null;
+    const c = withQuery(view, q);
+    const key = spectrumKey(c, id);
+    const hit = downloads.get(key.key);
+    if (!hit) return null;
+    const holding = await store.runHolding(id, viewerOf(principal));
+    return holding && serveStored(c, hit, key.netcdf || sharedCacheable(principal, holding));
+  });
   app.openapi(
     createRoute({
       method: "get",
@@ -65,8 +94,19 @@ export function registerSpectrumRoutes(
     // deno-lint-ignore no-explicit-any
     (async (c: any) => {
       const { id } = c.req.valid("param");
+      queries.remember(c.req.url, c.req.valid("query"));
       const holding = await mustSeeRun(store, principalOf(c), id);
       const shared = sharedCacheable(principalOf(c), holding);
+      // a succeeded run's spectrum never changes: made once, kept (bounded); NetCDF
+      // downloads have always said `public` (api/netcdf/http.ts)
+      let cached = null;
+      try {
+        cached = spectrumKey(c, id);
+      } catch {
+        // refused below, in the route's order
+      }
+      const hit = cached && downloads.get(cached.key);
+      if (hit) return serveStored(c, hit, cached!.netcdf || shared);
       const run = await store.getRun(id);
       if (!run) throw new ProblemError("not-found", `No run has id ${id}`);
       if (run.status !== "succeeded" || !run.result) {
@@ -84,23 +124,26 @@ export function registerSpectrumRoutes(
           `Run ${id} (kind ${run.kind}) has no spectrum; spectral reconstructions have one`,
         );
       }
-      if (wantsNetcdf(c)) return runSpectrumNetcdfResponse(c, run, parsed.data);
+      const key = spectrumKey(c, id);
+      if (key.netcdf) {
+        return runSpectrumNetcdfResponse(c, run, parsed.data, { cache: downloads, key: key.key });
+      }
       const csv = wantsCsv(c);
       const etag = `"run-${run.id}-${run.result_digest}-spectrum-${csv ? "csv" : "json"}"`;
       const nm = notModified(c, etag, shared);
       if (nm) return nm;
-      setImmutableHeaders(c, etag, shared);
-      c.header("Vary", "Accept");
-      if (csv) {
-        c.header("Content-Type", "text/csv; charset=utf-8");
-        return c.body(spectrumToCsv(run, parsed.data));
-      }
-      return c.json({
-        run_id: run.id,
-        result_digest: run.result_digest,
-        cautions: run.result.cautions ?? [],
-        ...parsed.data,
-      });
+      const rep = identityRepresentation(
+        etag,
+        csv ? spectrumToCsv(run, parsed.data) : JSON.stringify({
+          run_id: run.id,
+          result_digest: run.result_digest,
+          cautions: run.result.cautions ?? [],
+          ...parsed.data,
+        }),
+        { "Content-Type": csv ? "text/csv; charset=utf-8" : "application/json", Vary: "Accept" },
+      );
+      downloads.set(key.key, rep);
+      return serveRepresentation(c, rep, shared);
     }) as never,
   );
 }

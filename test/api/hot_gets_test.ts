@@ -13,6 +13,8 @@ import { createService, type Service } from "../../api/app.ts";
 import { type Config, testConfig } from "../../api/config.ts";
 import { openStoreFromSpec } from "../../api/store/mod.ts";
 import { InThreadExecutor } from "../../api/runs/service.ts";
+import { loadDemo } from "../../api/demo.ts";
+import { DEMO, DEMO_BANDS, demoModelRequest } from "./demo_inputs.ts";
 
 const ADMIN_KEY = "test-admin-key-0123456789abcdef0123456789";
 
@@ -343,6 +345,184 @@ Deno.test("fast GETs: the request rate is charged as on the full path", async ()
     const statuses = Object.values(answers[0]).map((o) => (o as { status: number }).status);
     assert.deepEqual(statuses, [200, 200, 200, 200, 429, 429]);
     assert.equal(p.fast.hot.served - before, 3, "three answered by the fast path");
+  } finally {
+    await p.close();
+  }
+});
+
+/**
+ * A succeeded run of each kind with downloads, on the demo (invented data): a reconstruction
+ * with members (outputs as JSON, CSV and NetCDF on a realization axis), a spectral
+ * reconstruction (its spectrum) and a solar-signal map, made by the caller `who`.
+ */
+async function downloadRuns(p: Pair, who: Record<string, string>) {
+  await loadDemo(p.fast.store);
+  const made = async (path: string, body: unknown) => {
+    const res = await send(p.fast, path, who, "POST", body);
+    const json = await res.json();
+    assert.ok(res.status === 201 || res.status === 200, `${path}: ${JSON.stringify(json)}`);
+    return json;
+  };
+  const darkening = await made("/v1/irradiance/darkening", { total_area: DEMO.AREA });
+  const psi = (await made(`/v1/runs/${darkening.id}/outputs/psi/series`, {})).id;
+  const model = await made("/v1/irradiance/models", demoModelRequest(psi));
+  const proxies = [{ term: "mg_ii", series: DEMO.MG }, { term: "psi", series: psi }];
+  const period = { start: "1900", end: "2020" };
+  const rec = await made("/v1/irradiance/reconstructions", {
+    model: model.id,
+    sunspot_number: DEMO.SSN,
+    resolution: "annual",
+    period,
+    proxies,
+    realizations: 5,
+    seed: 3,
+  });
+  const smodel = await made("/v1/irradiance/spectral-models", {
+    tsi_model: model.id,
+    sunspot_number: DEMO.SSN,
+    proxies,
+    bands: DEMO_BANDS.slice(0, 4),
+  });
+  const srec = await made("/v1/irradiance/spectral-reconstructions", {
+    model: smodel.id,
+    sunspot_number: DEMO.SSN,
+    resolution: "annual",
+    period,
+    proxies,
+  });
+  const map = await made("/v1/solar-signal-maps", {
+    field: DEMO.FIELD,
+    solar: DEMO.TSIM,
+    max_lag: 2,
+    surrogates: 99,
+    keep_lag_maps: true,
+    seed: 7,
+  });
+  for (const r of [rec, srec, map]) assert.equal(r.status, "succeeded", r.id);
+  return { rec: rec.id as string, srec: srec.id as string, map: map.id as string };
+}
+
+/** The downloads of `downloadRuns` and the header variants asked of each. */
+async function downloadMatrix(
+  p: Pair,
+  runs: { rec: string; srec: string; map: string },
+  who: Record<string, string>,
+) {
+  const out = `/v1/runs/${runs.rec}/outputs/tsi`;
+  const paths = [
+    out,
+    `${out}?format=csv`,
+    `${out}?format=json`,
+    `${out}?format=netcdf`,
+    `${out}?format=netcdf&calendar=noleap`,
+    `${out}?calendar=360_day`,
+    `/v1/runs/${runs.rec}/outputs/nope`,
+    `/v1/runs/${runs.rec}/outputs/nope?calendar=noleap`,
+    `/v1/runs/${runs.srec}/spectrum`,
+    `/v1/runs/${runs.srec}/spectrum?format=csv`,
+    `/v1/runs/${runs.srec}/spectrum?format=netcdf&calendar=noleap`,
+    `/v1/runs/${runs.rec}/spectrum`,
+    `/v1/runs/${runs.map}/map`,
+    `/v1/runs/${runs.map}/map?format=csv`,
+    `/v1/runs/${runs.map}/map?format=netcdf`,
+    `/v1/runs/${runs.map}/map?format=svg`,
+    `/v1/runs/${runs.rec}/map`,
+  ];
+  const statuses: number[] = [];
+  for (const path of paths) {
+    const plain = await send(p.full, path, who);
+    const tag = plain.headers.get("etag") ?? '"none"';
+    await plain.body?.cancel();
+    const variants: [Record<string, string>, string][] = [
+      [{}, "GET"],
+      [{}, "HEAD"],
+      [{ "if-none-match": tag }, "GET"],
+      [{ "if-none-match": `W/${tag}, "other"` }, "HEAD"],
+      [{ "if-none-match": '"other"' }, "GET"],
+      [{ "accept-encoding": "gzip, deflate, br" }, "GET"],
+      [{ accept: "text/csv" }, "GET"],
+      [{ accept: "application/x-netcdf" }, "GET"],
+      [{ "x-request-id": "client-id.42" }, "GET"],
+      [{ origin: "https://dash.example" }, "GET"],
+    ];
+    for (const [h, method] of variants) {
+      statuses.push(await same(p, path, path, { ...who, ...h }, method));
+    }
+  }
+  return statuses;
+}
+
+Deno.test("fast GETs: a run's outputs, spectrum and map (JSON, CSV, NetCDF) answer as the full path does", async () => {
+  const p = await pair({ corsOrigins: ["https://dash.example"] });
+  try {
+    const runs = await downloadRuns(p, {});
+    const before = p.fast.hot.served;
+    const statuses = await downloadMatrix(p, runs, {});
+    for (const s of [200, 304, 404, 422]) assert.ok(statuses.includes(s), `status ${s}`);
+    assert.ok(p.fast.hot.served - before > 80, `fast path used: ${p.fast.hot.served - before}`);
+  } finally {
+    await p.close();
+  }
+});
+
+Deno.test("fast GETs: a run's downloads follow sharing and revoked keys at once", async () => {
+  const p = await pair({ adminKey: ADMIN_KEY });
+  try {
+    const admin = { authorization: `Bearer ${ADMIN_KEY}` };
+    const owner = async (id: string, group: string) => {
+      const made = await send(p.fast, "/v1/admin/owners", admin, "POST", {
+        id,
+        name: `Owner ${id}`,
+        role: "writer",
+        group,
+      });
+      assert.equal(made.status, 201, await made.text());
+      const k = await (await send(p.fast, `/v1/admin/owners/${id}/keys`, admin, "POST", {
+        label: "t",
+      })).json();
+      return { key: k.key as string, auth: { authorization: `Bearer ${k.key}` } };
+    };
+    const a = await owner("analyst_a", "lab");
+    const b = await owner("analyst_b", "lab");
+    // the demo's field is loaded for the instance's own owner: shared for the analyst's map
+    await loadDemo(p.fast.store);
+    const field = await send(p.fast, `/v1/fields/${DEMO.FIELD}/sharing`, admin, "PUT", {
+      visibility: "public",
+    });
+    assert.equal(field.status, 200, await field.text());
+    const runs = await downloadRuns(p, a.auth);
+    const urls = [
+      `/v1/runs/${runs.rec}/outputs/tsi?format=csv`,
+      `/v1/runs/${runs.rec}/outputs/tsi?format=netcdf`,
+      `/v1/runs/${runs.srec}/spectrum`,
+      `/v1/runs/${runs.map}/map?format=netcdf`,
+    ];
+    const statusOf = async (url: string, who: Record<string, string>) => {
+      const r = await send(p.fast, url, who);
+      await r.body?.cancel();
+      return r.status;
+    };
+    // the owner fills the caches; then the fast path answers
+    for (let i = 0; i < 2; i++) for (const u of urls) assert.equal(await statusOf(u, a.auth), 200);
+    const served = p.fast.hot.served;
+    for (const u of urls) assert.equal(await statusOf(u, a.auth), 200, u);
+    assert.equal(p.fast.hot.served, served + urls.length, "answered by the fast path");
+    for (const u of urls) assert.equal(await statusOf(u, b.auth), 404, `private: ${u}`);
+    for (const u of urls) assert.equal(await statusOf(u, {}), 404, `anonymous: ${u}`);
+    for (const id of [runs.rec, runs.srec, runs.map]) {
+      const r = await send(p.fast, `/v1/runs/${id}/sharing`, a.auth, "PUT", {
+        visibility: "group",
+      });
+      assert.equal(r.status, 200);
+    }
+    for (const u of urls) assert.equal(await statusOf(u, b.auth), 200, `group: ${u}`);
+    for (const id of [runs.rec, runs.srec, runs.map]) {
+      await send(p.fast, `/v1/runs/${id}/sharing`, a.auth, "PUT", { visibility: "private" });
+    }
+    for (const u of urls) assert.equal(await statusOf(u, b.auth), 404, `private again: ${u}`);
+    const revoked = await send(p.fast, `/v1/admin/keys/${a.key.split("_")[1]}`, admin, "DELETE");
+    assert.equal(revoked.status, 204);
+    for (const u of urls) assert.equal(await statusOf(u, a.auth), 401, `revoked: ${u}`);
   } finally {
     await p.close();
   }
