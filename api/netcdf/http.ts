@@ -161,11 +161,16 @@ export interface NetcdfKeep {
   key: string;
 }
 
+/**
+ * A NetCDF answer; `shared` false (an item that is not public, asked for with a key) keeps it
+ * out of shared caches (`Cache-Control: private`), as every other representation of it.
+ */
 function respond(
   c: Context,
   build: () => ReturnType<typeof buildSeriesDataset>,
   etag: string,
   name: string,
+  shared: boolean,
   keep?: NetcdfKeep,
 ): Response | Promise<Response> {
   let built;
@@ -178,9 +183,12 @@ function respond(
   const rep = keep && netcdfRepresentation(built.dataset, name, etag, headers, keep.cache);
   if (rep) {
     keep.cache.set(keep.key, rep);
-    return serveRepresentation(c, rep, true);
+    return serveRepresentation(c, rep, shared);
   }
-  return netcdfStreamResponse(c, built.dataset, name, { ...headers, ...immutableHeaders(etag) });
+  return netcdfStreamResponse(c, built.dataset, name, {
+    ...headers,
+    ...immutableHeaders(etag, shared),
+  });
 }
 
 /**
@@ -260,13 +268,14 @@ export async function seriesNetcdfResponse(
   c: Context,
   store: Store,
   id: string,
+  shared: boolean,
 ): Promise<Response> {
   const calendar = calendarOf(c);
   if (!(await store.getSeriesMeta(id))) {
     throw new ProblemError("not-found", `No series has id ${id}`);
   }
   const etag = `"${id}-netcdf-${calendar}-${SERVICE_VERSION}"`;
-  const nm = notModified(c, etag);
+  const nm = notModified(c, etag, shared);
   if (nm) return nm;
   const s = await store.getSeries(id);
   if (!s) throw new ProblemError("not-found", `No series has id ${id}`);
@@ -291,6 +300,7 @@ export async function seriesNetcdfResponse(
     () => buildSeriesDataset(seriesLikeOf(s), prov, { calendar }),
     etag,
     fileName([s.quantity, short, calendar]),
+    shared,
   );
 }
 
@@ -328,6 +338,7 @@ export function runOutputNetcdfResponse(
   run: RunRecord,
   name: string,
   o: OutputSeries,
+  shared: boolean,
   ensemble?: EnsembleSource,
   attributes: [string, string][] = [],
   keep?: NetcdfKeep,
@@ -342,7 +353,7 @@ export function runOutputNetcdfResponse(
     );
   }
   const etag = `"run-${run.id}-${run.result_digest}-${name}-netcdf-${calendar}-${SERVICE_VERSION}"`;
-  const nm = notModified(c, etag);
+  const nm = notModified(c, etag, shared);
   if (nm) return nm;
   const prov = { ...runProvenance(run, o.name, `output "${name}"`, calendar), attributes };
   const s: SeriesLike = {
@@ -362,6 +373,7 @@ export function runOutputNetcdfResponse(
     () => buildSeriesDataset(s, prov, { calendar, ensemble }),
     etag,
     fileName([run.id, name, calendar]),
+    shared,
     keep,
   );
 }
@@ -376,12 +388,13 @@ export function runSpectrumNetcdfResponse(
   c: Context,
   run: RunRecord,
   s: SpectrumBlockIn,
+  shared: boolean,
   keep?: NetcdfKeep,
 ): Response | Promise<Response> {
   const calendar = calendarOf(c);
   const etag =
     `"run-${run.id}-${run.result_digest}-spectrum-netcdf-${calendar}-${SERVICE_VERSION}"`;
-  const nm = notModified(c, etag);
+  const nm = notModified(c, etag, shared);
   if (nm) return nm;
   const prov = runProvenance(run, s.name, "spectrum", calendar);
   return respond(
@@ -389,6 +402,7 @@ export function runSpectrumNetcdfResponse(
     () => buildSpectrumDataset(s, prov, calendar, spectrumEnsembleSourceOf(run.result, s)),
     etag,
     fileName([run.id, "spectrum", calendar]),
+    shared,
     keep,
   );
 }

@@ -136,7 +136,7 @@ export function registerRunRoutes(
       const hit = downloads.get(key.key);
       if (!hit) return null;
       const holding = await store.runHolding(id, viewerOf(principal));
-      return holding && serveStored(c, hit, key.netcdf || sharedCacheable(principal, holding));
+      return holding && serveStored(c, hit, sharedCacheable(principal, holding));
     },
   );
   // A succeeded run's JSON from the cache, ahead of the middleware (api/hot_gets.ts); the
@@ -385,10 +385,9 @@ export function registerRunRoutes(
       outputQueries.remember(c.req.url, c.req.valid("query"));
       const holding = await mustSeeRun(store, principalOf(c), id);
       const shared = sharedCacheable(principalOf(c), holding);
-      // NetCDF downloads have always said `public` (api/netcdf/http.ts)
       const cached = tryOutputKey(c, id, name);
       const hit = cached && downloads.get(cached.key);
-      if (hit) return serveStored(c, hit, cached.netcdf || shared);
+      if (hit) return serveStored(c, hit, shared);
       const run = await mustGetRun(store, id);
       const o = (run.result?.outputs as Record<string, OutputSeries> | undefined)?.[name];
       if (!o) {
@@ -410,6 +409,7 @@ export function registerRunRoutes(
           run,
           name,
           o,
+          shared,
           ensembleSourceOf(run.result, name),
           bandAttributes(run.result),
           keep ? { cache: downloads, key: key.key } : undefined,

@@ -316,7 +316,9 @@ export function registerSeriesRoutes(
       queries.remember(c.req.url, c.req.valid("query"));
       // Visibility first (cheap), then a 304 without reading the points.
       const holding = await mustSeeSeries(store, principalOf(c), id);
-      if (wantsNetcdf(c)) return await seriesNetcdfResponse(c, store, id);
+      if (wantsNetcdf(c)) {
+        return await seriesNetcdfResponse(c, store, id, sharedCacheable(principalOf(c), holding));
+      }
       const cached = fromCache(c, id, holding, principalOf(c));
       if (cached) return await cached;
       const csv = wantsCsv(c);

@@ -58,7 +58,7 @@ export function registerSpectrumRoutes(
     const hit = downloads.get(key.key);
     if (!hit) return null;
     const holding = await store.runHolding(id, viewerOf(principal));
-    return holding && serveStored(c, hit, key.netcdf || sharedCacheable(principal, holding));
+    return holding && serveStored(c, hit, sharedCacheable(principal, holding));
   });
   app.openapi(
     createRoute({
@@ -97,8 +97,7 @@ export function registerSpectrumRoutes(
       queries.remember(c.req.url, c.req.valid("query"));
       const holding = await mustSeeRun(store, principalOf(c), id);
       const shared = sharedCacheable(principalOf(c), holding);
-      // a succeeded run's spectrum never changes: made once, kept (bounded); NetCDF
-      // downloads have always said `public` (api/netcdf/http.ts)
+      // a succeeded run's spectrum never changes: made once, kept (bounded)
       let cached = null;
       try {
         cached = spectrumKey(c, id);
@@ -106,7 +105,7 @@ export function registerSpectrumRoutes(
         // refused below, in the route's order
       }
       const hit = cached && downloads.get(cached.key);
-      if (hit) return serveStored(c, hit, cached!.netcdf || shared);
+      if (hit) return serveStored(c, hit, shared);
       const run = await store.getRun(id);
       if (!run) throw new ProblemError("not-found", `No run has id ${id}`);
       if (run.status !== "succeeded" || !run.result) {
@@ -126,7 +125,10 @@ export function registerSpectrumRoutes(
       }
       const key = spectrumKey(c, id);
       if (key.netcdf) {
-        return runSpectrumNetcdfResponse(c, run, parsed.data, { cache: downloads, key: key.key });
+        return runSpectrumNetcdfResponse(c, run, parsed.data, shared, {
+          cache: downloads,
+          key: key.key,
+        });
       }
       const csv = wantsCsv(c);
       const etag = `"run-${run.id}-${run.result_digest}-spectrum-${csv ? "csv" : "json"}"`;
