@@ -135,10 +135,29 @@ export class HotGets {
     const segments = pattern.split("/").map((s) => s.startsWith(":") ? null : s);
     this.#routes.push({ segments, handler });
     this.#matched.clear();
+    this.#servable.clear();
   }
 
   /** Paths matched lately, with their answer (bounded: the table starts again when full). */
   readonly #matched = new Map<string, { handler: HotHandler; params: string[] } | null>();
+  /** {@link servable}'s answers, as `#matched`'s. */
+  readonly #servable = new Map<string, { handler: HotHandler; params: string[] } | null>();
+
+  /**
+   * The handler and parameters for `path` when the fast path may serve it: it matches, needs no
+   * decoding (no percent-encoding, no dot segment) and no role (not under /v1/admin); else null.
+   */
+  servable(path: string): { handler: HotHandler; params: string[] } | null {
+    let m = this.#servable.get(path);
+    if (m === undefined) {
+      m = PLAIN.test(path) && !path.includes("/.") && requiredRole("GET", path) === null
+        ? this.match(path)
+        : null;
+      if (this.#servable.size >= 1024) this.#servable.clear();
+      this.#servable.set(path, m);
+    }
+    return m;
+  }
 
   /** The handler and parameters for `path`, or null. */
   match(path: string): { handler: HotHandler; params: string[] } | null {
@@ -209,20 +228,22 @@ export function withHotGets(deps: HotPathDeps, full: Fetch): Fetch {
     const q = url.indexOf("?", start);
     const path = q < 0 ? url.slice(start) : url.slice(start, q);
     const search = q < 0 ? "" : url.slice(q);
-    const m = deps.hot.match(path);
-    if (
-      !m || !PLAIN.test(path) || path.includes("/.") || !PLAIN.test(search.slice(1)) ||
-      requiredRole("GET", path) !== null || !hostOk(url.slice(0, start))
-    ) return full(req, info);
-    const headers = req.headers;
+    const m = deps.hot.servable(path);
+    if (!m || !PLAIN.test(search.slice(1)) || !hostOk(url.slice(0, start))) {
+      return full(req, info);
+    }
+    // the head's size and the headers read below, in one pass over them
+    const head: HeadValues = {};
+    let body = false;
+    const size = headBytesOf(method, path.length + search.length, req.headers, (k, v) => {
+      if (k === "content-length" || k === "transfer-encoding" || k === "content-encoding") {
+        body = true;
+      } else if (READ.has(k)) head[k as keyof HeadValues] = v;
+    });
     // a body, or an encoded one, is for the body-limit and content-coding middleware
-    if (
-      headers.has("content-length") || headers.has("transfer-encoding") ||
-      headers.has("content-encoding") ||
-      headBytesOf(method, path.length + search.length, headers) > MAX_HEAD_BYTES
-    ) return full(req, info);
-    const at: Answering = { req, info, method, t0, path, search, match: m };
-    const auth = headers.get("authorization");
+    if (body || size > MAX_HEAD_BYTES) return full(req, info);
+    const at: Answering = { req, info, method, t0, path, search, match: m, head };
+    const auth = head.authorization ?? null;
     if (auth === null) {
       return answer(at, deps.adminKey === null ? LOCAL_PRINCIPAL : ANONYMOUS);
     }
@@ -236,11 +257,14 @@ export function withHotGets(deps: HotPathDeps, full: Fetch): Fetch {
 
   /** The cached answer to an authenticated request, or the full path's. */
   function answer(at: Answering, principal: Principal): Response | Promise<Response> {
-    const headers = at.req.headers;
-    const id = requestIdFrom(headers.get("x-request-id"));
+    const { head, req } = at;
+    const id = requestIdFrom(head["x-request-id"]);
     const view: RequestView = {
       req: {
-        header: (name) => headers.get(name) ?? undefined,
+        header: (name) => {
+          const k = name.toLowerCase();
+          return READ.has(k) ? head[k as keyof HeadValues] : req.headers.get(name) ?? undefined;
+        },
         query: () => undefined,
       },
       get: () => id,
@@ -271,7 +295,7 @@ export function withHotGets(deps: HotPathDeps, full: Fetch): Fetch {
       if (!deps.buckets.take(bucketKey(principal, info)).ok) return full(req, info);
     }
     const cors = deps.corsOrigins.length
-      ? corsSimpleHeaders(deps.corsOrigins, req.headers.get("origin") ?? "")
+      ? corsSimpleHeaders(deps.corsOrigins, at.head.origin ?? "")
       : null;
     if (deps.adminKey !== null || cors) res = decorate(res, cors, deps.adminKey !== null);
     const done = (r: Response) => {
@@ -289,6 +313,24 @@ export function withHotGets(deps: HotPathDeps, full: Fetch): Fetch {
   };
 }
 
+/** The request headers the fast path and its handlers read, by lower-case name. */
+interface HeadValues {
+  authorization?: string;
+  "x-request-id"?: string;
+  "if-none-match"?: string;
+  "accept-encoding"?: string;
+  accept?: string;
+  origin?: string;
+}
+const READ = new Set<string>([
+  "authorization",
+  "x-request-id",
+  "if-none-match",
+  "accept-encoding",
+  "accept",
+  "origin",
+]);
+
 /** A request on its way through the fast path. */
 interface Answering {
   req: Request;
@@ -299,6 +341,8 @@ interface Answering {
   path: string;
   search: string;
   match: { handler: HotHandler; params: string[] };
+  /** The headers read, from the one pass over them (combined as `Headers.get` combines them). */
+  head: HeadValues;
 }
 
 /** The headers the CORS and authentication middleware add to a response, in their order. */

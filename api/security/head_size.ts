@@ -27,12 +27,19 @@ export function headBytes(method: string, url: string, headers: Headers): number
  * As {@link headBytes}, given the length of the request target (path and query). `forEach`
  * visits the same name/value pairs as `for...of` (names lower-cased and sorted, repeated
  * headers joined) at a quarter of the cost in Deno 2.9 (0.52 µs against 2.0 µs for two
- * headers, deno bench), and every request asks.
+ * headers, deno bench), and every request asks. `visit`, when given, sees each name (lower
+ * case) and value on the way, so that a caller reads the headers it needs in the same pass.
  */
-export function headBytesOf(method: string, target: number, headers: Headers): number {
+export function headBytesOf(
+  method: string,
+  target: number,
+  headers: Headers,
+  visit?: (name: string, value: string) => void,
+): number {
   let n = method.length + target + 14;
   headers.forEach((v, k) => {
     n += k.length + v.length + 4;
+    visit?.(k, v);
   });
   return n;
 }

@@ -315,7 +315,9 @@ export class SqliteStore implements Store {
   #stmts = new Map<string, StatementSync>();
   /** Access-check answers since the database last changed (see `#holding`). */
   #holdings = new Map<string, Holding | null>();
-  #holdingsVersion = "";
+  /** The write count and data_version the remembered answers were read at. */
+  #holdingsWrites = -1;
+  #holdingsDataVersion = -1;
 
   #writer: SqliteWriter | null;
 
@@ -635,7 +637,7 @@ export class SqliteStore implements Store {
 
   /** Write transactions ended on this process's connections to the file (sqlite_changes.ts). */
   #writes: Int32Array;
-  /** `PRAGMA data_version` as last read, when (performance.now()), and how often it is read. */
+  /** `PRAGMA data_version` as last read, when (Date.now()), and how often it is read. */
   #dataVersion = 0;
   #dataVersionAt = -Infinity;
   #outsideCheckMs: number;
@@ -652,15 +654,19 @@ export class SqliteStore implements Store {
    * WAL's read lock: read on every request it halved the requests per second of a cached 304.
    */
   #checkHoldingsVersion(): void {
-    const now = performance.now();
-    if (now - this.#dataVersionAt >= this.#outsideCheckMs) {
+    // Date.now() (a V8 builtin, where performance.now() is a call into the runtime); a clock
+    // set back reads at once
+    const now = Date.now();
+    const age = now - this.#dataVersionAt;
+    if (age >= this.#outsideCheckMs || age < 0) {
       this.#dataVersion = Number((this.#stmt("PRAGMA data_version").get() as Row).data_version);
       this.#dataVersionAt = now;
     }
-    const version = `${writesOf(this.#writes)}:${this.#dataVersion}`;
-    if (version !== this.#holdingsVersion) {
+    const writes = writesOf(this.#writes);
+    if (writes !== this.#holdingsWrites || this.#dataVersion !== this.#holdingsDataVersion) {
       this.#holdings.clear();
-      this.#holdingsVersion = version;
+      this.#holdingsWrites = writes;
+      this.#holdingsDataVersion = this.#dataVersion;
     }
   }
 
