@@ -184,11 +184,30 @@ class Utf8Sink {
 /** Arrays at least this long are checked, then serialised by one `JSON.stringify` call. */
 const LARGE = 256;
 
+/**
+ * What one serialisation remembers: the text of the last long flat arrays written, so an array
+ * repeated in a result (the same time axis under several outputs) is formatted once.
+ */
+interface Written {
+  texts: { a: ArrayLike<unknown>; text: string }[];
+}
+
+/** How many long flat arrays one serialisation remembers the text of. */
+const REMEMBERED = 16;
+
+/** True when two flat arrays hold the same primitives (so their JSON is the same text). */
+function sameItems(a: ArrayLike<unknown>, b: ArrayLike<unknown>): boolean {
+  if (a.length !== b.length) return false;
+  for (let i = 0; i < a.length; i++) if (a[i] !== b[i]) return false;
+  return true;
+}
+
 function writeArrayLike(
   a: ArrayLike<unknown>,
   path: (string | number)[],
   keys: Set<string>,
   sink: Utf8Sink,
+  done: Written,
 ): void {
   // primitives only (the common case: numbers): check each, then one native stringify
   let flat = true;
@@ -207,9 +226,18 @@ function writeArrayLike(
   if (flat && !("toJSON" in a)) {
     // JSON.stringify writes -0 as 0 and a hole or undefined in an array as null, as the plain
     // copy would hold them; a typed array is copied to an Array first (it would be an object)
-    const text = JSON.stringify(Array.isArray(a) ? a : Array.from(a));
-    if (a.length >= LARGE) sink.pushLarge(text);
-    else sink.push(text);
+    if (a.length < LARGE) {
+      sink.push(JSON.stringify(Array.isArray(a) ? a : Array.from(a)));
+      return;
+    }
+    // items compared with ===: -0 and 0 are both written 0, and no NaN is left (checked)
+    let text = done.texts.find((t) => t.a === a || sameItems(t.a, a))?.text;
+    if (text === undefined) {
+      text = JSON.stringify(Array.isArray(a) ? a : Array.from(a));
+      // the last few only: a result of many long rows compares each with a bounded number
+      if (done.texts.push({ a, text }) > REMEMBERED) done.texts.shift();
+    }
+    sink.pushLarge(text);
     return;
   }
   sink.push("[");
@@ -221,21 +249,27 @@ function writeArrayLike(
       continue;
     }
     path.push(i);
-    write(v, path, keys, sink);
+    write(v, path, keys, sink, done);
     path.pop();
   }
   sink.push("]");
 }
 
-function write(value: unknown, path: (string | number)[], keys: Set<string>, sink: Utf8Sink) {
+function write(
+  value: unknown,
+  path: (string | number)[],
+  keys: Set<string>,
+  sink: Utf8Sink,
+  done: Written,
+) {
   if (typeof value === "string") {
     sink.push(JSON.stringify(value.isWellFormed() ? value : badString(path)));
   } else if (value === null) sink.push("null");
   else if (typeof value === "boolean") sink.push(value ? "true" : "false");
   else if (typeof value === "number") sink.push(JSON.stringify(plainNumber(value, path)));
   else if (ArrayBuffer.isView(value) && !(value instanceof DataView)) {
-    writeArrayLike(value as unknown as ArrayLike<number>, path, keys, sink);
-  } else if (Array.isArray(value)) writeArrayLike(value, path, keys, sink);
+    writeArrayLike(value as unknown as ArrayLike<number>, path, keys, sink, done);
+  } else if (Array.isArray(value)) writeArrayLike(value, path, keys, sink, done);
   else if (typeof value === "object") {
     sink.push("{");
     let first = true;
@@ -249,7 +283,7 @@ function write(value: unknown, path: (string | number)[], keys: Set<string>, sin
       sink.push(first ? JSON.stringify(k) + ":" : "," + JSON.stringify(k) + ":");
       first = false;
       path.push(k);
-      write(v, path, keys, sink);
+      write(v, path, keys, sink, done);
       path.pop();
     }
     sink.push("}");
@@ -278,6 +312,6 @@ function write(value: unknown, path: (string | number)[], keys: Set<string>, sin
 export function canonicalJsonBytes(value: unknown): Uint8Array<ArrayBuffer> {
   const sink = new Utf8Sink();
   if (value === undefined) fail(value, []);
-  write(value, [], new Set(), sink);
+  write(value, [], new Set(), sink, { texts: [] });
   return sink.bytes();
 }

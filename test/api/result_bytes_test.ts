@@ -92,6 +92,25 @@ Deno.test("canonicalJsonBytes() writes the bytes of JSON.stringify(toPlainJson(x
   });
 });
 
+Deno.test("a long array repeated in a result (the same one, or equal items) is written as before", () => {
+  const axis = Float64Array.from({ length: 5000 }, (_, i) => 1850 + (i + 0.5) / 365.25);
+  const value = {
+    cycle: { time: axis, value: axis.map((x) => Math.sin(x) * 1e-7) },
+    phase: { time: axis, value: Array.from(axis, (x, i) => (i % 9 ? x % 11 : null)) },
+    // the same numbers in another array; -0 where another has 0; a hole where another has null
+    copy: { time: Array.from(axis), zeros: [-0, ...new Array(400).fill(0)], gaps: [1, , 3] },
+    zeros: new Float32Array(401),
+    // equal items but for one (the last), and of another type
+    near: Array.from(axis, (x, i) => (i === 4999 ? x + 1 : x)),
+    strings: Array.from(axis, String),
+    holes: Object.assign(new Array(300), { 7: 1 }),
+    nulls: Array.from({ length: 300 }, (_, i) => (i === 7 ? 1 : null)),
+  };
+  const text = new TextDecoder().decode(canonicalJsonBytes(value));
+  assert.equal(text, JSON.stringify(toPlainJson(value)));
+  assert.equal(text, canonicalJson(toPlainJson(value)));
+});
+
 Deno.test("toPlainJson() refuses a lone surrogate as RFC 8785 does", () => {
   assert.throws(() => toPlainJson({ name: "a\uD800b" }), /lone surrogate.*\/name/);
   assert.throws(() => canonicalJson({ name: "a\uD800b" }), RangeError);
