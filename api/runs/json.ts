@@ -197,8 +197,13 @@ const REMEMBERED = 16;
 
 /** True when two flat arrays hold the same primitives (so their JSON is the same text). */
 function sameItems(a: ArrayLike<unknown>, b: ArrayLike<unknown>): boolean {
-  if (a.length !== b.length) return false;
-  for (let i = 0; i < a.length; i++) if (a[i] !== b[i]) return false;
+  const n = a.length;
+  if (n !== b.length) return false;
+  // the last and middle items first: arrays that share a long beginning (outputs alike before
+  // some date) differ there, and a scan to the point where they part cost a 38 MB result
+  // 5 % of its serialisation
+  if (a[n - 1] !== b[n - 1] || a[n >> 1] !== b[n >> 1]) return false;
+  for (let i = 0; i < n; i++) if (a[i] !== b[i]) return false;
   return true;
 }
 
