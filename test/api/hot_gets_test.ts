@@ -50,6 +50,22 @@ async function pair(config: Partial<Config> = {}): Promise<Pair> {
   };
 }
 
+/** A writer owner in `group`, made with the admin key, and a key of its own. */
+async function ownerWithKey(svc: Service, id: string, group: string) {
+  const admin = { authorization: `Bearer ${ADMIN_KEY}` };
+  const made = await send(svc, "/v1/admin/owners", admin, "POST", {
+    id,
+    name: `Owner ${id}`,
+    role: "writer",
+    group,
+  });
+  assert.equal(made.status, 201, await made.text());
+  const k = await send(svc, `/v1/admin/owners/${id}/keys`, admin, "POST", { label: "t" });
+  assert.equal(k.status, 201);
+  const key = (await k.json()).key as string;
+  return { key, auth: { authorization: `Bearer ${key}` } };
+}
+
 function send(
   svc: Service,
   path: string,
@@ -186,18 +202,7 @@ Deno.test("fast GETs: keys, owners, groups, bad keys and CORS answer as the full
   const p = await pair({ adminKey: ADMIN_KEY, corsOrigins: ["https://dash.example"] });
   try {
     const admin = { authorization: `Bearer ${ADMIN_KEY}` };
-    const keyOf = async (id: string, group: string) => {
-      const made = await send(p.fast, "/v1/admin/owners", admin, "POST", {
-        id,
-        name: `Owner ${id}`,
-        role: "writer",
-        group,
-      });
-      assert.equal(made.status, 201, await made.text());
-      const k = await send(p.fast, `/v1/admin/owners/${id}/keys`, admin, "POST", { label: "t" });
-      assert.equal(k.status, 201);
-      return { authorization: `Bearer ${(await k.json()).key}` };
-    };
+    const keyOf = async (id: string, group: string) => (await ownerWithKey(p.fast, id, group)).auth;
     const a = await keyOf("analyst_a", "lab");
     const b = await keyOf("analyst_b", "lab");
     const c = await keyOf("outsider", "elsewhere");
@@ -469,19 +474,7 @@ Deno.test("fast GETs: a run's downloads follow sharing and revoked keys at once"
   const p = await pair({ adminKey: ADMIN_KEY });
   try {
     const admin = { authorization: `Bearer ${ADMIN_KEY}` };
-    const owner = async (id: string, group: string) => {
-      const made = await send(p.fast, "/v1/admin/owners", admin, "POST", {
-        id,
-        name: `Owner ${id}`,
-        role: "writer",
-        group,
-      });
-      assert.equal(made.status, 201, await made.text());
-      const k = await (await send(p.fast, `/v1/admin/owners/${id}/keys`, admin, "POST", {
-        label: "t",
-      })).json();
-      return { key: k.key as string, auth: { authorization: `Bearer ${k.key}` } };
-    };
+    const owner = (id: string, group: string) => ownerWithKey(p.fast, id, group);
     const a = await owner("analyst_a", "lab");
     const b = await owner("analyst_b", "lab");
     // the demo's field is loaded for the instance's own owner: shared for the analyst's map

@@ -17,17 +17,10 @@
  * @module
  */
 import { demoFileEntries } from "../../api/demo.ts";
+import { abOptions, loadAverage } from "./ab_options.ts";
 
-const args = Deno.args;
-const arg = (name: string, dflt?: string) => {
-  const i = args.indexOf(`--${name}`);
-  return i >= 0 ? args[i + 1] : dflt;
-};
-const dirs = { a: arg("a")!, b: arg("b")! };
-const ROUNDS = Number(arg("rounds", "5"));
-const SECONDS = Number(arg("seconds", "5"));
-const ONLY = arg("only")?.split(",");
-const load = () => Deno.readTextFileSync("/proc/loadavg").split(" ").slice(0, 3).join(" ");
+const { dirs, rounds: ROUNDS, seconds: SECONDS, only: ONLY } = abOptions({ rounds: 5 });
+const load = loadAverage;
 const median = (xs: number[]) => {
   const a = [...xs].sort((p, q) => p - q);
   return a.length % 2 ? a[(a.length - 1) / 2] : (a[a.length / 2 - 1] + a[a.length / 2]) / 2;

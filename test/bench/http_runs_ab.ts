@@ -12,17 +12,12 @@
  */
 import { dailySpots, demoIds, months3000 } from "./http_bench_inputs.ts";
 import { spawnService } from "./spawn_service.ts";
+import { abOptions, loadAverage } from "./ab_options.ts";
 import { sha256Hex } from "../../api/canonical.ts";
 
-const args = Deno.args;
-const arg = (name: string, dflt?: string) => {
-  const i = args.indexOf(`--${name}`);
-  return i >= 0 ? args[i + 1] : dflt;
-};
-const dirs = { a: arg("a")!, b: arg("b")! };
-const ROUNDS = Number(arg("rounds", "15"));
+const { arg, dirs, rounds: ROUNDS } = abOptions({ rounds: 15 });
 const REC_ROUNDS = Number(arg("rec-rounds", "5"));
-const load = () => Deno.readTextFileSync("/proc/loadavg").split(" ").slice(0, 3).join(" ");
+const load = loadAverage;
 const median = (xs: number[]) => {
   const a = [...xs].sort((p, q) => p - q);
   return a.length % 2 ? a[(a.length - 1) / 2] : (a[a.length / 2 - 1] + a[a.length / 2]) / 2;

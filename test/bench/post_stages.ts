@@ -80,7 +80,7 @@ timeMethod(runs, "saveOutputs", "saveOutputs");
 timeMethod(runs, "submit", "submit");
 
 const ac = new AbortController();
-const server = Deno.serve({
+Deno.serve({
   hostname: "127.0.0.1",
   port: PORT,
   signal: ac.signal,
