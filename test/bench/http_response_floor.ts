@@ -1,0 +1,48 @@
+/**
+ * What Deno's server costs for the shape of a cached 304, without any of the service's checks:
+ * one mode per process, run side by side under wrk. `hello` answers 12 bytes (the hello-world);
+ * `clone` clones a ready 304 with the four headers the service sends (Cache-Control, ETag, Vary,
+ * X-Request-Id) and sets a request id, as api/routes/immutable_cache.ts does; `fresh` builds that
+ * 304 anew per request; `sql` is `clone` plus one `PRAGMA data_version` on a SQLite file in WAL
+ * mode, the statement the access check used to run per request.
+ *
+ * Usage: deno run -A test/bench/http_response_floor.ts hello|clone|fresh|sql PORT, then
+ * `wrk -t2 -c50 -d5s http://127.0.0.1:PORT/` against each, rounds alternating.
+ *
+ * @module
+ */
+import { DatabaseSync } from "node:sqlite";
+
+const [mode, port] = [Deno.args[0], Number(Deno.args[1])];
+const dir = Deno.makeTempDirSync({ prefix: "sunlag-floor-" });
+const db = new DatabaseSync(`${dir}/floor.db`);
+db.exec("PRAGMA journal_mode = WAL");
+const version = db.prepare("PRAGMA data_version");
+const etag = `"chart-run-${"0".repeat(36)}-${"f".repeat(64)}-800x400-light---s0.1.0-c1"`;
+const headers = {
+  "cache-control": "public, max-age=31536000, immutable",
+  etag,
+  vary: "Accept-Encoding",
+  "x-request-id": "",
+};
+const ready = new Response(null, { status: 304, headers });
+const cloned = () => {
+  const r = ready.clone();
+  r.headers.set("X-Request-Id", crypto.randomUUID());
+  return r;
+};
+const modes: Record<string, (req: Request) => Response> = {
+  hello: () => new Response("Hello Hono!"),
+  clone: cloned,
+  fresh: () =>
+    new Response(null, {
+      status: 304,
+      headers: { ...headers, "x-request-id": crypto.randomUUID() },
+    }),
+  sql: () => {
+    version.get();
+    return cloned();
+  },
+};
+if (!modes[mode]) throw new Error(`mode must be one of ${Object.keys(modes).join(", ")}`);
+Deno.serve({ hostname: "127.0.0.1", port, onListen() {} }, modes[mode]);
