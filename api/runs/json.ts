@@ -194,6 +194,13 @@ interface Written {
 
 /** How many long flat arrays one serialisation remembers the text of. */
 const REMEMBERED = 16;
+/**
+ * Texts longer than this are not remembered: kept to the end of a 38 MB result (21 arrays of
+ * 153,000 numbers, none repeated), they made its POST 80–140 ms slower over HTTP
+ * (test/bench/http_peers.ts, interleaved), where a repeated time axis is short (3,000 months:
+ * 51 kB).
+ */
+const REMEMBERED_CHARS = 1 << 20;
 
 /** True when two flat arrays hold the same primitives (so their JSON is the same text). */
 function sameItems(a: ArrayLike<unknown>, b: ArrayLike<unknown>): boolean {
@@ -240,7 +247,9 @@ function writeArrayLike(
     if (text === undefined) {
       text = JSON.stringify(Array.isArray(a) ? a : Array.from(a));
       // the last few only: a result of many long rows compares each with a bounded number
-      if (done.texts.push({ a, text }) > REMEMBERED) done.texts.shift();
+      if (text.length <= REMEMBERED_CHARS && done.texts.push({ a, text }) > REMEMBERED) {
+        done.texts.shift();
+      }
     }
     sink.pushLarge(text);
     return;
