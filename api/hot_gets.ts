@@ -134,13 +134,10 @@ export class HotGets {
   add(pattern: string, handler: HotHandler): void {
     const segments = pattern.split("/").map((s) => s.startsWith(":") ? null : s);
     this.#routes.push({ segments, handler });
-    this.#matched.clear();
     this.#servable.clear();
   }
 
-  /** Paths matched lately, with their answer (bounded: the table starts again when full). */
-  readonly #matched = new Map<string, { handler: HotHandler; params: string[] } | null>();
-  /** {@link servable}'s answers, as `#matched`'s. */
+  /** {@link servable}'s answers for paths asked lately (bounded: starts again when full). */
   readonly #servable = new Map<string, { handler: HotHandler; params: string[] } | null>();
 
   /**
@@ -161,16 +158,6 @@ export class HotGets {
 
   /** The handler and parameters for `path`, or null. */
   match(path: string): { handler: HotHandler; params: string[] } | null {
-    let m = this.#matched.get(path);
-    if (m === undefined) {
-      m = this.#match(path);
-      if (this.#matched.size >= 1024) this.#matched.clear();
-      this.#matched.set(path, m);
-    }
-    return m;
-  }
-
-  #match(path: string): { handler: HotHandler; params: string[] } | null {
     const parts = path.split("/");
     outer: for (const r of this.#routes) {
       if (r.segments.length !== parts.length) continue;

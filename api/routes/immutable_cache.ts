@@ -169,25 +169,13 @@ export function serveRepresentation(
   c: RequestView,
   r: CachedRepresentation,
   shared = true,
-): Promise<Response> {
-  const now = serveRepresentationNow(c, r, shared);
-  return now ? Promise.resolve(now) : makeVariant(c, r, shared);
-}
-
-/**
- * {@link serveRepresentation} when the variant the request asks for is made already (it is from
- * the second request for it on), else null.
- */
-export function serveRepresentationNow(
-  c: RequestView,
-  r: CachedRepresentation,
-  shared = true,
-): Response | null {
-  if (!r.ready) return null;
+): Response | Promise<Response> {
+  // at once when the variant asked for is made already (from its second request on): the fast
+  // path (api/hot_gets.ts) then answers without a promise
   const gz = compressible(r) && acceptsGzip(c.req.header("accept-encoding"));
   const notModified = matchesIfNoneMatch(c, gz ? gzipTag(r.etag) : r.etag);
-  const ready = r.ready[(gz ? 2 : 0) | (notModified ? 1 : 0)];
-  return ready ? cloneFor(c, ready, shared) : null;
+  const ready = r.ready?.[(gz ? 2 : 0) | (notModified ? 1 : 0)];
+  return ready ? cloneFor(c, ready, shared) : makeVariant(c, r, shared, gz, notModified);
 }
 
 /** A clone of a made variant with the request's id (and `Cache-Control` when not shared). */
@@ -203,30 +191,27 @@ async function makeVariant(
   c: RequestView,
   r: CachedRepresentation,
   shared: boolean,
+  gz: boolean,
+  notModified: boolean,
 ): Promise<Response> {
-  const gz = compressible(r) && acceptsGzip(c.req.header("accept-encoding"));
-  const notModified = matchesIfNoneMatch(c, gz ? gzipTag(r.etag) : r.etag);
   const i = (gz ? 2 : 0) | (notModified ? 1 : 0);
+  let body: Uint8Array<ArrayBuffer> | null = null;
+  if (!notModified) {
+    if (gz && !r.gzip) {
+      r.gzip = gzipBytes(r.body);
+      r.gzip.then((g) => r.onExtraBytes?.(g.byteLength), () => {});
+    }
+    body = gz ? await r.gzip! : r.body;
+  }
+  // made while another request awaited the same gzip: keep the first
   let ready = r.ready?.[i];
   if (!ready) {
-    let body: Uint8Array<ArrayBuffer> | null = null;
-    if (!notModified) {
-      if (gz && !r.gzip) {
-        r.gzip = gzipBytes(r.body);
-        r.gzip.then((g) => r.onExtraBytes?.(g.byteLength), () => {});
-      }
-      body = gz ? await r.gzip! : r.body;
-    }
-    // made while another request awaited the same gzip: keep the first
-    ready = r.ready?.[i];
-    if (!ready) {
-      ready = new Response(body, {
-        status: notModified ? 304 : 200,
-        headers: headersOf(r, gz, notModified),
-      });
-      (r.ready ??= [])[i] = ready;
-      if (body) r.onExtraBytes?.(body.byteLength);
-    }
+    ready = new Response(body, {
+      status: notModified ? 304 : 200,
+      headers: headersOf(r, gz, notModified),
+    });
+    (r.ready ??= [])[i] = ready;
+    if (body) r.onExtraBytes?.(body.byteLength);
   }
   return cloneFor(c, ready, shared);
 }
@@ -297,6 +282,6 @@ export function serveCachedIfSeen(
   return whenReady(holdingsNowOf(store, items, viewerOf(principal)), (held) => {
     if (held.some((h) => !h)) return null;
     const shared = sharedCacheable(principal, held[0]!);
-    return serveRepresentationNow(view, r, shared) ?? serveRepresentation(view, r, shared);
+    return serveRepresentation(view, r, shared);
   });
 }

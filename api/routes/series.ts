@@ -29,7 +29,7 @@ import { wantsCsv } from "./format.ts";
 import { notModified, type RequestView } from "./cache.ts";
 import { type HotGets, QueryMemo, whenReady } from "../hot_gets.ts";
 import type { Principal } from "../auth/principal.ts";
-import { ImmutableCache, serveRepresentation, serveRepresentationNow } from "./immutable_cache.ts";
+import { ImmutableCache, serveRepresentation } from "./immutable_cache.ts";
 import {
   CalendarQuery,
   ingestNetcdfUpload,
@@ -150,9 +150,7 @@ export function registerSeriesRoutes(
     // A series never changes: its CSV (and its JSON for one holding, whose dates it shows)
     // are formatted once and served as stored bytes.
     const hit = representations.get(csv ? `${id}-csv` : `${id}-json-${JSON.stringify(holding)}`);
-    return hit
-      ? serveRepresentationNow(c, hit, shared) ?? serveRepresentation(c, hit, shared)
-      : null;
+    return hit ? serveRepresentation(c, hit, shared) : null;
   }
   const uploads = deps.uploads ?? new UploadPool(0);
   // The JSON body is documented by reference and read by the handler (in a worker), not by

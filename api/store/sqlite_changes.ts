@@ -14,21 +14,11 @@ const counters = new Map<string, Int32Array>();
 
 /**
  * The write counter of the SQLite file `key` (its real path) in this thread, made on first use.
- * A worker that opens the same file is given the counter's buffer (see {@link writeCounterOf}).
+ * A worker that opens the same file is given the counter's buffer (`SqliteStoreOptions.writeCounter`).
  */
 export function sharedWriteCounter(key: string): Int32Array {
   let c = counters.get(key);
   if (!c) counters.set(key, c = new Int32Array(new SharedArrayBuffer(4)));
-  return c;
-}
-
-/**
- * The write counter over `buffer` (from another thread) for file `key`: this thread's stores
- * of that file count into it from now on.
- */
-export function adoptWriteCounter(key: string, buffer: SharedArrayBuffer): Int32Array {
-  const c = new Int32Array(buffer);
-  counters.set(key, c);
   return c;
 }
 

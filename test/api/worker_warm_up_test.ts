@@ -11,7 +11,7 @@ import type { WorkerPool } from "../../api/workers/pool.ts";
 import { warmUp } from "../../api/workers/warm_up.ts";
 import { RUN_KINDS } from "../../api/analyses/registry.ts";
 import { taskTable } from "../../api/analyses/derive.ts";
-import { makeTestApp } from "./helpers.ts";
+import { makeTestApp, type TestService } from "./helpers.ts";
 import * as DEMO from "./demo_ids.ts";
 
 Deno.test("warmUp() runs the lag-correlation and cycles warm-ups without error", async () => {
@@ -22,14 +22,35 @@ Deno.test("warmUp() runs the lag-correlation and cycles warm-ups without error",
   assert.deepEqual(await warmUp([], {}), { ms: {}, errors: {} });
 });
 
-Deno.test("WorkerPool.warmUp() warms every worker; a warmed pool gives the in-thread digest", async () => {
-  const body = { solar: DEMO.SSN, climate: DEMO.TEMP, max_lag: 12, surrogates: 200, seed: 5 };
+/**
+ * Post `body` to `path` on an in-thread app and on a 2-worker app, both with the demo data, and
+ * assert the two digests are equal; `before` runs on the pooled app first.
+ */
+async function sameDigestOnPool(
+  path: string,
+  body: Record<string, unknown>,
+  before: (pooled: TestService) => Promise<void> = () => Promise.resolve(),
+): Promise<void> {
   const local = await makeTestApp();
   const pooled = await makeTestApp({ workers: 2 });
   try {
     const { loadDemo } = await import("../../api/demo.ts");
     await loadDemo(local.store);
     await loadDemo(pooled.store);
+    await before(pooled);
+    const a = await (await local.post(path, body)).json();
+    const b = await (await pooled.post(path, body)).json();
+    assert.ok(a.result_digest);
+    assert.equal(b.result_digest, a.result_digest);
+  } finally {
+    await local.close();
+    await pooled.close();
+  }
+}
+
+Deno.test("WorkerPool.warmUp() warms every worker; a warmed pool gives the in-thread digest", async () => {
+  const body = { solar: DEMO.SSN, climate: DEMO.TEMP, max_lag: 12, surrogates: 200, seed: 5 };
+  await sameDigestOnPool("/v1/lag-correlations", body, async (pooled) => {
     const pool = pooled.runs.executor as WorkerPool;
     const timings = await pool.warmUp() as {
       ms: Record<string, number>;
@@ -43,14 +64,7 @@ Deno.test("WorkerPool.warmUp() warms every worker; a warmed pool gives the in-th
       assert.ok(t.ms["lag-correlations"] >= 0 && t.ms["cycles"] >= 0);
       assert.ok(t.ready_ms >= 0 && t.load_ms >= 0, JSON.stringify(t));
     }
-    const a = await (await local.post("/v1/lag-correlations", body)).json();
-    const b = await (await pooled.post("/v1/lag-correlations", body)).json();
-    assert.ok(a.result_digest);
-    assert.equal(b.result_digest, a.result_digest);
-  } finally {
-    await local.close();
-    await pooled.close();
-  }
+  });
 });
 
 Deno.test("a worker finds every analysis of the registry in its own folder (api/analyses/<kind>/mod.ts)", async () => {
@@ -61,25 +75,11 @@ Deno.test("a worker finds every analysis of the registry in its own folder (api/
 });
 
 Deno.test("a fresh pool loads analyses on first use: a run whose chunks reach both workers gives the in-thread digest", async () => {
-  const body = {
+  await sameDigestOnPool("/v1/spectra", {
     series: DEMO.SSN,
     false_alarm: "both",
     replicates: 60,
     periods: { min: 2, max: 60, count: 900 },
     seed: 7,
-  };
-  const local = await makeTestApp();
-  const pooled = await makeTestApp({ workers: 2 });
-  try {
-    const { loadDemo } = await import("../../api/demo.ts");
-    await loadDemo(local.store);
-    await loadDemo(pooled.store);
-    const a = await (await local.post("/v1/spectra", body)).json();
-    const b = await (await pooled.post("/v1/spectra", body)).json();
-    assert.ok(a.result_digest);
-    assert.equal(b.result_digest, a.result_digest);
-  } finally {
-    await local.close();
-    await pooled.close();
-  }
+  });
 });
