@@ -271,6 +271,7 @@ function headersOf(
  * A fast-path answer (api/hot_gets.ts) with cached representation `r`, when the caller sees
  * every item in `items` (the first one's holding decides whether shared caches may keep it);
  * null when it does not, so that the full path answers. At once where the store answers at once.
+ * `serve` answers with `r` ({@link serveStored} for the routes that answer 304 as `notModified`).
  */
 export function serveCachedIfSeen(
   store: Store,
@@ -278,10 +279,10 @@ export function serveCachedIfSeen(
   principal: Principal,
   view: RequestView,
   r: CachedRepresentation,
+  serve: typeof serveStored = serveRepresentation,
 ): Response | null | Promise<Response | null> {
   return whenReady(holdingsNowOf(store, items, viewerOf(principal)), (held) => {
     if (held.some((h) => !h)) return null;
-    const shared = sharedCacheable(principal, held[0]!);
-    return serveRepresentation(view, r, shared);
+    return serve(view, r, sharedCacheable(principal, held[0]!));
   });
 }

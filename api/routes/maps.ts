@@ -17,6 +17,7 @@ import {
   type CachedRepresentation,
   identityRepresentation,
   ImmutableCache,
+  serveCachedIfSeen,
   serveRepresentation,
   serveStored,
 } from "./immutable_cache.ts";
@@ -28,7 +29,6 @@ import { NETCDF_CONTENT, netcdfRepresentation, netcdfStreamResponse } from "../n
 import type { Provenance } from "../netcdf/series_dataset.ts";
 import { SERVICE_VERSION } from "../version.ts";
 import { principalOf } from "../auth/authenticate.ts";
-import { viewerOf } from "../auth/principal.ts";
 import { mustSeeRun, sharedCacheable } from "../auth/access.ts";
 
 /** The parts of a gridded result the downloads read. */
@@ -180,12 +180,11 @@ export function registerMapRoutes(
   // A succeeded run's map (and its 304) from the cache, ahead of the middleware, for query
   // strings the route validated.
   const queries = new QueryMemo<{ format: string }>();
-  deps.hot?.add("/v1/runs/:id/map", async ({ view, principal, params: [id], search }) => {
+  deps.hot?.add("/v1/runs/:id/map", ({ view, principal, params: [id], search }) => {
     const q = queries.get(search);
     const hit = q && downloads.get(key(id, q.format));
     if (!hit) return null;
-    const holding = await store.runHolding(id, viewerOf(principal));
-    return holding && serveStored(view, hit, sharedCacheable(principal, holding));
+    return serveCachedIfSeen(store, [{ kind: "run", id }], principal, view, hit, serveStored);
   });
   app.openapi(
     createRoute({

@@ -128,15 +128,13 @@ export function registerRunRoutes(
   const outputQueries = new QueryMemo<{ format?: string; calendar?: string }>();
   deps.hot?.add(
     "/v1/runs/:id/outputs/:name",
-    async ({ view, principal, params: [id, name], search }) => {
+    ({ view, principal, params: [id, name], search }) => {
       const q = outputQueries.get(search);
       if (!q) return null;
       const c = withQuery(view, q);
-      const key = outputKey(c, id, name);
-      const hit = downloads.get(key.key);
+      const hit = downloads.get(outputKey(c, id, name).key);
       if (!hit) return null;
-      const holding = await store.runHolding(id, viewerOf(principal));
-      return holding && serveStored(c, hit, sharedCacheable(principal, holding));
+      return serveCachedIfSeen(store, [{ kind: "run", id }], principal, c, hit, serveStored);
     },
   );
   // A succeeded run's JSON from the cache, ahead of the middleware (api/hot_gets.ts); the

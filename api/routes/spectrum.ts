@@ -20,11 +20,11 @@ import { notModified, type RequestView, withQuery } from "./cache.ts";
 import {
   identityRepresentation,
   ImmutableCache,
+  serveCachedIfSeen,
   serveRepresentation,
   serveStored,
 } from "./immutable_cache.ts";
 import { type HotGets, QueryMemo } from "../hot_gets.ts";
-import { viewerOf } from "../auth/principal.ts";
 import { SpectrumBlock } from "../analyses/common/spectrum_block.ts";
 import { spectrumToCsv } from "../export/spectrum_csv.ts";
 import {
@@ -50,15 +50,13 @@ export function registerSpectrumRoutes(
   // A succeeded run's spectrum as JSON, CSV or NetCDF (and their 304s) from the cache, ahead
   // of the middleware, for query strings the route validated.
   const queries = new QueryMemo<{ format?: string; calendar?: string }>();
-  deps.hot?.add("/v1/runs/:id/spectrum", async ({ view, principal, params: [id], search }) => {
+  deps.hot?.add("/v1/runs/:id/spectrum", ({ view, principal, params: [id], search }) => {
     const q = queries.get(search);
     if (!q) return null;
     const c = withQuery(view, q);
-    const key = spectrumKey(c, id);
-    const hit = downloads.get(key.key);
+    const hit = downloads.get(spectrumKey(c, id).key);
     if (!hit) return null;
-    const holding = await store.runHolding(id, viewerOf(principal));
-    return holding && serveStored(c, hit, sharedCacheable(principal, holding));
+    return serveCachedIfSeen(store, [{ kind: "run", id }], principal, c, hit, serveStored);
   });
   app.openapi(
     createRoute({
