@@ -12,7 +12,7 @@ import { problems, RunSchema } from "../schemas/common.ts";
 import { requireJson } from "./media.ts";
 import { findUnknownFields } from "./unknown_fields.ts";
 import { ProblemError } from "../problems.ts";
-import { runViewBytes } from "./runs.ts";
+import { runViewBytes, runViewParts } from "./runs.ts";
 import type { Store } from "../store/types.ts";
 import type { Config } from "../config.ts";
 import { principalOf } from "../auth/authenticate.ts";
@@ -97,10 +97,72 @@ export function registerKindRoutes(
       c.header("Location", `/v1/runs/${outcome.run.id}`);
       if (outcome.status === 202) c.header("Preference-Applied", "respond-async");
       // the result's one serialisation, spliced into the run's JSON
-      return c.body(runViewBytes(outcome.run, { saved_series: outcome.saved_series }), {
+      if (outcome.stored) {
+        // the result's bytes as they are (no joined copy), the last byte once stored
+        const parts = runViewParts(outcome.run, { saved_series: outcome.saved_series });
+        const length = parts.reduce((n, p) => n + p.length, 0);
+        return c.body(lastByteWhenStored(parts, outcome.stored, c.get("requestId")), {
+          status: outcome.status,
+          headers: { "Content-Type": "application/json", "Content-Length": String(length) },
+        });
+      }
+      const body = runViewBytes(outcome.run, { saved_series: outcome.saved_series });
+      return c.body(body, {
         status: outcome.status,
         headers: { "Content-Type": "application/json" },
       });
     });
   }
+}
+
+/**
+ * A response body that sends the bytes of `parts` (joined) but their last byte at once, and the
+ * last byte once `stored` resolves: the run is stored while its response travels, and a client
+ * never receives a whole response for a run that is not stored. If storing fails the body ends
+ * short of its `Content-Length` (the client sees an incomplete response, not a success) and the
+ * error is logged with the request id. The parts are sent as they are, not copied; the last one
+ * must not be empty.
+ *
+ * @example
+ * ```ts
+ * import { lastByteWhenStored } from "./kinds.ts";
+ * import assert from "node:assert/strict";
+ * const parts = ['{"a":', "1", "}"].map((s) => new TextEncoder().encode(s));
+ * const text = await new Response(lastByteWhenStored(parts, Promise.resolve(), "r")).text();
+ * assert.equal(text, '{"a":1}');
+ * const failed = new Response(lastByteWhenStored(parts, Promise.reject(new Error("disk")), "r"));
+ * await assert.rejects(failed.text());
+ * ```
+ */
+export function lastByteWhenStored(
+  parts: readonly Uint8Array[],
+  stored: Promise<void>,
+  requestId: string | undefined,
+): ReadableStream<Uint8Array> {
+  const last = parts[parts.length - 1];
+  let sent = false;
+  return new ReadableStream<Uint8Array>({
+    async pull(controller) {
+      if (!sent) {
+        sent = true;
+        for (const p of parts.slice(0, -1)) if (p.length) controller.enqueue(p);
+        if (last.length > 1) controller.enqueue(last.subarray(0, last.length - 1));
+        return;
+      }
+      try {
+        await stored;
+      } catch (e) {
+        console.error(JSON.stringify({
+          level: "error",
+          event: "run_store_failed",
+          request_id: requestId,
+          error: String((e as Error)?.stack ?? e),
+        }));
+        controller.error(e);
+        return;
+      }
+      controller.enqueue(last.subarray(last.length - 1));
+      controller.close();
+    },
+  });
 }

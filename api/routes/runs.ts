@@ -67,18 +67,34 @@ export function runViewBytes(
   r: RunRecord,
   extra: Record<string, unknown> = {},
 ): Uint8Array<ArrayBuffer> {
+  const parts = runViewParts(r, extra);
+  if (parts.length === 1) return parts[0];
+  const out = new Uint8Array(parts.reduce((n, p) => n + p.length, 0));
+  let at = 0;
+  for (const p of parts) {
+    out.set(p, at);
+    at += p.length;
+  }
+  return out;
+}
+
+/**
+ * {@link runViewBytes} in pieces, without joining them: the text before the result, the
+ * result's own bytes (not copied) and the text after it; or one piece for a run without result
+ * bytes. Joined, they are the bytes of {@link runViewBytes}.
+ */
+export function runViewParts(
+  r: RunRecord,
+  extra: Record<string, unknown> = {},
+): Uint8Array<ArrayBuffer>[] {
   const bytes = resultBytesOf(r.result);
-  if (bytes === undefined) return encoder.encode(JSON.stringify({ ...runView(r), ...extra }));
+  if (bytes === undefined) return [encoder.encode(JSON.stringify({ ...runView(r), ...extra }))];
   const shell = JSON.stringify({ ...runView(r), result: RESULT_SLOT, ...extra });
   const slot = `"result":"${RESULT_SLOT}"`;
   const at = shell.indexOf(slot);
   const head = encoder.encode(shell.slice(0, at) + `"result":`);
   const tail = encoder.encode(shell.slice(at + slot.length));
-  const out = new Uint8Array(head.length + bytes.length + tail.length);
-  out.set(head, 0);
-  out.set(bytes, head.length);
-  out.set(tail, head.length + bytes.length);
-  return out;
+  return [head, bytes, tail];
 }
 
 const encoder = new TextEncoder();

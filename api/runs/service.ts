@@ -30,7 +30,7 @@ import { SERIES_ID_PATTERN } from "../schemas/series_ref.ts";
 import type { InlineSeries } from "../schemas/series_ref.ts";
 import { ProblemError, toPointer } from "../problems.ts";
 import { canonicalJson, sha256Hex } from "../canonical.ts";
-import { lazyResult } from "../store/result_text.ts";
+import { lazyResult, resultBytesOf } from "../store/result_text.ts";
 import { gatherInherited, type InheritedNote, type Lineage } from "./inherit.ts";
 import { type FinishedResult, finishResult } from "./finish.ts";
 import { SERVICE_VERSION } from "../version.ts";
@@ -305,7 +305,20 @@ export interface SubmitOutcome {
   status: 201 | 202;
   run: RunRecord;
   saved_series: { output: string; id: string }[];
+  /**
+   * Set when a large synchronous result is still being stored: settles once the run is stored
+   * (rejects if it could not be). Whoever answers the request sends the response meanwhile and
+   * finishes it only once this resolves (api/routes/kinds.ts), so no client holds a whole
+   * response for a run that is not stored.
+   */
+  stored?: Promise<void>;
 }
+
+/**
+ * A synchronous result of at least this many bytes (canonical JSON) is stored while its response
+ * is sent (see {@link SubmitOutcome.stored}); smaller ones are stored first.
+ */
+export const STORE_WHILE_SENDING_BYTES = 4 << 20;
 
 export class RunService {
   /** Runs this process is computing. */
@@ -325,6 +338,11 @@ export class RunService {
       wallSeconds?: number;
       /** Per-owner run quotas; none = unlimited. */
       admission?: RunAdmission;
+      /**
+       * A synchronous result of at least this many bytes is stored while its response is sent
+       * (see {@link SubmitOutcome.stored}). @default STORE_WHILE_SENDING_BYTES
+       */
+      storeWhileSendingBytes?: number;
     },
     transport?: Partial<RunTransport>,
   ) {
@@ -542,6 +560,17 @@ export class RunService {
     const { done, outputs } = computed;
     // Only a successful synchronous run is stored (with its inline inputs).
     for (const s of prep.inline.values()) await this.store.putSeries(s, holder);
+    // A large result with no outputs to save as series is stored while its response is sent:
+    // the commit (100-120 ms for 38 MB, off the request thread in a file store) and sending it
+    // overlap, and the response's last byte waits for the commit.
+    const size = resultBytesOf(done.result)?.length ?? 0;
+    const streamFrom = this.options.storeWhileSendingBytes ?? STORE_WHILE_SENDING_BYTES;
+    if (size >= streamFrom && size > 0 && !kind.autoSave?.length) {
+      const stored = this.store.putRun(done, holder);
+      // observed by the response; a failure is also logged there
+      stored.catch(() => {});
+      return { status: 201, run: done, saved_series: [], stored };
+    }
     await this.store.putRun(done, holder);
     const saved = await this.saveOutputs(kind, done, holder, outputs);
     return { status: 201, run: done, saved_series: saved };

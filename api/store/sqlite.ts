@@ -51,7 +51,7 @@ import { bytesLEToFloat64, float64ToBytesLE } from "./float64_blob.ts";
 import { FIELD_MIGRATION_NAME, SQLITE_FIELD_SQL } from "./field_common.ts";
 import { SqliteFields } from "./sqlite_fields.ts";
 import { TERMINAL } from "./types.ts";
-import { OFFLOAD_POINTS, SqliteWriter } from "./sqlite_writer.ts";
+import { OFFLOAD_POINTS, OFFLOAD_RESULT_BYTES, SqliteWriter } from "./sqlite_writer.ts";
 import { countWrite, sharedWriteCounter, writesOf } from "./sqlite_changes.ts";
 import {
   checkPaging,
@@ -285,9 +285,15 @@ export interface SqliteStoreOptions {
   migrations?: readonly Migration[];
   /**
    * Write series of more than OFFLOAD_POINTS points in a worker with its own connection (file
-   * stores only; see api/store/sqlite_writer.ts). @default true
+   * stores only; see api/store/sqlite_writer.ts), and runs whose result has at least
+   * OFFLOAD_RESULT_BYTES bytes. @default true
    */
   offload?: boolean;
+  /**
+   * Commit a large result without the automatic WAL checkpoint and checkpoint on this thread
+   * once the commit has been answered (the writer worker's own store). @default false
+   */
+  checkpointLater?: boolean;
 }
 
 /** How often access checks read `PRAGMA data_version`, at most, ms (see `#checkHoldingsVersion`). */
@@ -320,6 +326,8 @@ export class SqliteStore implements Store {
   #holdingsDataVersion = -1;
 
   #writer: SqliteWriter | null;
+  /** Checkpoint after a large result's commit on this thread (see `checkpointLater`). */
+  #checkpointLater: boolean;
 
   /** Use {@link openSqliteStore}; the constructor expects a database already migrated. */
   constructor(
@@ -328,7 +336,9 @@ export class SqliteStore implements Store {
     writer: SqliteWriter | null = null,
     counter: Int32Array = new Int32Array(new SharedArrayBuffer(4)),
     outsideCheckMs = OUTSIDE_CHECK_MS,
+    checkpointLater = false,
   ) {
+    this.#checkpointLater = checkpointLater;
     this.#db = db;
     this.#writer = writer;
     this.#writes = counter;
@@ -373,11 +383,26 @@ export class SqliteStore implements Store {
    */
   #writeResult<T>(result: unknown, fn: () => T): T {
     const size = result ? resultBytesOf(result as object)?.length ?? 0 : 0;
-    if (size < DEFERRED_CHECKPOINT_BYTES || !this.#writer) return this.#write(fn);
+    if (size < DEFERRED_CHECKPOINT_BYTES) return this.#write(fn);
+    if (this.#writer) {
+      try {
+        return this.#withoutAutoCheckpoint(() => this.#write(fn));
+      } finally {
+        this.#writer.checkpoint();
+      }
+    }
+    if (!this.#checkpointLater) return this.#write(fn);
     try {
       return this.#withoutAutoCheckpoint(() => this.#write(fn));
     } finally {
-      this.#writer.checkpoint();
+      // after the caller has answered (a task, not a microtask)
+      setTimeout(() => {
+        try {
+          this.checkpointWal();
+        } catch {
+          // busy or closing: the next commit's automatic checkpoint does it
+        }
+      }, 0);
     }
   }
 
@@ -808,6 +833,15 @@ export class SqliteStore implements Store {
    * @throws {MissingInputError} when an input series or input run is not stored.
    */
   putRun(r: RunRecord, holder: HolderSpec = DEFAULT_HOLDER): Promise<void> {
+    const bytes = this.#writer ? resultBytesOf(r.result) : undefined;
+    if (this.#writer && bytes && bytes.length >= OFFLOAD_RESULT_BYTES) {
+      try {
+        checkVisibility(`insert run ${r.id}`, holder.visibility);
+      } catch (e) {
+        return Promise.reject(e);
+      }
+      return this.#writer.putRun(r, bytes, holder);
+    }
     return settle(() => {
       checkVisibility(`insert run ${r.id}`, holder.visibility);
       this.#writeResult(r.result, () => {
@@ -1401,5 +1435,6 @@ export async function openSqliteStore(options: SqliteStoreOptions): Promise<Sqli
     writer,
     counter,
     options.outsideCheckMs ?? OUTSIDE_CHECK_MS,
+    options.checkpointLater ?? false,
   );
 }

@@ -7,8 +7,14 @@
  */
 import assert from "node:assert/strict";
 import { openSqliteStore } from "../../../api/store/sqlite.ts";
-import { OFFLOAD_POINTS } from "../../../api/store/sqlite_writer.ts";
-import { makeSeries } from "./store_suite.ts";
+import {
+  OFFLOAD_POINTS,
+  OFFLOAD_RESULT_BYTES,
+  SqliteWriter,
+} from "../../../api/store/sqlite_writer.ts";
+import { DuplicateRunError, MissingInputError } from "../../../api/store/errors.ts";
+import { lazyResult, resultBytesOf } from "../../../api/store/result_text.ts";
+import { makeRun, makeSeries } from "./store_suite.ts";
 import { fieldId, makeFieldStaging, storeField } from "./field_store_suite.ts";
 
 Deno.test("SqliteWriter: large series and field blocks written in the worker read back exactly; errors keep their class", async (t) => {
@@ -92,6 +98,74 @@ Deno.test("SqliteStore: a field upload runs without the automatic WAL checkpoint
   } finally {
     await store.close();
     await memory.close();
+    await Deno.remove(dir, { recursive: true });
+  }
+});
+
+Deno.test("SqliteWriter: a run with a result over the offload threshold is inserted in the worker, read back byte for byte, and its errors keep their class", async () => {
+  const dir = await Deno.makeTempDir({ prefix: "sunlag-writer-" });
+  const store = await openSqliteStore({ path: `${dir}/store.db` });
+  const sent: string[] = [];
+  const original = SqliteWriter.prototype.putRun;
+  SqliteWriter.prototype.putRun = function (r, bytes, holder) {
+    sent.push(r.id);
+    return original.call(this, r, bytes, holder);
+  };
+  try {
+    // a result just over the threshold, and one just under it (written in this thread)
+    const big = new TextEncoder().encode(
+      JSON.stringify({ values: Array.from({ length: OFFLOAD_RESULT_BYTES / 4 }, (_, i) => i) }),
+    );
+    assert.ok(big.length >= OFFLOAD_RESULT_BYTES);
+    const run = { ...makeRun("large"), result: lazyResult(big) };
+    await store.putOwner({
+      id: "alice",
+      name: "alice",
+      role: "writer",
+      group: "lab",
+      created_at: "2026-01-01T00:00:00Z",
+    });
+    const owner = { owner: "alice", visibility: "private" as const };
+    await store.putRun(run, owner);
+    assert.deepEqual(sent, [run.id]);
+    const back = await store.getRun(run.id);
+    assert.ok(back);
+    assert.deepEqual(resultBytesOf(back.result), big);
+    assert.equal(back.result_digest, run.result_digest);
+    const alice = { owner: "alice", group: "lab", admin: false };
+    assert.equal((await store.runHolding(run.id, alice))?.visibility, "private");
+    // the caller's bytes are its own still (a copy was transferred)
+    assert.equal(resultBytesOf(run.result)!.length, big.length);
+
+    await assert.rejects(() => store.putRun(run, owner), DuplicateRunError);
+    const orphan = {
+      ...makeRun("orphan", { inputSeries: [makeSeries("never stored").id] }),
+      result: lazyResult(big),
+    };
+    const err = await store.putRun(orphan).then(() => null, (e) => e);
+    assert.ok(err instanceof MissingInputError, String(err));
+    assert.equal(err.inputKind, "series");
+    assert.equal(await store.getRun(orphan.id), null);
+    await assert.rejects(
+      () =>
+        store.putRun({ ...makeRun("bad"), result: lazyResult(big) }, {
+          owner: "alice",
+          visibility: "everyone" as never,
+        }),
+      RangeError,
+    );
+
+    const small = {
+      ...makeRun("small"),
+      result: lazyResult(big.slice(0, OFFLOAD_RESULT_BYTES - 1)),
+    };
+    await store.putRun(small);
+    assert.ok(await store.getRun(small.id));
+    // the duplicate and the orphan went to the worker; the bad visibility and the small one not
+    assert.deepEqual(sent, [run.id, run.id, orphan.id]);
+  } finally {
+    SqliteWriter.prototype.putRun = original;
+    await store.close();
     await Deno.remove(dir, { recursive: true });
   }
 });
