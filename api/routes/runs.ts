@@ -67,8 +67,10 @@ export function runViewBytes(
   r: RunRecord,
   extra: Record<string, unknown> = {},
 ): Uint8Array<ArrayBuffer> {
+  if (resultBytesOf(r.result) === undefined) {
+    return encoder.encode(JSON.stringify({ ...runView(r), ...extra }));
+  }
   const parts = runViewParts(r, extra);
-  if (parts.length === 1) return parts[0];
   const out = new Uint8Array(parts.reduce((n, p) => n + p.length, 0));
   let at = 0;
   for (const p of parts) {
@@ -86,7 +88,7 @@ export function runViewBytes(
 export function runViewParts(
   r: RunRecord,
   extra: Record<string, unknown> = {},
-): Uint8Array<ArrayBuffer>[] {
+): Uint8Array[] {
   const bytes = resultBytesOf(r.result);
   if (bytes === undefined) return [encoder.encode(JSON.stringify({ ...runView(r), ...extra }))];
   const shell = JSON.stringify({ ...runView(r), result: RESULT_SLOT, ...extra });

@@ -2,8 +2,8 @@
  * A computed result made ready to store: plain JSON with every object's keys in RFC 8785 order
  * (api/runs/json.ts), with the warnings and cautions it inherits (api/runs/inherit.ts), then its
  * canonical JSON bytes and digest (api/store/result_text.ts). Pure: it runs where the result was
- * computed (a compute worker hands over only the bytes, transferred, and the digest), so the
- * request thread neither walks nor serialises a large result.
+ * computed (a compute worker hands over only the bytes, transferred or shared, and the digest),
+ * so the request thread neither walks nor serialises a large result.
  *
  * @module
  */
@@ -11,7 +11,7 @@ import type { RunResult } from "./kind.ts";
 import { createHash } from "node:crypto";
 import { canonicalJsonBytes, toPlainJson } from "./json.ts";
 import { type InheritedNote, withInherited } from "./inherit.ts";
-import type { CanonicalBytes } from "../store/result_text.ts";
+import { type CanonicalBytes, LARGE_RESULT_BYTES } from "../store/result_text.ts";
 
 /** A finished result: its canonical bytes and digest, and the outputs to save as series. */
 export interface FinishedResult extends CanonicalBytes {
@@ -52,8 +52,9 @@ export function finishResult(
   notes: InheritedNote[],
   autoSave: readonly string[] = [],
 ): FinishedResult {
-  // the bytes of JSON.stringify(finishPlain(result, notes)), written without the plain copy
-  const bytes = canonicalJsonBytes(withInherited(result, notes));
+  // the bytes of JSON.stringify(finishPlain(result, notes)), written without the plain copy;
+  // a large result's in shared memory, read by the threads that store and send it, not copied
+  const bytes = canonicalJsonBytes(withInherited(result, notes), LARGE_RESULT_BYTES);
   const outputs = (result.outputs ?? {}) as Record<string, unknown>;
   const saved: Record<string, unknown> = {};
   for (const name of autoSave) if (outputs[name]) saved[name] = toPlainJson(outputs[name]);

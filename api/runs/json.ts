@@ -160,15 +160,21 @@ class Utf8Sink {
     this.#len += b.length;
   }
 
-  /** The bytes written, in an ArrayBuffer of their own length. */
-  bytes(): Uint8Array<ArrayBuffer> {
+  /**
+   * The bytes written, in a buffer of their own length: a `SharedArrayBuffer` when there are at
+   * least `sharedFrom` of them, else an ArrayBuffer.
+   */
+  bytes(sharedFrom = Infinity): Uint8Array {
     this.flush();
     const chunks = this.#chunks;
     this.#chunks = [];
-    if (chunks.length === 1 && chunks[0].byteLength === chunks[0].buffer.byteLength) {
-      return chunks[0] as Uint8Array<ArrayBuffer>;
+    const shared = this.#len >= sharedFrom;
+    if (!shared && chunks.length === 1 && chunks[0].byteLength === chunks[0].buffer.byteLength) {
+      return chunks[0];
     }
-    const out = new Uint8Array(this.#len);
+    const out = new Uint8Array(
+      shared ? new SharedArrayBuffer(this.#len) : new ArrayBuffer(this.#len),
+    );
     let at = 0;
     for (const c of chunks) {
       out.set(c, at);
@@ -320,9 +326,12 @@ function write(
  * assert.equal(text, '{"a":[{"y":"é"},null,0],"b":[1,0,2.5e-7]}');
  * ```
  */
-export function canonicalJsonBytes(value: unknown): Uint8Array<ArrayBuffer> {
+export function canonicalJsonBytes(value: unknown): Uint8Array<ArrayBuffer>;
+/** As above, in shared memory (a `SharedArrayBuffer`) when there are `sharedFrom` bytes or more. */
+export function canonicalJsonBytes(value: unknown, sharedFrom: number): Uint8Array;
+export function canonicalJsonBytes(value: unknown, sharedFrom = Infinity): Uint8Array {
   const sink = new Utf8Sink();
   if (value === undefined) fail(value, []);
   write(value, [], new Set(), sink, { texts: [] });
-  return sink.bytes();
+  return sink.bytes(sharedFrom);
 }

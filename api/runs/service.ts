@@ -30,7 +30,7 @@ import { SERIES_ID_PATTERN } from "../schemas/series_ref.ts";
 import type { InlineSeries } from "../schemas/series_ref.ts";
 import { ProblemError, toPointer } from "../problems.ts";
 import { canonicalJson, sha256Hex } from "../canonical.ts";
-import { lazyResult, resultBytesOf } from "../store/result_text.ts";
+import { LARGE_RESULT_BYTES, lazyResult, resultBytesOf } from "../store/result_text.ts";
 import { gatherInherited, type InheritedNote, type Lineage } from "./inherit.ts";
 import { type FinishedResult, finishResult } from "./finish.ts";
 import { SERVICE_VERSION } from "../version.ts";
@@ -314,12 +314,6 @@ export interface SubmitOutcome {
   stored?: Promise<void>;
 }
 
-/**
- * A synchronous result of at least this many bytes (canonical JSON) is stored while its response
- * is sent (see {@link SubmitOutcome.stored}); smaller ones are stored first.
- */
-export const STORE_WHILE_SENDING_BYTES = 4 << 20;
-
 export class RunService {
   /** Runs this process is computing. */
   readonly active = new Map<string, Active>();
@@ -340,7 +334,8 @@ export class RunService {
       admission?: RunAdmission;
       /**
        * A synchronous result of at least this many bytes is stored while its response is sent
-       * (see {@link SubmitOutcome.stored}). @default STORE_WHILE_SENDING_BYTES
+       * (see {@link SubmitOutcome.stored}); smaller ones are stored first.
+       * @default LARGE_RESULT_BYTES
        */
       storeWhileSendingBytes?: number;
     },
@@ -564,7 +559,7 @@ export class RunService {
     // the commit (100-120 ms for 38 MB, off the request thread in a file store) and sending it
     // overlap, and the response's last byte waits for the commit.
     const size = resultBytesOf(done.result)?.length ?? 0;
-    const streamFrom = this.options.storeWhileSendingBytes ?? STORE_WHILE_SENDING_BYTES;
+    const streamFrom = this.options.storeWhileSendingBytes ?? LARGE_RESULT_BYTES;
     if (size >= streamFrom && size > 0 && !kind.autoSave?.length) {
       const stored = this.store.putRun(done, holder);
       // observed by the response; a failure is also logged there

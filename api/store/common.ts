@@ -146,7 +146,7 @@ export function toRunSummary(r: DbRow, inputSeries: string[], inputRuns: string[
 }
 
 /** A column value: SQLite binds bytes as a BLOB. */
-export type ColumnValue = string | number | null | Uint8Array<ArrayBuffer>;
+export type ColumnValue = string | number | null | Uint8Array;
 
 /**
  * How a result is written: its canonical JSON as UTF-8 bytes (a BLOB: no text copy of a large

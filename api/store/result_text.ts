@@ -20,8 +20,17 @@
 import { createHash } from "node:crypto";
 import { sha256Hex } from "../canonical.ts";
 
+/**
+ * A result's canonical bytes count as large from this size on (a daily reconstruction since
+ * 1610 has 38 MB; most results have kilobytes). Large ones are made in memory shared between
+ * threads (a `SharedArrayBuffer`: the request thread and the SQLite writer worker read them
+ * without copies), written by the writer worker without the automatic WAL checkpoint
+ * (api/store/sqlite.ts), and stored while their response is sent (api/runs/service.ts).
+ */
+export const LARGE_RESULT_BYTES = 4 << 20;
+
 const texts = new WeakMap<object, string>();
-const bytesOf = new WeakMap<object, Uint8Array<ArrayBuffer>>();
+const bytesOf = new WeakMap<object, Uint8Array>();
 const encoder = new TextEncoder();
 const decoder = new TextDecoder();
 
@@ -43,7 +52,7 @@ export function resultTextOf(result: object | null | undefined): string | undefi
 /** The remembered UTF-8 bytes of `result` (encoded from its text when it has text), or undefined. */
 export function resultBytesOf(
   result: object | null | undefined,
-): Uint8Array<ArrayBuffer> | undefined {
+): Uint8Array | undefined {
   if (!result) return undefined;
   const b = bytesOf.get(result);
   if (b) return b;
@@ -57,7 +66,7 @@ export function resultJson(result: Record<string, unknown>): string {
 }
 
 /** The JSON of a result as UTF-8 bytes: its remembered bytes or text, else `JSON.stringify`. */
-export function resultBytes(result: Record<string, unknown>): Uint8Array<ArrayBuffer> {
+export function resultBytes(result: Record<string, unknown>): Uint8Array {
   return resultBytesOf(result) ?? encoder.encode(JSON.stringify(result));
 }
 
@@ -87,7 +96,7 @@ export function canonicalResult(plain: Record<string, unknown>): { text: string;
 
 /** A result's canonical JSON as UTF-8 bytes, with their hex SHA-256. */
 export interface CanonicalBytes {
-  bytes: Uint8Array<ArrayBuffer>;
+  bytes: Uint8Array;
   digest: string;
 }
 
@@ -129,7 +138,7 @@ export function canonicalBytes(plain: Record<string, unknown>): CanonicalBytes {
  * assert.equal(JSON.stringify(r), '{"a":[1,2],"b":null}');
  * ```
  */
-export function lazyResult(bytes: Uint8Array<ArrayBuffer>): Record<string, unknown> {
+export function lazyResult(bytes: Uint8Array): Record<string, unknown> {
   let parsed: Record<string, unknown> | null = null;
   const real = () => (parsed ??= JSON.parse(decoder.decode(bytes)) as Record<string, unknown>);
   const proxy = new Proxy<Record<string, unknown>>({}, {

@@ -51,7 +51,7 @@ import { bytesLEToFloat64, float64ToBytesLE } from "./float64_blob.ts";
 import { FIELD_MIGRATION_NAME, SQLITE_FIELD_SQL } from "./field_common.ts";
 import { SqliteFields } from "./sqlite_fields.ts";
 import { TERMINAL } from "./types.ts";
-import { OFFLOAD_POINTS, OFFLOAD_RESULT_BYTES, SqliteWriter } from "./sqlite_writer.ts";
+import { OFFLOAD_POINTS, SqliteWriter } from "./sqlite_writer.ts";
 import { countWrite, sharedWriteCounter, writesOf } from "./sqlite_changes.ts";
 import {
   checkPaging,
@@ -76,10 +76,7 @@ import {
   toRunSummary,
   toSeriesMeta,
 } from "./common.ts";
-import { parseResult, resultBytesOf } from "./result_text.ts";
-
-/** Results at least this large are committed without the automatic WAL checkpoint. */
-const DEFERRED_CHECKPOINT_BYTES = 4 << 20;
+import { LARGE_RESULT_BYTES, parseResult, resultBytesOf } from "./result_text.ts";
 
 /** SQLite's default `wal_autocheckpoint`, restored after such a commit. */
 const WAL_AUTOCHECKPOINT_PAGES = 1000;
@@ -286,7 +283,7 @@ export interface SqliteStoreOptions {
   /**
    * Write series of more than OFFLOAD_POINTS points in a worker with its own connection (file
    * stores only; see api/store/sqlite_writer.ts), and runs whose result has at least
-   * OFFLOAD_RESULT_BYTES bytes. @default true
+   * LARGE_RESULT_BYTES bytes (api/store/result_text.ts). @default true
    */
   offload?: boolean;
   /**
@@ -383,7 +380,7 @@ export class SqliteStore implements Store {
    */
   #writeResult<T>(result: unknown, fn: () => T): T {
     const size = result ? resultBytesOf(result as object)?.length ?? 0 : 0;
-    if (size < DEFERRED_CHECKPOINT_BYTES) return this.#write(fn);
+    if (size < LARGE_RESULT_BYTES) return this.#write(fn);
     if (this.#writer) {
       try {
         return this.#withoutAutoCheckpoint(() => this.#write(fn));
@@ -834,7 +831,7 @@ export class SqliteStore implements Store {
    */
   putRun(r: RunRecord, holder: HolderSpec = DEFAULT_HOLDER): Promise<void> {
     const bytes = this.#writer ? resultBytesOf(r.result) : undefined;
-    if (this.#writer && bytes && bytes.length >= OFFLOAD_RESULT_BYTES) {
+    if (this.#writer && bytes && bytes.length >= LARGE_RESULT_BYTES) {
       try {
         checkVisibility(`insert run ${r.id}`, holder.visibility);
       } catch (e) {

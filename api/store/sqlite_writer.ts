@@ -19,9 +19,6 @@ import { DuplicateRunError, MissingInputError } from "./errors.ts";
 /** Series with more points than this are written by the writer worker. */
 export const OFFLOAD_POINTS = 50_000;
 
-/** Runs whose result has at least this many bytes (of canonical JSON) are written there too. */
-export const OFFLOAD_RESULT_BYTES = 4 << 20;
-
 type Pending = {
   // deno-lint-ignore no-explicit-any
   resolve(v: any): void;
@@ -139,15 +136,18 @@ export class SqliteWriter {
 
   /**
    * Insert the run `r` for `holder` in the worker (`SqliteStore.putRun` there), its result given
-   * as its canonical bytes (the caller keeps its own). The bytes are copied here and the copy
-   * transferred: for 38 MB that took 14 ms in this thread and 1 ms in the worker, against 14 ms
-   * in each for a structured clone.
+   * as its canonical bytes (the caller keeps its own). Bytes in shared memory (a large result,
+   * api/store/result_text.ts) are read there as they are; other bytes are copied here and the
+   * copy transferred (for 38 MB: 14 ms in this thread and 1 ms in the worker, against 14 ms in
+   * each for a structured clone).
    */
   putRun(r: RunRecord, bytes: Uint8Array, holder: HolderSpec): Promise<void> {
+    const run = { ...r, result: null };
+    if (bytes.buffer instanceof SharedArrayBuffer) {
+      return this.#send({ type: "run", run, bytes, holder });
+    }
     const copy = bytes.slice();
-    return this.#send({ type: "run", run: { ...r, result: null }, bytes: copy, holder }, [
-      copy.buffer,
-    ]);
+    return this.#send({ type: "run", run, bytes: copy, holder }, [copy.buffer]);
   }
 
   /**

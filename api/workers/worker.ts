@@ -188,9 +188,14 @@ self.onmessage = async (e: MessageEvent) => {
         }));
       const result = await kind.compute(m.params, ctx);
       if (m.finish) {
-        // finished here: only the canonical bytes cross (transferred), never the object graph
+        // finished here: only the canonical bytes cross (transferred, or shared when large),
+        // never the object graph
         const finished = finishResult(result, m.finish.notes, m.finish.autoSave);
-        self.postMessage({ type: "done", job, result: finished }, [finished.bytes.buffer]);
+        const buffer = finished.bytes.buffer;
+        self.postMessage(
+          { type: "done", job, result: finished },
+          buffer instanceof ArrayBuffer ? [buffer] : [],
+        );
       } else {
         self.postMessage({ type: "done", job, result });
       }

@@ -9,7 +9,7 @@
  */
 import assert from "node:assert/strict";
 import { makeTestApp, monthlySeries, uploadSeries } from "./helpers.ts";
-import { STORE_WHILE_SENDING_BYTES } from "../../api/runs/service.ts";
+import { LARGE_RESULT_BYTES } from "../../api/store/result_text.ts";
 import type { RunRecord } from "../../api/store/types.ts";
 import type { HolderSpec } from "../../api/store/types.ts";
 
@@ -32,7 +32,7 @@ Deno.test("POST of a large synchronous result: the same bytes, the last one only
     const ordinary = await svc.post("/v1/cycles", { series });
     assert.equal(ordinary.status, 201);
     const ordinaryText = await ordinary.text();
-    assert.ok(ordinaryText.length < STORE_WHILE_SENDING_BYTES, "the default path for small ones");
+    assert.ok(ordinaryText.length < LARGE_RESULT_BYTES, "the default path for small ones");
     svc.runs.options.storeWhileSendingBytes = 1;
 
     await t.step("the bytes of the ordinary path, with its Content-Length", async () => {

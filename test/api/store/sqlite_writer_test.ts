@@ -7,13 +7,9 @@
  */
 import assert from "node:assert/strict";
 import { openSqliteStore } from "../../../api/store/sqlite.ts";
-import {
-  OFFLOAD_POINTS,
-  OFFLOAD_RESULT_BYTES,
-  SqliteWriter,
-} from "../../../api/store/sqlite_writer.ts";
+import { OFFLOAD_POINTS, SqliteWriter } from "../../../api/store/sqlite_writer.ts";
 import { DuplicateRunError, MissingInputError } from "../../../api/store/errors.ts";
-import { lazyResult, resultBytesOf } from "../../../api/store/result_text.ts";
+import { LARGE_RESULT_BYTES, lazyResult, resultBytesOf } from "../../../api/store/result_text.ts";
 import { makeRun, makeSeries } from "./store_suite.ts";
 import { fieldId, makeFieldStaging, storeField } from "./field_store_suite.ts";
 
@@ -114,9 +110,9 @@ Deno.test("SqliteWriter: a run with a result over the offload threshold is inser
   try {
     // a result just over the threshold, and one just under it (written in this thread)
     const big = new TextEncoder().encode(
-      JSON.stringify({ values: Array.from({ length: OFFLOAD_RESULT_BYTES / 4 }, (_, i) => i) }),
+      JSON.stringify({ values: Array.from({ length: LARGE_RESULT_BYTES / 4 }, (_, i) => i) }),
     );
-    assert.ok(big.length >= OFFLOAD_RESULT_BYTES);
+    assert.ok(big.length >= LARGE_RESULT_BYTES);
     const run = { ...makeRun("large"), result: lazyResult(big) };
     await store.putOwner({
       id: "alice",
@@ -136,6 +132,16 @@ Deno.test("SqliteWriter: a run with a result over the offload threshold is inser
     assert.equal((await store.runHolding(run.id, alice))?.visibility, "private");
     // the caller's bytes are its own still (a copy was transferred)
     assert.equal(resultBytesOf(run.result)!.length, big.length);
+    // bytes in shared memory (as a compute worker makes a large result's) are read as they are
+    const shared = new Uint8Array(new SharedArrayBuffer(big.length));
+    shared.set(big);
+    const sharedRun = { ...makeRun("large, shared"), result: lazyResult(shared) };
+    await store.putRun(sharedRun, owner);
+    assert.deepEqual(
+      resultBytesOf((await store.getRun(sharedRun.id))!.result),
+      big,
+    );
+    assert.equal(resultBytesOf(sharedRun.result), shared);
 
     await assert.rejects(() => store.putRun(run, owner), DuplicateRunError);
     const orphan = {
@@ -157,12 +163,12 @@ Deno.test("SqliteWriter: a run with a result over the offload threshold is inser
 
     const small = {
       ...makeRun("small"),
-      result: lazyResult(big.slice(0, OFFLOAD_RESULT_BYTES - 1)),
+      result: lazyResult(big.slice(0, LARGE_RESULT_BYTES - 1)),
     };
     await store.putRun(small);
     assert.ok(await store.getRun(small.id));
     // the duplicate and the orphan went to the worker; the bad visibility and the small one not
-    assert.deepEqual(sent, [run.id, run.id, orphan.id]);
+    assert.deepEqual(sent, [run.id, sharedRun.id, run.id, orphan.id]);
   } finally {
     SqliteWriter.prototype.putRun = original;
     await store.close();
