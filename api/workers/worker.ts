@@ -30,7 +30,8 @@ import { makeContext } from "../runs/context.ts";
 import { taskTable } from "../analyses/derive.ts";
 import { serialiseError, transferablesOf } from "./messages.ts";
 import { WARM_UP_KINDS, warmUp } from "./warm_up.ts";
-import { finishResult } from "../runs/finish.ts";
+import { finishResultWith } from "../runs/finish.ts";
+import { NumberFormatterThread } from "./number_formatter.ts";
 import { productEngine, setProductEngineSetting } from "./openblas_product.ts";
 
 /**
@@ -119,6 +120,9 @@ async function taskNamed(name: string, kind: unknown): Promise<Task | undefined>
 );
 
 const waiting = new Map<number, { resolve(v: unknown[]): void; reject(e: unknown): void }>();
+
+/** Formats half the numbers of a large result while this thread writes the rest. */
+const formatter = new NumberFormatterThread();
 let nextReq = 1;
 
 /** The stop test of a shared flag (never, without one). */
@@ -190,7 +194,12 @@ self.onmessage = async (e: MessageEvent) => {
       if (m.finish) {
         // finished here: only the canonical bytes cross (transferred, or shared when large),
         // never the object graph
-        const finished = finishResult(result, m.finish.notes, m.finish.autoSave);
+        const finished = await finishResultWith(
+          result,
+          m.finish.notes,
+          m.finish.autoSave,
+          formatter.format,
+        );
         const buffer = finished.bytes.buffer;
         self.postMessage(
           { type: "done", job, result: finished },
