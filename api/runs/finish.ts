@@ -9,12 +9,7 @@
  */
 import type { RunResult } from "./kind.ts";
 import { createHash } from "node:crypto";
-import {
-  canonicalJsonBytes,
-  canonicalJsonBytesParallel,
-  type NumberFormatter,
-  toPlainJson,
-} from "./json.ts";
+import { canonicalJsonBytes, toPlainJson } from "./json.ts";
 import { type InheritedNote, withInherited } from "./inherit.ts";
 import { type CanonicalBytes, LARGE_RESULT_BYTES } from "../store/result_text.ts";
 
@@ -60,30 +55,6 @@ export function finishResult(
   // the bytes of JSON.stringify(finishPlain(result, notes)), written without the plain copy;
   // a large result's in shared memory, read by the threads that store and send it, not copied
   const bytes = canonicalJsonBytes(withInherited(result, notes), LARGE_RESULT_BYTES);
-  return finished(result, bytes, autoSave);
-}
-
-/**
- * {@link finishResult} with a second thread: about two fifths of the numbers of a large result
- * are formatted by `format` meanwhile (api/runs/json.ts `canonicalJsonBytesParallel`). The
- * same bytes and digest.
- */
-export async function finishResultWith(
-  result: RunResult,
-  notes: InheritedNote[],
-  autoSave: readonly string[],
-  format: NumberFormatter,
-): Promise<FinishedResult> {
-  const full = withInherited(result, notes);
-  const bytes = await canonicalJsonBytesParallel(full, LARGE_RESULT_BYTES, format);
-  return finished(result, bytes, autoSave);
-}
-
-function finished(
-  result: RunResult,
-  bytes: Uint8Array,
-  autoSave: readonly string[],
-): FinishedResult {
   const outputs = (result.outputs ?? {}) as Record<string, unknown>;
   const saved: Record<string, unknown> = {};
   for (const name of autoSave) if (outputs[name]) saved[name] = toPlainJson(outputs[name]);

@@ -128,8 +128,6 @@ export function toPlainJson(value: unknown): unknown {
  * trimmed at the end, 186 ms instead of 210 ms for a 34 MB result and 0.86 ms instead of 0.94 ms
  * for a 0.3 MB one (test/bench/canonical_bytes_bench.ts, 3 alternating runs, medians).
  */
-const EMPTY = new Uint8Array(0);
-
 class Utf8Sink {
   #chunks: Uint8Array[] = [];
   #len = 0;
@@ -162,24 +160,6 @@ class Utf8Sink {
     this.#chunks.push(b);
     this.#len += b.length;
   }
-
-  /** Append bytes made elsewhere (one-byte text), later: a slot filled by {@link fill}. */
-  pushSlot(slot: number): void {
-    this.flush();
-    this.#slots.push({ at: this.#chunks.length, slot });
-    this.#chunks.push(EMPTY);
-  }
-
-  /** Fill the slots by their bytes (`made[slot]`). */
-  fill(made: readonly Uint8Array[]): void {
-    for (const { at, slot } of this.#slots) {
-      this.#chunks[at] = made[slot];
-      this.#len += made[slot].length;
-    }
-    this.#slots = [];
-  }
-
-  #slots: { at: number; slot: number }[] = [];
 
   /**
    * The bytes written, in a buffer of their own length: a `SharedArrayBuffer` when there are at
@@ -214,8 +194,6 @@ const LARGE = 256;
  */
 interface Written {
   texts: { a: ArrayLike<unknown>; text: string }[];
-  /** Long arrays of numbers formatted by another thread: the slot of each (see `pushSlot`). */
-  delegated?: Map<unknown, number>;
 }
 
 /** How many long flat arrays one serialisation remembers the text of. */
@@ -248,31 +226,20 @@ function writeArrayLike(
   done: Written,
 ): void {
   // primitives only (the common case: numbers): check each, then one native stringify
-  let flat = true, numbers = true;
-  {
-    for (let i = 0; i < a.length; i++) {
-      const v = a[i];
-      if (typeof v === "number") {
-        if (v - v !== 0) fail(v, [...path, i]);
-        continue;
-      }
-      numbers = false;
-      if (typeof v === "string") {
-        if (!v.isWellFormed()) badString([...path, i]);
-      } else if (v !== null && typeof v !== "boolean" && v !== undefined) {
-        flat = false;
-        break;
-      }
+  let flat = true;
+  for (let i = 0; i < a.length; i++) {
+    const v = a[i];
+    if (typeof v === "number") {
+      if (v - v !== 0) fail(v, [...path, i]);
+    } else if (typeof v === "string") {
+      if (!v.isWellFormed()) badString([...path, i]);
+    } else if (v !== null && typeof v !== "boolean" && v !== undefined) {
+      flat = false;
+      break;
     }
   }
   // an own toJSON would be called by JSON.stringify, not by the plain copy
   if (flat && !("toJSON" in a)) {
-    // formatted by another thread from a copy of its numbers (checked finite here, above)
-    const slot = numbers ? done.delegated?.get(a) : undefined;
-    if (slot !== undefined) {
-      sink.pushSlot(slot);
-      return;
-    }
     // JSON.stringify writes -0 as 0 and a hole or undefined in an array as null, as the plain
     // copy would hold them; a typed array is copied to an Array first (it would be an object)
     if (a.length < LARGE) {
@@ -367,109 +334,5 @@ export function canonicalJsonBytes(value: unknown, sharedFrom = Infinity): Uint8
   const sink = new Utf8Sink();
   if (value === undefined) fail(value, []);
   write(value, [], new Set(), sink, { texts: [] });
-  return sink.bytes(sharedFrom);
-}
-
-/**
- * The share of the numbers handed to the other thread: it also copies them into Arrays, and this
- * one checks every array (a 153,000-day reconstruction: 184-189 ms alone, 133-138 ms with 0.4,
- * 132-178 ms with 0.45; test/bench/canonical_bytes_bench.ts).
- */
-const SHARE = 0.4;
-
-/** Arrays of at least this many numbers may be formatted by another thread. */
-const DELEGATED_ITEMS = 16_384;
-
-/**
- * {@link canonicalJsonBytesParallel} hands arrays to another thread only when the long arrays of
- * numbers of a result hold this many numbers in all (a 153,000-day reconstruction: 3.2 million).
- */
-export const PARALLEL_ITEMS = 1 << 18;
-
-/**
- * Formats arrays of numbers in another thread: for each array, the UTF-8 bytes of
- * `JSON.stringify` of its numbers as an Array (one-byte text).
- */
-export type NumberFormatter = (arrays: Float64Array<ArrayBuffer>[]) => Promise<Uint8Array[]>;
-
-/** The long arrays that look like arrays of numbers, in a result (each once). */
-function longNumberArrays(value: unknown, out: Set<number[] | Float64Array>): void {
-  if (value === null || typeof value !== "object") return;
-  if (value instanceof Float64Array) {
-    if (value.length >= DELEGATED_ITEMS) out.add(value);
-    return;
-  }
-  if (ArrayBuffer.isView(value)) return;
-  if (Array.isArray(value)) {
-    const n = value.length;
-    if (n >= DELEGATED_ITEMS && typeof value[0] === "number" && typeof value[n - 1] === "number") {
-      // a look at both ends only: the writer checks every item before it uses the text
-      out.add(value as number[]);
-      return;
-    }
-    for (let i = 0; i < n; i++) {
-      const v = value[i];
-      if (v !== null && typeof v === "object") longNumberArrays(v, out);
-    }
-    return;
-  }
-  for (const v of Object.values(value)) longNumberArrays(v, out);
-}
-
-/**
- * {@link canonicalJsonBytes}, with about two fifths of the numbers of a large result formatted
- * by `format` in another thread while this one writes the rest. The bytes are the same: each
- * array handed over is a copy of the same doubles, formatted by the same `JSON.stringify`, and
- * its text is used only when this thread's check of its items (the same checks and errors as
- * {@link canonicalJsonBytes}) finds numbers only. A result whose long arrays hold fewer than
- * {@link PARALLEL_ITEMS} numbers is written here alone; if `format` fails, the arrays it had are
- * formatted here.
- *
- * @throws {Error} as {@link toPlainJson}
- * @example
- * ```ts
- * import { canonicalJsonBytes, canonicalJsonBytesParallel, PARALLEL_ITEMS } from "./json.ts";
- * import assert from "node:assert/strict";
- * const v = { b: Array.from({ length: PARALLEL_ITEMS }, (_, i) => i / 7), a: [-0, 1] };
- * const enc = new TextEncoder();
- * const format = (arrays: Float64Array[]) =>
- *   Promise.resolve(arrays.map((x) => enc.encode(JSON.stringify(Array.from(x)))));
- * const bytes = await canonicalJsonBytesParallel(v, Infinity, format);
- * assert.deepEqual(bytes, canonicalJsonBytes(v));
- * ```
- */
-export async function canonicalJsonBytesParallel(
-  value: unknown,
-  sharedFrom: number,
-  format: NumberFormatter,
-): Promise<Uint8Array> {
-  const found = new Set<number[] | Float64Array>();
-  longNumberArrays(value, found);
-  let total = 0;
-  for (const a of found) total += a.length;
-  if (total < PARALLEL_ITEMS) return canonicalJsonBytes(value, sharedFrom);
-  // about two fifths of the numbers, in the order the arrays were met
-  const delegated = new Map<unknown, number>();
-  const copies: Float64Array<ArrayBuffer>[] = [];
-  let given = 0;
-  for (const a of found) {
-    if (given + a.length / 2 > total * SHARE) continue;
-    delegated.set(a, copies.length);
-    copies.push(Float64Array.from(a));
-    given += a.length;
-  }
-  const made = format(copies).catch(() => null);
-  const sink = new Utf8Sink();
-  if (value === undefined) fail(value, []);
-  write(value, [], new Set(), sink, { texts: [], delegated });
-  let bytes = await made;
-  if (bytes === null || bytes.length !== delegated.size) {
-    const encoder = new TextEncoder();
-    const local = [...delegated.keys()] as ArrayLike<number>[];
-    bytes = local.map((a) =>
-      encoder.encode(JSON.stringify(Array.isArray(a) ? a : plainNumbers(a)))
-    );
-  }
-  sink.fill(bytes);
   return sink.bytes(sharedFrom);
 }

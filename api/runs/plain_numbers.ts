@@ -1,8 +1,7 @@
 /**
  * A typed array's numbers in an Array, for `JSON.stringify` (which writes a typed array as an
  * object). A plain loop: `Array.from` took 1.7 times as long with the stringify for ten arrays of
- * 153,402 numbers (114 ms against 70 ms). No imports: the number formatter thread
- * (api/workers/number_format_worker.ts) starts with this alone.
+ * 153,402 numbers (114 ms against 70 ms).
  *
  * @example
  * ```ts

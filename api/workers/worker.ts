@@ -30,8 +30,7 @@ import { makeContext } from "../runs/context.ts";
 import { taskTable } from "../analyses/derive.ts";
 import { serialiseError, transferablesOf } from "./messages.ts";
 import { WARM_UP_KINDS, warmUp } from "./warm_up.ts";
-import { finishResultWith } from "../runs/finish.ts";
-import { NumberFormatterThread } from "./number_formatter.ts";
+import { finishResult } from "../runs/finish.ts";
 import { productEngine, setProductEngineSetting } from "./openblas_product.ts";
 
 /**
@@ -120,9 +119,6 @@ async function taskNamed(name: string, kind: unknown): Promise<Task | undefined>
 );
 
 const waiting = new Map<number, { resolve(v: unknown[]): void; reject(e: unknown): void }>();
-
-/** Formats half the numbers of a large result while this thread writes the rest. */
-const formatter = new NumberFormatterThread();
 let nextReq = 1;
 
 /** The stop test of a shared flag (never, without one). */
@@ -194,12 +190,7 @@ self.onmessage = async (e: MessageEvent) => {
       if (m.finish) {
         // finished here: only the canonical bytes cross (transferred, or shared when large),
         // never the object graph
-        const finished = await finishResultWith(
-          result,
-          m.finish.notes,
-          m.finish.autoSave,
-          formatter.format,
-        );
+        const finished = finishResult(result, m.finish.notes, m.finish.autoSave);
         const buffer = finished.bytes.buffer;
         self.postMessage(
           { type: "done", job, result: finished },

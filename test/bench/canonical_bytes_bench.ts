@@ -8,13 +8,9 @@
  *
  *   deno bench -A test/bench/canonical_bytes_bench.ts
  *
- * The reconstruction-like result is also written with a second thread formatting part of its
- * numbers (`canonicalJsonBytesParallel`, as a compute worker writes a large result).
- *
  * @module
  */
-import { canonicalJsonBytes, canonicalJsonBytesParallel } from "../../api/runs/json.ts";
-import { NumberFormatterThread } from "../../api/workers/number_formatter.ts";
+import { canonicalJsonBytes } from "../../api/runs/json.ts";
 
 const wave = (n: number, a: number, f: number, offset: number) =>
   Array.from(
@@ -80,17 +76,6 @@ Deno.bench({
     canonicalJsonBytes(big);
   },
 });
-const thread = new NumberFormatterThread();
-thread.start();
-Deno.bench({
-  name: "the same with a formatter thread (canonicalJsonBytesParallel)",
-  n: 30,
-  warmup: 3,
-  async fn() {
-    await canonicalJsonBytesParallel(big, Infinity, thread.format);
-  },
-});
-globalThis.addEventListener("unload", () => thread.close());
 Deno.bench({
   name: "canonical JSON bytes, cycles-like (3,000 months, 4 outputs)",
   fn: () => {
