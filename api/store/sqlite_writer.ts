@@ -19,6 +19,13 @@ import { DuplicateRunError, MissingInputError } from "./errors.ts";
 /** Series with more points than this are written by the writer worker. */
 export const OFFLOAD_POINTS = 50_000;
 
+/**
+ * After writing a large run the worker ends once it has been idle this long, ms (a fresh one
+ * starts with the next write): an idle thread collects no garbage, and it would keep the last
+ * large results' bytes (38 MB each for a daily reconstruction) as long as it lives.
+ */
+export const RETIRE_IDLE_MS = 5000;
+
 type Pending = {
   // deno-lint-ignore no-explicit-any
   resolve(v: any): void;
@@ -75,7 +82,36 @@ export class SqliteWriter {
     readonly path: string,
     readonly busyTimeoutMs: number,
     readonly writeCounter: SharedArrayBuffer = new SharedArrayBuffer(4),
+    readonly retireIdleMs: number = RETIRE_IDLE_MS,
   ) {}
+
+  /** True while a worker thread is running (it starts on the first write). */
+  get running(): boolean {
+    return this.#worker !== null;
+  }
+
+  /** A large run was written since the worker started: retire it once idle. */
+  #wroteLarge = false;
+  #retireTimer: ReturnType<typeof setTimeout> | undefined;
+
+  #idle(): void {
+    if (!this.#wroteLarge || this.#pending.size > 0 || this.#checkpointQueued) return;
+    clearTimeout(this.#retireTimer);
+    const timer = setTimeout(() => this.#retire(), this.retireIdleMs);
+    // a service that is stopping does not wait for it
+    Deno.unrefTimer(timer as unknown as number);
+    this.#retireTimer = timer;
+  }
+
+  #retire(): void {
+    this.#retireTimer = undefined;
+    const w = this.#worker;
+    if (!w || this.#pending.size > 0 || this.#checkpointQueued) return;
+    this.#worker = null;
+    this.#wroteLarge = false;
+    // it closes its connection, then its thread; the next write starts another
+    w.postMessage({ type: "close" });
+  }
 
   #start(): Worker {
     const w = new Worker(new URL("./sqlite_writer_worker.ts", import.meta.url).href, {
@@ -84,6 +120,7 @@ export class SqliteWriter {
     w.onmessage = (e) => {
       if (e.data?.type === "checkpointed") {
         this.#checkpointQueued = false;
+        if (w === this.#worker) this.#idle();
         return;
       }
       const m = e.data as {
@@ -97,6 +134,7 @@ export class SqliteWriter {
       if (!p) return;
       if (m.ok) p.resolve(m.value!);
       else p.reject(rebuildError(m.error!));
+      if (w === this.#worker) this.#idle();
     };
     w.onerror = (e) => {
       e.preventDefault();
@@ -118,6 +156,7 @@ export class SqliteWriter {
   }
 
   #send<T>(message: Record<string, unknown>, transfer: Transferable[] = []): Promise<T> {
+    clearTimeout(this.#retireTimer);
     this.#worker ??= this.#start();
     const id = this.#next++;
     return new Promise((resolve, reject) => {
@@ -143,6 +182,7 @@ export class SqliteWriter {
    */
   putRun(r: RunRecord, bytes: Uint8Array, holder: HolderSpec): Promise<void> {
     const run = { ...r, result: null };
+    this.#wroteLarge = true;
     if (bytes.buffer instanceof SharedArrayBuffer) {
       return this.#send({ type: "run", run, bytes, holder });
     }
@@ -170,6 +210,7 @@ export class SqliteWriter {
    * (see `SqliteStore`); requests already queued coalesce into one.
    */
   checkpoint(): void {
+    clearTimeout(this.#retireTimer);
     if (this.#checkpointQueued) return;
     this.#checkpointQueued = true;
     this.#worker ??= this.#start();
@@ -180,6 +221,7 @@ export class SqliteWriter {
 
   /** Stop the worker (after the writes in flight). */
   async close(): Promise<void> {
+    clearTimeout(this.#retireTimer);
     const w = this.#worker;
     this.#worker = null;
     if (!w) return;

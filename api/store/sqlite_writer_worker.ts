@@ -5,7 +5,7 @@
  * without its result, and the result's canonical bytes) or
  * `{ type: "field-block", id, stage, index, tStart, rows, values }` → `{ id, ok, value | error }`;
  * `{ type: "checkpoint" }` → `{ type: "checkpointed" }` (a PASSIVE WAL checkpoint; a failure is
- * left to the next one).
+ * left to the next one); `{ type: "close" }` closes the connection, then this thread.
  *
  * @module
  */
@@ -28,6 +28,14 @@ self.onmessage = async (e: MessageEvent) => {
       // its writes are counted where the request thread's access checks look
       writeCounter: new Int32Array(m.writeCounter),
     });
+    return;
+  }
+  if (m.type === "close") {
+    try {
+      await (await store)?.close();
+    } finally {
+      self.close();
+    }
     return;
   }
   if (m.type === "checkpoint") {

@@ -9,6 +9,7 @@ import assert from "node:assert/strict";
 import { openSqliteStore } from "../../../api/store/sqlite.ts";
 import { OFFLOAD_POINTS, SqliteWriter } from "../../../api/store/sqlite_writer.ts";
 import { DuplicateRunError, MissingInputError } from "../../../api/store/errors.ts";
+import { DEFAULT_HOLDER } from "../../../api/store/common.ts";
 import { LARGE_RESULT_BYTES, lazyResult, resultBytesOf } from "../../../api/store/result_text.ts";
 import { makeRun, makeSeries } from "./store_suite.ts";
 import { fieldId, makeFieldStaging, storeField } from "./field_store_suite.ts";
@@ -171,6 +172,35 @@ Deno.test("SqliteWriter: a run with a result over the offload threshold is inser
     assert.deepEqual(sent, [run.id, sharedRun.id, run.id, orphan.id]);
   } finally {
     SqliteWriter.prototype.putRun = original;
+    await store.close();
+    await Deno.remove(dir, { recursive: true });
+  }
+});
+
+Deno.test("SqliteWriter: after a large run the worker ends once idle, and the next write starts another", async () => {
+  const dir = await Deno.makeTempDir({ prefix: "sunlag-writer-" });
+  const path = `${dir}/store.db`;
+  // the schema, and a connection of this thread that reads what the worker wrote
+  const store = await openSqliteStore({ path, offload: false });
+  const writer = new SqliteWriter(path, 10_000, new SharedArrayBuffer(4), 50);
+  const bytes = (label: string) =>
+    new TextEncoder().encode(JSON.stringify({ label, values: [1, 2, 3] }));
+  try {
+    const a = { ...makeRun("retire a"), result: lazyResult(bytes("a")) };
+    await writer.putRun(a, bytes("a"), DEFAULT_HOLDER);
+    assert.equal(writer.running, true);
+    await new Promise((r) => setTimeout(r, 200));
+    assert.equal(writer.running, false, "retired once idle");
+    // a series write alone does not retire it
+    await writer.putSeries(makeSeries("retire", { n: 10 }), DEFAULT_HOLDER);
+    await new Promise((r) => setTimeout(r, 200));
+    assert.equal(writer.running, true);
+    const b = { ...makeRun("retire b"), result: lazyResult(bytes("b")) };
+    await writer.putRun(b, bytes("b"), DEFAULT_HOLDER);
+    assert.deepEqual(resultBytesOf((await store.getRun(a.id))!.result), bytes("a"));
+    assert.deepEqual(resultBytesOf((await store.getRun(b.id))!.result), bytes("b"));
+  } finally {
+    await writer.close();
     await store.close();
     await Deno.remove(dir, { recursive: true });
   }
