@@ -4,9 +4,13 @@
  * `clone` clones a ready 304 with the four headers the service sends (Cache-Control, ETag, Vary,
  * X-Request-Id) and sets a request id, as api/routes/immutable_cache.ts does; `fresh` builds that
  * 304 anew per request; `sql` is `clone` plus one `PRAGMA data_version` on a SQLite file in WAL
- * mode, the statement the access check used to run per request.
+ * mode, the statement the access check used to run per request. For a cached chart's 200 (13 kB of
+ * SVG): `bytes` sends 13 kB with a Content-Type only (the hello-world sending as many bytes), and
+ * `chart` clones a ready 200 with those bytes and the seven headers the service sends with a chart
+ * (Content-Type, X-Content-Type-Options, Content-Security-Policy, ETag, Cache-Control, Vary,
+ * X-Request-Id), setting a request id.
  *
- * Usage: deno run -A test/bench/http_response_floor.ts hello|clone|fresh|sql PORT, then
+ * Usage: deno run -A test/bench/http_response_floor.ts hello|clone|fresh|sql|bytes|chart PORT, then
  * `wrk -t2 -c50 -d5s http://127.0.0.1:PORT/` against each, rounds alternating.
  *
  * @module
@@ -31,7 +35,27 @@ const cloned = () => {
   r.headers.set("X-Request-Id", crypto.randomUUID());
   return r;
 };
+const svg = new TextEncoder().encode(
+  `<svg xmlns="http://www.w3.org/2000/svg">${"x".repeat(13_000)}</svg>`,
+);
+const chart = new Response(svg, {
+  headers: {
+    "content-type": "image/svg+xml; charset=utf-8",
+    "x-content-type-options": "nosniff",
+    "content-security-policy": "default-src 'none'; style-src 'unsafe-inline'; sandbox",
+    etag,
+    "cache-control": "public, max-age=31536000, immutable",
+    "x-request-id": "",
+    vary: "Accept-Encoding",
+  },
+});
 const modes: Record<string, (req: Request) => Response> = {
+  bytes: () => new Response(svg, { headers: { "content-type": "image/svg+xml; charset=utf-8" } }),
+  chart: () => {
+    const r = chart.clone();
+    r.headers.set("X-Request-Id", crypto.randomUUID());
+    return r;
+  },
   hello: () => new Response("Hello Hono!"),
   clone: cloned,
   fresh: () =>
