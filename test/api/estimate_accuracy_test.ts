@@ -26,9 +26,16 @@ Deno.test("estimates: measured / estimated time within [1/3, 3] for every kind",
     const runs: Record<string, string> = {};
     const rows: Measured[] = [];
     const factor = measureMachineSpeedFactor();
+    const inRange = (r: Measured) =>
+      r.measured / r.estimate >= 1 / 3 && r.measured / r.estimate <= 3;
     for (const c of await estimateCases(svc)) {
       if (!c.ci) continue; // the others (and the runs they store) are the calibration script's
-      rows.push(await measureCase(svc, c, runs, 2, factor));
+      let row = await measureCase(svc, c, runs, 2, factor);
+      // The speed factor was measured at the start; when other test files load the machine
+      // differently by now, a case is measured once more beside a fresh factor. An estimate
+      // that is wrong stays out of range then.
+      if (!inRange(row)) row = await measureCase(svc, c, runs, 2, measureMachineSpeedFactor());
+      rows.push(row);
       await storeCase(svc, c, runs);
     }
     console.log(
@@ -49,9 +56,8 @@ Deno.test("estimates: measured / estimated time within [1/3, 3] for every kind",
       RUN_KINDS.map((k) => k.kind).sort(),
     );
     for (const r of rows) {
-      const ratio = r.measured / r.estimate;
       assert.ok(
-        ratio >= 1 / 3 && ratio <= 3,
+        inRange(r),
         `${r.kind} (${r.label}): measured ${r.measured.toFixed(4)} s, estimated ` +
           `${r.estimate.toFixed(4)} s`,
       );
