@@ -140,6 +140,17 @@ export function lastByteWhenStored(
   requestId: string | undefined,
 ): ReadableStream<Uint8Array> {
   const last = parts[parts.length - 1];
+  let logged = false;
+  const logFailure = (e: unknown) => {
+    if (logged) return;
+    logged = true;
+    console.error(JSON.stringify({
+      level: "error",
+      event: "run_store_failed",
+      request_id: requestId,
+      error: String((e as Error)?.stack ?? e),
+    }));
+  };
   let sent = false;
   return new ReadableStream<Uint8Array>({
     async pull(controller) {
@@ -152,17 +163,16 @@ export function lastByteWhenStored(
       try {
         await stored;
       } catch (e) {
-        console.error(JSON.stringify({
-          level: "error",
-          event: "run_store_failed",
-          request_id: requestId,
-          error: String((e as Error)?.stack ?? e),
-        }));
+        logFailure(e);
         controller.error(e);
         return;
       }
       controller.enqueue(last.subarray(last.length - 1));
       controller.close();
+    },
+    // the client went away: a failure to store is logged all the same
+    cancel() {
+      stored.catch(logFailure);
     },
   });
 }

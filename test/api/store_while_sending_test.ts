@@ -108,6 +108,28 @@ Deno.test("POST of a large synchronous result: the same bytes, the last one only
         console.error = error;
       }
     });
+
+    await t.step("a client that leaves early: a failure to store is still logged", async () => {
+      let fail!: (e: Error) => void;
+      const gate = new Promise<void>((_, reject) => (fail = reject));
+      store.putRun = () => gate;
+      const logged: string[] = [];
+      const error = console.error;
+      console.error = (...a: unknown[]) => logged.push(a.join(" "));
+      try {
+        const res = await svc.post("/v1/cycles", { series });
+        assert.equal(res.status, 201);
+        await res.body!.cancel();
+        fail(new Error("disk full after the client left (simulated)"));
+        await new Promise((r) => setTimeout(r, 20));
+        assert.ok(
+          logged.some((l) => l.includes("run_store_failed") && l.includes("after the client left")),
+          logged.join("\n"),
+        );
+      } finally {
+        console.error = error;
+      }
+    });
   } finally {
     store.putRun = putRun;
     await svc.close();
