@@ -67,10 +67,9 @@ export function runViewBytes(
   r: RunRecord,
   extra: Record<string, unknown> = {},
 ): Uint8Array<ArrayBuffer> {
-  if (resultBytesOf(r.result) === undefined) {
-    return encoder.encode(JSON.stringify({ ...runView(r), ...extra }));
-  }
   const parts = runViewParts(r, extra);
+  // one piece: the view encoded here (an ArrayBuffer of its own)
+  if (parts.length === 1) return parts[0] as Uint8Array<ArrayBuffer>;
   const out = new Uint8Array(parts.reduce((n, p) => n + p.length, 0));
   let at = 0;
   for (const p of parts) {

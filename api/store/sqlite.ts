@@ -378,8 +378,11 @@ export class SqliteStore implements Store {
    * checkpoints as usual if the worker has not yet. Measured on a 38 MB result: the commit took
    * 230-400 ms with the checkpoint, 130-330 ms without (test/bench/http_peers.ts).
    */
-  #writeResult<T>(result: unknown, fn: () => T): T {
-    const size = result ? resultBytesOf(result as object)?.length ?? 0 : 0;
+  #writeResult<T>(
+    result: unknown,
+    fn: () => T,
+    size = result ? resultBytesOf(result as object)?.length ?? 0 : 0,
+  ): T {
     if (size < LARGE_RESULT_BYTES) return this.#write(fn);
     if (this.#writer) {
       try {
@@ -830,7 +833,7 @@ export class SqliteStore implements Store {
    * @throws {MissingInputError} when an input series or input run is not stored.
    */
   putRun(r: RunRecord, holder: HolderSpec = DEFAULT_HOLDER): Promise<void> {
-    const bytes = this.#writer ? resultBytesOf(r.result) : undefined;
+    const bytes = resultBytesOf(r.result);
     if (this.#writer && bytes && bytes.length >= LARGE_RESULT_BYTES) {
       try {
         checkVisibility(`insert run ${r.id}`, holder.visibility);
@@ -854,7 +857,7 @@ export class SqliteStore implements Store {
         this.#stmt(
           `INSERT INTO run_holdings (run_id, owner_id, visibility, created_at) VALUES (?, ?, ?, ?)`,
         ).run(r.id, holder.owner, holder.visibility, r.created_at);
-      });
+      }, bytes?.length ?? 0);
       return undefined;
     });
   }

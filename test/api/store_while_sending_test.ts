@@ -22,6 +22,19 @@ const cycleSeries = monthlySeries(
   (i) => 80 + 70 * Math.sin((2 * Math.PI * i) / 132),
 );
 
+/** The lines `console.error` was given while `fn` ran. */
+async function errorsLogged(fn: () => Promise<void>): Promise<string[]> {
+  const logged: string[] = [];
+  const error = console.error;
+  console.error = (...a: unknown[]) => logged.push(a.join(" "));
+  try {
+    await fn();
+  } finally {
+    console.error = error;
+  }
+  return logged;
+}
+
 Deno.test("POST of a large synchronous result: the same bytes, the last one only once the run is stored", async (t) => {
   const dir = await Deno.makeTempDir({ prefix: "sunlag-stream-" });
   const svc = await makeTestApp({ store: `sqlite:${dir}/store.db` });
@@ -91,44 +104,34 @@ Deno.test("POST of a large synchronous result: the same bytes, the last one only
 
     await t.step("a run that cannot be stored ends its response short, and is logged", async () => {
       store.putRun = () => Promise.reject(new Error("disk full (simulated)"));
-      const logged: string[] = [];
-      const error = console.error;
-      console.error = (...a: unknown[]) => logged.push(a.join(" "));
-      try {
+      const logged = await errorsLogged(async () => {
         const res = await svc.post("/v1/cycles", { series });
         assert.equal(res.status, 201);
         const id = res.headers.get("location")!.split("/").pop()!;
         await assert.rejects(() => res.text());
         assert.equal((await svc.get(`/v1/runs/${id}`)).status, 404);
-        assert.ok(
-          logged.some((l) => l.includes("run_store_failed") && l.includes("disk full")),
-          logged.join("\n"),
-        );
-      } finally {
-        console.error = error;
-      }
+      });
+      assert.ok(
+        logged.some((l) => l.includes("run_store_failed") && l.includes("disk full")),
+        logged.join("\n"),
+      );
     });
 
     await t.step("a client that leaves early: a failure to store is still logged", async () => {
       let fail!: (e: Error) => void;
       const gate = new Promise<void>((_, reject) => (fail = reject));
       store.putRun = () => gate;
-      const logged: string[] = [];
-      const error = console.error;
-      console.error = (...a: unknown[]) => logged.push(a.join(" "));
-      try {
+      const logged = await errorsLogged(async () => {
         const res = await svc.post("/v1/cycles", { series });
         assert.equal(res.status, 201);
         await res.body!.cancel();
         fail(new Error("disk full after the client left (simulated)"));
         await new Promise((r) => setTimeout(r, 20));
-        assert.ok(
-          logged.some((l) => l.includes("run_store_failed") && l.includes("after the client left")),
-          logged.join("\n"),
-        );
-      } finally {
-        console.error = error;
-      }
+      });
+      assert.ok(
+        logged.some((l) => l.includes("run_store_failed") && l.includes("after the client left")),
+        logged.join("\n"),
+      );
     });
   } finally {
     store.putRun = putRun;
