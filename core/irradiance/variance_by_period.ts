@@ -76,42 +76,49 @@ export function varianceByPeriod(
       reason: "length_mismatch",
     });
   }
+  // Plain loops over the arrays: with an array and three closures per cell (map, every,
+  // forEach), 153,000 daily cells with an ensemble took 34-45 ms, now 5-11 ms (5 alternating
+  // calls each); the sums are taken in the same order, so the blocks are the same to the bit.
+  const m = ERROR_SOURCES.length;
+  const cols = ERROR_SOURCES.map((s) => components[s]);
   const blocks: VarianceBlock[] = [];
-  let cur: { start: number; sums: number[]; ens: number; cells: number } | null = null;
+  let open = false, start = 0, cells = 0, ens = 0;
+  let sums = new Float64Array(m);
   const close = () => {
-    if (!cur || cur.cells === 0) return;
-    const variance = Object.fromEntries(
-      ERROR_SOURCES.map((s, j) => [s, cur!.sums[j] / cur!.cells]),
-    ) as Record<ErrorSource, number>;
+    if (!open || cells === 0) return;
+    const variance = {} as Record<ErrorSource, number>;
+    ERROR_SOURCES.forEach((s, j) => (variance[s] = sums[j] / cells));
     const total = ERROR_SOURCES.reduce((a, s) => a + variance[s], 0);
     const share = Object.fromEntries(
       ERROR_SOURCES.map((s) => [s, total > 0 ? variance[s] / total : 0]),
     ) as Record<ErrorSource, number>;
     const dominant = ERROR_SOURCES.reduce((a, s) => (variance[s] > variance[a] ? s : a));
     blocks.push({
-      start: cur.start,
-      end: cur.start + blockYears,
-      cells: cur.cells,
+      start,
+      end: start + blockYears,
+      cells,
       variance,
       total,
       share,
       dominant,
-      ensembleVariance: ensembleVariance ? cur.ens / cur.cells : null,
+      ensembleVariance: ensembleVariance ? ens / cells : null,
     });
   };
-  for (let i = 0; i < n; i++) {
-    const start = Math.floor(time[i] / blockYears) * blockYears;
-    if (!cur || cur.start !== start) {
+  cell: for (let i = 0; i < n; i++) {
+    const blockStart = Math.floor(time[i] / blockYears) * blockYears;
+    if (!open || start !== blockStart) {
       close();
-      cur = { start, sums: ERROR_SOURCES.map(() => 0), ens: 0, cells: 0 };
+      open = true;
+      start = blockStart;
+      sums = new Float64Array(m);
+      ens = 0;
+      cells = 0;
     }
-    const v = ERROR_SOURCES.map((s) => components[s][i]);
-    if (!v.every(Number.isFinite) || (ensembleVariance && !Number.isFinite(ensembleVariance[i]))) {
-      continue;
-    }
-    v.forEach((x, j) => (cur!.sums[j] += x));
-    if (ensembleVariance) cur.ens += ensembleVariance[i];
-    cur.cells++;
+    for (let j = 0; j < m; j++) if (!Number.isFinite(cols[j][i])) continue cell;
+    if (ensembleVariance && !Number.isFinite(ensembleVariance[i])) continue;
+    for (let j = 0; j < m; j++) sums[j] += cols[j][i];
+    if (ensembleVariance) ens += ensembleVariance[i];
+    cells++;
   }
   close();
   return blocks;

@@ -187,3 +187,33 @@ Deno.test("varianceByPeriod() averages variances per block and names the dominan
     (e) => e instanceof InputError && e.field === "blockYears",
   );
 });
+
+Deno.test("varianceByPeriod() equals the plain definition on long series with gaps", () => {
+  // means of the finite cells per block, sums left to right: the same to the last bit
+  const n = 20_000, years = 50;
+  const time = Float64Array.from({ length: n }, (_, i) => 1601.3 + i / 36.5);
+  const col = (k: number) =>
+    Float64Array.from({ length: n }, (_, i) => (i % (31 + k) === 0 ? NaN : (i * k % 17) / 7));
+  const comps = { calibration: col(1), residual: col(2), mapping: col(3), input: col(4) };
+  const ens = col(5);
+  const sources = ["calibration", "residual", "mapping", "input"] as const;
+  const want = new Map<number, { sums: number[]; ens: number; cells: number }>();
+  for (let i = 0; i < n; i++) {
+    const v = sources.map((s) => comps[s][i]);
+    if (!v.every(Number.isFinite) || !Number.isFinite(ens[i])) continue;
+    const start = Math.floor(time[i] / years) * years;
+    const b = want.get(start) ?? { sums: [0, 0, 0, 0], ens: 0, cells: 0 };
+    v.forEach((x, j) => (b.sums[j] += x));
+    b.ens += ens[i];
+    b.cells++;
+    want.set(start, b);
+  }
+  const got = varianceByPeriod(time, comps, years, ens);
+  assert.deepEqual(got.map((b) => b.start), [...want.keys()]);
+  got.forEach((b) => {
+    const w = want.get(b.start)!;
+    assert.equal(b.cells, w.cells);
+    assert.deepEqual(sources.map((s) => b.variance[s]), w.sums.map((x) => x / w.cells));
+    assert.equal(b.ensembleVariance, w.ens / w.cells);
+  });
+});
