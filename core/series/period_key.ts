@@ -52,6 +52,96 @@ export function periodKey(t: number, resolution: CalendarResolution): number {
 }
 
 /**
+ * {@link periodKey} for many instants in turn, the same keys: it remembers the year and the
+ * period of the last instant, so that instants in time order (a series' axis) are keyed with a
+ * comparison or two instead of two calendar conversions each. Monthly keys of 153,000 daily
+ * instants: 11.7 ms with `periodKey`, 3.0 ms this way (test/bench/calendar_keys_bench.ts).
+ *
+ * @param resolution the period length
+ * @returns a function of a finite decimal year giving its key (throws RangeError when t is not
+ *   finite, as periodKey does)
+ * @example
+ * ```ts
+ * import { periodKey, periodKeyer } from "./period_key.ts";
+ * import assert from "node:assert/strict";
+ * const key = periodKeyer("monthly");
+ * for (const t of [1996.62, 1996.63, 1997.01, 1800.5]) assert.equal(key(t), periodKey(t, "monthly"));
+ * ```
+ */
+export function periodKeyer(resolution: CalendarResolution): (t: number) => number {
+  // the year of the last instant: its first day and length
+  let year = NaN, yearStart = 0, diy = 0;
+  // days [from, to) are in the period of the last key
+  let from = 0, to = 0, key = 0;
+  return (t) => {
+    if (!Number.isFinite(t)) return epochDayOf(t); // its RangeError
+    const y = Math.floor(t);
+    if (y !== year) {
+      year = y;
+      yearStart = daysFromCivil(y, 1, 1);
+      diy = daysInYear(y);
+    }
+    // epochDayOf(t), with the year's first day and length remembered
+    const day = yearStart + Math.floor((t - y) * diy + DAY_TOLERANCE);
+    if (resolution === "daily") return day;
+    if (day >= from && day < to) return key;
+    const c = civilFromDays(day);
+    if (resolution === "monthly") {
+      key = c.year * 12 + c.month - 1;
+      from = day - c.day + 1;
+      to = from + daysInMonth(c.year, c.month);
+    } else {
+      key = c.year;
+      from = daysFromCivil(c.year, 1, 1);
+      to = from + daysInYear(c.year);
+    }
+    return key;
+  };
+}
+
+/**
+ * Bounds and middles of the consecutive days with keys first..first + count − 1, computed
+ * incrementally (no calendar search per day): each equal to {@link periodOfKey} of the day's
+ * key, to the bit. For binning long daily series: 153,000 days take 1.5 ms, against 32.9 ms
+ * with `periodOfKey` per day (test/bench/calendar_keys_bench.ts).
+ *
+ * @param first key of the first day (days since 1970-01-01)
+ * @param count number of days (≥ 0)
+ * @returns `{ start, end, middle }` decimal years, end exclusive
+ * @example
+ * ```ts
+ * import { dailyBounds, periodOfKey } from "./period_key.ts";
+ * import assert from "node:assert/strict";
+ * const b = dailyBounds(-1, 3);
+ * assert.equal(b.end[0], periodOfKey(-1, "daily").end); // 1970-01-01: exactly 1970
+ * assert.equal(b.middle[2], periodOfKey(1, "daily").middle);
+ * ```
+ */
+export function dailyBounds(
+  first: number,
+  count: number,
+): { start: Float64Array; end: Float64Array; middle: Float64Array } {
+  const start = new Float64Array(count), end = new Float64Array(count);
+  const middle = new Float64Array(count);
+  if (count === 0) return { start, end, middle };
+  let year = civilFromDays(first).year;
+  let yearStart = daysFromCivil(year, 1, 1), diy = daysInYear(year);
+  for (let i = 0; i < count; i++) {
+    const k = first + i;
+    if (k - yearStart >= diy) {
+      year++;
+      yearStart = daysFromCivil(year, 1, 1);
+      diy = daysInYear(year);
+    }
+    // decimalYearFromEpochDays of k, k + 0.5 and k + 1, its expressions
+    start[i] = year + (k - yearStart + 0) / diy;
+    middle[i] = year + (k - yearStart + 0.5) / diy;
+    end[i] = k + 1 - yearStart === diy ? year + 1 : year + (k + 1 - yearStart + 0) / diy;
+  }
+  return { start, end, middle };
+}
+
+/**
  * Key of the period holding a day, given by its day number since 1970-01-01.
  *
  * @param day integer day number (days since 1970-01-01)

@@ -17,7 +17,7 @@
  */
 import type { CalendarResolution } from "../time/mod.ts";
 import { InputError } from "../errors.ts";
-import { periodKey } from "./period_key.ts";
+import { periodKeyer } from "./period_key.ts";
 
 /** Most periods one series may span (a daily series of about 13,700 years). */
 export const MAX_PERIODS = 5_000_000;
@@ -79,6 +79,7 @@ export function periodSums(
     );
   }
   const keys = new Float64Array(n);
+  const keyOf = periodKeyer(resolution);
   let k0 = Infinity, k1 = -Infinity;
   for (let i = 0; i < n; i++) {
     if (!Number.isFinite(time[i])) {
@@ -87,7 +88,7 @@ export function periodSums(
         { field: "time", reason: "not_finite", index: i, value: time[i] },
       );
     }
-    const k = periodKey(time[i], resolution);
+    const k = keyOf(time[i]);
     keys[i] = k;
     if (k < k0) k0 = k;
     if (k > k1) k1 = k;

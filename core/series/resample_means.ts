@@ -11,7 +11,7 @@ import {
   inferResolution,
   type TimeResolution,
 } from "../time/mod.ts";
-import { periodKey, periodOfKey } from "./period_key.ts";
+import { dailyBounds, periodKey, periodKeyer, periodOfKey } from "./period_key.ts";
 import { InputError } from "../errors.ts";
 import { periodSums } from "./period_means.ts";
 
@@ -216,8 +216,9 @@ function bin(
   const run = maxRun === null ? null : new Int32Array(m);
   const lastDay = maxRun === null ? null : new Int32Array(m);
   if (run && lastDay) {
+    const keyOf = periodKeyer(to);
     for (let i = 0; i < time.length; i++) {
-      const j = periodKey(time[i], to) - k0;
+      const j = keyOf(time[i]) - k0;
       const d = calendarInstant(time[i]).day;
       run[j] = Math.max(run[j], d - lastDay[j] - 1);
       lastDay[j] = d;
@@ -237,11 +238,18 @@ function bin(
     points: sums.points,
     rule: "",
   };
+  const days = to === "daily" ? dailyBounds(k0, m) : null;
   for (let j = 0; j < m; j++) {
-    const p = periodOfKey(k0 + j, to);
-    out.time[j] = p.middle;
-    out.start[j] = p.start;
-    out.end[j] = p.end;
+    if (days) {
+      out.time[j] = days.middle[j];
+      out.start[j] = days.start[j];
+      out.end[j] = days.end[j];
+    } else {
+      const p = periodOfKey(k0 + j, to);
+      out.time[j] = p.middle;
+      out.start[j] = p.start;
+      out.end[j] = p.end;
+    }
     if (run && lastDay) {
       const y = Math.floor((k0 + j) / 12), mo = k0 + j - y * 12 + 1;
       run[j] = Math.max(run[j], daysInMonth(y, mo) - lastDay[j]);

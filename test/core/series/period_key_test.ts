@@ -1,9 +1,11 @@
 import assert from "node:assert/strict";
 import fc from "fast-check";
 import {
+  dailyBounds,
   meanPeriodDays,
   periodDays,
   periodKey,
+  periodKeyer,
   periodKeyOfDay,
   periodKeyRange,
   periodOfKey,
@@ -12,6 +14,7 @@ import {
 import {
   calendarInstant,
   daysFromCivil,
+  decimalYearFromEpochDays,
   epochDayOf,
   parseIsoTime,
 } from "../../../core/time/mod.ts";
@@ -203,4 +206,41 @@ Deno.test("meanPeriodDays() is the mean Gregorian length (146,097 days per 400 y
   assert.equal(meanPeriodDays("annual"), 146_097 / 400);
   assert.equal(meanPeriodDays("monthly"), 146_097 / 4800);
   assert.equal(meanPeriodDays("daily"), 1);
+});
+
+Deno.test("periodKeyer() gives periodKey's keys, in order, out of order and on boundaries", () => {
+  // instants a tick before, on and after each day's start over 1582-1604 and 1896-1904 (the
+  // Gregorian rules of 1600 and 1900), then shuffled ones from -4000 to 4000
+  const times: number[] = [];
+  for (const [from, to] of [[1582, 1604], [1896, 1904]]) {
+    for (let d = daysFromCivil(from, 1, 1); d < daysFromCivil(to, 1, 1); d++) {
+      const t = decimalYearFromEpochDays(d);
+      times.push(t - 1e-9, t, t + 1e-9, decimalYearFromEpochDays(d + 0.5));
+    }
+  }
+  let seed = 7;
+  for (let i = 0; i < 20_000; i++) {
+    seed = (seed * 16807) % 2147483647;
+    times.push(-4000 + (seed / 2147483647) * 8000);
+  }
+  for (const resolution of ["daily", "monthly", "annual"] as const) {
+    const keyOf = periodKeyer(resolution);
+    const bad = times.filter((t) => keyOf(t) !== periodKey(t, resolution));
+    assert.deepEqual(bad, [], resolution);
+  }
+  assert.throws(() => periodKeyer("monthly")(NaN), RangeError);
+});
+
+Deno.test("dailyBounds() equals periodOfKey for each day, to the bit", () => {
+  for (const [first, count] of [[-800_000, 900_000], [0, 1], [-1, 3], [10_957, 0]]) {
+    const b = dailyBounds(first, count);
+    for (let i = 0; i < count; i++) {
+      const p = periodOfKey(first + i, "daily");
+      if (b.start[i] !== p.start || b.end[i] !== p.end || b.middle[i] !== p.middle) {
+        assert.fail(
+          `day ${first + i}: ${[b.start[i], b.end[i], b.middle[i]]} vs ${JSON.stringify(p)}`,
+        );
+      }
+    }
+  }
 });
