@@ -321,25 +321,13 @@ export function periodSequence(
     );
   }
   const n = last - first + 1;
-  const middle = new Float64Array(n), days = new Float64Array(n);
-  if (resolution !== "daily") {
-    for (let i = 0; i < n; i++) {
-      middle[i] = periodOfKey(first + i, resolution).middle;
-      days[i] = periodDays(first + i, resolution);
-    }
-    return { middle, days };
+  if (resolution === "daily") {
+    return { middle: dailyBounds(first, n).middle, days: new Float64Array(n).fill(1) };
   }
-  let year = civilFromDays(first).year;
-  let yearStart = daysFromCivil(year, 1, 1), diy = daysInYear(year);
+  const middle = new Float64Array(n), days = new Float64Array(n);
   for (let i = 0; i < n; i++) {
-    const k = first + i;
-    if (k - yearStart >= diy) {
-      year++;
-      yearStart = daysFromCivil(year, 1, 1);
-      diy = daysInYear(year);
-    }
-    middle[i] = year + (k - yearStart + 0.5) / diy;
-    days[i] = 1;
+    middle[i] = periodOfKey(first + i, resolution).middle;
+    days[i] = periodDays(first + i, resolution);
   }
   return { middle, days };
 }
