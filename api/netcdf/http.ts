@@ -260,7 +260,9 @@ export function seriesLikeOf(s: StoredSeries): SeriesLike {
 }
 
 /**
- * `GET /v1/series/{id}?format=netcdf[&calendar=...]`: the series as NetCDF-CF (classic).
+ * `GET /v1/series/{id}?format=netcdf[&calendar=...]`: the series as NetCDF-CF (classic). A
+ * series never changes, so with `cache` its file on each calendar is written once and kept
+ * (bounded; a larger file is streamed on every request).
  *
  * @throws {ProblemError} 404 for an unknown id, 422 for a calendar that cannot hold it
  */
@@ -269,6 +271,7 @@ export async function seriesNetcdfResponse(
   store: Store,
   id: string,
   shared: boolean,
+  cache?: ImmutableCache,
 ): Promise<Response> {
   const calendar = calendarOf(c);
   if (!(await store.getSeriesMeta(id))) {
@@ -277,6 +280,9 @@ export async function seriesNetcdfResponse(
   const etag = `"${id}-netcdf-${calendar}-${SERVICE_VERSION}"`;
   const nm = notModified(c, etag, shared);
   if (nm) return nm;
+  const key = `${id}-netcdf-${calendar}`;
+  const hit = cache?.get(key);
+  if (hit) return await serveRepresentation(c, hit, shared);
   const s = await store.getSeries(id);
   if (!s) throw new ProblemError("not-found", `No series has id ${id}`);
   const prov: Provenance = {
@@ -295,12 +301,13 @@ export async function seriesNetcdfResponse(
     cautions: [],
   };
   const short = s.id.replace(/^sha256:/, "").slice(0, 12);
-  return respond(
+  return await respond(
     c,
     () => buildSeriesDataset(seriesLikeOf(s), prov, { calendar }),
     etag,
     fileName([s.quantity, short, calendar]),
     shared,
+    cache && { cache, key },
   );
 }
 

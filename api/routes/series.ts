@@ -315,7 +315,8 @@ export function registerSeriesRoutes(
       // Visibility first (cheap), then a 304 without reading the points.
       const holding = await mustSeeSeries(store, principalOf(c), id);
       if (wantsNetcdf(c)) {
-        return await seriesNetcdfResponse(c, store, id, sharedCacheable(principalOf(c), holding));
+        const shared = sharedCacheable(principalOf(c), holding);
+        return await seriesNetcdfResponse(c, store, id, shared, representations);
       }
       const cached = fromCache(c, id, holding, principalOf(c));
       if (cached) return await cached;

@@ -128,6 +128,33 @@ Deno.test("GET /v1/series/{id}?format=netcdf on each calendar", async (t) => {
       assert.notEqual(other.headers.get("etag"), etag);
       await other.body?.cancel();
     });
+    await t.step("written once: later answers are the kept file, the series not read", async () => {
+      const url = `/v1/series/${id}?format=netcdf&calendar=all_leap`;
+      const first = await svc.get(url);
+      const bytes = new Uint8Array(await first.arrayBuffer());
+      const store = svc.store;
+      const getSeries = store.getSeries.bind(store);
+      let reads = 0;
+      store.getSeries = (sid) => (reads++, getSeries(sid));
+      try {
+        for (let k = 0; k < 3; k++) {
+          const res = await svc.get(url);
+          assert.equal(res.status, 200);
+          assert.deepEqual(new Uint8Array(await res.arrayBuffer()), bytes);
+          for (
+            const h of ["content-type", "content-disposition", "etag", "cache-control", "vary"]
+          ) {
+            assert.equal(res.headers.get(h), first.headers.get(h), h);
+          }
+        }
+        assert.equal(reads, 0);
+        // another calendar is another file, written on its first request
+        await (await svc.get(`/v1/series/${id}?format=netcdf&calendar=julian`)).arrayBuffer();
+        assert.equal(reads, 1);
+      } finally {
+        store.getSeries = getSeries;
+      }
+    });
     await t.step("Accept: application/x-netcdf", async () => {
       const res = await svc.get(`/v1/series/${id}`, { accept: "application/x-netcdf" });
       assert.equal(res.headers.get("content-type"), "application/x-netcdf");
