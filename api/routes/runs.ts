@@ -32,6 +32,7 @@ import {
 import { outputToCsv } from "../export/csv.ts";
 import { wantsCsv } from "./format.ts";
 import { notModified, type RequestView, setImmutableHeaders, withQuery } from "./cache.ts";
+import { joinBytes } from "../bytes.ts";
 import {
   identityRepresentation,
   ImmutableCache,
@@ -70,13 +71,7 @@ export function runViewBytes(
   const parts = runViewParts(r, extra);
   // one piece: the view encoded here (an ArrayBuffer of its own)
   if (parts.length === 1) return parts[0] as Uint8Array<ArrayBuffer>;
-  const out = new Uint8Array(parts.reduce((n, p) => n + p.length, 0));
-  let at = 0;
-  for (const p of parts) {
-    out.set(p, at);
-    at += p.length;
-  }
-  return out;
+  return joinBytes(parts);
 }
 
 /**

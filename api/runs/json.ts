@@ -16,6 +16,7 @@
 import { toPointer } from "../problems.ts";
 import { SNAKE_CASE_KEY } from "../analyses/common/keys.ts";
 import { plainNumbers } from "./plain_numbers.ts";
+import { joinBytes } from "../bytes.ts";
 
 function fail(value: unknown, path: (string | number)[]): never {
   throw new Error(
@@ -173,15 +174,7 @@ class Utf8Sink {
     if (!shared && chunks.length === 1 && chunks[0].byteLength === chunks[0].buffer.byteLength) {
       return chunks[0];
     }
-    const out = new Uint8Array(
-      shared ? new SharedArrayBuffer(this.#len) : new ArrayBuffer(this.#len),
-    );
-    let at = 0;
-    for (const c of chunks) {
-      out.set(c, at);
-      at += c.length;
-    }
-    return out;
+    return shared ? joinBytes(chunks, new SharedArrayBuffer(this.#len)) : joinBytes(chunks);
   }
 }
 

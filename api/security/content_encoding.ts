@@ -9,6 +9,7 @@
  */
 import type { MiddlewareHandler } from "hono";
 import { ProblemError } from "../problems.ts";
+import { joinBytes } from "../bytes.ts";
 
 const FORMATS: Record<string, CompressionFormat> = {
   gzip: "gzip",
@@ -49,13 +50,7 @@ export async function decodeBody(
       `The request body does not decode as ${format}: ${(e as Error).message}`.slice(0, 300),
     );
   }
-  const out = new Uint8Array(size);
-  let at = 0;
-  for (const p of parts) {
-    out.set(p, at);
-    at += p.byteLength;
-  }
-  return out;
+  return joinBytes(parts);
 }
 
 /** Decode gzip/deflate request bodies up to `limit` decoded bytes (see the module docs). */
