@@ -383,26 +383,22 @@ export class SqliteStore implements Store {
     fn: () => T,
     size = result ? resultBytesOf(result as object)?.length ?? 0 : 0,
   ): T {
-    if (size < LARGE_RESULT_BYTES) return this.#write(fn);
-    if (this.#writer) {
-      try {
-        return this.#withoutAutoCheckpoint(() => this.#write(fn));
-      } finally {
-        this.#writer.checkpoint();
-      }
-    }
-    if (!this.#checkpointLater) return this.#write(fn);
+    const writer = this.#writer;
+    if (size < LARGE_RESULT_BYTES || (!writer && !this.#checkpointLater)) return this.#write(fn);
     try {
       return this.#withoutAutoCheckpoint(() => this.#write(fn));
     } finally {
-      // after the caller has answered (a task, not a microtask)
-      setTimeout(() => {
-        try {
-          this.checkpointWal();
-        } catch {
-          // busy or closing: the next commit's automatic checkpoint does it
-        }
-      }, 0);
+      if (writer) writer.checkpoint();
+      else {
+        // after the caller has answered (a task, not a microtask)
+        setTimeout(() => {
+          try {
+            this.checkpointWal();
+          } catch {
+            // busy or closing: the next commit's automatic checkpoint does it
+          }
+        }, 0);
+      }
     }
   }
 
